@@ -1,0 +1,1 @@
+"""Inputs layer: material data files, quantities with units (later: calculation files)."""

@@ -1,0 +1,481 @@
+"""Thermal-equilibrium carrier statistics: charge neutrality with Fermi–Dirac
+statistics for both bands, incomplete ionization of every dopant species,
+compensation, and the metallic (fully ionized) regime above the Mott density.
+
+Neutrality:   n + sum_k N_A,k^-  =  p + sum_i N_D,i^+
+  n = N_c F_1/2(eta_n),  p = N_v F_1/2(eta_p),  eta_n = (E_F - E_C)/kT,
+  eta_p = (E_V - E_F)/kT = -eta_n - E_g/kT,
+  N_D,i^+ = N_D,i / (1 + g_D exp(eta_n + E_D,i/kT))      (E_D,i below E_C)
+  N_A,k^- = N_A,k / (1 + g_A exp(eta_p + E_A,k/kT))      (E_A,k above E_V)
+A species whose same-type total density reaches its Mott density is taken
+as fully ionized (impurity band merged with the band) and the point flagged.
+
+The residual f(eta) = ln(n + N_A^-) - ln(p + N_D^+) is strictly increasing in
+eta; it is evaluated entirely in logarithms (densities from e^-10000 to e^50
+never under- or overflow), bracketed, and solved by safeguarded Newton
+(bisection whenever a Newton step leaves the bracket).  Every point either
+meets |f| <= 1e-12 (relative neutrality residual) or raises ConvergenceError.
+
+References
+----------
+S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1
+(ionization statistics, g_D = 2, g_A = 4); J. S. Blakemore, Semiconductor
+Statistics (1962); P. P. Edwards and M. J. Sienko, Phys. Rev. B 17, 2575 (1978)
+(Mott criterion); W. H. Press et al., Numerical Recipes, 3rd ed. (2007), §9.4
+(safeguarded Newton, "rtsafe").
+"""
+from __future__ import annotations
+
+import os
+from concurrent.futures import ThreadPoolExecutor
+from dataclasses import dataclass
+from functools import cached_property
+
+import numpy as np
+
+from ..errors import ConvergenceError, InputError
+from .constants import BOLTZMANN, EV
+from .fermi import log_fermi_dirac, log_fermi_dirac_half_pair
+from .materials import Material
+
+MAX_ITERATIONS = 200
+TOLERANCE = 1e-12
+
+
+@dataclass
+class State:
+    """Solved equilibrium at every operating point (SI units, numpy arrays).
+
+    The solve produces eta_n (and its residual); everything else is derived
+    from it on first access and cached.  Energies in J (``*_eV`` give eV),
+    densities in m^-3, all arrays of the broadcast input shape.
+    """
+
+    material: Material
+    T: np.ndarray
+    donors: dict            # species -> total density
+    acceptors: dict
+    eta_n: np.ndarray
+    metallic: np.ndarray    # bool: some species above its Mott density
+    narrowing: np.ndarray   # band-gap narrowing applied (J), split half to each band
+    residual: np.ndarray    # |1 - (n + N_A^-)/(p + N_D^+)|
+    iterations: int = 0
+
+    @cached_property
+    def kT(self):
+        return BOLTZMANN * self.T
+
+    @cached_property
+    def Eg(self):
+        """Band gap including any narrowing (J)."""
+        return self.material.band_gap(self.T) - self.narrowing
+
+    @cached_property
+    def Nc(self):
+        return self.material.Nc(self.T)
+
+    @cached_property
+    def Nv(self):
+        return self.material.Nv(self.T)
+
+    @cached_property
+    def eta_p(self):
+        """(E_V - E_F)/kT."""
+        return -self.eta_n - self.Eg / self.kT
+
+    @cached_property
+    def n(self):
+        return self.Nc * np.exp(log_fermi_dirac(0.5, self.eta_n))
+
+    @cached_property
+    def p(self):
+        return self.Nv * np.exp(log_fermi_dirac(0.5, self.eta_p))
+
+    @cached_property
+    def ni(self):
+        """sqrt(N_c N_v) exp(-E_g/2kT): the intrinsic density in the Boltzmann definition."""
+        return np.sqrt(self.Nc * self.Nv) * np.exp(-0.5 * self.Eg / self.kT)
+
+    @cached_property
+    def donors_ionized(self):
+        return {name: ionized_density(self.material.dopant(name), dens, self.eta_n, self.kT,
+                                      self.narrowing, self.donors_total)
+                for name, dens in self.donors.items()}
+
+    @cached_property
+    def acceptors_ionized(self):
+        return {name: ionized_density(self.material.dopant(name), dens, self.eta_p, self.kT,
+                                      self.narrowing, self.acceptors_total)
+                for name, dens in self.acceptors.items()}
+
+    @property
+    def ef_minus_ec_eV(self):
+        return self.eta_n * self.kT / EV
+
+    @property
+    def ef_minus_ev_eV(self):
+        return -self.eta_p * self.kT / EV
+
+    @cached_property
+    def donors_total(self):
+        return _sum(self.donors, self.T)
+
+    @cached_property
+    def acceptors_total(self):
+        return _sum(self.acceptors, self.T)
+
+    @property
+    def donors_ionized_total(self):
+        return _sum(self.donors_ionized, self.T)
+
+    @property
+    def acceptors_ionized_total(self):
+        return _sum(self.acceptors_ionized, self.T)
+
+    @property
+    def donor_fraction(self):
+        """Ionized fraction of all donors (1 where there are none)."""
+        return _fraction(self.donors_ionized_total, self.donors_total)
+
+    @property
+    def acceptor_fraction(self):
+        return _fraction(self.acceptors_ionized_total, self.acceptors_total)
+
+
+def ionized_density(dopant, density, eta_band, kT, narrowing, same_type_total):
+    """Ionized density of one species (m^-3), vectorized.
+
+    Formula: N^+ = N / (1 + g exp(eta_band + E_ion/kT)), where eta_band is
+    eta_n for donors and eta_p for acceptors; a species whose same-type total
+    reaches its Mott density is fully ionized (metallic impurity band).
+
+    References
+    ----------
+    Sze & Ng (2007) ch. 1; Edwards & Sienko, Phys. Rev. B 17, 2575 (1978).
+    """
+    offset = _ionization_offset(dopant, kT, narrowing)
+    metallic = same_type_total >= dopant.mott_density
+    return np.where(metallic, density, density * _logistic(-(eta_band + offset)))
+
+
+def _ionization_offset(dopant, kT, narrowing):
+    """E_ion/kT + ln g; the narrowing moves each band edge by half of it."""
+    return (dopant.energy + 0.5 * narrowing) / kT + np.log(dopant.degeneracy)
+
+
+def _sum(parts: dict, like):
+    total = np.zeros(np.shape(like))
+    for value in parts.values():
+        total = total + value
+    return total
+
+
+def _fraction(part, whole):
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(whole > 0, part / np.where(whole > 0, whole, 1.0), 1.0)
+
+
+def _logistic(x):
+    e = np.exp(-np.abs(x))
+    return np.where(x >= 0, 1.0 / (1.0 + e), e / (1.0 + e))
+
+
+def _softplus_and_logistic(x):
+    """ln(1 + e^x) and 1/(1 + e^-x), sharing one exponential."""
+    e = np.exp(-np.abs(x))
+    one_plus = 1.0 + e
+    soft = np.maximum(x, 0.0) + np.log1p(e)
+    logistic = np.where(x >= 0, 1.0, e) / one_plus
+    return soft, logistic
+
+
+def _log(x):
+    with np.errstate(divide="ignore"):
+        return np.log(x)
+
+
+def _check_inputs(T, donors, acceptors):
+    if not np.all(np.isfinite(T)) or np.any(T <= 0):
+        bad = T[~(np.isfinite(T) & (T > 0))].ravel()[:3]
+        raise InputError(f"temperature must be finite and above 0 K; got {bad.tolist()} K")
+    for kind, group in (("donor", donors), ("acceptor", acceptors)):
+        for species, value in group.items():
+            if not np.all(np.isfinite(value)) or np.any(value < 0):
+                bad = value[~(np.isfinite(value) & (value >= 0))].ravel()[:3]
+                raise InputError(f"{kind} density of {species} must be finite and >= 0; "
+                                 f"got {(bad * 1e-6).tolist()} cm^-3")
+
+
+class _Neutrality:
+    """Log-space neutrality residual for the points of one solve."""
+
+    def __init__(self, ln_nc, ln_nv, eg_kt, donor_terms, acceptor_terms):
+        self.ln_nc, self.ln_nv, self.eg_kt = ln_nc, ln_nv, eg_kt
+        # each term: (ln N, offset, metallic) with ionization argument eta + offset
+        self.donor_terms = donor_terms
+        self.acceptor_terms = acceptor_terms
+
+    def subset(self, idx):
+        pick = lambda terms: [(a[idx], b[idx], c[idx]) for a, b, c in terms]
+        return _Neutrality(self.ln_nc[idx], self.ln_nv[idx], self.eg_kt[idx],
+                           pick(self.donor_terms), pick(self.acceptor_terms))
+
+    def __call__(self, eta):
+        """Return (f, df/deta)."""
+        eta_p = -eta - self.eg_kt
+        size = eta.size
+        both, both_minus = log_fermi_dirac_half_pair(np.concatenate([eta, eta_p]))
+        lf_n, lf_p = both[:size], both[size:]
+        slopes = np.exp(both_minus - both)      # d ln F_1/2 / d eta = F_-1/2 / F_1/2
+        slope_n, slope_p = slopes[:size], slopes[size:]
+        left = [(self.ln_nc + lf_n, slope_n)]
+        right = [(self.ln_nv + lf_p, -slope_p)]
+        for ln_n, offset, metallic in self.acceptor_terms:
+            left.append(_ionized_term(ln_n, eta_p + offset, metallic, +1.0))
+        for ln_n, offset, metallic in self.donor_terms:
+            right.append(_ionized_term(ln_n, eta + offset, metallic, -1.0))
+        lse_l, dl = _logsumexp_with_slope(left)
+        lse_r, dr = _logsumexp_with_slope(right)
+        return lse_l - lse_r, dl - dr
+
+
+def _ionized_term(ln_density, argument, metallic, sign):
+    """ln N^+ = ln N - ln(1 + e^arg) and its eta-derivative (sign * neutral fraction)."""
+    soft, neutral = _softplus_and_logistic(argument)
+    value, slope = ln_density - soft, sign * neutral
+    if metallic.any():
+        value = np.where(metallic, ln_density, value)
+        slope = np.where(metallic, 0.0, slope)
+    return value, slope
+
+
+def _logsumexp_with_slope(terms):
+    """ln(sum e^a_i) and its derivative sum w_i a_i' (w = softmax weights)."""
+    if len(terms) == 1:
+        return terms[0]
+    top = terms[0][0]
+    for value, _ in terms[1:]:
+        top = np.maximum(top, value)
+    total = np.zeros_like(top)
+    slope = np.zeros_like(top)
+    for value, deriv in terms:
+        w = np.exp(value - top)
+        total += w
+        slope += w * deriv
+    return top + np.log(total), slope / total
+
+
+def _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd, na, e_donor, e_acceptor, metal_d, metal_a, ni, Nc, Nv):
+    """Boltzmann estimate of eta_n with one effective donor and acceptor level.
+
+    Net donors: n (n + N_A) / (N_D - N_A - n) = (N_c/2) e^(-E_D/kT), solved in
+    its cancellation-free form, then combined with n_i; the p-type case mirrors
+    it.  It is only the Newton start: the solve itself uses the full model.
+    """
+    def majority(n_major, n_minor, ln_n_band, energy, metal):
+        net = np.maximum(n_major - n_minor, 0.0)
+        ln_phi = np.clip(ln_n_band - np.log(2.0) - energy / kT, -690.0, 690.0)
+        phi = np.where(metal, np.inf, np.exp(ln_phi))
+        with np.errstate(invalid="ignore", over="ignore"):
+            b = n_minor + phi
+            frozen = 2 * phi * net / (b + np.sqrt(b * b + 4 * phi * net))
+        carriers = np.where(np.isfinite(phi), frozen, net)
+        carriers = np.where(np.isnan(carriers), net, carriers)
+        half = 0.5 * carriers
+        return half + np.sqrt(half * half + ni * ni)
+
+    n_type = nd >= na
+    n = majority(nd, na, ln_nc, e_donor, metal_d)
+    p = majority(na, nd, ln_nv, e_acceptor, metal_a)
+    ln_u_n = np.log(np.maximum(n, 1e-300)) - ln_nc
+    ln_u_p = np.log(np.maximum(p, 1e-300)) - ln_nv
+    eta_n = _eta_from_ln_u(ln_u_n)
+    eta_p = _eta_from_ln_u(ln_u_p)
+    return np.where(n_type, eta_n, -eg_kt - eta_p)
+
+
+def _eta_from_ln_u(ln_u):
+    """Rough inverse of F_1/2 from ln u (Boltzmann below, Sommerfeld above)."""
+    u = np.exp(np.minimum(ln_u, 50.0))
+    degenerate = np.cbrt((0.75 * np.sqrt(np.pi) * u) ** 2)
+    return np.where(ln_u < 0.0, ln_u, np.maximum(degenerate, ln_u))
+
+
+def _newton(residual, eta0):
+    """Newton with a growing step limit and a bracket kept from the signs of f.
+
+    f is strictly increasing, so every evaluation tightens [lo, hi]; a Newton
+    step that leaves the bracket is replaced by bisection (or, while one side
+    is still open, by a step of the current limit toward the root).  Working
+    arrays are compacted as points converge.
+    """
+    n_points = eta0.size
+    out_eta = np.empty(n_points)
+    out_f = np.empty(n_points)
+    idx = np.arange(n_points)
+    x = eta0.copy()
+    lo = np.full(n_points, -np.inf)
+    hi = np.full(n_points, np.inf)
+    limit = np.full(n_points, 8.0)
+    for iterations in range(1, MAX_ITERATIONS + 1):
+        f, df = residual(x)
+        lo = np.where(f < 0, x, lo)
+        hi = np.where(f > 0, x, hi)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            step = -f / df
+        bad = ~np.isfinite(step)
+        if bad.any():
+            step[bad] = np.where(f[bad] > 0, -limit[bad], limit[bad])
+        np.clip(step, -limit, limit, out=step)
+        new = x + step
+        outside = (new <= lo) | (new >= hi)
+        if outside.any():
+            o_lo, o_hi, o_x, o_lim = lo[outside], hi[outside], x[outside], limit[outside]
+            closed = np.isfinite(o_lo) & np.isfinite(o_hi)
+            with np.errstate(invalid="ignore"):
+                middle = 0.5 * (o_lo + o_hi)
+            new[outside] = np.where(closed, middle,
+                                    np.where(f[outside] > 0, o_x - o_lim, o_x + o_lim))
+        limit = np.where(np.abs(step) >= limit, 4.0 * limit, limit)
+        scale = np.maximum(1.0, np.abs(new))
+        small_f = np.abs(f) <= TOLERANCE
+        done = small_f | (np.abs(new - x) <= 1e-15 * scale) | ((hi - lo) <= 4e-16 * scale)
+        if done.any():
+            # a point that stopped on |f| keeps x, where f was measured
+            out_eta[idx[done]] = np.where(small_f, x, new)[done]
+            out_f[idx[done]] = np.abs(f[done])
+            keep = ~done
+            if not keep.any():
+                return out_eta, out_f, iterations
+            idx, new, lo, hi, limit = idx[keep], new[keep], lo[keep], hi[keep], limit[keep]
+            residual = residual.subset(keep)
+        x = new
+    raise ConvergenceError(
+        f"Fermi-level solve did not converge at {idx.size} point(s) after "
+        f"{MAX_ITERATIONS} iterations")
+
+
+WORKERS = min(4, os.cpu_count() or 1)
+CHUNK = 1 << 15  # points per block: the solver's temporaries then stay in cache
+
+
+def solve(material: Material, T, donors: dict | None = None, acceptors: dict | None = None,
+          band_gap_narrowing: bool = False) -> State:
+    """Solve charge neutrality for E_F at every (T, doping) point (vectorized).
+
+    Formula: see the module docstring.  Units: T in K; ``donors`` and
+    ``acceptors`` map a species of ``material`` to densities in m^-3 (arrays
+    broadcast with T).  Validity: T in [1, 1500] K and densities in
+    [0, 1e28] m^-3 are covered by tests; the material models have their own
+    fitted ranges (reported by the rules, not enforced here).
+
+    References
+    ----------
+    Sze & Ng (2007) ch. 1; Edwards & Sienko, Phys. Rev. B 17, 2575 (1978).
+    """
+    donors = dict(donors or {})
+    acceptors = dict(acceptors or {})
+    arrays = np.broadcast_arrays(np.asarray(T, dtype=float),
+                                 *[np.asarray(v, dtype=float) for v in donors.values()],
+                                 *[np.asarray(v, dtype=float) for v in acceptors.values()])
+    shape = arrays[0].shape
+    T = arrays[0].astype(float).ravel()
+    d_vals = [a.astype(float).ravel() for a in arrays[1:1 + len(donors)]]
+    a_vals = [a.astype(float).ravel() for a in arrays[1 + len(donors):]]
+    donors = dict(zip(donors, d_vals))
+    acceptors = dict(zip(acceptors, a_vals))
+    _check_inputs(T, donors, acceptors)
+    species = {name: material.dopant(name) for name in [*donors, *acceptors]}
+    for name in donors:
+        if species[name].kind != "donor":
+            raise InputError(f"{name} is an acceptor in {material.name}; list it under acceptors")
+    for name in acceptors:
+        if species[name].kind != "acceptor":
+            raise InputError(f"{name} is a donor in {material.name}; list it under donors")
+
+    eta = np.empty_like(T)
+    residual = np.empty_like(T)
+    metallic = np.empty(T.shape, dtype=bool)
+    narrowing = np.empty_like(T)
+
+    def block(i):
+        part = slice(i, i + CHUNK)
+        return _solve_flat(material, T[part], {k: v[part] for k, v in donors.items()},
+                           {k: v[part] for k, v in acceptors.items()}, band_gap_narrowing, species,
+                           out=(eta[part], residual[part], metallic[part], narrowing[part]))
+
+    starts = range(0, T.size, CHUNK)
+    if len(starts) > 1 and WORKERS > 1:
+        # numpy releases the GIL inside ufuncs, so blocks overlap on both cores
+        with ThreadPoolExecutor(max_workers=WORKERS) as pool:
+            iterations = max(pool.map(block, starts))
+    else:
+        iterations = max(block(i) for i in starts)
+    return State(material=material, T=T.reshape(shape),
+                 donors={k: v.reshape(shape) for k, v in donors.items()},
+                 acceptors={k: v.reshape(shape) for k, v in acceptors.items()},
+                 eta_n=eta.reshape(shape), metallic=metallic.reshape(shape),
+                 narrowing=narrowing.reshape(shape), residual=residual.reshape(shape),
+                 iterations=iterations)
+
+
+def _effective_levels(donors, acceptors, species, nd_total, na_total, T):
+    """Ionization energy of the most abundant donor / acceptor at each point (for the start)."""
+    def pick(group, total):
+        energy = np.zeros_like(T)
+        metal = np.zeros(T.shape, dtype=bool)
+        best = np.full_like(T, -1.0)
+        for name, dens in group.items():
+            better = dens > best
+            energy = np.where(better, species[name].energy, energy)
+            best = np.maximum(best, dens)
+            metal |= total >= species[name].mott_density
+        return energy, metal
+
+    e_d, m_d = pick(donors, nd_total)
+    e_a, m_a = pick(acceptors, na_total)
+    return e_d, e_a, m_d, m_a
+
+
+def _solve_flat(material, T, donors, acceptors, band_gap_narrowing, species, out) -> int:
+    """Solve one block; write eta, residual, metallic flag and narrowing into ``out``."""
+    kT = BOLTZMANN * T
+    Eg = material.need("band_gap", "the equilibrium solve")(T)
+    Nc = material.need("Nc", "the equilibrium solve")(T)
+    Nv = material.need("Nv", "the equilibrium solve")(T)
+    nd_total = sum(donors.values(), np.zeros_like(T))
+    na_total = sum(acceptors.values(), np.zeros_like(T))
+    narrowing = np.zeros_like(T)
+    if band_gap_narrowing:
+        model = material.need("narrowing", "the band-gap narrowing option")
+        narrowing = np.where(nd_total + na_total > 0, model(nd_total, na_total), 0.0)
+        narrowing = np.clip(narrowing, 0.0, None)
+    Eg_eff = Eg - narrowing
+    eg_kt = Eg_eff / kT
+
+    def terms(group, total):
+        out_terms = []
+        for name, density in group.items():
+            d = species[name]
+            offset = _ionization_offset(d, kT, narrowing)
+            out_terms.append((_log(density), offset, total >= d.mott_density))
+        return out_terms
+
+    donor_terms = terms(donors, nd_total)
+    acceptor_terms = terms(acceptors, na_total)
+    metallic = np.zeros(T.shape, dtype=bool)
+    for _, _, flag in donor_terms + acceptor_terms:
+        metallic |= flag
+    ln_nc, ln_nv = np.log(Nc), np.log(Nv)
+    ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
+    residual = _Neutrality(ln_nc, ln_nv, eg_kt, donor_terms, acceptor_terms)
+    eta0 = _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd_total, na_total,
+                          *_effective_levels(donors, acceptors, species, nd_total, na_total, T),
+                          ni, Nc, Nv)
+    eta, final_f, iterations = _newton(residual, eta0)
+    out_eta, out_residual, out_metallic, out_narrowing = out
+    out_eta[:] = eta
+    out_residual[:] = -np.expm1(-final_f)
+    out_metallic[:] = metallic
+    out_narrowing[:] = narrowing
+    return iterations

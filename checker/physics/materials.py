@@ -1,0 +1,387 @@
+"""Material parameter models (pure numpy; SI units inside).
+
+A :class:`Material` bundles the temperature and doping models the solver and
+the transport functions need.  Each model is a small callable object whose
+parameters are SI numbers; the data files that fill them (with their
+sources) live in ``checker/data/materials`` and are read by the inputs layer.
+
+Units: energies J, densities m^-3, mobilities m^2/(V s), velocities m/s,
+fields V/m, temperatures K, masses in units of the free electron mass m0.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..errors import MissingParameterError, UnknownDopantError
+from .constants import BOHR_RADIUS, ELEMENTARY_CHARGE, VACUUM_PERMITTIVITY
+
+T_REF = 300.0
+
+
+@dataclass(frozen=True)
+class Provenance:
+    """Where a parameter comes from and where it may be used."""
+
+    source: str
+    valid_T: tuple[float, float] = (0.0, np.inf)       # K
+    valid_N: tuple[float, float] = (0.0, np.inf)       # m^-3 (doping models)
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class VarshniGap:
+    """Band gap E_g(T) = E_g0 - alpha T^2 / (T + beta).
+
+    Units: E_g0 in J, alpha in J/K, beta in K; T in K -> J.
+    Validity: the fitted range in ``provenance.valid_T``.
+
+    References
+    ----------
+    Y. P. Varshni, Physica 34, 149 (1967); parameters per material file.
+    """
+
+    Eg0: float
+    alpha: float
+    beta: float
+    provenance: Provenance
+
+    def __call__(self, T):
+        T = np.asarray(T, dtype=float)
+        return self.Eg0 - self.alpha * T * T / (T + self.beta)
+
+
+@dataclass(frozen=True)
+class PowerLawDOS:
+    """Effective density of states N(T) = N_300 (T/300 K)^exponent (parabolic: 3/2).
+
+    Units: N_300 in m^-3; T in K -> m^-3.
+
+    References
+    ----------
+    S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1.
+    """
+
+    N300: float
+    exponent: float
+    provenance: Provenance
+
+    def __call__(self, T):
+        return self.N300 * (np.asarray(T, dtype=float) / T_REF) ** self.exponent
+
+
+@dataclass(frozen=True)
+class Dopant:
+    """An impurity species: donor or acceptor with its ionization energy.
+
+    ``energy`` is measured from the nearest band edge (J); ``degeneracy`` is the
+    ground-state degeneracy factor (2 for donors, 4 for acceptors in cubic
+    semiconductors).  ``mott_density`` (m^-3) is where the impurity band merges
+    with the band; above it the isolated-impurity model is invalid.
+    """
+
+    name: str
+    kind: str            # "donor" | "acceptor"
+    energy: float
+    degeneracy: float
+    mott_density: float
+    mott_estimated: bool
+    provenance: Provenance
+
+
+def edwards_sienko_mott_density(energy, eps_r):
+    """Mott critical density from the hydrogenic radius of a bound carrier.
+
+    Formula: n_c = (0.26 / a)^3 with a = q^2 / (8 pi eps0 eps_r E_ion), the
+    radius of a hydrogenic level whose binding energy is E_ion (J).  Units: m^-3.
+    Validity: order-of-magnitude estimate (the criterion scatters by +-20 % in
+    n_c^(1/3) across systems); used only where no measured value is tabulated.
+
+    References
+    ----------
+    P. P. Edwards and M. J. Sienko, Phys. Rev. B 17, 2575 (1978).
+    """
+    radius = ELEMENTARY_CHARGE ** 2 / (8 * np.pi * VACUUM_PERMITTIVITY * eps_r
+                                       * np.asarray(energy, dtype=float))
+    return (0.26 / radius) ** 3
+
+
+@dataclass(frozen=True)
+class Masetti:
+    """Masetti doping-dependent mobility (one published parameter set).
+
+    Formula (electrons, eq. 1; holes, eq. 4 with mu_min2 = 0 and P_c > 0):
+      mu = mu_min1 exp(-P_c/N) + (mu_max(T/300)^gamma - mu_min2)/(1 + (N/C_r)^alpha)
+           - mu_1/(1 + (C_s/N)^beta)
+    with mu_min2 = mu_min1 when P_c = 0.  N: total ionized impurity density.
+    Units: mobilities m^2/(V s), densities m^-3.  Validity: 300 K data, N up
+    to ~1e21 cm^-3; the T scaling of mu_max (gamma) is common usage, not
+    part of the paper.
+
+    References
+    ----------
+    G. Masetti, M. Severi and S. Solmi, IEEE Trans. Electron Devices 30, 764 (1983).
+    """
+
+    mu_min1: float
+    mu_max: float
+    C_r: float
+    alpha: float
+    mu_1: float
+    C_s: float
+    beta: float
+    P_c: float
+    gamma: float
+    provenance: Provenance
+
+    def __call__(self, N, T):
+        N = np.maximum(np.asarray(N, dtype=float), 1.0)  # 1 m^-3 floor: N -> 0 limit
+        T = np.asarray(T, dtype=float)
+        mu_max = self.mu_max * (T / T_REF) ** self.gamma
+        if self.P_c > 0:
+            first, mu_min2 = self.mu_min1 * np.exp(-self.P_c / N), 0.0
+        else:
+            first, mu_min2 = self.mu_min1, self.mu_min1
+        return (first + (mu_max - mu_min2) / (1 + (N / self.C_r) ** self.alpha)
+                - self.mu_1 / (1 + (self.C_s / N) ** self.beta))
+
+
+@dataclass(frozen=True)
+class Arora:
+    """Arora doping- and temperature-dependent mobility of silicon.
+
+    Formula: mu = A_min Tn^a_min + A_0 T^a_0 / (1 + (N / (N_ref Tn^a_N))^(alpha Tn^a_alpha)),
+    Tn = T/300 K, with A_0 given for T in kelvin (as published).
+    Units: m^2/(V s), m^-3.  Validity: 250-500 K, N <= ~1e20 cm^-3 (+-13 %).
+
+    References
+    ----------
+    N. D. Arora, J. R. Hauser and D. J. Roulston, IEEE Trans. Electron Devices
+    29, 292 (1982).
+    """
+
+    A_min: float
+    a_min: float
+    A_0: float
+    a_0: float
+    N_ref: float
+    a_N: float
+    alpha: float
+    a_alpha: float
+    provenance: Provenance
+
+    def __call__(self, N, T):
+        N = np.asarray(N, dtype=float)
+        T = np.asarray(T, dtype=float)
+        Tn = T / T_REF
+        expo = self.alpha * Tn ** self.a_alpha
+        return (self.A_min * Tn ** self.a_min
+                + self.A_0 * T ** self.a_0 / (1 + (N / (self.N_ref * Tn ** self.a_N)) ** expo))
+
+
+@dataclass(frozen=True)
+class CaugheyThomas:
+    """Caughey–Thomas mobility with power-law temperature terms.
+
+    Formula: mu = mu_min + (mu_max (T/300)^(-theta1) - mu_min)
+                  / (1 + (N / (N_ref (T/300)^theta2))^lam).
+    (theta1 = theta2 = 0 gives the original 300 K form.)
+    Units: m^2/(V s), m^-3.
+
+    References
+    ----------
+    D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967); temperature
+    terms as in M. Sotoodeh, A. H. Khalid and A. A. Rezazadeh, J. Appl. Phys.
+    87, 2890 (2000).  Parameters per material file.
+    """
+
+    mu_max: float
+    mu_min: float
+    N_ref: float
+    lam: float
+    theta1: float
+    theta2: float
+    provenance: Provenance
+
+    def __call__(self, N, T):
+        N = np.asarray(N, dtype=float)
+        Tn = np.asarray(T, dtype=float) / T_REF
+        mu_max = self.mu_max * Tn ** (-self.theta1)
+        return self.mu_min + (mu_max - self.mu_min) / (
+            1 + (N / (self.N_ref * Tn ** self.theta2)) ** self.lam)
+
+
+@dataclass(frozen=True)
+class Levinshtein:
+    """GaN doping- and temperature-dependent mobility (Mnatsakanov/Levinshtein).
+
+    Formula: mu = mu_max / (1/(B(N) (T/300)^beta) + (T/300)^alpha),
+             B(N) = (mu_min + mu_max (N_ref/N)^gamma) / (mu_max - mu_min).
+    Units: m^2/(V s), m^-3.  Validity: 300-1000 K, N 1e16-1e20 cm^-3.
+
+    References
+    ----------
+    T. T. Mnatsakanov, M. E. Levinshtein et al., Solid-State Electron. 47, 111 (2003).
+    """
+
+    mu_max: float
+    mu_min: float
+    N_ref: float
+    alpha: float
+    beta: float
+    gamma: float
+    provenance: Provenance
+
+    def __call__(self, N, T):
+        N = np.maximum(np.asarray(N, dtype=float), 1.0)
+        Tn = np.asarray(T, dtype=float) / T_REF
+        B = (self.mu_min + self.mu_max * (self.N_ref / N) ** self.gamma) / (self.mu_max - self.mu_min)
+        return self.mu_max / (1.0 / (B * Tn ** self.beta) + Tn ** self.alpha)
+
+
+@dataclass(frozen=True)
+class SaturationVelocity:
+    """Saturation velocity v_sat(T) = v_300 / ((1 - A) + A T/300).
+
+    Units: m/s.  (A = 0 gives a constant.)
+
+    References
+    ----------
+    R. Quay, C. Moglestue, V. Palankovski and S. Selberherr, Mater. Sci.
+    Semicond. Process. 3, 149 (2000).
+    """
+
+    v300: float
+    A: float
+    provenance: Provenance
+
+    def __call__(self, T):
+        return self.v300 / ((1 - self.A) + self.A * np.asarray(T, dtype=float) / T_REF)
+
+
+@dataclass(frozen=True)
+class PowerLawExponent:
+    """A dimensionless model parameter b(T) = b_ref T^k (T in K; k = 0: constant).
+
+    Used for the Caughey–Thomas field exponent beta (Canali: 2.57e-2 T^0.66
+    for electrons, 0.46 T^0.17 for holes in silicon).
+
+    References
+    ----------
+    C. Canali et al., IEEE Trans. Electron Devices 22, 1045 (1975).
+    """
+
+    ref: float
+    power: float
+    provenance: Provenance
+
+    def __call__(self, T):
+        return self.ref * np.asarray(T, dtype=float) ** self.power
+
+
+@dataclass(frozen=True)
+class SlotboomNarrowing:
+    """Apparent band-gap narrowing dE_g = V1 (ln(N/N0) + sqrt(ln(N/N0)^2 + C)).
+
+    Units: V1 in J, N0 and N in m^-3 -> J.
+
+    References
+    ----------
+    J. W. Slotboom and H. C. de Graaff, Solid-State Electron. 19, 857 (1976);
+    parameters D. B. M. Klaassen, J. W. Slotboom and H. C. de Graaff,
+    Solid-State Electron. 35, 125 (1992).
+    """
+
+    V1: float
+    N0: float
+    C: float
+    provenance: Provenance
+
+    def __call__(self, N_donor, N_acceptor):
+        N = np.maximum(np.asarray(N_donor, dtype=float) + np.asarray(N_acceptor, dtype=float), 1.0)
+        x = np.log(N / self.N0)
+        return self.V1 * (x + np.sqrt(x * x + self.C))
+
+
+@dataclass(frozen=True)
+class CubeRootNarrowing:
+    """Band-gap narrowing dE_g = a_n N_D^(1/3) + a_p N_A^(1/3) (per doping type).
+
+    Units: a_n, a_p in J m (J per m^-1), densities m^-3 -> J.
+
+    References
+    ----------
+    S. C. Jain, J. M. McGregor and D. J. Roulston, J. Appl. Phys. 68, 3747 (1990).
+    """
+
+    a_n: float
+    a_p: float
+    provenance: Provenance
+
+    def __call__(self, N_donor, N_acceptor):
+        return (self.a_n * np.cbrt(np.asarray(N_donor, dtype=float))
+                + self.a_p * np.cbrt(np.asarray(N_acceptor, dtype=float)))
+
+
+@dataclass(frozen=True)
+class CarrierTransport:
+    """Low-field and high-field transport models of one carrier type."""
+
+    mobility: dict            # model name -> callable(N_ionized, T) -> m^2/(V s)
+    default_model: str
+    dopant_models: dict = field(default_factory=dict)  # species -> model name
+    vsat: SaturationVelocity | None = None
+    beta: PowerLawExponent | None = None
+    thermal_mass: float | None = None   # m0 units (conductivity mass)
+
+    def low_field(self, N_ionized, T, model: str | None = None, species: str | None = None):
+        name = model or self.dopant_models.get(species or "", self.default_model)
+        try:
+            return self.mobility[name](N_ionized, T)
+        except KeyError:
+            raise MissingParameterError(
+                f"mobility model {name!r} is not defined; available: "
+                + ", ".join(sorted(self.mobility))) from None
+
+
+@dataclass(frozen=True)
+class Material:
+    """All parameters of one semiconductor (see the module docstring for units)."""
+
+    name: str
+    long_name: str
+    band_gap: VarshniGap | None
+    Nc: PowerLawDOS | None
+    Nv: PowerLawDOS | None
+    eps_r: float | None
+    dopants: dict
+    electron: CarrierTransport | None
+    hole: CarrierTransport | None
+    narrowing: SlotboomNarrowing | CubeRootNarrowing | None = None
+    sources: dict = field(default_factory=dict)
+
+    def need(self, attribute: str, purpose: str):
+        """Return a parameter or raise a clear error naming what needs it."""
+        value = getattr(self, attribute)
+        if value is None:
+            raise MissingParameterError(
+                f"material {self.name!r} has no {attribute!r}; it is needed for {purpose}. "
+                f"Add it to the material definition.")
+        return value
+
+    def dopant(self, species: str) -> Dopant:
+        try:
+            return self.dopants[species]
+        except KeyError:
+            known = ", ".join(sorted(self.dopants)) or "none"
+            raise UnknownDopantError(
+                f"material {self.name!r} has no dopant {species!r}; known: {known}") from None
+
+
+__all__ = [
+    "Arora", "CarrierTransport", "CaugheyThomas", "CubeRootNarrowing", "Dopant",
+    "Levinshtein", "Masetti", "Material", "PowerLawDOS", "PowerLawExponent",
+    "Provenance", "SaturationVelocity", "SlotboomNarrowing", "VarshniGap",
+    "edwards_sienko_mott_density", "BOHR_RADIUS",
+]

@@ -1,0 +1,161 @@
+"""Transport: generalized Einstein relation, mobility, conductivity, thermal
+velocity, backscattering mean free path and short-conductor resistance.
+
+All functions are vectorized and use SI units: mobility m^2/(V s), diffusion
+coefficient m^2/s, density m^-3, conductivity S/m, resistivity ohm m, length m,
+velocity m/s, field V/m, temperature K.
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import InputError
+from .constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE
+from .fermi import log_fermi_dirac
+
+# dimensionality -> (order j of the density integral) ; D/mu uses F_j / F_{j-1}
+_DENSITY_ORDER = {3: 0.5, 2: 0.0, 1: -0.5}
+
+
+def _log_fd(j, eta):
+    """ln F_j for j in {-3/2, -1, -1/2, 0, 1/2}, without underflow."""
+    if j == -1:  # F_-1 = logistic(eta) -> ln = -ln(1 + e^-eta)
+        x = -np.asarray(eta, dtype=float)
+        return -(np.maximum(x, 0.0) + np.log1p(np.exp(-np.abs(x))))
+    return log_fermi_dirac(j, eta)
+
+
+def _dimension(dimension) -> int:
+    if dimension not in _DENSITY_ORDER:
+        raise InputError(f"dimensionality must be 3, 2 or 1, got {dimension!r}")
+    return int(dimension)
+
+
+def einstein_ratio(eta, dimension=3):
+    """Generalized Einstein ratio (D/mu)/(kT/q) for a parabolic band.
+
+    Formula: F_j(eta)/F_{j-1}(eta) with j = 1/2 (3D), 0 (2D), -1/2 (1D).
+    Units: dimensionless.  Limits: 1 for eta -> -inf (Einstein relation);
+    eta/(j+1) for eta >> 1 (3D: (2/3)(E_F - E_C)/kT).
+    Validity: parabolic band, single subband in 2D/1D.
+
+    References
+    ----------
+    P. T. Landsberg, Eur. J. Phys. 2, 213 (1981); M. Lundstrom, Fundamentals
+    of Carrier Transport, 2nd ed. (2000), ch. 3.
+    """
+    j = _DENSITY_ORDER[_dimension(dimension)]
+    return np.exp(_log_fd(j, eta) - _log_fd(j - 1, eta))
+
+
+def diffusion_coefficient(mobility, T, eta, dimension=3):
+    """D = mu (kT/q) F_j/F_{j-1}: the diffusion coefficient (m^2/s).
+
+    Units: mobility m^2/(V s), T in K.  Reduces to D = mu kT/q when non-degenerate.
+
+    References
+    ----------
+    Lundstrom, Fundamentals of Carrier Transport (2000), ch. 3.
+    """
+    return mobility * BOLTZMANN * np.asarray(T, dtype=float) / ELEMENTARY_CHARGE \
+        * einstein_ratio(eta, dimension)
+
+
+def field_dependent_mobility(mu_low, field, v_sat, beta):
+    """Caughey–Thomas field dependence mu(E) = mu0 / (1 + (mu0 E / v_sat)^beta)^(1/beta).
+
+    Units: mu0 m^2/(V s), E V/m, v_sat m/s.  Validity: monotone saturation
+    (no negative differential mobility, e.g. GaAs above ~3 kV/cm).
+
+    References
+    ----------
+    D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967); C. Canali et
+    al., IEEE Trans. Electron Devices 22, 1045 (1975).
+    """
+    ratio = np.asarray(mu_low, dtype=float) * np.abs(np.asarray(field, dtype=float)) / v_sat
+    return mu_low / (1.0 + ratio ** beta) ** (1.0 / beta)
+
+
+def drift_velocity(mu_low, field, v_sat, beta):
+    """|v| = mu(E) |E| (m/s) with the Caughey–Thomas mobility.
+
+    References
+    ----------
+    Caughey & Thomas, Proc. IEEE 55, 2192 (1967).
+    """
+    return field_dependent_mobility(mu_low, field, v_sat, beta) * np.abs(field)
+
+
+def conductivity(n, p, mu_n, mu_p):
+    """sigma = q (n mu_n + p mu_p) in S/m (two-carrier drift conductivity).
+
+    References
+    ----------
+    Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1.
+    """
+    return ELEMENTARY_CHARGE * (np.asarray(n) * mu_n + np.asarray(p) * mu_p)
+
+
+def resistivity(n, p, mu_n, mu_p):
+    """rho = 1/sigma in ohm m (inf where there are no carriers).
+
+    References
+    ----------
+    Sze & Ng (2007), ch. 1.
+    """
+    sigma = conductivity(n, p, mu_n, mu_p)
+    with np.errstate(divide="ignore"):
+        return 1.0 / sigma
+
+
+_THERMAL_PREFACTOR = {3: 2.0 / np.pi, 2: np.pi / 2.0, 1: 2.0 / np.pi}
+
+
+def unidirectional_thermal_velocity(T, mass, eta=None, dimension=3):
+    """Mean velocity of the carriers moving in +x, <v_x^+> (m/s).
+
+    Formula: non-degenerate sqrt(2kT/(pi m*)) in 3D and 1D, sqrt(pi kT/(2 m*))
+    in 2D; with Fermi–Dirac statistics multiplied by F_0/F_1/2 (3D),
+    F_1/2/F_0 (2D) or F_0/F_-1/2 (1D).  ``mass`` in units of m0 (a
+    conductivity effective mass).  Validity: parabolic band.
+
+    References
+    ----------
+    M. Lundstrom and C. Jeong, Near-Equilibrium Transport (World Scientific,
+    2012), ch. 2 and 6.
+    """
+    dim = _dimension(dimension)
+    T = np.asarray(T, dtype=float)
+    base = np.sqrt(_THERMAL_PREFACTOR[dim] * BOLTZMANN * T / (np.asarray(mass) * ELECTRON_MASS))
+    if eta is None:
+        return base
+    j = _DENSITY_ORDER[dim]
+    upper = {3: 0.0, 2: 0.5, 1: 0.0}[dim]
+    return base * np.exp(_log_fd(upper, eta) - _log_fd(j, eta))
+
+
+def backscattering_mean_free_path(diffusion, thermal_velocity):
+    """lambda = 2 D / <v_x^+> (m): the mean free path for backscattering.
+
+    Use the Fermi–Dirac forms of D and <v_x^+> when degenerate.
+
+    References
+    ----------
+    Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 6; C. Jeong et
+    al., J. Appl. Phys. 107, 023707 (2010).
+    """
+    return 2.0 * np.asarray(diffusion) / thermal_velocity
+
+
+def short_conductor_resistance(resistivity_value, length, area, mean_free_path):
+    """R = rho (L + lambda) / A (ohm): ballistic plus diffusive (Landauer).
+
+    Reduces to rho L / A when L >> lambda; when L << lambda it tends to the
+    ballistic limit rho lambda / A.
+
+    References
+    ----------
+    Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 3 (eq. for the
+    resistance of a conductor of arbitrary length).
+    """
+    return np.asarray(resistivity_value) * (np.asarray(length) + mean_free_path) / np.asarray(area)

@@ -1,0 +1,1 @@
+"""Declarative rule files of regimecheck (installed as ``checker.rules``)."""
