@@ -50,8 +50,11 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
     unit = match.group(2).replace(" ", "")
     if not math.isfinite(value):
         raise InputError(f"{place}{text!r} is not a finite number")
-    if unit in ("", "1") and dimension == "dimensionless":
-        return value
+    if unit in ("", "1"):
+        if dimension == "dimensionless":
+            return value
+        raise InputError(f"{place}{text!r} has no unit; write it with a {dimension} unit, "
+                         f"e.g. {example(dimension)}")
     try:
         unit_dimension, factor = UNITS[unit]
     except KeyError:
@@ -59,9 +62,30 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
                          f"{', '.join(u for u, (d, _) in UNITS.items() if d == dimension) or 'a plain number'}"
                          ) from None
     if unit_dimension != dimension:
-        raise InputError(f"{place}{text!r} is a {unit_dimension}, but a {dimension} is expected "
-                         f"(e.g. {example(dimension)})")
+        raise InputError(f"{place}{text!r} has a unit of {unit_dimension} where {dimension} is "
+                         f"expected (e.g. {example(dimension)})")
     return value * factor
+
+
+_TEMPERATURE = re.compile(rf"^\s*({_NUMBER})\s*(K|degC|°C|C)\s*$")
+
+
+def parse_temperature(text, where: str = "") -> float:
+    """Kelvin from "300 K", "27 degC" or "27 °C" (absolute zero and below refused)."""
+    place = f"{where}: " if where else ""
+    if isinstance(text, (int, float)) and not isinstance(text, bool):
+        raise InputError(f"{place}{text!r} has no unit; write e.g. '300 K' or '27 degC'")
+    match = _TEMPERATURE.match(str(text))
+    if not match and re.fullmatch(rf"\s*{_NUMBER}\s*", str(text)):
+        raise InputError(f"{place}{text!r} has no unit; write e.g. '300 K' or '27 degC'")
+    if not match:
+        raise InputError(f"{place}cannot read {text!r} as a temperature; write e.g. '300 K' "
+                         "or '27 degC'")
+    value = float(match.group(1))
+    kelvin = value if match.group(2) == "K" else value + 273.15
+    if not math.isfinite(kelvin) or kelvin <= 0:
+        raise InputError(f"{place}{text!r} is at or below absolute zero; give a temperature above 0 K")
+    return kelvin
 
 
 def example(dimension: str) -> str:

@@ -182,10 +182,14 @@ def _logistic(x):
 
 def _softplus_and_logistic(x):
     """ln(1 + e^x) and 1/(1 + e^-x), sharing one exponential."""
-    e = np.exp(-np.abs(x))
-    one_plus = 1.0 + e
-    soft = np.maximum(x, 0.0) + np.log1p(e)
-    logistic = np.where(x >= 0, 1.0, e) / one_plus
+    e = np.abs(x)
+    np.negative(e, out=e)
+    np.exp(e, out=e)
+    soft = np.log1p(e)
+    soft += np.maximum(x, 0.0)
+    logistic = np.where(x >= 0, 1.0, e)
+    e += 1.0
+    logistic /= e
     return soft, logistic
 
 
@@ -207,44 +211,56 @@ def _check_inputs(T, donors, acceptors):
 
 
 class _Neutrality:
-    """Log-space neutrality residual for the points of one solve."""
+    """Log-space neutrality residual for the points of one solve.
 
-    def __init__(self, ln_nc, ln_nv, eg_kt, donor_terms, acceptor_terms):
+    Neutrality is rearranged so that no two large densities cancel:
+        n + N_D^0 + max(N_A - N_D, 0)  =  p + N_A^0 + max(N_D - N_A, 0)
+    with N_D^0, N_A^0 the neutral (occupied) impurities.  The net doping is
+    formed once from the inputs, so exactly or nearly compensated material
+    keeps full precision in eta (a plain n + N_A^- = p + N_D^+ would lose it).
+    """
+
+    def __init__(self, ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p, donor_terms, acceptor_terms):
         self.ln_nc, self.ln_nv, self.eg_kt = ln_nc, ln_nv, eg_kt
-        # each term: (ln N, offset, metallic) with ionization argument eta + offset
+        self.ln_net_n, self.ln_net_p = ln_net_n, ln_net_p  # ln max(N_D - N_A, 0), ln max(N_A - N_D, 0)
+        # each term: (ln N, offset, metallic); occupancy argument eta(_p) + offset
         self.donor_terms = donor_terms
         self.acceptor_terms = acceptor_terms
 
     def subset(self, idx):
         pick = lambda terms: [(a[idx], b[idx], c[idx]) for a, b, c in terms]
-        return _Neutrality(self.ln_nc[idx], self.ln_nv[idx], self.eg_kt[idx],
-                           pick(self.donor_terms), pick(self.acceptor_terms))
+        return _Neutrality(self.ln_nc[idx], self.ln_nv[idx], self.eg_kt[idx], self.ln_net_n[idx],
+                           self.ln_net_p[idx], pick(self.donor_terms), pick(self.acceptor_terms))
 
     def __call__(self, eta):
-        """Return (f, df/deta)."""
+        """Return (f, df/deta) with f = ln(left side) - ln(right side), increasing in eta."""
         eta_p = -eta - self.eg_kt
         size = eta.size
         both, both_minus = log_fermi_dirac_half_pair(np.concatenate([eta, eta_p]))
         lf_n, lf_p = both[:size], both[size:]
         slopes = np.exp(both_minus - both)      # d ln F_1/2 / d eta = F_-1/2 / F_1/2
         slope_n, slope_p = slopes[:size], slopes[size:]
-        left = [(self.ln_nc + lf_n, slope_n)]
-        right = [(self.ln_nv + lf_p, -slope_p)]
-        for ln_n, offset, metallic in self.acceptor_terms:
-            left.append(_ionized_term(ln_n, eta_p + offset, metallic, +1.0))
+        left = [(self.ln_nc + lf_n, slope_n), (self.ln_net_p, None)]
+        right = [(self.ln_nv + lf_p, -slope_p), (self.ln_net_n, None)]
         for ln_n, offset, metallic in self.donor_terms:
-            right.append(_ionized_term(ln_n, eta + offset, metallic, -1.0))
+            left.append(_neutral_term(ln_n, eta + offset, metallic, +1.0))
+        for ln_n, offset, metallic in self.acceptor_terms:
+            right.append(_neutral_term(ln_n, eta_p + offset, metallic, -1.0))
         lse_l, dl = _logsumexp_with_slope(left)
         lse_r, dr = _logsumexp_with_slope(right)
         return lse_l - lse_r, dl - dr
 
 
-def _ionized_term(ln_density, argument, metallic, sign):
-    """ln N^+ = ln N - ln(1 + e^arg) and its eta-derivative (sign * neutral fraction)."""
-    soft, neutral = _softplus_and_logistic(argument)
-    value, slope = ln_density - soft, sign * neutral
+def _neutral_term(ln_density, argument, metallic, sign):
+    """ln N^0 = ln N - ln(1 + e^-arg) (occupied impurities) and its eta-derivative.
+
+    d ln N^0 / d arg is the ionized fraction; ``sign`` is d arg / d eta.
+    A metallic species has no bound carriers: ln N^0 = -inf.
+    """
+    soft, ionized = _softplus_and_logistic(-argument)
+    value, slope = ln_density - soft, sign * ionized
     if metallic.any():
-        value = np.where(metallic, ln_density, value)
+        value = np.where(metallic, -np.inf, value)
         slope = np.where(metallic, 0.0, slope)
     return value, slope
 
@@ -253,16 +269,22 @@ def _logsumexp_with_slope(terms):
     """ln(sum e^a_i) and its derivative sum w_i a_i' (w = softmax weights)."""
     if len(terms) == 1:
         return terms[0]
-    top = terms[0][0]
+    top = terms[0][0].copy()
     for value, _ in terms[1:]:
-        top = np.maximum(top, value)
+        np.maximum(top, value, out=top)
     total = np.zeros_like(top)
     slope = np.zeros_like(top)
     for value, deriv in terms:
-        w = np.exp(value - top)
+        w = np.subtract(value, top)
+        np.exp(w, out=w)
         total += w
-        slope += w * deriv
-    return top + np.log(total), slope / total
+        if deriv is not None:  # None: a constant term
+            w *= deriv
+            slope += w
+    slope /= total
+    np.log(total, out=total)
+    total += top
+    return total, slope
 
 
 def _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd, na, e_donor, e_acceptor, metal_d, metal_a, ni, Nc, Nv):
@@ -321,7 +343,7 @@ def _newton(residual, eta0):
         f, df = residual(x)
         lo = np.where(f < 0, x, lo)
         hi = np.where(f > 0, x, hi)
-        with np.errstate(divide="ignore", invalid="ignore"):
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
             step = -f / df
         bad = ~np.isfinite(step)
         if bad.any():
@@ -468,7 +490,9 @@ def _solve_flat(material, T, donors, acceptors, band_gap_narrowing, species, out
         metallic |= flag
     ln_nc, ln_nv = np.log(Nc), np.log(Nv)
     ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
-    residual = _Neutrality(ln_nc, ln_nv, eg_kt, donor_terms, acceptor_terms)
+    net = nd_total - na_total
+    residual = _Neutrality(ln_nc, ln_nv, eg_kt, _log(np.maximum(net, 0.0)), _log(np.maximum(-net, 0.0)),
+                           donor_terms, acceptor_terms)
     eta0 = _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd_total, na_total,
                           *_effective_levels(donors, acceptors, species, nd_total, na_total, T),
                           ni, Nc, Nv)

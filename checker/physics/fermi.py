@@ -32,11 +32,11 @@ from functools import lru_cache
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import ConvergenceError, InputError
 from . import _fd_tables
 
 SUPPORTED_ORDERS = tuple(Fraction(k, 2) for k in range(-3, 8))
-_CHUNK = 1 << 15  # elements per block: keeps the temporaries in cache
+_CHUNK = 1 << 16  # elements per block: keeps the temporaries in cache
 _PI2 = np.pi ** 2
 
 
@@ -185,6 +185,14 @@ _REFLECTION = {
 
 
 def _integer_order(j: int, eta: np.ndarray) -> np.ndarray:
+    out = np.empty_like(eta)
+    for start in range(0, eta.size, _CHUNK):  # blocks keep the temporaries in cache
+        block = eta[start:start + _CHUNK]
+        out[start:start + _CHUNK] = _integer_order_block(j, block)
+    return out
+
+
+def _integer_order_block(j, eta):
     if j == -1:
         return _logistic(eta)
     if j == 0:
@@ -192,7 +200,10 @@ def _integer_order(j: int, eta: np.ndarray) -> np.ndarray:
     poly, sign = _REFLECTION[j]
     neg = -np.abs(eta)
     base = _evaluator(str(j)).evaluate(neg)
-    return np.where(eta > 0, poly(np.abs(eta)) + sign * base, base)
+    positive = eta > 0
+    if positive.any():
+        base[positive] = poly(-neg[positive]) + sign * base[positive]
+    return base
 
 
 def fermi_dirac(j, eta):
@@ -224,7 +235,7 @@ def log_fermi_dirac(j, eta):
     """ln F_j(eta) without underflow (for eta down to -1e300), vectorized.
 
     Formula: ln F_j(eta); for eta < -2 it is evaluated as eta + ln(F_j/e^eta).
-    Units: dimensionless.  Orders: half-integer j from -3/2 to 7/2 and j = 0.
+    Units: dimensionless.  Orders: as for :func:`fermi_dirac`.
     Used by the equilibrium solver, whose densities span e^-10000 .. e^+50.
 
     References
@@ -234,13 +245,18 @@ def log_fermi_dirac(j, eta):
     order = _order(j)
     arr = np.asarray(eta, dtype=np.float64)
     flat = np.ascontiguousarray(arr).ravel()
-    if order.denominator == 1:
-        if int(order) != 0:
-            raise InputError("log_fermi_dirac supports half-integer orders and j = 0")
-        # ln ln(1+e^eta): for eta < -30, ln(1+z) = z(1 - z/2 ...) -> eta + ln(1 - z/2)
+    if order.denominator == 1 and int(order) == -1:
+        result = -_softplus(-flat)
+    elif order.denominator == 1 and int(order) == 0:
+        # for eta < -30, ln(1+z) = z(1 - z/2 ...) -> eta + ln(1 - z/2)
         small = flat < -30.0
         result = np.where(small, flat + np.log1p(-0.5 * np.exp(np.minimum(flat, 0.0))),
                           np.log(_softplus(np.where(small, 0.0, flat))))
+    elif order.denominator == 1:
+        # eta <= 0 from the table in log form; eta > 0 via the exact reflection
+        negative = _evaluator(str(order)).evaluate(np.minimum(flat, 0.0), log=True)
+        positive = np.log(_integer_order(int(order), np.maximum(flat, 0.0)))
+        result = np.where(flat <= 0, negative, positive)
     else:
         result = _evaluator(str(order)).evaluate(flat, log=True)
     result = result.reshape(arr.shape)
@@ -303,11 +319,12 @@ def inverse_fermi_dirac_half(u):
         slope = np.exp(log_fermi_dirac(-0.5, e) - log_f)
         step = (log_f - log_u[active]) / slope
         eta[active] = e - step
-        done = np.abs(step) <= 1e-15 * np.maximum(1.0, np.abs(e))
+        # rounding in ln F (~4e-16) sets the floor of |step|; 1e-14 is far inside 1e-12
+        done = np.abs(step) <= 1e-14 * np.maximum(1.0, np.abs(e))
         active = active[~done]
         if active.size == 0:
             break
     else:
-        raise ArithmeticError("inverse_fermi_dirac_half did not converge")
+        raise ConvergenceError("inverse_fermi_dirac_half did not converge")
     eta = eta.reshape(arr.shape)
     return eta if arr.ndim else float(eta)

@@ -18,7 +18,7 @@ _DENSITY_ORDER = {3: 0.5, 2: 0.0, 1: -0.5}
 
 
 def _log_fd(j, eta):
-    """ln F_j for j in {-3/2, -1, -1/2, 0, 1/2}, without underflow."""
+    """ln F_j for j in {-3/2, -1, -1/2, 0, 1/2, 1}, without underflow."""
     if j == -1:  # F_-1 = logistic(eta) -> ln = -ln(1 + e^-eta)
         x = -np.asarray(eta, dtype=float)
         return -(np.maximum(x, 0.0) + np.log1p(np.exp(-np.abs(x))))
@@ -115,8 +115,8 @@ def unidirectional_thermal_velocity(T, mass, eta=None, dimension=3):
     """Mean velocity of the carriers moving in +x, <v_x^+> (m/s).
 
     Formula: non-degenerate sqrt(2kT/(pi m*)) in 3D and 1D, sqrt(pi kT/(2 m*))
-    in 2D; with Fermi–Dirac statistics multiplied by F_0/F_1/2 (3D),
-    F_1/2/F_0 (2D) or F_0/F_-1/2 (1D).  ``mass`` in units of m0 (a
+    in 2D; with Fermi–Dirac statistics multiplied by F_1/F_1/2 (3D),
+    F_1/2/F_0 (2D) or F_0/F_-1/2 (1D).  Degenerate 3D limit: (3/8) v_F.  ``mass`` in units of m0 (a
     conductivity effective mass).  Validity: parabolic band.
 
     References
@@ -130,7 +130,7 @@ def unidirectional_thermal_velocity(T, mass, eta=None, dimension=3):
     if eta is None:
         return base
     j = _DENSITY_ORDER[dim]
-    upper = {3: 0.0, 2: 0.5, 1: 0.0}[dim]
+    upper = j + 0.5
     return base * np.exp(_log_fd(upper, eta) - _log_fd(j, eta))
 
 

@@ -1,0 +1,204 @@
+"""Calculation files: YAML documents describing operating points, with source positions.
+
+Each document is one calculation.  Keys read here:
+
+    name: <text>
+    material: <built-in name> | <mapping in the material data-file form>
+    temperature: "<number> K" | "<number> degC"
+    doping:
+      donors:    {<species>: "<density>", ...}
+      acceptors: {<species>: "<density>", ...}
+    options:
+      band_gap_narrowing: true | false
+
+Scalars are kept as text and parsed by us (PyYAML would read 1e17 as a
+string and 1.0e17 as a float).  Aliases and duplicate keys are refused.
+"""
+from __future__ import annotations
+
+import difflib
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import yaml
+
+from ..errors import InputError
+from ..physics.materials import Material
+from .material_catalog import resolve_material
+from .quantities import parse_quantity, parse_temperature
+from .yaml_source import _StrictLoader
+
+TOP_KEYS = ("name", "material", "temperature", "doping", "options")
+DOPING_KEYS = ("donors", "acceptors")
+OPTION_KEYS = ("band_gap_narrowing",)
+
+
+@dataclass
+class Located:
+    """A plain value tree plus the (line, column) of every node, 1-based."""
+
+    value: object
+    positions: dict = field(default_factory=dict)
+
+
+@dataclass
+class Calculation:
+    name: str
+    source: str          # file path
+    line: int
+    material: Material
+    temperature: float   # K
+    donors: dict         # species -> m^-3
+    acceptors: dict
+    band_gap_narrowing: bool = False
+
+
+@dataclass
+class FileResult:
+    path: str
+    calculations: list
+    errors: list         # InputError messages (each names file:line:column)
+
+
+def _plain(node, path, positions):
+    positions[path] = (node.start_mark.line + 1, node.start_mark.column + 1)
+    if isinstance(node, yaml.MappingNode):
+        out = {}
+        for key_node, value_node in node.value:
+            key = str(key_node.value)
+            out[key] = _plain(value_node, path + (key,), positions)
+        return out
+    if isinstance(node, yaml.SequenceNode):
+        return [_plain(child, path + (i,), positions) for i, child in enumerate(node.value)]
+    return node.value  # scalar text, parsed later by us
+
+
+def read_documents(text: str, name: str) -> list[Located]:
+    """Compose all documents (strict: no aliases, no duplicate keys)."""
+    loader = _StrictLoader(text)
+    loader.name = name
+    docs = []
+    try:
+        while loader.check_node():
+            node = loader.get_node()
+            if node is None:
+                continue
+            loader.construct_document(node)  # runs the duplicate-key check
+            positions = {}
+            docs.append(Located(_plain(node, (), positions), positions))
+    except yaml.MarkedYAMLError as exc:
+        mark = exc.problem_mark
+        where = f"{name}:{mark.line + 1}:{mark.column + 1}" if mark else name
+        raise InputError(f"{where}: malformed YAML: {exc.problem}") from None
+    finally:
+        loader.dispose()
+    return docs
+
+
+class _Where:
+    def __init__(self, path: str, positions: dict):
+        self.path, self.positions = path, positions
+
+    def __call__(self, *keys) -> str:
+        for cut in range(len(keys), -1, -1):
+            if keys[:cut] in self.positions:
+                line, col = self.positions[keys[:cut]]
+                return f"{self.path}:{line}:{col}"
+        return self.path
+
+
+def _unknown_keys(mapping: dict, allowed, where: str, what: str):
+    for key in mapping:
+        if key not in allowed:
+            close = difflib.get_close_matches(key, allowed, n=1)
+            hint = f"; did you mean {close[0]!r}?" if close else f"; allowed: {', '.join(allowed)}"
+            raise InputError(f"{where}: unknown {what} key {key!r}{hint}")
+
+
+def _to_bool(text, where):
+    value = str(text).strip().lower()
+    if value in ("true", "yes", "on"):
+        return True
+    if value in ("false", "no", "off"):
+        return False
+    raise InputError(f"{where}: expected true or false, got {text!r}")
+
+
+def parse_calculation(doc: Located, path: str) -> Calculation:
+    where = _Where(path, doc.positions)
+    data = doc.value
+    if not isinstance(data, dict):
+        raise InputError(f"{where()}: a calculation must be a mapping with keys "
+                         f"{', '.join(TOP_KEYS)}")
+    _unknown_keys(data, TOP_KEYS, where(), "calculation")
+    for key in ("material", "temperature"):
+        if key not in data:
+            raise InputError(f"{where()}: missing {key!r}; add e.g. "
+                             + ("material: Si" if key == "material" else "temperature: 300 K"))
+    try:
+        material = resolve_material(data["material"])
+    except InputError as exc:
+        raise InputError(f"{where('material')}: {exc}") from None
+    temperature = parse_temperature(data["temperature"], where("temperature"))
+    doping = data.get("doping") or {}
+    if not isinstance(doping, dict):
+        raise InputError(f"{where('doping')}: doping must map 'donors' and/or 'acceptors' "
+                         "to {species: density}")
+    _unknown_keys(doping, DOPING_KEYS, where("doping"), "doping")
+    groups = {}
+    for group in DOPING_KEYS:
+        entries = doping.get(group) or {}
+        if not isinstance(entries, dict):
+            raise InputError(f"{where('doping', group)}: write {group} as {{species: density}}, "
+                             "e.g. {P: 1e17 cm-3}")
+        values = {}
+        for species, text in entries.items():
+            here = where("doping", group, species)
+            try:
+                dopant = material.dopant(species)
+            except InputError as exc:
+                raise InputError(f"{here}: {exc}") from None
+            expected = group[:-1]
+            if dopant.kind != expected:
+                raise InputError(f"{here}: {species} is a {dopant.kind} in {material.name}; "
+                                 f"move it under {dopant.kind}s")
+            density = parse_quantity(text, "density", here)
+            if density < 0:
+                raise InputError(f"{here}: density {text!r} is negative; give a value >= 0")
+            values[species] = density
+        groups[group] = values
+    options = data.get("options") or {}
+    if not isinstance(options, dict):
+        raise InputError(f"{where('options')}: options must be a mapping")
+    _unknown_keys(options, OPTION_KEYS, where("options"), "option")
+    bgn = _to_bool(options["band_gap_narrowing"], where("options", "band_gap_narrowing")) \
+        if "band_gap_narrowing" in options else False
+    line = doc.positions.get((), (1, 1))[0]
+    return Calculation(name=str(data.get("name", f"{Path(path).name}:{line}")), source=path,
+                       line=line, material=material, temperature=temperature,
+                       donors=groups["donors"], acceptors=groups["acceptors"],
+                       band_gap_narrowing=bgn)
+
+
+def read_calculation_file(path) -> FileResult:
+    """Read every calculation of a file; a bad one is an error, the others still load."""
+    path = str(path)
+    try:
+        text = Path(path).read_text(encoding="utf-8")
+    except OSError as exc:
+        return FileResult(path, [], [f"{path}: cannot read the file ({exc.strerror})"])
+    except UnicodeDecodeError:
+        return FileResult(path, [], [f"{path}: not UTF-8 text; save it as UTF-8"])
+    try:
+        docs = read_documents(text, path)
+    except InputError as exc:
+        return FileResult(path, [], [str(exc)])
+    calculations, errors = [], []
+    for doc in docs:
+        try:
+            calculations.append(parse_calculation(doc, path))
+        except InputError as exc:
+            errors.append(str(exc))
+    if not docs:
+        errors.append(f"{path}: the file holds no calculation")
+    return FileResult(path, calculations, errors)

@@ -1,0 +1,198 @@
+"""Equilibrium solver against an independent multiple-precision solve and
+published handbook values."""
+import math
+import warnings
+
+import mpmath as mp
+import numpy as np
+import pytest
+import scipy.constants as sc
+
+from checker import (InputError, UnknownDopantError, UnknownMaterialError, load_material,
+                     solve_equilibrium)
+from conftest import PER_CM3
+
+K_B, Q = sc.k, sc.e
+
+
+def mp_fermi_half(eta):
+    return -mp.re(mp.polylog(mp.mpf(1.5), -mp.exp(eta)))
+
+
+def reference_solve(material, T, donors, acceptors):
+    """Independent solve in 40-digit arithmetic: bisection on the plain
+    (not logarithmic) neutrality equation n + N_A^- - p - N_D^+ = 0.
+
+    Band and dopant numbers are taken from the material (they are data); the
+    statistics are written out here from Sze & Ng (2007), ch. 1:
+    N_D^+ = N_D / (1 + 2 e^((E_F - E_D)/kT)), N_A^- = N_A / (1 + 4 e^((E_A - E_F)/kT)),
+    full ionization where the same-type total reaches the Mott density.
+    """
+    with mp.workdps(40):
+        kT = mp.mpf(K_B) * T
+        Eg = mp.mpf(float(material.band_gap(T)))
+        Nc, Nv = mp.mpf(float(material.Nc(T))), mp.mpf(float(material.Nv(T)))
+        nd_tot, na_tot = sum(donors.values()), sum(acceptors.values())
+
+        def charge(eta):
+            eta_p = -eta - Eg / kT
+            total = Nc * mp_fermi_half(eta) - Nv * mp_fermi_half(eta_p)
+            for name, N in acceptors.items():
+                d = material.dopant(name)
+                full = na_tot >= d.mott_density
+                total += N if full else N / (1 + d.degeneracy * mp.exp(eta_p + mp.mpf(d.energy) / kT))
+            for name, N in donors.items():
+                d = material.dopant(name)
+                full = nd_tot >= d.mott_density
+                total -= N if full else N / (1 + d.degeneracy * mp.exp(eta + mp.mpf(d.energy) / kT))
+            return total
+
+        lo, hi = -Eg / kT - 200, mp.mpf(200)
+        for _ in range(400):
+            mid = (lo + hi) / 2
+            if charge(mid) > 0:
+                hi = mid
+            else:
+                lo = mid
+            if hi - lo < mp.mpf(10) ** -25 * max(1, abs(mid)):
+                break
+        return float((lo + hi) / 2)
+
+
+CASES = [
+    # material, T, donors {species: cm^-3}, acceptors, regime
+    ("Si", 300, {"P": 1e15}, {}, "extrinsic"),
+    ("Si", 300, {"P": 1e17}, {}, "extrinsic"),
+    ("Si", 300, {"P": 1e18}, {}, "partial ionization"),
+    ("Si", 300, {"P": 1e19}, {}, "metallic, degenerate"),
+    ("Si", 300, {"As": 5e19}, {}, "metallic, degenerate"),
+    ("Si", 300, {}, {"B": 1e16}, "extrinsic p"),
+    ("Si", 300, {}, {"B": 3e18}, "partial ionization p"),
+    ("Si", 77, {"P": 1e16}, {}, "freeze-out onset"),
+    ("Si", 30, {"P": 1e16}, {}, "freeze-out"),
+    ("Si", 10, {"P": 1e15}, {"B": 1e13}, "compensated freeze-out"),
+    ("Si", 1, {"P": 1e16}, {"B": 1e14}, "deep freeze-out"),
+    ("Si", 600, {"P": 1e14}, {}, "intrinsic"),
+    ("Si", 1000, {}, {}, "intrinsic, undoped"),
+    ("Si", 1500, {}, {"B": 1e16}, "intrinsic, hot"),
+    ("Si", 300, {"P": 1e17}, {"B": 1e17}, "exactly compensated"),
+    ("Si", 300, {"P": 1e17}, {"B": 9.9e16}, "compensated"),
+    ("Si", 300, {}, {"In": 1e17}, "deep acceptor"),
+    ("Si", 300, {"P": 1e16, "As": 1e16}, {"B": 5e15}, "several species"),
+    ("Si", 300, {"P": 1e22}, {}, "extreme doping"),
+    ("Ge", 300, {"Sb": 1e15}, {}, "extrinsic Ge"),
+    ("GaAs", 300, {"Si": 1e18}, {}, "metallic, degenerate GaAs"),
+    ("GaN", 300, {"Si": 1e17}, {"Mg": 1e19}, "deep acceptor, compensated"),
+    ("4H-SiC", 300, {}, {"Al": 1e18}, "deep acceptor SiC"),
+    ("4H-SiC", 600, {"N": 1e17}, {}, "hot SiC"),
+    ("InAs", 300, {"S": 1e17}, {}, "narrow gap, degenerate"),
+    ("InP", 77, {}, {"Zn": 1e17}, "cold InP"),
+]
+
+
+@pytest.mark.parametrize("name,T,donors,acceptors,regime", CASES,
+                         ids=[f"{c[0]}-{c[1]}K-{c[4]}" for c in CASES])
+def test_matches_independent_solve(name, T, donors, acceptors, regime):
+    material = load_material(name)
+    d = {k: v * PER_CM3 for k, v in donors.items()}
+    a = {k: v * PER_CM3 for k, v in acceptors.items()}
+    state = solve_equilibrium(material, T, d, a)
+    expected = reference_solve(material, T, d, a)
+    assert float(state.eta_n) == pytest.approx(expected, rel=1e-10, abs=1e-10)
+    assert float(state.residual) <= 1e-10
+    # n and p are consistent with eta through F_1/2 (mpmath)
+    n_ref = float(material.Nc(T)) * float(mp_fermi_half(mp.mpf(expected)))
+    if n_ref > 1e-300:
+        assert float(state.n) == pytest.approx(n_ref, rel=1e-9 * max(1, abs(expected)))
+
+
+def test_silicon_intrinsic_density_at_300K():
+    # Handbook spread: 9.65e9 (Altermatt et al., J. Appl. Phys. 93, 1598 (2003))
+    # to 1.08e10 cm^-3 (Green, J. Appl. Phys. 67, 2944 (1990)); Sproul & Green
+    # 1991 give 1.00e10.  The undoped solve must land inside that spread.
+    state = solve_equilibrium("Si", 300.0)
+    n = float(state.n) / PER_CM3
+    assert 9.65e9 <= n <= 1.08e10
+    assert float(state.ni) / PER_CM3 == pytest.approx(n, rel=1e-3)
+    assert float(state.n) == pytest.approx(float(state.p), rel=1e-9)
+
+
+def test_thermal_voltage_at_300K_against_scipy():
+    from checker.physics.constants import thermal_voltage
+    # scipy.constants (CODATA): k/e * 300 K = 25.852 mV
+    assert thermal_voltage(300.0) == pytest.approx(sc.k * 300 / sc.e, rel=1e-15)
+    assert thermal_voltage(300.0) == pytest.approx(0.025852, abs=5e-7)
+
+
+def test_three_kT_rule_marks_the_boltzmann_limit():
+    # The "E_C - E_F >= 3 kT" rule for non-degeneracy is common practice (no source);
+    # at eta = -3 the Boltzmann density is 1.74 % above Fermi-Dirac (mpmath).
+    state = solve_equilibrium("Si", 300.0, {"P": 1e18 * PER_CM3})
+    eta = float(state.eta_n)
+    boltzmann = float(state.Nc) * math.exp(eta)
+    excess = boltzmann / float(state.n) - 1
+    reference = float(mp.exp(eta) / mp_fermi_half(mp.mpf(eta)) - 1)
+    assert excess == pytest.approx(reference, rel=1e-9)
+    assert -4 < eta < -3 and 0.005 < excess < 0.0174
+
+
+def test_metallic_regime_is_fully_ionized():
+    # references.md §4d: the isolated-impurity model would give 38 % ionized
+    # for Si:P at 1e19 cm^-3; above the Mott density (3.74e18, Rosenbaum et al.
+    # 1983) the dopant is fully ionized and the point is flagged.
+    state = solve_equilibrium("Si", 300.0, {"P": 1e19 * PER_CM3})
+    assert bool(state.metallic)
+    assert float(state.donor_fraction) == 1.0
+    below = solve_equilibrium("Si", 300.0, {"P": 1e18 * PER_CM3})
+    assert not bool(below.metallic)
+    # references.md §4d: the naive model gives 76 % at 1e18 (below the Mott density)
+    assert float(below.donor_fraction) == pytest.approx(0.76, abs=0.01)
+
+
+def test_converges_everywhere_on_a_wide_grid():
+    """T in [1, 1500] K, densities 0 and 1e10..1e22 cm^-3, compensated and not."""
+    T = np.geomspace(1.0, 1500.0, 30)[:, None, None]
+    N = np.concatenate([[0.0], np.geomspace(1e10, 1e22, 19)]) * PER_CM3
+    nd, na = N[None, :, None], N[None, None, :]
+    for name, donor, acceptor in [("Si", "P", "B"), ("GaN", "Si", "Mg"), ("InAs", "S", "Zn"),
+                                  ("Ge", "Sb", "Ga")]:
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")
+            state = solve_equilibrium(name, T, {donor: nd}, {acceptor: na})
+            n, p = state.n, state.p
+        assert state.eta_n.shape == (30, 20, 20)
+        assert np.all(np.isfinite(state.eta_n))
+        assert np.all(state.residual <= 1e-10), name
+        assert np.all(np.isfinite(n)) and np.all(np.isfinite(p))
+
+
+def test_broadcasts_and_matches_pointwise():
+    T = np.array([250.0, 300.0, 350.0])
+    nd = np.array([[1e15], [1e17]]) * PER_CM3
+    grid = solve_equilibrium("Si", T, {"P": nd})
+    assert grid.eta_n.shape == (2, 3)
+    single = solve_equilibrium("Si", 350.0, {"P": 1e17 * PER_CM3})
+    assert grid.eta_n[1, 2] == pytest.approx(float(single.eta_n), rel=1e-14)
+
+
+def test_band_gap_narrowing_raises_minority_density():
+    plain = solve_equilibrium("Si", 300.0, {"P": 1e18 * PER_CM3})
+    narrowed = solve_equilibrium("Si", 300.0, {"P": 1e18 * PER_CM3}, band_gap_narrowing=True)
+    # Klaassen-Slotboom-de Graaff 1992 set: dEg(1e18) = 29.1 meV (references.md §5, computed)
+    assert float(narrowed.narrowing) / sc.e == pytest.approx(0.0291, abs=2e-4)
+    ratio = float(narrowed.p) / float(plain.p)
+    assert ratio > 2.5  # minority density grows roughly by exp(dEg/kT) = 3.1
+
+
+@pytest.mark.parametrize("call,error,text", [
+    (lambda: solve_equilibrium("Si", -5.0), InputError, "above 0 K"),
+    (lambda: solve_equilibrium("Si", float("nan")), InputError, "finite"),
+    (lambda: solve_equilibrium("Si", 300.0, {"P": -1e22}), InputError, ">= 0"),
+    (lambda: solve_equilibrium("Si", 300.0, {"P": float("inf")}), InputError, "finite"),
+    (lambda: solve_equilibrium("Si", 300.0, {"Xx": 1e22}), UnknownDopantError, "known: "),
+    (lambda: solve_equilibrium("Si", 300.0, {"B": 1e22}), InputError, "acceptor"),
+    (lambda: solve_equilibrium("Unobtainium", 300.0), UnknownMaterialError, "Built in"),
+])
+def test_bad_input_is_a_clear_error(call, error, text):
+    with pytest.raises(error, match=text):
+        call()
