@@ -218,33 +218,52 @@ class _Neutrality:
     with N_D^0, N_A^0 the neutral (occupied) impurities.  The net doping is
     formed once from the inputs, so exactly or nearly compensated material
     keeps full precision in eta (a plain n + N_A^- = p + N_D^+ would lose it).
+
+    Per-point parameters are rows of one 2-D array, so dropping converged
+    points is a single compaction.
     """
 
-    def __init__(self, ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p, donor_terms, acceptor_terms):
-        self.ln_nc, self.ln_nv, self.eg_kt = ln_nc, ln_nv, eg_kt
-        self.ln_net_n, self.ln_net_p = ln_net_n, ln_net_p  # ln max(N_D - N_A, 0), ln max(N_A - N_D, 0)
-        # each term: (ln N, offset, metallic); occupancy argument eta(_p) + offset
-        self.donor_terms = donor_terms
-        self.acceptor_terms = acceptor_terms
+    BASE_ROWS = 5  # ln N_c, ln N_v, E_g/kT, ln max(N_D - N_A, 0), ln max(N_A - N_D, 0)
 
-    def subset(self, idx):
-        pick = lambda terms: [(a[idx], b[idx], c[idx]) for a, b, c in terms]
-        return _Neutrality(self.ln_nc[idx], self.ln_nv[idx], self.eg_kt[idx], self.ln_net_n[idx],
-                           self.ln_net_p[idx], pick(self.donor_terms), pick(self.acceptor_terms))
+    def __init__(self, params, n_donors, n_acceptors, any_metallic):
+        self.params = params
+        self.n_donors, self.n_acceptors = n_donors, n_acceptors
+        self.any_metallic = any_metallic
+
+    @classmethod
+    def build(cls, ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p, donor_terms, acceptor_terms):
+        """Each term: (ln N, occupancy offset, metallic flag) of one species."""
+        rows = [ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p]
+        any_metallic = False
+        for ln_n, offset, metallic in donor_terms + acceptor_terms:
+            rows += [ln_n, offset, metallic.astype(float)]
+            any_metallic = any_metallic or bool(metallic.any())
+        return cls(np.array(rows), len(donor_terms), len(acceptor_terms), any_metallic)
+
+    def subset(self, keep):
+        """The residual restricted to the points at integer positions ``keep``."""
+        return _Neutrality(np.take(self.params, keep, axis=1), self.n_donors, self.n_acceptors,
+                           self.any_metallic)
+
+    def _species(self, k):
+        row = self.BASE_ROWS + 3 * k
+        metallic = self.params[row + 2] > 0.5 if self.any_metallic else None
+        return self.params[row], self.params[row + 1], metallic
 
     def __call__(self, eta):
         """Return (f, df/deta) with f = ln(left side) - ln(right side), increasing in eta."""
-        eta_p = -eta - self.eg_kt
+        ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p = self.params[:self.BASE_ROWS]
+        eta_p = -eta - eg_kt
         size = eta.size
         both, both_minus = log_fermi_dirac_half_pair(np.concatenate([eta, eta_p]))
-        lf_n, lf_p = both[:size], both[size:]
         slopes = np.exp(both_minus - both)      # d ln F_1/2 / d eta = F_-1/2 / F_1/2
-        slope_n, slope_p = slopes[:size], slopes[size:]
-        left = [(self.ln_nc + lf_n, slope_n), (self.ln_net_p, None)]
-        right = [(self.ln_nv + lf_p, -slope_p), (self.ln_net_n, None)]
-        for ln_n, offset, metallic in self.donor_terms:
+        left = [(ln_nc + both[:size], slopes[:size]), (ln_net_p, None)]
+        right = [(ln_nv + both[size:], -slopes[size:]), (ln_net_n, None)]
+        for k in range(self.n_donors):
+            ln_n, offset, metallic = self._species(k)
             left.append(_neutral_term(ln_n, eta + offset, metallic, +1.0))
-        for ln_n, offset, metallic in self.acceptor_terms:
+        for k in range(self.n_donors, self.n_donors + self.n_acceptors):
+            ln_n, offset, metallic = self._species(k)
             right.append(_neutral_term(ln_n, eta_p + offset, metallic, -1.0))
         lse_l, dl = _logsumexp_with_slope(left)
         lse_r, dr = _logsumexp_with_slope(right)
@@ -259,7 +278,7 @@ def _neutral_term(ln_density, argument, metallic, sign):
     """
     soft, ionized = _softplus_and_logistic(-argument)
     value, slope = ln_density - soft, sign * ionized
-    if metallic.any():
+    if metallic is not None:
         value = np.where(metallic, -np.inf, value)
         slope = np.where(metallic, 0.0, slope)
     return value, slope
@@ -316,11 +335,17 @@ def _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd, na, e_donor, e_acceptor, metal_d
     return np.where(n_type, eta_n, -eg_kt - eta_p)
 
 
+# Joyce–Dixon series for the inverse of F_1/2: eta = ln u + sum A_k u^k
+# (W. B. Joyce and R. W. Dixon, Appl. Phys. Lett. 31, 354 (1977)).
+_JOYCE_DIXON = (4.42563e-6 * -1, 1.48386e-4, -4.95009e-3, 0.353553)
+
+
 def _eta_from_ln_u(ln_u):
-    """Rough inverse of F_1/2 from ln u (Boltzmann below, Sommerfeld above)."""
+    """Approximate inverse of F_1/2 from ln u: Joyce–Dixon below u = 8, Sommerfeld above."""
     u = np.exp(np.minimum(ln_u, 50.0))
-    degenerate = np.cbrt((0.75 * np.sqrt(np.pi) * u) ** 2)
-    return np.where(ln_u < 0.0, ln_u, np.maximum(degenerate, ln_u))
+    series = np.polyval(_JOYCE_DIXON + (0.0,), np.minimum(u, 8.0))
+    degenerate = np.sqrt(np.maximum(np.cbrt((0.75 * np.sqrt(np.pi) * u) ** 2) ** 2 - np.pi ** 2 / 6, 1.0))
+    return np.where(ln_u < np.log(8.0), ln_u + series, degenerate)
 
 
 def _newton(residual, eta0):
@@ -335,19 +360,23 @@ def _newton(residual, eta0):
     out_eta = np.empty(n_points)
     out_f = np.empty(n_points)
     idx = np.arange(n_points)
-    x = eta0.copy()
-    lo = np.full(n_points, -np.inf)
-    hi = np.full(n_points, np.inf)
-    limit = np.full(n_points, 8.0)
+    work = np.empty((4, n_points))        # rows: x, lo, hi, step limit (compacted together)
+    work[0] = eta0
+    work[1] = -np.inf
+    work[2] = np.inf
+    work[3] = 8.0
     for iterations in range(1, MAX_ITERATIONS + 1):
+        x, lo, hi, limit = work
         f, df = residual(x)
-        lo = np.where(f < 0, x, lo)
-        hi = np.where(f > 0, x, hi)
+        np.copyto(lo, x, where=f < 0)
+        np.copyto(hi, x, where=f > 0)
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-            step = -f / df
+            step = np.divide(f, df)
+        np.negative(step, out=step)
         bad = ~np.isfinite(step)
         if bad.any():
             step[bad] = np.where(f[bad] > 0, -limit[bad], limit[bad])
+        big = np.abs(step) >= limit
         np.clip(step, -limit, limit, out=step)
         new = x + step
         outside = (new <= lo) | (new >= hi)
@@ -358,20 +387,24 @@ def _newton(residual, eta0):
                 middle = 0.5 * (o_lo + o_hi)
             new[outside] = np.where(closed, middle,
                                     np.where(f[outside] > 0, o_x - o_lim, o_x + o_lim))
-        limit = np.where(np.abs(step) >= limit, 4.0 * limit, limit)
-        scale = np.maximum(1.0, np.abs(new))
+        if big.any():
+            limit[big] *= 4.0
+        # converged: |f| small (x is kept, where f was measured), or the step or the
+        # bracket has shrunk to rounding size
         small_f = np.abs(f) <= TOLERANCE
-        done = small_f | (np.abs(new - x) <= 1e-15 * scale) | ((hi - lo) <= 4e-16 * scale)
+        tiny = np.abs(x) + 1.0
+        tiny *= 4e-16
+        done = small_f | (np.abs(step) <= tiny) | (hi - lo <= tiny)
+        np.copyto(x, new, where=~small_f)
         if done.any():
-            # a point that stopped on |f| keeps x, where f was measured
-            out_eta[idx[done]] = np.where(small_f, x, new)[done]
+            out_eta[idx[done]] = x[done]
             out_f[idx[done]] = np.abs(f[done])
-            keep = ~done
-            if not keep.any():
+            keep = np.flatnonzero(~done)
+            if keep.size == 0:
                 return out_eta, out_f, iterations
-            idx, new, lo, hi, limit = idx[keep], new[keep], lo[keep], hi[keep], limit[keep]
+            idx = idx[keep]
+            work = np.take(work, keep, axis=1)
             residual = residual.subset(keep)
-        x = new
     raise ConvergenceError(
         f"Fermi-level solve did not converge at {idx.size} point(s) after "
         f"{MAX_ITERATIONS} iterations")
@@ -491,8 +524,8 @@ def _solve_flat(material, T, donors, acceptors, band_gap_narrowing, species, out
     ln_nc, ln_nv = np.log(Nc), np.log(Nv)
     ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
     net = nd_total - na_total
-    residual = _Neutrality(ln_nc, ln_nv, eg_kt, _log(np.maximum(net, 0.0)), _log(np.maximum(-net, 0.0)),
-                           donor_terms, acceptor_terms)
+    residual = _Neutrality.build(ln_nc, ln_nv, eg_kt, _log(np.maximum(net, 0.0)),
+                                 _log(np.maximum(-net, 0.0)), donor_terms, acceptor_terms)
     eta0 = _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd_total, na_total,
                           *_effective_levels(donors, acceptors, species, nd_total, na_total, T),
                           ni, Nc, Nv)

@@ -92,9 +92,10 @@ class _Piecewise:
     def regions(self, eta):
         cell = np.subtract(eta, self.grid_start)
         cell *= 2.0
-        np.clip(cell, 0.0, len(self.lookup) - 1, out=cell)
-        cell = np.nan_to_num(cell, nan=len(self.lookup) - 1).astype(np.intp)
-        return self.lookup[cell]
+        # fmax/fmin drop NaN, which so lands in region 0, whose formulas pass NaN on
+        np.fmax(cell, 0.0, out=cell)
+        np.fmin(cell, len(self.lookup) - 1, out=cell)
+        return self.lookup[cell.astype(np.intp)]
 
     def region(self, k, eta, log):
         if k == 0:
