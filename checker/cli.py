@@ -1,15 +1,17 @@
 """Command line: ``regimecheck state FILE...`` and ``regimecheck point ...``.
 
-Exit codes: 0 done, 2 unusable input or usage.  Bad input never shows a traceback.
+Exit codes: 0 done, 2 unusable input or usage, 3 internal error.  Bad input never
+shows a traceback.
 """
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 
 from .errors import RegimecheckError
 
-EXIT_OK, EXIT_INPUT = 0, 2
+EXIT_OK, EXIT_INPUT, EXIT_INTERNAL = 0, 2, 3
 
 
 class _Parser(argparse.ArgumentParser):
@@ -125,6 +127,12 @@ def main(argv=None) -> int:
     except RegimecheckError as exc:
         print(f"regimecheck: error: {exc}", file=sys.stderr)
         return EXIT_INPUT
+    except Exception as exc:  # a bug of ours, not the user's input
+        if os.environ.get("REGIMECHECK_DEBUG"):
+            raise
+        print(f"regimecheck: internal error ({type(exc).__name__}: {exc}); please report it. "
+              "Set REGIMECHECK_DEBUG=1 to see the traceback.", file=sys.stderr)
+        return EXIT_INTERNAL
 
 
 if __name__ == "__main__":
