@@ -75,17 +75,19 @@ def carrier_transport(state: equilibrium.State, dimension=3, mobility_model=None
 
 
 def regime_label(state: equilibrium.State, degenerate_eta=-3.0):
-    """A short regime name per point: metallic, degenerate, intrinsic, freeze-out, extrinsic.
+    """A short regime name per point: metallic, degenerate, intrinsic,
+    incomplete ionization, extrinsic (checked in that order of precedence).
 
     Thresholds: eta > -3 counts as degenerate (the 3kT rule, common practice
-    (no source)); intrinsic where n_i exceeds the net doping; freeze-out where
-    under 90 % of the majority dopant is ionized (common practice (no source)).
+    (no source)); intrinsic where n_i exceeds the net doping; incomplete
+    ionization (freeze-out at low T, deep levels at any T) where under 90 % of
+    the majority dopant is ionized (common practice (no source)).
     """
     net = np.abs(state.donors_total - state.acceptors_total)
     majority_fraction = np.where(state.donors_total >= state.acceptors_total,
                                  state.donor_fraction, state.acceptor_fraction)
     labels = np.full(np.shape(state.T), "extrinsic", dtype=object)
-    labels[majority_fraction < 0.9] = "freeze-out"
+    labels[majority_fraction < 0.9] = "incomplete ionization"
     labels[state.ni > net] = "intrinsic"
     labels[(state.eta_n > degenerate_eta) | (state.eta_p > degenerate_eta)] = "degenerate"
     labels[state.metallic] = "metallic"
