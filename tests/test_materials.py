@@ -1,7 +1,6 @@
 """Material data against published handbook values (sources named per check)."""
 import math
 
-import numpy as np
 import pytest
 import scipy.constants as sc
 

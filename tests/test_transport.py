@@ -1,12 +1,11 @@
 """Transport relations against mpmath, published limits and handbook values."""
 import math
 
-import mpmath as mp
 import numpy as np
 import pytest
 import scipy.constants as sc
 
-from checker import carrier_transport, load_material, solve_equilibrium
+from checker import carrier_transport, solve_equilibrium
 from checker.physics import transport
 from conftest import PER_CM3, fd_reference
 

@@ -306,7 +306,7 @@ def _logsumexp_with_slope(terms):
     return total, slope
 
 
-def _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd, na, e_donor, e_acceptor, metal_d, metal_a, ni, Nc, Nv):
+def _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd, na, e_donor, e_acceptor, metal_d, metal_a, ni):
     """Boltzmann estimate of eta_n with one effective donor and acceptor level.
 
     Net donors: n (n + N_A) / (N_D - N_A - n) = (N_c/2) e^(-E_D/kT), solved in
@@ -337,7 +337,7 @@ def _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd, na, e_donor, e_acceptor, metal_d
 
 # Joyce–Dixon series for the inverse of F_1/2: eta = ln u + sum A_k u^k
 # (W. B. Joyce and R. W. Dixon, Appl. Phys. Lett. 31, 354 (1977)).
-_JOYCE_DIXON = (4.42563e-6 * -1, 1.48386e-4, -4.95009e-3, 0.353553)
+_JOYCE_DIXON = (-4.42563e-6, 1.48386e-4, -4.95009e-3, 0.353553)  # A4, A3, A2, A1
 
 
 def _eta_from_ln_u(ln_u):
@@ -528,7 +528,7 @@ def _solve_flat(material, T, donors, acceptors, band_gap_narrowing, species, out
                                  _log(np.maximum(-net, 0.0)), donor_terms, acceptor_terms)
     eta0 = _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd_total, na_total,
                           *_effective_levels(donors, acceptors, species, nd_total, na_total, T),
-                          ni, Nc, Nv)
+                          ni)
     eta, final_f, iterations = _newton(residual, eta0)
     out_eta, out_residual, out_metallic, out_narrowing = out
     out_eta[:] = eta

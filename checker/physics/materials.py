@@ -15,7 +15,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import MissingParameterError, UnknownDopantError
-from .constants import BOHR_RADIUS, ELEMENTARY_CHARGE, VACUUM_PERMITTIVITY
+from .constants import ELEMENTARY_CHARGE, VACUUM_PERMITTIVITY
 
 T_REF = 300.0
 
@@ -383,5 +383,5 @@ __all__ = [
     "Arora", "CarrierTransport", "CaugheyThomas", "CubeRootNarrowing", "Dopant",
     "Levinshtein", "Masetti", "Material", "PowerLawDOS", "PowerLawExponent",
     "Provenance", "SaturationVelocity", "SlotboomNarrowing", "VarshniGap",
-    "edwards_sienko_mott_density", "BOHR_RADIUS",
+    "edwards_sienko_mott_density",
 ]
