@@ -196,3 +196,39 @@ def test_band_gap_narrowing_raises_minority_density():
 def test_bad_input_is_a_clear_error(call, error, text):
     with pytest.raises(error, match=text):
         call()
+
+
+@pytest.mark.parametrize("name", ["Si", "Ge", "GaAs", "InP", "GaN", "4H-SiC", "InAs", "InGaAs"])
+def test_random_mixtures_converge_and_stay_physical(name):
+    """Seeded random T, species and densities: finite, converged, and ordered.
+
+    Physical checks (no reference needed): 0 <= N^+ <= N; n p = n_i^2 exactly
+    when both carriers are non-degenerate (mass action, Sze & Ng 2007 ch. 1).
+    """
+    material = load_material(name)
+    rng = np.random.default_rng(sum(map(ord, name)))
+    size = 4000
+    T = rng.uniform(1.0, 1500.0, size)
+    donors = {k: 10 ** rng.uniform(8, 22, size) * PER_CM3 * (rng.random(size) < 0.7)
+              for k, d in material.dopants.items() if d.kind == "donor"}
+    acceptors = {k: 10 ** rng.uniform(8, 22, size) * PER_CM3 * (rng.random(size) < 0.7)
+                 for k, d in material.dopants.items() if d.kind == "acceptor"}
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        state = solve_equilibrium(material, T, donors, acceptors)
+        assert np.all(np.isfinite(state.eta_n)) and np.all(state.residual <= 1e-10)
+        for group, ionized in ((state.donors, state.donors_ionized),
+                               (state.acceptors, state.acceptors_ionized)):
+            for species, density in group.items():
+                assert np.all(ionized[species] >= 0)
+                assert np.all(ionized[species] <= density * (1 + 1e-12))
+        both = (state.eta_n < -40) & (state.eta_p < -40) & (state.n > 1e-250) & (state.p > 1e-250)
+        if both.any():
+            assert np.allclose((state.n * state.p)[both], (state.ni ** 2)[both], rtol=1e-9)
+
+
+def test_fermi_level_rises_with_donor_density():
+    N = np.geomspace(1e10, 1e21, 200) * PER_CM3
+    for T in (50.0, 300.0, 900.0):
+        eta = solve_equilibrium("Si", T, {"P": N}, {"B": 1e15 * PER_CM3}).eta_n
+        assert np.all(np.diff(eta) > 0)
