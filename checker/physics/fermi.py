@@ -52,8 +52,8 @@ def _order(j) -> Fraction:
     return frac
 
 
-def _horner(coeffs, t):
-    acc = np.multiply(t, coeffs[-1])
+def _horner(coeffs, t, out=None):
+    acc = np.multiply(t, coeffs[-1], out=out)
     acc += coeffs[-2]
     for c in coeffs[-3::-1]:
         acc *= t
@@ -97,32 +97,48 @@ class _Piecewise:
         np.fmin(cell, len(self.lookup) - 1, out=cell)
         return self.lookup[cell.astype(np.intp)]
 
-    def region(self, k, eta, log):
+    def region(self, k, eta, log, out):
+        """Write F_j (or ln F_j) of region k at eta into ``out`` (same length)."""
         if k == 0:
-            return eta.copy() if log else np.exp(eta)
-        if k == 1:
+            if log:
+                np.copyto(out, eta)
+            else:
+                np.exp(eta, out=out)
+        elif k == 1:
             z = np.exp(eta)
-            poly = _horner(self.low, z)
-            return eta + np.log(poly) if log else z * poly
-        if k == len(self.edges):
-            return self._asymptotic(eta, log)
-        mid, inv_half, coeffs = self.pieces[k - 2]
-        val = _horner(coeffs, (eta - mid) * inv_half)
-        return np.log(val) if log else val
+            _horner(self.low, z, out)
+            if log:
+                np.log(out, out=out)
+                out += eta
+            else:
+                out *= z
+        elif k == len(self.edges):
+            self._asymptotic(eta, log, out)
+        else:
+            mid, inv_half, coeffs = self.pieces[k - 2]
+            t = np.subtract(eta, mid)
+            t *= inv_half
+            _horner(coeffs, t, out)
+            if log:
+                np.log(out, out=out)
 
-    def _asymptotic(self, eta, log):
+    def _asymptotic(self, eta, log, out):
         inv2 = eta * eta
         np.divide(1.0, inv2, out=inv2)
-        series = _horner(self.asym, inv2)
+        series = _horner(self.asym, inv2, out)
         whole = int(self.power - Fraction(1, 2))  # eta^(j+1) = eta^whole * sqrt(eta)
         lead = np.sqrt(eta)
         if whole < 0:
-            lead = 1.0 / lead
+            np.divide(1.0, lead, out=lead)
         for _ in range(max(whole, 0)):
             lead *= eta
         if log:
-            return np.log(lead) + np.log(series) - np.log(self.gamma)
-        return lead * series / self.gamma
+            np.log(series, out=series)
+            series += np.log(lead)
+            series -= np.log(self.gamma)
+        else:
+            series *= lead
+            series /= self.gamma
 
     def evaluate(self, eta: np.ndarray, log: bool = False) -> np.ndarray:
         return _grouped(self, eta, [(self, log)])[0]
@@ -137,27 +153,29 @@ def _grouped(classifier: _Piecewise, eta: np.ndarray, jobs):
     """
     outs = [np.empty_like(eta) for _ in jobs]
     n_regions = classifier.last + 1
+    scratch = [np.empty(min(eta.size, _CHUNK)) for _ in jobs]
     for start in range(0, eta.size, _CHUNK):
         block = eta[start:start + _CHUNK]
+        targets = [out[start:start + _CHUNK] for out in outs]
         region = classifier.regions(block)
         counts = np.bincount(region, minlength=n_regions)
         busy = np.flatnonzero(counts)
         if busy.size == 1:
             k = int(busy[0])
-            for out, (ev, log) in zip(outs, jobs):
-                out[start:start + _CHUNK] = ev.region(k, block, log)
+            for target, (ev, log) in zip(targets, jobs):
+                ev.region(k, block, log, target)
             continue
         order = np.argsort(region, kind="stable")
         grouped = block[order]
-        results = [np.empty_like(grouped) for _ in jobs]
+        results = [buffer[:block.size] for buffer in scratch]
         stop = 0
         for k in busy:
             first, stop = stop, stop + counts[k]
             piece = grouped[first:stop]
             for res, (ev, log) in zip(results, jobs):
-                res[first:stop] = ev.region(int(k), piece, log)
-        for out, res in zip(outs, results):
-            out[start:start + _CHUNK][order] = res
+                ev.region(int(k), piece, log, res[first:stop])
+        for target, res in zip(targets, results):
+            target[order] = res
     return outs
 
 
@@ -199,11 +217,14 @@ def _integer_order_block(j, eta):
     if j == 0:
         return _softplus(eta)
     poly, sign = _REFLECTION[j]
-    neg = -np.abs(eta)
-    base = _evaluator(str(j)).evaluate(neg)
-    positive = eta > 0
-    if positive.any():
-        base[positive] = poly(-neg[positive]) + sign * base[positive]
+    magnitude = np.abs(eta)
+    base = _evaluator(str(j)).evaluate(-magnitude)     # F_j(-|eta|), tabulated
+    reflected = poly(magnitude)
+    if sign > 0:
+        reflected += base
+    else:
+        reflected -= base
+    np.copyto(base, reflected, where=eta > 0)
     return base
 
 
