@@ -10,11 +10,14 @@ Neutrality:   n + sum_k N_A,k^-  =  p + sum_i N_D,i^+
 A species whose same-type total density reaches its Mott density is taken
 as fully ionized (impurity band merged with the band) and the point flagged.
 
-The residual f(eta) = ln(n + N_A^-) - ln(p + N_D^+) is strictly increasing in
-eta; it is evaluated entirely in logarithms (densities from e^-10000 to e^50
-never under- or overflow), bracketed, and solved by safeguarded Newton
-(bisection whenever a Newton step leaves the bracket).  Every point either
-meets |f| <= 1e-12 (relative neutrality residual) or raises ConvergenceError.
+The solve uses the equivalent form n + N_D^0 + max(N_A - N_D, 0) =
+p + N_A^0 + max(N_D - N_A, 0) (N^0: neutral impurities), in which no two
+large densities cancel, so compensated material keeps full precision.  Its
+residual f(eta) = ln(left) - ln(right) is strictly increasing in eta; it is
+evaluated entirely in logarithms (densities from e^-10000 to e^50 never under-
+or overflow) and solved by safeguarded Newton (bisection whenever a step
+leaves the bracket).  Every point either meets |f| <= 1e-12 (relative
+neutrality residual) or raises ConvergenceError.
 
 References
 ----------
@@ -27,7 +30,6 @@ Statistics (1962); P. P. Edwards and M. J. Sienko, Phys. Rev. B 17, 2575 (1978)
 from __future__ import annotations
 
 import os
-from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -462,6 +464,8 @@ def solve(material: Material, T, donors: dict | None = None, acceptors: dict | N
     starts = range(0, T.size, CHUNK)
     if len(starts) > 1 and WORKERS > 1:
         # numpy releases the GIL inside ufuncs, so blocks overlap on both cores
+        from concurrent.futures import ThreadPoolExecutor  # only large solves need it
+
         with ThreadPoolExecutor(max_workers=WORKERS) as pool:
             iterations = max(pool.map(block, starts))
     else:
