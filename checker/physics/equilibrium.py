@@ -37,7 +37,7 @@ import numpy as np
 
 from ..errors import ConvergenceError, InputError
 from .constants import BOLTZMANN, EV
-from .fermi import log_fermi_dirac, log_fermi_dirac_half_pair
+from .fermi import fermi_dirac, log_fermi_dirac, log_fermi_dirac_half_pair
 from .materials import Material
 
 MAX_ITERATIONS = 200
@@ -157,7 +157,8 @@ def ionized_density(dopant, density, eta_band, kT, narrowing, same_type_total):
     """
     offset = _ionization_offset(dopant, kT, narrowing)
     metallic = same_type_total >= dopant.mott_density
-    return np.where(metallic, density, density * _logistic(-(eta_band + offset)))
+    # F_-1 is the logistic function: the ionized fraction 1/(1 + g e^(eta + E/kT))
+    return np.where(metallic, density, density * fermi_dirac(-1, -(eta_band + offset)))
 
 
 def _ionization_offset(dopant, kT, narrowing):
@@ -175,11 +176,6 @@ def _sum(parts: dict, like):
 def _fraction(part, whole):
     with np.errstate(invalid="ignore", divide="ignore"):
         return np.where(whole > 0, part / np.where(whole > 0, whole, 1.0), 1.0)
-
-
-def _logistic(x):
-    e = np.exp(-np.abs(x))
-    return np.where(x >= 0, 1.0 / (1.0 + e), e / (1.0 + e))
 
 
 def _softplus_and_logistic(x):

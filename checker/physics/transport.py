@@ -17,14 +17,6 @@ from .fermi import log_fermi_dirac
 _DENSITY_ORDER = {3: 0.5, 2: 0.0, 1: -0.5}
 
 
-def _log_fd(j, eta):
-    """ln F_j for j in {-3/2, -1, -1/2, 0, 1/2, 1}, without underflow."""
-    if j == -1:  # F_-1 = logistic(eta) -> ln = -ln(1 + e^-eta)
-        x = -np.asarray(eta, dtype=float)
-        return -(np.maximum(x, 0.0) + np.log1p(np.exp(-np.abs(x))))
-    return log_fermi_dirac(j, eta)
-
-
 def _dimension(dimension) -> int:
     if dimension not in _DENSITY_ORDER:
         raise InputError(f"dimensionality must be 3, 2 or 1, got {dimension!r}")
@@ -45,7 +37,7 @@ def einstein_ratio(eta, dimension=3):
     of Carrier Transport, 2nd ed. (2000), ch. 3.
     """
     j = _DENSITY_ORDER[_dimension(dimension)]
-    return np.exp(_log_fd(j, eta) - _log_fd(j - 1, eta))
+    return np.exp(log_fermi_dirac(j, eta) - log_fermi_dirac(j - 1, eta))
 
 
 def diffusion_coefficient(mobility, T, eta, dimension=3):
@@ -131,7 +123,7 @@ def unidirectional_thermal_velocity(T, mass, eta=None, dimension=3):
         return base
     j = _DENSITY_ORDER[dim]
     upper = j + 0.5
-    return base * np.exp(_log_fd(upper, eta) - _log_fd(j, eta))
+    return base * np.exp(log_fermi_dirac(upper, eta) - log_fermi_dirac(j, eta))
 
 
 def backscattering_mean_free_path(diffusion, thermal_velocity):
