@@ -7,8 +7,8 @@ from __future__ import annotations
 import numpy as np
 
 from .inputs.material_catalog import builtin_names, missing_parameters, resolve_material
-from .physics import equilibrium, transport
-from .physics.constants import BOLTZMANN, ELEMENTARY_CHARGE, EV
+from .physics import carriers, equilibrium
+from .physics.constants import EV
 from .physics.materials import Material
 
 PER_CM3 = 1e6           # cm^-3 -> m^-3
@@ -38,60 +38,12 @@ def solve_equilibrium(material, temperature, donors=None, acceptors=None,
 
 
 def carrier_transport(state: equilibrium.State, dimension=3, mobility_model=None):
-    """Mobilities, diffusion coefficients, conductivity and mean free paths at a State.
-
-    Mobility comes from the material's model at the total dopant density
-    N_D + N_A, the variable the published fits (Masetti, Arora,
-    Caughey–Thomas tables) were made against; the dominant donor species
-    selects the electron parameter set where the material has one per dopant.
-    Returns a dict of SI arrays.
-    """
-    material = state.material
-    electron = material.need("electron", "mobility (conductivity, Einstein relation)")
-    hole = material.need("hole", "mobility (conductivity, Einstein relation)")
-    impurities = state.donors_total + state.acceptors_total
-    donor_species = max(state.donors, key=lambda k: float(np.max(state.donors[k])), default=None)
-    mu_n = electron.low_field(impurities, state.T, mobility_model, donor_species)
-    acceptor_species = max(state.acceptors, key=lambda k: float(np.max(state.acceptors[k])),
-                           default=None)
-    mu_p = hole.low_field(impurities, state.T, mobility_model, acceptor_species)
-    d_n = transport.diffusion_coefficient(mu_n, state.T, state.eta_n, dimension)
-    d_p = transport.diffusion_coefficient(mu_p, state.T, state.eta_p, dimension)
-    result = {
-        "mu_n": mu_n, "mu_p": mu_p, "D_n": d_n, "D_p": d_p,
-        "sigma": transport.conductivity(state.n, state.p, mu_n, mu_p),
-        "rho": transport.resistivity(state.n, state.p, mu_n, mu_p),
-        "kT_over_q": BOLTZMANN * state.T / ELEMENTARY_CHARGE,
-    }
-    if electron.thermal_mass and hole.thermal_mass:
-        v_n = transport.unidirectional_thermal_velocity(state.T, electron.thermal_mass, state.eta_n,
-                                                        dimension)
-        v_p = transport.unidirectional_thermal_velocity(state.T, hole.thermal_mass, state.eta_p,
-                                                        dimension)
-        result.update(v_n=v_n, v_p=v_p,
-                      mfp_n=transport.backscattering_mean_free_path(d_n, v_n),
-                      mfp_p=transport.backscattering_mean_free_path(d_p, v_p))
-    return result
+    """Mobilities, diffusion coefficients, conductivity and mean free paths at a
+    State (SI arrays); see :func:`checker.physics.carriers.carrier_transport`."""
+    return carriers.carrier_transport(state, dimension, mobility_model)
 
 
-def regime_label(state: equilibrium.State, degenerate_eta=-3.0):
-    """A short regime name per point: metallic, degenerate, intrinsic,
-    incomplete ionization, extrinsic (checked in that order of precedence).
-
-    Thresholds: eta > -3 counts as degenerate (the 3kT rule, common practice
-    (no source)); intrinsic where n_i exceeds the net doping; incomplete
-    ionization (freeze-out at low T, deep levels at any T) where under 90 % of
-    the majority dopant is ionized (common practice (no source)).
-    """
-    net = np.abs(state.donors_total - state.acceptors_total)
-    majority_fraction = np.where(state.donors_total >= state.acceptors_total,
-                                 state.donor_fraction, state.acceptor_fraction)
-    labels = np.full(np.shape(state.T), "extrinsic", dtype=object)
-    labels[majority_fraction < 0.9] = "incomplete ionization"
-    labels[state.ni > net] = "intrinsic"
-    labels[(state.eta_n > degenerate_eta) | (state.eta_p > degenerate_eta)] = "degenerate"
-    labels[state.metallic] = "metallic"
-    return labels
+regime_label = carriers.regime_label
 
 
 def state_summary(state: equilibrium.State, index=()):

@@ -1,7 +1,9 @@
-"""Command line: ``regimecheck state FILE...`` and ``regimecheck point ...``.
+"""Command line: ``regimecheck check PATH...`` and its companions.
 
-Exit codes: 0 done, 2 unusable input or usage, 3 internal error.  Bad input never
-shows a traceback.
+Commands: check (the main job), point (one operating point from options),
+rules, explain ID, state (solve only), materials.
+Exit codes: 0 no finding at or above the fail level, 1 findings, 2 unusable
+input or usage, 3 internal error.  Bad input never shows a traceback.
 """
 from __future__ import annotations
 
@@ -11,7 +13,8 @@ import sys
 
 from .errors import RegimecheckError
 
-EXIT_OK, EXIT_INPUT, EXIT_INTERNAL = 0, 2, 3
+EXIT_OK, EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
+LEVELS = ("info", "warning", "error")
 
 
 class _Parser(argparse.ArgumentParser):
@@ -25,6 +28,9 @@ def _parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="regimecheck",
                      description="Solve and check semiconductor operating points.")
     sub = parser.add_subparsers(dest="command", required=True)
+    check = sub.add_parser("check", help="check calculation files (files or directories)")
+    check.add_argument("paths", nargs="+", help="calculation files (.yaml) or directories")
+    _report_options(check)
     state = sub.add_parser("state", help="solve every calculation in YAML files")
     state.add_argument("paths", nargs="+", help="calculation files (.yaml)")
     state.add_argument("--format", choices=("console", "json"), default="console")
@@ -36,9 +42,23 @@ def _parser() -> argparse.ArgumentParser:
     point.add_argument("--acceptor", action="append", default=[], metavar="SPECIES=DENSITY",
                        help="e.g. B=1e15cm-3 (repeatable)")
     point.add_argument("--narrowing", action="store_true", help="apply band-gap narrowing")
-    point.add_argument("--format", choices=("console", "json"), default="console")
+    point.add_argument("--dimensionality", type=int, choices=(1, 2, 3), default=3)
+    point.add_argument("--field", help="applied field, e.g. 20kV/cm (checks the low-field shortcut)")
+    point.add_argument("--length", help="conductor length, e.g. 100nm (checks the diffusive shortcut)")
+    _report_options(point)
     sub.add_parser("materials", help="list the built-in materials and their dopants")
+    sub.add_parser("rules", help="list the checks")
+    explain = sub.add_parser("explain", help="what a check tests, why, and how to fix it")
+    explain.add_argument("rule", help="a rule id, e.g. STAT02")
     return parser
+
+
+def _report_options(command):
+    command.add_argument("--format", choices=("console", "json"), default="console")
+    command.add_argument("--fail-on", choices=LEVELS, default="warning",
+                         help="lowest severity that makes the exit code 1 (default: warning)")
+    command.add_argument("--exit-zero", action="store_true",
+                         help="exit 0 even when there are findings (input errors still exit 2)")
 
 
 def _pairs(items, what):
@@ -66,20 +86,77 @@ def _console():
     return Console(highlight=False)
 
 
+def _exit_code(result, args) -> int:
+    if result.input_errors:
+        return EXIT_INPUT
+    worst = result.worst()
+    if worst is None or args.exit_zero or LEVELS.index(worst) < LEVELS.index(args.fail_on):
+        return EXIT_OK
+    return EXIT_FINDINGS
+
+
+def _report(result, args) -> int:
+    from .report.check_report import render_console, render_json
+
+    code = _exit_code(result, args)
+    if args.format == "json":
+        print(render_json(result, code))
+    else:
+        render_console(result, _console())
+    return code
+
+
+def _cmd_check(args) -> int:
+    from .engine.run import check_paths
+
+    return _report(check_paths(args.paths), args)
+
+
 def _cmd_point(args) -> int:
+    """One operating point, checked as if every textbook shortcut were taken."""
+    from .engine.run import check_calculations
+    from .inputs.calculation_file import ASSUMPTIONS, Calculation
     from .inputs.material_catalog import resolve_material
-    from .inputs.quantities import parse_temperature
-    from .report.state_report import doping_text, render_console, render_json
+    from .inputs.quantities import parse_quantity, parse_temperature
 
     material = resolve_material(args.material)
     T = parse_temperature(args.temperature, "--temperature")
     donors, acceptors = _pairs(args.donor, "donor"), _pairs(args.acceptor, "acceptor")
-    summary = _solve_point(material, T, donors, acceptors, args.narrowing)
-    entry = (f"{material.name} at {T:.2f} K", doping_text(donors, acceptors), summary)
-    if args.format == "json":
-        print(render_json([entry], []))
-    else:
-        render_console([entry], [], _console())
+    for species in list(donors) + list(acceptors):
+        material.dopant(species)
+    structure = {"dim": float(args.dimensionality)}
+    if args.field:
+        structure["field"] = parse_quantity(args.field, "field", "--field")
+    if args.length:
+        structure["L"] = parse_quantity(args.length, "length", "--length")
+    calc = Calculation(name=f"{material.name} at {T:.2f} K", source="(command line)", line=0,
+                       material=material, temperature=T, donors=donors, acceptors=acceptors,
+                       band_gap_narrowing=args.narrowing, structure=structure,
+                       assumes={word: 0 for word in ASSUMPTIONS})
+    return _report(check_calculations([calc]), args)
+
+
+def _cmd_rules(_args) -> int:
+    from .engine.rulebook import load_rules
+
+    for rule in load_rules():
+        print(f"{rule.id:8s} {rule.severity:8s} {rule.assumption:18s} {rule.title}")
+    return EXIT_OK
+
+
+def _cmd_explain(args) -> int:
+    from .engine.rulebook import load_rules
+    from .report.rule_text import explain_text
+
+    rules = {rule.id: rule for rule in load_rules()}
+    rule = rules.get(args.rule.strip().upper())
+    if rule is None:
+        import difflib
+
+        close = difflib.get_close_matches(args.rule.upper(), list(rules), n=1)
+        hint = f"did you mean {close[0]}? " if close else ""
+        raise RegimecheckError(f"no rule {args.rule!r}; {hint}'regimecheck rules' lists them")
+    print(explain_text(rule))
     return EXIT_OK
 
 
@@ -121,7 +198,9 @@ def _cmd_materials(_args) -> int:
 
 def main(argv=None) -> int:
     args = _parser().parse_args(argv)
-    handler = {"point": _cmd_point, "state": _cmd_state, "materials": _cmd_materials}[args.command]
+    handler = {"check": _cmd_check, "point": _cmd_point, "state": _cmd_state,
+               "materials": _cmd_materials, "rules": _cmd_rules,
+               "explain": _cmd_explain}[args.command]
     try:
         return handler(args)
     except RegimecheckError as exc:

@@ -1,6 +1,6 @@
-"""Calculation files: YAML documents describing operating points, with source positions.
+"""Calculation files: YAML documents describing one calculation each, with source positions.
 
-Each document is one calculation.  Keys read here:
+Keys (all optional except material and temperature):
 
     name: <text>
     material: <built-in name> | <mapping in the material data-file form>
@@ -8,6 +8,11 @@ Each document is one calculation.  Keys read here:
     doping:
       donors:    {<species>: "<density>", ...}
       acceptors: {<species>: "<density>", ...}
+    structure:   dimensionality (3/2/1), length, cross_section | thickness + width,
+                 field | voltage
+    stated:      the numbers the author gives (see STATED_KEYS)
+    assumes:     [trade words of ASSUMPTIONS]
+    waivers:     [{rule: <id>, reason: <text>}, ...]
     options:
       band_gap_narrowing: true | false
 
@@ -28,9 +33,49 @@ from .material_catalog import resolve_material
 from .quantities import parse_quantity, parse_temperature
 from .yaml_source import _StrictLoader
 
-TOP_KEYS = ("name", "material", "temperature", "doping", "options")
+TOP_KEYS = ("name", "material", "temperature", "doping", "structure", "stated", "assumes",
+            "waivers", "options")
 DOPING_KEYS = ("donors", "acceptors")
 OPTION_KEYS = ("band_gap_narrowing",)
+# YAML key -> (engine quantity name, dimension)
+STRUCTURE_KEYS = {
+    "dimensionality": ("dim", "dimensionless"),
+    "length": ("L", "length"),
+    "cross_section": ("A", "area"),
+    "thickness": ("thickness", "length"),
+    "width": ("width", "length"),
+    "field": ("field", "field"),
+    "voltage": ("voltage", "voltage"),
+}
+STATED_KEYS = {
+    "electron_density": ("stated_dens_n", "density"),
+    "hole_density": ("stated_dens_p", "density"),
+    "ef_minus_ec": ("stated_ef_minus_ec", "energy"),
+    "ef_minus_ev": ("stated_ef_minus_ev", "energy"),
+    "electron_mobility": ("stated_mu_n", "mobility"),
+    "hole_mobility": ("stated_mu_p", "mobility"),
+    "electron_diffusivity": ("stated_D_n", "diffusivity"),
+    "hole_diffusivity": ("stated_D_p", "diffusivity"),
+    "electron_velocity": ("stated_v_n", "velocity"),
+    "hole_velocity": ("stated_v_p", "velocity"),
+    "conductivity": ("stated_sigma", "conductivity"),
+    "resistivity": ("stated_rho", "resistivity"),
+    "sheet_resistance": ("stated_Rsh", "sheet resistance"),
+    "resistance": ("stated_R", "resistance"),
+    "thermal_voltage": ("stated_kT_q", "voltage"),
+    "intrinsic_density": ("stated_ni", "density"),
+    "mean_free_path": ("stated_lambda", "length"),
+}
+# The trade words an author may declare; a few common spellings map onto them.
+ASSUMPTIONS = ("non-degenerate", "full-ionization", "no-compensation", "single-carrier",
+               "extrinsic", "einstein-relation", "diffusive", "low-field")
+ASSUMPTION_SPELLINGS = {
+    "nondegenerate": "non-degenerate", "boltzmann": "non-degenerate",
+    "complete-ionization": "full-ionization", "fully-ionized": "full-ionization",
+    "uncompensated": "no-compensation", "one-carrier": "single-carrier",
+    "einstein": "einstein-relation", "drift-diffusion": "diffusive", "ohmic": "low-field",
+}
+SIGNED_KEYS = ("ef_minus_ec", "ef_minus_ev")   # the only quantities that may be negative
 
 
 @dataclass
@@ -51,6 +96,11 @@ class Calculation:
     donors: dict         # species -> m^-3
     acceptors: dict
     band_gap_narrowing: bool = False
+    structure: dict = field(default_factory=dict)    # engine name -> SI value
+    stated: dict = field(default_factory=dict)       # engine name -> SI value
+    assumes: dict = field(default_factory=dict)      # word -> line
+    waivers: dict = field(default_factory=dict)      # rule id -> (reason, line)
+    lines: dict = field(default_factory=dict)        # engine name -> line of its key
 
 
 @dataclass
@@ -106,10 +156,17 @@ class _Where:
                 return f"{self.path}:{line}:{col}"
         return self.path
 
+    def line(self, *keys) -> int:
+        for cut in range(len(keys), -1, -1):
+            if keys[:cut] in self.positions:
+                return self.positions[keys[:cut]][0]
+        return 0
 
-def _unknown_keys(mapping: dict, allowed, where: str, what: str):
+
+def _unknown_keys(mapping: dict, allowed, where: str, what: str, locate=None):
     for key in mapping:
         if key not in allowed:
+            where = locate(key) if locate else where
             close = difflib.get_close_matches(key, allowed, n=1)
             hint = f"; did you mean {close[0]!r}?" if close else f"; allowed: {', '.join(allowed)}"
             raise InputError(f"{where}: unknown {what} key {key!r}{hint}")
@@ -130,7 +187,7 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     if not isinstance(data, dict):
         raise InputError(f"{where()}: a calculation must be a mapping with keys "
                          f"{', '.join(TOP_KEYS)}")
-    _unknown_keys(data, TOP_KEYS, where(), "calculation")
+    _unknown_keys(data, TOP_KEYS, where(), "calculation", lambda k: where(k))
     for key in ("material", "temperature"):
         if key not in data:
             raise InputError(f"{where()}: missing {key!r}; add e.g. "
@@ -174,10 +231,80 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     bgn = _to_bool(options["band_gap_narrowing"], where("options", "band_gap_narrowing")) \
         if "band_gap_narrowing" in options else False
     line = doc.positions.get((), (1, 1))[0]
-    return Calculation(name=str(data.get("name", f"{Path(path).name}:{line}")), source=path,
+    calc = Calculation(name=str(data.get("name", f"{Path(path).name}:{line}")), source=path,
                        line=line, material=material, temperature=temperature,
                        donors=groups["donors"], acceptors=groups["acceptors"],
                        band_gap_narrowing=bgn)
+    calc.structure = _quantities(data, "structure", STRUCTURE_KEYS, where, calc.lines)
+    if "dim" in calc.structure and calc.structure["dim"] not in (1.0, 2.0, 3.0):
+        raise InputError(f"{where('structure', 'dimensionality')}: dimensionality must be 3, 2 or 1")
+    calc.stated = _quantities(data, "stated", STATED_KEYS, where, calc.lines)
+    calc.assumes = _assumptions(data.get("assumes"), where)
+    calc.waivers = _waivers(data.get("waivers"), where)
+    return calc
+
+
+def _quantities(data, section, keys, where, lines) -> dict:
+    block = data.get(section) or {}
+    if not isinstance(block, dict):
+        raise InputError(f"{where(section)}: {section} must be a mapping of "
+                         f"{', '.join(keys)} to quantities")
+    _unknown_keys(block, tuple(keys), where(section), section, lambda k: where(section, k))
+    out = {}
+    for key, text in block.items():
+        name, dimension = keys[key]
+        here = where(section, key)
+        value = parse_quantity(text, dimension, here)
+        if value < 0 and key not in SIGNED_KEYS:
+            raise InputError(f"{here}: {key} {text!r} is negative; give a value >= 0")
+        if value == 0 and dimension in ("length", "area", "density") and section == "structure":
+            raise InputError(f"{here}: {key} must be larger than zero")
+        out[name] = value
+        lines[name] = where.line(section, key)
+    return out
+
+
+def _assumptions(entries, where) -> dict:
+    if entries is None:
+        return {}
+    if isinstance(entries, str):
+        entries = [entries]
+    if not isinstance(entries, list):
+        raise InputError(f"{where('assumes')}: assumes must be a list of words such as "
+                         "[non-degenerate, full-ionization]")
+    out = {}
+    for i, word in enumerate(entries):
+        here = where("assumes", i)
+        text = str(word).strip().lower().replace("_", "-").replace(" ", "-")
+        text = ASSUMPTION_SPELLINGS.get(text, text)
+        if text not in ASSUMPTIONS:
+            close = difflib.get_close_matches(text, ASSUMPTIONS, n=1)
+            hint = f"did you mean {close[0]!r}?" if close else f"known: {', '.join(ASSUMPTIONS)}"
+            raise InputError(f"{here}: unknown assumption {word!r}; {hint}")
+        out[text] = where.line("assumes", i)
+    return out
+
+
+def _waivers(entries, where) -> dict:
+    if entries is None:
+        return {}
+    if not isinstance(entries, list):
+        raise InputError(f"{where('waivers')}: waivers must be a list of "
+                         "{rule: <id>, reason: <text>}")
+    out = {}
+    for i, entry in enumerate(entries):
+        here = where("waivers", i)
+        if not isinstance(entry, dict):
+            raise InputError(f"{here}: write a waiver as {{rule: <id>, reason: <text>}}")
+        _unknown_keys(entry, ("rule", "reason"), here, "waiver")
+        if not entry.get("rule"):
+            raise InputError(f"{here}: the waiver names no rule; add rule: <id>")
+        reason = str(entry.get("reason") or "").strip()
+        if len(reason) < 3:
+            raise InputError(f"{here}: the waiver of {entry['rule']} has no reason; add "
+                             "reason: <why this finding does not apply>")
+        out[str(entry["rule"]).strip().upper()] = (reason, where.line("waivers", i))
+    return out
 
 
 def read_calculation_file(path) -> FileResult:

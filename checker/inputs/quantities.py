@@ -1,7 +1,16 @@
-"""Strict parsing of quantity strings ("1e17 cm-3", "45 meV") into SI numbers.
+"""Strict parsing of quantity strings ("1e17 cm-3", "5 kV/cm") into SI numbers.
 
-A small, closed table of trade units is enough for the material data files;
-anything else is refused with a message that lists what is accepted.
+Two steps, both strict:
+
+1. A regular-expression gate: a plain decimal number, then a unit made only of
+   unit names, ``*``, ``/``, parentheses and small integer exponents (``^-3``,
+   ``**2``, or a trailing ``-3``).  Anything else (``9**9**9 m``, ``1e999``,
+   Python syntax) is refused before any library sees it.
+2. The unit: the common trade spellings are looked up in a closed table (fast,
+   no import); any other unit that passed the gate is handed to pint, imported
+   only then.  pint reads ``cm-3`` as "cm minus 3", so the gate rewrites
+   trailing exponents to ``**`` first.  Temperatures are parsed separately
+   (pint refuses "25 degC" from a string).
 """
 from __future__ import annotations
 
@@ -12,6 +21,26 @@ from ..errors import InputError
 from ..physics.constants import EV
 
 _CM = 1e-2
+# The SI unit of each dimension, as pint text, and a typical trade example.
+DIMENSIONS = {
+    "density": ("m**-3", "1e17 cm-3"),
+    "energy": ("J", "0.045 eV"),
+    "energy per kelvin": ("J/K", "4.73e-4 eV/K"),
+    "energy times length": ("J*m", "1e-9 eV*cm"),
+    "temperature": ("K", "300 K"),
+    "mobility": ("m**2/(V*s)", "1350 cm^2/(V*s)"),
+    "diffusivity": ("m**2/s", "35 cm^2/s"),
+    "velocity": ("m/s", "1e7 cm/s"),
+    "field": ("V/m", "5 kV/cm"),
+    "voltage": ("V", "0.0259 V"),
+    "length": ("m", "2 um"),
+    "area": ("m**2", "4 um^2"),
+    "resistivity": ("ohm*m", "0.03 ohm*cm"),
+    "conductivity": ("S/m", "33 S/cm"),
+    "resistance": ("ohm", "1.5 kohm"),
+    "sheet resistance": ("ohm", "250 ohm/sq"),
+}
+
 # unit text (spaces removed) -> (dimension name, factor to SI)
 UNITS = {
     "eV": ("energy", EV), "meV": ("energy", 1e-3 * EV),
@@ -19,14 +48,33 @@ UNITS = {
     "eV/K": ("energy per kelvin", EV), "meV/K": ("energy per kelvin", 1e-3 * EV),
     "cm-3": ("density", _CM ** -3), "cm^-3": ("density", _CM ** -3), "/cm^3": ("density", _CM ** -3),
     "/cm3": ("density", _CM ** -3), "m-3": ("density", 1.0), "m^-3": ("density", 1.0),
+    "cm**-3": ("density", _CM ** -3), "1/cm^3": ("density", _CM ** -3),
     "cm^2/(V*s)": ("mobility", _CM ** 2), "cm2/Vs": ("mobility", _CM ** 2),
-    "m^2/(V*s)": ("mobility", 1.0),
+    "cm^2/Vs": ("mobility", _CM ** 2), "m^2/(V*s)": ("mobility", 1.0),
+    "cm^2/s": ("diffusivity", _CM ** 2), "cm2/s": ("diffusivity", _CM ** 2),
+    "m^2/s": ("diffusivity", 1.0),
     "cm/s": ("velocity", _CM), "m/s": ("velocity", 1.0),
     "V/cm": ("field", 1 / _CM), "V/m": ("field", 1.0), "kV/cm": ("field", 1e3 / _CM),
+    "V": ("voltage", 1.0), "mV": ("voltage", 1e-3),
+    "m": ("length", 1.0), "cm": ("length", _CM), "mm": ("length", 1e-3), "um": ("length", 1e-6),
+    "µm": ("length", 1e-6), "μm": ("length", 1e-6), "nm": ("length", 1e-9),
+    "um^2": ("area", 1e-12), "cm^2": ("area", 1e-4), "nm^2": ("area", 1e-18), "m^2": ("area", 1.0),
+    "ohm*cm": ("resistivity", _CM), "Ohm*cm": ("resistivity", _CM), "ohm*m": ("resistivity", 1.0),
+    "S/cm": ("conductivity", 1 / _CM), "S/m": ("conductivity", 1.0),
+    "ohm": ("resistance", 1.0), "Ohm": ("resistance", 1.0), "kohm": ("resistance", 1e3),
+    "ohm/sq": ("sheet resistance", 1.0), "Ohm/sq": ("sheet resistance", 1.0),
+    "kohm/sq": ("sheet resistance", 1e3),
     "eV*cm": ("energy times length", EV * _CM),
 }
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d{1,3})?"
-_QUANTITY = re.compile(rf"^\s*({_NUMBER})\s*([A-Za-z/^*()0-9.\-+ ]{{0,24}})\s*$")
+_NAME = r"[A-Za-zµμΩ]{1,8}"
+_POWER = r"(?:(?:\^|\*\*)?-?\d{1,2})?"
+_FACTOR = rf"(?:{_NAME}{_POWER}|1)"
+_PRODUCT = rf"{_FACTOR}(?:[*/]{_FACTOR})*"
+_UNIT = rf"/?(?:{_PRODUCT}|\({_PRODUCT}\))(?:[*/](?:{_FACTOR}|\({_PRODUCT}\)))*"
+_QUANTITY = re.compile(rf"^\s*({_NUMBER})\s*(.{{0,40}}?)\s*$")
+_UNIT_GATE = re.compile(rf"^{_UNIT}$")
+_TRAILING_POWER = re.compile(r"([A-Za-zµμΩ])(-?\d{1,2})(?![\d.])")
 
 
 def parse_quantity(text, dimension: str, where: str = "") -> float:
@@ -35,13 +83,11 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
     A bare number is accepted only for ``dimension == "dimensionless"``.
     """
     place = f"{where}: " if where else ""
-    if isinstance(text, bool):
-        raise InputError(f"{place}expected a {dimension} quantity, got {text!r}")
+    if isinstance(text, bool) or text is None or isinstance(text, (dict, list)):
+        raise InputError(f"{place}expected a {dimension} quantity such as {example(dimension)}, "
+                         f"got {text!r}")
     if isinstance(text, (int, float)):
-        if dimension == "dimensionless":
-            return float(text)
-        raise InputError(f"{place}{text!r} has no unit; write it with a {dimension} unit, "
-                         f"e.g. {example(dimension)}")
+        text = repr(text)
     match = _QUANTITY.match(str(text))
     if not match:
         raise InputError(f"{place}cannot read {text!r} as a quantity; write a number and a unit, "
@@ -55,16 +101,53 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
             return value
         raise InputError(f"{place}{text!r} has no unit; write it with a {dimension} unit, "
                          f"e.g. {example(dimension)}")
-    try:
+    if dimension == "dimensionless":
+        raise InputError(f"{place}{text!r} should be a plain number without a unit")
+    if unit in UNITS:
         unit_dimension, factor = UNITS[unit]
-    except KeyError:
-        raise InputError(f"{place}unknown unit {unit!r} in {text!r}; for a {dimension} use "
-                         f"{', '.join(u for u, (d, _) in UNITS.items() if d == dimension) or 'a plain number'}"
-                         ) from None
+    else:
+        unit_dimension, factor = _pint_unit(unit, dimension, text, place)
     if unit_dimension != dimension:
         raise InputError(f"{place}{text!r} has a unit of {unit_dimension} where {dimension} is "
-                         f"expected (e.g. {example(dimension)})")
+                         f"expected; write e.g. {example(dimension)}")
     return value * factor
+
+
+def _pint_unit(unit: str, dimension: str, text, place: str):
+    """(dimension, factor to SI) of a unit outside the table, read by pint."""
+    if not _UNIT_GATE.match(unit) or unit.count("(") > 2:
+        raise InputError(f"{place}cannot read the unit {unit!r} in {text!r}; write a unit such "
+                         f"as {example(dimension)}")
+    sheet = unit.endswith("/sq")
+    core = unit[:-3] if sheet else unit
+    pint_text = _TRAILING_POWER.sub(r"\1**\2", core.replace("^", "**")).replace("µ", "u") \
+        .replace("μ", "u").replace("Ω", "ohm")
+    registry = _registry()
+    try:
+        quantity = registry.Quantity(1.0, registry.parse_units(pint_text))
+    except Exception:  # pint raises several types for an unknown name
+        raise InputError(f"{place}unknown unit {unit!r} in {text!r}; for a {dimension} write e.g. "
+                         f"{example(dimension)}") from None
+    for name, (si_text, _) in DIMENSIONS.items():
+        if name in ("sheet resistance", "temperature"):
+            continue
+        si = registry.parse_units(si_text)
+        if quantity.dimensionality == si.dimensionality:
+            found = "sheet resistance" if sheet and name == "resistance" else name
+            return found, float(quantity.to(si).magnitude)
+    raise InputError(f"{place}the unit {unit!r} in {text!r} is not a {dimension} unit; write e.g. "
+                     f"{example(dimension)}")
+
+
+_REGISTRY = []
+
+
+def _registry():
+    if not _REGISTRY:
+        import pint  # slow to import: only for units outside the table
+
+        _REGISTRY.append(pint.UnitRegistry())
+    return _REGISTRY[0]
 
 
 _TEMPERATURE = re.compile(rf"^\s*({_NUMBER})\s*(K|degC|°C|C)\s*$")
@@ -89,6 +172,8 @@ def parse_temperature(text, where: str = "") -> float:
 
 
 def example(dimension: str) -> str:
+    if dimension in DIMENSIONS:
+        return f"'{DIMENSIONS[dimension][1]}'"
     for unit, (dim, _) in UNITS.items():
         if dim == dimension:
             return f"'1 {unit}'"

@@ -1,0 +1,184 @@
+"""Evaluate every rule over the solved quantities of all calculations in one pass.
+
+A rule fires for a calculation (and carrier) where
+  * its assumption is made: declared by the author (``assumes``), or implied by
+    a stated number equal to the shortcut's value within the rule's tolerance,
+    and its ``when`` gate holds;
+  * the quantities it ``requires`` are known; and
+  * its regime indicator lies on the wrong side of the threshold.
+Each firing becomes a :class:`Finding` with the indicator, the message, and
+every correction as stated (or shortcut) value -> exact value with the error.
+"""
+from __future__ import annotations
+
+import difflib
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .rulebook import PLACEHOLDER
+from .vocabulary import CARRIER_WORDS, DISPLAY_UNITS, carrier_names
+
+SEVERITY_RANK = {"info": 0, "warning": 1, "error": 2}
+
+
+def display(value, unit: str, digits: int = 4) -> str:
+    """An SI value in a display unit, e.g. display(1e23, 'cm^-3') -> '1e+17 cm^-3'."""
+    if value is None or not np.isfinite(value):
+        return "n/a" if value is None or np.isnan(value) else ("inf" if value > 0 else "-inf")
+    shown = value * DISPLAY_UNITS[unit]
+    if unit == "%":
+        return f"{shown:.{max(digits - 1, 1)}g} %"
+    text = f"{shown:.{digits}g}"
+    return text if unit == "1" else f"{text} {unit}"
+
+
+@dataclass
+class Correction:
+    label: str
+    unit: str
+    stated: float          # SI: the author's number, or what the shortcut gives
+    corrected: float       # SI: the Fermi–Dirac / full-model value
+    error: float           # stated / corrected - 1
+    from_author: bool      # True: the author wrote the number; False: shortcut value
+
+
+@dataclass
+class Finding:
+    rule: str
+    title: str
+    severity: str
+    assumption: str
+    carrier: str | None
+    indicator_label: str
+    indicator_value: float
+    indicator_unit: str
+    relation: str
+    threshold: float
+    threshold_source: str
+    message: str
+    corrections: list
+    file: str
+    line: int
+    waived: str | None = None
+
+    def indicator_text(self) -> str:
+        sign = ">" if self.relation == "above" else "<"
+        return (f"{self.indicator_label} = {display(self.indicator_value, self.indicator_unit)} "
+                f"{sign} {display(self.threshold, self.indicator_unit)}")
+
+
+@dataclass
+class CheckResult:
+    findings: list = field(default_factory=list)     # per calculation index: list[Finding]
+    waiver_notes: list = field(default_factory=list)  # per calculation index: list[str]
+    waiver_errors: list = field(default_factory=list)  # input errors (unknown rule ids)
+
+
+def _declared_mask(calculations, words) -> np.ndarray:
+    return np.array([any(w in c.assumes for w in words) for c in calculations], dtype=bool) \
+        if calculations else np.zeros(0, dtype=bool)
+
+
+def _nonzero(array) -> np.ndarray:
+    array = np.asarray(array, dtype=float)
+    return np.isfinite(array) & (array != 0)
+
+
+def evaluate(rules, calculations, values, skip=()) -> CheckResult:
+    """Run ``rules`` over ``values`` (from :func:`state_values.solve_all`)."""
+    count = len(calculations)
+    result = CheckResult([[] for _ in range(count)], [[] for _ in range(count)], [])
+    valid = np.ones(count, dtype=bool)
+    valid[list(skip)] = False
+    with np.errstate(all="ignore"):
+        for rule in rules:
+            declared = _declared_mask(calculations, rule.declared)
+            for x in rule.carriers:
+                names = carrier_names(x) if x else {}
+                _run_rule(rule, x, names, declared, calculations, values, valid, result)
+    _apply_waivers(rules, calculations, result)
+    return result
+
+
+def _run_rule(rule, x, names, declared, calculations, values, valid, result):
+    count = len(calculations)
+    made = np.zeros(count, dtype=bool)
+    if rule.declared:
+        made |= declared & (_nonzero(values[names["in_use_x"]]) if x else True)
+    for imp in rule.implied_by:
+        stated = values[names.get(imp.stated, imp.stated)]
+        shortcut = np.asarray(imp.shortcut.run[x](values), dtype=float)
+        made |= np.isfinite(stated) & np.isfinite(shortcut) & \
+            (np.abs(stated / shortcut - 1.0) <= imp.within)
+    if not rule.declared and not rule.implied_by:
+        made[:] = True
+    if rule.when is not None:
+        made &= _nonzero(np.broadcast_to(rule.when.run[x](values), (count,)))
+    for name in rule.requires:
+        made &= np.isfinite(values[names.get(name, name)])
+    indicator = np.broadcast_to(np.asarray(rule.indicator.run[x](values), dtype=float), (count,))
+    wrong_side = indicator > rule.threshold if rule.relation == "above" \
+        else indicator < rule.threshold
+    fired = np.flatnonzero(made & valid & np.isfinite(indicator) & wrong_side)
+    if fired.size == 0:
+        return
+    columns = []
+    for corr in rule.corrections:
+        shortcut = np.broadcast_to(np.asarray(corr.shortcut.run[x](values), dtype=float), (count,))
+        exact = np.broadcast_to(np.asarray(corr.exact.run[x](values), dtype=float), (count,))
+        stated = values[names.get(corr.stated, corr.stated)] if corr.stated \
+            else np.full(count, np.nan)
+        columns.append((corr, shortcut, exact, stated))
+    shown = {key: (np.broadcast_to(np.asarray(c.run[x](values), dtype=float), (count,)), unit)
+             for key, (c, unit) in rule.show.items()}
+    words = CARRIER_WORDS.get(x, ("carriers", "dopants", "carrier"))
+    for i in fired:
+        calc = calculations[i]
+        corrections = []
+        line = None
+        for corr, shortcut, exact, stated in columns:
+            author = bool(np.isfinite(stated[i]))
+            value = stated[i] if author else shortcut[i]
+            if not (np.isfinite(value) and np.isfinite(exact[i])) or exact[i] == 0:
+                continue
+            corrections.append(Correction(corr.label, corr.unit, float(value), float(exact[i]),
+                                          float(value / exact[i] - 1.0), author))
+            if author and line is None:
+                line = calc.lines.get(names.get(corr.stated, corr.stated))
+        if line is None:
+            line = next((calc.assumes[w] for w in rule.declared if w in calc.assumes), calc.line)
+        fields = {
+            "value": display(indicator[i], rule.indicator_unit),
+            "threshold": display(rule.threshold, rule.indicator_unit),
+            "carrier": words[0], "dopants": words[1], "kind": words[2],
+            "error": f"{corrections[0].error:+.1%}" if corrections else "n/a",
+        }
+        fields.update({key: display(array[i], unit) for key, (array, unit) in shown.items()})
+        message = PLACEHOLDER.sub(lambda m: fields[m.group(1)], rule.message)
+        result.findings[i].append(Finding(
+            rule=rule.id, title=rule.title, severity=rule.severity, assumption=rule.assumption,
+            carrier=words[0] if x else None, indicator_label=rule.indicator_label,
+            indicator_value=float(indicator[i]), indicator_unit=rule.indicator_unit,
+            relation=rule.relation, threshold=rule.threshold,
+            threshold_source=rule.threshold_source, message=message, corrections=corrections,
+            file=calc.source, line=int(line)))
+
+
+def _apply_waivers(rules, calculations, result):
+    known = [rule.id for rule in rules]
+    for i, calc in enumerate(calculations):
+        for rule_id, (reason, line) in calc.waivers.items():
+            if rule_id not in known:
+                close = difflib.get_close_matches(rule_id, known, n=1)
+                hint = f"did you mean {close[0]}?" if close else "run 'regimecheck rules' for the ids"
+                result.waiver_errors.append(f"{calc.source}:{line}: the waiver names an unknown "
+                                            f"rule {rule_id!r}; {hint}")
+                continue
+            hits = [f for f in result.findings[i] if f.rule == rule_id]
+            for finding in hits:
+                finding.waived = reason
+            if not hits:
+                result.waiver_notes[i].append(
+                    f"{calc.source}:{line}: the waiver of {rule_id} waives nothing here; "
+                    "remove it or check the rule id")

@@ -1,0 +1,121 @@
+"""One check run: read calculation files, solve them all, evaluate every rule.
+
+Data flows one way: files -> Calculation objects -> solved quantities ->
+findings -> :class:`RunResult` (which the reports render).
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from ..inputs.calculation_file import read_calculation_file
+from ..physics.constants import EV
+from . import rulebook, state_values
+from .evaluate import SEVERITY_RANK, evaluate
+
+CALCULATION_SUFFIXES = (".yaml", ".yml")
+
+
+@dataclass
+class CalculationReport:
+    calc: object                 # inputs.calculation_file.Calculation
+    state: dict | None           # trade-unit summary of the solved state
+    findings: list = field(default_factory=list)
+    notes: list = field(default_factory=list)
+    error: str | None = None     # the calculation could not be solved
+
+
+@dataclass
+class RunResult:
+    reports: list
+    input_errors: list
+    rules: tuple
+
+    def active_findings(self):
+        return [f for r in self.reports for f in r.findings if not f.waived]
+
+    def worst(self) -> str | None:
+        ranks = [SEVERITY_RANK[f.severity] for f in self.active_findings()]
+        return None if not ranks else [k for k, v in SEVERITY_RANK.items() if v == max(ranks)][0]
+
+    def counts(self) -> dict:
+        out = {level: 0 for level in SEVERITY_RANK}
+        for finding in self.active_findings():
+            out[finding.severity] += 1
+        out["waived"] = sum(1 for r in self.reports for f in r.findings if f.waived)
+        return out
+
+
+def expand_paths(paths) -> tuple[list[str], list[str]]:
+    """Files named directly, plus every calculation file under named directories."""
+    files, errors = [], []
+    for text in paths:
+        path = Path(text)
+        if path.is_dir():
+            found = sorted(p for p in path.rglob("*") if p.suffix in CALCULATION_SUFFIXES
+                           and p.is_file())
+            if not found:
+                errors.append(f"{text}: the directory holds no .yaml calculation file")
+            files.extend(str(p) for p in found)
+        elif path.exists():
+            files.append(str(path))
+        else:
+            errors.append(f"{text}: no such file or directory")
+    return files, errors
+
+
+def summarize(values: dict, i: int) -> dict:
+    """Trade-unit numbers of calculation ``i`` (stable keys of the JSON report)."""
+    pick = lambda name: float(values[name][i])
+    kT = pick("kT")
+    return {
+        "regime": str(values["regime"][i]),
+        "temperature_K": pick("T"),
+        "EF_minus_EC_eV": pick("eta_n") * kT / EV,
+        "EF_minus_EV_eV": -pick("eta_p") * kT / EV,
+        "eta_n": pick("eta_n"),
+        "eta_p": pick("eta_p"),
+        "n_cm3": pick("dens_n") * 1e-6,
+        "p_cm3": pick("dens_p") * 1e-6,
+        "donors_ionized_fraction": pick("f_n"),
+        "acceptors_ionized_fraction": pick("f_p"),
+        "ni_cm3": pick("ni") * 1e-6,
+        "band_gap_eV": pick("Eg") / EV,
+        "above_mott_density": bool(pick("metal_n") > 0 or pick("metal_p") > 0),
+    }
+
+
+def check_calculations(calculations, rules=None, input_errors=()) -> RunResult:
+    """Solve and check already-read calculations."""
+    rules = rulebook.load_rules() if rules is None else rules
+    values, solve_errors = state_values.solve_all(calculations)
+    result = evaluate(rules, calculations, values, skip=solve_errors.keys())
+    reports = []
+    for i, calc in enumerate(calculations):
+        if i in solve_errors:
+            reports.append(CalculationReport(calc, None, error=f"{calc.source}:{calc.line}: "
+                                                               f"{solve_errors[i]}"))
+            continue
+        findings = sorted(result.findings[i], key=lambda f: (-SEVERITY_RANK[f.severity], f.rule))
+        reports.append(CalculationReport(calc, summarize(values, i), findings,
+                                         result.waiver_notes[i]))
+    errors = list(input_errors) + result.waiver_errors
+    errors += [r.error for r in reports if r.error]
+    return RunResult(reports, errors, tuple(rules))
+
+
+def check_paths(paths, rules=None) -> RunResult:
+    """Read every calculation under ``paths`` and check them all in one pass."""
+    files, errors = expand_paths(paths)
+    calculations = []
+    for path in files:
+        read = read_calculation_file(path)
+        calculations.extend(read.calculations)
+        errors.extend(read.errors)
+    return check_calculations(calculations, rules, errors)
+
+
+def finite(value):
+    return value if value is None or np.isfinite(value) else None

@@ -1,0 +1,146 @@
+"""Solve every calculation and lay out the named quantities rules read.
+
+Calculations that share a material, dopant species, dimensionality and
+options are solved together in one vectorized call; the results are placed in
+one array per quantity name (see :mod:`checker.engine.vocabulary`), indexed by
+calculation.  A group that fails (e.g. a custom material lacking a parameter)
+is retried one calculation at a time so that only the bad ones are lost.
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import RegimecheckError
+from ..physics import carriers, equilibrium
+from ..physics.constants import ELEMENTARY_CHARGE
+from .vocabulary import CONSTANTS, concrete_names
+
+_STATED_COMMON = ("stated_kT_q", "stated_ni", "stated_Rsh", "stated_R", "stated_lambda")
+_STATED_CARRIER = ("stated_dens", "stated_mu", "stated_D", "stated_v")
+
+
+def _dominant(species: dict):
+    return max(species, key=species.get, default=None)
+
+
+def _group_key(calc):
+    return (id(calc.material), tuple(sorted(calc.donors)), tuple(sorted(calc.acceptors)),
+            _dominant(calc.donors), _dominant(calc.acceptors), calc.band_gap_narrowing,
+            int(calc.structure.get("dim", 3)))
+
+
+def solve_all(calculations) -> tuple[dict, dict]:
+    """Return (values, errors): values maps every quantity name to an array over
+    the calculations (NaN where unknown); errors maps a calculation index to
+    the message of a solve that could not be done."""
+    count = len(calculations)
+    values = {name: np.full(count, np.nan) for name in concrete_names()}
+    values.update({name: np.full(count, value) for name, value in CONSTANTS.items()})
+    values["regime"] = np.full(count, "", dtype=object)
+    errors = {}
+    groups = {}
+    for index, calc in enumerate(calculations):
+        groups.setdefault(_group_key(calc), []).append(index)
+    for members in groups.values():
+        try:
+            _solve_group(calculations, members, values)
+        except RegimecheckError:
+            for index in members:
+                try:
+                    _solve_group(calculations, [index], values)
+                except RegimecheckError as exc:
+                    errors[index] = str(exc)
+    _fill_inputs(calculations, values)
+    return values, errors
+
+
+def _solve_group(calculations, members, values):
+    calcs = [calculations[i] for i in members]
+    first = calcs[0]
+    material, dim = first.material, int(first.structure.get("dim", 3))
+    T = np.array([c.temperature for c in calcs])
+    donors = {s: np.array([c.donors[s] for c in calcs]) for s in first.donors}
+    acceptors = {s: np.array([c.acceptors[s] for c in calcs]) for s in first.acceptors}
+    state = equilibrium.solve(material, T, donors, acceptors,
+                              band_gap_narrowing=first.band_gap_narrowing)
+    flow = carriers.carrier_transport(state, dim)
+    (T_lo, T_hi), (N_lo, N_hi), _ = carriers.model_ranges(
+        material, _dominant(first.donors), _dominant(first.acceptors))
+    net = np.abs(state.donors_total - state.acceptors_total)
+    narrowing = material.narrowing(state.donors_total, state.acceptors_total) \
+        if material.narrowing else np.full_like(T, np.nan)
+    put = {
+        "T": T, "kT": state.kT, "kT_q": flow["kT_over_q"], "Eg": state.Eg, "ni": state.ni,
+        "Nnet": net, "Ntot": state.donors_total + state.acceptors_total,
+        "T_onset": carriers.intrinsic_onset_temperature(material, net),
+        "dEg_bgn": narrowing, "bgn_on": np.full_like(T, float(first.band_gap_narrowing)),
+        "T_lo": np.full_like(T, T_lo), "T_hi": np.full_like(T, T_hi),
+        "N_lo": np.full_like(T, N_lo), "N_hi": np.full_like(T, N_hi),
+        "dim": np.full_like(T, float(dim)), "regime": carriers.regime_label(state),
+    }
+    for x, eta, dens, nband, own, other, ionized, fraction, species in (
+            ("n", state.eta_n, state.n, state.Nc, state.donors_total, state.acceptors_total,
+             state.donors_ionized_total, state.donor_fraction, first.donors),
+            ("p", state.eta_p, state.p, state.Nv, state.acceptors_total, state.donors_total,
+             state.acceptors_ionized_total, state.acceptor_fraction, first.acceptors)):
+        mott = min((material.dopant(s).mott_density for s in species), default=np.inf)
+        put.update({
+            f"eta_{x}": eta, f"dens_{x}": dens, f"Nband_{x}": nband, f"N_{x}": own,
+            f"Ncomp_{x}": other, f"Nion_{x}": ionized, f"f_{x}": fraction,
+            f"mott_{x}": np.full_like(T, mott), f"metal_{x}": (own >= mott).astype(float),
+            f"mu_{x}": flow[f"mu_{x}"], f"mu0_{x}": flow[f"mu0_{x}"],
+            f"vsat_{x}": flow[f"vsat_{x}"], f"beta_{x}": flow[f"beta_{x}"],
+            f"vth_{x}": flow[f"v_{x}"], f"lambda_{x}": flow[f"mfp_{x}"],
+        })
+    put["maj_n"] = (state.n >= state.p).astype(float)
+    put["maj_p"] = 1.0 - put["maj_n"]
+    for name, array in put.items():
+        values[name][members] = np.broadcast_to(array, T.shape)
+
+
+def _fill_inputs(calculations, values):
+    """Structure and stated numbers, and what depends on them (vectorized after the fill)."""
+    def column(getter):
+        return np.array([getter(c) for c in calculations], dtype=float) if calculations \
+            else np.zeros(0)
+
+    def stated(name):
+        return column(lambda c: c.stated.get(name, np.nan))
+
+    for name in ("L", "thickness"):
+        values[name] = column(lambda c, name=name: c.structure.get(name, np.nan))
+    area = column(lambda c: c.structure.get("A", np.nan))
+    values["A"] = np.where(np.isfinite(area), area, column(
+        lambda c: c.structure.get("thickness", np.nan) * c.structure.get("width", np.nan)))
+    field = column(lambda c: c.structure.get("field", np.nan))
+    values["field"] = np.where(np.isfinite(field), field, column(
+        lambda c: c.structure.get("voltage", np.nan)) / values["L"])
+    for name in _STATED_COMMON:
+        values[name] = stated(name)
+    sigma, rho = stated("stated_sigma"), stated("stated_rho")
+    values["stated_sigma"] = np.where(np.isfinite(sigma), sigma, 1.0 / rho)
+    values["stated_rho"] = np.where(np.isfinite(rho), rho, 1.0 / sigma)
+    for x in ("n", "p"):
+        for stem in _STATED_CARRIER:
+            values[f"{stem}_{x}"] = stated(f"{stem}_{x}")
+    ec, ev = stated("stated_ef_minus_ec"), stated("stated_ef_minus_ev")
+    kT, Eg = values["kT"], values["Eg"]
+    values["stated_eta_n"] = np.where(np.isfinite(ec), ec, ev - Eg) / kT
+    values["stated_eta_p"] = -np.where(np.isfinite(ev), ev, ec + Eg) / kT
+    specific = {}
+    for x in ("n", "p"):
+        values[f"stated_ef_{x}"] = values[f"stated_eta_{x}"] * kT
+        specific[x] = np.zeros(len(calculations), dtype=bool)
+        for stem in _STATED_CARRIER:
+            specific[x] |= np.isfinite(values[f"{stem}_{x}"])
+    none = ~(specific["n"] | specific["p"])
+    for x in ("n", "p"):
+        values[f"in_use_{x}"] = (specific[x] | (none & (values[f"maj_{x}"] > 0))).astype(float)
+        used = np.where(np.isfinite(values[f"stated_mu_{x}"]), values[f"stated_mu_{x}"],
+                        values[f"mu_{x}"])
+        # the mean free path scales with the mobility the author uses
+        values[f"lambda_{x}"] = values[f"lambda_{x}"] * used / values[f"mu_{x}"]
+        values[f"used_mu_{x}"] = used
+    values["sigma"] = ELEMENTARY_CHARGE * (values["dens_n"] * values["used_mu_n"]
+                                           + values["dens_p"] * values["used_mu_p"])
+    values["rho"] = 1.0 / values["sigma"]

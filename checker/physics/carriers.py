@@ -1,0 +1,144 @@
+"""Quantities derived from a solved equilibrium: mobilities, diffusion
+coefficients, conductivity, mean free paths, the regime label, the
+temperature where intrinsic conduction sets in, and the fitted ranges of the
+models used.  Vectorized; SI units.
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from . import transport
+from .constants import BOLTZMANN, ELEMENTARY_CHARGE
+from .equilibrium import State
+from .materials import Material
+
+
+def _dominant(species: dict):
+    return max(species, key=lambda k: float(np.max(species[k])), default=None)
+
+
+def carrier_transport(state: State, dimension=3, mobility_model=None) -> dict:
+    """Mobilities, diffusion coefficients, conductivity and mean free paths at a State.
+
+    Mobility comes from the material's model at the total dopant density
+    N_D + N_A, the variable the published fits (Masetti, Arora,
+    Caughey–Thomas tables) were made against; the dominant donor species
+    selects the electron parameter set where the material has one per dopant.
+    ``mu0_*`` is the same model at N = 0 (the lattice-limited mobility);
+    ``vsat_*`` and ``beta_*`` the saturation velocity and Caughey–Thomas
+    exponent (NaN where the material has none).  D uses the generalized
+    Einstein relation, lambda = 2D/<v_x^+> with Fermi–Dirac statistics.
+    Returns a dict of SI arrays.
+
+    References
+    ----------
+    Masetti et al., IEEE TED 30, 764 (1983); Arora et al., IEEE TED 29, 292
+    (1982); Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 6.
+    """
+    material = state.material
+    impurities = state.donors_total + state.acceptors_total
+    result = {"kT_over_q": BOLTZMANN * state.T / ELEMENTARY_CHARGE}
+    for x, band, eta, dens, species in (("n", "electron", state.eta_n, state.n, state.donors),
+                                        ("p", "hole", state.eta_p, state.p, state.acceptors)):
+        model = material.need(band, "mobility (conductivity, Einstein relation)")
+        mu = model.low_field(impurities, state.T, mobility_model, _dominant(species))
+        d = transport.diffusion_coefficient(mu, state.T, eta, dimension)
+        result[f"mu_{x}"] = mu
+        result[f"mu0_{x}"] = model.low_field(np.zeros_like(impurities), state.T, mobility_model,
+                                            _dominant(species))
+        result[f"D_{x}"] = d
+        result[f"vsat_{x}"] = model.vsat(state.T) if model.vsat else np.full_like(mu, np.nan)
+        result[f"beta_{x}"] = model.beta(state.T) if model.beta else np.full_like(mu, np.nan)
+        if model.thermal_mass:
+            v = transport.unidirectional_thermal_velocity(state.T, model.thermal_mass, eta,
+                                                          dimension)
+            result[f"v_{x}"] = v
+            result[f"mfp_{x}"] = transport.backscattering_mean_free_path(d, v)
+        else:
+            result[f"v_{x}"] = result[f"mfp_{x}"] = np.full_like(mu, np.nan)
+    result["sigma"] = transport.conductivity(state.n, state.p, result["mu_n"], result["mu_p"])
+    result["rho"] = 1.0 / result["sigma"]
+    return result
+
+
+def regime_label(state: State, degenerate_eta=-3.0):
+    """A short regime name per point: metallic, degenerate, intrinsic,
+    incomplete ionization, extrinsic (checked in that order of precedence).
+
+    Thresholds: eta > -3 counts as degenerate (the 3kT rule, common practice
+    (no source)); intrinsic where n_i exceeds the net doping; incomplete
+    ionization (freeze-out at low T, deep levels at any T) where under 90 % of
+    the majority dopant is ionized (common practice (no source)).
+    """
+    net = np.abs(state.donors_total - state.acceptors_total)
+    majority_fraction = np.where(state.donors_total >= state.acceptors_total,
+                                 state.donor_fraction, state.acceptor_fraction)
+    labels = np.full(np.shape(state.T), "extrinsic", dtype=object)
+    labels[majority_fraction < 0.9] = "incomplete ionization"
+    labels[state.ni > net] = "intrinsic"
+    labels[(state.eta_n > degenerate_eta) | (state.eta_p > degenerate_eta)] = "degenerate"
+    labels[state.metallic] = "metallic"
+    return labels
+
+
+def intrinsic_onset_temperature(material: Material, net_density, fraction=0.1,
+                                T_max=3000.0):
+    """Lowest temperature where n_i(T) reaches ``fraction`` of the net doping (K).
+
+    Formula: n_i(T) = sqrt(N_c N_v) exp(-E_g(T)/2kT) (Boltzmann; n_i << N_c
+    wherever the onset lies), solved for n_i(T) = fraction * |N_D - N_A| by
+    bisection in ln T on [1 K, T_max] (60 halvings: relative error < 1e-15).
+    Units: densities m^-3.  Returns inf where the onset lies above T_max and
+    NaN where the net doping is zero (intrinsic at every temperature).
+    Validity: the material's gap and density-of-states fits.
+
+    References
+    ----------
+    S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007),
+    ch. 1 (n_i and the intrinsic temperature).
+    """
+    target = np.log(fraction * np.asarray(net_density, dtype=float))
+    lo = np.zeros_like(target)
+    hi = np.full_like(target, np.log(T_max))
+
+    def ln_ni(ln_T):
+        T = np.exp(ln_T)
+        return 0.5 * np.log(material.Nc(T) * material.Nv(T)) \
+            - 0.5 * material.band_gap(T) / (BOLTZMANN * T)
+
+    for _ in range(60):
+        mid = 0.5 * (lo + hi)
+        below = ln_ni(mid) < target
+        lo = np.where(below, mid, lo)
+        hi = np.where(below, hi, mid)
+    onset = np.exp(hi)
+    onset = np.where(ln_ni(np.full_like(target, np.log(T_max))) < target, np.inf, onset)
+    return np.where(np.isfinite(target), onset, np.nan)
+
+
+def model_ranges(material: Material, donor_species, acceptor_species, mobility_model=None):
+    """Fitted temperature and doping ranges of the models a check relies on.
+
+    Returns ((T_low, T_high), (N_low, N_high), names): the intersection over
+    the band gap, the density of states and the electron and hole mobility
+    models selected for the given dominant species (SI units), and the names
+    of the models whose range is the binding one.
+    """
+    parts = []
+    if material.band_gap:
+        parts.append(("band gap", material.band_gap.provenance, False))
+    if material.Nc:
+        parts.append(("density of states", material.Nc.provenance, False))
+    for band, species in (("electron", donor_species), ("hole", acceptor_species)):
+        model = getattr(material, band)
+        if model is None:
+            continue
+        name = mobility_model or model.dopant_models.get(species or "", model.default_model)
+        fit = model.mobility.get(name)
+        if fit is not None:
+            parts.append((f"{band} mobility ({name})", fit.provenance, True))
+    T_low = max((p.valid_T[0] for _, p, _ in parts), default=0.0)
+    T_high = min((p.valid_T[1] for _, p, _ in parts), default=np.inf)
+    N_low = max((p.valid_N[0] for _, p, doping in parts if doping), default=0.0)
+    N_high = min((p.valid_N[1] for _, p, doping in parts if doping), default=np.inf)
+    return (T_low, T_high), (N_low, N_high), [name for name, _, _ in parts]

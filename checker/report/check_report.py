@@ -1,0 +1,151 @@
+"""Render a check run: console (rich) and JSON.
+
+JSON keys are stable and documented in the README ("JSON report").  Numbers in
+the JSON are in the unit named beside them (trade units, not SI).
+"""
+from __future__ import annotations
+
+import json
+
+from ..engine.evaluate import display
+from ..engine.vocabulary import DISPLAY_UNITS
+from . import DISCLAIMER
+
+JSON_FORMAT = "regimecheck-report/1"
+STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
+
+
+def doping_text(donors: dict, acceptors: dict) -> str:
+    parts = [f"{k} {v * 1e-6:.3g} cm^-3 (donor)" for k, v in donors.items()]
+    parts += [f"{k} {v * 1e-6:.3g} cm^-3 (acceptor)" for k, v in acceptors.items()]
+    return ", ".join(parts) or "undoped"
+
+
+STATE_ROWS = [
+    ("regime", "regime", "{}"),
+    ("EF_minus_EC_eV", "E_F - E_C", "{:+.4f} eV"),
+    ("eta_n", "η_n = (E_F - E_C)/kT", "{:+.3f}"),
+    ("eta_p", "η_p = (E_V - E_F)/kT", "{:+.3f}"),
+    ("n_cm3", "n", "{:.4g} cm^-3"),
+    ("p_cm3", "p", "{:.4g} cm^-3"),
+    ("donors_ionized_fraction", "donors ionized", "{:.1%}"),
+    ("acceptors_ionized_fraction", "acceptors ionized", "{:.1%}"),
+    ("ni_cm3", "n_i", "{:.4g} cm^-3"),
+]
+
+
+def summary_line(result, exit_code=None) -> str:
+    counts = result.counts()
+    files = len({r.calc.source for r in result.reports})
+    parts = [f"{counts[level]} {level}{'s' if counts[level] != 1 and level != 'info' else ''}"
+             for level in ("error", "warning", "info")]
+    text = (f"{len(result.reports)} calculation(s) in {files} file(s) checked: "
+            f"{', '.join(parts)}, {counts['waived']} waived; "
+            f"{len(result.input_errors)} input error(s).")
+    return text
+
+
+def _where(file, line) -> str:
+    return f"{file}:{line}" if line else file
+
+
+def render_console(result, console) -> None:
+    from rich.padding import Padding
+    from rich.table import Table
+    from rich.text import Text
+
+    def indented(text, style=""):
+        console.print(Padding(Text(text, style=style), (0, 0, 0, 8), expand=False))
+
+    for report in result.reports:
+        calc = report.calc
+        console.rule(Text(calc.name, style="bold"), align="left")
+        console.print(f"{_where(calc.source, calc.line)} · {calc.material.name} · "
+                      f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}",
+                      highlight=False)
+        if report.error:
+            console.print(Text(f"not checked: {report.error}", style="bold red"))
+            continue
+        table = Table(show_header=False, box=None, padding=(0, 2))
+        table.add_column("quantity", style="dim")
+        table.add_column("value", justify="right")
+        for key, label, fmt in STATE_ROWS:
+            table.add_row(label, fmt.format(report.state[key]))
+        console.print(table)
+        if not report.findings:
+            console.print(Text("no assumption leaves its regime", style="green"))
+        for f in report.findings:
+            tag = "waived" if f.waived else f.severity
+            head = Text()
+            head.append(f"{tag.upper():8s}", style="dim" if f.waived else STYLE[f.severity])
+            head.append(f"{f.rule}  {f.title}", style="bold")
+            head.append(f"  at {_where(f.file, f.line)}", style="dim")
+            console.print(head)
+            indented(f.message)
+            indented(f"regime indicator: {f.indicator_text()}", "dim")
+            for c in f.corrections:
+                origin = "stated" if c.from_author else "shortcut"
+                indented(f"{c.label}: {display(c.stated, c.unit)} ({origin}) → "
+                         f"{display(c.corrected, c.unit)}  [{c.error:+.1%}]")
+            if f.waived:
+                indented(f"waived: {f.waived}", "dim")
+        for note in report.notes:
+            console.print(Text(f"note: {note}", style="yellow"))
+    for message in result.input_errors:
+        console.print(Text(f"input error: {message}", style="bold red"))
+    console.print()
+    console.print(summary_line(result), highlight=False)
+    console.print(DISCLAIMER, highlight=False)
+
+
+def _number(value):
+    return float(value) if value == value and abs(value) != float("inf") else None
+
+
+def finding_json(f) -> dict:
+    factor = DISPLAY_UNITS[f.indicator_unit]
+    return {
+        "rule": f.rule, "title": f.title, "severity": f.severity,
+        "assumption": f.assumption, "carrier": f.carrier,
+        "indicator": {"label": f.indicator_label, "value": _number(f.indicator_value * factor),
+                      "threshold": _number(f.threshold * factor), "relation": f.relation,
+                      "unit": f.indicator_unit, "source": f.threshold_source},
+        "message": f.message,
+        "where": {"file": f.file, "line": f.line},
+        "corrections": [{
+            "quantity": c.label, "unit": c.unit,
+            "stated": _number(c.stated * DISPLAY_UNITS[c.unit]),
+            "corrected": _number(c.corrected * DISPLAY_UNITS[c.unit]),
+            "relative_error": _number(c.error),
+            "stated_by": "author" if c.from_author else "shortcut",
+        } for c in f.corrections],
+        "waived": f.waived,
+    }
+
+
+def render_json(result, exit_code: int) -> str:
+    calculations = []
+    for report in result.reports:
+        calc = report.calc
+        calculations.append({
+            "source": {"file": calc.source, "line": calc.line},
+            "name": calc.name,
+            "material": calc.material.name,
+            "temperature_K": calc.temperature,
+            "doping_cm3": {"donors": {k: v * 1e-6 for k, v in calc.donors.items()},
+                           "acceptors": {k: v * 1e-6 for k, v in calc.acceptors.items()}},
+            "state": report.state,
+            "findings": [finding_json(f) for f in report.findings],
+            "notes": report.notes,
+            "error": report.error,
+        })
+    counts = result.counts()
+    return json.dumps({
+        "format": JSON_FORMAT,
+        "notice": DISCLAIMER,
+        "calculations": calculations,
+        "input_errors": result.input_errors,
+        "summary": {"calculations": len(result.reports), "findings": counts,
+                    "input_errors": len(result.input_errors), "worst": result.worst(),
+                    "exit_code": exit_code},
+    }, indent=2, ensure_ascii=False)
