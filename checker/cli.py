@@ -83,7 +83,8 @@ def _solve_point(material, T, donors, acceptors, narrowing):
 def _console():
     from rich.console import Console
 
-    return Console(highlight=False)
+    # a pipe or file gets no colour (rich's default) and a width that keeps lines whole
+    return Console(highlight=False, width=None if sys.stdout.isatty() else 110)
 
 
 def _exit_code(result, args) -> int:

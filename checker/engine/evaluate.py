@@ -33,6 +33,22 @@ def display(value, unit: str, digits: int = 4) -> str:
     return text if unit == "1" else f"{text} {unit}"
 
 
+def error_text(stated: float, corrected: float, unit: str) -> str:
+    """How far a stated value is from the corrected one, in words a reviewer reads fast.
+
+    Energies (a Fermi level near a band edge can be near zero) as a difference;
+    large ratios as a factor; everything else as a signed percentage.
+    """
+    if unit == "eV":
+        return f"{(stated - corrected) * DISPLAY_UNITS['eV'] * 1e3:+.1f} meV"
+    ratio = stated / corrected
+    if ratio >= 10:
+        return f"{ratio:.3g}× too high"
+    if 0 < ratio <= 0.1:
+        return f"{1 / ratio:.3g}× too low"
+    return f"{ratio - 1:+.1%}"
+
+
 @dataclass
 class Correction:
     label: str
@@ -41,6 +57,9 @@ class Correction:
     corrected: float       # SI: the Fermi–Dirac / full-model value
     error: float           # stated / corrected - 1
     from_author: bool      # True: the author wrote the number; False: shortcut value
+
+    def error_text(self) -> str:
+        return error_text(self.stated, self.corrected, self.unit)
 
 
 @dataclass
@@ -152,7 +171,7 @@ def _run_rule(rule, x, names, declared, calculations, values, valid, result):
             "value": display(indicator[i], rule.indicator_unit),
             "threshold": display(rule.threshold, rule.indicator_unit),
             "carrier": words[0], "dopants": words[1], "kind": words[2],
-            "error": f"{corrections[0].error:+.1%}" if corrections else "n/a",
+            "error": corrections[0].error_text() if corrections else "n/a",
         }
         fields.update({key: display(array[i], unit) for key, (array, unit) in shown.items()})
         message = PLACEHOLDER.sub(lambda m: fields[m.group(1)], rule.message)

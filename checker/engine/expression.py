@@ -58,6 +58,10 @@ def _present(x):
     return np.isfinite(np.asarray(x, dtype=float)).astype(float)
 
 
+def _less(a, b):
+    return (np.asarray(a, dtype=float) < np.asarray(b, dtype=float)).astype(float)
+
+
 # name -> (number of arguments, numpy function, sympy builder name, meaning)
 FUNCTIONS = {
     "exp": (1, np.exp, "exp", "e^x"),
@@ -69,6 +73,7 @@ FUNCTIONS = {
     "F": (2, _fermi, "F", "Fermi–Dirac integral F_j(eta), normalized (F_j -> e^eta for eta << 0)"),
     "stated_or": (2, _stated_or, "stated_or", "the stated value where one is given, else the second"),
     "present": (1, _present, "present", "1 where a value is given, else 0"),
+    "less": (2, _less, "less", "1 where the first value is below the second, else 0"),
 }
 
 _BINARY = {ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/", ast.Pow: "**"}

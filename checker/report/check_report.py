@@ -86,7 +86,7 @@ def render_console(result, console) -> None:
             for c in f.corrections:
                 origin = "stated" if c.from_author else "shortcut"
                 indented(f"{c.label}: {display(c.stated, c.unit)} ({origin}) → "
-                         f"{display(c.corrected, c.unit)}  [{c.error:+.1%}]")
+                         f"{display(c.corrected, c.unit)}  [{c.error_text()}]")
             if f.waived:
                 indented(f"waived: {f.waived}", "dim")
         for note in report.notes:
