@@ -1,0 +1,416 @@
+"""Every rule: fires on the wrong side of its threshold, stays quiet on the right
+side and where its assumption is not made, and its corrected values match an
+independent computation (mpmath, written out here from the published formula)
+or a published value (named beside the check)."""
+import math
+
+import mpmath as mp
+import numpy as np
+import pytest
+import scipy.constants as sc
+
+from checker import load_material
+from checker.engine.run import check_calculations
+from checker.inputs.calculation_file import read_calculation_file
+from reference import mp_fermi_half, reference_solve
+
+K_B, Q = sc.k, sc.e
+CM3 = 1e6
+
+
+def check(tmp_path, text):
+    path = tmp_path / "calc.yaml"
+    path.write_text(text, encoding="utf-8")
+    read = read_calculation_file(path)
+    assert not read.errors, read.errors
+    result = check_calculations(read.calculations)
+    assert not result.input_errors, result.input_errors
+    return result.reports[0]
+
+
+def calc(material, T, donors="", acceptors="", extra=""):
+    return (f"material: {material}\ntemperature: {T}\ndoping:\n  donors: {{{donors}}}\n"
+            f"  acceptors: {{{acceptors}}}\n{extra}")
+
+
+def one(report, rule, carrier=None):
+    hits = [f for f in report.findings if f.rule == rule
+            and (carrier is None or f.carrier == carrier)]
+    assert len(hits) == 1, [f.rule for f in report.findings]
+    return hits[0]
+
+
+def quiet(report, rule):
+    return all(f.rule != rule for f in report.findings)
+
+
+def correction(finding, label_start):
+    return next(c for c in finding.corrections if c.label.startswith(label_start))
+
+
+def fd(j, eta):
+    return float(-mp.re(mp.polylog(mp.mpf(j) + 1, -mp.exp(mp.mpf(eta)))))
+
+
+def eta_of(material, T, donors, acceptors=None):
+    return reference_solve(load_material(material), T, {k: v * CM3 for k, v in donors.items()},
+                           {k: v * CM3 for k, v in (acceptors or {}).items()})
+
+
+# --- STAT01: non-degenerate statistics --------------------------------------------------------
+
+def test_stat01_fires_in_degenerate_silicon_with_exact_density(tmp_path):
+    report = check(tmp_path, calc("Si", "300 K", "P: 1e19 cm-3", extra="assumes: [non-degenerate]"))
+    finding = one(report, "STAT01", "electrons")
+    eta = eta_of("Si", 300.0, {"P": 1e19})
+    assert finding.indicator_value == pytest.approx(eta, rel=1e-8)
+    Nc = float(load_material("Si").Nc(300.0))
+    dens = correction(finding, "carrier density")
+    assert dens.corrected == pytest.approx(Nc * float(mp_fermi_half(eta)), rel=1e-8)
+    assert dens.stated == pytest.approx(Nc * math.exp(eta), rel=1e-8)
+
+
+def test_stat01_quiet_when_nondegenerate_or_not_assumed(tmp_path):
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e17 cm-3",
+                                      extra="assumes: [non-degenerate]")), "STAT01")
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e19 cm-3")), "STAT01")
+
+
+def test_stat01_implied_by_a_boltzmann_fermi_level(tmp_path):
+    Nc = float(load_material("GaAs").Nc(300.0)) / CM3
+    ef = K_B * 300.0 / Q * math.log(2e17 / Nc)          # kT ln(n/N_c), what a memo writes
+    report = check(tmp_path, calc("GaAs", "300 K", "Si: 2e17 cm-3",
+                                  extra=f"stated:\n  ef_minus_ec: {ef:.6f} eV\n"))
+    finding = one(report, "STAT01", "electrons")
+    eta = eta_of("GaAs", 300.0, {"Si": 2e17})
+    level = correction(finding, "Fermi level")
+    assert level.stated == pytest.approx(ef * Q, rel=1e-5)
+    assert level.corrected == pytest.approx(eta * K_B * 300.0, rel=1e-8)
+
+
+# --- STAT02: Einstein relation ----------------------------------------------------------------
+
+def test_stat02_corrected_diffusion_matches_generalized_einstein(tmp_path):
+    mu, kTq = 4500.0, K_B * 300.0 / Q
+    report = check(tmp_path, calc("InGaAs", "300 K", "Si: 1e18 cm-3", extra=(
+        f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
+        f"  electron_diffusivity: {mu * kTq:.6g} cm^2/s\n")))
+    finding = one(report, "STAT02", "electrons")
+    eta = eta_of("InGaAs", 300.0, {"Si": 1e18})
+    ratio = fd(0.5, eta) / fd(-0.5, eta)
+    assert finding.indicator_value == pytest.approx(ratio, rel=1e-8)
+    assert correction(finding, "diffusion").corrected == pytest.approx(mu * 1e-4 * kTq * ratio,
+                                                                       rel=1e-8)
+
+
+def test_stat02_quiet_for_the_exact_value_and_in_light_doping(tmp_path):
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
+                                      extra="assumes: [einstein-relation]")), "STAT02")
+    # an author who states the generalized value is not using the shortcut
+    mu, kTq = 4500.0, K_B * 300.0 / Q
+    eta = eta_of("InGaAs", 300.0, {"Si": 1e18})
+    exact = mu * kTq * fd(0.5, eta) / fd(-0.5, eta)
+    assert quiet(check(tmp_path, calc("InGaAs", "300 K", "Si: 1e18 cm-3", extra=(
+        f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
+        f"  electron_diffusivity: {exact:.6g} cm^2/s\n"))), "STAT02")
+
+
+def test_stat02_indicator_is_the_published_2d_ratio():
+    """(D/mu)/(kT/q) in 2D at eta = 0 is 2 ln 2 = 1.38629436112 (references.md §2b, computed);
+    3D at eta = -1.902 is 1.05 (the 5 % point, references.md §2)."""
+    from checker.engine.rulebook import load_rules
+
+    rule = next(r for r in load_rules() if r.id == "STAT02")
+    values = {"eta_n": np.array([0.0, -1.902]), "dim": np.array([2.0, 3.0])}
+    got = rule.indicator.run["n"](values)
+    assert got[0] == pytest.approx(1.38629436112, rel=1e-10)
+    assert got[1] == pytest.approx(1.05, abs=2e-4)
+
+
+# --- CARR01: single carrier -------------------------------------------------------------------
+
+def test_carr01_two_carrier_conductivity_in_warm_germanium(tmp_path):
+    T, mun, mup = 348.15, 3000.0, 1500.0
+    report = check(tmp_path, calc("Ge", "75 degC", "Sb: 3e14 cm-3", extra=(
+        f"stated:\n  electron_mobility: {mun} cm^2/(V*s)\n  hole_mobility: {mup} cm^2/(V*s)\n"
+        "assumes: [single-carrier]\n")))
+    finding = one(report, "CARR01", "electrons")
+    ge = load_material("Ge")
+    eta = eta_of("Ge", T, {"Sb": 3e14})
+    n = float(ge.Nc(T)) * float(mp_fermi_half(eta))
+    p = float(ge.Nv(T)) * float(mp_fermi_half(-eta - float(ge.band_gap(T)) / (K_B * T)))
+    assert finding.indicator_value == pytest.approx(p / n, rel=1e-7)
+    sigma = Q * (n * mun + p * mup) * 1e-4
+    assert correction(finding, "conductivity").corrected == pytest.approx(sigma, rel=1e-7)
+
+
+def test_carr01_quiet_in_extrinsic_silicon(tmp_path):
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
+                                      extra="assumes: [single-carrier]")), "CARR01")
+
+
+# --- CARR02: intrinsic onset ------------------------------------------------------------------
+
+def test_carr02_fires_with_onset_temperature_and_exact_density(tmp_path):
+    report = check(tmp_path, calc("Ge", "75 degC", "Sb: 3e14 cm-3", extra="assumes: [extrinsic]"))
+    finding = one(report, "CARR02", "electrons")
+    ge, T = load_material("Ge"), 348.15
+    ni = math.sqrt(float(ge.Nc(T) * ge.Nv(T))) * math.exp(-float(ge.band_gap(T)) / (2 * K_B * T))
+    assert finding.indicator_value == pytest.approx(ni / 3e20, rel=1e-9)
+    eta = eta_of("Ge", T, {"Sb": 3e14})
+    assert correction(finding, "majority").corrected == pytest.approx(
+        float(ge.Nc(T)) * float(mp_fermi_half(eta)), rel=1e-8)
+
+
+def test_intrinsic_onset_temperature_against_mpmath():
+    from checker.physics.carriers import intrinsic_onset_temperature
+
+    si = load_material("Si")
+    for N in (1e14, 1e15, 1e16):
+        got = float(intrinsic_onset_temperature(si, N * CM3, 0.1))
+
+        def gap(T):
+            T = float(T)
+            return math.log(math.sqrt(float(si.Nc(T) * si.Nv(T)))) \
+                - float(si.band_gap(T)) / (2 * K_B * T) - math.log(0.1 * N * CM3)
+        want = mp.findroot(gap, (200, 1400), solver="bisect")
+        assert got == pytest.approx(float(want), rel=1e-9)
+
+
+def test_carr02_quiet_at_room_temperature(tmp_path):
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
+                                      extra="assumes: [extrinsic]")), "CARR02")
+
+
+# --- ION01: full ionization -------------------------------------------------------------------
+
+def test_ion01_deep_magnesium_in_gan(tmp_path):
+    report = check(tmp_path, calc("GaN", "300 K", "Si: 1e17 cm-3", "Mg: 2e19 cm-3",
+                                  extra="assumes: [full-ionization]"))
+    finding = one(report, "ION01", "holes")
+    gan, T = load_material("GaN"), 300.0
+    eta = eta_of("GaN", T, {"Si": 1e17}, {"Mg": 2e19})
+    eta_p = -eta - float(gan.band_gap(T)) / (K_B * T)
+    mg = gan.dopant("Mg")
+    ionized = 2e25 / (1 + mg.degeneracy * math.exp(eta_p + mg.energy / (K_B * T)))
+    assert correction(finding, "ionized").corrected == pytest.approx(ionized, rel=1e-7)
+    assert finding.indicator_value == pytest.approx(ionized / 2e25, rel=1e-7)
+    assert correction(finding, "carrier density").corrected == pytest.approx(
+        float(gan.Nv(T)) * float(mp_fermi_half(eta_p)), rel=1e-7)
+
+
+def test_ion01_freeze_out_and_quiet_cases(tmp_path):
+    assert not quiet(check(tmp_path, calc("Si", "40 K", "P: 5e16 cm-3",
+                                          extra="assumes: [full-ionization]")), "ION01")
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e15 cm-3",
+                                      extra="assumes: [full-ionization]")), "ION01")
+    # not assumed: no finding even in freeze-out
+    assert quiet(check(tmp_path, calc("Si", "40 K", "P: 5e16 cm-3")), "ION01")
+
+
+def test_ion01_implied_by_stated_density_equal_to_doping(tmp_path):
+    report = check(tmp_path, calc("Si", "40 K", "P: 5e16 cm-3",
+                                  extra="stated:\n  electron_density: 5e16 cm-3\n"))
+    assert correction(one(report, "ION01"), "carrier density").from_author
+
+
+# --- ION02: compensation ----------------------------------------------------------------------
+
+def test_ion02_compensated_well(tmp_path):
+    report = check(tmp_path, calc("Si", "150 degC", "P: 3e17 cm-3", "B: 2e16 cm-3",
+                                  extra="stated:\n  electron_density: 3e17 cm-3\n"))
+    finding = one(report, "ION02", "electrons")
+    assert finding.indicator_value == pytest.approx(2e16 / 3e17, rel=1e-12)
+    T = 423.15
+    eta = eta_of("Si", T, {"P": 3e17}, {"B": 2e16})
+    n = float(load_material("Si").Nc(T)) * float(mp_fermi_half(eta))
+    assert correction(finding, "carrier density").corrected == pytest.approx(n, rel=1e-8)
+
+
+def test_ion02_quiet_below_threshold(tmp_path):
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 3e17 cm-3", "B: 1e15 cm-3",
+                                      extra="stated:\n  electron_density: 3e17 cm-3\n")), "ION02")
+
+
+# --- CARR03: carrier type ---------------------------------------------------------------------
+
+def test_carr03_electrons_used_in_p_type_well(tmp_path):
+    mun, mup = 800.0, 300.0
+    report = check(tmp_path, calc("Si", "300 K", "P: 1e17 cm-3", "B: 3e17 cm-3", extra=(
+        f"stated:\n  electron_density: 1e17 cm-3\n  electron_mobility: {mun} cm^2/(V*s)\n"
+        f"  hole_mobility: {mup} cm^2/(V*s)\n")))
+    finding = one(report, "CARR03", "electrons")
+    si, T = load_material("Si"), 300.0
+    eta = eta_of("Si", T, {"P": 1e17}, {"B": 3e17})
+    n = float(si.Nc(T)) * float(mp_fermi_half(eta))
+    p = float(si.Nv(T)) * float(mp_fermi_half(-eta - float(si.band_gap(T)) / (K_B * T)))
+    rho = 1 / (Q * (n * mun + p * mup) * 1e-4)
+    assert correction(finding, "resistivity").corrected == pytest.approx(rho, rel=1e-8)
+    assert finding.severity == "error"
+
+
+def test_carr03_quiet_when_the_majority_is_used(tmp_path):
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 3e17 cm-3", "B: 1e17 cm-3",
+                                      extra="stated:\n  electron_density: 2e17 cm-3\n")),
+                 "CARR03")
+
+
+# --- TRAN01: diffusive transport --------------------------------------------------------------
+
+def _mean_free_path(material, T, eta, mu):
+    """lambda = 2D/<v_x+>, D = mu kT/q F_1/2/F_-1/2, <v_x+> = sqrt(2kT/(pi m*)) F_1/F_1/2
+    (Lundstrom & Jeong, Near-Equilibrium Transport, 2012, ch. 6)."""
+    m = material.electron.thermal_mass * sc.m_e
+    D = mu * K_B * T / Q * fd(0.5, eta) / fd(-0.5, eta)
+    v = math.sqrt(2 * K_B * T / (math.pi * m)) * fd(1, eta) / fd(0.5, eta)
+    return 2 * D / v
+
+
+def test_tran01_short_conductor_resistance(tmp_path):
+    mu, L, A = 800.0, 20e-9, 1e-12
+    report = check(tmp_path, calc("Si", "300 K", "P: 1e17 cm-3", extra=(
+        f"structure:\n  length: 20 nm\n  cross_section: 1 um^2\n"
+        f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\nassumes: [diffusive]\n")))
+    finding = one(report, "TRAN01", "electrons")
+    si, T = load_material("Si"), 300.0
+    eta = eta_of("Si", T, {"P": 1e17})
+    lam = _mean_free_path(si, T, eta, mu * 1e-4)
+    assert finding.indicator_value == pytest.approx(lam / L, rel=1e-8)
+    n = float(si.Nc(T)) * float(mp_fermi_half(eta))
+    rho = 1 / (Q * n * mu * 1e-4)          # holes add ~1e-13 relative here
+    assert correction(finding, "resistance").corrected == pytest.approx(rho * (L + lam) / A,
+                                                                        rel=1e-8)
+
+
+def test_tran01_quiet_for_long_conductor(tmp_path):
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e17 cm-3", extra=(
+        "structure:\n  length: 10 um\n  cross_section: 1 um^2\nassumes: [diffusive]\n"))),
+        "TRAN01")
+
+
+# --- TRAN02: low field ------------------------------------------------------------------------
+
+def test_tran02_velocity_saturation_with_published_parameters(tmp_path):
+    mu, E = 1350.0, 20e3                         # cm^2/Vs, V/cm
+    report = check(tmp_path, calc("Si", "300 K", "P: 1e15 cm-3", extra=(
+        f"structure:\n  field: 20 kV/cm\nstated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
+        "assumes: [low-field]\n")))
+    finding = one(report, "TRAN02", "electrons")
+    vsat = 1.02e7                                # cm/s, Quay et al. (2000) at 300 K
+    beta = 2.57e-2 * 300 ** 0.66                 # Canali et al. (1975): 1.109 at 300 K
+    v = mu * E / (1 + (mu * E / vsat) ** beta) ** (1 / beta)
+    assert correction(finding, "drift velocity").corrected == pytest.approx(v * 1e-2, rel=1e-9)
+    assert correction(finding, "drift velocity").stated == pytest.approx(mu * E * 1e-2, rel=1e-12)
+
+
+def test_tran02_quiet_at_low_field(tmp_path):
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e15 cm-3", extra=(
+        "structure:\n  field: 100 V/cm\nassumes: [low-field]\n"))), "TRAN02")
+
+
+# --- MOB01 / MOB02: stated mobility -----------------------------------------------------------
+
+def masetti_p(N):
+    """Masetti, Severi & Solmi (1983) Table I, phosphorus, 300 K (references.md §5a)."""
+    return 68.5 + (1414 - 68.5) / (1 + (N / 9.20e16) ** 0.711) - 56.1 / (1 + (3.41e20 / N) ** 1.98)
+
+
+def test_mob01_against_masetti(tmp_path):
+    report = check(tmp_path, calc("Si", "300 K", "P: 1e18 cm-3",
+                                  extra="stated:\n  electron_mobility: 1350 cm^2/(V*s)\n"))
+    finding = one(report, "MOB01", "electrons")
+    corrected = correction(finding, "mobility").corrected * 1e4
+    assert corrected == pytest.approx(masetti_p(1e18), rel=1e-9)
+    assert corrected == pytest.approx(277, rel=0.01)   # Van Zeghbroeck, Principles of Semiconductor Devices, worked example (≈ 277)
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e18 cm-3",
+                                      extra="stated:\n  electron_mobility: 290 cm^2/(V*s)\n")),
+                 "MOB01")
+
+
+def test_mob02_above_lattice_limit(tmp_path):
+    # lattice limit = Masetti mu_max 1414 cm^2/Vs (P set, 300 K); threshold 5 % above it
+    assert not quiet(check(tmp_path, calc("Si", "300 K", "P: 1e14 cm-3",
+                                          extra="stated:\n  electron_mobility: 1500 cm^2/(V*s)\n")),
+                     "MOB02")
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e14 cm-3",
+                                      extra="stated:\n  electron_mobility: 1400 cm^2/(V*s)\n")),
+                 "MOB02")
+
+
+# --- CONST01 / CONST02: stated constants ------------------------------------------------------
+
+def test_const01_thermal_voltage(tmp_path):
+    report = check(tmp_path, calc("Si", "400 K", "P: 1e16 cm-3",
+                                  extra="stated:\n  thermal_voltage: 0.0259 V\n"))
+    corrected = correction(one(report, "CONST01"), "thermal voltage").corrected
+    assert corrected == pytest.approx(sc.k * 400 / sc.e, rel=1e-15)
+    assert corrected == pytest.approx(0.0344693330, abs=1e-10)    # references.md §7 (computed)
+    # 0.0259 V at 300 K is rounding (+0.19 %), below the 1 % threshold
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
+                                      extra="stated:\n  thermal_voltage: 0.0259 V\n")), "CONST01")
+
+
+def test_const02_outdated_silicon_ni(tmp_path):
+    report = check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
+                                  extra="stated:\n  intrinsic_density: 1.45e10 cm-3\n"))
+    corrected = correction(one(report, "CONST02"), "intrinsic").corrected / CM3
+    # Green (1990) N_c = 2.86e19, N_v = 3.10e19 cm^-3 at 300 K; Thurmond (1975) gap
+    kT = sc.k * 300 / sc.e
+    Eg = 1.17 - 4.73e-4 * 300 ** 2 / (300 + 636)
+    assert corrected == pytest.approx(math.sqrt(2.86e19 * 3.10e19) * math.exp(-Eg / (2 * kT)),
+                                      rel=1e-9)
+    assert corrected == pytest.approx(1.08e10, rel=0.02)   # Green 1990 quotes 1.08e10 cm^-3
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
+                                      extra="stated:\n  intrinsic_density: 1.07e10 cm-3\n")),
+                 "CONST02")
+
+
+# --- DOPE01 / DOPE02: heavy doping ------------------------------------------------------------
+
+def test_dope01_band_gap_narrowing_on_minority_density(tmp_path):
+    report = check(tmp_path, calc("Si", "300 K", "P: 1e18 cm-3",
+                                  extra="stated:\n  hole_density: 110 cm-3\n"))
+    finding = one(report, "DOPE01", "electrons")
+    N, kT = 1e18, sc.k * 300
+    x = math.log(N / 1.3e17)   # Klaassen, Slotboom & de Graaff (1992): 6.92 mV, 1.3e17, 0.5
+    dEg = 6.92e-3 * (x + math.sqrt(x * x + 0.5)) * sc.e
+    assert dEg / sc.e == pytest.approx(0.0291, abs=1e-4)   # references.md §5a: 29.1 meV at 1e18
+    assert finding.indicator_value == pytest.approx(math.exp(dEg / kT), rel=1e-9)
+    si = load_material("Si")
+    eta = eta_of("Si", 300.0, {"P": 1e18})
+    n = float(si.Nc(300.0)) * float(mp_fermi_half(eta))
+    ni2 = float(si.Nc(300.0) * si.Nv(300.0)) * math.exp(-float(si.band_gap(300.0)) / kT)
+    assert correction(finding, "minority").corrected == pytest.approx(
+        ni2 * math.exp(dEg / kT) / n, rel=1e-8)
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
+                                      extra="stated:\n  hole_density: 1.1e4 cm-3\n")), "DOPE01")
+
+
+def test_dope02_mott_density_of_si_p(tmp_path):
+    # Si:P Mott density 3.74e18 cm^-3, Rosenbaum et al., Phys. Rev. B 27, 7509 (1983)
+    finding = one(check(tmp_path, calc("Si", "300 K", "P: 5e18 cm-3",
+                                       extra="assumes: [non-degenerate]")), "DOPE02")
+    assert finding.indicator_value == pytest.approx(5e18 / 3.74e18, rel=1e-12)
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 3e18 cm-3",
+                                      extra="assumes: [non-degenerate]")), "DOPE02")
+
+
+# --- MODEL01 / MODEL02: model ranges ----------------------------------------------------------
+
+def test_model_ranges(tmp_path):
+    # the Masetti fit is used from 250 K to 500 K (material file) up to 5e21 cm^-3
+    assert not quiet(check(tmp_path, calc("Si", "200 K", "P: 1e16 cm-3")), "MODEL01")
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3")), "MODEL01")
+    assert not quiet(check(tmp_path, calc("Si", "300 K", "As: 8e21 cm-3")), "MODEL02")
+    assert quiet(check(tmp_path, calc("Si", "300 K", "As: 1e19 cm-3")), "MODEL02")
+
+
+# --- waivers ----------------------------------------------------------------------------------
+
+def test_waiver_marks_finding_and_unused_waiver_is_noted(tmp_path):
+    report = check(tmp_path, calc("Si", "300 K", "P: 1e18 cm-3", extra=(
+        "stated:\n  electron_mobility: 1350 cm^2/(V*s)\n"
+        "waivers:\n  - {rule: MOB01, reason: measured on test wafer W7}\n"
+        "  - {rule: TRAN02, reason: no field in this calculation}\n")))
+    assert one(report, "MOB01").waived == "measured on test wafer W7"
+    assert any("TRAN02" in note and "waives nothing" in note for note in report.notes)
