@@ -69,7 +69,10 @@ def _pairs(items, what):
         species, sep, density = item.partition("=")
         if not sep or not species:
             raise RegimecheckError(f"--{what} {item!r}: write SPECIES=DENSITY, e.g. P=1e17cm-3")
-        out[species.strip()] = parse_quantity(density, "density", f"--{what} {species}")
+        value = parse_quantity(density, "density", f"--{what} {species}")
+        if value < 0:
+            raise RegimecheckError(f"--{what} {item!r}: the density must be >= 0")
+        out[species.strip()] = value
     return out
 
 
@@ -163,7 +166,8 @@ def _cmd_explain(args) -> int:
 
 def _cmd_state(args) -> int:
     from .inputs.calculation_file import read_calculation_file
-    from .report.state_report import doping_text, render_console, render_json
+    from .report.check_report import doping_text
+    from .report.state_report import render_console, render_json
 
     entries, errors = [], []
     for path in args.paths:

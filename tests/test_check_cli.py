@@ -1,0 +1,150 @@
+"""`regimecheck check` end to end: exit codes, JSON keys, the examples, and every
+class of bad input (file:line message, exit 2, other calculations still checked)."""
+import json
+
+import pytest
+
+from test_cli import BAD_DOCS, ROOT, run
+
+EXAMPLES = ROOT / "examples"
+GOOD = ("name: good one\nmaterial: Si\ntemperature: 300 K\ndoping:\n  donors: {P: 1e16 cm-3}\n"
+        "stated:\n  electron_density: 1e16 cm-3\n")
+ALL_RULES = {"STAT01", "STAT02", "CARR01", "CARR02", "CARR03", "ION01", "ION02", "TRAN01",
+             "TRAN02", "MOB01", "MOB02", "CONST01", "CONST02", "DOPE01", "DOPE02", "MODEL01",
+             "MODEL02"}
+
+
+@pytest.fixture(scope="module")
+def example_report():
+    result = run("check", str(EXAMPLES), "--format", "json")
+    assert "Traceback" not in result.stderr
+    return result.returncode, json.loads(result.stdout)
+
+
+def test_examples_fire_every_rule_and_keep_one_clean(example_report):
+    code, data = example_report
+    assert code == 1
+    fired = {f["rule"] for c in data["calculations"] for f in c["findings"]}
+    assert fired == ALL_RULES
+    clean = [c for c in data["calculations"] if c["source"]["file"].endswith(
+        "ls2_reference_resistor.yaml")]
+    assert clean and clean[0]["findings"] == [] and clean[0]["notes"] == []
+    files = {c["source"]["file"] for c in data["calculations"]}
+    assert len(files) >= 9
+    assert data["input_errors"] == []
+
+
+def test_json_keys_are_stable(example_report):
+    _, data = example_report
+    assert data["format"] == "regimecheck-report/1"
+    assert "screening check" in data["notice"].lower()
+    assert set(data["summary"]) == {"calculations", "findings", "input_errors", "worst", "exit_code"}
+    calc = next(c for c in data["calculations"] if c["findings"])
+    assert set(calc) == {"source", "name", "material", "temperature_K", "doping_cm3", "state",
+                         "findings", "notes", "error"}
+    assert set(calc["source"]) == {"file", "line"}
+    finding = calc["findings"][0]
+    assert set(finding) == {"rule", "title", "severity", "assumption", "carrier", "indicator",
+                            "message", "where", "corrections", "waived"}
+    assert set(finding["indicator"]) == {"label", "value", "threshold", "relation", "unit",
+                                         "source"}
+    corrections = [c for cc in data["calculations"] for f in cc["findings"]
+                   for c in f["corrections"]]
+    assert set(corrections[0]) == {"quantity", "unit", "stated", "corrected", "relative_error",
+                                   "stated_by"}
+    waived = [f for cc in data["calculations"] for f in cc["findings"] if f["waived"]]
+    assert waived and data["summary"]["findings"]["waived"] == len(waived)
+
+
+def test_exit_codes(tmp_path):
+    clean = tmp_path / "clean.yaml"
+    clean.write_text(GOOD)
+    assert run("check", str(clean)).returncode == 0
+    warn = tmp_path / "warn.yaml"
+    warn.write_text(GOOD.replace("electron_density: 1e16 cm-3",
+                                 "electron_density: 1e16 cm-3\n  thermal_voltage: 0.0345 V"))
+    assert run("check", str(warn)).returncode == 1
+    assert run("check", str(warn), "--fail-on", "error").returncode == 0
+    assert run("check", str(warn), "--exit-zero").returncode == 0
+    info = tmp_path / "info.yaml"
+    info.write_text(GOOD.replace("300 K", "200 K").replace("  electron_density: 1e16 cm-3\n", ""))
+    assert run("check", str(info)).returncode == 0            # info is below the default level
+    assert run("check", str(info), "--fail-on", "info").returncode == 1
+    assert run("check", str(tmp_path / "missing.yaml")).returncode == 2
+    assert run("check", str(clean), "--fail-on", "loud").returncode == 2   # usage error
+
+
+def test_console_report(tmp_path):
+    result = run("check", str(EXAMPLES / "ld310_nwell_resistor.yaml"))
+    out = result.stdout
+    assert out.count("does not replace qualified device characterization or sign-off") == 1
+    assert "\x1b[" not in out                     # no colour when not a terminal
+    assert "MOB02" in out and "→" in out and "calculation(s) in 1 file(s) checked" in out
+
+
+EXTRA_BAD = {
+    "waiver without reason": (GOOD + "waivers:\n  - {rule: MOB01}\n", "has no reason"),
+    "waiver of unknown rule": (GOOD + "waivers:\n  - {rule: MOB99, reason: not relevant here}\n",
+                               "unknown rule 'MOB99'"),
+    "unknown assumption": (GOOD + "assumes: [non-degenrate]\n", "did you mean 'non-degenerate'"),
+    "unknown stated key": (GOOD.replace("electron_density", "electron_densty"),
+                           "did you mean 'electron_density'"),
+    "structure plain number": (GOOD + "structure:\n  length: 40\n", "no unit"),
+}
+
+
+# `state` shares the reader; rule ids are known only to `check`
+BAD_RUNS = [("check", case) for case in sorted(BAD_DOCS) + sorted(EXTRA_BAD)] + \
+    [("state", case) for case in sorted(BAD_DOCS) + sorted(EXTRA_BAD)
+     if case != "waiver of unknown rule"]
+
+
+@pytest.mark.parametrize("command, case", BAD_RUNS)
+def test_bad_input_is_reported_and_others_still_checked(tmp_path, case, command):
+    text, expected = {**BAD_DOCS, **EXTRA_BAD}[case]
+    bad = tmp_path / "bad.yaml"
+    bad.write_text(text)
+    good = tmp_path / "good.yaml"
+    good.write_text(GOOD)
+    before = bad.read_text()
+    result = run(command, str(bad), str(good), "--format", "json")
+    assert result.returncode == 2
+    assert "Traceback" not in result.stdout + result.stderr
+    data = json.loads(result.stdout)
+    listed = data["calculations"] if command == "check" else data["points"]
+    assert "good one" in [c["name"] for c in listed]
+    message = (data["input_errors"] if command == "check" else data["errors"])[0]
+    assert expected in message
+    assert message.startswith(f"{bad}:")          # names the file and the line
+    assert bad.read_text() == before              # input never modified
+
+
+def test_directory_walk_and_rules_commands(tmp_path):
+    (tmp_path / "sub").mkdir()
+    (tmp_path / "sub" / "a.yaml").write_text(GOOD)
+    (tmp_path / "b.yml").write_text(GOOD.replace("good one", "second"))
+    data = json.loads(run("check", str(tmp_path), "--format", "json").stdout)
+    assert sorted(c["name"] for c in data["calculations"]) == ["good one", "second"]
+    listing = run("rules").stdout
+    assert {line.split()[0] for line in listing.splitlines()} == ALL_RULES
+
+
+@pytest.mark.parametrize("rule", sorted(ALL_RULES))
+def test_explain_every_rule(rule):
+    result = run("explain", rule.lower())
+    assert result.returncode == 0, result.stderr
+    for part in ("Condition", "Why it matters", "Example", "Fix", "References"):
+        assert part in result.stdout
+
+
+def test_explain_unknown_rule():
+    result = run("explain", "STAT9")
+    assert result.returncode == 2 and "did you mean" in result.stderr
+
+
+def test_point_reports_regime_warnings():
+    result = run("point", "--material", "Si", "--temperature", "300K", "--donor",
+                 "P=1e19cm-3", "--format", "json")
+    assert result.returncode == 1
+    rules = {f["rule"] for f in json.loads(result.stdout)["calculations"][0]["findings"]}
+    assert {"STAT01", "STAT02", "DOPE02"} <= rules
