@@ -76,3 +76,15 @@ def test_rule_id_must_match_file_name(tmp_path):
     shutil.copy(rules_dir() / "STAT01.yaml", tmp_path / "STAT09.yaml")
     with pytest.raises(RuleFileError, match="file name"):
         load_rule(tmp_path / "STAT09.yaml")
+
+
+def test_shipped_yaml_passes_the_strict_loader():
+    """Package files are read with libyaml for speed; this keeps them free of aliases and
+    duplicate keys, which the strict loader refuses."""
+    from checker.inputs.yaml_source import load_yaml_text
+    from checker.resources import materials_dir
+
+    files = sorted(rules_dir().glob("*.yaml")) + sorted(materials_dir().glob("*.yaml"))
+    assert len(files) >= 25
+    for path in files:
+        load_yaml_text(path.read_text(encoding="utf-8"), str(path))

@@ -208,3 +208,18 @@ def test_shipped_data_is_found_from_another_directory(tmp_path, monkeypatch):
     from checker.resources import materials_dir, rules_dir
     assert (materials_dir() / "Si.yaml").is_file()
     assert (rules_dir() / "README.md").is_file()
+
+
+def test_name_index_agrees_with_full_parse():
+    """The start-up index reads only the name/aliases lines; a full parse must agree."""
+    import yaml
+
+    from checker.inputs.material_catalog import _index
+    from checker.resources import materials_dir
+
+    expected = {}
+    for path in materials_dir().glob("*.yaml"):
+        data = yaml.safe_load(path.read_text(encoding="utf-8"))
+        for key in [data["name"], *data.get("aliases", [])]:
+            expected[str(key).lower()] = path.name
+    assert _index() == expected

@@ -15,7 +15,7 @@ from pathlib import Path
 
 from ..errors import RegimecheckError
 from ..inputs.calculation_file import ASSUMPTIONS
-from ..inputs.yaml_source import load_yaml_text
+from ..inputs.yaml_source import load_package_yaml
 from ..resources import rules_dir
 from . import expression
 from .vocabulary import DISPLAY_UNITS, carrier_names, rule_names
@@ -123,7 +123,7 @@ def _number(data, key, path):
 
 def load_rule(path: Path) -> Rule:
     path = Path(path)
-    data = load_yaml_text(path.read_text(encoding="utf-8"), str(path))
+    data = load_package_yaml(path.read_text(encoding="utf-8"), str(path))
     if not isinstance(data, dict):
         _fail(path, "(top)", "a rule file is a mapping")
     for key in data:

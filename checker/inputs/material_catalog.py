@@ -5,13 +5,14 @@ converts every quantity to SI once, and builds a :class:`checker.physics.materia
 """
 from __future__ import annotations
 
+import re
 from functools import lru_cache
 from ..errors import InputError, UnknownMaterialError
 from ..physics import materials as m
 from ..physics.constants import ROOM_TEMPERATURE
 from ..resources import materials_dir
 from .quantities import parse_quantity
-from .yaml_source import load_yaml_text
+from .yaml_source import load_package_yaml
 
 # What each optional block is needed for (used in "missing parameter" messages).
 NEEDED_FOR = {
@@ -210,13 +211,22 @@ def _data_files():
 
 @lru_cache(maxsize=None)
 def _index() -> dict:
-    """Name and alias (case-insensitive) -> file name."""
+    """Name and alias (case-insensitive) -> file name.
+
+    Read from the top-level ``name:`` and ``aliases: [...]`` lines only, so that
+    start-up does not parse every material file (a test checks this against a
+    full parse).
+    """
     index = {}
     for entry in _data_files().iterdir():
         if entry.name.endswith(".yaml"):
-            data = load_yaml_text(entry.read_text(encoding="utf-8"), entry.name)
-            for key in [data["name"], *data.get("aliases", [])]:
-                index[str(key).lower()] = entry.name
+            text = entry.read_text(encoding="utf-8")
+            name = re.search(r"^name:\s*(\S+)\s*$", text, re.M)
+            aliases = re.search(r"^aliases:\s*\[([^\]]*)\]", text, re.M)
+            keys = [name.group(1)] + ([a.strip() for a in aliases.group(1).split(",")]
+                                      if aliases else [])
+            for key in keys:
+                index[key.lower()] = entry.name
     return index
 
 
@@ -236,7 +246,7 @@ def builtin_material(name: str) -> m.Material:
             f"unknown material {name!r}{hint} Built in: {', '.join(builtin_names())}; "
             "or define it as a mapping with the same parameters")
     entry = _data_files() / _index()[key]
-    return material_from_mapping(load_yaml_text(entry.read_text(encoding="utf-8"), entry.name),
+    return material_from_mapping(load_package_yaml(entry.read_text(encoding="utf-8"), entry.name),
                                  where=entry.name)
 
 

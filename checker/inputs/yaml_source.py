@@ -42,3 +42,18 @@ def load_yaml_text(text: str, name: str):
         mark = exc.problem_mark
         where = f"{name}:{mark.line + 1}:{mark.column + 1}" if mark else name
         raise InputError(f"{where}: malformed YAML: {exc.problem}") from None
+
+
+_FAST_LOADER = getattr(yaml, "CSafeLoader", yaml.SafeLoader)
+
+
+def load_package_yaml(text: str, name: str):
+    """Parse one of the package's own data files (materials, rules) with libyaml
+    where available: ten times faster than the pure-Python strict loader, which
+    a test runs over every shipped file so that no alias or duplicate key slips in."""
+    try:
+        return yaml.load(text, Loader=_FAST_LOADER)  # noqa: S506 - a safe loader
+    except yaml.MarkedYAMLError as exc:
+        mark = exc.problem_mark
+        where = f"{name}:{mark.line + 1}:{mark.column + 1}" if mark else name
+        raise InputError(f"{where}: malformed YAML: {exc.problem}") from None

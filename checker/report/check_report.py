@@ -50,47 +50,50 @@ def _where(file, line) -> str:
 
 
 def render_console(result, console) -> None:
-    from rich.padding import Padding
-    from rich.table import Table
+    """One rich Text per calculation, printed once (rich's per-call cost dominates
+    large runs); long lines are wrapped here with their indent kept."""
+    import textwrap
+
     from rich.text import Text
 
-    def indented(text, style=""):
-        console.print(Padding(Text(text, style=style), (0, 0, 0, 8), expand=False))
+    width = max(console.width, 60)
+
+    def add(text, line, style="", indent=8):
+        for part in textwrap.wrap(line, width - indent, break_on_hyphens=False) or [""]:
+            text.append(" " * indent + part + "\n", style=style)
 
     for report in result.reports:
         calc = report.calc
-        console.rule(Text(calc.name, style="bold"), align="left")
-        console.print(f"{_where(calc.source, calc.line)} · {calc.material.name} · "
-                      f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}",
-                      highlight=False)
+        out = Text()
+        title = f"── {calc.name} "
+        out.append(title + "─" * max(width - len(title), 3) + "\n", style="bold")
+        add(out, f"{_where(calc.source, calc.line)} · {calc.material.name} · "
+                 f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}", indent=0)
         if report.error:
-            console.print(Text(f"not checked: {report.error}", style="bold red"))
+            add(out, f"not checked: {report.error}", "bold red", indent=2)
+            console.print(out, end="")
             continue
-        table = Table(show_header=False, box=None, padding=(0, 2))
-        table.add_column("quantity", style="dim")
-        table.add_column("value", justify="right")
         for key, label, fmt in STATE_ROWS:
-            table.add_row(label, fmt.format(report.state[key]))
-        console.print(table)
+            out.append(f"  {label:<24}", style="dim")
+            out.append(f"{fmt.format(report.state[key]):>24}\n")
         if not report.findings:
-            console.print(Text("no assumption leaves its regime", style="green"))
+            out.append("  no assumption leaves its regime\n", style="green")
         for f in report.findings:
             tag = "waived" if f.waived else f.severity
-            head = Text()
-            head.append(f"{tag.upper():8s}", style="dim" if f.waived else STYLE[f.severity])
-            head.append(f"{f.rule}  {f.title}", style="bold")
-            head.append(f"  at {_where(f.file, f.line)}", style="dim")
-            console.print(head)
-            indented(f.message)
-            indented(f"regime indicator: {f.indicator_text()}", "dim")
+            out.append(f"{tag.upper():8s}", style="dim" if f.waived else STYLE[f.severity])
+            out.append(f"{f.rule}  {f.title}", style="bold")
+            out.append(f"  at {_where(f.file, f.line)}\n", style="dim")
+            add(out, f.message)
+            add(out, f"regime indicator: {f.indicator_text()}", "dim")
             for c in f.corrections:
                 origin = "stated" if c.from_author else "shortcut"
-                indented(f"{c.label}: {display(c.stated, c.unit)} ({origin}) → "
+                add(out, f"{c.label}: {display(c.stated, c.unit)} ({origin}) → "
                          f"{display(c.corrected, c.unit)}  [{c.error_text()}]")
             if f.waived:
-                indented(f"waived: {f.waived}", "dim")
+                add(out, f"waived: {f.waived}", "dim")
         for note in report.notes:
-            console.print(Text(f"note: {note}", style="yellow"))
+            add(out, f"note: {note}", "yellow", indent=2)
+        console.print(out, end="", highlight=False)
     for message in result.input_errors:
         console.print(Text(f"input error: {message}", style="bold red"))
     console.print()

@@ -1,0 +1,95 @@
+"""Whole-process timings of `regimecheck check`.
+
+Targets (issue 3): one example, cold, <= 0.5 s wall (design: 0.35 s) measured as
+the median of interleaved runs beside `python -c pass`; 1,000 calculations in
+one run <= 10 s; the expression parser refuses hostile text in well under a
+second.  Prints a table; asserts nothing.
+"""
+import argparse
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+ONE = ROOT / "examples" / "ls2_reference_resistor.yaml"
+
+# (material, donor, acceptor) cycled through the generated run
+MIXES = [("Si", "P", "B"), ("Si", "As", "B"), ("Ge", "Sb", "Ga"), ("GaAs", "Si", "C"),
+         ("GaN", "Si", "Mg"), ("4H-SiC", "N", "Al"), ("InP", "S", "Zn"), ("InGaAs", "Si", "Zn")]
+
+
+def wall(command, runs):
+    times = []
+    for _ in range(runs):
+        start = time.perf_counter()
+        subprocess.run(command, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, cwd=ROOT)
+        times.append(time.perf_counter() - start)
+    return times
+
+
+def many_calculations(count: int) -> str:
+    docs = []
+    for i in range(count):
+        material, donor, acceptor = MIXES[i % len(MIXES)]
+        nd = 10 ** (14 + (i * 7 % 60) / 10)
+        na = nd * ((i % 5) / 10)
+        T = 200 + (i * 13) % 400
+        docs.append(
+            f"name: generated {i}\nmaterial: {material}\ntemperature: {T} K\n"
+            f"doping:\n  donors: {{{donor}: {nd:.3e} cm-3}}\n"
+            + (f"  acceptors: {{{acceptor}: {na:.3e} cm-3}}\n" if na else "")
+            + f"stated:\n  electron_density: {nd:.3e} cm-3\n  electron_mobility: 1000 cm^2/(V*s)\n"
+            "assumes: [non-degenerate, full-ionization, einstein-relation, single-carrier]\n")
+    return "---\n".join(docs)
+
+
+def main():
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--runs", type=int, default=15)
+    parser.add_argument("--calculations", type=int, default=1000)
+    args = parser.parse_args()
+    tool = [sys.executable, "-m", "checker", "check"]
+    baseline, one = [], []
+    for _ in range(args.runs):          # interleaved: machine noise hits both alike
+        baseline += wall([sys.executable, "-c", "pass"], 1)
+        one += wall(tool + [str(ONE)], 1)
+    every = wall(tool + [str(ROOT / "examples")], 5)
+    with tempfile.TemporaryDirectory() as tmp:
+        path = Path(tmp) / "many.yaml"
+        path.write_text(many_calculations(args.calculations), encoding="utf-8")
+        many = wall(tool + [str(path)], 3)
+        many_json = wall(tool + [str(path), "--format", "json"], 3)
+
+    from checker.engine import expression
+    from checker.errors import InputError
+
+    hostile = ["__import__('os').system('x')", "9**9**9", "1e999999", "(" * 10000 + ")" * 10000,
+               "x+" * 500_000 + "x", "(" * 150 + "1" + ")" * 150]
+    worst = 0.0
+    for text in hostile:
+        start = time.perf_counter()
+        try:
+            expression.parse(text)
+        except InputError:
+            pass
+        worst = max(worst, time.perf_counter() - start)
+
+    print(f"{'what':<52} {'median s':>9} {'best s':>8} {'target':>8}")
+    rows = [("python -c pass", baseline, ""),
+            (f"check {ONE.name}", one, "0.5"),
+            ("check examples/ (16 calculations, 10 files)", every, ""),
+            (f"check {args.calculations} calculations (console)", many, "10"),
+            (f"check {args.calculations} calculations (--format json)", many_json, "10")]
+    for label, times, target in rows:
+        print(f"{label:<52} {statistics.median(times):9.3f} {min(times):8.3f} {target:>8}")
+    ratio = statistics.median(one) / statistics.median(baseline)
+    print(f"one example minus interpreter start: {statistics.median(one) - statistics.median(baseline):.3f} s "
+          f"(ratio to python -c pass: {ratio:.1f}x)")
+    print(f"slowest refusal of hostile expression text: {worst * 1e3:.1f} ms")
+
+
+if __name__ == "__main__":
+    main()
