@@ -46,6 +46,14 @@ def carrier_transport(state: equilibrium.State, dimension=3, mobility_model=None
 regime_label = carriers.regime_label
 
 
+def check_paths(paths):
+    """Check calculation files (or directories of them); returns a RunResult with
+    one report per calculation (state summary, findings) and the input errors."""
+    from .engine.run import check_paths as run
+
+    return run([str(p) for p in paths])
+
+
 def state_summary(state: equilibrium.State, index=()):
     """Trade-unit numbers of one point of a State (for reports and the CLI)."""
     pick = lambda a: float(np.asarray(a)[index])
@@ -70,5 +78,6 @@ def state_summary(state: equilibrium.State, index=()):
     }
 
 
-__all__ = ["CM2_PER_VS", "PER_CM3", "builtin_materials", "carrier_transport", "load_material",
+__all__ = ["CM2_PER_VS", "PER_CM3", "builtin_materials", "carrier_transport", "check_paths",
+           "load_material",
            "missing_parameters", "regime_label", "solve_equilibrium", "state_summary"]

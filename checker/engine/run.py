@@ -8,8 +8,6 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from pathlib import Path
 
-import numpy as np
-
 from ..inputs.calculation_file import read_calculation_file
 from ..physics.constants import EV
 from . import rulebook, state_values
@@ -115,7 +113,3 @@ def check_paths(paths, rules=None) -> RunResult:
         calculations.extend(read.calculations)
         errors.extend(read.errors)
     return check_calculations(calculations, rules, errors)
-
-
-def finite(value):
-    return value if value is None or np.isfinite(value) else None
