@@ -47,7 +47,7 @@ def _as_text(node):
 
 def test_shipped_rules_load():
     rules = load_rules()
-    assert len(rules) == 17
+    assert len(rules) == 18
     for rule in rules:
         assert rule.references and rule.why and rule.fix and rule.example
         assert rule.threshold_source

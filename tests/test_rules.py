@@ -365,6 +365,17 @@ def test_const02_outdated_silicon_ni(tmp_path):
                  "CONST02")
 
 
+def test_const03_density_of_states_scales_with_temperature(tmp_path):
+    report = check(tmp_path, calc("Si", "400 K", "P: 1e16 cm-3",
+                                  extra="stated:\n  conduction_dos: 2.86e19 cm-3\n"))
+    corrected = correction(one(report, "CONST03", "electrons"), "effective").corrected / CM3
+    # Green (1990): N_c = 2.86e19 cm^-3 at 300 K, scaling as T^1.5
+    assert corrected == pytest.approx(2.86e19 * (400 / 300) ** 1.5, rel=1e-12)
+    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
+                                      extra="stated:\n  conduction_dos: 2.86e19 cm-3\n")),
+                 "CONST03")
+
+
 # --- DOPE01 / DOPE02: heavy doping ------------------------------------------------------------
 
 def test_dope01_band_gap_narrowing_on_minority_density(tmp_path):

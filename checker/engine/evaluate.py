@@ -40,13 +40,14 @@ def error_text(stated: float, corrected: float, unit: str) -> str:
     large ratios as a factor; everything else as a signed percentage.
     """
     if unit == "eV":
-        return f"{(stated - corrected) * DISPLAY_UNITS['eV'] * 1e3:+.1f} meV"
+        difference = (stated - corrected) * DISPLAY_UNITS["eV"] * 1e3
+        return f"{abs(difference):.1f} meV {'high' if difference > 0 else 'low'}"
     ratio = stated / corrected
     if ratio >= 10:
         return f"{ratio:.3g}× too high"
     if 0 < ratio <= 0.1:
         return f"{1 / ratio:.3g}× too low"
-    return f"{ratio - 1:+.1%}"
+    return f"{abs(ratio - 1):.1%} {'high' if ratio > 1 else 'low'}"
 
 
 @dataclass

@@ -121,7 +121,7 @@ def _fill_inputs(calculations, values):
     values["stated_sigma"] = np.where(np.isfinite(sigma), sigma, 1.0 / rho)
     values["stated_rho"] = np.where(np.isfinite(rho), rho, 1.0 / sigma)
     for x in ("n", "p"):
-        for stem in _STATED_CARRIER:
+        for stem in _STATED_CARRIER + ("stated_Nband",):
             values[f"{stem}_{x}"] = stated(f"{stem}_{x}")
     ec, ev = stated("stated_ef_minus_ec"), stated("stated_ef_minus_ev")
     kT, Eg = values["kT"], values["Eg"]

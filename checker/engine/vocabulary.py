@@ -75,6 +75,7 @@ PER_CARRIER = {
     "stated_mu_x": ("cm^2/(V*s)", "stated mobility"),
     "stated_D_x": ("cm^2/s", "stated diffusion coefficient"),
     "stated_v_x": ("cm/s", "stated drift velocity"),
+    "stated_Nband_x": ("cm^-3", "stated effective density of states of the carrier's band"),
 }
 for _name, (_unit, _meaning) in list(PER_CARRIER.items()):
     PER_CARRIER[_name[:-2] + "_o"] = (_unit, _meaning.replace("the carrier", "the other carrier")

@@ -64,6 +64,8 @@ STATED_KEYS = {
     "resistance": ("stated_R", "resistance"),
     "thermal_voltage": ("stated_kT_q", "voltage"),
     "intrinsic_density": ("stated_ni", "density"),
+    "conduction_dos": ("stated_Nband_n", "density"),
+    "valence_dos": ("stated_Nband_p", "density"),
     "mean_free_path": ("stated_lambda", "length"),
 }
 # The trade words an author may declare; a few common spellings map onto them.
