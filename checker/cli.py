@@ -62,7 +62,7 @@ def _report_options(command):
 
 
 def _pairs(items, what):
-    from .inputs.quantities import parse_quantity
+    from .inputs.quantities import check_plausible, parse_quantity
 
     out = {}
     for item in items:
@@ -72,7 +72,7 @@ def _pairs(items, what):
         value = parse_quantity(density, "density", f"--{what} {species}")
         if value < 0:
             raise RegimecheckError(f"--{what} {item!r}: the density must be >= 0")
-        out[species.strip()] = value
+        out[species.strip()] = check_plausible(value, "density", density, f"--{what} {species}")
     return out
 
 
@@ -121,10 +121,11 @@ def _cmd_point(args) -> int:
     from .engine.run import check_calculations
     from .inputs.calculation_file import ASSUMPTIONS, Calculation
     from .inputs.material_catalog import resolve_material
-    from .inputs.quantities import parse_quantity, parse_temperature
+    from .inputs.quantities import check_plausible, parse_quantity, parse_temperature
 
     material = resolve_material(args.material)
-    T = parse_temperature(args.temperature, "--temperature")
+    T = check_plausible(parse_temperature(args.temperature, "--temperature"), "temperature",
+                        args.temperature, "--temperature")
     donors, acceptors = _pairs(args.donor, "donor"), _pairs(args.acceptor, "acceptor")
     for species in list(donors) + list(acceptors):
         material.dopant(species)

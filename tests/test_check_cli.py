@@ -90,6 +90,9 @@ EXTRA_BAD = {
     "unknown stated key": (GOOD.replace("electron_density", "electron_densty"),
                            "did you mean 'electron_density'"),
     "structure plain number": (GOOD + "structure:\n  length: 40\n", "no unit"),
+    "absurd temperature": (GOOD.replace("300 K", "3e4 K"), "not a plausible temperature"),
+    "absurd density": (GOOD.replace("P: 1e16 cm-3", "P: 1e30 cm-3"), "not a plausible density"),
+    "absurd length": (GOOD + "structure:\n  length: 40 km\n", "not a plausible length"),
 }
 
 

@@ -140,7 +140,8 @@ def _run_rule(rule, x, names, declared, calculations, values, valid, result):
     indicator = np.broadcast_to(np.asarray(rule.indicator.run[x](values), dtype=float), (count,))
     wrong_side = indicator > rule.threshold if rule.relation == "above" \
         else indicator < rule.threshold
-    fired = np.flatnonzero(made & valid & np.isfinite(indicator) & wrong_side)
+    # an infinite indicator (e.g. n_i over zero net doping) is on the wrong side too
+    fired = np.flatnonzero(made & valid & ~np.isnan(indicator) & wrong_side)
     if fired.size == 0:
         return
     columns = []

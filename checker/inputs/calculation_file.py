@@ -30,7 +30,7 @@ import yaml
 from ..errors import InputError
 from ..physics.materials import Material
 from .material_catalog import resolve_material
-from .quantities import parse_quantity, parse_temperature
+from .quantities import check_plausible, parse_quantity, parse_temperature
 from .yaml_source import _StrictLoader
 
 TOP_KEYS = ("name", "material", "temperature", "doping", "structure", "stated", "assumes",
@@ -198,7 +198,8 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
         material = resolve_material(data["material"])
     except InputError as exc:
         raise InputError(f"{where('material')}: {exc}") from None
-    temperature = parse_temperature(data["temperature"], where("temperature"))
+    temperature = check_plausible(parse_temperature(data["temperature"], where("temperature")),
+                                  "temperature", data["temperature"], where("temperature"))
     doping = data.get("doping") or {}
     if not isinstance(doping, dict):
         raise InputError(f"{where('doping')}: doping must map 'donors' and/or 'acceptors' "
@@ -224,7 +225,7 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
             density = parse_quantity(text, "density", here)
             if density < 0:
                 raise InputError(f"{here}: density {text!r} is negative; give a value >= 0")
-            values[species] = density
+            values[species] = check_plausible(density, "density", text, here)
         groups[group] = values
     options = data.get("options") or {}
     if not isinstance(options, dict):
@@ -259,6 +260,7 @@ def _quantities(data, section, keys, where, lines) -> dict:
         value = parse_quantity(text, dimension, here)
         if value < 0 and key not in SIGNED_KEYS:
             raise InputError(f"{here}: {key} {text!r} is negative; give a value >= 0")
+        check_plausible(value, dimension, text, here)
         if value == 0 and dimension in ("length", "area", "density") and section == "structure":
             raise InputError(f"{here}: {key} must be larger than zero")
         out[name] = value

@@ -150,6 +150,32 @@ def _registry():
     return _REGISTRY[0]
 
 
+# Bounds of a physically sensible calculation input (SI), with the reason shown when a
+# value falls outside: a typo in an exponent or a unit should not be solved silently.
+PLAUSIBLE = {
+    "temperature": (1.0, 3000.0, "regimecheck solves 1 K to 3000 K (silicon melts at 1687 K)"),
+    "density": (0.0, 1e29, "no semiconductor has more than ~1e23 atoms per cm^3"),
+    "length": (1e-10, 1.0, "lengths between 0.1 nm and 1 m are accepted"),
+    "area": (1e-20, 1.0, "cross-sections between 0.01 nm^2 and 1 m^2 are accepted"),
+    "field": (0.0, 1e10, "fields above 1e8 V/cm exceed any breakdown field"),
+    "voltage": (-1e6, 1e6, "voltages up to 1 MV are accepted"),
+    "mobility": (0.0, 1e3, "no measured mobility exceeds 1e7 cm^2/(V*s)"),
+    "diffusivity": (0.0, 1e2, "no diffusion coefficient exceeds 1e6 cm^2/s"),
+    "velocity": (0.0, 1e7, "carrier velocities stay far below 1e9 cm/s"),
+    "energy": (-10 * EV, 10 * EV, "a Fermi level more than 10 eV from a band edge is not physical"),
+}
+
+
+def check_plausible(value: float, dimension: str, text, where: str = "") -> float:
+    """Refuse an input far outside anything physical (names the bound and why)."""
+    bounds = PLAUSIBLE.get(dimension)
+    if bounds and not bounds[0] <= value <= bounds[1]:
+        place = f"{where}: " if where else ""
+        raise InputError(f"{place}{text!r} is not a plausible {dimension}: {bounds[2]}; "
+                         "check the exponent and the unit")
+    return value
+
+
 _TEMPERATURE = re.compile(rf"^\s*({_NUMBER})\s*(K|degC|°C|C)\s*$")
 
 

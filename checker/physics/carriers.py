@@ -97,7 +97,8 @@ def intrinsic_onset_temperature(material: Material, net_density, fraction=0.1,
     S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007),
     ch. 1 (n_i and the intrinsic temperature).
     """
-    target = np.log(fraction * np.asarray(net_density, dtype=float))
+    with np.errstate(divide="ignore"):   # zero net doping: intrinsic at every T
+        target = np.log(fraction * np.asarray(net_density, dtype=float))
     lo = np.zeros_like(target)
     hi = np.full_like(target, np.log(T_max))
 
