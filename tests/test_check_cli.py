@@ -151,3 +151,27 @@ def test_point_reports_regime_warnings():
     assert result.returncode == 1
     rules = {f["rule"] for f in json.loads(result.stdout)["calculations"][0]["findings"]}
     assert {"STAT01", "STAT02", "DOPE02"} <= rules
+
+
+def test_custom_material_without_mobility_still_gets_statistics_checks(tmp_path):
+    path = tmp_path / "custom.yaml"
+    path.write_text(
+        "name: custom\nmaterial:\n  name: ExampleX\n"
+        "  band_gap: {Eg0: 1.0 eV, alpha: 3e-4 eV/K, beta: 200 K}\n"
+        "  density_of_states: {Nc300: 1e19 cm-3, Nv300: 1e19 cm-3}\n"
+        "  permittivity: 10.0\n  dopants: {D1: {kind: donor, energy: 20 meV}}\n"
+        "temperature: 300 K\ndoping:\n  donors: {D1: 5e18 cm-3}\n"
+        "assumes: [non-degenerate]\n")
+    result = run("check", str(path), "--format", "json")
+    data = json.loads(result.stdout)
+    calc = data["calculations"][0]
+    assert result.returncode == 1 and calc["error"] is None
+    assert "STAT01" in {f["rule"] for f in calc["findings"]}
+    assert any("transport checks skipped" in note for note in calc["notes"])
+
+
+def test_point_with_field_and_length():
+    result = run("point", "--material", "Si", "--temperature", "300K", "--donor", "P=1e15cm-3",
+                 "--field", "30kV/cm", "--length", "20nm", "--format", "json")
+    rules = {f["rule"] for f in json.loads(result.stdout)["calculations"][0]["findings"]}
+    assert {"TRAN01", "TRAN02"} <= rules

@@ -88,7 +88,7 @@ def summarize(values: dict, i: int) -> dict:
 def check_calculations(calculations, rules=None, input_errors=()) -> RunResult:
     """Solve and check already-read calculations."""
     rules = rulebook.load_rules() if rules is None else rules
-    values, solve_errors = state_values.solve_all(calculations)
+    values, solve_errors, solve_notes = state_values.solve_all(calculations)
     result = evaluate(rules, calculations, values, skip=solve_errors.keys())
     reports = []
     for i, calc in enumerate(calculations):
@@ -97,8 +97,8 @@ def check_calculations(calculations, rules=None, input_errors=()) -> RunResult:
                                                                f"{solve_errors[i]}"))
             continue
         findings = sorted(result.findings[i], key=lambda f: (-SEVERITY_RANK[f.severity], f.rule))
-        reports.append(CalculationReport(calc, summarize(values, i), findings,
-                                         result.waiver_notes[i]))
+        notes = ([solve_notes[i]] if i in solve_notes else []) + result.waiver_notes[i]
+        reports.append(CalculationReport(calc, summarize(values, i), findings, notes))
     errors = list(input_errors) + result.waiver_errors
     errors += [r.error for r in reports if r.error]
     return RunResult(reports, errors, tuple(rules))

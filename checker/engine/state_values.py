@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import RegimecheckError
+from ..errors import MissingParameterError, RegimecheckError
 from ..physics import carriers, equilibrium
 from ..physics.constants import ELEMENTARY_CHARGE
 from .vocabulary import CONSTANTS, concrete_names
@@ -29,29 +29,36 @@ def _group_key(calc):
             int(calc.structure.get("dim", 3)))
 
 
-def solve_all(calculations) -> tuple[dict, dict]:
-    """Return (values, errors): values maps every quantity name to an array over
-    the calculations (NaN where unknown); errors maps a calculation index to
-    the message of a solve that could not be done."""
+def solve_all(calculations) -> tuple[dict, dict, dict]:
+    """Return (values, errors, notes): values maps every quantity name to an array
+    over the calculations (NaN where unknown); errors maps a calculation index to
+    the message of a solve that could not be done; notes maps an index to what
+    was skipped (e.g. transport checks for a material without mobility data)."""
     count = len(calculations)
     values = {name: np.full(count, np.nan) for name in concrete_names()}
     values.update({name: np.full(count, value) for name, value in CONSTANTS.items()})
     values["regime"] = np.full(count, "", dtype=object)
-    errors = {}
+    errors, notes = {}, {}
     groups = {}
     for index, calc in enumerate(calculations):
         groups.setdefault(_group_key(calc), []).append(index)
     for members in groups.values():
         try:
-            _solve_group(calculations, members, values)
+            skipped = _solve_group(calculations, members, values)
         except RegimecheckError:
             for index in members:
                 try:
-                    _solve_group(calculations, [index], values)
+                    skipped = _solve_group(calculations, [index], values)
                 except RegimecheckError as exc:
                     errors[index] = str(exc)
+                    continue
+                if skipped:
+                    notes[index] = skipped
+            continue
+        if skipped:
+            notes.update({index: skipped for index in members})
     _fill_inputs(calculations, values)
-    return values, errors
+    return values, errors, notes
 
 
 def _solve_group(calculations, members, values):
@@ -63,7 +70,16 @@ def _solve_group(calculations, members, values):
     acceptors = {s: np.array([c.acceptors[s] for c in calcs]) for s in first.acceptors}
     state = equilibrium.solve(material, T, donors, acceptors,
                               band_gap_narrowing=first.band_gap_narrowing)
-    flow = carriers.carrier_transport(state, dim)
+    skipped = None
+    try:
+        flow = carriers.carrier_transport(state, dim)
+    except MissingParameterError as exc:
+        # statistics checks still run; mobility-based ones see NaN and stay silent
+        skipped = f"transport checks skipped: {exc}"
+        flow = {key: np.full_like(T, np.nan) for key in (
+            "mu_n", "mu0_n", "vsat_n", "beta_n", "v_n", "mfp_n",
+            "mu_p", "mu0_p", "vsat_p", "beta_p", "v_p", "mfp_p")}
+        flow["kT_over_q"] = state.kT / ELEMENTARY_CHARGE
     (T_lo, T_hi), (N_lo, N_hi), _ = carriers.model_ranges(
         material, _dominant(first.donors), _dominant(first.acceptors))
     net = np.abs(state.donors_total - state.acceptors_total)
@@ -96,6 +112,7 @@ def _solve_group(calculations, members, values):
     put["maj_p"] = 1.0 - put["maj_n"]
     for name, array in put.items():
         values[name][members] = np.broadcast_to(array, T.shape)
+    return skipped
 
 
 def _fill_inputs(calculations, values):
