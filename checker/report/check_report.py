@@ -57,6 +57,9 @@ def render_console(result, console) -> None:
     from rich.text import Text
 
     width = max(console.width, 60)
+    # without colour (a pipe or a file) styles are dropped anyway: write the plain text
+    emit = (lambda text: console.file.write(text.plain)) if console.color_system is None \
+        else (lambda text: console.print(text, end="", highlight=False))
 
     def add(text, line, style="", indent=8):
         for part in textwrap.wrap(line, width - indent, break_on_hyphens=False) or [""]:
@@ -71,7 +74,7 @@ def render_console(result, console) -> None:
                  f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}", indent=0)
         if report.error:
             add(out, f"not checked: {report.error}", "bold red", indent=2)
-            console.print(out, end="")
+            emit(out)
             continue
         for key, label, fmt in STATE_ROWS:
             out.append(f"  {label:<24}", style="dim")
@@ -93,7 +96,7 @@ def render_console(result, console) -> None:
                 add(out, f"waived: {f.waived}", "dim")
         for note in report.notes:
             add(out, f"note: {note}", "yellow", indent=2)
-        console.print(out, end="", highlight=False)
+        emit(out)
     for message in result.input_errors:
         console.print(Text(f"input error: {message}", style="bold red"))
     console.print()
