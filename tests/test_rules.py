@@ -82,6 +82,7 @@ def test_stat01_implied_by_a_boltzmann_fermi_level(tmp_path):
     report = check(tmp_path, calc("GaAs", "300 K", "Si: 2e17 cm-3",
                                   extra=f"stated:\n  ef_minus_ec: {ef:.6f} eV\n"))
     finding = one(report, "STAT01", "electrons")
+    assert finding.line == 7          # the line of ef_minus_ec in the generated file
     eta = eta_of("GaAs", 300.0, {"Si": 2e17})
     level = correction(finding, "Fermi level")
     assert level.stated == pytest.approx(ef * Q, rel=1e-5)

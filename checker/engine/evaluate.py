@@ -95,6 +95,21 @@ class CheckResult:
     waiver_errors: list = field(default_factory=list)  # input errors (unknown rule ids)
 
 
+# quantities derived from another stated key: where to point the reader
+_SOURCE_KEYS = {
+    "stated_sigma": ("stated_sigma", "stated_rho"), "stated_rho": ("stated_rho", "stated_sigma"),
+    **{f"stated_{stem}_{x}": ("stated_ef_minus_ec", "stated_ef_minus_ev")
+       for stem in ("ef", "eta") for x in ("n", "p")},
+}
+
+
+def _line_of(calc, name):
+    for key in _SOURCE_KEYS.get(name, (name,)):
+        if key in calc.lines:
+            return calc.lines[key]
+    return None
+
+
 def _declared_mask(calculations, words) -> np.ndarray:
     return np.array([any(w in c.assumes for w in words) for c in calculations], dtype=bool) \
         if calculations else np.zeros(0, dtype=bool)
@@ -126,11 +141,15 @@ def _run_rule(rule, x, names, declared, calculations, values, valid, result):
     made = np.zeros(count, dtype=bool)
     if rule.declared:
         made |= declared & (_nonzero(values[names["in_use_x"]]) if x else True)
+    implied = []          # (stated name, mask) of each implication, for the source line
     for imp in rule.implied_by:
-        stated = values[names.get(imp.stated, imp.stated)]
+        name = names.get(imp.stated, imp.stated)
+        stated = values[name]
         shortcut = np.asarray(imp.shortcut.run[x](values), dtype=float)
-        made |= np.isfinite(stated) & np.isfinite(shortcut) & \
+        mask = np.isfinite(stated) & np.isfinite(shortcut) & \
             (np.abs(stated / shortcut - 1.0) <= imp.within)
+        implied.append((name, mask))
+        made |= mask
     if not rule.declared and not rule.implied_by:
         made[:] = True
     if rule.when is not None:
@@ -166,7 +185,9 @@ def _run_rule(rule, x, names, declared, calculations, values, valid, result):
             corrections.append(Correction(corr.label, corr.unit, float(value), float(exact[i]),
                                           float(value / exact[i] - 1.0), author))
             if author and line is None:
-                line = calc.lines.get(names.get(corr.stated, corr.stated))
+                line = _line_of(calc, names.get(corr.stated, corr.stated))
+        if line is None:
+            line = next((_line_of(calc, name) for name, mask in implied if mask[i]), None)
         if line is None:
             line = next((calc.assumes[w] for w in rule.declared if w in calc.assumes), calc.line)
         fields = {
