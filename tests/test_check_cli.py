@@ -1,6 +1,7 @@
 """`regimecheck check` end to end: exit codes, JSON keys, the examples, and every
 class of bad input (file:line message, exit 2, other calculations still checked)."""
 import json
+from pathlib import Path
 
 import pytest
 
@@ -175,3 +176,18 @@ def test_point_with_field_and_length():
                  "--field", "30kV/cm", "--length", "20nm", "--format", "json")
     rules = {f["rule"] for f in json.loads(result.stdout)["calculations"][0]["findings"]}
     assert {"TRAN01", "TRAN02"} <= rules
+
+
+def test_batched_run_equals_one_file_at_a_time(example_report):
+    """All calculations are solved and checked together (grouped by material and
+    species); the findings must not depend on what else is in the run."""
+    _, together = example_report
+    key = lambda c: (Path(c["source"]["file"]).name, c["source"]["line"])
+    batched = {key(c): sorted((f["rule"], f["carrier"], round(f["indicator"]["value"] or 0, 9))
+                              for f in c["findings"]) for c in together["calculations"]}
+    for path in sorted(EXAMPLES.glob("*.yaml")):
+        alone = json.loads(run("check", str(path.relative_to(ROOT)), "--format", "json").stdout)
+        for c in alone["calculations"]:
+            single = sorted((f["rule"], f["carrier"], round(f["indicator"]["value"] or 0, 9))
+                            for f in c["findings"])
+            assert batched[key(c)] == single, key(c)

@@ -426,3 +426,22 @@ def test_waiver_marks_finding_and_unused_waiver_is_noted(tmp_path):
         "  - {rule: TRAN02, reason: no field in this calculation}\n")))
     assert one(report, "MOB01").waived == "measured on test wafer W7"
     assert any("TRAN02" in note and "waives nothing" in note for note in report.notes)
+
+
+@pytest.mark.parametrize("material, donor, acceptor", [
+    ("Si", "P", "B"), ("GaAs", "Si", "C"), ("GaN", "Si", "Mg"), ("Ge", "Sb", "Ga"),
+    ("4H-SiC", "N", "Al"), ("InGaAs", "Si", "Zn")])
+def test_nothing_assumed_nothing_fires_but_model_ranges(tmp_path, material, donor, acceptor):
+    """Rules fire only where their assumption is made: with no stated numbers and no
+    declared assumptions, only the model-validity notes may appear, whatever the regime."""
+    from checker.engine.run import check_calculations as run_all
+
+    text = "\n---\n".join(
+        calc(material, f"{T} K", f"{donor}: {N:g} cm-3", f"{acceptor}: {N * ratio:g} cm-3")
+        for T in (20, 300, 900) for N in (1e14, 1e17, 1e20) for ratio in (0, 0.5, 3))
+    path = tmp_path / "grid.yaml"
+    path.write_text(text, encoding="utf-8")
+    read = read_calculation_file(path)
+    assert not read.errors and len(read.calculations) == 27
+    fired = {f.rule for r in run_all(read.calculations).reports for f in r.findings}
+    assert fired <= {"MODEL01", "MODEL02"}
