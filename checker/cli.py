@@ -105,8 +105,10 @@ def _report(result, args) -> int:
     code = _exit_code(result, args)
     if args.format == "json":
         print(render_json(result, code))
-    else:
+    elif sys.stdout.isatty():
         render_console(result, _console())
+    else:
+        render_console(result, stream=sys.stdout)
     return code
 
 

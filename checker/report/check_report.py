@@ -49,17 +49,37 @@ def _where(file, line) -> str:
     return f"{file}:{line}" if line else file
 
 
-def render_console(result, console) -> None:
-    """One rich Text per calculation, printed once (rich's per-call cost dominates
-    large runs); long lines are wrapped here with their indent kept."""
+class _PlainText:
+    """The part of rich's Text used here, for output without colour (no rich import)."""
+
+    def __init__(self, text=""):
+        self.parts = [text]
+
+    def append(self, text, style=""):
+        self.parts.append(text)
+
+    @property
+    def plain(self):
+        return "".join(self.parts)
+
+
+PLAIN_WIDTH = 110
+
+
+def render_console(result, console=None, stream=None) -> None:
+    """The report for a reader: with a rich ``console`` (a terminal: colour), or as
+    plain text to ``stream`` (a pipe or a file: no colour, rich not even imported).
+    One text per calculation, emitted once; long lines wrapped here, indent kept."""
     import textwrap
 
-    from rich.text import Text
+    if console is None:
+        Text, width = _PlainText, PLAIN_WIDTH
+        emit = lambda text: stream.write(text.plain)
+    else:
+        from rich.text import Text
 
-    width = max(console.width, 60)
-    # without colour (a pipe or a file) styles are dropped anyway: write the plain text
-    emit = (lambda text: console.file.write(text.plain)) if console.color_system is None \
-        else (lambda text: console.print(text, end="", highlight=False))
+        width = max(console.width, 60)
+        emit = lambda text: console.print(text, end="", highlight=False)
 
     def add(text, line, style="", indent=8):
         for part in textwrap.wrap(line, width - indent, break_on_hyphens=False) or [""]:
@@ -97,11 +117,11 @@ def render_console(result, console) -> None:
         for note in report.notes:
             add(out, f"note: {note}", "yellow", indent=2)
         emit(out)
+    tail = Text()
     for message in result.input_errors:
-        console.print(Text(f"input error: {message}", style="bold red"))
-    console.print()
-    console.print(summary_line(result), highlight=False)
-    console.print(DISCLAIMER, highlight=False)
+        tail.append(f"input error: {message}\n", style="bold red")
+    tail.append(f"\n{summary_line(result)}\n{DISCLAIMER}\n")
+    emit(tail)
 
 
 def _number(value):
