@@ -8,6 +8,8 @@ test for it.
 """
 from __future__ import annotations
 
+from functools import lru_cache
+
 from ..physics.constants import BOLTZMANN, ELEMENTARY_CHARGE, EV
 
 # display unit -> factor from SI
@@ -94,9 +96,10 @@ def carrier_names(x: str) -> dict:
     return mapping
 
 
-def rule_names() -> set:
+@lru_cache(maxsize=None)
+def rule_names() -> frozenset:
     """Every name a rule expression may use (before carrier expansion)."""
-    return set(COMMON) | set(PER_CARRIER) | set(CONSTANTS)
+    return frozenset(COMMON) | frozenset(PER_CARRIER) | frozenset(CONSTANTS)
 
 
 def concrete_names() -> set:

@@ -10,6 +10,7 @@ import json
 from ..engine.evaluate import display
 from ..engine.vocabulary import DISPLAY_UNITS
 from . import DISCLAIMER
+from .state_report import ROWS
 
 JSON_FORMAT = "regimecheck-report/1"
 STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
@@ -21,17 +22,10 @@ def doping_text(donors: dict, acceptors: dict) -> str:
     return ", ".join(parts) or "undoped"
 
 
-STATE_ROWS = [
-    ("regime", "regime", "{}"),
-    ("EF_minus_EC_eV", "E_F - E_C", "{:+.4f} eV"),
-    ("eta_n", "η_n = (E_F - E_C)/kT", "{:+.3f}"),
-    ("eta_p", "η_p = (E_V - E_F)/kT", "{:+.3f}"),
-    ("n_cm3", "n", "{:.4g} cm^-3"),
-    ("p_cm3", "p", "{:.4g} cm^-3"),
-    ("donors_ionized_fraction", "donors ionized", "{:.1%}"),
-    ("acceptors_ionized_fraction", "acceptors ionized", "{:.1%}"),
-    ("ni_cm3", "n_i", "{:.4g} cm^-3"),
-]
+# the state table of a check: a subset of the `state` command's rows
+STATE_ROWS = [row for row in ROWS if row[0] in (
+    "regime", "EF_minus_EC_eV", "eta_n", "eta_p", "n_cm3", "p_cm3", "donors_ionized_fraction",
+    "acceptors_ionized_fraction", "ni_cm3")]
 
 
 def summary_line(result, exit_code=None) -> str:
