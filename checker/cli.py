@@ -1,7 +1,7 @@
 """Command line: ``regimecheck check PATH...`` and its companions.
 
 Commands: check (the main job), point (one operating point from options),
-rules, explain ID, state (solve only), materials.
+rules, explain ID, symbols, state (solve only), materials.
 Exit codes: 0 no finding at or above the fail level, 1 findings, 2 unusable
 input or usage, 3 internal error.  Bad input never shows a traceback.
 """
@@ -48,6 +48,9 @@ def _parser() -> argparse.ArgumentParser:
     _report_options(point)
     sub.add_parser("materials", help="list the built-in materials and their dopants")
     sub.add_parser("rules", help="list the checks")
+    symbols = sub.add_parser("symbols", help="the trade symbols a stated formula may use")
+    symbols.add_argument("--dimensionality", type=int, choices=(1, 2, 3), default=3,
+                         help="dimensionality the units are shown for (default 3)")
     explain = sub.add_parser("explain", help="what a check tests, why, and how to fix it")
     explain.add_argument("rule", help="a rule id, e.g. STAT02")
     return parser
@@ -151,6 +154,19 @@ def _cmd_rules(_args) -> int:
     return EXIT_OK
 
 
+def _cmd_symbols(args) -> int:
+    from .engine.formula_symbols import FORMULA_FUNCTIONS, glossary
+
+    rows = glossary(args.dimensionality)
+    print(f"{'symbol':11s} {'unit (SI)':20s} meaning  [accepted spellings]")
+    for name, unit, meaning, spellings in rows:
+        print(f"{name:11s} {unit:20s} {meaning}  [{spellings}]")
+    print(f"\nfunctions: {', '.join(FORMULA_FUNCTIONS)}; F(j, eta) is the normalized "
+          "Fermi–Dirac integral of order j.\nWrite each formula as '<left> = <right>' with "
+          "* / + - and ^ or ** for powers; numbers are dimensionless.")
+    return EXIT_OK
+
+
 def _cmd_explain(args) -> int:
     from .engine.rulebook import load_rules
     from .report.rule_text import explain_text
@@ -207,7 +223,7 @@ def _cmd_materials(_args) -> int:
 def main(argv=None) -> int:
     args = _parser().parse_args(argv)
     handler = {"check": _cmd_check, "point": _cmd_point, "state": _cmd_state,
-               "materials": _cmd_materials, "rules": _cmd_rules,
+               "materials": _cmd_materials, "rules": _cmd_rules, "symbols": _cmd_symbols,
                "explain": _cmd_explain}[args.command]
     try:
         return handler(args)

@@ -12,7 +12,7 @@ GOOD = ("name: good one\nmaterial: Si\ntemperature: 300 K\ndoping:\n  donors: {P
         "stated:\n  electron_density: 1e16 cm-3\n")
 ALL_RULES = {"STAT01", "STAT02", "CARR01", "CARR02", "CARR03", "ION01", "ION02", "TRAN01",
              "TRAN02", "MOB01", "MOB02", "CONST01", "CONST02", "CONST03", "DOPE01", "DOPE02", "MODEL01",
-             "MODEL02"}
+             "MODEL02", "FORM01", "FORM02", "FORM03"}
 
 
 @pytest.fixture(scope="module")
@@ -42,11 +42,11 @@ def test_json_keys_are_stable(example_report):
     assert set(data["summary"]) == {"calculations", "findings", "input_errors", "worst", "exit_code"}
     calc = next(c for c in data["calculations"] if c["findings"])
     assert set(calc) == {"source", "name", "material", "temperature_K", "doping_cm3", "state",
-                         "findings", "notes", "error"}
+                         "formulas", "findings", "notes", "error"}
     assert set(calc["source"]) == {"file", "line"}
     finding = calc["findings"][0]
     assert set(finding) == {"rule", "title", "severity", "assumption", "carrier", "indicator",
-                            "message", "where", "corrections", "waived"}
+                            "message", "where", "corrections", "waived", "formula"}
     assert set(finding["indicator"]) == {"label", "value", "threshold", "relation", "unit",
                                          "source"}
     corrections = [c for cc in data["calculations"] for f in cc["findings"]
@@ -55,6 +55,14 @@ def test_json_keys_are_stable(example_report):
                                    "stated_by"}
     waived = [f for cc in data["calculations"] for f in cc["findings"] if f["waived"]]
     assert waived and data["summary"]["findings"]["waived"] == len(waived)
+    formulas = [f for cc in data["calculations"] for f in cc["formulas"]]
+    assert formulas, "the examples state formulas"
+    for formula in formulas:
+        assert set(formula) == {"formula", "line", "status", "dimensions", "embodies",
+                                "assumptions", "relations", "proof", "at_operating_point"}
+        assert set(formula["dimensions"]) == {"left", "right", "problem", "likely_fix"}
+        assert set(formula["at_operating_point"]) == {"unit", "formula", "exact", "error",
+                                                      "error_measure"}
 
 
 def test_exit_codes(tmp_path):

@@ -52,6 +52,10 @@ def build() -> dict:
                        "properties": {k: quantity(d) for k, (_, d) in cf.STATED_KEYS.items()}},
             "assumes": {"type": "array", "items": {"enum": list(cf.ASSUMPTIONS) + sorted(
                 cf.ASSUMPTION_SPELLINGS)}},
+            "formulas": {"type": "array", "items": {
+                "type": "string", "pattern": "^[^=]+=[^=]+$", "maxLength": 4000,
+                "description": "a formula the calculation uses, 'lhs = rhs' in trade symbols "
+                               "(regimecheck symbols lists them), e.g. 'D_n = mu_n*k*T/q'"}},
             "waivers": {"type": "array", "items": {
                 "type": "object", "required": ["rule", "reason"], "additionalProperties": False,
                 "properties": {"rule": {"type": "string", "pattern": "^[A-Za-z]{2,5}[0-9]{2}$"},

@@ -1,7 +1,8 @@
 """Evaluate every rule over the solved quantities of all calculations in one pass.
 
 A rule fires for a calculation (and carrier) where
-  * its assumption is made: declared by the author (``assumes``), or implied by
+  * its assumption is made: declared by the author (``assumes``), embodied in
+    a stated formula (see :mod:`checker.engine.formula_check`), or implied by
     a stated number equal to the shortcut's value within the rule's tolerance,
     and its ``when`` gate holds;
   * the quantities it ``requires`` are known; and
@@ -47,7 +48,9 @@ def error_text(stated: float, corrected: float, unit: str) -> str:
         return f"{ratio:.3g}× too high"
     if 0 < ratio <= 0.1:
         return f"{1 / ratio:.3g}× too low"
-    return f"{abs(ratio - 1):.1%} {'high' if ratio > 1 else 'low'}"
+    off = abs(ratio - 1)
+    shown = f"{off * 100:.2g}%" if off < 0.01 else f"{off:.1%}"
+    return f"{shown} {'high' if ratio > 1 else 'low'}"
 
 
 @dataclass
@@ -58,6 +61,11 @@ class Correction:
     corrected: float       # SI: the Fermi–Dirac / full-model value
     error: float           # stated / corrected - 1
     from_author: bool      # True: the author wrote the number; False: shortcut value
+    origin: str = ""       # "formula" where a stated formula gave the value
+
+    @property
+    def stated_by(self) -> str:
+        return self.origin or ("author" if self.from_author else "shortcut")
 
     def error_text(self) -> str:
         return error_text(self.stated, self.corrected, self.unit)
@@ -81,18 +89,31 @@ class Finding:
     file: str
     line: int
     waived: str | None = None
+    formula: str | None = None     # the stated formula that made the assumption
 
-    def indicator_text(self) -> str:
+    def indicator_text(self) -> str | None:
+        """'η = 1.16 > -3', or None for a check without a numeric indicator."""
+        if not np.isfinite(self.indicator_value):
+            return None
         sign = ">" if self.relation == "above" else "<"
         return (f"{self.indicator_label} = {display(self.indicator_value, self.indicator_unit)} "
                 f"{sign} {display(self.threshold, self.indicator_unit)}")
 
 
+@dataclass(frozen=True)
+class Embodied:
+    """An assumption a stated formula makes (from its limits), and where the formula is."""
+
+    word: str
+    carrier: str | None      # "n", "p", or None (the conductor as a whole)
+    line: int
+    formula: str
+
+
 @dataclass
-class CheckResult:
-    findings: list = field(default_factory=list)     # per calculation index: list[Finding]
-    waiver_notes: list = field(default_factory=list)  # per calculation index: list[str]
-    waiver_errors: list = field(default_factory=list)  # input errors (unknown rule ids)
+class WaiverResult:
+    notes: list = field(default_factory=list)   # per calculation index: list[str]
+    errors: list = field(default_factory=list)  # input errors (unknown rule ids)
 
 
 # quantities derived from another stated key: where to point the reader
@@ -120,27 +141,52 @@ def _nonzero(array) -> np.ndarray:
     return np.isfinite(array) & (array != 0)
 
 
-def evaluate(rules, calculations, values, skip=()) -> CheckResult:
-    """Run ``rules`` over ``values`` (from :func:`state_values.solve_all`)."""
+def evaluate(rules, calculations, values, skip=(), embodied=None) -> list:
+    """Run ``rules`` over ``values`` (from :func:`state_values.solve_all`).
+
+    ``embodied`` (optional) lists per calculation the :class:`Embodied`
+    assumptions of its stated formulas.  Returns the findings per calculation.
+    Rules evaluated elsewhere (``evaluated_by``) are skipped here.
+    """
     count = len(calculations)
-    result = CheckResult([[] for _ in range(count)], [[] for _ in range(count)], [])
+    findings = [[] for _ in range(count)]
     valid = np.ones(count, dtype=bool)
     valid[list(skip)] = False
+    embodied = embodied or [[] for _ in range(count)]
     with np.errstate(all="ignore"):
         for rule in rules:
+            if rule.evaluated_by:
+                continue
             declared = _declared_mask(calculations, rule.declared)
             for x in rule.carriers:
                 names = carrier_names(x) if x else {}
-                _run_rule(rule, x, names, declared, calculations, values, valid, result)
-    _apply_waivers(rules, calculations, result)
-    return result
+                made_by = _formula_made(rule, x, names, embodied, values)
+                _run_rule(rule, x, names, declared, made_by, calculations, values, valid,
+                          findings)
+    return findings
 
 
-def _run_rule(rule, x, names, declared, calculations, values, valid, result):
+def _formula_made(rule, x, names, embodied, values) -> dict:
+    """Calculation index -> the Embodied entry that makes this rule's assumption."""
+    out = {}
+    if not rule.declared:
+        return out
+    for i, items in enumerate(embodied):
+        for item in items:
+            if item.word not in rule.declared:
+                continue
+            if not x or item.carrier == x or \
+                    (item.carrier is None and values[names["in_use_x"]][i] > 0):
+                out.setdefault(i, item)
+    return out
+
+
+def _run_rule(rule, x, names, declared, made_by, calculations, values, valid, findings):
     count = len(calculations)
     made = np.zeros(count, dtype=bool)
     if rule.declared:
         made |= declared & (_nonzero(values[names["in_use_x"]]) if x else True)
+        made[list(made_by)] = True
     implied = []          # (stated name, mask) of each implication, for the source line
     for imp in rule.implied_by:
         name = names.get(imp.stated, imp.stated)
@@ -188,6 +234,8 @@ def _run_rule(rule, x, names, declared, calculations, values, valid, result):
                 line = _line_of(calc, names.get(corr.stated, corr.stated))
         if line is None:
             line = next((_line_of(calc, name) for name, mask in implied if mask[i]), None)
+        if line is None and i in made_by:
+            line = made_by[i].line
         if line is None:
             line = next((calc.assumes[w] for w in rule.declared if w in calc.assumes), calc.line)
         fields = {
@@ -198,29 +246,33 @@ def _run_rule(rule, x, names, declared, calculations, values, valid, result):
         }
         fields.update({key: display(array[i], unit) for key, (array, unit) in shown.items()})
         message = PLACEHOLDER.sub(lambda m: fields[m.group(1)], rule.message)
-        result.findings[i].append(Finding(
+        findings[i].append(Finding(
             rule=rule.id, title=rule.title, severity=rule.severity, assumption=rule.assumption,
             carrier=words[0] if x else None, indicator_label=rule.indicator_label,
             indicator_value=float(indicator[i]), indicator_unit=rule.indicator_unit,
             relation=rule.relation, threshold=rule.threshold,
             threshold_source=rule.threshold_source, message=message, corrections=corrections,
-            file=calc.source, line=int(line)))
+            file=calc.source, line=int(line),
+            formula=made_by[i].formula if i in made_by else None))
 
 
-def _apply_waivers(rules, calculations, result):
+def apply_waivers(rules, calculations, findings) -> WaiverResult:
+    """Mark waived findings; note waivers that waive nothing; unknown rule ids are errors."""
+    result = WaiverResult([[] for _ in calculations], [])
     known = [rule.id for rule in rules]
     for i, calc in enumerate(calculations):
         for rule_id, (reason, line) in calc.waivers.items():
             if rule_id not in known:
                 close = difflib.get_close_matches(rule_id, known, n=1)
                 hint = f"did you mean {close[0]}?" if close else "run 'regimecheck rules' for the ids"
-                result.waiver_errors.append(f"{calc.source}:{line}: the waiver names an unknown "
-                                            f"rule {rule_id!r}; {hint}")
+                result.errors.append(f"{calc.source}:{line}: the waiver names an unknown "
+                                     f"rule {rule_id!r}; {hint}")
                 continue
-            hits = [f for f in result.findings[i] if f.rule == rule_id]
+            hits = [f for f in findings[i] if f.rule == rule_id]
             for finding in hits:
                 finding.waived = reason
             if not hits:
-                result.waiver_notes[i].append(
+                result.notes[i].append(
                     f"{calc.source}:{line}: the waiver of {rule_id} waives nothing here; "
                     "remove it or check the rule id")
+    return result

@@ -66,6 +66,7 @@ def _less(a, b):
 FUNCTIONS = {
     "exp": (1, np.exp, "exp", "e^x"),
     "log": (1, np.log, "log", "natural logarithm"),
+    "ln": (1, np.log, "log", "natural logarithm (same as log)"),
     "sqrt": (1, np.sqrt, "sqrt", "square root"),
     "abs": (1, np.abs, "Abs", "absolute value"),
     "min": (2, np.fmin, "Min", "smaller of two values"),
@@ -79,8 +80,12 @@ FUNCTIONS = {
 _BINARY = {ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/", ast.Pow: "**"}
 
 
-def parse(text: str, names=None, where: str = "") -> tuple:
-    """Parse ``text`` into the tuple tree; ``names`` (optional) is the set of allowed names."""
+def parse(text: str, names=None, where: str = "", functions=None) -> tuple:
+    """Parse ``text`` into the tuple tree.
+
+    ``names`` (optional) is the set of allowed names; ``functions`` (optional)
+    narrows the callable functions to a subset of ``FUNCTIONS``.
+    """
     place = f"{where}: " if where else ""
     if not isinstance(text, str):
         raise InputError(f"{place}expected an expression as text, got {text!r}")
@@ -96,16 +101,17 @@ def parse(text: str, names=None, where: str = "") -> tuple:
         detail = getattr(exc, "msg", None) or type(exc).__name__
         raise InputError(f"{place}cannot parse expression {text!r}: {detail}") from None
     counter = [0]
-    return _walk(tree.body, names, place, text, counter, 0)
+    allowed = FUNCTIONS if functions is None else {f: FUNCTIONS[f] for f in functions}
+    return _walk(tree.body, names, place, text, counter, 0, allowed)
 
 
-def _walk(node, names, place, text, counter, depth):
+def _walk(node, names, place, text, counter, depth, allowed):
     counter[0] += 1
     if counter[0] > MAX_NODES:
         raise InputError(f"{place}expression has more than {MAX_NODES} parts; split it")
     if depth > MAX_DEPTH:
         raise InputError(f"{place}expression is nested deeper than {MAX_DEPTH} levels")
-    go = lambda child: _walk(child, names, place, text, counter, depth + 1)
+    go = lambda child: _walk(child, names, place, text, counter, depth + 1, allowed)
     if isinstance(node, ast.Constant) and type(node.value) in (int, float):
         value = float(node.value) if abs(node.value) < 1e309 else math.inf
         if not math.isfinite(value) or abs(value) > MAX_CONSTANT:
@@ -130,13 +136,16 @@ def _walk(node, names, place, text, counter, depth):
         return (op, left, right)
     if isinstance(node, ast.UnaryOp) and isinstance(node.op, (ast.USub, ast.UAdd)):
         operand = go(node.operand)
-        return ("neg", operand) if isinstance(node.op, ast.USub) else operand
+        if isinstance(node.op, ast.UAdd):
+            return operand
+        # a negative literal is a number (F(-0.5, eta) names an order, not an operation)
+        return ("num", -operand[1]) if operand[0] == "num" else ("neg", operand)
     if isinstance(node, ast.Call) and isinstance(node.func, ast.Name) and not node.keywords:
         name = node.func.id
-        if name not in FUNCTIONS:
+        if name not in allowed:
             raise InputError(f"{place}function {name!r} is not available; use one of "
-                             f"{', '.join(FUNCTIONS)}")
-        arity = FUNCTIONS[name][0]
+                             f"{', '.join(allowed)}")
+        arity = allowed[name][0]
         if len(node.args) != arity or any(isinstance(a, ast.Starred) for a in node.args):
             raise InputError(f"{place}{name}() takes {arity} argument(s)")
         return ("call", name, tuple(go(arg) for arg in node.args))
@@ -193,7 +202,7 @@ def to_numpy(tree):
     """A function ``f(values)`` evaluating the tree on a dict of numpy arrays."""
     kind = tree[0]
     if kind == "num":
-        value = tree[1]
+        value = float(tree[1])
         return lambda values: value
     if kind == "name":
         key = tree[1]
@@ -210,16 +219,33 @@ def to_numpy(tree):
     return lambda values: op(left(values), right(values))
 
 
-def to_sympy(tree, symbols=None):
-    """sympy objects built directly from the tree (nothing is re-parsed from text)."""
+def _sympy_number(value):
+    import sympy
+    from fractions import Fraction
+
+    value = float(value)
+    if value.is_integer() and abs(value) < 1e15:
+        return sympy.Integer(int(value))
+    exact = Fraction(value).limit_denominator(64)
+    # 0.5, 1.5, 0.75 and decimals such as 0.1 are the rationals they stand for
+    return sympy.Rational(exact.numerator, exact.denominator) if float(exact) == value \
+        else sympy.Float(value)
+
+
+def to_sympy(tree, symbols=None, evaluate=False):
+    """sympy objects built directly from the tree (nothing is re-parsed from text).
+
+    ``symbols`` maps tree names to prepared sympy symbols (e.g. with
+    assumptions); names not in it get a plain symbol.  With ``evaluate=False``
+    (for printing) the structure is kept as written; with ``evaluate=True``
+    (for symbolic work) sympy's automatic simplification applies.
+    """
     import sympy
 
     symbols = {} if symbols is None else symbols
     kind = tree[0]
     if kind == "num":
-        value = tree[1]
-        return sympy.Integer(int(value)) if value.is_integer() and abs(value) < 1e15 \
-            else sympy.Float(value)
+        return _sympy_number(tree[1])
     if kind == "name":
         if tree[1] not in symbols:
             # sympy prints every "_" as a subscript: keep only the last one
@@ -227,24 +253,58 @@ def to_sympy(tree, symbols=None):
             shown = f"{stem.replace('_', '')}_{suffix}" if stem else suffix
             symbols[tree[1]] = sympy.Symbol(shown)
         return symbols[tree[1]]
+    go = lambda part: to_sympy(part, symbols, evaluate)
     if kind == "neg":
-        return sympy.Mul(sympy.Integer(-1), to_sympy(tree[1], symbols), evaluate=False)
+        return sympy.Mul(sympy.Integer(-1), go(tree[1]), evaluate=evaluate)
     if kind == "call":
         builder = FUNCTIONS[tree[1]][2]
-        args = [to_sympy(a, symbols) for a in tree[2]]
+        args = [go(a) for a in tree[2]]
         function = getattr(sympy, builder, None) or sympy.Function(builder)
-        return function(*args, evaluate=False) if builder in ("exp", "log", "Abs", "Min", "Max") \
-            else function(*args)
-    left, right = to_sympy(tree[1], symbols), to_sympy(tree[2], symbols)
+        return function(*args, evaluate=evaluate) \
+            if builder in ("exp", "log", "sqrt", "Abs", "Min", "Max") else function(*args)
+    left, right = go(tree[1]), go(tree[2])
+    minus_one = sympy.Integer(-1)
     if kind == "+":
-        return sympy.Add(left, right, evaluate=False)
+        return sympy.Add(left, right, evaluate=evaluate)
     if kind == "-":
-        return sympy.Add(left, sympy.Mul(sympy.Integer(-1), right, evaluate=False), evaluate=False)
+        return sympy.Add(left, sympy.Mul(minus_one, right, evaluate=evaluate), evaluate=evaluate)
     if kind == "*":
-        return sympy.Mul(left, right, evaluate=False)
+        return sympy.Mul(left, right, evaluate=evaluate)
     if kind == "/":
-        return sympy.Mul(left, sympy.Pow(right, sympy.Integer(-1), evaluate=False), evaluate=False)
-    return sympy.Pow(left, right, evaluate=False)
+        return sympy.Mul(left, sympy.Pow(right, minus_one, evaluate=evaluate), evaluate=evaluate)
+    return sympy.Pow(left, right, evaluate=evaluate)
+
+
+_PRECEDENCE = {"+": 1, "-": 1, "*": 2, "/": 2, "neg": 3, "**": 4}
+
+
+def to_text(tree) -> str:
+    """The tree written back as compact formula text (``*``, ``/``, ``^``)."""
+    kind = tree[0]
+    if kind == "num":
+        value = float(tree[1])
+        return str(int(value)) if value.is_integer() and abs(value) < 1e15 else f"{value:g}"
+    if kind == "name":
+        return tree[1]
+    if kind == "call":
+        return f"{tree[1]}({', '.join(to_text(a) for a in tree[2])})"
+    if kind == "neg":
+        inner = tree[1]
+        shown = to_text(inner)
+        return f"-({shown})" if _PRECEDENCE.get(inner[0], 9) <= 2 else f"-{shown}"
+    mine = _PRECEDENCE[kind]
+    left, right = tree[1], tree[2]
+    left_text, right_text = to_text(left), to_text(right)
+    if _PRECEDENCE.get(left[0], 9) < mine or (kind == "**" and left[0] in _PRECEDENCE):
+        left_text = f"({left_text})"
+    # right operand of - and / binds tighter; a power's exponent is wrapped unless atomic
+    if _PRECEDENCE.get(right[0], 9) < mine or \
+            (kind in ("-", "/") and _PRECEDENCE.get(right[0], 9) == mine) or \
+            (kind == "**" and right[0] in _PRECEDENCE):
+        right_text = f"({right_text})"
+    sign = "^" if kind == "**" else kind
+    spaced = f" {sign} " if kind in ("+", "-") else sign
+    return f"{left_text}{spaced}{right_text}"
 
 
 def pretty(tree) -> str:

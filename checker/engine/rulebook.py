@@ -23,7 +23,14 @@ from .vocabulary import DISPLAY_UNITS, carrier_names, rule_names
 SEVERITIES = ("info", "warning", "error")
 # what a rule may guard beyond the words an author declares
 RULE_ONLY_ASSUMPTIONS = ("carrier-type", "stated-mobility", "stated-constants", "light-doping",
-                         "model-validity")
+                         "model-validity", "stated-formula")
+# checks done by engine code rather than by expressions; their rule files hold the
+# documentation, severity and threshold (see DEVELOPERS.md, "Rules evaluated by the engine")
+ENGINE_CHECKS = ("formula-analysis",)
+ENGINE_REQUIRED = ("id", "title", "assumption", "severity", "per", "evaluated_by", "indicator",
+                   "message", "why", "example", "fix", "references")
+FORMULA_PLACEHOLDERS = {"formula", "left", "right", "detail", "fix", "value", "exact", "error",
+                        "threshold", "embodies"}
 ID_PATTERN = re.compile(r"^[A-Z]{2,5}\d{2}$")
 REQUIRED = ("id", "title", "assumption", "severity", "per", "applies", "indicator", "message",
             "corrections", "why", "example", "fix", "references")
@@ -86,6 +93,7 @@ class Rule:
     references: list
     path: str
     carriers: tuple = field(default=())
+    evaluated_by: str | None = None     # engine check that produces this rule's findings
 
 
 def _fail(path, field_name, message):
@@ -126,21 +134,9 @@ def load_rule(path: Path) -> Rule:
     data = load_package_yaml(path.read_text(encoding="utf-8"), str(path))
     if not isinstance(data, dict):
         _fail(path, "(top)", "a rule file is a mapping")
-    for key in data:
-        if key not in REQUIRED + OPTIONAL:
-            _fail(path, key, f"unknown field; fields are {', '.join(REQUIRED + OPTIONAL)}")
-    for key in REQUIRED:
-        if key not in data:
-            _fail(path, key, "missing")
-    rule_id = str(data["id"])
-    if not ID_PATTERN.match(rule_id):
-        _fail(path, "id", "must be 2-5 capitals and 2 digits, e.g. STAT01")
-    if path.stem != rule_id:
-        _fail(path, "id", f"must match the file name ({path.stem})")
-    if data["assumption"] not in ASSUMPTIONS + RULE_ONLY_ASSUMPTIONS:
-        _fail(path, "assumption", f"unknown assumption {data['assumption']!r}")
-    if data["severity"] not in SEVERITIES:
-        _fail(path, "severity", f"must be one of {', '.join(SEVERITIES)}")
+    if "evaluated_by" in data:
+        return _load_engine_rule(path, data)
+    rule_id = _identity(data, path, REQUIRED, OPTIONAL)
     if data["per"] not in ("carrier", "calculation"):
         _fail(path, "per", "must be 'carrier' or 'calculation'")
     carriers = ("n", "p") if data["per"] == "carrier" else ("",)
@@ -204,15 +200,8 @@ def load_rule(path: Path) -> Rule:
     for name in requires:
         if name not in rule_names():
             _fail(path, "requires", f"unknown quantity {name!r}")
-    message = _text(data, "message", path)
-    allowed = {"value", "threshold", "carrier", "dopants", "kind", "error"} | set(show)
-    for match in PLACEHOLDER.finditer(message):
-        if match.group(1) not in allowed:
-            _fail(path, "message", f"unknown placeholder {{{match.group(1)}}}; "
-                                   f"available: {', '.join(sorted(allowed))}")
-    refs = data["references"]
-    if not isinstance(refs, list) or not refs:
-        _fail(path, "references", "must be a non-empty list")
+    message = _message(data, path, {"value", "threshold", "carrier", "dopants", "kind",
+                                    "error"} | set(show))
     return Rule(
         id=rule_id, title=_text(data, "title", path), assumption=data["assumption"],
         severity=data["severity"], per=data["per"], declared=tuple(declared), when=when,
@@ -222,7 +211,66 @@ def load_rule(path: Path) -> Rule:
         threshold_source=_text(ind, "source", path), message=message,
         corrections=corrections, requires=requires, show=show, why=_text(data, "why", path),
         example=_text(data, "example", path), fix=_text(data, "fix", path),
-        references=[str(r) for r in refs], path=str(path), carriers=carriers)
+        references=[str(r) for r in data["references"]], path=str(path), carriers=carriers)
+
+
+def _message(data, path, allowed) -> str:
+    """The message template (its placeholders checked); also checks the references."""
+    message = _text(data, "message", path)
+    for match in PLACEHOLDER.finditer(message):
+        if match.group(1) not in allowed:
+            _fail(path, "message", f"unknown placeholder {{{match.group(1)}}}; "
+                                   f"available: {', '.join(sorted(allowed))}")
+    refs = data["references"]
+    if not isinstance(refs, list) or not refs:
+        _fail(path, "references", "must be a non-empty list")
+    return message
+
+
+def _identity(data, path, required, optional=()):
+    """Check the fields every rule file has; return the rule id."""
+    for key in data:
+        if key not in required + optional:
+            _fail(path, key, f"unknown field; fields are {', '.join(required + optional)}")
+    for key in required:
+        if key not in data:
+            _fail(path, key, "missing")
+    rule_id = str(data["id"])
+    if not ID_PATTERN.match(rule_id):
+        _fail(path, "id", "must be 2-5 capitals and 2 digits, e.g. STAT01")
+    if Path(path).stem != rule_id:
+        _fail(path, "id", f"must match the file name ({Path(path).stem})")
+    if data["assumption"] not in ASSUMPTIONS + RULE_ONLY_ASSUMPTIONS:
+        _fail(path, "assumption", f"unknown assumption {data['assumption']!r}")
+    if data["severity"] not in SEVERITIES:
+        _fail(path, "severity", f"must be one of {', '.join(SEVERITIES)}")
+    return rule_id
+
+
+def _load_engine_rule(path: Path, data: dict) -> Rule:
+    """A rule whose findings come from engine code (e.g. formula analysis)."""
+    rule_id = _identity(data, path, ENGINE_REQUIRED)
+    if data["evaluated_by"] not in ENGINE_CHECKS:
+        _fail(path, "evaluated_by", f"must be one of {', '.join(ENGINE_CHECKS)}")
+    if data["per"] != "calculation":
+        _fail(path, "per", "an engine-evaluated rule is per calculation")
+    ind = data["indicator"]
+    if not isinstance(ind, dict) or set(ind) - {"label", "unit", "above", "source"}:
+        _fail(path, "indicator", "give label and source (and optionally unit and above)")
+    unit = ind.get("unit", "1")
+    if unit not in DISPLAY_UNITS:
+        _fail(path, "indicator.unit", f"unknown display unit {unit!r}")
+    threshold = _number(ind, "above", path) if "above" in ind else float("nan")
+    message = _message(data, path, FORMULA_PLACEHOLDERS)
+    return Rule(
+        id=rule_id, title=_text(data, "title", path), assumption=data["assumption"],
+        severity=data["severity"], per="calculation", declared=(), when=None, implied_by=[],
+        indicator_label=_text(ind, "label", path), indicator=None, indicator_unit=unit,
+        relation="above", threshold=threshold, threshold_source=_text(ind, "source", path),
+        message=message, corrections=[], requires=(), show={}, why=_text(data, "why", path),
+        example=_text(data, "example", path), fix=_text(data, "fix", path),
+        references=[str(r) for r in data["references"]], path=str(path), carriers=("",),
+        evaluated_by=data["evaluated_by"])
 
 
 @lru_cache(maxsize=4)

@@ -10,8 +10,8 @@ from pathlib import Path
 
 from ..inputs.calculation_file import read_calculation_file
 from ..physics.constants import EV
-from . import rulebook, state_values
-from .evaluate import SEVERITY_RANK, evaluate
+from . import formula_check, rulebook, state_values
+from .evaluate import SEVERITY_RANK, apply_waivers, evaluate
 
 CALCULATION_SUFFIXES = (".yaml", ".yml")
 
@@ -23,6 +23,7 @@ class CalculationReport:
     findings: list = field(default_factory=list)
     notes: list = field(default_factory=list)
     error: str | None = None     # the calculation could not be solved
+    formulas: list = field(default_factory=list)   # formula_check.FormulaResult
 
 
 @dataclass
@@ -89,17 +90,26 @@ def check_calculations(calculations, rules=None, input_errors=()) -> RunResult:
     """Solve and check already-read calculations."""
     rules = rulebook.load_rules() if rules is None else rules
     values, solve_errors, solve_notes = state_values.solve_all(calculations)
-    result = evaluate(rules, calculations, values, skip=solve_errors.keys())
+    formulas = formula_check.analyse_all(calculations, values, skip=solve_errors.keys())
+    findings = evaluate(rules, calculations, values, skip=solve_errors.keys(),
+                        embodied=[f.embodied for f in formulas])
+    by_id = {rule.id: rule for rule in rules}
+    for i, calc in enumerate(calculations):
+        if i not in solve_errors:
+            findings[i] += formula_check.formula_findings(formulas[i], by_id, calc, findings[i])
+    waivers = apply_waivers(rules, calculations, findings)
     reports = []
     for i, calc in enumerate(calculations):
         if i in solve_errors:
             reports.append(CalculationReport(calc, None, error=f"{calc.source}:{calc.line}: "
                                                                f"{solve_errors[i]}"))
             continue
-        findings = sorted(result.findings[i], key=lambda f: (-SEVERITY_RANK[f.severity], f.rule))
-        notes = ([solve_notes[i]] if i in solve_notes else []) + result.waiver_notes[i]
-        reports.append(CalculationReport(calc, summarize(values, i), findings, notes))
-    errors = list(input_errors) + result.waiver_errors
+        ordered = sorted(findings[i], key=lambda f: (-SEVERITY_RANK[f.severity], f.rule))
+        notes = ([solve_notes[i]] if i in solve_notes else []) + waivers.notes[i]
+        reports.append(CalculationReport(calc, summarize(values, i), ordered, notes,
+                                         formulas=formulas[i].results))
+    errors = list(input_errors) + waivers.errors
+    errors += [message for f in formulas for message in f.errors]
     errors += [r.error for r in reports if r.error]
     return RunResult(reports, errors, tuple(rules))
 

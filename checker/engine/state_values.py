@@ -100,6 +100,7 @@ def _solve_group(calculations, members, values):
             ("p", state.eta_p, state.p, state.Nv, state.acceptors_total, state.donors_total,
              state.acceptors_ionized_total, state.acceptor_fraction, first.acceptors)):
         mott = min((material.dopant(s).mott_density for s in species), default=np.inf)
+        main = material.dopant(_dominant(species)) if species else None
         put.update({
             f"eta_{x}": eta, f"dens_{x}": dens, f"Nband_{x}": nband, f"N_{x}": own,
             f"Ncomp_{x}": other, f"Nion_{x}": ionized, f"f_{x}": fraction,
@@ -107,6 +108,8 @@ def _solve_group(calculations, members, values):
             f"mu_{x}": flow[f"mu_{x}"], f"mu0_{x}": flow[f"mu0_{x}"],
             f"vsat_{x}": flow[f"vsat_{x}"], f"beta_{x}": flow[f"beta_{x}"],
             f"vth_{x}": flow[f"v_{x}"], f"lambda_{x}": flow[f"mfp_{x}"],
+            f"Eion_{x}": np.full_like(T, main.energy if main else np.nan),
+            f"gdeg_{x}": np.full_like(T, main.degeneracy if main else np.nan),
         })
     put["maj_n"] = (state.n >= state.p).astype(float)
     put["maj_p"] = 1.0 - put["maj_n"]

@@ -10,13 +10,15 @@ from __future__ import annotations
 
 from functools import lru_cache
 
-from ..physics.constants import BOLTZMANN, ELEMENTARY_CHARGE, EV
+from ..physics.constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE, EV
 
 # display unit -> factor from SI
 DISPLAY_UNITS = {
     "1": 1.0, "%": 100.0, "K": 1.0, "eV": 1.0 / EV, "V": 1.0,
     "cm^-3": 1e-6, "cm^2/(V*s)": 1e4, "cm^2/s": 1e4, "cm/s": 100.0, "kV/cm": 1e-5,
     "ohm*cm": 100.0, "S/cm": 0.01, "ohm": 1.0, "ohm/sq": 1.0, "nm": 1e9, "um": 1e6,
+    "cm^-2": 1e-4, "cm^-1": 1e-2, "cm^-6": 1e-12, "cm^-4": 1e-8, "um^2": 1e12, "A/cm^2": 1e-4, "S": 1.0,
+    "m0": 1.0 / ELECTRON_MASS,
 }
 
 CONSTANTS = {"q": ELEMENTARY_CHARGE, "k": BOLTZMANN}
@@ -61,6 +63,8 @@ PER_CARRIER = {
     "Nion_x": ("cm^-3", "ionized density of N_x"),
     "f_x": ("1", "ionized fraction of N_x (1 where there are none)"),
     "mott_x": ("cm^-3", "lowest Mott density among the species of N_x (inf: none)"),
+    "Eion_x": ("eV", "ionization energy of the main species of N_x (J inside)"),
+    "gdeg_x": ("1", "ground-state degeneracy factor of the main species of N_x"),
     "metal_x": ("1", "1 where N_x is above its Mott density"),
     "maj_x": ("1", "1 where this carrier is the majority"),
     "in_use_x": ("1", "1 where the calculation uses this carrier"),

@@ -12,6 +12,7 @@ Keys (all optional except material and temperature):
                  field | voltage
     stated:      the numbers the author gives (see STATED_KEYS)
     assumes:     [trade words of ASSUMPTIONS]
+    formulas:    ["<lhs> = <rhs>", ...] in trade symbols (analysed by the engine)
     waivers:     [{rule: <id>, reason: <text>}, ...]
     options:
       band_gap_narrowing: true | false
@@ -34,7 +35,7 @@ from .quantities import check_plausible, parse_quantity, parse_temperature
 from .yaml_source import _StrictLoader
 
 TOP_KEYS = ("name", "material", "temperature", "doping", "structure", "stated", "assumes",
-            "waivers", "options")
+            "formulas", "waivers", "options")
 DOPING_KEYS = ("donors", "acceptors")
 OPTION_KEYS = ("band_gap_narrowing",)
 # YAML key -> (engine quantity name, dimension)
@@ -103,6 +104,12 @@ class Calculation:
     assumes: dict = field(default_factory=dict)      # word -> line
     waivers: dict = field(default_factory=dict)      # rule id -> (reason, line)
     lines: dict = field(default_factory=dict)        # engine name -> line of its key
+    formulas: list = field(default_factory=list)     # (text, "file:line:col", line)
+
+    @property
+    def majority(self) -> str:
+        """The carrier the doping gives ("n" when undoped): what an unsubscripted mu means."""
+        return "p" if sum(self.acceptors.values()) > sum(self.donors.values()) else "n"
 
 
 @dataclass
@@ -244,7 +251,25 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     calc.stated = _quantities(data, "stated", STATED_KEYS, where, calc.lines)
     calc.assumes = _assumptions(data.get("assumes"), where)
     calc.waivers = _waivers(data.get("waivers"), where)
+    calc.formulas = _formulas(data.get("formulas"), where)
     return calc
+
+
+def _formulas(entries, where) -> list:
+    if entries is None:
+        return []
+    if isinstance(entries, str):
+        entries = [entries]
+    if not isinstance(entries, list):
+        raise InputError(f"{where('formulas')}: formulas must be a list of texts such as "
+                         "['D_n = mu_n*k*T/q', 'n = N_D']")
+    out = []
+    for i, text in enumerate(entries):
+        if not isinstance(text, str) or not text.strip():
+            raise InputError(f"{where('formulas', i)}: write each formula as text "
+                             "'<left side> = <right side>'")
+        out.append((text.strip(), where("formulas", i), where.line("formulas", i)))
+    return out
 
 
 def _quantities(data, section, keys, where, lines) -> dict:

@@ -93,6 +93,11 @@ def render_console(result, console=None, stream=None) -> None:
         for key, label, fmt in STATE_ROWS:
             out.append(f"  {label:<24}", style="dim")
             out.append(f"{fmt.format(report.state[key]):>24}\n")
+        for r in report.formulas:
+            out.append(f"  formula (line {r.line})".ljust(26), style="dim")
+            out.append(f"{r.text}\n", style="bold")
+            for line in formula_lines(r):
+                add(out, line, indent=26)
         if not report.findings:
             out.append("  no assumption leaves its regime\n", style="green")
         for f in report.findings:
@@ -101,9 +106,10 @@ def render_console(result, console=None, stream=None) -> None:
             out.append(f"{f.rule}  {f.title}", style="bold")
             out.append(f"  at {_where(f.file, f.line)}\n", style="dim")
             add(out, f.message)
-            add(out, f"regime indicator: {f.indicator_text()}", "dim")
+            if f.indicator_text():
+                add(out, f"regime indicator: {f.indicator_text()}", "dim")
             for c in f.corrections:
-                origin = "stated" if c.from_author else "shortcut"
+                origin = "stated" if c.from_author else (c.origin or "shortcut")
                 add(out, f"{c.label}: {display(c.stated, c.unit)} ({origin}) → "
                          f"{display(c.corrected, c.unit)}  [{c.error_text()}]")
             if f.waived:
@@ -116,6 +122,25 @@ def render_console(result, console=None, stream=None) -> None:
         tail.append(f"input error: {message}\n", style="bold red")
     tail.append(f"\n{summary_line(result)}\n{DISCLAIMER}\n")
     emit(tail)
+
+
+def formula_lines(r) -> list:
+    """What the console says under a stated formula."""
+    if r.problem:
+        return [f"dimensions differ: {r.problem}"]
+    match = r.match
+    if match.status == "unrecognised":
+        what = "matches no exact relation in any named limit"
+    elif match.status == "exact":
+        what = f"exact: {', '.join(match.relations)}"
+    else:
+        what = f"embodies {'; '.join(match.labels)} [{', '.join(match.relations)}]"
+    if match.proof == "numeric":
+        what += " (identity shown at random points; sympy did not close it)"
+    lines = [what]
+    if r.error_text() != "n/a":
+        lines.append(f"here {r.show(r.value)}, exact {r.show(r.exact)} ({r.error_text()})")
+    return lines
 
 
 def _number(value):
@@ -137,9 +162,28 @@ def finding_json(f) -> dict:
             "stated": _number(c.stated * DISPLAY_UNITS[c.unit]),
             "corrected": _number(c.corrected * DISPLAY_UNITS[c.unit]),
             "relative_error": _number(c.error),
-            "stated_by": "author" if c.from_author else "shortcut",
+            "stated_by": c.stated_by,
         } for c in f.corrections],
         "waived": f.waived,
+        "formula": f.formula,
+    }
+
+
+def formula_json(r) -> dict:
+    factor = DISPLAY_UNITS.get(r.unit, 1.0)
+    match = r.match
+    return {
+        "formula": r.text, "line": r.line, "status": r.status,
+        "dimensions": {"left": r.left_dimension or None, "right": r.right_dimension or None,
+                       "problem": r.problem, "likely_fix": r.fix},
+        "embodies": list(match.labels) if match else [],
+        "assumptions": [{"assumption": word, "carrier": carrier}
+                        for word, carrier in (match.assumptions if match else ())],
+        "relations": list(match.relations) if match else [],
+        "proof": match.proof if match else None,
+        "at_operating_point": {"unit": r.unit or r.si_unit or None, "formula": _number(r.value * factor),
+                               "exact": _number(r.exact * factor), "error": _number(r.error),
+                               "error_measure": "kT" if r.unit == "eV" else "relative"},
     }
 
 
@@ -155,6 +199,7 @@ def render_json(result, exit_code: int) -> str:
             "doping_cm3": {"donors": {k: v * 1e-6 for k, v in calc.donors.items()},
                            "acceptors": {k: v * 1e-6 for k, v in calc.acceptors.items()}},
             "state": report.state,
+            "formulas": [formula_json(r) for r in report.formulas],
             "findings": [finding_json(f) for f in report.findings],
             "notes": report.notes,
             "error": report.error,

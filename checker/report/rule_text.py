@@ -24,7 +24,25 @@ def _formula(label: str, tree) -> str:
     return f"  {label}:\n" + textwrap.indent(art, "      ")
 
 
+def _engine_text(rule) -> list:
+    """The 'how it is evaluated' part of a rule checked by engine code (formula analysis)."""
+    lines = [_block("When it applies", "to every formula in a calculation's 'formulas' list, "
+                    "after its symbols are mapped onto trade symbols (regimecheck symbols)."),
+             "", "Condition (fires when)"]
+    if rule.threshold == rule.threshold:
+        lines.append(f"  {rule.indicator_label} > {rule.threshold:g}")
+    else:
+        lines.append(f"  {rule.indicator_label}")
+    lines.append(_block("  threshold source", rule.threshold_source))
+    return lines
+
+
 def explain_text(rule) -> str:
+    if rule.evaluated_by:
+        lines = [f"{rule.id}  {rule.title}",
+                 f"  guards: {rule.assumption}   severity: {rule.severity}   evaluated by "
+                 f"{rule.evaluated_by}", ""] + _engine_text(rule)
+        return "\n".join(lines + _closing(rule))
     per = ("per carrier: names ending in _x are the carrier checked, _o the other one"
            if rule.per == "carrier" else "per calculation")
     applies = []
@@ -60,7 +78,10 @@ def explain_text(rule) -> str:
     if known:
         lines += ["", "Quantities"]
         lines += [f"  {n:14s} {glossary[n][1]} [{glossary[n][0]}]" for n in known]
-    lines += ["", _block("Why it matters", rule.why), "", _block("Example", rule.example), "",
-              _block("Fix", rule.fix), "", "References"]
-    lines += [f"  - {ref}" for ref in rule.references]
-    return "\n".join(lines)
+    return "\n".join(lines + _closing(rule))
+
+
+def _closing(rule) -> list:
+    lines = ["", _block("Why it matters", rule.why), "", _block("Example", rule.example), "",
+             _block("Fix", rule.fix), "", "References"]
+    return lines + [f"  - {ref}" for ref in rule.references]

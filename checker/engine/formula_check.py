@@ -1,0 +1,404 @@
+"""Stated formulas: parse them, check their dimensions, find the limits they embody,
+and evaluate them at the solved operating point.
+
+For each formula ``lhs = rhs`` of a calculation:
+
+* both sides are parsed by the safe expression parser and every spelling is
+  mapped onto a trade symbol (:mod:`formula_symbols`); an unknown symbol is an
+  input error naming the closest known ones;
+* the two sides' dimensions are compared (rule FORM01); a mismatch comes with
+  the likely fix, found by inverting a few factors of the right side;
+* :func:`formula_match.analyse` finds the limits the formula embodies; their
+  assumption words go to the rules (as if the author had declared them, at
+  the formula's line);
+* the right side is evaluated with the exact values of its symbols at the
+  operating point and compared with the exact value of the left side.
+  Unrecognised formulas are reported (FORM02), and a formula whose value is off
+  by more than FORM03's threshold is a finding unless a rule already fired on
+  an assumption it embodies.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from itertools import combinations
+
+import numpy as np
+
+from ..errors import InputError
+from ..physics.constants import ELECTRON_MASS, PLANCK
+from . import dimensions as dm
+from .evaluate import Correction, Embodied, Finding, display, error_text
+from .expression import MAX_LENGTH, names_in, parse, rename, to_numpy, to_text
+from .formula_match import Match, analyse
+from .formula_symbols import dimension_of, parse_side
+from .relations import world
+from .rulebook import PLACEHOLDER
+
+# lhs dimension -> display unit of the report
+_DISPLAY = {
+    dm.density(3): "cm^-3", dm.density(2): "cm^-2", dm.density(1): "cm^-1",
+    dm.MOBILITY: "cm^2/(V*s)", dm.DIFFUSIVITY: "cm^2/s", dm.VELOCITY: "cm/s",
+    dm.FIELD: "kV/cm", dm.conductivity(3): "S/cm", dm.NONE / dm.conductivity(3): "ohm*cm",
+    dm.RESISTANCE: "ohm", dm.NONE / dm.RESISTANCE: "S", dm.ENERGY: "eV", dm.VOLTAGE: "V",
+    dm.TEMPERATURE: "K", dm.NONE: "1", dm.LENGTH: "nm", dm.AREA: "um^2", dm.MASS: "m0",
+    dm.CURRENT / dm.AREA: "A/cm^2", dm.density(3) ** 2: "cm^-6", dm.density(2) ** 2: "cm^-4",
+}
+# formula symbol -> quantity of the solved state (SI)
+_FROM_STATE = {
+    "T": "T", "k": "k", "q": "q", "eta_n": "eta_n", "eta_p": "eta_p", "E_g": "Eg",
+    "n": "dens_n", "p": "dens_p", "N_c": "Nband_n", "N_v": "Nband_p", "n_i": "ni",
+    "N_D": "N_n", "N_A": "N_p", "N_D_plus": "Nion_n", "N_A_minus": "Nion_p",
+    "f_D": "f_n", "f_A": "f_p", "g_D": "gdeg_n", "g_A": "gdeg_p",
+    "dE_D": "Eion_n", "dE_A": "Eion_p", "mu_n": "used_mu_n", "mu_p": "used_mu_p",
+    "v_sat_n": "vsat_n", "v_sat_p": "vsat_p", "beta_n": "beta_n", "beta_p": "beta_p",
+    "lambda_n": "lambda_n", "lambda_p": "lambda_p", "E": "field", "sigma": "sigma",
+    "rho": "rho", "L": "L", "A": "A", "t": "thickness",
+}
+# the solve is of a bulk (3D) crystal: its densities are not sheet or line densities
+_BULK_ONLY = ("n", "p", "N_c", "N_v", "n_i", "N_D", "N_A", "N_D_plus", "N_A_minus", "sigma",
+              "rho")
+
+
+class _Mismatch(Exception):
+    """Two things that should have one dimension do not (message for the reader)."""
+
+
+@dataclass
+class FormulaResult:
+    text: str
+    where: str                     # file:line:column
+    line: int
+    lhs: tuple
+    rhs: tuple
+    left_dimension: str = ""
+    right_dimension: str = ""
+    problem: str | None = None     # dimension problem, in words
+    fix: str | None = None         # likely corrected formula
+    match: Match | None = None
+    value: float = math.nan        # right side at the operating point (SI)
+    exact: float = math.nan        # left side, exact, at the operating point (SI)
+    unit: str = ""                 # display unit (a key of DISPLAY_UNITS), "" for SI
+    si_unit: str = ""              # SI unit text where no display unit is set
+    error: float = math.nan        # relative error, or (value - exact)/kT for energies
+
+    @property
+    def status(self) -> str:
+        return "dimension-error" if self.problem else self.match.status
+
+    def error_text(self) -> str:
+        if not (np.isfinite(self.value) and np.isfinite(self.exact)) or self.exact == 0:
+            return "n/a"
+        if abs(self.error) < 1e-4:
+            return "agrees"
+        return error_text(self.value, self.exact, self.unit)
+
+    def show(self, value: float) -> str:
+        """A value in the report's unit (SI with its unit where no trade unit is set)."""
+        if self.unit:
+            return display(value, self.unit)
+        return f"{value:.4g} {self.si_unit}"
+
+
+@dataclass
+class FormulaAnalysis:
+    results: list = field(default_factory=list)     # FormulaResult, in file order
+    embodied: list = field(default_factory=list)    # Embodied
+    errors: list = field(default_factory=list)      # input errors (file:line: ...)
+
+
+# ---- parsing --------------------------------------------------------------------------------
+def parse_formula(text: str, majority: str, where: str) -> tuple:
+    """(lhs, rhs, spelled): trees in canonical symbols and the author's spelling of each
+    symbol; InputError for anything else."""
+    if len(text) > MAX_LENGTH:
+        raise InputError(f"{where}: the formula is {len(text)} characters long; the limit is "
+                         f"{MAX_LENGTH}")
+    sides = text.split("=")
+    if len(sides) != 2 or any(c in text for c in "<>!"):
+        raise InputError(f"{where}: write a formula as '<left side> = <right side>' with one "
+                         f"'=' (got {text[:60]!r})")
+    left, right = (side.strip() for side in sides)
+    if not left or not right:
+        raise InputError(f"{where}: one side of {text[:60]!r} is empty")
+    (lhs, left_names), (rhs, right_names) = (parse_side(left, majority, where),
+                                             parse_side(right, majority, where))
+    return lhs, rhs, {**right_names, **left_names}
+
+
+# ---- dimensions -----------------------------------------------------------------------------
+def _constant(tree):
+    if names_in(tree):
+        return None
+    with np.errstate(all="ignore"):
+        value = float(to_numpy(tree)({}))
+    return value if math.isfinite(value) else None
+
+
+def dimension(tree, dim: int) -> dm.Dimension:
+    """The dimension of a canonical tree; _Mismatch where it has none."""
+    kind = tree[0]
+    if kind == "num":
+        return dm.NONE
+    if kind == "name":
+        return dm.NONE if tree[1] == "pi" else dimension_of(tree[1], dim)
+    if kind == "neg":
+        return dimension(tree[1], dim)
+    if kind == "call":
+        name, args = tree[1], tree[2]
+        inner = [dimension(a, dim) for a in args]
+        if name in ("exp", "log", "ln", "F"):
+            argument = inner[-1]
+            if not argument.dimensionless:
+                raise _Mismatch(f"the argument of {name}(), {to_text(args[-1])}, is "
+                                f"{dm.describe(argument)}; it must be dimensionless")
+            return dm.NONE
+        if name == "sqrt":
+            return inner[0] ** 0.5
+        return inner[0]
+    left, right = dimension(tree[1], dim), dimension(tree[2], dim)
+    if kind in ("+", "-"):
+        if left != right:
+            raise _Mismatch(f"{to_text(tree[1])} is {dm.describe(left)} but "
+                            f"{to_text(tree[2])} is {dm.describe(right)}; terms of a sum "
+                            "must have one dimension")
+        return left
+    if kind == "*":
+        return left * right
+    if kind == "/":
+        return left / right
+    if not right.dimensionless:
+        raise _Mismatch(f"the exponent {to_text(tree[2])} is {dm.describe(right)}")
+    if left.dimensionless:
+        return dm.NONE
+    power = _constant(tree[2])
+    if power is None:
+        raise _Mismatch(f"{to_text(tree[1])} ({dm.describe(left)}) is raised to the "
+                        f"non-constant power {to_text(tree[2])}")
+    return left ** power
+
+
+def _factors(tree, exponent=1) -> list:
+    if tree[0] == "*":
+        return _factors(tree[1], exponent) + _factors(tree[2], exponent)
+    if tree[0] == "/":
+        return _factors(tree[1], exponent) + _factors(tree[2], -exponent)
+    return [(tree, exponent)]
+
+
+def _product(factors) -> tuple:
+    def chain(parts):
+        out = parts[0]
+        for part in parts[1:]:
+            out = ("*", out, part)
+        return out
+
+    up = [t for t, e in factors if e > 0] or [("num", 1.0)]
+    down = [t for t, e in factors if e < 0]
+    return chain(up) if not down else ("/", chain(up), chain(down))
+
+
+_MISSING = ("q", "k*T", "k*T/q", "k", "T")
+
+
+def likely_fix(lhs, rhs, dim: int, majority: str):
+    """A corrected right side: a few factors inverted (or one common factor added)."""
+    try:
+        target = dimension(lhs, dim)
+    except _Mismatch:
+        return None
+    factors = _factors(rhs)
+    candidates = []
+    if len(factors) <= 8:
+        for size in range(1, min(3, len(factors)) + 1):
+            for flip in combinations(range(len(factors)), size):
+                tree = _product([(t, -e if i in flip else e) for i, (t, e) in enumerate(factors)])
+                if _has_dimension(tree, dim, target):
+                    candidates.append(tree)
+            if candidates:
+                break
+    if not candidates:
+        for text in _MISSING:
+            extra = parse(text)
+            for tree in (("*", rhs, extra), ("/", rhs, extra)):
+                if _has_dimension(tree, dim, target):
+                    candidates.append(tree)
+    for tree in candidates[:6]:
+        if analyse(lhs, tree, dim, majority).status != "unrecognised":
+            return tree
+    return candidates[0] if candidates else None
+
+
+def _has_dimension(tree, dim, target) -> bool:
+    try:
+        return dimension(tree, dim) == target
+    except _Mismatch:
+        return False
+
+
+# ---- values at the operating point ----------------------------------------------------------
+def operating_values(values: dict, calculations) -> list:
+    """Per calculation, every formula symbol's exact value at its operating point (SI)."""
+    count = len(calculations)
+    known = {name: np.asarray(values[key], dtype=float) for name, key in _FROM_STATE.items()}
+    kT = values["kT"]
+    known["E_v"] = np.zeros(count)
+    known["E_c"] = np.asarray(values["Eg"], dtype=float)
+    known["E_F"] = known["E_c"] + values["eta_n"] * kT
+    known["W"] = np.array([c.structure.get("width", np.nan) for c in calculations], dtype=float)
+    known.update({"h": np.full(count, PLANCK), "m0": np.full(count, ELECTRON_MASS),
+                  "pi": np.full(count, math.pi)})
+    dims = np.array([int(c.structure.get("dim", 3)) for c in calculations], dtype=int)
+    for name in _BULK_ONLY:
+        known[name] = np.where(dims == 3, known[name], np.nan)
+    out = [None] * count
+    groups = {}
+    for i, calc in enumerate(calculations):
+        groups.setdefault((int(dims[i]), calc.majority), []).append(i)
+    for (dim, majority), members in groups.items():
+        base = world(dim, "donor", majority)
+        point = {name: array[members] for name, array in known.items()}
+        with np.errstate(all="ignore"):
+            for name in base.order:
+                if name not in point:
+                    point[name] = np.broadcast_to(
+                        to_numpy(base.definitions[name])(point), (len(members),))
+        for k, i in enumerate(members):
+            out[i] = {name: float(array[k]) for name, array in point.items()}
+    return out
+
+
+def _evaluate(tree, point: dict) -> float:
+    try:
+        with np.errstate(all="ignore"):
+            return float(to_numpy(tree)(point))
+    except KeyError:
+        return math.nan
+
+
+# ---- one calculation ------------------------------------------------------------------------
+def analyse_calculation(calc, point: dict | None) -> FormulaAnalysis:
+    """Parse, dimension-check, match and evaluate every formula of ``calc``."""
+    out = FormulaAnalysis()
+    dim = int(calc.structure.get("dim", 3))
+    for text, where, line in calc.formulas:
+        try:
+            lhs, rhs, spelled = parse_formula(text, calc.majority, where)
+        except InputError as exc:
+            out.errors.append(str(exc))
+            continue
+        result = FormulaResult(text, where, line, lhs, rhs)
+        out.results.append(result)
+        try:
+            left = dimension(lhs, dim)
+            right = dimension(rhs, dim)
+        except _Mismatch as exc:
+            result.problem = str(exc)
+            continue
+        result.left_dimension, result.right_dimension = dm.describe(left), dm.describe(right)
+        if left != right:
+            result.problem = (f"the left side is {dm.describe(left)}, the right side "
+                              f"{dm.describe(right)}")
+            fix = likely_fix(lhs, rhs, dim, calc.majority)
+            if fix is not None:
+                result.fix = f"{to_text(rename(lhs, spelled))} = {to_text(rename(fix, spelled))}"
+            continue
+        result.match = analyse(lhs, rhs, dim, calc.majority)
+        result.unit = _DISPLAY.get(left, "")
+        result.si_unit = dm.text(left)
+        if point is not None:
+            result.value, result.exact = _evaluate(rhs, point), _evaluate(lhs, point)
+            if np.isfinite(result.value) and np.isfinite(result.exact):
+                if left == dm.ENERGY:
+                    result.error = (result.value - result.exact) / (point["k"] * point["T"])
+                elif result.exact != 0:
+                    result.error = result.value / result.exact - 1.0
+        for word, carrier in result.match.assumptions:
+            out.embodied.append(Embodied(word, carrier, line, text))
+    return out
+
+
+def analyse_all(calculations, values, skip=()) -> list:
+    """FormulaAnalysis per calculation (values at the operating point unless skipped)."""
+    with_formulas = [i for i, c in enumerate(calculations) if c.formulas]
+    points = [None] * len(calculations)
+    if with_formulas:
+        solved = [i for i in with_formulas if i not in skip]
+        if solved:
+            subset = {name: np.asarray(array)[solved] if np.ndim(array) else array
+                      for name, array in values.items()}
+            for i, point in zip(solved, operating_values(subset, [calculations[i]
+                                                                  for i in solved])):
+                points[i] = point
+    return [analyse_calculation(calc, points[i]) if calc.formulas else FormulaAnalysis()
+            for i, calc in enumerate(calculations)]
+
+
+# ---- findings -------------------------------------------------------------------------------
+def _fill(template: str, fields: dict) -> str:
+    return PLACEHOLDER.sub(lambda m: fields.get(m.group(1), ""), template)
+
+
+_CARRIER_CODE = {"electrons": "n", "holes": "p"}
+
+
+def _covered(analysis, rules, rule_findings) -> set:
+    """Formulas with an embodied assumption on which a rule has fired already."""
+    covered = set()
+    for finding in rule_findings:
+        rule = rules.get(finding.rule)
+        carrier = _CARRIER_CODE.get(finding.carrier)
+        for item in analysis.embodied:
+            if rule is not None and item.word in rule.declared and \
+                    (carrier is None or item.carrier in (None, carrier)):
+                covered.add(item.formula)
+    return covered
+
+
+def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings) -> list:
+    """FORM01-03 findings of one calculation; ``rules`` maps rule id -> Rule."""
+    out = []
+    covered = _covered(analysis, rules, rule_findings)
+    for result in analysis.results:
+        fields = {"formula": result.text, "left": result.left_dimension,
+                  "right": result.right_dimension, "detail": result.problem or "",
+                  "fix": result.fix or "check the unit of each factor"}
+        if result.problem:
+            rule = rules.get("FORM01")
+            if rule:
+                out.append(_finding(rule, calc, result, _fill(rule.message, fields), []))
+            continue
+        match = result.match
+        fields.update({
+            "value": result.show(result.value), "exact": result.show(result.exact),
+            "error": result.error_text(),
+            "embodies": ", ".join(match.labels) if match.labels else
+            ("no shortcut (it is exact)" if match.status == "exact" else
+             "nothing regimecheck can name (it matches no exact relation in any named limit)"),
+        })
+        corrections = []
+        if np.isfinite(result.value) and np.isfinite(result.exact) and result.exact != 0 \
+                and result.unit:
+            corrections.append(Correction(to_text(result.lhs), result.unit, result.value,
+                                          result.exact, result.value / result.exact - 1.0,
+                                          False, origin="formula"))
+        off_rule = rules.get("FORM03")
+        off = off_rule is not None and np.isfinite(result.error) and \
+            abs(result.error) > off_rule.threshold and result.text not in covered
+        if off:
+            fields["threshold"] = display(off_rule.threshold, off_rule.indicator_unit)
+            out.append(_finding(off_rule, calc, result, _fill(off_rule.message, fields),
+                                corrections, abs(result.error)))
+        elif match.status == "unrecognised" and "FORM02" in rules:
+            rule = rules["FORM02"]
+            out.append(_finding(rule, calc, result, _fill(rule.message, fields), corrections))
+    return out
+
+
+def _finding(rule, calc, result, message, corrections, indicator=math.nan) -> Finding:
+    return Finding(
+        rule=rule.id, title=rule.title, severity=rule.severity, assumption=rule.assumption,
+        carrier=None, indicator_label=rule.indicator_label, indicator_value=indicator,
+        indicator_unit=rule.indicator_unit, relation="above", threshold=rule.threshold,
+        threshold_source=rule.threshold_source, message=message, corrections=corrections,
+        file=calc.source, line=result.line, formula=result.text)

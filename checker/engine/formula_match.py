@@ -1,0 +1,205 @@
+"""Which named limits turn a stated formula into an identity of the exact relations.
+
+For a formula ``lhs = rhs`` (canonical symbols, see :mod:`formula_symbols`):
+
+1. the defined symbols it uses are followed through :mod:`relations` to the
+   independent inputs, and the limits that act anywhere on that path are
+   the candidates;
+2. limit sets are tried smallest first: the definitions are rewritten under
+   the set (symbolic substitution on our own expression trees) and both sides
+   are evaluated at random points of the inputs; the first set under which
+   lhs = rhs at every point (relative 1e-9) is the formula's limit set;
+3. that identity is then confirmed symbolically with sympy (expand, power
+   and exponential collection).  If sympy's cheap simplifications cannot
+   close it, the match stands on the numeric test and is marked so.
+
+No set: the formula is unrecognised.  The result depends only on the formula,
+the dimensionality and the majority carrier, so it is cached.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import lru_cache
+from itertools import combinations
+
+import numpy as np
+
+from .expression import names_in, to_numpy, to_sympy
+from .relations import (RELATION_NAMES, WORDS_IN, acts_on, closure, expand, limited, limits,
+                        sample, world)
+
+POINTS = 12            # random points per identity test
+MIN_POINTS = 6         # points where both sides must be finite
+TOLERANCE = 1e-9       # relative agreement that counts as identical
+SEED = 20261202
+DOPANT_SYMBOLS = frozenset({"N_D", "N_A", "N_D_plus", "N_A_minus", "f_D", "f_A", "E_D", "E_A",
+                            "g_D", "g_A"})
+# real (possibly negative) symbols; every other input is positive
+_SIGNED = frozenset({"E_c", "E_v", "E_F"})
+
+
+@dataclass(frozen=True)
+class Match:
+    status: str                 # "exact" | "limit" | "unrecognised"
+    world: str | None
+    limits: tuple               # relations.Limit, in report order
+    relations: tuple            # names of the exact relations involved
+    assumptions: tuple          # (word, carrier or None) passed to the rules
+    proof: str | None           # "symbolic" | "numeric" | None
+
+    @property
+    def labels(self) -> tuple:
+        return tuple(limit.label for limit in self.limits)
+
+
+_compiled = lru_cache(maxsize=None)(to_numpy)
+
+
+def _evaluate(lhs, rhs, definitions, order, inputs) -> tuple:
+    values = dict(inputs)
+    for name in order:
+        values[name] = _compiled(definitions[name])(values)
+    with np.errstate(all="ignore"):
+        return _compiled(lhs)(values), _compiled(rhs)(values)
+
+
+def identical(a, b) -> bool:
+    """True when two sampled sides agree to TOLERANCE wherever both are finite."""
+    a, b = np.broadcast_arrays(np.asarray(a, dtype=float), np.asarray(b, dtype=float))
+    finite = np.isfinite(a) & np.isfinite(b)
+    if finite.sum() < min(MIN_POINTS, a.size):
+        return False
+    a, b = a[finite], b[finite]
+    scale = np.maximum(np.abs(a), np.abs(b))
+    return bool(np.all(np.abs(a - b) <= TOLERANCE * scale))
+
+
+def _worlds(names: set, majority: str) -> tuple:
+    first = "donor" if majority == "n" else "acceptor"
+    if names & DOPANT_SYMBOLS:
+        return (first, "acceptor" if first == "donor" else "donor")
+    return (first,)
+
+
+@lru_cache(maxsize=4096)
+def analyse(lhs: tuple, rhs: tuple, dim: int, majority: str) -> Match:
+    """The smallest limit set under which ``lhs = rhs`` holds (cached)."""
+    names = names_in(lhs) | names_in(rhs)
+    rng = np.random.default_rng(SEED)
+    best = None
+    for which in _worlds(names, majority):
+        base = world(dim, which, majority)
+        used = closure(names, base.definitions)
+        candidates = [limit for limit in limits(which)
+                      if any(acts_on(limit, base.definitions[n]) for n in used)
+                      or any(acts_on(limit, side) for side in (lhs, rhs))]
+        found = _smallest(lhs, rhs, base, candidates, names, rng,
+                          None if best is None else len(best[1]))
+        if found is not None and (best is None or len(found) < len(best[1])):
+            best = (base, found)
+    if best is None:
+        return Match("unrecognised", None, (), (), (), None)
+    base, chosen = best
+    proof = "symbolic" if _proved(lhs, rhs, limited(base, chosen)) else "numeric"
+    return Match("exact" if not chosen else "limit", base.world, chosen,
+                 _relations(lhs, rhs, base, chosen), _assumptions(names, base, chosen), proof)
+
+
+def _smallest(lhs, rhs, base, candidates, names, rng, at_most):
+    """The first limit set (smallest, in catalogue order) making the formula an identity."""
+    primitives_cache = {}
+    largest = len(candidates) if at_most is None else min(at_most - 1, len(candidates))
+    for size in range(largest + 1):
+        for chosen in combinations(candidates, size):
+            ids = {limit.id for limit in chosen}
+            if any(excluded in ids for limit in chosen for excluded in limit.excludes):
+                continue
+            definitions = limited(base, chosen)
+            needed = closure(names, definitions)
+            # inputs a limit pins (e.g. N_A -> 0) come first, then definitions in order
+            order = tuple(n for n in needed if n not in base.definitions) + \
+                tuple(n for n in base.order if n in needed)
+            inputs_needed = (names | {m for n in needed for m in names_in(definitions[n])}) \
+                - set(definitions)
+            degenerate = tuple(x for x in ("n", "p") if f"deg_{x}" in ids)
+            key = (degenerate, frozenset(inputs_needed))
+            if key not in primitives_cache:
+                primitives_cache[key] = sample(inputs_needed, base.dim, degenerate, rng, POINTS)
+            a, b = _evaluate(lhs, rhs, definitions, order, primitives_cache[key])
+            if identical(a, b):
+                return chosen
+    return None
+
+
+def _acted(limit, names, base) -> list:
+    return [n for n in sorted(closure(names, base.definitions))
+            if acts_on(limit, base.definitions[n])]
+
+
+# a limit that acts on both carriers is still about one of them where only its relation is used
+_CARRIER_OF = {"v_n": "n", "v_p": "p", "D_n": "n", "D_p": "p"}
+
+
+def _assumptions(names, base, chosen) -> tuple:
+    out = []
+    for limit in chosen:
+        acted = _acted(limit, names, base)
+        words = {WORDS_IN.get(n, {}).get(limit.id, limit.word) for n in acted} or {limit.word}
+        carrier = limit.carrier
+        if carrier is None:
+            own = {_CARRIER_OF[n] for n in acted if n in _CARRIER_OF}
+            carrier = own.pop() if len(own) == 1 else None
+        for word in sorted(w for w in words if w):
+            if (word, carrier) not in out:
+                out.append((word, carrier))
+    return tuple(out)
+
+
+def _relations(lhs, rhs, base, chosen) -> tuple:
+    direct = [n for n in _in_order(lhs) + _in_order(rhs) if n in base.definitions
+              and n in RELATION_NAMES]
+    if chosen:
+        direct = [n for n in direct if any(
+            acts_on(limit, base.definitions[m]) for limit in chosen
+            for m in closure({n}, base.definitions))] or direct
+    else:
+        direct = direct[:1]
+    names = []
+    for name in direct:
+        if RELATION_NAMES[name] not in names:
+            names.append(RELATION_NAMES[name])
+    return tuple(names)
+
+
+def _in_order(tree) -> list:
+    if tree[0] == "name":
+        return [tree[1]]
+    if tree[0] == "num":
+        return []
+    parts = tree[2] if tree[0] == "call" else tree[1:]
+    return [n for part in parts for n in _in_order(part)]
+
+
+def _proved(lhs, rhs, definitions) -> bool:
+    """sympy confirmation of lhs = rhs under the definitions (cheap steps only)."""
+    import sympy
+
+    a, b = expand(lhs, definitions), expand(rhs, definitions)
+    symbols = {"pi": sympy.pi}
+    for name in names_in(a) | names_in(b):
+        if name != "pi":
+            symbols[name] = sympy.Symbol(name, real=True) if name in _SIGNED \
+                else sympy.Symbol(name, positive=True)
+    left = to_sympy(a, symbols, evaluate=True)
+    right = to_sympy(b, symbols, evaluate=True)
+    difference = left - right
+    if sympy.expand(difference) == 0:
+        return True
+    collected = sympy.powsimp(sympy.expand_power_base(difference, force=True), force=True)
+    if sympy.expand(collected) == 0:
+        return True
+    if right != 0:
+        ratio = sympy.powsimp(sympy.expand_power_base(left / right, force=True), force=True)
+        if sympy.expand(sympy.cancel(ratio)) == 1:
+            return True
+    return sympy.expand(sympy.radsimp(sympy.factor(difference))) == 0

@@ -1,0 +1,210 @@
+"""The trade symbols a stated formula may use: meaning, dimension, spellings.
+
+Authors write ``mu_n``, ``μn`` or ``mun``; ``kT`` for k*T; ``V_T`` for kT/q;
+an unsubscripted ``mu``, ``D``, ``v``, ``v_sat``, ``beta``, ``lambda`` or
+``eta`` means the majority carrier's.  Every spelling is mapped onto one
+canonical name before anything else looks at the formula; an unknown symbol
+is an input error naming the closest known spellings.
+
+Dimensions depend on the conductor's dimensionality d: densities are per
+m^d, a conductivity is q·n·mu of that density.
+"""
+from __future__ import annotations
+
+import difflib
+import re
+from dataclasses import dataclass
+
+from ..errors import InputError
+from . import dimensions as dm
+from .expression import names_in, parse
+
+# the functions a formula may call (F is the normalized Fermi–Dirac integral F_j(eta))
+FORMULA_FUNCTIONS = ("exp", "log", "ln", "sqrt", "abs", "F")
+
+
+@dataclass(frozen=True)
+class FormulaSymbol:
+    name: str
+    unit: str            # dimension key, see _DIMENSION
+    meaning: str
+    spellings: tuple
+
+
+def _dimension(key: str, dim: int) -> dm.Dimension:
+    return {
+        "density": dm.density(dim), "energy": dm.ENERGY, "none": dm.NONE,
+        "temperature": dm.TEMPERATURE, "k": dm.ENERGY / dm.TEMPERATURE, "charge": dm.CHARGE,
+        "action": dm.ENERGY * dm.TIME, "mass": dm.MASS, "mobility": dm.MOBILITY,
+        "diffusivity": dm.DIFFUSIVITY, "velocity": dm.VELOCITY, "length": dm.LENGTH,
+        "area": dm.AREA, "field": dm.FIELD, "resistance": dm.RESISTANCE,
+        "conductivity": dm.conductivity(dim), "resistivity": dm.NONE / dm.conductivity(dim),
+        "current_density": dm.CHARGE * dm.density(dim) * dm.VELOCITY,
+    }[key]
+
+
+def _symbols(rows):
+    return {name: FormulaSymbol(name, unit, meaning, tuple(s.strip() for s in spell.split(",")))
+            for name, unit, meaning, spell in rows}
+
+
+SYMBOLS = _symbols([
+    ("n", "density", "electron density", "n, n0, n_0"),
+    ("p", "density", "hole density", "p, p0, p_0"),
+    ("N_D", "density", "donor density", "N_D, ND, Nd, N_d"),
+    ("N_A", "density", "acceptor density", "N_A, NA, Na, N_a"),
+    ("N_D_plus", "density", "ionized donor density N_D+", "N_D_plus, ND_plus, Nd_plus, N_Dp"),
+    ("N_A_minus", "density", "ionized acceptor density N_A-",
+     "N_A_minus, NA_minus, Na_minus, N_Am"),
+    ("f_D", "none", "ionized fraction of the donors", "f_D, f_d"),
+    ("f_A", "none", "ionized fraction of the acceptors", "f_A, f_a"),
+    ("g_D", "none", "donor ground-state degeneracy factor", "g_D, g_d"),
+    ("g_A", "none", "acceptor ground-state degeneracy factor", "g_A, g_a"),
+    ("N_c", "density", "conduction-band effective density of states", "N_c, N_C, Nc, NC"),
+    ("N_v", "density", "valence-band effective density of states", "N_v, N_V, Nv, NV"),
+    ("n_i", "density", "intrinsic density", "n_i, ni, n_int"),
+    ("E_c", "energy", "conduction-band edge", "E_c, E_C, Ec, EC"),
+    ("E_v", "energy", "valence-band edge", "E_v, E_V, Ev, EV"),
+    ("E_F", "energy", "Fermi level", "E_F, E_f, EF, Ef"),
+    ("E_g", "energy", "band gap E_c - E_v", "E_g, E_G, Eg, EG"),
+    ("E_D", "energy", "donor level (E_c minus the ionization energy)", "E_D, E_d, Ed, ED"),
+    ("E_A", "energy", "acceptor level (E_v plus the ionization energy)", "E_A, E_a"),
+    ("eta_n", "none", "reduced Fermi level of electrons, (E_F - E_c)/kT", "eta_n, η_n, ηn, eta_c"),
+    ("eta_p", "none", "reduced Fermi level of holes, (E_v - E_F)/kT", "eta_p, η_p, ηp, eta_v"),
+    ("k", "k", "Boltzmann constant", "k, k_B, kB"),
+    ("T", "temperature", "temperature", "T"),
+    ("q", "charge", "elementary charge", "q"),
+    ("h", "action", "Planck constant", "h"),
+    ("hbar", "action", "reduced Planck constant h/2π", "hbar, ħ, h_bar"),
+    ("m0", "mass", "free-electron mass", "m0, m_0"),
+    ("m_n", "mass", "density-of-states effective mass of electrons", "m_n, m_dn"),
+    ("m_p", "mass", "density-of-states effective mass of holes", "m_p, m_dp"),
+    ("mu_n", "mobility", "electron mobility (low field)", "mu_n, μ_n, μn, mun, mu_e"),
+    ("mu_p", "mobility", "hole mobility (low field)", "mu_p, μ_p, μp, mup, mu_h"),
+    ("D_n", "diffusivity", "electron diffusion coefficient", "D_n, Dn, D_e"),
+    ("D_p", "diffusivity", "hole diffusion coefficient", "D_p, Dp, D_h"),
+    ("v_n", "velocity", "electron drift velocity", "v_n, vn, v_dn"),
+    ("v_p", "velocity", "hole drift velocity", "v_p, vp, v_dp"),
+    ("v_sat_n", "velocity", "electron saturation velocity", "v_sat_n, vsat_n, v_satn"),
+    ("v_sat_p", "velocity", "hole saturation velocity", "v_sat_p, vsat_p, v_satp"),
+    ("beta_n", "none", "Caughey–Thomas field exponent of electrons", "beta_n, β_n, βn"),
+    ("beta_p", "none", "Caughey–Thomas field exponent of holes", "beta_p, β_p, βp"),
+    ("lambda_n", "length", "backscattering mean free path of electrons",
+     "lambda_n, λ_n, λn, mfp_n"),
+    ("lambda_p", "length", "backscattering mean free path of holes", "lambda_p, λ_p, λp, mfp_p"),
+    ("sigma", "conductivity", "conductivity", "sigma, σ"),
+    ("rho", "resistivity", "resistivity", "rho, ρ"),
+    ("R", "resistance", "resistance of the conductor", "R"),
+    ("R_s", "resistance", "sheet resistance (ohm per square)", "R_s, Rs, R_sh, Rsh, R_sq"),
+    ("L", "length", "conductor length", "L"),
+    ("A", "area", "conductor cross-section", "A"),
+    ("W", "length", "conductor width", "W, w"),
+    ("t", "length", "layer thickness", "t, t_layer"),
+    ("E", "field", "electric field", "E, E_field, Efield, field"),
+    ("J", "current_density", "current density", "J"),
+    ("pi", "none", "π", "pi, π"),
+])
+
+# unsubscripted names: the majority carrier's symbol ("{x}" is n or p)
+GENERIC = {
+    "mu": ("mu_{x}", "mu, μ"), "D": ("D_{x}", "D"), "v": ("v_{x}", "v, v_d, vd"),
+    "v_sat": ("v_sat_{x}", "v_sat, vsat, v_s"), "beta": ("beta_{x}", "beta, β"),
+    "lambda": ("lambda_{x}", "lambda, λ, mfp"), "eta": ("eta_{x}", "eta, η"),
+}
+# spellings that stand for an expression
+SHORTHANDS = {
+    "kT": ("k*T", "kT, kBT, k_BT"),
+    "V_T": ("k*T/q", "V_T, Vt, V_t, VT, U_T, phi_t, φ_t"),
+}
+
+
+def _spelling_table() -> dict:
+    table = {}
+    for symbol in SYMBOLS.values():
+        for spelling in symbol.spellings:
+            table[spelling] = ("symbol", symbol.name)
+    for name, (target, spellings) in GENERIC.items():
+        for spelling in spellings.split(","):
+            table[spelling.strip()] = ("generic", target)
+    for name, (text, spellings) in SHORTHANDS.items():
+        tree = parse(text)
+        for spelling in spellings.split(","):
+            table[spelling.strip()] = ("shorthand", tree)
+    return table
+
+
+SPELLINGS = _spelling_table()
+# "lambda" is a Python keyword: rename it where it is used as a symbol (not "lambda x: ...")
+_LAMBDA = re.compile(r"\blambda\b(?!\s*[A-Za-z_:])")
+_LAMBDA_NAME = "lambda_"
+
+
+def prepare_text(text: str) -> str:
+    return _LAMBDA.sub(_LAMBDA_NAME, text)
+
+
+def dimension_of(name: str, dim: int) -> dm.Dimension:
+    return _dimension(SYMBOLS[name].unit, dim)
+
+
+def canonical(tree, majority: str, where: str) -> tuple:
+    """The tree with every spelling replaced by its canonical symbol (or expression)."""
+    kind = tree[0]
+    if kind == "name":
+        spelled = "lambda" if tree[1] == _LAMBDA_NAME else tree[1]
+        found = SPELLINGS.get(spelled)
+        if found is None:
+            close = difflib.get_close_matches(spelled, list(SPELLINGS), n=3, cutoff=0.5)
+            hint = f"; closest known: {', '.join(close)}" if close else ""
+            raise InputError(f"{where}: unknown symbol {spelled!r} in the formula{hint} "
+                             "(run 'regimecheck symbols' for the list)")
+        how, target = found
+        if how == "symbol":
+            return ("name", target)
+        if how == "generic":
+            return ("name", target.format(x=majority))
+        return target
+    if kind == "num":
+        return tree
+    if kind == "call":
+        return ("call", tree[1], tuple(canonical(a, majority, where) for a in tree[2]))
+    return (kind,) + tuple(canonical(part, majority, where) for part in tree[1:])
+
+
+def parse_side(text: str, majority: str, where: str) -> tuple:
+    """(canonical tree, {canonical name: the author's spelling}) of one side of a formula."""
+    raw = parse(prepare_text(text), None, where, functions=FORMULA_FUNCTIONS)
+    tree = canonical(raw, majority, where)
+    # a Fermi–Dirac order must be a plain number
+    _check_orders(tree, where)
+    spelled = {}
+    for name in names_in(raw):
+        canonical_tree = canonical(("name", name), majority, where)
+        if canonical_tree[0] == "name":
+            spelled[canonical_tree[1]] = "lambda" if name == _LAMBDA_NAME else name
+    return tree, spelled
+
+
+def _check_orders(tree, where):
+    if tree[0] == "call":
+        if tree[1] == "F":
+            order = tree[2][0]
+            if order[0] != "num" or order[1] * 2 != int(order[1] * 2) or not -1.5 <= order[1] <= 3.5:
+                raise InputError(f"{where}: F(j, eta) needs a half-integer order j from -3/2 "
+                                 "to 7/2 written as a number, e.g. F(0.5, eta_n)")
+        for arg in tree[2]:
+            _check_orders(arg, where)
+    elif tree[0] not in ("num", "name"):
+        for part in tree[1:]:
+            _check_orders(part, where)
+
+
+def glossary(dim: int = 3) -> list[tuple[str, str, str, str]]:
+    """(canonical name, unit, meaning, spellings) for the ``symbols`` command."""
+    rows = [(s.name, dm.text(_dimension(s.unit, dim)), s.meaning, ", ".join(s.spellings))
+            for s in SYMBOLS.values()]
+    rows += [(name, "(majority carrier)", f"same as {target.format(x='n')} or "
+              f"{target.format(x='p')}", spell) for name, (target, spell) in GENERIC.items()]
+    rows += [(name, "(shorthand)", f"= {text}", spell) for name, (text, spell)
+             in SHORTHANDS.items()]
+    return rows

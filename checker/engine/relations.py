@@ -1,0 +1,307 @@
+"""The exact relations stated formulas are compared with, and the named limits.
+
+Every trade symbol that is not an independent input is *defined* here by the
+relation the physics core computes (Fermi–Dirac densities with F_j, the
+generalized Einstein relation for the dimensionality, two-carrier
+conductivity, charge neutrality with partial ionization, n_i, the
+short-conductor resistance, the Caughey–Thomas drift velocity, ...).  A
+*limit* is a symbolic substitution on these definitions: F_j(eta) -> e^eta,
+a switch set to zero (holes neglected beside electrons, lambda/L -> 0,
+mu E/v_sat -> 0), an ionized fraction set to one.  A stated formula embodies
+a set of limits when it is an identity of the definitions with those limits
+applied (see :mod:`checker.engine.formula_match`).
+
+Charge neutrality n + N_A- = p + N_D+ has no explicit form for n, so it is
+written for the dopant instead: in the *donor world* N_D is defined from
+(E_F, N_A, ...), in the *acceptor world* N_A is.  A formula is tried in the
+world(s) its dopant symbols call for.
+
+References
+----------
+J. S. Blakemore, Semiconductor Statistics (Pergamon, 1962): F_j densities,
+  ionization statistics, degenerate limit F_j(eta) ~ eta^(j+1)/Gamma(j+2).
+S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007),
+  ch. 1: neutrality, n_i, generalized Einstein relation.
+M. Lundstrom and C. Jeong, Near-Equilibrium Transport (2012): R = rho(L+lambda)/A.
+D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967): drift velocity.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from functools import lru_cache
+
+from .expression import names_in, parse
+
+# Gamma(j + 2) for the Fermi–Dirac orders that occur (j = d/2 - 1 and j - 1)
+_GAMMA_TEXT = {2.5: "0.75*sqrt(pi)", 2.0: "1", 1.5: "0.5*sqrt(pi)", 1.0: "1", 0.5: "sqrt(pi)"}
+
+
+@dataclass(frozen=True)
+class Limit:
+    id: str
+    label: str                  # how the report names it
+    word: str | None            # assumption word passed to the rules (None: no rule guards it)
+    carrier: str | None         # "n", "p" or None (both / the conductor)
+    overrides: tuple = ()       # (name, value) pairs set by the limit
+    fermi: str | None = None    # "eta_n"/"eta_p": F_j of it is rewritten
+    fermi_form: str | None = None   # "exp" (non-degenerate) | "power" (degenerate)
+    excludes: tuple = ()
+
+
+def limits(world: str) -> tuple:
+    """The named limits, in the order they are reported."""
+    carrier = "n" if world == "donor" else "p"
+    other_dopant = "N_A" if world == "donor" else "N_D"
+    return (
+        Limit("nondeg_n", "non-degenerate electrons (F_j -> e^η)", "non-degenerate", "n",
+              fermi="eta_n", fermi_form="exp", excludes=("deg_n",)),
+        Limit("nondeg_p", "non-degenerate holes (F_j -> e^η)", "non-degenerate", "p",
+              fermi="eta_p", fermi_form="exp", excludes=("deg_p",)),
+        Limit("deg_n", "degenerate electrons (F_j -> η^(j+1)/Γ(j+2))", None, "n",
+              fermi="eta_n", fermi_form="power", excludes=("nondeg_n", "deg_p")),
+        Limit("deg_p", "degenerate holes (F_j -> η^(j+1)/Γ(j+2))", None, "p",
+              fermi="eta_p", fermi_form="power", excludes=("nondeg_p", "deg_n")),
+        Limit("holes_negligible", "holes neglected beside electrons", "single-carrier", "n",
+              overrides=(("w_p", 0.0),), excludes=("electrons_negligible",)),
+        Limit("electrons_negligible", "electrons neglected beside holes", "single-carrier",
+              "p", overrides=(("w_n", 0.0),), excludes=("holes_negligible",)),
+        Limit("full_ionization", "full ionization (N_D+ -> N_D, N_A- -> N_A)",
+              "full-ionization", carrier, overrides=(("f_D", 1.0), ("f_A", 1.0))),
+        Limit("no_compensation", f"no compensation ({other_dopant} -> 0)", "no-compensation",
+              carrier, overrides=((other_dopant, 0.0),)),
+        Limit("diffusive", "diffusive transport (λ/L -> 0)", "diffusive", None,
+              overrides=(("s_d", 0.0),)),
+        Limit("low_field", "low field (μE/v_sat -> 0)", "low-field", None,
+              overrides=(("s_fn", 0.0), ("s_fp", 0.0))),
+    )
+
+
+# where a limit acts inside a particular relation, the rules know it by another word
+WORDS_IN = {
+    "D_n": {"nondeg_n": "einstein-relation"},
+    "D_p": {"nondeg_p": "einstein-relation"},
+    "N_D": {"holes_negligible": "extrinsic"},
+    "N_A": {"electrons_negligible": "extrinsic"},
+}
+
+# what each defined symbol's relation is called in reports
+RELATION_NAMES = {
+    "eta_n": "reduced Fermi level", "eta_p": "reduced Fermi level", "E_g": "band gap",
+    "n": "electron density (Fermi–Dirac)", "p": "hole density (Fermi–Dirac)",
+    "n_i": "intrinsic density", "E_D": "donor level", "E_A": "acceptor level",
+    "f_D": "donor ionization", "f_A": "acceptor ionization",
+    "N_D_plus": "ionized donors", "N_A_minus": "ionized acceptors",
+    "D_n": "generalized Einstein relation", "D_p": "generalized Einstein relation",
+    "sigma": "two-carrier conductivity", "rho": "resistivity",
+    "v_n": "field-dependent drift velocity", "v_p": "field-dependent drift velocity",
+    "J": "drift current density", "hbar": "reduced Planck constant",
+    "R": "short-conductor resistance", "R_s": "sheet resistance",
+    "m_n": "effective density of states", "m_p": "effective density of states",
+    "N_D": "charge neutrality", "N_A": "charge neutrality", "A": "cross-section",
+}
+
+SWITCHES = ("w_n", "w_p", "s_d", "s_fn", "s_fp")
+
+
+def _common(j: float, x: str) -> dict:
+    jm1 = j - 1.0
+    return {
+        "eta_n": "(E_F - E_c)/(k*T)",
+        "eta_p": "(E_v - E_F)/(k*T)",
+        "E_g": "E_c - E_v",
+        "n": f"N_c*F({j}, eta_n)",
+        "p": f"N_v*F({j}, eta_p)",
+        "n_i": "sqrt(N_c*N_v)*exp(-E_g/(2*k*T))",
+        "E_D": "E_c - dE_D",
+        "E_A": "E_v + dE_A",
+        "f_D": "1/(1 + g_D*exp((E_F - E_D)/(k*T)))",
+        "f_A": "1/(1 + g_A*exp((E_A - E_F)/(k*T)))",
+        "N_D_plus": "N_D*f_D",
+        "N_A_minus": "N_A*f_A",
+        "D_n": f"mu_n*k*T/q*F({j}, eta_n)/F({jm1}, eta_n)",
+        "D_p": f"mu_p*k*T/q*F({j}, eta_p)/F({jm1}, eta_p)",
+        "sigma": "q*(w_n*n*mu_n + w_p*p*mu_p)",
+        "rho": "1/sigma",
+        "v_n": "mu_n*E/(1 + (s_fn*mu_n*E/v_sat_n)^beta_n)^(1/beta_n)",
+        "v_p": "mu_p*E/(1 + (s_fp*mu_p*E/v_sat_p)^beta_p)^(1/beta_p)",
+        "J": "q*(w_n*n*v_n + w_p*p*v_p)",
+        "hbar": "h/(2*pi)",
+    }
+
+
+_GEOMETRY = {
+    3: {"R": "rho*(L + s_d*lambda_{x})/A", "R_s": "rho/t", "A": "W*t",
+        "m_n": "(N_c/2)^(2/3)*h^2/(2*pi*k*T)", "m_p": "(N_v/2)^(2/3)*h^2/(2*pi*k*T)"},
+    2: {"R": "rho*(L + s_d*lambda_{x})/W", "R_s": "rho",
+        "m_n": "N_c*pi*hbar^2/(k*T)", "m_p": "N_v*pi*hbar^2/(k*T)"},
+    1: {"R": "rho*(L + s_d*lambda_{x})"},
+}
+_NEUTRALITY = {"donor": {"N_D": "(n - w_p*p + N_A*f_A)/f_D"},
+               "acceptor": {"N_A": "(p - w_n*n + N_D*f_D)/f_A"}}
+
+
+@dataclass(frozen=True)
+class World:
+    dim: int
+    world: str                  # "donor" | "acceptor"
+    majority: str
+    definitions: dict = field(hash=False, compare=False)   # name -> tree
+    order: tuple = ()           # defined names, dependencies first
+
+
+@lru_cache(maxsize=None)
+def world(dim: int, which: str, majority: str) -> World:
+    j = dim / 2.0 - 1.0
+    texts = _common(j, majority)
+    texts.update({k: v.format(x=majority) for k, v in _GEOMETRY[dim].items()})
+    texts.update(_NEUTRALITY[which])
+    definitions = {name: parse(text) for name, text in texts.items()}
+    definitions.update({name: ("num", 1.0) for name in SWITCHES})
+    return World(dim, which, majority, definitions, _topological(definitions))
+
+
+def _topological(definitions: dict) -> tuple:
+    order, state = [], {}
+
+    def visit(name):
+        if state.get(name) == "done":
+            return
+        if state.get(name) == "busy":
+            raise ValueError(f"circular definition at {name}")
+        state[name] = "busy"
+        for used in names_in(definitions[name]):
+            if used in definitions:
+                visit(used)
+        state[name] = "done"
+        order.append(name)
+
+    for name in definitions:
+        visit(name)
+    return tuple(order)
+
+
+def closure(names, definitions: dict) -> set:
+    """Every defined symbol the names depend on (including themselves)."""
+    seen, todo = set(), [n for n in names if n in definitions]
+    while todo:
+        name = todo.pop()
+        if name in seen:
+            continue
+        seen.add(name)
+        todo.extend(n for n in names_in(definitions[name]) if n in definitions)
+    return seen
+
+
+def _fermi_calls(tree, eta: str) -> bool:
+    if tree[0] == "call":
+        if tree[1] == "F" and tree[2][1] == ("name", eta):
+            return True
+        return any(_fermi_calls(a, eta) for a in tree[2])
+    if tree[0] in ("num", "name"):
+        return False
+    return any(_fermi_calls(part, eta) for part in tree[1:])
+
+
+def acts_on(limit: Limit, tree) -> bool:
+    """True when the limit changes this (unexpanded) definition."""
+    if limit.fermi and _fermi_calls(tree, limit.fermi):
+        return True
+    used = names_in(tree)
+    return any(name in used for name, _ in limit.overrides)
+
+
+def _rewrite_fermi(tree, eta: str, form: str):
+    kind = tree[0]
+    if kind in ("num", "name"):
+        return tree
+    if kind == "call":
+        args = tuple(_rewrite_fermi(a, eta, form) for a in tree[2])
+        if tree[1] == "F" and args[1] == ("name", eta):
+            order = float(args[0][1])
+            if form == "exp":
+                return ("call", "exp", (args[1],))
+            gamma = parse(_GAMMA_TEXT[order + 2.0])
+            return ("/", ("**", args[1], ("num", order + 1.0)), gamma)
+        return ("call", tree[1], args)
+    return (kind,) + tuple(_rewrite_fermi(part, eta, form) for part in tree[1:])
+
+
+def limited(base: World, chosen) -> dict:
+    """The definitions with the chosen limits applied (overrides and F_j rewrites)."""
+    definitions = dict(base.definitions)
+    for limit in chosen:
+        if limit.fermi:
+            definitions = {name: _rewrite_fermi(tree, limit.fermi, limit.fermi_form)
+                           for name, tree in definitions.items()}
+        for name, value in limit.overrides:
+            definitions[name] = ("num", value)
+    return definitions
+
+
+def expand(tree, definitions: dict) -> tuple:
+    """The tree with every defined name replaced by its definition, recursively."""
+    kind = tree[0]
+    if kind == "name":
+        inner = definitions.get(tree[1])
+        return tree if inner is None else expand(inner, definitions)
+    if kind == "num":
+        return tree
+    if kind == "call":
+        return ("call", tree[1], tuple(expand(a, definitions) for a in tree[2]))
+    return (kind,) + tuple(expand(part, definitions) for part in tree[1:])
+
+
+# ---- random points for identity tests -------------------------------------------------------
+_EV = 1.602176634e-19
+_DENSITY_DECADES = {3: (23.0, 26.0), 2: (15.0, 18.0), 1: (7.0, 9.0)}
+# primitive -> ("log", lo, hi) decades | ("lin", lo, hi) | ("scale", true value) | ("fixed", value)
+_SAMPLING = {
+    "q": ("scale", _EV), "h": ("scale", 6.62607015e-34),
+    "m0": ("scale", 9.1093837139e-31), "pi": ("fixed", math.pi),
+    "dE_D": ("lin", 0.005 * _EV, 0.2 * _EV), "dE_A": ("lin", 0.005 * _EV, 0.3 * _EV),
+    "g_D": ("lin", 1.5, 4.0), "g_A": ("lin", 2.0, 6.0),
+    "mu_n": ("log", -3.0, 0.0), "mu_p": ("log", -3.0, 0.0),
+    "L": ("log", -8.0, -4.0), "A": ("log", -14.0, -8.0), "W": ("log", -7.0, -4.0),
+    "t": ("log", -8.0, -5.0), "lambda_n": ("log", -9.0, -6.0), "lambda_p": ("log", -9.0, -6.0),
+    "E": ("log", 3.0, 7.0), "v_sat_n": ("log", 4.5, 5.5), "v_sat_p": ("log", 4.5, 5.5),
+    "beta_n": ("lin", 1.0, 2.5), "beta_p": ("lin", 1.0, 2.5),
+    "m_n": ("log", -32.0, -30.0), "m_p": ("log", -32.0, -30.0),
+}
+
+
+def sample(names, dim: int, degenerate: tuple, rng, size: int) -> dict:
+    """Random values for the primitive ``names`` (and the band energies).
+
+    Reduced Fermi levels are drawn in (-4, 4) (so F_j differs from e^eta by
+    more than any rounding), or in (0.5, 6) for a carrier taken degenerate;
+    the band edges follow from them, which may put E_c below E_v: the
+    identities tested are algebraic and do not care.
+    """
+    out = {}
+    T = rng.uniform(150.0, 600.0, size)
+    k = 1.380649e-23 * rng.uniform(0.7, 1.4, size)
+    out["T"], out["k"] = T, k
+    kT = k * T
+    eta = {x: rng.uniform(0.5, 6.0, size) if x in degenerate else rng.uniform(-4.0, 4.0, size)
+           for x in ("n", "p")}
+    out["E_v"] = rng.uniform(-1.0, 1.0, size) * _EV
+    out["E_F"] = out["E_v"] - eta["p"] * kT
+    out["E_c"] = out["E_F"] - eta["n"] * kT
+    lo, hi = _DENSITY_DECADES[dim]
+    for name in sorted(names):
+        if name in out:
+            continue
+        if name in ("N_c", "N_v", "N_D", "N_A"):
+            out[name] = 10.0 ** rng.uniform(lo, hi, size)
+            continue
+        kind, *spec = _SAMPLING.get(name, ("log", -2.0, 2.0))
+        if kind == "log":
+            out[name] = 10.0 ** rng.uniform(spec[0], spec[1], size)
+        elif kind == "lin":
+            out[name] = rng.uniform(spec[0], spec[1], size)
+        elif kind == "scale":
+            out[name] = spec[0] * rng.uniform(0.7, 1.4, size)
+        else:
+            out[name] = spec[0]
+    return out
