@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import lru_cache
 from itertools import combinations
 
 import numpy as np
@@ -135,8 +136,10 @@ def _constant(tree):
     return value if math.isfinite(value) else None
 
 
+@lru_cache(maxsize=4096)
 def dimension(tree, dim: int) -> dm.Dimension:
-    """The dimension of a canonical tree; _Mismatch where it has none."""
+    """The dimension of a canonical tree; _Mismatch where it has none (cached: trees repeat
+    across the calculations of a run)."""
     kind = tree[0]
     if kind == "num":
         return dm.NONE
@@ -268,10 +271,13 @@ def operating_values(values: dict, calculations) -> list:
     return out
 
 
+_compiled = lru_cache(maxsize=4096)(to_numpy)
+
+
 def _evaluate(tree, point: dict) -> float:
     try:
         with np.errstate(all="ignore"):
-            return float(to_numpy(tree)(point))
+            return float(_compiled(tree)(point))
     except KeyError:
         return math.nan
 

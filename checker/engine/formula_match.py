@@ -9,12 +9,13 @@ For a formula ``lhs = rhs`` (canonical symbols, see :mod:`formula_symbols`):
    the set (symbolic substitution on our own expression trees) and both sides
    are evaluated at random points of the inputs; the first set under which
    lhs = rhs at every point (relative 1e-9) is the formula's limit set;
-3. that identity is then confirmed symbolically with sympy (expand, power
-   and exponential collection).  If sympy's cheap simplifications cannot
-   close it, the match stands on the numeric test and is marked so.
+3. that identity is then confirmed symbolically: by our exact normal form
+   (:mod:`normal_form`, no sympy import), else by sympy (expand, power and
+   exponential collection, factoring).  If neither closes it, the match
+   stands on the numeric test and is marked so.
 
 No set: the formula is unrecognised.  The result depends only on the formula,
-the dimensionality and the majority carrier, so it is cached.
+the dimensionality and the majority carrier, so it is cached per process.
 """
 from __future__ import annotations
 
@@ -24,16 +25,18 @@ from itertools import combinations
 
 import numpy as np
 
-from .expression import names_in, to_numpy, to_sympy
+from . import normal_form
+from .expression import to_numpy, to_sympy
 from .relations import (RELATION_NAMES, WORDS_IN, acts_on, closure, expand, limited, limits,
-                        sample, world)
+                        names_in, sample, world)
 
 POINTS = 12            # random points per identity test
 MIN_POINTS = 6         # points where both sides must be finite
 TOLERANCE = 1e-9       # relative agreement that counts as identical
 SEED = 20261202
-DOPANT_SYMBOLS = frozenset({"N_D", "N_A", "N_D_plus", "N_A_minus", "f_D", "f_A", "E_D", "E_A",
-                            "g_D", "g_A"})
+# symbols that tie a formula to the donors or to the acceptors
+DONOR_SYMBOLS = frozenset({"N_D", "N_D_plus", "f_D", "g_D", "E_D"})
+ACCEPTOR_SYMBOLS = frozenset({"N_A", "N_A_minus", "f_A", "g_A", "E_A"})
 # real (possibly negative) symbols; every other input is positive
 _SIGNED = frozenset({"E_c", "E_v", "E_F"})
 
@@ -75,15 +78,23 @@ def identical(a, b) -> bool:
 
 
 def _worlds(names: set, majority: str) -> tuple:
+    """Which way round to write neutrality: for the dopant the formula is about."""
+    donor, acceptor = bool(names & DONOR_SYMBOLS), bool(names & ACCEPTOR_SYMBOLS)
     first = "donor" if majority == "n" else "acceptor"
-    if names & DOPANT_SYMBOLS:
+    if donor and acceptor:
         return (first, "acceptor" if first == "donor" else "donor")
+    if donor or acceptor:
+        return ("donor",) if donor else ("acceptor",)
     return (first,)
 
 
 @lru_cache(maxsize=4096)
 def analyse(lhs: tuple, rhs: tuple, dim: int, majority: str) -> Match:
-    """The smallest limit set under which ``lhs = rhs`` holds (cached)."""
+    """The smallest limit set under which ``lhs = rhs`` holds (cached per process)."""
+    return _analyse(lhs, rhs, dim, majority)
+
+
+def _analyse(lhs: tuple, rhs: tuple, dim: int, majority: str) -> Match:
     names = names_in(lhs) | names_in(rhs)
     rng = np.random.default_rng(SEED)
     best = None
@@ -181,10 +192,23 @@ def _in_order(tree) -> list:
 
 
 def _proved(lhs, rhs, definitions) -> bool:
-    """sympy confirmation of lhs = rhs under the definitions (cheap steps only)."""
+    """Symbolic confirmation of lhs = rhs under the definitions: our exact normal form
+    first (no sympy import), then sympy's expand / power collection / factoring."""
+    a, b = expand(lhs, definitions), expand(rhs, definitions)
+    try:
+        if normal_form.equal(a, b):
+            return True
+    except (normal_form.Unsupported, ArithmeticError, RecursionError):
+        pass
+    try:
+        return _proved_by_sympy(a, b)
+    except Exception:  # noqa: BLE001 - a confirmation step: the numeric identity stands
+        return False
+
+
+def _proved_by_sympy(a, b) -> bool:
     import sympy
 
-    a, b = expand(lhs, definitions), expand(rhs, definitions)
     symbols = {"pi": sympy.pi}
     for name in names_in(a) | names_in(b):
         if name != "pi":

@@ -14,6 +14,7 @@ from __future__ import annotations
 import difflib
 import re
 from dataclasses import dataclass
+from functools import lru_cache
 
 from ..errors import InputError
 from . import dimensions as dm
@@ -32,6 +33,11 @@ class FormulaSymbol:
 
 
 def _dimension(key: str, dim: int) -> dm.Dimension:
+    return _dimension_table(dim)[key]
+
+
+@lru_cache(maxsize=None)
+def _dimension_table(dim: int) -> dict:
     return {
         "density": dm.density(dim), "energy": dm.ENERGY, "none": dm.NONE,
         "temperature": dm.TEMPERATURE, "k": dm.ENERGY / dm.TEMPERATURE, "charge": dm.CHARGE,
@@ -40,7 +46,7 @@ def _dimension(key: str, dim: int) -> dm.Dimension:
         "area": dm.AREA, "field": dm.FIELD, "resistance": dm.RESISTANCE,
         "conductivity": dm.conductivity(dim), "resistivity": dm.NONE / dm.conductivity(dim),
         "current_density": dm.CHARGE * dm.density(dim) * dm.VELOCITY,
-    }[key]
+    }
 
 
 def _symbols(rows):
@@ -67,6 +73,7 @@ SYMBOLS = _symbols([
     ("E_v", "energy", "valence-band edge", "E_v, E_V, Ev, EV"),
     ("E_F", "energy", "Fermi level", "E_F, E_f, EF, Ef"),
     ("E_g", "energy", "band gap E_c - E_v", "E_g, E_G, Eg, EG"),
+    ("E_i", "energy", "intrinsic Fermi level", "E_i, E_I, Ei, EI"),
     ("E_D", "energy", "donor level (E_c minus the ionization energy)", "E_D, E_d, Ed, ED"),
     ("E_A", "energy", "acceptor level (E_v plus the ionization energy)", "E_A, E_a"),
     ("eta_n", "none", "reduced Fermi level of electrons, (E_F - E_c)/kT", "eta_n, η_n, ηn, eta_c"),

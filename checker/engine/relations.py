@@ -31,7 +31,10 @@ import math
 from dataclasses import dataclass, field
 from functools import lru_cache
 
-from .expression import names_in, parse
+from .expression import names_in as _names_in, parse
+
+# definitions are tuples, hashable and reused: remember the names each one uses
+names_in = lru_cache(maxsize=None)(_names_in)
 
 # Gamma(j + 2) for the Fermi–Dirac orders that occur (j = d/2 - 1 and j - 1)
 _GAMMA_TEXT = {2.5: "0.75*sqrt(pi)", 2.0: "1", 1.5: "0.5*sqrt(pi)", 1.0: "1", 0.5: "sqrt(pi)"}
@@ -89,7 +92,7 @@ WORDS_IN = {
 RELATION_NAMES = {
     "eta_n": "reduced Fermi level", "eta_p": "reduced Fermi level", "E_g": "band gap",
     "n": "electron density (Fermi–Dirac)", "p": "hole density (Fermi–Dirac)",
-    "n_i": "intrinsic density", "E_D": "donor level", "E_A": "acceptor level",
+    "n_i": "intrinsic density", "E_i": "intrinsic Fermi level", "E_D": "donor level", "E_A": "acceptor level",
     "f_D": "donor ionization", "f_A": "acceptor ionization",
     "N_D_plus": "ionized donors", "N_A_minus": "ionized acceptors",
     "D_n": "generalized Einstein relation", "D_p": "generalized Einstein relation",
@@ -113,6 +116,7 @@ def _common(j: float, x: str) -> dict:
         "n": f"N_c*F({j}, eta_n)",
         "p": f"N_v*F({j}, eta_p)",
         "n_i": "sqrt(N_c*N_v)*exp(-E_g/(2*k*T))",
+        "E_i": "(E_c + E_v)/2 + k*T/2*log(N_v/N_c)",
         "E_D": "E_c - dE_D",
         "E_A": "E_v + dE_A",
         "f_D": "1/(1 + g_D*exp((E_F - E_D)/(k*T)))",
@@ -227,13 +231,19 @@ def _rewrite_fermi(tree, eta: str, form: str):
     return (kind,) + tuple(_rewrite_fermi(part, eta, form) for part in tree[1:])
 
 
+@lru_cache(maxsize=256)
+def _with_fermi(base: World, rewrites: tuple) -> dict:
+    definitions = base.definitions
+    for eta, form in rewrites:
+        definitions = {name: _rewrite_fermi(tree, eta, form) for name, tree in definitions.items()}
+    return definitions
+
+
 def limited(base: World, chosen) -> dict:
     """The definitions with the chosen limits applied (overrides and F_j rewrites)."""
-    definitions = dict(base.definitions)
+    definitions = dict(_with_fermi(base, tuple((limit.fermi, limit.fermi_form)
+                                               for limit in chosen if limit.fermi)))
     for limit in chosen:
-        if limit.fermi:
-            definitions = {name: _rewrite_fermi(tree, limit.fermi, limit.fermi_form)
-                           for name, tree in definitions.items()}
         for name, value in limit.overrides:
             definitions[name] = ("num", value)
     return definitions

@@ -10,7 +10,7 @@ from pathlib import Path
 
 from ..inputs.calculation_file import read_calculation_file
 from ..physics.constants import EV
-from . import formula_check, rulebook, state_values
+from . import rulebook, state_values
 from .evaluate import SEVERITY_RANK, apply_waivers, evaluate
 
 CALCULATION_SUFFIXES = (".yaml", ".yml")
@@ -90,12 +90,16 @@ def check_calculations(calculations, rules=None, input_errors=()) -> RunResult:
     """Solve and check already-read calculations."""
     rules = rulebook.load_rules() if rules is None else rules
     values, solve_errors, solve_notes = state_values.solve_all(calculations)
-    formulas = formula_check.analyse_all(calculations, values, skip=solve_errors.keys())
+    formulas = [None] * len(calculations)
+    if any(calc.formulas for calc in calculations):
+        from . import formula_check    # imported only when there are formulas to read
+
+        formulas = formula_check.analyse_all(calculations, values, skip=solve_errors.keys())
     findings = evaluate(rules, calculations, values, skip=solve_errors.keys(),
-                        embodied=[f.embodied for f in formulas])
+                        embodied=[f.embodied if f else [] for f in formulas])
     by_id = {rule.id: rule for rule in rules}
     for i, calc in enumerate(calculations):
-        if i not in solve_errors:
+        if formulas[i] and i not in solve_errors:
             findings[i] += formula_check.formula_findings(formulas[i], by_id, calc, findings[i])
     waivers = apply_waivers(rules, calculations, findings)
     reports = []
@@ -107,9 +111,9 @@ def check_calculations(calculations, rules=None, input_errors=()) -> RunResult:
         ordered = sorted(findings[i], key=lambda f: (-SEVERITY_RANK[f.severity], f.rule))
         notes = ([solve_notes[i]] if i in solve_notes else []) + waivers.notes[i]
         reports.append(CalculationReport(calc, summarize(values, i), ordered, notes,
-                                         formulas=formulas[i].results))
+                                         formulas=formulas[i].results if formulas[i] else []))
     errors = list(input_errors) + waivers.errors
-    errors += [message for f in formulas for message in f.errors]
+    errors += [message for f in formulas if f for message in f.errors]
     errors += [r.error for r in reports if r.error]
     return RunResult(reports, errors, tuple(rules))
 

@@ -1,0 +1,266 @@
+"""Stated formulas: what each one is recognised as, its dimensions, its value at the
+operating point, how its assumptions reach the rules, and hostile input.
+
+Expected limit sets are the textbook derivations of each shortcut (sources beside
+each row); numbers are checked against mpmath and scipy.constants, never against
+values produced by the package.
+"""
+import json
+import subprocess
+import sys
+
+import mpmath as mp
+import pytest
+import scipy.constants as sc
+
+from checker import load_material
+from checker.engine import normal_form
+from checker.engine.formula_check import dimension, parse_formula
+from checker.engine.formula_match import analyse
+from checker.engine.relations import expand, limited, world
+from checker.engine.run import check_calculations
+from checker.errors import InputError
+from checker.inputs.calculation_file import read_calculation_file
+from reference import mp_fermi_half, reference_solve
+
+SZE = "Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1"
+SOMMERFELD = "references.md §2 (Sommerfeld limit of the Einstein ratio)"
+LUNDSTROM = "Lundstrom & Jeong, Near-Equilibrium Transport (2012), R = rho(L + lambda)/A"
+CAUGHEY = "Caughey & Thomas, Proc. IEEE 55, 2192 (1967): v = mu E/(1 + (mu E/v_sat)^beta)^(1/beta)"
+
+# formula, majority carrier, dimensionality, expected limits, expected assumption words, source
+RECOGNISED = [
+    ("D_n = mu_n*k*T/q", "n", 3, {"nondeg_n"}, {("einstein-relation", "n")}, SZE),
+    ("D_n/mu_n = k*T/q", "n", 3, {"nondeg_n"}, {("einstein-relation", "n")}, SZE),
+    ("mu_n = q*D_n/(k*T)", "n", 3, {"nondeg_n"}, {("einstein-relation", "n")}, SZE),
+    ("D_n = mu_n*V_T", "n", 3, {"nondeg_n"}, {("einstein-relation", "n")}, SZE),
+    ("Dn = μn*kT/q", "n", 3, {"nondeg_n"}, {("einstein-relation", "n")}, SZE),
+    ("D_p = mu_p*k*T/q", "p", 3, {"nondeg_p"}, {("einstein-relation", "p")}, SZE),
+    ("D = (2/3)*mu*(E_F - E_c)/q", "n", 3, {"deg_n"}, set(), SOMMERFELD),
+    ("D = mu*(E_F - E_c)/q", "n", 2, {"deg_n"}, set(), SOMMERFELD + ", 2D"),
+    ("n = N_c*exp((E_F - E_c)/(k*T))", "n", 3, {"nondeg_n"}, {("non-degenerate", "n")}, SZE),
+    ("p = N_v*exp((E_v - E_F)/(k*T))", "p", 3, {"nondeg_p"}, {("non-degenerate", "p")}, SZE),
+    ("p = N_v*exp(-(E_F - E_v)/(k*T))", "n", 3, {"nondeg_p"}, {("non-degenerate", "p")}, SZE),
+    ("E_F - E_c = k*T*ln(n/N_c)", "n", 3, {"nondeg_n"}, {("non-degenerate", "n")}, SZE),
+    ("n = N_D", "n", 3, {"holes_negligible", "full_ionization", "no_compensation"},
+     {("extrinsic", "n"), ("full-ionization", "n"), ("no-compensation", "n")}, SZE),
+    ("n = N_D - N_A", "n", 3, {"holes_negligible", "full_ionization"},
+     {("extrinsic", "n"), ("full-ionization", "n")}, SZE),
+    ("p = N_A", "p", 3, {"electrons_negligible", "full_ionization", "no_compensation"},
+     {("extrinsic", "p"), ("full-ionization", "p"), ("no-compensation", "p")}, SZE),
+    ("sigma = q*n*mu_n", "n", 3, {"holes_negligible"}, {("single-carrier", "n")}, SZE),
+    ("sigma = q*(n*mu_n + p*mu_p)", "n", 3, set(), set(), SZE),
+    ("rho = 1/(q*N_D*mu_n)", "n", 3, {"holes_negligible", "full_ionization", "no_compensation"},
+     {("extrinsic", "n"), ("single-carrier", "n"), ("full-ionization", "n"),
+      ("no-compensation", "n")}, SZE),
+    ("n_i = sqrt(N_c*N_v)*exp(-E_g/(2*k*T))", "n", 3, set(), set(), SZE),
+    ("n*p = n_i^2", "n", 3, {"nondeg_n", "nondeg_p"},
+     {("non-degenerate", "n"), ("non-degenerate", "p")}, SZE),
+    ("p = n_i^2/N_D", "n", 3,
+     {"nondeg_n", "nondeg_p", "holes_negligible", "full_ionization", "no_compensation"},
+     {("non-degenerate", "n"), ("non-degenerate", "p"), ("extrinsic", "n"),
+      ("full-ionization", "n"), ("no-compensation", "n")}, SZE),
+    ("n = n_i*exp((E_F - E_i)/(k*T))", "n", 3, {"nondeg_n"}, {("non-degenerate", "n")}, SZE),
+    ("R = rho*L/A", "n", 3, {"diffusive"}, {("diffusive", None)}, LUNDSTROM),
+    ("R = rho*L/(W*t)", "n", 3, {"diffusive"}, {("diffusive", None)}, LUNDSTROM),
+    ("v = mu*E", "n", 3, {"low_field"}, {("low-field", "n")}, CAUGHEY),
+    ("J = sigma*E", "n", 3, {"low_field"}, {("low-field", None)}, CAUGHEY),
+    ("N_c = 2*(2*pi*m_n*k*T/h^2)^(3/2)", "n", 3, set(), set(), SZE + " (parabolic band)"),
+    ("N_D_plus = N_D/(1 + g_D*exp((E_F - E_D)/(k*T)))", "n", 3, set(), set(), SZE),
+]
+
+
+def _match(formula, majority="n", dim=3):
+    lhs, rhs, _ = parse_formula(formula, majority, "test")
+    return analyse(lhs, rhs, dim, majority)
+
+
+@pytest.mark.parametrize("formula, majority, dim, limits, words, source", RECOGNISED,
+                         ids=[r[0] for r in RECOGNISED])
+def test_formula_is_recognised_with_its_limits(formula, majority, dim, limits, words, source):
+    match = _match(formula, majority, dim)
+    assert match.status == ("exact" if not limits else "limit"), source
+    assert {limit.id for limit in match.limits} == limits, source
+    assert set(match.assumptions) == words, source
+    assert match.proof == "symbolic"
+
+
+@pytest.mark.parametrize("formula", [
+    "n = N_c*exp((E_c - E_F)/(k*T))",          # sign error in the exponent
+    "n_i = N_c*exp(-E_g/(2*k*T))",              # N_c in place of sqrt(N_c N_v)
+    "n = n_i*exp((E_F - (E_c + E_v)/2)/(k*T))",  # intrinsic level taken at midgap
+    "D_n = mu_n*k*T/q*(1 + n/(sqrt(8)*N_c))",   # first-order series, not a limit
+])
+def test_wrong_or_approximate_formulas_are_unrecognised(formula):
+    assert _match(formula).status == "unrecognised"
+
+
+@pytest.mark.parametrize("factor", ["q", "k*T", "N_c", "mu_n*L", "1/(W*t)"])
+def test_rearranged_formulas_keep_their_limits(factor):
+    """Multiplying both sides by the same factor changes nothing (randomized identity)."""
+    for formula in ("D_n = mu_n*k*T/q", "n = N_D", "R = rho*L/A"):
+        left, right = formula.split("=")
+        base = _match(formula)
+        scaled = _match(f"({left})*{factor} = ({right})*{factor}")
+        assert {l.id for l in scaled.limits} == {l.id for l in base.limits}
+
+
+def test_normal_form_does_not_prove_what_is_false():
+    """Under no limits the shortcuts are not identities; the normal form must say so."""
+    for formula, _, dim, limits, _, _ in RECOGNISED:
+        if not limits:
+            continue
+        lhs, rhs, _ = parse_formula(formula, "n", "test")
+        for which in ("donor", "acceptor"):
+            defs = limited(world(dim, which, "n"), ())
+            try:
+                assert not normal_form.equal(expand(lhs, defs), expand(rhs, defs)), formula
+            except normal_form.Unsupported:
+                pass
+
+
+def test_spellings_and_unknown_symbols():
+    assert parse_formula("λ = lambda_n", "n", "f")[0] == ("name", "lambda_n")
+    assert parse_formula("Dn = μn*Vt", "n", "f")[:2] == parse_formula("D_n = mu_n*(k*T/q)", "n",
+                                                                      "f")[:2]
+    with pytest.raises(InputError) as err:
+        parse_formula("D_n = mu_x*k*T/q", "n", "calc.yaml:12:5")
+    assert "calc.yaml:12:5" in str(err.value) and "mu_n" in str(err.value)
+    for bad in ("D_n == mu_n", "D_n mu_n", "= mu_n", "D_n = "):
+        with pytest.raises(InputError):
+            parse_formula(bad, "n", "f")
+
+
+def test_dimensions():
+    """SI dimensions of the trade quantities (BIPM SI Brochure, 9th ed.)."""
+    def dims(text, dim=3):
+        return dimension(parse_formula(f"n = {text}", "n", "f")[1], dim)
+    conductivity = dims("q*n*mu_n")
+    assert dims("sigma") == conductivity and dims("1/rho") == conductivity
+    assert dims("k*T/q") == dims("V_T") and dims("E*L") == dims("V_T")
+    assert dims("q*n*mu_n", 2) == dims("1/R")          # a 2D conductivity is a conductance
+    assert dims("D_n") == dims("mu_n*k*T/q")
+
+
+@pytest.mark.parametrize("formula, detail, fix", [
+    ("D = mu*q/(k*T)", "the left side is m²/s", "D = mu*k*T/q"),
+    ("D_n/mu_n = q/(k*T)", "the left side is V", "D_n/mu_n = k*T/q"),
+    ("n = N_D + mu_n", "terms of a sum must have one dimension", None),
+    ("n = N_c*exp(E_F - E_c)", "the argument of exp()", None),
+])
+def test_dimension_errors_name_both_sides_and_the_fix(tmp_path, formula, detail, fix):
+    text = f"material: Si\ntemperature: 300 K\nformulas:\n  - {formula}\n"
+    report = _check(tmp_path, text).reports[0]
+    finding, = [f for f in report.findings if f.rule == "FORM01"]
+    assert detail in finding.message and finding.line == 4
+    if fix:
+        assert f"Likely fix: {fix}." in finding.message
+
+
+def _check(tmp_path, text, name="calc.yaml"):
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    read = read_calculation_file(path)
+    assert not read.errors, read.errors
+    return check_calculations(read.calculations)
+
+
+DEGENERATE_GAAS = """material: GaAs
+temperature: 300 K
+doping:
+  donors: {Si: 5e18 cm-3}
+formulas:
+  - D_n = mu_n*k*T/q
+  - D = (2/3)*mu*(E_F - E_c)/q
+  - D = mu*q/(k*T)
+  - n = N_D
+"""
+
+
+def test_formulas_feed_the_rules_and_values_match_mpmath(tmp_path):
+    result = _check(tmp_path, DEGENERATE_GAAS)
+    report = result.reports[0]
+    assert not result.input_errors
+    by_rule = {f.rule: f for f in report.findings}
+    # the Einstein relation is caught by STAT02 at the formula's line, not by FORM03
+    assert by_rule["STAT02"].formula == "D_n = mu_n*k*T/q" and by_rule["STAT02"].line == 6
+    assert [f.formula for f in report.findings if f.rule == "FORM03"] == \
+        ["D = (2/3)*mu*(E_F - E_c)/q"]
+    assert by_rule["FORM01"].line == 8 and "D = mu*k*T/q" in by_rule["FORM01"].message
+    # exact D at the operating point: mpmath F_1/2 / F_-1/2 at an independent solve
+    gaas = load_material("GaAs")
+    eta = reference_solve(gaas, 300.0, {"Si": 5e18 * 1e6}, {})
+    with mp.workdps(30):
+        ratio = mp_fermi_half(eta) / -mp.re(mp.polylog(mp.mpf(0.5), -mp.exp(eta)))
+    kT_q = sc.k * 300.0 / sc.e
+    einstein = next(r for r in report.formulas if r.text == "D_n = mu_n*k*T/q")
+    mu = einstein.value / kT_q                       # the formula's own D / (kT/q)
+    assert einstein.exact == pytest.approx(mu * kT_q * float(ratio), rel=1e-7)
+    # the degenerate form at this eta: (2/3) eta kT/q
+    degenerate = next(r for r in report.formulas if r.text.startswith("D = (2/3)"))
+    assert degenerate.value == pytest.approx(mu * kT_q * 2 / 3 * eta, rel=1e-7)
+    # n = N_D: the exact n is the independently solved density
+    density = next(r for r in report.formulas if r.text == "n = N_D")
+    nc = float(gaas.Nc(300.0))
+    assert density.exact == pytest.approx(nc * float(mp_fermi_half(eta)), rel=1e-7)
+
+
+def test_two_examples_are_caught_by_their_formulas_alone():
+    for name, rule in (("lk7_contact_cap.yaml", "STAT02"), ("lh3_hall_bar.yaml", "ION01")):
+        read = read_calculation_file(f"examples/{name}")
+        calc = read.calculations[0]
+        assert not calc.assumes and not calc.stated and calc.formulas
+        report = check_calculations([calc]).reports[0]
+        hits = [f for f in report.findings if f.rule == rule]
+        assert hits and all(f.formula for f in hits)
+
+
+def test_formula_waiver(tmp_path):
+    text = DEGENERATE_GAAS + "waivers:\n  - {rule: FORM03, reason: degenerate form accepted}\n"
+    report = _check(tmp_path, text).reports[0]
+    assert all(f.waived for f in report.findings if f.rule == "FORM03")
+
+
+HOSTILE = [
+    "n = __import__('os').system('touch {sentinel}')",
+    "n = N_D.__class__",
+    "n = (lambda x: x)(1)",
+    "n = [x for x in (1, 2)]",
+    "n = 'text'",
+    "n = 9**9**9",
+    "n = 1e999999",
+    "n = " + "(" * 10000 + "1" + ")" * 10000,
+    "n = " + "1+" * 500000 + "1",
+]
+
+
+def test_hostile_formulas_are_refused_cleanly(tmp_path):
+    sentinel = tmp_path / "executed"
+    good = "name: fine\nmaterial: Si\ntemperature: 300 K\ndoping:\n  donors: {P: 1e16 cm-3}\n"
+    docs = [good]
+    for i, formula in enumerate(HOSTILE):
+        text = formula.format(sentinel=sentinel)
+        docs.append(f"name: hostile {i}\nmaterial: Si\ntemperature: 300 K\n"
+                    f"formulas:\n  - {json.dumps(text)}\n")
+    path = tmp_path / "hostile.yaml"
+    path.write_text("---\n".join(docs), encoding="utf-8")
+    before = path.read_text()
+    run = subprocess.run([sys.executable, "-m", "checker.cli", "check", str(path),
+                          "--format", "json"], capture_output=True, text=True, timeout=120)
+    assert run.returncode == 2
+    assert "Traceback" not in run.stdout + run.stderr
+    data = json.loads(run.stdout)
+    assert len(data["input_errors"]) == len(HOSTILE)
+    assert all(message.startswith(f"{path}:") for message in data["input_errors"])
+    assert "fine" in [c["name"] for c in data["calculations"]]
+    assert not sentinel.exists()
+    assert path.read_text() == before
+
+
+def test_every_spelling_names_one_symbol():
+    from checker.engine.formula_symbols import GENERIC, SHORTHANDS, SYMBOLS
+
+    spellings = [s for symbol in SYMBOLS.values() for s in symbol.spellings]
+    spellings += [s.strip() for _, spelled in list(GENERIC.values()) + list(SHORTHANDS.values())
+                  for s in spelled.split(",")]
+    assert len(spellings) == len(set(spellings))
