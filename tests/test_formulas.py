@@ -264,3 +264,28 @@ def test_every_spelling_names_one_symbol():
     spellings += [s.strip() for _, spelled in list(GENERIC.values()) + list(SHORTHANDS.values())
                   for s in spelled.split(",")]
     assert len(spellings) == len(set(spellings))
+
+
+def test_readme_documents_every_symbol():
+    from pathlib import Path
+
+    from checker.engine.formula_symbols import GENERIC, SHORTHANDS, SYMBOLS
+
+    readme = Path(__file__).resolve().parents[1].joinpath("README.md").read_text("utf-8")
+    for name in list(SYMBOLS) + list(GENERIC) + list(SHORTHANDS):
+        assert f"| `{name}` |" in readme, name
+
+
+def test_sign_error_is_unrecognised_and_its_value_matches_mpmath(tmp_path):
+    text = ("material: Si\ntemperature: 300 K\ndoping:\n  donors: {P: 1e17 cm-3}\n"
+            "formulas:\n  - n = N_c*exp((E_c - E_F)/(k*T))\n")
+    report = _check(tmp_path, text).reports[0]
+    assert sorted(f.rule for f in report.findings if f.rule.startswith("FORM")) == \
+        ["FORM02", "FORM03"]
+    silicon = load_material("Si")
+    eta = reference_solve(silicon, 300.0, {"P": 1e17 * 1e6}, {})
+    result, = report.formulas
+    # the formula reads N_c e^(-eta); the exact n is N_c F_1/2(eta) (Sze & Ng, ch. 1)
+    nc = float(silicon.Nc(300.0))
+    assert result.value == pytest.approx(nc * float(mp.exp(-eta)), rel=1e-7)
+    assert result.exact == pytest.approx(nc * float(mp_fermi_half(eta)), rel=1e-7)

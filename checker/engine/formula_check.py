@@ -13,9 +13,9 @@ For each formula ``lhs = rhs`` of a calculation:
   the formula's line);
 * the right side is evaluated with the exact values of its symbols at the
   operating point and compared with the exact value of the left side.
-  Unrecognised formulas are reported (FORM02), and a formula whose value is off
-  by more than FORM03's threshold is a finding unless a rule already fired on
-  an assumption it embodies.
+  Unrecognised formulas are reported (FORM02, info), and a formula whose value
+  is off by more than FORM03's threshold is a finding unless a rule already
+  fired on an assumption it embodies.
 """
 from __future__ import annotations
 
@@ -380,7 +380,7 @@ def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings
             "error": result.error_text(),
             "embodies": ", ".join(match.labels) if match.labels else
             ("no shortcut (it is exact)" if match.status == "exact" else
-             "nothing regimecheck can name (it matches no exact relation in any named limit)"),
+             "no named limit (it matches no exact relation)"),
         })
         corrections = []
         if np.isfinite(result.value) and np.isfinite(result.exact) and result.exact != 0 \
@@ -391,13 +391,13 @@ def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings
         off_rule = rules.get("FORM03")
         off = off_rule is not None and np.isfinite(result.error) and \
             abs(result.error) > off_rule.threshold and result.text not in covered
+        if match.status == "unrecognised" and "FORM02" in rules:
+            rule = rules["FORM02"]
+            out.append(_finding(rule, calc, result, _fill(rule.message, fields), corrections))
         if off:
             fields["threshold"] = display(off_rule.threshold, off_rule.indicator_unit)
             out.append(_finding(off_rule, calc, result, _fill(off_rule.message, fields),
                                 corrections, abs(result.error)))
-        elif match.status == "unrecognised" and "FORM02" in rules:
-            rule = rules["FORM02"]
-            out.append(_finding(rule, calc, result, _fill(rule.message, fields), corrections))
     return out
 
 
