@@ -14,6 +14,7 @@ import sys
 from .errors import RegimecheckError
 
 EXIT_OK, EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
+EXIT_BROKEN_PIPE = 141                 # 128 + SIGPIPE, as a shell reports it
 LEVELS = ("info", "warning", "error")
 
 
@@ -226,10 +227,16 @@ def main(argv=None) -> int:
                "materials": _cmd_materials, "rules": _cmd_rules, "symbols": _cmd_symbols,
                "explain": _cmd_explain}[args.command]
     try:
-        return handler(args)
+        code = handler(args)
+        sys.stdout.flush()          # a closed pipe shows here, not at interpreter exit
+        return code
     except RegimecheckError as exc:
         print(f"regimecheck: error: {exc}", file=sys.stderr)
         return EXIT_INPUT
+    except BrokenPipeError:
+        # the reader stopped early (e.g. `| head`): no error message, the shell's code
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return EXIT_BROKEN_PIPE
     except Exception as exc:  # a bug of ours, not the user's input
         if os.environ.get("REGIMECHECK_DEBUG"):
             raise

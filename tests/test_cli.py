@@ -96,3 +96,16 @@ def test_second_document_error_keeps_first(tmp_path):
     data = json.loads(result.stdout)
     assert result.returncode == 2 and [p["name"] for p in data["points"]] == ["ok"]
     assert f"{path}:7:" in data["errors"][0]
+
+
+def test_output_closed_early_is_not_an_internal_error():
+    """`regimecheck check ... | head`: the reader goes away; no traceback, no error text."""
+    import subprocess
+    import sys
+
+    child = subprocess.Popen([sys.executable, "-m", "checker.cli", "check", "examples/"],
+                             stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    child.stdout.close()                 # the reader is gone before anything is written
+    _, err = child.communicate(timeout=120)
+    assert child.returncode == 141
+    assert b"internal error" not in err and b"Traceback" not in err
