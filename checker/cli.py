@@ -59,8 +59,12 @@ def _parser() -> argparse.ArgumentParser:
 
 def _report_options(command):
     command.add_argument("--format", choices=("console", "json"), default="console")
-    command.add_argument("--fail-on", choices=LEVELS, default="warning",
-                         help="lowest severity that makes the exit code 1 (default: warning)")
+    command.add_argument("--fail-on", choices=LEVELS, default=None,
+                         help="lowest severity that makes the exit code 1 (default: the "
+                              "configuration's fail-level, else warning)")
+    command.add_argument("--config", metavar="FILE",
+                         help="TOML settings file (default: [tool.regimecheck] of the first "
+                              "pyproject.toml from here upward)")
     command.add_argument("--exit-zero", action="store_true",
                          help="exit 0 even when there are findings (input errors still exit 2)")
 
@@ -98,7 +102,8 @@ def _exit_code(result, args) -> int:
     if result.input_errors:
         return EXIT_INPUT
     worst = result.worst()
-    if worst is None or args.exit_zero or LEVELS.index(worst) < LEVELS.index(args.fail_on):
+    fail_on = args.fail_on or "warning"
+    if worst is None or args.exit_zero or LEVELS.index(worst) < LEVELS.index(fail_on):
         return EXIT_OK
     return EXIT_FINDINGS
 
@@ -116,10 +121,21 @@ def _report(result, args) -> int:
     return code
 
 
+def _settings(args):
+    """The configuration (file or pyproject.toml); command-line options override it."""
+    from .inputs.config import load_config
+
+    config = load_config(args.config)
+    if args.fail_on is None:
+        args.fail_on = config.fail_level
+    return config
+
+
 def _cmd_check(args) -> int:
     from .engine.run import check_paths
 
-    return _report(check_paths(args.paths), args)
+    config = _settings(args)
+    return _report(check_paths(args.paths, config=config), args)
 
 
 def _cmd_point(args) -> int:
@@ -144,7 +160,13 @@ def _cmd_point(args) -> int:
                        material=material, temperature=T, donors=donors, acceptors=acceptors,
                        band_gap_narrowing=args.narrowing, structure=structure,
                        assumes={word: 0 for word in ASSUMPTIONS})
-    return _report(check_calculations([calc]), args)
+    from .engine.rulebook import configured, load_rules
+    from .inputs.config import check_rule_ids
+
+    config = _settings(args)
+    rules = load_rules()
+    check_rule_ids(config, [rule.id for rule in rules])
+    return _report(check_calculations([calc], configured(rules, config), config=config), args)
 
 
 def _cmd_rules(_args) -> int:

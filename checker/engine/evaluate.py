@@ -114,6 +114,7 @@ class Embodied:
 class WaiverResult:
     notes: list = field(default_factory=list)   # per calculation index: list[str]
     errors: list = field(default_factory=list)  # input errors (unknown rule ids)
+    run_notes: list = field(default_factory=list)   # configuration waivers that waived nothing
 
 
 # quantities derived from another stated key: where to point the reader
@@ -256,10 +257,24 @@ def _run_rule(rule, x, names, declared, made_by, calculations, values, valid, fi
             formula=made_by[i].formula if i in made_by else None))
 
 
-def apply_waivers(rules, calculations, findings) -> WaiverResult:
-    """Mark waived findings; note waivers that waive nothing; unknown rule ids are errors."""
+def apply_waivers(rules, calculations, findings, config=None) -> WaiverResult:
+    """Mark waived findings (the calculation's own waivers, then the configuration's
+    waivers per path); note waivers that waive nothing; unknown rule ids are errors."""
     result = WaiverResult([[] for _ in calculations], [])
     known = [rule.id for rule in rules]
+    if config is not None:
+        used = set()
+        for i, calc in enumerate(calculations):
+            for waiver in config.waivers_for(calc.source):
+                for finding in findings[i]:
+                    if finding.rule == waiver.rule and not finding.waived:
+                        finding.waived = f"{waiver.reason} (configuration, {waiver.pattern})"
+                        used.add(id(waiver))
+        for waiver in config.waive:
+            if id(waiver) not in used:
+                result.run_notes.append(
+                    f"{config.source}:{waiver.line}: the waiver of {waiver.rule} for "
+                    f"{waiver.pattern!r} waives nothing in this run")
     for i, calc in enumerate(calculations):
         for rule_id, (reason, line) in calc.waivers.items():
             if rule_id not in known:

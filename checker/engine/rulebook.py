@@ -9,7 +9,7 @@ the field.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from pathlib import Path
 
@@ -284,3 +284,21 @@ def load_rules(folder: str | None = None) -> tuple:
             raise RuleFileError(f"rule file {rule.path}: field 'id': {rule.id} is used twice")
         seen.add(rule.id)
     return tuple(rules)
+
+
+def configured(rules, config) -> tuple:
+    """The rules a configuration selects, with its severities and thresholds applied."""
+    def named(rule_id, names):
+        return any(rule_id == n or rule_id.startswith(n) for n in names)
+
+    out = []
+    for rule in rules:
+        if (config.only and not named(rule.id, config.only)) or named(rule.id, config.skip):
+            continue
+        changes = {}
+        if rule.id in config.severity:
+            changes["severity"] = config.severity[rule.id]
+        if rule.id in config.threshold:
+            changes["threshold"] = config.threshold[rule.id]
+        out.append(replace(rule, **changes) if changes else rule)
+    return tuple(out)

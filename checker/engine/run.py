@@ -9,6 +9,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..inputs.calculation_file import read_calculation_file
+from ..inputs.config import Config, check_rule_ids
 from ..physics.constants import EV
 from . import rulebook, state_values
 from .evaluate import SEVERITY_RANK, apply_waivers, evaluate
@@ -31,6 +32,7 @@ class RunResult:
     reports: list
     input_errors: list
     rules: tuple
+    notes: list = field(default_factory=list)     # run-level notes (configuration waivers)
 
     def active_findings(self):
         return [f for r in self.reports for f in r.findings if not f.waived]
@@ -47,16 +49,19 @@ class RunResult:
         return out
 
 
-def expand_paths(paths) -> tuple[list[str], list[str]]:
-    """Files named directly, plus every calculation file under named directories."""
+def expand_paths(paths, config=None) -> tuple[list[str], list[str]]:
+    """Files named directly, plus every file under named directories that the
+    configuration's file patterns select and its exclude patterns do not."""
+    config = config or Config()
     files, errors = [], []
     for text in paths:
         path = Path(text)
         if path.is_dir():
-            found = sorted(p for p in path.rglob("*") if p.suffix in CALCULATION_SUFFIXES
-                           and p.is_file())
+            found = sorted(p for p in path.rglob("*") if p.is_file() and config.reads(p.name)
+                           and not config.excluded(p.relative_to(path).as_posix()))
             if not found:
-                errors.append(f"{text}: the directory holds no .yaml calculation file")
+                errors.append(f"{text}: the directory holds no file to check "
+                              f"({', '.join(config.file_patterns)})")
             files.extend(str(p) for p in found)
         elif path.exists():
             files.append(str(path))
@@ -86,8 +91,8 @@ def summarize(values: dict, i: int) -> dict:
     }
 
 
-def check_calculations(calculations, rules=None, input_errors=()) -> RunResult:
-    """Solve and check already-read calculations."""
+def check_calculations(calculations, rules=None, input_errors=(), config=None) -> RunResult:
+    """Solve and check already-read calculations (``config``: an inputs.config.Config)."""
     rules = rulebook.load_rules() if rules is None else rules
     values, solve_errors, solve_notes = state_values.solve_all(calculations)
     formulas = [None] * len(calculations)
@@ -101,7 +106,7 @@ def check_calculations(calculations, rules=None, input_errors=()) -> RunResult:
     for i, calc in enumerate(calculations):
         if formulas[i] and i not in solve_errors:
             findings[i] += formula_check.formula_findings(formulas[i], by_id, calc, findings[i])
-    waivers = apply_waivers(rules, calculations, findings)
+    waivers = apply_waivers(rules, calculations, findings, config)
     reports = []
     for i, calc in enumerate(calculations):
         if i in solve_errors:
@@ -115,15 +120,22 @@ def check_calculations(calculations, rules=None, input_errors=()) -> RunResult:
     errors = list(input_errors) + waivers.errors
     errors += [message for f in formulas if f for message in f.errors]
     errors += [r.error for r in reports if r.error]
-    return RunResult(reports, errors, tuple(rules))
+    return RunResult(reports, errors, tuple(rules), waivers.run_notes)
 
 
-def check_paths(paths, rules=None) -> RunResult:
-    """Read every calculation under ``paths`` and check them all in one pass."""
-    files, errors = expand_paths(paths)
+def check_paths(paths, rules=None, config=None) -> RunResult:
+    """Read every calculation under ``paths`` and check them all in one pass.
+
+    ``config`` (an inputs.config.Config) selects and adjusts the rules, the files
+    a directory walk reads, and adds waivers per path."""
+    config = config or Config()
+    rules = rulebook.load_rules() if rules is None else rules
+    check_rule_ids(config, [rule.id for rule in rules])
+    rules = rulebook.configured(rules, config)
+    files, errors = expand_paths(paths, config)
     calculations = []
     for path in files:
         read = read_calculation_file(path)
         calculations.extend(read.calculations)
         errors.extend(read.errors)
-    return check_calculations(calculations, rules, errors)
+    return check_calculations(calculations, rules, errors, config)

@@ -118,6 +118,8 @@ def render_console(result, console=None, stream=None) -> None:
             add(out, f"note: {note}", "yellow", indent=2)
         emit(out)
     tail = Text()
+    for note in result.notes:
+        tail.append(f"note: {note}\n", style="yellow")
     for message in result.input_errors:
         tail.append(f"input error: {message}\n", style="bold red")
     tail.append(f"\n{summary_line(result)}\n{DISCLAIMER}\n")
@@ -210,6 +212,7 @@ def render_json(result, exit_code: int) -> str:
         "notice": DISCLAIMER,
         "calculations": calculations,
         "input_errors": result.input_errors,
+        "notes": result.notes,
         "summary": {"calculations": len(result.reports), "findings": counts,
                     "input_errors": len(result.input_errors), "worst": result.worst(),
                     "exit_code": exit_code},
