@@ -10,6 +10,7 @@ from __future__ import annotations
 import argparse
 import os
 import sys
+from pathlib import Path
 
 from .errors import RegimecheckError
 
@@ -57,8 +58,15 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+FORMATS = ("console", "json", "markdown", "sarif", "junit")
+
+
 def _report_options(command):
-    command.add_argument("--format", choices=("console", "json"), default="console")
+    command.add_argument("--format", choices=FORMATS, default="console",
+                         help="console (default), json, markdown (to paste under a memo), "
+                              "sarif (SARIF 2.1.0), junit (JUnit XML)")
+    command.add_argument("--output", metavar="FILE",
+                         help="write the report to FILE (UTF-8) instead of the terminal")
     command.add_argument("--fail-on", choices=LEVELS, default=None,
                          help="lowest severity that makes the exit code 1 (default: the "
                               "configuration's fail-level, else warning)")
@@ -108,12 +116,45 @@ def _exit_code(result, args) -> int:
     return EXIT_FINDINGS
 
 
+def _render(result, code, args) -> str:
+    if args.format == "json":
+        from .report.check_report import render_json
+        return render_json(result, code)
+    if args.format == "markdown":
+        from .report.markdown_report import render_markdown
+        return render_markdown(result, code)
+    if args.format == "sarif":
+        from .report.ci_formats import render_sarif
+        return render_sarif(result, code)
+    if args.format == "junit":
+        from .report.ci_formats import render_junit
+        return render_junit(result, code, args.fail_on or "warning")
+    import io
+
+    from .report.check_report import render_console
+    stream = io.StringIO()
+    render_console(result, stream=stream)
+    return stream.getvalue()
+
+
 def _report(result, args) -> int:
-    from .report.check_report import render_console, render_json
+    from .report.check_report import render_console, summary_line
 
     code = _exit_code(result, args)
-    if args.format == "json":
-        print(render_json(result, code))
+    output = getattr(args, "output", None)
+    if output:
+        target = Path(output)
+        inputs = {Path(p).resolve() for p in getattr(args, "paths", [])}
+        if target.resolve() in inputs:
+            raise RegimecheckError(f"--output {output}: that is an input file; name another "
+                                   "file (inputs are never overwritten)")
+        try:
+            target.write_text(_render(result, code, args).rstrip("\n") + "\n", encoding="utf-8")
+        except OSError as exc:
+            raise RegimecheckError(f"--output {output}: cannot write ({exc.strerror})") from None
+        print(f"{summary_line(result)} Report: {output}", file=sys.stderr)
+    elif args.format != "console":
+        print(_render(result, code, args))
     elif sys.stdout.isatty():
         render_console(result, _console())
     else:

@@ -1,0 +1,165 @@
+"""Reports for CI systems: SARIF 2.1.0 and JUnit XML.
+
+SARIF: one run; the driver lists every rule of the run (short description = title,
+full description = why, help = fix and example, default level = severity); each
+finding is a result with rule id, level (info -> note), message and the region
+(file and line); a waived finding carries an ``external`` or ``inSource``
+suppression with its reason; input errors are tool execution notifications.
+
+JUnit: one test suite per input file, one test case per calculation and rule
+(``<calculation> :: <rule>``, unique within the suite); a finding at or above the
+fail level is a failure, a waived one is skipped with its reason, everything
+below the fail level passes; input errors are errors of their file's suite.
+Both say once that the results are screening checks (SARIF run properties,
+JUnit testsuites properties).
+"""
+from __future__ import annotations
+
+import json
+import re
+from xml.etree import ElementTree as ET
+
+from .. import __version__
+from ..engine.evaluate import SEVERITY_RANK, display
+from . import DISCLAIMER
+
+SARIF_SCHEMA = "https://json.schemastore.org/sarif-2.1.0.json"
+SARIF_LEVEL = {"info": "note", "warning": "warning", "error": "error"}
+_LOCATION = re.compile(r"^(?P<file>.+?):(?P<line>\d+)(?::(?P<column>\d+))?: (?P<text>.*)$", re.S)
+
+
+def _finding_text(f) -> str:
+    parts = [f.message]
+    if f.indicator_text():
+        parts.append(f"Regime indicator: {f.indicator_text()}.")
+    for c in f.corrections:
+        parts.append(f"{c.label}: {display(c.stated, c.unit)} ({c.stated_by}) -> "
+                     f"{display(c.corrected, c.unit)} [{c.error_text()}].")
+    if f.formula:
+        parts.append(f"From the stated formula {f.formula}.")
+    return " ".join(parts)
+
+
+def _uri(path: str) -> str:
+    return path.replace("\\", "/")
+
+
+def render_sarif(result, exit_code: int) -> str:
+    rules = list(result.rules)
+    index = {rule.id: i for i, rule in enumerate(rules)}
+    descriptors = [{
+        "id": rule.id,
+        "name": re.sub(r"[^A-Za-z0-9]+", " ", rule.title).title().replace(" ", ""),
+        "shortDescription": {"text": rule.title},
+        "fullDescription": {"text": " ".join(rule.why.split())},
+        "help": {"text": f"Fix: {' '.join(rule.fix.split())} Example: "
+                         f"{' '.join(rule.example.split())}",
+                 "markdown": f"**Fix.** {' '.join(rule.fix.split())}\n\n**Example.** "
+                             f"{' '.join(rule.example.split())}\n\n**References.** "
+                             + "; ".join(rule.references)},
+        "defaultConfiguration": {"level": SARIF_LEVEL[rule.severity]},
+        "properties": {"assumption": rule.assumption, "threshold_source": rule.threshold_source},
+    } for rule in rules]
+    results = []
+    for report in result.reports:
+        for f in report.findings:
+            entry = {
+                "ruleId": f.rule,
+                "level": SARIF_LEVEL[f.severity],
+                "message": {"text": _finding_text(f)},
+                "locations": [{"physicalLocation": {
+                    "artifactLocation": {"uri": _uri(f.file)},
+                    "region": {"startLine": max(int(f.line), 1)}}}],
+                "properties": {"calculation": report.calc.name, "assumption": f.assumption,
+                               "carrier": f.carrier},
+            }
+            if f.rule in index:
+                entry["ruleIndex"] = index[f.rule]
+            if f.waived:
+                entry["suppressions"] = [{"kind": "external" if "(configuration," in f.waived
+                                          else "inSource", "justification": f.waived}]
+            results.append(entry)
+    notifications = []
+    for message in result.input_errors:
+        note = {"level": "error", "message": {"text": message}}
+        match = _LOCATION.match(message)
+        if match:
+            note["locations"] = [{"physicalLocation": {
+                "artifactLocation": {"uri": _uri(match["file"])},
+                "region": {"startLine": int(match["line"])}}}]
+        notifications.append(note)
+    log = {
+        "$schema": SARIF_SCHEMA,
+        "version": "2.1.0",
+        "runs": [{
+            "tool": {"driver": {"name": "regimecheck", "version": __version__,
+                                "semanticVersion": __version__, "rules": descriptors}},
+            "invocations": [{"executionSuccessful": not result.input_errors,
+                             "exitCode": exit_code,
+                             "toolExecutionNotifications": notifications}],
+            "results": results,
+            "properties": {"notice": DISCLAIMER, "notes": result.notes},
+        }],
+    }
+    return json.dumps(log, indent=2, ensure_ascii=False)
+
+
+def render_junit(result, exit_code: int, fail_on: str) -> str:
+    suites = {}
+    for report in result.reports:
+        suites.setdefault(report.calc.source, []).append(report)
+    errors_by_file = {}
+    for message in result.input_errors:
+        match = _LOCATION.match(message)
+        errors_by_file.setdefault(match["file"] if match else "(input)", []).append(message)
+    root = ET.Element("testsuites", name="regimecheck")
+    properties = ET.SubElement(root, "properties")
+    ET.SubElement(properties, "property", name="notice", value=DISCLAIMER)
+    totals = {"tests": 0, "failures": 0, "errors": 0, "skipped": 0}
+    threshold = SEVERITY_RANK[fail_on]
+    for source in list(suites) + [f for f in errors_by_file if f not in suites]:
+        suite = ET.SubElement(root, "testsuite", name=source)
+        counts = {"tests": 0, "failures": 0, "errors": 0, "skipped": 0}
+        used = set()
+        for report in suites.get(source, []):
+            calc = report.calc
+            base = f"{calc.name} (line {calc.line})"
+            for rule in result.rules:
+                name = f"{base} :: {rule.id}"
+                if name in used:
+                    continue
+                used.add(name)
+                case = ET.SubElement(suite, "testcase", name=name, classname=source,
+                                     file=source, line=str(calc.line))
+                counts["tests"] += 1
+                hits = [f for f in report.findings if f.rule == rule.id]
+                if report.error:
+                    ET.SubElement(case, "error", message=report.error)
+                    counts["errors"] += 1
+                    continue
+                active = [f for f in hits if not f.waived]
+                failing = [f for f in active if SEVERITY_RANK[f.severity] >= threshold]
+                if failing:
+                    text = "\n".join(f"{f.file}:{f.line}: {_finding_text(f)}" for f in failing)
+                    ET.SubElement(case, "failure", message=failing[0].title,
+                                  type=failing[0].severity).text = text
+                    counts["failures"] += 1
+                elif hits and not active:
+                    ET.SubElement(case, "skipped", message=f"waived: {hits[0].waived}")
+                    counts["skipped"] += 1
+                elif active:
+                    ET.SubElement(case, "system-out").text = "\n".join(
+                        f"{f.severity}: {_finding_text(f)}" for f in active)
+        for message in errors_by_file.get(source, []):
+            case = ET.SubElement(suite, "testcase", name=f"input :: {message[:80]}",
+                                 classname=source)
+            ET.SubElement(case, "error", message="input error").text = message
+            counts["tests"] += 1
+            counts["errors"] += 1
+        for key, value in counts.items():
+            suite.set(key, str(value))
+            totals[key] += value
+    for key, value in totals.items():
+        root.set(key, str(value))
+    ET.indent(root)
+    return '<?xml version="1.0" encoding="UTF-8"?>\n' + ET.tostring(root, encoding="unicode")
