@@ -8,13 +8,11 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from ..inputs.calculation_file import read_calculation_file
+from ..inputs.sources import read_input
 from ..inputs.config import Config, check_rule_ids
 from ..physics.constants import EV
 from . import rulebook, state_values
 from .evaluate import SEVERITY_RANK, apply_waivers, evaluate
-
-CALCULATION_SUFFIXES = (".yaml", ".yml")
 
 
 @dataclass
@@ -49,9 +47,10 @@ class RunResult:
         return out
 
 
-def expand_paths(paths, config=None) -> tuple[list[str], list[str]]:
-    """Files named directly, plus every file under named directories that the
-    configuration's file patterns select and its exclude patterns do not."""
+def expand_paths(paths, config=None) -> tuple[list, list[str]]:
+    """(path, named on the command line) of the files named directly, plus every file
+    under named directories that the configuration's file patterns select and its
+    exclude patterns do not."""
     config = config or Config()
     files, errors = [], []
     for text in paths:
@@ -62,9 +61,9 @@ def expand_paths(paths, config=None) -> tuple[list[str], list[str]]:
             if not found:
                 errors.append(f"{text}: the directory holds no file to check "
                               f"({', '.join(config.file_patterns)})")
-            files.extend(str(p) for p in found)
+            files.extend((str(p), False) for p in found)
         elif path.exists():
-            files.append(str(path))
+            files.append((str(path), True))
         else:
             errors.append(f"{text}: no such file or directory")
     return files, errors
@@ -134,8 +133,8 @@ def check_paths(paths, rules=None, config=None) -> RunResult:
     rules = rulebook.configured(rules, config)
     files, errors = expand_paths(paths, config)
     calculations = []
-    for path in files:
-        read = read_calculation_file(path)
+    for path, explicit in files:
+        read = read_input(path, explicit)
         calculations.extend(read.calculations)
         errors.extend(read.errors)
     return check_calculations(calculations, rules, errors, config)

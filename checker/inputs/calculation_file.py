@@ -336,15 +336,19 @@ def _waivers(entries, where) -> dict:
     return out
 
 
-def read_calculation_file(path) -> FileResult:
-    """Read every calculation of a file; a bad one is an error, the others still load."""
-    path = str(path)
+def read_text_file(path: str):
+    """(text, error message or None) of a UTF-8 input file."""
     try:
-        text = Path(path).read_text(encoding="utf-8")
+        return Path(path).read_text(encoding="utf-8"), None
     except OSError as exc:
-        return FileResult(path, [], [f"{path}: cannot read the file ({exc.strerror})"])
+        return None, f"{path}: cannot read the file ({exc.strerror})"
     except UnicodeDecodeError:
-        return FileResult(path, [], [f"{path}: not UTF-8 text; save it as UTF-8"])
+        return None, f"{path}: not UTF-8 text; save it as UTF-8"
+
+
+def parse_calculations(text: str, path: str) -> FileResult:
+    """Every calculation of a YAML text; a bad one is an error, the others still load.
+    Line numbers are those of ``text`` (a memo pads its blocks to keep its own)."""
     try:
         docs = read_documents(text, path)
     except InputError as exc:
@@ -355,6 +359,16 @@ def read_calculation_file(path) -> FileResult:
             calculations.append(parse_calculation(doc, path))
         except InputError as exc:
             errors.append(str(exc))
-    if not docs:
-        errors.append(f"{path}: the file holds no calculation")
     return FileResult(path, calculations, errors)
+
+
+def read_calculation_file(path) -> FileResult:
+    """Read every calculation of a YAML file; a bad one is an error, the others still load."""
+    path = str(path)
+    text, error = read_text_file(path)
+    if error:
+        return FileResult(path, [], [error])
+    result = parse_calculations(text, path)
+    if not result.calculations and not result.errors:
+        result.errors.append(f"{path}: the file holds no calculation")
+    return result

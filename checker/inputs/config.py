@@ -5,7 +5,7 @@
     fail-level = "warning"          # info | warning | error (the --fail-on default)
     only = ["STAT", "ION01"]        # run only these rules (ids or id prefixes)
     skip = ["MODEL"]                # never run these
-    file-patterns = ["*.yaml", "*.yml"]   # what a directory walk reads (these by default)
+    file-patterns = ["*.yaml", "*.yml", "*.md"]   # what a directory walk reads (default)
     exclude-patterns = ["build/*"]  # paths (relative to the directory walked) left out
 
     [tool.regimecheck.severity]     # per rule
@@ -39,7 +39,7 @@ from ..errors import InputError
 LEVELS = ("info", "warning", "error")
 KEYS = ("fail-level", "only", "skip", "file-patterns", "exclude-patterns", "severity",
         "threshold", "tolerance", "waive")
-DEFAULT_PATTERNS = ("*.yaml", "*.yml")
+DEFAULT_PATTERNS = ("*.yaml", "*.yml", "*.md")
 WAIVER_KEYS = ("path", "rule", "reason")
 
 
