@@ -31,7 +31,12 @@ def _parser() -> argparse.ArgumentParser:
                      description="Solve and check semiconductor operating points.")
     sub = parser.add_subparsers(dest="command", required=True)
     check = sub.add_parser("check", help="check calculation files (files or directories)")
-    check.add_argument("paths", nargs="+", help="calculation files (.yaml) or directories")
+    check.add_argument("paths", nargs="+",
+                       help="calculation files (.yaml), memos (.md), tables (.csv), directories")
+    check.add_argument("--skip-unrelated", action="store_true",
+                       help="skip named files that hold no calculation (memos without a "
+                            "regimecheck block, other YAML), as a directory walk does; for "
+                            "pre-commit hooks")
     _report_options(check)
     state = sub.add_parser("state", help="solve every calculation in YAML files")
     state.add_argument("paths", nargs="+", help="calculation files (.yaml)")
@@ -176,7 +181,8 @@ def _cmd_check(args) -> int:
     from .engine.run import check_paths
 
     config = _settings(args)
-    return _report(check_paths(args.paths, config=config), args)
+    return _report(check_paths(args.paths, config=config, skip_unrelated=args.skip_unrelated),
+                   args)
 
 
 def _cmd_point(args) -> int:

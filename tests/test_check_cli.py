@@ -12,7 +12,7 @@ GOOD = ("name: good one\nmaterial: Si\ntemperature: 300 K\ndoping:\n  donors: {P
         "stated:\n  electron_density: 1e16 cm-3\n")
 ALL_RULES = {"STAT01", "STAT02", "CARR01", "CARR02", "CARR03", "ION01", "ION02", "TRAN01",
              "TRAN02", "MOB01", "MOB02", "CONST01", "CONST02", "CONST03", "DOPE01", "DOPE02", "MODEL01",
-             "MODEL02", "FORM01", "FORM02", "FORM03"}
+             "MODEL02", "FORM01", "FORM02", "FORM03", "MEAS01", "MEAS02", "MEAS03"}
 
 
 @pytest.fixture(scope="module")

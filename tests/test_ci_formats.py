@@ -43,7 +43,7 @@ def test_sarif_structure(tmp_path, json_report):
     driver = run_["tool"]["driver"]
     assert driver["name"] == "regimecheck"
     ids = [rule["id"] for rule in driver["rules"]]
-    assert len(ids) == len(set(ids)) == 21
+    assert len(ids) == len(set(ids)) == 24
     for rule in driver["rules"]:
         assert rule["shortDescription"]["text"] and rule["fullDescription"]["text"]
         assert rule["help"]["text"] and rule["help"]["markdown"]

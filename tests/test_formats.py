@@ -47,7 +47,7 @@ def _as_text(node):
 
 def test_shipped_rules_load():
     rules = load_rules()
-    assert len(rules) == 21
+    assert len(rules) == 24
     assert [r.id for r in rules if r.evaluated_by] == ["FORM01", "FORM02", "FORM03"]
     for rule in rules:
         assert rule.references and rule.why and rule.fix and rule.example

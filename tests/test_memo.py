@@ -54,3 +54,22 @@ def test_memo_without_blocks(tmp_path):
                              "--format", "json"], capture_output=True, text=True)
     data = json.loads(walked.stdout)
     assert [c["name"] for c in data["calculations"]] == ["x"] and not data["input_errors"]
+
+
+def test_skip_unrelated_files_for_hooks(tmp_path):
+    """pre-commit passes every changed file: unrelated YAML and prose are skipped."""
+    (tmp_path / "ci.yml").write_text("name: build\non: push\n")
+    (tmp_path / "notes.md").write_text("# prose only\n")
+    (tmp_path / "calc.yaml").write_text("name: x\nmaterial: Si\ntemperature: 300 K\n")
+    files = [str(tmp_path / n) for n in ("ci.yml", "notes.md", "calc.yaml")]
+    hook = subprocess.run([sys.executable, "-m", "checker.cli", "check", "--skip-unrelated",
+                           *files, "--format", "json"], capture_output=True, text=True)
+    data = json.loads(hook.stdout)
+    assert hook.returncode == 0 and [c["name"] for c in data["calculations"]] == ["x"]
+    strict = subprocess.run([sys.executable, "-m", "checker.cli", "check", *files],
+                            capture_output=True, text=True)
+    assert strict.returncode == 2                    # named without the option: errors
+    walked = json.loads(subprocess.run([sys.executable, "-m", "checker.cli", "check",
+                                        str(tmp_path), "--format", "json"],
+                                       capture_output=True, text=True).stdout)
+    assert [c["name"] for c in walked["calculations"]] == ["x"] and not walked["input_errors"]

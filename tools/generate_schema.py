@@ -61,7 +61,11 @@ def build() -> dict:
                 "properties": {"rule": {"type": "string", "pattern": "^[A-Za-z]{2,5}[0-9]{2}$"},
                                "reason": {"type": "string", "minLength": 3}}}},
             "options": {"type": "object", "additionalProperties": False,
-                        "properties": {"band_gap_narrowing": {"type": ["boolean", "string"]}}},
+                        "properties": {"band_gap_narrowing": {"type": ["boolean", "string"]},
+                                       "hall_scattering": {"anyOf": [
+                                           {"enum": ["acoustic", "ionized-impurity",
+                                                     "neutral-impurity"]},
+                                           {"type": ["number", "string"]}]}}},
         },
     }
 

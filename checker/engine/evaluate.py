@@ -90,6 +90,7 @@ class Finding:
     line: int
     waived: str | None = None
     formula: str | None = None     # the stated formula that made the assumption
+    column: str | None = None      # table column of the stated number (CSV inputs)
 
     def indicator_text(self) -> str | None:
         """'η = 1.16 > -3', or None for a check without a numeric indicator."""
@@ -223,7 +224,7 @@ def _run_rule(rule, x, names, declared, made_by, calculations, values, valid, fi
     for i in fired:
         calc = calculations[i]
         corrections = []
-        line = None
+        line = column = None
         for corr, shortcut, exact, stated in columns:
             author = bool(np.isfinite(stated[i]))
             value = stated[i] if author else shortcut[i]
@@ -233,6 +234,7 @@ def _run_rule(rule, x, names, declared, made_by, calculations, values, valid, fi
                                           float(value / exact[i] - 1.0), author))
             if author and line is None:
                 line = _line_of(calc, names.get(corr.stated, corr.stated))
+                column = calc.columns.get(names.get(corr.stated, corr.stated))
         if line is None:
             line = next((_line_of(calc, name) for name, mask in implied if mask[i]), None)
         if line is None and i in made_by:
@@ -254,7 +256,7 @@ def _run_rule(rule, x, names, declared, made_by, calculations, values, valid, fi
             relation=rule.relation, threshold=rule.threshold,
             threshold_source=rule.threshold_source, message=message, corrections=corrections,
             file=calc.source, line=int(line),
-            formula=made_by[i].formula if i in made_by else None))
+            formula=made_by[i].formula if i in made_by else None, column=column))
 
 
 def apply_waivers(rules, calculations, findings, config=None) -> WaiverResult:

@@ -15,6 +15,7 @@ from pathlib import Path
 
 from ..errors import RegimecheckError
 from ..inputs.calculation_file import ASSUMPTIONS
+from ..inputs.config import TOLERANCES
 from ..inputs.yaml_source import load_package_yaml
 from ..resources import rules_dir
 from . import expression
@@ -23,7 +24,7 @@ from .vocabulary import DISPLAY_UNITS, carrier_names, rule_names
 SEVERITIES = ("info", "warning", "error")
 # what a rule may guard beyond the words an author declares
 RULE_ONLY_ASSUMPTIONS = ("carrier-type", "stated-mobility", "stated-constants", "light-doping",
-                         "model-validity", "stated-formula")
+                         "model-validity", "stated-formula", "stated-measurement")
 # checks done by engine code rather than by expressions; their rule files hold the
 # documentation, severity and threshold (see DEVELOPERS.md, "Rules evaluated by the engine")
 ENGINE_CHECKS = ("formula-analysis",)
@@ -291,6 +292,7 @@ def configured(rules, config) -> tuple:
     def named(rule_id, names):
         return any(rule_id == n or rule_id.startswith(n) for n in names)
 
+    tolerances = {TOLERANCES[name]: 1.0 + value for name, value in config.tolerance.items()}
     out = []
     for rule in rules:
         if (config.only and not named(rule.id, config.only)) or named(rule.id, config.skip):
@@ -298,6 +300,8 @@ def configured(rules, config) -> tuple:
         changes = {}
         if rule.id in config.severity:
             changes["severity"] = config.severity[rule.id]
+        if rule.id in tolerances:
+            changes["threshold"] = tolerances[rule.id]
         if rule.id in config.threshold:
             changes["threshold"] = config.threshold[rule.id]
         out.append(replace(rule, **changes) if changes else rule)

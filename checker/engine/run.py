@@ -122,11 +122,12 @@ def check_calculations(calculations, rules=None, input_errors=(), config=None) -
     return RunResult(reports, errors, tuple(rules), waivers.run_notes)
 
 
-def check_paths(paths, rules=None, config=None) -> RunResult:
+def check_paths(paths, rules=None, config=None, skip_unrelated=False) -> RunResult:
     """Read every calculation under ``paths`` and check them all in one pass.
 
     ``config`` (an inputs.config.Config) selects and adjusts the rules, the files
-    a directory walk reads, and adds waivers per path."""
+    a directory walk reads, and adds waivers per path.  ``skip_unrelated``: files
+    named directly that hold no calculation are skipped, as in a directory walk."""
     config = config or Config()
     rules = rulebook.load_rules() if rules is None else rules
     check_rule_ids(config, [rule.id for rule in rules])
@@ -134,7 +135,7 @@ def check_paths(paths, rules=None, config=None) -> RunResult:
     files, errors = expand_paths(paths, config)
     calculations = []
     for path, explicit in files:
-        read = read_input(path, explicit)
+        read = read_input(path, explicit and not skip_unrelated, config.columns)
         calculations.extend(read.calculations)
         errors.extend(read.errors)
     return check_calculations(calculations, rules, errors, config)

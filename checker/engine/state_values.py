@@ -11,11 +11,12 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import MissingParameterError, RegimecheckError
-from ..physics import carriers, equilibrium
+from ..physics import carriers, equilibrium, hall
 from ..physics.constants import ELEMENTARY_CHARGE
 from .vocabulary import CONSTANTS, concrete_names
 
-_STATED_COMMON = ("stated_kT_q", "stated_ni", "stated_Rsh", "stated_R", "stated_lambda")
+_STATED_COMMON = ("stated_kT_q", "stated_ni", "stated_Rsh", "stated_R", "stated_lambda",
+                  "stated_hall")
 _STATED_CARRIER = ("stated_dens", "stated_mu", "stated_D", "stated_v")
 
 
@@ -164,3 +165,20 @@ def _fill_inputs(calculations, values):
     values["sigma"] = ELEMENTARY_CHARGE * (values["dens_n"] * values["used_mu_n"]
                                            + values["dens_p"] * values["used_mu_p"])
     values["rho"] = 1.0 / values["sigma"]
+    _hall(calculations, values)
+
+
+def _hall(calculations, values):
+    """Hall factors for each calculation's scattering exponent, and the Hall density."""
+    exponents = np.array([c.hall_exponent for c in calculations], dtype=float)
+    values["hall_r"] = exponents
+    dims = values["dim"]
+    for x in ("n", "p"):
+        factor = np.full(len(calculations), np.nan)
+        for r in np.unique(exponents):
+            for dim in np.unique(dims[np.isfinite(dims)]):
+                pick = (exponents == r) & (dims == dim)
+                factor[pick] = hall.hall_factor(values[f"eta_{x}"][pick], float(r), int(dim))
+        values[f"rH_{x}"] = factor
+    values["n_hall"] = hall.hall_density(values["dens_n"], values["dens_p"], values["mu_n"],
+                                         values["mu_p"], values["rH_n"], values["rH_p"])

@@ -53,6 +53,10 @@ COMMON = {
     "stated_Rsh": ("ohm/sq", "stated sheet resistance"),
     "stated_R": ("ohm", "stated resistance"),
     "stated_lambda": ("nm", "stated mean free path"),
+    "stated_hall": ("cm^-3", "stated Hall density 1/(q|R_H|)"),
+    "n_hall": ("cm^-3", "Hall density 1/(q|R_H|) the solve and the mobility model predict "
+                        "(two carriers, Hall factors)"),
+    "hall_r": ("1", "exponent r of tau ∝ E^r used for the Hall factor"),
 }
 PER_CARRIER = {
     "eta_x": ("1", "reduced Fermi level of the carrier: (E_F - E_C)/kT or (E_V - E_F)/kT"),
@@ -65,6 +69,7 @@ PER_CARRIER = {
     "mott_x": ("cm^-3", "lowest Mott density among the species of N_x (inf: none)"),
     "Eion_x": ("eV", "ionization energy of the main species of N_x (J inside)"),
     "gdeg_x": ("1", "ground-state degeneracy factor of the main species of N_x"),
+    "rH_x": ("1", "Hall scattering factor <tau^2>/<tau>^2 of the carrier (Fermi–Dirac)"),
     "metal_x": ("1", "1 where N_x is above its Mott density"),
     "maj_x": ("1", "1 where this carrier is the majority"),
     "in_use_x": ("1", "1 where the calculation uses this carrier"),
@@ -102,8 +107,10 @@ def carrier_names(x: str) -> dict:
 
 @lru_cache(maxsize=None)
 def rule_names() -> frozenset:
-    """Every name a rule expression may use (before carrier expansion)."""
-    return frozenset(COMMON) | frozenset(PER_CARRIER) | frozenset(CONSTANTS)
+    """Every name a rule expression may use: the ``_x``/``_o`` forms (expanded per
+    carrier) and the concrete ``_n``/``_p`` ones (e.g. dens_n in a per-calculation rule)."""
+    return frozenset(COMMON) | frozenset(PER_CARRIER) | frozenset(CONSTANTS) | \
+        frozenset(concrete_names())
 
 
 def concrete_names() -> set:

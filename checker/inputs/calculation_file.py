@@ -16,6 +16,7 @@ Keys (all optional except material and temperature):
     waivers:     [{rule: <id>, reason: <text>}, ...]
     options:
       band_gap_narrowing: true | false
+      hall_scattering: acoustic | ionized-impurity | neutral-impurity | <exponent r>
 
 Scalars are kept as text and parsed by us (PyYAML would read 1e17 as a
 string and 1.0e17 as a float).  Aliases and duplicate keys are refused.
@@ -37,7 +38,7 @@ from .yaml_source import _StrictLoader
 TOP_KEYS = ("name", "material", "temperature", "doping", "structure", "stated", "assumes",
             "formulas", "waivers", "options")
 DOPING_KEYS = ("donors", "acceptors")
-OPTION_KEYS = ("band_gap_narrowing",)
+OPTION_KEYS = ("band_gap_narrowing", "hall_scattering")
 # YAML key -> (engine quantity name, dimension)
 STRUCTURE_KEYS = {
     "dimensionality": ("dim", "dimensionless"),
@@ -68,6 +69,7 @@ STATED_KEYS = {
     "conduction_dos": ("stated_Nband_n", "density"),
     "valence_dos": ("stated_Nband_p", "density"),
     "mean_free_path": ("stated_lambda", "length"),
+    "hall_density": ("stated_hall", "density"),
 }
 # The trade words an author may declare; a few common spellings map onto them.
 ASSUMPTIONS = ("non-degenerate", "full-ionization", "no-compensation", "single-carrier",
@@ -99,12 +101,14 @@ class Calculation:
     donors: dict         # species -> m^-3
     acceptors: dict
     band_gap_narrowing: bool = False
+    hall_exponent: float = -0.5    # r of tau ∝ E^r for the Hall factor (acoustic phonons)
     structure: dict = field(default_factory=dict)    # engine name -> SI value
     stated: dict = field(default_factory=dict)       # engine name -> SI value
     assumes: dict = field(default_factory=dict)      # word -> line
     waivers: dict = field(default_factory=dict)      # rule id -> (reason, line)
     lines: dict = field(default_factory=dict)        # engine name -> line of its key
     formulas: list = field(default_factory=list)     # (text, "file:line:col", line)
+    columns: dict = field(default_factory=dict)      # engine name -> table column header
 
     @property
     def majority(self) -> str:
@@ -240,11 +244,13 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     _unknown_keys(options, OPTION_KEYS, where("options"), "option")
     bgn = _to_bool(options["band_gap_narrowing"], where("options", "band_gap_narrowing")) \
         if "band_gap_narrowing" in options else False
+    hall = _hall_exponent(options["hall_scattering"], where("options", "hall_scattering")) \
+        if "hall_scattering" in options else -0.5
     line = doc.positions.get((), (1, 1))[0]
     calc = Calculation(name=str(data.get("name", f"{Path(path).name}:{line}")), source=path,
                        line=line, material=material, temperature=temperature,
                        donors=groups["donors"], acceptors=groups["acceptors"],
-                       band_gap_narrowing=bgn)
+                       band_gap_narrowing=bgn, hall_exponent=hall)
     calc.structure = _quantities(data, "structure", STRUCTURE_KEYS, where, calc.lines)
     if "dim" in calc.structure and calc.structure["dim"] not in (1.0, 2.0, 3.0):
         raise InputError(f"{where('structure', 'dimensionality')}: dimensionality must be 3, 2 or 1")
@@ -270,6 +276,24 @@ def _formulas(entries, where) -> list:
                              "'<left side> = <right side>'")
         out.append((text.strip(), where("formulas", i), where.line("formulas", i)))
     return out
+
+
+def _hall_exponent(text, where) -> float:
+    """The exponent r of tau ∝ E^r: a mechanism name or a number from -1.5 to 2.5."""
+    from ..physics.hall import SCATTERING_EXPONENTS
+
+    word = str(text).strip().lower().replace("_", "-").replace(" ", "-")
+    if word in SCATTERING_EXPONENTS:
+        return SCATTERING_EXPONENTS[word]
+    try:
+        value = float(word)
+    except ValueError:
+        value = None
+    if value is None or value * 2 != int(value * 2) or not -1.5 <= value <= 2.5:
+        raise InputError(f"{where}: hall_scattering must be one of "
+                         f"{', '.join(SCATTERING_EXPONENTS)} or an exponent r (tau ∝ E^r) "
+                         f"in half steps from -1.5 to 2.5, got {text!r}")
+    return value
 
 
 def _quantities(data, section, keys, where, lines) -> dict:
@@ -336,6 +360,14 @@ def _waivers(entries, where) -> dict:
     return out
 
 
+def _looks_like_calculation(text: str, path: str) -> bool:
+    try:
+        docs = read_documents(text, path)
+    except InputError:
+        return True            # broken YAML is reported when parsed
+    return any(isinstance(doc.value, dict) and "material" in doc.value for doc in docs)
+
+
 def read_text_file(path: str):
     """(text, error message or None) of a UTF-8 input file."""
     try:
@@ -362,12 +394,16 @@ def parse_calculations(text: str, path: str) -> FileResult:
     return FileResult(path, calculations, errors)
 
 
-def read_calculation_file(path) -> FileResult:
-    """Read every calculation of a YAML file; a bad one is an error, the others still load."""
+def read_calculation_file(path, explicit: bool = True) -> FileResult:
+    """Read every calculation of a YAML file; a bad one is an error, the others still load.
+    Not ``explicit`` (found by a walk, or --skip-unrelated): a YAML file none of whose
+    documents has a ``material`` key is some other YAML (CI settings …) and is skipped."""
     path = str(path)
     text, error = read_text_file(path)
     if error:
         return FileResult(path, [], [error])
+    if not explicit and not _looks_like_calculation(text, path):
+        return FileResult(path, [], [])
     result = parse_calculations(text, path)
     if not result.calculations and not result.errors:
         result.errors.append(f"{path}: the file holds no calculation")

@@ -5,7 +5,7 @@
     fail-level = "warning"          # info | warning | error (the --fail-on default)
     only = ["STAT", "ION01"]        # run only these rules (ids or id prefixes)
     skip = ["MODEL"]                # never run these
-    file-patterns = ["*.yaml", "*.yml", "*.md"]   # what a directory walk reads (default)
+    file-patterns = ["*.yaml", "*.yml", "*.md", "*.csv"]   # what a directory walk reads
     exclude-patterns = ["build/*"]  # paths (relative to the directory walked) left out
 
     [tool.regimecheck.severity]     # per rule
@@ -14,8 +14,11 @@
     [tool.regimecheck.threshold]    # per rule, in the rule file's own numbers
     STAT01 = -2.0
 
-    [tool.regimecheck.tolerance]    # datasheet-table checks (relative)
-    resistivity = 0.25
+    [tool.regimecheck.tolerance]    # measured numbers (relative): resistivity, hall_density,
+    resistivity = 0.25              # diffusivity, mobility (sets MEAS01-03, MOB01)
+
+    [tool.regimecheck.columns]      # our table key = the header a CSV uses
+    resistivity = "Rho (ohm cm)"
 
     [[tool.regimecheck.waive]]      # waivers per path (glob), with the reason
     path = "examples/lg8_*.yaml"
@@ -35,11 +38,15 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import InputError
+from .table import KEYS as TABLE_KEYS
 
 LEVELS = ("info", "warning", "error")
 KEYS = ("fail-level", "only", "skip", "file-patterns", "exclude-patterns", "severity",
-        "threshold", "tolerance", "waive")
-DEFAULT_PATTERNS = ("*.yaml", "*.yml", "*.md")
+        "threshold", "tolerance", "columns", "waive")
+DEFAULT_PATTERNS = ("*.yaml", "*.yml", "*.md", "*.csv")
+# a tolerance name -> the rule whose threshold (1 + tolerance, a factor) it sets
+TOLERANCES = {"resistivity": "MEAS01", "hall_density": "MEAS02", "diffusivity": "MEAS03",
+              "mobility": "MOB01"}
 WAIVER_KEYS = ("path", "rule", "reason")
 
 
@@ -62,6 +69,7 @@ class Config:
     severity: dict = field(default_factory=dict)     # rule id -> level
     threshold: dict = field(default_factory=dict)    # rule id -> number
     tolerance: dict = field(default_factory=dict)    # table check -> relative tolerance
+    columns: dict = field(default_factory=dict)      # our table key -> header in the CSV
     waive: list = field(default_factory=list)        # PathWaiver
     lines: dict = field(default_factory=dict)        # key -> line in the source
 
@@ -169,6 +177,16 @@ def _parse(table: dict, source: str, text: str) -> Config:
                 fail(key, f"{name} = {item!r}: must be a number")
         getattr(config, key).update({(n.upper() if key != "tolerance" else n): kind(v)
                                      for n, v in value.items()})
+    for name in config.tolerance:
+        if name not in TOLERANCES:
+            fail("tolerance", f"unknown tolerance {name!r}; known: {', '.join(TOLERANCES)}")
+    columns = table.get("columns", {})
+    if not isinstance(columns, dict) or not all(isinstance(v, str) for v in columns.values()):
+        fail("columns", "must be a table of our key = \"their header\"")
+    for name in columns:
+        if name not in TABLE_KEYS:
+            fail("columns", f"unknown table key {name!r}; keys are {', '.join(TABLE_KEYS)}")
+    config.columns = dict(columns)
     waivers = table.get("waive", [])
     if not isinstance(waivers, list):
         fail("waive", "write each waiver as [[tool.regimecheck.waive]] with path, rule, reason")

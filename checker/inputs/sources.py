@@ -5,18 +5,23 @@ from pathlib import Path
 
 from .calculation_file import FileResult, read_calculation_file
 from .memo import MEMO_SUFFIXES, read_memo
+from .table import TABLE_SUFFIXES, read_table
 
 CALCULATION_SUFFIXES = (".yaml", ".yml")
-KNOWN = CALCULATION_SUFFIXES + MEMO_SUFFIXES
+KNOWN = CALCULATION_SUFFIXES + MEMO_SUFFIXES + TABLE_SUFFIXES
 
 
-def read_input(path, explicit: bool = True) -> FileResult:
+def read_input(path, explicit: bool = True, columns=None) -> FileResult:
     """The calculations of one input file.  ``explicit``: named on the command line (a
-    memo without calculation blocks is then an error; found by a walk it is skipped)."""
+    memo without calculation blocks, or YAML without a ``material`` key, is then an
+    error; found by a walk, or with --skip-unrelated, it is skipped).
+    ``columns``: our table key -> the header a CSV uses for it."""
     suffix = Path(path).suffix.lower()
     if suffix in CALCULATION_SUFFIXES:
-        return read_calculation_file(path)
+        return read_calculation_file(path, explicit)
     if suffix in MEMO_SUFFIXES:
         return read_memo(path, explicit)
+    if suffix in TABLE_SUFFIXES:
+        return read_table(path, columns)
     return FileResult(str(path), [], [f"{path}: regimecheck reads calculation files "
                                       f"({', '.join(KNOWN)}); rename it or leave it out"])

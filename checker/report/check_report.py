@@ -39,8 +39,9 @@ def summary_line(result, exit_code=None) -> str:
     return text
 
 
-def _where(file, line) -> str:
-    return f"{file}:{line}" if line else file
+def _where(file, line, column=None) -> str:
+    place = f"{file}:{line}" if line else file
+    return f"{place} (column {column!r})" if column else place
 
 
 class _PlainText:
@@ -104,7 +105,7 @@ def render_console(result, console=None, stream=None) -> None:
             tag = "waived" if f.waived else f.severity
             out.append(f"{tag.upper():8s}", style="dim" if f.waived else STYLE[f.severity])
             out.append(f"{f.rule}  {f.title}", style="bold")
-            out.append(f"  at {_where(f.file, f.line)}\n", style="dim")
+            out.append(f"  at {_where(f.file, f.line, f.column)}\n", style="dim")
             add(out, f.message)
             if f.indicator_text():
                 add(out, f"regime indicator: {f.indicator_text()}", "dim")
@@ -158,7 +159,7 @@ def finding_json(f) -> dict:
                       "threshold": _number(f.threshold * factor), "relation": f.relation,
                       "unit": f.indicator_unit, "source": f.threshold_source},
         "message": f.message,
-        "where": {"file": f.file, "line": f.line},
+        "where": {"file": f.file, "line": f.line, "column": f.column},
         "corrections": [{
             "quantity": c.label, "unit": c.unit,
             "stated": _number(c.stated * DISPLAY_UNITS[c.unit]),

@@ -37,6 +37,8 @@ def _finding_text(f) -> str:
                      f"{display(c.corrected, c.unit)} [{c.error_text()}].")
     if f.formula:
         parts.append(f"From the stated formula {f.formula}.")
+    if f.column:
+        parts.append(f"Table column: {f.column}.")
     return " ".join(parts)
 
 
@@ -71,7 +73,7 @@ def render_sarif(result, exit_code: int) -> str:
                     "artifactLocation": {"uri": _uri(f.file)},
                     "region": {"startLine": max(int(f.line), 1)}}}],
                 "properties": {"calculation": report.calc.name, "assumption": f.assumption,
-                               "carrier": f.carrier},
+                               "carrier": f.carrier, "column": f.column},
             }
             if f.rule in index:
                 entry["ruleIndex"] = index[f.rule]

@@ -28,7 +28,8 @@ def render_markdown(result, exit_code: int) -> str:
                   "|---|---|---|---|---|"]
         for report, f in findings:
             severity = f"waived ({_cell(f.waived)})" if f.waived else f.severity
-            lines.append(f"| {severity} | {f.rule} | `{f.file}:{f.line}` | "
+            column = f" ({_cell(f.column)})" if f.column else ""
+            lines.append(f"| {severity} | {f.rule} | `{f.file}:{f.line}`{column} | "
                          f"**{_cell(f.title)}.** {_cell(f.message)} | {_cell(_corrections(f))} |")
         lines.append("")
     else:
