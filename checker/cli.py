@@ -181,8 +181,42 @@ def _cmd_check(args) -> int:
     from .engine.run import check_paths
 
     config = _settings(args)
-    return _report(check_paths(args.paths, config=config, skip_unrelated=args.skip_unrelated),
-                   args)
+    with _sweep_progress() as progress:
+        result = check_paths(args.paths, config=config, skip_unrelated=args.skip_unrelated,
+                             progress=progress)
+    return _report(result, args)
+
+
+class _sweep_progress:
+    """A rich progress bar on a terminal's stderr for sweeps of many points (none when
+    stderr is not a terminal, or for small grids that finish in well under a second)."""
+
+    LARGE = 200_000
+
+    def __enter__(self):
+        self.bar = None
+        return self.update if sys.stderr.isatty() else None
+
+    def update(self, done, total):
+        if total < self.LARGE:
+            return
+        if self.bar is None:
+            from rich.console import Console
+            from rich.progress import Progress
+
+            self.bar = Progress(console=Console(stderr=True), transient=True)
+            self.bar.start()
+            self.task = self.bar.add_task("sweep", total=total)
+            self.total = total
+        if total != self.total:
+            self.task = self.bar.add_task("sweep", total=total)
+            self.total = total
+        self.bar.update(self.task, completed=done)
+
+    def __exit__(self, *exc):
+        if self.bar is not None:
+            self.bar.stop()
+        return False
 
 
 def _cmd_point(args) -> int:
@@ -270,7 +304,9 @@ def _cmd_state(args) -> int:
                 errors.append(f"{calc.source}:{calc.line}: {exc}")
                 continue
             subtitle = (f"{calc.source}:{calc.line} - {calc.material.name}, "
-                        f"{calc.temperature:.2f} K, {doping_text(calc.donors, calc.acceptors)}")
+                        f"{calc.temperature:.2f} K, {doping_text(calc.donors, calc.acceptors)}"
+                        + (" (the first point of a sweep; `check` covers the grid)"
+                           if calc.sweep else ""))
             entries.append((calc.name, subtitle, summary))
     if args.format == "json":
         print(render_json(entries, errors))

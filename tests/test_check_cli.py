@@ -40,13 +40,15 @@ def test_json_keys_are_stable(example_report):
     assert data["format"] == "regimecheck-report/1"
     assert "screening check" in data["notice"].lower()
     assert set(data["summary"]) == {"calculations", "findings", "input_errors", "worst", "exit_code"}
+    assert set(data) == {"format", "notice", "calculations", "input_errors", "notes", "summary"}
     calc = next(c for c in data["calculations"] if c["findings"])
     assert set(calc) == {"source", "name", "material", "temperature_K", "doping_cm3", "state",
-                         "formulas", "findings", "notes", "error"}
+                         "sweep", "formulas", "findings", "notes", "error"}
     assert set(calc["source"]) == {"file", "line"}
     finding = calc["findings"][0]
     assert set(finding) == {"rule", "title", "severity", "assumption", "carrier", "indicator",
-                            "message", "where", "corrections", "waived", "formula"}
+                            "message", "where", "corrections", "waived", "formula", "sweep"}
+    assert set(finding["where"]) == {"file", "line", "column"}
     assert set(finding["indicator"]) == {"label", "value", "threshold", "relation", "unit",
                                          "source"}
     corrections = [c for cc in data["calculations"] for f in cc["findings"]

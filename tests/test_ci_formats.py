@@ -11,7 +11,9 @@ import json
 import subprocess
 import sys
 import xml.etree.ElementTree as ET
+from pathlib import Path
 
+import jsonschema
 import pytest
 
 from checker.report import DISCLAIMER
@@ -38,6 +40,10 @@ def test_sarif_structure(tmp_path, json_report):
     done = run("check", *FILES, str(bad), "--format", "sarif")
     assert done.returncode == 2
     log = json.loads(done.stdout)
+    # the OASIS SARIF 2.1.0 schema (tests/data/README.md says where the copy comes from)
+    schema = json.loads((Path(__file__).parent / "data" / "sarif-schema-2.1.0.json")
+                        .read_text(encoding="utf-8"))
+    jsonschema.Draft7Validator(schema).validate(log)
     assert log["version"] == "2.1.0" and "sarif" in log["$schema"]
     run_, = log["runs"]
     driver = run_["tool"]["driver"]
@@ -116,3 +122,15 @@ def test_output_file_and_inputs_never_overwritten(tmp_path):
     done = run("check", str(victim), "--output", str(victim))
     assert done.returncode == 2 and "input file" in done.stderr
     assert victim.read_text(encoding="utf-8") == before
+
+
+def test_sarif_of_every_example_is_valid():
+    """All input kinds (YAML, memo, CSV table, sweep) in one SARIF log, OASIS schema."""
+    log = json.loads(run("check", "examples/", "--format", "sarif").stdout)
+    schema = json.loads((Path(__file__).parent / "data" / "sarif-schema-2.1.0.json")
+                        .read_text(encoding="utf-8"))
+    jsonschema.Draft7Validator(schema).validate(log)
+    uris = {r["locations"][0]["physicalLocation"]["artifactLocation"]["uri"]
+            for r in log["runs"][0]["results"]}
+    assert {"examples/lt9_wafer_lots.csv", "examples/lm6_bias_memo.md",
+            "examples/lw3_corner_sweep.yaml"} <= uris

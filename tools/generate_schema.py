@@ -27,8 +27,19 @@ def quantity(dimension: str) -> dict:
 
 def build() -> dict:
     density = quantity("density")
-    species = {"type": "object", "additionalProperties": density,
-               "description": "species name -> density, e.g. {P: 1e17 cm-3}"}
+
+    def sweep(dimension, default):
+        return {"type": "object", "required": ["from", "to", "steps"],
+                "additionalProperties": False,
+                "description": f"a sweep: the range is checked on a grid ({default} spacing "
+                               "unless 'spacing' says otherwise)",
+                "properties": {"from": quantity(dimension), "to": quantity(dimension),
+                               "steps": {"type": ["integer", "string"]},
+                               "spacing": {"enum": ["linear", "log"]}}}
+
+    species = {"type": "object", "additionalProperties": {"anyOf": [density,
+                                                                    sweep("density", "log")]},
+               "description": "species name -> density, e.g. {P: 1e17 cm-3}, or a sweep"}
     material_mapping = {"type": "object", "description": "a custom material in the form of the "
                         "built-in material files (see DEVELOPERS.md)"}
     return {
@@ -42,8 +53,10 @@ def build() -> dict:
         "properties": {
             "name": {"type": "string"},
             "material": {"anyOf": [{"type": "string"}, material_mapping]},
-            "temperature": {"type": "string", "pattern": r"^\s*[-+]?[0-9.eE+-]+\s*(K|degC|°C|C)\s*$",
-                            "description": "e.g. '300 K' or '27 degC'"},
+            "temperature": {"anyOf": [
+                {"type": "string", "pattern": r"^\s*[-+]?[0-9.eE+-]+\s*(K|degC|°C|C)\s*$",
+                 "description": "e.g. '300 K' or '27 degC'"},
+                sweep("temperature", "linear")]},
             "doping": {"type": "object", "additionalProperties": False,
                        "properties": {"donors": species, "acceptors": species}},
             "structure": {"type": "object", "additionalProperties": False,

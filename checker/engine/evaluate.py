@@ -91,6 +91,7 @@ class Finding:
     waived: str | None = None
     formula: str | None = None     # the stated formula that made the assumption
     column: str | None = None      # table column of the stated number (CSV inputs)
+    sweep: object = None           # sweep.SweepSummary where the finding covers a grid
 
     def indicator_text(self) -> str | None:
         """'η = 1.16 > -3', or None for a check without a numeric indicator."""
@@ -189,6 +190,18 @@ def _run_rule(rule, x, names, declared, made_by, calculations, values, valid, fi
     if rule.declared:
         made |= declared & (_nonzero(values[names["in_use_x"]]) if x else True)
         made[list(made_by)] = True
+    fired, indicator, implied = rule_mask(rule, x, names, made, values, count)
+    fired = np.flatnonzero(fired & valid)
+    if fired.size == 0:
+        return
+    _findings(rule, x, names, fired, indicator, implied, made_by, calculations, values,
+              findings)
+
+
+def rule_mask(rule, x, names, made, values, count):
+    """(fired, indicator, implications) of one rule over ``count`` points, given where
+    its assumption is declared or embodied (``made``, a boolean array)."""
+    made = made.copy()
     implied = []          # (stated name, mask) of each implication, for the source line
     for imp in rule.implied_by:
         name = names.get(imp.stated, imp.stated)
@@ -208,9 +221,12 @@ def _run_rule(rule, x, names, declared, made_by, calculations, values, valid, fi
     wrong_side = indicator > rule.threshold if rule.relation == "above" \
         else indicator < rule.threshold
     # an infinite indicator (e.g. n_i over zero net doping) is on the wrong side too
-    fired = np.flatnonzero(made & valid & ~np.isnan(indicator) & wrong_side)
-    if fired.size == 0:
-        return
+    return made & ~np.isnan(indicator) & wrong_side, indicator, implied
+
+
+def _findings(rule, x, names, fired, indicator, implied, made_by, calculations, values,
+              findings):
+    count = len(calculations)
     columns = []
     for corr in rule.corrections:
         shortcut = np.broadcast_to(np.asarray(corr.shortcut.run[x](values), dtype=float), (count,))

@@ -23,6 +23,7 @@ class CalculationReport:
     notes: list = field(default_factory=list)
     error: str | None = None     # the calculation could not be solved
     formulas: list = field(default_factory=list)   # formula_check.FormulaResult
+    sweep: dict | None = None    # a sweep: {"axes": [(label, Axis)], "points": n}
 
 
 @dataclass
@@ -90,9 +91,33 @@ def summarize(values: dict, i: int) -> dict:
     }
 
 
-def check_calculations(calculations, rules=None, input_errors=(), config=None) -> RunResult:
-    """Solve and check already-read calculations (``config``: an inputs.config.Config)."""
+def check_calculations(calculations, rules=None, input_errors=(), config=None,
+                       progress=None) -> RunResult:
+    """Solve and check already-read calculations (``config``: an inputs.config.Config).
+    Sweeps are checked over their grid (``progress(done, total)`` is told how far)."""
     rules = rulebook.load_rules() if rules is None else rules
+    points = [i for i, calc in enumerate(calculations) if not calc.sweep]
+    reports, findings, errors = _check_points([calculations[i] for i in points], rules)
+    by_index = dict(zip(points, zip(reports, findings)))
+    for i, calc in enumerate(calculations):
+        if calc.sweep:
+            report, sweep_errors = _check_sweep(calc, rules, progress)
+            by_index[i] = (report, report.findings)
+            errors += sweep_errors
+    ordered_reports = [by_index[i][0] for i in range(len(calculations))]
+    waivers = apply_waivers(rules, calculations, [by_index[i][1]
+                                                  for i in range(len(calculations))], config)
+    for i, report in enumerate(ordered_reports):
+        report.findings = sorted(report.findings,
+                                 key=lambda f: (-SEVERITY_RANK[f.severity], f.rule))
+        report.notes += waivers.notes[i]
+    errors = list(input_errors) + waivers.errors + errors
+    errors += [r.error for r in ordered_reports if r.error]
+    return RunResult(ordered_reports, errors, tuple(rules), waivers.run_notes)
+
+
+def _check_points(calculations, rules):
+    """(reports, findings per calculation, input errors) of single operating points."""
     values, solve_errors, solve_notes = state_values.solve_all(calculations)
     formulas = [None] * len(calculations)
     if any(calc.formulas for calc in calculations):
@@ -102,27 +127,64 @@ def check_calculations(calculations, rules=None, input_errors=(), config=None) -
     findings = evaluate(rules, calculations, values, skip=solve_errors.keys(),
                         embodied=[f.embodied if f else [] for f in formulas])
     by_id = {rule.id: rule for rule in rules}
-    for i, calc in enumerate(calculations):
-        if formulas[i] and i not in solve_errors:
-            findings[i] += formula_check.formula_findings(formulas[i], by_id, calc, findings[i])
-    waivers = apply_waivers(rules, calculations, findings, config)
     reports = []
     for i, calc in enumerate(calculations):
         if i in solve_errors:
             reports.append(CalculationReport(calc, None, error=f"{calc.source}:{calc.line}: "
                                                                f"{solve_errors[i]}"))
+            findings[i] = []
             continue
-        ordered = sorted(findings[i], key=lambda f: (-SEVERITY_RANK[f.severity], f.rule))
-        notes = ([solve_notes[i]] if i in solve_notes else []) + waivers.notes[i]
-        reports.append(CalculationReport(calc, summarize(values, i), ordered, notes,
+        if formulas[i]:
+            findings[i] += formula_check.formula_findings(formulas[i], by_id, calc, findings[i])
+        notes = [solve_notes[i]] if i in solve_notes else []
+        reports.append(CalculationReport(calc, summarize(values, i), findings[i], notes,
                                          formulas=formulas[i].results if formulas[i] else []))
-    errors = list(input_errors) + waivers.errors
-    errors += [message for f in formulas if f for message in f.errors]
-    errors += [r.error for r in reports if r.error]
-    return RunResult(reports, errors, tuple(rules), waivers.run_notes)
+    errors = [message for f in formulas if f for message in f.errors]
+    return reports, findings, errors
 
 
-def check_paths(paths, rules=None, config=None, skip_unrelated=False) -> RunResult:
+def _check_sweep(calc, rules, progress):
+    """A sweep: rules over the grid, then each failing rule's worst point in full."""
+    from . import sweep
+
+    T, donors, acceptors, _ = sweep.grid(calc)
+    first = sweep.point(calc, T, donors, acceptors, 0)
+    first_reports, first_findings, errors = _check_points([first], rules)
+    first_report = first_reports[0]
+    if first_report.error:
+        return CalculationReport(calc, None, error=first_report.error), errors
+    formulas = first_report.formulas
+    for result in formulas:          # a value "here" belongs to one point, not to a sweep
+        result.value = result.exact = result.error = float("nan")
+    embodied = [(word, carrier) for r in formulas if r.match
+                for word, carrier in r.match.assumptions]
+    from .evaluate import Embodied
+
+    items = [Embodied(word, carrier, 0, "") for word, carrier in embodied]
+    masks, points, notes = sweep.evaluate_sweep(calc, rules, items, progress)
+    findings = [f for f in first_findings[0] if f.rule in ("FORM01", "FORM02")]
+    for (rule_id, x), (mask, index) in sorted(masks.items()):
+        worst = sweep.point(calc, T, donors, acceptors, index)
+        checked, checked_findings, _ = _check_points([worst], rules)
+        carrier = {"n": "electrons", "p": "holes"}.get(x)
+        match = [f for f in checked_findings[0] if f.rule == rule_id and f.carrier == carrier]
+        if not match:
+            continue
+        finding = match[0]
+        summary = sweep.summarize_sweep(calc, mask, index, points)
+        where = ", ".join(f"{k} = {v}" for k, v in summary.worst_point.items())
+        finding.message = (f"On {summary.failing_fraction:.1%} of the sweep; "
+                           f"{'; '.join(summary.boundary)}. Worst at {where}: {finding.message}")
+        finding.sweep = summary
+        findings.append(finding)
+    report = CalculationReport(calc, None, findings, notes, formulas=formulas)
+    report.sweep = {"axes": [(sweep.axis_label(a), a) for a in calc.sweep],
+                    "points": int(T.size)}
+    return report, errors
+
+
+def check_paths(paths, rules=None, config=None, skip_unrelated=False,
+                progress=None) -> RunResult:
     """Read every calculation under ``paths`` and check them all in one pass.
 
     ``config`` (an inputs.config.Config) selects and adjusts the rules, the files
@@ -138,4 +200,4 @@ def check_paths(paths, rules=None, config=None, skip_unrelated=False) -> RunResu
         read = read_input(path, explicit and not skip_unrelated, config.columns)
         calculations.extend(read.calculations)
         errors.extend(read.errors)
-    return check_calculations(calculations, rules, errors, config)
+    return check_calculations(calculations, rules, errors, config, progress)

@@ -30,6 +30,19 @@ def _group_key(calc):
             int(calc.structure.get("dim", 3)))
 
 
+def solve_sweep(calc, T, donors, acceptors) -> tuple[dict, str | None]:
+    """Every quantity over the points of a sweep of ``calc`` (arrays of one length)."""
+    count = len(T)
+    values = {name: np.full(count, np.nan) for name in concrete_names()}
+    values.update({name: np.full(count, value) for name, value in CONSTANTS.items()})
+    put, skipped = solve_points(calc, T, donors, acceptors)
+    for name, array in put.items():
+        values[name] = np.broadcast_to(array, (count,)).copy() if np.ndim(array) else \
+            np.full(count, array)
+    _fill_inputs([calc], values, count=count)
+    return values, skipped
+
+
 def solve_all(calculations) -> tuple[dict, dict, dict]:
     """Return (values, errors, notes): values maps every quantity name to an array
     over the calculations (NaN where unknown); errors maps a calculation index to
@@ -64,11 +77,26 @@ def solve_all(calculations) -> tuple[dict, dict, dict]:
 
 def _solve_group(calculations, members, values):
     calcs = [calculations[i] for i in members]
-    first = calcs[0]
-    material, dim = first.material, int(first.structure.get("dim", 3))
     T = np.array([c.temperature for c in calcs])
-    donors = {s: np.array([c.donors[s] for c in calcs]) for s in first.donors}
-    acceptors = {s: np.array([c.acceptors[s] for c in calcs]) for s in first.acceptors}
+    donors = {s: np.array([c.donors[s] for c in calcs]) for s in calcs[0].donors}
+    acceptors = {s: np.array([c.acceptors[s] for c in calcs]) for s in calcs[0].acceptors}
+    put, skipped = solve_points(calcs[0], T, donors, acceptors)
+    for name, array in put.items():
+        values[name][members] = np.broadcast_to(array, T.shape)
+    return skipped
+
+
+def _onset(material, net):
+    """Intrinsic-onset temperature per point, solved once per distinct net doping (a
+    sweep over temperature repeats each doping many times)."""
+    distinct, back = np.unique(net, return_inverse=True)
+    return carriers.intrinsic_onset_temperature(material, distinct)[back.reshape(net.shape)]
+
+
+def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
+    """Solve points sharing ``first``'s material, species, dimensionality and options at
+    the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note)."""
+    material, dim = first.material, int(first.structure.get("dim", 3))
     state = equilibrium.solve(material, T, donors, acceptors,
                               band_gap_narrowing=first.band_gap_narrowing)
     skipped = None
@@ -89,7 +117,7 @@ def _solve_group(calculations, members, values):
     put = {
         "T": T, "kT": state.kT, "kT_q": flow["kT_over_q"], "Eg": state.Eg, "ni": state.ni,
         "Nnet": net, "Ntot": state.donors_total + state.acceptors_total,
-        "T_onset": carriers.intrinsic_onset_temperature(material, net),
+        "T_onset": _onset(material, net),
         "dEg_bgn": narrowing, "bgn_on": np.full_like(T, float(first.band_gap_narrowing)),
         "T_lo": np.full_like(T, T_lo), "T_hi": np.full_like(T, T_hi),
         "N_lo": np.full_like(T, N_lo), "N_hi": np.full_like(T, N_hi),
@@ -114,14 +142,17 @@ def _solve_group(calculations, members, values):
         })
     put["maj_n"] = (state.n >= state.p).astype(float)
     put["maj_p"] = 1.0 - put["maj_n"]
-    for name, array in put.items():
-        values[name][members] = np.broadcast_to(array, T.shape)
-    return skipped
+    return put, skipped
 
 
-def _fill_inputs(calculations, values):
-    """Structure and stated numbers, and what depends on them (vectorized after the fill)."""
+def _fill_inputs(calculations, values, count=None):
+    """Structure and stated numbers, and what depends on them (vectorized after the fill).
+    ``count``: the points of a sweep, which all share the single calculation given."""
+    size = len(calculations) if count is None else count
+
     def column(getter):
+        if count is not None:
+            return np.full(count, getter(calculations[0]), dtype=float)
         return np.array([getter(c) for c in calculations], dtype=float) if calculations \
             else np.zeros(0)
 
@@ -151,7 +182,7 @@ def _fill_inputs(calculations, values):
     specific = {}
     for x in ("n", "p"):
         values[f"stated_ef_{x}"] = values[f"stated_eta_{x}"] * kT
-        specific[x] = np.zeros(len(calculations), dtype=bool)
+        specific[x] = np.zeros(size, dtype=bool)
         for stem in _STATED_CARRIER:
             specific[x] |= np.isfinite(values[f"{stem}_{x}"])
     none = ~(specific["n"] | specific["p"])
@@ -165,16 +196,15 @@ def _fill_inputs(calculations, values):
     values["sigma"] = ELEMENTARY_CHARGE * (values["dens_n"] * values["used_mu_n"]
                                            + values["dens_p"] * values["used_mu_p"])
     values["rho"] = 1.0 / values["sigma"]
-    _hall(calculations, values)
+    _hall(values, column(lambda c: c.hall_exponent))
 
 
-def _hall(calculations, values):
+def _hall(values, exponents):
     """Hall factors for each calculation's scattering exponent, and the Hall density."""
-    exponents = np.array([c.hall_exponent for c in calculations], dtype=float)
     values["hall_r"] = exponents
     dims = values["dim"]
     for x in ("n", "p"):
-        factor = np.full(len(calculations), np.nan)
+        factor = np.full(len(exponents), np.nan)
         for r in np.unique(exponents):
             for dim in np.unique(dims[np.isfinite(dims)]):
                 pick = (exponents == r) & (dims == dim)

@@ -4,9 +4,9 @@ Keys (all optional except material and temperature):
 
     name: <text>
     material: <built-in name> | <mapping in the material data-file form>
-    temperature: "<number> K" | "<number> degC"
+    temperature: "<number> K" | "<number> degC" | {from, to, steps[, spacing]} (a sweep)
     doping:
-      donors:    {<species>: "<density>", ...}
+      donors:    {<species>: "<density>" | {from, to, steps[, spacing]}, ...}
       acceptors: {<species>: "<density>", ...}
     structure:   dimensionality (3/2/1), length, cross_section | thickness + width,
                  field | voltage
@@ -109,6 +109,7 @@ class Calculation:
     lines: dict = field(default_factory=dict)        # engine name -> line of its key
     formulas: list = field(default_factory=list)     # (text, "file:line:col", line)
     columns: dict = field(default_factory=dict)      # engine name -> table column header
+    sweep: list = field(default_factory=list)        # Axis objects (empty: one point)
 
     @property
     def majority(self) -> str:
@@ -209,8 +210,14 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
         material = resolve_material(data["material"])
     except InputError as exc:
         raise InputError(f"{where('material')}: {exc}") from None
-    temperature = check_plausible(parse_temperature(data["temperature"], where("temperature")),
-                                  "temperature", data["temperature"], where("temperature"))
+    axes = []
+    if isinstance(data["temperature"], dict):
+        axes.append(_axis(data["temperature"], "temperature", "T", where, ("temperature",)))
+        temperature = float(axes[-1].values[0])
+    else:
+        temperature = check_plausible(parse_temperature(data["temperature"],
+                                                        where("temperature")),
+                                      "temperature", data["temperature"], where("temperature"))
     doping = data.get("doping") or {}
     if not isinstance(doping, dict):
         raise InputError(f"{where('doping')}: doping must map 'donors' and/or 'acceptors' "
@@ -233,6 +240,11 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
             if dopant.kind != expected:
                 raise InputError(f"{here}: {species} is a {dopant.kind} in {material.name}; "
                                  f"move it under {dopant.kind}s")
+            if isinstance(text, dict):
+                axes.append(_axis(text, "density", (group, species), where,
+                                  ("doping", group, species)))
+                values[species] = float(axes[-1].values[0])
+                continue
             density = parse_quantity(text, "density", here)
             if density < 0:
                 raise InputError(f"{here}: density {text!r} is negative; give a value >= 0")
@@ -258,7 +270,63 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     calc.assumes = _assumptions(data.get("assumes"), where)
     calc.waivers = _waivers(data.get("waivers"), where)
     calc.formulas = _formulas(data.get("formulas"), where)
+    if len(axes) > 2:
+        raise InputError(f"{where()}: a sweep has at most two axes (temperature and one "
+                         f"density, or two densities); this one has {len(axes)}")
+    if len(axes) == 2 and len(axes[0].values) * len(axes[1].values) > MAX_SWEEP_POINTS:
+        raise InputError(f"{where()}: the sweep has {len(axes[0].values) * len(axes[1].values)} "
+                         f"points; the limit is {MAX_SWEEP_POINTS}")
+    calc.sweep = axes
     return calc
+
+
+@dataclass
+class Axis:
+    """One swept input: temperature (key "T") or a density ((group, species))."""
+
+    key: object
+    dimension: str
+    values: object       # numpy array, SI
+    spacing: str         # "linear" | "log"
+    line: int
+
+
+SWEEP_KEYS = ("from", "to", "steps", "spacing")
+MAX_SWEEP_STEPS = 100_000
+MAX_SWEEP_POINTS = 4_000_000
+
+
+def _axis(spec: dict, dimension: str, key, where, path) -> Axis:
+    """A range {from, to, steps, spacing} as an array of SI values."""
+    import numpy as np
+
+    here = where(*path)
+    _unknown_keys(spec, SWEEP_KEYS, here, "sweep")
+    for needed in ("from", "to", "steps"):
+        if needed not in spec:
+            raise InputError(f"{here}: a sweep needs from, to and steps, e.g. "
+                             "{from: 1e15 cm-3, to: 1e19 cm-3, steps: 41}")
+    ends = []
+    for end in ("from", "to"):
+        text = spec[end]
+        at = where(*path, end)
+        value = parse_temperature(text, at) if dimension == "temperature" \
+            else parse_quantity(text, dimension, at)
+        ends.append(check_plausible(value, dimension, text, at))
+    try:
+        steps = int(str(spec["steps"]).strip())
+    except ValueError:
+        steps = 0
+    if not 2 <= steps <= MAX_SWEEP_STEPS:
+        raise InputError(f"{where(*path, 'steps')}: steps must be a whole number from 2 to "
+                         f"{MAX_SWEEP_STEPS}, got {spec['steps']!r}")
+    spacing = str(spec.get("spacing", "linear" if dimension == "temperature" else "log"))
+    if spacing not in ("linear", "log"):
+        raise InputError(f"{where(*path, 'spacing')}: spacing is linear or log")
+    if spacing == "log" and min(ends) <= 0:
+        raise InputError(f"{here}: a log sweep needs both ends above zero")
+    values = np.geomspace(*ends, steps) if spacing == "log" else np.linspace(*ends, steps)
+    return Axis(key, dimension, values, spacing, where.line(*path))
 
 
 def _formulas(entries, where) -> list:

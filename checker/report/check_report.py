@@ -85,15 +85,20 @@ def render_console(result, console=None, stream=None) -> None:
         out = Text()
         title = f"── {calc.name} "
         out.append(title + "─" * max(width - len(title), 3) + "\n", style="bold")
-        add(out, f"{_where(calc.source, calc.line)} · {calc.material.name} · "
-                 f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}", indent=0)
+        point = "sweep" if calc.sweep else \
+            f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}"
+        add(out, f"{_where(calc.source, calc.line)} · {calc.material.name} · {point}", indent=0)
         if report.error:
             add(out, f"not checked: {report.error}", "bold red", indent=2)
             emit(out)
             continue
-        for key, label, fmt in STATE_ROWS:
-            out.append(f"  {label:<24}", style="dim")
-            out.append(f"{fmt.format(report.state[key]):>24}\n")
+        if report.sweep:
+            add(out, f"sweep of {report.sweep['points']} points: " + " × ".join(
+                sweep_axis_text(label, axis) for label, axis in report.sweep["axes"]), indent=2)
+        else:
+            for key, label, fmt in STATE_ROWS:
+                out.append(f"  {label:<24}", style="dim")
+                out.append(f"{fmt.format(report.state[key]):>24}\n")
         for r in report.formulas:
             out.append(f"  formula (line {r.line})".ljust(26), style="dim")
             out.append(f"{r.text}\n", style="bold")
@@ -146,6 +151,24 @@ def formula_lines(r) -> list:
     return lines
 
 
+def sweep_axis_text(label, axis) -> str:
+    from ..engine.sweep import axis_value
+
+    return (f"{label} {axis_value(axis, axis.values[0])} … {axis_value(axis, axis.values[-1])} "
+            f"({len(axis.values)} {axis.spacing} steps)")
+
+
+def sweep_json(report) -> dict | None:
+    if not report.sweep:
+        return None
+    from ..engine.sweep import axis_value
+
+    return {"points": report.sweep["points"],
+            "axes": [{"axis": label, "from": axis_value(axis, axis.values[0]),
+                      "to": axis_value(axis, axis.values[-1]), "steps": len(axis.values),
+                      "spacing": axis.spacing} for label, axis in report.sweep["axes"]]}
+
+
 def _number(value):
     return float(value) if value == value and abs(value) != float("inf") else None
 
@@ -169,6 +192,9 @@ def finding_json(f) -> dict:
         } for c in f.corrections],
         "waived": f.waived,
         "formula": f.formula,
+        "sweep": None if f.sweep is None else {
+            "failing_fraction": f.sweep.failing_fraction, "boundary": f.sweep.boundary,
+            "worst_point": f.sweep.worst_point},
     }
 
 
@@ -202,6 +228,7 @@ def render_json(result, exit_code: int) -> str:
             "doping_cm3": {"donors": {k: v * 1e-6 for k, v in calc.donors.items()},
                            "acceptors": {k: v * 1e-6 for k, v in calc.acceptors.items()}},
             "state": report.state,
+            "sweep": sweep_json(report),
             "formulas": [formula_json(r) for r in report.formulas],
             "findings": [finding_json(f) for f in report.findings],
             "notes": report.notes,

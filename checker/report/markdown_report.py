@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from ..engine.evaluate import display
 from . import DISCLAIMER
-from .check_report import doping_text, formula_lines, summary_line
+from .check_report import doping_text, formula_lines, summary_line, sweep_axis_text
 
 
 def _cell(text: str) -> str:
@@ -45,9 +45,14 @@ def render_markdown(result, exit_code: int) -> str:
             lines += [f"Not checked: {_cell(report.error)}", ""]
             continue
         state = report.state
-        lines.append(f"Regime **{state['regime']}**; E_F − E_C = {state['EF_minus_EC_eV']:+.4f} eV "
-                     f"(η_n = {state['eta_n']:+.3f}); n = {state['n_cm3']:.4g} cm⁻³, "
-                     f"p = {state['p_cm3']:.4g} cm⁻³; n_i = {state['ni_cm3']:.4g} cm⁻³.")
+        if report.sweep:
+            lines.append(f"Sweep of {report.sweep['points']} points: " + " × ".join(
+                sweep_axis_text(label, axis) for label, axis in report.sweep["axes"]) + ".")
+        else:
+            lines.append(f"Regime **{state['regime']}**; E_F − E_C = "
+                         f"{state['EF_minus_EC_eV']:+.4f} eV (η_n = {state['eta_n']:+.3f}); "
+                         f"n = {state['n_cm3']:.4g} cm⁻³, p = {state['p_cm3']:.4g} cm⁻³; "
+                         f"n_i = {state['ni_cm3']:.4g} cm⁻³.")
         lines.append("")
         if report.formulas:
             lines += ["| formula | line | what it is | here |", "|---|---|---|---|"]

@@ -1,0 +1,108 @@
+"""Sweeps: grid masks agree with single-point checks; boundaries agree with an
+independent solve; bad ranges are input errors."""
+import subprocess
+import sys
+
+import numpy as np
+import pytest
+
+from checker import load_material
+from checker.engine import rulebook, sweep
+from checker.engine.run import check_calculations, check_paths
+from checker.inputs.calculation_file import read_calculation_file
+from reference import reference_solve
+
+ONE_AXIS = """name: doping sweep
+material: Si
+temperature: 300 K
+doping:
+  donors: {P: {from: 1e16 cm-3, to: 1e20 cm-3, steps: 41}}
+assumes: [non-degenerate, full-ionization]
+"""
+TWO_AXES = """name: window
+material: Si
+temperature: {from: 200 K, to: 450 K, steps: 6}
+doping:
+  donors: {P: {from: 1e14 cm-3, to: 1e20 cm-3, steps: 13}}
+  acceptors: {B: 1e15 cm-3}
+assumes: [non-degenerate, full-ionization, einstein-relation, extrinsic, no-compensation]
+formulas:
+  - D_n = mu_n*k*T/q
+"""
+
+
+def _calc(tmp_path, text):
+    path = tmp_path / "sweep.yaml"
+    path.write_text(text)
+    read = read_calculation_file(path)
+    assert not read.errors, read.errors
+    return read.calculations[0]
+
+
+def test_boundary_matches_single_points_and_an_independent_solve(tmp_path):
+    calc = _calc(tmp_path, ONE_AXIS)
+    finding, = [f for f in check_calculations([calc]).reports[0].findings if f.rule == "STAT01"]
+    values = calc.sweep[0].values
+    text = finding.sweep.boundary[0]
+    assert text.startswith("fails for N_D(P) ≥ ") and text.endswith(" cm⁻³")
+    shown = float(text.split("≥ ")[1].split()[0]) * 1e6
+    first = int(np.argmin(np.abs(np.log(values / shown))))
+    silicon = load_material("Si")
+    # the 3kT rule (Sze & Ng 2007, ch. 1) at the 40-digit solve: eta crosses -3 right there
+    assert reference_solve(silicon, 300.0, {"P": values[first]}, {}) > -3
+    assert reference_solve(silicon, 300.0, {"P": values[first - 1]}, {}) < -3
+    T, donors, acceptors, _ = sweep.grid(calc)
+    for index, fires in ((first, True), (first - 1, False)):
+        point = sweep.point(calc, T, donors, acceptors, index)
+        rules = {f.rule for f in check_calculations([point]).reports[0].findings}
+        assert ("STAT01" in rules) is fires
+
+
+def test_grid_masks_equal_single_point_checks(tmp_path):
+    calc = _calc(tmp_path, TWO_AXES)
+    rules = rulebook.load_rules()
+    report = check_calculations([calc]).reports[0]
+    from checker.engine.evaluate import Embodied
+
+    embodied = [Embodied(w, c, 0, "") for r in report.formulas for w, c in r.match.assumptions]
+    masks, (T, donors, acceptors, shape), _ = sweep.evaluate_sweep(calc, rules, embodied)
+    rng = np.random.default_rng(7)
+    for index in rng.choice(T.size, 25, replace=False):
+        point = sweep.point(calc, T, donors, acceptors, index)
+        single = {(f.rule, {"electrons": "n", "holes": "p"}.get(f.carrier, ""))
+                  for f in check_calculations([point]).reports[0].findings
+                  if not f.rule.startswith("FORM")}
+        on_grid = {key for key, (mask, _) in masks.items() if mask.ravel()[index]}
+        assert on_grid == single, (index, on_grid, single)
+
+
+def test_worst_point_is_a_full_single_point_finding(tmp_path):
+    calc = _calc(tmp_path, TWO_AXES)
+    report = check_calculations([calc]).reports[0]
+    stat02, = [f for f in report.findings if f.rule == "STAT02"]
+    assert stat02.formula == "D_n = mu_n*k*T/q" and stat02.corrections
+    assert 0 < stat02.sweep.failing_fraction < 1
+    assert report.sweep["points"] == 6 * 13
+
+
+@pytest.mark.parametrize("bad, expected", [
+    ("steps: 41}}", "steps: 1}}", ),
+    ("from: 1e16 cm-3", "from: 0 cm-3"),
+    ("{from: 1e16 cm-3, to: 1e20 cm-3, steps: 41}", "{from: 1e16 cm-3, steps: 41}"),
+])
+def test_bad_ranges_are_input_errors(tmp_path, bad, expected):
+    path = tmp_path / "bad.yaml"
+    path.write_text(ONE_AXIS.replace(bad, expected) + "---\nname: fine\nmaterial: Si\n"
+                    "temperature: 300 K\n")
+    done = subprocess.run([sys.executable, "-m", "checker.cli", "check", str(path)],
+                          capture_output=True, text=True)
+    assert done.returncode == 2 and "Traceback" not in done.stderr + done.stdout
+    assert f"{path}:5:" in done.stdout and "fine" in done.stdout
+
+
+def test_three_axes_are_refused(tmp_path):
+    path = tmp_path / "three.yaml"
+    path.write_text(TWO_AXES.replace("B: 1e15 cm-3", "B: {from: 1e14 cm-3, to: 1e15 cm-3, "
+                                                     "steps: 3}"))
+    result = check_paths([str(path)])
+    assert "at most two axes" in result.input_errors[0]
