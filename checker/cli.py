@@ -1,7 +1,7 @@
 """Command line: ``regimecheck check PATH...`` and its companions.
 
 Commands: check (the main job), point (one operating point from options),
-rules, explain ID, symbols, state (solve only), materials.
+rules, explain ID, symbols, state (solve only), materials, map and curve (plots).
 Exit codes: 0 no finding at or above the fail level, 1 findings, 2 unusable
 input or usage, 3 internal error.  Bad input never shows a traceback.
 """
@@ -53,6 +53,26 @@ def _parser() -> argparse.ArgumentParser:
     point.add_argument("--field", help="applied field, e.g. 20kV/cm (checks the low-field shortcut)")
     point.add_argument("--length", help="conductor length, e.g. 100nm (checks the diffusive shortcut)")
     _report_options(point)
+    regime = sub.add_parser("map", help="regime map of a material and dopant over doping and "
+                                        "temperature, with checked points (PNG or SVG)")
+    regime.add_argument("paths", nargs="*", help="calculation files whose points are drawn")
+    regime.add_argument("--material", help="built-in material (default: the files')")
+    regime.add_argument("--dopant", help="dopant species, e.g. P (default: the files')")
+    regime.add_argument("--doping-range", default="1e13:1e21", metavar="FROM:TO",
+                        help="dopant density range in cm^-3 (default 1e13:1e21)")
+    regime.add_argument("--temperature-range", default="20:700", metavar="FROM:TO",
+                        help="temperature range in K (default 20:700)")
+    regime.add_argument("--resolution", type=int, default=200,
+                        help="grid points along each axis (default 200)")
+    regime.add_argument("--output", required=True, metavar="FILE", help="a .png or .svg file")
+    curve = sub.add_parser("curve", help="η of the majority carrier vs temperature at one "
+                                         "doping, with the regimes marked (PNG or SVG)")
+    curve.add_argument("--material", required=True)
+    curve.add_argument("--doping", required=True, metavar="SPECIES=DENSITY",
+                       help="e.g. P=1e17cm-3")
+    curve.add_argument("--temperature-range", default="20:700", metavar="FROM:TO",
+                       help="temperature range in K (default 20:700)")
+    curve.add_argument("--output", required=True, metavar="FILE", help="a .png or .svg file")
     sub.add_parser("materials", help="list the built-in materials and their dopants")
     sub.add_parser("rules", help="list the checks")
     symbols = sub.add_parser("symbols", help="the trade symbols a stated formula may use")
@@ -63,13 +83,14 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
-FORMATS = ("console", "json", "markdown", "sarif", "junit")
+FORMATS = ("console", "json", "markdown", "sarif", "junit", "html")
 
 
 def _report_options(command):
     command.add_argument("--format", choices=FORMATS, default="console",
                          help="console (default), json, markdown (to paste under a memo), "
-                              "sarif (SARIF 2.1.0), junit (JUnit XML)")
+                              "sarif (SARIF 2.1.0), junit (JUnit XML), html (a self-contained "
+                              "review report with regime maps)")
     command.add_argument("--output", metavar="FILE",
                          help="write the report to FILE (UTF-8) instead of the terminal")
     command.add_argument("--fail-on", choices=LEVELS, default=None,
@@ -134,6 +155,9 @@ def _render(result, code, args) -> str:
     if args.format == "junit":
         from .report.ci_formats import render_junit
         return render_junit(result, code, args.fail_on or "warning")
+    if args.format == "html":
+        from .report.html_report import render_html
+        return render_html(result, code)
     import io
 
     from .report.check_report import render_console
@@ -315,6 +339,95 @@ def _cmd_state(args) -> int:
     return EXIT_INPUT if errors else EXIT_OK
 
 
+def _range(text, option, low, high):
+    try:
+        first, last = (float(part) for part in text.split(":"))
+    except ValueError:
+        raise RegimecheckError(f"{option} {text!r}: write FROM:TO, e.g. "
+                               f"{low:g}:{high:g}") from None
+    if not (low <= first < last <= high):
+        raise RegimecheckError(f"{option} {text!r}: needs {low:g} <= FROM < TO <= {high:g}")
+    return first, last
+
+
+def _plot_format(output):
+    suffix = Path(output).suffix.lower().lstrip(".")
+    if suffix not in ("png", "svg"):
+        raise RegimecheckError(f"--output {output}: write a .png or .svg file")
+    return suffix
+
+
+def _save(fig, output):
+    from .report.plots import render
+
+    try:
+        Path(output).write_bytes(render(fig, _plot_format(output)))
+    except OSError as exc:
+        raise RegimecheckError(f"--output {output}: cannot write ({exc.strerror})") from None
+    print(f"wrote {output}", file=sys.stderr)
+
+
+def _cmd_map(args) -> int:
+    from .engine.regime_map import map_groups, regime_grid
+    from .engine.run import check_paths
+    from .inputs.material_catalog import resolve_material
+    from .report.plots import draw_map
+
+    _plot_format(args.output)
+    doping = tuple(v * 1e6 for v in _range(args.doping_range, "--doping-range", 1e8, 1e23))
+    temperatures = _range(args.temperature_range, "--temperature-range", 1.0, 3000.0)
+    if not 10 <= args.resolution <= 1000:
+        raise RegimecheckError("--resolution must be from 10 to 1000")
+    groups, errors = {}, []
+    if args.paths:
+        result = check_paths(args.paths, config=_settings_for_map())
+        groups, errors = map_groups(result), result.input_errors
+    if args.material:
+        material = resolve_material(args.material)
+        species = args.dopant or next((sp for (name, sp) in groups if name == material.name),
+                                      None)
+        if species is None:
+            raise RegimecheckError("--dopant is needed (e.g. --dopant P)")
+        material.dopant(species)
+    elif len(groups) == 1:
+        (name, species), (material, _) = next(iter(groups.items()))
+    elif groups:
+        listed = ", ".join(f"{name} {sp}" for name, sp in groups)
+        raise RegimecheckError(f"the files hold several materials and dopants ({listed}); "
+                               "choose one with --material and --dopant")
+    else:
+        raise RegimecheckError("give --material and --dopant, or calculation files")
+    points = groups.get((material.name, species), (None, []))[1]
+    grid = regime_grid(material, species, doping, temperatures,
+                       (args.resolution, args.resolution))
+    _save(draw_map(grid, points), args.output)
+    for message in errors:
+        print(f"input error: {message}", file=sys.stderr)
+    return EXIT_INPUT if errors else EXIT_OK
+
+
+def _settings_for_map():
+    from .inputs.config import load_config
+
+    return load_config(None)
+
+
+def _cmd_curve(args) -> int:
+    import numpy as np
+
+    from .inputs.material_catalog import resolve_material
+    from .report.plots import draw_eta_curve
+
+    _plot_format(args.output)
+    material = resolve_material(args.material)
+    (species, density), = _pairs([args.doping], "doping").items()
+    material.dopant(species)
+    first, last = _range(args.temperature_range, "--temperature-range", 1.0, 3000.0)
+    _save(draw_eta_curve(material, species, density, np.linspace(first, last, 400)),
+          args.output)
+    return EXIT_OK
+
+
 def _cmd_materials(_args) -> int:
     from .inputs.material_catalog import builtin_material, builtin_names
 
@@ -330,6 +443,7 @@ def main(argv=None) -> int:
     args = _parser().parse_args(argv)
     handler = {"check": _cmd_check, "point": _cmd_point, "state": _cmd_state,
                "materials": _cmd_materials, "rules": _cmd_rules, "symbols": _cmd_symbols,
+               "map": _cmd_map, "curve": _cmd_curve,
                "explain": _cmd_explain}[args.command]
     try:
         code = handler(args)

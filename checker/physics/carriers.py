@@ -61,24 +61,36 @@ def carrier_transport(state: State, dimension=3, mobility_model=None) -> dict:
     return result
 
 
-def regime_label(state: State, degenerate_eta=-3.0):
-    """A short regime name per point: metallic, degenerate, intrinsic,
-    incomplete ionization, extrinsic (checked in that order of precedence).
+# regime names, indexed by the codes of regime_code (precedence rises with the code)
+REGIMES = ("extrinsic", "incomplete ionization", "intrinsic", "degenerate", "metallic")
+DEGENERATE_ETA = -3.0          # the 3kT rule
+IONIZED_FRACTION = 0.9         # below it: incomplete ionization
+
+
+def regime_code(state: State, degenerate_eta=DEGENERATE_ETA):
+    """The regime of each point as an index into REGIMES: metallic, degenerate,
+    intrinsic, incomplete ionization, extrinsic (checked in that order of precedence).
 
     Thresholds: eta > -3 counts as degenerate (the 3kT rule, common practice
     (no source)); intrinsic where n_i exceeds the net doping; incomplete
     ionization (freeze-out at low T, deep levels at any T) where under 90 % of
-    the majority dopant is ionized (common practice (no source)).
+    the majority dopant is ionized (common practice (no source)); metallic above
+    the dopant's Mott density.  Units: none; arrays broadcast like the state.
     """
     net = np.abs(state.donors_total - state.acceptors_total)
     majority_fraction = np.where(state.donors_total >= state.acceptors_total,
                                  state.donor_fraction, state.acceptor_fraction)
-    labels = np.full(np.shape(state.T), "extrinsic", dtype=object)
-    labels[majority_fraction < 0.9] = "incomplete ionization"
-    labels[state.ni > net] = "intrinsic"
-    labels[(state.eta_n > degenerate_eta) | (state.eta_p > degenerate_eta)] = "degenerate"
-    labels[state.metallic] = "metallic"
-    return labels
+    codes = np.zeros(np.shape(state.T), dtype=np.int8)
+    codes[majority_fraction < IONIZED_FRACTION] = 1
+    codes[state.ni > net] = 2
+    codes[(state.eta_n > degenerate_eta) | (state.eta_p > degenerate_eta)] = 3
+    codes[np.broadcast_to(state.metallic, codes.shape)] = 4
+    return codes
+
+
+def regime_label(state: State, degenerate_eta=DEGENERATE_ETA):
+    """A short regime name per point (see :func:`regime_code`)."""
+    return np.asarray(REGIMES, dtype=object)[regime_code(state, degenerate_eta)]
 
 
 def intrinsic_onset_temperature(material: Material, net_density, fraction=0.1,

@@ -1,0 +1,98 @@
+"""The doping–temperature plane of one material and dopant, divided into regimes.
+
+Every grid point is solved with the equilibrium solver (one vectorized call) and
+classified by :func:`checker.physics.carriers.regime_code`; the criteria behind
+the classes (η of the majority carrier, the ionized fraction, n_i over the net
+doping, the Mott density) are kept so that the map can draw them as contours.
+The operating points of checked calculations are placed on the plane.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..physics import carriers, equilibrium
+from ..physics.carriers import REGIMES
+
+DOPING_RANGE = (1e13 * 1e6, 1e21 * 1e6)      # m^-3
+TEMPERATURE_RANGE = (20.0, 700.0)            # K
+
+
+@dataclass
+class RegimeGrid:
+    material: object
+    species: str
+    kind: str                 # "donor" | "acceptor"
+    doping: np.ndarray        # m^-3, the x axis (log spaced)
+    T: np.ndarray             # K, the y axis
+    codes: np.ndarray         # (len(T), len(doping)) index into REGIMES
+    eta: np.ndarray           # η of the majority carrier
+    fraction: np.ndarray      # ionized fraction of the dopant
+    ni_ratio: np.ndarray      # n_i / N
+    mott: float               # m^-3 (inf where the dopant has none)
+
+
+@dataclass
+class MapPoint:
+    label: str
+    doping: float             # m^-3 (net, of the map's dopant type)
+    T: float
+    severity: str | None      # worst active finding
+    # a sweep: (doping from, to) and (T from, to); equal ends for a missing axis
+    doping_span: tuple = ()
+    T_span: tuple = ()
+    extra: dict = field(default_factory=dict)
+
+
+def regime_grid(material, species, doping_range=DOPING_RANGE,
+                temperature_range=TEMPERATURE_RANGE, size=(200, 200)) -> RegimeGrid:
+    """Solve the plane on ``size`` = (doping points, temperature points)."""
+    dopant = material.dopant(species)
+    doping = np.geomspace(*doping_range, size[0])
+    T = np.linspace(*temperature_range, size[1])
+    N, TT = np.meshgrid(doping, T)
+    donors = {species: N.ravel()} if dopant.kind == "donor" else {}
+    acceptors = {species: N.ravel()} if dopant.kind == "acceptor" else {}
+    state = equilibrium.solve(material, TT.ravel(), donors, acceptors)
+    shape = N.shape
+    eta = state.eta_n if dopant.kind == "donor" else state.eta_p
+    fraction = state.donor_fraction if dopant.kind == "donor" else state.acceptor_fraction
+    return RegimeGrid(material, species, dopant.kind, doping, T,
+                      carriers.regime_code(state).reshape(shape),
+                      np.asarray(eta).reshape(shape), np.asarray(fraction).reshape(shape),
+                      (np.asarray(state.ni) / N.ravel()).reshape(shape),
+                      float(dopant.mott_density))
+
+
+def regime_at(grid: RegimeGrid, doping: float, T: float) -> str:
+    """The regime of the grid cell that holds (doping, T)."""
+    i = int(np.argmin(np.abs(np.log(grid.doping) - np.log(doping))))
+    j = int(np.argmin(np.abs(grid.T - T)))
+    return REGIMES[grid.codes[j, i]]
+
+
+def map_groups(result) -> dict:
+    """(material name, species) -> (material, [MapPoint]) for the checked calculations."""
+    from .evaluate import SEVERITY_RANK
+
+    groups = {}
+    for report in result.reports:
+        calc = report.calc
+        if report.error or not (calc.donors or calc.acceptors):
+            continue
+        donor = sum(calc.donors.values()) >= sum(calc.acceptors.values())
+        species_map = calc.donors if donor else calc.acceptors
+        species = max(species_map, key=species_map.get)
+        active = [f.severity for f in report.findings if not f.waived]
+        worst = max(active, key=SEVERITY_RANK.get) if active else None
+        net = abs(sum(calc.donors.values()) - sum(calc.acceptors.values()))
+        point = MapPoint(calc.name, net or max(species_map.values()), calc.temperature, worst)
+        for axis in calc.sweep:
+            ends = (float(axis.values[0]), float(axis.values[-1]))
+            if axis.key == "T":
+                point.T_span = ends
+            else:
+                point.doping_span = ends
+        groups.setdefault((calc.material.name, species), (calc.material, []))[1].append(point)
+    return groups

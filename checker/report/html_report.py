@@ -1,0 +1,181 @@
+"""A self-contained HTML review report (``--format html``).
+
+One file: inline CSS, inline SVG plots, formulas as MathML, no scripts, no network.
+Per calculation: where it comes from, the operating point (or the sweep), the stated
+formulas as math with what each embodies, the findings (stated → corrected), and
+the regime map of its material and dopant with the point (or sweep) on it.  The
+markup is XHTML-compatible (every element closed), so it parses as XML as well as
+HTML, and it prints one calculation per page where it fits.
+"""
+from __future__ import annotations
+
+import html
+import re
+
+from ..engine.evaluate import display
+from . import DISCLAIMER
+from .check_report import STATE_ROWS, formula_lines, summary_line, sweep_axis_text
+
+MAP_RESOLUTION = 90
+_ENTITIES = {"&InvisibleTimes;": "&#8290;", "&ApplyFunction;": "&#8289;",
+             "&#x2062;": "&#8290;", "&nbsp;": "&#160;"}
+
+STYLE = """
+body { font-family: "DejaVu Sans", Arial, sans-serif; margin: 2em auto; max-width: 62em;
+       color: #222; line-height: 1.4; }
+h1 { font-size: 1.5em; margin-bottom: 0.2em; }
+h2 { font-size: 1.15em; border-bottom: 1px solid #bbb; padding-bottom: 0.2em; margin-top: 2em; }
+table { border-collapse: collapse; margin: 0.6em 0; width: 100%; font-size: 0.9em; }
+th, td { border: 1px solid #ccc; padding: 0.25em 0.5em; text-align: left; vertical-align: top; }
+th { background: #f3f3f3; }
+td.num { text-align: right; font-variant-numeric: tabular-nums; }
+.severity { font-weight: bold; text-transform: uppercase; font-size: 0.8em; }
+.error { color: #c62828; } .warning { color: #ef6c00; } .info { color: #0277bd; }
+.waived { color: #777; } .clean { color: #2e7d32; }
+.meta { color: #555; font-size: 0.9em; }
+.map svg { max-width: 100%; height: auto; }
+math { font-size: 1.05em; }
+.notice { margin-top: 2em; padding: 0.6em; border: 1px solid #999; background: #fafafa; }
+@media print { body { margin: 0; max-width: none; } section { break-inside: avoid-page; }
+               h2 { break-after: avoid; } }
+"""
+
+
+def _text(value) -> str:
+    return html.escape(str(value), quote=True)
+
+
+def _mathml(tree_left, tree_right) -> str:
+    import sympy
+    from sympy.printing.mathml import mathml
+
+    from ..engine.expression import to_sympy
+
+    script_f = sympy.Function("ℱ")
+    sides = [to_sympy(t).replace(sympy.Function("F"), script_f) for t in (tree_left, tree_right)]
+    markup = mathml(sympy.Eq(*sides, evaluate=False), printer="presentation")
+    for entity, number in _ENTITIES.items():
+        markup = markup.replace(entity, number)
+    # other named entities are HTML-only: write them as characters (XML knows five)
+    markup = re.sub(r"&(?!(?:amp|lt|gt|quot|apos);)([A-Za-z]+);",
+                    lambda m: html.unescape(m.group(0)), markup)
+    return f'<math xmlns="http://www.w3.org/1998/Math/MathML" display="block">{markup}</math>'
+
+
+def _svg(fig, salt: str) -> str:
+    import matplotlib
+
+    from .plots import render
+
+    matplotlib.rcParams["svg.hashsalt"] = salt     # ids unique across the inline figures
+    text = render(fig, "svg").decode("utf-8")
+    return text[text.index("<svg"):]
+
+
+def _findings_table(report) -> str:
+    if not report.findings:
+        return '<p class="clean">No assumption leaves its regime.</p>'
+    rows = []
+    for f in report.findings:
+        tag = f'<span class="severity {"waived" if f.waived else f.severity}">' \
+              f'{"waived" if f.waived else f.severity}</span>'
+        where = f"{f.file}:{f.line}" + (f" ({f.column})" if f.column else "")
+        details = [f"<strong>{_text(f.title)}.</strong> {_text(f.message)}"]
+        if f.indicator_text():
+            details.append(f'<br/><span class="meta">regime indicator: '
+                           f'{_text(f.indicator_text())}</span>')
+        if f.waived:
+            details.append(f'<br/><span class="meta">waived: {_text(f.waived)}</span>')
+        corrections = "<br/>".join(
+            f"{_text(c.label)}: {_text(display(c.stated, c.unit))} ({_text(c.stated_by)}) → "
+            f"<strong>{_text(display(c.corrected, c.unit))}</strong> "
+            f"[{_text(c.error_text())}]" for c in f.corrections) or "–"
+        rows.append(f"<tr><td>{tag}</td><td>{_text(f.rule)}</td><td>{_text(where)}</td>"
+                    f"<td>{''.join(details)}</td><td>{corrections}</td></tr>")
+    return ("<table><thead><tr><th>severity</th><th>rule</th><th>where</th><th>finding</th>"
+            "<th>stated → corrected</th></tr></thead><tbody>" + "".join(rows)
+            + "</tbody></table>")
+
+
+def _state_table(report) -> str:
+    if report.sweep:
+        axes = " × ".join(_text(sweep_axis_text(label, axis))
+                          for label, axis in report.sweep["axes"])
+        return f'<p>Sweep of {report.sweep["points"]} points: {axes}.</p>'
+    rows = "".join(f"<tr><th>{_text(label)}</th><td class=\"num\">"
+                   f"{_text(fmt.format(report.state[key]))}</td></tr>"
+                   for key, label, fmt in STATE_ROWS)
+    return f'<table class="state"><tbody>{rows}</tbody></table>'
+
+
+def _formulas(report) -> str:
+    if not report.formulas:
+        return ""
+    items = []
+    for r in report.formulas:
+        try:
+            math = _mathml(r.lhs, r.rhs)
+        except Exception:  # noqa: BLE001 - printing is cosmetic; the text is shown anyway
+            math = ""
+        notes = "<br/>".join(_text(line) for line in formula_lines(r))
+        items.append(f"<tr><td><code>{_text(r.text)}</code> (line {r.line}){math}</td>"
+                     f"<td>{notes}</td></tr>")
+    return ("<h3>Stated formulas</h3><table><thead><tr><th>formula</th><th>what it is, and "
+            "its value here</th></tr></thead><tbody>" + "".join(items) + "</tbody></table>")
+
+
+def _map(report, index, grids) -> str:
+    from ..engine.regime_map import map_groups, regime_grid
+    from .plots import draw_map
+
+    groups = map_groups(_Single(report))
+    if not groups:
+        return ""
+    (name, species), (material, points) = next(iter(groups.items()))
+    key = (name, species)
+    if key not in grids:
+        grids[key] = regime_grid(material, species, size=(MAP_RESOLUTION, MAP_RESOLUTION))
+    fig = draw_map(grids[key], points, size=(7.4, 4.4),
+                   title=f"{name}: regimes of {species} doping, with this calculation")
+    return f'<div class="map">{_svg(fig, f"regimecheck-map-{index}")}</div>'
+
+
+class _Single:
+    """A run with one report (what map_groups reads)."""
+
+    def __init__(self, report):
+        self.reports = [report]
+
+
+def render_html(result, exit_code: int, maps: bool = True) -> str:
+    parts = ['<!DOCTYPE html>', '<html xmlns="http://www.w3.org/1999/xhtml" lang="en">',
+             '<head><meta charset="utf-8"/><title>regimecheck review</title>',
+             f"<style>{STYLE}</style></head><body>",
+             "<h1>regimecheck review</h1>", f'<p class="meta">{_text(summary_line(result))}</p>']
+    grids = {}
+    for index, report in enumerate(result.reports):
+        calc = report.calc
+        parts.append(f'<section id="calc-{index}"><h2>{_text(calc.name)}</h2>')
+        point = "sweep" if calc.sweep else (
+            f"{calc.temperature:.2f} K · " + ", ".join(
+                f"{k} {v * 1e-6:.3g} cm⁻³" for k, v in {**calc.donors, **calc.acceptors}.items()))
+        parts.append(f'<p class="meta">{_text(calc.source)}:{calc.line} · '
+                     f"{_text(calc.material.name)} · {_text(point)}</p>")
+        if report.error:
+            parts.append(f'<p class="error">Not checked: {_text(report.error)}</p></section>')
+            continue
+        parts.append(_state_table(report))
+        parts.append(_formulas(report))
+        parts.append("<h3>Findings</h3>" + _findings_table(report))
+        for note in report.notes:
+            parts.append(f'<p class="meta">note: {_text(note)}</p>')
+        if maps:
+            parts.append(_map(report, index, grids))
+        parts.append("</section>")
+    if result.input_errors:
+        parts.append("<h2>Input errors</h2><ul>" + "".join(
+            f"<li>{_text(m)}</li>" for m in result.input_errors) + "</ul>")
+    for note in result.notes:
+        parts.append(f'<p class="meta">note: {_text(note)}</p>')
+    parts.append(f'<p class="notice">{_text(DISCLAIMER)}</p></body></html>')
+    return "\n".join(p for p in parts if p)
