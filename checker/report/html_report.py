@@ -29,6 +29,7 @@ table { border-collapse: collapse; margin: 0.6em 0; width: 100%; font-size: 0.9e
 th, td { border: 1px solid #ccc; padding: 0.25em 0.5em; text-align: left; vertical-align: top; }
 th { background: #f3f3f3; }
 td.num { text-align: right; font-variant-numeric: tabular-nums; }
+table.state { width: auto; min-width: 26em; }
 .severity { font-weight: bold; text-transform: uppercase; font-size: 0.8em; }
 .error { color: #c62828; } .warning { color: #ef6c00; } .info { color: #0277bd; }
 .waived { color: #777; } .clean { color: #2e7d32; }
@@ -69,7 +70,8 @@ def _svg(fig, salt: str) -> str:
 
     matplotlib.rcParams["svg.hashsalt"] = salt     # ids unique across the inline figures
     text = render(fig, "svg").decode("utf-8")
-    return text[text.index("<svg"):]
+    # the RDF metadata block only names the generator; a review page does not need it
+    return re.sub(r"<metadata>.*?</metadata>\s*", "", text[text.index("<svg"):], flags=re.S)
 
 
 def _findings_table(report) -> str:
