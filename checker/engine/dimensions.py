@@ -10,7 +10,7 @@ from __future__ import annotations
 from fractions import Fraction
 
 BASIS = ("m", "s", "V", "C", "K")
-_SUPERSCRIPT = str.maketrans("-0123456789/", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹ᐟ")
+_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
 
 
 class Dimension(tuple):
@@ -96,6 +96,8 @@ _NAMED = {
 def _power(symbol: str, exponent: Fraction) -> str:
     if exponent == 1:
         return symbol
+    if exponent.denominator != 1:
+        return f"{symbol}^({exponent})"           # m^(3/2): clearer than a superscript slash
     return symbol + str(exponent).translate(_SUPERSCRIPT)
 
 

@@ -140,7 +140,7 @@ def formula_lines(r) -> list:
     if match.status == "unrecognised":
         what = "matches no exact relation in any named limit"
     elif match.status == "exact":
-        what = f"exact: {', '.join(match.relations)}"
+        what = f"exact: {', '.join(match.relations) or 'an identity'}"
     else:
         what = f"embodies {'; '.join(match.labels)} [{', '.join(match.relations)}]"
     if match.proof == "numeric":
