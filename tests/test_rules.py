@@ -415,6 +415,12 @@ def test_model_ranges(tmp_path):
     assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3")), "MODEL01")
     assert not quiet(check(tmp_path, calc("Si", "300 K", "As: 8e21 cm-3")), "MODEL02")
     assert quiet(check(tmp_path, calc("Si", "300 K", "As: 1e19 cm-3")), "MODEL02")
+    # the message names the model whose edge the point crosses (the Masetti fit, per the
+    # material file), on the side it crosses
+    below = one(check(tmp_path, calc("Si", "200 K", "P: 1e16 cm-3")), "MODEL01")
+    assert "electron mobility (masetti_P)" in below.message
+    above = one(check(tmp_path, calc("Si", "300 K", "As: 8e21 cm-3")), "MODEL02")
+    assert "electron mobility (masetti_As)" in above.message
 
 
 # --- waivers ----------------------------------------------------------------------------------

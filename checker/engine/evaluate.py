@@ -234,7 +234,8 @@ def _findings(rule, x, names, fired, indicator, implied, made_by, calculations, 
         stated = values[names.get(corr.stated, corr.stated)] if corr.stated \
             else np.full(count, np.nan)
         columns.append((corr, shortcut, exact, stated))
-    shown = {key: (np.broadcast_to(np.asarray(c.run[x](values), dtype=float), (count,)), unit)
+    shown = {key: (values[c], unit) if unit == "text" else
+             (np.broadcast_to(np.asarray(c.run[x](values), dtype=float), (count,)), unit)
              for key, (c, unit) in rule.show.items()}
     words = CARRIER_WORDS.get(x, ("carriers", "dopants", "carrier"))
     for i in fired:
@@ -263,7 +264,8 @@ def _findings(rule, x, names, fired, indicator, implied, made_by, calculations, 
             "carrier": words[0], "dopants": words[1], "kind": words[2],
             "error": corrections[0].error_text() if corrections else "n/a",
         }
-        fields.update({key: display(array[i], unit) for key, (array, unit) in shown.items()})
+        fields.update({key: str(array[i]) if unit == "text" else display(array[i], unit)
+                       for key, (array, unit) in shown.items()})
         message = PLACEHOLDER.sub(lambda m: fields[m.group(1)], rule.message)
         findings[i].append(Finding(
             rule=rule.id, title=rule.title, severity=rule.severity, assumption=rule.assumption,

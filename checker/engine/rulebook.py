@@ -19,7 +19,7 @@ from ..inputs.config import TOLERANCES
 from ..inputs.yaml_source import load_package_yaml
 from ..resources import rules_dir
 from . import expression
-from .vocabulary import DISPLAY_UNITS, carrier_names, rule_names
+from .vocabulary import DISPLAY_UNITS, TEXT, carrier_names, rule_names
 
 SEVERITIES = ("info", "warning", "error")
 # what a rule may guard beyond the words an author declares
@@ -193,8 +193,13 @@ def load_rule(path: Path) -> Rule:
             exact=_compile(entry.get("exact"), path, f"{where}.exact", carriers)))
     show = {}
     for name, entry in (data.get("show") or {}).items():
+        if isinstance(entry, dict) and "text" in entry:
+            if entry["text"] not in TEXT or len(entry) != 1:
+                _fail(path, f"show.{name}", f"text must name one of {', '.join(TEXT)}")
+            show[name] = (entry["text"], "text")
+            continue
         if not isinstance(entry, dict) or entry.get("unit", "1") not in DISPLAY_UNITS:
-            _fail(path, f"show.{name}", "needs expression and a known unit")
+            _fail(path, f"show.{name}", "needs expression and a known unit, or text")
         show[name] = (_compile(entry.get("expression"), path, f"show.{name}", carriers),
                       entry.get("unit", "1"))
     requires = tuple(data.get("requires") or ())

@@ -13,7 +13,7 @@ import numpy as np
 from ..errors import MissingParameterError, RegimecheckError
 from ..physics import carriers, equilibrium, hall
 from ..physics.constants import ELEMENTARY_CHARGE
-from .vocabulary import CONSTANTS, concrete_names
+from .vocabulary import CONSTANTS, TEXT, concrete_names
 
 _STATED_COMMON = ("stated_kT_q", "stated_ni", "stated_Rsh", "stated_R", "stated_lambda",
                   "stated_hall")
@@ -35,6 +35,7 @@ def solve_sweep(calc, T, donors, acceptors) -> tuple[dict, str | None]:
     count = len(T)
     values = {name: np.full(count, np.nan) for name in concrete_names()}
     values.update({name: np.full(count, value) for name, value in CONSTANTS.items()})
+    values.update({name: np.full(count, "", dtype=object) for name in TEXT})
     put, skipped = solve_points(calc, T, donors, acceptors)
     for name, array in put.items():
         values[name] = np.broadcast_to(array, (count,)).copy() if np.ndim(array) else \
@@ -51,7 +52,7 @@ def solve_all(calculations) -> tuple[dict, dict, dict]:
     count = len(calculations)
     values = {name: np.full(count, np.nan) for name in concrete_names()}
     values.update({name: np.full(count, value) for name, value in CONSTANTS.items()})
-    values["regime"] = np.full(count, "", dtype=object)
+    values.update({name: np.full(count, "", dtype=object) for name in TEXT})
     errors, notes = {}, {}
     groups = {}
     for index, calc in enumerate(calculations):
@@ -109,7 +110,7 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
             "mu_n", "mu0_n", "vsat_n", "beta_n", "v_n", "mfp_n",
             "mu_p", "mu0_p", "vsat_p", "beta_p", "v_p", "mfp_p")}
         flow["kT_over_q"] = state.kT / ELEMENTARY_CHARGE
-    (T_lo, T_hi), (N_lo, N_hi), _ = carriers.model_ranges(
+    (T_lo, T_hi), (N_lo, N_hi), binding = carriers.model_ranges(
         material, _dominant(first.donors), _dominant(first.acceptors))
     net = np.abs(state.donors_total - state.acceptors_total)
     narrowing = material.narrowing(state.donors_total, state.acceptors_total) \
@@ -122,6 +123,10 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
         "T_lo": np.full_like(T, T_lo), "T_hi": np.full_like(T, T_hi),
         "N_lo": np.full_like(T, N_lo), "N_hi": np.full_like(T, N_hi),
         "dim": np.full_like(T, float(dim)), "regime": carriers.regime_label(state),
+        # which models set the edge a point leaves (for the model-validity messages)
+        "T_models": np.where(T < T_lo, ", ".join(binding["T_low"]),
+                             np.where(T > T_hi, ", ".join(binding["T_high"]), "")).astype(object),
+        "N_models": np.full(T.shape, ", ".join(binding["N_high"]), dtype=object),
     }
     for x, eta, dens, nband, own, other, ionized, fraction, species in (
             ("n", state.eta_n, state.n, state.Nc, state.donors_total, state.acceptors_total,

@@ -92,6 +92,13 @@ for _name, (_unit, _meaning) in list(PER_CARRIER.items()):
     PER_CARRIER[_name[:-2] + "_o"] = (_unit, _meaning.replace("the carrier", "the other carrier")
                                       .replace("this carrier", "the other carrier"))
 
+# quantities that are words, not numbers (object arrays; a rule shows them with {text: name})
+TEXT = {
+    "regime": "regime of the operating point",
+    "T_models": "models whose fitted temperature range the point leaves",
+    "N_models": "mobility models whose fitted doping range the point exceeds",
+}
+
 CARRIER_WORDS = {"n": ("electrons", "donors", "electron"), "p": ("holes", "acceptors", "hole")}
 
 

@@ -132,10 +132,10 @@ def intrinsic_onset_temperature(material: Material, net_density, fraction=0.1,
 def model_ranges(material: Material, donor_species, acceptor_species, mobility_model=None):
     """Fitted temperature and doping ranges of the models a check relies on.
 
-    Returns ((T_low, T_high), (N_low, N_high), names): the intersection over
+    Returns ((T_low, T_high), (N_low, N_high), binding): the intersection over
     the band gap, the density of states and the electron and hole mobility
-    models selected for the given dominant species (SI units), and the names
-    of the models whose range is the binding one.
+    models selected for the given dominant species (SI units), and for each
+    edge ("T_low", "T_high", "N_low", "N_high") the names of the models that set it.
     """
     parts = []
     if material.band_gap:
@@ -154,4 +154,10 @@ def model_ranges(material: Material, donor_species, acceptor_species, mobility_m
     T_high = min((p.valid_T[1] for _, p, _ in parts), default=np.inf)
     N_low = max((p.valid_N[0] for _, p, doping in parts if doping), default=0.0)
     N_high = min((p.valid_N[1] for _, p, doping in parts if doping), default=np.inf)
-    return (T_low, T_high), (N_low, N_high), [name for name, _, _ in parts]
+    binding = {
+        "T_low": [n for n, p, _ in parts if p.valid_T[0] == T_low],
+        "T_high": [n for n, p, _ in parts if p.valid_T[1] == T_high],
+        "N_low": [n for n, p, doping in parts if doping and p.valid_N[0] == N_low],
+        "N_high": [n for n, p, doping in parts if doping and p.valid_N[1] == N_high],
+    }
+    return (T_low, T_high), (N_low, N_high), binding
