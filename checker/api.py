@@ -46,12 +46,15 @@ def carrier_transport(state: equilibrium.State, dimension=3, mobility_model=None
 regime_label = carriers.regime_label
 
 
-def check_paths(paths):
-    """Check calculation files (or directories of them); returns a RunResult with
-    one report per calculation (state summary, findings) and the input errors."""
+def check_paths(paths, config=None):
+    """Check calculation files, memos, tables (or directories of them); returns a
+    RunResult with one report per calculation (state summary, findings) and the input
+    errors.  ``config``: a TOML settings file; by default the [tool.regimecheck] table
+    of the first pyproject.toml from the working directory upward, as the command does."""
     from .engine.run import check_paths as run
+    from .inputs.config import load_config
 
-    return run([str(p) for p in paths])
+    return run([str(p) for p in paths], config=load_config(config))
 
 
 def state_summary(state: equilibrium.State, index=()):

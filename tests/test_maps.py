@@ -139,3 +139,16 @@ def test_headless_browser_renders_the_report(tmp_path, html_report):
 
     image = imread(io.BytesIO(shot.read_bytes()), format="png")
     assert image.shape[0] > 500 and image[..., :3].std() > 0.05       # not blank
+
+
+def test_large_runs_share_one_map_per_material_and_dopant(tmp_path):
+    docs = [f"name: point {i}\nmaterial: Si\ntemperature: {250 + i} K\n"
+            f"doping:\n  donors: {{P: {10 ** (14 + i / 10):.3e} cm-3}}\n" for i in range(45)]
+    path = tmp_path / "many.yaml"
+    path.write_text("---\n".join(docs))
+    result = check_paths([str(path)])
+    text = render_html(result, 0)
+    root = ET.fromstring(text[text.index("<html"):])
+    assert len(root.findall(".//{http://www.w3.org/2000/svg}svg")) == 1
+    links = [a for a in root.iter(f"{XHTML}a") if a.get("href") == "#map-0"]
+    assert len(links) == 44

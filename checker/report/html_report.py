@@ -17,6 +17,7 @@ from . import DISCLAIMER
 from .check_report import STATE_ROWS, formula_lines, summary_line, sweep_axis_text
 
 MAP_RESOLUTION = 90
+MAPS_PER_CALCULATION = 40      # above this many calculations: one map per material and dopant
 _ENTITIES = {"&InvisibleTimes;": "&#8290;", "&ApplyFunction;": "&#8289;",
              "&#x2062;": "&#8290;", "&nbsp;": "&#160;"}
 
@@ -126,7 +127,10 @@ def _formulas(report) -> str:
             "its value here</th></tr></thead><tbody>" + "".join(items) + "</tbody></table>")
 
 
-def _map(report, index, grids) -> str:
+def _map(report, index, grids, shared=None) -> str:
+    """The map of the calculation's material and dopant with its point; with ``shared``
+    (large runs) the group's map is drawn once, with all its points, and later
+    calculations of the group link to it."""
     from ..engine.regime_map import map_groups, regime_grid
     from .plots import draw_map
 
@@ -135,11 +139,21 @@ def _map(report, index, grids) -> str:
         return ""
     (name, species), (material, points) = next(iter(groups.items()))
     key = (name, species)
-    if key not in grids:
-        grids[key] = regime_grid(material, species, size=(MAP_RESOLUTION, MAP_RESOLUTION))
-    fig = draw_map(grids[key], points, size=(7.4, 4.4),
-                   title=f"{name}: regimes of {species} doping, with this calculation")
-    return f'<div class="map">{_svg(fig, f"regimecheck-map-{index}")}</div>'
+    if shared is not None:
+        if key in grids:
+            return (f'<p class="meta">Regime map: see <a href="#map-{grids[key]}">{_text(name)}, '
+                    f"{_text(species)}</a>.</p>")
+        grids[key] = index
+        points = shared[key][1]
+        title = f"{name}: regimes of {species} doping, with every calculation of this run"
+        grid = regime_grid(material, species, size=(MAP_RESOLUTION, MAP_RESOLUTION))
+    else:
+        if key not in grids:
+            grids[key] = regime_grid(material, species, size=(MAP_RESOLUTION, MAP_RESOLUTION))
+        grid = grids[key]
+        title = f"{name}: regimes of {species} doping, with this calculation"
+    fig = draw_map(grid, points, size=(7.4, 4.4), title=title)
+    return f'<div class="map" id="map-{index}">{_svg(fig, f"regimecheck-map-{index}")}</div>'
 
 
 class _Single:
@@ -155,6 +169,13 @@ def render_html(result, exit_code: int, maps: bool = True) -> str:
              f"<style>{STYLE}</style></head><body>",
              "<h1>regimecheck review</h1>", f'<p class="meta">{_text(summary_line(result))}</p>']
     grids = {}
+    shared = None
+    if len(result.reports) > MAPS_PER_CALCULATION:
+        from ..engine.regime_map import map_groups
+
+        shared = map_groups(result)
+        parts.append(f'<p class="meta">{len(result.reports)} calculations: one regime map per '
+                     "material and dopant, with all their points.</p>")
     for index, report in enumerate(result.reports):
         calc = report.calc
         parts.append(f'<section id="calc-{index}"><h2>{_text(calc.name)}</h2>')
@@ -172,7 +193,7 @@ def render_html(result, exit_code: int, maps: bool = True) -> str:
         for note in report.notes:
             parts.append(f'<p class="meta">note: {_text(note)}</p>')
         if maps:
-            parts.append(_map(report, index, grids))
+            parts.append(_map(report, index, grids, shared))
         parts.append("</section>")
     if result.input_errors:
         parts.append("<h2>Input errors</h2><ul>" + "".join(
