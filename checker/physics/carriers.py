@@ -76,6 +76,13 @@ def regime_code(state: State, degenerate_eta=DEGENERATE_ETA):
     ionization (freeze-out at low T, deep levels at any T) where under 90 % of
     the majority dopant is ionized (common practice (no source)); metallic above
     the dopant's Mott density.  Units: none; arrays broadcast like the state.
+
+    References
+    ----------
+    S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (Wiley, 2007), ch. 1
+    (non-degeneracy, freeze-out, intrinsic regime).
+    N. F. Mott, Metal-Insulator Transitions (Taylor & Francis, 1990) (impurity band above
+    the critical density; densities per dopant in the material files).
     """
     net = np.abs(state.donors_total - state.acceptors_total)
     majority_fraction = np.where(state.donors_total >= state.acceptors_total,

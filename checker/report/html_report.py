@@ -152,7 +152,7 @@ def _map(report, index, grids, shared=None) -> str:
             grids[key] = regime_grid(material, species, size=(MAP_RESOLUTION, MAP_RESOLUTION))
         grid = grids[key]
         title = f"{name}: regimes of {species} doping, with this calculation"
-    fig = draw_map(grid, points, size=(7.4, 4.4), title=title)
+    fig = draw_map(grid, points, size=(7.4, 4.4), title=title, notice=False)
     return f'<div class="map" id="map-{index}">{_svg(fig, f"regimecheck-map-{index}")}</div>'
 
 

@@ -33,7 +33,7 @@ def _figure(size, right=0.95):
 
     # fixed margins: an automatic layout would draw every figure twice
     fig = Figure(figsize=size)
-    fig.subplots_adjust(left=0.1, right=right, bottom=0.12, top=0.92)
+    fig.subplots_adjust(left=0.1, right=right, bottom=0.16, top=0.92)
     return fig
 
 
@@ -43,8 +43,34 @@ def render(fig, fmt: str) -> bytes:
     return buffer.getvalue()
 
 
-def draw_map(grid, points=(), title=None, size=(7.8, 5.0)):
-    """The regime map of ``grid`` (engine.regime_map.RegimeGrid) with ``points``."""
+def _notice(fig):
+    from . import DISCLAIMER
+
+    fig.text(0.01, 0.005, DISCLAIMER, fontsize=6, color="#666666", ha="left", va="bottom")
+
+
+def _inside(cells):
+    """A cell deep inside a region (erode it while something is left), for its label."""
+    core = cells
+    while True:
+        shrunk = core.copy()
+        shrunk[1:, :] &= core[:-1, :]
+        shrunk[:-1, :] &= core[1:, :]
+        shrunk[:, 1:] &= core[:, :-1]
+        shrunk[:, :-1] &= core[:, 1:]
+        shrunk[[0, -1], :] = False         # the plot's edge is a boundary too
+        shrunk[:, [0, -1]] = False
+        if not shrunk.any():
+            break
+        core = shrunk
+    rows, cols = np.nonzero(core)
+    k = int(np.argmin((rows - rows.mean()) ** 2 + (cols - cols.mean()) ** 2))
+    return rows[k], cols[k]
+
+
+def draw_map(grid, points=(), title=None, size=(7.8, 5.0), notice=True):
+    """The regime map of ``grid`` (engine.regime_map.RegimeGrid) with ``points``;
+    ``notice``: print the screening-check sentence on it (a standalone figure)."""
     from matplotlib.colors import BoundaryNorm, ListedColormap
     from matplotlib.lines import Line2D
     from matplotlib.patches import Patch, Rectangle
@@ -76,8 +102,9 @@ def draw_map(grid, points=(), title=None, size=(7.8, 5.0)):
     for code, name in enumerate(REGIMES):
         cells = grid.codes == code
         if code in present and cells.sum() > 0.01 * cells.size:
-            ax.text(np.exp(np.log(X[cells]).mean()), Y[cells].mean(), name, ha="center",
-                    va="center", fontsize=8, color="#333333")
+            j, i = _inside(cells)
+            ax.text(X[j, i], Y[j, i], name, ha="center", va="center", fontsize=8,
+                    color="#333333")
     for point in points:
         colour = SEVERITY_COLOURS[point.severity]
         if point.doping_span or point.T_span:
@@ -109,10 +136,13 @@ def draw_map(grid, points=(), title=None, size=(7.8, 5.0)):
                   "density (cm⁻³)")
     ax.set_ylabel("temperature (K)")
     ax.set_title(title or f"{grid.material.name}: regimes of {grid.species} doping", fontsize=10)
+    if notice:
+        _notice(fig)
     return fig
 
 
-def draw_eta_curve(material, species, density, temperatures, title=None, size=(6.4, 4.2)):
+def draw_eta_curve(material, species, density, temperatures, title=None, size=(6.4, 4.2),
+                   notice=True):
     """η of the majority carrier vs T at a fixed doping, with the regimes along T."""
     from matplotlib.patches import Patch
 
@@ -143,4 +173,6 @@ def draw_eta_curve(material, species, density, temperatures, title=None, size=(6
     ax.set_ylabel(f"η_{carrier} = (E_F − E_C)/kT" if carrier == "n" else "η_p = (E_V − E_F)/kT")
     ax.set_xlim(T[0], T[-1])
     ax.set_title(title or f"{material.name}, {species} {density * 1e-6:.3g} cm⁻³", fontsize=10)
+    if notice:
+        _notice(fig)
     return fig
