@@ -46,11 +46,20 @@ def test_boundary_matches_single_points_and_an_independent_solve(tmp_path):
     text = finding.sweep.boundary[0]
     assert text.startswith("fails for N_D(P) ≥ ") and text.endswith(" cm⁻³")
     shown = float(text.split("≥ ")[1].split()[0]) * 1e6
-    first = int(np.argmin(np.abs(np.log(values / shown))))
+    first = int(np.searchsorted(values, shown))          # the first failing grid point
     silicon = load_material("Si")
-    # the 3kT rule (Sze & Ng 2007, ch. 1) at the 40-digit solve: eta crosses -3 right there
+    # the 3kT rule (Sze & Ng 2007, ch. 1) at the 40-digit solve: eta crosses -3 between
+    # the grid points, and the interpolated edge is where it does (bisection, 1 %)
     assert reference_solve(silicon, 300.0, {"P": values[first]}, {}) > -3
     assert reference_solve(silicon, 300.0, {"P": values[first - 1]}, {}) < -3
+    low, high = np.log(values[first - 1]), np.log(values[first])
+    for _ in range(30):
+        middle = (low + high) / 2
+        if reference_solve(silicon, 300.0, {"P": float(np.exp(middle))}, {}) > -3:
+            high = middle
+        else:
+            low = middle
+    assert shown == pytest.approx(float(np.exp(low)), rel=0.01)
     T, donors, acceptors, _ = sweep.grid(calc)
     for index, fires in ((first, True), (first - 1, False)):
         point = sweep.point(calc, T, donors, acceptors, index)
@@ -74,6 +83,20 @@ def test_grid_masks_equal_single_point_checks(tmp_path):
                   if not f.rule.startswith("FORM")}
         on_grid = {key for key, (mask, _) in masks.items() if mask.ravel()[index]}
         assert on_grid == single, (index, on_grid, single)
+
+
+def test_an_edge_at_a_jump_is_the_grid_value_and_the_mott_edge_is_exact(tmp_path):
+    """DOPE02 switches at the Mott density (3.74e18 cm-3 for Si:P, Rosenbaum et al. 1983,
+    references.md §4d); ION01 jumps there (metallic: fully ionized), so its upper edge is
+    given at the last failing grid point rather than interpolated across the jump."""
+    calc = _calc(tmp_path, ONE_AXIS)
+    report = check_calculations([calc]).reports[0]
+    dope, = [f for f in report.findings if f.rule == "DOPE02"]
+    assert dope.sweep.boundary == ["fails for N_D(P) ≥ 3.74e+18 cm⁻³"]
+    ion, = [f for f in report.findings if f.rule == "ION01"]
+    upper = float(ion.sweep.boundary[0].split("≤ ")[-1].split()[0]) * 1e6
+    assert upper in [float(f"{v * 1e-6:.3g}") * 1e6 for v in calc.sweep[0].values]
+    assert upper < 3.74e24
 
 
 def test_worst_point_is_a_full_single_point_finding(tmp_path):

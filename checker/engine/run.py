@@ -171,7 +171,9 @@ def _check_sweep(calc, rules, progress):
         if not match:
             continue
         finding = match[0]
-        summary = sweep.summarize_sweep(calc, mask, index, points)
+        rule = next(r for r in rules if r.id == rule_id)
+        summary = sweep.summarize_sweep(calc, mask, index, points,
+                                        sweep.excess_at(calc, rule, x, items, points))
         where = ", ".join(f"{k} = {v}" for k, v in summary.worst_point.items())
         finding.message = (f"On {summary.failing_fraction:.1%} of the sweep; "
                            f"{'; '.join(summary.boundary)}. Worst at {where}: {finding.message}")

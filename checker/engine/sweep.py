@@ -124,59 +124,171 @@ def _runs(flags) -> list:
     return list(zip(np.flatnonzero(edges == 1), np.flatnonzero(edges == -1) - 1))
 
 
-def _along(axis, flags) -> str:
-    """Where along one axis the rule fails, in words."""
+SMOOTH = 0.05      # |excess| at an edge, relative to its span, to accept it as a crossing
+STEPS = 4          # false-position steps between two grid points
+
+
+def _edges(flags) -> list:
+    """(passing, failing) grid-index pairs at the ends of each failing run."""
+    last = len(flags) - 1
+    out = []
+    for i, j in _runs(flags):
+        if i > 0:
+            out.append((i - 1, i))
+        if j < last:
+            out.append((j + 1, j))
+    return out
+
+
+def _interpolate(axis, pairs, bases, excess) -> list:
+    """Where the indicator's excess crosses zero between each (passing, failing) pair of
+    grid indices along ``axis`` (``bases``: the failing points' flat indices), by false
+    position (in log for a log axis), all pairs in one solve per step.  A pair that does
+    not cross smoothly (a jump, e.g. the Mott density switching the picture, or a gate)
+    gets None: its grid value is used."""
+    if not pairs:
+        return []
+    log = axis.spacing == "log"
+    passing = np.array([axis.values[p] for p, _ in pairs], dtype=float)
+    failing = np.array([axis.values[f] for _, f in pairs], dtype=float)
+    bases = np.asarray(bases)
+    fa = excess(bases, (axis.key, passing))
+    fb = excess(bases, (axis.key, failing))
+    ok = np.isfinite(fa) & np.isfinite(fb) & (fa <= 0) & (fb > 0)
+    span = np.where(ok, fb - fa, 1.0)
+    xa, xb = (np.log(passing), np.log(failing)) if log else (passing, failing)
+    x, f = xb.copy(), fb.copy()
+    for _ in range(STEPS):
+        denominator = np.where(ok, fb - fa, 1.0)
+        x = np.where(ok, xa - fa * (xb - xa) / denominator, xb)
+        f = excess(bases, (axis.key, np.exp(x) if log else x))
+        ok &= np.isfinite(f)
+        below = ok & (f <= 0)
+        xa, fa = np.where(below, x, xa), np.where(below, f, fa)
+        xb, fb = np.where(ok & ~below, x, xb), np.where(ok & ~below, f, fb)
+    good = ok & (np.abs(f) <= SMOOTH * span)
+    values = np.exp(x) if log else x
+    return [float(values[k]) if good[k] else None for k in range(len(pairs))]
+
+
+def _along(axis, flags, crossings=None) -> str:
+    """Where along one axis the rule fails, in words; ``crossings`` maps (passing,
+    failing) index pairs to the interpolated edge value (None: use the grid value)."""
     values, label, last = axis.values, axis_label(axis), len(axis.values) - 1
+
+    def edge(passing, failing):
+        value = (crossings or {}).get((passing, failing))
+        return axis_value(axis, values[failing] if value is None else value)
+
     parts = []
     for i, j in _runs(flags):
         if i == 0 and j == last:
             parts.append("on the whole range")
         elif i == 0:
-            parts.append(f"for {label} ≤ {axis_value(axis, values[j])}")
+            parts.append(f"for {label} ≤ {edge(j + 1, j)}")
         elif j == last:
-            parts.append(f"for {label} ≥ {axis_value(axis, values[i])}")
+            parts.append(f"for {label} ≥ {edge(i - 1, i)}")
         else:
-            parts.append(f"for {axis_value(axis, values[i])} ≤ {label} ≤ "
-                         f"{axis_value(axis, values[j])}")
+            parts.append(f"for {edge(i - 1, i)} ≤ {label} ≤ {edge(j + 1, j)}")
     return " and ".join(parts) or "nowhere"
 
 
-def boundary(calc, mask) -> list:
-    """Lines saying where on the grid the rule fails."""
+def boundary(calc, mask, excess=None) -> list:
+    """Lines saying where on the grid the rule fails.  ``excess(flat indices, override)``
+    (optional) gives the indicator's distance beyond its threshold, for interpolating
+    the edges between grid points."""
     axes = calc.sweep
+    shape = mask.shape
     if len(axes) == 1:
-        return [f"fails {_along(axes[0], mask)}"]
-    # temperature (if swept) labels the rows; the boundary runs along the other axis
-    rows, cols = (0, 1) if axes[0].key == "T" or axes[1].key != "T" else (1, 0)
-    grid_mask = mask if rows == 0 else mask.T
-    row_axis = axes[rows]
-    texts = [_along(axes[cols], grid_mask[r]) for r in range(len(row_axis.values))]
-    groups = []                       # consecutive rows that fail alike: (first, last, text)
-    for r, text in enumerate(texts):
-        if groups and groups[-1][2] == text:
-            groups[-1] = (groups[-1][0], r, text)
+        rows, cols, grid_mask, row_axis, count = None, 0, mask[None, :], None, 1
+    else:
+        # temperature (if swept) labels the rows; the boundary runs along the other axis
+        rows, cols = (0, 1) if axes[0].key == "T" or axes[1].key != "T" else (1, 0)
+        grid_mask = mask if rows == 0 else mask.T
+        row_axis, count = axes[rows], len(axes[rows].values)
+    axis = axes[cols]
+
+    def flat(r, c):
+        if rows is None:
+            return c
+        position = [0, 0]
+        position[rows], position[cols] = r, c
+        return int(np.ravel_multi_index(tuple(position), shape))
+
+    # rows whose failing cells are alike are described together, at their middle row
+    plain = [_along(axis, grid_mask[r]) for r in range(count)]
+    groups = []                       # consecutive rows that fail alike: (first, last)
+    for r, text in enumerate(plain):
+        if groups and plain[groups[-1][0]] == text:
+            groups[-1] = (groups[-1][0], r)
         else:
-            groups.append((r, r, text))
+            groups.append((r, r))
     if len(groups) > ROWS_SHOWN:      # too many to list: a few evenly spaced rows
-        picks = np.linspace(0, len(texts) - 1, ROWS_SHOWN).round().astype(int)
-        groups = [(r, r, texts[r]) for r in sorted(set(picks))]
+        picks = np.linspace(0, count - 1, ROWS_SHOWN).round().astype(int)
+        groups = [(r, r) for r in sorted(set(picks))]
+    middles = [(first + last) // 2 for first, last in groups]
+    crossings = {}                    # row -> {(passing, failing): edge value or None}
+    if excess is not None:
+        edges = [(r, pair) for r in middles for pair in _edges(grid_mask[r])]
+        found = _interpolate(axis, [pair for _, pair in edges],
+                             [flat(r, pair[1]) for r, pair in edges], excess)
+        for (r, pair), value in zip(edges, found):
+            crossings.setdefault(r, {})[pair] = value
+    texts = [_along(axis, grid_mask[r], crossings.get(r)) for r in middles]
+    if rows is None:
+        return [f"fails {texts[0]}"]
     label = axis_label(row_axis)
 
-    def rows_text(first, last):
-        if first == 0 and last == len(texts) - 1:
-            return f"at every {label}"
+    def rows_text(first, last, middle):
         if first == last:
             return f"at {label} = {axis_value(row_axis, row_axis.values[first])}"
-        return (f"at {label} = {axis_value(row_axis, row_axis.values[first])} … "
-                f"{axis_value(row_axis, row_axis.values[last])}")
+        span = "every " + label if first == 0 and last == count - 1 else (
+            f"{label} = {axis_value(row_axis, row_axis.values[first])} … "
+            f"{axis_value(row_axis, row_axis.values[last])}")
+        edge = f" (edge at {axis_value(row_axis, row_axis.values[middle])})" \
+            if excess is not None else ""
+        return f"at {span}{edge}"
 
-    return [f"{rows_text(first, last)}: fails {text}" for first, last, text in groups]
+    return [f"{rows_text(first, last, middle)}: fails {text}"
+            for (first, last), middle, text in zip(groups, middles, texts)]
 
 
-def summarize_sweep(calc, mask, index, grid_points) -> SweepSummary:
+def excess_at(calc, rule, x, embodied, grid_points):
+    """A function: flat grid indices -> how far the rule's indicator is beyond its
+    threshold there (NaN where the rule does not apply)."""
+    T, donors, acceptors, _ = grid_points
+    names = carrier_names(x) if x else {}
+
+    def excess(indices, override=None):
+        """At grid points ``indices``; ``override`` = (axis key, value or one value per
+        point) moves them along that axis."""
+        indices = np.asarray(indices)
+        T_at = T[indices]
+        donors_at = {s: a[indices] for s, a in donors.items()}
+        acceptors_at = {s: a[indices] for s, a in acceptors.items()}
+        if override is not None:
+            key, value = override
+            moved = np.broadcast_to(np.asarray(value, dtype=float), indices.shape).copy()
+            if key == "T":
+                T_at = moved
+            else:
+                (donors_at if key[0] == "donors" else acceptors_at)[key[1]] = moved
+        values, _ = solve_sweep(calc, T_at, donors_at, acceptors_at)
+        count = indices.size
+        with np.errstate(all="ignore"):
+            made = _made(rule, x, names, calc, embodied, values, count)
+            _, indicator, _ = rule_mask(rule, x, names, made | ~made.any(), values, count)
+        beyond = indicator - rule.threshold if rule.relation == "above" \
+            else rule.threshold - indicator
+        return np.asarray(beyond, dtype=float)
+
+    return excess
+
+
+def summarize_sweep(calc, mask, index, grid_points, excess=None) -> SweepSummary:
     T, donors, acceptors, shape = grid_points
     position = np.unravel_index(index, shape)
     worst = {axis_label(axis): axis_value(axis, axis.values[position[k]])
              for k, axis in enumerate(calc.sweep)}
-    return SweepSummary(calc.sweep, int(mask.size), float(mask.mean()), boundary(calc, mask),
-                        worst)
+    return SweepSummary(calc.sweep, int(mask.size), float(mask.mean()),
+                        boundary(calc, mask, excess), worst)
