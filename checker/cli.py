@@ -380,7 +380,9 @@ def _cmd_map(args) -> int:
         raise RegimecheckError("--resolution must be from 10 to 1000")
     groups, errors = {}, []
     if args.paths:
-        result = check_paths(args.paths, config=_settings_for_map())
+        from .inputs.config import load_config
+
+        result = check_paths(args.paths, config=load_config(None))
         groups, errors = map_groups(result), result.input_errors
     if args.material:
         material = resolve_material(args.material)
@@ -404,12 +406,6 @@ def _cmd_map(args) -> int:
     for message in errors:
         print(f"input error: {message}", file=sys.stderr)
     return EXIT_INPUT if errors else EXIT_OK
-
-
-def _settings_for_map():
-    from .inputs.config import load_config
-
-    return load_config(None)
 
 
 def _cmd_curve(args) -> int:

@@ -24,7 +24,6 @@ ROWS_SHOWN = 5           # rows of a 2D grid whose boundary is written out
 
 @dataclass
 class SweepSummary:
-    axes: list                        # inputs.calculation_file.Axis
     points: int
     failing_fraction: float
     boundary: list = field(default_factory=list)     # lines of text
@@ -286,9 +285,9 @@ def excess_at(calc, rule, x, embodied, grid_points):
 
 
 def summarize_sweep(calc, mask, index, grid_points, excess=None) -> SweepSummary:
-    T, donors, acceptors, shape = grid_points
+    shape = grid_points[3]
     position = np.unravel_index(index, shape)
     worst = {axis_label(axis): axis_value(axis, axis.values[position[k]])
              for k, axis in enumerate(calc.sweep)}
-    return SweepSummary(calc.sweep, int(mask.size), float(mask.mean()),
+    return SweepSummary(int(mask.size), float(mask.mean()),
                         boundary(calc, mask, excess), worst)
