@@ -89,7 +89,7 @@ def regime_code(state: State, degenerate_eta=DEGENERATE_ETA):
                                  state.donor_fraction, state.acceptor_fraction)
     codes = np.zeros(np.shape(state.T), dtype=np.int8)
     codes[majority_fraction < IONIZED_FRACTION] = 1
-    codes[state.ni > net] = 2
+    codes[(state.ni > net) | (net <= 0)] = 2      # undoped: intrinsic even where n_i underflows
     codes[(state.eta_n > degenerate_eta) | (state.eta_p > degenerate_eta)] = 3
     codes[np.broadcast_to(state.metallic, codes.shape)] = 4
     return codes

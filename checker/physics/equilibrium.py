@@ -42,6 +42,7 @@ from .materials import Material
 
 MAX_ITERATIONS = 200
 TOLERANCE = 1e-12
+BALANCE_TOLERANCE = 1e-10   # relative neutrality error every returned point meets
 
 
 @dataclass
@@ -142,6 +143,41 @@ class State:
     @property
     def acceptor_fraction(self):
         return _fraction(self.acceptors_ionized_total, self.acceptors_total)
+
+
+def charge_balance_error(state: State) -> np.ndarray:
+    """Relative neutrality error |(n + N_A^-) - (p + N_D^+)| / max(n + N_A^-, p + N_D^+).
+
+    Evaluated afresh from the solved eta_n with the plain form of neutrality (not the
+    solver's rearranged residual), each density in logarithms so that points whose
+    densities underflow (wide gaps near 1 K) are still checked.  Units: none.
+
+    References
+    ----------
+    Sze & Ng (2007) ch. 1 (charge neutrality).
+    """
+    kT, narrowing = state.kT, state.narrowing
+    negative = [np.log(state.Nc) + log_fermi_dirac(0.5, state.eta_n)]
+    positive = [np.log(state.Nv) + log_fermi_dirac(0.5, state.eta_p)]
+    for group, eta_band, total, side in ((state.donors, state.eta_n, state.donors_total, positive),
+                                         (state.acceptors, state.eta_p, state.acceptors_total,
+                                          negative)):
+        for name, density in group.items():
+            side.append(log_ionized_density(state.material.dopant(name), density, eta_band, kT,
+                                            narrowing, total))
+    with np.errstate(invalid="ignore", over="ignore"):
+        ln_neg, ln_pos = np.logaddexp.reduce(negative), np.logaddexp.reduce(positive)
+        top = np.maximum(ln_neg, ln_pos)
+        error = np.abs(np.exp(ln_neg - top) - np.exp(ln_pos - top))
+    return np.where(np.isfinite(top), error, 0.0)
+
+
+def log_ionized_density(dopant, density, eta_band, kT, narrowing, same_type_total):
+    """ln of :func:`ionized_density` without underflow (-inf where the density is 0)."""
+    offset = _ionization_offset(dopant, kT, narrowing)
+    metallic = same_type_total >= dopant.mott_density
+    ln_density = _log(density)
+    return np.where(metallic, ln_density, ln_density - np.logaddexp(0.0, eta_band + offset))
 
 
 def ionized_density(dopant, density, eta_band, kT, narrowing, same_type_total):
@@ -257,29 +293,52 @@ class _Neutrality:
         slopes = np.exp(both_minus - both)      # d ln F_1/2 / d eta = F_-1/2 / F_1/2
         left = [(ln_nc + both[:size], slopes[:size]), (ln_net_p, None)]
         right = [(ln_nv + both[size:], -slopes[size:]), (ln_net_n, None)]
+        # the same balance written plainly, n + N_A^- = p + N_D^+: in freeze-out almost
+        # every impurity is neutral and the form above cancels (N^0 ~ N), while this one
+        # keeps full resolution; each point takes the form with the steeper slope
+        plain_left = [(ln_nc + both[:size], slopes[:size])]
+        plain_right = [(ln_nv + both[size:], -slopes[size:])]
         for k in range(self.n_donors):
             ln_n, offset, metallic = self._species(k)
-            left.append(_neutral_term(ln_n, eta + offset, metallic, +1.0))
+            neutral, ionized = _impurity_terms(ln_n, eta + offset, metallic, +1.0)
+            left.append(neutral)
+            plain_right.append(ionized)
         for k in range(self.n_donors, self.n_donors + self.n_acceptors):
             ln_n, offset, metallic = self._species(k)
-            right.append(_neutral_term(ln_n, eta_p + offset, metallic, -1.0))
+            neutral, ionized = _impurity_terms(ln_n, eta_p + offset, metallic, -1.0)
+            right.append(neutral)
+            plain_left.append(ionized)
         lse_l, dl = _logsumexp_with_slope(left)
         lse_r, dr = _logsumexp_with_slope(right)
-        return lse_l - lse_r, dl - dr
+        f, df = lse_l - lse_r, dl - dr
+        if self.n_donors + self.n_acceptors:
+            pl, dpl = _logsumexp_with_slope(plain_left)
+            pr, dpr = _logsumexp_with_slope(plain_right)
+            plain_df = dpl - dpr
+            steeper = plain_df > df
+            np.copyto(f, pl - pr, where=steeper)
+            np.copyto(df, plain_df, where=steeper)
+        return f, df
 
 
-def _neutral_term(ln_density, argument, metallic, sign):
-    """ln N^0 = ln N - ln(1 + e^-arg) (occupied impurities) and its eta-derivative.
+def _impurity_terms(ln_density, argument, metallic, sign):
+    """(ln N^0, slope) and (ln N^ion, slope) of one species; slopes are d/d eta.
 
-    d ln N^0 / d arg is the ionized fraction; ``sign`` is d arg / d eta.
-    A metallic species has no bound carriers: ln N^0 = -inf.
+    ln N^0 = ln N - ln(1 + e^-arg) (occupied impurities), ln N^ion = ln N - ln(1 + e^arg)
+    (ionized); d ln N^0 / d arg is the ionized fraction and d ln N^ion / d arg minus
+    the neutral fraction.  ``sign`` is d arg / d eta.  A metallic species has no bound
+    carriers: ln N^0 = -inf and N^ion = N.
     """
     soft, ionized = _softplus_and_logistic(-argument)
-    value, slope = ln_density - soft, sign * ionized
+    neutral_value, neutral_slope = ln_density - soft, sign * ionized
+    ion_value = ln_density - (soft + argument)
+    ion_slope = sign * (ionized - 1.0)
     if metallic is not None:
-        value = np.where(metallic, -np.inf, value)
-        slope = np.where(metallic, 0.0, slope)
-    return value, slope
+        neutral_value = np.where(metallic, -np.inf, neutral_value)
+        neutral_slope = np.where(metallic, 0.0, neutral_slope)
+        ion_value = np.where(metallic, ln_density, ion_value)
+        ion_slope = np.where(metallic, 0.0, ion_slope)
+    return (neutral_value, neutral_slope), (ion_value, ion_slope)
 
 
 def _logsumexp_with_slope(terms):
@@ -376,8 +435,14 @@ def _newton(residual, eta0):
             step[bad] = np.where(f[bad] > 0, -limit[bad], limit[bad])
         big = np.abs(step) >= limit
         np.clip(step, -limit, limit, out=step)
+        # converged: |f| small, or the step or the bracket has shrunk to rounding size;
+        # such a point keeps x (where f was measured), never a fallback move below
+        small_f = np.abs(f) <= TOLERANCE
+        tiny = np.abs(x) + 1.0
+        tiny *= 4e-16
+        done = small_f | (np.abs(step) <= tiny) | (hi - lo <= tiny)
         new = x + step
-        outside = (new <= lo) | (new >= hi)
+        outside = ((new <= lo) | (new >= hi)) & ~done
         if outside.any():
             o_lo, o_hi, o_x, o_lim = lo[outside], hi[outside], x[outside], limit[outside]
             closed = np.isfinite(o_lo) & np.isfinite(o_hi)
@@ -387,13 +452,7 @@ def _newton(residual, eta0):
                                     np.where(f[outside] > 0, o_x - o_lim, o_x + o_lim))
         if big.any():
             limit[big] *= 4.0
-        # converged: |f| small (x is kept, where f was measured), or the step or the
-        # bracket has shrunk to rounding size
-        small_f = np.abs(f) <= TOLERANCE
-        tiny = np.abs(x) + 1.0
-        tiny *= 4e-16
-        done = small_f | (np.abs(step) <= tiny) | (hi - lo <= tiny)
-        np.copyto(x, new, where=~small_f)
+        np.copyto(x, new, where=~done)
         if done.any():
             out_eta[idx[done]] = x[done]
             out_f[idx[done]] = np.abs(f[done])
@@ -466,12 +525,19 @@ def solve(material: Material, T, donors: dict | None = None, acceptors: dict | N
             iterations = max(pool.map(block, starts))
     else:
         iterations = max(block(i) for i in starts)
-    return State(material=material, T=T.reshape(shape),
-                 donors={k: v.reshape(shape) for k, v in donors.items()},
-                 acceptors={k: v.reshape(shape) for k, v in acceptors.items()},
-                 eta_n=eta.reshape(shape), metallic=metallic.reshape(shape),
-                 narrowing=narrowing.reshape(shape), residual=residual.reshape(shape),
-                 iterations=iterations)
+    state = State(material=material, T=T.reshape(shape),
+                  donors={k: v.reshape(shape) for k, v in donors.items()},
+                  acceptors={k: v.reshape(shape) for k, v in acceptors.items()},
+                  eta_n=eta.reshape(shape), metallic=metallic.reshape(shape),
+                  narrowing=narrowing.reshape(shape), residual=residual.reshape(shape),
+                  iterations=iterations)
+    # the promise is checked, not assumed: neutrality evaluated afresh from eta
+    state.residual = np.maximum(state.residual, charge_balance_error(state))
+    bad = ~(state.residual <= BALANCE_TOLERANCE)
+    if bad.any():
+        raise ConvergenceError(f"Fermi-level solve: neutrality off by up to "
+                               f"{np.nanmax(state.residual):.1e} at {int(bad.sum())} point(s)")
+    return state
 
 
 def _effective_levels(donors, acceptors, species, nd_total, na_total, T):
@@ -532,7 +598,7 @@ def _solve_flat(material, T, donors, acceptors, band_gap_narrowing, species, out
     eta, final_f, iterations = _newton(residual, eta0)
     out_eta, out_residual, out_metallic, out_narrowing = out
     out_eta[:] = eta
-    out_residual[:] = -np.expm1(-final_f)
+    out_residual[:] = np.abs(np.expm1(final_f))
     out_metallic[:] = metallic
     out_narrowing[:] = narrowing
     return iterations
