@@ -16,6 +16,7 @@ from .errors import RegimecheckError
 
 EXIT_OK, EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 EXIT_BROKEN_PIPE = 141                 # 128 + SIGPIPE, as a shell reports it
+EXIT_INTERRUPTED = 130                 # 128 + SIGINT
 LEVELS = ("info", "warning", "error")
 
 
@@ -26,9 +27,27 @@ class _Parser(argparse.ArgumentParser):
         raise SystemExit(EXIT_INPUT)
 
 
+class _Version(argparse.Action):
+    """--version: the installed version, looked up only when asked for."""
+
+    def __init__(self, option_strings, dest, **kwargs):
+        super().__init__(option_strings, dest, nargs=0, help="print the version and exit")
+
+    def __call__(self, parser, *_):
+        from importlib.metadata import PackageNotFoundError, version
+
+        try:
+            number = version("regimecheck")
+        except PackageNotFoundError:    # run from a source tree that is not installed
+            from . import __version__ as number
+        print(f"regimecheck {number}")
+        parser.exit()
+
+
 def _parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="regimecheck",
                      description="Solve and check semiconductor operating points.")
+    parser.add_argument("--version", action=_Version)
     sub = parser.add_subparsers(dest="command", required=True)
     check = sub.add_parser("check", help="check calculation files (files or directories)")
     check.add_argument("paths", nargs="+",
@@ -87,12 +106,15 @@ FORMATS = ("console", "json", "markdown", "sarif", "junit", "html")
 
 
 def _report_options(command):
-    command.add_argument("--format", choices=FORMATS, default="console",
+    command.add_argument("--format", choices=FORMATS, default=None,
                          help="console (default), json, markdown (to paste under a memo), "
                               "sarif (SARIF 2.1.0), junit (JUnit XML), html (a self-contained "
-                              "review report with regime maps)")
+                              "review report with regime maps); with --output and no "
+                              "--format, the file's suffix chooses (.json .md .sarif .xml "
+                              ".html .txt)")
     command.add_argument("--output", metavar="FILE",
-                         help="write the report to FILE (UTF-8) instead of the terminal")
+                         help="write the report to FILE (UTF-8) instead of the terminal; "
+                              "never over an input, and only once the report is complete")
     command.add_argument("--fail-on", choices=LEVELS, default=None,
                          help="lowest severity that makes the exit code 1 (default: the "
                               "configuration's fail-level, else warning)")
@@ -103,18 +125,27 @@ def _report_options(command):
                          help="exit 0 even when there are findings (input errors still exit 2)")
 
 
-def _pairs(items, what):
+def _quantity(text, dimension, option):
+    """A quantity from the command line, held to the bounds of a calculation file."""
     from .inputs.quantities import check_plausible, parse_quantity
 
+    value = parse_quantity(text, dimension, option)
+    if value < 0:
+        raise RegimecheckError(f"{option} {text!r} is negative; give a value >= 0")
+    return check_plausible(value, dimension, text, option)
+
+
+def _pairs(items, what):
     out = {}
     for item in items:
         species, sep, density = item.partition("=")
         if not sep or not species:
             raise RegimecheckError(f"--{what} {item!r}: write SPECIES=DENSITY, e.g. P=1e17cm-3")
-        value = parse_quantity(density, "density", f"--{what} {species}")
-        if value < 0:
-            raise RegimecheckError(f"--{what} {item!r}: the density must be >= 0")
-        out[species.strip()] = check_plausible(value, "density", density, f"--{what} {species}")
+        species = species.strip()
+        if species in out:
+            raise RegimecheckError(f"--{what} {item!r}: {species} is given twice; give each "
+                                   "species once (add the densities if both are meant)")
+        out[species] = _quantity(density, "density", f"--{what} {species}")
     return out
 
 
@@ -166,22 +197,28 @@ def _render(result, code, args) -> str:
     return stream.getvalue()
 
 
-def _report(result, args) -> int:
+def _protected(config, result=None) -> list:
+    """Every file this run read: its inputs, the settings file, and each pyproject.toml
+    the settings search may read (from here upward)."""
+    here = Path.cwd()
+    files = list(result.files_read) if result is not None else []
+    files.append(config.source if config is not None else None)
+    return files + [folder / "pyproject.toml" for folder in (here, *here.parents)]
+
+
+def _report(result, args, config) -> int:
     from .report.check_report import render_console, summary_line
+    from .report.safe_text import visible
 
     code = _exit_code(result, args)
     output = getattr(args, "output", None)
     if output:
-        target = Path(output)
-        inputs = {Path(p).resolve() for p in getattr(args, "paths", [])}
-        if target.resolve() in inputs:
-            raise RegimecheckError(f"--output {output}: that is an input file; name another "
-                                   "file (inputs are never overwritten)")
-        try:
-            target.write_text(_render(result, code, args).rstrip("\n") + "\n", encoding="utf-8")
-        except OSError as exc:
-            raise RegimecheckError(f"--output {output}: cannot write ({exc.strerror})") from None
-        print(f"{summary_line(result)} Report: {output}", file=sys.stderr)
+        from .report.output_file import refuse_inputs, write_atomically
+
+        refuse_inputs(output, _protected(config, result))
+        text = _render(result, code, args).rstrip("\n") + "\n"     # complete before writing
+        write_atomically(output, text.encode("utf-8", errors="backslashreplace"))
+        print(visible(f"{summary_line(result)} Report: {output}"), file=sys.stderr)
     elif args.format != "console":
         print(_render(result, code, args))
     elif sys.stdout.isatty():
@@ -189,6 +226,14 @@ def _report(result, args) -> int:
     else:
         render_console(result, stream=sys.stdout)
     return code
+
+
+def _choose_format(args) -> None:
+    """--format, else the --output file's suffix, else the console."""
+    if hasattr(args, "format") and args.format is None:
+        from .report.output_file import format_for
+
+        args.format = (format_for(args.output) if args.output else None) or "console"
 
 
 def _settings(args):
@@ -208,7 +253,7 @@ def _cmd_check(args) -> int:
     with _sweep_progress() as progress:
         result = check_paths(args.paths, config=config, skip_unrelated=args.skip_unrelated,
                              progress=progress)
-    return _report(result, args)
+    return _report(result, args, config)
 
 
 class _sweep_progress:
@@ -248,7 +293,7 @@ def _cmd_point(args) -> int:
     from .engine.run import check_calculations
     from .inputs.calculation_file import ASSUMPTIONS, Calculation
     from .inputs.material_catalog import resolve_material
-    from .inputs.quantities import check_plausible, parse_quantity, parse_temperature
+    from .inputs.quantities import check_plausible, parse_temperature
 
     material = resolve_material(args.material)
     T = check_plausible(parse_temperature(args.temperature, "--temperature"), "temperature",
@@ -258,9 +303,9 @@ def _cmd_point(args) -> int:
         material.dopant(species)
     structure = {"dim": float(args.dimensionality)}
     if args.field:
-        structure["field"] = parse_quantity(args.field, "field", "--field")
+        structure["field"] = _quantity(args.field, "field", "--field")
     if args.length:
-        structure["L"] = parse_quantity(args.length, "length", "--length")
+        structure["L"] = _quantity(args.length, "length", "--length")
     calc = Calculation(name=f"{material.name} at {T:.2f} K", source="(command line)", line=0,
                        material=material, temperature=T, donors=donors, acceptors=acceptors,
                        band_gap_narrowing=args.narrowing, structure=structure,
@@ -271,7 +316,8 @@ def _cmd_point(args) -> int:
     config = _settings(args)
     rules = load_rules()
     check_rule_ids(config, [rule.id for rule in rules])
-    return _report(check_calculations([calc], configured(rules, config), config=config), args)
+    return _report(check_calculations([calc], configured(rules, config), config=config), args,
+                   config)
 
 
 def _cmd_rules(_args) -> int:
@@ -357,14 +403,14 @@ def _plot_format(output):
     return suffix
 
 
-def _save(fig, output):
+def _save(fig, output, config=None, result=None):
+    from .report.output_file import refuse_inputs, write_atomically
     from .report.plots import render
+    from .report.safe_text import visible
 
-    try:
-        Path(output).write_bytes(render(fig, _plot_format(output)))
-    except OSError as exc:
-        raise RegimecheckError(f"--output {output}: cannot write ({exc.strerror})") from None
-    print(f"wrote {output}", file=sys.stderr)
+    refuse_inputs(output, _protected(config, result))
+    write_atomically(output, render(fig, _plot_format(output)))
+    print(visible(f"wrote {output}"), file=sys.stderr)
 
 
 def _cmd_map(args) -> int:
@@ -372,17 +418,19 @@ def _cmd_map(args) -> int:
     from .engine.run import check_paths
     from .inputs.material_catalog import resolve_material
     from .report.plots import draw_map
+    from .report.safe_text import visible
 
     _plot_format(args.output)
     doping = tuple(v * 1e6 for v in _range(args.doping_range, "--doping-range", 1e8, 1e23))
     temperatures = _range(args.temperature_range, "--temperature-range", 1.0, 3000.0)
     if not 10 <= args.resolution <= 1000:
         raise RegimecheckError("--resolution must be from 10 to 1000")
-    groups, errors = {}, []
+    groups, errors, config, result = {}, [], None, None
     if args.paths:
         from .inputs.config import load_config
 
-        result = check_paths(args.paths, config=load_config(None))
+        config = load_config(None)
+        result = check_paths(args.paths, config=config)
         groups, errors = map_groups(result), result.input_errors
     if args.material:
         material = resolve_material(args.material)
@@ -397,14 +445,17 @@ def _cmd_map(args) -> int:
         listed = ", ".join(f"{name} {sp}" for name, sp in groups)
         raise RegimecheckError(f"the files hold several materials and dopants ({listed}); "
                                "choose one with --material and --dopant")
+    elif result is not None and result.reports:
+        raise RegimecheckError("no calculation of the files is doped, so none has a place on "
+                               "a doping axis; give --material and --dopant")
     else:
         raise RegimecheckError("give --material and --dopant, or calculation files")
     points = groups.get((material.name, species), (None, []))[1]
     grid = regime_grid(material, species, doping, temperatures,
                        (args.resolution, args.resolution))
-    _save(draw_map(grid, points), args.output)
+    _save(draw_map(grid, points), args.output, config, result)
     for message in errors:
-        print(f"input error: {message}", file=sys.stderr)
+        print(visible(f"input error: {message}"), file=sys.stderr)
     return EXIT_INPUT if errors else EXIT_OK
 
 
@@ -436,17 +487,39 @@ def _cmd_materials(_args) -> int:
 
 
 def main(argv=None) -> int:
-    args = _parser().parse_args(argv)
-    handler = {"check": _cmd_check, "point": _cmd_point, "state": _cmd_state,
-               "materials": _cmd_materials, "rules": _cmd_rules, "symbols": _cmd_symbols,
-               "map": _cmd_map, "curve": _cmd_curve,
-               "explain": _cmd_explain}[args.command]
+    import warnings
+
+    for stream in (sys.stdout, sys.stderr):     # a character the terminal cannot show
+        if hasattr(stream, "reconfigure"):      # is written as an escape, never a crash
+            stream.reconfigure(errors="backslashreplace")
+    with warnings.catch_warnings():
+        if not os.environ.get("REGIMECHECK_DEBUG"):
+            # numpy's overflow / invalid-value warnings are not for the reader: the
+            # results are checked and a NaN or infinity is reported as such
+            warnings.simplefilter("ignore", RuntimeWarning)
+        return _run(argv)
+
+
+def _run(argv) -> int:
+    from .report.safe_text import visible
+
     try:
+        args = _parser().parse_args(argv)
+        _choose_format(args)
+        handler = {"check": _cmd_check, "point": _cmd_point, "state": _cmd_state,
+                   "materials": _cmd_materials, "rules": _cmd_rules, "symbols": _cmd_symbols,
+                   "map": _cmd_map, "curve": _cmd_curve,
+                   "explain": _cmd_explain}[args.command]
         code = handler(args)
         sys.stdout.flush()          # a closed pipe shows here, not at interpreter exit
         return code
+    except SystemExit as exc:       # argparse: --help, --version, usage errors
+        return exc.code or 0
+    except KeyboardInterrupt:
+        print("regimecheck: interrupted", file=sys.stderr)
+        return EXIT_INTERRUPTED
     except RegimecheckError as exc:
-        print(f"regimecheck: error: {exc}", file=sys.stderr)
+        print(visible(f"regimecheck: error: {exc}"), file=sys.stderr)
         return EXIT_INPUT
     except BrokenPipeError:
         # the reader stopped early (e.g. `| head`): no error message, the shell's code
@@ -455,8 +528,9 @@ def main(argv=None) -> int:
     except Exception as exc:  # a bug of ours, not the user's input
         if os.environ.get("REGIMECHECK_DEBUG"):
             raise
-        print(f"regimecheck: internal error ({type(exc).__name__}: {exc}); please report it. "
-              "Set REGIMECHECK_DEBUG=1 to see the traceback.", file=sys.stderr)
+        print(visible(f"regimecheck: internal error ({type(exc).__name__}: {exc}); please "
+                      "report it. Set REGIMECHECK_DEBUG=1 to see the traceback."),
+              file=sys.stderr)
         return EXIT_INTERNAL
 
 

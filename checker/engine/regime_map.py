@@ -79,20 +79,40 @@ def map_groups(result) -> dict:
     groups = {}
     for report in result.reports:
         calc = report.calc
-        if report.error or not (calc.donors or calc.acceptors):
+        if report.error:
             continue
-        donor = sum(calc.donors.values()) >= sum(calc.acceptors.values())
-        species_map = calc.donors if donor else calc.acceptors
-        species = max(species_map, key=species_map.get)
+        spans = {axis.key: (float(axis.values[0]), float(axis.values[-1]))
+                 for axis in calc.sweep}
+        species, density = _map_dopant(calc, spans)
+        if species is None:
+            continue                  # undoped everywhere: no place on a doping axis
         active = [f.severity for f in report.findings if not f.waived]
         worst = max(active, key=SEVERITY_RANK.get) if active else None
-        net = abs(sum(calc.donors.values()) - sum(calc.acceptors.values()))
-        point = MapPoint(calc.name, net or max(species_map.values()), calc.temperature, worst)
-        for axis in calc.sweep:
-            ends = (float(axis.values[0]), float(axis.values[-1]))
-            if axis.key == "T":
+        point = MapPoint(calc.name, density, calc.temperature, worst)
+        for key, ends in spans.items():
+            if key == "T":
                 point.T_span = ends
             else:
                 point.doping_span = ends
         groups.setdefault((calc.material.name, species), (calc.material, []))[1].append(point)
     return groups
+
+
+def _map_dopant(calc, spans):
+    """(species, density in m^-3) that places ``calc`` on a map: the majority dopant
+    (the larger total, donors on a tie) and the net doping, or that dopant's density
+    where the net is zero; (None, 0) when no dopant is above zero anywhere.  A swept
+    density takes part with the larger end of its sweep."""
+    def above_zero(group, densities):
+        peaks = {sp: max(value, *spans.get((group, sp), (value,)))
+                 for sp, value in densities.items()}
+        return {sp: v for sp, v in peaks.items() if v > 0}
+
+    donors, acceptors = above_zero("donors", calc.donors), above_zero("acceptors", calc.acceptors)
+    if not (donors or acceptors):
+        return None, 0.0
+    total_donors, total_acceptors = sum(calc.donors.values()), sum(calc.acceptors.values())
+    majority = donors if donors and (total_donors >= total_acceptors or not acceptors) \
+        else acceptors
+    species = max(majority, key=majority.get)
+    return species, abs(total_donors - total_acceptors) or majority[species]

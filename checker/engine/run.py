@@ -32,6 +32,7 @@ class RunResult:
     input_errors: list
     rules: tuple
     notes: list = field(default_factory=list)     # run-level notes (configuration waivers)
+    files_read: list = field(default_factory=list)   # every input file (and settings file)
 
     def active_findings(self):
         return [f for r in self.reports for f in r.findings if not f.waived]
@@ -51,9 +52,24 @@ class RunResult:
 def expand_paths(paths, config=None) -> tuple[list, list[str]]:
     """(path, named on the command line) of the files named directly, plus every file
     under named directories that the configuration's file patterns select and its
-    exclude patterns do not."""
+    exclude patterns do not.  Each file once, however often it is named (directly, in
+    a directory, through a link); named directly anywhere counts as named."""
     config = config or Config()
-    files, errors = [], []
+    files, errors, seen = [], [], {}
+
+    def add(path, explicit):
+        try:
+            info = path.stat()
+            key = (info.st_dev, info.st_ino)
+        except OSError:         # the reader will say why it cannot be read
+            key = str(path.resolve())
+        if key in seen:
+            first = seen[key]
+            files[first] = (files[first][0], files[first][1] or explicit)
+            return
+        seen[key] = len(files)
+        files.append((str(path), explicit))
+
     for text in paths:
         path = Path(text)
         if path.is_dir():
@@ -62,9 +78,10 @@ def expand_paths(paths, config=None) -> tuple[list, list[str]]:
             if not found:
                 errors.append(f"{text}: the directory holds no file to check "
                               f"({', '.join(config.file_patterns)})")
-            files.extend((str(p), False) for p in found)
+            for p in found:
+                add(p, False)
         elif path.exists():
-            files.append((str(path), True))
+            add(path, True)
         else:
             errors.append(f"{text}: no such file or directory")
     return files, errors
@@ -202,4 +219,6 @@ def check_paths(paths, rules=None, config=None, skip_unrelated=False,
         read = read_input(path, explicit and not skip_unrelated, config.columns)
         calculations.extend(read.calculations)
         errors.extend(read.errors)
-    return check_calculations(calculations, rules, errors, config, progress)
+    result = check_calculations(calculations, rules, errors, config, progress)
+    result.files_read = [path for path, _ in files] + ([config.source] if config.source else [])
+    return result

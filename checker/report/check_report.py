@@ -10,6 +10,7 @@ import json
 from ..engine.evaluate import display
 from ..engine.vocabulary import DISPLAY_UNITS
 from . import DISCLAIMER
+from .safe_text import visible, visible_data
 from .state_report import ROWS
 
 JSON_FORMAT = "regimecheck-report/1"
@@ -51,7 +52,7 @@ class _PlainText:
         self.parts = [text]
 
     def append(self, text, style=""):
-        self.parts.append(text)
+        self.parts.append(visible(text))
 
     @property
     def plain(self):
@@ -71,19 +72,23 @@ def render_console(result, console=None, stream=None) -> None:
         Text, width = _PlainText, PLAIN_WIDTH
         emit = lambda text: stream.write(text.plain)
     else:
-        from rich.text import Text
+        from rich.text import Text as RichText
+
+        class Text(RichText):       # user text reaches the terminal escaped
+            def append(self, text, style=None):
+                return super().append(visible(text) if isinstance(text, str) else text, style)
 
         width = max(console.width, 60)
         emit = lambda text: console.print(text, end="", highlight=False)
 
     def add(text, line, style="", indent=8):
-        for part in textwrap.wrap(line, width - indent, break_on_hyphens=False) or [""]:
+        for part in textwrap.wrap(visible(line), width - indent, break_on_hyphens=False) or [""]:
             text.append(" " * indent + part + "\n", style=style)
 
     for report in result.reports:
         calc = report.calc
         out = Text()
-        title = f"── {calc.name} "
+        title = f"── {' '.join(visible(calc.name).split())} "
         out.append(title + "─" * max(width - len(title), 3) + "\n", style="bold")
         point = "sweep" if calc.sweep else \
             f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}"
@@ -235,7 +240,7 @@ def render_json(result, exit_code: int) -> str:
             "error": report.error,
         })
     counts = result.counts()
-    return json.dumps({
+    return json.dumps(visible_data({
         "format": JSON_FORMAT,
         "notice": DISCLAIMER,
         "calculations": calculations,
@@ -244,4 +249,4 @@ def render_json(result, exit_code: int) -> str:
         "summary": {"calculations": len(result.reports), "findings": counts,
                     "input_errors": len(result.input_errors), "worst": result.worst(),
                     "exit_code": exit_code},
-    }, indent=2, ensure_ascii=False)
+    }), indent=2, ensure_ascii=False)

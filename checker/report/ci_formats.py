@@ -22,6 +22,7 @@ from xml.etree import ElementTree as ET
 from .. import __version__
 from ..engine.evaluate import SEVERITY_RANK, display
 from . import DISCLAIMER
+from .safe_text import visible, visible_data
 
 SARIF_SCHEMA = "https://json.schemastore.org/sarif-2.1.0.json"
 SARIF_LEVEL = {"info": "note", "warning": "warning", "error": "error"}
@@ -103,7 +104,7 @@ def render_sarif(result, exit_code: int) -> str:
             "properties": {"notice": DISCLAIMER, "notes": result.notes},
         }],
     }
-    return json.dumps(log, indent=2, ensure_ascii=False)
+    return json.dumps(visible_data(log), indent=2, ensure_ascii=False)
 
 
 def render_junit(result, exit_code: int, fail_on: str) -> str:
@@ -164,4 +165,6 @@ def render_junit(result, exit_code: int, fail_on: str) -> str:
     for key, value in totals.items():
         root.set(key, str(value))
     ET.indent(root)
-    return '<?xml version="1.0" encoding="UTF-8"?>\n' + ET.tostring(root, encoding="unicode")
+    # ElementTree writes control characters as they are, which XML 1.0 forbids
+    xml = visible(ET.tostring(root, encoding="unicode"))
+    return '<?xml version="1.0" encoding="UTF-8"?>\n' + xml

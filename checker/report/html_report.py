@@ -15,6 +15,7 @@ import re
 from ..engine.evaluate import display
 from . import DISCLAIMER
 from .check_report import STATE_ROWS, formula_lines, summary_line, sweep_axis_text
+from .safe_text import visible
 
 MAP_RESOLUTION = 90
 MAPS_PER_CALCULATION = 40      # above this many calculations: one map per material and dopant
@@ -201,4 +202,5 @@ def render_html(result, exit_code: int, maps: bool = True) -> str:
     for note in result.notes:
         parts.append(f'<p class="meta">note: {_text(note)}</p>')
     parts.append(f'<p class="notice">{_text(DISCLAIMER)}</p></body></html>')
-    return "\n".join(p for p in parts if p)
+    # after escaping: no character XML forbids or a terminal acts on survives
+    return visible("\n".join(p for p in parts if p))

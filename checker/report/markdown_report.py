@@ -6,22 +6,43 @@ with what each embodies.  The screening-check sentence closes it, once.
 """
 from __future__ import annotations
 
+import re
+
 from ..engine.evaluate import display
 from . import DISCLAIMER
 from .check_report import doping_text, formula_lines, summary_line, sweep_axis_text
+from .safe_text import visible
+
+# Markdown would act on these (HTML tags, entities, links, emphasis, code, table cells)
+_MARKUP = re.compile(r"([\\`*_\[\]<>&|!~#])")
 
 
-def _cell(text: str) -> str:
-    return " ".join(str(text).split()).replace("|", "\\|")
+def _one_line(text) -> str:
+    return " ".join(visible(text).split())
+
+
+def _cell(text) -> str:
+    """User text as inert Markdown: one line, every markup character escaped."""
+    return _MARKUP.sub(r"\\\1", _one_line(text))
+
+
+def _code(text) -> str:
+    """User text as a code span (shown verbatim; a fence longer than any backtick run
+    inside, and | escaped, which a table cell needs even in code)."""
+    text = _one_line(text).replace("|", "\\|")
+    fence = "`" * (max((len(run) for run in re.findall("`+", text)), default=0) + 1)
+    pad = " " if text.startswith("`") or text.endswith("`") else ""
+    return f"{fence}{pad}{text}{pad}{fence}"
 
 
 def _corrections(f) -> str:
-    return "<br>".join(f"{c.label}: {display(c.stated, c.unit)} → {display(c.corrected, c.unit)} "
-                       f"({c.error_text()})" for c in f.corrections) or "–"
+    return "<br>".join(_cell(f"{c.label}: {display(c.stated, c.unit)} → "
+                             f"{display(c.corrected, c.unit)} ({c.error_text()})")
+                       for c in f.corrections) or "–"
 
 
 def render_markdown(result, exit_code: int) -> str:
-    lines = ["## regimecheck review", "", summary_line(result), ""]
+    lines = ["## regimecheck review", "", _cell(summary_line(result)), ""]
     findings = [(r, f) for r in result.reports for f in r.findings]
     if findings:
         lines += ["| severity | rule | where | finding | stated → corrected |",
@@ -29,8 +50,8 @@ def render_markdown(result, exit_code: int) -> str:
         for report, f in findings:
             severity = f"waived ({_cell(f.waived)})" if f.waived else f.severity
             column = f" ({_cell(f.column)})" if f.column else ""
-            lines.append(f"| {severity} | {f.rule} | `{f.file}:{f.line}`{column} | "
-                         f"**{_cell(f.title)}.** {_cell(f.message)} | {_cell(_corrections(f))} |")
+            lines.append(f"| {severity} | {_cell(f.rule)} | {_code(f'{f.file}:{f.line}')}{column} | "
+                         f"**{_cell(f.title)}.** {_cell(f.message)} | {_corrections(f)} |")
         lines.append("")
     else:
         lines += ["No assumption leaves its regime.", ""]
@@ -38,35 +59,36 @@ def render_markdown(result, exit_code: int) -> str:
         calc = report.calc
         lines.append(f"### {_cell(calc.name)}")
         lines.append("")
-        lines.append(f"`{calc.source}:{calc.line}` · {calc.material.name} · "
-                     f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}")
+        lines.append(f"{_code(f'{calc.source}:{calc.line}')} · " + _cell(
+            f"{calc.material.name} · {calc.temperature:.2f} K · "
+            f"{doping_text(calc.donors, calc.acceptors)}"))
         lines.append("")
         if report.error:
             lines += [f"Not checked: {_cell(report.error)}", ""]
             continue
         state = report.state
         if report.sweep:
-            lines.append(f"Sweep of {report.sweep['points']} points: " + " × ".join(
-                sweep_axis_text(label, axis) for label, axis in report.sweep["axes"]) + ".")
+            lines.append(_cell(f"Sweep of {report.sweep['points']} points: " + " × ".join(
+                sweep_axis_text(label, axis) for label, axis in report.sweep["axes"]) + "."))
         else:
-            lines.append(f"Regime **{state['regime']}**; E_F − E_C = "
-                         f"{state['EF_minus_EC_eV']:+.4f} eV (η_n = {state['eta_n']:+.3f}); "
-                         f"n = {state['n_cm3']:.4g} cm⁻³, p = {state['p_cm3']:.4g} cm⁻³; "
-                         f"n_i = {state['ni_cm3']:.4g} cm⁻³.")
+            lines.append(f"Regime **{_cell(state['regime'])}**; " + _cell(
+                f"E_F − E_C = {state['EF_minus_EC_eV']:+.4f} eV (η_n = {state['eta_n']:+.3f}); "
+                f"n = {state['n_cm3']:.4g} cm⁻³, p = {state['p_cm3']:.4g} cm⁻³; "
+                f"n_i = {state['ni_cm3']:.4g} cm⁻³."))
         lines.append("")
         if report.formulas:
             lines += ["| formula | line | what it is | here |", "|---|---|---|---|"]
             for r in report.formulas:
                 what = formula_lines(r)
                 here = what[1] if len(what) > 1 else "–"
-                lines.append(f"| `{_cell(r.text)}` | {r.line} | {_cell(what[0])} | "
+                lines.append(f"| {_code(r.text)} | {r.line} | {_cell(what[0])} | "
                              f"{_cell(here)} |")
             lines.append("")
         for note in report.notes:
             lines += [f"> note: {_cell(note)}", ""]
     if result.input_errors:
         lines += ["### Input errors", ""]
-        lines += [f"- `{_cell(message)}`" for message in result.input_errors]
+        lines += [f"- {_code(message)}" for message in result.input_errors]
         lines.append("")
     for note in result.notes:
         lines += [f"> note: {_cell(note)}", ""]

@@ -10,6 +10,7 @@ import io
 import numpy as np
 
 from ..physics.carriers import DEGENERATE_ETA, IONIZED_FRACTION, REGIMES
+from .safe_text import visible
 
 COLOURS = {"extrinsic": "#d9ead3", "incomplete ionization": "#cfe2f3", "intrinsic": "#fff2cc",
            "degenerate": "#f9cb9c", "metallic": "#d9d2e9"}
@@ -35,6 +36,11 @@ def _figure(size, right=0.95):
     fig = Figure(figsize=size)
     fig.subplots_adjust(left=0.1, right=right, bottom=0.16, top=0.92)
     return fig
+
+
+def _label(text) -> str:
+    """User text (material, dopant) on a figure: visible, and a '$' never starts mathtext."""
+    return visible(text).replace("$", r"\$")
 
 
 def render(fig, fmt: str) -> bytes:
@@ -132,10 +138,11 @@ def draw_map(grid, points=(), title=None, size=(7.8, 5.0), notice=True):
     ax.xaxis.set_minor_locator(NullLocator())
     ax.set_xlim(x[0], x[-1])
     ax.set_ylim(grid.T[0], grid.T[-1])
-    ax.set_xlabel(f"{grid.species} {'donor' if grid.kind == 'donor' else 'acceptor'} "
+    ax.set_xlabel(f"{_label(grid.species)} {'donor' if grid.kind == 'donor' else 'acceptor'} "
                   "density (cm⁻³)")
     ax.set_ylabel("temperature (K)")
-    ax.set_title(title or f"{grid.material.name}: regimes of {grid.species} doping", fontsize=10)
+    ax.set_title(_label(title or f"{grid.material.name}: regimes of {grid.species} doping"),
+                 fontsize=10)
     if notice:
         _notice(fig)
     return fig
@@ -172,7 +179,8 @@ def draw_eta_curve(material, species, density, temperatures, title=None, size=(6
     ax.set_xlabel("temperature (K)")
     ax.set_ylabel(f"η_{carrier} = (E_F − E_C)/kT" if carrier == "n" else "η_p = (E_V − E_F)/kT")
     ax.set_xlim(T[0], T[-1])
-    ax.set_title(title or f"{material.name}, {species} {density * 1e-6:.3g} cm⁻³", fontsize=10)
+    ax.set_title(_label(title or f"{material.name}, {species} {density * 1e-6:.3g} cm⁻³"),
+                 fontsize=10)
     if notice:
         _notice(fig)
     return fig

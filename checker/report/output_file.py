@@ -1,0 +1,88 @@
+"""Writing a report or a figure to ``--output``.
+
+Never over a file the run read (a calculation found by a directory walk, a hard link
+or symlink to one, the settings file), and never half: the whole output is rendered
+first, written to a temporary file beside the target and renamed over it only when
+complete, so an error or Ctrl-C leaves any previous file as it was.
+"""
+from __future__ import annotations
+
+import contextlib
+import os
+import stat
+import tempfile
+from pathlib import Path
+
+from ..errors import InputError
+
+# --output suffix -> report format, when --format is not given
+SUFFIX_FORMATS = {".json": "json", ".md": "markdown", ".markdown": "markdown",
+                  ".sarif": "sarif", ".xml": "junit", ".html": "html", ".htm": "html",
+                  ".txt": "console"}
+
+
+def format_for(output) -> str | None:
+    """The report format a file name asks for (``x.sarif.json`` is SARIF), or None."""
+    name = Path(output).name.lower()
+    if name.endswith(".sarif.json"):
+        return "sarif"
+    return SUFFIX_FORMATS.get(Path(name).suffix)
+
+
+def _identity(path):
+    """(device, inode) of an existing file, else None."""
+    try:
+        info = os.stat(path)
+    except (OSError, ValueError):
+        return None
+    return info.st_dev, info.st_ino
+
+
+def refuse_inputs(output, read, option="--output") -> None:
+    """An InputError when ``output`` is one of the files ``read`` (same resolved path,
+    or the same file by device and inode: a hard link or a symlink to it)."""
+    target = os.path.realpath(output)
+    identity = _identity(output)
+    for path in read:
+        if path is None:
+            continue
+        if os.path.realpath(path) == target or (identity and _identity(path) == identity):
+            raise InputError(f"{option} {output}: that is the input file {path} of this run; "
+                             "name another file (inputs are never overwritten)")
+
+
+def _new_file_mode() -> int:
+    umask = os.umask(0)
+    os.umask(umask)
+    return 0o666 & ~umask
+
+
+def write_atomically(output, data: bytes, option="--output") -> None:
+    """Write ``data`` to ``output`` all at once (through a symlink, to the file it
+    names); an InputError saying why when the file cannot be written."""
+    target = Path(os.path.realpath(output))
+    try:
+        if target.exists() and not target.is_file():
+            if target.is_dir():
+                raise InputError(f"{option} {output}: that is a directory; name a file")
+            with open(target, "wb") as out:        # a pipe or device: cannot be renamed over
+                out.write(data)
+            return
+        mode = stat.S_IMODE(target.stat().st_mode) if target.exists() else _new_file_mode()
+        handle, temporary = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.",
+                                             suffix=".partial")
+    except OSError as exc:
+        raise InputError(f"{option} {output}: cannot write ({exc.strerror})") from None
+    try:
+        with os.fdopen(handle, "wb") as out:
+            out.write(data)
+            out.flush()
+            os.fsync(out.fileno())
+        os.chmod(temporary, mode)
+        os.replace(temporary, target)
+    except BaseException as exc:
+        with contextlib.suppress(OSError):
+            os.unlink(temporary)
+        if isinstance(exc, OSError):
+            raise InputError(f"{option} {output}: cannot write ({exc.strerror})") from None
+        raise
