@@ -9,41 +9,45 @@
     ...
     ```
 
-Every block (backtick or tilde fence, info string starting with ``regimecheck``) is
-read as calculation YAML; several documents per block are allowed.  The blocks are
-parsed with every other line of the memo blanked, so line numbers in findings and
-errors are the memo's own.  Other fenced blocks and the prose are ignored.
+Every fenced block (backtick or tilde fence) whose info string starts with the word
+``regimecheck`` is read as calculation YAML; several documents per block are allowed.
+Blocks are found by a CommonMark parser (markdown-it-py), so a fence inside a list
+item or a ``>`` blockquote counts, and the list indentation or quote markers are
+removed from its lines.  Each block is parsed with every other line of the memo
+blanked, so line numbers in findings and errors are the memo's own; columns count from
+the block's own indentation.  Other fenced blocks and the prose are ignored.
 """
 from __future__ import annotations
-
-import re
 
 from .calculation_file import FileResult, parse_calculations, read_text_file
 
 INFO_STRING = "regimecheck"
 MEMO_SUFFIXES = (".md", ".markdown")
-_OPEN = re.compile(r"^(?P<indent> {0,3})(?P<fence>`{3,}|~{3,})\s*(?P<info>[^`\s]*)")
+# characters YAML takes for line breaks but editors (and Markdown) do not: inside a
+# block they would shift the YAML parser's line numbers away from the memo's
+_YAML_ONLY_BREAKS = str.maketrans({"\x85": " ", "\u2028": " ", "\u2029": " "})
+
+
+def block_texts(text: str) -> list[tuple[int, str]]:
+    """(first content line, 1-based; content with container indentation removed) of
+    each regimecheck block; an unclosed block runs to the end of its container."""
+    from markdown_it import MarkdownIt    # imported only when a memo is read
+
+    blocks = []
+    for token in MarkdownIt("commonmark").parse(text):
+        words = token.info.split() if token.type == "fence" else []
+        if words and words[0].lower() == INFO_STRING and token.map:
+            blocks.append((token.map[0] + 2, token.content.translate(_YAML_ONLY_BREAKS)))
+    return blocks
 
 
 def calculation_blocks(text: str) -> list[tuple[int, int]]:
-    """(first line, last line) of the content of each regimecheck block, 1-based;
-    an unclosed block runs to the end of the memo (CommonMark)."""
-    lines = text.splitlines()
-    blocks, i = [], 0
-    while i < len(lines):
-        match = _OPEN.match(lines[i])
-        if not match:
-            i += 1
-            continue
-        fence = match["fence"]
-        closing = re.compile(rf"^ {{0,3}}{re.escape(fence[0])}{{{len(fence)},}}\s*$")
-        end = i + 1
-        while end < len(lines) and not closing.match(lines[end]):
-            end += 1
-        if match["info"].lower().startswith(INFO_STRING):
-            blocks.append((i + 2, end))
-        i = end + 1
-    return blocks
+    """(first line, last line) of the content of each regimecheck block, 1-based."""
+    out = []
+    for first, content in block_texts(text):
+        lines = content.split("\n")        # only newlines end lines, as in the parser
+        out.append((first, first + len(lines) - 1 - (lines[-1] == "")))
+    return out
 
 
 def read_memo(path, explicit: bool = True) -> FileResult:
@@ -52,12 +56,10 @@ def read_memo(path, explicit: bool = True) -> FileResult:
     text, error = read_text_file(path)
     if error:
         return FileResult(path, [], [error])
-    lines = text.splitlines()
     calculations, errors = [], []
-    for first, last in calculation_blocks(text):
-        # blank everything outside this block so that YAML line numbers are the memo's
-        padded = "\n" * (first - 1) + "\n".join(lines[first - 1:last])
-        result = parse_calculations(padded, path)
+    for first, content in block_texts(text):
+        # blank everything before this block so that YAML line numbers are the memo's
+        result = parse_calculations("\n" * (first - 1) + content, path)
         calculations += result.calculations
         errors += result.errors
     if not calculations and not errors and explicit:

@@ -1,7 +1,8 @@
 """Datasheet and process tables (CSV): one operating point and its measured numbers per row.
 
-Header convention (case and spaces do not matter; a unit may follow in brackets,
-``density [cm-3]``, and then applies to bare numbers in that column):
+Header convention (case and spaces do not matter; a unit may follow in brackets or
+parentheses, ``density [cm-3]``, ``mobility (cm^2/(V*s))``, and then applies to bare
+numbers in that column):
 
     material      built-in material name             (required)
     dopant        dopant species, e.g. P, B, Mg      (required)
@@ -11,25 +12,37 @@ Header convention (case and spaces do not matter; a unit may follow in brackets,
     resistivity, sheet_resistance (with thickness), mobility (of the majority
     carrier the dopant gives), hall_density, diffusivity     (any of them)
     hall_scattering   acoustic | ionized-impurity | neutral-impurity | exponent r
+    notes, comment, remarks   free text, not read
 
 A few other spellings are accepted (see ``ALIASES``); any other header can be mapped
-with ``[tool.regimecheck.columns]`` (``resistivity = "Rho (ohm cm)"``).  Each row
-becomes a calculation whose stated numbers the rules check; a finding names the row's
-line and the column.  A bad cell is an input error naming file, line and column, and
-only that row is skipped.
+with ``[tool.regimecheck.columns]`` (``resistivity = "Rho (ohm cm)"``) or left out with
+``ignore = ["Supplier"]`` there.  A header that is none of these is an input error
+naming the column (the other columns are still checked).  Each row becomes a
+calculation whose stated numbers the rules check; a finding names the physical line
+where the row starts and the column.  A bad cell is an input error naming file, line
+and column, and only that row is skipped.
+
+Tables are read as a stream; a table of more than ``MAX_TABLE_ROWS`` rows or
+``MAX_TABLE_BYTES`` bytes is refused as a whole (every row is kept in memory until the
+run is reported, about 5 kB a row).
 """
 from __future__ import annotations
 
 import csv
-import io
+import difflib
+import itertools
+import math
+import os
 import re
 
 from ..errors import InputError
-from .calculation_file import Calculation, FileResult, _hall_exponent, read_text_file
+from .calculation_file import Calculation, FileResult, _hall_exponent
 from .material_catalog import resolve_material
 from .quantities import check_plausible, parse_quantity, parse_temperature
 
 TABLE_SUFFIXES = (".csv",)
+MAX_TABLE_ROWS = 100_000
+MAX_TABLE_BYTES = 64 * 1024 * 1024
 REQUIRED = ("material", "dopant", "density", "temperature")
 # our column key -> (stated engine name for donors, for acceptors, dimension)
 MEASURED = {
@@ -41,6 +54,9 @@ MEASURED = {
 }
 OPTIONAL = ("name", "thickness", "hall_scattering")
 KEYS = REQUIRED + tuple(MEASURED) + OPTIONAL
+# columns whose unit is checked once, on the header, rather than on every row
+DIMENSIONS = {"density": "density", "thickness": "length",
+              **{key: spec[2] for key, spec in MEASURED.items()}}
 ALIASES = {
     "species": "dopant", "impurity": "dopant", "doping": "density",
     "dopant_density": "density", "concentration": "density", "temp": "temperature",
@@ -51,28 +67,80 @@ ALIASES = {
     "diffusion_coefficient": "diffusivity", "label": "name", "sample": "name",
     "thick": "thickness", "scattering": "hall_scattering",
 }
-_HEADER = re.compile(r"^\s*(?P<name>[^\[\(]*?)\s*(?:[\[\(](?P<unit>[^\]\)]*)[\]\)])?\s*$")
+NOTE_COLUMNS = ("note", "notes", "comment", "comments", "remark", "remarks")
+IGNORE = "ignore"          # the key of [tool.regimecheck.columns] listing headers left out
+_NUMBER = re.compile(r"[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?")
+_CLOSING = {"]": "[", ")": "("}
+
+
+def split_header(raw: str) -> tuple[str, str | None]:
+    """(name, unit or None) of a header such as ``mobility [cm^2/(V*s)]``: the unit is
+    the balanced bracket or parenthesis group that ends the header."""
+    text = raw.strip()
+    if not text or text[-1] not in _CLOSING:
+        return text, None
+    close, opening, depth = text[-1], _CLOSING[text[-1]], 0
+    for index in range(len(text) - 1, -1, -1):
+        depth += (text[index] == close) - (text[index] == opening)
+        if depth == 0:
+            name = text[:index].strip()
+            if name and all(name.count(o) == name.count(c) for c, o in _CLOSING.items()):
+                return name, text[index + 1:-1].strip()
+            break
+    return text, None          # no name, or unbalanced: the whole text is the name
 
 
 def _normal(text: str) -> str:
     return re.sub(r"[\s\-]+", "_", text.strip().lower())
 
 
-def _columns(header: list, where: str, mapping: dict) -> dict:
-    """our key -> (column index, header text, unit or None)."""
-    mapped = {_normal(theirs): ours for ours, theirs in (mapping or {}).items()}
-    out = {}
+def _known_header(raw: str, mapped: dict, ignored: set):
+    """Our key for a header, "" for a column left out, None when it is unknown."""
+    name, unit = split_header(raw)
+    for candidate in (_normal(raw), _normal(name)):
+        if candidate in ignored or candidate in NOTE_COLUMNS:
+            return "", unit
+        if candidate in mapped:
+            return mapped[candidate], unit
+    key = ALIASES.get(_normal(name), _normal(name))
+    return (key if key in KEYS else None), unit
+
+
+def _unknown_column(raw: str, position: int, where: str) -> str:
+    names = list(KEYS) + list(ALIASES)
+    close = difflib.get_close_matches(_normal(split_header(raw)[0]), names, n=3, cutoff=0.6)
+    hint = (f"; closest known names: {', '.join(close)}" if close
+            else f"; known names: {', '.join(KEYS)}")
+    return (f"{where}: column {position} {raw.strip()!r} is not a column regimecheck "
+            f"reads{hint}. Rename it, map it in [tool.regimecheck.columns] "
+            f"(<our name> = {raw.strip()!r}), or leave it out with "
+            f"{IGNORE} = [{raw.strip()!r}] there")
+
+
+def _columns(header: list, where: str, mapping: dict) -> tuple[dict, list]:
+    """(our key -> (column index, header text, unit or None), errors for headers the
+    reader cannot map).  A missing required column or a bad unit refuses the table."""
+    mapping = dict(mapping or {})
+    ignored = {_normal(h) for h in mapping.pop(IGNORE, ())}
+    mapped = {_normal(theirs): ours for ours, theirs in mapping.items()}
+    out, unknown = {}, []
     for index, raw in enumerate(header):
-        match = _HEADER.match(raw or "")
-        name = _normal(match["name"]) if match else _normal(raw or "")
-        key = mapped.get(_normal(raw or ""), mapped.get(name, ALIASES.get(name, name)))
-        if key in KEYS:
-            if key in out:
-                raise InputError(f"{where}: two columns give {key!r} ({out[key][1]!r} and "
-                                 f"{raw!r}); keep one or map them")
-            # "ohm cm" in a header means ohm*cm
-            unit = re.sub(r"(?<=[\w)])\s+(?=[\w(])", "*", (match["unit"] or "").strip())
-            out[key] = (index, raw.strip(), unit or None)
+        if not (raw or "").strip():
+            continue                      # spreadsheet exports end rows with separators
+        key, unit = _known_header(raw, mapped, ignored)
+        if key is None:
+            unknown.append(_unknown_column(raw, index + 1, where))
+            continue
+        if not key:
+            continue
+        if key in out:
+            raise InputError(f"{where}: two columns give {key!r} ({out[key][1]!r} and "
+                             f"{raw.strip()!r}); keep one or map them")
+        # "ohm cm" in a header means ohm*cm
+        unit = re.sub(r"(?<=[\w)])\s+(?=[\w(])", "*", unit or "") or None
+        if unit and key in DIMENSIONS:
+            parse_quantity(f"1 {unit}", DIMENSIONS[key], f"{where}: column {raw.strip()!r}")
+        out[key] = (index, raw.strip(), unit)
     missing = [k for k in REQUIRED if k not in out]
     if missing:
         raise InputError(f"{where}: the header lacks {', '.join(missing)}; columns are "
@@ -81,51 +149,93 @@ def _columns(header: list, where: str, mapping: dict) -> dict:
     if not any(k in out for k in MEASURED):
         raise InputError(f"{where}: no measured column to check; give at least one of "
                          f"{', '.join(MEASURED)}")
-    return out
+    return out, unknown
 
 
 def _cell(row, column):
     index, header, unit = column
     text = row[index].strip() if index < len(row) else ""
-    if text and unit and re.fullmatch(r"[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?", text):
+    if text and unit and _NUMBER.fullmatch(text):
         text = f"{text} {unit}"
     return text
+
+
+class _CountedLines:
+    """The lines of a file, counted, so that a row's first physical line is known even
+    when a quoted cell spans several lines."""
+
+    def __init__(self, handle):
+        self.handle, self.count = handle, 0
+
+    def __iter__(self):
+        return self
+
+    def __next__(self):
+        line = next(self.handle)
+        self.count += 1
+        return line
+
+    def header(self):
+        """The first line that is neither blank nor a # comment (None: no such line)."""
+        for line in self:
+            if line.strip() and not line.lstrip().startswith("#"):
+                return line
+        return None
 
 
 def read_table(path, mapping=None) -> FileResult:
     """Every row of a CSV table as a calculation; bad rows are errors, the others load."""
     path = str(path)
-    text, error = read_text_file(path)
-    if error:
-        return FileResult(path, [], [error])
-    text = text.lstrip("\ufeff")
-    lines = text.splitlines()
-    first = next((i for i, line in enumerate(lines) if line.strip()
-                  and not line.lstrip().startswith("#")), None)
-    if first is None:
-        return FileResult(path, [], [f"{path}: the table is empty"])
     try:
-        dialect = csv.Sniffer().sniff(lines[first], delimiters=",;\t")
-    except csv.Error:
-        dialect = csv.excel
+        size = os.stat(path).st_size
+        if size > MAX_TABLE_BYTES:
+            return FileResult(path, [], [
+                f"{path}: the table has {size:,} bytes, more than the limit of "
+                f"{MAX_TABLE_BYTES:,} bytes for one table; split it into smaller tables"])
+        with open(path, encoding="utf-8-sig", newline="") as handle:
+            return _read_rows(path, _CountedLines(handle), mapping)
+    except OSError as exc:
+        return FileResult(path, [], [f"{path}: cannot read the file ({exc.strerror})"])
+
+
+def _read_rows(path, lines: _CountedLines, mapping) -> FileResult:
     try:
-        rows = list(csv.reader(io.StringIO("\n".join(lines[first:])), dialect, strict=True))
-    except csv.Error as exc:
-        return FileResult(path, [], [f"{path}: malformed CSV ({exc}); check quotes and "
-                                     "separators"])
-    try:
-        columns = _columns(rows[0], f"{path}:{first + 1}", mapping)
-    except InputError as exc:
-        return FileResult(path, [], [str(exc)])
-    calculations, errors = [], []
-    for offset, row in enumerate(rows[1:], start=1):
-        line = first + offset + 1
-        if not any(cell.strip() for cell in row) or row[0].lstrip().startswith("#"):
-            continue
+        first = lines.header()
+        if first is None:
+            return FileResult(path, [], [f"{path}: the table is empty"])
+        header_line = lines.count
         try:
-            calculations.append(_row(row, columns, path, line))
+            dialect = csv.Sniffer().sniff(first, delimiters=",;\t")
+        except csv.Error:
+            dialect = csv.excel
+        rows = csv.reader(itertools.chain([first], lines), dialect, strict=True)
+        try:
+            columns, errors = _columns(next(rows), f"{path}:{header_line}", mapping)
         except InputError as exc:
-            errors.append(str(exc))
+            return FileResult(path, [], [str(exc)])
+        calculations, count, line = [], 0, header_line
+        while True:
+            line = lines.count + 1            # where the next row starts
+            row = next(rows, None)
+            if row is None:
+                break
+            if not any(cell.strip() for cell in row) or row[0].lstrip().startswith("#"):
+                continue
+            count += 1
+            if count > MAX_TABLE_ROWS:
+                return FileResult(path, [], [
+                    f"{path}:{line}: the table has more than {MAX_TABLE_ROWS:,} rows, the "
+                    "limit of one table; split it into files of at most "
+                    f"{MAX_TABLE_ROWS:,} rows"])
+            try:
+                calculations.append(_row(row, columns, path, line))
+            except InputError as exc:
+                errors.append(str(exc))
+    except csv.Error as exc:
+        return FileResult(path, [], [f"{path}:{line}: malformed CSV ({exc}); check quotes "
+                                     "and separators from this row on"])
+    except UnicodeDecodeError:
+        return FileResult(path, [], [f"{path}: not UTF-8 text; save it as UTF-8"])
     if not calculations and not errors:
         errors.append(f"{path}: the table has a header but no rows")
     return FileResult(path, calculations, errors)
@@ -137,6 +247,12 @@ def _row(row, columns, path, line) -> Calculation:
 
     def cell(key):
         return _cell(row, columns[key]) if key in columns else ""
+
+    def positive(key, dimension):
+        value = parse_quantity(cell(key), dimension, where(key))
+        if value <= 0:
+            raise InputError(f"{where(key)}: {cell(key)!r} must be larger than zero")
+        return check_plausible(value, dimension, cell(key), where(key))
 
     for key in REQUIRED:
         if not cell(key):
@@ -160,22 +276,30 @@ def _row(row, columns, path, line) -> Calculation:
         material=material, temperature=temperature,
         donors=species if donor else {}, acceptors={} if donor else species)
     if cell("hall_scattering"):
-        calc.hall_exponent = _hall_exponent(cell("hall_scattering"), where("hall_scattering"))
+        calc.hall_exponent = _scattering(cell("hall_scattering"), where("hall_scattering"))
     if cell("thickness"):
-        calc.structure["thickness"] = parse_quantity(cell("thickness"), "length",
-                                                     where("thickness"))
+        calc.structure["thickness"] = positive("thickness", "length")
     for key, (for_donors, for_acceptors, dimension) in MEASURED.items():
         if not cell(key):
             continue
-        value = parse_quantity(cell(key), dimension, where(key))
-        if value <= 0:
-            raise InputError(f"{where(key)}: {cell(key)!r} must be larger than zero")
-        check_plausible(value, dimension, cell(key), where(key))
         name = for_donors if donor else for_acceptors
-        calc.stated[name] = value
+        calc.stated[name] = positive(key, dimension)
         calc.lines[name] = line
         calc.columns[name] = columns[key][1]
     if "stated_Rsh" in calc.stated and "thickness" not in calc.structure:
         raise InputError(f"{where('sheet_resistance')}: a sheet resistance needs the layer "
                          "thickness (add a thickness column)")
     return calc
+
+
+def _scattering(text: str, where: str) -> float:
+    """The Hall scattering exponent of a cell; nan and inf are refused here because
+    they are numbers to ``float`` but no exponent."""
+    try:
+        number = float(text)
+    except ValueError:
+        number = 0.0
+    if not math.isfinite(number):
+        raise InputError(f"{where}: {text!r} is not a scattering exponent; write acoustic, "
+                         "ionized-impurity, neutral-impurity or a number r such as -0.5")
+    return _hall_exponent(text, where)
