@@ -179,3 +179,15 @@ def test_table_that_is_not_utf8_is_an_input_error(tmp_path):
     path.write_bytes((HEADER + "B\xe9ta,Si,P,1e16,300 K,0.5\n").encode("latin-1"))
     read = read_table(path)
     assert not read.calculations and read.errors == [f"{path}: not UTF-8 text; save it as UTF-8"]
+
+
+def test_many_unknown_headers_are_named_up_to_a_cap(tmp_path):
+    extra = ",".join(f"extra {i}" for i in range(table.MAX_UNKNOWN_REPORTED + 5))
+    path = tmp_path / "wide.csv"
+    path.write_text(f"material,dopant,density [cm-3],temperature,resistivity [ohm*cm],{extra}\n"
+                    "Si,P,1e16,300 K,0.5\n")
+    read = read_table(path)
+    assert len(read.calculations) == 1
+    assert len(read.errors) == table.MAX_UNKNOWN_REPORTED + 1
+    assert read.errors[0].startswith(f"{path}:1: column 6 'extra 0'")
+    assert read.errors[-1] == f"{path}:1: and 5 more columns regimecheck does not read"

@@ -33,8 +33,8 @@ def block_texts(text: str) -> list[tuple[int, str]]:
     each regimecheck block; an unclosed block runs to the end of its container."""
     from markdown_it import MarkdownIt    # imported only when a memo is read
 
-    blocks = []
-    for token in MarkdownIt("commonmark").parse(text):
+    blocks, parser = [], MarkdownIt("commonmark").disable(["inline", "text_join"])
+    for token in parser.parse(text):     # block structure only: no inline markup needed
         words = token.info.split() if token.type == "fence" else []
         if words and words[0].lower() == INFO_STRING and token.map:
             blocks.append((token.map[0] + 2, token.content.translate(_YAML_ONLY_BREAKS)))

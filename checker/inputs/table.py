@@ -43,6 +43,7 @@ from .quantities import check_plausible, parse_quantity, parse_temperature
 TABLE_SUFFIXES = (".csv",)
 MAX_TABLE_ROWS = 100_000
 MAX_TABLE_BYTES = 64 * 1024 * 1024
+MAX_UNKNOWN_REPORTED = 10      # headers the reader cannot map, each named in an error
 REQUIRED = ("material", "dopant", "density", "temperature")
 # our column key -> (stated engine name for donors, for acceptors, dimension)
 MEASURED = {
@@ -142,6 +143,9 @@ def _columns(header: list, where: str, mapping: dict) -> tuple[dict, list]:
             parse_quantity(f"1 {unit}", DIMENSIONS[key], f"{where}: column {raw.strip()!r}")
         out[key] = (index, raw.strip(), unit)
     missing = [k for k in REQUIRED if k not in out]
+    if len(unknown) > MAX_UNKNOWN_REPORTED:
+        unknown[MAX_UNKNOWN_REPORTED:] = [f"{where}: and {len(unknown) - MAX_UNKNOWN_REPORTED} "
+                                          "more columns regimecheck does not read"]
     if missing:
         raise InputError(f"{where}: the header lacks {', '.join(missing)}; columns are "
                          f"{', '.join(h.strip() for h in header)} (name them as in the README "
