@@ -31,7 +31,6 @@ from __future__ import annotations
 import csv
 import difflib
 import itertools
-import math
 import os
 import re
 
@@ -280,7 +279,7 @@ def _row(row, columns, path, line) -> Calculation:
         material=material, temperature=temperature,
         donors=species if donor else {}, acceptors={} if donor else species)
     if cell("hall_scattering"):
-        calc.hall_exponent = _scattering(cell("hall_scattering"), where("hall_scattering"))
+        calc.hall_exponent = _hall_exponent(cell("hall_scattering"), where("hall_scattering"))
     if cell("thickness"):
         calc.structure["thickness"] = positive("thickness", "length")
     for key, (for_donors, for_acceptors, dimension) in MEASURED.items():
@@ -295,15 +294,3 @@ def _row(row, columns, path, line) -> Calculation:
                          "thickness (add a thickness column)")
     return calc
 
-
-def _scattering(text: str, where: str) -> float:
-    """The Hall scattering exponent of a cell; nan and inf are refused here because
-    they are numbers to ``float`` but no exponent."""
-    try:
-        number = float(text)
-    except ValueError:
-        number = 0.0
-    if not math.isfinite(number):
-        raise InputError(f"{where}: {text!r} is not a scattering exponent; write acoustic, "
-                         "ionized-impurity, neutral-impurity or a number r such as -0.5")
-    return _hall_exponent(text, where)
