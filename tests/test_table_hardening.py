@@ -191,3 +191,12 @@ def test_many_unknown_headers_are_named_up_to_a_cap(tmp_path):
     assert len(read.errors) == table.MAX_UNKNOWN_REPORTED + 1
     assert read.errors[0].startswith(f"{path}:1: column 6 'extra 0'")
     assert read.errors[-1] == f"{path}:1: and 5 more columns regimecheck does not read"
+
+
+def test_misspelt_required_column_is_named_with_its_look_alike(tmp_path):
+    path = tmp_path / "miss.csv"
+    path.write_text("materal,dopant,densty [cm-3],temperature,resistivity\n"
+                    "Si,P,1e16,300 K,1 ohm*cm\n")
+    error, = read_table(path).errors
+    assert error.startswith(f"{path}:1: the header lacks material, density; is 'materal' for "
+                            "material, 'densty [cm-3]' for density misspelt?")

@@ -107,14 +107,27 @@ def _known_header(raw: str, mapped: dict, ignored: set):
 
 
 def _unknown_column(raw: str, position: int, where: str) -> str:
-    names = list(KEYS) + list(ALIASES)
-    close = difflib.get_close_matches(_normal(split_header(raw)[0]), names, n=3, cutoff=0.6)
+    close = difflib.get_close_matches(_normal(split_header(raw)[0]), list(KEYS) + list(ALIASES),
+                                      n=3, cutoff=0.6)
     hint = (f"; closest known names: {', '.join(close)}" if close
             else f"; known names: {', '.join(KEYS)}")
+    ours = ALIASES.get(close[0], close[0]) if close else "<our name>"
     return (f"{where}: column {position} {raw.strip()!r} is not a column regimecheck "
             f"reads{hint}. Rename it, map it in [tool.regimecheck.columns] "
-            f"(<our name> = {raw.strip()!r}), or leave it out with "
+            f"({ours} = {raw.strip()!r}), or leave it out with "
             f"{IGNORE} = [{raw.strip()!r}] there")
+
+
+def _lacking(missing: list, header: list, where: str) -> str:
+    """The message for required columns the header lacks, with look-alike headers."""
+    names = {_normal(split_header(h)[0]): h.strip() for h in header if h and h.strip()}
+    guesses = [f"{names[close[0]]!r} for {key}" for key in missing
+               for close in [difflib.get_close_matches(key, list(names), n=1, cutoff=0.6)]
+               if close]
+    hint = f"; is {', '.join(guesses)} misspelt?" if guesses else ""
+    return (f"{where}: the header lacks {', '.join(missing)}{hint} Columns are "
+            f"{', '.join(h.strip() for h in header)} (name them as in the README table, or "
+            "map them in [tool.regimecheck.columns])")
 
 
 def _columns(header: list, where: str, mapping: dict) -> tuple[dict, list]:
@@ -146,9 +159,7 @@ def _columns(header: list, where: str, mapping: dict) -> tuple[dict, list]:
         unknown[MAX_UNKNOWN_REPORTED:] = [f"{where}: and {len(unknown) - MAX_UNKNOWN_REPORTED} "
                                           "more columns regimecheck does not read"]
     if missing:
-        raise InputError(f"{where}: the header lacks {', '.join(missing)}; columns are "
-                         f"{', '.join(h.strip() for h in header)} (name them as in the README "
-                         "table, or map them in [tool.regimecheck.columns])")
+        raise InputError(_lacking(missing, header, where))
     if not any(k in out for k in MEASURED):
         raise InputError(f"{where}: no measured column to check; give at least one of "
                          f"{', '.join(MEASURED)}")
