@@ -203,7 +203,8 @@ def _protected(config, result=None) -> list:
     here = Path.cwd()
     files = list(result.files_read) if result is not None else []
     files.append(config.source if config is not None else None)
-    return files + [folder / "pyproject.toml" for folder in (here, *here.parents)]
+    upward = (folder / "pyproject.toml" for folder in (here, *here.parents))
+    return files + [path for path in upward if path.is_file()]
 
 
 def _report(result, args, config) -> int:

@@ -138,12 +138,12 @@ def test_a_lone_surrogate_name_replaces_the_previous_report_completely(tmp_path,
     previous.write_text("{}", encoding="utf-8")
     code = main(["check", str(calc), "--format", "json", "--output", str(previous)])
     err = capsys.readouterr().err
-    if code == 2:           # the reader may refuse such a name: then it says where
-        assert "calc.yaml" in err and previous.read_text(encoding="utf-8") == "{}"
-        return
-    assert code == 1, err
-    data = json.loads(previous.read_text(encoding="utf-8"))
-    assert data["calculations"][0]["name"] == r"\ud800"
+    data = json.loads(previous.read_text(encoding="utf-8"))      # complete, not 0 bytes
+    if code == 2:           # the reader refuses such a name, and the report says where
+        assert "calc.yaml:1" in data["input_errors"][0]
+    else:                   # or it is checked and shown escaped
+        assert code == 1, err
+        assert data["calculations"][0]["name"] == r"\ud800"
 
 
 def test_a_failing_figure_leaves_the_previous_figure(tmp_path, capsys, monkeypatch):
@@ -159,6 +159,19 @@ def test_a_failing_figure_leaves_the_previous_figure(tmp_path, capsys, monkeypat
     capsys.readouterr()
     assert figure.read_text(encoding="utf-8") == "<svg/>"
     assert _folder_listing(tmp_path) == ["map.svg"]
+
+
+@pytest.mark.skipif(os.name != "posix", reason="POSIX symlinks and devices")
+def test_output_through_a_symlink_and_to_a_device(walk, tmp_path, capsys):
+    real = tmp_path / "real.json"
+    real.write_text("{}", encoding="utf-8")
+    link = tmp_path / "link.json"
+    link.symlink_to(real)
+    assert main(["check", str(walk), "--output", str(link)]) == 1
+    assert link.is_symlink()                       # the link stays, the file it names is new
+    assert json.loads(real.read_text(encoding="utf-8"))["summary"]["calculations"] == 2
+    assert main(["check", str(walk), "--output", os.devnull]) == 1   # no rename on a device
+    assert "Report: " in capsys.readouterr().err
 
 
 @pytest.mark.skipif(os.name != "posix", reason="POSIX file modes")

@@ -22,22 +22,29 @@ from hypothesis import strategies as st
 from markdown_it import MarkdownIt
 
 from checker.cli import main
+from checker.engine.run import check_paths
+from checker.report.check_report import render_console, render_json
+from checker.report.ci_formats import render_junit, render_sarif
+from checker.report.html_report import render_html
+from checker.report.markdown_report import render_markdown
 from checker.report.safe_text import visible
 
-HOSTILE_NAME = r'\ud800 <script>alert(1)</script> \x1b[31mRED\x1b[0m \x01 \ufffe \u202e|x'
-HOSTILE_REASON = r'<img src=x onerror=alert(2)></td></tr><iframe src=//evil> \x07 `code` [a](javascript:x)'
-CALCULATION = f'''name: "{HOSTILE_NAME}"
+HOSTILE_NAME = "\ud800 <script>alert(1)</script> \x1b[31mRED\x1b[0m \x01 \ufffe \u202e|x"
+HOSTILE_REASON = ("<img src=x onerror=alert(2)></td></tr><iframe src=//evil> \x07 `code` "
+                  "[a](javascript:x)")
+HOSTILE_FILE = "odd`dir|\x1b]0;title\x07/\udcff.yaml"
+CALCULATION = """name: plain
 material: Si
 temperature: 300 K
 doping:
-  donors: {{P: 1e16 cm-3}}
+  donors: {P: 1e16 cm-3}
 stated:
   electron_density: 1e16 cm-3
   thermal_voltage: 0.0345 V
 waivers:
-  - {{rule: CONST01, reason: "{HOSTILE_REASON}"}}
-'''
-RAW = ("\ud800", "\x1b", "\x01", "\x07", "\ufffe", "\u202e")
+  - {rule: CONST01, reason: plain reason}
+"""
+RAW = ("\ud800", "\udcff", "\x1b", "\x01", "\x07", "\ufffe", "\u202e")
 
 
 def xml_char_allowed(ch: str) -> bool:
@@ -50,16 +57,45 @@ def xml_char_allowed(ch: str) -> bool:
 
 @pytest.fixture
 def hostile(tmp_path):
-    path = tmp_path / "hostile.yaml"
+    """A checked run whose user text is hostile: the report layer must be safe for any
+    str, whatever the readers accept."""
+    path = tmp_path / "calc.yaml"
     path.write_text(CALCULATION, encoding="utf-8")
-    return path
+    result = check_paths([str(path)])
+    report, = result.reports
+    report.calc.name = HOSTILE_NAME
+    report.calc.source = HOSTILE_FILE
+    finding, = report.findings
+    finding.file = HOSTILE_FILE
+    finding.waived = HOSTILE_REASON
+    report.notes.append(f"note on {HOSTILE_NAME}")
+    result.input_errors.append(f"{HOSTILE_FILE}:3: unknown material {HOSTILE_NAME!s}")
+    return result
+
+
+RENDER = {"json": lambda r: render_json(r, 1), "markdown": lambda r: render_markdown(r, 1),
+          "sarif": lambda r: render_sarif(r, 1), "junit": lambda r: render_junit(r, 1, "warning"),
+          "html": lambda r: render_html(r, 1)}
+
+
+def rendered(result, fmt):
+    if fmt == "console":
+        import io
+
+        stream = io.StringIO()
+        render_console(result, stream=stream)
+        text = stream.getvalue()
+    else:
+        text = RENDER[fmt](result)
+    text.encode("utf-8")                 # no lone surrogate left to crash a writer
+    return text
 
 
 def report(path, fmt, capsys):
     code = main(["check", str(path), "--format", fmt])
     out, err = capsys.readouterr()
-    assert code in (0, 1), err           # a report, not an internal error (3)
-    out.encode("utf-8")                  # no lone surrogate left to crash a writer
+    assert code in (0, 1), err           # a report, not an input (2) or internal (3) error
+    out.encode("utf-8")
     return out
 
 
@@ -88,66 +124,69 @@ def test_any_text_made_visible_is_xml_and_utf8(text):
     assert back.get("b") == safe and (back.text or "") == safe
 
 
-def test_console_shows_escapes_instead_of_acting_on_them(hostile, capsys):
-    out = report(hostile, "console", capsys)
+@pytest.mark.parametrize("fmt", ["console", "json", "markdown", "sarif", "junit", "html"])
+def test_no_raw_unsafe_character_in_any_format(hostile, fmt):
+    text = rendered(hostile, fmt)
     for ch in RAW:
-        assert ch not in out
-    assert r"\x1b[31mRED" in out and r"\ud800" in out and r"\u202e" in out
+        assert ch not in text, (fmt, ch)
+    # the text is still there, escaped where it was unsafe (JSON doubles a backslash)
+    plain = text.replace("\\\\", "\\")
+    assert r"\ud800" in plain and r"\x1b[31mRED" in plain and r"\u202e" in plain, fmt
 
 
-def test_json_and_sarif_parse_and_show_the_name(hostile, capsys):
-    data = json.loads(report(hostile, "json", capsys))
+def test_terminal_colours_are_ours_only(hostile):
+    """On a terminal rich writes its own escape sequences; the name's must not pass."""
+    import io
+
+    from rich.console import Console
+
+    stream = io.StringIO()
+    render_console(hostile, Console(file=stream, force_terminal=True, width=100))
+    out = stream.getvalue()
+    assert "\x1b[" in out                    # rich styles the text itself
+    assert "\x1b[31mRED" not in out and "\x1b]0;" not in out
+    assert r"\x1b[31mRED" in out
+    assert not any(ch in out for ch in RAW if ch != "\x1b")
+
+
+def test_json_and_sarif_parse_and_show_the_name(hostile):
+    data = json.loads(rendered(hostile, "json"))
     name = data["calculations"][0]["name"]
+    assert name == visible(HOSTILE_NAME)
     assert name.startswith(r"\ud800 <script>") and r"\x1b[31mRED" in name
-    assert not any(ch in json.dumps(data, ensure_ascii=False) for ch in RAW)
-    log = json.loads(report(hostile, "sarif", capsys))
+    log = json.loads(rendered(hostile, "sarif"))
     schema = json.loads((Path(__file__).parent / "data" / "sarif-schema-2.1.0.json")
                         .read_text(encoding="utf-8"))
     jsonschema.Draft7Validator(schema).validate(log)      # the OASIS SARIF 2.1.0 schema
-    text = json.dumps(log, ensure_ascii=False)
-    assert not any(ch in text for ch in RAW)
     result, = log["runs"][0]["results"]
     assert result["properties"]["calculation"] == name
     assert result["suppressions"][0]["justification"].startswith("<img src=x")
 
 
-def test_junit_and_html_are_well_formed_xml(hostile, capsys):
-    junit = ET.fromstring(report(hostile, "junit", capsys).encode("utf-8"))  # expat: XML 1.0
+def test_junit_and_html_are_well_formed_xml(hostile):
+    junit = ET.fromstring(rendered(hostile, "junit").encode("utf-8"))  # expat: XML 1.0
     names = [case.get("name") for case in junit.iter("testcase")]
     assert any(r"\ud800 <script>" in n and r"\x01" in n for n in names)
-    page = report(hostile, "html", capsys)
+    page = rendered(hostile, "html")
     root = ET.fromstring(page.split("\n", 1)[1].encode("utf-8"))   # after the DOCTYPE
     tags = {element.tag.split("}")[-1] for element in root.iter()}
     assert not tags & {"script", "img", "iframe"}
     assert "<script>alert(1)</script>" in "".join(root.itertext())   # shown as text
 
 
-def test_markdown_renders_no_html_from_user_text(hostile, capsys):
-    text = report(hostile, "markdown", capsys)
-    for ch in RAW:
-        assert ch not in text
+def test_markdown_renders_no_html_from_user_text(hostile):
+    text = rendered(hostile, "markdown")
     # CommonMark with raw HTML enabled and GFM tables, as a memo viewer renders it
-    rendered = MarkdownIt("commonmark", {"html": True}).enable("table").render(text)
+    html = MarkdownIt("commonmark", {"html": True}).enable("table").render(text)
     for tag in ("<script", "<img", "<iframe", "<a href", "</tr><iframe"):
-        assert tag not in rendered, tag
-    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in rendered     # visible as text
-    assert "onerror=alert(2)" in rendered
-    table = rendered.split("<tbody>", 1)[1].split("</tbody>", 1)[0]
+        assert tag not in html, tag
+    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in html     # visible as text
+    assert "onerror=alert(2)" in html
+    table = html.split("<tbody>", 1)[1].split("</tbody>", 1)[0]
     row, = [r for r in table.split("<tr>") if "CONST01" in r]
-    assert row.count("<td>") == 5       # the pipe and the closing tags in the reason
-    # stay inside their cell
-
-
-def test_markdown_code_spans_survive_backticks_and_pipes(tmp_path, capsys):
-    folder = tmp_path / "odd`name|dir"
-    folder.mkdir()
-    calc = folder / "calc.yaml"
-    calc.write_text(CALCULATION.replace(HOSTILE_NAME, "plain"), encoding="utf-8")
-    text = report(calc, "markdown", capsys)
-    rendered = MarkdownIt("commonmark").enable("table").render(text)
-    assert "odd`name|dir" in rendered.replace("&amp;", "&")
-    row, = [r for r in rendered.split("<tr>") if "CONST01" in r]
+    # the pipes, backticks and closing tags of the name, file and reason stay in their cells
     assert row.count("<td>") == 5
+    assert "<code>odd`dir|" in row
 
 
 @pytest.mark.skipif(sys.platform != "linux", reason="file names as raw bytes: Linux only")
@@ -156,7 +195,7 @@ def test_file_name_that_is_not_utf8(tmp_path, capsys):
     folder.mkdir()
     raw = os.path.join(os.fsencode(folder), b"bad\xff name.yaml")
     with open(raw, "wb") as out:
-        out.write(CALCULATION.replace(HOSTILE_NAME, "plain").encode("utf-8"))
+        out.write(CALCULATION.encode("utf-8"))
     for fmt in ("console", "json", "markdown", "junit", "sarif", "html"):
         out = report(folder, fmt, capsys)
         assert r"bad\udcff name.yaml" in out.replace("\\\\", "\\"), fmt
@@ -164,12 +203,29 @@ def test_file_name_that_is_not_utf8(tmp_path, capsys):
 
 def test_state_command_takes_names_as_text_not_markup(tmp_path, capsys):
     calc = tmp_path / "calc.yaml"
-    calc.write_text(CALCULATION.replace(HOSTILE_NAME, r"[/] [bold]x\x1b"), encoding="utf-8")
-    assert main(["state", str(calc)]) == 0
-    out = capsys.readouterr().out
-    assert "[/] [bold]x" in out and "\x1b" not in out
+    calc.write_text(CALCULATION.replace("name: plain", 'name: "[/] [bold]x"'),
+                    encoding="utf-8")
+    assert main(["state", str(calc)]) == 0          # rich would fail on "[/]" as markup
+    assert "[/] [bold]x" in capsys.readouterr().out
     assert main(["state", str(calc), "--format", "json"]) == 0
-    assert json.loads(capsys.readouterr().out)["points"][0]["name"] == r"[/] [bold]x\x1b"
+    assert json.loads(capsys.readouterr().out)["points"][0]["name"] == "[/] [bold]x"
+
+
+def test_state_report_escapes_what_a_reader_let_through():
+    import io
+
+    from rich.console import Console
+
+    from checker.report import state_report
+
+    summary = {key: 0.0 for key, _, _ in state_report.ROWS}
+    stream = io.StringIO()
+    state_report.render_console([(HOSTILE_NAME, HOSTILE_FILE, summary)], [HOSTILE_NAME],
+                                Console(file=stream, width=100))
+    data = state_report.render_json([(HOSTILE_NAME, HOSTILE_FILE, summary)], [HOSTILE_NAME])
+    for text in (stream.getvalue(), data):
+        assert not any(ch in text for ch in RAW)
+    assert json.loads(data)["points"][0]["name"] == visible(HOSTILE_NAME)
 
 
 def test_plot_titles_with_dollar_signs_and_controls():

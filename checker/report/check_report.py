@@ -49,7 +49,7 @@ class _PlainText:
     """The part of rich's Text used here, for output without colour (no rich import)."""
 
     def __init__(self, text=""):
-        self.parts = [text]
+        self.parts = [visible(text)]
 
     def append(self, text, style=""):
         self.parts.append(visible(text))

@@ -60,15 +60,19 @@ def _new_file_mode() -> int:
 def write_atomically(output, data: bytes, option="--output") -> None:
     """Write ``data`` to ``output`` all at once (through a symlink, to the file it
     names); an InputError saying why when the file cannot be written."""
-    target = Path(os.path.realpath(output))
     try:
-        if target.exists() and not target.is_file():
-            if target.is_dir():
-                raise InputError(f"{option} {output}: that is a directory; name a file")
-            with open(target, "wb") as out:        # a pipe or device: cannot be renamed over
+        try:
+            info = os.stat(output)
+        except FileNotFoundError:
+            info = None
+        if info is not None and stat.S_ISDIR(info.st_mode):
+            raise InputError(f"{option} {output}: that is a directory; name a file")
+        if info is not None and not stat.S_ISREG(info.st_mode):
+            with open(output, "wb") as out:     # a pipe or device: cannot be renamed over
                 out.write(data)
             return
-        mode = stat.S_IMODE(target.stat().st_mode) if target.exists() else _new_file_mode()
+        target = Path(os.path.realpath(output))
+        mode = stat.S_IMODE(info.st_mode) if info is not None else _new_file_mode()
         handle, temporary = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.",
                                              suffix=".partial")
     except OSError as exc:
