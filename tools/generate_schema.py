@@ -1,7 +1,13 @@
-"""Write checker/data/calculation.schema.json from the calculation-file key tables.
+"""Write the JSON Schemas of regimecheck's input files from the readers' key tables:
 
-Run after changing STRUCTURE_KEYS, STATED_KEYS or ASSUMPTIONS; a test checks that
-the shipped schema matches what this script writes.
+- checker/data/calculation.schema.json  (STRUCTURE_KEYS, STATED_KEYS, ASSUMPTIONS, ...
+  of checker/inputs/calculation_file.py, with the material form embedded)
+- checker/data/material.schema.json     (MATERIAL of checker/inputs/material_catalog.py)
+
+Run after changing any of those tables; a test checks that the shipped schemas match
+what this script writes.  Each schema accepts the form the reader accepts; numbers'
+units and the cross-checks between keys (a dopant level inside the band gap, ...)
+are left to the reader.
 """
 from __future__ import annotations
 
@@ -13,35 +19,81 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
 from checker.inputs import calculation_file as cf  # noqa: E402
-from checker.inputs.quantities import DIMENSIONS  # noqa: E402
+from checker.inputs.material_catalog import MATERIAL  # noqa: E402
+from checker.inputs.quantities import DIMENSIONS, WRITTEN_NUMBER, quantity_pattern  # noqa: E402
+from checker.physics.hall import SCATTERING_EXPONENTS  # noqa: E402
 
-SCHEMA_PATH = ROOT / "checker" / "data" / "calculation.schema.json"
+DATA = ROOT / "checker" / "data"
+SCHEMA_PATH = DATA / "calculation.schema.json"
+MATERIAL_SCHEMA_PATH = DATA / "material.schema.json"
+MATERIAL_REF = {"$ref": "#/$defs/material"}
+
+
+def any_case(word: str) -> str:
+    """ECMA pattern of ``word`` as calculation_file.normal_word reads it: any case,
+    '-' also written '_' or ' '."""
+    out = []
+    for char in word:
+        if char == "-":
+            out.append("[-_ ]")
+        elif char.isalpha():
+            out.append(f"[{char.lower()}{char.upper()}]")
+        else:
+            out.append("\\" + char if char in ".+*?()[]{}|^$\\" else char)
+    return "".join(out)
+
+
+def words(choices) -> str:
+    return r"^\s*(" + "|".join(any_case(w) for w in choices) + r")\s*$"
+
+
+def or_null(schema: dict) -> dict:
+    """An optional section may be left empty (YAML null)."""
+    return {"anyOf": [schema, {"type": "null"}]}
 
 
 def quantity(dimension: str) -> dict:
-    if dimension == "dimensionless":
-        return {"enum": [1, 2, 3, "1", "2", "3"]}
-    return {"type": "string", "description": f"a {dimension} with its unit, "
-            f"e.g. '{DIMENSIONS[dimension][1]}'"}
+    return {"type": "string", "pattern": quantity_pattern(True),
+            "description": f"a {dimension} with its unit, e.g. '{DIMENSIONS[dimension][1]}'"}
+
+
+def temperature() -> dict:
+    return {"type": "string", "description": "e.g. '300 K' or '27 degC'",
+            "pattern": quantity_pattern(True).replace(r"\s*\S.{0,40}$",
+                                                      r"\s*(K|degC|°C|℃|C)\s*$")}
+
+
+def sweep(dimension, default, end) -> dict:
+    return {"type": "object", "required": ["from", "to", "steps"],
+            "additionalProperties": False,
+            "description": f"a sweep: the range is checked on a grid ({default} spacing "
+                           "unless 'spacing' says otherwise)",
+            "properties": {"from": end, "to": end,
+                           "steps": {"anyOf": [
+                               {"type": "integer", "minimum": 2, "maximum": cf.MAX_SWEEP_STEPS},
+                               {"type": "string", "pattern": r"^\s*[0-9]{1,6}\s*$"}]},
+                           "spacing": {"enum": ["linear", "log"]}}}
+
+
+def section(keys: dict) -> dict:
+    properties = {k: quantity(d) for k, (_, d) in keys.items() if k != "dimensionality"}
+    if "dimensionality" in keys:
+        properties["dimensionality"] = {"anyOf": [
+            {"enum": [1, 2, 3]}, {"type": "string", "pattern": r"^\s*[123]\s*$"}]}
+    return or_null({"type": "object", "additionalProperties": False, "properties": properties})
+
+
+def text_list(item: dict, description: str) -> dict:
+    return or_null({"anyOf": [item, {"type": "array", "items": item}],
+                    "description": description})
 
 
 def build() -> dict:
     density = quantity("density")
-
-    def sweep(dimension, default):
-        return {"type": "object", "required": ["from", "to", "steps"],
-                "additionalProperties": False,
-                "description": f"a sweep: the range is checked on a grid ({default} spacing "
-                               "unless 'spacing' says otherwise)",
-                "properties": {"from": quantity(dimension), "to": quantity(dimension),
-                               "steps": {"type": ["integer", "string"]},
-                               "spacing": {"enum": ["linear", "log"]}}}
-
-    species = {"type": "object", "additionalProperties": {"anyOf": [density,
-                                                                    sweep("density", "log")]},
-               "description": "species name -> density, e.g. {P: 1e17 cm-3}, or a sweep"}
-    material_mapping = {"type": "object", "description": "a custom material in the form of the "
-                        "built-in material files (see DEVELOPERS.md)"}
+    species = or_null({"type": "object", "additionalProperties": {
+        "anyOf": [density, sweep("density", "log", density)]},
+        "description": "species name -> density, e.g. {P: 1e17 cm-3}, or a sweep"})
+    hall_words = words(SCATTERING_EXPONENTS)
     return {
         "$schema": "https://json-schema.org/draft/2020-12/schema",
         "$id": "https://regimecheck.example/calculation.schema.json",
@@ -51,42 +103,63 @@ def build() -> dict:
         "required": ["material", "temperature"],
         "additionalProperties": False,
         "properties": {
-            "name": {"type": "string"},
-            "material": {"anyOf": [{"type": "string"}, material_mapping]},
-            "temperature": {"anyOf": [
-                {"type": "string", "pattern": r"^\s*[-+]?[0-9.eE+-]+\s*(K|degC|°C|C)\s*$",
-                 "description": "e.g. '300 K' or '27 degC'"},
-                sweep("temperature", "linear")]},
-            "doping": {"type": "object", "additionalProperties": False,
-                       "properties": {"donors": species, "acceptors": species}},
-            "structure": {"type": "object", "additionalProperties": False,
-                          "properties": {k: quantity(d) for k, (_, d) in cf.STRUCTURE_KEYS.items()}},
-            "stated": {"type": "object", "additionalProperties": False,
-                       "properties": {k: quantity(d) for k, (_, d) in cf.STATED_KEYS.items()}},
-            "assumes": {"type": "array", "items": {"enum": list(cf.ASSUMPTIONS) + sorted(
-                cf.ASSUMPTION_SPELLINGS)}},
-            "formulas": {"type": "array", "items": {
+            "name": {"type": ["string", "number", "boolean"]},
+            "material": {"anyOf": [
+                {"type": "string", "pattern": r"\S",
+                 "description": "a built-in material: name, alias or long name (any case)"},
+                MATERIAL_REF]},
+            "temperature": {"anyOf": [temperature(), sweep("temperature", "linear",
+                                                           temperature())]},
+            "doping": or_null({"type": "object", "additionalProperties": False,
+                               "properties": {"donors": species, "acceptors": species}}),
+            "structure": section(cf.STRUCTURE_KEYS),
+            "stated": section(cf.STATED_KEYS),
+            "assumes": text_list({"type": "string", "pattern": words(
+                list(cf.ASSUMPTIONS) + sorted(cf.ASSUMPTION_SPELLINGS))},
+                "trade words the calculation assumes, e.g. [non-degenerate, full-ionization]"),
+            "formulas": text_list({
                 "type": "string", "pattern": "^[^=]+=[^=]+$", "maxLength": 4000,
                 "description": "a formula the calculation uses, 'lhs = rhs' in trade symbols "
-                               "(regimecheck symbols lists them), e.g. 'D_n = mu_n*k*T/q'"}},
-            "waivers": {"type": "array", "items": {
+                               "(regimecheck symbols lists them), e.g. 'D_n = mu_n*k*T/q'"},
+                "formulas the calculation uses"),
+            "waivers": or_null({"type": "array", "items": {
                 "type": "object", "required": ["rule", "reason"], "additionalProperties": False,
                 "properties": {"rule": {"type": "string", "pattern": "^[A-Za-z]{2,5}[0-9]{2}$"},
-                               "reason": {"type": "string", "minLength": 3}}}},
-            "options": {"type": "object", "additionalProperties": False,
-                        "properties": {"band_gap_narrowing": {"type": ["boolean", "string"]},
-                                       "hall_scattering": {"anyOf": [
-                                           {"enum": ["acoustic", "ionized-impurity",
-                                                     "neutral-impurity"]},
-                                           {"type": ["number", "string"]}]}}},
+                               "reason": {"type": "string", "pattern": r"\S.*\S.*\S"}}}}),
+            "options": or_null({"type": "object", "additionalProperties": False, "properties": {
+                "band_gap_narrowing": {"anyOf": [
+                    {"type": "boolean"},
+                    {"type": "string",
+                     "pattern": words(("true", "yes", "on", "false", "no", "off"))}]},
+                "hall_scattering": {"anyOf": [
+                    {"type": "string", "pattern": hall_words},
+                    {"type": "string", "pattern": rf"^\s*{cf.HALL_EXPONENT}\s*$"},
+                    {"type": "number", "minimum": -1.5, "maximum": 2.5, "multipleOf": 0.5}]}}}),
         },
+        "$defs": {"material": material_form()},
     }
+
+
+def material_form() -> dict:
+    return {**MATERIAL.schema(), "description": "a material in the form of the built-in "
+            "material files (checker/data/materials; see DEVELOPERS.md)"}
+
+
+def build_material() -> dict:
+    return {"$schema": "https://json-schema.org/draft/2020-12/schema",
+            "$id": "https://regimecheck.example/material.schema.json",
+            "title": "regimecheck material", **material_form()}
 
 
 def render() -> str:
     return json.dumps(build(), indent=2, ensure_ascii=False) + "\n"
 
 
+def render_material() -> str:
+    return json.dumps(build_material(), indent=2, ensure_ascii=False) + "\n"
+
+
 if __name__ == "__main__":
     SCHEMA_PATH.write_text(render(), encoding="utf-8")
-    print(f"wrote {SCHEMA_PATH}")
+    MATERIAL_SCHEMA_PATH.write_text(render_material(), encoding="utf-8")
+    print(f"wrote {SCHEMA_PATH} and {MATERIAL_SCHEMA_PATH}")

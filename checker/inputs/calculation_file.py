@@ -24,6 +24,7 @@ string and 1.0e17 as a float).  Aliases and duplicate keys are refused.
 from __future__ import annotations
 
 import difflib
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -32,8 +33,8 @@ import yaml
 from ..errors import InputError
 from ..physics.materials import Material
 from .material_catalog import resolve_material
-from .quantities import check_plausible, parse_quantity, parse_temperature
-from .yaml_source import _StrictLoader
+from .quantities import check_plausible, parse_quantity, parse_temperature, read_number
+from .yaml_source import Problems, compose_documents
 
 TOP_KEYS = ("name", "material", "temperature", "doping", "structure", "stated", "assumes",
             "formulas", "waivers", "options")
@@ -127,36 +128,23 @@ class FileResult:
 def _plain(node, path, positions):
     positions[path] = (node.start_mark.line + 1, node.start_mark.column + 1)
     if isinstance(node, yaml.MappingNode):
-        out = {}
-        for key_node, value_node in node.value:
-            key = str(key_node.value)
-            out[key] = _plain(value_node, path + (key,), positions)
-        return out
+        # keys are plain scalars: the strict loader refuses any other
+        return {key.value: _plain(value, path + (key.value,), positions)
+                for key, value in node.value}
     if isinstance(node, yaml.SequenceNode):
         return [_plain(child, path + (i,), positions) for i, child in enumerate(node.value)]
     return node.value  # scalar text, parsed later by us
 
 
-def read_documents(text: str, name: str) -> list[Located]:
-    """Compose all documents (strict: no aliases, no duplicate keys)."""
-    loader = _StrictLoader(text)
-    loader.name = name
+def read_documents(text: str, name: str) -> tuple[list[Located], list[str]]:
+    """Every sound document as plain text values with positions, and the errors of the
+    others (strict YAML, see yaml_source)."""
+    nodes, errors = compose_documents(text, name)
     docs = []
-    try:
-        while loader.check_node():
-            node = loader.get_node()
-            if node is None:
-                continue
-            loader.construct_document(node)  # runs the duplicate-key check
-            positions = {}
-            docs.append(Located(_plain(node, (), positions), positions))
-    except yaml.MarkedYAMLError as exc:
-        mark = exc.problem_mark
-        where = f"{name}:{mark.line + 1}:{mark.column + 1}" if mark else name
-        raise InputError(f"{where}: malformed YAML: {exc.problem}") from None
-    finally:
-        loader.dispose()
-    return docs
+    for node in nodes:
+        positions = {}
+        docs.append(Located(_plain(node, (), positions), positions))
+    return docs, errors
 
 
 class _Where:
@@ -170,6 +158,10 @@ class _Where:
                 return f"{self.path}:{line}:{col}"
         return self.path
 
+    def key(self, *keys) -> str:
+        """file:line:column and the key path, e.g. 'f.yaml:7:3: structure.voltage'."""
+        return f"{self(*keys)}: {'.'.join(map(str, keys))}"
+
     def line(self, *keys) -> int:
         for cut in range(len(keys), -1, -1):
             if keys[:cut] in self.positions:
@@ -177,13 +169,15 @@ class _Where:
         return 0
 
 
-def _unknown_keys(mapping: dict, allowed, where: str, what: str, locate=None):
+def _unknown_keys(mapping: dict, allowed, where, what: str, section=()):
+    """An error for every key of ``mapping`` outside ``allowed``."""
+    problems = Problems()
     for key in mapping:
         if key not in allowed:
-            where = locate(key) if locate else where
             close = difflib.get_close_matches(key, allowed, n=1)
             hint = f"; did you mean {close[0]!r}?" if close else f"; allowed: {', '.join(allowed)}"
-            raise InputError(f"{where}: unknown {what} key {key!r}{hint}")
+            problems.add(InputError(f"{where(*section, key)}: unknown {what} key {key!r}{hint}"))
+    problems.raise_any()
 
 
 def _to_bool(text, where):
@@ -195,89 +189,141 @@ def _to_bool(text, where):
     raise InputError(f"{where}: expected true or false, got {text!r}")
 
 
+def _mapping(data, key, where, form: str) -> dict:
+    block = data.get(key)
+    if block in (None, ""):           # an empty key: nothing given
+        return {}
+    if not isinstance(block, dict):
+        raise InputError(f"{where.key(key)} must be a mapping {form}, got {block!r}")
+    return block
+
+
 def parse_calculation(doc: Located, path: str) -> Calculation:
+    """One calculation document; every problem found is reported at once (InputErrors)."""
     where = _Where(path, doc.positions)
     data = doc.value
     if not isinstance(data, dict):
         raise InputError(f"{where()}: a calculation must be a mapping with keys "
                          f"{', '.join(TOP_KEYS)}")
-    _unknown_keys(data, TOP_KEYS, where(), "calculation", lambda k: where(k))
+    problems = Problems()
+    problems.run(_unknown_keys, data, TOP_KEYS, where, "calculation")
     for key in ("material", "temperature"):
         if key not in data:
-            raise InputError(f"{where()}: missing {key!r}; add e.g. "
-                             + ("material: Si" if key == "material" else "temperature: 300 K"))
-    try:
-        material = resolve_material(data["material"])
-    except InputError as exc:
-        raise InputError(f"{where('material')}: {exc}") from None
+            problems.add(InputError(f"{where()}: missing {key!r}; add e.g. "
+                                    + ("material: Si" if key == "material" else
+                                       "temperature: 300 K")))
+    material = problems.run(_material, data, where) if "material" in data else None
     axes = []
+    temperature = problems.run(_temperature, data, where, axes) if "temperature" in data \
+        else None
+    groups = problems.run(_doping, data, material, where, axes, default={}) \
+        if material is not None else {}
+    options = problems.run(_options, data, where, default=(False, -0.5))
+    name = problems.run(_name, data, where)
+    structure, lines = {}, {}
+    structure = problems.run(_structure, data, where, lines, default={})
+    stated = problems.run(_quantities, data, "stated", STATED_KEYS, where, lines, default={})
+    assumes = problems.run(_assumptions, data.get("assumes"), where, default={})
+    waivers = problems.run(_waivers, data.get("waivers"), where, default={})
+    formulas = problems.run(_formulas, data.get("formulas"), where, default=[])
+    problems.run(_check_sweep_size, axes, where)
+    problems.raise_any()
+    line = doc.positions.get((), (1, 1))[0]
+    calc = Calculation(name=name or f"{Path(path).name}:{line}", source=path,
+                       line=line, material=material, temperature=temperature,
+                       donors=groups.get("donors", {}), acceptors=groups.get("acceptors", {}),
+                       band_gap_narrowing=options[0], hall_exponent=options[1])
+    calc.structure, calc.stated, calc.lines = structure, stated, lines
+    calc.assumes, calc.waivers, calc.formulas, calc.sweep = assumes, waivers, formulas, axes
+    return calc
+
+
+def _name(data, where):
+    if "name" not in data:
+        return None
+    if isinstance(data["name"], (dict, list)):
+        raise InputError(f"{where.key('name')} must be a text, e.g. name: n-well resistor")
+    return str(data["name"])
+
+
+def _material(data, where):
+    value = data["material"]
+    if isinstance(value, dict):
+        return resolve_material(value, locate=lambda *keys: where("material", *keys))
+    if not isinstance(value, str) or not value.strip():
+        raise InputError(f"{where.key('material')} must be a built-in name such as Si, or a "
+                         f"mapping of the material's parameters; got {value!r}")
+    try:
+        return resolve_material(value)
+    except InputError as exc:
+        raise InputError(f"{where.key('material')}: {exc}") from None
+
+
+def _temperature(data, where, axes):
     if isinstance(data["temperature"], dict):
         axes.append(_axis(data["temperature"], "temperature", "T", where, ("temperature",)))
-        temperature = float(axes[-1].values[0])
-    else:
-        temperature = check_plausible(parse_temperature(data["temperature"],
-                                                        where("temperature")),
-                                      "temperature", data["temperature"], where("temperature"))
-    doping = data.get("doping") or {}
-    if not isinstance(doping, dict):
-        raise InputError(f"{where('doping')}: doping must map 'donors' and/or 'acceptors' "
-                         "to {species: density}")
-    _unknown_keys(doping, DOPING_KEYS, where("doping"), "doping")
+        return float(axes[-1].values[0])
+    here = where.key("temperature")
+    return check_plausible(parse_temperature(data["temperature"], here), "temperature",
+                           data["temperature"], here)
+
+
+def _doping(data, material, where, axes) -> dict:
+    doping = _mapping(data, "doping", where, "of 'donors' and/or 'acceptors' to "
+                                            "{species: density}")
+    problems = Problems()
+    problems.run(_unknown_keys, doping, DOPING_KEYS, where, "doping", ("doping",))
     groups = {}
     for group in DOPING_KEYS:
         entries = doping.get(group) or {}
         if not isinstance(entries, dict):
-            raise InputError(f"{where('doping', group)}: write {group} as {{species: density}}, "
-                             "e.g. {P: 1e17 cm-3}")
-        values = {}
+            problems.add(InputError(f"{where.key('doping', group)}: write {group} as "
+                                    "{species: density}, e.g. {P: 1e17 cm-3}"))
+            continue
+        groups[group] = {}
         for species, text in entries.items():
-            here = where("doping", group, species)
-            try:
-                dopant = material.dopant(species)
-            except InputError as exc:
-                raise InputError(f"{here}: {exc}") from None
-            expected = group[:-1]
-            if dopant.kind != expected:
-                raise InputError(f"{here}: {species} is a {dopant.kind} in {material.name}; "
-                                 f"move it under {dopant.kind}s")
-            if isinstance(text, dict):
-                axes.append(_axis(text, "density", (group, species), where,
-                                  ("doping", group, species)))
-                values[species] = float(axes[-1].values[0])
-                continue
-            density = parse_quantity(text, "density", here)
-            if density < 0:
-                raise InputError(f"{here}: density {text!r} is negative; give a value >= 0")
-            values[species] = check_plausible(density, "density", text, here)
-        groups[group] = values
-    options = data.get("options") or {}
-    if not isinstance(options, dict):
-        raise InputError(f"{where('options')}: options must be a mapping")
-    _unknown_keys(options, OPTION_KEYS, where("options"), "option")
-    bgn = _to_bool(options["band_gap_narrowing"], where("options", "band_gap_narrowing")) \
+            value = problems.run(_density, material, group, species, text, where, axes)
+            if value is not None:
+                groups[group][species] = value
+    problems.raise_any()
+    return groups
+
+
+def _density(material, group, species, text, where, axes) -> float:
+    here = where.key("doping", group, species)
+    try:
+        dopant = material.dopant(species)
+    except InputError as exc:
+        raise InputError(f"{here}: {exc}") from None
+    if dopant.kind != group[:-1]:
+        raise InputError(f"{here}: {species} is a {dopant.kind} in {material.name}; "
+                         f"move it under {dopant.kind}s")
+    if isinstance(text, dict):
+        axes.append(_axis(text, "density", (group, species), where, ("doping", group, species)))
+        return float(axes[-1].values[0])
+    density = parse_quantity(text, "density", here)
+    if density < 0:
+        raise InputError(f"{here}: density {text!r} is negative; give a value >= 0")
+    return check_plausible(density, "density", text, here)
+
+
+def _options(data, where) -> tuple:
+    options = _mapping(data, "options", where, "of " + ", ".join(OPTION_KEYS))
+    _unknown_keys(options, OPTION_KEYS, where, "option", ("options",))
+    bgn = _to_bool(options["band_gap_narrowing"], where.key("options", "band_gap_narrowing")) \
         if "band_gap_narrowing" in options else False
-    hall = _hall_exponent(options["hall_scattering"], where("options", "hall_scattering")) \
+    hall = _hall_exponent(options["hall_scattering"], where.key("options", "hall_scattering")) \
         if "hall_scattering" in options else -0.5
-    line = doc.positions.get((), (1, 1))[0]
-    calc = Calculation(name=str(data.get("name", f"{Path(path).name}:{line}")), source=path,
-                       line=line, material=material, temperature=temperature,
-                       donors=groups["donors"], acceptors=groups["acceptors"],
-                       band_gap_narrowing=bgn, hall_exponent=hall)
-    calc.structure = _quantities(data, "structure", STRUCTURE_KEYS, where, calc.lines)
-    if "dim" in calc.structure and calc.structure["dim"] not in (1.0, 2.0, 3.0):
-        raise InputError(f"{where('structure', 'dimensionality')}: dimensionality must be 3, 2 or 1")
-    calc.stated = _quantities(data, "stated", STATED_KEYS, where, calc.lines)
-    calc.assumes = _assumptions(data.get("assumes"), where)
-    calc.waivers = _waivers(data.get("waivers"), where)
-    calc.formulas = _formulas(data.get("formulas"), where)
+    return bgn, hall
+
+
+def _check_sweep_size(axes, where):
     if len(axes) > 2:
         raise InputError(f"{where()}: a sweep has at most two axes (temperature and one "
                          f"density, or two densities); this one has {len(axes)}")
     if len(axes) == 2 and len(axes[0].values) * len(axes[1].values) > MAX_SWEEP_POINTS:
         raise InputError(f"{where()}: the sweep has {len(axes[0].values) * len(axes[1].values)} "
                          f"points; the limit is {MAX_SWEEP_POINTS}")
-    calc.sweep = axes
-    return calc
 
 
 @dataclass
@@ -301,7 +347,7 @@ def _axis(spec: dict, dimension: str, key, where, path) -> Axis:
     import numpy as np
 
     here = where(*path)
-    _unknown_keys(spec, SWEEP_KEYS, here, "sweep")
+    _unknown_keys(spec, SWEEP_KEYS, where, "sweep", path)
     for needed in ("from", "to", "steps"):
         if needed not in spec:
             raise InputError(f"{here}: a sweep needs from, to and steps, e.g. "
@@ -309,17 +355,15 @@ def _axis(spec: dict, dimension: str, key, where, path) -> Axis:
     ends = []
     for end in ("from", "to"):
         text = spec[end]
-        at = where(*path, end)
+        at = where.key(*path, end)
         value = parse_temperature(text, at) if dimension == "temperature" \
             else parse_quantity(text, dimension, at)
         ends.append(check_plausible(value, dimension, text, at))
-    try:
-        steps = int(str(spec["steps"]).strip())
-    except ValueError:
-        steps = 0
-    if not 2 <= steps <= MAX_SWEEP_STEPS:
-        raise InputError(f"{where(*path, 'steps')}: steps must be a whole number from 2 to "
+    steps = str(spec["steps"]).strip()
+    if not re.fullmatch(r"[0-9]{1,6}", steps) or not 2 <= int(steps) <= MAX_SWEEP_STEPS:
+        raise InputError(f"{where.key(*path, 'steps')}: steps must be a whole number from 2 to "
                          f"{MAX_SWEEP_STEPS}, got {spec['steps']!r}")
+    steps = int(steps)
     spacing = str(spec.get("spacing", "linear" if dimension == "temperature" else "log"))
     if spacing not in ("linear", "log"):
         raise InputError(f"{where(*path, 'spacing')}: spacing is linear or log")
@@ -350,39 +394,90 @@ def _hall_exponent(text, where) -> float:
     """The exponent r of tau ∝ E^r: a mechanism name or a number from -1.5 to 2.5."""
     from ..physics.hall import SCATTERING_EXPONENTS
 
-    word = str(text).strip().lower().replace("_", "-").replace(" ", "-")
+    word = normal_word(text)
     if word in SCATTERING_EXPONENTS:
         return SCATTERING_EXPONENTS[word]
-    try:
-        value = float(word)
-    except ValueError:
-        value = None
-    if value is None or value * 2 != int(value * 2) or not -1.5 <= value <= 2.5:
+    value = read_number(word) if re.fullmatch(HALL_EXPONENT, word) else None
+    if value is None or not -1.5 <= value <= 2.5:
         raise InputError(f"{where}: hall_scattering must be one of "
                          f"{', '.join(SCATTERING_EXPONENTS)} or an exponent r (tau ∝ E^r) "
                          f"in half steps from -1.5 to 2.5, got {text!r}")
     return value
 
 
+# a number in half steps (the reader also bounds it to -1.5 .. 2.5); the schema uses it too
+HALL_EXPONENT = r"[-+]?[0-9]{1,2}(\.[05]0*)?"
+
+
+def normal_word(text) -> str:
+    """A trade word as the tables spell it: lower case, '-' between parts."""
+    return str(text).strip().lower().replace("_", "-").replace(" ", "-")
+
+
 def _quantities(data, section, keys, where, lines) -> dict:
-    block = data.get(section) or {}
-    if not isinstance(block, dict):
-        raise InputError(f"{where(section)}: {section} must be a mapping of "
-                         f"{', '.join(keys)} to quantities")
-    _unknown_keys(block, tuple(keys), where(section), section, lambda k: where(section, k))
+    block = _mapping(data, section, where, f"of {', '.join(keys)} to quantities")
+    problems = Problems()
+    problems.run(_unknown_keys, block, tuple(keys), where, section, (section,))
     out = {}
     for key, text in block.items():
-        name, dimension = keys[key]
-        here = where(section, key)
-        value = parse_quantity(text, dimension, here)
-        if value < 0 and key not in SIGNED_KEYS:
-            raise InputError(f"{here}: {key} {text!r} is negative; give a value >= 0")
-        check_plausible(value, dimension, text, here)
-        if value == 0 and dimension in ("length", "area", "density") and section == "structure":
-            raise InputError(f"{here}: {key} must be larger than zero")
-        out[name] = value
-        lines[name] = where.line(section, key)
+        if key in keys:
+            value = problems.run(_quantity, section, key, keys[key][1], text, where)
+            if value is not None:
+                out[keys[key][0]] = value
+                lines[keys[key][0]] = where.line(section, key)
+    problems.raise_any()
     return out
+
+
+def _quantity(section, key, dimension, text, where) -> float:
+    here = where.key(section, key)
+    if key == "dimensionality":
+        if str(text).strip() not in ("1", "2", "3"):
+            raise InputError(f"{here}: dimensionality must be 3, 2 or 1, got {text!r}")
+        return float(str(text))
+    value = parse_quantity(text, dimension, here)
+    if value < 0 and key not in SIGNED_KEYS:
+        raise InputError(f"{here}: {text!r} is negative; give a value >= 0")
+    check_plausible(value, dimension, text, here)
+    if value == 0 and dimension in ("length", "area", "density") and section == "structure":
+        raise InputError(f"{here}: must be larger than zero")
+    return value
+
+
+# Two ways of giving the same number must agree to this fraction (rounded trade
+# numbers; common practice (no source)).
+AGREEMENT = 0.01
+
+
+def _structure(data, where, lines) -> dict:
+    """The structure block; a field or area given twice over must agree."""
+    structure = _quantities(data, "structure", STRUCTURE_KEYS, where, lines)
+    given = _mapping(data, "structure", where, "")
+    problems = Problems()
+    if "voltage" in structure and "L" not in structure:
+        problems.add(InputError(f"{where.key('structure', 'voltage')} needs structure.length "
+                                "(the field is voltage / length); add length, or give field "
+                                "instead of voltage"))
+    elif "voltage" in structure and "field" in structure:
+        from_voltage = structure["voltage"] / structure["L"]
+        if not _agree(from_voltage, structure["field"]):
+            problems.add(InputError(
+                f"{where.key('structure', 'field')} ({given['field']}) disagrees with "
+                f"structure.voltage / structure.length = {from_voltage * 1e-5:.4g} kV/cm; "
+                "give field or voltage, not both"))
+    if "A" in structure and "thickness" in structure and "width" in structure:
+        product = structure["thickness"] * structure["width"]
+        if not _agree(product, structure["A"]):
+            problems.add(InputError(
+                f"{where.key('structure', 'cross_section')} ({given['cross_section']}) "
+                f"disagrees with structure.thickness x structure.width = {product * 1e12:.4g} "
+                "um^2; give cross_section or thickness and width, not both"))
+    problems.raise_any()
+    return structure
+
+
+def _agree(a: float, b: float) -> bool:
+    return abs(a - b) <= AGREEMENT * max(abs(a), abs(b))
 
 
 def _assumptions(entries, where) -> dict:
@@ -396,7 +491,7 @@ def _assumptions(entries, where) -> dict:
     out = {}
     for i, word in enumerate(entries):
         here = where("assumes", i)
-        text = str(word).strip().lower().replace("_", "-").replace(" ", "-")
+        text = normal_word(word)
         text = ASSUMPTION_SPELLINGS.get(text, text)
         if text not in ASSUMPTIONS:
             close = difflib.get_close_matches(text, ASSUMPTIONS, n=1)
@@ -417,7 +512,9 @@ def _waivers(entries, where) -> dict:
         here = where("waivers", i)
         if not isinstance(entry, dict):
             raise InputError(f"{here}: write a waiver as {{rule: <id>, reason: <text>}}")
-        _unknown_keys(entry, ("rule", "reason"), here, "waiver")
+        _unknown_keys(entry, ("rule", "reason"), where, "waiver", ("waivers", i))
+        if any(isinstance(v, (dict, list)) for v in entry.values()):
+            raise InputError(f"{here}: rule and reason are texts: {{rule: <id>, reason: <text>}}")
         if not entry.get("rule"):
             raise InputError(f"{here}: the waiver names no rule; add rule: <id>")
         reason = str(entry.get("reason") or "").strip()
@@ -429,9 +526,8 @@ def _waivers(entries, where) -> dict:
 
 
 def _looks_like_calculation(text: str, path: str) -> bool:
-    try:
-        docs = read_documents(text, path)
-    except InputError:
+    docs, errors = read_documents(text, path)
+    if errors:
         return True            # broken YAML is reported when parsed
     return any(isinstance(doc.value, dict) and "material" in doc.value for doc in docs)
 
@@ -449,17 +545,14 @@ def read_text_file(path: str):
 def parse_calculations(text: str, path: str) -> FileResult:
     """Every calculation of a YAML text; a bad one is an error, the others still load.
     Line numbers are those of ``text`` (a memo pads its blocks to keep its own)."""
-    try:
-        docs = read_documents(text, path)
-    except InputError as exc:
-        return FileResult(path, [], [str(exc)])
-    calculations, errors = [], []
+    docs, errors = read_documents(text, path)
+    calculations, problems = [], Problems()
+    problems.messages += errors
     for doc in docs:
-        try:
-            calculations.append(parse_calculation(doc, path))
-        except InputError as exc:
-            errors.append(str(exc))
-    return FileResult(path, calculations, errors)
+        calculation = problems.run(parse_calculation, doc, path)
+        if calculation is not None:
+            calculations.append(calculation)
+    return FileResult(path, calculations, problems.messages)
 
 
 def read_calculation_file(path, explicit: bool = True) -> FileResult:

@@ -39,9 +39,10 @@ DIMENSIONS = {
     "conductivity": ("S/m", "33 S/cm"),
     "resistance": ("ohm", "1.5 kohm"),
     "sheet resistance": ("ohm", "250 ohm/sq"),
+    "sheet density": ("m**-2", "1e12 cm-2"),
 }
 
-# unit text (spaces removed) -> (dimension name, factor to SI)
+# unit text (normalised: spaces removed, see _normal_unit) -> (dimension name, factor to SI)
 UNITS = {
     "eV": ("energy", EV), "meV": ("energy", 1e-3 * EV),
     "K": ("temperature", 1.0),
@@ -49,32 +50,88 @@ UNITS = {
     "cm-3": ("density", _CM ** -3), "cm^-3": ("density", _CM ** -3), "/cm^3": ("density", _CM ** -3),
     "/cm3": ("density", _CM ** -3), "m-3": ("density", 1.0), "m^-3": ("density", 1.0),
     "cm**-3": ("density", _CM ** -3), "1/cm^3": ("density", _CM ** -3),
+    "cm-2": ("sheet density", _CM ** -2), "cm^-2": ("sheet density", _CM ** -2),
+    "/cm^2": ("sheet density", _CM ** -2), "/cm2": ("sheet density", _CM ** -2),
+    "m-2": ("sheet density", 1.0), "m^-2": ("sheet density", 1.0),
     "cm^2/(V*s)": ("mobility", _CM ** 2), "cm2/Vs": ("mobility", _CM ** 2),
     "cm^2/Vs": ("mobility", _CM ** 2), "m^2/(V*s)": ("mobility", 1.0),
+    "cm2/(V*s)": ("mobility", _CM ** 2),
     "cm^2/s": ("diffusivity", _CM ** 2), "cm2/s": ("diffusivity", _CM ** 2),
     "m^2/s": ("diffusivity", 1.0),
     "cm/s": ("velocity", _CM), "m/s": ("velocity", 1.0),
     "V/cm": ("field", 1 / _CM), "V/m": ("field", 1.0), "kV/cm": ("field", 1e3 / _CM),
     "V": ("voltage", 1.0), "mV": ("voltage", 1e-3),
     "m": ("length", 1.0), "cm": ("length", _CM), "mm": ("length", 1e-3), "um": ("length", 1e-6),
-    "µm": ("length", 1e-6), "μm": ("length", 1e-6), "nm": ("length", 1e-9),
+    "nm": ("length", 1e-9),
     "um^2": ("area", 1e-12), "cm^2": ("area", 1e-4), "nm^2": ("area", 1e-18), "m^2": ("area", 1.0),
-    "ohm*cm": ("resistivity", _CM), "Ohm*cm": ("resistivity", _CM), "ohm*m": ("resistivity", 1.0),
+    "ohm*cm": ("resistivity", _CM), "ohm*m": ("resistivity", 1.0),
     "S/cm": ("conductivity", 1 / _CM), "S/m": ("conductivity", 1.0),
-    "ohm": ("resistance", 1.0), "Ohm": ("resistance", 1.0), "kohm": ("resistance", 1e3),
-    "ohm/sq": ("sheet resistance", 1.0), "Ohm/sq": ("sheet resistance", 1.0),
-    "kohm/sq": ("sheet resistance", 1e3),
+    "ohm": ("resistance", 1.0), "kohm": ("resistance", 1e3),
+    "ohm/sq": ("sheet resistance", 1.0), "kohm/sq": ("sheet resistance", 1e3),
     "eV*cm": ("energy times length", EV * _CM),
 }
-_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d{1,3})?"
-_NAME = r"[A-Za-zµμΩ]{1,8}"
+# A decimal number in ASCII digits, optionally times a power of ten written the trade
+# way (1.5e16, 1.5x10^16, 1.5×10^16; superscripts are rewritten to ^ first).
+_MANTISSA = r"[-+]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)"
+_TIMES_TEN = r"\s*[x×*·]\s*10\s*"
+NUMBER = rf"{_MANTISSA}(?:[eE][-+]?[0-9]{{1,3}}|{_TIMES_TEN}\^\s*[-+]?[0-9]{{1,3}})?"
+# The same as written before that rewriting (minus sign, superscripts): the JSON Schema's
+# pattern of a number, so ECMA-262 syntax only.
+_SUPER = "⁰¹²³⁴⁵⁶⁷⁸⁹"
+WRITTEN_NUMBER = (rf"[-+−]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][-+−]?[0-9]{{1,3}}"
+                  rf"|{_TIMES_TEN}(?:\^\s*[-+−]?[0-9]{{1,3}}|[⁻⁺]?[{_SUPER}]{{1,3}}))?")
+
+
+def quantity_pattern(with_unit: bool) -> str:
+    """ECMA-262 pattern of what parse_quantity reads: a number, then a unit or nothing
+    (the unit itself is checked by the reader only)."""
+    whole = r"(?![0-9.]|[eE][-+−]?[0-9]|\s*[x×*·]\s*10)"
+    return rf"^\s*{WRITTEN_NUMBER}{whole}" + (r"\s*\S.{0,40}$" if with_unit else r"\s*$")
+
+
+_NUMBER_PARTS = re.compile(r"^(?P<mantissa>[-+]?(?:[0-9]+\.?[0-9]*|\.[0-9]+))"
+                           r"(?:[eE](?P<e>[-+]?[0-9]{1,3})"
+                           r"|\s*[x×*·]\s*10\s*\^\s*(?P<power>[-+]?[0-9]{1,3}))?$")
+_NAME = r"[A-Za-z]{1,8}"
 _POWER = r"(?:(?:\^|\*\*)?-?\d{1,2})?"
 _FACTOR = rf"(?:{_NAME}{_POWER}|1)"
 _PRODUCT = rf"{_FACTOR}(?:[*/]{_FACTOR})*"
 _UNIT = rf"/?(?:{_PRODUCT}|\({_PRODUCT}\))(?:[*/](?:{_FACTOR}|\({_PRODUCT}\)))*"
-_QUANTITY = re.compile(rf"^\s*({_NUMBER})\s*(.{{0,40}}?)\s*$")
+_QUANTITY = re.compile(rf"^\s*({NUMBER})\s*(.{{0,40}}?)\s*$")
 _UNIT_GATE = re.compile(rf"^{_UNIT}$")
-_TRAILING_POWER = re.compile(r"([A-Za-zµμΩ])(-?\d{1,2})(?![\d.])")
+_TRAILING_POWER = re.compile(r"([A-Za-z])(-?\d{1,2})(?![\d.])")
+
+_SUPERSCRIPTS = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹⁻⁺", "0123456789-+")
+_SUPERSCRIPT_RUN = re.compile(f"[⁻⁺]?[{_SUPER}]+")
+# a hyphen between unit names is a product (ohm-cm, V-s); before a digit it is an exponent
+_HYPHEN_PRODUCT = re.compile(r"(?<=[A-Za-z0-9Ωµμ])-(?=[A-Za-zΩµμ])")
+# after '/', names joined by the trade product marks form the denominator: cm²/V·s
+_DOT_DENOMINATOR = re.compile(r"/([A-Za-zΩµμ]+(?:\^-?\d{1,2})?(?:[·⋅×][A-Za-zΩµμ]+(?:\^-?\d{1,2})?)+)")
+
+
+def _normal_text(text: str) -> str:
+    """Superscript exponents as ^n and the minus sign as '-' (number and unit alike)."""
+    text = _SUPERSCRIPT_RUN.sub(lambda m: "^" + m.group(0).translate(_SUPERSCRIPTS), text)
+    return text.replace("\u2212", "-")
+
+
+def _normal_unit(unit: str) -> str:
+    """The trade spellings of a unit in the form of the table: Ω·cm -> ohm*cm, µm -> um."""
+    unit = _HYPHEN_PRODUCT.sub("·", unit.replace(" ", ""))
+    unit = _DOT_DENOMINATOR.sub(r"/(\1)", unit)
+    for mark in "·⋅×":
+        unit = unit.replace(mark, "*")
+    unit = unit.replace("Ω", "ohm").replace("µ", "u").replace("μ", "u")
+    return re.sub(r"(?<![A-Za-z])([kMGm]?)Ohm", r"\1ohm", unit)
+
+
+def read_number(text: str):
+    """The float of a NUMBER text, or None when it is not one."""
+    match = _NUMBER_PARTS.match(text.strip())
+    if not match:
+        return None
+    exponent = match["e"] or match["power"] or "0"
+    return float(f"{match['mantissa']}e{exponent}")
 
 
 def parse_quantity(text, dimension: str, where: str = "") -> float:
@@ -88,12 +145,12 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
                          f"got {text!r}")
     if isinstance(text, (int, float)):
         text = repr(text)
-    match = _QUANTITY.match(str(text))
+    match = _QUANTITY.match(_normal_text(str(text)))
     if not match:
         raise InputError(f"{place}cannot read {text!r} as a quantity; write a number and a unit, "
                          f"e.g. {example(dimension)}")
-    value = float(match.group(1))
-    unit = match.group(2).replace(" ", "")
+    value = read_number(match.group(1))
+    unit = _normal_unit(match.group(2))
     if not math.isfinite(value):
         raise InputError(f"{place}{text!r} is not a finite number")
     if unit in ("", "1"):
@@ -107,6 +164,10 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
         unit_dimension, factor = UNITS[unit]
     else:
         unit_dimension, factor = _pint_unit(unit, dimension, text, place)
+    if unit_dimension == "sheet density" and dimension == "density":
+        raise InputError(f"{place}{text!r} is a sheet density (per area); sheet densities "
+                         "(cm^-2) are not supported yet for this key: give the volume density "
+                         f"(sheet density / layer thickness), e.g. {example(dimension)}")
     if unit_dimension != dimension:
         raise InputError(f"{place}{text!r} has a unit of {unit_dimension} where {dimension} is "
                          f"expected; write e.g. {example(dimension)}")
@@ -120,11 +181,21 @@ def _pint_unit(unit: str, dimension: str, text, place: str):
                          f"as {example(dimension)}")
     sheet = unit.endswith("/sq")
     core = unit[:-3] if sheet else unit
-    pint_text = _TRAILING_POWER.sub(r"\1**\2", core.replace("^", "**")).replace("µ", "u") \
-        .replace("μ", "u").replace("Ω", "ohm")
+    if "sq" in re.findall(_NAME, core):
+        raise InputError(f"{place}'sq' in {text!r}: ohms per square end a sheet resistance "
+                         "only, e.g. '250 ohm/sq'")
     registry = _registry()
     try:
-        quantity = registry.Quantity(1.0, registry.parse_units(pint_text))
+        for name in set(re.findall(_NAME, core)):
+            if registry.parse_units(name).dimensionless:
+                # turn, degree, pi, percent ... would silently scale the number
+                raise InputError(f"{place}{text!r}: the unit {name!r} is a pure number; write "
+                                 f"the value as a plain number times a {dimension} unit, e.g. "
+                                 f"{example(dimension)}")
+        quantity = registry.Quantity(1.0, registry.parse_units(
+            _TRAILING_POWER.sub(r"\1**\2", core.replace("^", "**"))))
+    except InputError:
+        raise
     except Exception:  # pint raises several types for an unknown name
         raise InputError(f"{place}unknown unit {unit!r} in {text!r}; for a {dimension} write e.g. "
                          f"{example(dimension)}") from None
@@ -133,7 +204,11 @@ def _pint_unit(unit: str, dimension: str, text, place: str):
             continue
         si = registry.parse_units(si_text)
         if quantity.dimensionality == si.dimensionality:
-            found = "sheet resistance" if sheet and name == "resistance" else name
+            if sheet and name != "resistance":
+                raise InputError(f"{place}{text!r}: '/sq' (per square) belongs to a sheet "
+                                 f"resistance such as '250 ohm/sq'; for a {dimension} write "
+                                 f"e.g. {example(dimension)}")
+            found = "sheet resistance" if sheet else name
             return found, float(quantity.to(si).magnitude)
     raise InputError(f"{place}the unit {unit!r} in {text!r} is not a {dimension} unit; write e.g. "
                      f"{example(dimension)}")
@@ -176,7 +251,7 @@ def check_plausible(value: float, dimension: str, text, where: str = "") -> floa
     return value
 
 
-_TEMPERATURE = re.compile(rf"^\s*({_NUMBER})\s*(K|degC|°C|C)\s*$")
+_TEMPERATURE = re.compile(rf"^\s*({NUMBER})\s*(K|degC|°C|℃|C)\s*$")
 
 
 def parse_temperature(text, where: str = "") -> float:
@@ -184,13 +259,14 @@ def parse_temperature(text, where: str = "") -> float:
     place = f"{where}: " if where else ""
     if isinstance(text, (int, float)) and not isinstance(text, bool):
         raise InputError(f"{place}{text!r} has no unit; write e.g. '300 K' or '27 degC'")
-    match = _TEMPERATURE.match(str(text))
-    if not match and re.fullmatch(rf"\s*{_NUMBER}\s*", str(text)):
+    normal = _normal_text(str(text))
+    match = _TEMPERATURE.match(normal)
+    if not match and read_number(normal) is not None:
         raise InputError(f"{place}{text!r} has no unit; write e.g. '300 K' or '27 degC'")
     if not match:
         raise InputError(f"{place}cannot read {text!r} as a temperature; write e.g. '300 K' "
                          "or '27 degC'")
-    value = float(match.group(1))
+    value = read_number(match.group(1))
     kelvin = value if match.group(2) == "K" else value + 273.15
     if not math.isfinite(kelvin) or kelvin <= 0:
         raise InputError(f"{place}{text!r} is at or below absolute zero; give a temperature above 0 K")

@@ -1,47 +1,219 @@
-"""Safe YAML loading: no aliases, no duplicate keys, positions kept for messages."""
+"""Safe YAML loading for user files: positions kept for messages, and refused with
+file:line:column:
+
+- aliases (``*name``) and merge-by-alias: every value is written out;
+- duplicate keys, and keys that are not plain text (``? [a, b]``);
+- explicit tags (``!!float abc``, ``!!timestamp``): every value is read as text and
+  parsed by regimecheck itself;
+- control characters (NUL, BEL, form feed, ...) anywhere in the file, and characters
+  that are not Unicode text (a lone surrogate written as an escape, ``"\\ud800"``);
+- nesting deeper than MAX_NESTING levels (the deepest calculation, a user material's
+  mobility model range, needs 7).
+"""
 from __future__ import annotations
+
+import re
 
 import yaml
 
 from ..errors import InputError
 
+MAX_NESTING = 32
+TOO_DEEP = "the YAML is nested more than"
+# C0 controls other than tab/line feed/carriage return, DEL, C1 controls other than
+# NEL, surrogates and the two non-characters PyYAML also refuses
+_FORBIDDEN = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x84\x86-\x9f\ud800-\udfff\ufffe\uffff]")
+_CONTROL_NAMES = {0x00: "NUL", 0x07: "BEL", 0x08: "backspace", 0x0B: "vertical tab",
+                  0x0C: "form feed", 0x1B: "escape", 0x7F: "DEL"}
+
+
+class InputErrors(InputError):
+    """Several problems of one input, each a message naming file:line:column."""
+
+    def __init__(self, messages):
+        self.messages = list(messages)
+        super().__init__("\n".join(self.messages))
+
+
+class Problems:
+    """Collects input errors so that one document reports all of them at once."""
+
+    def __init__(self):
+        self.messages = []
+
+    def add(self, error: InputError):
+        self.messages += getattr(error, "messages", None) or [str(error)]
+
+    def run(self, step, *args, default=None):
+        """``step(*args)``, or ``default`` after recording its InputError."""
+        try:
+            return step(*args)
+        except InputError as exc:
+            self.add(exc)
+            return default
+
+    def raise_any(self):
+        if self.messages:
+            raise InputErrors(self.messages) if len(self.messages) > 1 \
+                else InputError(self.messages[0])
+
+
+def describe_character(char: str) -> str:
+    code = ord(char)
+    if code >= 0xD800:          # a surrogate or a non-character: not text at all
+        return f"an invalid character U+{code:04X}"
+    name = _CONTROL_NAMES.get(code)
+    return f"the control character U+{code:04X}" + (f" ({name})" if name else "")
+
+
+def _character_errors(text: str, name: str) -> list:
+    """(line, message) of every control or invalid character in ``text`` (1-based lines)."""
+    found = []
+    for match in _FORBIDDEN.finditer(text):
+        line = text.count("\n", 0, match.start()) + 1
+        column = match.start() - (text.rfind("\n", 0, match.start()) + 1) + 1
+        found.append((line, f"{name}:{line}:{column}: the file holds "
+                            f"{describe_character(match.group())}; delete it (an editor that "
+                            "shows invisible characters helps)"))
+    return found
+
+
+def check_characters(text: str, name: str):
+    """Refuse a text holding control characters, naming the line and column of the first."""
+    found = _character_errors(text, name)
+    if found:
+        raise InputError(found[0][1])
+
+
+def _at(mark) -> str:
+    return f"{mark.name}:{mark.line + 1}:{mark.column + 1}"
+
+
+def _blank_node(mark):
+    return yaml.ScalarNode("tag:yaml.org,2002:null", "", mark, mark)
+
 
 class _StrictLoader(yaml.SafeLoader):
-    """SafeLoader that refuses aliases and duplicate keys."""
+    """SafeLoader that refuses aliases, tags, duplicate or composite keys and deep nesting.
+
+    A refusal is recorded in ``problems`` and composing goes on, so that the other
+    documents of the file are still read."""
+
+    def __init__(self, stream):
+        super().__init__(stream)
+        self.problems, self._depth = [], 0
+
+    def _refuse(self, mark, message: str):
+        self.problems.append(f"{_at(mark)}: {message}")
 
     def compose_node(self, parent, index):
-        if self.check_event(yaml.AliasEvent):
-            event = self.peek_event()
-            mark = event.start_mark
-            raise InputError(f"{mark.name}:{mark.line + 1}:{mark.column + 1}: YAML aliases "
-                             "(*name) are not accepted; write the value out")
-        return super().compose_node(parent, index)
+        event = self.peek_event()
+        if isinstance(event, yaml.AliasEvent):
+            self.get_event()
+            self._refuse(event.start_mark, "YAML aliases (*name) are not accepted; write the "
+                         "value out")
+            return _blank_node(event.start_mark)
+        if getattr(event, "tag", None) is not None:
+            shown = event.tag.replace("tag:yaml.org,2002:", "!!")
+            self._refuse(event.start_mark, f"YAML tags ({shown}) are not accepted; write the "
+                         "value as plain text (regimecheck reads every value itself)")
+        if self._depth >= MAX_NESTING:
+            if not any(TOO_DEEP in problem for problem in self.problems):
+                self._refuse(event.start_mark, f"{TOO_DEEP} {MAX_NESTING} levels deep; a "
+                             "calculation needs fewer than 10: flatten it")
+            self._skip_node()
+            return _blank_node(event.start_mark)
+        self._depth += 1
+        try:
+            node = super().compose_node(parent, index)
+        finally:
+            self._depth -= 1
+        if isinstance(node, yaml.ScalarNode) and (bad := _FORBIDDEN.search(node.value)):
+            self._refuse(node.start_mark, f"the value holds {describe_character(bad.group())}; "
+                         "remove the escape that writes it")
+        return node
 
-    def construct_mapping(self, node, deep=False):
+    def _skip_node(self):
+        """Consume the events of one node without recursion."""
+        depth = 0
+        while True:
+            event = self.get_event()
+            if isinstance(event, (yaml.MappingStartEvent, yaml.SequenceStartEvent)):
+                depth += 1
+            elif isinstance(event, (yaml.MappingEndEvent, yaml.SequenceEndEvent)):
+                depth -= 1
+            if depth == 0:
+                return
+
+    def compose_mapping_node(self, anchor):
+        node = super().compose_mapping_node(anchor)
         seen = {}
         for key_node, _ in node.value:
-            key = self.construct_object(key_node, deep=True)
-            if key in seen:
-                mark = key_node.start_mark
-                raise InputError(f"{mark.name}:{mark.line + 1}:{mark.column + 1}: duplicate key "
-                                 f"{key!r} (first at line {seen[key] + 1}); keep one")
-            seen[key] = key_node.start_mark.line
-        return super().construct_mapping(node, deep=deep)
+            if not isinstance(key_node, yaml.ScalarNode):
+                self._refuse(key_node.start_mark, "a key must be a plain word, not a list or "
+                             "mapping ('? [a, b]'); write key: value")
+            elif key_node.value in seen:
+                self._refuse(key_node.start_mark, f"duplicate key {key_node.value!r} (first at "
+                             f"line {seen[key_node.value] + 1}); keep one")
+            else:
+                seen[key_node.value] = key_node.start_mark.line
+        return node
+
+
+def compose_documents(text: str, name: str) -> tuple[list, list]:
+    """(node tree of every sound document, error messages) of a user's YAML text.
+
+    Nothing is constructed: the caller reads the scalars as text.  A document with a
+    refused construct is left out and its errors reported; the others are kept.  A
+    control character is deleted for parsing and refuses the document holding it."""
+    bad_characters = _character_errors(text, name)
+    if bad_characters:
+        text = _FORBIDDEN.sub("", text)    # deleted: a blank could change indentation
+    loader = _StrictLoader(text)
+    loader.name = name
+    nodes, errors = [], []
+    try:
+        while loader.check_node():
+            loader.problems = []
+            node = loader.get_node()
+            lines = (node.start_mark.line + 1, node.end_mark.line + 1) if node else (0, -1)
+            inside = [message for line, message in bad_characters
+                      if lines[0] <= line <= lines[1]]
+            if loader.problems or inside:
+                errors += loader.problems + inside
+            elif node is not None:
+                nodes.append(node)
+    except yaml.MarkedYAMLError as exc:
+        mark = exc.problem_mark
+        errors.append(f"{_at(mark) if mark else name}: malformed YAML: {exc.problem}")
+    except yaml.YAMLError as exc:      # reader errors carry no mark
+        errors.append(f"{name}: malformed YAML: {exc}")
+    finally:
+        loader.dispose()
+    reported = set(errors)
+    errors += [message for _, message in bad_characters if message not in reported]
+    return nodes, errors
 
 
 def load_yaml_text(text: str, name: str):
-    """Parse one YAML document; errors become InputError with file:line:column."""
+    """Parse one YAML document strictly into Python values (the package's own files in
+    tests); errors become InputError with file:line:column."""
+    check_characters(text, name)
+    loader = _StrictLoader(text)
+    loader.name = name
     try:
-        loader = _StrictLoader(text)
-        loader.name = name
-        try:
-            return loader.get_single_data()
-        finally:
-            loader.dispose()
+        data = loader.get_single_data()
+        if loader.problems:
+            raise InputError(loader.problems[0])
+        return data
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark
-        where = f"{name}:{mark.line + 1}:{mark.column + 1}" if mark else name
+        where = _at(mark) if mark else name
         raise InputError(f"{where}: malformed YAML: {exc.problem}") from None
+    except (yaml.YAMLError, ValueError, TypeError) as exc:
+        raise InputError(f"{name}: malformed YAML: {exc}") from None
+    finally:
+        loader.dispose()
 
 
 _FAST_LOADER = getattr(yaml, "CSafeLoader", yaml.SafeLoader)
