@@ -10,14 +10,44 @@ def mp_fermi_half(eta):
     return -mp.re(mp.polylog(mp.mpf(1.5), -mp.exp(eta)))
 
 
+def _lowered_energy(dopant, level_energy, N):
+    """E(N) written out from the published forms (parameters are the dopant's data):
+    Altermatt et al., J. Appl. Phys. 100, 113715 (2006): E_0 / (1 + (N/N_ref)^c);
+    Pearson & Bardeen, Phys. Rev. 75, 865 (1949): max(E_0 - alpha N^(1/3), 0)."""
+    model = dopant.lowering
+    if model is None:
+        return level_energy
+    if hasattr(model, "N_ref"):
+        return level_energy / (1 + (N / mp.mpf(model.N_ref)) ** mp.mpf(model.c))
+    return level_energy * max(1 - mp.mpf(model.alpha) * mp.cbrt(N) / mp.mpf(model.E0), 0)
+
+
+def _bound_share(dopant, N):
+    """b(N) = 1 / (1 + (N/N_b)^d), Altermatt et al. (2006) eq. (3)."""
+    share = dopant.share_model()
+    return 1 / (1 + (N / mp.mpf(share.N_b)) ** mp.mpf(share.d))
+
+
+def ionized_fraction(dopant, eta_band, kT, same_type_total):
+    """N^ion / N summed over the dopant's levels (share s, degeneracy g):
+    sum s [1 - b + b / (1 + g e^(eta_band + E(N)/kT))]; with b = 1 and E(N) = E_0 the
+    isolated-impurity statistics of Sze & Ng (2007), ch. 1."""
+    N = mp.mpf(same_type_total)
+    b = _bound_share(dopant, N)
+    total = mp.mpf(0)
+    for level in dopant.bound_levels():
+        E = _lowered_energy(dopant, mp.mpf(level.energy), N)
+        total += mp.mpf(level.share) * (1 - b + b / (1 + mp.mpf(level.degeneracy)
+                                                   * mp.exp(eta_band + E / kT)))
+    return total
+
+
 def reference_solve(material, T, donors, acceptors):
     """Independent solve in 40-digit arithmetic: bisection on the plain
     (not logarithmic) neutrality equation n + N_A^- - p - N_D^+ = 0.
 
     Band and dopant numbers are taken from the material (they are data); the
-    statistics are written out here from Sze & Ng (2007), ch. 1:
-    N_D^+ = N_D / (1 + 2 e^((E_F - E_D)/kT)), N_A^- = N_A / (1 + 4 e^((E_A - E_F)/kT)),
-    full ionization where the same-type total reaches the Mott density.
+    statistics are written out here (see ionized_fraction).
     """
     with mp.workdps(40):
         kT = mp.mpf(K_B) * T
@@ -29,13 +59,9 @@ def reference_solve(material, T, donors, acceptors):
             eta_p = -eta - Eg / kT
             total = Nc * mp_fermi_half(eta) - Nv * mp_fermi_half(eta_p)
             for name, N in acceptors.items():
-                d = material.dopant(name)
-                full = na_tot >= d.mott_density
-                total += N if full else N / (1 + d.degeneracy * mp.exp(eta_p + mp.mpf(d.energy) / kT))
+                total += N * ionized_fraction(material.dopant(name), eta_p, kT, na_tot)
             for name, N in donors.items():
-                d = material.dopant(name)
-                full = nd_tot >= d.mott_density
-                total -= N if full else N / (1 + d.degeneracy * mp.exp(eta + mp.mpf(d.energy) / kT))
+                total -= N * ionized_fraction(material.dopant(name), eta, kT, nd_tot)
             return total
 
         lo, hi = -Eg / kT - 200, mp.mpf(200)

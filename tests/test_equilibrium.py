@@ -93,17 +93,18 @@ def test_three_kT_rule_marks_the_boltzmann_limit():
     assert -4 < eta < -3 and 0.005 < excess < 0.0174
 
 
-def test_metallic_regime_is_fully_ionized():
-    # references.md §4d: the isolated-impurity model would give 38 % ionized
-    # for Si:P at 1e19 cm^-3; above the Mott density (3.74e18, Rosenbaum et al.
-    # 1983) the dopant is fully ionized and the point is flagged.
+def test_metallic_regime_is_flagged_and_ionization_completes_smoothly():
+    # Above the Mott density (Si:P 3.74e18 cm^-3, Rosenbaum et al., Phys. Rev. B 27, 7509
+    # (1983)) the point is flagged metallic; ionization completes through the transition
+    # (Altermatt et al., J. Appl. Phys. 100, 113715 (2006): the band-tail share b(N) -> 0),
+    # not by a switch at the Mott density.
     state = solve_equilibrium("Si", 300.0, {"P": 1e19 * PER_CM3})
     assert bool(state.metallic)
-    assert float(state.donor_fraction) == 1.0
+    assert 0.7 < float(state.donor_fraction) < 1.0
+    far = solve_equilibrium("Si", 300.0, {"P": 1e20 * PER_CM3})
+    assert float(far.donor_fraction) > 0.97
     below = solve_equilibrium("Si", 300.0, {"P": 1e18 * PER_CM3})
     assert not bool(below.metallic)
-    # references.md §4d: the naive model gives 76 % at 1e18 (below the Mott density)
-    assert float(below.donor_fraction) == pytest.approx(0.76, abs=0.01)
 
 
 def test_converges_everywhere_on_a_wide_grid():

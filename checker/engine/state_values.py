@@ -109,14 +109,17 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
         flow = {key: np.full_like(T, np.nan) for key in (
             "mu_n", "mu0_n", "vsat_n", "beta_n", "v_n", "mfp_n",
             "mu_p", "mu0_p", "vsat_p", "beta_p", "v_p", "mfp_p")}
+        flow["cond_n"] = flow["cond_p"] = np.ones_like(T)
         flow["kT_over_q"] = state.kT / ELEMENTARY_CHARGE
     (T_lo, T_hi), (N_lo, N_hi), binding = carriers.model_ranges(
         material, _dominant(first.donors), _dominant(first.acceptors))
     net = np.abs(state.donors_total - state.acceptors_total)
     narrowing = material.narrowing(state.donors_total, state.acceptors_total) \
         if material.narrowing else np.full_like(T, np.nan)
+    ni_lo, ni_hi = _ni_spread(material, T, state.ni, first.band_gap_narrowing)
     put = {
         "T": T, "kT": state.kT, "kT_q": flow["kT_over_q"], "Eg": state.Eg, "ni": state.ni,
+        "ni_lo": ni_lo, "ni_hi": ni_hi,
         "Nnet": net, "Ntot": state.donors_total + state.acceptors_total,
         "T_onset": _onset(material, net),
         "dEg_bgn": narrowing, "bgn_on": np.full_like(T, float(first.band_gap_narrowing)),
@@ -139,7 +142,7 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
             f"eta_{x}": eta, f"dens_{x}": dens, f"Nband_{x}": nband, f"N_{x}": own,
             f"Ncomp_{x}": other, f"Nion_{x}": ionized, f"f_{x}": fraction,
             f"mott_{x}": np.full_like(T, mott), f"metal_{x}": (own >= mott).astype(float),
-            f"mu_{x}": flow[f"mu_{x}"], f"mu0_{x}": flow[f"mu0_{x}"],
+            f"mu_{x}": flow[f"mu_{x}"], f"mu0_{x}": flow[f"mu0_{x}"], f"cond_{x}": flow[f"cond_{x}"],
             f"vsat_{x}": flow[f"vsat_{x}"], f"beta_{x}": flow[f"beta_{x}"],
             f"vth_{x}": flow[f"v_{x}"], f"lambda_{x}": flow[f"mfp_{x}"],
             f"Eion_{x}": np.full_like(T, main.energy if main else np.nan),
@@ -147,7 +150,24 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
         })
     put["maj_n"] = (state.n >= state.p).astype(float)
     put["maj_p"] = 1.0 - put["maj_n"]
+    for x, band in (("n", "electron"), ("p", "hole")):
+        low, high, (t_low, t_high) = material.hall_factors.get(band, (np.nan, np.nan, (0, 0)))
+        inside = (T >= t_low) & (T <= t_high)
+        put[f"rH_lo_{x}"] = np.where(inside, low, np.nan)
+        put[f"rH_hi_{x}"] = np.where(inside, high, np.nan)
     return put, skipped
+
+
+def _ni_spread(material, T, ni, narrowing_on):
+    """The material's published 300 K spread of n_i carried to T by the model's own
+    temperature dependence (the model value itself where none is tabulated)."""
+    if material.ni_published is None or narrowing_on:
+        # no tabulated spread: the model value +-5 % (common practice (no source))
+        return ni / 1.05, ni * 1.05
+    at_300 = equilibrium.solve(material, np.array([300.0])).ni[0]
+    low, high = material.ni_published
+    scale = ni / at_300
+    return np.minimum(ni, low * scale), np.maximum(ni, high * scale)
 
 
 def _fill_inputs(calculations, values, count=None):
@@ -198,8 +218,8 @@ def _fill_inputs(calculations, values, count=None):
         # the mean free path scales with the mobility the author uses
         values[f"lambda_{x}"] = values[f"lambda_{x}"] * used / values[f"mu_{x}"]
         values[f"used_mu_{x}"] = used
-    values["sigma"] = ELEMENTARY_CHARGE * (values["dens_n"] * values["used_mu_n"]
-                                           + values["dens_p"] * values["used_mu_p"])
+    values["sigma"] = ELEMENTARY_CHARGE * (values["dens_n"] * values["cond_n"] * values["used_mu_n"]
+                                           + values["dens_p"] * values["cond_p"] * values["used_mu_p"])
     values["rho"] = 1.0 / values["sigma"]
     _hall(values, column(lambda c: c.hall_exponent))
 
@@ -217,3 +237,12 @@ def _hall(values, exponents):
         values[f"rH_{x}"] = factor
     values["n_hall"] = hall.hall_density(values["dens_n"], values["dens_p"], values["mu_n"],
                                          values["mu_p"], values["rH_n"], values["rH_p"])
+    # measured Hall factors (where the material tabulates them) span the expected density
+    bounds = []
+    for end in ("lo", "hi"):
+        rn = np.where(np.isfinite(values[f"rH_{end}_n"]), values[f"rH_{end}_n"], values["rH_n"])
+        rp = np.where(np.isfinite(values[f"rH_{end}_p"]), values[f"rH_{end}_p"], values["rH_p"])
+        bounds.append(hall.hall_density(values["dens_n"], values["dens_p"], values["mu_n"],
+                                        values["mu_p"], rn, rp))
+    values["n_hall_lo"] = np.minimum(values["n_hall"], np.minimum(*bounds))
+    values["n_hall_hi"] = np.maximum(values["n_hall"], np.maximum(*bounds))

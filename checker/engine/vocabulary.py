@@ -30,6 +30,9 @@ COMMON = {
     "kT_q": ("V", "thermal voltage k*T/q"),
     "Eg": ("eV", "band gap at T (J inside; narrowed when band_gap_narrowing is on)"),
     "ni": ("cm^-3", "intrinsic density sqrt(N_c N_v) exp(-E_g/2kT)"),
+    "ni_lo": ("cm^-3", "lowest published n_i at T (the material's 300 K spread carried to T "
+                       "by the model; the model value where no spread is tabulated)"),
+    "ni_hi": ("cm^-3", "highest published n_i at T (as ni_lo)"),
     "Nnet": ("cm^-3", "net doping |N_D - N_A|"),
     "Ntot": ("cm^-3", "total dopant density N_D + N_A"),
     "T_onset": ("K", "temperature where n_i reaches 10 % of the net doping"),
@@ -56,6 +59,9 @@ COMMON = {
     "stated_hall": ("cm^-3", "stated Hall density 1/(q|R_H|)"),
     "n_hall": ("cm^-3", "Hall density 1/(q|R_H|) the solve and the mobility model predict "
                         "(two carriers, Hall factors)"),
+    "n_hall_lo": ("cm^-3", "lowest expected Hall density over the measured Hall-factor range "
+                           "(n_hall where none is tabulated)"),
+    "n_hall_hi": ("cm^-3", "highest expected Hall density over the measured Hall-factor range"),
     "hall_r": ("1", "exponent r of tau ∝ E^r used for the Hall factor"),
 }
 PER_CARRIER = {
@@ -70,12 +76,17 @@ PER_CARRIER = {
     "Eion_x": ("eV", "ionization energy of the main species of N_x (J inside)"),
     "gdeg_x": ("1", "ground-state degeneracy factor of the main species of N_x"),
     "rH_x": ("1", "Hall scattering factor <tau^2>/<tau>^2 of the carrier (Fermi–Dirac)"),
+    "rH_lo_x": ("1", "lowest measured Hall factor of the carrier at T (NaN: none tabulated)"),
+    "rH_hi_x": ("1", "highest measured Hall factor of the carrier at T (NaN: none tabulated)"),
     "metal_x": ("1", "1 where N_x is above its Mott density"),
     "maj_x": ("1", "1 where this carrier is the majority"),
     "in_use_x": ("1", "1 where the calculation uses this carrier"),
     "mu_x": ("cm^2/(V*s)", "low-field mobility of the material model at N_D + N_A"),
     "used_mu_x": ("cm^2/(V*s)", "mobility the calculation uses: the stated one, else the model's"),
-    "mu0_x": ("cm^2/(V*s)", "lattice-limited mobility (model at N = 0)"),
+    "mu0_x": ("cm^2/(V*s)", "lattice-limited mobility (highest of the material's published "
+                            "fits at N = 0)"),
+    "cond_x": ("1", "conduction credit: 1/(ionized fraction at the fit temperature) for a "
+                    "mobility given per dopant atom (the silicon resistivity standard), else 1"),
     "vsat_x": ("cm/s", "saturation velocity"),
     "beta_x": ("1", "Caughey–Thomas field exponent"),
     "vth_x": ("cm/s", "unidirectional thermal velocity <v_x+> (Fermi–Dirac)"),

@@ -37,15 +37,27 @@ def carrier_transport(state: State, dimension=3, mobility_model=None) -> dict:
     """
     material = state.material
     impurities = state.donors_total + state.acceptors_total
+    n_type = state.donors_total >= state.acceptors_total
     result = {"kT_over_q": BOLTZMANN * state.T / ELEMENTARY_CHARGE}
-    for x, band, eta, dens, species in (("n", "electron", state.eta_n, state.n, state.donors),
-                                        ("p", "hole", state.eta_p, state.p, state.acceptors)):
+    conduction = {}
+    for x, band, eta, dens, species, majority in (
+            ("n", "electron", state.eta_n, state.n, state.donors, n_type),
+            ("p", "hole", state.eta_p, state.p, state.acceptors, ~n_type)):
         model = material.need(band, "mobility (conductivity, Einstein relation)")
-        mu = model.low_field(impurities, state.T, mobility_model, _dominant(species))
+        main = _dominant(species)
+        mu = model.low_field(impurities, state.T, mobility_model, main)
+        if model.minority_model and not mobility_model and not np.all(majority):
+            mu = np.where(majority, mu, model.low_field(impurities, state.T, minority=True))
+        conduction[x] = np.where(majority, _every_dopant_factor(state, model, mobility_model,
+                                                                main, x), 1.0)
         d = transport.diffusion_coefficient(mu, state.T, eta, dimension)
         result[f"mu_{x}"] = mu
-        result[f"mu0_{x}"] = model.low_field(np.zeros_like(impurities), state.T, mobility_model,
-                                            _dominant(species))
+        result[f"cond_{x}"] = conduction[x]
+        # the lattice limit: the highest of the material's published fits at N = 0
+        zero = np.zeros_like(impurities)
+        result[f"mu0_{x}"] = model.low_field(zero, state.T, mobility_model, main) \
+            if mobility_model else np.max([fit(zero, state.T) for fit in model.mobility.values()],
+                                          axis=0)
         result[f"D_{x}"] = d
         result[f"vsat_{x}"] = model.vsat(state.T) if model.vsat else np.full_like(mu, np.nan)
         result[f"beta_{x}"] = model.beta(state.T) if model.beta else np.full_like(mu, np.nan)
@@ -56,9 +68,27 @@ def carrier_transport(state: State, dimension=3, mobility_model=None) -> dict:
             result[f"mfp_{x}"] = transport.backscattering_mean_free_path(d, v)
         else:
             result[f"v_{x}"] = result[f"mfp_{x}"] = np.full_like(mu, np.nan)
-    result["sigma"] = transport.conductivity(state.n, state.p, result["mu_n"], result["mu_p"])
+    result["sigma"] = transport.conductivity(state.n * conduction["n"], state.p * conduction["p"],
+                                             result["mu_n"], result["mu_p"])
     result["rho"] = 1.0 / result["sigma"]
     return result
+
+
+def _every_dopant_factor(state: State, model, mobility_model, species, carrier):
+    """1/f(T_0) for a mobility given per dopant atom (sigma = q N mu at T_0, as the
+    silicon resistivity standard is): the free carriers at T_0 are then credited with
+    the conduction of every dopant, so incomplete ionization is not counted twice,
+    while freeze-out relative to T_0 still lowers the conductivity.  1 otherwise."""
+    if not model.counts_every_dopant(mobility_model, species):
+        return np.ones_like(state.T)
+    from .equilibrium import solve
+
+    fit = model.mobility[model.model_name(mobility_model, species)]
+    T0 = np.full_like(state.T, getattr(fit, "T0", 296.15))
+    at_T0 = solve(state.material, T0, state.donors, state.acceptors,
+                  band_gap_narrowing=bool(np.any(state.narrowing > 0)))
+    fraction = at_T0.donor_fraction if carrier == "n" else at_T0.acceptor_fraction
+    return 1.0 / np.maximum(fraction, 1e-300)
 
 
 # regime names, indexed by the codes of regime_code (precedence rises with the code)
@@ -153,7 +183,7 @@ def model_ranges(material: Material, donor_species, acceptor_species, mobility_m
         model = getattr(material, band)
         if model is None:
             continue
-        name = mobility_model or model.dopant_models.get(species or "", model.default_model)
+        name = model.model_name(mobility_model, species)
         fit = model.mobility.get(name)
         if fit is not None:
             parts.append((f"{band} mobility ({name})", fit.provenance, True))

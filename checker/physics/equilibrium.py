@@ -102,13 +102,13 @@ class State:
     @cached_property
     def donors_ionized(self):
         return {name: ionized_density(self.material.dopant(name), dens, self.eta_n, self.kT,
-                                      self.narrowing, self.donors_total)
+                                      self.donors_total)
                 for name, dens in self.donors.items()}
 
     @cached_property
     def acceptors_ionized(self):
         return {name: ionized_density(self.material.dopant(name), dens, self.eta_p, self.kT,
-                                      self.narrowing, self.acceptors_total)
+                                      self.acceptors_total)
                 for name, dens in self.acceptors.items()}
 
     @property
@@ -156,7 +156,7 @@ def charge_balance_error(state: State) -> np.ndarray:
     ----------
     Sze & Ng (2007) ch. 1 (charge neutrality).
     """
-    kT, narrowing = state.kT, state.narrowing
+    kT = state.kT
     negative = [np.log(state.Nc) + log_fermi_dirac(0.5, state.eta_n)]
     positive = [np.log(state.Nv) + log_fermi_dirac(0.5, state.eta_p)]
     for group, eta_band, total, side in ((state.donors, state.eta_n, state.donors_total, positive),
@@ -164,7 +164,7 @@ def charge_balance_error(state: State) -> np.ndarray:
                                           negative)):
         for name, density in group.items():
             side.append(log_ionized_density(state.material.dopant(name), density, eta_band, kT,
-                                            narrowing, total))
+                                            total))
     with np.errstate(invalid="ignore", over="ignore"):
         ln_neg, ln_pos = np.logaddexp.reduce(negative), np.logaddexp.reduce(positive)
         top = np.maximum(ln_neg, ln_pos)
@@ -172,34 +172,40 @@ def charge_balance_error(state: State) -> np.ndarray:
     return np.where(np.isfinite(top), error, 0.0)
 
 
-def log_ionized_density(dopant, density, eta_band, kT, narrowing, same_type_total):
-    """ln of :func:`ionized_density` without underflow (-inf where the density is 0)."""
-    offset = _ionization_offset(dopant, kT, narrowing)
-    metallic = same_type_total >= dopant.mott_density
+def _level_terms(dopant, density, kT, same_type_total):
+    """Per bound level: (ln N_level, occupancy offset E(N)/kT + ln g, ln b, ln(1 - b))."""
+    ln_b, ln_free = dopant.share_model().log_shares(same_type_total)
+    factor = dopant.lowering_factor(same_type_total)
     ln_density = _log(density)
-    return np.where(metallic, ln_density, ln_density - np.logaddexp(0.0, eta_band + offset))
+    return [(ln_density + np.log(level.share), level.energy * factor / kT + np.log(level.degeneracy),
+             ln_b, ln_free) for level in dopant.bound_levels()]
 
 
-def ionized_density(dopant, density, eta_band, kT, narrowing, same_type_total):
+def log_ionized_density(dopant, density, eta_band, kT, same_type_total):
+    """ln of :func:`ionized_density` without underflow (-inf where the density is 0)."""
+    parts = [ln_n + np.logaddexp(ln_free, ln_b - np.logaddexp(0.0, eta_band + offset))
+             for ln_n, offset, ln_b, ln_free in _level_terms(dopant, density, kT, same_type_total)]
+    return np.logaddexp.reduce(parts) if len(parts) > 1 else parts[0]
+
+
+def ionized_density(dopant, density, eta_band, kT, same_type_total):
     """Ionized density of one species (m^-3), vectorized.
 
-    Formula: N^+ = N / (1 + g exp(eta_band + E_ion/kT)), where eta_band is
-    eta_n for donors and eta_p for acceptors; a species whose same-type total
-    reaches its Mott density is fully ionized (metallic impurity band).
+    Formula, summed over the species' bound levels k (share s_k, degeneracy g_k):
+      N^+ = N sum_k s_k [1 - b(N) + b(N) / (1 + g_k exp(eta_band + E_k(N)/kT))],
+    where eta_band is eta_n for donors and eta_p for acceptors, E_k(N) the level's
+    ionization energy lowered with the same-type density N, and b(N) the share of
+    dopants that can bind a carrier (1 - b are in the band tail, always ionized).
+    With b = 1 and no lowering this is the isolated-impurity form of Sze & Ng.
+    Levels are measured from their own band edge, so band-gap narrowing moves them
+    with the band.  Units: densities m^-3, kT in J.
 
     References
     ----------
-    Sze & Ng (2007) ch. 1; Edwards & Sienko, Phys. Rev. B 17, 2575 (1978).
+    Sze & Ng (2007) ch. 1; P. P. Altermatt et al., J. Appl. Phys. 100, 113715 (2006)
+    (lowering, band-tail share); G. L. Pearson and J. Bardeen, Phys. Rev. 75, 865 (1949).
     """
-    offset = _ionization_offset(dopant, kT, narrowing)
-    metallic = same_type_total >= dopant.mott_density
-    # F_-1 is the logistic function: the ionized fraction 1/(1 + g e^(eta + E/kT))
-    return np.where(metallic, density, density * fermi_dirac(-1, -(eta_band + offset)))
-
-
-def _ionization_offset(dopant, kT, narrowing):
-    """E_ion/kT + ln g; the narrowing moves each band edge by half of it."""
-    return (dopant.energy + 0.5 * narrowing) / kT + np.log(dopant.degeneracy)
+    return np.exp(log_ionized_density(dopant, density, eta_band, kT, same_type_total))
 
 
 def _sum(parts: dict, like):
@@ -258,31 +264,27 @@ class _Neutrality:
     """
 
     BASE_ROWS = 5  # ln N_c, ln N_v, E_g/kT, ln max(N_D - N_A, 0), ln max(N_A - N_D, 0)
+    TERM_ROWS = 4  # per bound level: ln N_level, offset, ln b, ln(1 - b)
 
-    def __init__(self, params, n_donors, n_acceptors, any_metallic):
+    def __init__(self, params, n_donors, n_acceptors):
         self.params = params
         self.n_donors, self.n_acceptors = n_donors, n_acceptors
-        self.any_metallic = any_metallic
 
     @classmethod
     def build(cls, ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p, donor_terms, acceptor_terms):
-        """Each term: (ln N, occupancy offset, metallic flag) of one species."""
+        """Each term: (ln N_level, occupancy offset, ln b, ln(1 - b)) of one bound level."""
         rows = [ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p]
-        any_metallic = False
-        for ln_n, offset, metallic in donor_terms + acceptor_terms:
-            rows += [ln_n, offset, metallic.astype(float)]
-            any_metallic = any_metallic or bool(metallic.any())
-        return cls(np.array(rows), len(donor_terms), len(acceptor_terms), any_metallic)
+        for term in donor_terms + acceptor_terms:
+            rows += list(term)
+        return cls(np.array(rows), len(donor_terms), len(acceptor_terms))
 
     def subset(self, keep):
         """The residual restricted to the points at integer positions ``keep``."""
-        return _Neutrality(np.take(self.params, keep, axis=1), self.n_donors, self.n_acceptors,
-                           self.any_metallic)
+        return _Neutrality(np.take(self.params, keep, axis=1), self.n_donors, self.n_acceptors)
 
     def _species(self, k):
-        row = self.BASE_ROWS + 3 * k
-        metallic = self.params[row + 2] > 0.5 if self.any_metallic else None
-        return self.params[row], self.params[row + 1], metallic
+        row = self.BASE_ROWS + self.TERM_ROWS * k
+        return self.params[row:row + self.TERM_ROWS]
 
     def __call__(self, eta):
         """Return (f, df/deta) with f = ln(left side) - ln(right side), increasing in eta."""
@@ -299,13 +301,13 @@ class _Neutrality:
         plain_left = [(ln_nc + both[:size], slopes[:size])]
         plain_right = [(ln_nv + both[size:], -slopes[size:])]
         for k in range(self.n_donors):
-            ln_n, offset, metallic = self._species(k)
-            neutral, ionized = _impurity_terms(ln_n, eta + offset, metallic, +1.0)
+            ln_n, offset, ln_b, ln_free = self._species(k)
+            neutral, ionized = _impurity_terms(ln_n, eta + offset, ln_b, ln_free, +1.0)
             left.append(neutral)
             plain_right.append(ionized)
         for k in range(self.n_donors, self.n_donors + self.n_acceptors):
-            ln_n, offset, metallic = self._species(k)
-            neutral, ionized = _impurity_terms(ln_n, eta_p + offset, metallic, -1.0)
+            ln_n, offset, ln_b, ln_free = self._species(k)
+            neutral, ionized = _impurity_terms(ln_n, eta_p + offset, ln_b, ln_free, -1.0)
             right.append(neutral)
             plain_left.append(ionized)
         lse_l, dl = _logsumexp_with_slope(left)
@@ -321,24 +323,21 @@ class _Neutrality:
         return f, df
 
 
-def _impurity_terms(ln_density, argument, metallic, sign):
-    """(ln N^0, slope) and (ln N^ion, slope) of one species; slopes are d/d eta.
+def _impurity_terms(ln_density, argument, ln_b, ln_free, sign):
+    """(ln N^0, slope) and (ln N^ion, slope) of one bound level; slopes are d/d eta.
 
-    ln N^0 = ln N - ln(1 + e^-arg) (occupied impurities), ln N^ion = ln N - ln(1 + e^arg)
-    (ionized); d ln N^0 / d arg is the ionized fraction and d ln N^ion / d arg minus
-    the neutral fraction.  ``sign`` is d arg / d eta.  A metallic species has no bound
-    carriers: ln N^0 = -inf and N^ion = N.
+    With the isolated-level occupancy u = 1/(1 + e^-arg) (arg = eta_band + offset):
+    N^0 = b N u and N^ion = N (1 - b + b (1 - u)), written as a sum of two positive
+    parts so that neither form cancels.  ``sign`` is d arg / d eta.
     """
-    soft, ionized = _softplus_and_logistic(-argument)
-    neutral_value, neutral_slope = ln_density - soft, sign * ionized
-    ion_value = ln_density - (soft + argument)
-    ion_slope = sign * (ionized - 1.0)
-    if metallic is not None:
-        neutral_value = np.where(metallic, -np.inf, neutral_value)
-        neutral_slope = np.where(metallic, 0.0, neutral_slope)
-        ion_value = np.where(metallic, ln_density, ion_value)
-        ion_slope = np.where(metallic, 0.0, ion_slope)
-    return (neutral_value, neutral_slope), (ion_value, ion_slope)
+    soft, ionized = _softplus_and_logistic(-argument)      # ln(1 + e^-arg), 1 - u
+    neutral_value = ln_density + ln_b - soft
+    neutral_slope = sign * ionized
+    bound_ionized = ln_b - (soft + argument)                # ln(b (1 - u))
+    ion_value = np.logaddexp(ln_free, bound_ionized)
+    weight = np.exp(bound_ionized - ion_value)              # share of N^ion still bound-able
+    ion_slope = sign * (ionized - 1.0) * weight
+    return (neutral_value, neutral_slope), (ln_density + ion_value, ion_slope)
 
 
 def _logsumexp_with_slope(terms):
@@ -548,9 +547,10 @@ def _effective_levels(donors, acceptors, species, nd_total, na_total, T):
         best = np.full_like(T, -1.0)
         for name, dens in group.items():
             better = dens > best
-            energy = np.where(better, species[name].energy, energy)
+            d = species[name]
+            energy = np.where(better, d.energy * d.lowering_factor(total), energy)
             best = np.maximum(best, dens)
-            metal |= total >= species[name].mott_density
+            metal |= total >= d.share_model().N_b   # mostly band-tail: start as ionized
         return energy, metal
 
     e_d, m_d = pick(donors, nd_total)
@@ -575,18 +575,17 @@ def _solve_flat(material, T, donors, acceptors, band_gap_narrowing, species, out
     eg_kt = Eg_eff / kT
 
     def terms(group, total):
-        out_terms = []
-        for name, density in group.items():
-            d = species[name]
-            offset = _ionization_offset(d, kT, narrowing)
-            out_terms.append((_log(density), offset, total >= d.mott_density))
-        return out_terms
+        # bound levels move with their band edge: band-gap narrowing leaves E_ion alone
+        return [term for name, density in group.items()
+                for term in _level_terms(species[name], density, kT, total)]
 
     donor_terms = terms(donors, nd_total)
     acceptor_terms = terms(acceptors, na_total)
     metallic = np.zeros(T.shape, dtype=bool)
-    for _, _, flag in donor_terms + acceptor_terms:
-        metallic |= flag
+    for name in donors:
+        metallic |= nd_total >= species[name].mott_density
+    for name in acceptors:
+        metallic |= na_total >= species[name].mott_density
     ln_nc, ln_nv = np.log(Nc), np.log(Nv)
     ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
     net = nd_total - na_total

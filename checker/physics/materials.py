@@ -15,7 +15,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import MissingParameterError, UnknownDopantError
-from .constants import ELEMENTARY_CHARGE, VACUUM_PERMITTIVITY
+from .constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE, PLANCK, VACUUM_PERMITTIVITY
 
 T_REF = 300.0
 
@@ -72,13 +72,113 @@ class PowerLawDOS:
 
 
 @dataclass(frozen=True)
-class Dopant:
-    """An impurity species: donor or acceptor with its ionization energy.
+class MassPolynomialDOS:
+    """Effective density of states with a temperature-dependent DOS mass:
+    N(T) = 2 (2 pi m0 k T / h^2)^(3/2) D(T),  D(T) = (m_d(T)/m0)^(3/2) = sum_k a_k T^k.
 
-    ``energy`` is measured from the nearest band edge (J); ``degeneracy`` is the
-    ground-state degeneracy factor (2 for donors, 4 for acceptors in cubic
-    semiconductors).  ``mott_density`` (m^-3) is where the impurity band merges
-    with the band; above it the isolated-impurity model is invalid.
+    ``coefficients`` a_0, a_1, ... (T in K); beyond ``T_fit`` the mass is held at its
+    value there (the cubic fits are not made for extrapolation).  Units: m^-3.
+
+    References
+    ----------
+    R. Couderc, M. Amara and M. Lemiti, J. Appl. Phys. 115, 093705 (2014) (Si, fits
+    to 500 K, after M. A. Green, J. Appl. Phys. 67, 2944 (1990)).
+    """
+
+    coefficients: tuple
+    T_fit: float
+    provenance: Provenance
+
+    def __call__(self, T):
+        T = np.asarray(T, dtype=float)
+        mass_term = np.polynomial.polynomial.polyval(np.minimum(T, self.T_fit), self.coefficients)
+        return 2.0 * (2 * np.pi * ELECTRON_MASS * BOLTZMANN * T / PLANCK ** 2) ** 1.5 * mass_term
+
+
+@dataclass(frozen=True)
+class AltermattLowering:
+    """Ionization energy lowered by doping: E(N) = E_0 / (1 + (N/N_ref)^c).
+
+    Units: N and N_ref in m^-3; returns the factor E(N)/E_0 (dimensionless).
+    Validity: Si:P, As, B from isolated impurities to beyond the Mott density.
+
+    References
+    ----------
+    P. P. Altermatt, A. Schenk, B. Schmithüsen and G. Heiser, J. Appl. Phys. 100,
+    113715 (2006), Table I; part I (Si:P): J. Appl. Phys. 100, 113714 (2006).
+    """
+
+    N_ref: float
+    c: float
+
+    def __call__(self, N):
+        return 1.0 / (1.0 + (np.asarray(N, dtype=float) / self.N_ref) ** self.c)
+
+
+@dataclass(frozen=True)
+class PearsonBardeenLowering:
+    """Ionization energy lowered by doping: E(N) = max(E_0 - alpha N^(1/3), 0).
+
+    ``alpha`` in J m; returns the factor E(N)/E_0 (dimensionless).  Validity: below
+    and around the Mott density (the electrostatic screening picture).
+
+    References
+    ----------
+    G. L. Pearson and J. Bardeen, Phys. Rev. 75, 865 (1949).
+    """
+
+    alpha: float
+    E0: float
+
+    def __call__(self, N):
+        return np.maximum(1.0 - self.alpha * np.cbrt(np.asarray(N, dtype=float)) / self.E0, 0.0)
+
+
+@dataclass(frozen=True)
+class BoundShare:
+    """Share of dopants that can bind a carrier: b(N) = 1 / (1 + (N/N_b)^d).
+
+    The rest (1 - b) sit in the band tail merged with the band and are always
+    ionized, so the ionized fraction rises smoothly to 1 through the Mott
+    transition instead of jumping there.  Units: m^-3.
+
+    References
+    ----------
+    Altermatt et al., J. Appl. Phys. 100, 113715 (2006), eq. (3) and Table I.
+    """
+
+    N_b: float
+    d: float
+
+    def log_shares(self, N):
+        """(ln b, ln(1 - b)) without cancellation."""
+        x = self.d * (np.log(np.maximum(np.asarray(N, dtype=float), 1e-300)) - np.log(self.N_b))
+        soft = np.logaddexp(0.0, x)
+        return -soft, x - soft
+
+
+@dataclass(frozen=True)
+class DopantLevel:
+    """One bound level of a species: ionization energy from its band edge (J),
+    ground-state degeneracy, and the share of the species' atoms on it (e.g. the
+    hexagonal and cubic lattice sites of 4H-SiC)."""
+
+    energy: float
+    degeneracy: float
+    share: float = 1.0
+
+
+@dataclass(frozen=True)
+class Dopant:
+    """An impurity species: donor or acceptor with its bound level(s).
+
+    ``energy`` is the (first) level's isolated ionization energy from the nearest band
+    edge (J); ``degeneracy`` its ground-state degeneracy factor (2 for donors, 4 for
+    acceptors in cubic semiconductors).  ``levels`` lists every level with its share
+    (one level at ``energy`` when empty).  ``lowering`` (a callable N -> E(N)/E_0)
+    lowers every level with the same-type dopant density; ``bound_share`` (b(N))
+    is the share that can bind a carrier at all.  ``mott_density`` (m^-3) is where
+    the impurity band merges with the band (reported as the metallic regime).
     """
 
     name: str
@@ -88,6 +188,25 @@ class Dopant:
     mott_density: float
     mott_estimated: bool
     provenance: Provenance
+    levels: tuple = ()
+    lowering: object = None
+    bound_share: BoundShare | None = None
+
+    def bound_levels(self) -> tuple:
+        return self.levels or (DopantLevel(self.energy, self.degeneracy, 1.0),)
+
+    def share_model(self) -> BoundShare:
+        """b(N).  Without published values: the shape Altermatt et al. (2006) fitted for
+        Si:P, B and As (d = 2.3, N_b = 1.6 times the Mott density, their ratio for all
+        three), carried over to this species' Mott density (an assumption, no source)."""
+        return self.bound_share or BoundShare(1.6 * self.mott_density, 2.3)
+
+    def lowering_factor(self, same_type_total):
+        """E(N)/E_0: the published lowering where the material file gives one, else 1
+        (the band-tail share alone then carries the crossover to full ionization)."""
+        if self.lowering is None:
+            return np.ones_like(np.asarray(same_type_total, dtype=float))
+        return self.lowering(same_type_total)
 
 
 def edwards_sienko_mott_density(energy, eps_r):
@@ -181,6 +300,79 @@ class Arora:
 
 
 @dataclass(frozen=True)
+class ResistivityStandardMobility:
+    """Conductivity mobility per dopant atom from the silicon resistivity standard:
+    mu(N) = 1 / (q N rho(N)) at 23 degC, with rho(N) the dopant-density-to-resistivity
+    conversion of ASTM F723 (Thurber et al. 1980) for boron or phosphorus:
+
+      boron:       rho = a/N + b / (N (1 + (c N)^(-e)))                  (F723 eq. 4)
+      phosphorus:  rho = (k/N) 10^Z,  Z = P3(y)/Q3(y),  y = log10(N / 1 cm^-3) - 16  (eqs. 5-6)
+
+    ``form`` selects the equation; ``coefficients`` are the standard's (cm-based: a, b
+    in Ohm cm cm^-3, c in cm^3; k in Ohm cm cm^-3; C0..C3, D1..D3).  Every dopant atom
+    counts as a carrier in this convention (it is a measured conversion, not a model of
+    ionization).  N is clamped to the standard's range.  Units: m^-3 -> m^2/(V s).
+    Validity: B 1e12-1e21, P 1e12-5e20 cm^-3, at 23 degC (use with a temperature model).
+
+    References
+    ----------
+    ASTM F723-99, Practice for Conversion Between Resistivity and Dopant Density for
+    Boron-Doped, Phosphorus-Doped, and Arsenic-Doped Silicon; W. R. Thurber, R. L.
+    Mattis, Y. M. Liu and J. J. Filliben, NBS Special Publication 400-64 (1981).
+    """
+
+    form: str                  # "boron" | "phosphorus"
+    coefficients: tuple
+    N_range: tuple             # m^-3
+    provenance: Provenance
+    every_dopant = True        # conductivity convention: sigma = q N mu at 23 degC
+
+    def resistivity_cm(self, N_cm3):
+        """The standard's resistivity (Ohm cm) at N (cm^-3)."""
+        if self.form == "boron":
+            a, b, c, e = self.coefficients
+            return a / N_cm3 + b / (N_cm3 * (1.0 + (c * N_cm3) ** (-e)))
+        k, c0, c1, c2, c3, d1, d2, d3 = self.coefficients
+        y = np.log10(N_cm3) - 16.0
+        z = (c0 + y * (c1 + y * (c2 + y * c3))) / (1.0 + y * (d1 + y * (d2 + y * d3)))
+        return k / N_cm3 * 10.0 ** z
+
+    def __call__(self, N, T=None):
+        N_cm3 = np.clip(np.asarray(N, dtype=float), *self.N_range) * 1e-6
+        rho_ohm_m = self.resistivity_cm(N_cm3) * 1e-2
+        return 1.0 / (ELEMENTARY_CHARGE * N_cm3 * 1e6 * rho_ohm_m)
+
+
+@dataclass(frozen=True)
+class TemperatureRatio:
+    """A mobility known at one temperature carried to others by another model's ratio:
+    mu(N, T) = base(N, T_0) * shape(N, T) / shape(N, T_0).
+
+    Used to give the 23 degC resistivity standard (and Masetti's 300 K fits) the
+    doping-dependent temperature behaviour of Arora et al. (1982).  Units: SI.
+
+    References
+    ----------
+    N. D. Arora, J. R. Hauser and D. J. Roulston, IEEE Trans. Electron Devices 29, 292
+    (1982) (the temperature dependence; stated accuracy +-13 % over 250-500 K).
+    """
+
+    base: object
+    shape: object
+    T0: float
+    provenance: Provenance
+
+    @property
+    def every_dopant(self):
+        return getattr(self.base, "every_dopant", False)
+
+    def __call__(self, N, T):
+        T = np.asarray(T, dtype=float)
+        T0 = np.full_like(T, self.T0)
+        return self.base(N, T0) * self.shape(N, T) / self.shape(N, T0)
+
+
+@dataclass(frozen=True)
 class CaugheyThomas:
     """Caughey–Thomas mobility with power-law temperature terms.
 
@@ -261,6 +453,26 @@ class SaturationVelocity:
 
 
 @dataclass(frozen=True)
+class PowerLawVelocity:
+    """Saturation velocity v_m(T) = v_300 (T/300 K)^power.
+
+    Units: m/s.  Validity: the fitted range in ``provenance.valid_T``.
+
+    References
+    ----------
+    C. Canali et al., IEEE Trans. Electron Devices 22, 1045 (1975): Si electrons
+    1.53e9 T^-0.87 cm/s, holes 1.62e8 T^-0.52 cm/s (77-430 K).
+    """
+
+    v300: float
+    power: float
+    provenance: Provenance
+
+    def __call__(self, T):
+        return self.v300 * (np.asarray(T, dtype=float) / T_REF) ** self.power
+
+
+@dataclass(frozen=True)
 class PowerLawExponent:
     """A dimensionless model parameter b(T) = b_ref T^k (T in K; k = 0: constant).
 
@@ -331,12 +543,28 @@ class CarrierTransport:
     mobility: dict            # model name -> callable(N_ionized, T) -> m^2/(V s)
     default_model: str
     dopant_models: dict = field(default_factory=dict)  # species -> model name
-    vsat: SaturationVelocity | None = None
+    vsat: SaturationVelocity | PowerLawVelocity | None = None
     beta: PowerLawExponent | None = None
     thermal_mass: float | None = None   # m0 units (conductivity mass)
+    minority_model: str | None = None   # model for this carrier where it is the minority
 
-    def low_field(self, N_ionized, T, model: str | None = None, species: str | None = None):
-        name = model or self.dopant_models.get(species or "", self.default_model)
+    def model_name(self, model: str | None = None, species: str | None = None,
+                   minority: bool = False) -> str:
+        if model:
+            return model
+        if minority and self.minority_model:
+            return self.minority_model
+        return self.dopant_models.get(species or "", self.default_model)
+
+    def counts_every_dopant(self, model: str | None = None, species: str | None = None) -> bool:
+        """True where the model's mobility is conductivity per dopant atom (sigma = q N mu
+        at its reference temperature) rather than per free carrier."""
+        return bool(getattr(self.mobility.get(self.model_name(model, species)), "every_dopant",
+                            False))
+
+    def low_field(self, N_ionized, T, model: str | None = None, species: str | None = None,
+                  minority: bool = False):
+        name = self.model_name(model, species, minority)
         try:
             return self.mobility[name](N_ionized, T)
         except KeyError:
@@ -352,14 +580,18 @@ class Material:
     name: str
     long_name: str
     band_gap: VarshniGap | None
-    Nc: PowerLawDOS | None
-    Nv: PowerLawDOS | None
+    Nc: PowerLawDOS | MassPolynomialDOS | None
+    Nv: PowerLawDOS | MassPolynomialDOS | None
     eps_r: float | None
     dopants: dict
     electron: CarrierTransport | None
     hole: CarrierTransport | None
     narrowing: SlotboomNarrowing | CubeRootNarrowing | None = None
     sources: dict = field(default_factory=dict)
+    # published spread of n_i at 300 K (low, high) in m^-3, where modern values disagree
+    ni_published: tuple | None = None
+    # measured Hall factor ranges: band -> (low, high, (T_low, T_high))
+    hall_factors: dict = field(default_factory=dict)
 
     def need(self, attribute: str, purpose: str):
         """Return a parameter or raise a clear error naming what needs it."""
@@ -380,8 +612,10 @@ class Material:
 
 
 __all__ = [
-    "Arora", "CarrierTransport", "CaugheyThomas", "CubeRootNarrowing", "Dopant",
-    "Levinshtein", "Masetti", "Material", "PowerLawDOS", "PowerLawExponent",
-    "Provenance", "SaturationVelocity", "SlotboomNarrowing", "VarshniGap",
+    "AltermattLowering", "Arora", "BoundShare", "CarrierTransport", "CaugheyThomas",
+    "CubeRootNarrowing", "Dopant", "DopantLevel", "PearsonBardeenLowering",
+    "Levinshtein", "Masetti", "MassPolynomialDOS", "Material", "PowerLawDOS",
+    "PowerLawExponent", "PowerLawVelocity", "Provenance", "ResistivityStandardMobility",
+    "SaturationVelocity", "SlotboomNarrowing", "TemperatureRatio", "VarshniGap",
     "edwards_sienko_mott_density",
 ]
