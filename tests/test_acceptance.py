@@ -333,7 +333,7 @@ def test_stated_value_is_the_published_one(case):
 
 def test_published_values_cited_beside_the_equations():
     """A few printed numbers the equations above must reproduce (spot checks of the
-    transcription of the coefficients)."""
+    copying of the coefficients)."""
     # Arora et al. (1982): undoped Si electrons at 500 K about 446 cm^2/(V*s) (issue brief)
     assert arora_n(1e10, 500) == pytest.approx(446, rel=5e-3)
     # Arora et al. (1982): mu_0 T^-2.33 = 1252 and 1.36e8 T^-2.23 = 407 at 300 K
