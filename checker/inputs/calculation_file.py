@@ -207,8 +207,10 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
                          f"{', '.join(TOP_KEYS)}")
     problems = Problems()
     problems.run(_unknown_keys, data, TOP_KEYS, where, "calculation")
+    misspelt = {close for key in data if key not in TOP_KEYS
+                for close in difflib.get_close_matches(key, TOP_KEYS, n=1)}
     for key in ("material", "temperature"):
-        if key not in data:
+        if key not in data and key not in misspelt:       # else 'did you mean' says it
             problems.add(InputError(f"{where()}: missing {key!r}; add e.g. "
                                     + ("material: Si" if key == "material" else
                                        "temperature: 300 K")))
@@ -227,6 +229,7 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     waivers = problems.run(_waivers, data.get("waivers"), where, default={})
     formulas = problems.run(_formulas, data.get("formulas"), where, default=[])
     problems.run(_check_sweep_size, axes, where)
+    problems.messages.sort(key=lambda message: _position(message, path))
     problems.raise_any()
     line = doc.positions.get((), (1, 1))[0]
     calc = Calculation(name=name or f"{Path(path).name}:{line}", source=path,
@@ -236,6 +239,12 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     calc.structure, calc.stated, calc.lines = structure, stated, lines
     calc.assumes, calc.waivers, calc.formulas, calc.sweep = assumes, waivers, formulas, axes
     return calc
+
+
+def _position(message: str, path: str) -> tuple:
+    """(line, column) a message names after ``path``, for listing errors in file order."""
+    found = re.match(r":(\d+):(\d+)", message[len(path):]) if message.startswith(path) else None
+    return (int(found[1]), int(found[2])) if found else (0, 0)
 
 
 def _name(data, where):
