@@ -48,7 +48,7 @@ def test_verbatim_copy_of_silicon_as_user_material():
     # Masetti et al. (1983) Table I, phosphorus, evaluated here from the paper's formula
     N = 1e16
     mu = 68.5 + (1414 - 68.5) / (1 + (N / 9.20e16) ** 0.711) - 56.1 / (1 + (3.41e20 / N) ** 1.98)
-    assert float(user.electron.low_field(N * 1e6, 300.0, species="P")) == pytest.approx(
+    assert float(user.electron.low_field(N * 1e6, 300.0, model="masetti_P")) == pytest.approx(
         mu * 1e-4, rel=1e-12)
     shipped = builtin_material("Si")
     assert user.electron == shipped.electron and user.hole == shipped.hole
