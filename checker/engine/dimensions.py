@@ -90,6 +90,8 @@ _NAMED = {
     MASS: ("kg", "a mass"),
     ENERGY * TIME: ("J·s", "an action (Planck's constant)"),
     CURRENT / AREA: ("A/m²", "a current density"),
+    TIME: ("s", "a time"),
+    RESISTANCE * AREA: ("Ω·m²", "a specific contact resistivity"),
 }
 
 

@@ -16,12 +16,21 @@ command line starts fast) and :func:`to_sympy` builds sympy objects directly
 (``evaluate=False``) for printing and symbolic work.
 
 Bounds: 4,000 characters, 400 tree nodes, depth 40, numeric constants of
-magnitude at most 1e300, and constant exponents at most 64 in magnitude.
+magnitude at most 1e300, and exponents that fold to a constant at most 64 in
+magnitude -- also when they are written as expressions (``x^(128/2)``) and when
+powers are nested through parentheses (``(x^8)^16`` raises x to 128: refused).
+A power of constants must itself stay within 1e300.  These bounds keep every
+later step (numeric samples, the exact normal form, sympy) small.
+
+A product written without ``*`` (``2N_D``, ``N_D mu_n``, ``2(a + b)``) is refused
+with the explicit form to write instead.
 """
 from __future__ import annotations
 
 import ast
 import math
+import re
+from functools import lru_cache
 
 import numpy as np
 
@@ -67,6 +76,7 @@ FUNCTIONS = {
     "exp": (1, np.exp, "exp", "e^x"),
     "log": (1, np.log, "log", "natural logarithm"),
     "ln": (1, np.log, "log", "natural logarithm (same as log)"),
+    "log10": (1, np.log10, "log10", "base-10 logarithm"),
     "sqrt": (1, np.sqrt, "sqrt", "square root"),
     "abs": (1, np.abs, "Abs", "absolute value"),
     "min": (2, np.fmin, "Min", "smaller of two values"),
@@ -99,7 +109,13 @@ def parse(text: str, names=None, where: str = "", functions=None) -> tuple:
         tree = ast.parse(text.strip().replace("^", "**"), mode="eval")
     except (SyntaxError, ValueError, RecursionError, MemoryError) as exc:
         detail = getattr(exc, "msg", None) or type(exc).__name__
-        raise InputError(f"{place}cannot parse expression {text!r}: {detail}") from None
+        if isinstance(exc, (RecursionError, MemoryError)):
+            detail = f"it is nested deeper than {MAX_DEPTH} levels"
+        products = _implicit_products(text)
+        if products:
+            raise InputError(f"{place}a product needs an explicit '*' in {_shown(text)}: write "
+                             f"{', '.join(products)}") from None
+        raise InputError(f"{place}cannot parse expression {_shown(text)}: {detail}") from None
     counter = [0]
     allowed = FUNCTIONS if functions is None else {f: FUNCTIONS[f] for f in functions}
     return _walk(tree.body, names, place, text, counter, 0, allowed)
@@ -113,9 +129,13 @@ def _walk(node, names, place, text, counter, depth, allowed):
         raise InputError(f"{place}expression is nested deeper than {MAX_DEPTH} levels")
     go = lambda child: _walk(child, names, place, text, counter, depth + 1, allowed)
     if isinstance(node, ast.Constant) and type(node.value) in (int, float):
-        value = float(node.value) if abs(node.value) < 1e309 else math.inf
+        try:
+            value = float(node.value)
+        except OverflowError:              # an integer literal of 309 digits or more
+            value = math.inf
         if not math.isfinite(value) or abs(value) > MAX_CONSTANT:
-            raise InputError(f"{place}constant {node.value!r} is out of range (|x| <= 1e300)")
+            raise InputError(f"{place}constant {_shown(str(node.value), 24)} is out of range "
+                             "(|x| <= 1e300); write it with an exponent, e.g. 1.5e20")
         return ("num", value)
     if isinstance(node, ast.Name):
         if names is not None and node.id not in names:
@@ -128,11 +148,8 @@ def _walk(node, names, place, text, counter, depth, allowed):
     if isinstance(node, ast.BinOp) and type(node.op) in _BINARY:
         op = _BINARY[type(node.op)]
         left, right = go(node.left), go(node.right)
-        if op == "**" and right[0] == "num" and abs(right[1]) > MAX_EXPONENT:
-            raise InputError(f"{place}exponent {right[1]:g} is out of range (|x| <= 64)")
-        if op == "**" and right[0] != "num" and _has_power(right):
-            raise InputError(f"{place}nested powers such as a**b**c are not accepted; "
-                             "use parentheses and a single power")
+        if op == "**":
+            _check_power(left, right, place)
         return (op, left, right)
     if isinstance(node, ast.UnaryOp) and isinstance(node.op, (ast.USub, ast.UAdd)):
         operand = go(node.operand)
@@ -144,14 +161,66 @@ def _walk(node, names, place, text, counter, depth, allowed):
         name = node.func.id
         if name not in allowed:
             raise InputError(f"{place}function {name!r} is not available; use one of "
-                             f"{', '.join(allowed)}")
+                             f"{', '.join(allowed)} (for a product write {name}*(...))")
         arity = allowed[name][0]
         if len(node.args) != arity or any(isinstance(a, ast.Starred) for a in node.args):
             raise InputError(f"{place}{name}() takes {arity} argument(s)")
         return ("call", name, tuple(go(arg) for arg in node.args))
     kind = type(node).__name__
+    if kind == "Call" and isinstance(node.func, (ast.Constant, ast.BinOp, ast.UnaryOp)) \
+            and not node.keywords:                       # 2(a + b), (a + b)(c + d)
+        factor = ast.get_source_segment(text.replace("^", "**"), node.func) or "..."
+        raise InputError(f"{place}a product needs an explicit '*': write "
+                         f"{factor.replace('**', '^')[:30]}*(...)")
     raise InputError(f"{place}{_describe(kind)} is not allowed in an expression ({text[:60]!r}); "
                      "use numbers, names, + - * / ^ and the listed functions")
+
+
+def _check_power(base, exponent, place):
+    """Refuse a power whose exponent (folded to a constant where it is one) or whose
+    nesting inside other powers is out of range, and a constant power beyond 1e300."""
+    power = ("**", base, exponent)
+    if exponent[0] != "num" and _has_power(exponent):
+        raise InputError(f"{place}nested powers such as a^b^c are not accepted; "
+                         "use parentheses and a single power")
+    value = folded(exponent)
+    if value is not None and not abs(value) <= MAX_EXPONENT:
+        raise InputError(f"{place}the exponent {_shown(to_text(exponent), 30)} is "
+                         f"{value:g}; the limit is |x| <= {MAX_EXPONENT:g}")
+    growth = _growth(power)
+    if growth > MAX_EXPONENT:
+        raise InputError(f"{place}the powers nested in {_shown(to_text(power), 40)} raise a "
+                         f"factor to the power {growth:g}; the limit is {MAX_EXPONENT:g} "
+                         "(write the combined power once)")
+    if value is not None and not names_in(base):
+        result = folded(power)
+        if not abs(result) <= MAX_CONSTANT:           # also inf and nan
+            raise InputError(f"{place}{_shown(to_text(power), 40)} is {result:g}; a "
+                             "constant must be a finite number with |x| <= 1e300")
+
+
+@lru_cache(maxsize=4096)
+def folded(tree):
+    """The value of a tree without names (a float, possibly inf or nan), else None."""
+    if names_in(tree):
+        return None
+    with np.errstate(all="ignore"):
+        return float(to_numpy(tree)({}))
+
+
+@lru_cache(maxsize=4096)
+def _growth(tree) -> float:
+    """The largest constant power any leaf is raised to through nested powers."""
+    kind = tree[0]
+    if kind in ("num", "name"):
+        return 1.0
+    if kind == "call":
+        return max(_growth(a) for a in tree[2])
+    if kind == "**":
+        exponent = folded(tree[2])
+        if exponent is not None and math.isfinite(exponent):
+            return _growth(tree[1]) * abs(exponent)
+    return max(_growth(part) for part in tree[1:])
 
 
 def _has_power(tree) -> bool:
@@ -160,6 +229,41 @@ def _has_power(tree) -> bool:
     if tree[0] == "call":
         return False
     return any(isinstance(part, tuple) and _has_power(part) for part in tree[1:])
+
+
+# a product written without "*": a number directly before a name or "(" (2N_D, 2(a+b)),
+# a name or number, spaces, then a name or number (N_D mu_n), ")" before a name, number or "("
+_NUMBER = r"(?>\d+(?:\.\d*)?(?:[eE][+-]?\d+)?)"
+_IMPLICIT = re.compile(rf"(?<![\w.])({_NUMBER})\s*(?=[^\W\d]|\()"
+                       rf"|(?<![\w.])({_NUMBER}|[^\W\d]\w*)\s+(?=\w)"
+                       rf"|(\))\s*(?=[\w(])")
+_NEXT_TOKEN = re.compile(r"\w+|\(")
+
+
+def _implicit_products(text: str) -> list:
+    """How to write ``text`` with explicit products: the whole text when short ("2*N_D"),
+    else the first few products; [] when inserting '*' does not make it parse."""
+    matches = list(_IMPLICIT.finditer(text))
+    if not matches:
+        return []
+    explicit = _IMPLICIT.sub(lambda m: (m.group(1) or m.group(2) or m.group(3)) + "*", text)
+    try:
+        ast.parse(explicit.strip().replace("^", "**"), mode="eval")
+    except (SyntaxError, ValueError, RecursionError, MemoryError):
+        return []
+    if len(explicit) <= 60:
+        return [explicit.strip()]
+    products = []
+    for m in matches[:3]:
+        following = _NEXT_TOKEN.match(text, m.end()).group(0)
+        before = m.group(1) or m.group(2) or "(...)"
+        products.append(f"{before}*{following}{'...)' if following == '(' else ''}")
+    return products
+
+
+def _shown(text: str, width: int = 60) -> str:
+    """Text quoted for a message, cut to ``width`` characters."""
+    return repr(text if len(text) <= width else text[:width] + "...")
 
 
 def _describe(kind: str) -> str:
@@ -198,8 +302,13 @@ _NUMPY_BINARY = {"+": np.add, "-": np.subtract, "*": np.multiply, "/": np.divide
                  "**": np.power}
 
 
-def to_numpy(tree):
-    """A function ``f(values)`` evaluating the tree on a dict of numpy arrays."""
+def to_numpy(tree, strict: bool = False):
+    """A function ``f(values)`` evaluating the tree on a dict of numpy arrays.
+
+    ``strict``: every intermediate result that is not finite becomes NaN and stays NaN
+    (numpy would turn inf**0 into 1 and 1/inf into 0), so a point where any step
+    overflowed or left its domain shows as NaN in the result.
+    """
     kind = tree[0]
     if kind == "num":
         value = float(tree[1])
@@ -208,15 +317,24 @@ def to_numpy(tree):
         key = tree[1]
         return lambda values: values[key]
     if kind == "neg":
-        inner = to_numpy(tree[1])
-        return lambda values: np.negative(inner(values))
-    if kind == "call":
-        function = FUNCTIONS[tree[1]][1]
-        args = [to_numpy(a) for a in tree[2]]
-        return lambda values: function(*(a(values) for a in args))
-    op = _NUMPY_BINARY[kind]
-    left, right = to_numpy(tree[1]), to_numpy(tree[2])
-    return lambda values: op(left(values), right(values))
+        op, parts = np.negative, [tree[1]]
+    elif kind == "call":
+        op, parts = FUNCTIONS[tree[1]][1], tree[2]
+    else:
+        op, parts = (_strict_power if strict and kind == "**" else _NUMPY_BINARY[kind]), tree[1:]
+    parts = [to_numpy(part, strict) for part in parts]
+    if strict:
+        return lambda values: _finite_or_nan(op(*(part(values) for part in parts)))
+    return lambda values: op(*(part(values) for part in parts))
+
+
+def _strict_power(base, exponent):
+    return np.where(np.isnan(base) | np.isnan(exponent), np.nan, np.power(base, exponent))
+
+
+def _finite_or_nan(value):
+    value = np.asarray(value, dtype=float)
+    return np.where(np.isfinite(value), value, np.nan)
 
 
 def _sympy_number(value):
@@ -259,6 +377,9 @@ def to_sympy(tree, symbols=None, evaluate=False):
     if kind == "call":
         builder = FUNCTIONS[tree[1]][2]
         args = [go(a) for a in tree[2]]
+        if builder == "log10":
+            return sympy.Mul(sympy.log(args[0], evaluate=evaluate),
+                             sympy.Pow(sympy.log(10), -1, evaluate=evaluate), evaluate=evaluate)
         function = getattr(sympy, builder, None) or sympy.Function(builder)
         return function(*args, evaluate=evaluate) \
             if builder in ("exp", "log", "sqrt", "Abs", "Min", "Max") else function(*args)

@@ -56,6 +56,8 @@ _FROM_STATE = {
     "lambda_n": "lambda_n", "lambda_p": "lambda_p", "E": "field", "sigma": "sigma",
     "rho": "rho", "L": "L", "A": "A", "t": "thickness",
 }
+# symbols a calculation gives no value for (their formulas are dimension-checked only)
+_NOT_STATED = ("tau_n", "tau_p")
 # the solve is of a bulk (3D) crystal: its densities are not sheet or line densities
 _BULK_ONLY = ("n", "p", "N_c", "N_v", "n_i", "N_D", "N_A", "N_D_plus", "N_A_minus", "sigma",
               "rho")
@@ -150,7 +152,7 @@ def dimension(tree, dim: int) -> dm.Dimension:
     if kind == "call":
         name, args = tree[1], tree[2]
         inner = [dimension(a, dim) for a in args]
-        if name in ("exp", "log", "ln", "F"):
+        if name in ("exp", "log", "ln", "log10", "F"):
             argument = inner[-1]
             if not argument.dimensionless:
                 raise _Mismatch(f"the argument of {name}(), {to_text(args[-1])}, is "
@@ -251,6 +253,8 @@ def operating_values(values: dict, calculations) -> list:
     known["W"] = np.array([c.structure.get("width", np.nan) for c in calculations], dtype=float)
     known.update({"h": np.full(count, PLANCK), "m0": np.full(count, ELECTRON_MASS),
                   "pi": np.full(count, math.pi)})
+    # no lifetime is stated in a calculation: what depends on one is not evaluated
+    known.update({name: np.full(count, np.nan) for name in _NOT_STATED})
     dims = np.array([int(c.structure.get("dim", 3)) for c in calculations], dtype=int)
     for name in _BULK_ONLY:
         known[name] = np.where(dims == 3, known[name], np.nan)

@@ -14,11 +14,19 @@ For a formula ``lhs = rhs`` (canonical symbols, see :mod:`formula_symbols`):
    exponential collection, factoring).  If neither closes it, the match
    stands on the numeric test and is marked so.
 
+Bounds: a sample point where any step of either side overflows or leaves its
+domain (inf, nan; also inf**0, which numpy calls 1) does not count as
+agreement, and fewer than MIN_POINTS clean points is "not an identity".
+sympy is given a budget: an upper bound on the terms its expansion makes is
+computed from the tree first, and a formula above SYMPY_BUDGET is not proved
+(reported as unrecognised) rather than expanded.  Deterministic: no clock.
+
 No set: the formula is unrecognised.  The result depends only on the formula,
 the dimensionality and the majority carrier, so it is cached per process.
 """
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from functools import lru_cache
 from itertools import combinations
@@ -26,7 +34,7 @@ from itertools import combinations
 import numpy as np
 
 from . import normal_form
-from .expression import to_numpy, to_sympy
+from .expression import folded, to_numpy, to_sympy
 from .relations import (RELATION_NAMES, WORDS_IN, acts_on, closure, expand, limited, limits,
                         names_in, sample, world)
 
@@ -34,6 +42,10 @@ POINTS = 12            # random points per identity test
 MIN_POINTS = 6         # points where both sides must be finite
 TOLERANCE = 1e-9       # relative agreement that counts as identical
 SEED = 20261202
+# terms sympy may make of a difference (all sub-expressions together) times its symbols:
+# the catalogue's forms need at most ~1,000; 5,000 takes sympy about a second
+SYMPY_BUDGET = 5000
+MAX_SYMPY_EXPONENT = 256   # the parser allows 64; definitions raise it by a small factor
 # symbols that tie a formula to the donors or to the acceptors
 DONOR_SYMBOLS = frozenset({"N_D", "N_D_plus", "f_D", "g_D", "E_D"})
 ACCEPTOR_SYMBOLS = frozenset({"N_A", "N_A_minus", "f_A", "g_A", "E_A"})
@@ -55,7 +67,9 @@ class Match:
         return tuple(limit.label for limit in self.limits)
 
 
-_compiled = lru_cache(maxsize=None)(to_numpy)
+@lru_cache(maxsize=4096)
+def _compiled(tree):
+    return to_numpy(tree, strict=True)
 
 
 def _evaluate(lhs, rhs, definitions, order, inputs) -> tuple:
@@ -111,7 +125,9 @@ def _analyse(lhs: tuple, rhs: tuple, dim: int, majority: str) -> Match:
     if best is None:
         return Match("unrecognised", None, (), (), (), None)
     base, chosen = best
-    proof = "symbolic" if _proved(lhs, rhs, limited(base, chosen)) else "numeric"
+    proof = _proof(lhs, rhs, limited(base, chosen))
+    if proof is None:
+        return Match("unrecognised", None, (), (), (), None)
     return Match("exact" if not chosen else "limit", base.world, chosen,
                  _relations(lhs, rhs, base, chosen), _assumptions(names, base, chosen), proof)
 
@@ -191,19 +207,72 @@ def _in_order(tree) -> list:
     return [n for part in parts for n in _in_order(part)]
 
 
-def _proved(lhs, rhs, definitions) -> bool:
-    """Symbolic confirmation of lhs = rhs under the definitions: our exact normal form
-    first (no sympy import), then sympy's expand / power collection / factoring."""
+def _proof(lhs, rhs, definitions):
+    """How lhs = rhs under the definitions is confirmed: "symbolic" by our exact normal
+    form (no sympy import) or by sympy's expand / power collection / factoring, else
+    "numeric"; None when the formula is too large for sympy's budget."""
     a, b = expand(lhs, definitions), expand(rhs, definitions)
     try:
         if normal_form.equal(a, b):
-            return True
+            return "symbolic"
     except (normal_form.Unsupported, ArithmeticError, RecursionError):
         pass
+    if expansion_cost(("-", a, b)) > SYMPY_BUDGET:
+        return None
     try:
-        return _proved_by_sympy(a, b)
+        return "symbolic" if _proved_by_sympy(a, b) else "numeric"
     except Exception:  # noqa: BLE001 - a confirmation step: the numeric identity stands
-        return False
+        return "numeric"
+
+
+def expansion_cost(tree) -> int:
+    """An upper bound on the terms sympy's expansion makes of ``tree`` (summed over the
+    tree and the arguments of its functions and powers) times the number of symbols:
+    sympy's factoring, the slowest step, grows with both.  Above SYMPY_BUDGET anywhere
+    inside (even under a power of 0) it is SYMPY_BUDGET + 1."""
+    inner = [0]
+    try:
+        terms = _terms(tree, inner)
+    except _OverBudget:
+        return SYMPY_BUDGET + 1
+    return min((terms + inner[0]) * max(len(names_in(tree)), 1), SYMPY_BUDGET + 1)
+
+
+class _OverBudget(Exception):
+    pass
+
+
+def _within(count: int) -> int:
+    if count > SYMPY_BUDGET:               # numbers stay small however large the tree
+        raise _OverBudget
+    return count
+
+
+def _terms(tree, inner) -> int:
+    kind = tree[0]
+    if kind in ("num", "name"):
+        return 1
+    if kind == "neg":
+        return _terms(tree[1], inner)
+    if kind == "call":
+        inner[0] = _within(inner[0] + sum(_terms(a, inner) for a in tree[2]))
+        return 1
+    if kind == "**":
+        base, exponent = _terms(tree[1], inner), folded(tree[2])
+        if exponent is None or not math.isfinite(exponent):
+            inner[0] = _within(inner[0] + base + _terms(tree[2], inner))
+            return 1
+        if abs(exponent) > MAX_SYMPY_EXPONENT:   # sympy would compute 10^(10^9) exactly
+            raise _OverBudget
+        whole = int(abs(exponent))          # (a + b)^(5/2) -> (a + b)^2 * sqrt(a + b)
+        size = _within(math.comb(base + whole - 1, whole)) if base > 1 else 1
+        if exponent < 0:                   # the denominator is expanded on its own
+            inner[0] = _within(inner[0] + size)
+            return 1
+        return size
+    left, right = _terms(tree[1], inner), _terms(tree[2], inner)
+    # a quotient is brought over one denominator (cancel, factor): terms multiply
+    return _within(left + right if kind in ("+", "-") else left * right)
 
 
 def _proved_by_sympy(a, b) -> bool:

@@ -8,6 +8,13 @@ is an input error naming the closest known spellings.
 
 Dimensions depend on the conductor's dimensionality d: densities are per
 m^d, a conductivity is q·n·mu of that density.
+
+Conveniences of hand-written formulas: ``·``, ``⋅`` and ``×`` are products and
+``−`` (U+2212) is a minus; ``e^x`` means ``exp(x)``.  The elementary charge is
+``q``: ``e`` is never a symbol, so ``e^x`` with a symbol in ``x`` is Euler's
+number to that power, and a bare ``e`` or ``e^2`` (where the charge squared is
+as likely meant as Euler's number) is refused with both readings to choose
+from.  A Fermi–Dirac order may be written as a fraction: ``F(1/2, eta)``.
 """
 from __future__ import annotations
 
@@ -18,10 +25,10 @@ from functools import lru_cache
 
 from ..errors import InputError
 from . import dimensions as dm
-from .expression import names_in, parse
+from .expression import folded, names_in, parse, to_text
 
 # the functions a formula may call (F is the normalized Fermi–Dirac integral F_j(eta))
-FORMULA_FUNCTIONS = ("exp", "log", "ln", "sqrt", "abs", "F")
+FORMULA_FUNCTIONS = ("exp", "log", "ln", "log10", "sqrt", "abs", "F")
 
 
 @dataclass(frozen=True)
@@ -46,6 +53,7 @@ def _dimension_table(dim: int) -> dict:
         "area": dm.AREA, "field": dm.FIELD, "resistance": dm.RESISTANCE,
         "conductivity": dm.conductivity(dim), "resistivity": dm.NONE / dm.conductivity(dim),
         "current_density": dm.CHARGE * dm.density(dim) * dm.VELOCITY,
+        "time": dm.TIME, "contact_resistivity": dm.RESISTANCE * dm.AREA,
     }
 
 
@@ -90,6 +98,10 @@ SYMBOLS = _symbols([
     ("mu_p", "mobility", "hole mobility (low field)", "mu_p, μ_p, μp, mup, mu_h"),
     ("D_n", "diffusivity", "electron diffusion coefficient", "D_n, Dn, D_e"),
     ("D_p", "diffusivity", "hole diffusion coefficient", "D_p, Dp, D_h"),
+    ("tau_n", "time", "electron (minority-carrier) lifetime", "tau_n, τ_n, τn, taun, tau_e"),
+    ("tau_p", "time", "hole (minority-carrier) lifetime", "tau_p, τ_p, τp, taup, tau_h"),
+    ("L_n", "length", "electron diffusion length sqrt(D_n tau_n)", "L_n, Ln, L_e"),
+    ("L_p", "length", "hole diffusion length sqrt(D_p tau_p)", "L_p, Lp, L_h"),
     ("v_n", "velocity", "electron drift velocity", "v_n, vn, v_dn"),
     ("v_p", "velocity", "hole drift velocity", "v_p, vp, v_dp"),
     ("v_sat_n", "velocity", "electron saturation velocity", "v_sat_n, vsat_n, v_satn"),
@@ -103,6 +115,8 @@ SYMBOLS = _symbols([
     ("rho", "resistivity", "resistivity", "rho, ρ"),
     ("R", "resistance", "resistance of the conductor", "R"),
     ("R_s", "resistance", "sheet resistance (ohm per square)", "R_s, Rs, R_sh, Rsh, R_sq"),
+    ("rho_c", "contact_resistivity", "specific contact resistivity (ohm cm^2)",
+     "rho_c, ρ_c, ρc, rhoc"),
     ("L", "length", "conductor length", "L"),
     ("A", "area", "conductor cross-section", "A"),
     ("W", "length", "conductor width", "W, w"),
@@ -146,8 +160,35 @@ _LAMBDA = re.compile(r"\blambda\b(?!\s*[A-Za-z_:])")
 _LAMBDA_NAME = "lambda_"
 
 
+# typographic operators pasted from documents; "·" would otherwise join two names into one
+_OPERATORS = str.maketrans({"·": "*", "⋅": "*", "×": "*", "−": "-"})
+EULER = "e"
+
+
 def prepare_text(text: str) -> str:
-    return _LAMBDA.sub(_LAMBDA_NAME, text)
+    return _LAMBDA.sub(_LAMBDA_NAME, text.translate(_OPERATORS))
+
+
+def _euler_powers(tree, where: str) -> tuple:
+    """e^x -> exp(x) where x has a symbol; any other use of e is refused (see above)."""
+    kind = tree[0]
+    if kind == "**" and tree[1] == ("name", EULER):
+        exponent = _euler_powers(tree[2], where)
+        if names_in(exponent):
+            return ("call", "exp", (exponent,))
+        charge = to_text(("**", ("name", "q"), tree[2]))
+        raise InputError(f"{where}: {to_text(tree)!r} is ambiguous: write {charge} for the "
+                         f"elementary charge or exp({to_text(tree[2])}) for Euler's number")
+    if kind == "name":
+        if tree[1] == EULER:
+            raise InputError(f"{where}: 'e' alone is not a symbol: write q for the elementary "
+                             "charge, or exp(x) for e^x")
+        return tree
+    if kind == "num":
+        return tree
+    if kind == "call":
+        return ("call", tree[1], tuple(_euler_powers(a, where) for a in tree[2]))
+    return (kind,) + tuple(_euler_powers(part, where) for part in tree[1:])
 
 
 def dimension_of(name: str, dim: int) -> dm.Dimension:
@@ -180,10 +221,9 @@ def canonical(tree, majority: str, where: str) -> tuple:
 
 def parse_side(text: str, majority: str, where: str) -> tuple:
     """(canonical tree, {canonical name: the author's spelling}) of one side of a formula."""
-    raw = parse(prepare_text(text), None, where, functions=FORMULA_FUNCTIONS)
-    tree = canonical(raw, majority, where)
-    # a Fermi–Dirac order must be a plain number
-    _check_orders(tree, where)
+    raw = _euler_powers(parse(prepare_text(text), None, where, functions=FORMULA_FUNCTIONS),
+                        where)
+    tree = _check_orders(canonical(raw, majority, where), where)
     spelled = {}
     for name in names_in(raw):
         canonical_tree = canonical(("name", name), majority, where)
@@ -192,18 +232,22 @@ def parse_side(text: str, majority: str, where: str) -> tuple:
     return tree, spelled
 
 
-def _check_orders(tree, where):
-    if tree[0] == "call":
-        if tree[1] == "F":
-            order = tree[2][0]
-            if order[0] != "num" or order[1] * 2 != int(order[1] * 2) or not -1.5 <= order[1] <= 3.5:
-                raise InputError(f"{where}: F(j, eta) needs a half-integer order j from -3/2 "
-                                 "to 7/2 written as a number, e.g. F(0.5, eta_n)")
-        for arg in tree[2]:
-            _check_orders(arg, where)
-    elif tree[0] not in ("num", "name"):
-        for part in tree[1:]:
-            _check_orders(part, where)
+def _check_orders(tree, where) -> tuple:
+    """The tree with each Fermi–Dirac order folded to a number (F(1/2, eta) -> F(0.5, eta));
+    an order that is not a constant half-integer from -3/2 to 7/2 is refused."""
+    kind = tree[0]
+    if kind in ("num", "name"):
+        return tree
+    if kind != "call":
+        return (kind,) + tuple(_check_orders(part, where) for part in tree[1:])
+    args = tuple(_check_orders(a, where) for a in tree[2])
+    if tree[1] == "F":
+        order = folded(args[0])
+        if order is None or not -1.5 <= order <= 3.5 or order * 2 != int(order * 2):
+            raise InputError(f"{where}: F(j, eta) needs a half-integer order j from -3/2 "
+                             "to 7/2 written as a number, e.g. F(1/2, eta_n) or F(0.5, eta_n)")
+        args = (("num", order),) + args[1:]
+    return ("call", tree[1], args)
 
 
 def glossary(dim: int = 3) -> list[tuple[str, str, str, str]]:

@@ -13,8 +13,10 @@ Two trees are equal when N1*D2 - N2*D1 expands to the zero polynomial.
 This proves the common identities in well under a millisecond, with no sympy
 import.  Anything outside it (a square root of a sum that is a perfect
 square, absolute values) raises :class:`Unsupported` and the caller falls back
-to sympy.  Symbols are taken as positive (energies appear only inside exp,
-log, F and as differences, which are kept as sums).
+to sympy; so does anything beyond its size bounds (terms, integer powers of
+sums, bits of a coefficient), which keep it from growing without end.  Symbols
+are taken as positive (energies appear only inside exp, log, F and as
+differences, which are kept as sums).
 """
 from __future__ import annotations
 
@@ -22,6 +24,7 @@ from fractions import Fraction
 
 MAX_TERMS = 400          # larger expansions are left to sympy
 MAX_POWER = 8            # integer powers of sums expanded up to this
+MAX_BITS = 4096          # larger exact coefficients are left to sympy
 
 
 class Unsupported(Exception):
@@ -42,6 +45,13 @@ def _freeze(poly: dict) -> tuple:
 def _const(value) -> dict:
     value = Fraction(value)
     return {ONE_MONO: value} if value else {}
+
+
+def _bounded(value: Fraction) -> Fraction:
+    """Exact coefficients stay exact only while they are of a reasonable size."""
+    if value.numerator.bit_length() > MAX_BITS or value.denominator.bit_length() > MAX_BITS:
+        raise Unsupported("coefficient too large")
+    return value
 
 
 def _add(p: dict, q: dict, sign=1) -> dict:
@@ -94,7 +104,7 @@ def _mul(p: dict, q: dict) -> dict:
     for m1, c1 in p.items():
         for m2, c2 in q.items():
             mono, factor = _numbers_out(_mono_mul(m1, m2))
-            total = out.get(mono, 0) + c1 * c2 * factor
+            total = out.get(mono, 0) + _bounded(c1 * c2 * factor)
             if total:
                 out[mono] = total
             else:
@@ -150,6 +160,10 @@ def _quotient(n: dict, d: dict) -> tuple:
     return n, d
 
 
+def _q_const(value) -> tuple:
+    return _const(value), _const(1)
+
+
 def _q_add(a, b, sign=1):
     (n1, d1), (n2, d2) = a, b
     if d1 == d2:
@@ -175,6 +189,9 @@ def _polynomial(q) -> dict:
 # ---- functions ---------------------------------------------------------------------------
 def _rational(value: Fraction, power: Fraction):
     """value**power as an exact fraction, or None."""
+    size = max(value.numerator.bit_length(), value.denominator.bit_length())
+    if size > 1 and abs(power) * size > MAX_BITS:     # checked before the power is taken
+        raise Unsupported("coefficient too large")
     if power.denominator == 1:
         return value ** int(power)
     if value <= 0:
@@ -315,7 +332,7 @@ def to_normal(tree):
     """The quotient (N, D) of a tree (names are positive symbols)."""
     kind = tree[0]
     if kind == "num":
-        return _const(_number(float(tree[1]))), _const(1)
+        return _q_const(_number(float(tree[1])))
     if kind == "name":
         return _atom(tree[1]), _const(1)
     if kind == "neg":
@@ -327,6 +344,8 @@ def to_normal(tree):
             return _exp(to_normal(args[0]))
         if name in ("log", "ln"):
             return _log(to_normal(args[0]))
+        if name == "log10":
+            return _q_div(_log(to_normal(args[0])), _log(_q_const(10)))
         if name == "sqrt":
             return _power(to_normal(args[0]), Fraction(1, 2))
         if name == "F":

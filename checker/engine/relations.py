@@ -24,6 +24,8 @@ S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007),
   ch. 1: neutrality, n_i, generalized Einstein relation.
 M. Lundstrom and C. Jeong, Near-Equilibrium Transport (2012): R = rho(L+lambda)/A.
 D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967): drift velocity.
+W. Shockley, Electrons and Holes in Semiconductors (Van Nostrand, 1950): the
+  diffusion length L = sqrt(D tau) (from memory).
 """
 from __future__ import annotations
 
@@ -102,6 +104,7 @@ RELATION_NAMES = {
     "R": "short-conductor resistance", "R_s": "sheet resistance",
     "m_n": "effective density of states", "m_p": "effective density of states",
     "N_D": "charge neutrality", "N_A": "charge neutrality", "A": "cross-section",
+    "L_n": "diffusion length", "L_p": "diffusion length",
 }
 
 SWITCHES = ("w_n", "w_p", "s_d", "s_fn", "s_fp")
@@ -131,6 +134,8 @@ def _common(j: float, x: str) -> dict:
         "v_p": "mu_p*E/(1 + (s_fp*mu_p*E/v_sat_p)^beta_p)^(1/beta_p)",
         "J": "q*(w_n*n*v_n + w_p*p*v_p)",
         "hbar": "h/(2*pi)",
+        "L_n": "sqrt(D_n*tau_n)",
+        "L_p": "sqrt(D_p*tau_p)",
     }
 
 
@@ -277,6 +282,7 @@ _SAMPLING = {
     "E": ("log", 3.0, 7.0), "v_sat_n": ("log", 4.5, 5.5), "v_sat_p": ("log", 4.5, 5.5),
     "beta_n": ("lin", 1.0, 2.5), "beta_p": ("lin", 1.0, 2.5),
     "m_n": ("log", -32.0, -30.0), "m_p": ("log", -32.0, -30.0),
+    "tau_n": ("log", -10.0, -3.0), "tau_p": ("log", -10.0, -3.0),
 }
 
 
