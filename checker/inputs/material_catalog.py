@@ -128,8 +128,8 @@ class Range:
         return (low, high)
 
     def schema(self) -> dict:
-        item = {"type": "string", "pattern": quantity_pattern(True)}
-        return {"type": "array", "items": item, "minItems": 2, "maxItems": 2}
+        return {"type": "array", "items": Quantity(self.dimension).schema(), "minItems": 2,
+                "maxItems": 2}
 
 
 @dataclass(frozen=True)
