@@ -14,6 +14,7 @@ import sys
 import unicodedata
 import xml.etree.ElementTree as ET
 from pathlib import Path
+from urllib.parse import unquote_to_bytes
 
 import jsonschema
 import pytest
@@ -196,9 +197,15 @@ def test_file_name_that_is_not_utf8(tmp_path, capsys):
     raw = os.path.join(os.fsencode(folder), b"bad\xff name.yaml")
     with open(raw, "wb") as out:
         out.write(CALCULATION.encode("utf-8"))
-    for fmt in ("console", "json", "markdown", "junit", "sarif", "html"):
+    for fmt in ("console", "json", "markdown", "junit", "html"):
         out = report(folder, fmt, capsys)
         assert r"bad\udcff name.yaml" in out.replace("\\\\", "\\"), fmt
+    # SARIF locations are URI references: RFC 3986 percent-encoding of the name's own bytes
+    log = json.loads(report(folder, "sarif", capsys))
+    location, = [r["locations"][0]["physicalLocation"]["artifactLocation"]["uri"]
+                 for r in log["runs"][0]["results"]]
+    assert " " not in location
+    assert unquote_to_bytes(location) == raw
 
 
 def test_state_command_takes_names_as_text_not_markup(tmp_path, capsys):

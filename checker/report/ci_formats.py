@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import json
 import re
+from urllib.parse import quote
 from xml.etree import ElementTree as ET
 
 from .. import __version__
@@ -44,7 +45,14 @@ def _finding_text(f) -> str:
 
 
 def _uri(path: str) -> str:
-    return path.replace("\\", "/")
+    """A relative URI reference (RFC 3986) of a file path: spaces, '%', '#' and bytes
+    outside ASCII percent-encoded (a name that is not UTF-8 by its own bytes)."""
+    text = path.replace("\\", "/")
+    try:
+        raw = text.encode("utf-8", "surrogateescape")
+    except UnicodeEncodeError:          # a lone surrogate no file system gave us
+        raw = text.encode("utf-8", "backslashreplace")
+    return quote(raw, safe="/:")
 
 
 def render_sarif(result, exit_code: int) -> str:
