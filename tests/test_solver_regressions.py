@@ -13,7 +13,7 @@ import pytest
 from checker.inputs.material_catalog import resolve_material
 from checker.physics import equilibrium
 from checker.physics.carriers import regime_label
-from reference import K_B, mp_fermi_half, reference_solve
+from reference import K_B, ionized_fraction, mp_fermi_half, reference_solve
 
 PER_CM3 = 1e6
 
@@ -23,7 +23,8 @@ FREEZE_OUT = [("GaN", "Mg", 1e19, T) for T in (15, 20, 30, 40)] + [
 
 
 def _mp_balance(material, T, eta, donors, acceptors):
-    """|n + N_A^- - p - N_D^+| / max(sides), in 60-digit arithmetic from eta."""
+    """|n + N_A^- - p - N_D^+| / max(sides), in 60-digit arithmetic from eta (ionized
+    densities by the statistics written out in tests/reference.py)."""
     with mp.workdps(60):
         kT = mp.mpf(K_B) * T
         eta = mp.mpf(eta)
@@ -31,11 +32,10 @@ def _mp_balance(material, T, eta, donors, acceptors):
         neg = mp.mpf(float(material.Nc(T))) * mp_fermi_half(eta)
         pos = mp.mpf(float(material.Nv(T))) * mp_fermi_half(-eta - eg / kT)
         for name, N in acceptors.items():
-            d = material.dopant(name)
-            neg += N / (1 + d.degeneracy * mp.exp(-eta - eg / kT + mp.mpf(d.energy) / kT))
+            neg += N * ionized_fraction(material.dopant(name), -eta - eg / kT, kT,
+                                        sum(acceptors.values()))
         for name, N in donors.items():
-            d = material.dopant(name)
-            pos += N / (1 + d.degeneracy * mp.exp(eta + mp.mpf(d.energy) / kT))
+            pos += N * ionized_fraction(material.dopant(name), eta, kT, sum(donors.values()))
         return float(abs(neg - pos) / max(neg, pos))
 
 

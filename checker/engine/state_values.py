@@ -148,7 +148,8 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
             f"Eion_{x}": np.full_like(T, main.energy if main else np.nan),
             f"gdeg_{x}": np.full_like(T, main.degeneracy if main else np.nan),
         })
-    put["maj_n"] = (state.n >= state.p).astype(float)
+    # electrons count as the majority on a tie (intrinsic material: n = p to rounding)
+    put["maj_n"] = (state.n >= state.p * (1 - 1e-9)).astype(float)
     put["maj_p"] = 1.0 - put["maj_n"]
     for x, band in (("n", "electron"), ("p", "hole")):
         low, high, (t_low, t_high) = material.hall_factors.get(band, (np.nan, np.nan, (0, 0)))
@@ -221,6 +222,9 @@ def _fill_inputs(calculations, values, count=None):
     values["sigma"] = ELEMENTARY_CHARGE * (values["dens_n"] * values["cond_n"] * values["used_mu_n"]
                                            + values["dens_p"] * values["cond_p"] * values["used_mu_p"])
     values["rho"] = 1.0 / values["sigma"]
+    values["sigma_model"] = ELEMENTARY_CHARGE * (
+        values["dens_n"] * values["cond_n"] * values["mu_n"]
+        + values["dens_p"] * values["cond_p"] * values["mu_p"])
     _hall(values, column(lambda c: c.hall_exponent))
 
 
@@ -237,12 +241,17 @@ def _hall(values, exponents):
         values[f"rH_{x}"] = factor
     values["n_hall"] = hall.hall_density(values["dens_n"], values["dens_p"], values["mu_n"],
                                          values["mu_p"], values["rH_n"], values["rH_p"])
-    # measured Hall factors (where the material tabulates them) span the expected density
+    # measured Hall factors (where the material tabulates them, for non-degenerate
+    # carriers) span the expected density; elsewhere the model value +-5 %
+    # (common practice (no source))
     bounds = []
-    for end in ("lo", "hi"):
-        rn = np.where(np.isfinite(values[f"rH_{end}_n"]), values[f"rH_{end}_n"], values["rH_n"])
-        rp = np.where(np.isfinite(values[f"rH_{end}_p"]), values[f"rH_{end}_p"], values["rH_p"])
+    for end, spread in (("lo", 1 / 1.05), ("hi", 1.05)):
+        factors = []
+        for x in ("n", "p"):
+            measured = values[f"rH_{end}_{x}"]
+            use = np.isfinite(measured) & (values[f"eta_{x}"] < -1.0)
+            factors.append(np.where(use, measured, values[f"rH_{x}"] * spread))
         bounds.append(hall.hall_density(values["dens_n"], values["dens_p"], values["mu_n"],
-                                        values["mu_p"], rn, rp))
-    values["n_hall_lo"] = np.minimum(values["n_hall"], np.minimum(*bounds))
-    values["n_hall_hi"] = np.maximum(values["n_hall"], np.maximum(*bounds))
+                                        values["mu_p"], *factors))
+    values["n_hall_lo"] = np.minimum(*bounds)
+    values["n_hall_hi"] = np.maximum(*bounds)

@@ -49,6 +49,8 @@ COMMON = {
     "field": ("kV/cm", "applied field (or voltage/length)"),
     "sigma": ("S/cm", "two-carrier conductivity q(n mu_n + p mu_p), stated mobilities where given"),
     "rho": ("ohm*cm", "resistivity 1/sigma"),
+    "sigma_model": ("S/cm", "conductivity the doping gives: q(n mu_n + p mu_p) with the model "
+                            "mobilities and each carrier's conduction credit"),
     "stated_kT_q": ("V", "stated thermal voltage"),
     "stated_ni": ("cm^-3", "stated intrinsic density"),
     "stated_sigma": ("S/cm", "stated conductivity (or 1/stated resistivity)"),
@@ -60,7 +62,7 @@ COMMON = {
     "n_hall": ("cm^-3", "Hall density 1/(q|R_H|) the solve and the mobility model predict "
                         "(two carriers, Hall factors)"),
     "n_hall_lo": ("cm^-3", "lowest expected Hall density over the measured Hall-factor range "
-                           "(n_hall where none is tabulated)"),
+                           "(the model's Hall factor +-5 % where none is tabulated)"),
     "n_hall_hi": ("cm^-3", "highest expected Hall density over the measured Hall-factor range"),
     "hall_r": ("1", "exponent r of tau ∝ E^r used for the Hall factor"),
 }

@@ -11,6 +11,8 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass, field
+
+import numpy as np
 from functools import lru_cache
 
 from ..errors import InputError, UnknownMaterialError
@@ -143,6 +145,41 @@ class TextList:
 
     def schema(self) -> dict:
         return {"type": "array", "items": Text().schema()}
+
+
+@dataclass(frozen=True)
+class NumberList:
+    """A list of plain numbers (the coefficients of a published fit, in its own units)."""
+
+    least_items: int = 1
+    required: bool = True
+
+    def read(self, value, place, path):
+        if not isinstance(value, list) or len(value) < self.least_items:
+            raise InputError(f"{place(*path)}: write a list of at least {self.least_items} "
+                             f"numbers, e.g. [1.094, -1.312e-5], got {_shown(value)}")
+        return tuple(Quantity("dimensionless", least="-1e30", most="1e30").read(
+            v, place, path + (i,)) for i, v in enumerate(value))
+
+    def schema(self) -> dict:
+        return {"type": "array", "minItems": self.least_items,
+                "items": Quantity("dimensionless").schema()}
+
+
+@dataclass(frozen=True)
+class BlockList:
+    """A list of blocks of one form (e.g. the bound levels of a dopant)."""
+
+    item: object
+    required: bool = False
+
+    def read(self, value, place, path):
+        if not isinstance(value, list) or not value:
+            raise InputError(f"{place(*path)}: write a list of {self.item.form()} entries")
+        return [self.item.read(v, place, path + (i,)) for i, v in enumerate(value)]
+
+    def schema(self) -> dict:
+        return {"type": "array", "minItems": 1, "items": self.item.schema()}
 
 
 def _must_be_mapping(value, place, path, form: str):
@@ -304,7 +341,15 @@ MOBILITY_MODELS = {
     "levinshtein": {"mu_max": Quantity(**_MOBILITY), "mu_min": Quantity(**_MOBILITY_TERM),
                     "N_ref": Quantity(**_REF_DENSITY), "alpha": Quantity(**_POWER),
                     "beta": Quantity(**_POWER), "gamma": Quantity(**_POWER)},
+    # the silicon resistivity standard (ASTM F723) read as mobility per dopant atom
+    "resistivity_standard": {"form": Choice(("boron", "phosphorus")),
+                             "coefficients": NumberList(least_items=4)},
 }
+# any mobility model may take its temperature dependence from another model of the band
+MOBILITY_COMMON = {**PROVENANCE, "temperature_scaling": Block({
+    "by": Text(required=True),
+    "T0": Quantity("temperature", above="0 K", most="3000 K", default=300.0),
+    "source": Text(), "note": Text()}, required=False)}
 NARROWING_MODELS = {
     "slotboom": {"V1": Quantity("energy", least="0 eV", most="1 eV"),
                  "N0": Quantity(**_REF_DENSITY),
@@ -319,26 +364,54 @@ GAP_MODELS = {
                                   default=0.0),
                 "beta": Quantity("temperature", least="0 K", most="1e4 K", default=1.0)},
 }
+DOS_MODELS = {
+    "power_law": {"Nc300": Quantity("density", above="0 cm-3", most="1e23 cm-3"),
+                  "Nv300": Quantity("density", above="0 cm-3", most="1e23 cm-3"),
+                  "exponent": Quantity("dimensionless", least="0", most="3", default=1.5)},
+    # N = 2 (2 pi m0 k T / h^2)^1.5 D(T), D = sum a_k T^k (Couderc et al. 2014)
+    "mass_polynomial": {"Nc_mass": NumberList(), "Nv_mass": NumberList(),
+                        "T_fit": Quantity("temperature", above="0 K", most="3000 K")},
+}
 _MASS = Quantity("dimensionless", above="0", most="100", required=False,
                  why="a mass in units of the free-electron mass m0")
 CARRIER = Block({
     "default": Text(required=False),
     "by_dopant": Named(Text(), "dopant", required=False),
-    "models": Named(Variants(MOBILITY_MODELS, PROVENANCE), "mobility model"),
+    "models": Named(Variants(MOBILITY_MODELS, MOBILITY_COMMON), "mobility model"),
+    "minority": Text(required=False),
     "saturation_velocity": Block({"v300": Quantity("velocity", above="0 cm/s", most="1e9 cm/s"),
                                   "A": Quantity("dimensionless", least="0", most="1",
                                                 default=0.0),
+                                  # v300 (T/300 K)^power (Canali et al. 1975) in place of A
+                                  "power": Quantity(**_POWER, required=False),
                                   **PROVENANCE}, required=False),
     "field_exponent": Block({"ref": Quantity(**_EXPONENT),
                              "power": Quantity(**_POWER, default=0.0), **PROVENANCE},
                             required=False),
 }, required=False)
+_LEVEL_ENERGY = Quantity("energy", least="0 eV", most="15 eV",
+                         why="a level measured from its band edge")
+LOWERING_MODELS = {
+    "altermatt": {"N_ref": Quantity(**_REF_DENSITY), "c": Quantity(**_EXPONENT)},
+    "pearson_bardeen": {"alpha": Quantity("energy times length", least="0 eV*cm",
+                                          most="1e-5 eV*cm")},
+}
 DOPANT = Block({
     "kind": Choice(("donor", "acceptor")),
-    "energy": Quantity("energy", least="0 eV", most="15 eV",
-                       why="a level measured from its band edge"),
+    "energy": _LEVEL_ENERGY,
     "degeneracy": Quantity("dimensionless", above="0", most="100", required=False),
     "mott_density": Quantity("density", above="0 cm-3", most="1e24 cm-3", required=False),
+    # several bound levels (lattice sites) with their shares; energy is then the first's
+    "levels": BlockList(Block({
+        "energy": _LEVEL_ENERGY,
+        "share": Quantity("dimensionless", above="0", most="1"),
+        "degeneracy": Quantity("dimensionless", above="0", most="100", required=False)})),
+    # ionization energy lowered with the same-type density
+    "lowering": Variants(LOWERING_MODELS, {"source": Text(), "note": Text()},
+                         required=False),
+    # share of dopants that can bind a carrier, b(N) = 1/(1 + (N/N_b)^d)
+    "bound_share": Block({"N_b": Quantity(**_REF_DENSITY), "d": Quantity(**_EXPONENT),
+                          "source": Text(), "note": Text()}, required=False),
     **PROVENANCE})
 PERMITTIVITY = Quantity("dimensionless", least="1", most="1000",
                         why="the static relative permittivity; vacuum has 1")
@@ -348,10 +421,14 @@ MATERIAL = Block({
     "permittivity": NumberOrBlock(PERMITTIVITY, {"source": Text(), "note": Text()},
                                   required=False),
     "band_gap": Variants(GAP_MODELS, PROVENANCE, implied_model="varshni", required=False),
-    "density_of_states": Block({
-        "Nc300": Quantity("density", above="0 cm-3", most="1e23 cm-3"),
-        "Nv300": Quantity("density", above="0 cm-3", most="1e23 cm-3"),
-        "exponent": Quantity("dimensionless", least="0", most="3", default=1.5),
+    "density_of_states": Variants(DOS_MODELS, PROVENANCE, implied_model="power_law",
+                                  required=False),
+    "intrinsic_density": Block({
+        "published": Range("density", required=True),
+        "at": Quantity("temperature", above="0 K", most="3000 K", default=300.0),
+        "source": Text(), "note": Text()}, required=False),
+    "hall_factor": Block({
+        "electron": Range("dimensionless"), "hole": Range("dimensionless"),
         **PROVENANCE}, required=False),
     "thermal_mass": Block({"electron": _MASS, "hole": _MASS, "source": Text(), "note": Text()},
                           required=False),
@@ -394,6 +471,16 @@ _NARROWING_CLASSES = {"slotboom": m.SlotboomNarrowing, "cube_root": m.CubeRootNa
 def _mobility_model(block: dict, place: _Place, path: tuple):
     kind = block["model"]
     values = _parameters(block, MOBILITY_MODELS[kind])
+    if kind == "resistivity_standard":
+        expected = 4 if values["form"] == "boron" else 8
+        if len(values["coefficients"]) != expected:
+            raise InputError(f"{place(*path, 'coefficients')}: the {values['form']} form takes "
+                             f"{expected} coefficients (ASTM F723), got "
+                             f"{len(values['coefficients'])}")
+        provenance = _provenance(block)
+        N_range = provenance.valid_N if np.isfinite(provenance.valid_N[1]) else (1e18, 1e27)
+        return m.ResistivityStandardMobility(values["form"], values["coefficients"],
+                                             (max(N_range[0], 1.0), N_range[1]), provenance)
     low = values.get("mu_min", values.get("mu_min1"))
     if low is not None and values["mu_max"] is not None and low >= values["mu_max"]:
         key = "mu_min" if "mu_min" in values else "mu_min1"
@@ -428,14 +515,40 @@ def _carrier(block, carrier: str, dopants: dict, thermal_mass, place: _Place):
                              f"of this material; dopants: {', '.join(dopants) or 'none'}")
     if any(model is None for model in built.values()):
         return None                                     # already reported
+    built = _temperature_scaled(built, block["models"], place, path)
+    minority = block.get("minority")
+    if minority is not None and minority not in built:
+        raise InputError(f"{place(*path, 'minority')}: unknown model {minority!r}; "
+                         f"models: {', '.join(built)}")
     vsat = beta = None
     if (spec := block.get("saturation_velocity")) is not None:
-        vsat = m.SaturationVelocity(spec["v300"], spec["A"], _provenance(spec))
+        vsat = (m.PowerLawVelocity(spec["v300"], spec["power"], _provenance(spec))
+                if spec.get("power") is not None else
+                m.SaturationVelocity(spec["v300"], spec["A"], _provenance(spec)))
     if (spec := block.get("field_exponent")) is not None:
         beta = m.PowerLawExponent(spec["ref"], spec["power"], _provenance(spec))
     return m.CarrierTransport(mobility=built, default_model=default,
                               dopant_models=dict(block.get("by_dopant") or {}),
-                              vsat=vsat, beta=beta, thermal_mass=thermal_mass)
+                              vsat=vsat, beta=beta, thermal_mass=thermal_mass,
+                              minority_model=minority)
+
+
+def _temperature_scaled(built: dict, specs: dict, place: _Place, path: tuple) -> dict:
+    """Models with ``temperature_scaling: {by: other, T0}`` take the other model's ratio
+    mu(N, T)/mu(N, T0) (the other model itself must be unscaled)."""
+    out = dict(built)
+    for name, spec in specs.items():
+        scaling = spec.get("temperature_scaling")
+        if scaling is None:
+            continue
+        shape = scaling["by"]
+        if shape not in built or shape == name or specs[shape].get("temperature_scaling"):
+            raise InputError(f"{place(*path, 'models', name, 'temperature_scaling', 'by')}: "
+                             f"{shape!r} must be another, unscaled model of this carrier; "
+                             f"models: {', '.join(built)}")
+        out[name] = m.TemperatureRatio(built[name], built[shape], scaling["T0"],
+                                       _provenance(spec))
+    return out
 
 
 def _dopants(block: dict, eps_r, gap, place: _Place) -> dict:
@@ -460,10 +573,52 @@ def _dopants(block: dict, eps_r, gap, place: _Place) -> dict:
                 f"be estimated ({NEEDED_FOR['permittivity']})"))
             continue
         degeneracy = spec.get("degeneracy") or (2.0 if spec["kind"] == "donor" else 4.0)
+        levels = tuple(m.DopantLevel(level["energy"], level.get("degeneracy") or degeneracy,
+                                     level["share"]) for level in spec.get("levels") or ())
+        if levels and abs(sum(level.share for level in levels) - 1.0) > 1e-6:
+            place.problems.add(InputError(f"{place(*here, 'levels')}: the shares of the levels "
+                                          "must add up to 1"))
+            continue
+        if gap is not None and any(level.energy >= gap.Eg0 for level in levels):
+            place.problems.add(InputError(f"{place(*here, 'levels')}: every level must lie "
+                                          "inside the band gap"))
+            continue
         result[name] = m.Dopant(name=name, kind=spec["kind"], energy=energy,
                                 degeneracy=degeneracy, mott_density=mott,
-                                mott_estimated=estimated, provenance=_provenance(spec))
+                                mott_estimated=estimated, provenance=_provenance(spec),
+                                levels=levels, lowering=_lowering(spec.get("lowering"), energy),
+                                bound_share=_bound_share(spec.get("bound_share")))
     return result
+
+
+def _lowering(block, energy):
+    if block is None:
+        return None
+    if block["model"] == "altermatt":
+        return m.AltermattLowering(block["N_ref"], block["c"])
+    return m.PearsonBardeenLowering(block["alpha"], energy)
+
+
+def _bound_share(block):
+    return None if block is None else m.BoundShare(block["N_b"], block["d"])
+
+
+def _density_of_states(block):
+    if block is None:
+        return None, None
+    provenance = _provenance(block)
+    if block["model"] == "mass_polynomial":
+        return (m.MassPolynomialDOS(block["Nc_mass"], block["T_fit"], provenance),
+                m.MassPolynomialDOS(block["Nv_mass"], block["T_fit"], provenance))
+    return (m.PowerLawDOS(block["Nc300"], block["exponent"], provenance),
+            m.PowerLawDOS(block["Nv300"], block["exponent"], provenance))
+
+
+def _hall_factors(block) -> dict:
+    if block is None:
+        return {}
+    valid_T = block.get("valid_T", (0.0, float("inf")))
+    return {band: (*block[band], valid_T) for band in ("electron", "hole") if band in block}
 
 
 def _narrowing(block):
@@ -489,10 +644,13 @@ def material_from_mapping(data, where: str = "material", locate=None) -> m.Mater
     gap = None
     if (blk := values.get("band_gap")) is not None:
         gap = m.VarshniGap(**_parameters(blk, GAP_MODELS["varshni"]), provenance=_provenance(blk))
-    dos_c = dos_v = None
-    if (blk := values.get("density_of_states")) is not None:
-        dos_c = m.PowerLawDOS(blk["Nc300"], blk["exponent"], _provenance(blk))
-        dos_v = m.PowerLawDOS(blk["Nv300"], blk["exponent"], _provenance(blk))
+    dos_c, dos_v = _density_of_states(values.get("density_of_states"))
+    ni_published = None
+    if (blk := values.get("intrinsic_density")) is not None:
+        if abs(blk["at"] - ROOM_TEMPERATURE) > 1e-9:
+            place.problems.add(InputError(f"{place('intrinsic_density', 'at')}: give the "
+                                          "published spread at 300 K"))
+        ni_published = blk["published"]
     eps_r = values.get("permittivity")
     dopants = _dopants(values.get("dopants") or {}, eps_r, gap, place)
     masses = values.get("thermal_mass") or {}
@@ -506,6 +664,7 @@ def material_from_mapping(data, where: str = "material", locate=None) -> m.Mater
         name=name, long_name=str(values.get("long_name", name)), band_gap=gap, Nc=dos_c,
         Nv=dos_v, eps_r=eps_r, dopants=dopants, **carriers,
         narrowing=_narrowing(values.get("band_gap_narrowing")),
+        ni_published=ni_published, hall_factors=_hall_factors(values.get("hall_factor")),
         sources={k: (v.get("source") if isinstance(v, dict) else None) for k, v in data.items()
                  if isinstance(v, dict)},
     )

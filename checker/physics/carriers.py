@@ -37,12 +37,14 @@ def carrier_transport(state: State, dimension=3, mobility_model=None) -> dict:
     """
     material = state.material
     impurities = state.donors_total + state.acceptors_total
-    n_type = state.donors_total >= state.acceptors_total
+    # a carrier is the minority where the other outnumbers it twice over (not in
+    # intrinsic material, where the minority-carrier fits for doped layers do not apply)
+    minority_n, minority_p = state.n < 0.5 * state.p, state.p < 0.5 * state.n
     result = {"kT_over_q": BOLTZMANN * state.T / ELEMENTARY_CHARGE}
     conduction = {}
     for x, band, eta, dens, species, majority in (
-            ("n", "electron", state.eta_n, state.n, state.donors, n_type),
-            ("p", "hole", state.eta_p, state.p, state.acceptors, ~n_type)):
+            ("n", "electron", state.eta_n, state.n, state.donors, ~minority_n),
+            ("p", "hole", state.eta_p, state.p, state.acceptors, ~minority_p)):
         model = material.need(band, "mobility (conductivity, Einstein relation)")
         main = _dominant(species)
         mu = model.low_field(impurities, state.T, mobility_model, main)
