@@ -316,7 +316,7 @@ def _cmd_point(args) -> int:
 
     config = _settings(args)
     rules = load_rules()
-    check_rule_ids(config, [rule.id for rule in rules])
+    check_rule_ids(config, rules)
     return _report(check_calculations([calc], configured(rules, config), config=config), args,
                    config)
 

@@ -59,10 +59,16 @@ def test_only_and_threshold(tmp_path):
 
 
 def test_waiver_that_waives_nothing_is_reported(tmp_path):
-    root = project(tmp_path, '[[tool.regimecheck.waive]]\npath = "other/*.yaml"\n'
-                             'rule = "STAT01"\nreason = "not this file"\n')
+    # a waiver is idle only where its rule ran on a file it names without firing there
+    # (CARR01 runs on the checked file and does not fire); one for files this run did not
+    # check is not reported
+    root = project(tmp_path, '[[tool.regimecheck.waive]]\npath = "calcs/*.yaml"\n'
+                             'rule = "CARR01"\nreason = "not this file"\n'
+                             '[[tool.regimecheck.waive]]\npath = "other/*.yaml"\n'
+                             'rule = "STAT01"\nreason = "elsewhere"\n')
     data = json.loads(run(root, "check", "calcs", "--format", "json").stdout)
-    assert any("waives nothing" in note and "pyproject.toml:" in note for note in data["notes"])
+    idle = [note for note in data["notes"] if "waives nothing" in note]
+    assert len(idle) == 1 and "CARR01" in idle[0] and "pyproject.toml:" in idle[0]
 
 
 @pytest.mark.parametrize("settings, expected", [

@@ -290,11 +290,10 @@ def apply_waivers(rules, calculations, findings, config=None) -> WaiverResult:
                     if finding.rule == waiver.rule and not finding.waived:
                         finding.waived = f"{waiver.reason} (configuration, {waiver.pattern})"
                         used.add(id(waiver))
-        for waiver in config.waive:
-            if id(waiver) not in used:
-                result.run_notes.append(
-                    f"{config.source}:{waiver.line}: the waiver of {waiver.rule} for "
-                    f"{waiver.pattern!r} waives nothing in this run")
+        for waiver in config.idle_waivers(used, [c.source for c in calculations], known):
+            result.run_notes.append(
+                f"{config.source}:{waiver.line}: the waiver of {waiver.rule} for "
+                f"{waiver.pattern!r} waives nothing in this run")
     for i, calc in enumerate(calculations):
         for rule_id, (reason, line) in calc.waivers.items():
             if rule_id not in known:

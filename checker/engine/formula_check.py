@@ -44,6 +44,7 @@ _DISPLAY = {
     dm.RESISTANCE: "ohm", dm.NONE / dm.RESISTANCE: "S", dm.ENERGY: "eV", dm.VOLTAGE: "V",
     dm.TEMPERATURE: "K", dm.NONE: "1", dm.LENGTH: "nm", dm.AREA: "um^2", dm.MASS: "m0",
     dm.CURRENT / dm.AREA: "A/cm^2", dm.density(3) ** 2: "cm^-6", dm.density(2) ** 2: "cm^-4",
+    dm.RESISTANCE * dm.AREA: "ohm*cm^2", dm.TIME: "ns",
 }
 # formula symbol -> quantity of the solved state (SI)
 _FROM_STATE = {

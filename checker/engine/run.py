@@ -80,6 +80,8 @@ def expand_paths(paths, config=None) -> tuple[list, list[str]]:
                               f"({', '.join(config.file_patterns)})")
             for p in found:
                 add(p, False)
+        elif config.excludes_named(text):
+            continue                      # exclude-patterns hold for named files (pre-commit)
         elif path.exists():
             add(path, True)
         else:
@@ -211,7 +213,7 @@ def check_paths(paths, rules=None, config=None, skip_unrelated=False,
     named directly that hold no calculation are skipped, as in a directory walk."""
     config = config or Config()
     rules = rulebook.load_rules() if rules is None else rules
-    check_rule_ids(config, [rule.id for rule in rules])
+    check_rule_ids(config, rules)
     rules = rulebook.configured(rules, config)
     files, errors = expand_paths(paths, config)
     calculations = []

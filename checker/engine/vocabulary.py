@@ -18,7 +18,7 @@ DISPLAY_UNITS = {
     "cm^-3": 1e-6, "cm^2/(V*s)": 1e4, "cm^2/s": 1e4, "cm/s": 100.0, "kV/cm": 1e-5,
     "ohm*cm": 100.0, "S/cm": 0.01, "ohm": 1.0, "ohm/sq": 1.0, "nm": 1e9, "um": 1e6,
     "cm^-2": 1e-4, "cm^-1": 1e-2, "cm^-6": 1e-12, "cm^-4": 1e-8, "um^2": 1e12, "A/cm^2": 1e-4, "S": 1.0,
-    "m0": 1.0 / ELECTRON_MASS,
+    "m0": 1.0 / ELECTRON_MASS, "ohm*cm^2": 1e4, "ns": 1e9,
 }
 
 CONSTANTS = {"q": ELEMENTARY_CHARGE, "k": BOLTZMANN}
