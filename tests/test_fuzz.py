@@ -1,0 +1,153 @@
+"""Hostile input never breaks ``regimecheck check``: a property-based run over every
+kind of input the command reads (calculation YAML, quantity strings, stated formulas,
+CSV tables, Markdown memos, TOML settings).
+
+For each generated case (strategies in tests/fuzz_inputs.py) the command, run
+in-process, exits 0, 1 or 2, prints no traceback, leaves every input byte-identical,
+answers within a bound (a hang fails the case; nothing here measures speed), prints a
+report that parses in its format (strict JSON, well-formed XML) and still reports the
+other files of the run.  This is the short, derandomized run of the default suite;
+bench/fuzz_inputs.py is the long one.
+"""
+import json
+import sys
+
+import pytest
+from hypothesis import HealthCheck, given, settings
+
+import fuzz_inputs as fz
+
+# cases per kind: about 400 in all, well under a minute on two cores
+EXAMPLES = {"calculation": 90, "units": 60, "formulas": 60, "table": 60, "memo": 60,
+            "config": 60}
+
+
+def short_run(kind):
+    return settings(max_examples=EXAMPLES[kind], deadline=None, derandomize=True,
+                    database=None, suppress_health_check=list(HealthCheck), print_blob=True)
+
+
+def assert_sound(case: fz.Case) -> fz.Outcome:
+    outcome = case.run()
+    failures = outcome.failures()
+    assert outcome.code in (0, 1, 2) and not failures, (
+        "\n".join(map(str, failures)) + "\n\n" + case.describe()
+        + f"\n\nexit code {outcome.code}\nstderr:\n{outcome.stderr[-2000:]}")
+    return outcome
+
+
+@pytest.mark.parametrize("kind", fz.KINDS)
+def test_hostile_input_is_answered_soundly(kind):
+    @short_run(kind)
+    @given(fz.cases(kind))
+    def one_case(case):
+        assert_sound(case)
+
+    one_case()
+
+
+# --- the harness itself: each property it checks does catch its failure ----------------
+
+def test_a_sound_run_passes_and_reports_the_sentinel():
+    case = fz.Case("calculation", {fz.SENTINEL_NAME: fz.SENTINEL}, ("--format", "json"))
+    outcome = assert_sound(case)
+    report = json.loads(outcome.stdout)
+    assert outcome.code == 1                                  # CONST01 fires on the sentinel
+    assert [c["name"] for c in report["calculations"]] == ["sentinel calculation"]
+
+
+def _fake(monkeypatch, behaviour):
+    """Replace the command by ``behaviour(argv)`` for one harness run."""
+    import checker.cli
+
+    monkeypatch.setattr(checker.cli, "main", behaviour)
+    case = fz.Case("calculation", {fz.SENTINEL_NAME: fz.SENTINEL}, ("--format", "json"))
+    return {f.cls for f in case.run(timeout=5).failures()}
+
+
+def test_the_harness_catches_an_internal_error_and_an_escaping_exception(monkeypatch):
+    def internal(argv):
+        print("regimecheck: internal error (KeyError: 'x'); please report it", file=sys.stderr)
+        return 3
+
+    def escaping(argv):
+        raise KeyError("x")
+
+    assert "exit3" in _fake(monkeypatch, internal)
+    assert "traceback" in _fake(monkeypatch, escaping)
+
+
+def test_the_harness_catches_a_changed_input(monkeypatch):
+    def writes(argv):
+        with open(argv[1], "ab") as handle:
+            handle.write(b"# touched\n")
+        print(json.dumps({"summary": {"exit_code": 0}, "sentinel": fz.SENTINEL_NAME}))
+        return 0
+
+    assert _fake(monkeypatch, writes) == {"input-modified"}
+
+
+def test_the_harness_catches_a_malformed_report_and_raw_escapes(monkeypatch):
+    def broken_json(argv):
+        print('{"summary": {"exit_code": 1}, "x": NaN, "f": "' + fz.SENTINEL_NAME + '"}')
+        return 1
+
+    def raw_escape(argv):
+        print(json.dumps({"summary": {"exit_code": 1}, "f": fz.SENTINEL_NAME}) + "\x1b[2J")
+        return 1
+
+    assert _fake(monkeypatch, broken_json) == {"malformed-output"}
+    assert _fake(monkeypatch, raw_escape) == {"malformed-output"}
+
+
+def test_the_harness_catches_a_lost_calculation(monkeypatch):
+    def forgets(argv):
+        print(json.dumps({"summary": {"exit_code": 2}, "calculations": []}))
+        return 2
+
+    assert _fake(monkeypatch, forgets) == {"lost-calculation"}
+
+
+def test_the_harness_turns_a_hang_into_a_failure(monkeypatch):
+    import threading
+
+    release = threading.Event()
+
+    def hangs(argv):
+        release.wait(30)              # held until the harness has given up on it
+        return 0
+
+    try:
+        assert "hang" in _fake(monkeypatch, hangs)
+    finally:
+        release.set()
+
+
+@pytest.mark.parametrize("kind", fz.KINDS)
+def test_every_kind_reaches_the_checks(kind):
+    """The strategies are not all refused at the first reader: some case of each kind
+    is checked (exit 0 or 1) and some is refused (exit 2)."""
+    from hypothesis import Phase
+    from hypothesis import seed as fixed_seed
+
+    codes = set()
+
+    @fixed_seed(11)
+    @settings(max_examples=25, phases=[Phase.generate], deadline=None, database=None,
+              suppress_health_check=list(HealthCheck))
+    @given(fz.cases(kind, formats=("json",)))
+    def collect(case):
+        codes.add(case.run().code)
+
+    collect()
+    assert codes & {0, 1} and 2 in codes, codes
+
+
+# --- open bugs the fuzz run found (reported; they pass once fixed) ----------------------
+
+@pytest.mark.xfail(strict=False, reason="open bug: a CSV table whose header line is not "
+                   "well-formed CSV (a lone quote) ends in UnboundLocalError in "
+                   "inputs/table.py _read_rows (exit 3)")
+def test_open_bug_table_header_with_an_unterminated_quote():
+    assert_sound(fz.Case("table", {"lots.csv": b'"', fz.SENTINEL_NAME: fz.SENTINEL},
+                         ("--format", "json")))
