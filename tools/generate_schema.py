@@ -3,6 +3,7 @@
 - checker/data/calculation.schema.json  (STRUCTURE_KEYS, STATED_KEYS, ASSUMPTIONS, ...
   of checker/inputs/calculation_file.py, with the material form embedded)
 - checker/data/material.schema.json     (MATERIAL of checker/inputs/material_catalog.py)
+- checker/data/rule.schema.json         (RULE_FILE of checker/engine/rulebook.py)
 
 Run after changing any of those tables; a test checks that the shipped schemas match
 what this script writes.  Each schema accepts the form the reader accepts; numbers'
@@ -18,6 +19,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
+from checker.engine.rulebook import RULE_FILE  # noqa: E402
 from checker.inputs import calculation_file as cf  # noqa: E402
 from checker.inputs.material_catalog import MATERIAL  # noqa: E402
 from checker.inputs.quantities import DIMENSIONS, WRITTEN_NUMBER, quantity_pattern  # noqa: E402
@@ -26,6 +28,7 @@ from checker.physics.hall import SCATTERING_EXPONENTS  # noqa: E402
 DATA = ROOT / "checker" / "data"
 SCHEMA_PATH = DATA / "calculation.schema.json"
 MATERIAL_SCHEMA_PATH = DATA / "material.schema.json"
+RULE_SCHEMA_PATH = DATA / "rule.schema.json"
 MATERIAL_REF = {"$ref": "#/$defs/material"}
 
 
@@ -151,6 +154,16 @@ def build_material() -> dict:
             "title": "regimecheck material", **material_form()}
 
 
+def build_rule() -> dict:
+    return {"$schema": "https://json-schema.org/draft/2020-12/schema",
+            "$id": "https://regimecheck.example/rule.schema.json",
+            "title": "regimecheck rule",
+            "description": "One rule file of rules/ (DEVELOPERS.md, 'Adding a rule'); "
+                           "expressions, their dimensions and message placeholders are "
+                           "checked by the loader.",
+            **RULE_FILE.schema()}
+
+
 def render() -> str:
     return json.dumps(build(), indent=2, ensure_ascii=False) + "\n"
 
@@ -159,7 +172,12 @@ def render_material() -> str:
     return json.dumps(build_material(), indent=2, ensure_ascii=False) + "\n"
 
 
+def render_rule() -> str:
+    return json.dumps(build_rule(), indent=2, ensure_ascii=False) + "\n"
+
+
 if __name__ == "__main__":
     SCHEMA_PATH.write_text(render(), encoding="utf-8")
     MATERIAL_SCHEMA_PATH.write_text(render_material(), encoding="utf-8")
-    print(f"wrote {SCHEMA_PATH} and {MATERIAL_SCHEMA_PATH}")
+    RULE_SCHEMA_PATH.write_text(render_rule(), encoding="utf-8")
+    print(f"wrote {SCHEMA_PATH}, {MATERIAL_SCHEMA_PATH} and {RULE_SCHEMA_PATH}")

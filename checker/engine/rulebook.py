@@ -1,10 +1,15 @@
 """Load, validate and compile the declarative rule files of ``rules/``.
 
-A rule file is YAML (format in rules/README.md).  Every expression in it is
-parsed by :mod:`checker.engine.expression` against the vocabulary and compiled
-once into numpy closures; a per-carrier rule is compiled for electrons and for
-holes.  A broken rule file raises :class:`RuleFileError` naming the file and
-the field.
+A rule file is YAML (format in DEVELOPERS.md, "Adding a rule").  RULE_FILE below is
+the one table of its fields: the loader checks every file against it, and
+tools/generate_schema.py writes checker/data/rule.schema.json from it.  Beyond the
+table the loader checks what a schema cannot: the editor modeline, the id against the
+file name, message placeholders, and every expression -- parsed by
+:mod:`checker.engine.expression` against the vocabulary, dimension-checked (terms,
+function arguments, and the unit the value is shown in or compared with), and compiled
+once into numpy closures (a per-carrier rule for electrons and for holes).  A broken
+rule file raises :class:`RuleFileError` with one line per problem:
+``rule file <path>:<line>: field '<field>': <what is wrong>``.
 """
 from __future__ import annotations
 
@@ -13,12 +18,16 @@ from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from pathlib import Path
 
+import yaml
+
 from ..errors import RegimecheckError
-from ..inputs.calculation_file import ASSUMPTIONS
-from ..inputs.config import TOLERANCES
-from ..inputs.yaml_source import load_package_yaml
 from ..resources import rules_dir
+from ..vocabulary_words import ASSUMPTIONS, TOLERANCE_NAMES
+from . import dimensions as dm
 from . import expression
+from .expression_dimensions import UNIT_DIMENSIONS, DimensionProblem, dimension, name_dimension
+from .rule_fields import (Alternatives, Block, Choice, EmptyOrListOf, Expression, ListOf, Named,
+                          Number, Pattern, Text, field_name)
 from .vocabulary import DISPLAY_UNITS, TEXT, carrier_names, rule_names
 
 SEVERITIES = ("info", "warning", "error")
@@ -28,19 +37,78 @@ RULE_ONLY_ASSUMPTIONS = ("carrier-type", "stated-mobility", "stated-constants", 
 # checks done by engine code rather than by expressions; their rule files hold the
 # documentation, severity and threshold (see DEVELOPERS.md, "Rules evaluated by the engine")
 ENGINE_CHECKS = ("formula-analysis",)
-ENGINE_REQUIRED = ("id", "title", "assumption", "severity", "per", "evaluated_by", "indicator",
-                   "message", "why", "example", "fix", "references")
 FORMULA_PLACEHOLDERS = {"formula", "left", "right", "detail", "fix", "value", "exact", "error",
                         "threshold", "embodies"}
-ID_PATTERN = re.compile(r"^[A-Z]{2,5}\d{2}$")
-REQUIRED = ("id", "title", "assumption", "severity", "per", "applies", "indicator", "message",
-            "corrections", "why", "example", "fix", "references")
-OPTIONAL = ("requires", "show")
+INDICATOR_PLACEHOLDERS = {"value", "threshold", "carrier", "dopants", "kind", "error"}
 PLACEHOLDER = re.compile(r"\{([A-Za-z_][A-Za-z0-9_]*)(?::([^{}]*))?\}")
+# the first line of every rule file: editors then check it against the schema
+MODELINE = "# yaml-language-server: $schema=../checker/data/rule.schema.json"
+
+# ---- the table of rule-file fields (read by the loader and by the schema generator) -----
+_UNIT = Choice(tuple(DISPLAY_UNITS), "display unit (engine/vocabulary.py); 1 when left out")
+_EXPRESSION = Expression(expression.MAX_LENGTH, "expression over the names of "
+                         "engine/vocabulary.py (SI values)")
+_QUANTITY = Choice(tuple(sorted(rule_names())), "a quantity of engine/vocabulary.py",
+                   "quantity of engine/vocabulary.py")
+_HEAD = {
+    "id": Pattern(r"[A-Z]{2,5}[0-9]{2}", "STAT01", "2-5 capitals and 2 digits; the file name"),
+    "title": Text(),
+    "assumption": Choice(ASSUMPTIONS + RULE_ONLY_ASSUMPTIONS, "the assumption the rule guards"),
+    "severity": Choice(SEVERITIES),
+}
+_TAIL = {
+    "why": Text(), "example": Text(), "fix": Text(),
+    "references": ListOf(Text(), about="published sources (at least one)"),
+}
+_MESSAGE = Text("finding text with {placeholders}")
+EXPRESSION_RULE = Block({
+    **_HEAD,
+    "per": Choice(("carrier", "calculation"), "carrier: compiled for electrons and holes"),
+    "requires": ListOf(_QUANTITY, about="quantities that must be known"),
+    "applies": Block({
+        "declared": ListOf(Choice(ASSUMPTIONS), single=True,
+                           about="the author declares one of these words"),
+        "when": Expression(expression.MAX_LENGTH, "gate expression (non-zero: applies)"),
+        "implied_by": ListOf(Block({
+            "stated": _QUANTITY, "shortcut": _EXPRESSION,
+            "within": Number(above=0, about="relative tolerance, e.g. 0.02")}),
+            about="a stated number equal to a shortcut within a tolerance")},
+        optional=("declared", "when", "implied_by"),
+        at_least_one=("declared", "when", "implied_by")),
+    "indicator": Block({
+        "label": Text(), "expression": _EXPRESSION, "unit": _UNIT,
+        "above": Number(about="fires above this value"),
+        "below": Number(about="fires below this value"),
+        "tolerance": Choice(TOLERANCE_NAMES, "the configuration tolerance that sets the "
+                            "threshold (above = 1 + tolerance)"),
+        "source": Text("where the threshold comes from")},
+        optional=("unit", "above", "below", "tolerance"), exactly_one=("above", "below"),
+        needs={"tolerance": "above"}),
+    "show": Named(Pattern(r"[A-Za-z_][A-Za-z0-9_]*", "mfp"), Alternatives(
+        "text", Block({"text": Choice(tuple(TEXT), "a word-valued quantity")}),
+        Block({"expression": _EXPRESSION, "unit": _UNIT}, optional=("unit",))),
+        about="extra message values: name -> {expression, unit} or {text}"),
+    "message": _MESSAGE,
+    "corrections": EmptyOrListOf(Block({
+        "label": Text(), "unit": _UNIT, "stated": _QUANTITY,
+        "shortcut": _EXPRESSION, "exact": _EXPRESSION}, optional=("unit", "stated")),
+        about="stated (or shortcut) value -> exact value"),
+    **_TAIL,
+}, optional=("requires", "show"))
+ENGINE_RULE = Block({
+    **_HEAD,
+    "per": Choice(("calculation",), "an engine-evaluated rule runs once per calculation"),
+    "evaluated_by": Choice(ENGINE_CHECKS, "the engine code that produces the findings"),
+    "indicator": Block({"label": Text(), "unit": _UNIT, "above": Number(), "source": Text()},
+                       optional=("unit", "above")),
+    "message": _MESSAGE,
+    **_TAIL,
+})
+RULE_FILE = Alternatives("evaluated_by", ENGINE_RULE, EXPRESSION_RULE)
 
 
 class RuleFileError(RegimecheckError):
-    """A rule file that cannot be used (names the file and the field)."""
+    """A rule file that cannot be used (one line per problem: file, line, field)."""
 
 
 @dataclass
@@ -95,188 +163,182 @@ class Rule:
     path: str
     carriers: tuple = field(default=())
     evaluated_by: str | None = None     # engine check that produces this rule's findings
+    tolerance: str | None = None        # configuration tolerance that sets the threshold
 
 
-def _fail(path, field_name, message):
-    raise RuleFileError(f"rule file {path}: field {field_name!r}: {message}")
+# ---- reading a rule file ---------------------------------------------------------------
+_LOADER = getattr(yaml, "CSafeLoader", yaml.SafeLoader)
 
 
-def _text(data, key, path):
-    value = data.get(key)
-    if not isinstance(value, str) or not value.strip():
-        _fail(path, key, "must be non-empty text")
-    return value.strip()
+class _Report:
+    """The problems of one rule file, each at the line of its field."""
+
+    def __init__(self, path: Path, lines: dict):
+        self.path, self.lines, self.found = path, lines, []
+
+    def line(self, where: tuple) -> int:
+        for cut in range(len(where), -1, -1):
+            if where[:cut] in self.lines:
+                return self.lines[where[:cut]]
+        return 1
+
+    def add(self, where: tuple, message: str, line: int | None = None):
+        line = line or self.line(where)
+        self.found.append((line, f"rule file {self.path}:{line}: field "
+                                 f"{field_name(where)!r}: {message}"))
+
+    def raise_any(self):
+        if self.found:
+            raise RuleFileError("\n".join(text for _, text in sorted(self.found)))
 
 
-def _compile(text, path, field_name, carriers):
-    if isinstance(text, (int, float)) and not isinstance(text, bool):
-        text = repr(float(text))
+def _read(path: Path) -> tuple:
+    """(text, data, report) of a rule file; the report knows the line of every key and
+    list entry (key path -> 1-based line) and holds any key given twice."""
+    text = path.read_text(encoding="utf-8")
+    loader = _LOADER(text)
     try:
-        tree = expression.parse(text, rule_names())
-    except RegimecheckError as exc:
-        _fail(path, field_name, str(exc))
-    run = {}
-    for x in carriers:
-        concrete = expression.rename(tree, carrier_names(x)) if x else tree
-        run[x] = expression.to_numpy(concrete)
-    return Compiled(text, tree, run)
-
-
-def _number(data, key, path):
-    value = data.get(key)
-    try:
-        return float(value)
-    except (TypeError, ValueError):
-        _fail(path, key, f"must be a number, got {value!r}")
+        node = loader.get_single_node()
+        data = loader.construct_document(node) if node is not None else None
+    except yaml.MarkedYAMLError as exc:
+        mark = exc.problem_mark
+        raise RuleFileError(f"rule file {path}:{mark.line + 1 if mark else 1}: malformed "
+                            f"YAML: {exc.problem}") from None
+    finally:
+        loader.dispose()
+    report = _Report(path, {})
+    todo = [((), node)] if node is not None else []
+    while todo:
+        where, node = todo.pop()
+        report.lines.setdefault(where, node.start_mark.line + 1)
+        if isinstance(node, yaml.MappingNode):
+            for key, value in node.value:
+                if (*where, key.value) in report.lines:
+                    report.add((*where, key.value), "the key is given twice; keep one",
+                               key.start_mark.line + 1)
+                report.lines[(*where, key.value)] = key.start_mark.line + 1
+                todo.append(((*where, key.value), value))
+        elif isinstance(node, yaml.SequenceNode):
+            todo += [((*where, i), item) for i, item in enumerate(node.value)]
+    return text, data, report
 
 
 def load_rule(path: Path) -> Rule:
     path = Path(path)
-    data = load_package_yaml(path.read_text(encoding="utf-8"), str(path))
-    if not isinstance(data, dict):
-        _fail(path, "(top)", "a rule file is a mapping")
-    if "evaluated_by" in data:
-        return _load_engine_rule(path, data)
-    rule_id = _identity(data, path, REQUIRED, OPTIONAL)
-    if data["per"] not in ("carrier", "calculation"):
-        _fail(path, "per", "must be 'carrier' or 'calculation'")
-    carriers = ("n", "p") if data["per"] == "carrier" else ("",)
+    text, data, report = _read(path)
+    if text.split("\n", 1)[0].rstrip() != MODELINE:
+        report.add(("(modeline)",), f"the first line must be '{MODELINE}' (editors check the "
+                                    "file against the rule schema with it)", line=1)
+    problems = list(RULE_FILE.problems(data, ()))
+    for where, message in problems:
+        report.add(where, message)
+    if problems:
+        report.raise_any()           # only sound fields can be built on
+    build = _Builder(path, report, data)
+    rule = build.engine_rule() if "evaluated_by" in data else build.expression_rule()
+    report.raise_any()
+    return rule
 
-    applies = data["applies"]
-    if not isinstance(applies, dict):
-        _fail(path, "applies", "must be a mapping with declared / when / implied_by")
-    declared = applies.get("declared") or []
-    if isinstance(declared, str):
-        declared = [declared]
-    for word in declared:
-        if word not in ASSUMPTIONS:
-            _fail(path, "applies.declared", f"unknown assumption {word!r}")
-    when = _compile(applies["when"], path, "applies.when", carriers) if "when" in applies else None
-    implied = []
-    for i, entry in enumerate(applies.get("implied_by") or []):
-        where = f"applies.implied_by[{i}]"
-        if not isinstance(entry, dict) or set(entry) - {"stated", "shortcut", "within"}:
-            _fail(path, where, "needs stated, shortcut and within")
-        stated = str(entry.get("stated", ""))
-        if stated not in rule_names():
-            _fail(path, f"{where}.stated", f"unknown quantity {stated!r}")
-        implied.append(Implication(stated, _compile(entry.get("shortcut"), path,
-                                                    f"{where}.shortcut", carriers),
-                                   _number(entry, "within", path)))
-    if not declared and when is None and not implied:
-        _fail(path, "applies", "give at least one of declared, when, implied_by")
 
-    ind = data["indicator"]
-    if not isinstance(ind, dict):
-        _fail(path, "indicator", "must be a mapping")
-    relation = "above" if "above" in ind else "below" if "below" in ind else None
-    if relation is None:
-        _fail(path, "indicator", "give the threshold as 'above: x' or 'below: x'")
-    threshold = _number(ind, relation, path)
-    unit = ind.get("unit", "1")
-    if unit not in DISPLAY_UNITS:
-        _fail(path, "indicator.unit", f"unknown display unit {unit!r}")
+class _Builder:
+    """Builds a Rule from a rule file whose fields passed the table, recording the
+    problems of its expressions and text."""
 
-    corrections = []
-    for i, entry in enumerate(data["corrections"] or []):
-        where = f"corrections[{i}]"
-        if not isinstance(entry, dict):
-            _fail(path, where, "must be a mapping")
-        if entry.get("unit", "1") not in DISPLAY_UNITS:
-            _fail(path, f"{where}.unit", f"unknown display unit {entry.get('unit')!r}")
+    def __init__(self, path: Path, report: _Report, data: dict):
+        self.path, self.report, self.data = path, report, data
+        self.carriers = ("n", "p") if data["per"] == "carrier" else ("",)
+        if path.stem != data["id"]:
+            report.add(("id",), f"must match the file name ({path.stem})")
+
+    def compile(self, text, where: tuple, expected=None) -> Compiled | None:
+        """One expression, parsed, dimension-checked and compiled per carrier; None after
+        recording a problem.  ``expected``: (dimension, what it is the dimension of)."""
+        if isinstance(text, (int, float)):
+            text = repr(float(text))
+        try:
+            tree = expression.parse(text, rule_names())
+            found = dimension(tree)
+        except RegimecheckError as exc:
+            return self.report.add(where, str(exc))
+        except DimensionProblem as exc:
+            return self.report.add(where, f"the dimensions do not fit: {exc}")
+        if expected is not None and found != expected[0]:
+            return self.report.add(where, f"{text.strip()!r} is {dm.describe(found)}, but "
+                                          f"{expected[1]} is {dm.describe(expected[0])}")
+        run = {x: expression.to_numpy(expression.rename(tree, carrier_names(x)) if x else tree)
+               for x in self.carriers}
+        return Compiled(text, tree, run)
+
+    def message(self, allowed) -> str:
+        message = self.data["message"].strip()
+        for match in PLACEHOLDER.finditer(message):
+            if match.group(1) not in allowed:
+                self.report.add(("message",), f"unknown placeholder {{{match.group(1)}}}; "
+                                              f"available: {', '.join(sorted(allowed))}")
+        return message
+
+    def common(self) -> dict:
+        """The fields every rule has, as Rule arguments."""
+        data, indicator = self.data, self.data["indicator"]
+        return dict(id=data["id"], title=data["title"].strip(), assumption=data["assumption"],
+                    severity=data["severity"], per=data["per"],
+                    indicator_label=indicator["label"].strip(),
+                    indicator_unit=indicator.get("unit", "1"),
+                    threshold_source=indicator["source"].strip(), why=data["why"].strip(),
+                    example=data["example"].strip(), fix=data["fix"].strip(),
+                    references=list(data["references"]), path=str(self.path),
+                    carriers=self.carriers)
+
+    def expression_rule(self) -> Rule:
+        data, applies, ind = self.data, self.data["applies"], self.data["indicator"]
+        declared = applies.get("declared", ())
+        implied = [Implication(entry["stated"], self.compile(
+            entry["shortcut"], ("applies", "implied_by", i, "shortcut"),
+            (name_dimension(entry["stated"]), entry["stated"])), float(entry["within"]))
+            for i, entry in enumerate(applies.get("implied_by", ()))]
+        unit = ind.get("unit", "1")
+        indicator = self.compile(ind["expression"], ("indicator", "expression"),
+                                 (UNIT_DIMENSIONS[unit], f"its unit {unit}"))
+        corrections = [self.correction(entry, ("corrections", i))
+                       for i, entry in enumerate(data["corrections"])]
+        show = {name: self.shown(entry, ("show", name))
+                for name, entry in data.get("show", {}).items()}
+        when = self.compile(applies["when"], ("applies", "when")) if "when" in applies else None
+        relation = "above" if "above" in ind else "below"
+        return Rule(
+            **self.common(), declared=(declared,) if isinstance(declared, str) else
+            tuple(declared), when=when, implied_by=implied, indicator=indicator,
+            relation=relation, threshold=float(ind[relation]), tolerance=ind.get("tolerance"),
+            message=self.message(INDICATOR_PLACEHOLDERS | set(show)), corrections=corrections,
+            requires=tuple(data.get("requires", ())), show=show)
+
+    def correction(self, entry: dict, where: tuple) -> Correction:
+        unit = entry.get("unit", "1")
+        expected = (UNIT_DIMENSIONS[unit], f"its unit {unit}")
         stated = entry.get("stated")
-        if stated is not None and stated not in rule_names():
-            _fail(path, f"{where}.stated", f"unknown quantity {stated!r}")
-        corrections.append(Correction(
-            label=_text(entry, "label", path), unit=entry.get("unit", "1"), stated=stated,
-            shortcut=_compile(entry.get("shortcut"), path, f"{where}.shortcut", carriers),
-            exact=_compile(entry.get("exact"), path, f"{where}.exact", carriers)))
-    show = {}
-    for name, entry in (data.get("show") or {}).items():
-        if isinstance(entry, dict) and "text" in entry:
-            if entry["text"] not in TEXT or len(entry) != 1:
-                _fail(path, f"show.{name}", f"text must name one of {', '.join(TEXT)}")
-            show[name] = (entry["text"], "text")
-            continue
-        if not isinstance(entry, dict) or entry.get("unit", "1") not in DISPLAY_UNITS:
-            _fail(path, f"show.{name}", "needs expression and a known unit, or text")
-        show[name] = (_compile(entry.get("expression"), path, f"show.{name}", carriers),
-                      entry.get("unit", "1"))
-    requires = tuple(data.get("requires") or ())
-    for name in requires:
-        if name not in rule_names():
-            _fail(path, "requires", f"unknown quantity {name!r}")
-    message = _message(data, path, {"value", "threshold", "carrier", "dopants", "kind",
-                                    "error"} | set(show))
-    return Rule(
-        id=rule_id, title=_text(data, "title", path), assumption=data["assumption"],
-        severity=data["severity"], per=data["per"], declared=tuple(declared), when=when,
-        implied_by=implied, indicator_label=_text(ind, "label", path),
-        indicator=_compile(ind.get("expression"), path, "indicator.expression", carriers),
-        indicator_unit=unit, relation=relation, threshold=threshold,
-        threshold_source=_text(ind, "source", path), message=message,
-        corrections=corrections, requires=requires, show=show, why=_text(data, "why", path),
-        example=_text(data, "example", path), fix=_text(data, "fix", path),
-        references=[str(r) for r in data["references"]], path=str(path), carriers=carriers)
+        if stated is not None and name_dimension(stated) != expected[0]:
+            self.report.add((*where, "stated"), f"{stated} is "
+                            f"{dm.describe(name_dimension(stated))}, but its unit {unit} is "
+                            f"{dm.describe(expected[0])}")
+        return Correction(label=entry["label"].strip(), unit=unit, stated=stated,
+                          shortcut=self.compile(entry["shortcut"], (*where, "shortcut"), expected),
+                          exact=self.compile(entry["exact"], (*where, "exact"), expected))
 
+    def shown(self, entry: dict, where: tuple) -> tuple:
+        if "text" in entry:
+            return (entry["text"], "text")
+        unit = entry.get("unit", "1")
+        return (self.compile(entry["expression"], (*where, "expression"),
+                             (UNIT_DIMENSIONS[unit], f"its unit {unit}")), unit)
 
-def _message(data, path, allowed) -> str:
-    """The message template (its placeholders checked); also checks the references."""
-    message = _text(data, "message", path)
-    for match in PLACEHOLDER.finditer(message):
-        if match.group(1) not in allowed:
-            _fail(path, "message", f"unknown placeholder {{{match.group(1)}}}; "
-                                   f"available: {', '.join(sorted(allowed))}")
-    refs = data["references"]
-    if not isinstance(refs, list) or not refs:
-        _fail(path, "references", "must be a non-empty list")
-    return message
-
-
-def _identity(data, path, required, optional=()):
-    """Check the fields every rule file has; return the rule id."""
-    for key in data:
-        if key not in required + optional:
-            _fail(path, key, f"unknown field; fields are {', '.join(required + optional)}")
-    for key in required:
-        if key not in data:
-            _fail(path, key, "missing")
-    rule_id = str(data["id"])
-    if not ID_PATTERN.match(rule_id):
-        _fail(path, "id", "must be 2-5 capitals and 2 digits, e.g. STAT01")
-    if Path(path).stem != rule_id:
-        _fail(path, "id", f"must match the file name ({Path(path).stem})")
-    if data["assumption"] not in ASSUMPTIONS + RULE_ONLY_ASSUMPTIONS:
-        _fail(path, "assumption", f"unknown assumption {data['assumption']!r}")
-    if data["severity"] not in SEVERITIES:
-        _fail(path, "severity", f"must be one of {', '.join(SEVERITIES)}")
-    return rule_id
-
-
-def _load_engine_rule(path: Path, data: dict) -> Rule:
-    """A rule whose findings come from engine code (e.g. formula analysis)."""
-    rule_id = _identity(data, path, ENGINE_REQUIRED)
-    if data["evaluated_by"] not in ENGINE_CHECKS:
-        _fail(path, "evaluated_by", f"must be one of {', '.join(ENGINE_CHECKS)}")
-    if data["per"] != "calculation":
-        _fail(path, "per", "an engine-evaluated rule is per calculation")
-    ind = data["indicator"]
-    if not isinstance(ind, dict) or set(ind) - {"label", "unit", "above", "source"}:
-        _fail(path, "indicator", "give label and source (and optionally unit and above)")
-    unit = ind.get("unit", "1")
-    if unit not in DISPLAY_UNITS:
-        _fail(path, "indicator.unit", f"unknown display unit {unit!r}")
-    threshold = _number(ind, "above", path) if "above" in ind else float("nan")
-    message = _message(data, path, FORMULA_PLACEHOLDERS)
-    return Rule(
-        id=rule_id, title=_text(data, "title", path), assumption=data["assumption"],
-        severity=data["severity"], per="calculation", declared=(), when=None, implied_by=[],
-        indicator_label=_text(ind, "label", path), indicator=None, indicator_unit=unit,
-        relation="above", threshold=threshold, threshold_source=_text(ind, "source", path),
-        message=message, corrections=[], requires=(), show={}, why=_text(data, "why", path),
-        example=_text(data, "example", path), fix=_text(data, "fix", path),
-        references=[str(r) for r in data["references"]], path=str(path), carriers=("",),
-        evaluated_by=data["evaluated_by"])
+    def engine_rule(self) -> Rule:
+        """A rule whose findings come from engine code (e.g. formula analysis)."""
+        ind = self.data["indicator"]
+        return Rule(
+            **self.common(), declared=(), when=None, implied_by=[], indicator=None,
+            relation="above", threshold=float(ind.get("above", float("nan"))),
+            message=self.message(FORMULA_PLACEHOLDERS), corrections=[], requires=(), show={},
+            evaluated_by=self.data["evaluated_by"])
 
 
 @lru_cache(maxsize=4)
@@ -293,11 +355,11 @@ def load_rules(folder: str | None = None) -> tuple:
 
 
 def configured(rules, config) -> tuple:
-    """The rules a configuration selects, with its severities and thresholds applied."""
+    """The rules a configuration selects, with its severities, thresholds and tolerances
+    (a tolerance sets the threshold 1 + tolerance of the rule whose file names it)."""
     def named(rule_id, names):
         return any(rule_id == n or rule_id.startswith(n) for n in names)
 
-    tolerances = {TOLERANCES[name]: 1.0 + value for name, value in config.tolerance.items()}
     out = []
     for rule in rules:
         if (config.only and not named(rule.id, config.only)) or named(rule.id, config.skip):
@@ -305,8 +367,8 @@ def configured(rules, config) -> tuple:
         changes = {}
         if rule.id in config.severity:
             changes["severity"] = config.severity[rule.id]
-        if rule.id in tolerances:
-            changes["threshold"] = tolerances[rule.id]
+        if rule.tolerance in config.tolerance:
+            changes["threshold"] = 1.0 + config.tolerance[rule.tolerance]
         if rule.id in config.threshold:
             changes["threshold"] = config.threshold[rule.id]
         out.append(replace(rule, **changes) if changes else rule)

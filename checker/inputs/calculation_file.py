@@ -32,6 +32,7 @@ import yaml
 
 from ..errors import InputError
 from ..physics.materials import Material
+from ..vocabulary_words import ASSUMPTIONS
 from .material_catalog import resolve_material
 from .quantities import check_plausible, parse_quantity, parse_temperature, read_number
 from .yaml_source import Problems, compose_documents
@@ -72,9 +73,7 @@ STATED_KEYS = {
     "mean_free_path": ("stated_lambda", "length"),
     "hall_density": ("stated_hall", "density"),
 }
-# The trade words an author may declare; a few common spellings map onto them.
-ASSUMPTIONS = ("non-degenerate", "full-ionization", "no-compensation", "single-carrier",
-               "extrinsic", "einstein-relation", "diffusive", "low-field")
+# A few common spellings of the trade words an author may declare (ASSUMPTIONS).
 ASSUMPTION_SPELLINGS = {
     "nondegenerate": "non-degenerate", "boltzmann": "non-degenerate",
     "complete-ionization": "full-ionization", "fully-ionized": "full-ionization",

@@ -16,7 +16,8 @@
     STAT01 = -2.0
 
     [tool.regimecheck.tolerance]    # measured numbers (relative, >= 0): resistivity,
-    resistivity = 0.25              # hall_density, diffusivity, mobility (MEAS01-03, MOB01)
+    resistivity = 0.25              # hall_density, diffusivity, mobility; the rule whose
+                                    # file names the tolerance gets the threshold 1 + value
 
     [tool.regimecheck.columns]      # our table key = the header a CSV uses
     resistivity = "Rho (ohm cm)"
@@ -42,15 +43,13 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import InputError
+from ..vocabulary_words import TOLERANCE_NAMES
 from .table import IGNORE as IGNORED_COLUMNS, KEYS as TABLE_KEYS
 
 LEVELS = ("info", "warning", "error")
 KEYS = ("fail-level", "only", "skip", "file-patterns", "exclude-patterns", "severity",
         "threshold", "tolerance", "columns", "waive")
 DEFAULT_PATTERNS = ("*.yaml", "*.yml", "*.md", "*.csv")
-# a tolerance name -> the rule whose threshold (1 + tolerance, a factor) it sets
-TOLERANCES = {"resistivity": "MEAS01", "hall_density": "MEAS02", "diffusivity": "MEAS03",
-              "mobility": "MOB01"}
 WAIVER_KEYS = ("path", "rule", "reason")
 TABLE = ("tool", "regimecheck")
 
@@ -239,8 +238,9 @@ def _numbers_per_name(table: dict, config: Config, fail) -> None:
                 if item not in LEVELS:
                     fail(f"{name} = {item!r}: must be one of {', '.join(LEVELS)}", key, name)
                 continue
-            if key == "tolerance" and name not in TOLERANCES:
-                fail(f"unknown tolerance {name!r}; known: {', '.join(TOLERANCES)}", key, name)
+            if key == "tolerance" and name not in TOLERANCE_NAMES:
+                fail(f"unknown tolerance {name!r}; known: {', '.join(TOLERANCE_NAMES)}", key,
+                     name)
             if isinstance(item, bool) or not isinstance(item, (int, float)):
                 fail(f"{name} = {item!r}: must be a number", key, name)
             if not math.isfinite(item):

@@ -1,0 +1,105 @@
+"""The dimension of an expression tree, by the algebra of engine/dimensions.py, and the
+dimensions of the names rule expressions use.
+
+A rule expression is refused where the terms of a sum differ in dimension, where the
+values min/max/stated_or/less choose between or compare differ, where exp, log or F
+get an argument with a dimension, or where a quantity with a dimension is raised to a
+power that is not a constant.  A name's dimension follows from its display unit in
+engine/vocabulary.py (kT is shown in eV: an energy, J inside).
+"""
+from __future__ import annotations
+
+from . import dimensions as dm
+from .expression import folded, to_text
+from .vocabulary import COMMON, CONSTANTS, PER_CARRIER
+
+# display unit (vocabulary.DISPLAY_UNITS) -> dimension
+UNIT_DIMENSIONS = {
+    "1": dm.NONE, "%": dm.NONE, "K": dm.TEMPERATURE, "eV": dm.ENERGY, "V": dm.VOLTAGE,
+    "cm^-3": dm.density(3), "cm^-2": dm.density(2), "cm^-1": dm.density(1),
+    "cm^-6": dm.density(3) ** 2, "cm^-4": dm.density(2) ** 2,
+    "cm^2/(V*s)": dm.MOBILITY, "cm^2/s": dm.DIFFUSIVITY, "cm/s": dm.VELOCITY,
+    "kV/cm": dm.FIELD, "ohm*cm": dm.RESISTANCE * dm.LENGTH, "S/cm": dm.conductivity(3),
+    "ohm": dm.RESISTANCE, "ohm/sq": dm.RESISTANCE, "S": dm.NONE / dm.RESISTANCE,
+    "nm": dm.LENGTH, "um": dm.LENGTH, "um^2": dm.AREA, "A/cm^2": dm.CURRENT / dm.AREA,
+    "m0": dm.MASS, "ohm*cm^2": dm.RESISTANCE * dm.AREA, "ns": dm.TIME,
+}
+CONSTANT_DIMENSIONS = {"q": dm.CHARGE, "k": dm.ENERGY / dm.TEMPERATURE}
+# names whose display unit does not carry their dimension: the vocabulary shows the
+# cross-section A in um, but it is an area (m^2 inside, calculation key cross_section)
+OWN_DIMENSIONS = {"A": dm.AREA}
+
+_DIMENSIONLESS_ARGUMENTS = ("exp", "log", "ln", "log10", "F")
+_ALIKE_ARGUMENTS = ("abs", "min", "max", "stated_or")
+
+
+class DimensionProblem(Exception):
+    """An expression whose parts do not fit together dimensionally (message for authors)."""
+
+
+def name_dimension(name: str) -> dm.Dimension:
+    """The dimension of a rule name (``_x``/``_o`` and concrete ``_n``/``_p`` forms)."""
+    if name in OWN_DIMENSIONS:
+        return OWN_DIMENSIONS[name]
+    if name in CONSTANTS:
+        return CONSTANT_DIMENSIONS[name]
+    if name in COMMON:
+        return UNIT_DIMENSIONS[COMMON[name][0]]
+    return UNIT_DIMENSIONS[PER_CARRIER[name[:-2] + "_x"][0]]
+
+
+def _same(trees, dimensions, what: str) -> dm.Dimension:
+    for tree, dimension in zip(trees[1:], dimensions[1:]):
+        if dimension != dimensions[0]:
+            raise DimensionProblem(f"{to_text(trees[0])} is {dm.describe(dimensions[0])} but "
+                                   f"{to_text(tree)} is {dm.describe(dimension)}; {what}")
+    return dimensions[0]
+
+
+def dimension(tree, of_name=name_dimension) -> dm.Dimension:
+    """The dimension of an expression tree (engine/expression.py); DimensionProblem
+    where it has none."""
+    kind = tree[0]
+    if kind == "num":
+        return dm.NONE
+    if kind == "name":
+        return of_name(tree[1])
+    if kind == "neg":
+        return dimension(tree[1], of_name)
+    if kind == "call":
+        name, args = tree[1], tree[2]
+        inner = [dimension(a, of_name) for a in args]
+        if name in _DIMENSIONLESS_ARGUMENTS:
+            for argument, found in zip(args, inner):
+                if not found.dimensionless:
+                    raise DimensionProblem(f"the argument of {name}(), {to_text(argument)}, "
+                                           f"is {dm.describe(found)}; it must be "
+                                           "dimensionless")
+            return dm.NONE
+        if name == "sqrt":
+            return inner[0] ** 0.5
+        if name == "present":
+            return dm.NONE
+        if name == "less":
+            _same(args, inner, "less() compares values of one dimension")
+            return dm.NONE
+        if name in _ALIKE_ARGUMENTS:
+            return _same(args, inner, f"the values {name}() chooses between must have one "
+                                      "dimension")
+        raise DimensionProblem(f"{name}() has no dimension rule")
+    left, right = dimension(tree[1], of_name), dimension(tree[2], of_name)
+    if kind in ("+", "-"):
+        return _same(tree[1:], (left, right), "terms of a sum must have one dimension")
+    if kind == "*":
+        return left * right
+    if kind == "/":
+        return left / right
+    if not right.dimensionless:
+        raise DimensionProblem(f"the exponent {to_text(tree[2])} is {dm.describe(right)}")
+    if left.dimensionless:
+        return dm.NONE
+    power = folded(tree[2])
+    if power is None:
+        raise DimensionProblem(f"{to_text(tree[1])} ({dm.describe(left)}) is raised to the "
+                               f"non-constant power {to_text(tree[2])}")
+    return left ** power
