@@ -4,7 +4,9 @@
     python bench/fuzz_inputs.py --cases 20000 --seconds 3600 --jobs 2 --out /tmp/fz
     python bench/fuzz_inputs.py --replay /tmp/fz      # re-run saved reproductions
 
-The strategies and the in-process harness are those of the test suite
+``--snapshot HEAD`` fuzzes the package as committed (unpacked beside the
+reproductions) rather than a working tree others are editing.  The strategies and the
+in-process harness are those of the test suite
 (tests/fuzz_inputs.py) with the long profile (deeper nesting).  Cases are spread
 evenly over the kinds and run in batches by worker processes (``--jobs``), each
 case in-process through ``checker.cli.main`` in a worker thread with a time bound
@@ -78,6 +80,22 @@ def _canary_report(outcome: fz.Outcome) -> str:
     return re.sub(r"/tmp/regimecheck-fuzz-[^/\"]+/", "", outcome.stdout)
 
 
+def _fresh_canary(timeout) -> str:
+    """The canary's report from a new process (the code as it is on disk now)."""
+    import tempfile
+
+    with tempfile.TemporaryDirectory(prefix="regimecheck-fuzz-") as folder:
+        path = Path(folder) / fz.SENTINEL_NAME
+        path.write_bytes(fz.SENTINEL)
+        try:
+            done = subprocess.run([sys.executable, "-m", "checker", "check", str(path),
+                                   "--format", "json"], capture_output=True, text=True,
+                                  timeout=timeout + 30)
+        except subprocess.TimeoutExpired:
+            return ""
+        return re.sub(r"/tmp/regimecheck-fuzz-[^/\"]+/", "", done.stdout.rstrip("\n") + "\n")
+
+
 def run_worker(kind, count, seed, stop_at, timeout, out_dir, current, minimize_runs):
     """Run ``count`` cases of ``kind``; print one JSON line per case on stdout."""
     from hypothesis import HealthCheck, Phase, given, settings
@@ -89,10 +107,14 @@ def run_worker(kind, count, seed, stop_at, timeout, out_dir, current, minimize_r
     out_dir = Path(out_dir)
     saved = set()
     done = [0]
-    canary = _canary_report(_canary().run(timeout))
 
     def emit(**record):
         channel.write(json.dumps(record) + "\n")
+
+    import checker
+
+    emit(t="hello", checker=str(Path(checker.__file__).parent))
+    canary = [_canary_report(_canary().run(timeout))]
 
     def save(signature, case, outcome, failure):
         """The first reproduction of each distinct failure, and a smaller one."""
@@ -130,13 +152,16 @@ def run_worker(kind, count, seed, stop_at, timeout, out_dir, current, minimize_r
         done[0] += 1
         if done[0] % CANARY_EVERY == 0:
             again = _canary().run(timeout)
-            if _canary_report(again) != canary:
+            if _canary_report(again) != canary[0] and \
+                    _canary_report(again) == _fresh_canary(timeout):
+                canary[0] = _canary_report(again)     # the code changed, not this process
+            if _canary_report(again) != canary[0]:
                 folder = out_dir / "state-leak"
                 if "state-leak" not in saved:
                     saved.add("state-leak")
                     folder.mkdir(parents=True, exist_ok=True)
                     fz.save_case(case, folder / "last-case", outcome, "the case before the leak")
-                    (folder / "first.json").write_text(canary)
+                    (folder / "first.json").write_text(canary[0])
                     (folder / "later.json").write_text(_canary_report(again))
                 records.append(["state-leak", "state-leak", str(folder)])
         emit(t="case", kind=kind, code=outcome.code, elapsed=round(outcome.elapsed, 3),
@@ -218,9 +243,37 @@ def _batches(total, batch, kinds, seed):
                 yield kind, count, seed * 100003 + number
 
 
+def _snapshot(rev: str, target: Path) -> str:
+    """The package (checker/ and rules/) as committed at ``rev``, unpacked into
+    ``target`` in its installed layout (rules/ as checker/rules/): a fixed state of the
+    code to fuzz while others edit the working tree.  Returns the commit."""
+    import io
+    import shutil
+    import tarfile
+
+    commit = subprocess.run(["git", "-C", str(ROOT), "rev-parse", "--verify", rev],
+                            capture_output=True, text=True, check=True).stdout.strip()
+    archive = subprocess.run(["git", "-C", str(ROOT), "archive", commit, "checker", "rules"],
+                             capture_output=True, check=True).stdout
+    shutil.rmtree(target, ignore_errors=True)
+    target.mkdir(parents=True)
+    with tarfile.open(fileobj=io.BytesIO(archive)) as tar:
+        tar.extractall(target, filter="data")
+    (target / "rules").rename(target / "checker" / "rules")
+    return commit
+
+
 def run_parent(args) -> int:
     out = Path(args.out)
     out.mkdir(parents=True, exist_ok=True)
+    env = dict(os.environ)
+    code = "the working tree"
+    if args.snapshot:
+        commit = _snapshot(args.snapshot, out / "code")
+        env["PYTHONPATH"] = os.pathsep.join(filter(None, [str(out / "code"),
+                                                         env.get("PYTHONPATH")]))
+        code = f"commit {commit[:12]} ({args.snapshot}), unpacked in {out / 'code'}"
+    print(f"fuzzing {code}", file=sys.stderr, flush=True)
     kinds = args.kinds.split(",") if args.kinds else list(fz.KINDS)
     pending = collections.deque(_batches(args.cases, args.batch, kinds, args.seed))
     start = time.time()
@@ -231,6 +284,8 @@ def run_parent(args) -> int:
     next_id = [0]
     log = open(out / "workers.log", "a")
     last_print = time.time()
+    seen_code = set()
+    crashes = [0]
 
     def launch(kind, count, seed):
         wid = next_id[0]
@@ -239,9 +294,9 @@ def run_parent(args) -> int:
         process = subprocess.Popen(
             [sys.executable, __file__, "--worker", kind, str(count), str(seed), str(stop_at),
              str(args.timeout), str(out), str(current), str(args.minimize)],
-            stdout=subprocess.PIPE, stderr=log, text=True, cwd=str(ROOT))
+            stdout=subprocess.PIPE, stderr=log, text=True, cwd=str(ROOT), env=env)
         workers[wid] = {"process": process, "kind": kind, "left": count, "seed": seed,
-                        "last": time.time(), "current": current, "tainted": False}
+                        "last": time.time(), "current": current, "cases": 0}
 
         def read():
             for text in process.stdout:
@@ -255,7 +310,14 @@ def run_parent(args) -> int:
 
     def finish(wid, killed=False):
         worker = workers.pop(wid)
-        worker["process"].wait()
+        code = worker["process"].wait()
+        if code not in (0, 3) and not killed and not worker["cases"]:
+            crashes[0] += 1            # died before its first case: see workers.log
+            if crashes[0] >= 3:
+                pending.clear()
+                print(f"workers die at start (exit {code}); see {out / 'workers.log'}",
+                      file=sys.stderr)
+                return
         if killed:
             tally.add(_hang_record(worker, out))
             worker["left"] -= 1
@@ -283,6 +345,11 @@ def run_parent(args) -> int:
                 if record.get("t") == "case":
                     tally.add(record)
                     worker["left"] -= 1
+                    worker["cases"] += 1
+                elif record.get("t") == "hello" and record["checker"] not in seen_code:
+                    seen_code.add(record["checker"])
+                    print(f"worker {wid} imports checker from {record['checker']}",
+                          file=sys.stderr, flush=True)
                 elif record.get("t") == "error":
                     print(f"worker {wid}: {record['message']}", file=sys.stderr)
         for wid, worker in list(workers.items()):
@@ -296,7 +363,7 @@ def run_parent(args) -> int:
             failures = sum(sum(c.values()) for c in tally.classes.values())
             print(f"[{now - start:6.0f} s] {done} cases, {failures} failures, "
                   f"{len(tally.signatures)} distinct", file=sys.stderr, flush=True)
-    text = tally.table(time.time() - start)
+    text = f"code: {code}\n\n" + tally.table(time.time() - start)
     print(text)
     (out / "table.txt").write_text(text + "\n")
     return 0
@@ -349,6 +416,9 @@ def main(argv=None) -> int:
     parser.add_argument("--minimize", type=int, default=300,
                         help="runs spent shrinking each new failure (0: keep it as found)")
     parser.add_argument("--progress", type=float, default=60, help="seconds between progress lines")
+    parser.add_argument("--snapshot", metavar="REV",
+                        help="fuzz the package as committed at REV (e.g. HEAD), unpacked "
+                             "under --out, instead of the working tree")
     parser.add_argument("--replay", metavar="FOLDER", help="re-run saved reproductions")
     parser.add_argument("--worker", nargs=8, help=argparse.SUPPRESS)
     args = parser.parse_args(argv)

@@ -27,7 +27,7 @@ captured, waits at most ``timeout`` seconds, hashes the files again and returns 
 
     exit3             exit code 3 (an internal error) or any code outside {0, 1, 2}
     traceback         a Python traceback printed, or an exception escaping main()
-    input-modified    an input file changed, vanished or lost its bytes
+    input-modified    an input file changed or vanished, or a file appeared beside them
     hang              no answer within the bound
     malformed-output  a JSON/SARIF report that is not strict JSON, a JUnit/HTML report
                       that is not well-formed XML, an exit code that disagrees with the
@@ -163,7 +163,7 @@ def valid_quantity(draw, dimension: str, signed: bool = False) -> str:
     value = 10 ** draw(st.floats(low, high)) * factor
     if signed and draw(st.booleans()):
         value = -value
-    space = draw(st.sampled_from([" ", " ", "", "  "]))
+    space = draw(st.sampled_from([" ", " ", "", "  "])) if not unit[0].isdigit() else " "
     return f"{_number_text(value)}{space}{unit}"
 
 
@@ -767,11 +767,40 @@ def expression():
         max_leaves=16)
 
 
+_TOKEN = re.compile(r"[A-Za-z_][A-Za-z_0-9]*|[0-9]+\.?[0-9]*(?:e-?[0-9]+)?|\*\*|\S")
+_OPERATORS = ("+", "-", "*", "/", "^", "**")
+
+
+@st.composite
+def mutated_formula(draw) -> str:
+    """A recognised formula with a symbol, number or operator changed, a power or a
+    function added: near misses of the exact relations (sign errors, wrong exponents,
+    N_c in place of sqrt(N_c*N_v))."""
+    tokens = _TOKEN.findall(draw(st.sampled_from(GOOD_FORMULAS)))
+    for _ in range(draw(st.integers(1, 3))):
+        i = draw(st.integers(0, len(tokens) - 1))
+        token = tokens[i]
+        op = draw(st.integers(0, 4))
+        if token[0].isalpha() and token not in FUNCTIONS and op < 3:
+            tokens[i] = draw(st.sampled_from(SYMBOLS))
+        elif token[0].isdigit():
+            tokens[i] = draw(st.sampled_from(NUMBERS))
+        elif token in _OPERATORS:
+            tokens[i] = draw(st.sampled_from(_OPERATORS))
+        elif token[0].isalpha() and op == 3 and i + 1 < len(tokens) and tokens[i + 1] != "(":
+            tokens[i] = f"{draw(st.sampled_from(FUNCTIONS))}({token})"
+        elif (token[0].isalpha() and token not in FUNCTIONS) or token == ")":
+            tokens[i] = f"{token}^{draw(st.sampled_from(['2', '(1/2)', '(3/2)', '-1', '3']))}"
+    return " ".join(tokens)
+
+
 @st.composite
 def formula_text(draw) -> str:
-    kind = draw(st.integers(0, 9))
+    kind = draw(st.integers(0, 11))
     if kind < 2:
         return draw(st.sampled_from(GOOD_FORMULAS))
+    if kind >= 10:
+        return draw(mutated_formula())
     if kind < 4:
         return draw(st.sampled_from(HOSTILE_FORMULAS))
     left = draw(st.sampled_from(SYMBOLS)) if kind < 8 else draw(expression())
@@ -1543,6 +1572,7 @@ def run_case(files: dict, argv_extra=(), *, paths=None, timeout: float = DEFAULT
             debug_tb, escaped = escaped, None
         after = _hashes(folder)
         modified = sorted(name for name, digest in before.items() if after.get(name) != digest)
+        modified += sorted(f"{name} (new file)" for name in set(after) - set(before))
         return Outcome(argv=argv, code=box.get("code"), stdout=stdout, stderr=stderr,
                        modified=modified, hang=hang, elapsed=elapsed, fmt=fmt, escaped=escaped,
                        stack=stack, sentinel=sentinel, debug_traceback=debug_tb)
