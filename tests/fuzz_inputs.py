@@ -877,6 +877,9 @@ def table_bytes(draw) -> bytes:
                              max_size=2, unique=True))
     columns = draw(st.permutations(columns))
     headers = [draw(st.sampled_from(TABLE_HEADERS[key])) for key in columns]
+    if draw(st.integers(0, 5)) == 0:                              # a unit of any spelling
+        at = draw(st.integers(0, len(headers) - 1))
+        headers[at] = f"{headers[at].split('[')[0].split('(')[0].strip()} [{draw(unit_text())}]"
     for _ in range(draw(st.sampled_from([0, 0, 0, 1, 2]))):      # odd or missing headers
         if draw(st.booleans()) and headers:
             headers[draw(st.integers(0, len(headers) - 1))] = draw(st.sampled_from(ODD_HEADERS))
@@ -1071,28 +1074,65 @@ def config_tree(draw) -> dict:
     return tree
 
 
+class TomlWriter:
+    """Writes keys, table headers and values in one of the many spellings TOML allows
+    (quoted parts, spaces inside brackets, multi-line arrays with comments and trailing
+    commas), chosen per item by a seeded generator."""
+
+    def __init__(self, seed: int):
+        self.random = random.Random(seed)
+
+    def part(self, name) -> str:
+        text = toml_key(name)
+        if text == str(name) and self.random.random() < 0.15:
+            return self.random.choice([json.dumps(str(name)), f"'{name}'"])
+        return text
+
+    def dotted(self, names) -> str:
+        join = self.random.choice([".", ".", ".", " . ", ". "])
+        return join.join(self.part(n) for n in names)
+
+    def header(self, names, array=False) -> str:
+        pad = self.random.choice(["", "", "", " "])
+        inside = f"{pad}{self.dotted(names)}{pad}"
+        line = f"[[{inside}]]" if array else f"[{inside}]"
+        return line + self.random.choice(["", "", "", "  # table", "\t"])
+
+    def value(self, value) -> str:
+        if isinstance(value, list) and value and self.random.random() < 0.3:
+            items = [f"  {toml_value(v)}," + self.random.choice(["", " # item [x] = y"])
+                     for v in value]
+            return "[\n" + "\n".join(items) + "\n]"
+        return toml_value(value)
+
+    def assign(self, key, value) -> str:
+        return f"{self.part(key)}{self.random.choice([' = ', '=', '  =  '])}{self.value(value)}"
+
+
 @st.composite
 def config_text(draw, tree, pyproject: bool) -> str:
     """The tree written as TOML: in [tool.regimecheck] (always for a pyproject.toml),
-    at the top level, or with dotted keys."""
-    layout = "tool" if pyproject else draw(st.sampled_from(["tool", "top", "dotted"]))
+    at the top level, or inline; keys, headers and arrays in varied spellings."""
+    out = TomlWriter(draw(st.integers(0, 2 ** 32 - 1)))
+    layout = "tool" if pyproject else draw(st.sampled_from(["tool", "top", "inline"]))
     base = ("tool", "regimecheck") if layout == "tool" else ()
     head, tables = [], []
     for key, value in tree.items():
-        if layout == "dotted" or not isinstance(value, (dict, list)) or \
+        if layout == "inline" or not isinstance(value, (dict, list)) or \
                 (isinstance(value, list) and not all(isinstance(v, dict) for v in value)) or \
                 draw(st.integers(0, 3)) == 0:
-            head.append(f"{toml_key(key)} = {toml_value(value)}")
+            head.append(out.assign(key, value))
         elif isinstance(value, dict):
-            tables.append(f"[{'.'.join(map(toml_key, base + (key,)))}]")
-            tables += [f"{toml_key(k)} = {toml_value(v)}" for k, v in value.items()]
+            tables.append(out.header(base + (key,)))
+            tables += [out.assign(k, v) for k, v in value.items()]
         else:
             for item in value:
-                tables.append(f"[[{'.'.join(map(toml_key, base + (key,)))}]]")
-                tables += [f"{toml_key(k)} = {toml_value(v)}" for k, v in item.items()]
-    lines = ([f"[{'.'.join(base)}]"] if base else []) + head + tables
+                tables.append(out.header(base + (key,), array=True))
+                tables += [out.assign(k, v) for k, v in item.items()]
+    lines = ([out.header(base)] if base else []) + head + tables
     if pyproject and draw(st.booleans()):
-        lines = ["[project]", 'name = "x"', ""] + lines
+        lines = ["[project]", 'name = "x"', 'description = """a [tool.regimecheck] note', '"""',
+                 ""] + lines
     return "\n".join(lines) + "\n"
 
 
@@ -1648,7 +1688,7 @@ def minimize(case: Case, signature: str, budget: int = 300,
     for name in list(case.files):
         if name == SENTINEL_NAME and case.files[name] == SENTINEL:
             continue
-        for unit in (b"\n", None):                   # lines, then single bytes
+        for unit in (b"\n", b",", None):      # lines, flow items, then single bytes
             parts = _split(case.files[name], unit)
             chunk = max(len(parts) // 2, 1)
             while chunk >= 1 and runs[0] < budget:
@@ -1663,7 +1703,7 @@ def minimize(case: Case, signature: str, budget: int = 300,
                         i += chunk
                 if not changed:
                     chunk //= 2
-            if len(case.files[name]) > 400:
+            if unit == b"," and len(case.files[name]) > 400:
                 break                                  # bytes one by one: small files only
     return case
 
@@ -1671,6 +1711,8 @@ def minimize(case: Case, signature: str, budget: int = 300,
 def _split(data: bytes, unit) -> list:
     if unit is None:
         return [data[i:i + 1] for i in range(len(data))]
+    if unit == b",":                                 # after each , { } [ ] of flow style
+        return [piece for piece in re.split(rb"(?<=[,{}\[\]])", data) if piece]
     pieces = data.split(unit)
     return [piece + unit for piece in pieces[:-1]] + ([pieces[-1]] if pieces[-1] else [])
 

@@ -10,6 +10,7 @@ other files of the run.  This is the short, derandomized run of the default suit
 bench/fuzz_inputs.py is the long one.
 """
 import json
+import re
 import sys
 
 import pytest
@@ -27,9 +28,29 @@ def short_run(kind):
                     database=None, suppress_health_check=list(HealthCheck), print_blob=True)
 
 
-def assert_sound(case: fz.Case) -> fz.Outcome:
-    outcome = case.run()
-    failures = outcome.failures()
+# Open bugs the fuzz run found and reported, by failure signature (class, error, last
+# frame).  A generated case that fails only with one of these does not fail the
+# property run; each has its own xfail test below, which passes once the bug is fixed
+# (then delete the entry here).
+# Line numbers are left out: the files move while the bugs stay.
+KNOWN_OPEN = {
+    "exit3 UnboundLocalError inputs/table.py in _read_rows":
+        "a CSV header line that is not well-formed CSV",
+    "exit3 TypeError inputs/material_catalog.py in read":
+        "a user material's model selector given as a list or mapping",
+}
+
+
+def _without_line(signature: str) -> str:
+    return re.sub(r":[0-9]+ in ", " in ", signature)
+
+
+def assert_sound(case: fz.Case, known=KNOWN_OPEN) -> fz.Outcome:
+    outcome = fz.examine(case)
+    failures = [f for f in outcome.failures()
+                if _without_line(outcome.signature(f)) not in known]
+    if outcome.code == 3 and not failures:
+        return outcome                   # only a known open bug: reported, tolerated here
     assert outcome.code in (0, 1, 2) and not failures, (
         "\n".join(map(str, failures)) + "\n\n" + case.describe()
         + f"\n\nexit code {outcome.code}\nstderr:\n{outcome.stderr[-2000:]}")
@@ -150,4 +171,18 @@ def test_every_kind_reaches_the_checks(kind):
                    "inputs/table.py _read_rows (exit 3)")
 def test_open_bug_table_header_with_an_unterminated_quote():
     assert_sound(fz.Case("table", {"lots.csv": b'"', fz.SENTINEL_NAME: fz.SENTINEL},
-                         ("--format", "json")))
+                         ("--format", "json")), known={})
+
+
+@pytest.mark.xfail(strict=False, reason="open bug: a user material whose band_gap, "
+                   "band_gap_narrowing or mobility model is a list or mapping ends in "
+                   "TypeError (unhashable) in inputs/material_catalog.py (exit 3)")
+@pytest.mark.parametrize("material", [
+    "{name: X, band_gap: {model: [varshni]}}",
+    "{name: X, band_gap_narrowing: {model: [slotboom]}}",
+    "{name: X, mobility: {electron: {models: {m: {model: {a: 1}}}}}}",
+])
+def test_open_bug_material_model_that_is_not_a_word(material):
+    text = f"material: {material}\ntemperature: 300 K\n".encode()
+    assert_sound(fz.Case("calculation", {"calc.yaml": text, fz.SENTINEL_NAME: fz.SENTINEL},
+                         ("--format", "json")), known={})
