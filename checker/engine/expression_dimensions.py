@@ -25,9 +25,6 @@ UNIT_DIMENSIONS = {
     "m0": dm.MASS, "ohm*cm^2": dm.RESISTANCE * dm.AREA, "ns": dm.TIME,
 }
 CONSTANT_DIMENSIONS = {"q": dm.CHARGE, "k": dm.ENERGY / dm.TEMPERATURE}
-# names whose display unit does not carry their dimension: the vocabulary shows the
-# cross-section A in um, but it is an area (m^2 inside, calculation key cross_section)
-OWN_DIMENSIONS = {"A": dm.AREA}
 
 _DIMENSIONLESS_ARGUMENTS = ("exp", "log", "ln", "log10", "F")
 _ALIKE_ARGUMENTS = ("abs", "min", "max", "stated_or")
@@ -39,8 +36,6 @@ class DimensionProblem(Exception):
 
 def name_dimension(name: str) -> dm.Dimension:
     """The dimension of a rule name (``_x``/``_o`` and concrete ``_n``/``_p`` forms)."""
-    if name in OWN_DIMENSIONS:
-        return OWN_DIMENSIONS[name]
     if name in CONSTANTS:
         return CONSTANT_DIMENSIONS[name]
     if name in COMMON:

@@ -44,7 +44,7 @@ COMMON = {
     "N_hi": ("cm^-3", "highest doping inside the mobility models' fitted range"),
     "dim": ("1", "dimensionality of the conductor (3, 2 or 1)"),
     "L": ("um", "conductor length"),
-    "A": ("um", "cross-section (thickness x width) in m^2"),
+    "A": ("um^2", "cross-section (thickness x width)"),
     "thickness": ("um", "layer thickness"),
     "field": ("kV/cm", "applied field (or voltage/length)"),
     "sigma": ("S/cm", "two-carrier conductivity q(n mu_n + p mu_p), stated mobilities where given"),
