@@ -33,12 +33,7 @@ def short_run(kind):
 # property run; each has its own xfail test below, which passes once the bug is fixed
 # (then delete the entry here).
 # Line numbers are left out: the files move while the bugs stay.
-KNOWN_OPEN = {
-    "exit3 UnboundLocalError inputs/table.py in _read_rows":
-        "a CSV header line that is not well-formed CSV",
-    "exit3 TypeError inputs/material_catalog.py in read":
-        "a user material's model selector given as a list or mapping",
-}
+KNOWN_OPEN: dict = {}
 
 
 def _without_line(signature: str) -> str:
@@ -164,19 +159,13 @@ def test_every_kind_reaches_the_checks(kind):
     assert codes & {0, 1} and 2 in codes, codes
 
 
-# --- open bugs the fuzz run found (reported; they pass once fixed) ----------------------
+# --- bugs the fuzz run found (fixed; kept as regressions) --------------------------------
 
-@pytest.mark.xfail(strict=False, reason="open bug: a CSV table whose header line is not "
-                   "well-formed CSV (a lone quote) ends in UnboundLocalError in "
-                   "inputs/table.py _read_rows (exit 3)")
 def test_open_bug_table_header_with_an_unterminated_quote():
     assert_sound(fz.Case("table", {"lots.csv": b'"', fz.SENTINEL_NAME: fz.SENTINEL},
                          ("--format", "json")), known={})
 
 
-@pytest.mark.xfail(strict=False, reason="open bug: a user material whose band_gap, "
-                   "band_gap_narrowing or mobility model is a list or mapping ends in "
-                   "TypeError (unhashable) in inputs/material_catalog.py (exit 3)")
 @pytest.mark.parametrize("material", [
     "{name: X, band_gap: {model: [varshni]}}",
     "{name: X, band_gap_narrowing: {model: [slotboom]}}",

@@ -59,7 +59,7 @@ class Choice:
     required: bool = True
 
     def read(self, value, place, path):
-        if value not in self.words:
+        if not isinstance(value, str) or value not in self.words:
             raise InputError(f"{place(*path)} must be one of {', '.join(self.words)}, "
                              f"got {_shown(value)}")
         return value
@@ -277,7 +277,7 @@ class Variants:
         _must_be_mapping(value, place, path, f"{{model: {first}, ...}} (models: "
                                              f"{', '.join(self.variants)})")
         model = value.get("model", self.implied_model)
-        if model not in self.variants:
+        if not isinstance(model, str) or model not in self.variants:
             raise InputError(f"{place(*path, 'model')}: model must be one of "
                              f"{', '.join(self.variants)}, got {_shown(model)}")
         return {**self._block(model).read(value, place, path), "model": model}

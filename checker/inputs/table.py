@@ -213,11 +213,12 @@ def read_table(path, mapping=None) -> FileResult:
 
 
 def _read_rows(path, lines: _CountedLines, mapping) -> FileResult:
+    line = 1                                  # where a malformed header is reported
     try:
         first = lines.header()
         if first is None:
             return FileResult(path, [], [f"{path}: the table is empty"])
-        header_line = lines.count
+        header_line = line = lines.count
         try:
             dialect = csv.Sniffer().sniff(first, delimiters=",;\t")
         except csv.Error:
