@@ -97,8 +97,8 @@ STRUCTURE = [
     ("TRAN01.yaml", "mfp: {expression: lambda_x, unit: nm}",
      "mfp: {expression: lambda_x, unit: nanometre}", "show.mfp.unit", "nanometre"),
     # the configuration tolerance: a known name, and only for a threshold given as above
-    ("MEAS01.yaml", "  tolerance: resistivity", "  tolerance: resistance",
-     "indicator.tolerance", "tolerance: resistance"),
+    ("MEAS01.yaml", "  tolerance: resistivity", "  tolerance: sheet_resistivity",
+     "indicator.tolerance", "tolerance: sheet_resistivity"),
     ("ION01.yaml", "  below: 0.95\n", "  below: 0.95\n  tolerance: mobility\n",
      "indicator.tolerance", "tolerance: mobility"),
     # names of quantities and assumption words
