@@ -194,6 +194,23 @@ def parabolic_subbands(dimension, mass, energies, valley_degeneracy=1.0):
                  for e in np.atleast_1d(np.asarray(energies, dtype=float)))
 
 
+def _k_power(k2, twice):
+    """(k^2)^(twice/2) for an integer ``twice``; sqrt and products instead of a general power."""
+    if twice == 0:
+        return np.ones_like(k2)
+    if twice == 2:
+        return k2
+    root = np.sqrt(k2)
+    if twice == 1:
+        return root
+    if twice == 3:
+        root *= k2
+        return root
+    if twice == -1:
+        return np.divide(1.0, root, out=root)
+    return k2 ** (twice / 2.0)
+
+
 def _state_factor(band):
     d = band.dimension
     return band.spin_degeneracy * band.valley_degeneracy * _BALL[d] / (2.0 * math.pi) ** d
@@ -214,7 +231,7 @@ def states_below(band, energy):
     Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2.
     """
     k2 = band.k_squared(np.maximum(energy, 0.0))
-    return _state_factor(band) * k2 ** (band.dimension / 2.0)
+    return _state_factor(band) * _k_power(k2, band.dimension)
 
 
 def density_of_states(band, energy):
@@ -230,7 +247,7 @@ def density_of_states(band, energy):
     e = np.asarray(energy, dtype=float)
     k2 = band.k_squared(e)
     d = band.dimension
-    return _state_factor(band) * (d / 2.0) * k2 ** (d / 2.0 - 1.0) * band.k_squared_slope(e)
+    return _state_factor(band) * (d / 2.0) * _k_power(k2, d - 2) * band.k_squared_slope(e)
 
 
 def mode_density(band, energy):
@@ -244,7 +261,7 @@ def mode_density(band, energy):
     Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2 (M = (h/4) <v_x^+> D).
     """
     k2 = band.k_squared(np.maximum(energy, 0.0))
-    return _mode_factor(band) * k2 ** ((band.dimension - 1) / 2.0)
+    return _mode_factor(band) * _k_power(k2, band.dimension - 1)
 
 
 def mean_free_path_exponent(band, time_exponent):

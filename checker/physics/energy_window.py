@@ -38,6 +38,7 @@ J. S. Blakemore, Solid-State Electron. 25, 1067 (1982) (normalized F_j).
 """
 from __future__ import annotations
 
+import os
 from fractions import Fraction
 from math import lgamma
 
@@ -51,7 +52,9 @@ from .fermi import SUPPORTED_ORDERS, fermi_dirac, inverse_fermi_dirac_half, log_
 LANDAUER_QUANTUM = 2.0 * ELEMENTARY_CHARGE ** 2 / PLANCK  # 2 q^2/h in S (exact, SI 2019)
 
 _BIG_ETA = 300.0      # above: x_k = eta - a_k + ln(1 + e^(a_k - eta)) + b_k (no overflow)
-_BLOCK = 2048         # points per block: (2048 x 97) temporaries stay in cache
+_BLOCK = 512          # points per block: (512 x 129) temporaries stay in cache
+_TASK = 1 << 15       # points per thread task
+WORKERS = min(2, os.cpu_count() or 1)
 
 
 class _NodeSet:
@@ -96,11 +99,24 @@ def _window_sums(eta, integrands, nodes=DENSITY_NODES):
     The window integral ∫ G (-f'(x - eta)) dx equals logistic(eta) times this sum.
     """
     outs = [np.empty(eta.size) for _ in integrands]
-    for start in range(0, eta.size, _BLOCK):
-        rows = slice(start, start + _BLOCK)
-        x = _window_nodes(eta[rows], nodes)
-        for out, integrand in zip(outs, integrands):
-            out[rows] = integrand(x, rows) @ nodes.w
+
+    def task(first):
+        for start in range(first, min(first + _TASK, eta.size), _BLOCK):
+            rows = slice(start, start + _BLOCK)
+            x = _window_nodes(eta[rows], nodes)
+            for out, integrand in zip(outs, integrands):
+                out[rows] = integrand(x, rows) @ nodes.w
+
+    starts = range(0, eta.size, _TASK)
+    if len(starts) > 1 and WORKERS > 1:
+        # numpy releases the GIL inside ufuncs, so tasks overlap on both cores
+        from concurrent.futures import ThreadPoolExecutor  # only large inputs need it
+
+        with ThreadPoolExecutor(max_workers=WORKERS) as pool:
+            list(pool.map(task, starts))
+    else:
+        for first in starts:
+            task(first)
     return outs
 
 
@@ -156,33 +172,37 @@ class _Points:
         return out if out.ndim else float(out)
 
 
-def _log_density_and_slope(band, pts, method):
-    """(ln n, (dn/deta)/n) of one band at every point."""
+def _log_density_and_slope(band, pts, method, slope=True):
+    """(ln n, (dn/deta)/n or None) of one band at every point."""
     eta = pts.band_eta(band)
     if band.power is not None:
         A, a = _power_law(band, "states")
         if _closed_form_ok(band, method, a - 1.0, a - 2.0):
             log_f = log_fermi_dirac(a - 1.0, eta)
             log_n = np.log(A) + a * np.log(pts.kT) + lgamma(a + 1.0) + log_f
-            return log_n, np.exp(log_fermi_dirac(a - 2.0, eta) - log_f)
+            return log_n, np.exp(log_fermi_dirac(a - 2.0, eta) - log_f) if slope else None
     _check_method(method)
     kT = pts.kT
-    states, slope = _window_sums(eta, [
-        lambda x, rows: _bands.states_below(band, x * kT[rows, None]),
-        lambda x, rows: _bands.density_of_states(band, x * kT[rows, None]) * kT[rows, None],
-    ])
-    return _log_logistic(eta) + np.log(states), slope / states
+    integrands = [lambda x, rows: _bands.states_below(band, x * kT[rows, None])]
+    if slope:
+        integrands.append(lambda x, rows: _bands.density_of_states(band, x * kT[rows, None])
+                          * kT[rows, None])
+    sums = _window_sums(eta, integrands)
+    log_n = _log_logistic(eta) + np.log(sums[0])
+    return log_n, sums[1] / sums[0] if slope else None
 
 
-def _total_log_density(bands, pts, method):
-    parts = [_log_density_and_slope(b, pts, method) for b in _as_bands(bands)]
+def _total_log_density(bands, pts, method, slope=True):
+    parts = [_log_density_and_slope(b, pts, method, slope) for b in _as_bands(bands)]
+    if len(parts) == 1:
+        return parts[0]
     logs = np.array([p[0] for p in parts])
     top = np.max(logs, axis=0)
     top = np.where(np.isfinite(top), top, 0.0)
     shares = np.exp(logs - top)
     total = shares.sum(axis=0)
-    slope = sum(s * p[1] for s, p in zip(shares, parts)) / total
-    return top + np.log(total), slope
+    mean_slope = sum(s * p[1] for s, p in zip(shares, parts)) / total if slope else None
+    return top + np.log(total), mean_slope
 
 
 def carrier_density(bands, eta, T, method="auto"):
@@ -204,7 +224,7 @@ def carrier_density(bands, eta, T, method="auto"):
     Solid-State Electron. 25, 1067 (1982).
     """
     pts = _Points(eta, T)
-    log_n, _ = _total_log_density(bands, pts, method)
+    log_n, _ = _total_log_density(bands, pts, method, slope=False)
     return pts.shaped(np.exp(log_n))
 
 
@@ -281,9 +301,11 @@ def _mode_integral(band, pts, method, exponent=0.0, length_ratio=None, r=0.0):
     def integrand(x, rows):
         value = _bands.mode_density(band, x * kT[rows, None])
         if exponent:
-            value = value * x ** exponent
+            value *= x ** exponent
         if length_ratio is not None:
-            value = value / (1.0 + length_ratio[rows, None] * x ** -r)
+            damping = length_ratio[rows, None] * (x ** -r if r else 1.0)
+            damping += 1.0
+            value /= damping
         return value
 
     nodes = DENSITY_NODES if length_ratio is None else TRANSMISSION_NODES
