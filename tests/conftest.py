@@ -6,6 +6,13 @@ import pytest
 PER_CM3 = 1e6
 
 
+def pytest_configure(config):
+    # still run by default (the CI command is plain `python -m pytest`); `-m "not slow"`
+    # leaves them out for a quick local run
+    config.addinivalue_line("markers", "slow: recomputes mpmath references (seconds); "
+                            "run by default")
+
+
 def fd_reference(j, eta, dps=22):
     """Normalized F_j(eta) from mpmath (DLMF 25.12.16: -Li_{j+1}(-e^eta))."""
     with mp.workdps(dps):

@@ -2,6 +2,7 @@
 in the text is ever executed."""
 import math
 
+import mpmath
 import numpy as np
 import pytest
 import sympy
@@ -39,7 +40,9 @@ def test_fermi_dirac_call_matches_closed_form():
     # the order may differ per point (dimensionality): F_{dim/2-1}
     got = evaluate("F(dim/2 - 1, eta)", eta=np.array([0.0, 0.0]), dim=np.array([2.0, 3.0]))
     assert got[0] == pytest.approx(math.log(2), rel=1e-15)
-    assert got[1] == pytest.approx(0.765147024625408, rel=1e-13)  # F_1/2(0), references.md §1b
+    # F_1/2(0) = (1 - 2^(-1/2)) zeta(3/2) (DLMF 25.12.16 with 25.2.3), from mpmath
+    assert got[1] == pytest.approx(float((1 - mpmath.mpf(2) ** -0.5) * mpmath.zeta(1.5)),
+                                   rel=1e-13)
 
 
 def test_sympy_objects_are_built_directly():

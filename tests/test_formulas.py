@@ -6,25 +6,33 @@ each row); numbers are checked against mpmath and scipy.constants, never against
 values produced by the package.
 """
 import json
+import math
 import subprocess
 import sys
 
 import mpmath as mp
+import numpy as np
 import pytest
 import scipy.constants as sc
 
 from checker import load_material
-from checker.engine import normal_form
+from checker.engine import expression, normal_form
 from checker.engine.formula_check import dimension, parse_formula
 from checker.engine.formula_match import analyse
-from checker.engine.relations import expand, limited, world
+from checker.engine.relations import RELATION_NAMES, SWITCHES, expand, limited, world
 from checker.engine.run import check_calculations
 from checker.errors import InputError
 from checker.inputs.calculation_file import read_calculation_file
+from checker.physics import transport
+from checker.physics.constants import ELECTRON_MASS, HBAR
+from checker.physics.equilibrium import State, charge_balance_error, ionized_density
+from checker.physics.fermi import fermi_dirac
+from checker.physics.materials import BoundShare, Dopant, MassPolynomialDOS, Provenance
 from reference import mp_fermi_half, reference_solve
 
 SZE = "Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1"
-SOMMERFELD = "references.md §2 (Sommerfeld limit of the Einstein ratio)"
+SOMMERFELD = ("Blakemore, Semiconductor Statistics (1962): degenerate limit F_j -> "
+              "eta^(j+1)/Gamma(j+2), so D/mu -> (E_F - E_c)/((j+1) q)")
 LUNDSTROM = "Lundstrom & Jeong, Near-Equilibrium Transport (2012), R = rho(L + lambda)/A"
 CAUGHEY = "Caughey & Thomas, Proc. IEEE 55, 2192 (1967): v = mu E/(1 + (mu E/v_sat)^beta)^(1/beta)"
 
@@ -289,3 +297,202 @@ def test_sign_error_is_unrecognised_and_its_value_matches_mpmath(tmp_path):
     nc = float(silicon.Nc(300.0))
     assert result.value == pytest.approx(nc * float(mp.exp(-eta)), rel=1e-7)
     assert result.exact == pytest.approx(nc * float(mp_fermi_half(eta)), rel=1e-7)
+
+
+# --- the exact relations against the physics layer ---------------------------------------------
+#
+# Every definition in checker/engine/relations.py must be the relation the physics core
+# computes.  Each one is evaluated at seeded random operating points (SI values, the real
+# constants from scipy.constants) and compared with the physics-layer function that
+# computes the same quantity; a changed relation (a doubled mean free path, a flipped
+# sign) then fails here.
+
+_EV = sc.e
+_ANY = Provenance("test")
+_DENSITY_DECADES = {3: (22.0, 25.5), 2: (14.0, 17.5), 1: (6.0, 9.0)}
+
+
+class _Bands:
+    """A material reduced to what State and the ionization statistics read: one band gap,
+    N_c, N_v per point and two isolated dopant levels (no lowering; b(N) = 1 to far below
+    rounding, so the statistics are the isolated-impurity ones of Sze & Ng (2007))."""
+
+    def __init__(self, Eg, Nc, Nv, dE_D, dE_A, g_D, g_A):
+        self.Eg, self._Nc, self._Nv = Eg, Nc, Nv
+        share = BoundShare(N_b=1e60, d=2.3)
+        self.levels = {
+            "D": Dopant("D", "donor", dE_D, g_D, np.inf, False, _ANY, bound_share=share),
+            "A": Dopant("A", "acceptor", dE_A, g_A, np.inf, False, _ANY, bound_share=share)}
+
+    def band_gap(self, T):
+        return self.Eg
+
+    def Nc(self, T):
+        return self._Nc
+
+    def Nv(self, T):
+        return self._Nv
+
+    def dopant(self, name):
+        return self.levels[name]
+
+
+def _sample(dim, which, seed, size=64):
+    """Primitive values of the relations (SI) at seeded random operating points, and
+    eta_n there."""
+    rng = np.random.default_rng(seed)
+    lo, hi = _DENSITY_DECADES[dim]
+    T = rng.uniform(150.0, 600.0, size)
+    kT = sc.k * T
+    Eg = rng.uniform(0.2, 2.0, size) * _EV
+    # the majority band's Fermi level from -8 kT below its edge to 6 kT above
+    eta_major = rng.uniform(-8.0, 6.0, size)
+    eta_n = eta_major if which == "donor" else -eta_major - Eg / kT
+    v = {"k": np.full(size, sc.k), "q": np.full(size, sc.e), "h": np.full(size, sc.h),
+         "pi": np.full(size, math.pi), "T": T}
+    v["E_v"] = rng.uniform(-1.0, 1.0, size) * _EV
+    v["E_c"] = v["E_v"] + Eg
+    v["E_F"] = v["E_c"] + eta_n * kT
+    for name in ("N_c", "N_v", "N_D", "N_A"):
+        v[name] = 10.0 ** rng.uniform(lo, hi, size)
+    v["dE_D"], v["dE_A"] = rng.uniform(0.005, 0.2, size) * _EV, rng.uniform(0.005, 0.3, size) * _EV
+    v["g_D"], v["g_A"] = rng.uniform(1.5, 4.0, size), rng.uniform(2.0, 6.0, size)
+    for name, (a, b) in {"mu_n": (-3.0, 0.0), "mu_p": (-3.0, 0.0), "L": (-8.0, -4.0),
+                         "W": (-7.0, -4.0), "t": (-8.0, -5.0), "lambda_n": (-9.0, -6.0),
+                         "lambda_p": (-9.0, -6.0), "E": (3.0, 7.0), "v_sat_n": (4.5, 5.5),
+                         "v_sat_p": (4.5, 5.5), "tau_n": (-10.0, -3.0),
+                         "tau_p": (-10.0, -3.0)}.items():
+        v[name] = 10.0 ** rng.uniform(a, b, size)
+    v["beta_n"], v["beta_p"] = rng.uniform(1.0, 2.5, size), rng.uniform(1.0, 2.5, size)
+    return v, eta_n
+
+
+def _state(v, eta_n, gap=None):
+    """The physics layer's State at the sampled point (gap: E_c - E_v unless given)."""
+    Eg = v["E_c"] - v["E_v"] if gap is None else gap
+    bands = _Bands(Eg, v["N_c"], v["N_v"], v["dE_D"], v["dE_A"], v["g_D"], v["g_A"])
+    none = np.zeros_like(eta_n)
+    return State(bands, v["T"], {"D": v["N_D"]}, {"A": v["N_A"]}, eta_n,
+                 none.astype(bool), none, none)
+
+
+def _physics(name, v, state, dim, majority):
+    """The physics layer's value of a defined symbol at the same points (None: the
+    relation needs the other quantities first, see the neutrality check)."""
+    j = dim / 2 - 1
+    kT = state.kT
+    n = v["N_c"] * fermi_dirac(j, state.eta_n)
+    p = v["N_v"] * fermi_dirac(j, state.eta_p)
+    lam = v[f"lambda_{majority}"]
+    fast = {x: transport.field_dependent_mobility(v[f"mu_{x}"], v["E"], v[f"v_sat_{x}"],
+                                                  v[f"beta_{x}"]) for x in "np"}
+    return {
+        "eta_n": state.eta_n,
+        "eta_p": state.eta_p,
+        "E_g": state.Eg,
+        "n": state.n if dim == 3 else n,
+        "p": state.p if dim == 3 else p,
+        "n_i": state.ni,
+        # E_D, E_A: levels measured from their own band edge (the physics Dopant.energy)
+        "E_D": v["E_c"] - state.material.dopant("D").energy,
+        "E_A": v["E_v"] + state.material.dopant("A").energy,
+        "f_D": ionized_density(state.material.dopant("D"), 1.0, state.eta_n, kT, v["N_D"]),
+        "f_A": ionized_density(state.material.dopant("A"), 1.0, state.eta_p, kT, v["N_A"]),
+        "N_D_plus": ionized_density(state.material.dopant("D"), v["N_D"], state.eta_n, kT,
+                                    v["N_D"]),
+        "N_A_minus": ionized_density(state.material.dopant("A"), v["N_A"], state.eta_p, kT,
+                                     v["N_A"]),
+        "D_n": transport.diffusion_coefficient(v["mu_n"], v["T"], state.eta_n, dim),
+        "D_p": transport.diffusion_coefficient(v["mu_p"], v["T"], state.eta_p, dim),
+        "sigma": transport.conductivity(n, p, v["mu_n"], v["mu_p"]),
+        "rho": transport.resistivity(n, p, v["mu_n"], v["mu_p"]),
+        "v_n": transport.drift_velocity(v["mu_n"], v["E"], v["v_sat_n"], v["beta_n"]),
+        "v_p": transport.drift_velocity(v["mu_p"], v["E"], v["v_sat_p"], v["beta_p"]),
+        "J": transport.conductivity(n, p, fast["n"], fast["p"]) * v["E"],
+        "hbar": np.full_like(kT, HBAR),
+        # diffusion length sqrt(D tau) (Shockley, Electrons and Holes in Semiconductors
+        # (1950), from memory) with the physics layer's D
+        "L_n": np.sqrt(transport.diffusion_coefficient(v["mu_n"], v["T"], state.eta_n, dim)
+                       * v["tau_n"]),
+        "L_p": np.sqrt(transport.diffusion_coefficient(v["mu_p"], v["T"], state.eta_p, dim)
+                       * v["tau_p"]),
+        # R = rho (L + lambda)/A; A = W t (3D), the width W of a sheet (2D), 1 for a wire
+        "R": transport.short_conductor_resistance(
+            transport.resistivity(n, p, v["mu_n"], v["mu_p"]), v["L"],
+            {3: v["W"] * v["t"], 2: v["W"], 1: 1.0}[dim], lam),
+        # sheet resistance: the diffusive resistance of one square (side W)
+        "R_s": transport.short_conductor_resistance(
+            transport.resistivity(n, p, v["mu_n"], v["mu_p"]), v["W"],
+            {3: v["W"] * v["t"], 2: v["W"]}.get(dim, np.nan), 0.0),
+        "A": v["W"] * v["t"],
+    }.get(name)
+
+
+def _mass_from_physics_dos(N_c, T, dim):
+    """The DOS mass (kg) whose physics-layer N_c(T) equals N_c: in 3D from the parabolic
+    form of MassPolynomialDOS (constant mass), in 2D from N_c = m kT/(pi hbar^2)
+    (J. H. Davies, The Physics of Low-Dimensional Semiconductors (1998), ch. 1, from memory)."""
+    if dim == 2:
+        return N_c * math.pi * sc.hbar ** 2 / (sc.k * T)
+    unit = MassPolynomialDOS((1.0,), np.inf, _ANY)(T)       # N_c of a band with m = m0
+    return (N_c / unit) ** (2.0 / 3.0) * ELECTRON_MASS
+
+
+WORLDS = [(dim, which, majority) for dim in (3, 2, 1) for which in ("donor", "acceptor")
+          for majority in ("n", "p")]
+
+
+@pytest.mark.parametrize("dim, which, majority", WORLDS,
+                         ids=[f"{d}D-{w}-{m}" for d, w, m in WORLDS])
+def test_every_relation_is_the_physics_layer(dim, which, majority):
+    base = world(dim, which, majority)
+
+    def relation(name, values):
+        tree = expand(("name", name), base.definitions)
+        return np.broadcast_to(expression.to_numpy(tree)(values), values["T"].shape)
+
+    v, eta_n = _sample(dim, which, seed=1000 * dim + len(which) + ord(majority))
+    # in this world one dopant density is defined by neutrality; the points are those
+    # where it comes out positive, and the other relations (N_D_plus = N_D f_D ...) are
+    # compared there with that density
+    dopant = "N_D" if which == "donor" else "N_A"
+    density = relation(dopant, v)
+    keep = density > 0
+    assert keep.mean() > 0.5
+    v = {name: value[keep] for name, value in v.items()}
+    v[dopant], eta_n = density[keep], eta_n[keep]
+    state = _state(v, eta_n)
+    checked = set()
+    for name in base.definitions:
+        if name in SWITCHES:
+            continue
+        value = relation(name, v)
+        if name == "E_i":
+            # the intrinsic level is where the physics layer's n equals p; checked with the
+            # gap widened to 100 kT, where F_1/2(eta) = e^eta to 1e-21 (Sze & Ng 2007, ch. 1)
+            wide = dict(v, E_c=v["E_v"] + 100 * state.kT)
+            at_level = _state(wide, (relation(name, wide) - wide["E_c"]) / state.kT,
+                              gap=100 * state.kT)
+            assert np.allclose(at_level.n / at_level.p, 1.0, rtol=1e-11, atol=0), name
+        elif name in ("N_D", "N_A"):
+            # charge neutrality n + N_A^- = p + N_D^+ (Sze & Ng 2007, ch. 1) with the
+            # physics layer's densities of this dimensionality and its ionization statistics
+            j = dim / 2 - 1
+            negative = v["N_c"] * fermi_dirac(j, eta_n) + ionized_density(
+                state.material.dopant("A"), v["N_A"], state.eta_p, state.kT, v["N_A"])
+            positive = v["N_v"] * fermi_dirac(j, state.eta_p) + ionized_density(
+                state.material.dopant("D"), v["N_D"], eta_n, state.kT, v["N_D"])
+            assert np.allclose(negative, positive, rtol=1e-11, atol=0), name
+            if dim == 3:                      # the solver's own neutrality error
+                assert np.max(charge_balance_error(state)) < 1e-11, name
+        elif name in ("m_n", "m_p"):
+            band = "N_c" if name == "m_n" else "N_v"
+            expected = _mass_from_physics_dos(v[band], v["T"], dim)
+            assert np.allclose(value, expected, rtol=1e-11, atol=0), name
+        else:
+            expected = _physics(name, v, state, dim, majority)
+            assert expected is not None, f"relation {name} has no physics-layer check"
+            assert np.allclose(value, expected, rtol=1e-11, atol=0), name
+        checked.add(name)
+    assert checked == set(base.definitions) - set(SWITCHES)
+    assert checked <= set(RELATION_NAMES)

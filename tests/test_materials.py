@@ -6,7 +6,9 @@ import scipy.constants as sc
 
 from checker import InputError, MissingParameterError, builtin_materials, load_material, solve_equilibrium
 from checker.inputs.material_catalog import material_from_mapping, missing_parameters
+from checker.physics.materials import MassPolynomialDOS, Provenance
 from conftest import PER_CM3
+from reference import reference_solve
 
 EV = sc.e
 CM2 = 1e-4
@@ -46,13 +48,6 @@ def test_band_gap_at_300K(name, gap, tol, source):
     assert float(load_material(name).band_gap(300.0)) / EV == pytest.approx(gap, abs=tol)
 
 
-def test_silicon_varshni_fit():
-    # Thurmond 1975 / Ioffe: Eg = 1.17 - 4.73e-4 T^2/(T + 636) eV
-    si = load_material("Si")
-    for T in (77.0, 300.0, 600.0):
-        assert float(si.band_gap(T)) / EV == pytest.approx(1.17 - 4.73e-4 * T * T / (T + 636), rel=1e-12)
-
-
 # (material, published n_i at 300 K in cm^-3, relative tolerance covering the spread, source)
 INTRINSIC = [
     ("Ge", 2.0e13, 0.15, "Ioffe NSM archive 2.0e13; Sze 1981 2.4e13"),
@@ -70,12 +65,14 @@ def test_intrinsic_density_at_300K(name, ni, tol, source):
 
 
 def test_effective_density_of_states_prefactor():
-    # N_c(m* = m0, 300 K) = 2 (2 pi m0 kT / h^2)^(3/2) = 2.5094e19 cm^-3 (references.md §7);
-    # Si N_c = 2.86e19 corresponds to m_dos = 1.09 m0 (Green 1990)
-    nc0 = 2 * (2 * math.pi * sc.m_e * sc.k * 300 / sc.h ** 2) ** 1.5 / PER_CM3
-    assert nc0 == pytest.approx(2.5094e19, rel=1e-4)
+    # N_c = 2 (2 pi m kT / h^2)^(3/2) is 25.09e18 cm^-3 for m = m0 at 300 K (nextnano3
+    # tutorial "Electron concentration in doped semiconductors", section 1)
+    unit_mass = MassPolynomialDOS((1.0,), 1e9, Provenance("test"))
+    assert float(unit_mass(300.0)) / PER_CM3 == pytest.approx(25.09e18, rel=2e-4)
+    # Si N_c = 2.86e19 corresponds to m_dos = 1.09 m0 (Green, J. Appl. Phys. 67, 2944 (1990))
     si = load_material("Si")
-    assert (float(si.Nc(300.0)) / PER_CM3 / nc0) ** (2 / 3) == pytest.approx(1.09, abs=0.005)
+    assert (float(si.Nc(300.0)) / float(unit_mass(300.0))) ** (2 / 3) == pytest.approx(1.09,
+                                                                                      abs=0.005)
 
 
 class TestSiliconMobility:
@@ -85,24 +82,6 @@ class TestSiliconMobility:
         si = load_material("Si")
         mu = si.electron.low_field(1e18 * PER_CM3, 300.0, model="masetti_P") / CM2
         assert mu == pytest.approx(277, abs=1.0)
-
-    @pytest.mark.parametrize("N", [1e14, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21])
-    def test_masetti_formula_with_published_table(self, N):
-        # Masetti, Severi & Solmi, IEEE TED 30, 764 (1983), Table I and eqs. 1, 4
-        si = load_material("Si")
-        e_as = 52.2 + (1417 - 52.2) / (1 + (N / 9.68e16) ** 0.680) - 43.4 / (1 + (3.43e20 / N) ** 2.0)
-        h_b = (44.9 * math.exp(-9.23e16 / N) + 470.5 / (1 + (N / 2.23e17) ** 0.719)
-               - 29.0 / (1 + (6.10e20 / N) ** 2.0))
-        # (the 300 K fits are carried to other temperatures by Arora's ratio: exact at 300 K)
-        assert si.electron.low_field(N * PER_CM3, 300.0, species="As") / CM2 == pytest.approx(e_as, rel=1e-12)
-        assert si.hole.low_field(N * PER_CM3, 300.0, model="masetti_B") / CM2 == pytest.approx(h_b, rel=1e-12)
-
-    def test_arora_low_doping_limits(self):
-        # Arora, Hauser & Roulston 1982: mu(N -> 0, 300 K) = 88 + 7.4e8 * 300^-2.33
-        # = 1340 (electrons) and 54.3 + 1.36e8 * 300^-2.23 = 461 (holes) cm^2/Vs
-        si = load_material("Si")
-        assert si.electron.low_field(0.0, 300.0, model="arora") / CM2 == pytest.approx(1340, abs=2)
-        assert si.hole.low_field(0.0, 300.0, model="arora") / CM2 == pytest.approx(461, abs=2)
 
     def test_canali_field_exponent(self):
         # Canali et al. 1975: beta = 2.57e-2 T^0.66 (e), 0.46 T^0.17 (h);
@@ -114,47 +93,55 @@ class TestSiliconMobility:
         assert float(si.electron.beta(293.0)) == pytest.approx(1.0916, abs=1e-4)
         assert float(si.hole.beta(293.0)) == pytest.approx(1.2081, abs=1e-4)
 
-    @pytest.mark.parametrize("T", [77.0, 300.0, 430.0])
-    def test_saturation_velocity(self, T):
-        # Canali et al., IEEE TED 22, 1045 (1975): v_m = 1.53e9 T^-0.87 cm/s (e),
-        # 1.62e8 T^-0.52 cm/s (h), 77-430 K
+    def test_saturation_velocity_at_293K(self):
+        # Canali et al. (1975) saturation velocities at 293 K as printed in the allpix-squared
+        # user manual ("Charge Carrier Mobility", custom model replicating Jacoboni-Canali at
+        # T = 293 K): v_m = 1.0927393e7 cm/s (electrons), 8.447804e6 cm/s (holes)
         si = load_material("Si")
-        assert float(si.electron.vsat(T)) * 100 == pytest.approx(1.53e9 * T ** -0.87, rel=1e-3)
-        assert float(si.hole.vsat(T)) * 100 == pytest.approx(1.62e8 * T ** -0.52, rel=3e-3)
+        assert float(si.electron.vsat(293.0)) * 100 == pytest.approx(1.0927393e7, rel=2e-5)
+        assert float(si.hole.vsat(293.0)) * 100 == pytest.approx(8.447804e6, rel=2e-5)
 
 
-def test_sotoodeh_gaas_mobility():
-    # Sotoodeh, Khalid & Rezazadeh, J. Appl. Phys. 87, 2890 (2000): GaAs electrons
-    # mu = 500 + (9400 - 500)/(1 + (N/6e16)^0.394) at 300 K
+@pytest.mark.parametrize("species, published, source", [
+    ("P", 3.74e18, "Rosenbaum et al., Phys. Rev. B 27, 7509 (1983)"),
+    ("B", 4.06e18, "Dai, Zhang & Sarachik, Phys. Rev. Lett. 66, 1914 (1991) (from memory)"),
+])
+def test_metallic_from_the_measured_mott_density(species, published, source):
+    # the solve calls silicon metallic from the measured metal-insulator transition on
+    group = "donors" if species == "P" else "acceptors"
+    for factor, metallic in ((0.999, False), (1.001, True)):
+        state = solve_equilibrium("Si", 300.0, **{group: {species: factor * published * PER_CM3}})
+        assert bool(state.metallic) is metallic, (species, factor, source)
+
+
+def test_gaas_mott_density_estimate():
+    # bulk n-GaAs: the Mott transition lies at "about 1e16 cm^-3" ("Experimental evidence of
+    # a Mott transition in highly doped two-dimensional confined structures" (2004),
+    # abstract); no measured value is tabulated, so the estimate must come out near it
     gaas = load_material("GaAs")
-    for N in (1e15, 1e17, 1e19):
-        expected = 500 + (9400 - 500) / (1 + (N / 6e16) ** 0.394)
-        assert gaas.electron.low_field(N * PER_CM3, 300.0) / CM2 == pytest.approx(expected, rel=1e-12)
-
-
-def test_band_gap_narrowing_slotboom():
-    # Klaassen, Slotboom & de Graaff 1992 set (6.92 mV, 1.3e17, 0.5): 3.4, 29.1, 60.5,
-    # 92.2 meV at 1e17..1e20 cm^-3 (references.md §5, computed from the formula)
-    si = load_material("Si")
-    for N, meV in [(1e17, 3.4), (1e18, 29.1), (1e19, 60.5), (1e20, 92.2)]:
-        assert float(si.narrowing(N * PER_CM3, 0.0)) / EV * 1e3 == pytest.approx(meV, abs=0.06)
-
-
-def test_mott_densities():
-    si = load_material("Si")
-    # measured: Si:P 3.74e18 (Rosenbaum et al. 1983), Si:B 4.06e18 (Dai et al. 1991)
-    assert si.dopant("P").mott_density / PER_CM3 == pytest.approx(3.74e18)
-    assert si.dopant("B").mott_density / PER_CM3 == pytest.approx(4.06e18)
-    # n-GaAs: Edwards-Sienko estimate ~1.7e16, experiments 1-2e16 (references.md §4d)
-    gaas = load_material("GaAs")
-    assert 1.0e16 <= gaas.dopant("Si").mott_density / PER_CM3 <= 2.5e16
     assert gaas.dopant("Si").mott_estimated
+    assert 0.5e16 <= gaas.dopant("Si").mott_density / PER_CM3 <= 2e16
 
 
-def test_degeneracy_factors():
-    # Sze & Ng 2007: g_D = 2, g_A = 4
+@pytest.mark.parametrize("species, kind, degeneracy", [("P", "donor", 2), ("B", "acceptor", 4)])
+def test_ground_state_degeneracy_in_freeze_out(species, kind, degeneracy):
+    """Sze & Ng (2007), ch. 1: N_D+ = N_D / (1 + g_D e^((E_F - E_D)/kT)), g_D = 2, and
+    N_A- = N_A / (1 + g_A e^((E_A - E_F)/kT)), g_A = 4.  At 1e14 cm^-3 about half the
+    dopants are frozen out at 55 K, so the ionized fraction of the solve at the independently
+    solved Fermi level (tests/reference.py) shows the factor; the level is the material's,
+    its lowering and band-tail share change the fraction by < 1e-5 at this density."""
     si = load_material("Si")
-    assert si.dopant("P").degeneracy == 2 and si.dopant("B").degeneracy == 4
+    T, N = 55.0, 1e14 * PER_CM3
+    group = {species: N}
+    donors, acceptors = (group, {}) if kind == "donor" else ({}, group)
+    state = solve_equilibrium(si, T, donors, acceptors)
+    eta_n = reference_solve(si, T, donors, acceptors)
+    kT = sc.k * T
+    eta = eta_n if kind == "donor" else -eta_n - float(si.band_gap(T)) / kT
+    expected = 1 / (1 + degeneracy * math.exp(eta + si.dopant(species).energy / kT))
+    fraction = state.donor_fraction if kind == "donor" else state.acceptor_fraction
+    assert 0.2 < expected < 0.9
+    assert float(fraction) == pytest.approx(expected, rel=1e-4)
 
 
 def _minimal_user_material():

@@ -5,7 +5,7 @@ import numpy as np
 import pytest
 import scipy.constants as sc
 
-from checker import carrier_transport, solve_equilibrium
+from checker import carrier_transport, load_material, solve_equilibrium
 from checker.physics import transport
 from conftest import PER_CM3, fd_reference
 
@@ -21,13 +21,10 @@ def test_einstein_ratio_against_mpmath(dimension, j):
         assert value == pytest.approx(float(expected), rel=1e-13)
 
 
-def test_einstein_ratio_published_table():
-    # references.md §2b (mpmath-computed): 3D 1.01727702357 at eta = -3,
-    # 1.26491773944 at 0, 6.77910315862 at 10; 2D 1.38629436112 at 0
-    assert transport.einstein_ratio(-3.0) == pytest.approx(1.01727702357, rel=1e-10)
-    assert transport.einstein_ratio(0.0) == pytest.approx(1.26491773944, rel=1e-10)
-    assert transport.einstein_ratio(10.0) == pytest.approx(6.77910315862, rel=1e-10)
-    assert transport.einstein_ratio(0.0, 2) == pytest.approx(1.38629436112, rel=1e-10)
+def test_einstein_ratio_2d_at_zero_is_two_ln_two():
+    # 2D: F_0(0)/F_-1(0) = ln 2 / (1/2) = 2 ln 2 = 1.386 (closed forms, DLMF 25.12.16; the
+    # example of rules/STAT02.yaml)
+    assert transport.einstein_ratio(0.0, 2) == pytest.approx(2 * math.log(2), rel=1e-14)
 
 
 def test_einstein_limits():
@@ -43,10 +40,10 @@ def test_einstein_limits():
 
 
 def test_diffusion_coefficient_non_degenerate_silicon():
-    # D = mu kT/q with scipy.constants; 1400 cm^2/Vs -> 36.2 cm^2/s (Ioffe lists D_n <= 36)
+    # Ioffe NSM archive, Si electrical properties: mobility <= 1400 cm^2/Vs, diffusion
+    # coefficient <= 36 cm^2/s (300 K, lightly doped)
     d = transport.diffusion_coefficient(0.14, 300.0, -20.0)
-    assert d == pytest.approx(0.14 * sc.k * 300 / sc.e, rel=1e-8)
-    assert d * 1e4 == pytest.approx(36.2, abs=0.1)
+    assert d * 1e4 == pytest.approx(36, abs=0.5)
 
 
 def test_field_dependent_mobility_limits():
@@ -58,19 +55,28 @@ def test_field_dependent_mobility_limits():
     assert transport.drift_velocity(mu0, 1e9, vsat, 1.1) == pytest.approx(vsat, rel=1e-3)
 
 
-def test_jacoboni_canali_example():
-    # allpix-squared user manual: Jacoboni-Canali at 293 K, electrons
-    # v_m = 1.0927393e7 cm/s, E_c = 6729.24 V/cm, beta = 1.0916; mu(E) = v_m/E_c/(1+(E/E_c)^b)^(1/b)
-    vm, Ec, beta = 1.0927393e5, 6729.24e2, 1.0916
-    E = 2e6  # 20 kV/cm
-    expected = vm / Ec / (1 + (E / Ec) ** beta) ** (1 / beta)
-    assert transport.field_dependent_mobility(vm / Ec, E, vm, beta) == pytest.approx(expected, rel=1e-12)
+def test_jacoboni_canali_parameters_at_293K():
+    # allpix-squared user manual ("Charge Carrier Mobility", Jacoboni-Canali at T = 293 K)
+    # prints v_m, E_c and beta of electrons (1.0927393e7 cm/s, 6729.24 V/cm, 1.0916) and
+    # holes (8.447804e6 cm/s, 17288.57 V/cm, 1.2081).  At E = E_c the Caughey-Thomas
+    # mobility is (v_m/E_c) 2^(-1/beta) (Caughey & Thomas 1967): the silicon model at 293 K
+    # with the low-field mobility v_m/E_c must give it
+    si = load_material("Si")
+    for band, vm, Ec, beta in ((si.electron, 1.0927393e5, 6729.24e2, 1.0916),
+                               (si.hole, 8.447804e4, 17288.57e2, 1.2081)):
+        vsat, exponent = float(band.vsat(293.0)), float(band.beta(293.0))
+        assert vsat == pytest.approx(vm, rel=2e-5) and exponent == pytest.approx(beta, abs=1e-4)
+        mu = transport.field_dependent_mobility(vm / Ec, Ec, vsat, exponent)
+        assert mu == pytest.approx(vm / Ec * 2 ** (-1 / beta), rel=1e-4)
 
 
-def test_two_carrier_conductivity():
-    n, p, mu_n, mu_p = 1e21, 3e20, 0.12, 0.04
-    assert transport.conductivity(n, p, mu_n, mu_p) == pytest.approx(sc.e * (n * mu_n + p * mu_p))
-    assert transport.resistivity(0.0, 0.0, mu_n, mu_p) == math.inf
+def test_intrinsic_silicon_resistivity():
+    # intrinsic Si at 300 K: 3.2e5 ohm cm (Sze & Ng 2007, App. G (from memory)); both
+    # carriers conduct, so this is the two-carrier conductivity q(n mu_n + p mu_p)
+    state = solve_equilibrium("Si", 300.0)
+    rho = float(carrier_transport(state)["rho"]) * 100
+    assert rho == pytest.approx(3.2e5, rel=0.1)
+    assert transport.resistivity(0.0, 0.0, 0.12, 0.04) == math.inf
 
 
 @pytest.mark.parametrize("N,rho_published", [(1e15, 4.4), (1e16, 0.50), (1e17, 0.085)])
@@ -83,12 +89,14 @@ def test_silicon_resistivity_against_irvin_curve(N, rho_published):
 
 
 def test_unidirectional_thermal_velocity():
-    T, m = 300.0, 0.26
-    # non-degenerate: sqrt(2kT/(pi m*)) (Lundstrom & Jeong 2012); rms sqrt(3kT/m*)
-    # with m* = 0.26 m0 is Ioffe's 2.3e5 m/s for Si electrons
-    base = math.sqrt(2 * sc.k * T / (math.pi * m * sc.m_e))
-    assert transport.unidirectional_thermal_velocity(T, m) == pytest.approx(base, rel=1e-8)
-    assert math.sqrt(3 * sc.k * T / (m * sc.m_e)) == pytest.approx(2.3e5, rel=0.01)
+    # Ioffe NSM archive, Si: thermal velocity of electrons 2.3e5 m/s (rms, sqrt(3kT/m*)).
+    # For a Maxwell-Boltzmann gas the mean of v_x over carriers moving in +x is
+    # v_rms sqrt(2/(3 pi)) (Lundstrom & Jeong 2012, ch. 2)
+    si = load_material("Si")
+    T, m = 300.0, si.electron.thermal_mass
+    base = transport.unidirectional_thermal_velocity(T, m)
+    assert base * math.sqrt(3 * math.pi / 2) == pytest.approx(2.3e5, rel=0.01)
+    # Fermi-Dirac form -> the non-degenerate one (F_1/F_1/2 -> 1)
     assert transport.unidirectional_thermal_velocity(T, m, -30.0) == pytest.approx(base, rel=1e-12)
     # degenerate 3D: <v_x+> -> (3/8) v_F (average over a Fermi hemisphere)
     eta = 2000.0
