@@ -4,11 +4,8 @@ Densities are m^-3 and temperatures K (multiply cm^-3 values by ``PER_CM3``).
 """
 from __future__ import annotations
 
-import numpy as np
-
 from .inputs.material_catalog import builtin_names, missing_parameters, resolve_material
 from .physics import carriers, equilibrium
-from .physics.constants import EV
 from .physics.materials import Material
 
 PER_CM3 = 1e6           # cm^-3 -> m^-3
@@ -58,27 +55,12 @@ def check_paths(paths, config=None):
 
 
 def state_summary(state: equilibrium.State, index=()):
-    """Trade-unit numbers of one point of a State (for reports and the CLI)."""
-    pick = lambda a: float(np.asarray(a)[index])
-    return {
-        "material": state.material.name,
-        "temperature_K": pick(state.T),
-        "band_gap_eV": pick(state.Eg) / EV,
-        "EF_minus_EC_eV": pick(state.ef_minus_ec_eV),
-        "EF_minus_EV_eV": pick(state.ef_minus_ev_eV),
-        "eta_n": pick(state.eta_n),
-        "eta_p": pick(state.eta_p),
-        "n_cm3": pick(state.n) / PER_CM3,
-        "p_cm3": pick(state.p) / PER_CM3,
-        "ni_cm3": pick(state.ni) / PER_CM3,
-        "Nc_cm3": pick(state.Nc) / PER_CM3,
-        "Nv_cm3": pick(state.Nv) / PER_CM3,
-        "donors_ionized_fraction": pick(state.donor_fraction),
-        "acceptors_ionized_fraction": pick(state.acceptor_fraction),
-        "metallic": bool(np.asarray(state.metallic)[index]),
-        "regime": str(regime_label(state)[index]) if np.ndim(state.T) else str(regime_label(state)),
-        "neutrality_residual": pick(state.residual),
-    }
+    """Trade-unit numbers of one point of a State (for reports and the CLI): the
+    ``state`` object of the JSON reports, with the band densities of states and the
+    neutrality residual."""
+    from .engine.trade_summary import state_values, trade_summary
+
+    return {"material": state.material.name, **trade_summary(state_values(state), index)}
 
 
 __all__ = ["CM2_PER_VS", "PER_CM3", "builtin_materials", "carrier_transport", "check_paths",

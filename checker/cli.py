@@ -13,11 +13,11 @@ import sys
 from pathlib import Path
 
 from .errors import RegimecheckError
+from .vocabulary_words import SEVERITIES
 
 EXIT_OK, EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 EXIT_BROKEN_PIPE = 141                 # 128 + SIGPIPE, as a shell reports it
 EXIT_INTERRUPTED = 130                 # 128 + SIGINT
-LEVELS = ("info", "warning", "error")
 
 
 class _Parser(argparse.ArgumentParser):
@@ -115,7 +115,7 @@ def _report_options(command):
     command.add_argument("--output", metavar="FILE",
                          help="write the report to FILE (UTF-8) instead of the terminal; "
                               "never over an input, and only once the report is complete")
-    command.add_argument("--fail-on", choices=LEVELS, default=None,
+    command.add_argument("--fail-on", choices=SEVERITIES, default=None,
                          help="lowest severity that makes the exit code 1 (default: the "
                               "configuration's fail-level, else warning)")
     command.add_argument("--config", metavar="FILE",
@@ -168,7 +168,7 @@ def _exit_code(result, args) -> int:
         return EXIT_INPUT
     worst = result.worst()
     fail_on = args.fail_on or "warning"
-    if worst is None or args.exit_zero or LEVELS.index(worst) < LEVELS.index(fail_on):
+    if worst is None or args.exit_zero or SEVERITIES.index(worst) < SEVERITIES.index(fail_on):
         return EXIT_OK
     return EXIT_FINDINGS
 
@@ -463,6 +463,7 @@ def _cmd_map(args) -> int:
 def _cmd_curve(args) -> int:
     import numpy as np
 
+    from .engine.regime_map import eta_curve
     from .inputs.material_catalog import resolve_material
     from .report.plots import draw_eta_curve
 
@@ -471,8 +472,8 @@ def _cmd_curve(args) -> int:
     (species, density), = _pairs([args.doping], "doping").items()
     material.dopant(species)
     first, last = _range(args.temperature_range, "--temperature-range", 1.0, 3000.0)
-    _save(draw_eta_curve(material, species, density, np.linspace(first, last, 400)),
-          args.output)
+    curve = eta_curve(material, species, density, np.linspace(first, last, 400))
+    _save(draw_eta_curve(curve), args.output)
     return EXIT_OK
 
 

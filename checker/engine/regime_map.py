@@ -1,4 +1,5 @@
-"""The doping–temperature plane of one material and dopant, divided into regimes.
+"""The doping–temperature plane of one material and dopant, divided into regimes, and
+η of the majority carrier along temperature at one doping (the plots draw both).
 
 Every grid point is solved with the equilibrium solver (one vectorized call) and
 classified by :func:`checker.physics.carriers.regime_code`; the criteria behind
@@ -14,6 +15,7 @@ import numpy as np
 
 from ..physics import carriers, equilibrium
 from ..physics.carriers import REGIMES
+from ..vocabulary_words import SEVERITY_RANK
 
 DOPING_RANGE = (1e13 * 1e6, 1e21 * 1e6)      # m^-3
 TEMPERATURE_RANGE = (20.0, 700.0)            # K
@@ -31,6 +33,29 @@ class RegimeGrid:
     fraction: np.ndarray      # ionized fraction of the dopant
     ni_ratio: np.ndarray      # n_i / N
     mott: float               # m^-3 (inf where the dopant has none)
+
+    @property
+    def carrier(self) -> str:
+        """The majority carrier the dopant gives: "n" or "p"."""
+        return _CARRIER[self.kind]
+
+
+@dataclass
+class EtaCurve:
+    material: object
+    species: str
+    kind: str                 # "donor" | "acceptor"
+    density: float            # m^-3
+    T: np.ndarray             # K
+    eta: np.ndarray           # η of the majority carrier
+    codes: np.ndarray         # index into REGIMES per temperature
+
+    @property
+    def carrier(self) -> str:
+        return _CARRIER[self.kind]
+
+
+_CARRIER = {"donor": "n", "acceptor": "p"}
 
 
 @dataclass
@@ -65,6 +90,18 @@ def regime_grid(material, species, doping_range=DOPING_RANGE,
                       float(dopant.mott_density))
 
 
+def eta_curve(material, species, density, temperatures) -> EtaCurve:
+    """η of the majority carrier and the regime at each of ``temperatures`` (K) for
+    ``density`` (m^-3) of ``species``."""
+    dopant = material.dopant(species)
+    T = np.asarray(temperatures, dtype=float)
+    donors = {species: np.full(T.shape, density)} if dopant.kind == "donor" else {}
+    acceptors = {species: np.full(T.shape, density)} if dopant.kind == "acceptor" else {}
+    state = equilibrium.solve(material, T, donors, acceptors)
+    eta = np.asarray(state.eta_n if dopant.kind == "donor" else state.eta_p)
+    return EtaCurve(material, species, dopant.kind, density, T, eta, carriers.regime_code(state))
+
+
 def regime_at(grid: RegimeGrid, doping: float, T: float) -> str:
     """The regime of the grid cell that holds (doping, T)."""
     i = int(np.argmin(np.abs(np.log(grid.doping) - np.log(doping))))
@@ -74,8 +111,6 @@ def regime_at(grid: RegimeGrid, doping: float, T: float) -> str:
 
 def map_groups(result) -> dict:
     """(material name, species) -> (material, [MapPoint]) for the checked calculations."""
-    from .evaluate import SEVERITY_RANK
-
     groups = {}
     for report in result.reports:
         calc = report.calc

@@ -30,12 +30,18 @@ def _group_key(calc):
             int(calc.structure.get("dim", 3)))
 
 
-def solve_sweep(calc, T, donors, acceptors) -> tuple[dict, str | None]:
-    """Every quantity over the points of a sweep of ``calc`` (arrays of one length)."""
-    count = len(T)
+def _unknown(count) -> dict:
+    """Every quantity over ``count`` points, unknown (NaN, or empty text) until solved."""
     values = {name: np.full(count, np.nan) for name in concrete_names()}
     values.update({name: np.full(count, value) for name, value in CONSTANTS.items()})
     values.update({name: np.full(count, "", dtype=object) for name in TEXT})
+    return values
+
+
+def solve_sweep(calc, T, donors, acceptors) -> tuple[dict, str | None]:
+    """Every quantity over the points of a sweep of ``calc`` (arrays of one length)."""
+    count = len(T)
+    values = _unknown(count)
     put, skipped = solve_points(calc, T, donors, acceptors)
     for name, array in put.items():
         values[name] = np.broadcast_to(array, (count,)).copy() if np.ndim(array) else \
@@ -49,10 +55,7 @@ def solve_all(calculations) -> tuple[dict, dict, dict]:
     over the calculations (NaN where unknown); errors maps a calculation index to
     the message of a solve that could not be done; notes maps an index to what
     was skipped (e.g. transport checks for a material without mobility data)."""
-    count = len(calculations)
-    values = {name: np.full(count, np.nan) for name in concrete_names()}
-    values.update({name: np.full(count, value) for name, value in CONSTANTS.items()})
-    values.update({name: np.full(count, "", dtype=object) for name in TEXT})
+    values = _unknown(len(calculations))
     errors, notes = {}, {}
     groups = {}
     for index, calc in enumerate(calculations):

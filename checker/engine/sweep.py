@@ -1,11 +1,12 @@
 """Sweeps: a calculation whose temperature and/or a dopant density are ranges.
 
-The grid (the outer product of at most two axes) is solved and every rule is
-evaluated over it in vectorized chunks; only the masks of failing points and each
-rule's worst point are kept.  Per rule the report gives where on the grid it
-starts to fail ("for N_D(P) ≥ 2.5e18 cm⁻³ at 300 K"), the fraction of the grid that
-fails, and the full finding (indicator, corrections) at the worst point, which is
-checked again as an ordinary single-point calculation.
+The grid (the outer product of at most two axes) is solved and ruled in chunks of
+cells (:mod:`checker.engine.evaluate`, as single points are); this module's reduction
+keeps only each rule's failing mask and worst cell.  Per rule the result says where on
+the grid it starts to fail (edges between grid points interpolated where the indicator
+crosses its threshold smoothly), the fraction of the grid that fails, and the full
+finding at the worst cell, which is checked again as an ordinary single point.  Only
+numbers and names leave here; :mod:`checker.report.sweep_text` writes them as text.
 """
 from __future__ import annotations
 
@@ -14,20 +15,43 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .evaluate import rule_mask
+from .evaluate import Cells, beyond, rule_cells, rule_indicator
+from .findings import carrier_word
+from .points import CalculationReport, check_points
 from .state_values import solve_sweep
-from .vocabulary import carrier_names
 
 CHUNK = 100_000          # points solved and evaluated at a time (bounds the memory)
 ROWS_SHOWN = 5           # rows of a 2D grid whose boundary is written out
 
 
 @dataclass
+class FailingRun:
+    """A run of failing grid points along the boundary axis: its edge values (None:
+    the run reaches that end of the axis)."""
+
+    low: float | None
+    high: float | None
+
+
+@dataclass
+class BoundaryRow:
+    """Rows of the grid that fail alike (one axis: the single row, ``rows`` None)."""
+
+    rows: tuple | None       # (first, last, middle) value of the row axis
+    single: bool             # one row
+    every: bool              # the rows cover the whole row axis
+    runs: list               # FailingRun along the boundary axis
+
+
+@dataclass
 class SweepSummary:
     points: int
     failing_fraction: float
-    boundary: list = field(default_factory=list)     # lines of text
-    worst_point: dict = field(default_factory=dict)  # axis label -> value (trade units)
+    axis: object = None               # inputs Axis the boundary runs along
+    row_axis: object = None           # inputs Axis of the rows (None: one axis)
+    rows: list = field(default_factory=list)          # BoundaryRow
+    interpolated: bool = False        # edges between grid points were interpolated
+    worst_point: list = field(default_factory=list)   # (Axis, value) per swept axis
 
 
 def axis_label(axis) -> str:
@@ -35,10 +59,6 @@ def axis_label(axis) -> str:
         return "T"
     group, species = axis.key
     return f"{'N_D' if group == 'donors' else 'N_A'}({species})"
-
-
-def axis_value(axis, value) -> str:
-    return f"{value:.4g} K" if axis.key == "T" else f"{value * 1e-6:.3g} cm⁻³"
 
 
 def grid(calc):
@@ -64,9 +84,39 @@ def point(calc, T, donors, acceptors, index):
     return single
 
 
-def evaluate_sweep(calc, rules, embodied, progress=None):
-    """Per (rule id, carrier): (failing mask over the grid, worst index); plus a note."""
-    T, donors, acceptors, shape = grid(calc)
+def check_sweep(calc, rules, progress=None):
+    """(CalculationReport, input errors) of a sweep: its first point read as a single
+    point (formulas, solvability), every rule over the grid, then each failing rule's
+    worst point checked in full and its boundary summarized."""
+    grid_points = grid(calc)
+    T, donors, acceptors, _ = grid_points
+    (first,), errors = check_points([point(calc, T, donors, acceptors, 0)], rules)
+    if first.error:
+        return CalculationReport(calc, None, error=first.error), errors
+    for result in first.formulas:    # a value "here" belongs to one point, not to a sweep
+        result.value = result.exact = result.error = float("nan")
+    masks, notes = rule_grid(calc, rules, first.embodied, grid_points, progress)
+    findings = [f for f in first.findings if f.rule in ("FORM01", "FORM02")]
+    by_id = {rule.id: rule for rule in rules}
+    for (rule_id, x), (mask, index) in sorted(masks.items()):
+        (worst,), _ = check_points([point(calc, T, donors, acceptors, index)], rules)
+        match = [f for f in worst.findings if f.rule == rule_id and f.carrier == carrier_word(x)]
+        if not match:
+            continue
+        finding = match[0]
+        finding.sweep = summarize_sweep(calc, mask, index, grid_points,
+                                        excess_at(calc, by_id[rule_id], x, grid_points))
+        findings.append(finding)
+    report = CalculationReport(calc, None, findings, notes, formulas=first.formulas,
+                               embodied=first.embodied)
+    report.sweep = {"axes": [(axis_label(a), a) for a in calc.sweep], "points": int(T.size)}
+    return report, errors
+
+
+def rule_grid(calc, rules, embodied, grid_points, progress=None):
+    """({(rule id, carrier): (failing mask over the grid, worst flat index)}, notes):
+    every rule over the grid in chunks of cells."""
+    T, donors, acceptors, shape = grid_points
     size = T.size
     masks, worst, notes = {}, {}, []
     for start in range(0, size, CHUNK):
@@ -76,51 +126,27 @@ def evaluate_sweep(calc, rules, embodied, progress=None):
                                       {s: a[start:stop] for s, a in acceptors.items()})
         if skipped and skipped not in notes:
             notes.append(skipped)
-        count = stop - start
-        with np.errstate(all="ignore"):
-            for rule in rules:
-                if rule.evaluated_by:
-                    continue
-                for x in rule.carriers:
-                    names = carrier_names(x) if x else {}
-                    made = _made(rule, x, names, calc, embodied, values, count)
-                    fired, indicator, _ = rule_mask(rule, x, names, made, values, count)
-                    if not fired.any():
-                        continue
-                    key = (rule.id, x)
-                    masks.setdefault(key, np.zeros(size, dtype=bool))[start:stop] = fired
-                    excess = indicator - rule.threshold if rule.relation == "above" \
-                        else rule.threshold - indicator
-                    excess = np.where(fired, np.nan_to_num(excess, posinf=1e300), -np.inf)
-                    best = int(np.argmax(excess))
-                    if key not in worst or excess[best] > worst[key][0]:
-                        worst[key] = (float(excess[best]), start + best)
+        for ruled in rule_cells(rules, Cells.grid(calc, values, stop - start, embodied)):
+            if not ruled.fired.any():
+                continue
+            key = (ruled.rule.id, ruled.x)
+            masks.setdefault(key, np.zeros(size, dtype=bool))[start:stop] = ruled.fired
+            with np.errstate(all="ignore"):
+                excess = np.where(ruled.fired, np.nan_to_num(ruled.excess(), posinf=1e300),
+                                  -np.inf)
+            best = int(np.argmax(excess))
+            if key not in worst or excess[best] > worst[key][0]:
+                worst[key] = (float(excess[best]), start + best)
         if progress:
             progress(stop, size)
-    return {key: (mask.reshape(shape), worst[key][1]) for key, mask in masks.items()}, \
-        (T, donors, acceptors, shape), notes
-
-
-def _made(rule, x, names, calc, embodied, values, count):
-    made = np.zeros(count, dtype=bool)
-    if not rule.declared:
-        return made
-    in_use = values[names["in_use_x"]] > 0 if x else np.ones(count, dtype=bool)
-    if any(word in calc.assumes for word in rule.declared):
-        made |= in_use
-    for item in embodied:
-        if item.word in rule.declared:
-            if not x or item.carrier == x:
-                made[:] = True
-            elif item.carrier is None:
-                made |= in_use
-    return made
+    return {key: (mask.reshape(shape), worst[key][1]) for key, mask in masks.items()}, notes
 
 
 def _runs(flags) -> list:
     """(first, last) index of each run of True."""
     edges = np.diff(np.concatenate(([0], np.asarray(flags, dtype=np.int8), [0])))
-    return list(zip(np.flatnonzero(edges == 1), np.flatnonzero(edges == -1) - 1))
+    return [(int(i), int(j)) for i, j in
+            zip(np.flatnonzero(edges == 1), np.flatnonzero(edges == -1) - 1)]
 
 
 SMOOTH = 0.05      # |excess| at an edge, relative to its span, to accept it as a crossing
@@ -170,32 +196,23 @@ def _interpolate(axis, pairs, bases, excess) -> list:
     return [float(values[k]) if good[k] else None for k in range(len(pairs))]
 
 
-def _along(axis, flags, crossings=None) -> str:
-    """Where along one axis the rule fails, in words; ``crossings`` maps (passing,
-    failing) index pairs to the interpolated edge value (None: use the grid value)."""
-    values, label, last = axis.values, axis_label(axis), len(axis.values) - 1
+def _failing_runs(axis, flags, crossings=None) -> list:
+    """The failing runs along one axis; ``crossings`` maps (passing, failing) index
+    pairs to the interpolated edge value (None: the failing grid value)."""
+    values, last = axis.values, len(axis.values) - 1
 
     def edge(passing, failing):
         value = (crossings or {}).get((passing, failing))
-        return axis_value(axis, values[failing] if value is None else value)
+        return float(values[failing] if value is None else value)
 
-    parts = []
-    for i, j in _runs(flags):
-        if i == 0 and j == last:
-            parts.append("on the whole range")
-        elif i == 0:
-            parts.append(f"for {label} ≤ {edge(j + 1, j)}")
-        elif j == last:
-            parts.append(f"for {label} ≥ {edge(i - 1, i)}")
-        else:
-            parts.append(f"for {edge(i - 1, i)} ≤ {label} ≤ {edge(j + 1, j)}")
-    return " and ".join(parts) or "nowhere"
+    return [FailingRun(None if i == 0 else edge(i - 1, i),
+                       None if j == last else edge(j + 1, j)) for i, j in _runs(flags)]
 
 
-def boundary(calc, mask, excess=None) -> list:
-    """Lines saying where on the grid the rule fails.  ``excess(flat indices, override)``
-    (optional) gives the indicator's distance beyond its threshold, for interpolating
-    the edges between grid points."""
+def boundary(calc, mask, excess=None):
+    """(boundary axis, row axis or None, [BoundaryRow]): where on the grid the rule
+    fails.  ``excess(flat indices, override)`` (optional) gives the indicator's distance
+    beyond its threshold, for interpolating the edges between grid points."""
     axes = calc.sweep
     shape = mask.shape
     if len(axes) == 1:
@@ -215,10 +232,10 @@ def boundary(calc, mask, excess=None) -> list:
         return int(np.ravel_multi_index(tuple(position), shape))
 
     # rows whose failing cells are alike are described together, at their middle row
-    plain = [_along(axis, grid_mask[r]) for r in range(count)]
+    alike = [_runs(grid_mask[r]) for r in range(count)]
     groups = []                       # consecutive rows that fail alike: (first, last)
-    for r, text in enumerate(plain):
-        if groups and plain[groups[-1][0]] == text:
+    for r, runs in enumerate(alike):
+        if groups and alike[groups[-1][0]] == runs:
             groups[-1] = (groups[-1][0], r)
         else:
             groups.append((r, r))
@@ -233,30 +250,20 @@ def boundary(calc, mask, excess=None) -> list:
                              [flat(r, pair[1]) for r, pair in edges], excess)
         for (r, pair), value in zip(edges, found):
             crossings.setdefault(r, {})[pair] = value
-    texts = [_along(axis, grid_mask[r], crossings.get(r)) for r in middles]
-    if rows is None:
-        return [f"fails {texts[0]}"]
-    label = axis_label(row_axis)
-
-    def rows_text(first, last, middle):
-        if first == last:
-            return f"at {label} = {axis_value(row_axis, row_axis.values[first])}"
-        span = "every " + label if first == 0 and last == count - 1 else (
-            f"{label} = {axis_value(row_axis, row_axis.values[first])} … "
-            f"{axis_value(row_axis, row_axis.values[last])}")
-        edge = f" (edge at {axis_value(row_axis, row_axis.values[middle])})" \
-            if excess is not None else ""
-        return f"at {span}{edge}"
-
-    return [f"{rows_text(first, last, middle)}: fails {text}"
-            for (first, last), middle, text in zip(groups, middles, texts)]
+    described = []
+    for (first, last), middle in zip(groups, middles):
+        at = None if rows is None else tuple(float(row_axis.values[r])
+                                             for r in (first, last, middle))
+        described.append(BoundaryRow(at, first == last, first == 0 and last == count - 1,
+                                     _failing_runs(axis, grid_mask[middle],
+                                                   crossings.get(middle))))
+    return axis, row_axis, described
 
 
-def excess_at(calc, rule, x, embodied, grid_points):
+def excess_at(calc, rule, x, grid_points):
     """A function: flat grid indices -> how far the rule's indicator is beyond its
-    threshold there (NaN where the rule does not apply)."""
+    threshold there."""
     T, donors, acceptors, _ = grid_points
-    names = carrier_names(x) if x else {}
 
     def excess(indices, override=None):
         """At grid points ``indices``; ``override`` = (axis key, value or one value per
@@ -273,21 +280,16 @@ def excess_at(calc, rule, x, embodied, grid_points):
             else:
                 (donors_at if key[0] == "donors" else acceptors_at)[key[1]] = moved
         values, _ = solve_sweep(calc, T_at, donors_at, acceptors_at)
-        count = indices.size
+        indicator = rule_indicator(rule, x, values, indices.size)
         with np.errstate(all="ignore"):
-            made = _made(rule, x, names, calc, embodied, values, count)
-            _, indicator, _ = rule_mask(rule, x, names, made | ~made.any(), values, count)
-        beyond = indicator - rule.threshold if rule.relation == "above" \
-            else rule.threshold - indicator
-        return np.asarray(beyond, dtype=float)
+            return np.asarray(beyond(rule, indicator), dtype=float)
 
     return excess
 
 
 def summarize_sweep(calc, mask, index, grid_points, excess=None) -> SweepSummary:
-    shape = grid_points[3]
-    position = np.unravel_index(index, shape)
-    worst = {axis_label(axis): axis_value(axis, axis.values[position[k]])
-             for k, axis in enumerate(calc.sweep)}
-    return SweepSummary(int(mask.size), float(mask.mean()),
-                        boundary(calc, mask, excess), worst)
+    position = np.unravel_index(index, grid_points[3])
+    axis, row_axis, rows = boundary(calc, mask, excess)
+    worst = [(axis_, float(axis_.values[position[k]])) for k, axis_ in enumerate(calc.sweep)]
+    return SweepSummary(int(mask.size), float(mask.mean()), axis, row_axis, rows,
+                        excess is not None, worst)

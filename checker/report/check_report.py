@@ -7,11 +7,12 @@ from __future__ import annotations
 
 import json
 
-from ..engine.evaluate import display
+from ..engine.number_text import display
 from ..engine.vocabulary import DISPLAY_UNITS
 from . import DISCLAIMER
 from .safe_text import visible, visible_data
 from .state_report import ROWS
+from .sweep_text import axis_text, axis_value, boundary_lines, finding_message, worst_point
 
 JSON_FORMAT = "regimecheck-report/1"
 STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
@@ -99,7 +100,7 @@ def render_console(result, console=None, stream=None) -> None:
             continue
         if report.sweep:
             add(out, f"sweep of {report.sweep['points']} points: " + " × ".join(
-                sweep_axis_text(label, axis) for label, axis in report.sweep["axes"]), indent=2)
+                axis_text(label, axis) for label, axis in report.sweep["axes"]), indent=2)
         else:
             for key, label, fmt in STATE_ROWS:
                 out.append(f"  {label:<24}", style="dim")
@@ -116,7 +117,7 @@ def render_console(result, console=None, stream=None) -> None:
             out.append(f"{tag.upper():8s}", style="dim" if f.waived else STYLE[f.severity])
             out.append(f"{f.rule}  {f.title}", style="bold")
             out.append(f"  at {_where(f.file, f.line, f.column)}\n", style="dim")
-            add(out, f.message)
+            add(out, finding_message(f))
             if f.indicator_text():
                 add(out, f"regime indicator: {f.indicator_text()}", "dim")
             for c in f.corrections:
@@ -156,18 +157,9 @@ def formula_lines(r) -> list:
     return lines
 
 
-def sweep_axis_text(label, axis) -> str:
-    from ..engine.sweep import axis_value
-
-    return (f"{label} {axis_value(axis, axis.values[0])} … {axis_value(axis, axis.values[-1])} "
-            f"({len(axis.values)} {axis.spacing} steps)")
-
-
 def sweep_json(report) -> dict | None:
     if not report.sweep:
         return None
-    from ..engine.sweep import axis_value
-
     return {"points": report.sweep["points"],
             "axes": [{"axis": label, "from": axis_value(axis, axis.values[0]),
                       "to": axis_value(axis, axis.values[-1]), "steps": len(axis.values),
@@ -186,7 +178,7 @@ def finding_json(f) -> dict:
         "indicator": {"label": f.indicator_label, "value": _number(f.indicator_value * factor),
                       "threshold": _number(f.threshold * factor), "relation": f.relation,
                       "unit": f.indicator_unit, "source": f.threshold_source},
-        "message": f.message,
+        "message": finding_message(f),
         "where": {"file": f.file, "line": f.line, "column": f.column},
         "corrections": [{
             "quantity": c.label, "unit": c.unit,
@@ -198,8 +190,8 @@ def finding_json(f) -> dict:
         "waived": f.waived,
         "formula": f.formula,
         "sweep": None if f.sweep is None else {
-            "failing_fraction": f.sweep.failing_fraction, "boundary": f.sweep.boundary,
-            "worst_point": f.sweep.worst_point},
+            "failing_fraction": f.sweep.failing_fraction, "boundary": boundary_lines(f.sweep),
+            "worst_point": worst_point(f.sweep)},
     }
 
 

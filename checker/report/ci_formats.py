@@ -21,9 +21,11 @@ from urllib.parse import quote
 from xml.etree import ElementTree as ET
 
 from .. import __version__
-from ..engine.evaluate import SEVERITY_RANK, display
+from ..engine.number_text import display
+from ..vocabulary_words import SEVERITY_RANK
 from . import DISCLAIMER
 from .safe_text import visible, visible_data
+from .sweep_text import finding_message
 
 SARIF_SCHEMA = "https://json.schemastore.org/sarif-2.1.0.json"
 SARIF_LEVEL = {"info": "note", "warning": "warning", "error": "error"}
@@ -31,7 +33,7 @@ _LOCATION = re.compile(r"^(?P<file>.+?):(?P<line>\d+)(?::(?P<column>\d+))?: (?P<
 
 
 def _finding_text(f) -> str:
-    parts = [f.message]
+    parts = [finding_message(f)]
     if f.indicator_text():
         parts.append(f"Regime indicator: {f.indicator_text()}.")
     for c in f.corrections:

@@ -12,9 +12,10 @@ from __future__ import annotations
 import html
 import re
 
-from ..engine.evaluate import display
+from ..engine.number_text import display
 from . import DISCLAIMER
-from .check_report import STATE_ROWS, formula_lines, summary_line, sweep_axis_text
+from .check_report import STATE_ROWS, formula_lines, summary_line
+from .sweep_text import axis_text, finding_message
 from .safe_text import visible
 
 MAP_RESOLUTION = 90
@@ -84,7 +85,7 @@ def _findings_table(report) -> str:
         tag = f'<span class="severity {"waived" if f.waived else f.severity}">' \
               f'{"waived" if f.waived else f.severity}</span>'
         where = f"{f.file}:{f.line}" + (f" ({f.column})" if f.column else "")
-        details = [f"<strong>{_text(f.title)}.</strong> {_text(f.message)}"]
+        details = [f"<strong>{_text(f.title)}.</strong> {_text(finding_message(f))}"]
         if f.indicator_text():
             details.append(f'<br/><span class="meta">regime indicator: '
                            f'{_text(f.indicator_text())}</span>')
@@ -103,7 +104,7 @@ def _findings_table(report) -> str:
 
 def _state_table(report) -> str:
     if report.sweep:
-        axes = " × ".join(_text(sweep_axis_text(label, axis))
+        axes = " × ".join(_text(axis_text(label, axis))
                           for label, axis in report.sweep["axes"])
         return f'<p>Sweep of {report.sweep["points"]} points: {axes}.</p>'
     rows = "".join(f"<tr><th>{_text(label)}</th><td class=\"num\">"

@@ -8,9 +8,10 @@ from __future__ import annotations
 
 import re
 
-from ..engine.evaluate import display
+from ..engine.number_text import display
 from . import DISCLAIMER
-from .check_report import doping_text, formula_lines, summary_line, sweep_axis_text
+from .check_report import doping_text, formula_lines, summary_line
+from .sweep_text import axis_text, finding_message
 from .safe_text import visible
 
 # Markdown would act on these (HTML tags, entities, links, emphasis, code, table cells)
@@ -51,7 +52,7 @@ def render_markdown(result, exit_code: int) -> str:
             severity = f"waived ({_cell(f.waived)})" if f.waived else f.severity
             column = f" ({_cell(f.column)})" if f.column else ""
             lines.append(f"| {severity} | {_cell(f.rule)} | {_code(f'{f.file}:{f.line}')}{column} | "
-                         f"**{_cell(f.title)}.** {_cell(f.message)} | {_corrections(f)} |")
+                         f"**{_cell(f.title)}.** {_cell(finding_message(f))} | {_corrections(f)} |")
         lines.append("")
     else:
         lines += ["No assumption leaves its regime.", ""]
@@ -69,7 +70,7 @@ def render_markdown(result, exit_code: int) -> str:
         state = report.state
         if report.sweep:
             lines.append(_cell(f"Sweep of {report.sweep['points']} points: " + " × ".join(
-                sweep_axis_text(label, axis) for label, axis in report.sweep["axes"]) + "."))
+                axis_text(label, axis) for label, axis in report.sweep["axes"]) + "."))
         else:
             lines.append(f"Regime **{_cell(state['regime'])}**; " + _cell(
                 f"E_F − E_C = {state['EF_minus_EC_eV']:+.4f} eV (η_n = {state['eta_n']:+.3f}); "

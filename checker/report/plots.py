@@ -89,7 +89,7 @@ def draw_map(grid, points=(), title=None, size=(7.8, 5.0), notice=True):
                   norm=BoundaryNorm(np.arange(len(REGIMES) + 1) - 0.5, len(REGIMES)),
                   shading="nearest", rasterized=True)
     X, Y = np.meshgrid(x, grid.T)
-    carrier = "n" if grid.kind == "donor" else "p"
+    carrier = grid.carrier
     lines = [(grid.eta, DEGENERATE_ETA, "#b45f06", f"η_{carrier} = {DEGENERATE_ETA:g}"),
              (grid.fraction, IONIZED_FRACTION, "#1155cc", f"{IONIZED_FRACTION:.0%} ionized"),
              (grid.ni_ratio, 1.0, "#bf9000", "n_i = N")]
@@ -148,27 +148,19 @@ def draw_map(grid, points=(), title=None, size=(7.8, 5.0), notice=True):
     return fig
 
 
-def draw_eta_curve(material, species, density, temperatures, title=None, size=(6.4, 4.2),
-                   notice=True):
-    """η of the majority carrier vs T at a fixed doping, with the regimes along T."""
+def draw_eta_curve(curve, title=None, size=(6.4, 4.2), notice=True):
+    """η of the majority carrier vs T at a fixed doping (``curve``: an
+    engine.regime_map.EtaCurve), with the regimes along T."""
     from matplotlib.patches import Patch
 
-    from ..physics import carriers, equilibrium
-
-    dopant = material.dopant(species)
-    T = np.asarray(temperatures, dtype=float)
-    donors = {species: np.full(T.shape, density)} if dopant.kind == "donor" else {}
-    acceptors = {species: np.full(T.shape, density)} if dopant.kind == "acceptor" else {}
-    state = equilibrium.solve(material, T, donors, acceptors)
-    eta = np.asarray(state.eta_n if dopant.kind == "donor" else state.eta_p)
-    codes = carriers.regime_code(state)
+    T, eta, codes = curve.T, curve.eta, curve.codes
     fig = _figure(size)
     ax = fig.add_subplot()
     edges = np.concatenate(([T[0]], (T[1:] + T[:-1]) / 2, [T[-1]]))   # cell edges in T
     for run in np.split(np.arange(T.size), np.flatnonzero(np.diff(codes)) + 1):
         ax.axvspan(edges[run[0]], edges[run[-1] + 1], color=COLOURS[REGIMES[codes[run[0]]]],
                    lw=0)
-    carrier = "n" if dopant.kind == "donor" else "p"
+    carrier = curve.carrier
     ax.plot(T, eta, color="black", lw=1.6, label=f"η_{carrier} (Fermi–Dirac solve)")
     ax.axhline(DEGENERATE_ETA, color="#b45f06", ls="--", lw=1.2,
                label=f"η = {DEGENERATE_ETA:g}: degenerate above (3kT rule)")
@@ -179,7 +171,8 @@ def draw_eta_curve(material, species, density, temperatures, title=None, size=(6
     ax.set_xlabel("temperature (K)")
     ax.set_ylabel(f"η_{carrier} = (E_F − E_C)/kT" if carrier == "n" else "η_p = (E_V − E_F)/kT")
     ax.set_xlim(T[0], T[-1])
-    ax.set_title(_label(title or f"{material.name}, {species} {density * 1e-6:.3g} cm⁻³"),
+    ax.set_title(_label(title or f"{curve.material.name}, {curve.species} "
+                        f"{curve.density * 1e-6:.3g} cm⁻³"),
                  fontsize=10)
     if notice:
         _notice(fig)

@@ -6,7 +6,7 @@ import json
 from . import DISCLAIMER
 from .safe_text import visible, visible_data
 
-# (key in state_summary, label, format)
+# (key of engine.trade_summary, label, format)
 ROWS = [
     ("regime", "regime", "{}"),
     ("EF_minus_EC_eV", "E_F - E_C", "{:+.4f} eV"),
@@ -21,7 +21,7 @@ ROWS = [
     ("band_gap_eV", "E_g", "{:.4f} eV"),
     ("Nc_cm3", "N_c", "{:.4g} cm^-3"),
     ("Nv_cm3", "N_v", "{:.4g} cm^-3"),
-    ("metallic", "above Mott density", "{}"),
+    ("above_mott_density", "above Mott density", "{}"),
     ("neutrality_residual", "neutrality residual", "{:.1e}"),
 ]
 

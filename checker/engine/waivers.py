@@ -1,0 +1,47 @@
+"""Waivers: a calculation's own (``waivers:``) and the configuration's, per path."""
+from __future__ import annotations
+
+import difflib
+from dataclasses import dataclass, field
+
+
+@dataclass
+class WaiverResult:
+    notes: list = field(default_factory=list)   # per calculation index: list[str]
+    errors: list = field(default_factory=list)  # input errors (unknown rule ids)
+    run_notes: list = field(default_factory=list)   # configuration waivers that waived nothing
+
+
+def apply_waivers(rules, calculations, findings, config=None) -> WaiverResult:
+    """Mark waived findings (the calculation's own waivers, then the configuration's
+    waivers per path); note waivers that waive nothing; unknown rule ids are errors."""
+    result = WaiverResult([[] for _ in calculations], [])
+    known = [rule.id for rule in rules]
+    if config is not None:
+        used = set()
+        for i, calc in enumerate(calculations):
+            for waiver in config.waivers_for(calc.source):
+                for finding in findings[i]:
+                    if finding.rule == waiver.rule and not finding.waived:
+                        finding.waived = f"{waiver.reason} (configuration, {waiver.pattern})"
+                        used.add(id(waiver))
+        for waiver in config.idle_waivers(used, [c.source for c in calculations], known):
+            result.run_notes.append(
+                f"{config.source}:{waiver.line}: the waiver of {waiver.rule} for "
+                f"{waiver.pattern!r} waives nothing in this run")
+    for i, calc in enumerate(calculations):
+        for rule_id, (reason, line) in calc.waivers.items():
+            if rule_id not in known:
+                close = difflib.get_close_matches(rule_id, known, n=1)
+                hint = f"did you mean {close[0]}?" if close else "run 'regimecheck rules' for the ids"
+                result.errors.append(f"{calc.source}:{line}: the waiver names an unknown "
+                                     f"rule {rule_id!r}; {hint}")
+                continue
+            hits = [f for f in findings[i] if f.rule == rule_id]
+            for finding in hits:
+                finding.waived = reason
+            if not hits:
+                result.notes[i].append(
+                    f"{calc.source}:{line}: the waiver of {rule_id} waives nothing here; "
+                    "remove it or check the rule id")
+    return result
