@@ -197,7 +197,7 @@ class Tally:
         kind = record["kind"]
         self.cases[kind] += 1
         self.codes[kind][record["code"]] += 1
-        if record.get("elapsed", 0) > 5:
+        if (record.get("elapsed") or 0) > 5:
             self.slow[kind] += 1
         for cls, signature, folder in record["failures"]:
             self.classes[kind][cls] += 1
@@ -305,7 +305,7 @@ def run_parent(args) -> int:
         threading.Thread(target=read, daemon=True).start()
 
     def refill():
-        while len(workers) < args.jobs and pending and time.time() < stop_at:
+        while len(workers) < args.jobs and pending and time.time() < stop_at and not stopping:
             launch(*pending.popleft())
 
     def finish(wid, killed=False):
@@ -321,9 +321,20 @@ def run_parent(args) -> int:
         if killed:
             tally.add(_hang_record(worker, out))
             worker["left"] -= 1
-        if worker["left"] > 0 and time.time() < stop_at:
+        if worker["left"] > 0 and time.time() < stop_at and not stopping:
             pending.appendleft((worker["kind"], worker["left"], worker["seed"] + 7919))
         worker["current"].unlink(missing_ok=True)
+
+    stopping = []
+
+    def interrupted(*_):
+        stopping.append(True)           # Ctrl-C or SIGTERM: stop, and still print the table
+        pending.clear()
+        for worker in workers.values():
+            worker["process"].kill()
+    import signal
+    signal.signal(signal.SIGTERM, interrupted)
+    signal.signal(signal.SIGINT, interrupted)
 
     refill()
     while workers:
