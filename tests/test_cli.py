@@ -22,7 +22,7 @@ def test_state_on_shipped_example():
     assert len(data["points"]) == 5 and data["errors"] == []
     first = data["points"][0]["state"]
     for key in ("eta_n", "eta_p", "n_cm3", "p_cm3", "EF_minus_EC_eV", "donors_ionized_fraction",
-                "ni_cm3", "regime", "metallic", "neutrality_residual"):
+                "ni_cm3", "regime", "above_mott_density", "neutrality_residual"):
         assert key in first
     assert "screening check" in data["notice"].lower()
 

@@ -238,11 +238,12 @@ def test_state_report_escapes_what_a_reader_let_through():
 def test_plot_titles_with_dollar_signs_and_controls():
     import numpy as np
 
+    from checker.engine.regime_map import eta_curve
     from checker.inputs.material_catalog import resolve_material
     from checker.report.plots import draw_eta_curve, render
 
     # matplotlib reads text between two $ as mathtext; "\frac{" alone does not parse
-    fig = draw_eta_curve(resolve_material("Si"), "P", 1e23, np.linspace(100, 400, 20),
+    fig = draw_eta_curve(eta_curve(resolve_material("Si"), "P", 1e23, np.linspace(100, 400, 20)),
                          title="cost $\\frac{ and $5 \x1b[0m \ud800")
     svg = render(fig, "svg").decode("utf-8")
     ET.fromstring(svg)
