@@ -81,9 +81,24 @@ MATERIALS = {
     "InGaAs": (("Si", "Sn", "S"), ("Zn", "Be")),
     "InP": (("S", "Si", "Sn"), ("Zn", "Be", "C")),
 }
-RULE_IDS = ("STAT01", "STAT02", "CARR01", "CARR02", "CARR03", "ION01", "ION02", "TRAN01",
-            "TRAN02", "MOB01", "MOB02", "CONST01", "CONST02", "CONST03", "DOPE01", "DOPE02",
-            "MODEL01", "MODEL02", "MEAS01", "MEAS02", "MEAS03", "FORM01", "FORM02", "FORM03")
+
+
+def _rule_ids() -> tuple:
+    """The ids of the shipped rule files (a fixed list if they cannot be listed)."""
+    try:
+        from checker.resources import rules_dir
+
+        found = sorted(p.name[:-5] for p in rules_dir().iterdir()
+                       if re.fullmatch(r"[A-Z]{2,5}[0-9]{2}\.yaml", p.name))
+    except Exception:
+        found = []
+    return tuple(found) or ("STAT01", "STAT02", "CARR01", "CARR02", "CARR03", "ION01", "ION02",
+                            "TRAN01", "TRAN02", "MOB01", "MOB02", "CONST01", "CONST02",
+                            "CONST03", "DOPE01", "DOPE02", "MODEL01", "MODEL02", "MEAS01",
+                            "MEAS02", "MEAS03", "FORM01", "FORM02", "FORM03")
+
+
+RULE_IDS = _rule_ids()
 ASSUMPTION_WORDS = ("non-degenerate", "boltzmann", "full-ionization", "no-compensation",
                     "single-carrier", "extrinsic", "einstein-relation", "diffusive",
                     "low-field", "nondegenerate", "fully-ionized", "ohmic")
@@ -1029,8 +1044,7 @@ def toml_key(key) -> str:
 def config_tree(draw) -> dict:
     """A valid [tool.regimecheck] table as a tree."""
     rule = st.sampled_from(RULE_IDS)
-    prefix = st.sampled_from(["STAT", "CARR", "ION", "TRAN", "MOB", "CONST", "DOPE",
-                              "MODEL", "MEAS", "FORM"])
+    prefix = st.sampled_from(sorted({re.sub(r"[0-9]+$", "", r) for r in RULE_IDS}))
     tree = {}
     if draw(st.booleans()):
         tree["fail-level"] = draw(st.sampled_from(LEVELS))

@@ -161,7 +161,7 @@ def test_every_kind_reaches_the_checks(kind):
 
 # --- bugs the fuzz run found (fixed; kept as regressions) --------------------------------
 
-def test_open_bug_table_header_with_an_unterminated_quote():
+def test_table_header_with_an_unterminated_quote():
     assert_sound(fz.Case("table", {"lots.csv": b'"', fz.SENTINEL_NAME: fz.SENTINEL},
                          ("--format", "json")), known={})
 
@@ -171,7 +171,7 @@ def test_open_bug_table_header_with_an_unterminated_quote():
     "{name: X, band_gap_narrowing: {model: [slotboom]}}",
     "{name: X, mobility: {electron: {models: {m: {model: {a: 1}}}}}}",
 ])
-def test_open_bug_material_model_that_is_not_a_word(material):
+def test_material_model_that_is_not_a_word(material):
     text = f"material: {material}\ntemperature: 300 K\n".encode()
     assert_sound(fz.Case("calculation", {"calc.yaml": text, fz.SENTINEL_NAME: fz.SENTINEL},
                          ("--format", "json")), known={})
