@@ -42,9 +42,25 @@ def check_points(calculations, rules) -> tuple[list, list]:
         analysis = analyses[i]
         if analysis:
             findings[i] += formula_check.formula_findings(analysis, by_id, calc, findings[i])
+        findings[i] = one_finding_per_stated_number(findings[i])
         notes = [solve_notes[i]] if i in solve_notes else []
         reports.append(CalculationReport(calc, trade_summary(values, i), findings[i], notes,
                                          formulas=analysis.results if analysis else [],
                                          embodied=embodied[i]))
     errors = [message for a in analyses if a for message in a.errors]
     return reports, errors
+
+
+# rules that compare a stated number with the solve when no shortcut explains it
+VALUE_RULES = "VAL"
+
+
+def one_finding_per_stated_number(findings: list) -> list:
+    """Drop a value check (VAL..) on a stated number that a shortcut rule already
+    corrects at the same line: the shortcut names the cause, the value check would
+    only repeat the number."""
+    explained = {(f.file, f.line) for f in findings
+                 if not f.rule.startswith(VALUE_RULES)
+                 and any(c.from_author for c in f.corrections)}
+    return [f for f in findings
+            if not (f.rule.startswith(VALUE_RULES) and (f.file, f.line) in explained)]
