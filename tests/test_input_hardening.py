@@ -8,6 +8,8 @@ scipy.constants; the rest of these tests check refusals, whose expected outcome 
 the rule of the input format itself (a message, exit code 2)."""
 import json
 import re
+import subprocess
+import sys
 from pathlib import Path
 
 import jsonschema
@@ -278,3 +280,15 @@ def test_schema_and_reader_accept_the_same(body):
     assert _valid(document), body
     errors, _ = errors_of(text)
     assert errors == [], errors
+
+
+def test_deep_flow_nesting_is_refused_before_parsing(tmp_path):
+    # found by the fuzz run: 20,000 nested '[' made PyYAML's scanner take minutes (its
+    # simple-key bookkeeping grows with the flow level); the text is refused up front
+    path = tmp_path / "deep.yaml"
+    path.write_text("name: deep\nmaterial: Si\ntemperature: 300 K\nformulas: "
+                    + "[" * 20000 + "]" * 20000 + "\n")
+    done = subprocess.run([sys.executable, "-m", "checker", "check", str(path)],
+                          capture_output=True, text=True, timeout=60)
+    assert done.returncode == 2 and "Traceback" not in done.stderr
+    assert f"{path}:4:" in done.stdout + done.stderr and "nested more than" in done.stdout + done.stderr

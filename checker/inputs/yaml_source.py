@@ -78,6 +78,47 @@ def _character_errors(text: str, name: str) -> list:
     return found
 
 
+_DOCUMENT_MARK = re.compile(r"^(---|\.\.\.)(\s|$)")
+
+
+def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
+    """(text with every document whose '[' / '{' brackets nest deeper than MAX_NESTING
+    blanked, one message per such document).
+
+    PyYAML's scanner slows quadratically with flow nesting (20,000 '[' take minutes), so
+    this is decided on the text before parsing.  Blank lines keep the line numbers of the
+    other documents, which are still read.  Quoted text is skipped roughly: a bracket in
+    quotes counts only where the quotes are unbalanced on their line."""
+    lines = text.split("\n")
+    errors, start, depth, deep = [], 0, 0, None
+
+    def close(end):
+        if deep is not None:
+            errors.append(deep)
+            lines[start:end] = [""] * (end - start)
+
+    for number, line in enumerate(lines):
+        if _DOCUMENT_MARK.match(line):
+            close(number)
+            start, depth, deep = number + 1, 0, None
+            continue
+        quote = None
+        for column, char in enumerate(line, 1):
+            if quote:
+                quote = None if char == quote else quote
+            elif char in "\"'":
+                quote = char
+            elif char in "[{":
+                depth += 1
+                if depth > MAX_NESTING and deep is None:
+                    deep = (f"{name}:{number + 1}:{column}: {TOO_DEEP} {MAX_NESTING} levels "
+                            "deep; a calculation needs fewer than 10: flatten it")
+            elif char in "]}":
+                depth = max(depth - 1, 0)
+    close(len(lines))
+    return "\n".join(lines), errors
+
+
 def check_characters(text: str, name: str):
     """Refuse a text holding control characters, naming the line and column of the first."""
     found = _character_errors(text, name)
@@ -166,6 +207,7 @@ def compose_documents(text: str, name: str) -> tuple[list, list]:
     Nothing is constructed: the caller reads the scalars as text.  A document with a
     refused construct is left out and its errors reported; the others are kept.  A
     control character is deleted for parsing and refuses the document holding it."""
+    text, deep = _without_deep_flow(text, name)
     bad_characters = _character_errors(text, name)
     if bad_characters:
         text = _FORBIDDEN.sub("", text)    # deleted: a blank could change indentation
@@ -192,7 +234,7 @@ def compose_documents(text: str, name: str) -> tuple[list, list]:
         loader.dispose()
     reported = set(errors)
     errors += [message for _, message in bad_characters if message not in reported]
-    return nodes, errors
+    return nodes, deep + errors
 
 
 def load_yaml_text(text: str, name: str):
