@@ -117,8 +117,9 @@ def test_stat02_quiet_for_the_exact_value_and_in_light_doping(tmp_path):
 
 
 def test_stat02_indicator_is_the_published_2d_ratio():
-    """(D/mu)/(kT/q) in 2D at eta = 0 is 2 ln 2 = 1.38629436112 (references.md §2b, computed);
-    3D at eta = -1.902 is 1.05 (the 5 % point, references.md §2)."""
+    """(D/mu)/(kT/q) in 2D at eta = 0 is 2 ln 2 = 1.38629436112: (1 + e^-eta) ln(1 + e^eta)
+    for a 2D parabolic band (Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2);
+    3D at eta = -1.902 is 1.05 (the 5 % point; F_1/2/F_-1/2 from mpmath)."""
     from checker.engine.rulebook import load_rules
 
     rule = next(r for r in load_rules() if r.id == "STAT02")
@@ -331,7 +332,7 @@ def test_tran02_quiet_at_low_field(tmp_path):
 # --- MOB01 / MOB02: stated mobility -----------------------------------------------------------
 
 def masetti_p(N):
-    """Masetti, Severi & Solmi (1983) Table I, phosphorus, 300 K (references.md §5a)."""
+    """Masetti, Severi & Solmi, IEEE TED 30, 764 (1983), Table I, phosphorus, 300 K."""
     return 68.5 + (1414 - 68.5) / (1 + (N / 9.20e16) ** 0.711) - 56.1 / (1 + (3.41e20 / N) ** 1.98)
 
 
@@ -371,7 +372,7 @@ def test_const01_thermal_voltage(tmp_path):
                                   extra="stated:\n  thermal_voltage: 0.0259 V\n"))
     corrected = correction(one(report, "CONST01"), "thermal voltage").corrected
     assert corrected == pytest.approx(sc.k * 400 / sc.e, rel=1e-15)
-    assert corrected == pytest.approx(0.0344693330, abs=1e-10)    # references.md §7 (computed)
+    assert corrected == pytest.approx(0.0344693330, abs=1e-10)    # k*400 K/q, CODATA 2018 exact k and q
     # 0.0259 V at 300 K is rounding (+0.19 %), below the 1 % threshold
     assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
                                       extra="stated:\n  thermal_voltage: 0.0259 V\n")), "CONST01")
@@ -426,7 +427,7 @@ def test_dope01_band_gap_narrowing_on_minority_density(tmp_path):
     N, kT = 1e18, sc.k * 300
     x = math.log(N / 1.3e17)   # Klaassen, Slotboom & de Graaff (1992): 6.92 mV, 1.3e17, 0.5
     dEg = 6.92e-3 * (x + math.sqrt(x * x + 0.5)) * sc.e
-    assert dEg / sc.e == pytest.approx(0.0291, abs=1e-4)   # references.md §5a: 29.1 meV at 1e18
+    assert dEg / sc.e == pytest.approx(0.0291, abs=1e-4)   # Klaassen et al. (1992) form: 29.1 meV at 1e18 (computed)
     assert finding.indicator_value == pytest.approx(math.exp(dEg / kT), rel=1e-9)
     si = load_material("Si")
     eta = eta_of("Si", 300.0, {"P": 1e18})
