@@ -24,7 +24,7 @@ from checker import load_material
 from checker.engine import dimensions as dm
 from checker.engine.expression import parse, to_numpy
 from checker.engine.formula_check import dimension, parse_formula
-from checker.engine.formula_match import SYMPY_BUDGET, analyse, expansion_cost
+from checker.engine.formula_match import SYMPY_BUDGET, expansion_cost
 from checker.errors import InputError
 from reference import mp_fermi_half, reference_solve
 

@@ -10,7 +10,6 @@ import json
 import re
 import subprocess
 import sys
-from pathlib import Path
 
 import jsonschema
 import pytest

@@ -7,7 +7,6 @@ the package); tolerances are the publications' own stated accuracy where they gi
 """
 import math
 
-import mpmath as mp
 import numpy as np
 import pytest
 import scipy.constants as sc

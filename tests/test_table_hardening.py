@@ -9,7 +9,6 @@ import sys
 from pathlib import Path
 
 import pytest
-import scipy.constants as sc
 
 from checker.engine.run import check_paths
 from checker.inputs import table

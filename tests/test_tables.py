@@ -7,13 +7,10 @@ import sys
 import mpmath as mp
 import numpy as np
 import pytest
-import scipy.constants as sc
 
-from checker import load_material
 from checker.engine.run import check_paths
 from checker.inputs.table import read_table
 from checker.physics.hall import hall_density, hall_factor
-from reference import reference_solve
 
 TABLE = "examples/lt9_wafer_lots.csv"
 

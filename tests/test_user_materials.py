@@ -4,7 +4,6 @@ of material files generated from those tables accepts every shipped file."""
 import json
 import re
 import sys
-from pathlib import Path
 
 import jsonschema
 import pytest

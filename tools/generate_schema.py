@@ -22,7 +22,7 @@ sys.path.insert(0, str(ROOT))
 from checker.engine.rulebook import RULE_FILE  # noqa: E402
 from checker.inputs import calculation_file as cf  # noqa: E402
 from checker.inputs.material_catalog import MATERIAL  # noqa: E402
-from checker.inputs.quantities import DIMENSIONS, WRITTEN_NUMBER, quantity_pattern  # noqa: E402
+from checker.inputs.quantities import DIMENSIONS, quantity_pattern  # noqa: E402
 from checker.physics.hall import SCATTERING_EXPONENTS  # noqa: E402
 
 DATA = ROOT / "checker" / "data"

@@ -37,7 +37,7 @@ import numpy as np
 
 from ..errors import ConvergenceError, InputError
 from .constants import BOLTZMANN, EV
-from .fermi import fermi_dirac, log_fermi_dirac, log_fermi_dirac_half_pair
+from .fermi import log_fermi_dirac, log_fermi_dirac_half_pair
 from .materials import Material
 
 MAX_ITERATIONS = 200
