@@ -493,3 +493,15 @@ def test_nothing_assumed_nothing_fires_but_model_ranges(tmp_path, material, dono
     assert not read.errors and len(read.calculations) == 27
     fired = {f.rule for r in run_all(read.calculations).reports for f in r.findings}
     assert fired <= {"MODEL01", "MODEL02"}
+
+
+def test_dope02_quiet_for_full_ionization_above_the_mott_density(tmp_path):
+    # n = N_D above the Mott density is no isolated-impurity estimate: the donors are
+    # ionized there (GaAs:Si, Mott density near 1e16 cm-3 by the Edwards–Sienko criterion
+    # n_c^(1/3) a* = 0.26, Phys. Rev. B 17, 2575 (1978)); only Boltzmann statistics or
+    # ionization energies draw DOPE02
+    report = check(tmp_path, calc("GaAs", "300 K", "Si: 1e17 cm-3",
+                                  extra="assumes: [full-ionization]\n"))
+    assert quiet(report, "DOPE02")
+    assert not quiet(check(tmp_path, calc("GaAs", "300 K", "Si: 1e17 cm-3",
+                                          extra="assumes: [non-degenerate]\n")), "DOPE02")

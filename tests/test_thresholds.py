@@ -354,7 +354,7 @@ def dope01(target):
 def dope02(target):
     # Si:P Mott density 3.74e18 cm^-3: T. F. Rosenbaum et al., Phys. Rev. B 27, 7509 (1983)
     N = _num(3.74e18 * target)
-    return Point(_calc("Si", 300.0, {"P": N}, extra="assumes: [full-ionization]\n"),
+    return Point(_calc("Si", 300.0, {"P": N}, extra="assumes: [non-degenerate]\n"),
                  N / 3.74e18, "electrons")
 
 
