@@ -161,9 +161,15 @@ def test_every_kind_reaches_the_checks(kind):
 
 # --- bugs the fuzz run found (fixed; kept as regressions) --------------------------------
 
+def input_errors(outcome: fz.Outcome) -> list:
+    assert outcome.code == 2, outcome.stderr
+    return json.loads(outcome.stdout)["input_errors"]
+
+
 def test_table_header_with_an_unterminated_quote():
-    assert_sound(fz.Case("table", {"lots.csv": b'"', fz.SENTINEL_NAME: fz.SENTINEL},
-                         ("--format", "json")), known={})
+    outcome = assert_sound(fz.Case("table", {"lots.csv": b'"', fz.SENTINEL_NAME: fz.SENTINEL},
+                                   ("--format", "json")), known={})
+    assert any("lots.csv:1: malformed CSV" in e for e in input_errors(outcome))
 
 
 @pytest.mark.parametrize("material", [
@@ -173,5 +179,17 @@ def test_table_header_with_an_unterminated_quote():
 ])
 def test_material_model_that_is_not_a_word(material):
     text = f"material: {material}\ntemperature: 300 K\n".encode()
-    assert_sound(fz.Case("calculation", {"calc.yaml": text, fz.SENTINEL_NAME: fz.SENTINEL},
-                         ("--format", "json")), known={})
+    outcome = assert_sound(fz.Case("calculation",
+                                   {"calc.yaml": text, fz.SENTINEL_NAME: fz.SENTINEL},
+                                   ("--format", "json")), known={})
+    assert any("/calc.yaml:1:" in e and "model must be one of" in e
+               for e in input_errors(outcome))
+
+
+def test_brackets_nested_twenty_thousand_deep_are_refused_within_the_bound():
+    text = b"material: Si\ntemperature: 300 K\nstated: {a: " + b"[" * 20000 + b"\n"
+    outcome = assert_sound(fz.Case("calculation", {"calc.yaml": text,
+                                                   fz.SENTINEL_NAME: fz.SENTINEL},
+                                   ("--format", "json")), known={})
+    errors = input_errors(outcome)
+    assert any("calc.yaml:3" in e and "nested" in e for e in errors), errors
