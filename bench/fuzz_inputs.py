@@ -67,10 +67,6 @@ def _slug(signature: str) -> str:
     return re.sub(r"[^A-Za-z0-9]+", "-", signature).strip("-")[:90] or "failure"
 
 
-class _Stop(Exception):
-    """The time budget is spent."""
-
-
 def _canary() -> fz.Case:
     return fz.Case("canary", {fz.SENTINEL_NAME: fz.SENTINEL}, ("--format", "json"))
 
@@ -140,7 +136,7 @@ def run_worker(kind, count, seed, stop_at, timeout, out_dir, current, minimize_r
     @given(fz.cases(kind))
     def body(case):
         if time.time() > stop_at:
-            raise _Stop
+            return                     # the budget is spent: the batch's rest is skipped
         Path(current).write_text(json.dumps(_encode(case)))
         outcome = fz.examine(case, timeout)
         failures = outcome.failures()
@@ -173,10 +169,8 @@ def run_worker(kind, count, seed, stop_at, timeout, out_dir, current, minimize_r
 
     try:
         body()
-    except _Stop:
-        pass
     except Exception as exc:           # hypothesis' own errors: say so, do not hide them
-        emit(t="error", message=f"{type(exc).__name__}: {exc}"[:2000])
+        emit(t="error", message=f"{kind} batch: {type(exc).__name__}: {exc}"[:2000])
     emit(t="done")
     channel.flush()
     os._exit(0)

@@ -1169,17 +1169,23 @@ def config_bytes(draw, pyproject: bool) -> bytes:
     return draw(text_mutations(text, TOML_LINES))
 
 
+def hostile_toml():
+    """One of HOSTILE_TOML, copied: a later mutation must not change the shared value
+    (hypothesis replays draws and needs them to come out the same)."""
+    import copy
+
+    return st.sampled_from(HOSTILE_TOML).map(copy.deepcopy)
+
+
 @st.composite
 def mutated_toml(draw, tree):
     for _ in range(draw(st.integers(1, 2))):
         path, node = draw(st.sampled_from(list(_paths(tree))))
         op = draw(st.sampled_from(["value", "value", "key", "delete", "deep"]))
         if op == "value" and path:
-            _set(tree, path, draw(st.one_of(st.sampled_from(HOSTILE_TOML),
-                                            st.text(max_size=20))))
+            _set(tree, path, draw(st.one_of(hostile_toml(), st.text(max_size=20))))
         elif op == "key" and isinstance(node, dict):
-            node[draw(st.sampled_from(ODD_CONFIG_KEYS + tuple(node)))] = \
-                draw(st.sampled_from(HOSTILE_TOML))
+            node[draw(st.sampled_from(ODD_CONFIG_KEYS + tuple(node)))] = draw(hostile_toml())
         elif op == "delete" and path:
             _delete(tree, path)
         elif op == "deep" and path:
