@@ -13,6 +13,21 @@ def pytest_configure(config):
                             "run by default")
 
 
+@pytest.fixture(scope="session")
+def schema_generator():
+    """tools/generate_schema.py as a module: the staleness tests compare the shipped
+    schemas with what it renders from the key tables."""
+    import sys
+    from pathlib import Path
+
+    sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tools"))
+    try:
+        import generate_schema
+    finally:
+        sys.path.pop(0)
+    return generate_schema
+
+
 def fd_reference(j, eta, dps=22):
     """Normalized F_j(eta) from mpmath (DLMF 25.12.16: -Li_{j+1}(-e^eta))."""
     with mp.workdps(dps):

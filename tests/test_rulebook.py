@@ -28,15 +28,6 @@ RULE_SCHEMA = ROOT / "checker" / "data" / "rule.schema.json"
 SHIPPED = sorted(rules_dir().glob("*.yaml"))
 
 
-def _generator():
-    sys.path.insert(0, str(ROOT / "tools"))
-    try:
-        import generate_schema
-    finally:
-        sys.path.pop(0)
-    return generate_schema
-
-
 def _validator():
     return jsonschema.Draft202012Validator(json.loads(RULE_SCHEMA.read_text(encoding="utf-8")))
 
@@ -188,8 +179,8 @@ def test_every_problem_of_a_file_is_reported_at_once(tmp_path):
 
 
 # ---- the schema: generated from the loader's table, valid for every shipped file -------
-def test_rule_schema_matches_the_loader_table():
-    assert RULE_SCHEMA.read_text(encoding="utf-8") == _generator().render_rule(), \
+def test_rule_schema_matches_the_loader_table(schema_generator):
+    assert RULE_SCHEMA.read_text(encoding="utf-8") == schema_generator.render_rule(), \
         "run python tools/generate_schema.py"
     jsonschema.Draft202012Validator.check_schema(json.loads(RULE_SCHEMA.read_text()))
 

@@ -3,7 +3,6 @@ as the shipped material files, with the same sign and range checks, and the JSON
 of material files generated from those tables accepts every shipped file."""
 import json
 import re
-import sys
 
 import jsonschema
 import pytest
@@ -160,17 +159,8 @@ def test_user_material_from_python_values():
 
 # --- the material schema ------------------------------------------------------------------
 
-def _generator():
-    sys.path.insert(0, str(ROOT / "tools"))
-    try:
-        import generate_schema
-    finally:
-        sys.path.pop(0)
-    return generate_schema
-
-
-def test_material_schema_is_not_stale():
-    assert MATERIAL_SCHEMA.read_text(encoding="utf-8") == _generator().render_material(), \
+def test_material_schema_is_not_stale(schema_generator):
+    assert MATERIAL_SCHEMA.read_text(encoding="utf-8") == schema_generator.render_material(), \
         "run python tools/generate_schema.py"
     jsonschema.Draft202012Validator.check_schema(json.loads(MATERIAL_SCHEMA.read_text()))
 

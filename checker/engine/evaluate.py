@@ -25,8 +25,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .findings import Correction, Embodied, Finding, carrier_word   # noqa: F401 (Embodied: formula_check)
-from .number_text import display, error_text                         # noqa: F401 (error_text: formula_check)
+from .findings import Correction, Finding, carrier_word
+from .number_text import display
 from .rulebook import PLACEHOLDER
 from .vocabulary import CARRIER_WORDS, carrier_names
 

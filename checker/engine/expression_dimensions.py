@@ -9,6 +9,8 @@ engine/vocabulary.py (kT is shown in eV: an energy, J inside).
 """
 from __future__ import annotations
 
+import math
+
 from . import dimensions as dm
 from .expression import folded, to_text
 from .vocabulary import COMMON, CONSTANTS, PER_CARRIER
@@ -94,7 +96,7 @@ def dimension(tree, of_name=name_dimension) -> dm.Dimension:
     if left.dimensionless:
         return dm.NONE
     power = folded(tree[2])
-    if power is None:
+    if power is None or not math.isfinite(power):
         raise DimensionProblem(f"{to_text(tree[1])} ({dm.describe(left)}) is raised to the "
                                f"non-constant power {to_text(tree[2])}")
     return left ** power

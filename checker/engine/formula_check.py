@@ -29,8 +29,10 @@ import numpy as np
 from ..errors import InputError
 from ..physics.constants import ELECTRON_MASS, PLANCK
 from . import dimensions as dm
-from .evaluate import Correction, Embodied, Finding, display, error_text
-from .expression import MAX_LENGTH, names_in, parse, rename, to_numpy, to_text
+from . import expression_dimensions
+from .findings import Correction, Embodied, Finding, carrier_code
+from .number_text import display, error_text
+from .expression import MAX_LENGTH, parse, rename, to_numpy, to_text
 from .formula_match import Match, analyse
 from .formula_symbols import dimension_of, parse_side
 from .relations import world
@@ -64,8 +66,8 @@ _BULK_ONLY = ("n", "p", "N_c", "N_v", "n_i", "N_D", "N_A", "N_D_plus", "N_A_minu
               "rho")
 
 
-class _Mismatch(Exception):
-    """Two things that should have one dimension do not (message for the reader)."""
+# a stated formula whose parts do not fit together (the shared walker's exception)
+_Mismatch = expression_dimensions.DimensionProblem
 
 
 @dataclass
@@ -131,57 +133,12 @@ def parse_formula(text: str, majority: str, where: str) -> tuple:
 
 
 # ---- dimensions -----------------------------------------------------------------------------
-def _constant(tree):
-    if names_in(tree):
-        return None
-    with np.errstate(all="ignore"):
-        value = float(to_numpy(tree)({}))
-    return value if math.isfinite(value) else None
-
-
 @lru_cache(maxsize=4096)
 def dimension(tree, dim: int) -> dm.Dimension:
-    """The dimension of a canonical tree; _Mismatch where it has none (cached: trees repeat
-    across the calculations of a run)."""
-    kind = tree[0]
-    if kind == "num":
-        return dm.NONE
-    if kind == "name":
-        return dm.NONE if tree[1] == "pi" else dimension_of(tree[1], dim)
-    if kind == "neg":
-        return dimension(tree[1], dim)
-    if kind == "call":
-        name, args = tree[1], tree[2]
-        inner = [dimension(a, dim) for a in args]
-        if name in ("exp", "log", "ln", "log10", "F"):
-            argument = inner[-1]
-            if not argument.dimensionless:
-                raise _Mismatch(f"the argument of {name}(), {to_text(args[-1])}, is "
-                                f"{dm.describe(argument)}; it must be dimensionless")
-            return dm.NONE
-        if name == "sqrt":
-            return inner[0] ** 0.5
-        return inner[0]
-    left, right = dimension(tree[1], dim), dimension(tree[2], dim)
-    if kind in ("+", "-"):
-        if left != right:
-            raise _Mismatch(f"{to_text(tree[1])} is {dm.describe(left)} but "
-                            f"{to_text(tree[2])} is {dm.describe(right)}; terms of a sum "
-                            "must have one dimension")
-        return left
-    if kind == "*":
-        return left * right
-    if kind == "/":
-        return left / right
-    if not right.dimensionless:
-        raise _Mismatch(f"the exponent {to_text(tree[2])} is {dm.describe(right)}")
-    if left.dimensionless:
-        return dm.NONE
-    power = _constant(tree[2])
-    if power is None:
-        raise _Mismatch(f"{to_text(tree[1])} ({dm.describe(left)}) is raised to the "
-                        f"non-constant power {to_text(tree[2])}")
-    return left ** power
+    """The dimension of a canonical tree by the walker rule expressions use (one algebra
+    for both); _Mismatch where it has none (cached: trees repeat across calculations)."""
+    return expression_dimensions.dimension(
+        tree, lambda name: dm.NONE if name == "pi" else dimension_of(name, dim))
 
 
 def _factors(tree, exponent=1) -> list:
@@ -350,7 +307,6 @@ def _fill(template: str, fields: dict) -> str:
     return PLACEHOLDER.sub(lambda m: fields.get(m.group(1), ""), template)
 
 
-_CARRIER_CODE = {"electrons": "n", "holes": "p"}
 
 
 def _covered(analysis, rules, rule_findings) -> set:
@@ -358,7 +314,7 @@ def _covered(analysis, rules, rule_findings) -> set:
     covered = set()
     for finding in rule_findings:
         rule = rules.get(finding.rule)
-        carrier = _CARRIER_CODE.get(finding.carrier)
+        carrier = carrier_code(finding.carrier)
         for item in analysis.embodied:
             if rule is not None and item.word in rule.declared and \
                     (carrier is None or item.carrier in (None, carrier)):

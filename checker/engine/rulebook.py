@@ -22,7 +22,7 @@ import yaml
 
 from ..errors import RegimecheckError
 from ..resources import rules_dir
-from ..vocabulary_words import ASSUMPTIONS, TOLERANCE_NAMES
+from ..vocabulary_words import ASSUMPTIONS, SEVERITIES, TOLERANCE_NAMES
 from . import dimensions as dm
 from . import expression
 from .expression_dimensions import UNIT_DIMENSIONS, DimensionProblem, dimension, name_dimension
@@ -30,7 +30,6 @@ from .rule_fields import (Alternatives, Block, Choice, EmptyOrListOf, Expression
                           Number, Pattern, Text, field_name)
 from .vocabulary import DISPLAY_UNITS, TEXT, carrier_names, rule_names
 
-SEVERITIES = ("info", "warning", "error")
 # what a rule may guard beyond the words an author declares
 RULE_ONLY_ASSUMPTIONS = ("carrier-type", "stated-mobility", "stated-constants", "light-doping",
                          "model-validity", "stated-formula", "stated-measurement")

@@ -43,10 +43,10 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import InputError
-from ..vocabulary_words import TOLERANCE_NAMES
+from ..vocabulary_words import SEVERITIES, TOLERANCE_NAMES
 from .table import IGNORE as IGNORED_COLUMNS, KEYS as TABLE_KEYS
 
-LEVELS = ("info", "warning", "error")
+LEVELS = SEVERITIES                 # the fail levels are the rules' severities
 KEYS = ("fail-level", "only", "skip", "file-patterns", "exclude-patterns", "severity",
         "threshold", "tolerance", "columns", "waive")
 DEFAULT_PATTERNS = ("*.yaml", "*.yml", "*.md", "*.csv")
