@@ -76,8 +76,8 @@ def main():
             target.write_text(doc, encoding="utf-8")
         files = wall(tool + [str(folder)], 3)
 
-    from checker.engine import expression
-    from checker.engine.formula_check import parse_formula
+    from checker.engine.expressions import parser as expression
+    from checker.engine.formulas.check import parse_formula
     from checker.errors import InputError
 
     hostile = ["__import__('os').system('x')", "9**9**9", "1e999999", "(" * 10000 + ")" * 10000,

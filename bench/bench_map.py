@@ -9,7 +9,7 @@ from pathlib import Path
 
 def main():
     from checker import load_material
-    from checker.engine.regime_map import regime_grid
+    from checker.engine.regime.regime_map import regime_grid
     from checker.report.plots import draw_map, render
 
     print(f"{'what':<44} {'seconds':>8} {'target':>7}")

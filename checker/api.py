@@ -58,7 +58,7 @@ def state_summary(state: equilibrium.State, index=()):
     """Trade-unit numbers of one point of a State (for reports and the CLI): the
     ``state`` object of the JSON reports, with the band densities of states and the
     neutrality residual."""
-    from .engine.trade_summary import state_values, trade_summary
+    from .engine.regime.trade_summary import state_values, trade_summary
 
     return {"material": state.material.name, **trade_summary(state_values(state), index)}
 

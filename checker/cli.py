@@ -311,7 +311,7 @@ def _cmd_point(args) -> int:
                        material=material, temperature=T, donors=donors, acceptors=acceptors,
                        band_gap_narrowing=args.narrowing, structure=structure,
                        assumes={word: 0 for word in ASSUMPTIONS})
-    from .engine.rulebook import configured, load_rules
+    from .engine.regime.rulebook import configured, load_rules
     from .inputs.config import check_rule_ids
 
     config = _settings(args)
@@ -322,7 +322,7 @@ def _cmd_point(args) -> int:
 
 
 def _cmd_rules(_args) -> int:
-    from .engine.rulebook import load_rules
+    from .engine.regime.rulebook import load_rules
 
     for rule in load_rules():
         print(f"{rule.id:8s} {rule.severity:8s} {rule.assumption:18s} {rule.title}")
@@ -330,7 +330,7 @@ def _cmd_rules(_args) -> int:
 
 
 def _cmd_symbols(args) -> int:
-    from .engine.formula_symbols import FORMULA_FUNCTIONS, glossary
+    from .engine.formulas.symbols import FORMULA_FUNCTIONS, glossary
 
     rows = glossary(args.dimensionality)
     print(f"{'symbol':11s} {'unit (SI)':20s} meaning  [accepted spellings]")
@@ -343,7 +343,7 @@ def _cmd_symbols(args) -> int:
 
 
 def _cmd_explain(args) -> int:
-    from .engine.rulebook import load_rules
+    from .engine.regime.rulebook import load_rules
     from .report.rule_text import explain_text
 
     rules = {rule.id: rule for rule in load_rules()}
@@ -415,7 +415,7 @@ def _save(fig, output, config=None, result=None):
 
 
 def _cmd_map(args) -> int:
-    from .engine.regime_map import map_groups, regime_grid
+    from .engine.regime.regime_map import map_groups, regime_grid
     from .engine.run import check_paths
     from .inputs.material_catalog import resolve_material
     from .report.plots import draw_map
@@ -463,7 +463,7 @@ def _cmd_map(args) -> int:
 def _cmd_curve(args) -> int:
     import numpy as np
 
-    from .engine.regime_map import eta_curve
+    from .engine.regime.regime_map import eta_curve
     from .inputs.material_catalog import resolve_material
     from .report.plots import draw_eta_curve
 

@@ -8,7 +8,7 @@ import sys
 
 import pytest
 
-from checker.engine.rulebook import load_rules
+from checker.engine.regime.rulebook import load_rules
 from checker.errors import InputError
 from checker.inputs.config import Config, PathWaiver, check_rule_ids, load_config, \
     toml_key_lines

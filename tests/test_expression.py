@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 import sympy
 
-from checker.engine import expression
+from checker.engine.expressions import parser as expression
 from checker.errors import InputError
 
 

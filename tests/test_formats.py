@@ -7,7 +7,7 @@ import jsonschema
 import pytest
 import yaml
 
-from checker.engine.rulebook import RuleFileError, load_rule, load_rules
+from checker.engine.regime.rulebook import RuleFileError, load_rule, load_rules
 from checker.resources import rules_dir
 
 ROOT = Path(__file__).resolve().parents[1]

@@ -21,10 +21,10 @@ import scipy.constants as sc
 import sympy
 
 from checker import load_material
-from checker.engine import dimensions as dm
-from checker.engine.expression import parse, to_numpy
-from checker.engine.formula_check import dimension, parse_formula
-from checker.engine.formula_match import SYMPY_BUDGET, expansion_cost
+from checker.engine.expressions import dimensions as dm
+from checker.engine.expressions.parser import parse, to_numpy
+from checker.engine.formulas.check import dimension, parse_formula
+from checker.engine.formulas.match import SYMPY_BUDGET, expansion_cost
 from checker.errors import InputError
 from reference import mp_fermi_half, reference_solve
 
@@ -117,8 +117,8 @@ def test_hostile_formulas_end_promptly_with_a_message_or_a_finding(tmp_path):
 
 _FUNCTION_LEVEL = textwrap.dedent("""
     import json
-    from checker.engine.formula_match import analyse
-    from checker.engine.formula_check import parse_formula
+    from checker.engine.formulas.match import analyse
+    from checker.engine.formulas.check import parse_formula
     from checker.errors import InputError
     out = {}
     # the hang of issue 11, built without the parser: 10^(10^9) overflows in every sample

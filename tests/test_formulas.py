@@ -16,10 +16,11 @@ import pytest
 import scipy.constants as sc
 
 from checker import load_material
-from checker.engine import expression, normal_form
-from checker.engine.formula_check import dimension, parse_formula
-from checker.engine.formula_match import analyse
-from checker.engine.relations import RELATION_NAMES, SWITCHES, expand, limited, world
+from checker.engine.expressions import parser as expression
+from checker.engine.formulas import normal_form
+from checker.engine.formulas.check import dimension, parse_formula
+from checker.engine.formulas.match import analyse
+from checker.engine.formulas.relations import RELATION_NAMES, SWITCHES, expand, limited, world
 from checker.engine.run import check_calculations
 from checker.errors import InputError
 from checker.inputs.calculation_file import read_calculation_file
@@ -266,7 +267,7 @@ def test_hostile_formulas_are_refused_cleanly(tmp_path):
 
 
 def test_every_spelling_names_one_symbol():
-    from checker.engine.formula_symbols import GENERIC, SHORTHANDS, SYMBOLS
+    from checker.engine.formulas.symbols import GENERIC, SHORTHANDS, SYMBOLS
 
     spellings = [s for symbol in SYMBOLS.values() for s in symbol.spellings]
     spellings += [s.strip() for _, spelled in list(GENERIC.values()) + list(SHORTHANDS.values())
@@ -277,7 +278,7 @@ def test_every_spelling_names_one_symbol():
 def test_readme_documents_every_symbol():
     from pathlib import Path
 
-    from checker.engine.formula_symbols import GENERIC, SHORTHANDS, SYMBOLS
+    from checker.engine.formulas.symbols import GENERIC, SHORTHANDS, SYMBOLS
 
     readme = Path(__file__).resolve().parents[1].joinpath("README.md").read_text("utf-8")
     for name in list(SYMBOLS) + list(GENERIC) + list(SHORTHANDS):

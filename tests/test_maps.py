@@ -9,7 +9,7 @@ import numpy as np
 import pytest
 
 from checker import load_material, solve_equilibrium
-from checker.engine.regime_map import regime_grid
+from checker.engine.regime.regime_map import regime_grid
 from checker.engine.run import check_paths
 from checker.physics.carriers import REGIMES, regime_label
 from checker.report import DISCLAIMER

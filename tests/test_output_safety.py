@@ -238,7 +238,7 @@ def test_state_report_escapes_what_a_reader_let_through():
 def test_plot_titles_with_dollar_signs_and_controls():
     import numpy as np
 
-    from checker.engine.regime_map import eta_curve
+    from checker.engine.regime.regime_map import eta_curve
     from checker.inputs.material_catalog import resolve_material
     from checker.report.plots import draw_eta_curve, render
 

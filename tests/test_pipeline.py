@@ -1,8 +1,7 @@
 """One pipeline for single points and sweeps, and imports that only go downwards.
 
-- The reports of the shipped examples are those of the pipeline before it was made one
-  (the two-copy code of the commit named in BEFORE, run on today's rules, materials and
-  examples): byte for byte for `check`, and for `state` apart from the one renamed key.
+- `state` and `check` name the same quantities alike (that reports are unchanged by a
+  refactoring is shown by tools/compare_example_reports.py against the commit before it).
 - Grid cells of a sweep give the findings of the same points checked one by one, and
   the 3kT rule fires on the grid exactly where an independent 40-digit solve puts the
   Fermi level within 3kT of the band edge.
@@ -11,7 +10,6 @@
 """
 import ast
 import json
-import shutil
 import subprocess
 import sys
 from pathlib import Path
@@ -20,7 +18,8 @@ import numpy as np
 import pytest
 
 from checker import load_material
-from checker.engine import rulebook, sweep
+from checker.engine.regime import rulebook
+from checker.engine.regime import sweep
 from checker.engine.findings import carrier_code
 from checker.engine.run import check_calculations
 from reference import K_B, ionized_fraction, mp_fermi_half
@@ -28,81 +27,15 @@ from test_sweep import TWO_AXES, _calc as sweep_calculation
 
 ROOT = Path(__file__).resolve().parents[1]
 
-# the last commit whose single points and sweeps decided "is this assumption made" in
-# two copies, and the files the rework changed or added
-BEFORE = "a4734ee4db1730590c4aa6befd697742a1211d38"
-REWORKED = [
-    "checker/api.py", "checker/cli.py",
-    "checker/engine/evaluate.py", "checker/engine/regime_map.py", "checker/engine/run.py",
-    "checker/engine/state_values.py", "checker/engine/sweep.py",
-    "checker/engine/findings.py", "checker/engine/number_text.py", "checker/engine/points.py",
-    "checker/engine/trade_summary.py", "checker/engine/waivers.py",
-    "checker/report/check_report.py", "checker/report/ci_formats.py",
-    "checker/report/html_report.py", "checker/report/markdown_report.py",
-    "checker/report/plots.py", "checker/report/state_report.py", "checker/report/sweep_text.py",
-]
-RENAMED = {"metallic": "above_mott_density"}
-
-
-def _git(*args):
-    return subprocess.run(["git", *args], cwd=ROOT, capture_output=True)
-
-
-@pytest.fixture(scope="module")
-def before_tree(tmp_path_factory):
-    """Today's package with the pipeline files as they were at BEFORE."""
-    if shutil.which("git") is None or _git("cat-file", "-e", f"{BEFORE}^{{commit}}").returncode:
-        pytest.skip(f"needs the git history with commit {BEFORE[:7]}")
-    tree = tmp_path_factory.mktemp("before")
-    shutil.copytree(ROOT / "checker", tree / "checker",
-                    ignore=shutil.ignore_patterns("__pycache__"))
-    shutil.copytree(ROOT / "rules", tree / "checker" / "rules")
-    for path in REWORKED:
-        old = _git("show", f"{BEFORE}:{path}")
-        if old.returncode == 0:
-            (tree / path).write_bytes(old.stdout)
-        else:
-            (tree / path).unlink()            # a module the rework added
-    probe = subprocess.run([sys.executable, "-c", f"import sys; sys.path.insert(0, {str(tree)!r}); "
-                            "import checker.cli, checker.engine.run, checker.engine.sweep"],
-                           cwd=ROOT, capture_output=True, text=True)
-    if "ImportError" in probe.stderr or "ModuleNotFoundError" in probe.stderr:
-        # a module outside REWORKED now imports what only the new pipeline has: the
-        # comparison has served its purpose for this rework
-        pytest.skip(f"the pipeline of {BEFORE[:7]} no longer imports beside today's modules")
-    assert probe.returncode == 0, probe.stderr
-    return tree
-
-
-def _command(*args, tree=None):
-    """regimecheck ARGS from the repository (the package of ``tree`` where given)."""
-    code = "import sys\n"
-    if tree is not None:
-        code += f"sys.path.insert(0, {str(tree)!r})\n"
-    code += ("import checker.cli\n"
-             f"assert checker.cli.__file__.startswith({str(tree or ROOT)!r}), checker.cli.__file__\n"
-             "sys.exit(checker.cli.main(sys.argv[1:]))\n")
+def _command(*args):
+    """regimecheck ARGS from the repository's package."""
+    code = ("import sys\n"
+            "import checker.cli\n"
+            "sys.exit(checker.cli.main(sys.argv[1:]))\n")
     done = subprocess.run([sys.executable, "-c", code, *args], cwd=ROOT, capture_output=True,
                           text=True)
     assert done.returncode in (0, 1), done.stderr
     return done.stdout
-
-
-def test_state_report_is_unchanged_but_for_the_mott_key(before_tree):
-    args = ("state", "examples/larkspur_operating_points.yaml", "examples/lw3_corner_sweep.yaml",
-            "--format", "json")
-    before = json.loads(_command(*args, tree=before_tree))
-    after = json.loads(_command(*args))
-    assert len(after["points"]) == len(before["points"]) > 1
-    for old, new in zip(before["points"], after["points"]):
-        renamed = {RENAMED.get(key, key): value for key, value in old.pop("state").items()}
-        state = new.pop("state")
-        assert old == new and set(renamed) == set(state)
-        for key, value in renamed.items():
-            # cm^-3 is now m^-3 * 1e-6 for both reports (was / 1e6 here): last bit only
-            assert state[key] == (pytest.approx(value, rel=1e-15)
-                                  if isinstance(value, float) else value), key
-    assert before["errors"] == after["errors"]
 
 
 def test_check_and_state_name_the_mott_density_alike():

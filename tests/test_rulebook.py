@@ -18,7 +18,7 @@ import pint
 import pytest
 import yaml
 
-from checker.engine.rulebook import MODELINE, RuleFileError, configured, load_rule, load_rules
+from checker.engine.regime.rulebook import MODELINE, RuleFileError, configured, load_rule, load_rules
 from checker.inputs.config import Config
 from checker.resources import rules_dir
 from checker.vocabulary_words import TOLERANCE_NAMES
@@ -345,7 +345,7 @@ def test_configuration_module_names_no_rule():
 
 
 def test_rule_loader_imports_no_input_reader():
-    code = ("import sys, checker.engine.rulebook as r; r.load_rules(); "
+    code = ("import sys, checker.engine.regime.rulebook as r; r.load_rules(); "
             "print(sorted(m for m in sys.modules if m.startswith('checker.inputs')))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True, cwd=ROOT)
@@ -365,7 +365,7 @@ def _pint_dimension(dimension):
 
 
 def test_every_display_unit_has_the_dimension_pint_gives_it():
-    from checker.engine.expression_dimensions import UNIT_DIMENSIONS
+    from checker.engine.expressions.dimension_check import UNIT_DIMENSIONS
     from checker.engine.vocabulary import DISPLAY_UNITS
 
     assert set(UNIT_DIMENSIONS) == set(DISPLAY_UNITS)
@@ -377,7 +377,7 @@ def test_every_display_unit_has_the_dimension_pint_gives_it():
 def test_names_have_the_dimension_of_the_input_keys_that_fill_them():
     """A quantity a calculation states (or its structure gives) has, in rule expressions,
     the dimension the calculation reader parses it in (inputs/quantities.DIMENSIONS)."""
-    from checker.engine.expression_dimensions import name_dimension
+    from checker.engine.expressions.dimension_check import name_dimension
     from checker.engine.vocabulary import rule_names
     from checker.inputs.calculation_file import STATED_KEYS, STRUCTURE_KEYS
     from checker.inputs.quantities import DIMENSIONS as READ_AS
@@ -392,7 +392,7 @@ def test_names_have_the_dimension_of_the_input_keys_that_fill_them():
 
 
 def test_constants_have_their_si_dimensions():
-    from checker.engine.expression_dimensions import name_dimension
+    from checker.engine.expressions.dimension_check import name_dimension
 
     # CODATA: q in C, k in J/K
     assert _pint_dimension(name_dimension("q")) == UNITS.coulomb.dimensionality
@@ -400,7 +400,7 @@ def test_constants_have_their_si_dimensions():
 
 
 def test_per_carrier_names_share_their_dimension():
-    from checker.engine.expression_dimensions import name_dimension
+    from checker.engine.expressions.dimension_check import name_dimension
 
     for stem in ("dens", "mu", "eta", "Eion", "lambda"):
         assert name_dimension(f"{stem}_x") == name_dimension(f"{stem}_n") == \

@@ -120,7 +120,7 @@ def test_stat02_indicator_is_the_published_2d_ratio():
     """(D/mu)/(kT/q) in 2D at eta = 0 is 2 ln 2 = 1.38629436112: (1 + e^-eta) ln(1 + e^eta)
     for a 2D parabolic band (Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2);
     3D at eta = -1.902 is 1.05 (the 5 % point; F_1/2/F_-1/2 from mpmath)."""
-    from checker.engine.rulebook import load_rules
+    from checker.engine.regime.rulebook import load_rules
 
     rule = next(r for r in load_rules() if r.id == "STAT02")
     values = {"eta_n": np.array([0.0, -1.902]), "dim": np.array([2.0, 3.0])}

@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 
 from checker import load_material
-from checker.engine import sweep
+from checker.engine.regime import sweep
 from checker.engine.run import check_calculations, check_paths
 from checker.inputs.calculation_file import read_calculation_file
 from checker.report.sweep_text import boundary_lines

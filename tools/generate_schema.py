@@ -19,7 +19,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
-from checker.engine.rulebook import RULE_FILE  # noqa: E402
+from checker.engine.regime.rulebook import RULE_FILE  # noqa: E402
 from checker.inputs import calculation_file as cf  # noqa: E402
 from checker.inputs.material_catalog import MATERIAL  # noqa: E402
 from checker.inputs.quantities import DIMENSIONS, quantity_pattern  # noqa: E402

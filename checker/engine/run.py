@@ -1,5 +1,5 @@
 """One check run: read calculation files, check the single points together
-(:mod:`checker.engine.points`) and each sweep over its grid (:mod:`checker.engine.sweep`),
+(:mod:`checker.engine.regime.points`) and each sweep over its grid (:mod:`checker.engine.regime.sweep`),
 apply the waivers.
 
 Data flows one way: files -> Calculation objects -> solved quantities ->
@@ -13,8 +13,8 @@ from pathlib import Path
 from ..inputs.sources import read_input
 from ..inputs.config import Config, check_rule_ids
 from ..vocabulary_words import SEVERITIES, SEVERITY_RANK
-from . import rulebook
-from .points import check_points
+from .regime import rulebook
+from .regime.points import check_points
 from .waivers import apply_waivers
 
 
@@ -91,7 +91,7 @@ def check_calculations(calculations, rules=None, input_errors=(), config=None,
     by_index = dict(zip(points, reports))
     for i, calc in enumerate(calculations):
         if calc.sweep:
-            from .sweep import check_sweep     # imported only for a sweep
+            from .regime.sweep import check_sweep     # imported only for a sweep
 
             by_index[i], sweep_errors = check_sweep(calc, rules, progress)
             errors += sweep_errors

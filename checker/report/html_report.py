@@ -53,7 +53,7 @@ def _mathml(tree_left, tree_right) -> str:
     import sympy
     from sympy.printing.mathml import mathml
 
-    from ..engine.expression import to_sympy
+    from ..engine.expressions.parser import to_sympy
 
     script_f = sympy.Function("ℱ")
     sides = [to_sympy(t).replace(sympy.Function("F"), script_f) for t in (tree_left, tree_right)]
@@ -133,7 +133,7 @@ def _map(report, index, grids, shared=None) -> str:
     """The map of the calculation's material and dopant with its point; with ``shared``
     (large runs) the group's map is drawn once, with all its points, and later
     calculations of the group link to it."""
-    from ..engine.regime_map import map_groups, regime_grid
+    from ..engine.regime.regime_map import map_groups, regime_grid
     from .plots import draw_map
 
     groups = map_groups(_Single(report))
@@ -173,7 +173,7 @@ def render_html(result, exit_code: int, maps: bool = True) -> str:
     grids = {}
     shared = None
     if len(result.reports) > MAPS_PER_CALCULATION:
-        from ..engine.regime_map import map_groups
+        from ..engine.regime.regime_map import map_groups
 
         shared = map_groups(result)
         parts.append(f'<p class="meta">{len(result.reports)} calculations: one regime map per '

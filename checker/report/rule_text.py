@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import textwrap
 
-from ..engine import expression
+from ..engine.expressions import parser as expression
 from ..engine.vocabulary import COMMON, PER_CARRIER
 
 _WRAP = 88

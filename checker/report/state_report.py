@@ -6,7 +6,7 @@ import json
 from . import DISCLAIMER
 from .safe_text import visible, visible_data
 
-# (key of engine.trade_summary, label, format)
+# (key of engine.regime.trade_summary, label, format)
 ROWS = [
     ("regime", "regime", "{}"),
     ("EF_minus_EC_eV", "E_F - E_C", "{:+.4f} eV"),

@@ -1,8 +1,8 @@
 """Sweeps in words: axis values in trade units, where a rule fails on the grid, and
-the message of a finding that covers a grid (from engine.sweep's numbers)."""
+the message of a finding that covers a grid (from engine.regime.sweep's numbers)."""
 from __future__ import annotations
 
-from ..engine.sweep import axis_label
+from ..engine.regime.sweep import axis_label
 
 
 def axis_value(axis, value) -> str:
@@ -33,7 +33,7 @@ def _runs_text(axis, runs) -> str:
 
 
 def boundary_lines(summary) -> list:
-    """Lines saying where on the grid the rule fails (engine.sweep.SweepSummary)."""
+    """Lines saying where on the grid the rule fails (engine.regime.sweep.SweepSummary)."""
     if summary.row_axis is None:
         return [f"fails {_runs_text(summary.axis, row.runs)}" for row in summary.rows]
     row_axis = summary.row_axis

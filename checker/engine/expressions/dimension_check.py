@@ -12,8 +12,8 @@ from __future__ import annotations
 import math
 
 from . import dimensions as dm
-from .expression import folded, to_text
-from .vocabulary import COMMON, CONSTANTS, PER_CARRIER
+from .parser import folded, to_text
+from ..vocabulary import COMMON, CONSTANTS, PER_CARRIER
 
 # display unit (vocabulary.DISPLAY_UNITS) -> dimension
 UNIT_DIMENSIONS = {

@@ -9,7 +9,7 @@ short-conductor resistance, the Caughey–Thomas drift velocity, ...).  A
 a switch set to zero (holes neglected beside electrons, lambda/L -> 0,
 mu E/v_sat -> 0), an ionized fraction set to one.  A stated formula embodies
 a set of limits when it is an identity of the definitions with those limits
-applied (see :mod:`checker.engine.formula_match`).
+applied (see :mod:`checker.engine.formulas.match`).
 
 Charge neutrality n + N_A- = p + N_D+ has no explicit form for n, so it is
 written for the dopant instead: in the *donor world* N_D is defined from
@@ -33,7 +33,7 @@ import math
 from dataclasses import dataclass, field
 from functools import lru_cache
 
-from .expression import names_in as _names_in, parse
+from ..expressions.parser import names_in as _names_in, parse
 
 # definitions are tuples, hashable and reused: remember the names each one uses
 names_in = lru_cache(maxsize=None)(_names_in)

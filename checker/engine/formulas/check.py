@@ -26,17 +26,17 @@ from itertools import combinations
 
 import numpy as np
 
-from ..errors import InputError
-from ..physics.constants import ELECTRON_MASS, PLANCK
-from . import dimensions as dm
-from . import expression_dimensions
-from .findings import Correction, Embodied, Finding, carrier_code
-from .number_text import display, error_text
-from .expression import MAX_LENGTH, parse, rename, to_numpy, to_text
-from .formula_match import Match, analyse
-from .formula_symbols import dimension_of, parse_side
+from ...errors import InputError
+from ...physics.constants import ELECTRON_MASS, PLANCK
+from ..expressions import dimensions as dm
+from ..expressions import dimension_check as expression_dimensions
+from ..findings import Correction, Embodied, Finding, carrier_code
+from ..number_text import display, error_text
+from ..expressions.parser import MAX_LENGTH, parse, rename, to_numpy, to_text
+from .match import Match, analyse
+from .symbols import dimension_of, parse_side
 from .relations import world
-from .rulebook import PLACEHOLDER
+from ..regime.rulebook import PLACEHOLDER
 
 # lhs dimension -> display unit of the report
 _DISPLAY = {

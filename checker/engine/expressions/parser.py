@@ -34,8 +34,8 @@ from functools import lru_cache
 
 import numpy as np
 
-from ..errors import InputError
-from ..physics.fermi import fermi_dirac
+from ...errors import InputError
+from ...physics.fermi import fermi_dirac
 
 MAX_LENGTH = 4000
 MAX_NODES = 400

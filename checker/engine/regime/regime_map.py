@@ -13,9 +13,9 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..physics import carriers, equilibrium
-from ..physics.carriers import REGIMES
-from ..vocabulary_words import SEVERITY_RANK
+from ...physics import carriers, equilibrium
+from ...physics.carriers import REGIMES
+from ...vocabulary_words import SEVERITY_RANK
 
 DOPING_RANGE = (1e13 * 1e6, 1e21 * 1e6)      # m^-3
 TEMPERATURE_RANGE = (20.0, 700.0)            # K

@@ -26,7 +26,7 @@ def check_points(calculations, rules) -> tuple[list, list]:
     values, solve_errors, solve_notes = state_values.solve_all(calculations)
     analyses = [None] * len(calculations)
     if any(calc.formulas for calc in calculations):
-        from . import formula_check    # imported only when there are formulas to read
+        from ..formulas import check as formula_check    # imported only when there are formulas to read
 
         analyses = formula_check.analyse_all(calculations, values, skip=solve_errors.keys())
     embodied = [a.embodied if a else [] for a in analyses]

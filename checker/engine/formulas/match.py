@@ -34,7 +34,7 @@ from itertools import combinations
 import numpy as np
 
 from . import normal_form
-from .expression import folded, to_numpy, to_sympy
+from ..expressions.parser import folded, to_numpy, to_sympy
 from .relations import (RELATION_NAMES, WORDS_IN, acts_on, closure, expand, limited, limits,
                         names_in, sample, world)
 

@@ -7,11 +7,11 @@ Either way :class:`Cells` holds one array per quantity name over the cells and, 
 cell, the calculation it belongs to; :func:`rule_cells` yields each rule's outcome
 over them (:class:`Ruled`), and a reduction per calculation turns that into findings
 (:func:`add_findings`, for single points) or a sweep's failing masks and worst points
-(:mod:`checker.engine.sweep`).
+(:mod:`checker.engine.regime.sweep`).
 
 A rule fires for a cell (and carrier) where
   * its assumption is made: declared by the author (``assumes``), embodied in
-    a stated formula (see :mod:`checker.engine.formula_check`), or implied by
+    a stated formula (see :mod:`checker.engine.formulas.check`), or implied by
     a stated number equal to the shortcut's value within the rule's tolerance,
     and its ``when`` gate holds;
   * the quantities it ``requires`` are known; and
@@ -25,10 +25,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .findings import Correction, Finding, carrier_word
-from .number_text import display
+from ..findings import Correction, Finding, carrier_word
+from ..number_text import display
 from .rulebook import PLACEHOLDER
-from .vocabulary import CARRIER_WORDS, carrier_names
+from ..vocabulary import CARRIER_WORDS, carrier_names
 
 
 @dataclass

@@ -1,7 +1,7 @@
 """Sweeps: a calculation whose temperature and/or a dopant density are ranges.
 
 The grid (the outer product of at most two axes) is solved and ruled in chunks of
-cells (:mod:`checker.engine.evaluate`, as single points are); this module's reduction
+cells (:mod:`checker.engine.regime.evaluate`, as single points are); this module's reduction
 keeps only each rule's failing mask and worst cell.  Per rule the result says where on
 the grid it starts to fail (edges between grid points interpolated where the indicator
 crosses its threshold smoothly), the fraction of the grid that fails, and the full
@@ -16,7 +16,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .evaluate import Cells, beyond, rule_cells, rule_indicator
-from .findings import carrier_word
+from ..findings import carrier_word
 from .points import CalculationReport, check_points
 from .state_values import solve_sweep
 

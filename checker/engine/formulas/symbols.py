@@ -23,9 +23,9 @@ import re
 from dataclasses import dataclass
 from functools import lru_cache
 
-from ..errors import InputError
-from . import dimensions as dm
-from .expression import folded, names_in, parse, to_text
+from ...errors import InputError
+from ..expressions import dimensions as dm
+from ..expressions.parser import folded, names_in, parse, to_text
 
 # the functions a formula may call (F is the normalized Fermi–Dirac integral F_j(eta))
 FORMULA_FUNCTIONS = ("exp", "log", "ln", "log10", "sqrt", "abs", "F")

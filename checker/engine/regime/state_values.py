@@ -10,10 +10,10 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import MissingParameterError, RegimecheckError
-from ..physics import carriers, equilibrium, hall
-from ..physics.constants import ELEMENTARY_CHARGE
-from .vocabulary import CONSTANTS, TEXT, concrete_names
+from ...errors import MissingParameterError, RegimecheckError
+from ...physics import carriers, equilibrium, hall
+from ...physics.constants import ELEMENTARY_CHARGE
+from ..vocabulary import CONSTANTS, TEXT, concrete_names
 
 _STATED_COMMON = ("stated_kT_q", "stated_ni", "stated_Rsh", "stated_R", "stated_lambda",
                   "stated_hall")

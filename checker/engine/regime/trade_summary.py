@@ -8,8 +8,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..physics.carriers import regime_label
-from ..physics.constants import EV
+from ...physics.carriers import regime_label
+from ...physics.constants import EV
 
 PER_CM3 = 1e-6           # m^-3 -> cm^-3
 

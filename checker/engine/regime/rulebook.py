@@ -5,7 +5,7 @@ the one table of its fields: the loader checks every file against it, and
 tools/generate_schema.py writes checker/data/rule.schema.json from it.  Beyond the
 table the loader checks what a schema cannot: the editor modeline, the id against the
 file name, message placeholders, and every expression -- parsed by
-:mod:`checker.engine.expression` against the vocabulary, dimension-checked (terms,
+:mod:`checker.engine.expressions.parser` against the vocabulary, dimension-checked (terms,
 function arguments, and the unit the value is shown in or compared with), and compiled
 once into numpy closures (a per-carrier rule for electrons and for holes).  A broken
 rule file raises :class:`RuleFileError` with one line per problem:
@@ -20,15 +20,15 @@ from pathlib import Path
 
 import yaml
 
-from ..errors import RegimecheckError
-from ..resources import rules_dir
-from ..vocabulary_words import ASSUMPTIONS, SEVERITIES, TOLERANCE_NAMES
-from . import dimensions as dm
-from . import expression
-from .expression_dimensions import UNIT_DIMENSIONS, DimensionProblem, dimension, name_dimension
+from ...errors import RegimecheckError
+from ...resources import rules_dir
+from ...vocabulary_words import ASSUMPTIONS, SEVERITIES, TOLERANCE_NAMES
+from ..expressions import dimensions as dm
+from ..expressions import parser as expression
+from ..expressions.dimension_check import UNIT_DIMENSIONS, DimensionProblem, dimension, name_dimension
 from .rule_fields import (Alternatives, Block, Choice, EmptyOrListOf, Expression, ListOf, Named,
                           Number, Pattern, Text, field_name)
-from .vocabulary import DISPLAY_UNITS, TEXT, carrier_names, rule_names
+from ..vocabulary import DISPLAY_UNITS, TEXT, carrier_names, rule_names
 
 # what a rule may guard beyond the words an author declares
 RULE_ONLY_ASSUMPTIONS = ("carrier-type", "stated-mobility", "stated-constants", "light-doping",

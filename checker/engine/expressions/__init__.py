@@ -1,0 +1,1 @@
+"""Safe parsing of expressions (rule files, stated formulas) and their dimension algebra."""

@@ -1,0 +1,1 @@
+"""Analysis of stated formulas: symbols, exact relations and limits, recognition, values."""
