@@ -10,6 +10,7 @@ rule ids), mistakes, misses (a mistake that did not draw its rule), and how many
 index marks as expected to fail today.  Then the lists and the wall time of the check.
 Always exits 0.
 """
+
 import sys
 import tempfile
 import time
@@ -29,8 +30,9 @@ def main() -> int:
     groups = OrderedDict()
     false_alarms, misses, missing = [], [], []
     for case in INDEX:
-        row = groups.setdefault(case["group"], dict(cases=0, correct=0, false_alarms=0,
-                                                    mistakes=0, misses=0, marked=0))
+        row = groups.setdefault(
+            case["group"], dict(cases=0, correct=0, false_alarms=0, mistakes=0, misses=0, marked=0)
+        )
         row["cases"] += 1
         row["marked"] += "xfail" in case
         calc = report["by_name"].get(case["id"])
@@ -59,19 +61,31 @@ def main() -> int:
         for k in keys:
             total[k] += row[k]
     print(f"{'total':<{width}}" + "".join(f"{total[k]:>14}" for k in keys))
-    print(f"\none check run over {len(report['calculations'])} calculations: {wall:.2f} s "
-          f"(exit code {code}, {len(report['input_errors'])} input error(s))")
+    print(
+        f"\none check run over {len(report['calculations'])} calculations: {wall:.2f} s "
+        f"(exit code {code}, {len(report['input_errors'])} input error(s))"
+    )
 
-    print(f"\nFalse alarms ({len(false_alarms)}): correct published numbers that drew a warning/error")
+    print(
+        f"\nFalse alarms ({len(false_alarms)}): correct published numbers that drew a warning/error"
+    )
     for case, drawn in false_alarms:
         known = "expected today" if "xfail" in case else "NEW (not marked xfail)"
         print(f"  {case['id']:<38} {', '.join(drawn) or 'input error':<16} {known}")
     print(f"\nMisses ({len(misses)}): mistakes that did not draw their rule")
     for case, drawn in misses:
         known = "expected today" if "xfail" in case else "NEW (not marked xfail)"
-        print(f"  {case['id']:<38} wants {case['rule']:<8} drew {', '.join(drawn) or 'nothing':<16} {known}")
-    fixed = [c["id"] for c in INDEX if "xfail" in c and c["id"] not in
-             {x[0]["id"] for x in false_alarms + misses} and c["id"] not in missing]
+        print(
+            f"  {case['id']:<38} wants {case['rule']:<8} "
+            f"drew {', '.join(drawn) or 'nothing':<16} {known}"
+        )
+    fixed = [
+        c["id"]
+        for c in INDEX
+        if "xfail" in c
+        and c["id"] not in {x[0]["id"] for x in false_alarms + misses}
+        and c["id"] not in missing
+    ]
     if fixed:
         print(f"\nMarked xfail but right today ({len(fixed)}): " + ", ".join(fixed))
     if missing:

@@ -8,6 +8,7 @@ interleaved runs beside `python -c pass`; 1,000 calculations in one run <= 10 s
 under a second.  Prints a table;
 asserts nothing.
 """
+
 import argparse
 import statistics
 import subprocess
@@ -17,13 +18,21 @@ import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
-ONE = ROOT / "examples" / "lc9_counterdoped_well.yaml"          # no formulas
-WITH_FORMULAS = ROOT / "examples" / "lk7_contact_cap.yaml"     # 7 formulas, 2 calculations
+ONE = ROOT / "examples" / "lc9_counterdoped_well.yaml"  # no formulas
+WITH_FORMULAS = ROOT / "examples" / "lk7_contact_cap.yaml"  # 7 formulas, 2 calculations
 FORMULAS = ("n = N_D", "D_n = mu_n*k*T/q", "sigma = q*n*mu_n", "E_F - E_c = k*T*ln(N_D/N_c)")
 
 # (material, donor, acceptor) cycled through the generated run
-MIXES = [("Si", "P", "B"), ("Si", "As", "B"), ("Ge", "Sb", "Ga"), ("GaAs", "Si", "C"),
-         ("GaN", "Si", "Mg"), ("4H-SiC", "N", "Al"), ("InP", "S", "Zn"), ("InGaAs", "Si", "Zn")]
+MIXES = [
+    ("Si", "P", "B"),
+    ("Si", "As", "B"),
+    ("Ge", "Sb", "Ga"),
+    ("GaAs", "Si", "C"),
+    ("GaN", "Si", "Mg"),
+    ("4H-SiC", "N", "Al"),
+    ("InP", "S", "Zn"),
+    ("InGaAs", "Si", "Zn"),
+]
 
 
 def wall(command, runs):
@@ -48,7 +57,8 @@ def many_calculations(count: int) -> str:
             + (f"  acceptors: {{{acceptor}: {na:.3e} cm-3}}\n" if na else "")
             + f"stated:\n  electron_density: {nd:.3e} cm-3\n  electron_mobility: 1000 cm^2/(V*s)\n"
             "assumes: [non-degenerate, full-ionization, einstein-relation, single-carrier]\n"
-            + ("formulas:\n" + "".join(f"  - {f}\n" for f in FORMULAS) if i % 2 else ""))
+            + ("formulas:\n" + "".join(f"  - {f}\n" for f in FORMULAS) if i % 2 else "")
+        )
     return "---\n".join(docs)
 
 
@@ -59,7 +69,7 @@ def main():
     args = parser.parse_args()
     tool = [sys.executable, "-m", "checker", "check"]
     baseline, one, formulas = [], [], []
-    for _ in range(args.runs):          # interleaved: machine noise hits all alike
+    for _ in range(args.runs):  # interleaved: machine noise hits all alike
         baseline += wall([sys.executable, "-c", "pass"], 1)
         one += wall(tool + [str(ONE)], 1)
         formulas += wall(tool + [str(WITH_FORMULAS)], 1)
@@ -69,7 +79,7 @@ def main():
         path.write_text(many_calculations(args.calculations), encoding="utf-8")
         many = wall(tool + [str(path)], 3)
         many_json = wall(tool + [str(path), "--format", "json"], 3)
-        folder = Path(tmp) / "files"          # 1,000 small files in nested folders
+        folder = Path(tmp) / "files"  # 1,000 small files in nested folders
         for i, doc in enumerate(many_calculations(1000).split("---\n")):
             target = folder / f"block{i // 100}" / f"calc{i}.yaml"
             target.parent.mkdir(parents=True, exist_ok=True)
@@ -80,8 +90,14 @@ def main():
     from checker.engine.formulas.check import parse_formula
     from checker.errors import InputError
 
-    hostile = ["__import__('os').system('x')", "9**9**9", "1e999999", "(" * 10000 + ")" * 10000,
-               "x+" * 500_000 + "x", "(" * 150 + "1" + ")" * 150]
+    hostile = [
+        "__import__('os').system('x')",
+        "9**9**9",
+        "1e999999",
+        "(" * 10000 + ")" * 10000,
+        "x+" * 500_000 + "x",
+        "(" * 150 + "1" + ")" * 150,
+    ]
     worst = 0.0
     for text in hostile:
         for reader in (expression.parse, lambda t: parse_formula(f"n = {t}", "n", "bench")):
@@ -93,18 +109,23 @@ def main():
             worst = max(worst, time.perf_counter() - start)
 
     print(f"{'what':<52} {'median s':>9} {'best s':>8} {'target':>8}")
-    rows = [("python -c pass", baseline, ""),
-            (f"check {ONE.name} (no formulas)", one, "0.35"),
-            (f"check {WITH_FORMULAS.name} (7 formulas)", formulas, "0.8"),
-            ("check examples/ (all example files)", every, ""),
-            (f"check {args.calculations} calculations (console)", many, "10"),
-            (f"check {args.calculations} calculations (--format json)", many_json, "10"),
-            ("check a directory of 1000 small files", files, "15")]
+    rows = [
+        ("python -c pass", baseline, ""),
+        (f"check {ONE.name} (no formulas)", one, "0.35"),
+        (f"check {WITH_FORMULAS.name} (7 formulas)", formulas, "0.8"),
+        ("check examples/ (all example files)", every, ""),
+        (f"check {args.calculations} calculations (console)", many, "10"),
+        (f"check {args.calculations} calculations (--format json)", many_json, "10"),
+        ("check a directory of 1000 small files", files, "15"),
+    ]
     for label, times, target in rows:
         print(f"{label:<52} {statistics.median(times):9.3f} {min(times):8.3f} {target:>8}")
     ratio = statistics.median(one) / statistics.median(baseline)
-    print(f"one example minus interpreter start: {statistics.median(one) - statistics.median(baseline):.3f} s "
-          f"(ratio to python -c pass: {ratio:.1f}x)")
+    print(
+        f"one example minus interpreter start: "
+        f"{statistics.median(one) - statistics.median(baseline):.3f} s "
+        f"(ratio to python -c pass: {ratio:.1f}x)"
+    )
     print(f"slowest refusal of hostile expression or formula text: {worst * 1e3:.1f} ms")
 
 

@@ -5,6 +5,7 @@ Points: T uniform in [50, 1000] K; P and B densities log-uniform in
 [1e12, 1e20] cm^-3 each (so compensated, freeze-out, intrinsic and
 near-degenerate points are all present).
 """
+
 import argparse
 import time
 

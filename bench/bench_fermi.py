@@ -5,6 +5,7 @@ are timed alternately, so machine noise hits both; the table gives the ratio
 of the best times and the median of the per-round ratios.
 Usage: python bench/bench_fermi.py [--sizes 1e6 1e7] [--repeat 15]
 """
+
 import argparse
 import time
 
@@ -28,8 +29,10 @@ def main():
     args = parser.parse_args()
     rng = np.random.default_rng(7)
     print("eta uniform in [-20, 40] (every approximation region is used)")
-    print(f"{'points':>9} {'order':>6} {'F ns/elem':>10} {'exp ns/elem':>12} "
-          f"{'ratio(best)':>12} {'ratio(median)':>14}")
+    print(
+        f"{'points':>9} {'order':>6} {'F ns/elem':>10} {'exp ns/elem':>12} "
+        f"{'ratio(best)':>12} {'ratio(median)':>14}"
+    )
     for size in args.sizes:
         n = int(size)
         eta = rng.uniform(-20.0, 40.0, n)
@@ -41,8 +44,10 @@ def main():
                 t_fd.append(timed(lambda: fermi_dirac(j, eta)))
                 t_exp.append(timed(lambda: np.exp(eta)))
             ratios = np.array(t_fd) / np.array(t_exp)
-            print(f"{n:>9d} {j:>6} {min(t_fd) / n * 1e9:>10.1f} {min(t_exp) / n * 1e9:>12.2f} "
-                  f"{min(t_fd) / min(t_exp):>12.1f} {np.median(ratios):>14.1f}")
+            print(
+                f"{n:>9d} {j:>6} {min(t_fd) / n * 1e9:>10.1f} {min(t_exp) / n * 1e9:>12.2f} "
+                f"{min(t_fd) / min(t_exp):>12.1f} {np.median(ratios):>14.1f}"
+            )
 
 
 if __name__ == "__main__":

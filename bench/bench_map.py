@@ -1,5 +1,6 @@
 """Regime map timings: a 200 x 200 map solved and drawn (target <= 3 s), in-process and as
 the `regimecheck map` command; prints a table, asserts nothing."""
+
 import subprocess
 import sys
 import tempfile
@@ -28,9 +29,24 @@ def main():
     with tempfile.TemporaryDirectory() as tmp:
         out = Path(tmp) / "map.svg"
         t = time.perf_counter()
-        subprocess.run([sys.executable, "-m", "checker", "map", "--material", "Si", "--dopant",
-                        "P", "--resolution", "200", "--output", str(out)],
-                       stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+        subprocess.run(
+            [
+                sys.executable,
+                "-m",
+                "checker",
+                "map",
+                "--material",
+                "Si",
+                "--dopant",
+                "P",
+                "--resolution",
+                "200",
+                "--output",
+                str(out),
+            ],
+            stdout=subprocess.DEVNULL,
+            stderr=subprocess.DEVNULL,
+        )
         print(f"{'regimecheck map (whole process)':<44} {time.perf_counter() - t:8.2f} {'3':>7}")
     print(f"SVG size: {len(svg) / 1024:.0f} KiB")
 

@@ -4,6 +4,7 @@ Whole-process wall time and peak memory of `regimecheck check` on a generated
 1,000 x 1,000 silicon grid with the textbook shortcuts declared, beside a 100 x 100
 grid; prints a table, asserts nothing.
 """
+
 import argparse
 import resource
 import statistics
@@ -26,8 +27,11 @@ formulas:
 
 def run(path):
     start = time.perf_counter()
-    subprocess.run([sys.executable, "-m", "checker", "check", str(path)],
-                   stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    subprocess.run(
+        [sys.executable, "-m", "checker", "check", str(path)],
+        stdout=subprocess.DEVNULL,
+        stderr=subprocess.DEVNULL,
+    )
     return time.perf_counter() - start
 
 
@@ -43,8 +47,10 @@ def main():
             before = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss
             times = [run(path) for _ in range(args.runs)]
             peak = max(resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss, before) / 1024
-            print(f"{f'{n} x {n}':<20} {n * n:>10} {statistics.median(times):9.2f} "
-                  f"{min(times):8.2f} {peak:8.0f} {target:>7}")
+            print(
+                f"{f'{n} x {n}':<20} {n * n:>10} {statistics.median(times):9.2f} "
+                f"{min(times):8.2f} {peak:8.0f} {target:>7}"
+            )
 
 
 if __name__ == "__main__":

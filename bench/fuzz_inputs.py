@@ -24,6 +24,7 @@ REGIMECHECK_DEBUG=1) with its count and the folder of its first reproduction und
 ``--out``: files/ (the inputs), command.txt, outcome.txt (exit code, streams,
 traceback) and minimized/ (the same failure from a smaller input).
 """
+
 from __future__ import annotations
 
 import argparse
@@ -51,16 +52,25 @@ CANARY_EVERY = 250
 
 # --- worker: one batch of one kind, in-process ------------------------------------------
 
+
 def _encode(case: fz.Case) -> dict:
-    return {"kind": case.kind, "argv_extra": list(case.argv_extra),
-            "paths": None if case.paths is None else list(case.paths), "sentinel": case.sentinel,
-            "files": {name: base64.b64encode(data).decode() for name, data in case.files.items()}}
+    return {
+        "kind": case.kind,
+        "argv_extra": list(case.argv_extra),
+        "paths": None if case.paths is None else list(case.paths),
+        "sentinel": case.sentinel,
+        "files": {name: base64.b64encode(data).decode() for name, data in case.files.items()},
+    }
 
 
 def _decode(data: dict) -> fz.Case:
-    return fz.Case(data["kind"], {n: base64.b64decode(b) for n, b in data["files"].items()},
-                   tuple(data["argv_extra"]), None if data["paths"] is None
-                   else tuple(data["paths"]), data["sentinel"])
+    return fz.Case(
+        data["kind"],
+        {n: base64.b64decode(b) for n, b in data["files"].items()},
+        tuple(data["argv_extra"]),
+        None if data["paths"] is None else tuple(data["paths"]),
+        data["sentinel"],
+    )
 
 
 def _slug(signature: str) -> str:
@@ -84,9 +94,12 @@ def _fresh_canary(timeout) -> str:
         path = Path(folder) / fz.SENTINEL_NAME
         path.write_bytes(fz.SENTINEL)
         try:
-            done = subprocess.run([sys.executable, "-m", "checker", "check", str(path),
-                                   "--format", "json"], capture_output=True, text=True,
-                                  timeout=timeout + 30)
+            done = subprocess.run(
+                [sys.executable, "-m", "checker", "check", str(path), "--format", "json"],
+                capture_output=True,
+                text=True,
+                timeout=timeout + 30,
+            )
         except subprocess.TimeoutExpired:
             return ""
         return re.sub(r"/tmp/regimecheck-fuzz-[^/\"]+/", "", done.stdout.rstrip("\n") + "\n")
@@ -99,7 +112,7 @@ def run_worker(kind, count, seed, stop_at, timeout, out_dir, current, minimize_r
 
     fz.set_profile(long=True)
     channel = os.fdopen(os.dup(1), "w", buffering=1)
-    os.dup2(2, 1)                      # stray prints (hypothesis notes) away from the channel
+    os.dup2(2, 1)  # stray prints (hypothesis notes) away from the channel
     out_dir = Path(out_dir)
     saved = set()
     done = [0]
@@ -121,22 +134,33 @@ def run_worker(kind, count, seed, stop_at, timeout, out_dir, current, minimize_r
         try:
             folder.mkdir(parents=True)
         except FileExistsError:
-            return str(folder)         # another worker saved this failure first
+            return str(folder)  # another worker saved this failure first
         fz.save_case(case, folder, outcome, f"signature: {signature}")
         if failure.cls != "hang" and minimize_runs:
-            small = fz.minimize(case, signature, budget=minimize_runs, timeout=timeout,
-                                progress=lambda: emit(t="beat"))
-            fz.save_case(small, folder / "minimized", fz.examine(small, timeout),
-                         f"signature: {signature}")
+            small = fz.minimize(
+                case,
+                signature,
+                budget=minimize_runs,
+                timeout=timeout,
+                progress=lambda: emit(t="beat"),
+            )
+            fz.save_case(
+                small, folder / "minimized", fz.examine(small, timeout), f"signature: {signature}"
+            )
         return str(folder)
 
     @fixed_seed(seed)
-    @settings(max_examples=count, phases=[Phase.generate], database=None, deadline=None,
-              suppress_health_check=list(HealthCheck))
+    @settings(
+        max_examples=count,
+        phases=[Phase.generate],
+        database=None,
+        deadline=None,
+        suppress_health_check=list(HealthCheck),
+    )
     @given(fz.cases(kind))
     def body(case):
         if time.time() > stop_at:
-            return                     # the budget is spent: the batch's rest is skipped
+            return  # the budget is spent: the batch's rest is skipped
         Path(current).write_text(json.dumps(_encode(case)))
         outcome = fz.examine(case, timeout)
         failures = outcome.failures()
@@ -148,9 +172,10 @@ def run_worker(kind, count, seed, stop_at, timeout, out_dir, current, minimize_r
         done[0] += 1
         if done[0] % CANARY_EVERY == 0:
             again = _canary().run(timeout)
-            if _canary_report(again) != canary[0] and \
-                    _canary_report(again) == _fresh_canary(timeout):
-                canary[0] = _canary_report(again)     # the code changed, not this process
+            if _canary_report(again) != canary[0] and _canary_report(again) == _fresh_canary(
+                timeout
+            ):
+                canary[0] = _canary_report(again)  # the code changed, not this process
             if _canary_report(again) != canary[0]:
                 folder = out_dir / "state-leak"
                 if "state-leak" not in saved:
@@ -160,16 +185,21 @@ def run_worker(kind, count, seed, stop_at, timeout, out_dir, current, minimize_r
                     (folder / "first.json").write_text(canary[0])
                     (folder / "later.json").write_text(_canary_report(again))
                 records.append(["state-leak", "state-leak", str(folder)])
-        emit(t="case", kind=kind, code=outcome.code, elapsed=round(outcome.elapsed, 3),
-             failures=records)
+        emit(
+            t="case",
+            kind=kind,
+            code=outcome.code,
+            elapsed=round(outcome.elapsed, 3),
+            failures=records,
+        )
         if fz.runaway_threads():
-            emit(t="tainted")          # a runaway thread is left: end this worker
+            emit(t="tainted")  # a runaway thread is left: end this worker
             channel.flush()
             os._exit(3)
 
     try:
         body()
-    except Exception as exc:           # hypothesis' own errors: say so, do not hide them
+    except Exception as exc:  # hypothesis' own errors: say so, do not hide them
         emit(t="error", message=f"{kind} batch: {type(exc).__name__}: {exc}"[:2000])
     emit(t="done")
     channel.flush()
@@ -177,6 +207,7 @@ def run_worker(kind, count, seed, stop_at, timeout, out_dir, current, minimize_r
 
 
 # --- parent: batches, workers, the table ------------------------------------------------
+
 
 class Tally:
     def __init__(self):
@@ -210,17 +241,22 @@ class Tally:
             row += [sum(self.classes[k][c] for k in pick) for c in CLASSES]
             row += [sum(self.slow[k] for k in pick)]
             rows.append(row)
-        widths = [max(len(str(col)), *(len(str(r[i])) for r in rows)) for i, col in
-                  enumerate(columns)]
-        line = lambda values: "  ".join(str(v).rjust(w) if i else str(v).ljust(w)
-                                        for i, (v, w) in enumerate(zip(values, widths)))
+        widths = [
+            max(len(str(col)), *(len(str(r[i])) for r in rows)) for i, col in enumerate(columns)
+        ]
+        line = lambda values: "  ".join(
+            str(v).rjust(w) if i else str(v).ljust(w)
+            for i, (v, w) in enumerate(zip(values, widths))
+        )
         out = [line(columns), line(["-" * w for w in widths])] + [line(r) for r in rows]
         total = sum(self.cases.values())
         out.append(f"\n{total} cases in {seconds:.0f} s ({total / max(seconds, 1e-9):.1f} cases/s)")
         if self.signatures:
             out.append("\ndistinct failures (class, error, last frame): count, reproduction")
-            for (cls, signature), count in self.signatures.most_common():
-                out.append(f"  {count:6d}  {signature}\n          {self.folders.get(signature, '')}")
+            for (_cls, signature), count in self.signatures.most_common():
+                out.append(
+                    f"  {count:6d}  {signature}\n          {self.folders.get(signature, '')}"
+                )
         return "\n".join(out)
 
 
@@ -245,10 +281,17 @@ def _snapshot(rev: str, target: Path) -> str:
     import shutil
     import tarfile
 
-    commit = subprocess.run(["git", "-C", str(ROOT), "rev-parse", "--verify", rev],
-                            capture_output=True, text=True, check=True).stdout.strip()
-    archive = subprocess.run(["git", "-C", str(ROOT), "archive", commit, "checker", "rules"],
-                             capture_output=True, check=True).stdout
+    commit = subprocess.run(
+        ["git", "-C", str(ROOT), "rev-parse", "--verify", rev],
+        capture_output=True,
+        text=True,
+        check=True,
+    ).stdout.strip()
+    archive = subprocess.run(
+        ["git", "-C", str(ROOT), "archive", commit, "checker", "rules"],
+        capture_output=True,
+        check=True,
+    ).stdout
     shutil.rmtree(target, ignore_errors=True)
     target.mkdir(parents=True)
     with tarfile.open(fileobj=io.BytesIO(archive)) as tar:
@@ -264,8 +307,9 @@ def run_parent(args) -> int:
     code = "the working tree"
     if args.snapshot:
         commit = _snapshot(args.snapshot, out / "code")
-        env["PYTHONPATH"] = os.pathsep.join(filter(None, [str(out / "code"),
-                                                         env.get("PYTHONPATH")]))
+        env["PYTHONPATH"] = os.pathsep.join(
+            filter(None, [str(out / "code"), env.get("PYTHONPATH")])
+        )
         code = f"commit {commit[:12]} ({args.snapshot}), unpacked in {out / 'code'}"
     print(f"fuzzing {code}", file=sys.stderr, flush=True)
     kinds = args.kinds.split(",") if args.kinds else list(fz.KINDS)
@@ -274,7 +318,7 @@ def run_parent(args) -> int:
     stop_at = start + args.seconds if args.seconds else float("inf")
     tally = Tally()
     lines = queue.Queue()
-    workers = {}                        # id -> dict(process, kind, left, seed, last, current)
+    workers = {}  # id -> dict(process, kind, left, seed, last, current)
     next_id = [0]
     log = open(out / "workers.log", "a")
     last_print = time.time()
@@ -286,16 +330,40 @@ def run_parent(args) -> int:
         next_id[0] += 1
         current = out / f".current-{wid}.json"
         process = subprocess.Popen(
-            [sys.executable, __file__, "--worker", kind, str(count), str(seed), str(stop_at),
-             str(args.timeout), str(out), str(current), str(args.minimize)],
-            stdout=subprocess.PIPE, stderr=log, text=True, cwd=str(ROOT), env=env)
-        workers[wid] = {"process": process, "kind": kind, "left": count, "seed": seed,
-                        "last": time.time(), "current": current, "cases": 0}
+            [
+                sys.executable,
+                __file__,
+                "--worker",
+                kind,
+                str(count),
+                str(seed),
+                str(stop_at),
+                str(args.timeout),
+                str(out),
+                str(current),
+                str(args.minimize),
+            ],
+            stdout=subprocess.PIPE,
+            stderr=log,
+            text=True,
+            cwd=str(ROOT),
+            env=env,
+        )
+        workers[wid] = {
+            "process": process,
+            "kind": kind,
+            "left": count,
+            "seed": seed,
+            "last": time.time(),
+            "current": current,
+            "cases": 0,
+        }
 
         def read():
             for text in process.stdout:
                 lines.put((wid, text))
             lines.put((wid, None))
+
         threading.Thread(target=read, daemon=True).start()
 
     def refill():
@@ -306,11 +374,13 @@ def run_parent(args) -> int:
         worker = workers.pop(wid)
         code = worker["process"].wait()
         if code not in (0, 3) and not killed and not worker["cases"]:
-            crashes[0] += 1            # died before its first case: see workers.log
+            crashes[0] += 1  # died before its first case: see workers.log
             if crashes[0] >= 3:
                 pending.clear()
-                print(f"workers die at start (exit {code}); see {out / 'workers.log'}",
-                      file=sys.stderr)
+                print(
+                    f"workers die at start (exit {code}); see {out / 'workers.log'}",
+                    file=sys.stderr,
+                )
                 return
         if killed:
             tally.add(_hang_record(worker, out))
@@ -322,11 +392,13 @@ def run_parent(args) -> int:
     stopping = []
 
     def interrupted(*_):
-        stopping.append(True)           # Ctrl-C or SIGTERM: stop, and still print the table
+        stopping.append(True)  # Ctrl-C or SIGTERM: stop, and still print the table
         pending.clear()
         for worker in workers.values():
             worker["process"].kill()
+
     import signal
+
     signal.signal(signal.SIGTERM, interrupted)
     signal.signal(signal.SIGINT, interrupted)
 
@@ -353,21 +425,28 @@ def run_parent(args) -> int:
                     worker["cases"] += 1
                 elif record.get("t") == "hello" and record["checker"] not in seen_code:
                     seen_code.add(record["checker"])
-                    print(f"worker {wid} imports checker from {record['checker']}",
-                          file=sys.stderr, flush=True)
+                    print(
+                        f"worker {wid} imports checker from {record['checker']}",
+                        file=sys.stderr,
+                        flush=True,
+                    )
                 elif record.get("t") == "error":
                     print(f"worker {wid}: {record['message']}", file=sys.stderr)
         for wid, worker in list(workers.items()):
             if now - worker["last"] > args.timeout + 60 and worker["process"].poll() is None:
-                worker["process"].kill()       # stuck beyond the thread bound: record a hang
+                worker["process"].kill()  # stuck beyond the thread bound: record a hang
                 finish(wid, killed=True)
         refill()
         if now - last_print > args.progress:
             last_print = now
             done = sum(tally.cases.values())
             failures = sum(sum(c.values()) for c in tally.classes.values())
-            print(f"[{now - start:6.0f} s] {done} cases, {failures} failures, "
-                  f"{len(tally.signatures)} distinct", file=sys.stderr, flush=True)
+            print(
+                f"[{now - start:6.0f} s] {done} cases, {failures} failures, "
+                f"{len(tally.signatures)} distinct",
+                file=sys.stderr,
+                flush=True,
+            )
     text = f"code: {code}\n\n" + tally.table(time.time() - start)
     print(text)
     (out / "table.txt").write_text(text + "\n")
@@ -384,8 +463,12 @@ def _hang_record(worker, out) -> dict:
             fz.save_case(case, folder, None, "the worker stopped answering on this case")
     except (OSError, ValueError, KeyError):
         folder = None
-    return {"kind": worker["kind"], "code": None, "elapsed": None,
-            "failures": [["hang", signature, str(folder) if folder else ""]]}
+    return {
+        "kind": worker["kind"],
+        "code": None,
+        "elapsed": None,
+        "failures": [["hang", signature, str(folder) if folder else ""]],
+    }
 
 
 def replay(folder, timeout) -> int:
@@ -407,30 +490,55 @@ def replay(folder, timeout) -> int:
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     parser.add_argument("--cases", type=int, default=100_000, help="cases in all (default 100000)")
-    parser.add_argument("--seconds", type=float, default=0,
-                        help="time budget; stop dispatching and end batches after it (0: none)")
+    parser.add_argument(
+        "--seconds",
+        type=float,
+        default=0,
+        help="time budget; stop dispatching and end batches after it (0: none)",
+    )
     parser.add_argument("--jobs", type=int, default=1, help="worker processes (default 1)")
     parser.add_argument("--batch", type=int, default=400, help="cases per worker batch")
-    parser.add_argument("--timeout", type=float, default=fz.DEFAULT_TIMEOUT,
-                        help="seconds a case may take before it is a hang (default 20)")
+    parser.add_argument(
+        "--timeout",
+        type=float,
+        default=fz.DEFAULT_TIMEOUT,
+        help="seconds a case may take before it is a hang (default 20)",
+    )
     parser.add_argument("--seed", type=int, default=1, help="seed of the whole run")
     parser.add_argument("--kinds", default="", help=f"comma-separated subset of {fz.KINDS}")
-    parser.add_argument("--out", default=os.path.join(tempfile.gettempdir(), "regimecheck-fuzz"),
-                        help="folder for reproductions (default: regimecheck-fuzz in the "
-                             "temporary folder)")
-    parser.add_argument("--minimize", type=int, default=300,
-                        help="runs spent shrinking each new failure (0: keep it as found)")
+    parser.add_argument(
+        "--out",
+        default=os.path.join(tempfile.gettempdir(), "regimecheck-fuzz"),
+        help="folder for reproductions (default: regimecheck-fuzz in the temporary folder)",
+    )
+    parser.add_argument(
+        "--minimize",
+        type=int,
+        default=300,
+        help="runs spent shrinking each new failure (0: keep it as found)",
+    )
     parser.add_argument("--progress", type=float, default=60, help="seconds between progress lines")
-    parser.add_argument("--snapshot", metavar="REV",
-                        help="fuzz the package as committed at REV (e.g. HEAD), unpacked "
-                             "under --out, instead of the working tree")
+    parser.add_argument(
+        "--snapshot",
+        metavar="REV",
+        help="fuzz the package as committed at REV (e.g. HEAD), unpacked "
+        "under --out, instead of the working tree",
+    )
     parser.add_argument("--replay", metavar="FOLDER", help="re-run saved reproductions")
     parser.add_argument("--worker", nargs=8, help=argparse.SUPPRESS)
     args = parser.parse_args(argv)
     if args.worker:
         kind, count, seed, stop_at, timeout, out, current, minimize_runs = args.worker
-        return run_worker(kind, int(count), int(seed), float(stop_at), float(timeout), out,
-                          current, int(minimize_runs))
+        return run_worker(
+            kind,
+            int(count),
+            int(seed),
+            float(stop_at),
+            float(timeout),
+            out,
+            current,
+            int(minimize_runs),
+        )
     if args.replay:
         return replay(args.replay, args.timeout)
     return run_parent(args)

@@ -2,7 +2,7 @@ import sys
 
 try:
     from .cli import main
-except KeyboardInterrupt:            # Ctrl-C while the command is still starting
+except KeyboardInterrupt:  # Ctrl-C while the command is still starting
     print("regimecheck: interrupted", file=sys.stderr)
     sys.exit(130)
 

@@ -2,14 +2,15 @@
 
 Densities are m^-3 and temperatures K (multiply cm^-3 values by ``PER_CM3``).
 """
+
 from __future__ import annotations
 
 from .inputs.material_catalog import builtin_names, missing_parameters, resolve_material
 from .physics import carriers, equilibrium
 from .physics.materials import Material
 
-PER_CM3 = 1e6           # cm^-3 -> m^-3
-CM2_PER_VS = 1e-4       # cm^2/(V s) -> m^2/(V s)
+PER_CM3 = 1e6  # cm^-3 -> m^-3
+CM2_PER_VS = 1e-4  # cm^2/(V s) -> m^2/(V s)
 
 
 def load_material(material) -> Material:
@@ -21,8 +22,9 @@ def builtin_materials() -> list[str]:
     return builtin_names()
 
 
-def solve_equilibrium(material, temperature, donors=None, acceptors=None,
-                      band_gap_narrowing=False) -> equilibrium.State:
+def solve_equilibrium(
+    material, temperature, donors=None, acceptors=None, band_gap_narrowing=False
+) -> equilibrium.State:
     """Solve charge neutrality with Fermi–Dirac statistics at every point.
 
     ``temperature`` in K; ``donors`` / ``acceptors`` map species names to
@@ -30,8 +32,13 @@ def solve_equilibrium(material, temperature, donors=None, acceptors=None,
     :class:`checker.physics.equilibrium.State` (eta_n, eta_p, n, p, ionized
     densities, n_i, E_g, N_c, N_v, metallic flags, residual).
     """
-    return equilibrium.solve(load_material(material), temperature, donors, acceptors,
-                             band_gap_narrowing=band_gap_narrowing)
+    return equilibrium.solve(
+        load_material(material),
+        temperature,
+        donors,
+        acceptors,
+        band_gap_narrowing=band_gap_narrowing,
+    )
 
 
 def carrier_transport(state: equilibrium.State, dimension=3, mobility_model=None):
@@ -63,6 +70,15 @@ def state_summary(state: equilibrium.State, index=()):
     return {"material": state.material.name, **trade_summary(state_values(state), index)}
 
 
-__all__ = ["CM2_PER_VS", "PER_CM3", "builtin_materials", "carrier_transport", "check_paths",
-           "load_material",
-           "missing_parameters", "regime_label", "solve_equilibrium", "state_summary"]
+__all__ = [
+    "CM2_PER_VS",
+    "PER_CM3",
+    "builtin_materials",
+    "carrier_transport",
+    "check_paths",
+    "load_material",
+    "missing_parameters",
+    "regime_label",
+    "solve_equilibrium",
+    "state_summary",
+]

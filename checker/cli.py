@@ -5,6 +5,7 @@ rules, explain ID, symbols, state (solve only), materials, map and curve (plots)
 Exit codes: 0 no finding at or above the fail level, 1 findings, 2 unusable
 input or usage, 3 internal error.  Bad input never shows a traceback.
 """
+
 from __future__ import annotations
 
 import argparse
@@ -16,8 +17,8 @@ from .errors import RegimecheckError
 from .vocabulary_words import SEVERITIES
 
 EXIT_OK, EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
-EXIT_BROKEN_PIPE = 141                 # 128 + SIGPIPE, as a shell reports it
-EXIT_INTERRUPTED = 130                 # 128 + SIGINT
+EXIT_BROKEN_PIPE = 141  # 128 + SIGPIPE, as a shell reports it
+EXIT_INTERRUPTED = 130  # 128 + SIGINT
 
 
 class _Parser(argparse.ArgumentParser):
@@ -38,24 +39,31 @@ class _Version(argparse.Action):
 
         try:
             number = version("regimecheck")
-        except PackageNotFoundError:    # run from a source tree that is not installed
+        except PackageNotFoundError:  # run from a source tree that is not installed
             from . import __version__ as number
         print(f"regimecheck {number}")
         parser.exit()
 
 
 def _parser() -> argparse.ArgumentParser:
-    parser = _Parser(prog="regimecheck",
-                     description="Solve and check semiconductor operating points.")
+    parser = _Parser(
+        prog="regimecheck", description="Solve and check semiconductor operating points."
+    )
     parser.add_argument("--version", action=_Version)
     sub = parser.add_subparsers(dest="command", required=True)
     check = sub.add_parser("check", help="check calculation files (files or directories)")
-    check.add_argument("paths", nargs="+",
-                       help="calculation files (.yaml), memos (.md), tables (.csv), directories")
-    check.add_argument("--skip-unrelated", action="store_true",
-                       help="skip named files that hold no calculation (memos without a "
-                            "regimecheck block, other YAML), as a directory walk does; for "
-                            "pre-commit hooks")
+    check.add_argument(
+        "paths",
+        nargs="+",
+        help="calculation files (.yaml), memos (.md), tables (.csv), directories",
+    )
+    check.add_argument(
+        "--skip-unrelated",
+        action="store_true",
+        help="skip named files that hold no calculation (memos without a "
+        "regimecheck block, other YAML), as a directory walk does; for "
+        "pre-commit hooks",
+    )
     _report_options(check)
     state = sub.add_parser("state", help="solve every calculation in YAML files")
     state.add_argument("paths", nargs="+", help="calculation files (.yaml)")
@@ -63,40 +71,77 @@ def _parser() -> argparse.ArgumentParser:
     point = sub.add_parser("point", help="solve one operating point given on the command line")
     point.add_argument("--material", required=True, help="built-in material, e.g. Si, GaAs, 4H-SiC")
     point.add_argument("--temperature", required=True, help="e.g. 300K or 27degC")
-    point.add_argument("--donor", action="append", default=[], metavar="SPECIES=DENSITY",
-                       help="e.g. P=1e17cm-3 (repeatable)")
-    point.add_argument("--acceptor", action="append", default=[], metavar="SPECIES=DENSITY",
-                       help="e.g. B=1e15cm-3 (repeatable)")
+    point.add_argument(
+        "--donor",
+        action="append",
+        default=[],
+        metavar="SPECIES=DENSITY",
+        help="e.g. P=1e17cm-3 (repeatable)",
+    )
+    point.add_argument(
+        "--acceptor",
+        action="append",
+        default=[],
+        metavar="SPECIES=DENSITY",
+        help="e.g. B=1e15cm-3 (repeatable)",
+    )
     point.add_argument("--narrowing", action="store_true", help="apply band-gap narrowing")
     point.add_argument("--dimensionality", type=int, choices=(1, 2, 3), default=3)
-    point.add_argument("--field", help="applied field, e.g. 20kV/cm (checks the low-field shortcut)")
-    point.add_argument("--length", help="conductor length, e.g. 100nm (checks the diffusive shortcut)")
+    point.add_argument(
+        "--field", help="applied field, e.g. 20kV/cm (checks the low-field shortcut)"
+    )
+    point.add_argument(
+        "--length", help="conductor length, e.g. 100nm (checks the diffusive shortcut)"
+    )
     _report_options(point)
-    regime = sub.add_parser("map", help="regime map of a material and dopant over doping and "
-                                        "temperature, with checked points (PNG or SVG)")
+    regime = sub.add_parser(
+        "map",
+        help="regime map of a material and dopant over doping and "
+        "temperature, with checked points (PNG or SVG)",
+    )
     regime.add_argument("paths", nargs="*", help="calculation files whose points are drawn")
     regime.add_argument("--material", help="built-in material (default: the files')")
     regime.add_argument("--dopant", help="dopant species, e.g. P (default: the files')")
-    regime.add_argument("--doping-range", default="1e13:1e21", metavar="FROM:TO",
-                        help="dopant density range in cm^-3 (default 1e13:1e21)")
-    regime.add_argument("--temperature-range", default="20:700", metavar="FROM:TO",
-                        help="temperature range in K (default 20:700)")
-    regime.add_argument("--resolution", type=int, default=200,
-                        help="grid points along each axis (default 200)")
+    regime.add_argument(
+        "--doping-range",
+        default="1e13:1e21",
+        metavar="FROM:TO",
+        help="dopant density range in cm^-3 (default 1e13:1e21)",
+    )
+    regime.add_argument(
+        "--temperature-range",
+        default="20:700",
+        metavar="FROM:TO",
+        help="temperature range in K (default 20:700)",
+    )
+    regime.add_argument(
+        "--resolution", type=int, default=200, help="grid points along each axis (default 200)"
+    )
     regime.add_argument("--output", required=True, metavar="FILE", help="a .png or .svg file")
-    curve = sub.add_parser("curve", help="η of the majority carrier vs temperature at one "
-                                         "doping, with the regimes marked (PNG or SVG)")
+    curve = sub.add_parser(
+        "curve",
+        help="η of the majority carrier vs temperature at one "
+        "doping, with the regimes marked (PNG or SVG)",
+    )
     curve.add_argument("--material", required=True)
-    curve.add_argument("--doping", required=True, metavar="SPECIES=DENSITY",
-                       help="e.g. P=1e17cm-3")
-    curve.add_argument("--temperature-range", default="20:700", metavar="FROM:TO",
-                       help="temperature range in K (default 20:700)")
+    curve.add_argument("--doping", required=True, metavar="SPECIES=DENSITY", help="e.g. P=1e17cm-3")
+    curve.add_argument(
+        "--temperature-range",
+        default="20:700",
+        metavar="FROM:TO",
+        help="temperature range in K (default 20:700)",
+    )
     curve.add_argument("--output", required=True, metavar="FILE", help="a .png or .svg file")
     sub.add_parser("materials", help="list the built-in materials and their dopants")
     sub.add_parser("rules", help="list the checks")
     symbols = sub.add_parser("symbols", help="the trade symbols a stated formula may use")
-    symbols.add_argument("--dimensionality", type=int, choices=(1, 2, 3), default=3,
-                         help="dimensionality the units are shown for (default 3)")
+    symbols.add_argument(
+        "--dimensionality",
+        type=int,
+        choices=(1, 2, 3),
+        default=3,
+        help="dimensionality the units are shown for (default 3)",
+    )
     explain = sub.add_parser("explain", help="what a check tests, why, and how to fix it")
     explain.add_argument("rule", help="a rule id, e.g. STAT02")
     return parser
@@ -106,23 +151,40 @@ FORMATS = ("console", "json", "markdown", "sarif", "junit", "html")
 
 
 def _report_options(command):
-    command.add_argument("--format", choices=FORMATS, default=None,
-                         help="console (default), json, markdown (to paste under a memo), "
-                              "sarif (SARIF 2.1.0), junit (JUnit XML), html (a self-contained "
-                              "review report with regime maps); with --output and no "
-                              "--format, the file's suffix chooses (.json .md .sarif .xml "
-                              ".html .txt)")
-    command.add_argument("--output", metavar="FILE",
-                         help="write the report to FILE (UTF-8) instead of the terminal; "
-                              "never over an input, and only once the report is complete")
-    command.add_argument("--fail-on", choices=SEVERITIES, default=None,
-                         help="lowest severity that makes the exit code 1 (default: the "
-                              "configuration's fail-level, else warning)")
-    command.add_argument("--config", metavar="FILE",
-                         help="TOML settings file (default: [tool.regimecheck] of the first "
-                              "pyproject.toml from here upward)")
-    command.add_argument("--exit-zero", action="store_true",
-                         help="exit 0 even when there are findings (input errors still exit 2)")
+    command.add_argument(
+        "--format",
+        choices=FORMATS,
+        default=None,
+        help="console (default), json, markdown (to paste under a memo), "
+        "sarif (SARIF 2.1.0), junit (JUnit XML), html (a self-contained "
+        "review report with regime maps); with --output and no "
+        "--format, the file's suffix chooses (.json .md .sarif .xml "
+        ".html .txt)",
+    )
+    command.add_argument(
+        "--output",
+        metavar="FILE",
+        help="write the report to FILE (UTF-8) instead of the terminal; "
+        "never over an input, and only once the report is complete",
+    )
+    command.add_argument(
+        "--fail-on",
+        choices=SEVERITIES,
+        default=None,
+        help="lowest severity that makes the exit code 1 (default: the "
+        "configuration's fail-level, else warning)",
+    )
+    command.add_argument(
+        "--config",
+        metavar="FILE",
+        help="TOML settings file (default: [tool.regimecheck] of the first "
+        "pyproject.toml from here upward)",
+    )
+    command.add_argument(
+        "--exit-zero",
+        action="store_true",
+        help="exit 0 even when there are findings (input errors still exit 2)",
+    )
 
 
 def _quantity(text, dimension, option):
@@ -143,8 +205,10 @@ def _pairs(items, what):
             raise RegimecheckError(f"--{what} {item!r}: write SPECIES=DENSITY, e.g. P=1e17cm-3")
         species = species.strip()
         if species in out:
-            raise RegimecheckError(f"--{what} {item!r}: {species} is given twice; give each "
-                                   "species once (add the densities if both are meant)")
+            raise RegimecheckError(
+                f"--{what} {item!r}: {species} is given twice; give each "
+                "species once (add the densities if both are meant)"
+            )
         out[species] = _quantity(density, "density", f"--{what} {species}")
     return out
 
@@ -176,22 +240,28 @@ def _exit_code(result, args) -> int:
 def _render(result, code, args) -> str:
     if args.format == "json":
         from .report.check_report import render_json
+
         return render_json(result, code)
     if args.format == "markdown":
         from .report.markdown_report import render_markdown
+
         return render_markdown(result, code)
     if args.format == "sarif":
         from .report.ci_formats import render_sarif
+
         return render_sarif(result, code)
     if args.format == "junit":
         from .report.ci_formats import render_junit
+
         return render_junit(result, code, args.fail_on or "warning")
     if args.format == "html":
         from .report.html_report import render_html
+
         return render_html(result, code)
     import io
 
     from .report.check_report import render_console
+
     stream = io.StringIO()
     render_console(result, stream=stream)
     return stream.getvalue()
@@ -217,7 +287,7 @@ def _report(result, args, config) -> int:
         from .report.output_file import refuse_inputs, write_atomically
 
         refuse_inputs(output, _protected(config, result))
-        text = _render(result, code, args).rstrip("\n") + "\n"     # complete before writing
+        text = _render(result, code, args).rstrip("\n") + "\n"  # complete before writing
         write_atomically(output, text.encode("utf-8", errors="backslashreplace"))
         print(visible(f"{summary_line(result)} Report: {output}"), file=sys.stderr)
     elif args.format != "console":
@@ -252,8 +322,9 @@ def _cmd_check(args) -> int:
 
     config = _settings(args)
     with _sweep_progress() as progress:
-        result = check_paths(args.paths, config=config, skip_unrelated=args.skip_unrelated,
-                             progress=progress)
+        result = check_paths(
+            args.paths, config=config, skip_unrelated=args.skip_unrelated, progress=progress
+        )
     return _report(result, args, config)
 
 
@@ -297,8 +368,12 @@ def _cmd_point(args) -> int:
     from .inputs.quantities import check_plausible, parse_temperature
 
     material = resolve_material(args.material)
-    T = check_plausible(parse_temperature(args.temperature, "--temperature"), "temperature",
-                        args.temperature, "--temperature")
+    T = check_plausible(
+        parse_temperature(args.temperature, "--temperature"),
+        "temperature",
+        args.temperature,
+        "--temperature",
+    )
     donors, acceptors = _pairs(args.donor, "donor"), _pairs(args.acceptor, "acceptor")
     for species in list(donors) + list(acceptors):
         material.dopant(species)
@@ -307,18 +382,27 @@ def _cmd_point(args) -> int:
         structure["field"] = _quantity(args.field, "field", "--field")
     if args.length:
         structure["L"] = _quantity(args.length, "length", "--length")
-    calc = Calculation(name=f"{material.name} at {T:.2f} K", source="(command line)", line=0,
-                       material=material, temperature=T, donors=donors, acceptors=acceptors,
-                       band_gap_narrowing=args.narrowing, structure=structure,
-                       assumes={word: 0 for word in ASSUMPTIONS})
+    calc = Calculation(
+        name=f"{material.name} at {T:.2f} K",
+        source="(command line)",
+        line=0,
+        material=material,
+        temperature=T,
+        donors=donors,
+        acceptors=acceptors,
+        band_gap_narrowing=args.narrowing,
+        structure=structure,
+        assumes={word: 0 for word in ASSUMPTIONS},
+    )
     from .engine.regime.rulebook import configured, load_rules
     from .inputs.config import check_rule_ids
 
     config = _settings(args)
     rules = load_rules()
     check_rule_ids(config, rules)
-    return _report(check_calculations([calc], configured(rules, config), config=config), args,
-                   config)
+    return _report(
+        check_calculations([calc], configured(rules, config), config=config), args, config
+    )
 
 
 def _cmd_rules(_args) -> int:
@@ -336,9 +420,11 @@ def _cmd_symbols(args) -> int:
     print(f"{'symbol':11s} {'unit (SI)':20s} meaning  [accepted spellings]")
     for name, unit, meaning, spellings in rows:
         print(f"{name:11s} {unit:20s} {meaning}  [{spellings}]")
-    print(f"\nfunctions: {', '.join(FORMULA_FUNCTIONS)}; F(j, eta) is the normalized "
-          "Fermi–Dirac integral of order j.\nWrite each formula as '<left> = <right>' with "
-          "* / + - and ^ or ** for powers; numbers are dimensionless.")
+    print(
+        f"\nfunctions: {', '.join(FORMULA_FUNCTIONS)}; F(j, eta) is the normalized "
+        "Fermi–Dirac integral of order j.\nWrite each formula as '<left> = <right>' with "
+        "* / + - and ^ or ** for powers; numbers are dimensionless."
+    )
     return EXIT_OK
 
 
@@ -369,15 +455,21 @@ def _cmd_state(args) -> int:
         errors.extend(result.errors)
         for calc in result.calculations:
             try:
-                summary = _solve_point(calc.material, calc.temperature, calc.donors,
-                                       calc.acceptors, calc.band_gap_narrowing)
+                summary = _solve_point(
+                    calc.material,
+                    calc.temperature,
+                    calc.donors,
+                    calc.acceptors,
+                    calc.band_gap_narrowing,
+                )
             except RegimecheckError as exc:
                 errors.append(f"{calc.source}:{calc.line}: {exc}")
                 continue
-            subtitle = (f"{calc.source}:{calc.line} - {calc.material.name}, "
-                        f"{calc.temperature:.2f} K, {doping_text(calc.donors, calc.acceptors)}"
-                        + (" (the first point of a sweep; `check` covers the grid)"
-                           if calc.sweep else ""))
+            subtitle = (
+                f"{calc.source}:{calc.line} - {calc.material.name}, "
+                f"{calc.temperature:.2f} K, {doping_text(calc.donors, calc.acceptors)}"
+                + (" (the first point of a sweep; `check` covers the grid)" if calc.sweep else "")
+            )
             entries.append((calc.name, subtitle, summary))
     if args.format == "json":
         print(render_json(entries, errors))
@@ -390,8 +482,7 @@ def _range(text, option, low, high):
     try:
         first, last = (float(part) for part in text.split(":"))
     except ValueError:
-        raise RegimecheckError(f"{option} {text!r}: write FROM:TO, e.g. "
-                               f"{low:g}:{high:g}") from None
+        raise RegimecheckError(f"{option} {text!r}: write FROM:TO, e.g. {low:g}:{high:g}") from None
     if not (low <= first < last <= high):
         raise RegimecheckError(f"{option} {text!r}: needs {low:g} <= FROM < TO <= {high:g}")
     return first, last
@@ -435,8 +526,7 @@ def _cmd_map(args) -> int:
         groups, errors = map_groups(result), result.input_errors
     if args.material:
         material = resolve_material(args.material)
-        species = args.dopant or next((sp for (name, sp) in groups if name == material.name),
-                                      None)
+        species = args.dopant or next((sp for (name, sp) in groups if name == material.name), None)
         if species is None:
             raise RegimecheckError("--dopant is needed (e.g. --dopant P)")
         material.dopant(species)
@@ -444,16 +534,19 @@ def _cmd_map(args) -> int:
         (name, species), (material, _) = next(iter(groups.items()))
     elif groups:
         listed = ", ".join(f"{name} {sp}" for name, sp in groups)
-        raise RegimecheckError(f"the files hold several materials and dopants ({listed}); "
-                               "choose one with --material and --dopant")
+        raise RegimecheckError(
+            f"the files hold several materials and dopants ({listed}); "
+            "choose one with --material and --dopant"
+        )
     elif result is not None and result.reports:
-        raise RegimecheckError("no calculation of the files is doped, so none has a place on "
-                               "a doping axis; give --material and --dopant")
+        raise RegimecheckError(
+            "no calculation of the files is doped, so none has a place on "
+            "a doping axis; give --material and --dopant"
+        )
     else:
         raise RegimecheckError("give --material and --dopant, or calculation files")
     points = groups.get((material.name, species), (None, []))[1]
-    grid = regime_grid(material, species, doping, temperatures,
-                       (args.resolution, args.resolution))
+    grid = regime_grid(material, species, doping, temperatures, (args.resolution, args.resolution))
     _save(draw_map(grid, points), args.output, config, result)
     for message in errors:
         print(visible(f"input error: {message}"), file=sys.stderr)
@@ -469,7 +562,7 @@ def _cmd_curve(args) -> int:
 
     _plot_format(args.output)
     material = resolve_material(args.material)
-    (species, density), = _pairs([args.doping], "doping").items()
+    ((species, density),) = _pairs([args.doping], "doping").items()
     material.dopant(species)
     first, last = _range(args.temperature_range, "--temperature-range", 1.0, 3000.0)
     curve = eta_curve(material, species, density, np.linspace(first, last, 400))
@@ -482,8 +575,10 @@ def _cmd_materials(_args) -> int:
 
     for name in builtin_names():
         material = builtin_material(name)
-        dopants = ", ".join(f"{k} ({d.kind[0]}, {d.energy / 1.602176634e-22:.0f} meV)"
-                            for k, d in material.dopants.items())
+        dopants = ", ".join(
+            f"{k} ({d.kind[0]}, {d.energy / 1.602176634e-22:.0f} meV)"
+            for k, d in material.dopants.items()
+        )
         print(f"{name:8s} {material.long_name}: {dopants}")
     return EXIT_OK
 
@@ -491,8 +586,8 @@ def _cmd_materials(_args) -> int:
 def main(argv=None) -> int:
     import warnings
 
-    for stream in (sys.stdout, sys.stderr):     # a character the terminal cannot show
-        if hasattr(stream, "reconfigure"):      # is written as an escape, never a crash
+    for stream in (sys.stdout, sys.stderr):  # a character the terminal cannot show
+        if hasattr(stream, "reconfigure"):  # is written as an escape, never a crash
             stream.reconfigure(errors="backslashreplace")
     with warnings.catch_warnings():
         if not os.environ.get("REGIMECHECK_DEBUG"):
@@ -508,14 +603,21 @@ def _run(argv) -> int:
     try:
         args = _parser().parse_args(argv)
         _choose_format(args)
-        handler = {"check": _cmd_check, "point": _cmd_point, "state": _cmd_state,
-                   "materials": _cmd_materials, "rules": _cmd_rules, "symbols": _cmd_symbols,
-                   "map": _cmd_map, "curve": _cmd_curve,
-                   "explain": _cmd_explain}[args.command]
+        handler = {
+            "check": _cmd_check,
+            "point": _cmd_point,
+            "state": _cmd_state,
+            "materials": _cmd_materials,
+            "rules": _cmd_rules,
+            "symbols": _cmd_symbols,
+            "map": _cmd_map,
+            "curve": _cmd_curve,
+            "explain": _cmd_explain,
+        }[args.command]
         code = handler(args)
-        sys.stdout.flush()          # a closed pipe shows here, not at interpreter exit
+        sys.stdout.flush()  # a closed pipe shows here, not at interpreter exit
         return code
-    except SystemExit as exc:       # argparse: --help, --version, usage errors
+    except SystemExit as exc:  # argparse: --help, --version, usage errors
         return exc.code or 0
     except KeyboardInterrupt:
         print("regimecheck: interrupted", file=sys.stderr)
@@ -530,9 +632,13 @@ def _run(argv) -> int:
     except Exception as exc:  # a bug of ours, not the user's input
         if os.environ.get("REGIMECHECK_DEBUG"):
             raise
-        print(visible(f"regimecheck: internal error ({type(exc).__name__}: {exc}); please "
-                      "report it. Set REGIMECHECK_DEBUG=1 to see the traceback."),
-              file=sys.stderr)
+        print(
+            visible(
+                f"regimecheck: internal error ({type(exc).__name__}: {exc}); please "
+                "report it. Set REGIMECHECK_DEBUG=1 to see the traceback."
+            ),
+            file=sys.stderr,
+        )
         return EXIT_INTERNAL
 
 

@@ -6,6 +6,7 @@ repository root on ``sys.path``, e.g. ``python -m checker`` there after a plain
 ``pip install .``, whose installed copy the local ``checker/`` folder shadows), the
 rule files are the ``rules/`` folder beside the package.
 """
+
 from __future__ import annotations
 
 from importlib import resources

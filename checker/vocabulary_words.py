@@ -11,11 +11,27 @@ materials and their models just to know a word list):
   the configuration's fail level, the reports' ranking and colours).
 """
 
-ASSUMPTIONS = ("non-degenerate", "full-ionization", "no-compensation", "single-carrier",
-               "extrinsic", "einstein-relation", "diffusive", "low-field")
+ASSUMPTIONS = (
+    "non-degenerate",
+    "full-ionization",
+    "no-compensation",
+    "single-carrier",
+    "extrinsic",
+    "einstein-relation",
+    "diffusive",
+    "low-field",
+)
 
-TOLERANCE_NAMES = ("resistivity", "hall_density", "diffusivity", "mobility", "carrier_density",
-                   "drift_velocity", "mean_free_path", "resistance")
+TOLERANCE_NAMES = (
+    "resistivity",
+    "hall_density",
+    "diffusivity",
+    "mobility",
+    "carrier_density",
+    "drift_velocity",
+    "mean_free_path",
+    "resistance",
+)
 
 SEVERITIES = ("info", "warning", "error")
 SEVERITY_RANK = {word: rank for rank, word in enumerate(SEVERITIES)}

@@ -1,5 +1,6 @@
 """Shared helpers for the tests.  References are computed here with mpmath or
 taken from published tables; never from the code under test."""
+
 import mpmath as mp
 import pytest
 
@@ -9,8 +10,9 @@ PER_CM3 = 1e6
 def pytest_configure(config):
     # still run by default (the CI command is plain `python -m pytest`); `-m "not slow"`
     # leaves them out for a quick local run
-    config.addinivalue_line("markers", "slow: recomputes mpmath references (seconds); "
-                            "run by default")
+    config.addinivalue_line(
+        "markers", "slow: recomputes mpmath references (seconds); run by default"
+    )
 
 
 @pytest.fixture(scope="session")
@@ -58,4 +60,5 @@ def _taylor_at_zero(j, eta):
 @pytest.fixture(scope="session")
 def silicon():
     from checker import load_material
+
     return load_material("Si")

@@ -1,5 +1,6 @@
 """Independent reference computations for the tests (multiple precision, written
 out from the published formulas; they share no code with the package)."""
+
 import mpmath as mp
 import scipy.constants as sc
 
@@ -37,8 +38,9 @@ def ionized_fraction(dopant, eta_band, kT, same_type_total):
     total = mp.mpf(0)
     for level in dopant.bound_levels():
         E = _lowered_energy(dopant, mp.mpf(level.energy), N)
-        total += mp.mpf(level.share) * (1 - b + b / (1 + mp.mpf(level.degeneracy)
-                                                   * mp.exp(eta_band + E / kT)))
+        total += mp.mpf(level.share) * (
+            1 - b + b / (1 + mp.mpf(level.degeneracy) * mp.exp(eta_band + E / kT))
+        )
     return total
 
 

@@ -12,6 +12,7 @@ at T and every dopant parameter of the statistics); where a material's data have
 since the file was written, the reference is recomputed with mpmath during the test and
 a warning asks for the file to be regenerated.
 """
+
 from __future__ import annotations
 
 import dataclasses
@@ -23,12 +24,13 @@ from pathlib import Path
 
 import mpmath as mp
 import numpy as np
-
 from conftest import fd_reference
 from reference import mp_fermi_half, reference_solve
 
 PATH = Path(__file__).resolve().parent / "data" / "reference_values.json"
-REGENERATE = "run `python tools/make_reference_values.py` and commit tests/data/reference_values.json"
+REGENERATE = (
+    "run `python tools/make_reference_values.py` and commit tests/data/reference_values.json"
+)
 PER_CM3 = 1e6
 
 FD_ORDERS = [-1.5, -1, -0.5, 0, 0.5, 1, 1.5, 2, 2.5, 3, 3.5]
@@ -104,12 +106,18 @@ def _numbers(obj) -> list:
 def material_inputs(material, T, species) -> dict:
     """The material numbers the reference solve reads: E_g, N_c, N_v at T and, per
     species, its levels, lowering and band-tail share (the data, not the statistics)."""
-    out = {"Eg": float(material.band_gap(T)), "Nc": float(material.Nc(T)),
-           "Nv": float(material.Nv(T))}
+    out = {
+        "Eg": float(material.band_gap(T)),
+        "Nc": float(material.Nc(T)),
+        "Nv": float(material.Nv(T)),
+    }
     for name in sorted(species):
         dopant = material.dopant(name)
-        out[name] = _numbers(dopant.bound_levels()) + _numbers(dopant.lowering) \
+        out[name] = (
+            _numbers(dopant.bound_levels())
+            + _numbers(dopant.lowering)
             + _numbers(dopant.share_model())
+        )
     return out
 
 
@@ -145,6 +153,9 @@ def equilibrium_entry(material, name, T, donors, acceptors) -> dict:
     now = material_inputs(material, float(T), {**donors, **acceptors})
     if entry is not None and entry["material"] == now:
         return entry
-    warnings.warn(f"reference for {key} {'missing' if entry is None else 'out of date'} "
-                  f"(computed afresh): {REGENERATE}", stacklevel=2)
+    warnings.warn(
+        f"reference for {key} {'missing' if entry is None else 'out of date'} "
+        f"(computed afresh): {REGENERATE}",
+        stacklevel=2,
+    )
     return equilibrium_value(material, T, donors, acceptors)

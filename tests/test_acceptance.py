@@ -12,6 +12,7 @@ The stated numbers themselves are checked against the published equations writte
 Green, Green, CODATA kT/q from scipy.constants): never against the package.
 ``bench/bench_acceptance.py`` prints the counts per group.
 """
+
 import functools
 import json
 import math
@@ -35,8 +36,19 @@ def run_suite(output):
     from checker.cli import main
 
     files = sorted({str(HERE / case["file"]) for case in INDEX})
-    code = main(["check", *files, "--format", "json", "--output", str(output),
-                 "--config", str(SETTINGS), "--exit-zero"])
+    code = main(
+        [
+            "check",
+            *files,
+            "--format",
+            "json",
+            "--output",
+            str(output),
+            "--config",
+            str(SETTINGS),
+            "--exit-zero",
+        ]
+    )
     report = json.loads(Path(output).read_text(encoding="utf-8"))
     report["by_name"] = {calc["name"]: calc for calc in report["calculations"]}
     return code, report
@@ -84,6 +96,7 @@ def test_mistake_draws_its_rule(case, report):
 
 # --------------------------------------------------------------------------- the suite itself
 
+
 @functools.cache
 def _documents():
     """(file name, text of the document, parsed document) of every calculation file."""
@@ -98,7 +111,7 @@ def test_index_and_files_name_the_same_cases():
     docs = {(name, doc["name"]) for name, _, doc in _documents()}
     index = {(case["file"], case["id"]) for case in INDEX}
     assert docs == index
-    assert len(index) == len(INDEX)            # ids are unique
+    assert len(index) == len(INDEX)  # ids are unique
 
 
 def test_suite_has_the_required_cases():
@@ -112,10 +125,11 @@ def test_suite_has_the_required_cases():
 
 def test_each_document_names_its_source_in_a_comment():
     index = {case["id"]: case for case in INDEX}
-    for name, text, doc in _documents():
+    for _name, text, doc in _documents():
         case = index[doc["name"]]
-        comments = " ".join(line.lstrip("#").strip() for line in text.splitlines()
-                            if line.startswith("#"))
+        comments = " ".join(
+            line.lstrip("#").strip() for line in text.splitlines() if line.startswith("#")
+        )
         if case["kind"] == "correct":
             assert "Source:" in comments, doc["name"]
         else:
@@ -127,6 +141,7 @@ def test_each_document_names_its_source_in_a_comment():
 
 # --------------------------------------------------------------------------- stated values
 # Published equations; the parameters are those of the papers, cited beside each.
+
 
 def f723_boron(N, T):
     """ASTM F723 (SEMI MF723) dopant density -> resistivity, boron, 23 degC (Thurber, Mattis,
@@ -140,14 +155,14 @@ def f723_phosphorus(N, T):
     y = math.log10(N) - 16
     c0, c1, c2, c3 = -3.0769, 2.2108, -0.62272, 0.057501
     d1, d2, d3 = -0.68157, 0.19833, -0.018376
-    z = (c0 + c1 * y + c2 * y ** 2 + c3 * y ** 3) / (1 + d1 * y + d2 * y ** 2 + d3 * y ** 3)
-    return 6.242e18 / N * 10 ** z
+    z = (c0 + c1 * y + c2 * y**2 + c3 * y**3) / (1 + d1 * y + d2 * y**2 + d3 * y**3)
+    return 6.242e18 / N * 10**z
 
 
 def _arora(N, T, mu_min, mu0, b2, n_ref):
     """Arora, Hauser & Roulston, IEEE Trans. Electron Devices 29, 292 (1982), eq. (8)."""
     tn = T / 300
-    return mu_min * tn ** -0.57 + mu0 * T ** b2 / (1 + (N / (n_ref * tn ** 2.4)) ** (0.88 * tn ** -0.146))
+    return mu_min * tn**-0.57 + mu0 * T**b2 / (1 + (N / (n_ref * tn**2.4)) ** (0.88 * tn**-0.146))
 
 
 def arora_n(N, T):
@@ -160,19 +175,22 @@ def arora_p(N, T):
 
 def _masetti(N, mu_min1, mu_min2, mu_max, mu1, p_c, c_r, c_s, alpha, beta):
     """Masetti, Severi & Solmi, IEEE Trans. Electron Devices 30, 764 (1983), eq. (1), 300 K."""
-    return (mu_min1 * math.exp(-p_c / N) + (mu_max - mu_min2) / (1 + (N / c_r) ** alpha)
-            - mu1 / (1 + (c_s / N) ** beta))
+    return (
+        mu_min1 * math.exp(-p_c / N)
+        + (mu_max - mu_min2) / (1 + (N / c_r) ** alpha)
+        - mu1 / (1 + (c_s / N) ** beta)
+    )
 
 
-def masetti_P(N, T):      # Table I, phosphorus
+def masetti_P(N, T):  # Table I, phosphorus
     return _masetti(N, 68.5, 68.5, 1414, 56.1, 0, 9.20e16, 3.41e20, 0.711, 1.98)
 
 
-def masetti_As(N, T):     # Table I, arsenic
+def masetti_As(N, T):  # Table I, arsenic
     return _masetti(N, 52.2, 52.2, 1417, 43.4, 0, 9.68e16, 3.43e20, 0.680, 2.0)
 
 
-def masetti_B(N, T):      # Table I, boron
+def masetti_B(N, T):  # Table I, boron
     return _masetti(N, 44.9, 0.0, 470.5, 29.0, 9.23e16, 2.23e17, 6.10e20, 0.719, 2.0)
 
 
@@ -194,11 +212,11 @@ def _canali(E, T, vm, ec, beta):
 
 
 def canali_n(E, T):
-    return _canali(E, T, 1.53e9 * T ** -0.87, 1.01 * T ** 1.55, 2.57e-2 * T ** 0.66)
+    return _canali(E, T, 1.53e9 * T**-0.87, 1.01 * T**1.55, 2.57e-2 * T**0.66)
 
 
 def canali_p(E, T):
-    return _canali(E, T, 1.62e8 * T ** -0.52, 1.24 * T ** 1.68, 0.46 * T ** 0.17)
+    return _canali(E, T, 1.62e8 * T**-0.52, 1.24 * T**1.68, 0.46 * T**0.17)
 
 
 def kT_q(T):
@@ -300,17 +318,20 @@ def _kelvin(text):
 def _operating_point(doc):
     doping = doc.get("doping") or {}
     species = [name for group in ("donors", "acceptors") for name in (doping.get(group) or {})]
-    densities = [_number(v)[0] for group in ("donors", "acceptors")
-                 for v in (doping.get(group) or {}).values()]
-    N = sum(densities) if densities else 1e10          # undoped: the N -> 0 limit of the fits
+    densities = [
+        _number(v)[0]
+        for group in ("donors", "acceptors")
+        for v in (doping.get(group) or {}).values()
+    ]
+    N = sum(densities) if densities else 1e10  # undoped: the N -> 0 limit of the fits
     field = (doc.get("structure") or {}).get("field")
-    E = _number(field)[0] * 1e3 if field else None      # kV/cm -> V/cm
+    E = _number(field)[0] * 1e3 if field else None  # kV/cm -> V/cm
     assert field is None or _number(field)[1] == "kV/cm"
     return N, _kelvin(doc["temperature"]), E, (species[0] if species else None)
 
 
 def _stated(doc):
-    (key, text), = doc["stated"].items()
+    ((key, text),) = doc["stated"].items()
     return _number(text)
 
 
@@ -321,7 +342,7 @@ CASES_WITH_VALUE = [pytest.param(c, id=c["id"]) for c in INDEX if "value" in c]
 def test_stated_value_is_the_published_one(case):
     doc = next(d for _, _, d in _documents() if d["name"] == case["id"])
     value, unit = _stated(doc)
-    assert value == pytest.approx(case["value"], rel=1e-9)      # file and index agree
+    assert value == pytest.approx(case["value"], rel=1e-9)  # file and index agree
     if "reference" not in case:
         return
     expected_unit, published = REFERENCES[case["reference"]]
@@ -337,14 +358,14 @@ def test_published_values_cited_beside_the_equations():
     # Arora et al. (1982): undoped Si electrons at 500 K about 446 cm^2/(V*s) (issue brief)
     assert arora_n(1e10, 500) == pytest.approx(446, rel=5e-3)
     # Arora et al. (1982): mu_0 T^-2.33 = 1252 and 1.36e8 T^-2.23 = 407 at 300 K
-    assert 7.4e8 * 300 ** -2.33 == pytest.approx(1252, rel=1e-3)
-    assert 1.36e8 * 300 ** -2.23 == pytest.approx(407, rel=1e-3)
+    assert 7.4e8 * 300**-2.33 == pytest.approx(1252, rel=1e-3)
+    assert 1.36e8 * 300**-2.23 == pytest.approx(407, rel=1e-3)
     # Misiakos & Tsamakis (1993): tabulated 9.7e9 cm^-3 at 300 K
     assert ni_misiakos(300) == pytest.approx(9.7e9, rel=5e-3)
     # Sproul & Green (1991): 1.00e10 cm^-3 at 300 K
     assert ni_sproul_green(300) == pytest.approx(1.00e10, rel=5e-3)
     # Canali et al. (1975): beta = 1.109 (electrons) and 1.213 (holes) at 300 K (from memory)
-    assert 2.57e-2 * 300 ** 0.66 == pytest.approx(1.109, abs=2e-3)
-    assert 0.46 * 300 ** 0.17 == pytest.approx(1.213, abs=2e-3)
+    assert 2.57e-2 * 300**0.66 == pytest.approx(1.109, abs=2e-3)
+    assert 0.46 * 300**0.17 == pytest.approx(1.213, abs=2e-3)
     # CODATA 2018: kT/q at 300 K = 0.025852 V
     assert kT_q(300) == pytest.approx(0.025852, abs=1e-6)

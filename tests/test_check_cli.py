@@ -1,15 +1,17 @@
 """`regimecheck check` end to end: exit codes, JSON keys, the examples, and every
 class of bad input (file:line message, exit 2, other calculations still checked)."""
+
 import json
 from pathlib import Path
 
 import pytest
-
 from test_cli import BAD_DOCS, ROOT, run
 
 EXAMPLES = ROOT / "examples"
-GOOD = ("name: good one\nmaterial: Si\ntemperature: 300 K\ndoping:\n  donors: {P: 1e16 cm-3}\n"
-        "stated:\n  electron_density: 1e16 cm-3\n")
+GOOD = (
+    "name: good one\nmaterial: Si\ntemperature: 300 K\ndoping:\n  donors: {P: 1e16 cm-3}\n"
+    "stated:\n  electron_density: 1e16 cm-3\n"
+)
 # every file of rules/ is a rule, named by its id (DEVELOPERS.md: the examples fire each)
 ALL_RULES = {p.stem for p in (ROOT / "rules").glob("*.yaml")}
 
@@ -26,8 +28,11 @@ def test_examples_fire_every_rule_and_keep_one_clean(example_report):
     assert code == 1
     fired = {f["rule"] for c in data["calculations"] for f in c["findings"]}
     assert fired == ALL_RULES
-    clean = [c for c in data["calculations"] if c["source"]["file"].endswith(
-        "ls2_reference_resistor.yaml")]
+    clean = [
+        c
+        for c in data["calculations"]
+        if c["source"]["file"].endswith("ls2_reference_resistor.yaml")
+    ]
     assert clean and clean[0]["findings"] == [] and clean[0]["notes"] == []
     files = {c["source"]["file"] for c in data["calculations"]}
     assert len(files) >= 9
@@ -38,32 +43,88 @@ def test_json_keys_are_stable(example_report):
     _, data = example_report
     assert data["format"] == "regimecheck-report/1"
     assert "screening check" in data["notice"].lower()
-    assert set(data["summary"]) == {"calculations", "findings", "input_errors", "worst", "exit_code"}
+    assert set(data["summary"]) == {
+        "calculations",
+        "findings",
+        "input_errors",
+        "worst",
+        "exit_code",
+    }
     assert set(data) == {"format", "notice", "calculations", "input_errors", "notes", "summary"}
     calc = next(c for c in data["calculations"] if c["findings"])
-    assert set(calc) == {"source", "name", "material", "temperature_K", "doping_cm3", "state",
-                         "sweep", "formulas", "findings", "notes", "error"}
+    assert set(calc) == {
+        "source",
+        "name",
+        "material",
+        "temperature_K",
+        "doping_cm3",
+        "state",
+        "sweep",
+        "formulas",
+        "findings",
+        "notes",
+        "error",
+    }
     assert set(calc["source"]) == {"file", "line"}
     finding = calc["findings"][0]
-    assert set(finding) == {"rule", "title", "severity", "assumption", "carrier", "indicator",
-                            "message", "where", "corrections", "waived", "formula", "sweep"}
+    assert set(finding) == {
+        "rule",
+        "title",
+        "severity",
+        "assumption",
+        "carrier",
+        "indicator",
+        "message",
+        "where",
+        "corrections",
+        "waived",
+        "formula",
+        "sweep",
+    }
     assert set(finding["where"]) == {"file", "line", "column"}
-    assert set(finding["indicator"]) == {"label", "value", "threshold", "relation", "unit",
-                                         "source"}
-    corrections = [c for cc in data["calculations"] for f in cc["findings"]
-                   for c in f["corrections"]]
-    assert set(corrections[0]) == {"quantity", "unit", "stated", "corrected", "relative_error",
-                                   "stated_by"}
+    assert set(finding["indicator"]) == {
+        "label",
+        "value",
+        "threshold",
+        "relation",
+        "unit",
+        "source",
+    }
+    corrections = [
+        c for cc in data["calculations"] for f in cc["findings"] for c in f["corrections"]
+    ]
+    assert set(corrections[0]) == {
+        "quantity",
+        "unit",
+        "stated",
+        "corrected",
+        "relative_error",
+        "stated_by",
+    }
     waived = [f for cc in data["calculations"] for f in cc["findings"] if f["waived"]]
     assert waived and data["summary"]["findings"]["waived"] == len(waived)
     formulas = [f for cc in data["calculations"] for f in cc["formulas"]]
     assert formulas, "the examples state formulas"
     for formula in formulas:
-        assert set(formula) == {"formula", "line", "status", "dimensions", "embodies",
-                                "assumptions", "relations", "proof", "at_operating_point"}
+        assert set(formula) == {
+            "formula",
+            "line",
+            "status",
+            "dimensions",
+            "embodies",
+            "assumptions",
+            "relations",
+            "proof",
+            "at_operating_point",
+        }
         assert set(formula["dimensions"]) == {"left", "right", "problem", "likely_fix"}
-        assert set(formula["at_operating_point"]) == {"unit", "formula", "exact", "error",
-                                                      "error_measure"}
+        assert set(formula["at_operating_point"]) == {
+            "unit",
+            "formula",
+            "exact",
+            "error",
+            "error_measure",
+        }
 
 
 def test_exit_codes(tmp_path):
@@ -71,34 +132,42 @@ def test_exit_codes(tmp_path):
     clean.write_text(GOOD)
     assert run("check", str(clean)).returncode == 0
     warn = tmp_path / "warn.yaml"
-    warn.write_text(GOOD.replace("electron_density: 1e16 cm-3",
-                                 "electron_density: 1e16 cm-3\n  thermal_voltage: 0.0345 V"))
+    warn.write_text(
+        GOOD.replace(
+            "electron_density: 1e16 cm-3",
+            "electron_density: 1e16 cm-3\n  thermal_voltage: 0.0345 V",
+        )
+    )
     assert run("check", str(warn)).returncode == 1
     assert run("check", str(warn), "--fail-on", "error").returncode == 0
     assert run("check", str(warn), "--exit-zero").returncode == 0
     info = tmp_path / "info.yaml"
     info.write_text(GOOD.replace("300 K", "200 K").replace("  electron_density: 1e16 cm-3\n", ""))
-    assert run("check", str(info)).returncode == 0            # info is below the default level
+    assert run("check", str(info)).returncode == 0  # info is below the default level
     assert run("check", str(info), "--fail-on", "info").returncode == 1
     assert run("check", str(tmp_path / "missing.yaml")).returncode == 2
-    assert run("check", str(clean), "--fail-on", "loud").returncode == 2   # usage error
+    assert run("check", str(clean), "--fail-on", "loud").returncode == 2  # usage error
 
 
 def test_console_report(tmp_path):
     result = run("check", str(EXAMPLES / "ld310_nwell_resistor.yaml"))
     out = result.stdout
     assert out.count("does not replace qualified device characterization or sign-off") == 1
-    assert "\x1b[" not in out                     # no colour when not a terminal
+    assert "\x1b[" not in out  # no colour when not a terminal
     assert "MOB02" in out and "→" in out and "calculation(s) in 1 file(s) checked" in out
 
 
 EXTRA_BAD = {
     "waiver without reason": (GOOD + "waivers:\n  - {rule: MOB01}\n", "has no reason"),
-    "waiver of unknown rule": (GOOD + "waivers:\n  - {rule: MOB99, reason: not relevant here}\n",
-                               "unknown rule 'MOB99'"),
+    "waiver of unknown rule": (
+        GOOD + "waivers:\n  - {rule: MOB99, reason: not relevant here}\n",
+        "unknown rule 'MOB99'",
+    ),
     "unknown assumption": (GOOD + "assumes: [non-degenrate]\n", "did you mean 'non-degenerate'"),
-    "unknown stated key": (GOOD.replace("electron_density", "electron_densty"),
-                           "did you mean 'electron_density'"),
+    "unknown stated key": (
+        GOOD.replace("electron_density", "electron_densty"),
+        "did you mean 'electron_density'",
+    ),
     "structure plain number": (GOOD + "structure:\n  length: 40\n", "no unit"),
     "absurd temperature": (GOOD.replace("300 K", "3e4 K"), "not a plausible temperature"),
     "absurd density": (GOOD.replace("P: 1e16 cm-3", "P: 1e30 cm-3"), "not a plausible density"),
@@ -107,9 +176,11 @@ EXTRA_BAD = {
 
 
 # `state` shares the reader; rule ids are known only to `check`
-BAD_RUNS = [("check", case) for case in sorted(BAD_DOCS) + sorted(EXTRA_BAD)] + \
-    [("state", case) for case in sorted(BAD_DOCS) + sorted(EXTRA_BAD)
-     if case != "waiver of unknown rule"]
+BAD_RUNS = [("check", case) for case in sorted(BAD_DOCS) + sorted(EXTRA_BAD)] + [
+    ("state", case)
+    for case in sorted(BAD_DOCS) + sorted(EXTRA_BAD)
+    if case != "waiver of unknown rule"
+]
 
 
 @pytest.mark.parametrize("command, case", BAD_RUNS)
@@ -128,8 +199,8 @@ def test_bad_input_is_reported_and_others_still_checked(tmp_path, case, command)
     assert "good one" in [c["name"] for c in listed]
     message = (data["input_errors"] if command == "check" else data["errors"])[0]
     assert expected in message
-    assert message.startswith(f"{bad}:")          # names the file and the line
-    assert bad.read_text() == before              # input never modified
+    assert message.startswith(f"{bad}:")  # names the file and the line
+    assert bad.read_text() == before  # input never modified
 
 
 def test_directory_walk_and_rules_commands(tmp_path):
@@ -156,8 +227,17 @@ def test_explain_unknown_rule():
 
 
 def test_point_reports_regime_warnings():
-    result = run("point", "--material", "Si", "--temperature", "300K", "--donor",
-                 "P=1e19cm-3", "--format", "json")
+    result = run(
+        "point",
+        "--material",
+        "Si",
+        "--temperature",
+        "300K",
+        "--donor",
+        "P=1e19cm-3",
+        "--format",
+        "json",
+    )
     assert result.returncode == 1
     rules = {f["rule"] for f in json.loads(result.stdout)["calculations"][0]["findings"]}
     assert {"STAT01", "STAT02", "DOPE02"} <= rules
@@ -171,7 +251,8 @@ def test_custom_material_without_mobility_still_gets_statistics_checks(tmp_path)
         "  density_of_states: {Nc300: 1e19 cm-3, Nv300: 1e19 cm-3}\n"
         "  permittivity: 10.0\n  dopants: {D1: {kind: donor, energy: 20 meV}}\n"
         "temperature: 300 K\ndoping:\n  donors: {D1: 5e18 cm-3}\n"
-        "assumes: [non-degenerate]\n")
+        "assumes: [non-degenerate]\n"
+    )
     result = run("check", str(path), "--format", "json")
     data = json.loads(result.stdout)
     calc = data["calculations"][0]
@@ -181,8 +262,21 @@ def test_custom_material_without_mobility_still_gets_statistics_checks(tmp_path)
 
 
 def test_point_with_field_and_length():
-    result = run("point", "--material", "Si", "--temperature", "300K", "--donor", "P=1e15cm-3",
-                 "--field", "30kV/cm", "--length", "20nm", "--format", "json")
+    result = run(
+        "point",
+        "--material",
+        "Si",
+        "--temperature",
+        "300K",
+        "--donor",
+        "P=1e15cm-3",
+        "--field",
+        "30kV/cm",
+        "--length",
+        "20nm",
+        "--format",
+        "json",
+    )
     rules = {f["rule"] for f in json.loads(result.stdout)["calculations"][0]["findings"]}
     assert {"TRAN01", "TRAN02"} <= rules
 
@@ -192,11 +286,17 @@ def test_batched_run_equals_one_file_at_a_time(example_report):
     species); the findings must not depend on what else is in the run."""
     _, together = example_report
     key = lambda c: (Path(c["source"]["file"]).name, c["source"]["line"])
-    batched = {key(c): sorted((f["rule"], f["carrier"], round(f["indicator"]["value"] or 0, 9))
-                              for f in c["findings"]) for c in together["calculations"]}
+    batched = {
+        key(c): sorted(
+            (f["rule"], f["carrier"], round(f["indicator"]["value"] or 0, 9)) for f in c["findings"]
+        )
+        for c in together["calculations"]
+    }
     for path in sorted(EXAMPLES.glob("*.yaml")):
         alone = json.loads(run("check", str(path.relative_to(ROOT)), "--format", "json").stdout)
         for c in alone["calculations"]:
-            single = sorted((f["rule"], f["carrier"], round(f["indicator"]["value"] or 0, 9))
-                            for f in c["findings"])
+            single = sorted(
+                (f["rule"], f["carrier"], round(f["indicator"]["value"] or 0, 9))
+                for f in c["findings"]
+            )
             assert batched[key(c)] == single, key(c)

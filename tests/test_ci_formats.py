@@ -7,6 +7,7 @@ justification; invocations with toolExecutionNotifications). JUnit structure per
 common JUnit XML report layout (testsuites > testsuite > testcase with failure /
 skipped / error).
 """
+
 import json
 import subprocess
 import sys
@@ -23,8 +24,13 @@ BAD = "name: broken\nmaterial: Unobtainium\ntemperature: 300 K\n"
 
 
 def run(*args, cwd=None):
-    done = subprocess.run([sys.executable, "-m", "checker.cli", *args], capture_output=True,
-                          text=True, timeout=180, cwd=cwd)
+    done = subprocess.run(
+        [sys.executable, "-m", "checker.cli", *args],
+        capture_output=True,
+        text=True,
+        timeout=180,
+        cwd=cwd,
+    )
     assert "Traceback" not in done.stdout + done.stderr
     return done
 
@@ -41,11 +47,12 @@ def test_sarif_structure(tmp_path, json_report):
     assert done.returncode == 2
     log = json.loads(done.stdout)
     # the OASIS SARIF 2.1.0 schema (tests/data/README.md says where the copy comes from)
-    schema = json.loads((Path(__file__).parent / "data" / "sarif-schema-2.1.0.json")
-                        .read_text(encoding="utf-8"))
+    schema = json.loads(
+        (Path(__file__).parent / "data" / "sarif-schema-2.1.0.json").read_text(encoding="utf-8")
+    )
     jsonschema.Draft7Validator(schema).validate(log)
     assert log["version"] == "2.1.0" and "sarif" in log["$schema"]
-    run_, = log["runs"]
+    (run_,) = log["runs"]
     driver = run_["tool"]["driver"]
     assert driver["name"] == "regimecheck"
     ids = [rule["id"] for rule in driver["rules"]]
@@ -68,9 +75,9 @@ def test_sarif_structure(tmp_path, json_report):
             assert result["suppressions"][0]["justification"] == finding["waived"]
         else:
             assert "suppressions" not in result
-    invocation, = run_["invocations"]
+    (invocation,) = run_["invocations"]
     assert invocation["executionSuccessful"] is False
-    note, = invocation["toolExecutionNotifications"]
+    (note,) = invocation["toolExecutionNotifications"]
     assert note["level"] == "error" and "Unobtainium" in note["message"]["text"]
     assert note["locations"][0]["physicalLocation"]["artifactLocation"]["uri"] == str(bad)
     assert run_["properties"]["notice"] == DISCLAIMER
@@ -83,14 +90,22 @@ def test_junit_structure(json_report):
     assert root.tag == "testsuites"
     suites = root.findall("testsuite")
     assert [s.get("name") for s in suites] == FILES
-    failing = {(c["name"], f["rule"]) for c in json_report["calculations"]
-               for f in c["findings"] if not f["waived"] and f["severity"] != "info"}
-    waived = {(c["name"], f["rule"]) for c in json_report["calculations"]
-              for f in c["findings"] if f["waived"]}
+    failing = {
+        (c["name"], f["rule"])
+        for c in json_report["calculations"]
+        for f in c["findings"]
+        if not f["waived"] and f["severity"] != "info"
+    }
+    waived = {
+        (c["name"], f["rule"])
+        for c in json_report["calculations"]
+        for f in c["findings"]
+        if f["waived"]
+    }
     failures, skipped = set(), set()
     for suite in suites:
         names = [case.get("name") for case in suite.findall("testcase")]
-        assert len(names) == len(set(names))                     # unique within the suite
+        assert len(names) == len(set(names))  # unique within the suite
         assert int(suite.get("tests")) == len(names)
         for case in suite.findall("testcase"):
             calc, rule = case.get("name").rsplit(" (line", 1)[0], case.get("name").split(" :: ")[1]
@@ -128,10 +143,16 @@ def test_output_file_and_inputs_never_overwritten(tmp_path):
 def test_sarif_of_every_example_is_valid():
     """All input kinds (YAML, memo, CSV table, sweep) in one SARIF log, OASIS schema."""
     log = json.loads(run("check", "examples/", "--format", "sarif").stdout)
-    schema = json.loads((Path(__file__).parent / "data" / "sarif-schema-2.1.0.json")
-                        .read_text(encoding="utf-8"))
+    schema = json.loads(
+        (Path(__file__).parent / "data" / "sarif-schema-2.1.0.json").read_text(encoding="utf-8")
+    )
     jsonschema.Draft7Validator(schema).validate(log)
-    uris = {r["locations"][0]["physicalLocation"]["artifactLocation"]["uri"]
-            for r in log["runs"][0]["results"]}
-    assert {"examples/lt9_wafer_lots.csv", "examples/lm6_bias_memo.md",
-            "examples/lw3_corner_sweep.yaml"} <= uris
+    uris = {
+        r["locations"][0]["physicalLocation"]["artifactLocation"]["uri"]
+        for r in log["runs"][0]["results"]
+    }
+    assert {
+        "examples/lt9_wafer_lots.csv",
+        "examples/lm6_bias_memo.md",
+        "examples/lw3_corner_sweep.yaml",
+    } <= uris

@@ -6,6 +6,7 @@ once, the report format follows the output's suffix, and --version.
 Exit codes: 2 for unusable input, 130 for an interrupt (128 + SIGINT, the POSIX shell
 convention, IEEE Std 1003.1 "Exit Status for Commands").
 """
+
 import json
 import os
 import signal
@@ -24,8 +25,10 @@ import checker.cli as cli
 from checker.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
-CALCULATION = ("name: {name}\nmaterial: Si\ntemperature: 300 K\ndoping:\n  donors: {{P: 1e16 cm-3}}\n"
-               "stated:\n  electron_density: 1e16 cm-3\n  thermal_voltage: 0.0345 V\n")
+CALCULATION = (
+    "name: {name}\nmaterial: Si\ntemperature: 300 K\ndoping:\n  donors: {{P: 1e16 cm-3}}\n"
+    "stated:\n  electron_density: 1e16 cm-3\n  thermal_voltage: 0.0345 V\n"
+)
 MEMO = "# memo\n\n```regimecheck\n" + CALCULATION.format(name="in a memo") + "```\n"
 
 
@@ -52,19 +55,29 @@ def refused(args, protected, capsys, text="input"):
 
 # --- 1. --output never overwrites a file the run read ---------------------------------
 
+
 def test_output_into_a_walked_directory_is_refused(walk, capsys):
-    err = refused(["check", str(walk), "--format", "json", "--output", str(walk / "a.yaml")],
-                  walk / "a.yaml", capsys)
+    err = refused(
+        ["check", str(walk), "--format", "json", "--output", str(walk / "a.yaml")],
+        walk / "a.yaml",
+        capsys,
+    )
     assert "a.yaml" in err
-    refused(["check", str(walk), "--format", "markdown", "--output", str(walk / "memo.md")],
-            walk / "memo.md", capsys)
+    refused(
+        ["check", str(walk), "--format", "markdown", "--output", str(walk / "memo.md")],
+        walk / "memo.md",
+        capsys,
+    )
 
 
 def test_output_to_a_hard_link_or_symlink_of_an_input_is_refused(walk, tmp_path, capsys):
     hard = tmp_path / "report.json"
     os.link(walk / "a.yaml", hard)
-    refused(["check", str(walk / "a.yaml"), "--format", "json", "--output", str(hard)],
-            walk / "a.yaml", capsys)
+    refused(
+        ["check", str(walk / "a.yaml"), "--format", "json", "--output", str(hard)],
+        walk / "a.yaml",
+        capsys,
+    )
     soft = tmp_path / "report.md"
     soft.symlink_to(walk / "memo.md")
     refused(["check", str(walk), "--output", str(soft)], walk / "memo.md", capsys)
@@ -73,35 +86,45 @@ def test_output_to_a_hard_link_or_symlink_of_an_input_is_refused(walk, tmp_path,
 def test_output_to_the_settings_file_is_refused(walk, tmp_path, capsys, monkeypatch):
     settings = tmp_path / "settings.toml"
     settings.write_text('fail-level = "error"\n', encoding="utf-8")
-    refused(["check", str(walk), "--config", str(settings), "--output", str(settings)],
-            settings, capsys)
+    refused(
+        ["check", str(walk), "--config", str(settings), "--output", str(settings)], settings, capsys
+    )
     project = tmp_path / "project"
     (project / "sub").mkdir(parents=True)
     pyproject = project / "pyproject.toml"
     pyproject.write_text('[tool.regimecheck]\nfail-level = "error"\n', encoding="utf-8")
-    monkeypatch.chdir(project / "sub")          # found upward from the working directory
+    monkeypatch.chdir(project / "sub")  # found upward from the working directory
     refused(["check", str(walk), "--output", "../pyproject.toml"], pyproject, capsys)
-    refused(["point", "--material", "Si", "--temperature", "300K", "--output",
-             str(pyproject)], pyproject, capsys)
+    refused(
+        ["point", "--material", "Si", "--temperature", "300K", "--output", str(pyproject)],
+        pyproject,
+        capsys,
+    )
 
 
 def test_map_output_onto_a_calculation_file_is_refused(walk, tmp_path, capsys):
     figure = tmp_path / "figure.svg"
     os.link(walk / "a.yaml", figure)
-    refused(["map", str(walk / "a.yaml"), "--resolution", "10", "--output", str(figure)],
-            walk / "a.yaml", capsys)
+    refused(
+        ["map", str(walk / "a.yaml"), "--resolution", "10", "--output", str(figure)],
+        walk / "a.yaml",
+        capsys,
+    )
 
 
 # --- 2. the output is written whole or not at all ---------------------------------------
+
 
 def _folder_listing(folder):
     return sorted(p.name for p in folder.iterdir())
 
 
-@pytest.mark.parametrize("failure,code", [(RuntimeError("renderer broke"), 3),
-                                          (KeyboardInterrupt(), 130)])
-def test_a_failing_render_leaves_the_previous_report(walk, tmp_path, capsys, monkeypatch,
-                                                     failure, code):
+@pytest.mark.parametrize(
+    "failure,code", [(RuntimeError("renderer broke"), 3), (KeyboardInterrupt(), 130)]
+)
+def test_a_failing_render_leaves_the_previous_report(
+    walk, tmp_path, capsys, monkeypatch, failure, code
+):
     previous = tmp_path / "prev.json"
     previous.write_text('{"previous": true}\n', encoding="utf-8")
     listing = _folder_listing(tmp_path)
@@ -113,7 +136,7 @@ def test_a_failing_render_leaves_the_previous_report(walk, tmp_path, capsys, mon
     assert main(["check", str(walk), "--format", "json", "--output", str(previous)]) == code
     capsys.readouterr()
     assert previous.read_text(encoding="utf-8") == '{"previous": true}\n'
-    assert _folder_listing(tmp_path) == listing       # no temporary file left behind
+    assert _folder_listing(tmp_path) == listing  # no temporary file left behind
 
 
 def test_a_failing_write_leaves_the_previous_report(walk, tmp_path, capsys, monkeypatch):
@@ -138,10 +161,10 @@ def test_a_lone_surrogate_name_replaces_the_previous_report_completely(tmp_path,
     previous.write_text("{}", encoding="utf-8")
     code = main(["check", str(calc), "--format", "json", "--output", str(previous)])
     err = capsys.readouterr().err
-    data = json.loads(previous.read_text(encoding="utf-8"))      # complete, not 0 bytes
-    if code == 2:           # the reader refuses such a name, and the report says where
+    data = json.loads(previous.read_text(encoding="utf-8"))  # complete, not 0 bytes
+    if code == 2:  # the reader refuses such a name, and the report says where
         assert "calc.yaml:1" in data["input_errors"][0]
-    else:                   # or it is checked and shown escaped
+    else:  # or it is checked and shown escaped
         assert code == 1, err
         assert data["calculations"][0]["name"] == r"\ud800"
 
@@ -154,8 +177,9 @@ def test_a_failing_figure_leaves_the_previous_figure(tmp_path, capsys, monkeypat
         raise RuntimeError("drawing broke")
 
     monkeypatch.setattr("checker.report.plots.render", broken)
-    assert main(["curve", "--material", "Si", "--doping", "P=1e17cm-3", "--output",
-                 str(figure)]) == 3
+    assert (
+        main(["curve", "--material", "Si", "--doping", "P=1e17cm-3", "--output", str(figure)]) == 3
+    )
     capsys.readouterr()
     assert figure.read_text(encoding="utf-8") == "<svg/>"
     assert _folder_listing(tmp_path) == ["map.svg"]
@@ -168,9 +192,9 @@ def test_output_through_a_symlink_and_to_a_device(walk, tmp_path, capsys):
     link = tmp_path / "link.json"
     link.symlink_to(real)
     assert main(["check", str(walk), "--output", str(link)]) == 1
-    assert link.is_symlink()                       # the link stays, the file it names is new
+    assert link.is_symlink()  # the link stays, the file it names is new
     assert json.loads(real.read_text(encoding="utf-8"))["summary"]["calculations"] == 2
-    assert main(["check", str(walk), "--output", os.devnull]) == 1   # no rename on a device
+    assert main(["check", str(walk), "--output", os.devnull]) == 1  # no rename on a device
     assert "Report: " in capsys.readouterr().err
 
 
@@ -187,6 +211,7 @@ def test_rewriting_a_report_keeps_its_file_mode(walk, tmp_path, capsys):
 
 # --- 5. Ctrl-C and numerical warnings ----------------------------------------------------
 
+
 def test_interrupt_ends_with_one_line_and_exit_130(capsys, monkeypatch):
     def interrupted(_args):
         raise KeyboardInterrupt
@@ -200,12 +225,18 @@ def test_interrupt_ends_with_one_line_and_exit_130(capsys, monkeypatch):
 @pytest.mark.skipif(os.name != "posix", reason="SIGINT to a child process: POSIX")
 def test_sigint_during_a_large_sweep(tmp_path):
     calc = tmp_path / "sweep.yaml"
-    calc.write_text("name: large sweep\nmaterial: Si\n"
-                    "temperature: {from: 200 K, to: 500 K, steps: 2000}\n"
-                    "doping:\n  donors: {P: {from: 1e14 cm-3, to: 1e20 cm-3, steps: 2000}}\n",
-                    encoding="utf-8")
-    child = subprocess.Popen([sys.executable, "-m", "checker", "check", str(calc)],
-                             stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    calc.write_text(
+        "name: large sweep\nmaterial: Si\n"
+        "temperature: {from: 200 K, to: 500 K, steps: 2000}\n"
+        "doping:\n  donors: {P: {from: 1e14 cm-3, to: 1e20 cm-3, steps: 2000}}\n",
+        encoding="utf-8",
+    )
+    child = subprocess.Popen(
+        [sys.executable, "-m", "checker", "check", str(calc)],
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
+    )
     # signal once the child has done a second of work (past the imports, inside the sweep)
     stat_file = Path(f"/proc/{child.pid}/stat")
     while child.poll() is None and stat_file.exists():
@@ -227,8 +258,8 @@ def test_numpy_warnings_do_not_reach_the_reader(capsys, recwarn, monkeypatch):
     import numpy as np
 
     def overflowing(_args):
-        np.exp(np.array([1000.0]))               # overflow: a RuntimeWarning from numpy
-        np.array([0.0]) / np.array([0.0])        # invalid value
+        np.exp(np.array([1000.0]))  # overflow: a RuntimeWarning from numpy
+        np.array([0.0]) / np.array([0.0])  # invalid value
         return 0
 
     monkeypatch.setattr(cli, "_cmd_rules", overflowing)
@@ -238,9 +269,24 @@ def test_numpy_warnings_do_not_reach_the_reader(capsys, recwarn, monkeypatch):
 
 
 def test_undoped_silicon_at_one_kelvin_prints_no_warning():
-    done = subprocess.run([sys.executable, "-m", "checker", "point", "--material", "Si",
-                           "--temperature", "1K", "--format", "json"], capture_output=True,
-                          text=True, cwd=ROOT, timeout=300)
+    done = subprocess.run(
+        [
+            sys.executable,
+            "-m",
+            "checker",
+            "point",
+            "--material",
+            "Si",
+            "--temperature",
+            "1K",
+            "--format",
+            "json",
+        ],
+        capture_output=True,
+        text=True,
+        cwd=ROOT,
+        timeout=300,
+    )
     assert done.returncode in (0, 1), done.stderr
     assert "Warning" not in done.stderr and done.stderr == ""
     json.loads(done.stdout)
@@ -248,14 +294,18 @@ def test_undoped_silicon_at_one_kelvin_prints_no_warning():
 
 # --- 6. command-line quantities and files -----------------------------------------------
 
-@pytest.mark.parametrize("extra,text", [
-    (["--field=-5kV/cm"], "negative"),
-    (["--field", "1e12V/cm"], "not a plausible field"),
-    (["--length", "0nm"], "not a plausible length"),
-    (["--length", "5km"], "not a plausible length"),
-    (["--donor", "P=1e17cm-3", "--donor", "P=1e18cm-3"], "given twice"),
-    (["--acceptor", "B=1e15cm-3", "--acceptor", " B=1e15cm-3"], "given twice"),
-])
+
+@pytest.mark.parametrize(
+    "extra,text",
+    [
+        (["--field=-5kV/cm"], "negative"),
+        (["--field", "1e12V/cm"], "not a plausible field"),
+        (["--length", "0nm"], "not a plausible length"),
+        (["--length", "5km"], "not a plausible length"),
+        (["--donor", "P=1e17cm-3", "--donor", "P=1e18cm-3"], "given twice"),
+        (["--acceptor", "B=1e15cm-3", "--acceptor", " B=1e15cm-3"], "given twice"),
+    ],
+)
 def test_point_refuses_what_a_calculation_file_refuses(extra, text, capsys):
     code = main(["point", "--material", "Si", "--temperature", "300K", *extra])
     err = capsys.readouterr().err
@@ -271,7 +321,7 @@ def test_each_file_is_read_once(walk, tmp_path, capsys):
     a = str(walk / "a.yaml")
     assert _calculations([a], capsys) == 1
     assert _calculations([a, a], capsys) == 1
-    assert _calculations([str(walk), a], capsys) == 2          # a.yaml and the memo
+    assert _calculations([str(walk), a], capsys) == 2  # a.yaml and the memo
     link = tmp_path / "link.yaml"
     link.symlink_to(walk / "a.yaml")
     assert _calculations([a, str(link)], capsys) == 1
@@ -279,6 +329,7 @@ def test_each_file_is_read_once(walk, tmp_path, capsys):
 
 
 # --- 7. format from the output's suffix, --version ---------------------------------------
+
 
 def _parsed(fmt, text):
     if fmt == "json":
@@ -292,9 +343,17 @@ def _parsed(fmt, text):
     return text.startswith("## regimecheck review")
 
 
-@pytest.mark.parametrize("name,fmt", [("r.json", "json"), ("r.sarif", "sarif"),
-                                      ("r.sarif.json", "sarif"), ("r.xml", "junit"),
-                                      ("r.html", "html"), ("r.md", "markdown")])
+@pytest.mark.parametrize(
+    "name,fmt",
+    [
+        ("r.json", "json"),
+        ("r.sarif", "sarif"),
+        ("r.sarif.json", "sarif"),
+        ("r.xml", "junit"),
+        ("r.html", "html"),
+        ("r.md", "markdown"),
+    ],
+)
 def test_output_suffix_chooses_the_format(walk, tmp_path, capsys, name, fmt):
     target = tmp_path / name
     assert main(["check", str(walk / "a.yaml"), "--output", str(target)]) == 1
@@ -304,8 +363,9 @@ def test_output_suffix_chooses_the_format(walk, tmp_path, capsys, name, fmt):
 
 def test_explicit_format_wins_over_the_suffix(walk, tmp_path, capsys):
     target = tmp_path / "r.json"
-    assert main(["check", str(walk / "a.yaml"), "--format", "markdown",
-                 "--output", str(target)]) == 1
+    assert (
+        main(["check", str(walk / "a.yaml"), "--format", "markdown", "--output", str(target)]) == 1
+    )
     capsys.readouterr()
     assert _parsed("markdown", target.read_text(encoding="utf-8"))
 

@@ -7,6 +7,7 @@ dispersion (Lundstrom & Jeong, Near-Equilibrium Transport, 2012, ch. 2), the Kan
 density of states (Kane 1957), the graphene statistics of Fang et al., Appl. Phys.
 Lett. 91, 092109 (2007), the Boltzmann conductivity q^2/d ∫ D v^2 tau (-df/dE) dE.
 """
+
 import math
 
 import mpmath as mp
@@ -51,13 +52,14 @@ def window_quad(g, eta):
     def integrand(x):
         e = mp.exp(-abs(x - eta))
         return g(x) * e / (1 + e) ** 2
+
     return mp.quad(integrand, _breaks(eta))
 
 
 def fd_mp(j, eta):
     """Normalized F_j (Blakemore 1982): 1/Γ(j+1) ∫ x^j f dx, or the window form for j <= -1."""
     if j > -1:
-        return fermi_quad(lambda x: x ** j, eta) / mp.gamma(j + 1)
+        return fermi_quad(lambda x: x**j, eta) / mp.gamma(j + 1)
     return window_quad(lambda x: x ** (j + 1), eta) / mp.gamma(j + 2)
 
 
@@ -71,24 +73,28 @@ def rel(a, b):
 def test_landauer_quantum_is_codata():
     # conductance quantum 2e^2/h = 7.748091729e-5 S (CODATA, exact since the 2019 SI)
     assert ew.LANDAUER_QUANTUM == pytest.approx(
-        sc.physical_constants["conductance quantum"][0], rel=1e-15)
+        sc.physical_constants["conductance quantum"][0], rel=1e-15
+    )
     assert ew.LANDAUER_QUANTUM == pytest.approx(7.748091729e-5, rel=1e-10)
 
 
 def test_two_d_effective_density_gaas():
     # N_2D = m* kT/(pi hbar^2) for GaAs (m* = 0.067, g_v = 1, spin included) at 300 K,
     # written out from scipy.constants: 7.24e11 cm^-2
-    expected = 0.067 * M0 * KT / (math.pi * HBAR ** 2)
+    expected = 0.067 * M0 * KT / (math.pi * HBAR**2)
     got = ew.effective_density(bd.ParabolicBand(2, 0.067), T300)
     assert got == pytest.approx(expected, rel=MASS_REL)
     assert got / PER_CM2 == pytest.approx(7.24e11, rel=1e-3)
 
 
-@pytest.mark.parametrize("dimension,formula", [
-    # N_c = 2 (m kT/(2 pi hbar^2))^(3/2) (Sze & Ng 2007, ch. 1); N_1D = sqrt(2 m kT/(pi hbar^2))
-    (3, lambda m: 2 * (m * KT / (2 * math.pi * HBAR ** 2)) ** 1.5),
-    (1, lambda m: math.sqrt(2 * m * KT / (math.pi * HBAR ** 2))),
-])
+@pytest.mark.parametrize(
+    "dimension,formula",
+    [
+        # N_c = 2 (m kT/(2 pi hbar^2))^(3/2) (Sze & Ng 2007, ch. 1); N_1D = sqrt(2 m kT/(pi hbar^2))
+        (3, lambda m: 2 * (m * KT / (2 * math.pi * HBAR**2)) ** 1.5),
+        (1, lambda m: math.sqrt(2 * m * KT / (math.pi * HBAR**2))),
+    ],
+)
 def test_effective_densities_3d_1d(dimension, formula):
     got = ew.effective_density(bd.ParabolicBand(dimension, 0.26, valley_degeneracy=6), T300)
     assert got == pytest.approx(6 * formula(0.26 * M0), rel=MASS_REL)
@@ -103,9 +109,14 @@ def test_parabolic_density_and_slope_against_mpmath(dimension, method, tol):
     # n = N_eff F_(d/2-1), dn/deta = N_eff F_(d/2-2): the closed forms of physics/fermi.py
     # and the quadrature both against F_j from mpmath quadrature
     band = bd.ParabolicBand(dimension, 0.1, valley_degeneracy=2)
-    n_eff = 2 * {3: 2 * (0.1 * M0 * KT / (2 * math.pi * HBAR ** 2)) ** 1.5,
-                 2: 0.1 * M0 * KT / (math.pi * HBAR ** 2),
-                 1: math.sqrt(2 * 0.1 * M0 * KT / (math.pi * HBAR ** 2))}[dimension]
+    n_eff = (
+        2
+        * {
+            3: 2 * (0.1 * M0 * KT / (2 * math.pi * HBAR**2)) ** 1.5,
+            2: 0.1 * M0 * KT / (math.pi * HBAR**2),
+            1: math.sqrt(2 * 0.1 * M0 * KT / (math.pi * HBAR**2)),
+        }[dimension]
+    )
     j = dimension / 2 - 1
     n = ew.carrier_density(band, np.array(ETAS), T300, method=method)
     slope = ew.density_slope(band, np.array(ETAS), T300, method=method)
@@ -130,7 +141,7 @@ def test_two_d_einstein_ratio_is_exact_closed_form():
 def kane_dos_3d(m, alpha):
     """Kane 3D density of states, spin included (Kane 1957; Lundstrom & Jeong 2012, ch. 2):
     D(E) = (1/(2 pi^2)) (2m/hbar^2)^(3/2) sqrt(E (1 + alpha E)) (1 + 2 alpha E)."""
-    pref = (2 * mp.mpf(m) / mp.mpf(HBAR) ** 2) ** 1.5 / (2 * mp.pi ** 2)
+    pref = (2 * mp.mpf(m) / mp.mpf(HBAR) ** 2) ** 1.5 / (2 * mp.pi**2)
     return lambda E: pref * mp.sqrt(E * (1 + alpha * E)) * (1 + 2 * alpha * E)
 
 
@@ -161,7 +172,7 @@ def test_kane_density_against_mpmath(alpha_ev):
 def test_kane_without_non_parabolicity_is_fermi_half():
     # alpha = 0: n = N_c F_1/2(eta) (F_1/2 from mpmath)
     band = bd.KaneBand(3, 0.067, 0.0)
-    n_c = 2 * (0.067 * M0 * KT / (2 * math.pi * HBAR ** 2)) ** 1.5
+    n_c = 2 * (0.067 * M0 * KT / (2 * math.pi * HBAR**2)) ** 1.5
     got = ew.carrier_density(band, np.array(ETAS), T300)
     for eta, value in zip(ETAS, got):
         assert rel(value, n_c * fd_mp(0.5, eta)) <= 1e-12 + MASS_REL
@@ -174,7 +185,7 @@ def test_kane_two_d_against_mpmath():
     kT = mp.mpf(sc.k) * T300
     got = ew.carrier_density(band, np.array(ETAS), T300)
     for eta, value in zip(ETAS, got):
-        expected = kT * fermi_quad(lambda x: m * (1 + 2 * alpha * x * kT) / (mp.pi * HBAR ** 2), eta)
+        expected = kT * fermi_quad(lambda x: m * (1 + 2 * alpha * x * kT) / (mp.pi * HBAR**2), eta)
         assert rel(value, expected) <= 1e-12 + MASS_REL, eta
 
 
@@ -185,7 +196,7 @@ def test_inas_fermi_level_kane_and_parabolic():
     # an mpmath root of n(E_F) = N; the rounded values within 10 meV.
     m, alpha = 0.023 * M0, 2.7 / sc.e
     kane, parabolic = bd.KaneBand(3, 0.023, alpha), bd.ParabolicBand(3, 0.023)
-    n_c = 2 * (m * KT / (2 * math.pi * HBAR ** 2)) ** 1.5
+    n_c = 2 * (m * KT / (2 * math.pi * HBAR**2)) ** 1.5
     for N, kane_ev, parabolic_ev in ((1e19, 0.37, 0.74), (1e18, 0.111, 0.156)):
         target = N * PER_CM3
         eta_k = ew.eta_from_density(kane, target, T300)
@@ -203,7 +214,7 @@ def test_inas_fermi_level_kane_and_parabolic():
 
 def test_gan_eta_at_1e13():
     # n_s = 1e13 cm^-2 in GaN (m* = 0.2, g_v = 1) at 300 K: eta = ln(e^(n_s/N_2D) - 1) ~ +4.6
-    n2d = 0.2 * M0 * KT / (math.pi * HBAR ** 2)
+    n2d = 0.2 * M0 * KT / (math.pi * HBAR**2)
     expected = mp.log(mp.expm1(1e13 * PER_CM2 / n2d))
     band = bd.ParabolicBand(2, 0.2)
     for method in ("auto", "quadrature"):
@@ -227,8 +238,9 @@ def test_several_subbands_newton():
     # two subbands of a GaAs well at 0 and 60 meV, and an Si(100)-like ladder of 2 + 4 valleys:
     # eta against an mpmath root of sum_i N_i ln(1 + e^(eta - E_i/kT)) = n_s
     gaas = bd.parabolic_subbands(2, 0.067, [0.0, 0.060 * sc.e])
-    si = (bd.parabolic_subbands(2, 0.19, [0.0], valley_degeneracy=2)
-          + bd.parabolic_subbands(2, 0.417, [0.03 * sc.e], valley_degeneracy=4))
+    si = bd.parabolic_subbands(2, 0.19, [0.0], valley_degeneracy=2) + bd.parabolic_subbands(
+        2, 0.417, [0.03 * sc.e], valley_degeneracy=4
+    )
     for group in (gaas, si):
         ns = np.array([1e9, 1e11, 3e12, 2e13]) * PER_CM2
         eta = ew.eta_from_density(group, ns[:, None], np.array([77.0, 300.0]))
@@ -238,8 +250,16 @@ def test_several_subbands_newton():
                 kT = sc.k * T
 
                 def total(e):
-                    return sum(b.valley_degeneracy * b.mass * M0 * kT / (math.pi * HBAR ** 2)
-                               * mp.log1p(mp.exp(e - b.edge / kT)) for b in group)
+                    return sum(
+                        b.valley_degeneracy
+                        * b.mass
+                        * M0
+                        * kT
+                        / (math.pi * HBAR**2)
+                        * mp.log1p(mp.exp(e - b.edge / kT))
+                        for b in group
+                    )
+
                 root = mp.findroot(lambda e: total(e) / n - 1, eta[i, k])
                 assert eta[i, k] == pytest.approx(float(root), abs=1e-9)
 
@@ -247,7 +267,7 @@ def test_several_subbands_newton():
 def test_one_d_inverse_by_newton():
     # a quantum wire: n_1D = N_1D F_-1/2(eta); root against mpmath F_-1/2
     band = bd.ParabolicBand(1, 0.067)
-    n1d = math.sqrt(2 * 0.067 * M0 * KT / (math.pi * HBAR ** 2))
+    n1d = math.sqrt(2 * 0.067 * M0 * KT / (math.pi * HBAR**2))
     for eta_true in (-12.0, 0.5, 25.0):
         n = n1d * float(fd_mp(-0.5, eta_true))
         assert ew.eta_from_density(band, n, T300) == pytest.approx(eta_true, abs=1e-9)
@@ -273,7 +293,7 @@ def test_graphene_net_density_against_mpmath():
     # n - p = ∫ D(E) [f(E - E_F) - f(E + E_F)] dE, D = 2E/(pi hbar^2 v_F^2) (Fang et al. 2007)
     band = bd.DiracBand(V_F)
     kT = mp.mpf(KT)
-    pref = 2 * kT ** 2 / (mp.pi * mp.mpf(HBAR * V_F) ** 2)
+    pref = 2 * kT**2 / (mp.pi * mp.mpf(HBAR * V_F) ** 2)
     etas = [-30.0, -2.0, -1e-3, 1e-3, 0.5, 4.0, 40.0]
     got = ew.dirac_net_density(band, np.array(etas), T300)
     for eta, value in zip(etas, got):
@@ -290,9 +310,9 @@ def test_graphene_zero_temperature_limit():
     for T in (50.0, 10.0, 0.5):  # eta >= 46
         kT = sc.k * T
         got = ew.dirac_net_density(band, E_F / kT, T)
-        exact = E_F ** 2 / (math.pi * HBAR ** 2 * V_F ** 2) + math.pi / 3 * (kT / (HBAR * V_F)) ** 2
+        exact = E_F**2 / (math.pi * HBAR**2 * V_F**2) + math.pi / 3 * (kT / (HBAR * V_F)) ** 2
         assert got == pytest.approx(exact, rel=1e-13)
-    zero_t = E_F ** 2 / (math.pi * HBAR ** 2 * V_F ** 2)
+    zero_t = E_F**2 / (math.pi * HBAR**2 * V_F**2)
     assert got == pytest.approx(zero_t, rel=1e-6)
     assert bd.states_below(band, E_F) == pytest.approx(zero_t, rel=1e-14)
 
@@ -306,7 +326,8 @@ def test_graphene_einstein_ratio():
             expected = mp.polylog(2, -mp.exp(eta)) / mp.polylog(1, -mp.exp(eta))
             assert rel(value, expected) <= 1e-12, (method, eta)
     assert ew.generalized_einstein_ratio(band, 200.0, T300) == pytest.approx(
-        100.0 * (1 + math.pi ** 2 / 3 / 200 ** 2), rel=1e-12)
+        100.0 * (1 + math.pi**2 / 3 / 200**2), rel=1e-12
+    )
 
 
 # ------------------------------------------------------------------ conductance
@@ -316,7 +337,8 @@ def test_one_d_ballistic_conductance_is_the_quantum():
     # one spin-degenerate mode fully occupied: G = 2q^2/h (Landauer 1957); G0 f(0) in general
     band = bd.ParabolicBand(1, 0.067)
     assert ew.ballistic_conductance(band, 40.0, T300) == pytest.approx(
-        sc.physical_constants["conductance quantum"][0], rel=1e-15)
+        sc.physical_constants["conductance quantum"][0], rel=1e-15
+    )
     got = ew.ballistic_conductance(band, np.array(ETAS), T300, method="quadrature")
     for eta, value in zip(ETAS, got):
         expected = sc.physical_constants["conductance quantum"][0] / (1 + mp.exp(-eta))
@@ -326,15 +348,26 @@ def test_one_d_ballistic_conductance_is_the_quantum():
 def mode_density_mp(dimension, m, alpha):
     """M(E) per spin from k^2 = 2 m E (1 + alpha E)/hbar^2: 1, k/pi, k^2/(4 pi)
     (Lundstrom & Jeong 2012, ch. 2)."""
+
     def modes(E):
         k2 = 2 * mp.mpf(m) * E * (1 + alpha * E) / mp.mpf(HBAR) ** 2
         return {1: mp.mpf(1), 2: mp.sqrt(k2) / mp.pi, 3: k2 / (4 * mp.pi)}[dimension]
+
     return modes
 
 
-@pytest.mark.parametrize("dimension,alpha_ev,r,L_over", [
-    (2, 0.0, 0.0, 1.0), (3, 0.0, 0.5, 0.2), (3, 2.7, 1.0, 3.0), (2, 1.5, -0.5, 10.0),
-    (1, 0.0, 2.0, 1e-3), (1, 0.0, 1.5, 1e-4), (2, 0.0, 2.0, 1e-2)])
+@pytest.mark.parametrize(
+    "dimension,alpha_ev,r,L_over",
+    [
+        (2, 0.0, 0.0, 1.0),
+        (3, 0.0, 0.5, 0.2),
+        (3, 2.7, 1.0, 3.0),
+        (2, 1.5, -0.5, 10.0),
+        (1, 0.0, 2.0, 1e-3),
+        (1, 0.0, 1.5, 1e-4),
+        (2, 0.0, 2.0, 1e-2),
+    ],
+)
 def test_conductance_against_mpmath(dimension, alpha_ev, r, L_over):
     # G = (2q^2/h) ∫ M(E) lambda/(lambda + L) (-df/dE) dE, lambda = lambda_0 (E/kT)^r
     m, alpha, lam0 = 0.05 * M0, alpha_ev / sc.e, 50e-9
@@ -345,7 +378,7 @@ def test_conductance_against_mpmath(dimension, alpha_ev, r, L_over):
     modes = mode_density_mp(dimension, m, alpha)
     g0 = 2 * mp.mpf(sc.e) ** 2 / mp.mpf(sc.h)
     for eta, value in zip(etas, got):
-        expected = g0 * window_quad(lambda x: modes(x * kT) * x ** r / (x ** r + L_over), eta)
+        expected = g0 * window_quad(lambda x: modes(x * kT) * x**r / (x**r + L_over), eta)
         assert rel(value, expected) <= 1e-10 + MASS_REL, eta
 
 
@@ -361,7 +394,8 @@ def test_ballistic_limit_counts_modes():
         near = ew.conductance(band, eta, T300, 1e-9 * lam0, lam0, 0.0)
         assert rel(near, g0 * modes) <= 2e-9
         assert ew.conductance(band, eta, T300, 0.0, lam0, 0.0) == pytest.approx(
-            ew.ballistic_conductance(band, eta, T300), rel=1e-15)
+            ew.ballistic_conductance(band, eta, T300), rel=1e-15
+        )
 
 
 def boltzmann_sigma(dimension, dos, velocity, lam0, r, eta):
@@ -372,7 +406,8 @@ def boltzmann_sigma(dimension, dos, velocity, lam0, r, eta):
 
     def integrand(x):
         E = x * kT
-        return dos(E) * velocity(E) * lam0 * x ** r / c_d
+        return dos(E) * velocity(E) * lam0 * x**r / c_d
+
     return mp.mpf(sc.e) ** 2 / dimension * window_quad(integrand, eta)
 
 
@@ -414,7 +449,7 @@ def test_diffusive_conductivity_equals_boltzmann(case):
             return mp.sqrt(2 * m * E * (1 + alpha * E)) / (m * (1 + 2 * alpha * E))
     elif case == "graphene":
         d, band, r = 2, bd.DiracBand(V_F), 0.5
-        dos = lambda E: 2 * E / (mp.pi * hbar ** 2 * V_F ** 2)  # noqa: E731 (Fang et al. 2007)
+        dos = lambda E: 2 * E / (mp.pi * hbar**2 * V_F**2)  # noqa: E731 (Fang et al. 2007)
         velocity = lambda E: mp.mpf(V_F)  # noqa: E731
     else:
         m, d = 0.067 * M0, 1
@@ -442,8 +477,9 @@ def test_quadrature_and_closed_forms_agree_on_diffusive_graphene():
 
 
 def test_broadcasting_and_several_bands():
-    group = bd.parabolic_subbands(2, 0.067, [0.0, 0.05 * sc.e]) + (bd.KaneBand(2, 0.067, 0.0,
-                                                                            edge=0.1 * sc.e),)
+    group = bd.parabolic_subbands(2, 0.067, [0.0, 0.05 * sc.e]) + (
+        bd.KaneBand(2, 0.067, 0.0, edge=0.1 * sc.e),
+    )
     eta = np.linspace(-5, 10, 3)[:, None]
     T = np.array([77.0, 200.0, 300.0, 400.0])
     n = ew.carrier_density(group, eta, T)
@@ -451,16 +487,25 @@ def test_broadcasting_and_several_bands():
     for i, e in enumerate(eta[:, 0]):
         for k, t in enumerate(T):
             kT = sc.k * t
-            expected = sum(0.067 * M0 * kT / (math.pi * HBAR ** 2) * mp.log1p(mp.exp(e - E / kT))
-                           for E in (0.0, 0.05 * sc.e, 0.1 * sc.e))
+            expected = sum(
+                0.067 * M0 * kT / (math.pi * HBAR**2) * mp.log1p(mp.exp(e - E / kT))
+                for E in (0.0, 0.05 * sc.e, 0.1 * sc.e)
+            )
             assert rel(n[i, k], expected) <= 1e-12 + MASS_REL
     assert isinstance(ew.carrier_density(group, 1.0, 300.0), float)
 
 
-@pytest.mark.parametrize("make", [
-    lambda: bd.ParabolicBand(4, 0.1), lambda: bd.ParabolicBand(3, -0.1),
-    lambda: bd.KaneBand(3, 0.1, -1.0), lambda: bd.DiracBand(0.0),
-    lambda: bd.ParabolicBand(2, float("nan")), lambda: bd.ParabolicBand(2, True)])
+@pytest.mark.parametrize(
+    "make",
+    [
+        lambda: bd.ParabolicBand(4, 0.1),
+        lambda: bd.ParabolicBand(3, -0.1),
+        lambda: bd.KaneBand(3, 0.1, -1.0),
+        lambda: bd.DiracBand(0.0),
+        lambda: bd.ParabolicBand(2, float("nan")),
+        lambda: bd.ParabolicBand(2, True),
+    ],
+)
 def test_bad_band_parameters_are_refused(make):
     with pytest.raises(InputError):
         make()

@@ -1,18 +1,24 @@
 """Equilibrium solver against an independent multiple-precision solve and
 published handbook values."""
+
 import math
 import warnings
 
 import mpmath as mp
 import numpy as np
 import pytest
-import scipy.constants as sc
-
-from checker import (InputError, UnknownDopantError, UnknownMaterialError, load_material,
-                     solve_equilibrium)
-from conftest import PER_CM3
 import reference_cache
+import scipy.constants as sc
+from conftest import PER_CM3
 from reference import mp_fermi_half
+
+from checker import (
+    InputError,
+    UnknownDopantError,
+    UnknownMaterialError,
+    load_material,
+    solve_equilibrium,
+)
 
 K_B, Q = sc.k, sc.e
 
@@ -20,8 +26,9 @@ K_B, Q = sc.k, sc.e
 CASES = reference_cache.EQUILIBRIUM_CASES
 
 
-@pytest.mark.parametrize("name,T,donors,acceptors,regime", CASES,
-                         ids=[f"{c[0]}-{c[1]}K-{c[4]}" for c in CASES])
+@pytest.mark.parametrize(
+    "name,T,donors,acceptors,regime", CASES, ids=[f"{c[0]}-{c[1]}K-{c[4]}" for c in CASES]
+)
 def test_matches_independent_solve(name, T, donors, acceptors, regime):
     """eta_n against the 40-digit bisection solve of tests/reference.py (cached in
     tests/data/reference_values.json) and n against N_c F_1/2 (mpmath) there."""
@@ -43,15 +50,18 @@ RECOMPUTED = [CASES[1], CASES[9], CASES[21]]
 
 
 @pytest.mark.slow
-@pytest.mark.parametrize("name,T,donors,acceptors,regime", RECOMPUTED,
-                         ids=[f"{c[0]}-{c[1]}K-{c[4]}" for c in RECOMPUTED])
+@pytest.mark.parametrize(
+    "name,T,donors,acceptors,regime", RECOMPUTED, ids=[f"{c[0]}-{c[1]}K-{c[4]}" for c in RECOMPUTED]
+)
 def test_reference_cache_matches_the_independent_solve(name, T, donors, acceptors, regime):
     """The cached reference is what the 40-digit solve (tests/reference.py) gives today."""
     material = load_material(name)
-    entry = reference_cache.load()["equilibrium"][reference_cache.case_key(name, T, donors,
-                                                                           acceptors)]
-    assert entry["material"] == reference_cache.material_inputs(material, float(T),
-                                                                {**donors, **acceptors})
+    entry = reference_cache.load()["equilibrium"][
+        reference_cache.case_key(name, T, donors, acceptors)
+    ]
+    assert entry["material"] == reference_cache.material_inputs(
+        material, float(T), {**donors, **acceptors}
+    )
     fresh = reference_cache.equilibrium_value(material, T, donors, acceptors)
     assert entry["eta_n"] == pytest.approx(fresh["eta_n"], rel=1e-15, abs=1e-15)
     assert entry["n"] == pytest.approx(fresh["n"], rel=1e-14)
@@ -71,6 +81,7 @@ def test_silicon_intrinsic_density_at_300K():
 
 def test_thermal_voltage_at_300K_against_scipy():
     from checker.physics.constants import thermal_voltage
+
     # scipy.constants (CODATA): k/e * 300 K = 25.852 mV
     assert thermal_voltage(300.0) == pytest.approx(sc.k * 300 / sc.e, rel=1e-15)
     assert thermal_voltage(300.0) == pytest.approx(0.025852, abs=5e-7)
@@ -107,8 +118,12 @@ def test_converges_everywhere_on_a_wide_grid():
     T = np.geomspace(1.0, 1500.0, 30)[:, None, None]
     N = np.concatenate([[0.0], np.geomspace(1e10, 1e22, 19)]) * PER_CM3
     nd, na = N[None, :, None], N[None, None, :]
-    for name, donor, acceptor in [("Si", "P", "B"), ("GaN", "Si", "Mg"), ("InAs", "S", "Zn"),
-                                  ("Ge", "Sb", "Ga")]:
+    for name, donor, acceptor in [
+        ("Si", "P", "B"),
+        ("GaN", "Si", "Mg"),
+        ("InAs", "S", "Zn"),
+        ("Ge", "Sb", "Ga"),
+    ]:
         with warnings.catch_warnings():
             warnings.simplefilter("error")
             state = solve_equilibrium(name, T, {donor: nd}, {acceptor: na})
@@ -139,21 +154,24 @@ def test_band_gap_narrowing_raises_minority_density(N):
     plain = solve_equilibrium("Si", 300.0, {"P": N * PER_CM3})
     narrowed = solve_equilibrium("Si", 300.0, {"P": N * PER_CM3}, band_gap_narrowing=True)
     x = math.log(N / 1.3e17)
-    published = 6.92e-3 * (x + math.sqrt(x * x + 0.5)) * sc.e             # J
+    published = 6.92e-3 * (x + math.sqrt(x * x + 0.5)) * sc.e  # J
     assert float(narrowed.n) == pytest.approx(float(plain.n), rel=1e-9)
     ratio = float(narrowed.p) / float(plain.p)
     assert ratio == pytest.approx(math.exp(published / (sc.k * 300.0)), rel=1e-9)
 
 
-@pytest.mark.parametrize("call,error,text", [
-    (lambda: solve_equilibrium("Si", -5.0), InputError, "above 0 K"),
-    (lambda: solve_equilibrium("Si", float("nan")), InputError, "finite"),
-    (lambda: solve_equilibrium("Si", 300.0, {"P": -1e22}), InputError, ">= 0"),
-    (lambda: solve_equilibrium("Si", 300.0, {"P": float("inf")}), InputError, "finite"),
-    (lambda: solve_equilibrium("Si", 300.0, {"Xx": 1e22}), UnknownDopantError, "known: "),
-    (lambda: solve_equilibrium("Si", 300.0, {"B": 1e22}), InputError, "acceptor"),
-    (lambda: solve_equilibrium("Unobtainium", 300.0), UnknownMaterialError, "Built in"),
-])
+@pytest.mark.parametrize(
+    "call,error,text",
+    [
+        (lambda: solve_equilibrium("Si", -5.0), InputError, "above 0 K"),
+        (lambda: solve_equilibrium("Si", float("nan")), InputError, "finite"),
+        (lambda: solve_equilibrium("Si", 300.0, {"P": -1e22}), InputError, ">= 0"),
+        (lambda: solve_equilibrium("Si", 300.0, {"P": float("inf")}), InputError, "finite"),
+        (lambda: solve_equilibrium("Si", 300.0, {"Xx": 1e22}), UnknownDopantError, "known: "),
+        (lambda: solve_equilibrium("Si", 300.0, {"B": 1e22}), InputError, "acceptor"),
+        (lambda: solve_equilibrium("Unobtainium", 300.0), UnknownMaterialError, "Built in"),
+    ],
+)
 def test_bad_input_is_a_clear_error(call, error, text):
     with pytest.raises(error, match=text):
         call()
@@ -170,22 +188,30 @@ def test_random_mixtures_converge_and_stay_physical(name):
     rng = np.random.default_rng(sum(map(ord, name)))
     size = 4000
     T = rng.uniform(1.0, 1500.0, size)
-    donors = {k: 10 ** rng.uniform(8, 22, size) * PER_CM3 * (rng.random(size) < 0.7)
-              for k, d in material.dopants.items() if d.kind == "donor"}
-    acceptors = {k: 10 ** rng.uniform(8, 22, size) * PER_CM3 * (rng.random(size) < 0.7)
-                 for k, d in material.dopants.items() if d.kind == "acceptor"}
+    donors = {
+        k: 10 ** rng.uniform(8, 22, size) * PER_CM3 * (rng.random(size) < 0.7)
+        for k, d in material.dopants.items()
+        if d.kind == "donor"
+    }
+    acceptors = {
+        k: 10 ** rng.uniform(8, 22, size) * PER_CM3 * (rng.random(size) < 0.7)
+        for k, d in material.dopants.items()
+        if d.kind == "acceptor"
+    }
     with warnings.catch_warnings():
         warnings.simplefilter("error")
         state = solve_equilibrium(material, T, donors, acceptors)
         assert np.all(np.isfinite(state.eta_n)) and np.all(state.residual <= 1e-10)
-        for group, ionized in ((state.donors, state.donors_ionized),
-                               (state.acceptors, state.acceptors_ionized)):
+        for group, ionized in (
+            (state.donors, state.donors_ionized),
+            (state.acceptors, state.acceptors_ionized),
+        ):
             for species, density in group.items():
                 assert np.all(ionized[species] >= 0)
                 assert np.all(ionized[species] <= density * (1 + 1e-12))
         both = (state.eta_n < -40) & (state.eta_p < -40) & (state.n > 1e-250) & (state.p > 1e-250)
         if both.any():
-            assert np.allclose((state.n * state.p)[both], (state.ni ** 2)[both], rtol=1e-9)
+            assert np.allclose((state.n * state.p)[both], (state.ni**2)[both], rtol=1e-9)
 
 
 def test_fermi_level_rises_with_donor_density():

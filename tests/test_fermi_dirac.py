@@ -3,16 +3,17 @@
 References: NIST DLMF §25.12 (F_j = -Li_{j+1}(-e^eta), normalized form);
 J. S. Blakemore, Solid-State Electron. 25, 1067 (1982) (derivative rule, limits).
 """
+
 import math
 import warnings
 
 import mpmath as mp
 import numpy as np
 import pytest
+import reference_cache
+from conftest import fd_reference
 
 from checker import InputError, fermi_dirac, inverse_fermi_dirac_half, log_fermi_dirac
-from conftest import fd_reference
-import reference_cache
 
 ORDERS = reference_cache.FD_ORDERS
 
@@ -69,8 +70,12 @@ def test_derivative_rule(j):
     eta = np.array([-20.0, -3.3, -0.7, 0.4, 1.9, 3.7, 8.0, 25.0, 60.0])
     h = 1e-3
     # fourth-order central difference
-    deriv = (-fermi_dirac(j, eta + 2 * h) + 8 * fermi_dirac(j, eta + h)
-             - 8 * fermi_dirac(j, eta - h) + fermi_dirac(j, eta - 2 * h)) / (12 * h)
+    deriv = (
+        -fermi_dirac(j, eta + 2 * h)
+        + 8 * fermi_dirac(j, eta + h)
+        - 8 * fermi_dirac(j, eta - h)
+        + fermi_dirac(j, eta - 2 * h)
+    ) / (12 * h)
     assert np.allclose(deriv, fermi_dirac(j - 1, eta), rtol=1e-9)
 
 
@@ -78,8 +83,9 @@ def test_derivative_rule(j):
 def test_limits(j):
     # non-degenerate: F_j -> e^eta, next term -e^(2 eta)/2^(j+1)
     eta = -30.0
-    assert fermi_dirac(j, eta) == pytest.approx(math.exp(eta) * (1 - math.exp(eta) / 2 ** (j + 1)),
-                                                rel=1e-14)
+    assert fermi_dirac(j, eta) == pytest.approx(
+        math.exp(eta) * (1 - math.exp(eta) / 2 ** (j + 1)), rel=1e-14
+    )
     # degenerate: F_j -> eta^(j+1)/Gamma(j+2) (Sommerfeld leading term)
     eta = 1e4
     if j > -1:

@@ -1,4 +1,5 @@
 """The shipped JSON Schema and the rule-file loader."""
+
 import json
 import shutil
 from pathlib import Path
@@ -15,8 +16,9 @@ SCHEMA = ROOT / "checker" / "data" / "calculation.schema.json"
 
 
 def test_schema_matches_the_key_tables(schema_generator):
-    assert SCHEMA.read_text(encoding="utf-8") == schema_generator.render(), \
+    assert SCHEMA.read_text(encoding="utf-8") == schema_generator.render(), (
         "run python tools/generate_schema.py"
+    )
 
 
 @pytest.mark.parametrize("path", sorted((ROOT / "examples").glob("*.yaml")), ids=lambda p: p.name)
@@ -28,7 +30,9 @@ def test_examples_validate_against_schema_and_carry_modeline(path):
         # YAML reads some quantities as numbers; the checker reads them as text
         jsonschema.validate(_as_text(document), schema)
     if path.name != "larkspur_operating_points.yaml":
-        assert text.startswith("# yaml-language-server: $schema=../checker/data/calculation.schema.json")
+        assert text.startswith(
+            "# yaml-language-server: $schema=../checker/data/calculation.schema.json"
+        )
 
 
 def _as_text(node):
@@ -50,15 +54,21 @@ def test_shipped_rules_load():
         assert rule.threshold_source
 
 
-@pytest.mark.parametrize("edit, field", [
-    (lambda d: d.pop("why"), "why"),
-    (lambda d: d.update(severity="loud"), "severity"),
-    (lambda d: d["indicator"].update(expression="eta_x + __import__('os')"), "indicator.expression"),
-    (lambda d: d["indicator"].update(expression="eta_q"), "indicator.expression"),
-    (lambda d: d.update(message="see {nothing}"), "message"),
-    (lambda d: d.update(colour="red"), "colour"),
-    (lambda d: d["corrections"][0].update(unit="furlong"), "corrections[0].unit"),
-])
+@pytest.mark.parametrize(
+    "edit, field",
+    [
+        (lambda d: d.pop("why"), "why"),
+        (lambda d: d.update(severity="loud"), "severity"),
+        (
+            lambda d: d["indicator"].update(expression="eta_x + __import__('os')"),
+            "indicator.expression",
+        ),
+        (lambda d: d["indicator"].update(expression="eta_q"), "indicator.expression"),
+        (lambda d: d.update(message="see {nothing}"), "message"),
+        (lambda d: d.update(colour="red"), "colour"),
+        (lambda d: d["corrections"][0].update(unit="furlong"), "corrections[0].unit"),
+    ],
+)
 def test_broken_rule_file_names_file_and_field(tmp_path, edit, field):
     data = yaml.safe_load((rules_dir() / "STAT01.yaml").read_text(encoding="utf-8"))
     edit(data)

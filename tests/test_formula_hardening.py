@@ -8,6 +8,7 @@ explicit form shown for an implicit product.
 Every case that could run long runs in a subprocess bounded by TIMEOUT: a regression
 shows as a failed test, not as a stuck suite.  No assertion is made on speed.
 """
+
 import json
 import math
 import subprocess
@@ -19,6 +20,7 @@ import numpy as np
 import pytest
 import scipy.constants as sc
 import sympy
+from reference import mp_fermi_half, reference_solve
 
 from checker import load_material
 from checker.engine.expressions import dimensions as dm
@@ -26,12 +28,13 @@ from checker.engine.expressions.parser import parse, to_numpy
 from checker.engine.formulas.check import dimension, parse_formula
 from checker.engine.formulas.match import SYMPY_BUDGET, expansion_cost
 from checker.errors import InputError
-from reference import mp_fermi_half, reference_solve
 
-TIMEOUT = 60          # seconds; each case ends in well under a second when it works
+TIMEOUT = 60  # seconds; each case ends in well under a second when it works
 SZE = "Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1"
-SHOCKLEY = ("diffusion length L = sqrt(D tau): Shockley, Electrons and Holes in "
-            "Semiconductors (1950) (from memory)")
+SHOCKLEY = (
+    "diffusion length L = sqrt(D tau): Shockley, Electrons and Holes in "
+    "Semiconductors (1950) (from memory)"
+)
 
 GOOD = "name: fine\nmaterial: Si\ntemperature: 300 K\ndoping:\n  donors: {P: 1e16 cm-3}\n"
 
@@ -73,24 +76,30 @@ UNRECOGNISED = [
 
 
 def _document(name: str, formula: str) -> str:
-    return (f"name: {name}\nmaterial: Si\ntemperature: 300 K\ndoping:\n"
-            f"  donors: {{P: 1e16 cm-3}}\nformulas:\n  - {json.dumps(formula)}\n")
+    return (
+        f"name: {name}\nmaterial: Si\ntemperature: 300 K\ndoping:\n"
+        f"  donors: {{P: 1e16 cm-3}}\nformulas:\n  - {json.dumps(formula)}\n"
+    )
 
 
 def _check_in_subprocess(path):
     """`regimecheck check` through checker.cli.main, bounded by TIMEOUT."""
-    code = f"import sys; from checker.cli import main; sys.exit(main(['check', {str(path)!r}, " \
-           "'--format', 'json']))"
-    return subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                          timeout=TIMEOUT)
+    code = (
+        f"import sys; from checker.cli import main; sys.exit(main(['check', {str(path)!r}, "
+        "'--format', 'json']))"
+    )
+    return subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, timeout=TIMEOUT
+    )
 
 
 def test_hostile_formulas_end_promptly_with_a_message_or_a_finding(tmp_path):
     docs, lines, line = [GOOD], {}, GOOD.count("\n") + 1
-    cases = [(f"refused {i}", formula) for i, (formula, _) in enumerate(REFUSED)] + \
-        [(f"unrecognised {i}", formula) for i, formula in enumerate(UNRECOGNISED)]
+    cases = [(f"refused {i}", formula) for i, (formula, _) in enumerate(REFUSED)] + [
+        (f"unrecognised {i}", formula) for i, formula in enumerate(UNRECOGNISED)
+    ]
     for name, formula in cases:
-        lines[name] = line + 7          # "---" then the document; the formula on its 7th line
+        lines[name] = line + 7  # "---" then the document; the formula on its 7th line
         docs.append(_document(name, formula))
         line += 1 + docs[-1].count("\n")
     path = tmp_path / "hostile.yaml"
@@ -139,8 +148,9 @@ _FUNCTION_LEVEL = textwrap.dedent("""
 
 def test_hostile_formulas_at_the_function_level():
     code = _FUNCTION_LEVEL % (OVER_BUDGET, [formula for formula, _ in REFUSED])
-    run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                         timeout=TIMEOUT)
+    run = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, timeout=TIMEOUT
+    )
     assert run.returncode == 0, run.stderr[-2000:]
     out = json.loads(run.stdout)
     # inf**0 is 1 in IEEE 754 arithmetic (C99 Annex F, pow(x, +-0)): it must not match
@@ -160,16 +170,19 @@ def test_strict_evaluation_does_not_hide_an_overflow():
     with np.errstate(all="ignore"):
         plain = to_numpy(tree)(values)
         strict = to_numpy(tree, strict=True)(values)
-    assert plain[1] == 2.0                      # the overflow vanished
+    assert plain[1] == 2.0  # the overflow vanished
     assert strict[0] == pytest.approx(2.1, rel=1e-15) and math.isnan(strict[1])
 
 
-@pytest.mark.parametrize("text", [
-    "(a + b + c)^5",
-    "(a + b)*(c + d)*(e + f)",
-    "(a + b + c)^3/(a + b)^2",
-    "exp((a + b)^2) + (c + d)^(5/2)",
-])
+@pytest.mark.parametrize(
+    "text",
+    [
+        "(a + b + c)^5",
+        "(a + b)*(c + d)*(e + f)",
+        "(a + b + c)^3/(a + b)^2",
+        "exp((a + b)^2) + (c + d)^(5/2)",
+    ],
+)
 def test_expansion_cost_bounds_sympys_own_count(text):
     """The budget's estimate is an upper bound on the terms sympy's expand makes."""
     tree = parse(text)
@@ -187,9 +200,11 @@ def test_budget_exceeded_is_reported_not_proved():
 
 # ---- friction: what hand-written formulas look like -----------------------------------------
 def _one_calculation(tmp_path, formulas, donors="1e17"):
-    text = (f"name: friction\nmaterial: Si\ntemperature: 300 K\ndoping:\n"
-            f"  donors: {{P: {donors} cm-3}}\nformulas:\n"
-            + "".join(f"  - {json.dumps(f)}\n" for f in formulas))
+    text = (
+        f"name: friction\nmaterial: Si\ntemperature: 300 K\ndoping:\n"
+        f"  donors: {{P: {donors} cm-3}}\nformulas:\n"
+        + "".join(f"  - {json.dumps(f)}\n" for f in formulas)
+    )
     path = tmp_path / "calc.yaml"
     path.write_text(text, encoding="utf-8")
     run = _check_in_subprocess(path)
@@ -198,31 +213,39 @@ def _one_calculation(tmp_path, formulas, donors="1e17"):
 
 
 def test_fractional_orders_euler_powers_product_signs_and_log10_agree_with_mpmath(tmp_path):
-    formulas = ["n = N_c*F(1/2, eta_n)", "n = N_c*e^((E_F - E_c)/(k*T))",
-                "sigma = q·n×mu_n", "E_F − E_c = k*T*log10(n/N_c)*ln(10)"]
+    formulas = [
+        "n = N_c*F(1/2, eta_n)",
+        "n = N_c*e^((E_F - E_c)/(k*T))",
+        "sigma = q·n×mu_n",
+        "E_F − E_c = k*T*log10(n/N_c)*ln(10)",
+    ]
     run, data = _one_calculation(tmp_path, formulas)
     assert not data["input_errors"]
     results = {f["formula"]: f for f in data["calculations"][0]["formulas"]}
     silicon = load_material("Si")
     eta = reference_solve(silicon, 300.0, {"P": 1e17 * 1e6}, {})
-    nc = float(silicon.Nc(300.0)) * 1e-6                       # cm^-3
+    nc = float(silicon.Nc(300.0)) * 1e-6  # cm^-3
     # n = N_c F_1/2(eta): exact, and its value is mpmath's F_1/2 at an independent solve
     exact = results["n = N_c*F(1/2, eta_n)"]
     assert exact["status"] == "exact" and exact["proof"] == "symbolic"
     assert exact["at_operating_point"]["formula"] == pytest.approx(
-        nc * float(mp_fermi_half(eta)), rel=1e-7)
+        nc * float(mp_fermi_half(eta)), rel=1e-7
+    )
     # e^x is exp(x): the Boltzmann form, non-degenerate electrons (SZE)
     boltzmann = results["n = N_c*e^((E_F - E_c)/(k*T))"]
     assert boltzmann["embodies"] == ["non-degenerate electrons (F_j -> e^η)"], SZE
     assert boltzmann["at_operating_point"]["formula"] == pytest.approx(
-        nc * float(mp.exp(eta)), rel=1e-7)
+        nc * float(mp.exp(eta)), rel=1e-7
+    )
     # · and × are products (ISO 80000-1, product signs, from memory): sigma = q n mu_n
-    assert results["sigma = q·n×mu_n"]["assumptions"] == \
-        [{"assumption": "single-carrier", "carrier": "n"}], SZE
+    assert results["sigma = q·n×mu_n"]["assumptions"] == [
+        {"assumption": "single-carrier", "carrier": "n"}
+    ], SZE
     # log10(x)*ln(10) = ln(x): E_F - E_c = kT ln(n/N_c), non-degenerate (SZE); value in eV
     level = results["E_F − E_c = k*T*log10(n/N_c)*ln(10)"]
-    assert level["proof"] == "symbolic" and level["assumptions"] == \
-        [{"assumption": "non-degenerate", "carrier": "n"}]
+    assert level["proof"] == "symbolic" and level["assumptions"] == [
+        {"assumption": "non-degenerate", "carrier": "n"}
+    ]
     kT_eV = sc.k * 300.0 / sc.e
     assert level["at_operating_point"]["exact"] == pytest.approx(kT_eV * eta, rel=1e-7)
 
@@ -230,10 +253,14 @@ def test_fractional_orders_euler_powers_product_signs_and_log10_agree_with_mpmat
 def test_product_signs_read_as_the_star():
     """U+00B7 MIDDLE DOT, U+22C5 DOT OPERATOR, U+00D7 MULTIPLICATION SIGN and U+2212
     MINUS SIGN (Unicode Character Database) are the product and the minus."""
-    assert parse_formula("sigma = q·n⋅mu_n", "n", "f")[:2] == \
-        parse_formula("sigma = q*n*mu_n", "n", "f")[:2]
-    assert parse_formula("D = mu×k×T/q − 0", "n", "f")[:2] == \
-        parse_formula("D = mu*k*T/q - 0", "n", "f")[:2]
+    assert (
+        parse_formula("sigma = q·n⋅mu_n", "n", "f")[:2]
+        == parse_formula("sigma = q*n*mu_n", "n", "f")[:2]
+    )
+    assert (
+        parse_formula("D = mu×k×T/q − 0", "n", "f")[:2]
+        == parse_formula("D = mu*k*T/q - 0", "n", "f")[:2]
+    )
 
 
 def test_diffusion_length_and_lifetime(tmp_path):
@@ -244,8 +271,9 @@ def test_diffusion_length_and_lifetime(tmp_path):
     # holes, which the rules know as the Einstein relation (SHOCKLEY, SZE)
     assert results["L_n = sqrt(D_n*tau_n)"]["status"] == "exact", SHOCKLEY
     assert results["L_n = sqrt(D_n*tau_n)"]["relations"] == ["diffusion length"]
-    assert results["L_p = sqrt(mu_p*k*T/q*tau_p)"]["assumptions"] == \
-        [{"assumption": "einstein-relation", "carrier": "p"}], SZE
+    assert results["L_p = sqrt(mu_p*k*T/q*tau_p)"]["assumptions"] == [
+        {"assumption": "einstein-relation", "carrier": "p"}
+    ], SZE
     # no lifetime is stated: not evaluated (no value, no FORM03)
     assert results["L_n = sqrt(D_n*tau_n)"]["at_operating_point"]["formula"] is None
     # the dimensions are still checked: sqrt(m^2/s / s) is a velocity, not a length
@@ -262,16 +290,19 @@ def test_contact_resistivity_has_the_dimension_of_ohm_square_metre():
     assert dimension(rhs, 3) == dimension(lhs, 3) == dm.RESISTANCE
     assert dimension(parse_formula("rho_c = R*A", "n", "f")[0], 3) == dm.RESISTANCE * dm.AREA
     wrong_lhs, wrong_rhs, _ = parse_formula("R = rho_c/L", "n", "f")
-    assert dimension(wrong_rhs, 3) != dimension(wrong_lhs, 3)     # ohm m is no resistance
+    assert dimension(wrong_rhs, 3) != dimension(wrong_lhs, 3)  # ohm m is no resistance
 
 
-@pytest.mark.parametrize("formula, explicit", [
-    ("n = 2N_D", "2*N_D"),
-    ("n = 2 N_D", "2*N_D"),
-    ("n = 2eta_n*N_c", "2*eta_n*N_c"),
-    ("sigma = q n mu_n", "q*n*mu_n"),
-    ("n = (N_D - N_A)2", "(N_D - N_A)*2"),
-])
+@pytest.mark.parametrize(
+    "formula, explicit",
+    [
+        ("n = 2N_D", "2*N_D"),
+        ("n = 2 N_D", "2*N_D"),
+        ("n = 2eta_n*N_c", "2*eta_n*N_c"),
+        ("sigma = q n mu_n", "q*n*mu_n"),
+        ("n = (N_D - N_A)2", "(N_D - N_A)*2"),
+    ],
+)
 def test_implicit_products_are_refused_with_the_explicit_form(formula, explicit):
     with pytest.raises(InputError) as err:
         parse_formula(formula, "n", "calc.yaml:7:5")
@@ -280,13 +311,13 @@ def test_implicit_products_are_refused_with_the_explicit_form(formula, explicit)
 
 def test_a_number_with_an_exponent_is_not_an_implicit_product():
     # 1e16 and 2.5E-3 are numbers (Python's float literal grammar), not 1*e16
-    assert parse("2.5E-3*x + 1e16") == ("+", ("*", ("num", 2.5e-3), ("name", "x")),
-                                        ("num", 1e16))
+    assert parse("2.5E-3*x + 1e16") == ("+", ("*", ("num", 2.5e-3), ("name", "x")), ("num", 1e16))
 
 
-@pytest.mark.parametrize("formula, order", [("n = N_c*F(1/2, eta)", 0.5),
-                                            ("n = N_c*F(-1/2, eta)", -0.5),
-                                            ("n = N_c*F(3/2, eta)", 1.5)])
+@pytest.mark.parametrize(
+    "formula, order",
+    [("n = N_c*F(1/2, eta)", 0.5), ("n = N_c*F(-1/2, eta)", -0.5), ("n = N_c*F(3/2, eta)", 1.5)],
+)
 def test_fermi_orders_may_be_fractions(formula, order):
     rhs = parse_formula(formula, "n", "f")[1]
     assert rhs[2] == ("call", "F", (("num", order), ("name", "eta_n")))
@@ -295,9 +326,13 @@ def test_fermi_orders_may_be_fractions(formula, order):
 
 
 def test_e_as_a_power_base_is_exp_and_q_stays_the_charge():
-    assert parse_formula("n = N_c*e^eta", "n", "f")[1] == \
-        parse_formula("n = N_c*exp(eta)", "n", "f")[1]
-    assert parse_formula("n = N_c*e**(-eta_p)", "n", "f")[1] == \
-        parse_formula("n = N_c*exp(-eta_p)", "n", "f")[1]
+    assert (
+        parse_formula("n = N_c*e^eta", "n", "f")[1]
+        == parse_formula("n = N_c*exp(eta)", "n", "f")[1]
+    )
+    assert (
+        parse_formula("n = N_c*e**(-eta_p)", "n", "f")[1]
+        == parse_formula("n = N_c*exp(-eta_p)", "n", "f")[1]
+    )
     with pytest.raises(InputError, match="elementary charge"):
         parse_formula("sigma = e*n*mu_n", "n", "f")

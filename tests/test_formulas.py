@@ -5,6 +5,7 @@ Expected limit sets are the textbook derivations of each shortcut (sources besid
 each row); numbers are checked against mpmath and scipy.constants, never against
 values produced by the package.
 """
+
 import json
 import math
 import subprocess
@@ -14,6 +15,7 @@ import mpmath as mp
 import numpy as np
 import pytest
 import scipy.constants as sc
+from reference import mp_fermi_half, reference_solve
 
 from checker import load_material
 from checker.engine.expressions import parser as expression
@@ -29,11 +31,12 @@ from checker.physics.constants import ELECTRON_MASS, HBAR
 from checker.physics.equilibrium import State, charge_balance_error, ionized_density
 from checker.physics.fermi import fermi_dirac
 from checker.physics.materials import BoundShare, Dopant, MassPolynomialDOS, Provenance
-from reference import mp_fermi_half, reference_solve
 
 SZE = "Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1"
-SOMMERFELD = ("Blakemore, Semiconductor Statistics (1962): degenerate limit F_j -> "
-              "eta^(j+1)/Gamma(j+2), so D/mu -> (E_F - E_c)/((j+1) q)")
+SOMMERFELD = (
+    "Blakemore, Semiconductor Statistics (1962): degenerate limit F_j -> "
+    "eta^(j+1)/Gamma(j+2), so D/mu -> (E_F - E_c)/((j+1) q)"
+)
 LUNDSTROM = "Lundstrom & Jeong, Near-Equilibrium Transport (2012), R = rho(L + lambda)/A"
 CAUGHEY = "Caughey & Thomas, Proc. IEEE 55, 2192 (1967): v = mu E/(1 + (mu E/v_sat)^beta)^(1/beta)"
 
@@ -51,24 +54,68 @@ RECOGNISED = [
     ("p = N_v*exp((E_v - E_F)/(k*T))", "p", 3, {"nondeg_p"}, {("non-degenerate", "p")}, SZE),
     ("p = N_v*exp(-(E_F - E_v)/(k*T))", "n", 3, {"nondeg_p"}, {("non-degenerate", "p")}, SZE),
     ("E_F - E_c = k*T*ln(n/N_c)", "n", 3, {"nondeg_n"}, {("non-degenerate", "n")}, SZE),
-    ("n = N_D", "n", 3, {"holes_negligible", "full_ionization", "no_compensation"},
-     {("extrinsic", "n"), ("full-ionization", "n"), ("no-compensation", "n")}, SZE),
-    ("n = N_D - N_A", "n", 3, {"holes_negligible", "full_ionization"},
-     {("extrinsic", "n"), ("full-ionization", "n")}, SZE),
-    ("p = N_A", "p", 3, {"electrons_negligible", "full_ionization", "no_compensation"},
-     {("extrinsic", "p"), ("full-ionization", "p"), ("no-compensation", "p")}, SZE),
+    (
+        "n = N_D",
+        "n",
+        3,
+        {"holes_negligible", "full_ionization", "no_compensation"},
+        {("extrinsic", "n"), ("full-ionization", "n"), ("no-compensation", "n")},
+        SZE,
+    ),
+    (
+        "n = N_D - N_A",
+        "n",
+        3,
+        {"holes_negligible", "full_ionization"},
+        {("extrinsic", "n"), ("full-ionization", "n")},
+        SZE,
+    ),
+    (
+        "p = N_A",
+        "p",
+        3,
+        {"electrons_negligible", "full_ionization", "no_compensation"},
+        {("extrinsic", "p"), ("full-ionization", "p"), ("no-compensation", "p")},
+        SZE,
+    ),
     ("sigma = q*n*mu_n", "n", 3, {"holes_negligible"}, {("single-carrier", "n")}, SZE),
     ("sigma = q*(n*mu_n + p*mu_p)", "n", 3, set(), set(), SZE),
-    ("rho = 1/(q*N_D*mu_n)", "n", 3, {"holes_negligible", "full_ionization", "no_compensation"},
-     {("extrinsic", "n"), ("single-carrier", "n"), ("full-ionization", "n"),
-      ("no-compensation", "n")}, SZE),
+    (
+        "rho = 1/(q*N_D*mu_n)",
+        "n",
+        3,
+        {"holes_negligible", "full_ionization", "no_compensation"},
+        {
+            ("extrinsic", "n"),
+            ("single-carrier", "n"),
+            ("full-ionization", "n"),
+            ("no-compensation", "n"),
+        },
+        SZE,
+    ),
     ("n_i = sqrt(N_c*N_v)*exp(-E_g/(2*k*T))", "n", 3, set(), set(), SZE),
-    ("n*p = n_i^2", "n", 3, {"nondeg_n", "nondeg_p"},
-     {("non-degenerate", "n"), ("non-degenerate", "p")}, SZE),
-    ("p = n_i^2/N_D", "n", 3,
-     {"nondeg_n", "nondeg_p", "holes_negligible", "full_ionization", "no_compensation"},
-     {("non-degenerate", "n"), ("non-degenerate", "p"), ("extrinsic", "n"),
-      ("full-ionization", "n"), ("no-compensation", "n")}, SZE),
+    (
+        "n*p = n_i^2",
+        "n",
+        3,
+        {"nondeg_n", "nondeg_p"},
+        {("non-degenerate", "n"), ("non-degenerate", "p")},
+        SZE,
+    ),
+    (
+        "p = n_i^2/N_D",
+        "n",
+        3,
+        {"nondeg_n", "nondeg_p", "holes_negligible", "full_ionization", "no_compensation"},
+        {
+            ("non-degenerate", "n"),
+            ("non-degenerate", "p"),
+            ("extrinsic", "n"),
+            ("full-ionization", "n"),
+            ("no-compensation", "n"),
+        },
+        SZE,
+    ),
     ("n = n_i*exp((E_F - E_i)/(k*T))", "n", 3, {"nondeg_n"}, {("non-degenerate", "n")}, SZE),
     ("R = rho*L/A", "n", 3, {"diffusive"}, {("diffusive", None)}, LUNDSTROM),
     ("R = rho*L/(W*t)", "n", 3, {"diffusive"}, {("diffusive", None)}, LUNDSTROM),
@@ -84,8 +131,9 @@ def _match(formula, majority="n", dim=3):
     return analyse(lhs, rhs, dim, majority)
 
 
-@pytest.mark.parametrize("formula, majority, dim, limits, words, source", RECOGNISED,
-                         ids=[r[0] for r in RECOGNISED])
+@pytest.mark.parametrize(
+    "formula, majority, dim, limits, words, source", RECOGNISED, ids=[r[0] for r in RECOGNISED]
+)
 def test_formula_is_recognised_with_its_limits(formula, majority, dim, limits, words, source):
     match = _match(formula, majority, dim)
     assert match.status == ("exact" if not limits else "limit"), source
@@ -94,12 +142,15 @@ def test_formula_is_recognised_with_its_limits(formula, majority, dim, limits, w
     assert match.proof == "symbolic"
 
 
-@pytest.mark.parametrize("formula", [
-    "n = N_c*exp((E_c - E_F)/(k*T))",          # sign error in the exponent
-    "n_i = N_c*exp(-E_g/(2*k*T))",              # N_c in place of sqrt(N_c N_v)
-    "n = n_i*exp((E_F - (E_c + E_v)/2)/(k*T))",  # intrinsic level taken at midgap
-    "D_n = mu_n*k*T/q*(1 + n/(sqrt(8)*N_c))",   # first-order series, not a limit
-])
+@pytest.mark.parametrize(
+    "formula",
+    [
+        "n = N_c*exp((E_c - E_F)/(k*T))",  # sign error in the exponent
+        "n_i = N_c*exp(-E_g/(2*k*T))",  # N_c in place of sqrt(N_c N_v)
+        "n = n_i*exp((E_F - (E_c + E_v)/2)/(k*T))",  # intrinsic level taken at midgap
+        "D_n = mu_n*k*T/q*(1 + n/(sqrt(8)*N_c))",  # first-order series, not a limit
+    ],
+)
 def test_wrong_or_approximate_formulas_are_unrecognised(formula):
     assert _match(formula).status == "unrecognised"
 
@@ -111,7 +162,7 @@ def test_rearranged_formulas_keep_their_limits(factor):
         left, right = formula.split("=")
         base = _match(formula)
         scaled = _match(f"({left})*{factor} = ({right})*{factor}")
-        assert {l.id for l in scaled.limits} == {l.id for l in base.limits}
+        assert {lim.id for lim in scaled.limits} == {lim.id for lim in base.limits}
 
 
 def test_normal_form_does_not_prove_what_is_false():
@@ -130,8 +181,10 @@ def test_normal_form_does_not_prove_what_is_false():
 
 def test_spellings_and_unknown_symbols():
     assert parse_formula("λ = lambda_n", "n", "f")[0] == ("name", "lambda_n")
-    assert parse_formula("Dn = μn*Vt", "n", "f")[:2] == parse_formula("D_n = mu_n*(k*T/q)", "n",
-                                                                      "f")[:2]
+    assert (
+        parse_formula("Dn = μn*Vt", "n", "f")[:2]
+        == parse_formula("D_n = mu_n*(k*T/q)", "n", "f")[:2]
+    )
     with pytest.raises(InputError) as err:
         parse_formula("D_n = mu_x*k*T/q", "n", "calc.yaml:12:5")
     assert "calc.yaml:12:5" in str(err.value) and "mu_n" in str(err.value)
@@ -142,25 +195,30 @@ def test_spellings_and_unknown_symbols():
 
 def test_dimensions():
     """SI dimensions of the trade quantities (BIPM SI Brochure, 9th ed.)."""
+
     def dims(text, dim=3):
         return dimension(parse_formula(f"n = {text}", "n", "f")[1], dim)
+
     conductivity = dims("q*n*mu_n")
     assert dims("sigma") == conductivity and dims("1/rho") == conductivity
     assert dims("k*T/q") == dims("V_T") and dims("E*L") == dims("V_T")
-    assert dims("q*n*mu_n", 2) == dims("1/R")          # a 2D conductivity is a conductance
+    assert dims("q*n*mu_n", 2) == dims("1/R")  # a 2D conductivity is a conductance
     assert dims("D_n") == dims("mu_n*k*T/q")
 
 
-@pytest.mark.parametrize("formula, detail, fix", [
-    ("D = mu*q/(k*T)", "the left side is m²/s", "D = mu*k*T/q"),
-    ("D_n/mu_n = q/(k*T)", "the left side is V", "D_n/mu_n = k*T/q"),
-    ("n = N_D + mu_n", "terms of a sum must have one dimension", None),
-    ("n = N_c*exp(E_F - E_c)", "the argument of exp()", None),
-])
+@pytest.mark.parametrize(
+    "formula, detail, fix",
+    [
+        ("D = mu*q/(k*T)", "the left side is m²/s", "D = mu*k*T/q"),
+        ("D_n/mu_n = q/(k*T)", "the left side is V", "D_n/mu_n = k*T/q"),
+        ("n = N_D + mu_n", "terms of a sum must have one dimension", None),
+        ("n = N_c*exp(E_F - E_c)", "the argument of exp()", None),
+    ],
+)
 def test_dimension_errors_name_both_sides_and_the_fix(tmp_path, formula, detail, fix):
     text = f"material: Si\ntemperature: 300 K\nformulas:\n  - {formula}\n"
     report = _check(tmp_path, text).reports[0]
-    finding, = [f for f in report.findings if f.rule == "FORM01"]
+    (finding,) = [f for f in report.findings if f.rule == "FORM01"]
     assert detail in finding.message and finding.line == 4
     if fix:
         assert f"Likely fix: {fix}." in finding.message
@@ -193,8 +251,9 @@ def test_formulas_feed_the_rules_and_values_match_mpmath(tmp_path):
     by_rule = {f.rule: f for f in report.findings}
     # the Einstein relation is caught by STAT02 at the formula's line, not by FORM03
     assert by_rule["STAT02"].formula == "D_n = mu_n*k*T/q" and by_rule["STAT02"].line == 6
-    assert [f.formula for f in report.findings if f.rule == "FORM03"] == \
-        ["D = (2/3)*mu*(E_F - E_c)/q"]
+    assert [f.formula for f in report.findings if f.rule == "FORM03"] == [
+        "D = (2/3)*mu*(E_F - E_c)/q"
+    ]
     assert by_rule["FORM01"].line == 8 and "D = mu*k*T/q" in by_rule["FORM01"].message
     # exact D at the operating point: mpmath F_1/2 / F_-1/2 at an independent solve
     gaas = load_material("GaAs")
@@ -203,7 +262,7 @@ def test_formulas_feed_the_rules_and_values_match_mpmath(tmp_path):
         ratio = mp_fermi_half(eta) / -mp.re(mp.polylog(mp.mpf(0.5), -mp.exp(eta)))
     kT_q = sc.k * 300.0 / sc.e
     einstein = next(r for r in report.formulas if r.text == "D_n = mu_n*k*T/q")
-    mu = einstein.value / kT_q                       # the formula's own D / (kT/q)
+    mu = einstein.value / kT_q  # the formula's own D / (kT/q)
     assert einstein.exact == pytest.approx(mu * kT_q * float(ratio), rel=1e-7)
     # the degenerate form at this eta: (2/3) eta kT/q
     degenerate = next(r for r in report.formulas if r.text.startswith("D = (2/3)"))
@@ -249,13 +308,19 @@ def test_hostile_formulas_are_refused_cleanly(tmp_path):
     docs = [good]
     for i, formula in enumerate(HOSTILE):
         text = formula.format(sentinel=sentinel)
-        docs.append(f"name: hostile {i}\nmaterial: Si\ntemperature: 300 K\n"
-                    f"formulas:\n  - {json.dumps(text)}\n")
+        docs.append(
+            f"name: hostile {i}\nmaterial: Si\ntemperature: 300 K\n"
+            f"formulas:\n  - {json.dumps(text)}\n"
+        )
     path = tmp_path / "hostile.yaml"
     path.write_text("---\n".join(docs), encoding="utf-8")
     before = path.read_text()
-    run = subprocess.run([sys.executable, "-m", "checker.cli", "check", str(path),
-                          "--format", "json"], capture_output=True, text=True, timeout=120)
+    run = subprocess.run(
+        [sys.executable, "-m", "checker.cli", "check", str(path), "--format", "json"],
+        capture_output=True,
+        text=True,
+        timeout=120,
+    )
     assert run.returncode == 2
     assert "Traceback" not in run.stdout + run.stderr
     data = json.loads(run.stdout)
@@ -270,8 +335,11 @@ def test_every_spelling_names_one_symbol():
     from checker.engine.formulas.symbols import GENERIC, SHORTHANDS, SYMBOLS
 
     spellings = [s for symbol in SYMBOLS.values() for s in symbol.spellings]
-    spellings += [s.strip() for _, spelled in list(GENERIC.values()) + list(SHORTHANDS.values())
-                  for s in spelled.split(",")]
+    spellings += [
+        s.strip()
+        for _, spelled in list(GENERIC.values()) + list(SHORTHANDS.values())
+        for s in spelled.split(",")
+    ]
     assert len(spellings) == len(set(spellings))
 
 
@@ -286,14 +354,18 @@ def test_readme_documents_every_symbol():
 
 
 def test_sign_error_is_unrecognised_and_its_value_matches_mpmath(tmp_path):
-    text = ("material: Si\ntemperature: 300 K\ndoping:\n  donors: {P: 1e17 cm-3}\n"
-            "formulas:\n  - n = N_c*exp((E_c - E_F)/(k*T))\n")
+    text = (
+        "material: Si\ntemperature: 300 K\ndoping:\n  donors: {P: 1e17 cm-3}\n"
+        "formulas:\n  - n = N_c*exp((E_c - E_F)/(k*T))\n"
+    )
     report = _check(tmp_path, text).reports[0]
-    assert sorted(f.rule for f in report.findings if f.rule.startswith("FORM")) == \
-        ["FORM02", "FORM03"]
+    assert sorted(f.rule for f in report.findings if f.rule.startswith("FORM")) == [
+        "FORM02",
+        "FORM03",
+    ]
     silicon = load_material("Si")
     eta = reference_solve(silicon, 300.0, {"P": 1e17 * 1e6}, {})
-    result, = report.formulas
+    (result,) = report.formulas
     # the formula reads N_c e^(-eta); the exact n is N_c F_1/2(eta) (Sze & Ng, ch. 1)
     nc = float(silicon.Nc(300.0))
     assert result.value == pytest.approx(nc * float(mp.exp(-eta)), rel=1e-7)
@@ -323,7 +395,8 @@ class _Bands:
         share = BoundShare(N_b=1e60, d=2.3)
         self.levels = {
             "D": Dopant("D", "donor", dE_D, g_D, np.inf, False, _ANY, bound_share=share),
-            "A": Dopant("A", "acceptor", dE_A, g_A, np.inf, False, _ANY, bound_share=share)}
+            "A": Dopant("A", "acceptor", dE_A, g_A, np.inf, False, _ANY, bound_share=share),
+        }
 
     def band_gap(self, T):
         return self.Eg
@@ -349,8 +422,13 @@ def _sample(dim, which, seed, size=64):
     # the majority band's Fermi level from -8 kT below its edge to 6 kT above
     eta_major = rng.uniform(-8.0, 6.0, size)
     eta_n = eta_major if which == "donor" else -eta_major - Eg / kT
-    v = {"k": np.full(size, sc.k), "q": np.full(size, sc.e), "h": np.full(size, sc.h),
-         "pi": np.full(size, math.pi), "T": T}
+    v = {
+        "k": np.full(size, sc.k),
+        "q": np.full(size, sc.e),
+        "h": np.full(size, sc.h),
+        "pi": np.full(size, math.pi),
+        "T": T,
+    }
     v["E_v"] = rng.uniform(-1.0, 1.0, size) * _EV
     v["E_c"] = v["E_v"] + Eg
     v["E_F"] = v["E_c"] + eta_n * kT
@@ -358,11 +436,20 @@ def _sample(dim, which, seed, size=64):
         v[name] = 10.0 ** rng.uniform(lo, hi, size)
     v["dE_D"], v["dE_A"] = rng.uniform(0.005, 0.2, size) * _EV, rng.uniform(0.005, 0.3, size) * _EV
     v["g_D"], v["g_A"] = rng.uniform(1.5, 4.0, size), rng.uniform(2.0, 6.0, size)
-    for name, (a, b) in {"mu_n": (-3.0, 0.0), "mu_p": (-3.0, 0.0), "L": (-8.0, -4.0),
-                         "W": (-7.0, -4.0), "t": (-8.0, -5.0), "lambda_n": (-9.0, -6.0),
-                         "lambda_p": (-9.0, -6.0), "E": (3.0, 7.0), "v_sat_n": (4.5, 5.5),
-                         "v_sat_p": (4.5, 5.5), "tau_n": (-10.0, -3.0),
-                         "tau_p": (-10.0, -3.0)}.items():
+    for name, (a, b) in {
+        "mu_n": (-3.0, 0.0),
+        "mu_p": (-3.0, 0.0),
+        "L": (-8.0, -4.0),
+        "W": (-7.0, -4.0),
+        "t": (-8.0, -5.0),
+        "lambda_n": (-9.0, -6.0),
+        "lambda_p": (-9.0, -6.0),
+        "E": (3.0, 7.0),
+        "v_sat_n": (4.5, 5.5),
+        "v_sat_p": (4.5, 5.5),
+        "tau_n": (-10.0, -3.0),
+        "tau_p": (-10.0, -3.0),
+    }.items():
         v[name] = 10.0 ** rng.uniform(a, b, size)
     v["beta_n"], v["beta_p"] = rng.uniform(1.0, 2.5, size), rng.uniform(1.0, 2.5, size)
     return v, eta_n
@@ -373,8 +460,9 @@ def _state(v, eta_n, gap=None):
     Eg = v["E_c"] - v["E_v"] if gap is None else gap
     bands = _Bands(Eg, v["N_c"], v["N_v"], v["dE_D"], v["dE_A"], v["g_D"], v["g_A"])
     none = np.zeros_like(eta_n)
-    return State(bands, v["T"], {"D": v["N_D"]}, {"A": v["N_A"]}, eta_n,
-                 none.astype(bool), none, none)
+    return State(
+        bands, v["T"], {"D": v["N_D"]}, {"A": v["N_A"]}, eta_n, none.astype(bool), none, none
+    )
 
 
 def _physics(name, v, state, dim, majority):
@@ -385,8 +473,10 @@ def _physics(name, v, state, dim, majority):
     n = v["N_c"] * fermi_dirac(j, state.eta_n)
     p = v["N_v"] * fermi_dirac(j, state.eta_p)
     lam = v[f"lambda_{majority}"]
-    fast = {x: transport.field_dependent_mobility(v[f"mu_{x}"], v["E"], v[f"v_sat_{x}"],
-                                                  v[f"beta_{x}"]) for x in "np"}
+    fast = {
+        x: transport.field_dependent_mobility(v[f"mu_{x}"], v["E"], v[f"v_sat_{x}"], v[f"beta_{x}"])
+        for x in "np"
+    }
     return {
         "eta_n": state.eta_n,
         "eta_p": state.eta_p,
@@ -399,10 +489,12 @@ def _physics(name, v, state, dim, majority):
         "E_A": v["E_v"] + state.material.dopant("A").energy,
         "f_D": ionized_density(state.material.dopant("D"), 1.0, state.eta_n, kT, v["N_D"]),
         "f_A": ionized_density(state.material.dopant("A"), 1.0, state.eta_p, kT, v["N_A"]),
-        "N_D_plus": ionized_density(state.material.dopant("D"), v["N_D"], state.eta_n, kT,
-                                    v["N_D"]),
-        "N_A_minus": ionized_density(state.material.dopant("A"), v["N_A"], state.eta_p, kT,
-                                     v["N_A"]),
+        "N_D_plus": ionized_density(
+            state.material.dopant("D"), v["N_D"], state.eta_n, kT, v["N_D"]
+        ),
+        "N_A_minus": ionized_density(
+            state.material.dopant("A"), v["N_A"], state.eta_p, kT, v["N_A"]
+        ),
         "D_n": transport.diffusion_coefficient(v["mu_n"], v["T"], state.eta_n, dim),
         "D_p": transport.diffusion_coefficient(v["mu_p"], v["T"], state.eta_p, dim),
         "sigma": transport.conductivity(n, p, v["mu_n"], v["mu_p"]),
@@ -413,18 +505,26 @@ def _physics(name, v, state, dim, majority):
         "hbar": np.full_like(kT, HBAR),
         # diffusion length sqrt(D tau) (Shockley, Electrons and Holes in Semiconductors
         # (1950), from memory) with the physics layer's D
-        "L_n": np.sqrt(transport.diffusion_coefficient(v["mu_n"], v["T"], state.eta_n, dim)
-                       * v["tau_n"]),
-        "L_p": np.sqrt(transport.diffusion_coefficient(v["mu_p"], v["T"], state.eta_p, dim)
-                       * v["tau_p"]),
+        "L_n": np.sqrt(
+            transport.diffusion_coefficient(v["mu_n"], v["T"], state.eta_n, dim) * v["tau_n"]
+        ),
+        "L_p": np.sqrt(
+            transport.diffusion_coefficient(v["mu_p"], v["T"], state.eta_p, dim) * v["tau_p"]
+        ),
         # R = rho (L + lambda)/A; A = W t (3D), the width W of a sheet (2D), 1 for a wire
         "R": transport.short_conductor_resistance(
-            transport.resistivity(n, p, v["mu_n"], v["mu_p"]), v["L"],
-            {3: v["W"] * v["t"], 2: v["W"], 1: 1.0}[dim], lam),
+            transport.resistivity(n, p, v["mu_n"], v["mu_p"]),
+            v["L"],
+            {3: v["W"] * v["t"], 2: v["W"], 1: 1.0}[dim],
+            lam,
+        ),
         # sheet resistance: the diffusive resistance of one square (side W)
         "R_s": transport.short_conductor_resistance(
-            transport.resistivity(n, p, v["mu_n"], v["mu_p"]), v["W"],
-            {3: v["W"] * v["t"], 2: v["W"]}.get(dim, np.nan), 0.0),
+            transport.resistivity(n, p, v["mu_n"], v["mu_p"]),
+            v["W"],
+            {3: v["W"] * v["t"], 2: v["W"]}.get(dim, np.nan),
+            0.0,
+        ),
         "A": v["W"] * v["t"],
     }.get(name)
 
@@ -434,17 +534,22 @@ def _mass_from_physics_dos(N_c, T, dim):
     form of MassPolynomialDOS (constant mass), in 2D from N_c = m kT/(pi hbar^2)
     (J. H. Davies, The Physics of Low-Dimensional Semiconductors (1998), ch. 1, from memory)."""
     if dim == 2:
-        return N_c * math.pi * sc.hbar ** 2 / (sc.k * T)
-    unit = MassPolynomialDOS((1.0,), np.inf, _ANY)(T)       # N_c of a band with m = m0
+        return N_c * math.pi * sc.hbar**2 / (sc.k * T)
+    unit = MassPolynomialDOS((1.0,), np.inf, _ANY)(T)  # N_c of a band with m = m0
     return (N_c / unit) ** (2.0 / 3.0) * ELECTRON_MASS
 
 
-WORLDS = [(dim, which, majority) for dim in (3, 2, 1) for which in ("donor", "acceptor")
-          for majority in ("n", "p")]
+WORLDS = [
+    (dim, which, majority)
+    for dim in (3, 2, 1)
+    for which in ("donor", "acceptor")
+    for majority in ("n", "p")
+]
 
 
-@pytest.mark.parametrize("dim, which, majority", WORLDS,
-                         ids=[f"{d}D-{w}-{m}" for d, w, m in WORLDS])
+@pytest.mark.parametrize(
+    "dim, which, majority", WORLDS, ids=[f"{d}D-{w}-{m}" for d, w, m in WORLDS]
+)
 def test_every_relation_is_the_physics_layer(dim, which, majority):
     base = world(dim, which, majority)
 
@@ -472,19 +577,22 @@ def test_every_relation_is_the_physics_layer(dim, which, majority):
             # the intrinsic level is where the physics layer's n equals p; checked with the
             # gap widened to 100 kT, where F_1/2(eta) = e^eta to 1e-21 (Sze & Ng 2007, ch. 1)
             wide = dict(v, E_c=v["E_v"] + 100 * state.kT)
-            at_level = _state(wide, (relation(name, wide) - wide["E_c"]) / state.kT,
-                              gap=100 * state.kT)
+            at_level = _state(
+                wide, (relation(name, wide) - wide["E_c"]) / state.kT, gap=100 * state.kT
+            )
             assert np.allclose(at_level.n / at_level.p, 1.0, rtol=1e-11, atol=0), name
         elif name in ("N_D", "N_A"):
             # charge neutrality n + N_A^- = p + N_D^+ (Sze & Ng 2007, ch. 1) with the
             # physics layer's densities of this dimensionality and its ionization statistics
             j = dim / 2 - 1
             negative = v["N_c"] * fermi_dirac(j, eta_n) + ionized_density(
-                state.material.dopant("A"), v["N_A"], state.eta_p, state.kT, v["N_A"])
+                state.material.dopant("A"), v["N_A"], state.eta_p, state.kT, v["N_A"]
+            )
             positive = v["N_v"] * fermi_dirac(j, state.eta_p) + ionized_density(
-                state.material.dopant("D"), v["N_D"], eta_n, state.kT, v["N_D"])
+                state.material.dopant("D"), v["N_D"], eta_n, state.kT, v["N_D"]
+            )
             assert np.allclose(negative, positive, rtol=1e-11, atol=0), name
-            if dim == 3:                      # the solver's own neutrality error
+            if dim == 3:  # the solver's own neutrality error
                 assert np.max(charge_balance_error(state)) < 1e-11, name
         elif name in ("m_n", "m_p"):
             band = "N_c" if name == "m_n" else "N_v"

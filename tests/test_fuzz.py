@@ -9,23 +9,28 @@ report that parses in its format (strict JSON, well-formed XML) and still report
 other files of the run.  This is the short, derandomized run of the default suite;
 bench/fuzz_inputs.py is the long one.
 """
+
 import json
 import re
 import sys
 
+import fuzz_inputs as fz
 import pytest
 from hypothesis import HealthCheck, given, settings
 
-import fuzz_inputs as fz
-
 # cases per kind: about 400 in all, well under a minute on two cores
-EXAMPLES = {"calculation": 90, "units": 60, "formulas": 60, "table": 60, "memo": 60,
-            "config": 60}
+EXAMPLES = {"calculation": 90, "units": 60, "formulas": 60, "table": 60, "memo": 60, "config": 60}
 
 
 def short_run(kind):
-    return settings(max_examples=EXAMPLES[kind], deadline=None, derandomize=True,
-                    database=None, suppress_health_check=list(HealthCheck), print_blob=True)
+    return settings(
+        max_examples=EXAMPLES[kind],
+        deadline=None,
+        derandomize=True,
+        database=None,
+        suppress_health_check=list(HealthCheck),
+        print_blob=True,
+    )
 
 
 # Open bugs the fuzz run found and reported, by failure signature (class, error, last
@@ -42,13 +47,15 @@ def _without_line(signature: str) -> str:
 
 def assert_sound(case: fz.Case, known=KNOWN_OPEN) -> fz.Outcome:
     outcome = fz.examine(case)
-    failures = [f for f in outcome.failures()
-                if _without_line(outcome.signature(f)) not in known]
+    failures = [f for f in outcome.failures() if _without_line(outcome.signature(f)) not in known]
     if outcome.code == 3 and not failures:
-        return outcome                   # only a known open bug: reported, tolerated here
+        return outcome  # only a known open bug: reported, tolerated here
     assert outcome.code in (0, 1, 2) and not failures, (
-        "\n".join(map(str, failures)) + "\n\n" + case.describe()
-        + f"\n\nexit code {outcome.code}\nstderr:\n{outcome.stderr[-2000:]}")
+        "\n".join(map(str, failures))
+        + "\n\n"
+        + case.describe()
+        + f"\n\nexit code {outcome.code}\nstderr:\n{outcome.stderr[-2000:]}"
+    )
     return outcome
 
 
@@ -64,11 +71,12 @@ def test_hostile_input_is_answered_soundly(kind):
 
 # --- the harness itself: each property it checks does catch its failure ----------------
 
+
 def test_a_sound_run_passes_and_reports_the_sentinel():
     case = fz.Case("calculation", {fz.SENTINEL_NAME: fz.SENTINEL}, ("--format", "json"))
     outcome = assert_sound(case)
     report = json.loads(outcome.stdout)
-    assert outcome.code == 1                                  # CONST01 fires on the sentinel
+    assert outcome.code == 1  # CONST01 fires on the sentinel
     assert [c["name"] for c in report["calculations"]] == ["sentinel calculation"]
 
 
@@ -130,7 +138,7 @@ def test_the_harness_turns_a_hang_into_a_failure(monkeypatch):
     release = threading.Event()
 
     def hangs(argv):
-        release.wait(30)              # held until the harness has given up on it
+        release.wait(30)  # held until the harness has given up on it
         return 0
 
     try:
@@ -149,8 +157,13 @@ def test_every_kind_reaches_the_checks(kind):
     codes = set()
 
     @fixed_seed(11)
-    @settings(max_examples=25, phases=[Phase.generate], deadline=None, database=None,
-              suppress_health_check=list(HealthCheck))
+    @settings(
+        max_examples=25,
+        phases=[Phase.generate],
+        deadline=None,
+        database=None,
+        suppress_health_check=list(HealthCheck),
+    )
     @given(fz.cases(kind, formats=("json",)))
     def collect(case):
         codes.add(case.run().code)
@@ -161,35 +174,46 @@ def test_every_kind_reaches_the_checks(kind):
 
 # --- bugs the fuzz run found (fixed; kept as regressions) --------------------------------
 
+
 def input_errors(outcome: fz.Outcome) -> list:
     assert outcome.code == 2, outcome.stderr
     return json.loads(outcome.stdout)["input_errors"]
 
 
 def test_table_header_with_an_unterminated_quote():
-    outcome = assert_sound(fz.Case("table", {"lots.csv": b'"', fz.SENTINEL_NAME: fz.SENTINEL},
-                                   ("--format", "json")), known={})
+    outcome = assert_sound(
+        fz.Case("table", {"lots.csv": b'"', fz.SENTINEL_NAME: fz.SENTINEL}, ("--format", "json")),
+        known={},
+    )
     assert any("lots.csv:1: malformed CSV" in e for e in input_errors(outcome))
 
 
-@pytest.mark.parametrize("material", [
-    "{name: X, band_gap: {model: [varshni]}}",
-    "{name: X, band_gap_narrowing: {model: [slotboom]}}",
-    "{name: X, mobility: {electron: {models: {m: {model: {a: 1}}}}}}",
-])
+@pytest.mark.parametrize(
+    "material",
+    [
+        "{name: X, band_gap: {model: [varshni]}}",
+        "{name: X, band_gap_narrowing: {model: [slotboom]}}",
+        "{name: X, mobility: {electron: {models: {m: {model: {a: 1}}}}}}",
+    ],
+)
 def test_material_model_that_is_not_a_word(material):
     text = f"material: {material}\ntemperature: 300 K\n".encode()
-    outcome = assert_sound(fz.Case("calculation",
-                                   {"calc.yaml": text, fz.SENTINEL_NAME: fz.SENTINEL},
-                                   ("--format", "json")), known={})
-    assert any("/calc.yaml:1:" in e and "model must be one of" in e
-               for e in input_errors(outcome))
+    outcome = assert_sound(
+        fz.Case(
+            "calculation", {"calc.yaml": text, fz.SENTINEL_NAME: fz.SENTINEL}, ("--format", "json")
+        ),
+        known={},
+    )
+    assert any("/calc.yaml:1:" in e and "model must be one of" in e for e in input_errors(outcome))
 
 
 def test_brackets_nested_twenty_thousand_deep_are_refused_within_the_bound():
     text = b"material: Si\ntemperature: 300 K\nstated: {a: " + b"[" * 20000 + b"\n"
-    outcome = assert_sound(fz.Case("calculation", {"calc.yaml": text,
-                                                   fz.SENTINEL_NAME: fz.SENTINEL},
-                                   ("--format", "json")), known={})
+    outcome = assert_sound(
+        fz.Case(
+            "calculation", {"calc.yaml": text, fz.SENTINEL_NAME: fz.SENTINEL}, ("--format", "json")
+        ),
+        known={},
+    )
     errors = input_errors(outcome)
     assert any("calc.yaml:3" in e and "nested" in e for e in errors), errors

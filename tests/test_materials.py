@@ -1,21 +1,37 @@
 """Material data against published handbook values (sources named per check)."""
+
 import math
 
 import pytest
 import scipy.constants as sc
-
-from checker import InputError, MissingParameterError, builtin_materials, load_material, solve_equilibrium
-from checker.inputs.material_catalog import material_from_mapping, missing_parameters
-from checker.physics.materials import MassPolynomialDOS, Provenance
 from conftest import PER_CM3
 from reference import reference_solve
+
+from checker import (
+    InputError,
+    MissingParameterError,
+    builtin_materials,
+    load_material,
+    solve_equilibrium,
+)
+from checker.inputs.material_catalog import material_from_mapping, missing_parameters
+from checker.physics.materials import MassPolynomialDOS, Provenance
 
 EV = sc.e
 CM2 = 1e-4
 
 
 def test_all_eight_materials_are_built_in():
-    assert set(builtin_materials()) == {"Si", "Ge", "GaAs", "InP", "GaN", "4H-SiC", "InAs", "InGaAs"}
+    assert set(builtin_materials()) == {
+        "Si",
+        "Ge",
+        "GaAs",
+        "InP",
+        "GaN",
+        "4H-SiC",
+        "InAs",
+        "InGaAs",
+    }
 
 
 @pytest.mark.parametrize("name", ["Si", "Ge", "GaAs", "InP", "GaN", "4H-SiC", "InAs", "InGaAs"])
@@ -71,8 +87,9 @@ def test_effective_density_of_states_prefactor():
     assert float(unit_mass(300.0)) / PER_CM3 == pytest.approx(25.09e18, rel=2e-4)
     # Si N_c = 2.86e19 corresponds to m_dos = 1.09 m0 (Green, J. Appl. Phys. 67, 2944 (1990))
     si = load_material("Si")
-    assert (float(si.Nc(300.0)) / float(unit_mass(300.0))) ** (2 / 3) == pytest.approx(1.09,
-                                                                                      abs=0.005)
+    assert (float(si.Nc(300.0)) / float(unit_mass(300.0))) ** (2 / 3) == pytest.approx(
+        1.09, abs=0.005
+    )
 
 
 class TestSiliconMobility:
@@ -102,10 +119,13 @@ class TestSiliconMobility:
         assert float(si.hole.vsat(293.0)) * 100 == pytest.approx(8.447804e6, rel=2e-5)
 
 
-@pytest.mark.parametrize("species, published, source", [
-    ("P", 3.74e18, "Rosenbaum et al., Phys. Rev. B 27, 7509 (1983)"),
-    ("B", 4.06e18, "Dai, Zhang & Sarachik, Phys. Rev. Lett. 66, 1914 (1991) (from memory)"),
-])
+@pytest.mark.parametrize(
+    "species, published, source",
+    [
+        ("P", 3.74e18, "Rosenbaum et al., Phys. Rev. B 27, 7509 (1983)"),
+        ("B", 4.06e18, "Dai, Zhang & Sarachik, Phys. Rev. Lett. 66, 1914 (1991) (from memory)"),
+    ],
+)
 def test_metallic_from_the_measured_mott_density(species, published, source):
     # the solve calls silicon metallic from the measured metal-insulator transition on
     group = "donors" if species == "P" else "acceptors"
@@ -165,19 +185,23 @@ def test_user_defined_material_reports_what_is_missing():
     missing = missing_parameters(material)
     assert "mobility" in missing and "conductivity" in missing["mobility"]
     from checker import carrier_transport
+
     state = solve_equilibrium(material, 300.0, {"D1": 1e16 * PER_CM3})
     with pytest.raises(MissingParameterError, match="has no 'electron'.*needed for mobility"):
         carrier_transport(state)
 
 
-@pytest.mark.parametrize("field,value,text", [
-    ("band_gap", {"Eg0": "1.0"}, "has no unit"),
-    ("band_gap", {"Eg0": "1.0 cm-3"}, "unit of density where energy is expected"),
-    ("band_gap", {"alpha": "3e-4 eV/K"}, "missing 'Eg0'"),
-    ("dopants", {"D1": {"kind": "donor"}}, "missing 'energy'"),
-    ("dopants", {"D1": {"kind": "neutral", "energy": "1 meV"}}, "kind must be"),
-    ("colour", "blue", "unknown material field"),
-])
+@pytest.mark.parametrize(
+    "field,value,text",
+    [
+        ("band_gap", {"Eg0": "1.0"}, "has no unit"),
+        ("band_gap", {"Eg0": "1.0 cm-3"}, "unit of density where energy is expected"),
+        ("band_gap", {"alpha": "3e-4 eV/K"}, "missing 'Eg0'"),
+        ("dopants", {"D1": {"kind": "donor"}}, "missing 'energy'"),
+        ("dopants", {"D1": {"kind": "neutral", "energy": "1 meV"}}, "kind must be"),
+        ("colour", "blue", "unknown material field"),
+    ],
+)
 def test_user_defined_material_bad_input(field, value, text):
     data = _minimal_user_material()
     data[field] = value
@@ -196,6 +220,7 @@ def test_no_solve_without_band_data():
 def test_shipped_data_is_found_from_another_directory(tmp_path, monkeypatch):
     monkeypatch.chdir(tmp_path)
     from checker.resources import materials_dir, rules_dir
+
     assert (materials_dir() / "Si.yaml").is_file()
     assert (rules_dir() / "README.md").is_file()
 

@@ -8,6 +8,7 @@ Python's expat parser (xml.etree), the json module, the OASIS SARIF 2.1.0 schema
 Unicode character categories of Python's unicodedata (Cc control, Cs surrogate), and
 matplotlib's own text layout.
 """
+
 import json
 import os
 import sys
@@ -31,8 +32,9 @@ from checker.report.markdown_report import render_markdown
 from checker.report.safe_text import visible
 
 HOSTILE_NAME = "\ud800 <script>alert(1)</script> \x1b[31mRED\x1b[0m \x01 \ufffe \u202e|x"
-HOSTILE_REASON = ("<img src=x onerror=alert(2)></td></tr><iframe src=//evil> \x07 `code` "
-                  "[a](javascript:x)")
+HOSTILE_REASON = (
+    "<img src=x onerror=alert(2)></td></tr><iframe src=//evil> \x07 `code` [a](javascript:x)"
+)
 HOSTILE_FILE = "odd`dir|\x1b]0;title\x07/\udcff.yaml"
 CALCULATION = """name: plain
 material: Si
@@ -52,8 +54,12 @@ def xml_char_allowed(ch: str) -> bool:
     """W3C XML 1.0 (5th ed.) §2.2: Char ::= #x9 | #xA | #xD | [#x20-#xD7FF] |
     [#xE000-#xFFFD] | [#x10000-#x10FFFF]."""
     c = ord(ch)
-    return (c in (0x9, 0xA, 0xD) or 0x20 <= c <= 0xD7FF or 0xE000 <= c <= 0xFFFD
-            or 0x10000 <= c <= 0x10FFFF)
+    return (
+        c in (0x9, 0xA, 0xD)
+        or 0x20 <= c <= 0xD7FF
+        or 0xE000 <= c <= 0xFFFD
+        or 0x10000 <= c <= 0x10FFFF
+    )
 
 
 @pytest.fixture
@@ -63,10 +69,10 @@ def hostile(tmp_path):
     path = tmp_path / "calc.yaml"
     path.write_text(CALCULATION, encoding="utf-8")
     result = check_paths([str(path)])
-    report, = result.reports
+    (report,) = result.reports
     report.calc.name = HOSTILE_NAME
     report.calc.source = HOSTILE_FILE
-    finding, = report.findings
+    (finding,) = report.findings
     finding.file = HOSTILE_FILE
     finding.waived = HOSTILE_REASON
     report.notes.append(f"note on {HOSTILE_NAME}")
@@ -74,9 +80,13 @@ def hostile(tmp_path):
     return result
 
 
-RENDER = {"json": lambda r: render_json(r, 1), "markdown": lambda r: render_markdown(r, 1),
-          "sarif": lambda r: render_sarif(r, 1), "junit": lambda r: render_junit(r, 1, "warning"),
-          "html": lambda r: render_html(r, 1)}
+RENDER = {
+    "json": lambda r: render_json(r, 1),
+    "markdown": lambda r: render_markdown(r, 1),
+    "sarif": lambda r: render_sarif(r, 1),
+    "junit": lambda r: render_junit(r, 1, "warning"),
+    "html": lambda r: render_html(r, 1),
+}
 
 
 def rendered(result, fmt):
@@ -88,14 +98,14 @@ def rendered(result, fmt):
         text = stream.getvalue()
     else:
         text = RENDER[fmt](result)
-    text.encode("utf-8")                 # no lone surrogate left to crash a writer
+    text.encode("utf-8")  # no lone surrogate left to crash a writer
     return text
 
 
 def report(path, fmt, capsys):
     code = main(["check", str(path), "--format", fmt])
     out, err = capsys.readouterr()
-    assert code in (0, 1), err           # a report, not an input (2) or internal (3) error
+    assert code in (0, 1), err  # a report, not an input (2) or internal (3) error
     out.encode("utf-8")
     return out
 
@@ -121,7 +131,7 @@ def test_any_text_made_visible_is_xml_and_utf8(text):
     safe.encode("utf-8")
     element = ET.Element("a", b=safe)
     element.text = safe
-    back = ET.fromstring(ET.tostring(element, encoding="unicode"))    # expat: XML 1.0
+    back = ET.fromstring(ET.tostring(element, encoding="unicode"))  # expat: XML 1.0
     assert back.get("b") == safe and (back.text or "") == safe
 
 
@@ -144,7 +154,7 @@ def test_terminal_colours_are_ours_only(hostile):
     stream = io.StringIO()
     render_console(hostile, Console(file=stream, force_terminal=True, width=100))
     out = stream.getvalue()
-    assert "\x1b[" in out                    # rich styles the text itself
+    assert "\x1b[" in out  # rich styles the text itself
     assert "\x1b[31mRED" not in out and "\x1b]0;" not in out
     assert r"\x1b[31mRED" in out
     assert not any(ch in out for ch in RAW if ch != "\x1b")
@@ -156,10 +166,11 @@ def test_json_and_sarif_parse_and_show_the_name(hostile):
     assert name == visible(HOSTILE_NAME)
     assert name.startswith(r"\ud800 <script>") and r"\x1b[31mRED" in name
     log = json.loads(rendered(hostile, "sarif"))
-    schema = json.loads((Path(__file__).parent / "data" / "sarif-schema-2.1.0.json")
-                        .read_text(encoding="utf-8"))
-    jsonschema.Draft7Validator(schema).validate(log)      # the OASIS SARIF 2.1.0 schema
-    result, = log["runs"][0]["results"]
+    schema = json.loads(
+        (Path(__file__).parent / "data" / "sarif-schema-2.1.0.json").read_text(encoding="utf-8")
+    )
+    jsonschema.Draft7Validator(schema).validate(log)  # the OASIS SARIF 2.1.0 schema
+    (result,) = log["runs"][0]["results"]
     assert result["properties"]["calculation"] == name
     assert result["suppressions"][0]["justification"].startswith("<img src=x")
 
@@ -169,10 +180,10 @@ def test_junit_and_html_are_well_formed_xml(hostile):
     names = [case.get("name") for case in junit.iter("testcase")]
     assert any(r"\ud800 <script>" in n and r"\x01" in n for n in names)
     page = rendered(hostile, "html")
-    root = ET.fromstring(page.split("\n", 1)[1].encode("utf-8"))   # after the DOCTYPE
+    root = ET.fromstring(page.split("\n", 1)[1].encode("utf-8"))  # after the DOCTYPE
     tags = {element.tag.split("}")[-1] for element in root.iter()}
     assert not tags & {"script", "img", "iframe"}
-    assert "<script>alert(1)</script>" in "".join(root.itertext())   # shown as text
+    assert "<script>alert(1)</script>" in "".join(root.itertext())  # shown as text
 
 
 def test_markdown_renders_no_html_from_user_text(hostile):
@@ -181,10 +192,10 @@ def test_markdown_renders_no_html_from_user_text(hostile):
     html = MarkdownIt("commonmark", {"html": True}).enable("table").render(text)
     for tag in ("<script", "<img", "<iframe", "<a href", "</tr><iframe"):
         assert tag not in html, tag
-    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in html     # visible as text
+    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in html  # visible as text
     assert "onerror=alert(2)" in html
     table = html.split("<tbody>", 1)[1].split("</tbody>", 1)[0]
-    row, = [r for r in table.split("<tr>") if "CONST01" in r]
+    (row,) = [r for r in table.split("<tr>") if "CONST01" in r]
     # the pipes, backticks and closing tags of the name, file and reason stay in their cells
     assert row.count("<td>") == 5
     assert "<code>odd`dir|" in row
@@ -202,17 +213,18 @@ def test_file_name_that_is_not_utf8(tmp_path, capsys):
         assert r"bad\udcff name.yaml" in out.replace("\\\\", "\\"), fmt
     # SARIF locations are URI references: RFC 3986 percent-encoding of the name's own bytes
     log = json.loads(report(folder, "sarif", capsys))
-    location, = [r["locations"][0]["physicalLocation"]["artifactLocation"]["uri"]
-                 for r in log["runs"][0]["results"]]
+    (location,) = [
+        r["locations"][0]["physicalLocation"]["artifactLocation"]["uri"]
+        for r in log["runs"][0]["results"]
+    ]
     assert " " not in location
     assert unquote_to_bytes(location) == raw
 
 
 def test_state_command_takes_names_as_text_not_markup(tmp_path, capsys):
     calc = tmp_path / "calc.yaml"
-    calc.write_text(CALCULATION.replace("name: plain", 'name: "[/] [bold]x"'),
-                    encoding="utf-8")
-    assert main(["state", str(calc)]) == 0          # rich would fail on "[/]" as markup
+    calc.write_text(CALCULATION.replace("name: plain", 'name: "[/] [bold]x"'), encoding="utf-8")
+    assert main(["state", str(calc)]) == 0  # rich would fail on "[/]" as markup
     assert "[/] [bold]x" in capsys.readouterr().out
     assert main(["state", str(calc), "--format", "json"]) == 0
     assert json.loads(capsys.readouterr().out)["points"][0]["name"] == "[/] [bold]x"
@@ -227,8 +239,9 @@ def test_state_report_escapes_what_a_reader_let_through():
 
     summary = {key: 0.0 for key, _, _ in state_report.ROWS}
     stream = io.StringIO()
-    state_report.render_console([(HOSTILE_NAME, HOSTILE_FILE, summary)], [HOSTILE_NAME],
-                                Console(file=stream, width=100))
+    state_report.render_console(
+        [(HOSTILE_NAME, HOSTILE_FILE, summary)], [HOSTILE_NAME], Console(file=stream, width=100)
+    )
     data = state_report.render_json([(HOSTILE_NAME, HOSTILE_FILE, summary)], [HOSTILE_NAME])
     for text in (stream.getvalue(), data):
         assert not any(ch in text for ch in RAW)
@@ -243,8 +256,10 @@ def test_plot_titles_with_dollar_signs_and_controls():
     from checker.report.plots import draw_eta_curve, render
 
     # matplotlib reads text between two $ as mathtext; "\frac{" alone does not parse
-    fig = draw_eta_curve(eta_curve(resolve_material("Si"), "P", 1e23, np.linspace(100, 400, 20)),
-                         title="cost $\\frac{ and $5 \x1b[0m \ud800")
+    fig = draw_eta_curve(
+        eta_curve(resolve_material("Si"), "P", 1e23, np.linspace(100, 400, 20)),
+        title="cost $\\frac{ and $5 \x1b[0m \ud800",
+    )
     svg = render(fig, "svg").decode("utf-8")
     ET.fromstring(svg)
     assert r"\x1b[0m" in svg and r"\ud800" in svg
@@ -253,13 +268,16 @@ def test_plot_titles_with_dollar_signs_and_controls():
 @pytest.mark.parametrize("fmt", ["console", "json", "markdown", "sarif", "junit", "html"])
 def test_zero_acceptor_density_and_sweep_from_zero(tmp_path, capsys, fmt):
     calc = tmp_path / "zero.yaml"
-    calc.write_text("name: zero boron\nmaterial: Si\ntemperature: 300 K\n"
-                    "doping:\n  acceptors: {B: 0 cm-3}\n---\n"
-                    "name: boron from zero\nmaterial: Si\ntemperature: 300 K\n"
-                    "doping:\n  acceptors: {B: {from: 0 cm-3, to: 1e17 cm-3, steps: 5, "
-                    "spacing: linear}}\n", encoding="utf-8")
+    calc.write_text(
+        "name: zero boron\nmaterial: Si\ntemperature: 300 K\n"
+        "doping:\n  acceptors: {B: 0 cm-3}\n---\n"
+        "name: boron from zero\nmaterial: Si\ntemperature: 300 K\n"
+        "doping:\n  acceptors: {B: {from: 0 cm-3, to: 1e17 cm-3, steps: 5, "
+        "spacing: linear}}\n",
+        encoding="utf-8",
+    )
     out = report(calc, fmt, capsys)
-    if fmt == "sarif":        # SARIF names calculations only in results, and none fired
+    if fmt == "sarif":  # SARIF names calculations only in results, and none fired
         assert json.loads(out)["runs"][0]["invocations"][0]["executionSuccessful"]
     else:
         assert "zero boron" in out and "boron from zero" in out

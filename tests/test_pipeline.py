@@ -8,6 +8,7 @@
 - No module imports a layer above its own (physics < inputs < engine < report < api,
   cli), and the plots draw what the engine computed.
 """
+
 import ast
 import json
 import subprocess
@@ -16,24 +17,24 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from reference import K_B, ionized_fraction, mp_fermi_half
+from test_sweep import TWO_AXES
+from test_sweep import _calc as sweep_calculation
 
 from checker import load_material
-from checker.engine.regime import rulebook
-from checker.engine.regime import sweep
 from checker.engine.findings import carrier_code
+from checker.engine.regime import rulebook, sweep
 from checker.engine.run import check_calculations
-from reference import K_B, ionized_fraction, mp_fermi_half
-from test_sweep import TWO_AXES, _calc as sweep_calculation
 
 ROOT = Path(__file__).resolve().parents[1]
 
+
 def _command(*args):
     """regimecheck ARGS from the repository's package."""
-    code = ("import sys\n"
-            "import checker.cli\n"
-            "sys.exit(checker.cli.main(sys.argv[1:]))\n")
-    done = subprocess.run([sys.executable, "-c", code, *args], cwd=ROOT, capture_output=True,
-                          text=True)
+    code = "import sys\nimport checker.cli\nsys.exit(checker.cli.main(sys.argv[1:]))\n"
+    done = subprocess.run(
+        [sys.executable, "-c", code, *args], cwd=ROOT, capture_output=True, text=True
+    )
     assert done.returncode in (0, 1), done.stderr
     return done.stdout
 
@@ -50,7 +51,7 @@ def test_grid_cells_give_the_findings_of_single_points(tmp_path):
     calc = sweep_calculation(tmp_path, TWO_AXES)
     rules = rulebook.load_rules()
     report = check_calculations([calc]).reports[0]
-    assert report.embodied                       # the formula's assumptions reach the grid
+    assert report.embodied  # the formula's assumptions reach the grid
     grid_points = sweep.grid(calc)
     masks, _ = sweep.rule_grid(calc, rules, report.embodied, grid_points)
     T, donors, acceptors, _ = grid_points
@@ -59,19 +60,23 @@ def test_grid_cells_give_the_findings_of_single_points(tmp_path):
     sides = set()
     for index in rng.choice(T.size, 25, replace=False):
         point = sweep.point(calc, T, donors, acceptors, index)
-        single = {(f.rule, carrier_code(f.carrier))
-                  for f in check_calculations([point]).reports[0].findings
-                  if not f.rule.startswith("FORM")}
-        on_grid = {(rule, x or None) for (rule, x), (mask, _) in masks.items()
-                   if mask.ravel()[index]}
+        single = {
+            (f.rule, carrier_code(f.carrier))
+            for f in check_calculations([point]).reports[0].findings
+            if not f.rule.startswith("FORM")
+        }
+        on_grid = {
+            (rule, x or None) for (rule, x), (mask, _) in masks.items() if mask.ravel()[index]
+        }
         assert on_grid == single, (index, on_grid, single)
         # the 3kT rule (Sze & Ng 2007, ch. 1): the Fermi level lies above E_C - 3kT where
         # the 40-digit neutrality balance is still negative at eta_n = -3
-        balance = _charge_at(silicon, -3, float(T[index]), float(donors["P"][index]),
-                             float(acceptors["B"][index]))
+        balance = _charge_at(
+            silicon, -3, float(T[index]), float(donors["P"][index]), float(acceptors["B"][index])
+        )
         assert (("STAT01", "n") in on_grid) is (balance < 0), (index, balance)
         sides.add(balance < 0)
-    assert sides == {True, False}          # the sample has cells on both sides of 3kT
+    assert sides == {True, False}  # the sample has cells on both sides of 3kT
 
 
 def _charge_at(material, eta, T, N_D, N_A):
@@ -83,10 +88,12 @@ def _charge_at(material, eta, T, N_D, N_A):
     with mp.workdps(40):
         kT = mp.mpf(K_B) * T
         eta_p = -eta - mp.mpf(float(material.band_gap(T))) / kT
-        return float(mp.mpf(float(material.Nc(T))) * mp_fermi_half(eta)
-                     - mp.mpf(float(material.Nv(T))) * mp_fermi_half(eta_p)
-                     + N_A * ionized_fraction(material.dopant("B"), eta_p, kT, N_A)
-                     - N_D * ionized_fraction(material.dopant("P"), eta, kT, N_D))
+        return float(
+            mp.mpf(float(material.Nc(T))) * mp_fermi_half(eta)
+            - mp.mpf(float(material.Nv(T))) * mp_fermi_half(eta_p)
+            + N_A * ionized_fraction(material.dopant("B"), eta_p, kT, N_A)
+            - N_D * ionized_fraction(material.dopant("P"), eta, kT, N_D)
+        )
 
 
 LAYERS = ["physics", "inputs", "engine", "report", "api|cli"]
@@ -96,29 +103,32 @@ def _modules(layer):
     if "|" in layer:
         return [f"checker.{name}" for name in layer.split("|")]
     folder = ROOT / "checker" / layer
-    return [f"checker.{layer}.{p.stem}" for p in sorted(folder.glob("*.py"))
-            if p.stem != "__init__"] + [f"checker.{layer}"]
+    return [
+        f"checker.{layer}.{p.stem}" for p in sorted(folder.glob("*.py")) if p.stem != "__init__"
+    ] + [f"checker.{layer}"]
 
 
 @pytest.mark.parametrize("layer", LAYERS[:-1])
 def test_no_layer_imports_one_above_it(layer):
-    above = [m for name in LAYERS[LAYERS.index(layer) + 1:] for m in _modules(name)]
-    code = ("import importlib, json, sys\n"
-            f"for name in {_modules(layer)!r}:\n"
-            "    importlib.import_module(name)\n"
-            f"print(json.dumps(sorted(m for m in sys.modules if m in {above!r})))\n")
-    done = subprocess.run([sys.executable, "-c", code], cwd=ROOT, capture_output=True,
-                          text=True)
+    above = [m for name in LAYERS[LAYERS.index(layer) + 1 :] for m in _modules(name)]
+    code = (
+        "import importlib, json, sys\n"
+        f"for name in {_modules(layer)!r}:\n"
+        "    importlib.import_module(name)\n"
+        f"print(json.dumps(sorted(m for m in sys.modules if m in {above!r})))\n"
+    )
+    done = subprocess.run([sys.executable, "-c", code], cwd=ROOT, capture_output=True, text=True)
     assert done.returncode == 0, done.stderr
     assert json.loads(done.stdout) == []
 
 
 def test_plots_draw_without_solving():
     """The plots take the engine's grid and curve; nothing in report/ solves."""
-    code = ("import sys, checker.report.plots\n"
-            "print(sorted(m for m in sys.modules if m.startswith('checker.engine')))\n")
-    done = subprocess.run([sys.executable, "-c", code], cwd=ROOT, capture_output=True,
-                          text=True)
+    code = (
+        "import sys, checker.report.plots\n"
+        "print(sorted(m for m in sys.modules if m.startswith('checker.engine')))\n"
+    )
+    done = subprocess.run([sys.executable, "-c", code], cwd=ROOT, capture_output=True, text=True)
     assert done.returncode == 0 and done.stdout.strip() == "[]", done.stdout + done.stderr
     for path in sorted((ROOT / "checker" / "report").glob("*.py")):
         for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):

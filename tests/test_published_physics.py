@@ -5,19 +5,20 @@ temperature, n_i and N_c/N_v, two-site donors in 4H-SiC, saturation velocity.
 Each expected value is written out here from the named publication (never taken from
 the package); tolerances are the publications' own stated accuracy where they give one.
 """
+
 import math
 
 import numpy as np
 import pytest
 import scipy.constants as sc
+from reference import reference_solve
 
 from checker.api import carrier_transport, solve_equilibrium
 from checker.inputs.material_catalog import resolve_material
 from checker.physics import transport
-from reference import reference_solve
 
 PER_CM3 = 1e6
-T_ASTM = 296.15        # 23 degC, the temperature of ASTM F723
+T_ASTM = 296.15  # 23 degC, the temperature of ASTM F723
 
 
 def _astm_boron(N):
@@ -28,24 +29,41 @@ def _astm_boron(N):
 def _astm_phosphorus(N):
     """ASTM F723-99 eqs. (5)-(6): rho = (6.242e18/N) 10^Z, rational cubic in log10 N - 16."""
     y = math.log10(N) - 16
-    z = ((-3.0769 + 2.2108 * y - 0.62272 * y ** 2 + 0.057501 * y ** 3)
-         / (1 - 0.68157 * y + 0.19833 * y ** 2 - 0.018376 * y ** 3))
-    return 6.242e18 / N * 10 ** z
+    z = (-3.0769 + 2.2108 * y - 0.62272 * y**2 + 0.057501 * y**3) / (
+        1 - 0.68157 * y + 0.19833 * y**2 - 0.018376 * y**3
+    )
+    return 6.242e18 / N * 10**z
 
 
-DENSITIES = [1e13, 1e14, 1e15, 1e16, 1e17, 3e17, 1e18, 2e18, 3e18, 3.7e18, 3.8e18, 5e18,
-             1e19, 3e19, 1e20]
+DENSITIES = [
+    1e13,
+    1e14,
+    1e15,
+    1e16,
+    1e17,
+    3e17,
+    1e18,
+    2e18,
+    3e18,
+    3.7e18,
+    3.8e18,
+    5e18,
+    1e19,
+    3e19,
+    1e20,
+]
 
 
 @pytest.mark.parametrize("N", DENSITIES)
-@pytest.mark.parametrize("species,kind,standard", [("P", "donors", _astm_phosphorus),
-                                                   ("B", "acceptors", _astm_boron)])
+@pytest.mark.parametrize(
+    "species,kind,standard", [("P", "donors", _astm_phosphorus), ("B", "acceptors", _astm_boron)]
+)
 def test_silicon_resistivity_follows_the_conversion_standard(N, species, kind, standard):
     # ASTM F723 (Thurber et al. 1980/81) at 23 degC, +-10 % (the issue's acceptance band;
     # the standard's own two directions differ by up to 6 % near 3e18)
     doping = {species: N * PER_CM3}
     state = solve_equilibrium("Si", T_ASTM, **{kind: doping})
-    rho = float(carrier_transport(state)["rho"]) * 100.0      # ohm m -> ohm cm
+    rho = float(carrier_transport(state)["rho"]) * 100.0  # ohm m -> ohm cm
     assert rho == pytest.approx(standard(N), rel=0.10)
 
 
@@ -61,9 +79,10 @@ def test_no_step_in_ionization_or_resistivity_through_the_mott_density(species, 
     assert np.max(np.abs(np.diff(np.log(rho)))) < 0.01
 
 
-@pytest.mark.parametrize("species,kind,published", [("P", "donors", 0.76),
-                                                    ("As", "donors", 0.66),
-                                                    ("B", "acceptors", 0.73)])
+@pytest.mark.parametrize(
+    "species,kind,published",
+    [("P", "donors", 0.76), ("As", "donors", 0.66), ("B", "acceptors", 0.73)],
+)
 def test_ionized_fraction_minimum_at_300K(species, kind, published):
     # Altermatt et al., J. Appl. Phys. 100, 113715 (2006), Fig. 5: the 300 K ionized
     # fraction bottoms out near 0.76 (P), 0.66 (As), 0.73 (B) around 1e18-1e19 cm^-3.
@@ -83,8 +102,8 @@ def _arora(N, T, carrier):
         mu_min, mu_0, b2, N_ref = 88.0, 7.4e8, -2.33, 1.26e17
     else:
         mu_min, mu_0, b2, N_ref = 54.3, 1.36e8, -2.23, 2.35e17
-    alpha = 0.88 * Tn ** -0.146
-    return mu_min * Tn ** -0.57 + mu_0 * T ** b2 / (1 + (N / (N_ref * Tn ** 2.4)) ** alpha)
+    alpha = 0.88 * Tn**-0.146
+    return mu_min * Tn**-0.57 + mu_0 * T**b2 / (1 + (N / (N_ref * Tn**2.4)) ** alpha)
 
 
 @pytest.mark.parametrize("T", [250.0, 300.0, 350.0, 400.0, 450.0, 500.0])
@@ -157,9 +176,9 @@ def test_density_of_states_masses_match_couderc():
     # D_v = 0.3426 + 3.376e-3 T - 4.689e-6 T^2 + 2.525e-9 T^3; prefactor from scipy.constants
     material = resolve_material("Si")
     for T in (77.0, 200.0, 300.0, 450.0):
-        pre = 2 * (2 * math.pi * sc.m_e * sc.k * T / sc.h ** 2) ** 1.5
-        dc = 1.094 - 1.312e-5 * T + 6.753e-7 * T ** 2 - 4.609e-10 * T ** 3
-        dv = 0.3426 + 3.376e-3 * T - 4.689e-6 * T ** 2 + 2.525e-9 * T ** 3
+        pre = 2 * (2 * math.pi * sc.m_e * sc.k * T / sc.h**2) ** 1.5
+        dc = 1.094 - 1.312e-5 * T + 6.753e-7 * T**2 - 4.609e-10 * T**3
+        dv = 0.3426 + 3.376e-3 * T - 4.689e-6 * T**2 + 2.525e-9 * T**3
         assert float(material.Nc(T)) == pytest.approx(pre * dc, rel=1e-9)
         assert float(material.Nv(T)) == pytest.approx(pre * dv, rel=1e-9)
 
@@ -172,8 +191,9 @@ def test_sic_nitrogen_on_two_lattice_sites(N):
     material = resolve_material("4H-SiC")
     donors = {"N": N * PER_CM3}
     state = solve_equilibrium(material, 300.0, donors)
-    assert float(state.eta_n) == pytest.approx(reference_solve(material, 300.0, donors, {}),
-                                               rel=1e-9, abs=1e-9)
+    assert float(state.eta_n) == pytest.approx(
+        reference_solve(material, 300.0, donors, {}), rel=1e-9, abs=1e-9
+    )
     levels = material.dopant("N").bound_levels()
     assert sorted(round(level.energy / sc.e * 1e3, 1) for level in levels) == [61.4, 125.5]
 
@@ -183,11 +203,11 @@ def _canali(E, T, carrier):
     v_m = 1.53e9 T^-0.87 / 1.62e8 T^-0.52 cm/s, E_c = 1.01 T^1.55 / 1.24 T^1.68 V/cm,
     b = 2.57e-2 T^0.66 / 0.46 T^0.17 (electrons / holes)."""
     if carrier == "n":
-        vm, Ec, b = 1.53e9 * T ** -0.87, 1.01 * T ** 1.55, 2.57e-2 * T ** 0.66
+        vm, Ec, b = 1.53e9 * T**-0.87, 1.01 * T**1.55, 2.57e-2 * T**0.66
     else:
-        vm, Ec, b = 1.62e8 * T ** -0.52, 1.24 * T ** 1.68, 0.46 * T ** 0.17
+        vm, Ec, b = 1.62e8 * T**-0.52, 1.24 * T**1.68, 0.46 * T**0.17
     x = E / Ec
-    return vm * x / (1 + x ** b) ** (1 / b)
+    return vm * x / (1 + x**b) ** (1 / b)
 
 
 @pytest.mark.parametrize("E_kV", [10.0, 30.0, 100.0])
@@ -195,6 +215,7 @@ def _canali(E, T, carrier):
 def test_high_field_velocity_at_300K_within_5_percent_of_canali(E_kV, carrier):
     state = solve_equilibrium("Si", 300.0)
     flow = carrier_transport(state)
-    v = transport.drift_velocity(flow[f"mu_{carrier}"], E_kV * 1e5, flow[f"vsat_{carrier}"],
-                                 flow[f"beta_{carrier}"])
+    v = transport.drift_velocity(
+        flow[f"mu_{carrier}"], E_kV * 1e5, flow[f"vsat_{carrier}"], flow[f"beta_{carrier}"]
+    )
     assert float(v) * 100 == pytest.approx(_canali(E_kV * 1e3, 300.0, carrier), rel=0.05)

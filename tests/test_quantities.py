@@ -1,4 +1,5 @@
 """Quantity strings: the fast table, pint behind the gate, and the refusals."""
+
 import pytest
 import scipy.constants as sc
 
@@ -6,23 +7,26 @@ from checker.errors import InputError
 from checker.inputs.quantities import parse_quantity, parse_temperature
 
 
-@pytest.mark.parametrize("text, dimension, si", [
-    ("1e17 cm-3", "density", 1e23),
-    ("1.0e17 /cm^3", "density", 1e23),
-    ("3e23 m^-3", "density", 3e23),
-    ("2 um", "length", 2e-6),
-    ("5 kV/cm", "field", 5e5),
-    ("1350 cm^2/(V*s)", "mobility", 0.135),
-    ("0.03 ohm*cm", "resistivity", 3e-4),
-    ("45 meV", "energy", 0.045 * sc.e),       # eV from scipy.constants (CODATA)
-    # outside the table: read by pint after the gate
-    ("2 mm^2", "area", 2e-6),
-    ("3 kohm*cm", "resistivity", 30.0),
-    ("500 Ω/sq", "sheet resistance", 500.0),
-    ("1 MV/m", "field", 1e6),
-    ("4 uS/cm", "conductivity", 4e-4),
-    ("250 nm", "length", 2.5e-7),
-])
+@pytest.mark.parametrize(
+    "text, dimension, si",
+    [
+        ("1e17 cm-3", "density", 1e23),
+        ("1.0e17 /cm^3", "density", 1e23),
+        ("3e23 m^-3", "density", 3e23),
+        ("2 um", "length", 2e-6),
+        ("5 kV/cm", "field", 5e5),
+        ("1350 cm^2/(V*s)", "mobility", 0.135),
+        ("0.03 ohm*cm", "resistivity", 3e-4),
+        ("45 meV", "energy", 0.045 * sc.e),  # eV from scipy.constants (CODATA)
+        # outside the table: read by pint after the gate
+        ("2 mm^2", "area", 2e-6),
+        ("3 kohm*cm", "resistivity", 30.0),
+        ("500 Ω/sq", "sheet resistance", 500.0),
+        ("1 MV/m", "field", 1e6),
+        ("4 uS/cm", "conductivity", 4e-4),
+        ("250 nm", "length", 2.5e-7),
+    ],
+)
 def test_units(text, dimension, si):
     assert parse_quantity(text, dimension) == pytest.approx(si, rel=1e-12)
 
@@ -36,16 +40,19 @@ def test_temperature():
         parse_temperature("-300 degC")
 
 
-@pytest.mark.parametrize("text, dimension, message", [
-    ("1e17", "density", "has no unit.*density unit, e.g. '1e17 cm-3'"),
-    (1e17, "density", "has no unit"),
-    ("2 um", "area", "unit of length where area is expected"),
-    ("9**9**9 m", "length", "cannot read the unit"),
-    ("1e999 m", "length", "not a finite number"),
-    ("1 furlongs_per_x", "length", "unknown unit|cannot read"),
-    ("__import__('os') m", "length", "cannot read"),
-    ("2 m/s", "length", "velocity where length is expected"),
-])
+@pytest.mark.parametrize(
+    "text, dimension, message",
+    [
+        ("1e17", "density", "has no unit.*density unit, e.g. '1e17 cm-3'"),
+        (1e17, "density", "has no unit"),
+        ("2 um", "area", "unit of length where area is expected"),
+        ("9**9**9 m", "length", "cannot read the unit"),
+        ("1e999 m", "length", "not a finite number"),
+        ("1 furlongs_per_x", "length", "unknown unit|cannot read"),
+        ("__import__('os') m", "length", "cannot read"),
+        ("2 m/s", "length", "velocity where length is expected"),
+    ],
+)
 def test_refusals(text, dimension, message):
     with pytest.raises(InputError, match=message):
         parse_quantity(text, dimension, "f.yaml:3:5")

@@ -3,6 +3,7 @@ and for each its severity, title and default threshold as the rule file gives th
 
 The rule files (rules/*.yaml) are the source; the README is what users read first.
 """
+
 from __future__ import annotations
 
 import re

@@ -7,6 +7,7 @@ quantity equations (BIPM, The International System of Units, 9th ed. (2019), sec
 2.3.3); unit dimensions as pint computes them.  Expected lines are found in the edited
 text itself, not asked of the loader.
 """
+
 import json
 import re
 import subprocess
@@ -18,7 +19,13 @@ import pint
 import pytest
 import yaml
 
-from checker.engine.regime.rulebook import MODELINE, RuleFileError, configured, load_rule, load_rules
+from checker.engine.regime.rulebook import (
+    MODELINE,
+    RuleFileError,
+    configured,
+    load_rule,
+    load_rules,
+)
 from checker.inputs.config import Config
 from checker.resources import rules_dir
 from checker.vocabulary_words import TOLERANCE_NAMES
@@ -52,111 +59,253 @@ def _line_of(text, marker):
 # (file, text replaced, replacement, field named, text of the line named)
 STRUCTURE = [
     # unknown keys, one per section (DEVELOPERS.md lists each section's fields)
-    ("STAT01.yaml", "severity: warning\n", "severity: warning\ncolour: red\n",
-     "colour", "colour: red"),
+    (
+        "STAT01.yaml",
+        "severity: warning\n",
+        "severity: warning\ncolour: red\n",
+        "colour",
+        "colour: red",
+    ),
     ("CARR01.yaml", '  unit: "%"\n', '  units: "%"\n', "indicator.units", "units:"),
-    ("STAT01.yaml", "  declared: [non-degenerate]\n",
-     "  declared: [non-degenerate]\n  whenever: maj_x\n", "applies.whenever", "whenever:"),
-    ("TRAN02.yaml", "shortcut: \"used_mu_x*field\", within: 0.02}",
-     "shortcut: \"used_mu_x*field\", within: 0.02, tolerance: 0.1}",
-     "applies.implied_by[0].tolerance", "tolerance: 0.1"),
-    ("STAT01.yaml", "    stated: stated_ef_x\n", "    stated: stated_ef_x\n    note: x\n",
-     "corrections[1].note", "note: x"),
-    ("TRAN01.yaml", "mfp: {expression: lambda_x, unit: nm}",
-     "mfp: {expression: lambda_x, units: nm}", "show.mfp.units", "units: nm"),
-    ("MODEL01.yaml", "models: {text: T_models}", "models: {text: T_models, unit: K}",
-     "show.models.unit", "text: T_models"),
-    ("FORM03.yaml", "  above: 0.05\n", "  above: 0.05\n  below: 0.01\n",
-     "indicator.below", "below: 0.01"),
+    (
+        "STAT01.yaml",
+        "  declared: [non-degenerate]\n",
+        "  declared: [non-degenerate]\n  whenever: maj_x\n",
+        "applies.whenever",
+        "whenever:",
+    ),
+    (
+        "TRAN02.yaml",
+        'shortcut: "used_mu_x*field", within: 0.02}',
+        'shortcut: "used_mu_x*field", within: 0.02, tolerance: 0.1}',
+        "applies.implied_by[0].tolerance",
+        "tolerance: 0.1",
+    ),
+    (
+        "STAT01.yaml",
+        "    stated: stated_ef_x\n",
+        "    stated: stated_ef_x\n    note: x\n",
+        "corrections[1].note",
+        "note: x",
+    ),
+    (
+        "TRAN01.yaml",
+        "mfp: {expression: lambda_x, unit: nm}",
+        "mfp: {expression: lambda_x, units: nm}",
+        "show.mfp.units",
+        "units: nm",
+    ),
+    (
+        "MODEL01.yaml",
+        "models: {text: T_models}",
+        "models: {text: T_models, unit: K}",
+        "show.models.unit",
+        "text: T_models",
+    ),
+    (
+        "FORM03.yaml",
+        "  above: 0.05\n",
+        "  above: 0.05\n  below: 0.01\n",
+        "indicator.below",
+        "below: 0.01",
+    ),
     # a missing field, and a key given twice
     ("STAT02.yaml", "why: >-", "reason: >-", "why", "id: STAT02"),
-    ("ION02.yaml", "severity: warning\n", "severity: warning\nseverity: error  # again\n",
-     "severity", "# again"),
+    (
+        "ION02.yaml",
+        "severity: warning\n",
+        "severity: warning\nseverity: error  # again\n",
+        "severity",
+        "# again",
+    ),
     # the comparison: exactly one of above and below
     ("STAT01.yaml", "  above: -3\n", "  above: -3\n  below: 0\n", "indicator", "indicator:"),
     ("STAT01.yaml", "  above: -3\n", "", "indicator", "indicator:"),
     # references: a non-empty list of non-empty texts
-    ("ION01.yaml", 'references:\n  - "S. M. Sze and K. K. Ng, Physics of Semiconductor '
-     'Devices, 3rd ed. (Wiley, 2007), ch. 1"\n', "references: []\n", "references",
-     "references: []"),
-    ("ION01.yaml", '  - "S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. '
-     '(Wiley, 2007), ch. 1"\n', '  - " "\n', "references[0]", '- " "'),
+    (
+        "ION01.yaml",
+        'references:\n  - "S. M. Sze and K. K. Ng, Physics of Semiconductor '
+        'Devices, 3rd ed. (Wiley, 2007), ch. 1"\n',
+        "references: []\n",
+        "references",
+        "references: []",
+    ),
+    (
+        "ION01.yaml",
+        '  - "S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. '
+        '(Wiley, 2007), ch. 1"\n',
+        '  - " "\n',
+        "references[0]",
+        '- " "',
+    ),
     # units: only the display units of engine/vocabulary.py
     ("CARR01.yaml", '  unit: "%"\n', '  unit: "percent"\n', "indicator.unit", "percent"),
-    ("STAT01.yaml", "    unit: eV\n", "    unit: electronvolt\n", "corrections[1].unit",
-     "electronvolt"),
-    ("TRAN01.yaml", "mfp: {expression: lambda_x, unit: nm}",
-     "mfp: {expression: lambda_x, unit: nanometre}", "show.mfp.unit", "nanometre"),
+    (
+        "STAT01.yaml",
+        "    unit: eV\n",
+        "    unit: electronvolt\n",
+        "corrections[1].unit",
+        "electronvolt",
+    ),
+    (
+        "TRAN01.yaml",
+        "mfp: {expression: lambda_x, unit: nm}",
+        "mfp: {expression: lambda_x, unit: nanometre}",
+        "show.mfp.unit",
+        "nanometre",
+    ),
     # the configuration tolerance: a known name, and only for a threshold given as above
-    ("MEAS01.yaml", "  tolerance: resistivity", "  tolerance: sheet_resistivity",
-     "indicator.tolerance", "tolerance: sheet_resistivity"),
-    ("ION01.yaml", "  below: 0.95\n", "  below: 0.95\n  tolerance: mobility\n",
-     "indicator.tolerance", "tolerance: mobility"),
+    (
+        "MEAS01.yaml",
+        "  tolerance: resistivity",
+        "  tolerance: sheet_resistivity",
+        "indicator.tolerance",
+        "tolerance: sheet_resistivity",
+    ),
+    (
+        "ION01.yaml",
+        "  below: 0.95\n",
+        "  below: 0.95\n  tolerance: mobility\n",
+        "indicator.tolerance",
+        "tolerance: mobility",
+    ),
     # names of quantities and assumption words
-    ("CARR01.yaml", "    stated: stated_sigma\n", "    stated: stated_sigmaa\n",
-     "corrections[0].stated", "stated_sigmaa"),
-    ("STAT01.yaml", "  declared: [non-degenerate]\n", "  declared: [nondegenerate]\n",
-     "applies.declared[0]", "[nondegenerate]"),
+    (
+        "CARR01.yaml",
+        "    stated: stated_sigma\n",
+        "    stated: stated_sigmaa\n",
+        "corrections[0].stated",
+        "stated_sigmaa",
+    ),
+    (
+        "STAT01.yaml",
+        "  declared: [non-degenerate]\n",
+        "  declared: [nondegenerate]\n",
+        "applies.declared[0]",
+        "[nondegenerate]",
+    ),
 ]
 
 # dimensional homogeneity (BIPM SI Brochure, 9th ed., 2.3.3): terms of a sum, and the
 # values min/max choose between, share one dimension; exp, log and F take pure numbers
 DIMENSIONS = [
     ("CARR01.yaml", "  when: maj_x\n", '  when: "T + ni"\n', "applies.when", "T + ni"),
-    ("MOB01.yaml", 'expression: "max(stated_mu_x/mu_x, mu_x/stated_mu_x)"',
-     'expression: "max(stated_mu_x, mu_x/stated_mu_x)"', "indicator.expression",
-     "max(stated_mu_x, mu_x"),
-    ("DOPE01.yaml", 'expression: "exp(dEg_bgn/kT)"', 'expression: "exp(dEg_bgn)"',
-     "indicator.expression", "exp(dEg_bgn)"),
-    ("STAT01.yaml", 'shortcut: "log(stated_or(stated_dens_x, Nnet)/Nband_x)"',
-     'shortcut: "log(stated_or(stated_dens_x, Nnet))"', "applies.implied_by[0].shortcut",
-     "log(stated_or(stated_dens_x, Nnet))"),
-    ("STAT02.yaml", 'expression: "F(dim/2 - 1, eta_x)/F(dim/2 - 2, eta_x)"',
-     'expression: "F(dim/2 - 1, eta_x*kT)/F(dim/2 - 2, eta_x)"', "indicator.expression",
-     "eta_x*kT"),
-    ("CONST03.yaml", 'expression: "T*(stated_Nband_x/Nband_x)^(2/3)"',
-     'expression: "T*stated_Nband_x^eta_x"', "show.belongs.expression", "^eta_x"),
+    (
+        "MOB01.yaml",
+        'expression: "max(stated_mu_x/mu_x, mu_x/stated_mu_x)"',
+        'expression: "max(stated_mu_x, mu_x/stated_mu_x)"',
+        "indicator.expression",
+        "max(stated_mu_x, mu_x",
+    ),
+    (
+        "DOPE01.yaml",
+        'expression: "exp(dEg_bgn/kT)"',
+        'expression: "exp(dEg_bgn)"',
+        "indicator.expression",
+        "exp(dEg_bgn)",
+    ),
+    (
+        "STAT01.yaml",
+        'shortcut: "log(stated_or(stated_dens_x, Nnet)/Nband_x)"',
+        'shortcut: "log(stated_or(stated_dens_x, Nnet))"',
+        "applies.implied_by[0].shortcut",
+        "log(stated_or(stated_dens_x, Nnet))",
+    ),
+    (
+        "STAT02.yaml",
+        'expression: "F(dim/2 - 1, eta_x)/F(dim/2 - 2, eta_x)"',
+        'expression: "F(dim/2 - 1, eta_x*kT)/F(dim/2 - 2, eta_x)"',
+        "indicator.expression",
+        "eta_x*kT",
+    ),
+    (
+        "CONST03.yaml",
+        'expression: "T*(stated_Nband_x/Nband_x)^(2/3)"',
+        'expression: "T*stated_Nband_x^eta_x"',
+        "show.belongs.expression",
+        "^eta_x",
+    ),
     # a value against the unit it is shown in or compared with
-    ("CARR02.yaml", 'expression: "ni/Nnet"', 'expression: "ni"', "indicator.expression",
-     'expression: "ni"'),
-    ("ION01.yaml", '  unit: "%"\n', '  unit: "cm^-3"\n', "indicator.expression",
-     "expression: f_x"),
-    ("STAT01.yaml", 'shortcut: "Nband_x*exp(eta_x)"\n', 'shortcut: "exp(eta_x)"\n',
-     "corrections[0].shortcut", 'shortcut: "exp(eta_x)"'),
-    ("STAT01.yaml", 'exact: "kT*eta_x"', 'exact: "eta_x"', "corrections[1].exact",
-     'exact: "eta_x"'),
-    ("TRAN01.yaml", "mfp: {expression: lambda_x, unit: nm}",
-     "mfp: {expression: lambda_x, unit: K}", "show.mfp.expression", "unit: K}"),
-    ("TRAN01.yaml", 'shortcut: "stated_or(stated_rho, rho)*L/A", within',
-     'shortcut: "stated_or(stated_rho, rho)/A", within', "applies.implied_by[0].shortcut",
-     "rho)/A"),
-    ("CARR01.yaml", "    unit: S/cm\n    stated: stated_sigma\n",
-     "    unit: S/cm\n    stated: stated_R\n", "corrections[0].stated", "stated: stated_R"),
+    (
+        "CARR02.yaml",
+        'expression: "ni/Nnet"',
+        'expression: "ni"',
+        "indicator.expression",
+        'expression: "ni"',
+    ),
+    ("ION01.yaml", '  unit: "%"\n', '  unit: "cm^-3"\n', "indicator.expression", "expression: f_x"),
+    (
+        "STAT01.yaml",
+        'shortcut: "Nband_x*exp(eta_x)"\n',
+        'shortcut: "exp(eta_x)"\n',
+        "corrections[0].shortcut",
+        'shortcut: "exp(eta_x)"',
+    ),
+    (
+        "STAT01.yaml",
+        'exact: "kT*eta_x"',
+        'exact: "eta_x"',
+        "corrections[1].exact",
+        'exact: "eta_x"',
+    ),
+    (
+        "TRAN01.yaml",
+        "mfp: {expression: lambda_x, unit: nm}",
+        "mfp: {expression: lambda_x, unit: K}",
+        "show.mfp.expression",
+        "unit: K}",
+    ),
+    (
+        "TRAN01.yaml",
+        'shortcut: "stated_or(stated_rho, rho)*L/A", within',
+        'shortcut: "stated_or(stated_rho, rho)/A", within',
+        "applies.implied_by[0].shortcut",
+        "rho)/A",
+    ),
+    (
+        "CARR01.yaml",
+        "    unit: S/cm\n    stated: stated_sigma\n",
+        "    unit: S/cm\n    stated: stated_R\n",
+        "corrections[0].stated",
+        "stated: stated_R",
+    ),
 ]
 
 # what a schema cannot see: the editor modeline, and text the loader reads
 BEYOND_SCHEMA = [
-    ("STAT01.yaml", MODELINE, "# yaml-language-server: $schema=rule.schema.json",
-     "(modeline)", "yaml-language-server"),
+    (
+        "STAT01.yaml",
+        MODELINE,
+        "# yaml-language-server: $schema=rule.schema.json",
+        "(modeline)",
+        "yaml-language-server",
+    ),
     ("STAT01.yaml", MODELINE + "\n", "", "(modeline)", "id: STAT01"),
     ("STAT01.yaml", "{error}.", "{error} at {place}.", "message", "message: >-"),
-    ("STAT01.yaml", "expression: eta_x\n", "expression: eta_x + import_os\n",
-     "indicator.expression", "import_os"),
+    (
+        "STAT01.yaml",
+        "expression: eta_x\n",
+        "expression: eta_x + import_os\n",
+        "indicator.expression",
+        "import_os",
+    ),
 ]
 
 
 BROKEN = STRUCTURE + DIMENSIONS + BEYOND_SCHEMA
 
 
-@pytest.mark.parametrize("name, old, new, field, marker", BROKEN,
-                         ids=[f"{case[0][:-5]}-{case[3]}-{n}" for n, case in enumerate(BROKEN)])
+@pytest.mark.parametrize(
+    "name, old, new, field, marker",
+    BROKEN,
+    ids=[f"{case[0][:-5]}-{case[3]}-{n}" for n, case in enumerate(BROKEN)],
+)
 def test_broken_rule_refused_naming_file_line_and_field(tmp_path, name, old, new, field, marker):
     path, text = _edited(tmp_path, name, old, new)
     with pytest.raises(RuleFileError) as info:
         load_rule(path)
     expected = f"rule file {path}:{_line_of(text, marker)}: field {field!r}: "
-    assert any(line.startswith(expected) for line in str(info.value).split("\n")), \
-        str(info.value)
+    assert any(line.startswith(expected) for line in str(info.value).split("\n")), str(info.value)
 
 
 def test_dimension_problem_says_what_does_not_fit(tmp_path):
@@ -180,16 +329,18 @@ def test_every_problem_of_a_file_is_reported_at_once(tmp_path):
 
 # ---- the schema: generated from the loader's table, valid for every shipped file -------
 def test_rule_schema_matches_the_loader_table(schema_generator):
-    assert RULE_SCHEMA.read_text(encoding="utf-8") == schema_generator.render_rule(), \
+    assert RULE_SCHEMA.read_text(encoding="utf-8") == schema_generator.render_rule(), (
         "run python tools/generate_schema.py"
+    )
     jsonschema.Draft202012Validator.check_schema(json.loads(RULE_SCHEMA.read_text()))
 
 
 @pytest.mark.parametrize("path", SHIPPED, ids=lambda p: p.name)
 def test_shipped_rule_validates_and_carries_the_modeline(path):
     text = path.read_text(encoding="utf-8")
-    assert text.split("\n", 1)[0] == \
-        "# yaml-language-server: $schema=../checker/data/rule.schema.json"
+    assert (
+        text.split("\n", 1)[0] == "# yaml-language-server: $schema=../checker/data/rule.schema.json"
+    )
     errors = [e.message for e in _validator().iter_errors(yaml.safe_load(text))]
     assert errors == []
 
@@ -200,6 +351,7 @@ def _set(*keys, value):
         for key in keys[:-1]:
             data = data[key]
         data[keys[-1]] = value
+
     return edit
 
 
@@ -208,6 +360,7 @@ def _drop(*keys):
         for key in keys[:-1]:
             data = data[key]
         del data[keys[-1]]
+
     return edit
 
 
@@ -244,8 +397,10 @@ AGREEMENT = [
     ("STAT01.yaml", _set("corrections", value=[])),
     ("STAT01.yaml", _set("corrections", value=None)),
     ("STAT01.yaml", _drop("corrections", 1, "stated")),
-    ("STAT01.yaml", _set("corrections", value=[{"label": "η", "shortcut": "eta_x",
-                                                "exact": "eta_x"}])),
+    (
+        "STAT01.yaml",
+        _set("corrections", value=[{"label": "η", "shortcut": "eta_x", "exact": "eta_x"}]),
+    ),
     ("STAT01.yaml", _drop("corrections", 0, "label")),
     ("STAT01.yaml", _set("corrections", 0, "stated", value="stated_dens_q")),
     ("STAT01.yaml", _set("corrections", 0, value="dens_x")),
@@ -255,10 +410,14 @@ AGREEMENT = [
     ("STAT01.yaml", _set("show", value={"state": {"text": "regime"}})),
     ("STAT01.yaml", _set("show", value={"state": {"text": "regimes"}})),
     ("STAT01.yaml", _set("show", value={"state": {"text": "regime", "unit": "1"}})),
-    ("STAT01.yaml", _set("show", value={"density": {"expression": "dens_x",
-                                                    "unit": "cm^-3"}})),
-    ("STAT01.yaml", _set("show", value={"ratio": {"expression": "eta_x"},
-                                        "gap": {"expression": "Eg", "unit": "eV"}})),
+    ("STAT01.yaml", _set("show", value={"density": {"expression": "dens_x", "unit": "cm^-3"}})),
+    (
+        "STAT01.yaml",
+        _set(
+            "show",
+            value={"ratio": {"expression": "eta_x"}, "gap": {"expression": "Eg", "unit": "eV"}},
+        ),
+    ),
     ("STAT01.yaml", _set("show", value={"density": {"unit": "cm^-3"}})),
     ("STAT01.yaml", _set("show", value={"2nd": {"expression": "eta_x"}})),
     ("STAT01.yaml", _set("show", value={})),
@@ -289,8 +448,7 @@ def test_loader_and_schema_agree(tmp_path, name, edit):
     data = yaml.safe_load((rules_dir() / name).read_text(encoding="utf-8"))
     edit(data)
     path = tmp_path / name
-    path.write_text(MODELINE + "\n" + yaml.safe_dump(data, allow_unicode=True),
-                    encoding="utf-8")
+    path.write_text(MODELINE + "\n" + yaml.safe_dump(data, allow_unicode=True), encoding="utf-8")
     try:
         load_rule(path)
         loader = "accepts"
@@ -316,8 +474,7 @@ def test_each_configuration_tolerance_sets_one_rule_threshold():
     rules = load_rules()
     for name in TOLERANCE_NAMES:
         rule = next(r for r in rules if r.tolerance == name)
-        tuned = next(r for r in configured(rules, Config(tolerance={name: 0.4}))
-                     if r.id == rule.id)
+        tuned = next(r for r in configured(rules, Config(tolerance={name: 0.4})) if r.id == rule.id)
         # [tool.regimecheck.tolerance] (inputs/config.py): a relative tolerance t allows
         # a factor 1 + t
         assert tuned.threshold == pytest.approx(1.4)
@@ -339,29 +496,43 @@ def test_configuration_module_names_no_rule():
                 yield from texts(item)
 
     ids = {rule.id for rule in load_rules()}
-    held = {text for name, value in vars(config).items() if not name.startswith("__")
-            for text in texts(value)}
+    held = {
+        text
+        for name, value in vars(config).items()
+        if not name.startswith("__")
+        for text in texts(value)
+    }
     assert not held & ids
 
 
 def test_rule_loader_imports_no_input_reader():
-    code = ("import sys, checker.engine.regime.rulebook as r; r.load_rules(); "
-            "print(sorted(m for m in sys.modules if m.startswith('checker.inputs')))")
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                         check=True, cwd=ROOT)
+    code = (
+        "import sys, checker.engine.regime.rulebook as r; r.load_rules(); "
+        "print(sorted(m for m in sys.modules if m.startswith('checker.inputs')))"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True, cwd=ROOT
+    )
     assert out.stdout.strip() == "[]"
 
 
 # ---- dimensions of units and names, against pint ---------------------------------------
 UNITS = pint.UnitRegistry()
-PINT_SPELLING = {"%": "percent", "ohm/sq": "ohm", "m0": "electron_mass", "um": "micrometer",
-                 "um^2": "micrometer**2", "1": "dimensionless"}
+PINT_SPELLING = {
+    "%": "percent",
+    "ohm/sq": "ohm",
+    "m0": "electron_mass",
+    "um": "micrometer",
+    "um^2": "micrometer**2",
+    "1": "dimensionless",
+}
 
 
 def _pint_dimension(dimension):
     m, s, V, C, K = (float(e) for e in dimension)
-    return (UNITS.meter ** m * UNITS.second ** s * UNITS.volt ** V * UNITS.coulomb ** C
-            * UNITS.kelvin ** K).dimensionality
+    return (
+        UNITS.meter**m * UNITS.second**s * UNITS.volt**V * UNITS.coulomb**C * UNITS.kelvin**K
+    ).dimensionality
 
 
 def test_every_display_unit_has_the_dimension_pint_gives_it():
@@ -403,8 +574,12 @@ def test_per_carrier_names_share_their_dimension():
     from checker.engine.expressions.dimension_check import name_dimension
 
     for stem in ("dens", "mu", "eta", "Eion", "lambda"):
-        assert name_dimension(f"{stem}_x") == name_dimension(f"{stem}_n") == \
-            name_dimension(f"{stem}_p") == name_dimension(f"{stem}_o")
+        assert (
+            name_dimension(f"{stem}_x")
+            == name_dimension(f"{stem}_n")
+            == name_dimension(f"{stem}_p")
+            == name_dimension(f"{stem}_o")
+        )
 
 
 def test_rule_id_pattern_in_schema_matches_the_documented_form():

@@ -2,17 +2,18 @@
 side and where its assumption is not made, and its corrected values match an
 independent computation (mpmath, written out here from the published formula)
 or a published value (named beside the check)."""
+
 import math
 
 import mpmath as mp
 import numpy as np
 import pytest
 import scipy.constants as sc
+from reference import ionized_fraction, mp_fermi_half, reference_solve
 
 from checker import load_material
 from checker.engine.run import check_calculations
 from checker.inputs.calculation_file import read_calculation_file
-from reference import ionized_fraction, mp_fermi_half, reference_solve
 
 K_B, Q = sc.k, sc.e
 CM3 = 1e6
@@ -29,13 +30,16 @@ def check(tmp_path, text):
 
 
 def calc(material, T, donors="", acceptors="", extra=""):
-    return (f"material: {material}\ntemperature: {T}\ndoping:\n  donors: {{{donors}}}\n"
-            f"  acceptors: {{{acceptors}}}\n{extra}")
+    return (
+        f"material: {material}\ntemperature: {T}\ndoping:\n  donors: {{{donors}}}\n"
+        f"  acceptors: {{{acceptors}}}\n{extra}"
+    )
 
 
 def one(report, rule, carrier=None):
-    hits = [f for f in report.findings if f.rule == rule
-            and (carrier is None or f.carrier == carrier)]
+    hits = [
+        f for f in report.findings if f.rule == rule and (carrier is None or f.carrier == carrier)
+    ]
     assert len(hits) == 1, [f.rule for f in report.findings]
     return hits[0]
 
@@ -53,11 +57,16 @@ def fd(j, eta):
 
 
 def eta_of(material, T, donors, acceptors=None):
-    return reference_solve(load_material(material), T, {k: v * CM3 for k, v in donors.items()},
-                           {k: v * CM3 for k, v in (acceptors or {}).items()})
+    return reference_solve(
+        load_material(material),
+        T,
+        {k: v * CM3 for k, v in donors.items()},
+        {k: v * CM3 for k, v in (acceptors or {}).items()},
+    )
 
 
 # --- STAT01: non-degenerate statistics --------------------------------------------------------
+
 
 def test_stat01_fires_in_degenerate_silicon_with_exact_density(tmp_path):
     report = check(tmp_path, calc("Si", "300 K", "P: 1e19 cm-3", extra="assumes: [non-degenerate]"))
@@ -71,18 +80,22 @@ def test_stat01_fires_in_degenerate_silicon_with_exact_density(tmp_path):
 
 
 def test_stat01_quiet_when_nondegenerate_or_not_assumed(tmp_path):
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e17 cm-3",
-                                      extra="assumes: [non-degenerate]")), "STAT01")
+    assert quiet(
+        check(tmp_path, calc("Si", "300 K", "P: 1e17 cm-3", extra="assumes: [non-degenerate]")),
+        "STAT01",
+    )
     assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e19 cm-3")), "STAT01")
 
 
 def test_stat01_implied_by_a_boltzmann_fermi_level(tmp_path):
     Nc = float(load_material("GaAs").Nc(300.0)) / CM3
-    ef = K_B * 300.0 / Q * math.log(2e17 / Nc)          # kT ln(n/N_c), what a memo writes
-    report = check(tmp_path, calc("GaAs", "300 K", "Si: 2e17 cm-3",
-                                  extra=f"stated:\n  ef_minus_ec: {ef:.6f} eV\n"))
+    ef = K_B * 300.0 / Q * math.log(2e17 / Nc)  # kT ln(n/N_c), what a memo writes
+    report = check(
+        tmp_path,
+        calc("GaAs", "300 K", "Si: 2e17 cm-3", extra=f"stated:\n  ef_minus_ec: {ef:.6f} eV\n"),
+    )
     finding = one(report, "STAT01", "electrons")
-    assert finding.line == 7          # the line of ef_minus_ec in the generated file
+    assert finding.line == 7  # the line of ef_minus_ec in the generated file
     eta = eta_of("GaAs", 300.0, {"Si": 2e17})
     level = correction(finding, "Fermi level")
     assert level.stated == pytest.approx(ef * Q, rel=1e-5)
@@ -91,29 +104,54 @@ def test_stat01_implied_by_a_boltzmann_fermi_level(tmp_path):
 
 # --- STAT02: Einstein relation ----------------------------------------------------------------
 
+
 def test_stat02_corrected_diffusion_matches_generalized_einstein(tmp_path):
     mu, kTq = 4500.0, K_B * 300.0 / Q
-    report = check(tmp_path, calc("InGaAs", "300 K", "Si: 1e18 cm-3", extra=(
-        f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
-        f"  electron_diffusivity: {mu * kTq:.6g} cm^2/s\n")))
+    report = check(
+        tmp_path,
+        calc(
+            "InGaAs",
+            "300 K",
+            "Si: 1e18 cm-3",
+            extra=(
+                f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
+                f"  electron_diffusivity: {mu * kTq:.6g} cm^2/s\n"
+            ),
+        ),
+    )
     finding = one(report, "STAT02", "electrons")
     eta = eta_of("InGaAs", 300.0, {"Si": 1e18})
     ratio = fd(0.5, eta) / fd(-0.5, eta)
     assert finding.indicator_value == pytest.approx(ratio, rel=1e-8)
-    assert correction(finding, "diffusion").corrected == pytest.approx(mu * 1e-4 * kTq * ratio,
-                                                                       rel=1e-8)
+    assert correction(finding, "diffusion").corrected == pytest.approx(
+        mu * 1e-4 * kTq * ratio, rel=1e-8
+    )
 
 
 def test_stat02_quiet_for_the_exact_value_and_in_light_doping(tmp_path):
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
-                                      extra="assumes: [einstein-relation]")), "STAT02")
+    assert quiet(
+        check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3", extra="assumes: [einstein-relation]")),
+        "STAT02",
+    )
     # an author who states the generalized value is not using the shortcut
     mu, kTq = 4500.0, K_B * 300.0 / Q
     eta = eta_of("InGaAs", 300.0, {"Si": 1e18})
     exact = mu * kTq * fd(0.5, eta) / fd(-0.5, eta)
-    assert quiet(check(tmp_path, calc("InGaAs", "300 K", "Si: 1e18 cm-3", extra=(
-        f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
-        f"  electron_diffusivity: {exact:.6g} cm^2/s\n"))), "STAT02")
+    assert quiet(
+        check(
+            tmp_path,
+            calc(
+                "InGaAs",
+                "300 K",
+                "Si: 1e18 cm-3",
+                extra=(
+                    f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
+                    f"  electron_diffusivity: {exact:.6g} cm^2/s\n"
+                ),
+            ),
+        ),
+        "STAT02",
+    )
 
 
 def test_stat02_indicator_is_the_published_2d_ratio():
@@ -131,11 +169,22 @@ def test_stat02_indicator_is_the_published_2d_ratio():
 
 # --- CARR01: single carrier -------------------------------------------------------------------
 
+
 def test_carr01_two_carrier_conductivity_in_warm_germanium(tmp_path):
     T, mun, mup = 348.15, 3000.0, 1500.0
-    report = check(tmp_path, calc("Ge", "75 degC", "Sb: 3e14 cm-3", extra=(
-        f"stated:\n  electron_mobility: {mun} cm^2/(V*s)\n  hole_mobility: {mup} cm^2/(V*s)\n"
-        "assumes: [single-carrier]\n")))
+    report = check(
+        tmp_path,
+        calc(
+            "Ge",
+            "75 degC",
+            "Sb: 3e14 cm-3",
+            extra=(
+                f"stated:\n  electron_mobility: {mun} cm^2/(V*s)\n"
+                f"  hole_mobility: {mup} cm^2/(V*s)\n"
+                "assumes: [single-carrier]\n"
+            ),
+        ),
+    )
     finding = one(report, "CARR01", "electrons")
     ge = load_material("Ge")
     eta = eta_of("Ge", T, {"Sb": 3e14})
@@ -147,11 +196,14 @@ def test_carr01_two_carrier_conductivity_in_warm_germanium(tmp_path):
 
 
 def test_carr01_quiet_in_extrinsic_silicon(tmp_path):
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
-                                      extra="assumes: [single-carrier]")), "CARR01")
+    assert quiet(
+        check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3", extra="assumes: [single-carrier]")),
+        "CARR01",
+    )
 
 
 # --- CARR02: intrinsic onset ------------------------------------------------------------------
+
 
 def test_carr02_fires_with_onset_temperature_and_exact_density(tmp_path):
     report = check(tmp_path, calc("Ge", "75 degC", "Sb: 3e14 cm-3", extra="assumes: [extrinsic]"))
@@ -161,7 +213,8 @@ def test_carr02_fires_with_onset_temperature_and_exact_density(tmp_path):
     assert finding.indicator_value == pytest.approx(ni / 3e20, rel=1e-9)
     eta = eta_of("Ge", T, {"Sb": 3e14})
     assert correction(finding, "majority").corrected == pytest.approx(
-        float(ge.Nc(T)) * float(mp_fermi_half(eta)), rel=1e-8)
+        float(ge.Nc(T)) * float(mp_fermi_half(eta)), rel=1e-8
+    )
 
 
 def test_intrinsic_onset_temperature_against_mpmath():
@@ -173,22 +226,30 @@ def test_intrinsic_onset_temperature_against_mpmath():
 
         def gap(T):
             T = float(T)
-            return math.log(math.sqrt(float(si.Nc(T) * si.Nv(T)))) \
-                - float(si.band_gap(T)) / (2 * K_B * T) - math.log(0.1 * N * CM3)
+            return (
+                math.log(math.sqrt(float(si.Nc(T) * si.Nv(T))))
+                - float(si.band_gap(T)) / (2 * K_B * T)
+                - math.log(0.1 * N * CM3)
+            )
+
         want = mp.findroot(gap, (200, 1400), solver="bisect")
         assert got == pytest.approx(float(want), rel=1e-9)
 
 
 def test_carr02_quiet_at_room_temperature(tmp_path):
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
-                                      extra="assumes: [extrinsic]")), "CARR02")
+    assert quiet(
+        check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3", extra="assumes: [extrinsic]")), "CARR02"
+    )
 
 
 # --- ION01: full ionization -------------------------------------------------------------------
 
+
 def test_ion01_deep_magnesium_in_gan(tmp_path):
-    report = check(tmp_path, calc("GaN", "300 K", "Si: 1e17 cm-3", "Mg: 2e19 cm-3",
-                                  extra="assumes: [full-ionization]"))
+    report = check(
+        tmp_path,
+        calc("GaN", "300 K", "Si: 1e17 cm-3", "Mg: 2e19 cm-3", extra="assumes: [full-ionization]"),
+    )
     finding = one(report, "ION01", "holes")
     gan, T = load_material("GaN"), 300.0
     eta = eta_of("GaN", T, {"Si": 1e17}, {"Mg": 2e19})
@@ -198,29 +259,45 @@ def test_ion01_deep_magnesium_in_gan(tmp_path):
     assert correction(finding, "ionized").corrected == pytest.approx(ionized, rel=1e-7)
     assert finding.indicator_value == pytest.approx(ionized / 2e25, rel=1e-7)
     assert correction(finding, "carrier density").corrected == pytest.approx(
-        float(gan.Nv(T)) * float(mp_fermi_half(eta_p)), rel=1e-7)
+        float(gan.Nv(T)) * float(mp_fermi_half(eta_p)), rel=1e-7
+    )
 
 
 def test_ion01_freeze_out_and_quiet_cases(tmp_path):
-    assert not quiet(check(tmp_path, calc("Si", "40 K", "P: 5e16 cm-3",
-                                          extra="assumes: [full-ionization]")), "ION01")
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e15 cm-3",
-                                      extra="assumes: [full-ionization]")), "ION01")
+    assert not quiet(
+        check(tmp_path, calc("Si", "40 K", "P: 5e16 cm-3", extra="assumes: [full-ionization]")),
+        "ION01",
+    )
+    assert quiet(
+        check(tmp_path, calc("Si", "300 K", "P: 1e15 cm-3", extra="assumes: [full-ionization]")),
+        "ION01",
+    )
     # not assumed: no finding even in freeze-out
     assert quiet(check(tmp_path, calc("Si", "40 K", "P: 5e16 cm-3")), "ION01")
 
 
 def test_ion01_implied_by_stated_density_equal_to_doping(tmp_path):
-    report = check(tmp_path, calc("Si", "40 K", "P: 5e16 cm-3",
-                                  extra="stated:\n  electron_density: 5e16 cm-3\n"))
+    report = check(
+        tmp_path,
+        calc("Si", "40 K", "P: 5e16 cm-3", extra="stated:\n  electron_density: 5e16 cm-3\n"),
+    )
     assert correction(one(report, "ION01"), "carrier density").from_author
 
 
 # --- ION02: compensation ----------------------------------------------------------------------
 
+
 def test_ion02_compensated_well(tmp_path):
-    report = check(tmp_path, calc("Si", "150 degC", "P: 3e17 cm-3", "B: 2e16 cm-3",
-                                  extra="stated:\n  electron_density: 3e17 cm-3\n"))
+    report = check(
+        tmp_path,
+        calc(
+            "Si",
+            "150 degC",
+            "P: 3e17 cm-3",
+            "B: 2e16 cm-3",
+            extra="stated:\n  electron_density: 3e17 cm-3\n",
+        ),
+    )
     finding = one(report, "ION02", "electrons")
     assert finding.indicator_value == pytest.approx(2e16 / 3e17, rel=1e-12)
     T = 423.15
@@ -230,11 +307,23 @@ def test_ion02_compensated_well(tmp_path):
 
 
 def test_ion02_quiet_below_threshold(tmp_path):
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 3e17 cm-3", "B: 1e15 cm-3",
-                                      extra="stated:\n  electron_density: 3e17 cm-3\n")), "ION02")
+    assert quiet(
+        check(
+            tmp_path,
+            calc(
+                "Si",
+                "300 K",
+                "P: 3e17 cm-3",
+                "B: 1e15 cm-3",
+                extra="stated:\n  electron_density: 3e17 cm-3\n",
+            ),
+        ),
+        "ION02",
+    )
 
 
 # --- CARR03: carrier type ---------------------------------------------------------------------
+
 
 def conduction_credit(donors, acceptors, carrier):
     """1/f at 23 degC for silicon's majority carrier: the mobility fits of B and P follow
@@ -245,7 +334,7 @@ def conduction_credit(donors, acceptors, carrier):
     a = {k: v * CM3 for k, v in acceptors.items()}
     eta = reference_solve(si, T, d, a)
     if carrier == "n":
-        (name, N), = d.items()
+        ((name, N),) = d.items()
         return 1 / float(ionized_fraction(si.dopant(name), eta, K_B * T, sum(d.values())))
     eta_p = -eta - float(si.band_gap(T)) / (K_B * T)
     name = max(a, key=a.get)
@@ -254,9 +343,19 @@ def conduction_credit(donors, acceptors, carrier):
 
 def test_carr03_electrons_used_in_p_type_well(tmp_path):
     mun, mup = 800.0, 300.0
-    report = check(tmp_path, calc("Si", "300 K", "P: 1e17 cm-3", "B: 3e17 cm-3", extra=(
-        f"stated:\n  electron_density: 1e17 cm-3\n  electron_mobility: {mun} cm^2/(V*s)\n"
-        f"  hole_mobility: {mup} cm^2/(V*s)\n")))
+    report = check(
+        tmp_path,
+        calc(
+            "Si",
+            "300 K",
+            "P: 1e17 cm-3",
+            "B: 3e17 cm-3",
+            extra=(
+                f"stated:\n  electron_density: 1e17 cm-3\n  electron_mobility: {mun} cm^2/(V*s)\n"
+                f"  hole_mobility: {mup} cm^2/(V*s)\n"
+            ),
+        ),
+    )
     finding = one(report, "CARR03", "electrons")
     si, T = load_material("Si"), 300.0
     eta = eta_of("Si", T, {"P": 1e17}, {"B": 3e17})
@@ -269,12 +368,23 @@ def test_carr03_electrons_used_in_p_type_well(tmp_path):
 
 
 def test_carr03_quiet_when_the_majority_is_used(tmp_path):
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 3e17 cm-3", "B: 1e17 cm-3",
-                                      extra="stated:\n  electron_density: 2e17 cm-3\n")),
-                 "CARR03")
+    assert quiet(
+        check(
+            tmp_path,
+            calc(
+                "Si",
+                "300 K",
+                "P: 3e17 cm-3",
+                "B: 1e17 cm-3",
+                extra="stated:\n  electron_density: 2e17 cm-3\n",
+            ),
+        ),
+        "CARR03",
+    )
 
 
 # --- TRAN01: diffusive transport --------------------------------------------------------------
+
 
 def _mean_free_path(material, T, eta, mu):
     """lambda = 2D/<v_x+>, D = mu kT/q F_1/2/F_-1/2, <v_x+> = sqrt(2kT/(pi m*)) F_1/F_1/2
@@ -287,9 +397,18 @@ def _mean_free_path(material, T, eta, mu):
 
 def test_tran01_short_conductor_resistance(tmp_path):
     mu, L, A = 800.0, 20e-9, 1e-12
-    report = check(tmp_path, calc("Si", "300 K", "P: 1e17 cm-3", extra=(
-        f"structure:\n  length: 20 nm\n  cross_section: 1 um^2\n"
-        f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\nassumes: [diffusive]\n")))
+    report = check(
+        tmp_path,
+        calc(
+            "Si",
+            "300 K",
+            "P: 1e17 cm-3",
+            extra=(
+                f"structure:\n  length: 20 nm\n  cross_section: 1 um^2\n"
+                f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\nassumes: [diffusive]\n"
+            ),
+        ),
+    )
     finding = one(report, "TRAN01", "electrons")
     si, T = load_material("Si"), 300.0
     eta = eta_of("Si", T, {"P": 1e17})
@@ -297,27 +416,49 @@ def test_tran01_short_conductor_resistance(tmp_path):
     assert finding.indicator_value == pytest.approx(lam / L, rel=1e-8)
     n = float(si.Nc(T)) * float(mp_fermi_half(eta))
     credit = conduction_credit({"P": 1e17}, {}, "n")
-    rho = 1 / (Q * n * credit * mu * 1e-4)          # holes add ~1e-13 relative here
-    assert correction(finding, "resistance").corrected == pytest.approx(rho * (L + lam) / A,
-                                                                        rel=1e-8)
+    rho = 1 / (Q * n * credit * mu * 1e-4)  # holes add ~1e-13 relative here
+    assert correction(finding, "resistance").corrected == pytest.approx(
+        rho * (L + lam) / A, rel=1e-8
+    )
 
 
 def test_tran01_quiet_for_long_conductor(tmp_path):
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e17 cm-3", extra=(
-        "structure:\n  length: 10 um\n  cross_section: 1 um^2\nassumes: [diffusive]\n"))),
-        "TRAN01")
+    assert quiet(
+        check(
+            tmp_path,
+            calc(
+                "Si",
+                "300 K",
+                "P: 1e17 cm-3",
+                extra=(
+                    "structure:\n  length: 10 um\n  cross_section: 1 um^2\nassumes: [diffusive]\n"
+                ),
+            ),
+        ),
+        "TRAN01",
+    )
 
 
 # --- TRAN02: low field ------------------------------------------------------------------------
 
+
 def test_tran02_velocity_saturation_with_published_parameters(tmp_path):
-    mu, E = 1350.0, 20e3                         # cm^2/Vs, V/cm
-    report = check(tmp_path, calc("Si", "300 K", "P: 1e15 cm-3", extra=(
-        f"structure:\n  field: 20 kV/cm\nstated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
-        "assumes: [low-field]\n")))
+    mu, E = 1350.0, 20e3  # cm^2/Vs, V/cm
+    report = check(
+        tmp_path,
+        calc(
+            "Si",
+            "300 K",
+            "P: 1e15 cm-3",
+            extra=(
+                f"structure:\n  field: 20 kV/cm\nstated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
+                "assumes: [low-field]\n"
+            ),
+        ),
+    )
     finding = one(report, "TRAN02", "electrons")
-    vsat = 1.53e9 * 300 ** -0.87                 # cm/s, Canali et al. (1975): 1.07e7 at 300 K
-    beta = 2.57e-2 * 300 ** 0.66                 # Canali et al. (1975): 1.109 at 300 K
+    vsat = 1.53e9 * 300**-0.87  # cm/s, Canali et al. (1975): 1.07e7 at 300 K
+    beta = 2.57e-2 * 300**0.66  # Canali et al. (1975): 1.109 at 300 K
     v = mu * E / (1 + (mu * E / vsat) ** beta) ** (1 / beta)
     # (the material file gives v_m(300 K) to 6 digits)
     assert correction(finding, "drift velocity").corrected == pytest.approx(v * 1e-2, rel=1e-5)
@@ -325,11 +466,22 @@ def test_tran02_velocity_saturation_with_published_parameters(tmp_path):
 
 
 def test_tran02_quiet_at_low_field(tmp_path):
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e15 cm-3", extra=(
-        "structure:\n  field: 100 V/cm\nassumes: [low-field]\n"))), "TRAN02")
+    assert quiet(
+        check(
+            tmp_path,
+            calc(
+                "Si",
+                "300 K",
+                "P: 1e15 cm-3",
+                extra=("structure:\n  field: 100 V/cm\nassumes: [low-field]\n"),
+            ),
+        ),
+        "TRAN02",
+    )
 
 
 # --- MOB01 / MOB02: stated mobility -----------------------------------------------------------
+
 
 def masetti_p(N):
     """Masetti, Severi & Solmi, IEEE TED 30, 764 (1983), Table I, phosphorus, 300 K."""
@@ -337,118 +489,192 @@ def masetti_p(N):
 
 
 def test_mob01_against_masetti(tmp_path):
-    report = check(tmp_path, calc("Si", "300 K", "P: 1e18 cm-3",
-                                  extra="stated:\n  electron_mobility: 1350 cm^2/(V*s)\n"))
+    report = check(
+        tmp_path,
+        calc(
+            "Si", "300 K", "P: 1e18 cm-3", extra="stated:\n  electron_mobility: 1350 cm^2/(V*s)\n"
+        ),
+    )
     finding = one(report, "MOB01", "electrons")
     corrected = correction(finding, "mobility").corrected * 1e4
     # the conversion standard ASTM F723 eqs. (5)-(6) at 23 degC: mu = 1/(q N rho(N)), 2 %
     # lower at 300 K (Arora's temperature dependence); Masetti's fit (Van Zeghbroeck's
     # worked example: 277) within 6 %
     y = 18 - 16
-    z = ((-3.0769 + 2.2108 * y - 0.62272 * y ** 2 + 0.057501 * y ** 3)
-         / (1 - 0.68157 * y + 0.19833 * y ** 2 - 0.018376 * y ** 3))
-    standard = 1 / (sc.e * 1e18 * 6.242e18 / 1e18 * 10 ** z)
+    z = (-3.0769 + 2.2108 * y - 0.62272 * y**2 + 0.057501 * y**3) / (
+        1 - 0.68157 * y + 0.19833 * y**2 - 0.018376 * y**3
+    )
+    standard = 1 / (sc.e * 1e18 * 6.242e18 / 1e18 * 10**z)
     assert corrected == pytest.approx(standard, rel=0.03)
     assert corrected == pytest.approx(masetti_p(1e18), rel=0.06)
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e18 cm-3",
-                                      extra="stated:\n  electron_mobility: 290 cm^2/(V*s)\n")),
-                 "MOB01")
+    assert quiet(
+        check(
+            tmp_path,
+            calc(
+                "Si",
+                "300 K",
+                "P: 1e18 cm-3",
+                extra="stated:\n  electron_mobility: 290 cm^2/(V*s)\n",
+            ),
+        ),
+        "MOB01",
+    )
 
 
 def test_mob02_above_lattice_limit(tmp_path):
     # lattice limit = Masetti mu_max 1414 cm^2/Vs (P set, 300 K); threshold 5 % above it
-    assert not quiet(check(tmp_path, calc("Si", "300 K", "P: 1e14 cm-3",
-                                          extra="stated:\n  electron_mobility: 1500 cm^2/(V*s)\n")),
-                     "MOB02")
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e14 cm-3",
-                                      extra="stated:\n  electron_mobility: 1400 cm^2/(V*s)\n")),
-                 "MOB02")
+    assert not quiet(
+        check(
+            tmp_path,
+            calc(
+                "Si",
+                "300 K",
+                "P: 1e14 cm-3",
+                extra="stated:\n  electron_mobility: 1500 cm^2/(V*s)\n",
+            ),
+        ),
+        "MOB02",
+    )
+    assert quiet(
+        check(
+            tmp_path,
+            calc(
+                "Si",
+                "300 K",
+                "P: 1e14 cm-3",
+                extra="stated:\n  electron_mobility: 1400 cm^2/(V*s)\n",
+            ),
+        ),
+        "MOB02",
+    )
 
 
 # --- CONST01 / CONST02: stated constants ------------------------------------------------------
 
+
 def test_const01_thermal_voltage(tmp_path):
-    report = check(tmp_path, calc("Si", "400 K", "P: 1e16 cm-3",
-                                  extra="stated:\n  thermal_voltage: 0.0259 V\n"))
+    report = check(
+        tmp_path,
+        calc("Si", "400 K", "P: 1e16 cm-3", extra="stated:\n  thermal_voltage: 0.0259 V\n"),
+    )
     corrected = correction(one(report, "CONST01"), "thermal voltage").corrected
     assert corrected == pytest.approx(sc.k * 400 / sc.e, rel=1e-15)
-    assert corrected == pytest.approx(0.0344693330, abs=1e-10)    # k*400 K/q, CODATA 2018 exact k and q
+    assert corrected == pytest.approx(
+        0.0344693330, abs=1e-10
+    )  # k*400 K/q, CODATA 2018 exact k and q
     # 0.0259 V at 300 K is rounding (+0.19 %), below the 1 % threshold
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
-                                      extra="stated:\n  thermal_voltage: 0.0259 V\n")), "CONST01")
+    assert quiet(
+        check(
+            tmp_path,
+            calc("Si", "300 K", "P: 1e16 cm-3", extra="stated:\n  thermal_voltage: 0.0259 V\n"),
+        ),
+        "CONST01",
+    )
 
 
 def test_const02_outdated_silicon_ni(tmp_path):
-    report = check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
-                                  extra="stated:\n  intrinsic_density: 1.45e10 cm-3\n"))
+    report = check(
+        tmp_path,
+        calc("Si", "300 K", "P: 1e16 cm-3", extra="stated:\n  intrinsic_density: 1.45e10 cm-3\n"),
+    )
     corrected = correction(one(report, "CONST02"), "intrinsic").corrected / CM3
     # Couderc, Amara & Lemiti, J. Appl. Phys. 115, 093705 (2014) N_c, N_v; Thurmond (1975) gap
     assert corrected == pytest.approx(couderc_ni(300.0), rel=1e-9)
-    assert corrected == pytest.approx(9.65e9, rel=0.01)    # Altermatt et al. 2003
+    assert corrected == pytest.approx(9.65e9, rel=0.01)  # Altermatt et al. 2003
     # every modern published value is quiet: 9.65e9 (Altermatt 2003), 9.7e9 (Misiakos &
     # Tsamakis 1993), 1.00e10 (Sproul & Green 1991), 1.07e10 (Green 1990's N_c, N_v)
     for value in ("9.65e9", "9.7e9", "1.0e10", "1.07e10"):
-        assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
-                                          extra=f"stated:\n  intrinsic_density: {value} cm-3\n")),
-                     "CONST02")
+        assert quiet(
+            check(
+                tmp_path,
+                calc(
+                    "Si",
+                    "300 K",
+                    "P: 1e16 cm-3",
+                    extra=f"stated:\n  intrinsic_density: {value} cm-3\n",
+                ),
+            ),
+            "CONST02",
+        )
 
 
 def couderc_dos(T):
     """N_c, N_v (cm^-3): 2 (2 pi m0 k T/h^2)^1.5 times the DOS-mass cubics of Couderc et al.
     (2014)."""
-    pre = 2 * (2 * math.pi * sc.m_e * sc.k * T / sc.h ** 2) ** 1.5 / CM3
-    dc = 1.094 - 1.312e-5 * T + 6.753e-7 * T ** 2 - 4.609e-10 * T ** 3
-    dv = 0.3426 + 3.376e-3 * T - 4.689e-6 * T ** 2 + 2.525e-9 * T ** 3
+    pre = 2 * (2 * math.pi * sc.m_e * sc.k * T / sc.h**2) ** 1.5 / CM3
+    dc = 1.094 - 1.312e-5 * T + 6.753e-7 * T**2 - 4.609e-10 * T**3
+    dv = 0.3426 + 3.376e-3 * T - 4.689e-6 * T**2 + 2.525e-9 * T**3
     return pre * dc, pre * dv
 
 
 def couderc_ni(T):
     nc, nv = couderc_dos(T)
-    Eg = 1.17 - 4.73e-4 * T ** 2 / (T + 636)          # Thurmond (1975)
+    Eg = 1.17 - 4.73e-4 * T**2 / (T + 636)  # Thurmond (1975)
     return math.sqrt(nc * nv) * math.exp(-Eg / (2 * sc.k * T / sc.e))
 
 
 def test_const03_density_of_states_scales_with_temperature(tmp_path):
-    report = check(tmp_path, calc("Si", "400 K", "P: 1e16 cm-3",
-                                  extra="stated:\n  conduction_dos: 2.86e19 cm-3\n"))
+    report = check(
+        tmp_path,
+        calc("Si", "400 K", "P: 1e16 cm-3", extra="stated:\n  conduction_dos: 2.86e19 cm-3\n"),
+    )
     corrected = correction(one(report, "CONST03", "electrons"), "effective").corrected / CM3
     assert corrected == pytest.approx(couderc_dos(400.0)[0], rel=1e-9)
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
-                                      extra="stated:\n  conduction_dos: 2.86e19 cm-3\n")),
-                 "CONST03")
+    assert quiet(
+        check(
+            tmp_path,
+            calc("Si", "300 K", "P: 1e16 cm-3", extra="stated:\n  conduction_dos: 2.86e19 cm-3\n"),
+        ),
+        "CONST03",
+    )
 
 
 # --- DOPE01 / DOPE02: heavy doping ------------------------------------------------------------
 
+
 def test_dope01_band_gap_narrowing_on_minority_density(tmp_path):
-    report = check(tmp_path, calc("Si", "300 K", "P: 1e18 cm-3",
-                                  extra="stated:\n  hole_density: 110 cm-3\n"))
+    report = check(
+        tmp_path, calc("Si", "300 K", "P: 1e18 cm-3", extra="stated:\n  hole_density: 110 cm-3\n")
+    )
     finding = one(report, "DOPE01", "electrons")
     N, kT = 1e18, sc.k * 300
-    x = math.log(N / 1.3e17)   # Klaassen, Slotboom & de Graaff (1992): 6.92 mV, 1.3e17, 0.5
+    x = math.log(N / 1.3e17)  # Klaassen, Slotboom & de Graaff (1992): 6.92 mV, 1.3e17, 0.5
     dEg = 6.92e-3 * (x + math.sqrt(x * x + 0.5)) * sc.e
-    assert dEg / sc.e == pytest.approx(0.0291, abs=1e-4)   # Klaassen et al. (1992) form: 29.1 meV at 1e18 (computed)
+    assert dEg / sc.e == pytest.approx(
+        0.0291, abs=1e-4
+    )  # Klaassen et al. (1992) form: 29.1 meV at 1e18 (computed)
     assert finding.indicator_value == pytest.approx(math.exp(dEg / kT), rel=1e-9)
     si = load_material("Si")
     eta = eta_of("Si", 300.0, {"P": 1e18})
     n = float(si.Nc(300.0)) * float(mp_fermi_half(eta))
     ni2 = float(si.Nc(300.0) * si.Nv(300.0)) * math.exp(-float(si.band_gap(300.0)) / kT)
     assert correction(finding, "minority").corrected == pytest.approx(
-        ni2 * math.exp(dEg / kT) / n, rel=1e-8)
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 1e16 cm-3",
-                                      extra="stated:\n  hole_density: 1.1e4 cm-3\n")), "DOPE01")
+        ni2 * math.exp(dEg / kT) / n, rel=1e-8
+    )
+    assert quiet(
+        check(
+            tmp_path,
+            calc("Si", "300 K", "P: 1e16 cm-3", extra="stated:\n  hole_density: 1.1e4 cm-3\n"),
+        ),
+        "DOPE01",
+    )
 
 
 def test_dope02_mott_density_of_si_p(tmp_path):
     # Si:P Mott density 3.74e18 cm^-3, Rosenbaum et al., Phys. Rev. B 27, 7509 (1983)
-    finding = one(check(tmp_path, calc("Si", "300 K", "P: 5e18 cm-3",
-                                       extra="assumes: [non-degenerate]")), "DOPE02")
+    finding = one(
+        check(tmp_path, calc("Si", "300 K", "P: 5e18 cm-3", extra="assumes: [non-degenerate]")),
+        "DOPE02",
+    )
     assert finding.indicator_value == pytest.approx(5e18 / 3.74e18, rel=1e-12)
-    assert quiet(check(tmp_path, calc("Si", "300 K", "P: 3e18 cm-3",
-                                      extra="assumes: [non-degenerate]")), "DOPE02")
+    assert quiet(
+        check(tmp_path, calc("Si", "300 K", "P: 3e18 cm-3", extra="assumes: [non-degenerate]")),
+        "DOPE02",
+    )
 
 
 # --- MODEL01 / MODEL02: model ranges ----------------------------------------------------------
+
 
 def test_model_ranges(tmp_path):
     # the mobility fits are used from 250 K to 500 K (Arora's range) and Masetti's up to
@@ -462,23 +688,41 @@ def test_model_ranges(tmp_path):
     below = one(check(tmp_path, calc("Si", "200 K", "P: 1e16 cm-3")), "MODEL01")
     assert "electron mobility (standard_P)" in below.message
     above = one(check(tmp_path, calc("Si", "300 K", "As: 8e21 cm-3")), "MODEL02")
-    assert "hole mobility (standard_B)" in above.message      # ASTM F723 ends at 1e21
+    assert "hole mobility (standard_B)" in above.message  # ASTM F723 ends at 1e21
 
 
 # --- waivers ----------------------------------------------------------------------------------
 
+
 def test_waiver_marks_finding_and_unused_waiver_is_noted(tmp_path):
-    report = check(tmp_path, calc("Si", "300 K", "P: 1e18 cm-3", extra=(
-        "stated:\n  electron_mobility: 1350 cm^2/(V*s)\n"
-        "waivers:\n  - {rule: MOB01, reason: measured on test wafer W7}\n"
-        "  - {rule: TRAN02, reason: no field in this calculation}\n")))
+    report = check(
+        tmp_path,
+        calc(
+            "Si",
+            "300 K",
+            "P: 1e18 cm-3",
+            extra=(
+                "stated:\n  electron_mobility: 1350 cm^2/(V*s)\n"
+                "waivers:\n  - {rule: MOB01, reason: measured on test wafer W7}\n"
+                "  - {rule: TRAN02, reason: no field in this calculation}\n"
+            ),
+        ),
+    )
     assert one(report, "MOB01").waived == "measured on test wafer W7"
     assert any("TRAN02" in note and "waives nothing" in note for note in report.notes)
 
 
-@pytest.mark.parametrize("material, donor, acceptor", [
-    ("Si", "P", "B"), ("GaAs", "Si", "C"), ("GaN", "Si", "Mg"), ("Ge", "Sb", "Ga"),
-    ("4H-SiC", "N", "Al"), ("InGaAs", "Si", "Zn")])
+@pytest.mark.parametrize(
+    "material, donor, acceptor",
+    [
+        ("Si", "P", "B"),
+        ("GaAs", "Si", "C"),
+        ("GaN", "Si", "Mg"),
+        ("Ge", "Sb", "Ga"),
+        ("4H-SiC", "N", "Al"),
+        ("InGaAs", "Si", "Zn"),
+    ],
+)
 def test_nothing_assumed_nothing_fires_but_model_ranges(tmp_path, material, donor, acceptor):
     """Rules fire only where their assumption is made: with no stated numbers and no
     declared assumptions, only the model-validity notes may appear, whatever the regime."""
@@ -486,7 +730,10 @@ def test_nothing_assumed_nothing_fires_but_model_ranges(tmp_path, material, dono
 
     text = "\n---\n".join(
         calc(material, f"{T} K", f"{donor}: {N:g} cm-3", f"{acceptor}: {N * ratio:g} cm-3")
-        for T in (20, 300, 900) for N in (1e14, 1e17, 1e20) for ratio in (0, 0.5, 3))
+        for T in (20, 300, 900)
+        for N in (1e14, 1e17, 1e20)
+        for ratio in (0, 0.5, 3)
+    )
     path = tmp_path / "grid.yaml"
     path.write_text(text, encoding="utf-8")
     read = read_calculation_file(path)
@@ -500,8 +747,13 @@ def test_dope02_quiet_for_full_ionization_above_the_mott_density(tmp_path):
     # ionized there (GaAs:Si, Mott density near 1e16 cm-3 by the Edwards–Sienko criterion
     # n_c^(1/3) a* = 0.26, Phys. Rev. B 17, 2575 (1978)); only Boltzmann statistics or
     # ionization energies draw DOPE02
-    report = check(tmp_path, calc("GaAs", "300 K", "Si: 1e17 cm-3",
-                                  extra="assumes: [full-ionization]\n"))
+    report = check(
+        tmp_path, calc("GaAs", "300 K", "Si: 1e17 cm-3", extra="assumes: [full-ionization]\n")
+    )
     assert quiet(report, "DOPE02")
-    assert not quiet(check(tmp_path, calc("GaAs", "300 K", "Si: 1e17 cm-3",
-                                          extra="assumes: [non-degenerate]\n")), "DOPE02")
+    assert not quiet(
+        check(
+            tmp_path, calc("GaAs", "300 K", "Si: 1e17 cm-3", extra="assumes: [non-degenerate]\n")
+        ),
+        "DOPE02",
+    )

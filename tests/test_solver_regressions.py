@@ -6,20 +6,24 @@ Every point is compared with the independent 40-digit bisection of
 of Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1), and the
 returned residual is checked against a neutrality error computed here in mpmath.
 """
+
 import mpmath as mp
 import numpy as np
 import pytest
+from reference import K_B, ionized_fraction, mp_fermi_half, reference_solve
 
 from checker.inputs.material_catalog import resolve_material
 from checker.physics import equilibrium
 from checker.physics.carriers import regime_label
-from reference import K_B, ionized_fraction, mp_fermi_half, reference_solve
 
 PER_CM3 = 1e6
 
 FREEZE_OUT = [("GaN", "Mg", 1e19, T) for T in (15, 20, 30, 40)] + [
-    ("4H-SiC", "Al", 1e18, 30), ("4H-SiC", "Al", 1e18, 40),
-    ("Si", "B", 1e16, 8), ("GaAs", "C", 1e16, 4)]
+    ("4H-SiC", "Al", 1e18, 30),
+    ("4H-SiC", "Al", 1e18, 40),
+    ("Si", "B", 1e16, 8),
+    ("GaAs", "C", 1e16, 4),
+]
 
 
 def _mp_balance(material, T, eta, donors, acceptors):
@@ -32,8 +36,9 @@ def _mp_balance(material, T, eta, donors, acceptors):
         neg = mp.mpf(float(material.Nc(T))) * mp_fermi_half(eta)
         pos = mp.mpf(float(material.Nv(T))) * mp_fermi_half(-eta - eg / kT)
         for name, N in acceptors.items():
-            neg += N * ionized_fraction(material.dopant(name), -eta - eg / kT, kT,
-                                        sum(acceptors.values()))
+            neg += N * ionized_fraction(
+                material.dopant(name), -eta - eg / kT, kT, sum(acceptors.values())
+            )
         for name, N in donors.items():
             pos += N * ionized_fraction(material.dopant(name), eta, kT, sum(donors.values()))
         return float(abs(neg - pos) / max(neg, pos))
@@ -43,8 +48,9 @@ def _mp_balance(material, T, eta, donors, acceptors):
 def test_acceptor_freeze_out_matches_independent_solve(name, species, density_cm3, T):
     material = resolve_material(name)
     acceptors = {species: density_cm3 * PER_CM3}
-    state = equilibrium.solve(material, np.array([float(T)]), {},
-                              {k: np.array([v]) for k, v in acceptors.items()})
+    state = equilibrium.solve(
+        material, np.array([float(T)]), {}, {k: np.array([v]) for k, v in acceptors.items()}
+    )
     reference = reference_solve(material, T, {}, acceptors)
     # a wrong degeneracy in the start value put eta off by ln 2 (p off by sqrt 2)
     assert state.eta_n[0] == pytest.approx(reference, rel=1e-12, abs=1e-9)
@@ -52,8 +58,10 @@ def test_acceptor_freeze_out_matches_independent_solve(name, species, density_cm
     assert _mp_balance(material, T, state.eta_n[0], {}, acceptors) <= 1e-10
 
 
-@pytest.mark.parametrize("name,T", [("GaN", 1.0), ("GaN", 2.0), ("4H-SiC", 1.5),
-                                    ("4H-SiC", 2.25), ("Si", 1.0), ("GaAs", 1.0)])
+@pytest.mark.parametrize(
+    "name,T",
+    [("GaN", 1.0), ("GaN", 2.0), ("4H-SiC", 1.5), ("4H-SiC", 2.25), ("Si", 1.0), ("GaAs", 1.0)],
+)
 def test_undoped_wide_gap_near_one_kelvin(name, T):
     material = resolve_material(name)
     state = equilibrium.solve(material, np.array([T]))
@@ -76,8 +84,9 @@ def test_residual_is_an_independent_check():
     # eta by ln 2 must show an error of order one (the mpmath balance says how much)
     material = resolve_material("GaN")
     acceptors = {"Mg": 1e19 * PER_CM3}
-    state = equilibrium.solve(material, np.array([20.0]), {},
-                              {k: np.array([v]) for k, v in acceptors.items()})
+    state = equilibrium.solve(
+        material, np.array([20.0]), {}, {k: np.array([v]) for k, v in acceptors.items()}
+    )
     state.eta_n = state.eta_n - np.log(2.0)
     for key in ("n", "p", "eta_p", "acceptors_ionized"):
         state.__dict__.pop(key, None)

@@ -2,6 +2,7 @@
 map, units with nested parentheses, quoted newlines, non-finite and non-positive cells.
 Every bad input is an input error naming file, line and column (exit 2, never a
 traceback); the other rows and files are still checked and no input is modified."""
+
 import json
 import os
 import subprocess
@@ -20,8 +21,12 @@ GOOD_ROW = "good,Si,P,1e16,300 K,0.5\n"
 
 
 def check(*args, cwd=None):
-    done = subprocess.run([sys.executable, "-m", "checker", "check", *args, "--format", "json"],
-                          capture_output=True, text=True, cwd=cwd or ROOT)
+    done = subprocess.run(
+        [sys.executable, "-m", "checker", "check", *args, "--format", "json"],
+        capture_output=True,
+        text=True,
+        cwd=cwd or ROOT,
+    )
     assert "Traceback" not in done.stdout + done.stderr
     return done.returncode, json.loads(done.stdout)
 
@@ -29,18 +34,24 @@ def check(*args, cwd=None):
 def masetti_electron_mobility(N_cm3):
     """Si:P at 300 K, cm^2/(V s): Masetti, Severi, Solmi, IEEE Trans. Electron Devices
     30, 764 (1983), Table I (phosphorus parameters)."""
-    return (68.5 + (1414 - 68.5) / (1 + (N_cm3 / 9.20e16) ** 0.711)
-            - 56.1 / (1 + (3.41e20 / N_cm3) ** 1.98))
+    return (
+        68.5
+        + (1414 - 68.5) / (1 + (N_cm3 / 9.20e16) ** 0.711)
+        - 56.1 / (1 + (3.41e20 / N_cm3) ** 1.98)
+    )
 
 
-@pytest.mark.parametrize("header, expected", [
-    ("mobility [cm^2/(V*s)]", ("mobility", "cm^2/(V*s)")),
-    ("mobility (cm^2/(V*s))", ("mobility", "cm^2/(V*s)")),
-    ("Rho (ohm cm)", ("Rho", "ohm cm")),
-    ("density", ("density", None)),
-    ("mobility [cm^2/(V*s)", ("mobility [cm^2/(V*s)", None)),     # unbalanced: all name
-    ("(cm-3)", ("(cm-3)", None)),                                  # a unit with no name
-])
+@pytest.mark.parametrize(
+    "header, expected",
+    [
+        ("mobility [cm^2/(V*s)]", ("mobility", "cm^2/(V*s)")),
+        ("mobility (cm^2/(V*s))", ("mobility", "cm^2/(V*s)")),
+        ("Rho (ohm cm)", ("Rho", "ohm cm")),
+        ("density", ("density", None)),
+        ("mobility [cm^2/(V*s)", ("mobility [cm^2/(V*s)", None)),  # unbalanced: all name
+        ("(cm-3)", ("(cm-3)", None)),  # a unit with no name
+    ],
+)
 def test_header_unit_is_the_balanced_group_at_the_end(header, expected):
     """The README's header convention: a name, then its unit in brackets or parentheses;
     the unit cm^2/(V*s) itself holds parentheses (SI Brochure, 9th ed., ch. 5: a unit
@@ -65,47 +76,53 @@ def test_mobility_with_nested_unit_is_checked_against_the_model(tmp_path, column
     fit (the model's refinements, e.g. crediting ionized dopants, move it ~1.5 % here;
     MOB01 itself only fires beyond a factor 1.3)."""
     path = tmp_path / "mu.csv"
-    path.write_text(f"material,dopant,density [cm-3],temperature,{column}\n"
-                    "Si,P,1e17,300 K,3000\n")
+    path.write_text(f"material,dopant,density [cm-3],temperature,{column}\nSi,P,1e17,300 K,3000\n")
     result = check_paths([str(path)])
     assert not result.input_errors
-    finding, = [f for f in result.reports[0].findings if f.rule == "MOB01"]
+    (finding,) = [f for f in result.reports[0].findings if f.rule == "MOB01"]
     assert finding.column == column and finding.line == 2
-    expected = masetti_electron_mobility(1e17) * 1e-4                  # m^2/(V s)
+    expected = masetti_electron_mobility(1e17) * 1e-4  # m^2/(V s)
     assert finding.corrections[0].corrected == pytest.approx(expected, rel=0.03)
 
 
 def test_unknown_header_names_the_column_and_the_closest_names(tmp_path):
     path = tmp_path / "typo.csv"
-    path.write_text("material,dopant,density [cm-3],temperature,mobilty,resistivity [ohm*cm]\n"
-                    "Si,P,1e16,300 K,1350,0.5\n")
+    path.write_text(
+        "material,dopant,density [cm-3],temperature,mobilty,resistivity [ohm*cm]\n"
+        "Si,P,1e16,300 K,1350,0.5\n"
+    )
     before = path.read_bytes()
     code, data = check(str(path))
     assert code == 2
-    error, = data["input_errors"]
+    (error,) = data["input_errors"]
     assert error.startswith(f"{path}:1: column 5 'mobilty'") and "mobility" in error
     assert "[tool.regimecheck.columns]" in error
-    assert len(data["calculations"]) == 1                # the known columns still checked
+    assert len(data["calculations"]) == 1  # the known columns still checked
     assert path.read_bytes() == before
 
 
 def test_columns_left_out_by_name_or_setting(tmp_path):
     (tmp_path / "pyproject.toml").write_text(
-        '[tool.regimecheck.columns]\nignore = ["Supplier (lot)"]\n')
-    (tmp_path / "lots.csv").write_text("material,dopant,density [cm-3],temperature,"
-                                       "resistivity [ohm*cm],Notes,Supplier (lot)\n"
-                                       "Si,P,1e16,300 K,0.5,as received,Acme\n")
+        '[tool.regimecheck.columns]\nignore = ["Supplier (lot)"]\n'
+    )
+    (tmp_path / "lots.csv").write_text(
+        "material,dopant,density [cm-3],temperature,"
+        "resistivity [ohm*cm],Notes,Supplier (lot)\n"
+        "Si,P,1e16,300 K,0.5,as received,Acme\n"
+    )
     code, data = check("lots.csv", cwd=tmp_path)
     assert code == 0 and not data["input_errors"] and len(data["calculations"]) == 1
 
 
 def test_bad_unit_in_a_header_is_one_error_for_the_table(tmp_path):
     path = tmp_path / "unit.csv"
-    path.write_text("material,dopant,density [furlongs],temperature,resistivity\n"
-                    + "Si,P,1e16,300 K,0.5 ohm*cm\n" * 3)
+    path.write_text(
+        "material,dopant,density [furlongs],temperature,resistivity\n"
+        + "Si,P,1e16,300 K,0.5 ohm*cm\n" * 3
+    )
     read = read_table(path)
     assert not read.calculations
-    error, = read.errors
+    (error,) = read.errors
     assert error.startswith(f"{path}:1: column 'density [furlongs]'")
 
 
@@ -113,13 +130,17 @@ def test_quoted_newline_reports_the_line_where_the_row_starts(tmp_path):
     """RFC 4180 §2.6: a quoted field may hold line breaks; a row's line is where it
     starts.  A form feed or U+2028 in a cell is no line break in a CSV file."""
     path = tmp_path / "quoted.csv"
-    path.write_text("# lot sheet\n" + HEADER
-                    + '"two\nline label",Si,P,1e16,300 K,0.5\n'
-                    + "page\x0cbreak \u2028 label,Si,P,1e16,300 K,0.5\n"
-                    + "bad,Si,P,1e16,300 K,-1\n", encoding="utf-8")
+    path.write_text(
+        "# lot sheet\n"
+        + HEADER
+        + '"two\nline label",Si,P,1e16,300 K,0.5\n'
+        + "page\x0cbreak \u2028 label,Si,P,1e16,300 K,0.5\n"
+        + "bad,Si,P,1e16,300 K,-1\n",
+        encoding="utf-8",
+    )
     read = read_table(path)
     assert [c.line for c in read.calculations] == [3, 5]
-    error, = read.errors
+    (error,) = read.errors
     assert error.startswith(f"{path}:6: column 'resistivity [ohm*cm]'")
 
 
@@ -128,12 +149,14 @@ def test_non_finite_hall_scattering_is_an_input_error(tmp_path, cell):
     """The scattering exponent r of tau ∝ E^r is a finite number (Lundstrom 2000, ch. 4:
     r = -1/2 acoustic phonons, 3/2 ionized impurities)."""
     path = tmp_path / "hall.csv"
-    path.write_text("material,dopant,density [cm-3],temperature,hall_density [cm-3],"
-                    f"hall_scattering\nSi,P,1e16,300 K,1e16,{cell}\nSi,P,1e16,300 K,1e16,"
-                    "acoustic\n")
+    path.write_text(
+        "material,dopant,density [cm-3],temperature,hall_density [cm-3],"
+        f"hall_scattering\nSi,P,1e16,300 K,1e16,{cell}\nSi,P,1e16,300 K,1e16,"
+        "acoustic\n"
+    )
     code, data = check(str(path))
     assert code == 2
-    error, = data["input_errors"]
+    (error,) = data["input_errors"]
     assert error.startswith(f"{path}:2: column 'hall_scattering'") and "acoustic" in error
     assert len(data["calculations"]) == 1
 
@@ -141,11 +164,13 @@ def test_non_finite_hall_scattering_is_an_input_error(tmp_path, cell):
 @pytest.mark.parametrize("thickness", ["0", "-2", "-0.5 um"])
 def test_thickness_must_be_positive_as_in_calculation_files(tmp_path, thickness):
     path = tmp_path / "sheet.csv"
-    path.write_text("material,dopant,density [cm-3],temperature,sheet_resistance [ohm/sq],"
-                    f"thickness [um]\nSi,P,1e16,300 K,200,{thickness}\nSi,P,1e16,300 K,200,2\n")
+    path.write_text(
+        "material,dopant,density [cm-3],temperature,sheet_resistance [ohm/sq],"
+        f"thickness [um]\nSi,P,1e16,300 K,200,{thickness}\nSi,P,1e16,300 K,200,2\n"
+    )
     read = read_table(path)
     assert len(read.calculations) == 1
-    error, = read.errors
+    (error,) = read.errors
     assert error.startswith(f"{path}:2: column 'thickness [um]'")
 
 
@@ -157,19 +182,19 @@ def test_row_limit_refuses_the_table_without_reading_it_all(tmp_path, monkeypatc
     path.write_bytes((HEADER + GOOD_ROW * 5000).encode() + b"\xff\xfe not text\n")
     read = read_table(path)
     assert not read.calculations
-    error, = read.errors
+    (error,) = read.errors
     assert error.startswith(f"{path}:7: the table has more than 5 rows")
     assert "split it" in error
 
 
 def test_byte_limit_refuses_a_huge_file_and_checks_the_others(tmp_path):
     huge = tmp_path / "huge.csv"
-    with open(huge, "wb") as handle:      # sparse: the size is known without writing it
+    with open(huge, "wb") as handle:  # sparse: the size is known without writing it
         handle.truncate(table.MAX_TABLE_BYTES + 1)
     (tmp_path / "small.csv").write_text(HEADER + GOOD_ROW)
     code, data = check(str(huge), str(tmp_path / "small.csv"))
     assert code == 2
-    error, = data["input_errors"]
+    (error,) = data["input_errors"]
     assert error.startswith(f"{huge}:") and f"{table.MAX_TABLE_BYTES:,} bytes" in error
     assert [c["name"] for c in data["calculations"]] == ["good"]
     assert os.path.getsize(huge) == table.MAX_TABLE_BYTES + 1
@@ -185,8 +210,10 @@ def test_table_that_is_not_utf8_is_an_input_error(tmp_path):
 def test_many_unknown_headers_are_named_up_to_a_cap(tmp_path):
     extra = ",".join(f"extra {i}" for i in range(table.MAX_UNKNOWN_REPORTED + 5))
     path = tmp_path / "wide.csv"
-    path.write_text(f"material,dopant,density [cm-3],temperature,resistivity [ohm*cm],{extra}\n"
-                    "Si,P,1e16,300 K,0.5\n")
+    path.write_text(
+        f"material,dopant,density [cm-3],temperature,resistivity [ohm*cm],{extra}\n"
+        "Si,P,1e16,300 K,0.5\n"
+    )
     read = read_table(path)
     assert len(read.calculations) == 1
     assert len(read.errors) == table.MAX_UNKNOWN_REPORTED + 1
@@ -196,8 +223,11 @@ def test_many_unknown_headers_are_named_up_to_a_cap(tmp_path):
 
 def test_misspelt_required_column_is_named_with_its_look_alike(tmp_path):
     path = tmp_path / "miss.csv"
-    path.write_text("materal,dopant,densty [cm-3],temperature,resistivity\n"
-                    "Si,P,1e16,300 K,1 ohm*cm\n")
-    error, = read_table(path).errors
-    assert error.startswith(f"{path}:1: the header lacks material, density; is 'materal' for "
-                            "material, 'densty [cm-3]' for density misspelt?")
+    path.write_text(
+        "materal,dopant,densty [cm-3],temperature,resistivity\nSi,P,1e16,300 K,1 ohm*cm\n"
+    )
+    (error,) = read_table(path).errors
+    assert error.startswith(
+        f"{path}:1: the header lacks material, density; is 'materal' for "
+        "material, 'densty [cm-3]' for density misspelt?"
+    )

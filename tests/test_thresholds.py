@@ -12,6 +12,7 @@ neutrality solve of tests/reference.py, scipy.constants, and published model for
 and values named beside each builder.  The package is asked only whether the rule fired
 (and, where it did, for the indicator value it reports, which must agree).
 """
+
 from __future__ import annotations
 
 import math
@@ -22,17 +23,17 @@ import mpmath as mp
 import pytest
 import scipy.constants as sc
 import yaml
+from conftest import fd_reference
+from reference import ionized_fraction, reference_solve
 
 from checker import load_material, regime_label, solve_equilibrium
 from checker.engine.run import check_calculations
 from checker.inputs.calculation_file import parse_calculations
-from conftest import fd_reference
-from reference import ionized_fraction, reference_solve
 
 K_B, Q = sc.k, sc.e
-CM3 = 1e6                      # m^-3 per cm^-3
-CM2 = 1e-4                     # m^2 per cm^2
-STEP = 2e-3                    # "just past" / "just inside": 0.2 % of the threshold
+CM3 = 1e6  # m^-3 per cm^-3
+CM2 = 1e-4  # m^2 per cm^2
+STEP = 2e-3  # "just past" / "just inside": 0.2 % of the threshold
 RULES = Path(__file__).resolve().parents[1] / "rules"
 
 
@@ -56,52 +57,81 @@ THRESHOLDS = _rule_file_thresholds()
 # the rule's edge away from the points and the test fails.
 DOCUMENTED = {
     "STAT01": (-3.0, "3kT rule, E_C - E_F >= 3kT: Sze & Ng (2007), ch. 1 (common practice)"),
-    "STAT02": (1.05, "5 % error in D (common practice (no source)); reached at eta = -1.90 "
-                     "(3D), -2.27 (2D) by the generalized Einstein relation (Landsberg 1981)"),
+    "STAT02": (
+        1.05,
+        "5 % error in D (common practice (no source)); reached at eta = -1.90 "
+        "(3D), -2.27 (2D) by the generalized Einstein relation (Landsberg 1981)",
+    ),
     "CARR01": (0.01, "1 % minority share (common practice (no source))"),
     "CARR02": (0.10, "10 % (common practice (no source))"),
     "CARR03": (1.0, "the other carrier type carries most of the current (definition)"),
     "ION01": (0.95, "95 % ionized (common practice (no source))"),
     "ION02": (0.02, "2 % (common practice (no source))"),
     "TRAN01": (0.05, "5 % resistance error (common practice (no source))"),
-    "TRAN02": (1.10, "10 %: pure-Si low-field mobilities spread 8 % (Masetti 1983 1417, ASTM "
-                     "F723 1465, Canali 1975 1534 cm^2/Vs) (common practice (no source))"),
-    "MOB01": (1.3, "Arora et al. (1982) +-13 %; 30 % for the spread of parameter sets "
-                   "(common practice (no source))"),
-    "MOB02": (1.05, "5 % above the lattice limit for measurement scatter (common practice "
-                    "(no source))"),
-    "CONST01": (0.01, "1 %, above rounding: 0.0259 V at 300 K is +0.19 % (common practice "
-                      "(no source))"),
+    "TRAN02": (
+        1.10,
+        "10 %: pure-Si low-field mobilities spread 8 % (Masetti 1983 1417, ASTM "
+        "F723 1465, Canali 1975 1534 cm^2/Vs) (common practice (no source))",
+    ),
+    "MOB01": (
+        1.3,
+        "Arora et al. (1982) +-13 %; 30 % for the spread of parameter sets "
+        "(common practice (no source))",
+    ),
+    "MOB02": (
+        1.05,
+        "5 % above the lattice limit for measurement scatter (common practice (no source))",
+    ),
+    "CONST01": (
+        0.01,
+        "1 %, above rounding: 0.0259 V at 300 K is +0.19 % (common practice (no source))",
+    ),
     "CONST02": (1.05, "5 % beyond the published n_i spread (common practice (no source))"),
-    "CONST03": (1.25, "published 300 K N_c, N_v differ by up to 23 % (Couderc et al. 2014, "
-                      "Green 1990) (common practice (no source))"),
+    "CONST03": (
+        1.25,
+        "published 300 K N_c, N_v differ by up to 23 % (Couderc et al. 2014, "
+        "Green 1990) (common practice (no source))",
+    ),
     "DOPE01": (1.2, "20 % in the minority density (common practice (no source))"),
     "DOPE02": (1.0, "the Mott density (Si:P 3.74e18 cm^-3, Rosenbaum et al. 1983)"),
-    "MODEL01": (1.02, "2 % margin at the edges of the fitted range (common practice "
-                      "(no source))"),
+    "MODEL01": (1.02, "2 % margin at the edges of the fitted range (common practice (no source))"),
     "MODEL02": (1.0, "the highest fitted doping"),
-    "MEAS01": (1.2, "ASTM F723 self-consistent within 3 % (B), 4.5 % (P); Arora et al. +-13 % "
-                    "away from 23 degC; 20 % covers both (common practice (no source))"),
-    "MEAS02": (1.05, "5 % beyond the Hall-factor range for Hall repeatability (common practice "
-                     "(no source))"),
+    "MEAS01": (
+        1.2,
+        "ASTM F723 self-consistent within 3 % (B), 4.5 % (P); Arora et al. +-13 % "
+        "away from 23 degC; 20 % covers both (common practice (no source))",
+    ),
+    "MEAS02": (
+        1.05,
+        "5 % beyond the Hall-factor range for Hall repeatability (common practice (no source))",
+    ),
     "MEAS03": (1.05, "5 % (common practice (no source))"),
     "FORM03": (0.05, "5 % (common practice (no source))"),
-    "VAL01": (1.3, "the n_i^2 spread of 25 % in Si (9.65e9, Altermatt et al. 2003, to 1.08e10 "
-                   "cm^-3, Green 1990); 30 % (common practice (no source))"),
+    "VAL01": (
+        1.3,
+        "the n_i^2 spread of 25 % in Si (9.65e9, Altermatt et al. 2003, to 1.08e10 "
+        "cm^-3, Green 1990); 30 % (common practice (no source))",
+    ),
     "VAL02": (1.0, "1 kT, a factor e in the density (common practice (no source))"),
-    "VAL03": (1.15, "Canali et al. (1975) fit within 3.8 %, low-field mobilities spread 8 % "
-                    "(common practice (no source))"),
-    "VAL04": (2.0, "2D/<v_x+> and v_th tau_m differ by a factor of order pi/2 (Lundstrom & "
-                   "Jeong 2012, ch. 6); a factor 2 (common practice (no source))"),
+    "VAL03": (
+        1.15,
+        "Canali et al. (1975) fit within 3.8 %, low-field mobilities spread 8 % "
+        "(common practice (no source))",
+    ),
+    "VAL04": (
+        2.0,
+        "2D/<v_x+> and v_th tau_m differ by a factor of order pi/2 (Lundstrom & "
+        "Jeong 2012, ch. 6); a factor 2 (common practice (no source))",
+    ),
     "VAL05": (1.2, "the resistivity tolerance of MEAS01, 20 % (common practice (no source))"),
 }
 
 
 @dataclass
 class Point:
-    text: str                  # a calculation document
-    indicator: float           # the indicator there, computed independently
-    carrier: str | None        # the finding's carrier ("electrons", "holes") or None
+    text: str  # a calculation document
+    indicator: float  # the indicator there, computed independently
+    carrier: str | None  # the finding's carrier ("electrons", "holes") or None
 
 
 def _num(value: float) -> float:
@@ -112,8 +142,11 @@ def _num(value: float) -> float:
 def _calc(material, T, donors=None, acceptors=None, extra=""):
     def group(species):
         return ", ".join(f"{k}: {v:.12e} cm-3" for k, v in (species or {}).items())
-    return (f"material: {material}\ntemperature: {T!r} K\ndoping:\n"
-            f"  donors: {{{group(donors)}}}\n  acceptors: {{{group(acceptors)}}}\n{extra}")
+
+    return (
+        f"material: {material}\ntemperature: {T!r} K\ndoping:\n"
+        f"  donors: {{{group(donors)}}}\n  acceptors: {{{group(acceptors)}}}\n{extra}"
+    )
 
 
 def F(j, eta):
@@ -124,8 +157,12 @@ def F(j, eta):
 def _bands(material, T):
     """kT, E_g, N_c, N_v at T as mpmath numbers (the material's data, as in
     reference.reference_solve)."""
-    return (mp.mpf(K_B) * T, mp.mpf(float(material.band_gap(T))),
-            mp.mpf(float(material.Nc(T))), mp.mpf(float(material.Nv(T))))
+    return (
+        mp.mpf(K_B) * T,
+        mp.mpf(float(material.band_gap(T))),
+        mp.mpf(float(material.Nc(T))),
+        mp.mpf(float(material.Nv(T))),
+    )
 
 
 def _density_for_eta(material, T, species, eta):
@@ -139,15 +176,20 @@ def _density_for_eta(material, T, species, eta):
         other = -eta - Eg / kT
         own, opposite = (Nc, Nv) if dopant.kind == "donor" else (Nv, Nc)
         free = own * F(0.5, eta) - opposite * F(0.5, other)
-        share = mp.findroot(lambda x: x * ionized_fraction(dopant, eta, kT, x * free) - 1,
-                            (mp.mpf(1), mp.mpf(1.05)))
+        share = mp.findroot(
+            lambda x: x * ionized_fraction(dopant, eta, kT, x * free) - 1, (mp.mpf(1), mp.mpf(1.05))
+        )
         return float(share * free) / CM3
 
 
 def _eta(material, T, donors=None, acceptors=None):
     """(eta_n, eta_p) of the 40-digit reference solve (densities in cm^-3)."""
-    eta_n = reference_solve(material, T, {k: v * CM3 for k, v in (donors or {}).items()},
-                            {k: v * CM3 for k, v in (acceptors or {}).items()})
+    eta_n = reference_solve(
+        material,
+        T,
+        {k: v * CM3 for k, v in (donors or {}).items()},
+        {k: v * CM3 for k, v in (acceptors or {}).items()},
+    )
     kT, Eg, _, _ = _bands(material, T)
     return eta_n, float(-eta_n - Eg / kT)
 
@@ -167,8 +209,10 @@ def _einstein_ratio(eta, dim=3):
 def _sotoodeh(N_cm3, carrier):
     """GaAs mobility at 300 K (cm^2/Vs), Sotoodeh, Khalid & Rezazadeh, J. Appl. Phys. 87,
     2890 (2000): mu_min + (mu_max - mu_min)/(1 + (N/N_ref)^lambda) at 300 K."""
-    mu_max, mu_min, N_ref, lam = {"n": (9400.0, 500.0, 6e16, 0.394),
-                                  "p": (491.5, 20.0, 1.48e17, 0.38)}[carrier]
+    mu_max, mu_min, N_ref, lam = {
+        "n": (9400.0, 500.0, 6e16, 0.394),
+        "p": (491.5, 20.0, 1.48e17, 0.38),
+    }[carrier]
     return mu_min + (mu_max - mu_min) / (1 + (N_cm3 / N_ref) ** lam)
 
 
@@ -179,13 +223,15 @@ def _root(function, start):
 
 # --- one builder per rule: target indicator value -> Point --------------------------------
 
+
 def stat01(target):
     # eta_n of Si:P at 300 K
     si = load_material("Si")
     N = _num(_density_for_eta(si, 300.0, "P", target))
     eta_n, _ = _eta(si, 300.0, {"P": N})
-    return Point(_calc("Si", 300.0, {"P": N}, extra="assumes: [non-degenerate]\n"), eta_n,
-                 "electrons")
+    return Point(
+        _calc("Si", 300.0, {"P": N}, extra="assumes: [non-degenerate]\n"), eta_n, "electrons"
+    )
 
 
 def _stat02(target, dim):
@@ -196,8 +242,9 @@ def _stat02(target, dim):
     extra = "assumes: [einstein-relation]\n"
     if dim != 3:
         extra += f"structure: {{dimensionality: {dim}}}\n"
-    return Point(_calc("GaAs", 300.0, {"Si": N}, extra=extra), _einstein_ratio(eta_n, dim),
-                 "electrons")
+    return Point(
+        _calc("GaAs", 300.0, {"Si": N}, extra=extra), _einstein_ratio(eta_n, dim), "electrons"
+    )
 
 
 def stat02(target):
@@ -219,8 +266,9 @@ def carr01(target):
     eta = _root(lambda e: mp.log(ratio(e) / target), -19.0)
     N = _num(_density_for_eta(si, 300.0, "P", eta))
     n, p = _densities(si, 300.0, *_eta(si, 300.0, {"P": N}))
-    return Point(_calc("Si", 300.0, {"P": N}, extra="assumes: [single-carrier]\n"), p / n,
-                 "electrons")
+    return Point(
+        _calc("Si", 300.0, {"P": N}, extra="assumes: [single-carrier]\n"), p / n, "electrons"
+    )
 
 
 def carr02(target):
@@ -230,8 +278,7 @@ def carr02(target):
         kT, Eg, Nc, Nv = _bands(si, 450.0)
         ni = float(mp.sqrt(Nc * Nv) * mp.exp(-Eg / (2 * kT))) / CM3
     N = _num(ni / target)
-    return Point(_calc("Si", 450.0, {"P": N}, extra="assumes: [extrinsic]\n"), ni / N,
-                 "electrons")
+    return Point(_calc("Si", 450.0, {"P": N}, extra="assumes: [extrinsic]\n"), ni / N, "electrons")
 
 
 def carr03(target):
@@ -242,8 +289,10 @@ def carr03(target):
     n, p = _densities(si, 300.0, *_eta(si, 300.0, donors, acceptors))
     mu_n = 500.0
     mu_p = _num(n * mu_n / (p * target))
-    extra = (f"stated:\n  hole_density: 1e10 cm-3\n  electron_mobility: {mu_n} cm^2/(V*s)\n"
-             f"  hole_mobility: {mu_p:.12e} cm^2/(V*s)\n")
+    extra = (
+        f"stated:\n  hole_density: 1e10 cm-3\n  electron_mobility: {mu_n} cm^2/(V*s)\n"
+        f"  hole_mobility: {mu_p:.12e} cm^2/(V*s)\n"
+    )
     return Point(_calc("Si", 300.0, donors, acceptors, extra), n * mu_n / (p * mu_p), "holes")
 
 
@@ -258,14 +307,20 @@ def ion01(target):
     eta = _root(lambda e: fraction(e, _density_for_eta(si, 300.0, "P", e)) - target, -5.3)
     N = _num(_density_for_eta(si, 300.0, "P", eta))
     eta_n, _ = _eta(si, 300.0, {"P": N})
-    return Point(_calc("Si", 300.0, {"P": N}, extra="assumes: [full-ionization]\n"),
-                 float(fraction(eta_n, N)), "electrons")
+    return Point(
+        _calc("Si", 300.0, {"P": N}, extra="assumes: [full-ionization]\n"),
+        float(fraction(eta_n, N)),
+        "electrons",
+    )
 
 
 def ion02(target):
     N_A = _num(target * 1e17)
-    return Point(_calc("Si", 300.0, {"P": 1e17}, {"B": N_A},
-                       extra="assumes: [no-compensation]\n"), N_A / 1e17, "electrons")
+    return Point(
+        _calc("Si", 300.0, {"P": 1e17}, {"B": N_A}, extra="assumes: [no-compensation]\n"),
+        N_A / 1e17,
+        "electrons",
+    )
 
 
 def tran01(target):
@@ -274,10 +329,11 @@ def tran01(target):
     # conductivity mass (Si electrons 0.26 m0, Sze & Ng 2007 App. F (from memory))
     lam = _mean_free_path(1000.0)
     L_nm = _num(lam / target * 1e9)
-    extra = (f"stated:\n  electron_mobility: 1000 cm^2/(V*s)\nassumes: [diffusive]\n"
-             f"structure: {{length: {L_nm:.12e} nm, cross_section: 1 um^2}}\n")
-    return Point(_calc("Si", 300.0, {"P": 1e15}, extra=extra), lam / (L_nm * 1e-9),
-                 "electrons")
+    extra = (
+        f"stated:\n  electron_mobility: 1000 cm^2/(V*s)\nassumes: [diffusive]\n"
+        f"structure: {{length: {L_nm:.12e} nm, cross_section: 1 um^2}}\n"
+    )
+    return Point(_calc("Si", 300.0, {"P": 1e15}, extra=extra), lam / (L_nm * 1e-9), "electrons")
 
 
 def tran02(target):
@@ -285,10 +341,12 @@ def tran02(target):
     # with Canali et al., IEEE TED 22, 1045 (1975): v_sat = 1.53e9 T^-0.87 cm/s,
     # beta = 2.57e-2 T^0.66 (Si electrons)
     T, mu = 300.0, 1000.0
-    vsat, beta = 1.53e9 * T ** -0.87, 2.57e-2 * T ** 0.66
-    field = _num(vsat / mu * (target ** beta - 1) ** (1 / beta) / 1e3)      # kV/cm
-    extra = (f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\nassumes: [low-field]\n"
-             f"structure: {{field: {field:.12e} kV/cm}}\n")
+    vsat, beta = 1.53e9 * T**-0.87, 2.57e-2 * T**0.66
+    field = _num(vsat / mu * (target**beta - 1) ** (1 / beta) / 1e3)  # kV/cm
+    extra = (
+        f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\nassumes: [low-field]\n"
+        f"structure: {{field: {field:.12e} kV/cm}}\n"
+    )
     indicator = (1 + (mu * field * 1e3 / vsat) ** beta) ** (1 / beta)
     return Point(_calc("Si", T, {"P": 1e15}, extra=extra), indicator, "electrons")
 
@@ -296,25 +354,41 @@ def tran02(target):
 def mob01(target):
     model = _sotoodeh(1e17, "n")
     mu = _num(model * target)
-    return Point(_calc("GaAs", 300.0, {"Si": 1e17},
-                       extra=f"stated:\n  electron_mobility: {mu:.12e} cm^2/(V*s)\n"),
-                 mu / model, "electrons")
+    return Point(
+        _calc(
+            "GaAs",
+            300.0,
+            {"Si": 1e17},
+            extra=f"stated:\n  electron_mobility: {mu:.12e} cm^2/(V*s)\n",
+        ),
+        mu / model,
+        "electrons",
+    )
 
 
 def mob02(target):
     # the lattice-limited GaAs electron mobility at 300 K: Sotoodeh et al. (2000) mu_max
     mu = _num(9400.0 * target)
-    return Point(_calc("GaAs", 300.0, {"Si": 1e17},
-                       extra=f"stated:\n  electron_mobility: {mu:.12e} cm^2/(V*s)\n"),
-                 mu / 9400.0, "electrons")
+    return Point(
+        _calc(
+            "GaAs",
+            300.0,
+            {"Si": 1e17},
+            extra=f"stated:\n  electron_mobility: {mu:.12e} cm^2/(V*s)\n",
+        ),
+        mu / 9400.0,
+        "electrons",
+    )
 
 
 def const01(target):
-    kT_q = K_B * 300.0 / Q                               # scipy.constants (CODATA)
+    kT_q = K_B * 300.0 / Q  # scipy.constants (CODATA)
     stated = _num(kT_q * (1 + target))
-    return Point(_calc("Si", 300.0, {"P": 1e16},
-                       extra=f"stated:\n  thermal_voltage: {stated:.12e} V\n"),
-                 abs(stated / kT_q - 1), None)
+    return Point(
+        _calc("Si", 300.0, {"P": 1e16}, extra=f"stated:\n  thermal_voltage: {stated:.12e} V\n"),
+        abs(stated / kT_q - 1),
+        None,
+    )
 
 
 def const02(target):
@@ -326,17 +400,25 @@ def const02(target):
         model = float(mp.sqrt(Nc * Nv) * mp.exp(-Eg / (2 * kT))) / CM3
     assert model < 1.08e10
     stated = _num(1.08e10 * target)
-    return Point(_calc("Si", 300.0, {"P": 1e16},
-                       extra=f"stated:\n  intrinsic_density: {stated:.12e} cm-3\n"),
-                 stated / 1.08e10, None)
+    return Point(
+        _calc(
+            "Si", 300.0, {"P": 1e16}, extra=f"stated:\n  intrinsic_density: {stated:.12e} cm-3\n"
+        ),
+        stated / 1.08e10,
+        None,
+    )
 
 
 def const03(target):
     # GaAs N_c at 300 K: 4.7e17 cm^-3 (Ioffe NSM archive, GaAs band structure)
     stated = _num(4.7e17 * target)
-    return Point(_calc("GaAs", 300.0, {"Si": 1e17},
-                       extra=f"stated:\n  conduction_dos: {stated:.12e} cm-3\n"),
-                 stated / 4.7e17, "electrons")
+    return Point(
+        _calc(
+            "GaAs", 300.0, {"Si": 1e17}, extra=f"stated:\n  conduction_dos: {stated:.12e} cm-3\n"
+        ),
+        stated / 4.7e17,
+        "electrons",
+    )
 
 
 def dope01(target):
@@ -347,15 +429,19 @@ def dope01(target):
     N = _num(1.3e17 * math.exp((y * y - 0.5) / (2 * y)))
     x = math.log(N / 1.3e17)
     narrowing = 6.92e-3 * (x + math.sqrt(x * x + 0.5))
-    return Point(_calc("Si", 300.0, {"P": N}, extra="stated:\n  intrinsic_density: 1e10 cm-3\n"),
-                 math.exp(narrowing / kT_eV), "electrons")
+    return Point(
+        _calc("Si", 300.0, {"P": N}, extra="stated:\n  intrinsic_density: 1e10 cm-3\n"),
+        math.exp(narrowing / kT_eV),
+        "electrons",
+    )
 
 
 def dope02(target):
     # Si:P Mott density 3.74e18 cm^-3: T. F. Rosenbaum et al., Phys. Rev. B 27, 7509 (1983)
     N = _num(3.74e18 * target)
-    return Point(_calc("Si", 300.0, {"P": N}, extra="assumes: [non-degenerate]\n"),
-                 N / 3.74e18, "electrons")
+    return Point(
+        _calc("Si", 300.0, {"P": N}, extra="assumes: [non-degenerate]\n"), N / 3.74e18, "electrons"
+    )
 
 
 # a material defined here, so that its fitted ranges are the test's own numbers:
@@ -402,19 +488,27 @@ def meas01(target):
     # sigma = q (n mu_n + p mu_p) (Sze & Ng 2007, ch. 1), GaAs:Si 1e16 at 300 K, Sotoodeh mobilities
     gaas = load_material("GaAs")
     n, p = _densities(gaas, 300.0, *_eta(gaas, 300.0, {"Si": 1e16}))
-    sigma = Q * (n * _sotoodeh(1e16, "n") + p * _sotoodeh(1e16, "p")) * CM2        # S/m
-    rho = _num(target / sigma * 100)                                              # ohm cm
-    return Point(_calc("GaAs", 300.0, {"Si": 1e16},
-                       extra=f"stated:\n  resistivity: {rho:.12e} ohm*cm\n"),
-                 rho / 100 * sigma, None)
+    sigma = Q * (n * _sotoodeh(1e16, "n") + p * _sotoodeh(1e16, "p")) * CM2  # S/m
+    rho = _num(target / sigma * 100)  # ohm cm
+    return Point(
+        _calc("GaAs", 300.0, {"Si": 1e16}, extra=f"stated:\n  resistivity: {rho:.12e} ohm*cm\n"),
+        rho / 100 * sigma,
+        None,
+    )
 
 
 def _hall_factor(eta, r=-0.5):
     """r_H = <tau^2>/<tau>^2 for tau ∝ E^r, 3D (Lundstrom, Fundamentals of Carrier Transport,
-    2nd ed. (2000), ch. 4): Gamma(5/2+2r) Gamma(5/2) F_(1/2+2r) F_1/2 / (Gamma(5/2+r) F_(1/2+r))^2."""
+    2nd ed. (2000), ch. 4):
+    Gamma(5/2+2r) Gamma(5/2) F_(1/2+2r) F_1/2 / (Gamma(5/2+r) F_(1/2+r))^2."""
     with mp.workdps(30):
-        return float(mp.gamma(2.5 + 2 * r) * mp.gamma(2.5) * F(0.5 + 2 * r, eta) * F(0.5, eta)
-                     / (mp.gamma(2.5 + r) * F(0.5 + r, eta)) ** 2)
+        return float(
+            mp.gamma(2.5 + 2 * r)
+            * mp.gamma(2.5)
+            * F(0.5 + 2 * r, eta)
+            * F(0.5, eta)
+            / (mp.gamma(2.5 + r) * F(0.5 + r, eta)) ** 2
+        )
 
 
 def meas02(target):
@@ -436,12 +530,13 @@ def meas03(target):
     gaas = load_material("GaAs")
     mu = 5000.0
     eta_n, _ = _eta(gaas, 300.0, {"Si": 1e17})
-    expected = mu * K_B * 300.0 / Q * _einstein_ratio(eta_n)              # cm^2/s
+    expected = mu * K_B * 300.0 / Q * _einstein_ratio(eta_n)  # cm^2/s
     stated = _num(expected * target)
-    extra = (f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
-             f"  electron_diffusivity: {stated:.12e} cm^2/s\n")
-    return Point(_calc("GaAs", 300.0, {"Si": 1e17}, extra=extra), stated / expected,
-                 "electrons")
+    extra = (
+        f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
+        f"  electron_diffusivity: {stated:.12e} cm^2/s\n"
+    )
+    return Point(_calc("GaAs", 300.0, {"Si": 1e17}, extra=extra), stated / expected, "electrons")
 
 
 def form03(target):
@@ -451,8 +546,11 @@ def form03(target):
     eta_n, _ = _eta(si, 300.0, {"P": 1e17})
     ratio = _einstein_ratio(eta_n)
     c = _num(ratio * (1 + target))
-    return Point(_calc("Si", 300.0, {"P": 1e17}, extra=f"formulas:\n  - D_n = {c!r}*mu_n*k*T/q\n"),
-                 abs(c / ratio - 1), None)
+    return Point(
+        _calc("Si", 300.0, {"P": 1e17}, extra=f"formulas:\n  - D_n = {c!r}*mu_n*k*T/q\n"),
+        abs(c / ratio - 1),
+        None,
+    )
 
 
 def val01(target):
@@ -460,9 +558,11 @@ def val01(target):
     si = load_material("Si")
     n, _ = _densities(si, 300.0, *_eta(si, 300.0, {"P": 1e16}))
     stated = _num(n / CM3 * target)
-    return Point(_calc("Si", 300.0, {"P": 1e16},
-                       extra=f"stated:\n  electron_density: {stated:.12e} cm-3\n"),
-                 stated * CM3 / n, "electrons")
+    return Point(
+        _calc("Si", 300.0, {"P": 1e16}, extra=f"stated:\n  electron_density: {stated:.12e} cm-3\n"),
+        stated * CM3 / n,
+        "electrons",
+    )
 
 
 def val02(target):
@@ -471,21 +571,25 @@ def val02(target):
     eta_n, _ = _eta(gaas, 300.0, {"Si": 1e17})
     kT_eV = K_B * 300.0 / Q
     stated = _num((eta_n + target) * kT_eV)
-    return Point(_calc("GaAs", 300.0, {"Si": 1e17},
-                       extra=f"stated:\n  ef_minus_ec: {stated:.12e} eV\n"),
-                 abs(stated / kT_eV - eta_n), "electrons")
+    return Point(
+        _calc("GaAs", 300.0, {"Si": 1e17}, extra=f"stated:\n  ef_minus_ec: {stated:.12e} eV\n"),
+        abs(stated / kT_eV - eta_n),
+        "electrons",
+    )
 
 
 def val03(target):
     # stated drift velocity against the Caughey-Thomas curve (Caughey & Thomas 1967) with
     # Canali et al. (1975) v_sat = 1.53e9 T^-0.87 cm/s, beta = 2.57e-2 T^0.66
-    T, mu, field = 300.0, 1000.0, 10.0                       # cm^2/Vs, kV/cm
-    vsat, beta = 1.53e9 * T ** -0.87, 2.57e-2 * T ** 0.66
-    low = mu * field * 1e3                                   # cm/s
+    T, mu, field = 300.0, 1000.0, 10.0  # cm^2/Vs, kV/cm
+    vsat, beta = 1.53e9 * T**-0.87, 2.57e-2 * T**0.66
+    low = mu * field * 1e3  # cm/s
     model = low / (1 + (low / vsat) ** beta) ** (1 / beta)
     stated = _num(model * target)
-    extra = (f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
-             f"  electron_velocity: {stated:.12e} cm/s\nstructure: {{field: {field} kV/cm}}\n")
+    extra = (
+        f"stated:\n  electron_mobility: {mu} cm^2/(V*s)\n"
+        f"  electron_velocity: {stated:.12e} cm/s\nstructure: {{field: {field} kV/cm}}\n"
+    )
     return Point(_calc("Si", T, {"P": 1e15}, extra=extra), stated / model, "electrons")
 
 
@@ -496,40 +600,61 @@ def _mean_free_path(mu):
     eta_n, _ = _eta(si, 300.0, {"P": 1e15})
     kT = K_B * 300.0
     D = mu * CM2 * kT / Q * _einstein_ratio(eta_n)
-    v = math.sqrt(2 * kT / (math.pi * si.electron.thermal_mass * sc.m_e)) \
-        * float(F(1, eta_n) / F(0.5, eta_n))
+    v = math.sqrt(2 * kT / (math.pi * si.electron.thermal_mass * sc.m_e)) * float(
+        F(1, eta_n) / F(0.5, eta_n)
+    )
     return 2 * D / v
 
 
 def val04(target):
     lam = _mean_free_path(1000.0)
-    stated = _num(lam * target * 1e9)                        # nm
-    extra = (f"stated:\n  electron_mobility: 1000 cm^2/(V*s)\n"
-             f"  mean_free_path: {stated:.12e} nm\n")
-    return Point(_calc("Si", 300.0, {"P": 1e15}, extra=extra), stated * 1e-9 / lam,
-                 "electrons")
+    stated = _num(lam * target * 1e9)  # nm
+    extra = f"stated:\n  electron_mobility: 1000 cm^2/(V*s)\n  mean_free_path: {stated:.12e} nm\n"
+    return Point(_calc("Si", 300.0, {"P": 1e15}, extra=extra), stated * 1e-9 / lam, "electrons")
 
 
 def val05(target):
     # R = rho (L + lambda)/A with the calculation's own resistivity and geometry
     # (Lundstrom & Jeong 2012, ch. 3)
     lam = _mean_free_path(1000.0)
-    rho, L, A = 4.0e-2, 1e-6, 1e-12                          # ohm m, m, m^2
+    rho, L, A = 4.0e-2, 1e-6, 1e-12  # ohm m, m, m^2
     expected = rho * (L + lam) / A
     stated = _num(expected * target)
-    extra = (f"stated:\n  electron_mobility: 1000 cm^2/(V*s)\n  resistivity: 4 ohm*cm\n"
-             f"  resistance: {stated:.12e} ohm\nstructure: {{length: 1 um, cross_section: 1 um^2}}\n")
+    extra = (
+        f"stated:\n  electron_mobility: 1000 cm^2/(V*s)\n  resistivity: 4 ohm*cm\n"
+        f"  resistance: {stated:.12e} ohm\nstructure: {{length: 1 um, cross_section: 1 um^2}}\n"
+    )
     return Point(_calc("Si", 300.0, {"P": 1e15}, extra=extra), stated / expected, "electrons")
 
 
 BUILDERS = {
-    "STAT01": [stat01], "STAT02": [stat02, stat02_2d], "CARR01": [carr01], "CARR02": [carr02],
-    "CARR03": [carr03], "ION01": [ion01], "ION02": [ion02], "TRAN01": [tran01],
-    "TRAN02": [tran02], "MOB01": [mob01], "MOB02": [mob02], "CONST01": [const01],
-    "CONST02": [const02], "CONST03": [const03], "DOPE01": [dope01], "DOPE02": [dope02],
-    "MODEL01": [model01], "MODEL02": [model02], "MEAS01": [meas01], "MEAS02": [meas02],
-    "MEAS03": [meas03], "FORM03": [form03], "VAL01": [val01], "VAL02": [val02],
-    "VAL03": [val03], "VAL04": [val04], "VAL05": [val05],
+    "STAT01": [stat01],
+    "STAT02": [stat02, stat02_2d],
+    "CARR01": [carr01],
+    "CARR02": [carr02],
+    "CARR03": [carr03],
+    "ION01": [ion01],
+    "ION02": [ion02],
+    "TRAN01": [tran01],
+    "TRAN02": [tran02],
+    "MOB01": [mob01],
+    "MOB02": [mob02],
+    "CONST01": [const01],
+    "CONST02": [const02],
+    "CONST03": [const03],
+    "DOPE01": [dope01],
+    "DOPE02": [dope02],
+    "MODEL01": [model01],
+    "MODEL02": [model02],
+    "MEAS01": [meas01],
+    "MEAS02": [meas02],
+    "MEAS03": [meas03],
+    "FORM03": [form03],
+    "VAL01": [val01],
+    "VAL02": [val02],
+    "VAL03": [val03],
+    "VAL04": [val04],
+    "VAL05": [val05],
 }
 CASES = [(rule, build) for rule in sorted(THRESHOLDS) for build in BUILDERS.get(rule, [])]
 
@@ -570,11 +695,17 @@ def test_threshold_edge(rule, build):
     assert not read.errors, read.errors
     result = check_calculations(read.calculations)
     assert not result.input_errors, result.input_errors
-    fired, quiet = ([f for f in report.findings if f.rule == rule
-                     and (point.carrier is None or f.carrier == point.carrier)]
-                    for report, point in zip(result.reports, (past, inside)))
-    where = (f"documented: {relation} {threshold} ({source}); rules/{rule}.yaml: "
-             f"{relation} {in_file}")
+    fired, quiet = (
+        [
+            f
+            for f in report.findings
+            if f.rule == rule and (point.carrier is None or f.carrier == point.carrier)
+        ]
+        for report, point in zip(result.reports, (past, inside))
+    )
+    where = (
+        f"documented: {relation} {threshold} ({source}); rules/{rule}.yaml: {relation} {in_file}"
+    )
     assert len(fired) == 1, f"{rule} silent at {past.indicator!r}; {where}"
     # the reported indicator is the independent one (to the 5-6 digits that published
     # parameters such as Canali's v_sat are given with; the steps are 0.2 %)

@@ -1,13 +1,14 @@
 """Transport relations against mpmath, published limits and handbook values."""
+
 import math
 
 import numpy as np
 import pytest
 import scipy.constants as sc
+from conftest import PER_CM3, fd_reference
 
 from checker import carrier_transport, load_material, solve_equilibrium
 from checker.physics import transport
-from conftest import PER_CM3, fd_reference
 
 ETAS = [-10.0, -3.0, -1.0, 0.0, 1.0, 3.0, 10.0, 30.0]
 
@@ -33,8 +34,10 @@ def test_einstein_limits():
     assert transport.einstein_ratio(-40.0) == pytest.approx(1.0, abs=1e-15)
     for eta in (200.0, 1000.0):
         ratio = transport.einstein_ratio(eta)
-        assert ratio / (2 * eta / 3) == pytest.approx(1.0, rel=0.2 / eta ** 2 * 10)
-        assert ratio == pytest.approx(float(fd_reference(0.5, eta) / fd_reference(-0.5, eta)), rel=1e-13)
+        assert ratio / (2 * eta / 3) == pytest.approx(1.0, rel=0.2 / eta**2 * 10)
+        assert ratio == pytest.approx(
+            float(fd_reference(0.5, eta) / fd_reference(-0.5, eta)), rel=1e-13
+        )
     # 2D: F_0/F_-1 -> eta exactly up to e^-eta
     assert transport.einstein_ratio(50.0, 2) == pytest.approx(50.0, rel=1e-15)
 
@@ -51,7 +54,9 @@ def test_field_dependent_mobility_limits():
     assert transport.field_dependent_mobility(mu0, 1.0, vsat, 2.0) == pytest.approx(mu0, rel=1e-9)
     # at mu0 E = v_sat the mobility is mu0 / 2^(1/beta) (Caughey & Thomas 1967)
     E = vsat / mu0
-    assert transport.field_dependent_mobility(mu0, E, vsat, 2.0) == pytest.approx(mu0 / math.sqrt(2))
+    assert transport.field_dependent_mobility(mu0, E, vsat, 2.0) == pytest.approx(
+        mu0 / math.sqrt(2)
+    )
     assert transport.drift_velocity(mu0, 1e9, vsat, 1.1) == pytest.approx(vsat, rel=1e-3)
 
 
@@ -62,8 +67,10 @@ def test_jacoboni_canali_parameters_at_293K():
     # mobility is (v_m/E_c) 2^(-1/beta) (Caughey & Thomas 1967): the silicon model at 293 K
     # with the low-field mobility v_m/E_c must give it
     si = load_material("Si")
-    for band, vm, Ec, beta in ((si.electron, 1.0927393e5, 6729.24e2, 1.0916),
-                               (si.hole, 8.447804e4, 17288.57e2, 1.2081)):
+    for band, vm, Ec, beta in (
+        (si.electron, 1.0927393e5, 6729.24e2, 1.0916),
+        (si.hole, 8.447804e4, 17288.57e2, 1.2081),
+    ):
         vsat, exponent = float(band.vsat(293.0)), float(band.beta(293.0))
         assert vsat == pytest.approx(vm, rel=2e-5) and exponent == pytest.approx(beta, abs=1e-4)
         mu = transport.field_dependent_mobility(vm / Ec, Ec, vsat, exponent)
@@ -101,7 +108,9 @@ def test_unidirectional_thermal_velocity():
     # degenerate 3D: <v_x+> -> (3/8) v_F (average over a Fermi hemisphere)
     eta = 2000.0
     v_f = math.sqrt(2 * eta * sc.k * T / (m * sc.m_e))
-    assert transport.unidirectional_thermal_velocity(T, m, eta) == pytest.approx(3 / 8 * v_f, rel=1e-6)
+    assert transport.unidirectional_thermal_velocity(T, m, eta) == pytest.approx(
+        3 / 8 * v_f, rel=1e-6
+    )
 
 
 def test_ballistic_limit_equals_landauer_conductance():
@@ -112,7 +121,7 @@ def test_ballistic_limit_equals_landauer_conductance():
     lam = transport.backscattering_mean_free_path(transport.diffusion_coefficient(mu, T, -30.0), v)
     rho = transport.resistivity(n, 0.0, mu, 0.0)
     r_ballistic = transport.short_conductor_resistance(rho, 0.0, area, lam)
-    assert r_ballistic == pytest.approx(2 * sc.k * T / (sc.e ** 2 * n * v * area), rel=1e-9)
+    assert r_ballistic == pytest.approx(2 * sc.k * T / (sc.e**2 * n * v * area), rel=1e-9)
     long = transport.short_conductor_resistance(rho, 1e-3, area, lam)
     assert long == pytest.approx(rho * 1e-3 / area, rel=1e-4)
 
@@ -127,7 +136,9 @@ def test_mean_free_path_in_silicon_is_tens_of_nanometres():
 
 def test_transport_is_vectorized():
     T = np.linspace(250, 400, 7)
-    state = solve_equilibrium("Si", T[:, None], {"P": np.geomspace(1e15, 1e19, 5)[None, :] * PER_CM3})
+    state = solve_equilibrium(
+        "Si", T[:, None], {"P": np.geomspace(1e15, 1e19, 5)[None, :] * PER_CM3}
+    )
     result = carrier_transport(state)
     assert result["rho"].shape == (7, 5)
     assert np.all(np.diff(result["mu_n"], axis=1) < 0)  # mobility falls with doping
@@ -136,8 +147,13 @@ def test_transport_is_vectorized():
 def test_constants_match_scipy_codata():
     # scipy.constants carries CODATA 2022
     from checker.physics import constants as c
-    for ours, name in [(c.BOLTZMANN, "Boltzmann constant"), (c.ELEMENTARY_CHARGE, "elementary charge"),
-                       (c.PLANCK, "Planck constant"), (c.ELECTRON_MASS, "electron mass"),
-                       (c.VACUUM_PERMITTIVITY, "vacuum electric permittivity"),
-                       (c.BOHR_RADIUS, "Bohr radius")]:
+
+    for ours, name in [
+        (c.BOLTZMANN, "Boltzmann constant"),
+        (c.ELEMENTARY_CHARGE, "elementary charge"),
+        (c.PLANCK, "Planck constant"),
+        (c.ELECTRON_MASS, "electron mass"),
+        (c.VACUUM_PERMITTIVITY, "vacuum electric permittivity"),
+        (c.BOHR_RADIUS, "Bohr radius"),
+    ]:
         assert ours == pytest.approx(sc.physical_constants[name][0], rel=1e-12), name

@@ -12,6 +12,7 @@ Reports compared: `check examples/` as console, JSON, SARIF and Markdown, and `s
 of every example YAML as JSON.  ``--ignore-key`` drops a JSON key (at any depth) from
 both sides, for a deliberate, documented renaming.
 """
+
 from __future__ import annotations
 
 import argparse
@@ -28,9 +29,12 @@ REPORTS = {
     "check.json": ["check", "examples/", "--format", "json", "--exit-zero"],
     "check.sarif": ["check", "examples/", "--format", "sarif", "--exit-zero"],
     "check.md": ["check", "examples/", "--format", "markdown", "--exit-zero"],
-    "state.json": ["state", *sorted(str(p.relative_to(ROOT))
-                                    for p in (ROOT / "examples").glob("*.yaml")),
-                   "--format", "json"],
+    "state.json": [
+        "state",
+        *sorted(str(p.relative_to(ROOT)) for p in (ROOT / "examples").glob("*.yaml")),
+        "--format",
+        "json",
+    ],
 }
 # the command of a tree: its package first on the path
 RUNNER = """
@@ -43,12 +47,17 @@ sys.exit(checker.cli.main(sys.argv[1:]))
 
 
 def _run(tree: Path, args: list[str]) -> str:
-    done = subprocess.run([sys.executable, "-c", RUNNER.format(tree=str(tree)), *args],
-                          cwd=ROOT, capture_output=True, text=True,
-                          env={"COLUMNS": "110", "PATH": "/usr/bin:/bin", "NO_COLOR": "1"})
+    done = subprocess.run(
+        [sys.executable, "-c", RUNNER.format(tree=str(tree)), *args],
+        cwd=ROOT,
+        capture_output=True,
+        text=True,
+        env={"COLUMNS": "110", "PATH": "/usr/bin:/bin", "NO_COLOR": "1"},
+    )
     if done.returncode not in (0, 1):
-        raise SystemExit(f"{tree}: regimecheck {' '.join(args)} exited "
-                         f"{done.returncode}:\n{done.stderr}")
+        raise SystemExit(
+            f"{tree}: regimecheck {' '.join(args)} exited {done.returncode}:\n{done.stderr}"
+        )
     return done.stdout
 
 
@@ -65,8 +74,11 @@ def _normal(name: str, text: str, keys: set[str], tree: Path) -> list[str]:
     if name.endswith((".json", ".sarif")):
         data = json.loads(text)
         # the tool's own version and the run's clock are not the reports' content
-        text = json.dumps(_drop(data, keys | {"version", "semanticVersion", "endTimeUtc",
-                                              "startTimeUtc"}), indent=1, sort_keys=True)
+        text = json.dumps(
+            _drop(data, keys | {"version", "semanticVersion", "endTimeUtc", "startTimeUtc"}),
+            indent=1,
+            sort_keys=True,
+        )
     return text.splitlines()
 
 
@@ -78,8 +90,11 @@ def main(argv=None) -> int:
     keys = set(args.ignore_key)
     with tempfile.TemporaryDirectory() as folder:
         before = Path(folder) / "before"
-        subprocess.run(["git", "worktree", "add", "--detach", "-q", str(before), args.commit],
-                       cwd=ROOT, check=True)
+        subprocess.run(
+            ["git", "worktree", "add", "--detach", "-q", str(before), args.commit],
+            cwd=ROOT,
+            check=True,
+        )
         try:
             # an older tree finds its rule files only as the package checker.rules
             (before / "checker" / "rules").symlink_to(before / "rules")

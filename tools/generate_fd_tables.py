@@ -14,6 +14,7 @@ The approach follows the piecewise approximation idea of T. Fukushima,
 Appl. Math. Comput. 259, 708 (2015), with our own fits.  Every table entry
 is checked against mpmath in float64 arithmetic before it is written.
 """
+
 from __future__ import annotations
 
 import sys
@@ -25,9 +26,9 @@ import numpy as np
 mp.mp.dps = 34
 ORDERS = ["-3/2", "-1/2", "1/2", "3/2", "5/2", "7/2", "1", "2", "3"]
 ETA_LOW = -2.0
-TARGET = 4e-17          # approximation error budget, relative, before rounding
+TARGET = 4e-17  # approximation error budget, relative, before rounding
 MAX_DEGREE = 20
-ETA_ASYM = 50.0         # half-integer orders switch to the Sommerfeld series here
+ETA_ASYM = 50.0  # half-integer orders switch to the Sommerfeld series here
 EDGE_CANDIDATES = [-2, -1, 0, 1, 2, 3, 4.5, 6.5, 9.5, 14, 20, 29, 40, 50]
 
 
@@ -73,7 +74,7 @@ def truncated_fit(f, a, b):
     """Shortest Chebyshev truncation whose dropped tail is below TARGET (relative)."""
     cheb, fmin = chebyshev_coefficients(f, a, b)
     for degree in range(4, MAX_DEGREE + 1):
-        tail = mp.fsum(abs(c) for c in cheb[degree + 1:])
+        tail = mp.fsum(abs(c) for c in cheb[degree + 1 :])
         if tail < TARGET * fmin:
             return degree, chebyshev_to_monomial(cheb[: degree + 1])
     return None, None
@@ -156,8 +157,10 @@ def build_order(text):
                     break
         else:
             raise RuntimeError(f"no fit for j={text} from {edges[a_idx]}")
-        print(f"j={text:5s} [{a:6.2f},{b:6.2f}) degree {degree:2d} float64 err {worst:.2e}",
-              file=sys.stderr)
+        print(
+            f"j={text:5s} [{a:6.2f},{b:6.2f}) degree {degree:2d} float64 err {worst:.2e}",
+            file=sys.stderr,
+        )
         pieces.append((float(a), float(b), [float(c) for c in mono]))
         a_idx = b_idx
     asym = [float(c) for c in sommerfeld(j, ETA_ASYM)] if half_integer else []

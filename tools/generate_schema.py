@@ -10,6 +10,7 @@ what this script writes.  Each schema accepts the form the reader accepts; numbe
 units and the cross-checks between keys (a dopant level inside the band gap, ...)
 are left to the reader.
 """
+
 from __future__ import annotations
 
 import json
@@ -56,46 +57,64 @@ def or_null(schema: dict) -> dict:
 
 
 def quantity(dimension: str) -> dict:
-    return {"type": "string", "pattern": quantity_pattern(True),
-            "description": f"a {dimension} with its unit, e.g. '{DIMENSIONS[dimension][1]}'"}
+    return {
+        "type": "string",
+        "pattern": quantity_pattern(True),
+        "description": f"a {dimension} with its unit, e.g. '{DIMENSIONS[dimension][1]}'",
+    }
 
 
 def temperature() -> dict:
-    return {"type": "string", "description": "e.g. '300 K' or '27 degC'",
-            "pattern": quantity_pattern(True).replace(r"\s*\S.{0,40}$",
-                                                      r"\s*(K|degC|°C|℃|C)\s*$")}
+    return {
+        "type": "string",
+        "description": "e.g. '300 K' or '27 degC'",
+        "pattern": quantity_pattern(True).replace(r"\s*\S.{0,40}$", r"\s*(K|degC|°C|℃|C)\s*$"),
+    }
 
 
 def sweep(dimension, default, end) -> dict:
-    return {"type": "object", "required": ["from", "to", "steps"],
-            "additionalProperties": False,
-            "description": f"a sweep: the range is checked on a grid ({default} spacing "
-                           "unless 'spacing' says otherwise)",
-            "properties": {"from": end, "to": end,
-                           "steps": {"anyOf": [
-                               {"type": "integer", "minimum": 2, "maximum": cf.MAX_SWEEP_STEPS},
-                               {"type": "string", "pattern": r"^\s*[0-9]{1,6}\s*$"}]},
-                           "spacing": {"enum": ["linear", "log"]}}}
+    return {
+        "type": "object",
+        "required": ["from", "to", "steps"],
+        "additionalProperties": False,
+        "description": f"a sweep: the range is checked on a grid ({default} spacing "
+        "unless 'spacing' says otherwise)",
+        "properties": {
+            "from": end,
+            "to": end,
+            "steps": {
+                "anyOf": [
+                    {"type": "integer", "minimum": 2, "maximum": cf.MAX_SWEEP_STEPS},
+                    {"type": "string", "pattern": r"^\s*[0-9]{1,6}\s*$"},
+                ]
+            },
+            "spacing": {"enum": ["linear", "log"]},
+        },
+    }
 
 
 def section(keys: dict) -> dict:
     properties = {k: quantity(d) for k, (_, d) in keys.items() if k != "dimensionality"}
     if "dimensionality" in keys:
-        properties["dimensionality"] = {"anyOf": [
-            {"enum": [1, 2, 3]}, {"type": "string", "pattern": r"^\s*[123]\s*$"}]}
+        properties["dimensionality"] = {
+            "anyOf": [{"enum": [1, 2, 3]}, {"type": "string", "pattern": r"^\s*[123]\s*$"}]
+        }
     return or_null({"type": "object", "additionalProperties": False, "properties": properties})
 
 
 def text_list(item: dict, description: str) -> dict:
-    return or_null({"anyOf": [item, {"type": "array", "items": item}],
-                    "description": description})
+    return or_null({"anyOf": [item, {"type": "array", "items": item}], "description": description})
 
 
 def build() -> dict:
     density = quantity("density")
-    species = or_null({"type": "object", "additionalProperties": {
-        "anyOf": [density, sweep("density", "log", density)]},
-        "description": "species name -> density, e.g. {P: 1e17 cm-3}, or a sweep"})
+    species = or_null(
+        {
+            "type": "object",
+            "additionalProperties": {"anyOf": [density, sweep("density", "log", density)]},
+            "description": "species name -> density, e.g. {P: 1e17 cm-3}, or a sweep",
+        }
+    )
     hall_words = words(SCATTERING_EXPONENTS)
     return {
         "$schema": "https://json-schema.org/draft/2020-12/schema",
@@ -107,61 +126,120 @@ def build() -> dict:
         "additionalProperties": False,
         "properties": {
             "name": {"type": ["string", "number", "boolean"]},
-            "material": {"anyOf": [
-                {"type": "string", "pattern": r"\S",
-                 "description": "a built-in material: name, alias or long name (any case)"},
-                MATERIAL_REF]},
-            "temperature": {"anyOf": [temperature(), sweep("temperature", "linear",
-                                                           temperature())]},
-            "doping": or_null({"type": "object", "additionalProperties": False,
-                               "properties": {"donors": species, "acceptors": species}}),
+            "material": {
+                "anyOf": [
+                    {
+                        "type": "string",
+                        "pattern": r"\S",
+                        "description": "a built-in material: name, alias or long name (any case)",
+                    },
+                    MATERIAL_REF,
+                ]
+            },
+            "temperature": {
+                "anyOf": [temperature(), sweep("temperature", "linear", temperature())]
+            },
+            "doping": or_null(
+                {
+                    "type": "object",
+                    "additionalProperties": False,
+                    "properties": {"donors": species, "acceptors": species},
+                }
+            ),
             "structure": section(cf.STRUCTURE_KEYS),
             "stated": section(cf.STATED_KEYS),
-            "assumes": text_list({"type": "string", "pattern": words(
-                list(cf.ASSUMPTIONS) + sorted(cf.ASSUMPTION_SPELLINGS))},
-                "trade words the calculation assumes, e.g. [non-degenerate, full-ionization]"),
-            "formulas": text_list({
-                "type": "string", "pattern": "^[^=]+=[^=]+$", "maxLength": 4000,
-                "description": "a formula the calculation uses, 'lhs = rhs' in trade symbols "
-                               "(regimecheck symbols lists them), e.g. 'D_n = mu_n*k*T/q'"},
-                "formulas the calculation uses"),
-            "waivers": or_null({"type": "array", "items": {
-                "type": "object", "required": ["rule", "reason"], "additionalProperties": False,
-                "properties": {"rule": {"type": "string", "pattern": "^[A-Za-z]{2,5}[0-9]{2}$"},
-                               "reason": {"type": "string", "pattern": r"\S.*\S.*\S"}}}}),
-            "options": or_null({"type": "object", "additionalProperties": False, "properties": {
-                "band_gap_narrowing": {"anyOf": [
-                    {"type": "boolean"},
-                    {"type": "string",
-                     "pattern": words(("true", "yes", "on", "false", "no", "off"))}]},
-                "hall_scattering": {"anyOf": [
-                    {"type": "string", "pattern": hall_words},
-                    {"type": "string", "pattern": rf"^\s*{cf.HALL_EXPONENT}\s*$"},
-                    {"type": "number", "minimum": -1.5, "maximum": 2.5, "multipleOf": 0.5}]}}}),
+            "assumes": text_list(
+                {
+                    "type": "string",
+                    "pattern": words(list(cf.ASSUMPTIONS) + sorted(cf.ASSUMPTION_SPELLINGS)),
+                },
+                "trade words the calculation assumes, e.g. [non-degenerate, full-ionization]",
+            ),
+            "formulas": text_list(
+                {
+                    "type": "string",
+                    "pattern": "^[^=]+=[^=]+$",
+                    "maxLength": 4000,
+                    "description": "a formula the calculation uses, 'lhs = rhs' in trade symbols "
+                    "(regimecheck symbols lists them), e.g. 'D_n = mu_n*k*T/q'",
+                },
+                "formulas the calculation uses",
+            ),
+            "waivers": or_null(
+                {
+                    "type": "array",
+                    "items": {
+                        "type": "object",
+                        "required": ["rule", "reason"],
+                        "additionalProperties": False,
+                        "properties": {
+                            "rule": {"type": "string", "pattern": "^[A-Za-z]{2,5}[0-9]{2}$"},
+                            "reason": {"type": "string", "pattern": r"\S.*\S.*\S"},
+                        },
+                    },
+                }
+            ),
+            "options": or_null(
+                {
+                    "type": "object",
+                    "additionalProperties": False,
+                    "properties": {
+                        "band_gap_narrowing": {
+                            "anyOf": [
+                                {"type": "boolean"},
+                                {
+                                    "type": "string",
+                                    "pattern": words(("true", "yes", "on", "false", "no", "off")),
+                                },
+                            ]
+                        },
+                        "hall_scattering": {
+                            "anyOf": [
+                                {"type": "string", "pattern": hall_words},
+                                {"type": "string", "pattern": rf"^\s*{cf.HALL_EXPONENT}\s*$"},
+                                {
+                                    "type": "number",
+                                    "minimum": -1.5,
+                                    "maximum": 2.5,
+                                    "multipleOf": 0.5,
+                                },
+                            ]
+                        },
+                    },
+                }
+            ),
         },
         "$defs": {"material": material_form()},
     }
 
 
 def material_form() -> dict:
-    return {**MATERIAL.schema(), "description": "a material in the form of the built-in "
-            "material files (checker/data/materials; see DEVELOPERS.md)"}
+    return {
+        **MATERIAL.schema(),
+        "description": "a material in the form of the built-in "
+        "material files (checker/data/materials; see DEVELOPERS.md)",
+    }
 
 
 def build_material() -> dict:
-    return {"$schema": "https://json-schema.org/draft/2020-12/schema",
-            "$id": "https://regimecheck.example/material.schema.json",
-            "title": "regimecheck material", **material_form()}
+    return {
+        "$schema": "https://json-schema.org/draft/2020-12/schema",
+        "$id": "https://regimecheck.example/material.schema.json",
+        "title": "regimecheck material",
+        **material_form(),
+    }
 
 
 def build_rule() -> dict:
-    return {"$schema": "https://json-schema.org/draft/2020-12/schema",
-            "$id": "https://regimecheck.example/rule.schema.json",
-            "title": "regimecheck rule",
-            "description": "One rule file of rules/ (DEVELOPERS.md, 'Adding a rule'); "
-                           "expressions, their dimensions and message placeholders are "
-                           "checked by the loader.",
-            **RULE_FILE.schema()}
+    return {
+        "$schema": "https://json-schema.org/draft/2020-12/schema",
+        "$id": "https://regimecheck.example/rule.schema.json",
+        "title": "regimecheck rule",
+        "description": "One rule file of rules/ (DEVELOPERS.md, 'Adding a rule'); "
+        "expressions, their dimensions and message placeholders are "
+        "checked by the loader.",
+        **RULE_FILE.schema(),
+    }
 
 
 def render() -> str:

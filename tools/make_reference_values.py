@@ -14,6 +14,7 @@ Contents (every number from mpmath, through the functions of tests/reference_cac
 Run it after changing a material's band, density-of-states or dopant data (the
 equilibrium tests then say so) or the cases; commit the file with the change.
 """
+
 from __future__ import annotations
 
 import json
@@ -25,19 +26,23 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT / "tests"))
 
 import mpmath  # noqa: E402
-
 import reference_cache as cache  # noqa: E402
+
 from checker import load_material  # noqa: E402
 
 
 def _dump(data: dict) -> str:
     """JSON with one line per list (readable diffs without one line per number)."""
+
     def block(obj, indent):
         pad = " " * indent
         if isinstance(obj, dict):
-            items = [f'{pad}  {json.dumps(k)}: {block(v, indent + 2).lstrip()}' for k, v in obj.items()]
+            items = [
+                f"{pad}  {json.dumps(k)}: {block(v, indent + 2).lstrip()}" for k, v in obj.items()
+            ]
             return pad + "{\n" + ",\n".join(items) + "\n" + pad + "}"
         return pad + json.dumps(obj)
+
     return block(data, 0) + "\n"
 
 
@@ -58,12 +63,19 @@ def main() -> int:
         print(f"{name} {T} K {regime}: eta_n = {entry['eta_n']:.15g}", flush=True)
 
     inverse = {"u": cache.INVERSE_U, "eta": [cache.inverse_value(u) for u in cache.INVERSE_U]}
-    data = {"generated_by": "tools/make_reference_values.py", "mpmath": mpmath.__version__,
-            "fermi_dirac": fermi, "equilibrium": equilibrium, "inverse": inverse}
+    data = {
+        "generated_by": "tools/make_reference_values.py",
+        "mpmath": mpmath.__version__,
+        "fermi_dirac": fermi,
+        "equilibrium": equilibrium,
+        "inverse": inverse,
+    }
     cache.PATH.parent.mkdir(parents=True, exist_ok=True)
     cache.PATH.write_text(_dump(data), encoding="utf-8")
-    print(f"wrote {cache.PATH.relative_to(ROOT)} ({cache.PATH.stat().st_size / 1e3:.0f} kB) "
-          f"in {time.perf_counter() - start:.0f} s")
+    print(
+        f"wrote {cache.PATH.relative_to(ROOT)} ({cache.PATH.stat().st_size / 1e3:.0f} kB) "
+        f"in {time.perf_counter() - start:.0f} s"
+    )
     return 0
 
 

@@ -4,6 +4,7 @@ Carriers are coded "n"/"p" inside the engine (rule names ``*_n``, ``*_p``) and n
 "electrons"/"holes" in findings; ``carrier_word`` and ``carrier_code`` convert, from the
 one table in :mod:`checker.engine.vocabulary`.
 """
+
 from __future__ import annotations
 
 from dataclasses import dataclass
@@ -28,11 +29,11 @@ def carrier_code(word: str | None) -> str | None:
 class Correction:
     label: str
     unit: str
-    stated: float          # SI: the author's number, or what the shortcut gives
-    corrected: float       # SI: the Fermi–Dirac / full-model value
-    error: float           # stated / corrected - 1
-    from_author: bool      # True: the author wrote the number; False: shortcut value
-    origin: str = ""       # "formula" where a stated formula gave the value
+    stated: float  # SI: the author's number, or what the shortcut gives
+    corrected: float  # SI: the Fermi–Dirac / full-model value
+    error: float  # stated / corrected - 1
+    from_author: bool  # True: the author wrote the number; False: shortcut value
+    origin: str = ""  # "formula" where a stated formula gave the value
 
     @property
     def stated_by(self) -> str:
@@ -48,29 +49,31 @@ class Finding:
     title: str
     severity: str
     assumption: str
-    carrier: str | None            # "electrons", "holes", or None
+    carrier: str | None  # "electrons", "holes", or None
     indicator_label: str
     indicator_value: float
     indicator_unit: str
     relation: str
     threshold: float
     threshold_source: str
-    message: str                   # the rule's message at this point (a sweep: the worst)
+    message: str  # the rule's message at this point (a sweep: the worst)
     corrections: list
     file: str
     line: int
     waived: str | None = None
-    formula: str | None = None     # the stated formula that made the assumption
-    column: str | None = None      # table column of the stated number (CSV inputs)
-    sweep: object = None           # sweep.SweepSummary where the finding covers a grid
+    formula: str | None = None  # the stated formula that made the assumption
+    column: str | None = None  # table column of the stated number (CSV inputs)
+    sweep: object = None  # sweep.SweepSummary where the finding covers a grid
 
     def indicator_text(self) -> str | None:
         """'η = 1.16 > -3', or None for a check without a numeric indicator."""
         if not np.isfinite(self.indicator_value):
             return None
         sign = ">" if self.relation == "above" else "<"
-        return (f"{self.indicator_label} = {display(self.indicator_value, self.indicator_unit)} "
-                f"{sign} {display(self.threshold, self.indicator_unit)}")
+        return (
+            f"{self.indicator_label} = {display(self.indicator_value, self.indicator_unit)} "
+            f"{sign} {display(self.threshold, self.indicator_unit)}"
+        )
 
 
 @dataclass(frozen=True)
@@ -78,6 +81,6 @@ class Embodied:
     """An assumption a stated formula makes (from its limits), and where the formula is."""
 
     word: str
-    carrier: str | None      # "n", "p", or None (the conductor as a whole)
+    carrier: str | None  # "n", "p", or None (the conductor as a whole)
     line: int
     formula: str

@@ -3,6 +3,7 @@
 Rule messages are filled by the engine and the reports show the same numbers beside
 them (indicators, corrections), so both use these two functions.
 """
+
 from __future__ import annotations
 
 import numpy as np

@@ -1,17 +1,19 @@
 """One check run: read calculation files, check the single points together
-(:mod:`checker.engine.regime.points`) and each sweep over its grid (:mod:`checker.engine.regime.sweep`),
+(:mod:`checker.engine.regime.points`) and each sweep over its grid
+(:mod:`checker.engine.regime.sweep`),
 apply the waivers.
 
 Data flows one way: files -> Calculation objects -> solved quantities ->
 findings -> :class:`RunResult` (which the reports render).
 """
+
 from __future__ import annotations
 
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from ..inputs.sources import read_input
 from ..inputs.config import Config, check_rule_ids
+from ..inputs.sources import read_input
 from ..vocabulary_words import SEVERITIES, SEVERITY_RANK
 from .regime import rulebook
 from .regime.points import check_points
@@ -23,8 +25,8 @@ class RunResult:
     reports: list
     input_errors: list
     rules: tuple
-    notes: list = field(default_factory=list)     # run-level notes (configuration waivers)
-    files_read: list = field(default_factory=list)   # every input file (and settings file)
+    notes: list = field(default_factory=list)  # run-level notes (configuration waivers)
+    files_read: list = field(default_factory=list)  # every input file (and settings file)
 
     def active_findings(self):
         return [f for r in self.reports for f in r.findings if not f.waived]
@@ -53,7 +55,7 @@ def expand_paths(paths, config=None) -> tuple[list, list[str]]:
         try:
             info = path.stat()
             key = (info.st_dev, info.st_ino)
-        except OSError:         # the reader will say why it cannot be read
+        except OSError:  # the reader will say why it cannot be read
             key = str(path.resolve())
         if key in seen:
             first = seen[key]
@@ -65,15 +67,22 @@ def expand_paths(paths, config=None) -> tuple[list, list[str]]:
     for text in paths:
         path = Path(text)
         if path.is_dir():
-            found = sorted(p for p in path.rglob("*") if p.is_file() and config.reads(p.name)
-                           and not config.excluded(p.relative_to(path).as_posix()))
+            found = sorted(
+                p
+                for p in path.rglob("*")
+                if p.is_file()
+                and config.reads(p.name)
+                and not config.excluded(p.relative_to(path).as_posix())
+            )
             if not found:
-                errors.append(f"{text}: the directory holds no file to check "
-                              f"({', '.join(config.file_patterns)})")
+                errors.append(
+                    f"{text}: the directory holds no file to check "
+                    f"({', '.join(config.file_patterns)})"
+                )
             for p in found:
                 add(p, False)
         elif config.excludes_named(text):
-            continue                      # exclude-patterns hold for named files (pre-commit)
+            continue  # exclude-patterns hold for named files (pre-commit)
         elif path.exists():
             add(path, True)
         else:
@@ -81,8 +90,9 @@ def expand_paths(paths, config=None) -> tuple[list, list[str]]:
     return files, errors
 
 
-def check_calculations(calculations, rules=None, input_errors=(), config=None,
-                       progress=None) -> RunResult:
+def check_calculations(
+    calculations, rules=None, input_errors=(), config=None, progress=None
+) -> RunResult:
     """Solve and check already-read calculations (``config``: an inputs.config.Config).
     Sweeps are checked over their grid (``progress(done, total)`` is told how far)."""
     rules = rulebook.load_rules() if rules is None else rules
@@ -91,23 +101,23 @@ def check_calculations(calculations, rules=None, input_errors=(), config=None,
     by_index = dict(zip(points, reports))
     for i, calc in enumerate(calculations):
         if calc.sweep:
-            from .regime.sweep import check_sweep     # imported only for a sweep
+            from .regime.sweep import check_sweep  # imported only for a sweep
 
             by_index[i], sweep_errors = check_sweep(calc, rules, progress)
             errors += sweep_errors
     ordered = [by_index[i] for i in range(len(calculations))]
     waivers = apply_waivers(rules, calculations, [r.findings for r in ordered], config)
     for i, report in enumerate(ordered):
-        report.findings = sorted(report.findings,
-                                 key=lambda f: (-SEVERITY_RANK[f.severity], f.rule))
+        report.findings = sorted(
+            report.findings, key=lambda f: (-SEVERITY_RANK[f.severity], f.rule)
+        )
         report.notes += waivers.notes[i]
     errors = list(input_errors) + waivers.errors + errors
     errors += [r.error for r in ordered if r.error]
     return RunResult(ordered, errors, tuple(rules), waivers.run_notes)
 
 
-def check_paths(paths, rules=None, config=None, skip_unrelated=False,
-                progress=None) -> RunResult:
+def check_paths(paths, rules=None, config=None, skip_unrelated=False, progress=None) -> RunResult:
     """Read every calculation under ``paths`` and check them all in one pass.
 
     ``config`` (an inputs.config.Config) selects and adjusts the rules, the files

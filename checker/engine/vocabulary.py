@@ -6,19 +6,41 @@ runs per carrier is compiled twice, once with ``_x`` read as ``_n`` (``_o`` as
 author did not give is NaN; ``present(name)`` and ``stated_or(name, fallback)``
 test for it.
 """
+
 from __future__ import annotations
 
-from functools import lru_cache
+from functools import cache
 
 from ..physics.constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE, EV
 
 # display unit -> factor from SI
 DISPLAY_UNITS = {
-    "1": 1.0, "%": 100.0, "K": 1.0, "eV": 1.0 / EV, "V": 1.0,
-    "cm^-3": 1e-6, "cm^2/(V*s)": 1e4, "cm^2/s": 1e4, "cm/s": 100.0, "kV/cm": 1e-5,
-    "ohm*cm": 100.0, "S/cm": 0.01, "ohm": 1.0, "ohm/sq": 1.0, "nm": 1e9, "um": 1e6,
-    "cm^-2": 1e-4, "cm^-1": 1e-2, "cm^-6": 1e-12, "cm^-4": 1e-8, "um^2": 1e12, "A/cm^2": 1e-4, "S": 1.0,
-    "m0": 1.0 / ELECTRON_MASS, "ohm*cm^2": 1e4, "ns": 1e9,
+    "1": 1.0,
+    "%": 100.0,
+    "K": 1.0,
+    "eV": 1.0 / EV,
+    "V": 1.0,
+    "cm^-3": 1e-6,
+    "cm^2/(V*s)": 1e4,
+    "cm^2/s": 1e4,
+    "cm/s": 100.0,
+    "kV/cm": 1e-5,
+    "ohm*cm": 100.0,
+    "S/cm": 0.01,
+    "ohm": 1.0,
+    "ohm/sq": 1.0,
+    "nm": 1e9,
+    "um": 1e6,
+    "cm^-2": 1e-4,
+    "cm^-1": 1e-2,
+    "cm^-6": 1e-12,
+    "cm^-4": 1e-8,
+    "um^2": 1e12,
+    "A/cm^2": 1e-4,
+    "S": 1.0,
+    "m0": 1.0 / ELECTRON_MASS,
+    "ohm*cm^2": 1e4,
+    "ns": 1e9,
 }
 
 CONSTANTS = {"q": ELEMENTARY_CHARGE, "k": BOLTZMANN}
@@ -30,8 +52,11 @@ COMMON = {
     "kT_q": ("V", "thermal voltage k*T/q"),
     "Eg": ("eV", "band gap at T (J inside; narrowed when band_gap_narrowing is on)"),
     "ni": ("cm^-3", "intrinsic density sqrt(N_c N_v) exp(-E_g/2kT)"),
-    "ni_lo": ("cm^-3", "lowest published n_i at T (the material's 300 K spread carried to T "
-                       "by the model; the model value where no spread is tabulated)"),
+    "ni_lo": (
+        "cm^-3",
+        "lowest published n_i at T (the material's 300 K spread carried to T "
+        "by the model; the model value where no spread is tabulated)",
+    ),
     "ni_hi": ("cm^-3", "highest published n_i at T (as ni_lo)"),
     "Nnet": ("cm^-3", "net doping |N_D - N_A|"),
     "Ntot": ("cm^-3", "total dopant density N_D + N_A"),
@@ -49,8 +74,11 @@ COMMON = {
     "field": ("kV/cm", "applied field (or voltage/length)"),
     "sigma": ("S/cm", "two-carrier conductivity q(n mu_n + p mu_p), stated mobilities where given"),
     "rho": ("ohm*cm", "resistivity 1/sigma"),
-    "sigma_model": ("S/cm", "conductivity the doping gives: q(n mu_n + p mu_p) with the model "
-                            "mobilities and each carrier's conduction credit"),
+    "sigma_model": (
+        "S/cm",
+        "conductivity the doping gives: q(n mu_n + p mu_p) with the model "
+        "mobilities and each carrier's conduction credit",
+    ),
     "stated_kT_q": ("V", "stated thermal voltage"),
     "stated_ni": ("cm^-3", "stated intrinsic density"),
     "stated_sigma": ("S/cm", "stated conductivity (or 1/stated resistivity)"),
@@ -59,10 +87,16 @@ COMMON = {
     "stated_R": ("ohm", "stated resistance"),
     "stated_lambda": ("nm", "stated mean free path"),
     "stated_hall": ("cm^-3", "stated Hall density 1/(q|R_H|)"),
-    "n_hall": ("cm^-3", "Hall density 1/(q|R_H|) the solve and the mobility model predict "
-                        "(two carriers, Hall factors)"),
-    "n_hall_lo": ("cm^-3", "lowest expected Hall density over the measured Hall-factor range "
-                           "(the model's Hall factor +-5 % where none is tabulated)"),
+    "n_hall": (
+        "cm^-3",
+        "Hall density 1/(q|R_H|) the solve and the mobility model predict "
+        "(two carriers, Hall factors)",
+    ),
+    "n_hall_lo": (
+        "cm^-3",
+        "lowest expected Hall density over the measured Hall-factor range "
+        "(the model's Hall factor +-5 % where none is tabulated)",
+    ),
     "n_hall_hi": ("cm^-3", "highest expected Hall density over the measured Hall-factor range"),
     "hall_r": ("1", "exponent r of tau ∝ E^r used for the Hall factor"),
 }
@@ -85,10 +119,15 @@ PER_CARRIER = {
     "in_use_x": ("1", "1 where the calculation uses this carrier"),
     "mu_x": ("cm^2/(V*s)", "low-field mobility of the material model at N_D + N_A"),
     "used_mu_x": ("cm^2/(V*s)", "mobility the calculation uses: the stated one, else the model's"),
-    "mu0_x": ("cm^2/(V*s)", "lattice-limited mobility (highest of the material's published "
-                            "fits at N = 0)"),
-    "cond_x": ("1", "conduction credit: 1/(ionized fraction at the fit temperature) for a "
-                    "mobility given per dopant atom (the silicon resistivity standard), else 1"),
+    "mu0_x": (
+        "cm^2/(V*s)",
+        "lattice-limited mobility (highest of the material's published fits at N = 0)",
+    ),
+    "cond_x": (
+        "1",
+        "conduction credit: 1/(ionized fraction at the fit temperature) for a "
+        "mobility given per dopant atom (the silicon resistivity standard), else 1",
+    ),
     "vsat_x": ("cm/s", "saturation velocity"),
     "beta_x": ("1", "Caughey–Thomas field exponent"),
     "vth_x": ("cm/s", "unidirectional thermal velocity <v_x+> (Fermi–Dirac)"),
@@ -102,8 +141,12 @@ PER_CARRIER = {
     "stated_Nband_x": ("cm^-3", "stated effective density of states of the carrier's band"),
 }
 for _name, (_unit, _meaning) in list(PER_CARRIER.items()):
-    PER_CARRIER[_name[:-2] + "_o"] = (_unit, _meaning.replace("the carrier", "the other carrier")
-                                      .replace("this carrier", "the other carrier"))
+    PER_CARRIER[_name[:-2] + "_o"] = (
+        _unit,
+        _meaning.replace("the carrier", "the other carrier").replace(
+            "this carrier", "the other carrier"
+        ),
+    )
 
 # quantities that are words, not numbers (object arrays; a rule shows them with {text: name})
 TEXT = {
@@ -125,12 +168,16 @@ def carrier_names(x: str) -> dict:
     return mapping
 
 
-@lru_cache(maxsize=None)
+@cache
 def rule_names() -> frozenset:
     """Every name a rule expression may use: the ``_x``/``_o`` forms (expanded per
     carrier) and the concrete ``_n``/``_p`` ones (e.g. dens_n in a per-calculation rule)."""
-    return frozenset(COMMON) | frozenset(PER_CARRIER) | frozenset(CONSTANTS) | \
-        frozenset(concrete_names())
+    return (
+        frozenset(COMMON)
+        | frozenset(PER_CARRIER)
+        | frozenset(CONSTANTS)
+        | frozenset(concrete_names())
+    )
 
 
 def concrete_names() -> set:

@@ -1,4 +1,5 @@
 """Waivers: a calculation's own (``waivers:``) and the configuration's, per path."""
+
 from __future__ import annotations
 
 import difflib
@@ -7,9 +8,9 @@ from dataclasses import dataclass, field
 
 @dataclass
 class WaiverResult:
-    notes: list = field(default_factory=list)   # per calculation index: list[str]
+    notes: list = field(default_factory=list)  # per calculation index: list[str]
     errors: list = field(default_factory=list)  # input errors (unknown rule ids)
-    run_notes: list = field(default_factory=list)   # configuration waivers that waived nothing
+    run_notes: list = field(default_factory=list)  # configuration waivers that waived nothing
 
 
 def apply_waivers(rules, calculations, findings, config=None) -> WaiverResult:
@@ -28,14 +29,18 @@ def apply_waivers(rules, calculations, findings, config=None) -> WaiverResult:
         for waiver in config.idle_waivers(used, [c.source for c in calculations], known):
             result.run_notes.append(
                 f"{config.source}:{waiver.line}: the waiver of {waiver.rule} for "
-                f"{waiver.pattern!r} waives nothing in this run")
+                f"{waiver.pattern!r} waives nothing in this run"
+            )
     for i, calc in enumerate(calculations):
         for rule_id, (reason, line) in calc.waivers.items():
             if rule_id not in known:
                 close = difflib.get_close_matches(rule_id, known, n=1)
-                hint = f"did you mean {close[0]}?" if close else "run 'regimecheck rules' for the ids"
-                result.errors.append(f"{calc.source}:{line}: the waiver names an unknown "
-                                     f"rule {rule_id!r}; {hint}")
+                hint = (
+                    f"did you mean {close[0]}?" if close else "run 'regimecheck rules' for the ids"
+                )
+                result.errors.append(
+                    f"{calc.source}:{line}: the waiver names an unknown rule {rule_id!r}; {hint}"
+                )
                 continue
             hits = [f for f in findings[i] if f.rule == rule_id]
             for finding in hits:
@@ -43,5 +48,6 @@ def apply_waivers(rules, calculations, findings, config=None) -> WaiverResult:
             if not hits:
                 result.notes[i].append(
                     f"{calc.source}:{line}: the waiver of {rule_id} waives nothing here; "
-                    "remove it or check the rule id")
+                    "remove it or check the rule id"
+                )
     return result

@@ -21,6 +21,7 @@ Keys (all optional except material and temperature):
 Scalars are kept as text and parsed by us (PyYAML would read 1e17 as a
 string and 1.0e17 as a float).  Aliases and duplicate keys are refused.
 """
+
 from __future__ import annotations
 
 import difflib
@@ -37,8 +38,18 @@ from .material_catalog import resolve_material
 from .quantities import check_plausible, parse_quantity, parse_temperature, read_number
 from .yaml_source import Problems, compose_documents
 
-TOP_KEYS = ("name", "material", "temperature", "doping", "structure", "stated", "assumes",
-            "formulas", "waivers", "options")
+TOP_KEYS = (
+    "name",
+    "material",
+    "temperature",
+    "doping",
+    "structure",
+    "stated",
+    "assumes",
+    "formulas",
+    "waivers",
+    "options",
+)
 DOPING_KEYS = ("donors", "acceptors")
 OPTION_KEYS = ("band_gap_narrowing", "hall_scattering")
 # YAML key -> (engine quantity name, dimension)
@@ -75,12 +86,17 @@ STATED_KEYS = {
 }
 # A few common spellings of the trade words an author may declare (ASSUMPTIONS).
 ASSUMPTION_SPELLINGS = {
-    "nondegenerate": "non-degenerate", "boltzmann": "non-degenerate",
-    "complete-ionization": "full-ionization", "fully-ionized": "full-ionization",
-    "uncompensated": "no-compensation", "one-carrier": "single-carrier",
-    "einstein": "einstein-relation", "drift-diffusion": "diffusive", "ohmic": "low-field",
+    "nondegenerate": "non-degenerate",
+    "boltzmann": "non-degenerate",
+    "complete-ionization": "full-ionization",
+    "fully-ionized": "full-ionization",
+    "uncompensated": "no-compensation",
+    "one-carrier": "single-carrier",
+    "einstein": "einstein-relation",
+    "drift-diffusion": "diffusive",
+    "ohmic": "low-field",
 }
-SIGNED_KEYS = ("ef_minus_ec", "ef_minus_ev")   # the only quantities that may be negative
+SIGNED_KEYS = ("ef_minus_ec", "ef_minus_ev")  # the only quantities that may be negative
 
 
 @dataclass
@@ -94,22 +110,22 @@ class Located:
 @dataclass
 class Calculation:
     name: str
-    source: str          # file path
+    source: str  # file path
     line: int
     material: Material
-    temperature: float   # K
-    donors: dict         # species -> m^-3
+    temperature: float  # K
+    donors: dict  # species -> m^-3
     acceptors: dict
     band_gap_narrowing: bool = False
-    hall_exponent: float = -0.5    # r of tau ∝ E^r for the Hall factor (acoustic phonons)
-    structure: dict = field(default_factory=dict)    # engine name -> SI value
-    stated: dict = field(default_factory=dict)       # engine name -> SI value
-    assumes: dict = field(default_factory=dict)      # word -> line
-    waivers: dict = field(default_factory=dict)      # rule id -> (reason, line)
-    lines: dict = field(default_factory=dict)        # engine name -> line of its key
-    formulas: list = field(default_factory=list)     # (text, "file:line:col", line)
-    columns: dict = field(default_factory=dict)      # engine name -> table column header
-    sweep: list = field(default_factory=list)        # Axis objects (empty: one point)
+    hall_exponent: float = -0.5  # r of tau ∝ E^r for the Hall factor (acoustic phonons)
+    structure: dict = field(default_factory=dict)  # engine name -> SI value
+    stated: dict = field(default_factory=dict)  # engine name -> SI value
+    assumes: dict = field(default_factory=dict)  # word -> line
+    waivers: dict = field(default_factory=dict)  # rule id -> (reason, line)
+    lines: dict = field(default_factory=dict)  # engine name -> line of its key
+    formulas: list = field(default_factory=list)  # (text, "file:line:col", line)
+    columns: dict = field(default_factory=dict)  # engine name -> table column header
+    sweep: list = field(default_factory=list)  # Axis objects (empty: one point)
 
     @property
     def majority(self) -> str:
@@ -121,15 +137,16 @@ class Calculation:
 class FileResult:
     path: str
     calculations: list
-    errors: list         # InputError messages (each names file:line:column)
+    errors: list  # InputError messages (each names file:line:column)
 
 
 def _plain(node, path, positions):
     positions[path] = (node.start_mark.line + 1, node.start_mark.column + 1)
     if isinstance(node, yaml.MappingNode):
         # keys are plain scalars: the strict loader refuses any other
-        return {key.value: _plain(value, path + (key.value,), positions)
-                for key, value in node.value}
+        return {
+            key.value: _plain(value, path + (key.value,), positions) for key, value in node.value
+        }
     if isinstance(node, yaml.SequenceNode):
         return [_plain(child, path + (i,), positions) for i, child in enumerate(node.value)]
     return node.value  # scalar text, parsed later by us
@@ -190,7 +207,7 @@ def _to_bool(text, where):
 
 def _mapping(data, key, where, form: str) -> dict:
     block = data.get(key)
-    if block in (None, ""):           # an empty key: nothing given
+    if block in (None, ""):  # an empty key: nothing given
         return {}
     if not isinstance(block, dict):
         raise InputError(f"{where.key(key)} must be a mapping {form}, got {block!r}")
@@ -202,23 +219,33 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     where = _Where(path, doc.positions)
     data = doc.value
     if not isinstance(data, dict):
-        raise InputError(f"{where()}: a calculation must be a mapping with keys "
-                         f"{', '.join(TOP_KEYS)}")
+        raise InputError(
+            f"{where()}: a calculation must be a mapping with keys {', '.join(TOP_KEYS)}"
+        )
     problems = Problems()
     problems.run(_unknown_keys, data, TOP_KEYS, where, "calculation")
-    misspelt = {close for key in data if key not in TOP_KEYS
-                for close in difflib.get_close_matches(key, TOP_KEYS, n=1)}
+    misspelt = {
+        close
+        for key in data
+        if key not in TOP_KEYS
+        for close in difflib.get_close_matches(key, TOP_KEYS, n=1)
+    }
     for key in ("material", "temperature"):
-        if key not in data and key not in misspelt:       # else 'did you mean' says it
-            problems.add(InputError(f"{where()}: missing {key!r}; add e.g. "
-                                    + ("material: Si" if key == "material" else
-                                       "temperature: 300 K")))
+        if key not in data and key not in misspelt:  # else 'did you mean' says it
+            problems.add(
+                InputError(
+                    f"{where()}: missing {key!r}; add e.g. "
+                    + ("material: Si" if key == "material" else "temperature: 300 K")
+                )
+            )
     material = problems.run(_material, data, where) if "material" in data else None
     axes = []
-    temperature = problems.run(_temperature, data, where, axes) if "temperature" in data \
-        else None
-    groups = problems.run(_doping, data, material, where, axes, default={}) \
-        if material is not None else {}
+    temperature = problems.run(_temperature, data, where, axes) if "temperature" in data else None
+    groups = (
+        problems.run(_doping, data, material, where, axes, default={})
+        if material is not None
+        else {}
+    )
     options = problems.run(_options, data, where, default=(False, -0.5))
     name = problems.run(_name, data, where)
     structure, lines = {}, {}
@@ -231,10 +258,17 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     problems.messages.sort(key=lambda message: _position(message, path))
     problems.raise_any()
     line = doc.positions.get((), (1, 1))[0]
-    calc = Calculation(name=name or f"{Path(path).name}:{line}", source=path,
-                       line=line, material=material, temperature=temperature,
-                       donors=groups.get("donors", {}), acceptors=groups.get("acceptors", {}),
-                       band_gap_narrowing=options[0], hall_exponent=options[1])
+    calc = Calculation(
+        name=name or f"{Path(path).name}:{line}",
+        source=path,
+        line=line,
+        material=material,
+        temperature=temperature,
+        donors=groups.get("donors", {}),
+        acceptors=groups.get("acceptors", {}),
+        band_gap_narrowing=options[0],
+        hall_exponent=options[1],
+    )
     calc.structure, calc.stated, calc.lines = structure, stated, lines
     calc.assumes, calc.waivers, calc.formulas, calc.sweep = assumes, waivers, formulas, axes
     return calc
@@ -242,7 +276,7 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
 
 def _position(message: str, path: str) -> tuple:
     """(line, column) a message names after ``path``, for listing errors in file order."""
-    found = re.match(r":(\d+):(\d+)", message[len(path):]) if message.startswith(path) else None
+    found = re.match(r":(\d+):(\d+)", message[len(path) :]) if message.startswith(path) else None
     return (int(found[1]), int(found[2])) if found else (0, 0)
 
 
@@ -259,8 +293,10 @@ def _material(data, where):
     if isinstance(value, dict):
         return resolve_material(value, locate=lambda *keys: where("material", *keys))
     if not isinstance(value, str) or not value.strip():
-        raise InputError(f"{where.key('material')} must be a built-in name such as Si, or a "
-                         f"mapping of the material's parameters; got {value!r}")
+        raise InputError(
+            f"{where.key('material')} must be a built-in name such as Si, or a "
+            f"mapping of the material's parameters; got {value!r}"
+        )
     try:
         return resolve_material(value)
     except InputError as exc:
@@ -272,21 +308,25 @@ def _temperature(data, where, axes):
         axes.append(_axis(data["temperature"], "temperature", "T", where, ("temperature",)))
         return float(axes[-1].values[0])
     here = where.key("temperature")
-    return check_plausible(parse_temperature(data["temperature"], here), "temperature",
-                           data["temperature"], here)
+    return check_plausible(
+        parse_temperature(data["temperature"], here), "temperature", data["temperature"], here
+    )
 
 
 def _doping(data, material, where, axes) -> dict:
-    doping = _mapping(data, "doping", where, "of 'donors' and/or 'acceptors' to "
-                                            "{species: density}")
+    doping = _mapping(data, "doping", where, "of 'donors' and/or 'acceptors' to {species: density}")
     problems = Problems()
     problems.run(_unknown_keys, doping, DOPING_KEYS, where, "doping", ("doping",))
     groups = {}
     for group in DOPING_KEYS:
         entries = doping.get(group) or {}
         if not isinstance(entries, dict):
-            problems.add(InputError(f"{where.key('doping', group)}: write {group} as "
-                                    "{species: density}, e.g. {P: 1e17 cm-3}"))
+            problems.add(
+                InputError(
+                    f"{where.key('doping', group)}: write {group} as "
+                    "{species: density}, e.g. {P: 1e17 cm-3}"
+                )
+            )
             continue
         groups[group] = {}
         for species, text in entries.items():
@@ -304,8 +344,9 @@ def _density(material, group, species, text, where, axes) -> float:
     except InputError as exc:
         raise InputError(f"{here}: {exc}") from None
     if dopant.kind != group[:-1]:
-        raise InputError(f"{here}: {species} is a {dopant.kind} in {material.name}; "
-                         f"move it under {dopant.kind}s")
+        raise InputError(
+            f"{here}: {species} is a {dopant.kind} in {material.name}; move it under {dopant.kind}s"
+        )
     if isinstance(text, dict):
         axes.append(_axis(text, "density", (group, species), where, ("doping", group, species)))
         return float(axes[-1].values[0])
@@ -318,20 +359,30 @@ def _density(material, group, species, text, where, axes) -> float:
 def _options(data, where) -> tuple:
     options = _mapping(data, "options", where, "of " + ", ".join(OPTION_KEYS))
     _unknown_keys(options, OPTION_KEYS, where, "option", ("options",))
-    bgn = _to_bool(options["band_gap_narrowing"], where.key("options", "band_gap_narrowing")) \
-        if "band_gap_narrowing" in options else False
-    hall = _hall_exponent(options["hall_scattering"], where.key("options", "hall_scattering")) \
-        if "hall_scattering" in options else -0.5
+    bgn = (
+        _to_bool(options["band_gap_narrowing"], where.key("options", "band_gap_narrowing"))
+        if "band_gap_narrowing" in options
+        else False
+    )
+    hall = (
+        _hall_exponent(options["hall_scattering"], where.key("options", "hall_scattering"))
+        if "hall_scattering" in options
+        else -0.5
+    )
     return bgn, hall
 
 
 def _check_sweep_size(axes, where):
     if len(axes) > 2:
-        raise InputError(f"{where()}: a sweep has at most two axes (temperature and one "
-                         f"density, or two densities); this one has {len(axes)}")
+        raise InputError(
+            f"{where()}: a sweep has at most two axes (temperature and one "
+            f"density, or two densities); this one has {len(axes)}"
+        )
     if len(axes) == 2 and len(axes[0].values) * len(axes[1].values) > MAX_SWEEP_POINTS:
-        raise InputError(f"{where()}: the sweep has {len(axes[0].values) * len(axes[1].values)} "
-                         f"points; the limit is {MAX_SWEEP_POINTS}")
+        raise InputError(
+            f"{where()}: the sweep has {len(axes[0].values) * len(axes[1].values)} "
+            f"points; the limit is {MAX_SWEEP_POINTS}"
+        )
 
 
 @dataclass
@@ -340,8 +391,8 @@ class Axis:
 
     key: object
     dimension: str
-    values: object       # numpy array, SI
-    spacing: str         # "linear" | "log"
+    values: object  # numpy array, SI
+    spacing: str  # "linear" | "log"
     line: int
 
 
@@ -358,19 +409,26 @@ def _axis(spec: dict, dimension: str, key, where, path) -> Axis:
     _unknown_keys(spec, SWEEP_KEYS, where, "sweep", path)
     for needed in ("from", "to", "steps"):
         if needed not in spec:
-            raise InputError(f"{here}: a sweep needs from, to and steps, e.g. "
-                             "{from: 1e15 cm-3, to: 1e19 cm-3, steps: 41}")
+            raise InputError(
+                f"{here}: a sweep needs from, to and steps, e.g. "
+                "{from: 1e15 cm-3, to: 1e19 cm-3, steps: 41}"
+            )
     ends = []
     for end in ("from", "to"):
         text = spec[end]
         at = where.key(*path, end)
-        value = parse_temperature(text, at) if dimension == "temperature" \
+        value = (
+            parse_temperature(text, at)
+            if dimension == "temperature"
             else parse_quantity(text, dimension, at)
+        )
         ends.append(check_plausible(value, dimension, text, at))
     steps = str(spec["steps"]).strip()
     if not re.fullmatch(r"[0-9]{1,6}", steps) or not 2 <= int(steps) <= MAX_SWEEP_STEPS:
-        raise InputError(f"{where.key(*path, 'steps')}: steps must be a whole number from 2 to "
-                         f"{MAX_SWEEP_STEPS}, got {spec['steps']!r}")
+        raise InputError(
+            f"{where.key(*path, 'steps')}: steps must be a whole number from 2 to "
+            f"{MAX_SWEEP_STEPS}, got {spec['steps']!r}"
+        )
     steps = int(steps)
     spacing = str(spec.get("spacing", "linear" if dimension == "temperature" else "log"))
     if spacing not in ("linear", "log"):
@@ -387,13 +445,16 @@ def _formulas(entries, where) -> list:
     if isinstance(entries, str):
         entries = [entries]
     if not isinstance(entries, list):
-        raise InputError(f"{where('formulas')}: formulas must be a list of texts such as "
-                         "['D_n = mu_n*k*T/q', 'n = N_D']")
+        raise InputError(
+            f"{where('formulas')}: formulas must be a list of texts such as "
+            "['D_n = mu_n*k*T/q', 'n = N_D']"
+        )
     out = []
     for i, text in enumerate(entries):
         if not isinstance(text, str) or not text.strip():
-            raise InputError(f"{where('formulas', i)}: write each formula as text "
-                             "'<left side> = <right side>'")
+            raise InputError(
+                f"{where('formulas', i)}: write each formula as text '<left side> = <right side>'"
+            )
         out.append((text.strip(), where("formulas", i), where.line("formulas", i)))
     return out
 
@@ -407,9 +468,11 @@ def _hall_exponent(text, where) -> float:
         return SCATTERING_EXPONENTS[word]
     value = read_number(word) if re.fullmatch(HALL_EXPONENT, word) else None
     if value is None or not -1.5 <= value <= 2.5:
-        raise InputError(f"{where}: hall_scattering must be one of "
-                         f"{', '.join(SCATTERING_EXPONENTS)} or an exponent r (tau ∝ E^r) "
-                         f"in half steps from -1.5 to 2.5, got {text!r}")
+        raise InputError(
+            f"{where}: hall_scattering must be one of "
+            f"{', '.join(SCATTERING_EXPONENTS)} or an exponent r (tau ∝ E^r) "
+            f"in half steps from -1.5 to 2.5, got {text!r}"
+        )
     return value
 
 
@@ -463,23 +526,33 @@ def _structure(data, where, lines) -> dict:
     given = _mapping(data, "structure", where, "")
     problems = Problems()
     if "voltage" in structure and "L" not in structure:
-        problems.add(InputError(f"{where.key('structure', 'voltage')} needs structure.length "
-                                "(the field is voltage / length); add length, or give field "
-                                "instead of voltage"))
+        problems.add(
+            InputError(
+                f"{where.key('structure', 'voltage')} needs structure.length "
+                "(the field is voltage / length); add length, or give field "
+                "instead of voltage"
+            )
+        )
     elif "voltage" in structure and "field" in structure:
         from_voltage = structure["voltage"] / structure["L"]
         if not _agree(from_voltage, structure["field"]):
-            problems.add(InputError(
-                f"{where.key('structure', 'field')} ({given['field']}) disagrees with "
-                f"structure.voltage / structure.length = {from_voltage * 1e-5:.4g} kV/cm; "
-                "give field or voltage, not both"))
+            problems.add(
+                InputError(
+                    f"{where.key('structure', 'field')} ({given['field']}) disagrees with "
+                    f"structure.voltage / structure.length = {from_voltage * 1e-5:.4g} kV/cm; "
+                    "give field or voltage, not both"
+                )
+            )
     if "A" in structure and "thickness" in structure and "width" in structure:
         product = structure["thickness"] * structure["width"]
         if not _agree(product, structure["A"]):
-            problems.add(InputError(
-                f"{where.key('structure', 'cross_section')} ({given['cross_section']}) "
-                f"disagrees with structure.thickness x structure.width = {product * 1e12:.4g} "
-                "um^2; give cross_section or thickness and width, not both"))
+            problems.add(
+                InputError(
+                    f"{where.key('structure', 'cross_section')} ({given['cross_section']}) "
+                    f"disagrees with structure.thickness x structure.width = {product * 1e12:.4g} "
+                    "um^2; give cross_section or thickness and width, not both"
+                )
+            )
     problems.raise_any()
     return structure
 
@@ -494,8 +567,10 @@ def _assumptions(entries, where) -> dict:
     if isinstance(entries, str):
         entries = [entries]
     if not isinstance(entries, list):
-        raise InputError(f"{where('assumes')}: assumes must be a list of words such as "
-                         "[non-degenerate, full-ionization]")
+        raise InputError(
+            f"{where('assumes')}: assumes must be a list of words such as "
+            "[non-degenerate, full-ionization]"
+        )
     out = {}
     for i, word in enumerate(entries):
         here = where("assumes", i)
@@ -513,8 +588,9 @@ def _waivers(entries, where) -> dict:
     if entries is None:
         return {}
     if not isinstance(entries, list):
-        raise InputError(f"{where('waivers')}: waivers must be a list of "
-                         "{rule: <id>, reason: <text>}")
+        raise InputError(
+            f"{where('waivers')}: waivers must be a list of {{rule: <id>, reason: <text>}}"
+        )
     out = {}
     for i, entry in enumerate(entries):
         here = where("waivers", i)
@@ -527,8 +603,10 @@ def _waivers(entries, where) -> dict:
             raise InputError(f"{here}: the waiver names no rule; add rule: <id>")
         reason = str(entry.get("reason") or "").strip()
         if len(reason) < 3:
-            raise InputError(f"{here}: the waiver of {entry['rule']} has no reason; add "
-                             "reason: <why this finding does not apply>")
+            raise InputError(
+                f"{here}: the waiver of {entry['rule']} has no reason; add "
+                "reason: <why this finding does not apply>"
+            )
         out[str(entry["rule"]).strip().upper()] = (reason, where.line("waivers", i))
     return out
 
@@ -536,7 +614,7 @@ def _waivers(entries, where) -> dict:
 def _looks_like_calculation(text: str, path: str) -> bool:
     docs, errors = read_documents(text, path)
     if errors:
-        return True            # broken YAML is reported when parsed
+        return True  # broken YAML is reported when parsed
     return any(isinstance(doc.value, dict) and "material" in doc.value for doc in docs)
 
 

@@ -33,6 +33,7 @@ has a ``[tool.regimecheck]`` table.  Unknown keys, rule ids and values are input
 errors naming the file and line; command-line options override the file.  File
 patterns match a file's suffix in any case (``*.yaml`` reads ``NOTES.YAML``).
 """
+
 from __future__ import annotations
 
 import difflib
@@ -44,11 +45,22 @@ from pathlib import Path
 
 from ..errors import InputError
 from ..vocabulary_words import SEVERITIES, TOLERANCE_NAMES
-from .table import IGNORE as IGNORED_COLUMNS, KEYS as TABLE_KEYS
+from .table import IGNORE as IGNORED_COLUMNS
+from .table import KEYS as TABLE_KEYS
 
-LEVELS = SEVERITIES                 # the fail levels are the rules' severities
-KEYS = ("fail-level", "only", "skip", "file-patterns", "exclude-patterns", "severity",
-        "threshold", "tolerance", "columns", "waive")
+LEVELS = SEVERITIES  # the fail levels are the rules' severities
+KEYS = (
+    "fail-level",
+    "only",
+    "skip",
+    "file-patterns",
+    "exclude-patterns",
+    "severity",
+    "threshold",
+    "tolerance",
+    "columns",
+    "waive",
+)
 DEFAULT_PATTERNS = ("*.yaml", "*.yml", "*.md", "*.csv")
 WAIVER_KEYS = ("path", "rule", "reason")
 TABLE = ("tool", "regimecheck")
@@ -64,18 +76,18 @@ class PathWaiver:
 
 @dataclass
 class Config:
-    source: str | None = None           # file the settings came from (None: defaults)
+    source: str | None = None  # file the settings came from (None: defaults)
     fail_level: str | None = None
     only: tuple = ()
     skip: tuple = ()
     file_patterns: tuple = DEFAULT_PATTERNS
     exclude_patterns: tuple = ()
-    severity: dict = field(default_factory=dict)     # rule id -> level
-    threshold: dict = field(default_factory=dict)    # rule id -> number
-    tolerance: dict = field(default_factory=dict)    # table check -> relative tolerance
-    columns: dict = field(default_factory=dict)      # our table key -> header in the CSV
-    waive: list = field(default_factory=list)        # PathWaiver
-    lines: dict = field(default_factory=dict)        # key path (below our table) -> line
+    severity: dict = field(default_factory=dict)  # rule id -> level
+    threshold: dict = field(default_factory=dict)  # rule id -> number
+    tolerance: dict = field(default_factory=dict)  # table check -> relative tolerance
+    columns: dict = field(default_factory=dict)  # our table key -> header in the CSV
+    waive: list = field(default_factory=list)  # PathWaiver
+    lines: dict = field(default_factory=dict)  # key path (below our table) -> line
 
     def where(self, *keys) -> str:
         """``file:line`` of the deepest of ``keys`` (e.g. "threshold", "STAT01") found."""
@@ -89,8 +101,9 @@ class Config:
         forms = {Path(path).as_posix()}
         if self.source:
             try:
-                forms.add(Path(path).resolve().relative_to(
-                    Path(self.source).resolve().parent).as_posix())
+                forms.add(
+                    Path(path).resolve().relative_to(Path(self.source).resolve().parent).as_posix()
+                )
             except (ValueError, OSError):
                 pass
         return forms
@@ -108,8 +121,7 @@ class Config:
         not check (a pre-commit run over the changed files), is not idle."""
         ran = set(rules_run)
         named = {id(w) for source in set(checked_sources) for w in self.waivers_for(source)}
-        return [w for w in self.waive
-                if id(w) not in used and w.rule in ran and id(w) in named]
+        return [w for w in self.waive if id(w) not in used and w.rule in ran and id(w) in named]
 
     def excluded(self, relative: str) -> bool:
         """Whether a file found by a walk (path relative to the walked folder) is left out."""
@@ -157,16 +169,19 @@ def load_config(path=None, search_from=None) -> Config:
     except OSError as exc:
         raise InputError(f"{path}: cannot read the configuration ({exc.strerror})") from None
     except UnicodeDecodeError as exc:
-        line = exc.object[:exc.start].count(b"\n") + 1
-        raise InputError(f"{path}:{line}: the configuration is not UTF-8 text; save it as "
-                         "UTF-8") from None
+        line = exc.object[: exc.start].count(b"\n") + 1
+        raise InputError(
+            f"{path}:{line}: the configuration is not UTF-8 text; save it as UTF-8"
+        ) from None
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError(f"{path}: malformed TOML: {exc}") from None
     except RecursionError:
-        raise InputError(f"{path}: arrays or inline tables nested too deeply to read; "
-                         "the settings need at most two levels") from None
+        raise InputError(
+            f"{path}: arrays or inline tables nested too deeply to read; "
+            "the settings need at most two levels"
+        ) from None
     prefix = TABLE if isinstance(data.get("tool"), dict) and "regimecheck" in data["tool"] else ()
     table = data["tool"]["regimecheck"] if prefix else None
     if table is None:
@@ -177,8 +192,11 @@ def load_config(path=None, search_from=None) -> Config:
         raise InputError(f"{path}: tool.regimecheck must be a table ([tool.regimecheck])")
     lines = toml_key_lines(text)
     config = Config(source=str(path))
-    config.lines = {key[len(prefix):]: line for key, line in lines.items()
-                    if key[:len(prefix)] == prefix and len(key) > len(prefix)}
+    config.lines = {
+        key[len(prefix) :]: line
+        for key, line in lines.items()
+        if key[: len(prefix)] == prefix and len(key) > len(prefix)
+    }
     return _parse(table, config)
 
 
@@ -206,18 +224,22 @@ def _parse(table: dict, config: Config) -> Config:
     _numbers_per_name(table, config, fail)
     columns = table.get("columns", {})
     if not isinstance(columns, dict):
-        fail("must be a table of our key = \"their header\"", "columns")
+        fail('must be a table of our key = "their header"', "columns")
     for name, header in columns.items():
         if name == IGNORED_COLUMNS:
             if not _texts(header):
-                fail(f"{name} must be a list of headers, e.g. {name} = [\"Supplier\"]",
-                     "columns", name)
+                fail(
+                    f'{name} must be a list of headers, e.g. {name} = ["Supplier"]', "columns", name
+                )
         elif name not in TABLE_KEYS:
-            fail(f"unknown table key {name!r}; keys are {', '.join(TABLE_KEYS)} (and "
-                 f"{IGNORED_COLUMNS} = [headers left out])", "columns", name)
+            fail(
+                f"unknown table key {name!r}; keys are {', '.join(TABLE_KEYS)} (and "
+                f"{IGNORED_COLUMNS} = [headers left out])",
+                "columns",
+                name,
+            )
         elif not isinstance(header, str):
-            fail(f"{name} must be the header text, e.g. {name} = \"Rho (ohm cm)\"",
-                 "columns", name)
+            fail(f'{name} must be the header text, e.g. {name} = "Rho (ohm cm)"', "columns", name)
     config.columns = dict(columns)
     _waivers(table.get("waive", []), config, fail)
     return config
@@ -239,20 +261,27 @@ def _numbers_per_name(table: dict, config: Config, fail) -> None:
                     fail(f"{name} = {item!r}: must be one of {', '.join(LEVELS)}", key, name)
                 continue
             if key == "tolerance" and name not in TOLERANCE_NAMES:
-                fail(f"unknown tolerance {name!r}; known: {', '.join(TOLERANCE_NAMES)}", key,
-                     name)
+                fail(f"unknown tolerance {name!r}; known: {', '.join(TOLERANCE_NAMES)}", key, name)
             if isinstance(item, bool) or not isinstance(item, (int, float)):
                 fail(f"{name} = {item!r}: must be a number", key, name)
             if not math.isfinite(item):
                 fail(f"{name} = {item!r}: must be a finite number", key, name)
             if key == "tolerance" and item < 0:
-                fail(f"{name} = {item!r}: a relative tolerance is >= 0, e.g. 0.25 for 25%",
-                     key, name)
-        converted = {(n if key == "tolerance" else n.upper()):
-                     (v if key == "severity" else float(v)) for n, v in value.items()}
+                fail(
+                    f"{name} = {item!r}: a relative tolerance is >= 0, e.g. 0.25 for 25%", key, name
+                )
+        converted = {
+            (n if key == "tolerance" else n.upper()): (v if key == "severity" else float(v))
+            for n, v in value.items()
+        }
         getattr(config, key).update(converted)
-        config.lines.update({(key, n.upper()): config.lines[(key, n)] for n in value
-                             if (key, n) in config.lines and key != "tolerance"})
+        config.lines.update(
+            {
+                (key, n.upper()): config.lines[(key, n)]
+                for n in value
+                if (key, n) in config.lines and key != "tolerance"
+            }
+        )
 
 
 def _waivers(waivers, config: Config, fail) -> None:
@@ -264,10 +293,14 @@ def _waivers(waivers, config: Config, fail) -> None:
         missing = [k for k in WAIVER_KEYS if not str(entry.get(k, "")).strip()]
         if missing:
             fail(f"a waiver misses {', '.join(missing)} (a reason is required)", "waive", number)
-        config.waive.append(PathWaiver(str(entry["path"]), str(entry["rule"]).upper(),
-                                       str(entry["reason"]).strip(),
-                                       config.lines.get(("waive", number),
-                                                        config.lines.get(("waive",)))))
+        config.waive.append(
+            PathWaiver(
+                str(entry["path"]),
+                str(entry["rule"]).upper(),
+                str(entry["reason"]).strip(),
+                config.lines.get(("waive", number), config.lines.get(("waive",))),
+            )
+        )
 
 
 def check_rule_ids(config: Config, known) -> None:
@@ -276,8 +309,9 @@ def check_rule_ids(config: Config, known) -> None:
     ``id`` and ``threshold``) or their ids."""
     known = list(known)
     ids = [rule if isinstance(rule, str) else rule.id for rule in known]
-    without_threshold = {rule.id for rule in known
-                         if not isinstance(rule, str) and math.isnan(rule.threshold)}
+    without_threshold = {
+        rule.id for rule in known if not isinstance(rule, str) and math.isnan(rule.threshold)
+    }
 
     def exists(name, prefix_ok):
         return name in ids or (prefix_ok and any(k.startswith(name) for k in ids))
@@ -294,9 +328,11 @@ def check_rule_ids(config: Config, known) -> None:
             raise InputError(f"{here}: [tool.regimecheck] {key}: unknown rule {name!r}{hint}")
     for name in config.threshold:
         if name in without_threshold:
-            raise InputError(f"{config.where('threshold', name)}: [tool.regimecheck] threshold: "
-                             f"{name} has no threshold (its indicator has no above or below "
-                             "value); remove this line, or use severity or skip for it")
+            raise InputError(
+                f"{config.where('threshold', name)}: [tool.regimecheck] threshold: "
+                f"{name} has no threshold (its indicator has no above or below "
+                "value); remove this line, or use severity or skip for it"
+            )
 
 
 def _waiver_line(config: Config, rule: str) -> str:
@@ -363,19 +399,19 @@ def _top_lines(text: str) -> set:
         if char == "\n":
             number += 1
             if mode in ("#", '"', "'"):
-                mode = ""                    # comments and one-line strings end here
+                mode = ""  # comments and one-line strings end here
             if not mode and depth == 0:
                 top.add(number)
         elif mode == "#":
             pass
         elif mode in ('"""', "'''", '"', "'"):
-            if char == "\\" and mode[0] == '"' and text[i + 1:i + 2] not in ("", "\n"):
-                i += 1                       # an escaped character cannot end the string
+            if char == "\\" and mode[0] == '"' and text[i + 1 : i + 2] not in ("", "\n"):
+                i += 1  # an escaped character cannot end the string
             elif text.startswith(mode, i):
                 i += len(mode) - 1
                 mode = ""
         elif text.startswith('"""', i) or text.startswith("'''", i):
-            mode = text[i:i + 3]
+            mode = text[i : i + 3]
             i += 2
         elif char in "\"'#":
             mode = char

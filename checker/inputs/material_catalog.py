@@ -7,19 +7,19 @@ key, and a :class:`checker.physics.materials.Material` is built.  The JSON Schem
 of material files (``checker/data/material.schema.json``) is generated from the
 same tables by ``tools/generate_schema.py``.
 """
+
 from __future__ import annotations
 
 import re
 from dataclasses import dataclass, field
+from functools import cache
 
 import numpy as np
-from functools import lru_cache
 
 from ..errors import InputError, UnknownMaterialError
 from ..physics import materials as m
-from ..physics.constants import ROOM_TEMPERATURE
+from ..physics.constants import EV, ROOM_TEMPERATURE
 from ..resources import materials_dir
-from ..physics.constants import EV
 from .quantities import example, parse_quantity, quantity_pattern
 from .yaml_source import Problems, load_package_yaml
 
@@ -60,8 +60,9 @@ class Choice:
 
     def read(self, value, place, path):
         if not isinstance(value, str) or value not in self.words:
-            raise InputError(f"{place(*path)} must be one of {', '.join(self.words)}, "
-                             f"got {_shown(value)}")
+            raise InputError(
+                f"{place(*path)} must be one of {', '.join(self.words)}, got {_shown(value)}"
+            )
         return value
 
     def schema(self) -> dict:
@@ -87,25 +88,37 @@ class Quantity:
 
     def read(self, value, place, path):
         si = parse_quantity(value, self.dimension, place(*path))
-        for bound, fails, words in ((self.least, lambda b: si < b, "at least"),
-                                    (self.above, lambda b: si <= b, "above"),
-                                    (self.most, lambda b: si > b, "at most")):
+        for bound, fails, words in (
+            (self.least, lambda b: si < b, "at least"),
+            (self.above, lambda b: si <= b, "above"),
+            (self.most, lambda b: si > b, "at most"),
+        ):
             if bound is not None and fails(parse_quantity(bound, self.dimension)):
                 why = f" ({self.why})" if self.why else ""
-                hint = "a plain number" if self.dimension == "dimensionless" \
+                hint = (
+                    "a plain number"
+                    if self.dimension == "dimensionless"
                     else f"e.g. {example(self.dimension)}"
-                raise InputError(f"{place(*path)}: {value!r} must be {words} {bound}{why}; "
-                                 f"write {hint} in that range")
+                )
+                raise InputError(
+                    f"{place(*path)}: {value!r} must be {words} {bound}{why}; "
+                    f"write {hint} in that range"
+                )
         return si
 
     def schema(self) -> dict:
         if self.dimension != "dimensionless":
-            return {"type": "string", "pattern": quantity_pattern(True),
-                    "description": f"a {self.dimension} with its unit, e.g. "
-                                   f"{example(self.dimension)}"}
+            return {
+                "type": "string",
+                "pattern": quantity_pattern(True),
+                "description": f"a {self.dimension} with its unit, e.g. {example(self.dimension)}",
+            }
         number = {"type": "number"}
-        for bound, key in ((self.least, "minimum"), (self.above, "exclusiveMinimum"),
-                           (self.most, "maximum")):
+        for bound, key in (
+            (self.least, "minimum"),
+            (self.above, "exclusiveMinimum"),
+            (self.most, "maximum"),
+        ):
             if bound is not None:
                 number[key] = float(bound)
         return {"anyOf": [number, {"type": "string", "pattern": quantity_pattern(False)}]}
@@ -120,18 +133,26 @@ class Range:
 
     def read(self, value, place, path):
         if not isinstance(value, list) or len(value) != 2:
-            raise InputError(f"{place(*path)}: write the range as [low, high], e.g. "
-                             f"[{example(self.dimension)[1:-1]}, ...], got {_shown(value)}")
-        low, high = (parse_quantity(v, self.dimension, place(*path, i)) for i, v in
-                     enumerate(value))
+            raise InputError(
+                f"{place(*path)}: write the range as [low, high], e.g. "
+                f"[{example(self.dimension)[1:-1]}, ...], got {_shown(value)}"
+            )
+        low, high = (
+            parse_quantity(v, self.dimension, place(*path, i)) for i, v in enumerate(value)
+        )
         if not 0 <= low <= high:
-            raise InputError(f"{place(*path)}: the range {value} must run from a value >= 0 "
-                             "up to a larger one")
+            raise InputError(
+                f"{place(*path)}: the range {value} must run from a value >= 0 up to a larger one"
+            )
         return (low, high)
 
     def schema(self) -> dict:
-        return {"type": "array", "items": Quantity(self.dimension).schema(), "minItems": 2,
-                "maxItems": 2}
+        return {
+            "type": "array",
+            "items": Quantity(self.dimension).schema(),
+            "minItems": 2,
+            "maxItems": 2,
+        }
 
 
 @dataclass(frozen=True)
@@ -156,14 +177,21 @@ class NumberList:
 
     def read(self, value, place, path):
         if not isinstance(value, list) or len(value) < self.least_items:
-            raise InputError(f"{place(*path)}: write a list of at least {self.least_items} "
-                             f"numbers, e.g. [1.094, -1.312e-5], got {_shown(value)}")
-        return tuple(Quantity("dimensionless", least="-1e30", most="1e30").read(
-            v, place, path + (i,)) for i, v in enumerate(value))
+            raise InputError(
+                f"{place(*path)}: write a list of at least {self.least_items} "
+                f"numbers, e.g. [1.094, -1.312e-5], got {_shown(value)}"
+            )
+        return tuple(
+            Quantity("dimensionless", least="-1e30", most="1e30").read(v, place, path + (i,))
+            for i, v in enumerate(value)
+        )
 
     def schema(self) -> dict:
-        return {"type": "array", "minItems": self.least_items,
-                "items": Quantity("dimensionless").schema()}
+        return {
+            "type": "array",
+            "minItems": self.least_items,
+            "items": Quantity("dimensionless").schema(),
+        }
 
 
 @dataclass(frozen=True)
@@ -198,8 +226,12 @@ class Block:
         return "{" + ", ".join(f"{k}: ..." for k, f in self.fields.items() if f.required) + "}"
 
     def read(self, value, place, path):
-        _must_be_mapping(value, place, path, self.form() if self.form() != "{}" else
-                         "of " + ", ".join(self.fields))
+        _must_be_mapping(
+            value,
+            place,
+            path,
+            self.form() if self.form() != "{}" else "of " + ", ".join(self.fields),
+        )
         for key in value:
             if key not in self.fields:
                 place.problems.add(_unknown_key(key, value[key], self.fields, place, path))
@@ -210,26 +242,38 @@ class Block:
                 if result is not None:
                     out[key] = result
             elif kind.required:
-                place.problems.add(InputError(
-                    f"{place(*path)}: missing {key!r}" + (f"; write e.g. {key}: "
-                    f"{example(kind.dimension)}" if isinstance(kind, Quantity) else "")))
+                place.problems.add(
+                    InputError(
+                        f"{place(*path)}: missing {key!r}"
+                        + (
+                            f"; write e.g. {key}: {example(kind.dimension)}"
+                            if isinstance(kind, Quantity)
+                            else ""
+                        )
+                    )
+                )
             elif getattr(kind, "default", None) is not None:
                 out[key] = kind.default
         return out
 
     def schema(self) -> dict:
-        return {"type": "object", "additionalProperties": False,
-                "required": [k for k, f in self.fields.items() if f.required],
-                "properties": {k: f.schema() for k, f in self.fields.items()}}
+        return {
+            "type": "object",
+            "additionalProperties": False,
+            "required": [k for k, f in self.fields.items() if f.required],
+            "properties": {k: f.schema() for k, f in self.fields.items()},
+        }
 
 
 def _unknown_key(key, value, known, place, path) -> InputError:
     import difflib
 
     if value in (None, "") and " " in str(key):
-        return InputError(f"{place(*path)}: {key!r} is not a key; a comma in unquoted text "
-                          "inside {...} starts a new key: quote the text, e.g. "
-                          "source: \"Author, Journal 1 (2000)\"")
+        return InputError(
+            f"{place(*path)}: {key!r} is not a key; a comma in unquoted text "
+            "inside {...} starts a new key: quote the text, e.g. "
+            'source: "Author, Journal 1 (2000)"'
+        )
     close = difflib.get_close_matches(str(key), list(known), n=1)
     hint = f"did you mean {close[0]!r}?" if close else f"known: {', '.join(known)}"
     return InputError(f"{place(*path, key)}: unknown material field {key!r}; {hint}")
@@ -255,8 +299,11 @@ class Named:
         return out
 
     def schema(self) -> dict:
-        return {"type": "object", "additionalProperties": self.item.schema(),
-                "minProperties": 1 if self.required else 0}
+        return {
+            "type": "object",
+            "additionalProperties": self.item.schema(),
+            "minProperties": 1 if self.required else 0,
+        }
 
 
 @dataclass(frozen=True)
@@ -265,7 +312,7 @@ class Variants:
 
     variants: dict
     common: dict
-    implied_model: str | None = None     # the model when the block does not say
+    implied_model: str | None = None  # the model when the block does not say
     required: bool = True
 
     def _block(self, model) -> Block:
@@ -274,12 +321,15 @@ class Variants:
 
     def read(self, value, place, path):
         first = next(iter(self.variants))
-        _must_be_mapping(value, place, path, f"{{model: {first}, ...}} (models: "
-                                             f"{', '.join(self.variants)})")
+        _must_be_mapping(
+            value, place, path, f"{{model: {first}, ...}} (models: {', '.join(self.variants)})"
+        )
         model = value.get("model", self.implied_model)
         if not isinstance(model, str) or model not in self.variants:
-            raise InputError(f"{place(*path, 'model')}: model must be one of "
-                             f"{', '.join(self.variants)}, got {_shown(model)}")
+            raise InputError(
+                f"{place(*path, 'model')}: model must be one of "
+                f"{', '.join(self.variants)}, got {_shown(model)}"
+            )
         return {**self._block(model).read(value, place, path), "model": model}
 
     def schema(self) -> dict:
@@ -306,15 +356,20 @@ class NumberOrBlock:
         return self.number.read(value, place, path)
 
     def schema(self) -> dict:
-        return {"anyOf": [self.number.schema(),
-                          Block({"value": self.number, **self.extra}).schema()]}
+        return {
+            "anyOf": [self.number.schema(), Block({"value": self.number, **self.extra}).schema()]
+        }
 
 
 # ---- the key tables -------------------------------------------------------------------
 # Bounds are wide: they catch signs, zeros and exponent typos, not unusual materials.
 # The provenance keys every parameter block may carry.
-PROVENANCE = {"source": Text(), "note": Text(), "valid_T": Range("temperature"),
-              "valid_N": Range("density")}
+PROVENANCE = {
+    "source": Text(),
+    "note": Text(),
+    "valid_T": Range("temperature"),
+    "valid_N": Range("density"),
+}
 _MOBILITY = dict(dimension="mobility", above="0 cm^2/(V*s)", most="1e7 cm^2/(V*s)")
 _MOBILITY_TERM = dict(dimension="mobility", least="0 cm^2/(V*s)", most="1e7 cm^2/(V*s)")
 _REF_DENSITY = dict(dimension="density", above="0 cm-3", most="1e24 cm-3")
@@ -322,121 +377,202 @@ _POWER = dict(dimension="dimensionless", least="-10", most="10")
 _EXPONENT = dict(dimension="dimensionless", above="0", most="10")
 
 MOBILITY_MODELS = {
-    "masetti": {"mu_min1": Quantity(**_MOBILITY), "mu_max": Quantity(**_MOBILITY),
-                "C_r": Quantity(**_REF_DENSITY), "alpha": Quantity(**_EXPONENT),
-                "mu_1": Quantity(**_MOBILITY_TERM), "C_s": Quantity(**_REF_DENSITY),
-                "beta": Quantity(**_EXPONENT),
-                "P_c": Quantity("density", least="0 cm-3", most="1e24 cm-3", default=0.0),
-                "gamma": Quantity(**_POWER, default=0.0)},
+    "masetti": {
+        "mu_min1": Quantity(**_MOBILITY),
+        "mu_max": Quantity(**_MOBILITY),
+        "C_r": Quantity(**_REF_DENSITY),
+        "alpha": Quantity(**_EXPONENT),
+        "mu_1": Quantity(**_MOBILITY_TERM),
+        "C_s": Quantity(**_REF_DENSITY),
+        "beta": Quantity(**_EXPONENT),
+        "P_c": Quantity("density", least="0 cm-3", most="1e24 cm-3", default=0.0),
+        "gamma": Quantity(**_POWER, default=0.0),
+    },
     # A_0 multiplies T^a_0 with T in kelvin, hence its large published values
-    "arora": {"A_min": Quantity(**_MOBILITY), "a_min": Quantity(**_POWER),
-              "A_0": Quantity("mobility", above="0 cm^2/(V*s)", most="1e20 cm^2/(V*s)"),
-              "a_0": Quantity(**_POWER), "N_ref": Quantity(**_REF_DENSITY),
-              "a_N": Quantity(**_POWER), "alpha": Quantity(**_EXPONENT),
-              "a_alpha": Quantity(**_POWER)},
-    "caughey_thomas": {"mu_max": Quantity(**_MOBILITY), "mu_min": Quantity(**_MOBILITY_TERM),
-                       "N_ref": Quantity(**_REF_DENSITY), "lam": Quantity(**_EXPONENT),
-                       "theta1": Quantity(**_POWER, default=0.0),
-                       "theta2": Quantity(**_POWER, default=0.0)},
-    "levinshtein": {"mu_max": Quantity(**_MOBILITY), "mu_min": Quantity(**_MOBILITY_TERM),
-                    "N_ref": Quantity(**_REF_DENSITY), "alpha": Quantity(**_POWER),
-                    "beta": Quantity(**_POWER), "gamma": Quantity(**_POWER)},
+    "arora": {
+        "A_min": Quantity(**_MOBILITY),
+        "a_min": Quantity(**_POWER),
+        "A_0": Quantity("mobility", above="0 cm^2/(V*s)", most="1e20 cm^2/(V*s)"),
+        "a_0": Quantity(**_POWER),
+        "N_ref": Quantity(**_REF_DENSITY),
+        "a_N": Quantity(**_POWER),
+        "alpha": Quantity(**_EXPONENT),
+        "a_alpha": Quantity(**_POWER),
+    },
+    "caughey_thomas": {
+        "mu_max": Quantity(**_MOBILITY),
+        "mu_min": Quantity(**_MOBILITY_TERM),
+        "N_ref": Quantity(**_REF_DENSITY),
+        "lam": Quantity(**_EXPONENT),
+        "theta1": Quantity(**_POWER, default=0.0),
+        "theta2": Quantity(**_POWER, default=0.0),
+    },
+    "levinshtein": {
+        "mu_max": Quantity(**_MOBILITY),
+        "mu_min": Quantity(**_MOBILITY_TERM),
+        "N_ref": Quantity(**_REF_DENSITY),
+        "alpha": Quantity(**_POWER),
+        "beta": Quantity(**_POWER),
+        "gamma": Quantity(**_POWER),
+    },
     # the silicon resistivity standard (ASTM F723) read as mobility per dopant atom
-    "resistivity_standard": {"form": Choice(("boron", "phosphorus")),
-                             "coefficients": NumberList(least_items=4)},
+    "resistivity_standard": {
+        "form": Choice(("boron", "phosphorus")),
+        "coefficients": NumberList(least_items=4),
+    },
 }
 # any mobility model may take its temperature dependence from another model of the band
-MOBILITY_COMMON = {**PROVENANCE, "temperature_scaling": Block({
-    "by": Text(required=True),
-    "T0": Quantity("temperature", above="0 K", most="3000 K", default=300.0),
-    "source": Text(), "note": Text()}, required=False)}
+MOBILITY_COMMON = {
+    **PROVENANCE,
+    "temperature_scaling": Block(
+        {
+            "by": Text(required=True),
+            "T0": Quantity("temperature", above="0 K", most="3000 K", default=300.0),
+            "source": Text(),
+            "note": Text(),
+        },
+        required=False,
+    ),
+}
 NARROWING_MODELS = {
-    "slotboom": {"V1": Quantity("energy", least="0 eV", most="1 eV"),
-                 "N0": Quantity(**_REF_DENSITY),
-                 "C": Quantity("dimensionless", least="0", most="100")},
-    "cube_root": {"a_n": Quantity("energy times length", least="0 eV*cm", most="1 eV*cm"),
-                  "a_p": Quantity("energy times length", least="0 eV*cm", most="1 eV*cm")},
+    "slotboom": {
+        "V1": Quantity("energy", least="0 eV", most="1 eV"),
+        "N0": Quantity(**_REF_DENSITY),
+        "C": Quantity("dimensionless", least="0", most="100"),
+    },
+    "cube_root": {
+        "a_n": Quantity("energy times length", least="0 eV*cm", most="1 eV*cm"),
+        "a_p": Quantity("energy times length", least="0 eV*cm", most="1 eV*cm"),
+    },
 }
 GAP_MODELS = {
-    "varshni": {"Eg0": Quantity("energy", above="0 eV", most="15 eV",
-                                why="a band gap is positive"),
-                "alpha": Quantity("energy per kelvin", least="-0.01 eV/K", most="0.01 eV/K",
-                                  default=0.0),
-                "beta": Quantity("temperature", least="0 K", most="1e4 K", default=1.0)},
+    "varshni": {
+        "Eg0": Quantity("energy", above="0 eV", most="15 eV", why="a band gap is positive"),
+        "alpha": Quantity("energy per kelvin", least="-0.01 eV/K", most="0.01 eV/K", default=0.0),
+        "beta": Quantity("temperature", least="0 K", most="1e4 K", default=1.0),
+    },
 }
 DOS_MODELS = {
-    "power_law": {"Nc300": Quantity("density", above="0 cm-3", most="1e23 cm-3"),
-                  "Nv300": Quantity("density", above="0 cm-3", most="1e23 cm-3"),
-                  "exponent": Quantity("dimensionless", least="0", most="3", default=1.5)},
+    "power_law": {
+        "Nc300": Quantity("density", above="0 cm-3", most="1e23 cm-3"),
+        "Nv300": Quantity("density", above="0 cm-3", most="1e23 cm-3"),
+        "exponent": Quantity("dimensionless", least="0", most="3", default=1.5),
+    },
     # N = 2 (2 pi m0 k T / h^2)^1.5 D(T), D = sum a_k T^k (Couderc et al. 2014)
-    "mass_polynomial": {"Nc_mass": NumberList(), "Nv_mass": NumberList(),
-                        "T_fit": Quantity("temperature", above="0 K", most="3000 K")},
+    "mass_polynomial": {
+        "Nc_mass": NumberList(),
+        "Nv_mass": NumberList(),
+        "T_fit": Quantity("temperature", above="0 K", most="3000 K"),
+    },
 }
-_MASS = Quantity("dimensionless", above="0", most="100", required=False,
-                 why="a mass in units of the free-electron mass m0")
-CARRIER = Block({
-    "default": Text(required=False),
-    "by_dopant": Named(Text(), "dopant", required=False),
-    "models": Named(Variants(MOBILITY_MODELS, MOBILITY_COMMON), "mobility model"),
-    "minority": Text(required=False),
-    "saturation_velocity": Block({"v300": Quantity("velocity", above="0 cm/s", most="1e9 cm/s"),
-                                  "A": Quantity("dimensionless", least="0", most="1",
-                                                default=0.0),
-                                  # v300 (T/300 K)^power (Canali et al. 1975) in place of A
-                                  "power": Quantity(**_POWER, required=False),
-                                  **PROVENANCE}, required=False),
-    "field_exponent": Block({"ref": Quantity(**_EXPONENT),
-                             "power": Quantity(**_POWER, default=0.0), **PROVENANCE},
-                            required=False),
-}, required=False)
-_LEVEL_ENERGY = Quantity("energy", least="0 eV", most="15 eV",
-                         why="a level measured from its band edge")
+_MASS = Quantity(
+    "dimensionless",
+    above="0",
+    most="100",
+    required=False,
+    why="a mass in units of the free-electron mass m0",
+)
+CARRIER = Block(
+    {
+        "default": Text(required=False),
+        "by_dopant": Named(Text(), "dopant", required=False),
+        "models": Named(Variants(MOBILITY_MODELS, MOBILITY_COMMON), "mobility model"),
+        "minority": Text(required=False),
+        "saturation_velocity": Block(
+            {
+                "v300": Quantity("velocity", above="0 cm/s", most="1e9 cm/s"),
+                "A": Quantity("dimensionless", least="0", most="1", default=0.0),
+                # v300 (T/300 K)^power (Canali et al. 1975) in place of A
+                "power": Quantity(**_POWER, required=False),
+                **PROVENANCE,
+            },
+            required=False,
+        ),
+        "field_exponent": Block(
+            {"ref": Quantity(**_EXPONENT), "power": Quantity(**_POWER, default=0.0), **PROVENANCE},
+            required=False,
+        ),
+    },
+    required=False,
+)
+_LEVEL_ENERGY = Quantity(
+    "energy", least="0 eV", most="15 eV", why="a level measured from its band edge"
+)
 LOWERING_MODELS = {
     "altermatt": {"N_ref": Quantity(**_REF_DENSITY), "c": Quantity(**_EXPONENT)},
-    "pearson_bardeen": {"alpha": Quantity("energy times length", least="0 eV*cm",
-                                          most="1e-5 eV*cm")},
+    "pearson_bardeen": {
+        "alpha": Quantity("energy times length", least="0 eV*cm", most="1e-5 eV*cm")
+    },
 }
-DOPANT = Block({
-    "kind": Choice(("donor", "acceptor")),
-    "energy": _LEVEL_ENERGY,
-    "degeneracy": Quantity("dimensionless", above="0", most="100", required=False),
-    "mott_density": Quantity("density", above="0 cm-3", most="1e24 cm-3", required=False),
-    # several bound levels (lattice sites) with their shares; energy is then the first's
-    "levels": BlockList(Block({
+DOPANT = Block(
+    {
+        "kind": Choice(("donor", "acceptor")),
         "energy": _LEVEL_ENERGY,
-        "share": Quantity("dimensionless", above="0", most="1"),
-        "degeneracy": Quantity("dimensionless", above="0", most="100", required=False)})),
-    # ionization energy lowered with the same-type density
-    "lowering": Variants(LOWERING_MODELS, {"source": Text(), "note": Text()},
-                         required=False),
-    # share of dopants that can bind a carrier, b(N) = 1/(1 + (N/N_b)^d)
-    "bound_share": Block({"N_b": Quantity(**_REF_DENSITY), "d": Quantity(**_EXPONENT),
-                          "source": Text(), "note": Text()}, required=False),
-    **PROVENANCE})
-PERMITTIVITY = Quantity("dimensionless", least="1", most="1000",
-                        why="the static relative permittivity; vacuum has 1")
-MATERIAL = Block({
-    "name": Text(required=False), "long_name": Text(required=False),
-    "aliases": TextList(required=False),
-    "permittivity": NumberOrBlock(PERMITTIVITY, {"source": Text(), "note": Text()},
-                                  required=False),
-    "band_gap": Variants(GAP_MODELS, PROVENANCE, implied_model="varshni", required=False),
-    "density_of_states": Variants(DOS_MODELS, PROVENANCE, implied_model="power_law",
-                                  required=False),
-    "intrinsic_density": Block({
-        "published": Range("density", required=True),
-        "at": Quantity("temperature", above="0 K", most="3000 K", default=300.0),
-        "source": Text(), "note": Text()}, required=False),
-    "hall_factor": Block({
-        "electron": Range("dimensionless"), "hole": Range("dimensionless"),
-        **PROVENANCE}, required=False),
-    "thermal_mass": Block({"electron": _MASS, "hole": _MASS, "source": Text(), "note": Text()},
-                          required=False),
-    "dopants": Named(DOPANT, "dopant", required=False),
-    "mobility": Block({"electron": CARRIER, "hole": CARRIER, "source": Text(), "note": Text()},
-                      required=False),
-    "band_gap_narrowing": Variants(NARROWING_MODELS, PROVENANCE, required=False),
-})
+        "degeneracy": Quantity("dimensionless", above="0", most="100", required=False),
+        "mott_density": Quantity("density", above="0 cm-3", most="1e24 cm-3", required=False),
+        # several bound levels (lattice sites) with their shares; energy is then the first's
+        "levels": BlockList(
+            Block(
+                {
+                    "energy": _LEVEL_ENERGY,
+                    "share": Quantity("dimensionless", above="0", most="1"),
+                    "degeneracy": Quantity("dimensionless", above="0", most="100", required=False),
+                }
+            )
+        ),
+        # ionization energy lowered with the same-type density
+        "lowering": Variants(LOWERING_MODELS, {"source": Text(), "note": Text()}, required=False),
+        # share of dopants that can bind a carrier, b(N) = 1/(1 + (N/N_b)^d)
+        "bound_share": Block(
+            {
+                "N_b": Quantity(**_REF_DENSITY),
+                "d": Quantity(**_EXPONENT),
+                "source": Text(),
+                "note": Text(),
+            },
+            required=False,
+        ),
+        **PROVENANCE,
+    }
+)
+PERMITTIVITY = Quantity(
+    "dimensionless", least="1", most="1000", why="the static relative permittivity; vacuum has 1"
+)
+MATERIAL = Block(
+    {
+        "name": Text(required=False),
+        "long_name": Text(required=False),
+        "aliases": TextList(required=False),
+        "permittivity": NumberOrBlock(
+            PERMITTIVITY, {"source": Text(), "note": Text()}, required=False
+        ),
+        "band_gap": Variants(GAP_MODELS, PROVENANCE, implied_model="varshni", required=False),
+        "density_of_states": Variants(
+            DOS_MODELS, PROVENANCE, implied_model="power_law", required=False
+        ),
+        "intrinsic_density": Block(
+            {
+                "published": Range("density", required=True),
+                "at": Quantity("temperature", above="0 K", most="3000 K", default=300.0),
+                "source": Text(),
+                "note": Text(),
+            },
+            required=False,
+        ),
+        "hall_factor": Block(
+            {"electron": Range("dimensionless"), "hole": Range("dimensionless"), **PROVENANCE},
+            required=False,
+        ),
+        "thermal_mass": Block(
+            {"electron": _MASS, "hole": _MASS, "source": Text(), "note": Text()}, required=False
+        ),
+        "dopants": Named(DOPANT, "dopant", required=False),
+        "mobility": Block(
+            {"electron": CARRIER, "hole": CARRIER, "source": Text(), "note": Text()}, required=False
+        ),
+        "band_gap_narrowing": Variants(NARROWING_MODELS, PROVENANCE, required=False),
+    }
+)
 # ---------------------------------------------------------------------------------------
 
 
@@ -444,7 +580,7 @@ MATERIAL = Block({
 class _Place:
     """Where a key of a material is: file:line:column and the key path, for messages."""
 
-    locate: object                      # (*keys) -> "file:line:col" (or the file name)
+    locate: object  # (*keys) -> "file:line:col" (or the file name)
     prefix: tuple = ()
     problems: Problems = field(default_factory=Problems)
 
@@ -453,18 +589,24 @@ class _Place:
 
 
 def _provenance(block: dict) -> m.Provenance:
-    return m.Provenance(source=str(block.get("source", "user-defined")),
-                        valid_T=block.get("valid_T", (0.0, float("inf"))),
-                        valid_N=block.get("valid_N", (0.0, float("inf"))),
-                        note=str(block.get("note", "")))
+    return m.Provenance(
+        source=str(block.get("source", "user-defined")),
+        valid_T=block.get("valid_T", (0.0, float("inf"))),
+        valid_N=block.get("valid_N", (0.0, float("inf"))),
+        note=str(block.get("note", "")),
+    )
 
 
 def _parameters(block: dict, table: dict) -> dict:
     return {key: block.get(key) for key in table}
 
 
-_MOBILITY_CLASSES = {"masetti": m.Masetti, "arora": m.Arora,
-                     "caughey_thomas": m.CaugheyThomas, "levinshtein": m.Levinshtein}
+_MOBILITY_CLASSES = {
+    "masetti": m.Masetti,
+    "arora": m.Arora,
+    "caughey_thomas": m.CaugheyThomas,
+    "levinshtein": m.Levinshtein,
+}
 _NARROWING_CLASSES = {"slotboom": m.SlotboomNarrowing, "cube_root": m.CubeRootNarrowing}
 
 
@@ -474,21 +616,28 @@ def _mobility_model(block: dict, place: _Place, path: tuple):
     if kind == "resistivity_standard":
         expected = 4 if values["form"] == "boron" else 8
         if len(values["coefficients"]) != expected:
-            raise InputError(f"{place(*path, 'coefficients')}: the {values['form']} form takes "
-                             f"{expected} coefficients (ASTM F723), got "
-                             f"{len(values['coefficients'])}")
+            raise InputError(
+                f"{place(*path, 'coefficients')}: the {values['form']} form takes "
+                f"{expected} coefficients (ASTM F723), got "
+                f"{len(values['coefficients'])}"
+            )
         provenance = _provenance(block)
         N_range = provenance.valid_N if np.isfinite(provenance.valid_N[1]) else (1e18, 1e27)
-        return m.ResistivityStandardMobility(values["form"], values["coefficients"],
-                                             (max(N_range[0], 1.0), N_range[1]), provenance)
+        return m.ResistivityStandardMobility(
+            values["form"], values["coefficients"], (max(N_range[0], 1.0), N_range[1]), provenance
+        )
     low = values.get("mu_min", values.get("mu_min1"))
     if low is not None and values["mu_max"] is not None and low >= values["mu_max"]:
         key = "mu_min" if "mu_min" in values else "mu_min1"
-        raise InputError(f"{place(*path, key)}: must be below mu_max (the mobility of pure "
-                         "material); swap the two values")
+        raise InputError(
+            f"{place(*path, key)}: must be below mu_max (the mobility of pure "
+            "material); swap the two values"
+        )
     if kind == "masetti" and values["mu_1"] >= values["mu_min1"]:
-        raise InputError(f"{place(*path, 'mu_1')}: must be below mu_min1, or the mobility "
-                         "turns negative at high doping")
+        raise InputError(
+            f"{place(*path, 'mu_1')}: must be below mu_min1, or the mobility "
+            "turns negative at high doping"
+        )
     return _MOBILITY_CLASSES[kind](**values, provenance=_provenance(block))
 
 
@@ -500,37 +649,52 @@ def _carrier(block, carrier: str, dopants: dict, thermal_mass, place: _Place):
     for name, spec in block["models"].items():
         built[name] = place.problems.run(_mobility_model, spec, place, path + ("models", name))
     if not built:
-        raise InputError(f"{place(*path, 'models')}: give at least one model, e.g. "
-                         "{my_model: {model: caughey_thomas, mu_max: ..., ...}}")
+        raise InputError(
+            f"{place(*path, 'models')}: give at least one model, e.g. "
+            "{my_model: {model: caughey_thomas, mu_max: ..., ...}}"
+        )
     default = block.get("default") or next(iter(built))
     if default not in built:
-        raise InputError(f"{place(*path, 'default')}: {default!r} is not among the models "
-                         f"{', '.join(built)}")
+        raise InputError(
+            f"{place(*path, 'default')}: {default!r} is not among the models {', '.join(built)}"
+        )
     for species, name in (block.get("by_dopant") or {}).items():
         if name not in built:
-            raise InputError(f"{place(*path, 'by_dopant', species)}: unknown model {name!r}; "
-                             f"models: {', '.join(built)}")
+            raise InputError(
+                f"{place(*path, 'by_dopant', species)}: unknown model {name!r}; "
+                f"models: {', '.join(built)}"
+            )
         if species not in dopants:
-            raise InputError(f"{place(*path, 'by_dopant', species)}: {species!r} is not a dopant "
-                             f"of this material; dopants: {', '.join(dopants) or 'none'}")
+            raise InputError(
+                f"{place(*path, 'by_dopant', species)}: {species!r} is not a dopant "
+                f"of this material; dopants: {', '.join(dopants) or 'none'}"
+            )
     if any(model is None for model in built.values()):
-        return None                                     # already reported
+        return None  # already reported
     built = _temperature_scaled(built, block["models"], place, path)
     minority = block.get("minority")
     if minority is not None and minority not in built:
-        raise InputError(f"{place(*path, 'minority')}: unknown model {minority!r}; "
-                         f"models: {', '.join(built)}")
+        raise InputError(
+            f"{place(*path, 'minority')}: unknown model {minority!r}; models: {', '.join(built)}"
+        )
     vsat = beta = None
     if (spec := block.get("saturation_velocity")) is not None:
-        vsat = (m.PowerLawVelocity(spec["v300"], spec["power"], _provenance(spec))
-                if spec.get("power") is not None else
-                m.SaturationVelocity(spec["v300"], spec["A"], _provenance(spec)))
+        vsat = (
+            m.PowerLawVelocity(spec["v300"], spec["power"], _provenance(spec))
+            if spec.get("power") is not None
+            else m.SaturationVelocity(spec["v300"], spec["A"], _provenance(spec))
+        )
     if (spec := block.get("field_exponent")) is not None:
         beta = m.PowerLawExponent(spec["ref"], spec["power"], _provenance(spec))
-    return m.CarrierTransport(mobility=built, default_model=default,
-                              dopant_models=dict(block.get("by_dopant") or {}),
-                              vsat=vsat, beta=beta, thermal_mass=thermal_mass,
-                              minority_model=minority)
+    return m.CarrierTransport(
+        mobility=built,
+        default_model=default,
+        dopant_models=dict(block.get("by_dopant") or {}),
+        vsat=vsat,
+        beta=beta,
+        thermal_mass=thermal_mass,
+        minority_model=minority,
+    )
 
 
 def _temperature_scaled(built: dict, specs: dict, place: _Place, path: tuple) -> dict:
@@ -543,11 +707,12 @@ def _temperature_scaled(built: dict, specs: dict, place: _Place, path: tuple) ->
             continue
         shape = scaling["by"]
         if shape not in built or shape == name or specs[shape].get("temperature_scaling"):
-            raise InputError(f"{place(*path, 'models', name, 'temperature_scaling', 'by')}: "
-                             f"{shape!r} must be another, unscaled model of this carrier; "
-                             f"models: {', '.join(built)}")
-        out[name] = m.TemperatureRatio(built[name], built[shape], scaling["T0"],
-                                       _provenance(spec))
+            raise InputError(
+                f"{place(*path, 'models', name, 'temperature_scaling', 'by')}: "
+                f"{shape!r} must be another, unscaled model of this carrier; "
+                f"models: {', '.join(built)}"
+            )
+        out[name] = m.TemperatureRatio(built[name], built[shape], scaling["T0"], _provenance(spec))
     return out
 
 
@@ -557,37 +722,54 @@ def _dopants(block: dict, eps_r, gap, place: _Place) -> dict:
         here = ("dopants", name)
         energy = spec["energy"]
         if gap is not None and energy >= gap.Eg0:
-            place.problems.add(InputError(
-                f"{place(*here, 'energy')}: a bound dopant level lies inside the band gap; "
-                f"this one is {energy / EV:g} eV from its band edge, the gap "
-                f"is {gap.Eg0 / EV:g} eV; give the ionization energy, e.g. "
-                "'45 meV'"))
+            place.problems.add(
+                InputError(
+                    f"{place(*here, 'energy')}: a bound dopant level lies inside the band gap; "
+                    f"this one is {energy / EV:g} eV from its band edge, the gap "
+                    f"is {gap.Eg0 / EV:g} eV; give the ionization energy, e.g. "
+                    "'45 meV'"
+                )
+            )
             continue
         if spec.get("mott_density") is not None:
             mott, estimated = spec["mott_density"], False
         elif eps_r is not None and energy > 0:
             mott, estimated = float(m.edwards_sienko_mott_density(energy, eps_r)), True
         else:
-            place.problems.add(InputError(
-                f"{place(*here)}: give mott_density, or the material's permittivity so it can "
-                f"be estimated ({NEEDED_FOR['permittivity']})"))
+            place.problems.add(
+                InputError(
+                    f"{place(*here)}: give mott_density, or the material's permittivity so it can "
+                    f"be estimated ({NEEDED_FOR['permittivity']})"
+                )
+            )
             continue
         degeneracy = spec.get("degeneracy") or (2.0 if spec["kind"] == "donor" else 4.0)
-        levels = tuple(m.DopantLevel(level["energy"], level.get("degeneracy") or degeneracy,
-                                     level["share"]) for level in spec.get("levels") or ())
+        levels = tuple(
+            m.DopantLevel(level["energy"], level.get("degeneracy") or degeneracy, level["share"])
+            for level in spec.get("levels") or ()
+        )
         if levels and abs(sum(level.share for level in levels) - 1.0) > 1e-6:
-            place.problems.add(InputError(f"{place(*here, 'levels')}: the shares of the levels "
-                                          "must add up to 1"))
+            place.problems.add(
+                InputError(f"{place(*here, 'levels')}: the shares of the levels must add up to 1")
+            )
             continue
         if gap is not None and any(level.energy >= gap.Eg0 for level in levels):
-            place.problems.add(InputError(f"{place(*here, 'levels')}: every level must lie "
-                                          "inside the band gap"))
+            place.problems.add(
+                InputError(f"{place(*here, 'levels')}: every level must lie inside the band gap")
+            )
             continue
-        result[name] = m.Dopant(name=name, kind=spec["kind"], energy=energy,
-                                degeneracy=degeneracy, mott_density=mott,
-                                mott_estimated=estimated, provenance=_provenance(spec),
-                                levels=levels, lowering=_lowering(spec.get("lowering"), energy),
-                                bound_share=_bound_share(spec.get("bound_share")))
+        result[name] = m.Dopant(
+            name=name,
+            kind=spec["kind"],
+            energy=energy,
+            degeneracy=degeneracy,
+            mott_density=mott,
+            mott_estimated=estimated,
+            provenance=_provenance(spec),
+            levels=levels,
+            lowering=_lowering(spec.get("lowering"), energy),
+            bound_share=_bound_share(spec.get("bound_share")),
+        )
     return result
 
 
@@ -608,10 +790,14 @@ def _density_of_states(block):
         return None, None
     provenance = _provenance(block)
     if block["model"] == "mass_polynomial":
-        return (m.MassPolynomialDOS(block["Nc_mass"], block["T_fit"], provenance),
-                m.MassPolynomialDOS(block["Nv_mass"], block["T_fit"], provenance))
-    return (m.PowerLawDOS(block["Nc300"], block["exponent"], provenance),
-            m.PowerLawDOS(block["Nv300"], block["exponent"], provenance))
+        return (
+            m.MassPolynomialDOS(block["Nc_mass"], block["T_fit"], provenance),
+            m.MassPolynomialDOS(block["Nv_mass"], block["T_fit"], provenance),
+        )
+    return (
+        m.PowerLawDOS(block["Nc300"], block["exponent"], provenance),
+        m.PowerLawDOS(block["Nv300"], block["exponent"], provenance),
+    )
 
 
 def _hall_factors(block) -> dict:
@@ -625,8 +811,9 @@ def _narrowing(block):
     if block is None:
         return None
     kind = block["model"]
-    return _NARROWING_CLASSES[kind](**_parameters(block, NARROWING_MODELS[kind]),
-                                    provenance=_provenance(block))
+    return _NARROWING_CLASSES[kind](
+        **_parameters(block, NARROWING_MODELS[kind]), provenance=_provenance(block)
+    )
 
 
 def material_from_mapping(data, where: str = "material", locate=None) -> m.Material:
@@ -637,8 +824,10 @@ def material_from_mapping(data, where: str = "material", locate=None) -> m.Mater
     problem of the mapping is reported at once (InputErrors)."""
     place = _Place(locate or (lambda *keys: where), ("material",) if locate else ())
     if not isinstance(data, dict):
-        raise InputError(f"{place.locate()}: a material is a built-in name such as Si or a "
-                         "mapping in the form of the material files (see DEVELOPERS.md)")
+        raise InputError(
+            f"{place.locate()}: a material is a built-in name such as Si or a "
+            "mapping in the form of the material files (see DEVELOPERS.md)"
+        )
     values = MATERIAL.read(data, place, ())
     place.problems.raise_any()
     gap = None
@@ -648,33 +837,54 @@ def material_from_mapping(data, where: str = "material", locate=None) -> m.Mater
     ni_published = None
     if (blk := values.get("intrinsic_density")) is not None:
         if abs(blk["at"] - ROOM_TEMPERATURE) > 1e-9:
-            place.problems.add(InputError(f"{place('intrinsic_density', 'at')}: give the "
-                                          "published spread at 300 K"))
+            place.problems.add(
+                InputError(
+                    f"{place('intrinsic_density', 'at')}: give the published spread at 300 K"
+                )
+            )
         ni_published = blk["published"]
     eps_r = values.get("permittivity")
     dopants = _dopants(values.get("dopants") or {}, eps_r, gap, place)
     masses = values.get("thermal_mass") or {}
     mobility = values.get("mobility") or {}
-    carriers = {carrier: place.problems.run(_carrier, mobility.get(carrier), carrier, dopants,
-                                            masses.get(carrier), place)
-                for carrier in ("electron", "hole")}
+    carriers = {
+        carrier: place.problems.run(
+            _carrier, mobility.get(carrier), carrier, dopants, masses.get(carrier), place
+        )
+        for carrier in ("electron", "hole")
+    }
     place.problems.raise_any()
     name = str(values.get("name", "custom"))
     return m.Material(
-        name=name, long_name=str(values.get("long_name", name)), band_gap=gap, Nc=dos_c,
-        Nv=dos_v, eps_r=eps_r, dopants=dopants, **carriers,
+        name=name,
+        long_name=str(values.get("long_name", name)),
+        band_gap=gap,
+        Nc=dos_c,
+        Nv=dos_v,
+        eps_r=eps_r,
+        dopants=dopants,
+        **carriers,
         narrowing=_narrowing(values.get("band_gap_narrowing")),
-        ni_published=ni_published, hall_factors=_hall_factors(values.get("hall_factor")),
-        sources={k: (v.get("source") if isinstance(v, dict) else None) for k, v in data.items()
-                 if isinstance(v, dict)},
+        ni_published=ni_published,
+        hall_factors=_hall_factors(values.get("hall_factor")),
+        sources={
+            k: (v.get("source") if isinstance(v, dict) else None)
+            for k, v in data.items()
+            if isinstance(v, dict)
+        },
     )
 
 
 def missing_parameters(material: m.Material) -> dict:
     """Parameters a (user-defined) material lacks, each with what needs it."""
-    checks = {"band_gap": material.band_gap, "density_of_states": material.Nc,
-              "permittivity": material.eps_r, "dopants": material.dopants or None,
-              "mobility": material.electron, "band_gap_narrowing": material.narrowing}
+    checks = {
+        "band_gap": material.band_gap,
+        "density_of_states": material.Nc,
+        "permittivity": material.eps_r,
+        "dopants": material.dopants or None,
+        "mobility": material.electron,
+        "band_gap_narrowing": material.narrowing,
+    }
     missing = {k: NEEDED_FOR[k] for k, v in checks.items() if v is None}
     if material.electron is not None and material.electron.thermal_mass is None:
         missing["thermal_mass"] = NEEDED_FOR["thermal_mass"]
@@ -690,7 +900,7 @@ def _lookup_key(name: str) -> str:
     return " ".join(str(name).split()).lower()
 
 
-@lru_cache(maxsize=None)
+@cache
 def _index() -> dict:
     """Name and alias (case-insensitive) -> file name.
 
@@ -704,14 +914,15 @@ def _index() -> dict:
             text = entry.read_text(encoding="utf-8")
             name = re.search(r"^name:\s*(\S+)\s*$", text, re.M)
             aliases = re.search(r"^aliases:\s*\[([^\]]*)\]", text, re.M)
-            keys = [name.group(1)] + ([a.strip() for a in aliases.group(1).split(",")]
-                                      if aliases else [])
+            keys = [name.group(1)] + (
+                [a.strip() for a in aliases.group(1).split(",")] if aliases else []
+            )
             for key in keys:
                 index[key.lower()] = entry.name
     return index
 
 
-@lru_cache(maxsize=None)
+@cache
 def _long_name_index() -> dict:
     """Long names as further aliases: 'gallium nitride (wurtzite)' and 'gallium nitride'."""
     index = {}
@@ -733,16 +944,18 @@ def _builtin_file(name: str):
     found = _index().get(key) or _long_name_index().get(key)
     if found is None:
         import difflib
+
         known = list(_index()) + list(_long_name_index())
         close = difflib.get_close_matches(key, known, n=3, cutoff=0.5)
         hint = f"; did you mean {', '.join(close)}?" if close else ""
         raise UnknownMaterialError(
             f"unknown material {name!r}{hint} Built in: {', '.join(builtin_names())}; "
-            "or define it as a mapping with the same parameters")
+            "or define it as a mapping with the same parameters"
+        )
     return found
 
 
-@lru_cache(maxsize=None)
+@cache
 def _load_builtin(file_name: str) -> m.Material:
     entry = _data_files() / file_name
     data = load_package_yaml(entry.read_text(encoding="utf-8"), entry.name)
@@ -752,8 +965,9 @@ def _load_builtin(file_name: str) -> m.Material:
 def builtin_material(name: str) -> m.Material:
     """A built-in material by name, alias or long name (case and spacing ignored)."""
     if not isinstance(name, str):
-        raise InputError(f"a material is a name such as Si, or a mapping of its parameters; "
-                         f"got {name!r}")
+        raise InputError(
+            f"a material is a name such as Si, or a mapping of its parameters; got {name!r}"
+        )
     return _load_builtin(_builtin_file(name))
 
 
@@ -763,8 +977,11 @@ def _drop_split_text(node):
     Some shipped files still hold such fragments (the schema test names them); they
     are dropped here so that those materials load.  A user's file is refused instead."""
     if isinstance(node, dict):
-        return {k: _drop_split_text(v) for k, v in node.items()
-                if not (v is None and (not isinstance(k, str) or " " in k or k[:1].isdigit()))}
+        return {
+            k: _drop_split_text(v)
+            for k, v in node.items()
+            if not (v is None and (not isinstance(k, str) or " " in k or k[:1].isdigit()))
+        }
     return node
 
 
@@ -778,5 +995,12 @@ def resolve_material(material, locate=None) -> m.Material:
     return builtin_material(material)
 
 
-__all__ = ["MATERIAL", "builtin_material", "builtin_names", "material_from_mapping",
-           "missing_parameters", "resolve_material", "ROOM_TEMPERATURE"]
+__all__ = [
+    "MATERIAL",
+    "builtin_material",
+    "builtin_names",
+    "material_from_mapping",
+    "missing_parameters",
+    "resolve_material",
+    "ROOM_TEMPERATURE",
+]

@@ -17,6 +17,7 @@ removed from its lines.  Each block is parsed with every other line of the memo
 blanked, so line numbers in findings and errors are the memo's own; columns count from
 the block's own indentation.  Other fenced blocks and the prose are ignored.
 """
+
 from __future__ import annotations
 
 from .calculation_file import FileResult, parse_calculations, read_text_file
@@ -31,10 +32,10 @@ _YAML_ONLY_BREAKS = str.maketrans({"\x85": " ", "\u2028": " ", "\u2029": " "})
 def block_texts(text: str) -> list[tuple[int, str]]:
     """(first content line, 1-based; content with container indentation removed) of
     each regimecheck block; an unclosed block runs to the end of its container."""
-    from markdown_it import MarkdownIt    # imported only when a memo is read
+    from markdown_it import MarkdownIt  # imported only when a memo is read
 
     blocks, parser = [], MarkdownIt("commonmark").disable(["inline", "text_join"])
-    for token in parser.parse(text):     # block structure only: no inline markup needed
+    for token in parser.parse(text):  # block structure only: no inline markup needed
         words = token.info.split() if token.type == "fence" else []
         if words and words[0].lower() == INFO_STRING and token.map:
             blocks.append((token.map[0] + 2, token.content.translate(_YAML_ONLY_BREAKS)))
@@ -45,7 +46,7 @@ def calculation_blocks(text: str) -> list[tuple[int, int]]:
     """(first line, last line) of the content of each regimecheck block, 1-based."""
     out = []
     for first, content in block_texts(text):
-        lines = content.split("\n")        # only newlines end lines, as in the parser
+        lines = content.split("\n")  # only newlines end lines, as in the parser
         out.append((first, first + len(lines) - 1 - (lines[-1] == "")))
     return out
 
@@ -63,6 +64,8 @@ def read_memo(path, explicit: bool = True) -> FileResult:
         calculations += result.calculations
         errors += result.errors
     if not calculations and not errors and explicit:
-        errors.append(f"{path}: the memo has no ```{INFO_STRING} block; put each calculation "
-                      f"in a fenced block whose info string is {INFO_STRING}")
+        errors.append(
+            f"{path}: the memo has no ```{INFO_STRING} block; put each calculation "
+            f"in a fenced block whose info string is {INFO_STRING}"
+        )
     return FileResult(path, calculations, errors)

@@ -12,6 +12,7 @@ Two steps, both strict:
    trailing exponents to ``**`` first.  Temperatures are parsed separately
    (pint refuses "25 degC" from a string).
 """
+
 from __future__ import annotations
 
 import math
@@ -44,30 +45,57 @@ DIMENSIONS = {
 
 # unit text (normalised: spaces removed, see _normal_unit) -> (dimension name, factor to SI)
 UNITS = {
-    "eV": ("energy", EV), "meV": ("energy", 1e-3 * EV),
+    "eV": ("energy", EV),
+    "meV": ("energy", 1e-3 * EV),
     "K": ("temperature", 1.0),
-    "eV/K": ("energy per kelvin", EV), "meV/K": ("energy per kelvin", 1e-3 * EV),
-    "cm-3": ("density", _CM ** -3), "cm^-3": ("density", _CM ** -3), "/cm^3": ("density", _CM ** -3),
-    "/cm3": ("density", _CM ** -3), "m-3": ("density", 1.0), "m^-3": ("density", 1.0),
-    "cm**-3": ("density", _CM ** -3), "1/cm^3": ("density", _CM ** -3),
-    "cm-2": ("sheet density", _CM ** -2), "cm^-2": ("sheet density", _CM ** -2),
-    "/cm^2": ("sheet density", _CM ** -2), "/cm2": ("sheet density", _CM ** -2),
-    "m-2": ("sheet density", 1.0), "m^-2": ("sheet density", 1.0),
-    "cm^2/(V*s)": ("mobility", _CM ** 2), "cm2/Vs": ("mobility", _CM ** 2),
-    "cm^2/Vs": ("mobility", _CM ** 2), "m^2/(V*s)": ("mobility", 1.0),
-    "cm2/(V*s)": ("mobility", _CM ** 2),
-    "cm^2/s": ("diffusivity", _CM ** 2), "cm2/s": ("diffusivity", _CM ** 2),
+    "eV/K": ("energy per kelvin", EV),
+    "meV/K": ("energy per kelvin", 1e-3 * EV),
+    "cm-3": ("density", _CM**-3),
+    "cm^-3": ("density", _CM**-3),
+    "/cm^3": ("density", _CM**-3),
+    "/cm3": ("density", _CM**-3),
+    "m-3": ("density", 1.0),
+    "m^-3": ("density", 1.0),
+    "cm**-3": ("density", _CM**-3),
+    "1/cm^3": ("density", _CM**-3),
+    "cm-2": ("sheet density", _CM**-2),
+    "cm^-2": ("sheet density", _CM**-2),
+    "/cm^2": ("sheet density", _CM**-2),
+    "/cm2": ("sheet density", _CM**-2),
+    "m-2": ("sheet density", 1.0),
+    "m^-2": ("sheet density", 1.0),
+    "cm^2/(V*s)": ("mobility", _CM**2),
+    "cm2/Vs": ("mobility", _CM**2),
+    "cm^2/Vs": ("mobility", _CM**2),
+    "m^2/(V*s)": ("mobility", 1.0),
+    "cm2/(V*s)": ("mobility", _CM**2),
+    "cm^2/s": ("diffusivity", _CM**2),
+    "cm2/s": ("diffusivity", _CM**2),
     "m^2/s": ("diffusivity", 1.0),
-    "cm/s": ("velocity", _CM), "m/s": ("velocity", 1.0),
-    "V/cm": ("field", 1 / _CM), "V/m": ("field", 1.0), "kV/cm": ("field", 1e3 / _CM),
-    "V": ("voltage", 1.0), "mV": ("voltage", 1e-3),
-    "m": ("length", 1.0), "cm": ("length", _CM), "mm": ("length", 1e-3), "um": ("length", 1e-6),
+    "cm/s": ("velocity", _CM),
+    "m/s": ("velocity", 1.0),
+    "V/cm": ("field", 1 / _CM),
+    "V/m": ("field", 1.0),
+    "kV/cm": ("field", 1e3 / _CM),
+    "V": ("voltage", 1.0),
+    "mV": ("voltage", 1e-3),
+    "m": ("length", 1.0),
+    "cm": ("length", _CM),
+    "mm": ("length", 1e-3),
+    "um": ("length", 1e-6),
     "nm": ("length", 1e-9),
-    "um^2": ("area", 1e-12), "cm^2": ("area", 1e-4), "nm^2": ("area", 1e-18), "m^2": ("area", 1.0),
-    "ohm*cm": ("resistivity", _CM), "ohm*m": ("resistivity", 1.0),
-    "S/cm": ("conductivity", 1 / _CM), "S/m": ("conductivity", 1.0),
-    "ohm": ("resistance", 1.0), "kohm": ("resistance", 1e3),
-    "ohm/sq": ("sheet resistance", 1.0), "kohm/sq": ("sheet resistance", 1e3),
+    "um^2": ("area", 1e-12),
+    "cm^2": ("area", 1e-4),
+    "nm^2": ("area", 1e-18),
+    "m^2": ("area", 1.0),
+    "ohm*cm": ("resistivity", _CM),
+    "ohm*m": ("resistivity", 1.0),
+    "S/cm": ("conductivity", 1 / _CM),
+    "S/m": ("conductivity", 1.0),
+    "ohm": ("resistance", 1.0),
+    "kohm": ("resistance", 1e3),
+    "ohm/sq": ("sheet resistance", 1.0),
+    "kohm/sq": ("sheet resistance", 1e3),
     "eV*cm": ("energy times length", EV * _CM),
 }
 # A decimal number in ASCII digits, optionally times a power of ten written the trade
@@ -78,8 +106,10 @@ NUMBER = rf"{_MANTISSA}(?:[eE][-+]?[0-9]{{1,3}}|{_TIMES_TEN}\^\s*[-+]?[0-9]{{1,3
 # The same as written before that rewriting (minus sign, superscripts): the JSON Schema's
 # pattern of a number, so ECMA-262 syntax only.
 _SUPER = "⁰¹²³⁴⁵⁶⁷⁸⁹"
-WRITTEN_NUMBER = (rf"[-+−]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][-+−]?[0-9]{{1,3}}"
-                  rf"|{_TIMES_TEN}(?:\^\s*[-+−]?[0-9]{{1,3}}|[⁻⁺]?[{_SUPER}]{{1,3}}))?")
+WRITTEN_NUMBER = (
+    rf"[-+−]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][-+−]?[0-9]{{1,3}}"
+    rf"|{_TIMES_TEN}(?:\^\s*[-+−]?[0-9]{{1,3}}|[⁻⁺]?[{_SUPER}]{{1,3}}))?"
+)
 
 
 def quantity_pattern(with_unit: bool) -> str:
@@ -89,9 +119,11 @@ def quantity_pattern(with_unit: bool) -> str:
     return rf"^\s*{WRITTEN_NUMBER}{whole}" + (r"\s*\S.{0,40}$" if with_unit else r"\s*$")
 
 
-_NUMBER_PARTS = re.compile(r"^(?P<mantissa>[-+]?(?:[0-9]+\.?[0-9]*|\.[0-9]+))"
-                           r"(?:[eE](?P<e>[-+]?[0-9]{1,3})"
-                           r"|\s*[x×*·]\s*10\s*\^\s*(?P<power>[-+]?[0-9]{1,3}))?$")
+_NUMBER_PARTS = re.compile(
+    r"^(?P<mantissa>[-+]?(?:[0-9]+\.?[0-9]*|\.[0-9]+))"
+    r"(?:[eE](?P<e>[-+]?[0-9]{1,3})"
+    r"|\s*[x×*·]\s*10\s*\^\s*(?P<power>[-+]?[0-9]{1,3}))?$"
+)
 _NAME = r"[A-Za-z]{1,8}"
 _POWER = r"(?:(?:\^|\*\*)?-?\d{1,2})?"
 _FACTOR = rf"(?:{_NAME}{_POWER}|1)"
@@ -106,7 +138,9 @@ _SUPERSCRIPT_RUN = re.compile(f"[⁻⁺]?[{_SUPER}]+")
 # a hyphen between unit names is a product (ohm-cm, V-s); before a digit it is an exponent
 _HYPHEN_PRODUCT = re.compile(r"(?<=[A-Za-z0-9Ωµμ])-(?=[A-Za-zΩµμ])")
 # after '/', names joined by the trade product marks form the denominator: cm²/V·s
-_DOT_DENOMINATOR = re.compile(r"/([A-Za-zΩµμ]+(?:\^-?\d{1,2})?(?:[·⋅×][A-Za-zΩµμ]+(?:\^-?\d{1,2})?)+)")
+_DOT_DENOMINATOR = re.compile(
+    r"/([A-Za-zΩµμ]+(?:\^-?\d{1,2})?(?:[·⋅×][A-Za-zΩµμ]+(?:\^-?\d{1,2})?)+)"
+)
 
 
 def _normal_text(text: str) -> str:
@@ -141,14 +175,17 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
     """
     place = f"{where}: " if where else ""
     if isinstance(text, bool) or text is None or isinstance(text, (dict, list)):
-        raise InputError(f"{place}expected a {dimension} quantity such as {example(dimension)}, "
-                         f"got {text!r}")
+        raise InputError(
+            f"{place}expected a {dimension} quantity such as {example(dimension)}, got {text!r}"
+        )
     if isinstance(text, (int, float)):
         text = repr(text)
     match = _QUANTITY.match(_normal_text(str(text)))
     if not match:
-        raise InputError(f"{place}cannot read {text!r} as a quantity; write a number and a unit, "
-                         f"e.g. {example(dimension)}")
+        raise InputError(
+            f"{place}cannot read {text!r} as a quantity; write a number and a unit, "
+            f"e.g. {example(dimension)}"
+        )
     value = read_number(match.group(1))
     unit = _normal_unit(match.group(2))
     if not math.isfinite(value):
@@ -156,8 +193,10 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
     if unit in ("", "1"):
         if dimension == "dimensionless":
             return value
-        raise InputError(f"{place}{text!r} has no unit; write it with a {dimension} unit, "
-                         f"e.g. {example(dimension)}")
+        raise InputError(
+            f"{place}{text!r} has no unit; write it with a {dimension} unit, "
+            f"e.g. {example(dimension)}"
+        )
     if dimension == "dimensionless":
         raise InputError(f"{place}{text!r} should be a plain number without a unit")
     if unit in UNITS:
@@ -165,53 +204,70 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
     else:
         unit_dimension, factor = _pint_unit(unit, dimension, text, place)
     if unit_dimension == "sheet density" and dimension == "density":
-        raise InputError(f"{place}{text!r} is a sheet density (per area); sheet densities "
-                         "(cm^-2) are not supported yet for this key: give the volume density "
-                         f"(sheet density / layer thickness), e.g. {example(dimension)}")
+        raise InputError(
+            f"{place}{text!r} is a sheet density (per area); sheet densities "
+            "(cm^-2) are not supported yet for this key: give the volume density "
+            f"(sheet density / layer thickness), e.g. {example(dimension)}"
+        )
     if unit_dimension != dimension:
-        raise InputError(f"{place}{text!r} has a unit of {unit_dimension} where {dimension} is "
-                         f"expected; write e.g. {example(dimension)}")
+        raise InputError(
+            f"{place}{text!r} has a unit of {unit_dimension} where {dimension} is "
+            f"expected; write e.g. {example(dimension)}"
+        )
     return value * factor
 
 
 def _pint_unit(unit: str, dimension: str, text, place: str):
     """(dimension, factor to SI) of a unit outside the table, read by pint."""
     if not _UNIT_GATE.match(unit) or unit.count("(") > 2:
-        raise InputError(f"{place}cannot read the unit {unit!r} in {text!r}; write a unit such "
-                         f"as {example(dimension)}")
+        raise InputError(
+            f"{place}cannot read the unit {unit!r} in {text!r}; write a unit such "
+            f"as {example(dimension)}"
+        )
     sheet = unit.endswith("/sq")
     core = unit[:-3] if sheet else unit
     if "sq" in re.findall(_NAME, core):
-        raise InputError(f"{place}'sq' in {text!r}: ohms per square end a sheet resistance "
-                         "only, e.g. '250 ohm/sq'")
+        raise InputError(
+            f"{place}'sq' in {text!r}: ohms per square end a sheet resistance "
+            "only, e.g. '250 ohm/sq'"
+        )
     registry = _registry()
     try:
         for name in set(re.findall(_NAME, core)):
             if registry.parse_units(name).dimensionless:
                 # turn, degree, pi, percent ... would silently scale the number
-                raise InputError(f"{place}{text!r}: the unit {name!r} is a pure number; write "
-                                 f"the value as a plain number times a {dimension} unit, e.g. "
-                                 f"{example(dimension)}")
-        quantity = registry.Quantity(1.0, registry.parse_units(
-            _TRAILING_POWER.sub(r"\1**\2", core.replace("^", "**"))))
+                raise InputError(
+                    f"{place}{text!r}: the unit {name!r} is a pure number; write "
+                    f"the value as a plain number times a {dimension} unit, e.g. "
+                    f"{example(dimension)}"
+                )
+        quantity = registry.Quantity(
+            1.0, registry.parse_units(_TRAILING_POWER.sub(r"\1**\2", core.replace("^", "**")))
+        )
     except InputError:
         raise
     except Exception:  # pint raises several types for an unknown name
-        raise InputError(f"{place}unknown unit {unit!r} in {text!r}; for a {dimension} write e.g. "
-                         f"{example(dimension)}") from None
+        raise InputError(
+            f"{place}unknown unit {unit!r} in {text!r}; for a {dimension} write e.g. "
+            f"{example(dimension)}"
+        ) from None
     for name, (si_text, _) in DIMENSIONS.items():
         if name in ("sheet resistance", "temperature"):
             continue
         si = registry.parse_units(si_text)
         if quantity.dimensionality == si.dimensionality:
             if sheet and name != "resistance":
-                raise InputError(f"{place}{text!r}: '/sq' (per square) belongs to a sheet "
-                                 f"resistance such as '250 ohm/sq'; for a {dimension} write "
-                                 f"e.g. {example(dimension)}")
+                raise InputError(
+                    f"{place}{text!r}: '/sq' (per square) belongs to a sheet "
+                    f"resistance such as '250 ohm/sq'; for a {dimension} write "
+                    f"e.g. {example(dimension)}"
+                )
             found = "sheet resistance" if sheet else name
             return found, float(quantity.to(si).magnitude)
-    raise InputError(f"{place}the unit {unit!r} in {text!r} is not a {dimension} unit; write e.g. "
-                     f"{example(dimension)}")
+    raise InputError(
+        f"{place}the unit {unit!r} in {text!r} is not a {dimension} unit; write e.g. "
+        f"{example(dimension)}"
+    )
 
 
 _REGISTRY = []
@@ -246,8 +302,10 @@ def check_plausible(value: float, dimension: str, text, where: str = "") -> floa
     bounds = PLAUSIBLE.get(dimension)
     if bounds and not bounds[0] <= value <= bounds[1]:
         place = f"{where}: " if where else ""
-        raise InputError(f"{place}{text!r} is not a plausible {dimension}: {bounds[2]}; "
-                         "check the exponent and the unit")
+        raise InputError(
+            f"{place}{text!r} is not a plausible {dimension}: {bounds[2]}; "
+            "check the exponent and the unit"
+        )
     return value
 
 
@@ -264,12 +322,15 @@ def parse_temperature(text, where: str = "") -> float:
     if not match and read_number(normal) is not None:
         raise InputError(f"{place}{text!r} has no unit; write e.g. '300 K' or '27 degC'")
     if not match:
-        raise InputError(f"{place}cannot read {text!r} as a temperature; write e.g. '300 K' "
-                         "or '27 degC'")
+        raise InputError(
+            f"{place}cannot read {text!r} as a temperature; write e.g. '300 K' or '27 degC'"
+        )
     value = read_number(match.group(1))
     kelvin = value if match.group(2) == "K" else value + 273.15
     if not math.isfinite(kelvin) or kelvin <= 0:
-        raise InputError(f"{place}{text!r} is at or below absolute zero; give a temperature above 0 K")
+        raise InputError(
+            f"{place}{text!r} is at or below absolute zero; give a temperature above 0 K"
+        )
     return kelvin
 
 

@@ -1,4 +1,5 @@
 """Which reader an input file goes to, by its suffix."""
+
 from __future__ import annotations
 
 from pathlib import Path
@@ -23,5 +24,11 @@ def read_input(path, explicit: bool = True, columns=None) -> FileResult:
         return read_memo(path, explicit)
     if suffix in TABLE_SUFFIXES:
         return read_table(path, columns)
-    return FileResult(str(path), [], [f"{path}: regimecheck reads calculation files "
-                                      f"({', '.join(KNOWN)}); rename it or leave it out"])
+    return FileResult(
+        str(path),
+        [],
+        [
+            f"{path}: regimecheck reads calculation files "
+            f"({', '.join(KNOWN)}); rename it or leave it out"
+        ],
+    )

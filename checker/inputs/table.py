@@ -26,6 +26,7 @@ Tables are read as a stream; a table of more than ``MAX_TABLE_ROWS`` rows or
 ``MAX_TABLE_BYTES`` bytes is refused as a whole (every row is kept in memory until the
 run is reported, about 5 kB a row).
 """
+
 from __future__ import annotations
 
 import csv
@@ -42,7 +43,7 @@ from .quantities import check_plausible, parse_quantity, parse_temperature
 TABLE_SUFFIXES = (".csv",)
 MAX_TABLE_ROWS = 100_000
 MAX_TABLE_BYTES = 64 * 1024 * 1024
-MAX_UNKNOWN_REPORTED = 10      # headers the reader cannot map, each named in an error
+MAX_UNKNOWN_REPORTED = 10  # headers the reader cannot map, each named in an error
 REQUIRED = ("material", "dopant", "density", "temperature")
 # our column key -> (stated engine name for donors, for acceptors, dimension)
 MEASURED = {
@@ -55,20 +56,37 @@ MEASURED = {
 OPTIONAL = ("name", "thickness", "hall_scattering")
 KEYS = REQUIRED + tuple(MEASURED) + OPTIONAL
 # columns whose unit is checked once, on the header, rather than on every row
-DIMENSIONS = {"density": "density", "thickness": "length",
-              **{key: spec[2] for key, spec in MEASURED.items()}}
+DIMENSIONS = {
+    "density": "density",
+    "thickness": "length",
+    **{key: spec[2] for key, spec in MEASURED.items()},
+}
 ALIASES = {
-    "species": "dopant", "impurity": "dopant", "doping": "density",
-    "dopant_density": "density", "concentration": "density", "temp": "temperature",
-    "t": "temperature", "rho": "resistivity", "rsh": "sheet_resistance",
-    "r_sheet": "sheet_resistance", "sheet": "sheet_resistance", "mu": "mobility",
-    "hall_mobility": "mobility", "n_hall": "hall_density", "p_hall": "hall_density",
-    "hall_concentration": "hall_density", "d": "diffusivity",
-    "diffusion_coefficient": "diffusivity", "label": "name", "sample": "name",
-    "thick": "thickness", "scattering": "hall_scattering",
+    "species": "dopant",
+    "impurity": "dopant",
+    "doping": "density",
+    "dopant_density": "density",
+    "concentration": "density",
+    "temp": "temperature",
+    "t": "temperature",
+    "rho": "resistivity",
+    "rsh": "sheet_resistance",
+    "r_sheet": "sheet_resistance",
+    "sheet": "sheet_resistance",
+    "mu": "mobility",
+    "hall_mobility": "mobility",
+    "n_hall": "hall_density",
+    "p_hall": "hall_density",
+    "hall_concentration": "hall_density",
+    "d": "diffusivity",
+    "diffusion_coefficient": "diffusivity",
+    "label": "name",
+    "sample": "name",
+    "thick": "thickness",
+    "scattering": "hall_scattering",
 }
 NOTE_COLUMNS = ("note", "notes", "comment", "comments", "remark", "remarks")
-IGNORE = "ignore"          # the key of [tool.regimecheck.columns] listing headers left out
+IGNORE = "ignore"  # the key of [tool.regimecheck.columns] listing headers left out
 _NUMBER = re.compile(r"[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?")
 _CLOSING = {"]": "[", ")": "("}
 
@@ -85,9 +103,9 @@ def split_header(raw: str) -> tuple[str, str | None]:
         if depth == 0:
             name = text[:index].strip()
             if name and all(name.count(o) == name.count(c) for c, o in _CLOSING.items()):
-                return name, text[index + 1:-1].strip()
+                return name, text[index + 1 : -1].strip()
             break
-    return text, None          # no name, or unbalanced: the whole text is the name
+    return text, None  # no name, or unbalanced: the whole text is the name
 
 
 def _normal(text: str) -> str:
@@ -107,27 +125,38 @@ def _known_header(raw: str, mapped: dict, ignored: set):
 
 
 def _unknown_column(raw: str, position: int, where: str) -> str:
-    close = difflib.get_close_matches(_normal(split_header(raw)[0]), list(KEYS) + list(ALIASES),
-                                      n=3, cutoff=0.6)
-    hint = (f"; closest known names: {', '.join(close)}" if close
-            else f"; known names: {', '.join(KEYS)}")
+    close = difflib.get_close_matches(
+        _normal(split_header(raw)[0]), list(KEYS) + list(ALIASES), n=3, cutoff=0.6
+    )
+    hint = (
+        f"; closest known names: {', '.join(close)}"
+        if close
+        else f"; known names: {', '.join(KEYS)}"
+    )
     ours = ALIASES.get(close[0], close[0]) if close else "<our name>"
-    return (f"{where}: column {position} {raw.strip()!r} is not a column regimecheck "
-            f"reads{hint}. Rename it, map it in [tool.regimecheck.columns] "
-            f"({ours} = {raw.strip()!r}), or leave it out with "
-            f"{IGNORE} = [{raw.strip()!r}] there")
+    return (
+        f"{where}: column {position} {raw.strip()!r} is not a column regimecheck "
+        f"reads{hint}. Rename it, map it in [tool.regimecheck.columns] "
+        f"({ours} = {raw.strip()!r}), or leave it out with "
+        f"{IGNORE} = [{raw.strip()!r}] there"
+    )
 
 
 def _lacking(missing: list, header: list, where: str) -> str:
     """The message for required columns the header lacks, with look-alike headers."""
     names = {_normal(split_header(h)[0]): h.strip() for h in header if h and h.strip()}
-    guesses = [f"{names[close[0]]!r} for {key}" for key in missing
-               for close in [difflib.get_close_matches(key, list(names), n=1, cutoff=0.6)]
-               if close]
+    guesses = [
+        f"{names[close[0]]!r} for {key}"
+        for key in missing
+        for close in [difflib.get_close_matches(key, list(names), n=1, cutoff=0.6)]
+        if close
+    ]
     hint = f"; is {', '.join(guesses)} misspelt?" if guesses else ""
-    return (f"{where}: the header lacks {', '.join(missing)}{hint} Columns are "
-            f"{', '.join(h.strip() for h in header)} (name them as in the README table, or "
-            "map them in [tool.regimecheck.columns])")
+    return (
+        f"{where}: the header lacks {', '.join(missing)}{hint} Columns are "
+        f"{', '.join(h.strip() for h in header)} (name them as in the README table, or "
+        "map them in [tool.regimecheck.columns])"
+    )
 
 
 def _columns(header: list, where: str, mapping: dict) -> tuple[dict, list]:
@@ -139,7 +168,7 @@ def _columns(header: list, where: str, mapping: dict) -> tuple[dict, list]:
     out, unknown = {}, []
     for index, raw in enumerate(header):
         if not (raw or "").strip():
-            continue                      # spreadsheet exports end rows with separators
+            continue  # spreadsheet exports end rows with separators
         key, unit = _known_header(raw, mapped, ignored)
         if key is None:
             unknown.append(_unknown_column(raw, index + 1, where))
@@ -147,8 +176,10 @@ def _columns(header: list, where: str, mapping: dict) -> tuple[dict, list]:
         if not key:
             continue
         if key in out:
-            raise InputError(f"{where}: two columns give {key!r} ({out[key][1]!r} and "
-                             f"{raw.strip()!r}); keep one or map them")
+            raise InputError(
+                f"{where}: two columns give {key!r} ({out[key][1]!r} and "
+                f"{raw.strip()!r}); keep one or map them"
+            )
         # "ohm cm" in a header means ohm*cm
         unit = re.sub(r"(?<=[\w)])\s+(?=[\w(])", "*", unit or "") or None
         if unit and key in DIMENSIONS:
@@ -156,13 +187,16 @@ def _columns(header: list, where: str, mapping: dict) -> tuple[dict, list]:
         out[key] = (index, raw.strip(), unit)
     missing = [k for k in REQUIRED if k not in out]
     if len(unknown) > MAX_UNKNOWN_REPORTED:
-        unknown[MAX_UNKNOWN_REPORTED:] = [f"{where}: and {len(unknown) - MAX_UNKNOWN_REPORTED} "
-                                          "more columns regimecheck does not read"]
+        unknown[MAX_UNKNOWN_REPORTED:] = [
+            f"{where}: and {len(unknown) - MAX_UNKNOWN_REPORTED} "
+            "more columns regimecheck does not read"
+        ]
     if missing:
         raise InputError(_lacking(missing, header, where))
     if not any(k in out for k in MEASURED):
-        raise InputError(f"{where}: no measured column to check; give at least one of "
-                         f"{', '.join(MEASURED)}")
+        raise InputError(
+            f"{where}: no measured column to check; give at least one of {', '.join(MEASURED)}"
+        )
     return out, unknown
 
 
@@ -203,9 +237,14 @@ def read_table(path, mapping=None) -> FileResult:
     try:
         size = os.stat(path).st_size
         if size > MAX_TABLE_BYTES:
-            return FileResult(path, [], [
-                f"{path}: the table has {size:,} bytes, more than the limit of "
-                f"{MAX_TABLE_BYTES:,} bytes for one table; split it into smaller tables"])
+            return FileResult(
+                path,
+                [],
+                [
+                    f"{path}: the table has {size:,} bytes, more than the limit of "
+                    f"{MAX_TABLE_BYTES:,} bytes for one table; split it into smaller tables"
+                ],
+            )
         with open(path, encoding="utf-8-sig", newline="") as handle:
             return _read_rows(path, _CountedLines(handle), mapping)
     except OSError as exc:
@@ -213,7 +252,7 @@ def read_table(path, mapping=None) -> FileResult:
 
 
 def _read_rows(path, lines: _CountedLines, mapping) -> FileResult:
-    line = 1                                  # where a malformed header is reported
+    line = 1  # where a malformed header is reported
     try:
         first = lines.header()
         if first is None:
@@ -230,7 +269,7 @@ def _read_rows(path, lines: _CountedLines, mapping) -> FileResult:
             return FileResult(path, [], [str(exc)])
         calculations, count, line = [], 0, header_line
         while True:
-            line = lines.count + 1            # where the next row starts
+            line = lines.count + 1  # where the next row starts
             row = next(rows, None)
             if row is None:
                 break
@@ -238,17 +277,25 @@ def _read_rows(path, lines: _CountedLines, mapping) -> FileResult:
                 continue
             count += 1
             if count > MAX_TABLE_ROWS:
-                return FileResult(path, [], [
-                    f"{path}:{line}: the table has more than {MAX_TABLE_ROWS:,} rows, the "
-                    "limit of one table; split it into files of at most "
-                    f"{MAX_TABLE_ROWS:,} rows"])
+                return FileResult(
+                    path,
+                    [],
+                    [
+                        f"{path}:{line}: the table has more than {MAX_TABLE_ROWS:,} rows, the "
+                        "limit of one table; split it into files of at most "
+                        f"{MAX_TABLE_ROWS:,} rows"
+                    ],
+                )
             try:
                 calculations.append(_row(row, columns, path, line))
             except InputError as exc:
                 errors.append(str(exc))
     except csv.Error as exc:
-        return FileResult(path, [], [f"{path}:{line}: malformed CSV ({exc}); check quotes "
-                                     "and separators from this row on"])
+        return FileResult(
+            path,
+            [],
+            [f"{path}:{line}: malformed CSV ({exc}); check quotes and separators from this row on"],
+        )
     except UnicodeDecodeError:
         return FileResult(path, [], [f"{path}: not UTF-8 text; save it as UTF-8"])
     if not calculations and not errors:
@@ -280,16 +327,29 @@ def _row(row, columns, path, line) -> Calculation:
         dopant = material.dopant(cell("dopant"))
     except InputError as exc:
         raise InputError(f"{where('dopant')}: {exc}") from None
-    density = check_plausible(parse_quantity(cell("density"), "density", where("density")),
-                              "density", cell("density"), where("density"))
-    temperature = check_plausible(parse_temperature(cell("temperature"), where("temperature")),
-                                  "temperature", cell("temperature"), where("temperature"))
+    density = check_plausible(
+        parse_quantity(cell("density"), "density", where("density")),
+        "density",
+        cell("density"),
+        where("density"),
+    )
+    temperature = check_plausible(
+        parse_temperature(cell("temperature"), where("temperature")),
+        "temperature",
+        cell("temperature"),
+        where("temperature"),
+    )
     donor = dopant.kind == "donor"
     species = {dopant.name: density}
     calc = Calculation(
-        name=cell("name") or f"{path.rsplit('/', 1)[-1]} line {line}", source=path, line=line,
-        material=material, temperature=temperature,
-        donors=species if donor else {}, acceptors={} if donor else species)
+        name=cell("name") or f"{path.rsplit('/', 1)[-1]} line {line}",
+        source=path,
+        line=line,
+        material=material,
+        temperature=temperature,
+        donors=species if donor else {},
+        acceptors={} if donor else species,
+    )
     if cell("hall_scattering"):
         calc.hall_exponent = _hall_exponent(cell("hall_scattering"), where("hall_scattering"))
     if cell("thickness"):
@@ -302,7 +362,8 @@ def _row(row, columns, path, line) -> Calculation:
         calc.lines[name] = line
         calc.columns[name] = columns[key][1]
     if "stated_Rsh" in calc.stated and "thickness" not in calc.structure:
-        raise InputError(f"{where('sheet_resistance')}: a sheet resistance needs the layer "
-                         "thickness (add a thickness column)")
+        raise InputError(
+            f"{where('sheet_resistance')}: a sheet resistance needs the layer "
+            "thickness (add a thickness column)"
+        )
     return calc
-

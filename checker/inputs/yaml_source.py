@@ -10,6 +10,7 @@ file:line:column:
 - nesting deeper than MAX_NESTING levels (the deepest calculation, a user material's
   mobility model range, needs 7).
 """
+
 from __future__ import annotations
 
 import re
@@ -23,8 +24,15 @@ TOO_DEEP = "the YAML is nested more than"
 # C0 controls other than tab/line feed/carriage return, DEL, C1 controls other than
 # NEL, surrogates and the two non-characters PyYAML also refuses
 _FORBIDDEN = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x84\x86-\x9f\ud800-\udfff\ufffe\uffff]")
-_CONTROL_NAMES = {0x00: "NUL", 0x07: "BEL", 0x08: "backspace", 0x0B: "vertical tab",
-                  0x0C: "form feed", 0x1B: "escape", 0x7F: "DEL"}
+_CONTROL_NAMES = {
+    0x00: "NUL",
+    0x07: "BEL",
+    0x08: "backspace",
+    0x0B: "vertical tab",
+    0x0C: "form feed",
+    0x1B: "escape",
+    0x7F: "DEL",
+}
 
 
 class InputErrors(InputError):
@@ -54,13 +62,16 @@ class Problems:
 
     def raise_any(self):
         if self.messages:
-            raise InputErrors(self.messages) if len(self.messages) > 1 \
+            raise (
+                InputErrors(self.messages)
+                if len(self.messages) > 1
                 else InputError(self.messages[0])
+            )
 
 
 def describe_character(char: str) -> str:
     code = ord(char)
-    if code >= 0xD800:          # a surrogate or a non-character: not text at all
+    if code >= 0xD800:  # a surrogate or a non-character: not text at all
         return f"an invalid character U+{code:04X}"
     name = _CONTROL_NAMES.get(code)
     return f"the control character U+{code:04X}" + (f" ({name})" if name else "")
@@ -72,9 +83,14 @@ def _character_errors(text: str, name: str) -> list:
     for match in _FORBIDDEN.finditer(text):
         line = text.count("\n", 0, match.start()) + 1
         column = match.start() - (text.rfind("\n", 0, match.start()) + 1) + 1
-        found.append((line, f"{name}:{line}:{column}: the file holds "
-                            f"{describe_character(match.group())}; delete it (an editor that "
-                            "shows invisible characters helps)"))
+        found.append(
+            (
+                line,
+                f"{name}:{line}:{column}: the file holds "
+                f"{describe_character(match.group())}; delete it (an editor that "
+                "shows invisible characters helps)",
+            )
+        )
     return found
 
 
@@ -111,8 +127,10 @@ def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
             elif char in "[{":
                 depth += 1
                 if depth > MAX_NESTING and deep is None:
-                    deep = (f"{name}:{number + 1}:{column}: {TOO_DEEP} {MAX_NESTING} levels "
-                            "deep; a calculation needs fewer than 10: flatten it")
+                    deep = (
+                        f"{name}:{number + 1}:{column}: {TOO_DEEP} {MAX_NESTING} levels "
+                        "deep; a calculation needs fewer than 10: flatten it"
+                    )
             elif char in "]}":
                 depth = max(depth - 1, 0)
     close(len(lines))
@@ -151,17 +169,24 @@ class _StrictLoader(yaml.SafeLoader):
         event = self.peek_event()
         if isinstance(event, yaml.AliasEvent):
             self.get_event()
-            self._refuse(event.start_mark, "YAML aliases (*name) are not accepted; write the "
-                         "value out")
+            self._refuse(
+                event.start_mark, "YAML aliases (*name) are not accepted; write the value out"
+            )
             return _blank_node(event.start_mark)
         if getattr(event, "tag", None) is not None:
             shown = event.tag.replace("tag:yaml.org,2002:", "!!")
-            self._refuse(event.start_mark, f"YAML tags ({shown}) are not accepted; write the "
-                         "value as plain text (regimecheck reads every value itself)")
+            self._refuse(
+                event.start_mark,
+                f"YAML tags ({shown}) are not accepted; write the "
+                "value as plain text (regimecheck reads every value itself)",
+            )
         if self._depth >= MAX_NESTING:
             if not any(TOO_DEEP in problem for problem in self.problems):
-                self._refuse(event.start_mark, f"{TOO_DEEP} {MAX_NESTING} levels deep; a "
-                             "calculation needs fewer than 10: flatten it")
+                self._refuse(
+                    event.start_mark,
+                    f"{TOO_DEEP} {MAX_NESTING} levels deep; a "
+                    "calculation needs fewer than 10: flatten it",
+                )
             self._skip_node()
             return _blank_node(event.start_mark)
         self._depth += 1
@@ -170,8 +195,11 @@ class _StrictLoader(yaml.SafeLoader):
         finally:
             self._depth -= 1
         if isinstance(node, yaml.ScalarNode) and (bad := _FORBIDDEN.search(node.value)):
-            self._refuse(node.start_mark, f"the value holds {describe_character(bad.group())}; "
-                         "remove the escape that writes it")
+            self._refuse(
+                node.start_mark,
+                f"the value holds {describe_character(bad.group())}; "
+                "remove the escape that writes it",
+            )
         return node
 
     def _skip_node(self):
@@ -191,11 +219,17 @@ class _StrictLoader(yaml.SafeLoader):
         seen = {}
         for key_node, _ in node.value:
             if not isinstance(key_node, yaml.ScalarNode):
-                self._refuse(key_node.start_mark, "a key must be a plain word, not a list or "
-                             "mapping ('? [a, b]'); write key: value")
+                self._refuse(
+                    key_node.start_mark,
+                    "a key must be a plain word, not a list or "
+                    "mapping ('? [a, b]'); write key: value",
+                )
             elif key_node.value in seen:
-                self._refuse(key_node.start_mark, f"duplicate key {key_node.value!r} (first at "
-                             f"line {seen[key_node.value] + 1}); keep one")
+                self._refuse(
+                    key_node.start_mark,
+                    f"duplicate key {key_node.value!r} (first at "
+                    f"line {seen[key_node.value] + 1}); keep one",
+                )
             else:
                 seen[key_node.value] = key_node.start_mark.line
         return node
@@ -210,7 +244,7 @@ def compose_documents(text: str, name: str) -> tuple[list, list]:
     text, deep = _without_deep_flow(text, name)
     bad_characters = _character_errors(text, name)
     if bad_characters:
-        text = _FORBIDDEN.sub("", text)    # deleted: a blank could change indentation
+        text = _FORBIDDEN.sub("", text)  # deleted: a blank could change indentation
     loader = _StrictLoader(text)
     loader.name = name
     nodes, errors = [], []
@@ -219,8 +253,7 @@ def compose_documents(text: str, name: str) -> tuple[list, list]:
             loader.problems = []
             node = loader.get_node()
             lines = (node.start_mark.line + 1, node.end_mark.line + 1) if node else (0, -1)
-            inside = [message for line, message in bad_characters
-                      if lines[0] <= line <= lines[1]]
+            inside = [message for line, message in bad_characters if lines[0] <= line <= lines[1]]
             if loader.problems or inside:
                 errors += loader.problems + inside
             elif node is not None:
@@ -228,7 +261,7 @@ def compose_documents(text: str, name: str) -> tuple[list, list]:
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark
         errors.append(f"{_at(mark) if mark else name}: malformed YAML: {exc.problem}")
-    except yaml.YAMLError as exc:      # reader errors carry no mark
+    except yaml.YAMLError as exc:  # reader errors carry no mark
         errors.append(f"{name}: malformed YAML: {exc}")
     finally:
         loader.dispose()

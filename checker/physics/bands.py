@@ -25,6 +25,7 @@ ch. 2 (density of states and number of modes from the dispersion, any dimension)
 E. O. Kane, J. Phys. Chem. Solids 1, 249 (1957) (non-parabolic dispersion).
 A. H. Castro Neto et al., Rev. Mod. Phys. 81, 109 (2009) (graphene, E = +-hbar v_F |k|).
 """
+
 from __future__ import annotations
 
 import math
@@ -51,8 +52,9 @@ def _positive(name, value):
 
 def _check_common(band, dimensions):
     if band.dimension not in dimensions:
-        raise InputError(f"{type(band).__name__} needs dimension in {dimensions}, "
-                         f"got {band.dimension!r}")
+        raise InputError(
+            f"{type(band).__name__} needs dimension in {dimensions}, got {band.dimension!r}"
+        )
     _positive("valley_degeneracy", band.valley_degeneracy)
     _positive("spin_degeneracy", band.spin_degeneracy)
     if not _is_real(band.edge):
@@ -71,6 +73,7 @@ class ParabolicBand:
     ----------
     Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2.
     """
+
     dimension: int
     mass: float
     valley_degeneracy: float = 1.0
@@ -86,7 +89,7 @@ class ParabolicBand:
     @property
     def k_squared_coefficient(self):
         """c in k^2 = c E (m^-2 J^-1)."""
-        return 2.0 * self.mass * ELECTRON_MASS / HBAR ** 2
+        return 2.0 * self.mass * ELECTRON_MASS / HBAR**2
 
     def k_squared(self, energy):
         """k^2(E) in m^-2 for E in J (E >= 0)."""
@@ -111,6 +114,7 @@ class KaneBand:
     E. O. Kane, J. Phys. Chem. Solids 1, 249 (1957); I. Vurgaftman, J. R. Meyer and
     L. R. Ram-Mohan, J. Appl. Phys. 89, 5815 (2001) (parameters of III-V compounds).
     """
+
     dimension: int
     mass: float
     alpha: float
@@ -129,12 +133,12 @@ class KaneBand:
     def k_squared(self, energy):
         """k^2(E) = (2 m* m_0 / hbar^2) E (1 + alpha E) in m^-2."""
         e = np.asarray(energy, dtype=float)
-        return 2.0 * self.mass * ELECTRON_MASS / HBAR ** 2 * e * (1.0 + self.alpha * e)
+        return 2.0 * self.mass * ELECTRON_MASS / HBAR**2 * e * (1.0 + self.alpha * e)
 
     def k_squared_slope(self, energy):
         """d(k^2)/dE = (2 m* m_0 / hbar^2) (1 + 2 alpha E) in m^-2 J^-1."""
         e = np.asarray(energy, dtype=float)
-        return 2.0 * self.mass * ELECTRON_MASS / HBAR ** 2 * (1.0 + 2.0 * self.alpha * e)
+        return 2.0 * self.mass * ELECTRON_MASS / HBAR**2 * (1.0 + 2.0 * self.alpha * e)
 
 
 @dataclass(frozen=True)
@@ -152,6 +156,7 @@ class DiracBand:
     A. H. Castro Neto et al., Rev. Mod. Phys. 81, 109 (2009); T. Fang et al.,
     Appl. Phys. Lett. 91, 092109 (2007) (carrier statistics of graphene).
     """
+
     fermi_velocity: float
     valley_degeneracy: float = 2.0
     spin_degeneracy: float = 2.0
@@ -190,8 +195,10 @@ def parabolic_subbands(dimension, mass, energies, valley_degeneracy=1.0):
     ----------
     T. Ando, A. B. Fowler and F. Stern, Rev. Mod. Phys. 54, 437 (1982), sec. III.
     """
-    return tuple(ParabolicBand(dimension, mass, valley_degeneracy, edge=float(e))
-                 for e in np.atleast_1d(np.asarray(energies, dtype=float)))
+    return tuple(
+        ParabolicBand(dimension, mass, valley_degeneracy, edge=float(e))
+        for e in np.atleast_1d(np.asarray(energies, dtype=float))
+    )
 
 
 def _k_power(k2, twice):
@@ -277,6 +284,8 @@ def mean_free_path_exponent(band, time_exponent):
     Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 6 (lambda(E) and tau(E)).
     """
     if band.power is None:
-        raise InputError("a Kane band has no power-law mean free path for tau ∝ E^s; "
-                         "give lambda(E) = lambda_0 (E/kT)^r directly")
+        raise InputError(
+            "a Kane band has no power-law mean free path for tau ∝ E^s; "
+            "give lambda(E) = lambda_0 (E/kT)^r directly"
+        )
     return time_exponent + 1.0 - band.power / 2.0

@@ -3,6 +3,7 @@ coefficients, conductivity, mean free paths, the regime label, the
 temperature where intrinsic conduction sets in, and the fitted ranges of the
 models used.  Vectorized; SI units.
 """
+
 from __future__ import annotations
 
 import numpy as np
@@ -42,36 +43,42 @@ def carrier_transport(state: State, dimension=3, mobility_model=None) -> dict:
     minority_n, minority_p = state.n < 0.5 * state.p, state.p < 0.5 * state.n
     result = {"kT_over_q": BOLTZMANN * state.T / ELEMENTARY_CHARGE}
     conduction = {}
-    for x, band, eta, dens, species, majority in (
-            ("n", "electron", state.eta_n, state.n, state.donors, ~minority_n),
-            ("p", "hole", state.eta_p, state.p, state.acceptors, ~minority_p)):
+    for x, band, eta, _dens, species, majority in (
+        ("n", "electron", state.eta_n, state.n, state.donors, ~minority_n),
+        ("p", "hole", state.eta_p, state.p, state.acceptors, ~minority_p),
+    ):
         model = material.need(band, "mobility (conductivity, Einstein relation)")
         main = _dominant(species)
         mu = model.low_field(impurities, state.T, mobility_model, main)
         if model.minority_model and not mobility_model and not np.all(majority):
             mu = np.where(majority, mu, model.low_field(impurities, state.T, minority=True))
-        conduction[x] = np.where(majority, _every_dopant_factor(state, model, mobility_model,
-                                                                main, x), 1.0)
+        conduction[x] = np.where(
+            majority, _every_dopant_factor(state, model, mobility_model, main, x), 1.0
+        )
         d = transport.diffusion_coefficient(mu, state.T, eta, dimension)
         result[f"mu_{x}"] = mu
         result[f"cond_{x}"] = conduction[x]
         # the lattice limit: the highest of the material's published fits at N = 0
         zero = np.zeros_like(impurities)
-        result[f"mu0_{x}"] = model.low_field(zero, state.T, mobility_model, main) \
-            if mobility_model else np.max([fit(zero, state.T) for fit in model.mobility.values()],
-                                          axis=0)
+        result[f"mu0_{x}"] = (
+            model.low_field(zero, state.T, mobility_model, main)
+            if mobility_model
+            else np.max([fit(zero, state.T) for fit in model.mobility.values()], axis=0)
+        )
         result[f"D_{x}"] = d
         result[f"vsat_{x}"] = model.vsat(state.T) if model.vsat else np.full_like(mu, np.nan)
         result[f"beta_{x}"] = model.beta(state.T) if model.beta else np.full_like(mu, np.nan)
         if model.thermal_mass:
-            v = transport.unidirectional_thermal_velocity(state.T, model.thermal_mass, eta,
-                                                          dimension)
+            v = transport.unidirectional_thermal_velocity(
+                state.T, model.thermal_mass, eta, dimension
+            )
             result[f"v_{x}"] = v
             result[f"mfp_{x}"] = transport.backscattering_mean_free_path(d, v)
         else:
             result[f"v_{x}"] = result[f"mfp_{x}"] = np.full_like(mu, np.nan)
-    result["sigma"] = transport.conductivity(state.n * conduction["n"], state.p * conduction["p"],
-                                             result["mu_n"], result["mu_p"])
+    result["sigma"] = transport.conductivity(
+        state.n * conduction["n"], state.p * conduction["p"], result["mu_n"], result["mu_p"]
+    )
     result["rho"] = 1.0 / result["sigma"]
     return result
 
@@ -87,16 +94,21 @@ def _every_dopant_factor(state: State, model, mobility_model, species, carrier):
 
     fit = model.mobility[model.model_name(mobility_model, species)]
     T0 = np.full_like(state.T, getattr(fit, "T0", 296.15))
-    at_T0 = solve(state.material, T0, state.donors, state.acceptors,
-                  band_gap_narrowing=bool(np.any(state.narrowing > 0)))
+    at_T0 = solve(
+        state.material,
+        T0,
+        state.donors,
+        state.acceptors,
+        band_gap_narrowing=bool(np.any(state.narrowing > 0)),
+    )
     fraction = at_T0.donor_fraction if carrier == "n" else at_T0.acceptor_fraction
     return 1.0 / np.maximum(fraction, 1e-300)
 
 
 # regime names, indexed by the codes of regime_code (precedence rises with the code)
 REGIMES = ("extrinsic", "incomplete ionization", "intrinsic", "degenerate", "metallic")
-DEGENERATE_ETA = -3.0          # the 3kT rule
-IONIZED_FRACTION = 0.9         # below it: incomplete ionization
+DEGENERATE_ETA = -3.0  # the 3kT rule
+IONIZED_FRACTION = 0.9  # below it: incomplete ionization
 
 
 def regime_code(state: State, degenerate_eta=DEGENERATE_ETA):
@@ -117,11 +129,12 @@ def regime_code(state: State, degenerate_eta=DEGENERATE_ETA):
     the critical density; densities per dopant in the material files).
     """
     net = np.abs(state.donors_total - state.acceptors_total)
-    majority_fraction = np.where(state.donors_total >= state.acceptors_total,
-                                 state.donor_fraction, state.acceptor_fraction)
+    majority_fraction = np.where(
+        state.donors_total >= state.acceptors_total, state.donor_fraction, state.acceptor_fraction
+    )
     codes = np.zeros(np.shape(state.T), dtype=np.int8)
     codes[majority_fraction < IONIZED_FRACTION] = 1
-    codes[(state.ni > net) | (net <= 0)] = 2      # undoped: intrinsic even where n_i underflows
+    codes[(state.ni > net) | (net <= 0)] = 2  # undoped: intrinsic even where n_i underflows
     codes[(state.eta_n > degenerate_eta) | (state.eta_p > degenerate_eta)] = 3
     codes[np.broadcast_to(state.metallic, codes.shape)] = 4
     return codes
@@ -132,8 +145,7 @@ def regime_label(state: State, degenerate_eta=DEGENERATE_ETA):
     return np.asarray(REGIMES, dtype=object)[regime_code(state, degenerate_eta)]
 
 
-def intrinsic_onset_temperature(material: Material, net_density, fraction=0.1,
-                                T_max=3000.0):
+def intrinsic_onset_temperature(material: Material, net_density, fraction=0.1, T_max=3000.0):
     """Lowest temperature where n_i(T) reaches ``fraction`` of the net doping (K).
 
     Formula: n_i(T) = sqrt(N_c N_v) exp(-E_g(T)/2kT) (Boltzmann; n_i << N_c
@@ -148,15 +160,16 @@ def intrinsic_onset_temperature(material: Material, net_density, fraction=0.1,
     S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007),
     ch. 1 (n_i and the intrinsic temperature).
     """
-    with np.errstate(divide="ignore"):   # zero net doping: intrinsic at every T
+    with np.errstate(divide="ignore"):  # zero net doping: intrinsic at every T
         target = np.log(fraction * np.asarray(net_density, dtype=float))
     lo = np.zeros_like(target)
     hi = np.full_like(target, np.log(T_max))
 
     def ln_ni(ln_T):
         T = np.exp(ln_T)
-        return 0.5 * np.log(material.Nc(T) * material.Nv(T)) \
-            - 0.5 * material.band_gap(T) / (BOLTZMANN * T)
+        return 0.5 * np.log(material.Nc(T) * material.Nv(T)) - 0.5 * material.band_gap(T) / (
+            BOLTZMANN * T
+        )
 
     for _ in range(60):
         mid = 0.5 * (lo + hi)

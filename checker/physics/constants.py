@@ -6,16 +6,16 @@ CODATA 2022 recommended values (P. J. Mohr et al., NIST, 2024); k_B, q, h are
 exact since the 2019 SI redefinition.  m_0, epsilon_0 and a_0 are CODATA 2022.
 """
 
-BOLTZMANN = 1.380649e-23            # J/K, exact
+BOLTZMANN = 1.380649e-23  # J/K, exact
 ELEMENTARY_CHARGE = 1.602176634e-19  # C, exact
-PLANCK = 6.62607015e-34             # J s, exact
+PLANCK = 6.62607015e-34  # J s, exact
 HBAR = PLANCK / (2.0 * 3.141592653589793)
-ELECTRON_MASS = 9.1093837139e-31    # kg, CODATA 2022
+ELECTRON_MASS = 9.1093837139e-31  # kg, CODATA 2022
 VACUUM_PERMITTIVITY = 8.8541878188e-12  # F/m, CODATA 2022
-BOHR_RADIUS = 5.29177210544e-11     # m, CODATA 2022
+BOHR_RADIUS = 5.29177210544e-11  # m, CODATA 2022
 
-EV = ELEMENTARY_CHARGE              # J per eV
-ROOM_TEMPERATURE = 300.0            # K, reference temperature of the material tables
+EV = ELEMENTARY_CHARGE  # J per eV
+ROOM_TEMPERATURE = 300.0  # K, reference temperature of the material tables
 
 
 def thermal_voltage(temperature):

@@ -37,6 +37,7 @@ ch. 2-6 (Landauer conductance, modes, lambda(E), ballistic and diffusive limits)
 H. Takahasi and M. Mori, Publ. RIMS Kyoto Univ. 9, 721 (1974) (tanh–sinh rule).
 J. S. Blakemore, Solid-State Electron. 25, 1067 (1982) (normalized F_j).
 """
+
 from __future__ import annotations
 
 import os
@@ -50,11 +51,11 @@ from . import bands as _bands
 from .constants import BOLTZMANN, ELEMENTARY_CHARGE, PLANCK
 from .fermi import SUPPORTED_ORDERS, fermi_dirac, inverse_fermi_dirac_half, log_fermi_dirac
 
-LANDAUER_QUANTUM = 2.0 * ELEMENTARY_CHARGE ** 2 / PLANCK  # 2 q^2/h in S (exact, SI 2019)
+LANDAUER_QUANTUM = 2.0 * ELEMENTARY_CHARGE**2 / PLANCK  # 2 q^2/h in S (exact, SI 2019)
 
-_BIG_ETA = 300.0      # above: x_k = eta - a_k + ln(1 + e^(a_k - eta)) + b_k (no overflow)
-_BLOCK = 512          # points per block: (512 x 129) temporaries stay in cache
-_TASK = 1 << 15       # points per thread task
+_BIG_ETA = 300.0  # above: x_k = eta - a_k + ln(1 + e^(a_k - eta)) + b_k (no overflow)
+_BLOCK = 512  # points per block: (512 x 129) temporaries stay in cache
+_TASK = 1 << 15  # points per thread task
 WORKERS = min(2, os.cpu_count() or 1)
 
 
@@ -153,8 +154,9 @@ class _Points:
     """eta, T and extra per-point inputs broadcast together and flattened."""
 
     def __init__(self, eta, T, **extra):
-        arrays = np.broadcast_arrays(*(np.asarray(v, dtype=float)
-                                       for v in (eta, T, *extra.values())))
+        arrays = np.broadcast_arrays(
+            *(np.asarray(v, dtype=float) for v in (eta, T, *extra.values()))
+        )
         self.shape = arrays[0].shape
         flat = [np.ascontiguousarray(a).ravel() for a in arrays]
         self.eta, self.T = flat[0], flat[1]
@@ -186,8 +188,9 @@ def _log_density_and_slope(band, pts, method, slope=True):
     kT = pts.kT
     integrands = [lambda x, rows: _bands.states_below(band, x * kT[rows, None])]
     if slope:
-        integrands.append(lambda x, rows: _bands.density_of_states(band, x * kT[rows, None])
-                          * kT[rows, None])
+        integrands.append(
+            lambda x, rows: _bands.density_of_states(band, x * kT[rows, None]) * kT[rows, None]
+        )
     sums = _window_sums(eta, integrands)
     log_n = _log_logistic(eta) + np.log(sums[0])
     return log_n, sums[1] / sums[0] if slope else None
@@ -291,20 +294,22 @@ def _mode_integral(band, pts, method, exponent=0.0, length_ratio=None, r=0.0):
     if length_ratio is None and band.power is not None:
         A, a = _power_law(band, "modes")
         if a + exponent <= -1.0:
-            raise InputError(f"the window integral of E^{a + exponent:g} diverges at the "
-                             "band edge; use a larger exponent r")
+            raise InputError(
+                f"the window integral of E^{a + exponent:g} diverges at the "
+                "band edge; use a larger exponent r"
+            )
         if _closed_form_ok(band, method, a + exponent - 1.0):
             b = a + exponent  # M x^r = A (kT)^a x^(a + r)
-            return A * pts.kT ** a * np.exp(lgamma(b + 1.0)) * fermi_dirac(b - 1.0, eta)
+            return A * pts.kT**a * np.exp(lgamma(b + 1.0)) * fermi_dirac(b - 1.0, eta)
     _check_method(method)
     kT = pts.kT
 
     def integrand(x, rows):
         value = _bands.mode_density(band, x * kT[rows, None])
         if exponent:
-            value *= x ** exponent
+            value *= x**exponent
         if length_ratio is not None:
-            damping = length_ratio[rows, None] * (x ** -r if r else 1.0)
+            damping = length_ratio[rows, None] * (x**-r if r else 1.0)
             damping += 1.0
             value /= damping
         return value
@@ -331,7 +336,7 @@ def modes_in_window(bands, eta, T, method="auto"):
 
 
 def _quantum(band):
-    return band.spin_degeneracy * ELEMENTARY_CHARGE ** 2 / PLANCK
+    return band.spin_degeneracy * ELEMENTARY_CHARGE**2 / PLANCK
 
 
 def conductance(bands, eta, T, length, mfp0, r=0.0, method="auto"):
@@ -356,8 +361,10 @@ def conductance(bands, eta, T, length, mfp0, r=0.0, method="auto"):
     ratio = pts.extra["length"] / pts.extra["mfp0"]
     if not np.any(ratio):
         ratio = None  # L = 0: the ballistic closed forms apply
-    total = sum(_quantum(b) * _mode_integral(b, pts, method, length_ratio=ratio, r=float(r))
-                for b in _as_bands(bands))
+    total = sum(
+        _quantum(b) * _mode_integral(b, pts, method, length_ratio=ratio, r=float(r))
+        for b in _as_bands(bands)
+    )
     return pts.shaped(total)
 
 
@@ -369,8 +376,7 @@ def ballistic_conductance(bands, eta, T, method="auto"):
     R. Landauer, IBM J. Res. Dev. 1, 223 (1957); Lundstrom & Jeong (2012), ch. 3.
     """
     pts = _Points(eta, T)
-    return pts.shaped(sum(_quantum(b) * _mode_integral(b, pts, method)
-                          for b in _as_bands(bands)))
+    return pts.shaped(sum(_quantum(b) * _mode_integral(b, pts, method) for b in _as_bands(bands)))
 
 
 def diffusive_conductivity(bands, eta, T, mfp0, r=0.0, method="auto"):
@@ -389,8 +395,7 @@ def diffusive_conductivity(bands, eta, T, mfp0, r=0.0, method="auto"):
     if np.any(~(pts.extra["mfp0"] > 0)):
         raise InputError("mfp0 must be > 0 (m)")
     r = float(r)
-    total = sum(_quantum(b) * _mode_integral(b, pts, method, exponent=r)
-                for b in _as_bands(bands))
+    total = sum(_quantum(b) * _mode_integral(b, pts, method, exponent=r) for b in _as_bands(bands))
     return pts.shaped(total * pts.extra["mfp0"])
 
 
@@ -426,7 +431,7 @@ def dirac_net_density(band, eta, T):
     """
     pts = _Points(eta, T)
     mag = np.abs(pts.band_eta(band))
-    g = 0.5 * mag * mag + np.pi ** 2 / 6.0 - 2.0 * fermi_dirac(1, -mag)
+    g = 0.5 * mag * mag + np.pi**2 / 6.0 - 2.0 * fermi_dirac(1, -mag)
     net = np.sign(pts.band_eta(band)) * effective_density(band, pts.T) * g
     return pts.shaped(net)
 
@@ -441,7 +446,7 @@ def dirac_intrinsic_density(band, T):
     ----------
     T. Fang et al., Appl. Phys. Lett. 91, 092109 (2007), eq. (2).
     """
-    return effective_density(band, T) / 2.0 * (np.pi ** 2 / 6.0)
+    return effective_density(band, T) / 2.0 * (np.pi**2 / 6.0)
 
 
 # ----------------------------------------------------------------- inverse
@@ -456,8 +461,11 @@ def _single_closed_form(band, density, T, kT):
         eta = inverse_fermi_dirac_half(u)
     else:  # ln(e^u - 1): expm1 for small u, u + ln(1 - e^-u) for large
         with np.errstate(over="ignore"):
-            eta = np.where(u < 1.0, np.log(np.expm1(np.minimum(u, 1.0))),
-                           u + np.log1p(-np.exp(-np.maximum(u, 1.0))))
+            eta = np.where(
+                u < 1.0,
+                np.log(np.expm1(np.minimum(u, 1.0))),
+                u + np.log1p(-np.exp(-np.maximum(u, 1.0))),
+            )
     return eta + band.edge / kT
 
 
@@ -510,8 +518,9 @@ def _newton_on_log_density(group, target, pts, method):
         active = active[~done]
         if active.size == 0:
             return eta
-    raise ConvergenceError("eta_from_density did not converge "
-                           f"({active.size} points left after 100 Newton steps)")
+    raise ConvergenceError(
+        f"eta_from_density did not converge ({active.size} points left after 100 Newton steps)"
+    )
 
 
 class _Subset(_Points):

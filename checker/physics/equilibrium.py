@@ -27,6 +27,7 @@ Statistics (1962); P. P. Edwards and M. J. Sienko, Phys. Rev. B 17, 2575 (1978)
 (Mott criterion); W. H. Press et al., Numerical Recipes, 3rd ed. (2007), §9.4
 (safeguarded Newton, "rtsafe").
 """
+
 from __future__ import annotations
 
 import os
@@ -42,7 +43,7 @@ from .materials import Material
 
 MAX_ITERATIONS = 200
 TOLERANCE = 1e-12
-BALANCE_TOLERANCE = 1e-10   # relative neutrality error every returned point meets
+BALANCE_TOLERANCE = 1e-10  # relative neutrality error every returned point meets
 
 
 @dataclass
@@ -56,12 +57,12 @@ class State:
 
     material: Material
     T: np.ndarray
-    donors: dict            # species -> total density
+    donors: dict  # species -> total density
     acceptors: dict
     eta_n: np.ndarray
-    metallic: np.ndarray    # bool: some species above its Mott density
-    narrowing: np.ndarray   # band-gap narrowing applied (J), split half to each band
-    residual: np.ndarray    # |1 - (n + N_A^-)/(p + N_D^+)|
+    metallic: np.ndarray  # bool: some species above its Mott density
+    narrowing: np.ndarray  # band-gap narrowing applied (J), split half to each band
+    residual: np.ndarray  # |1 - (n + N_A^-)/(p + N_D^+)|
     iterations: int = 0
 
     @cached_property
@@ -101,15 +102,21 @@ class State:
 
     @cached_property
     def donors_ionized(self):
-        return {name: ionized_density(self.material.dopant(name), dens, self.eta_n, self.kT,
-                                      self.donors_total)
-                for name, dens in self.donors.items()}
+        return {
+            name: ionized_density(
+                self.material.dopant(name), dens, self.eta_n, self.kT, self.donors_total
+            )
+            for name, dens in self.donors.items()
+        }
 
     @cached_property
     def acceptors_ionized(self):
-        return {name: ionized_density(self.material.dopant(name), dens, self.eta_p, self.kT,
-                                      self.acceptors_total)
-                for name, dens in self.acceptors.items()}
+        return {
+            name: ionized_density(
+                self.material.dopant(name), dens, self.eta_p, self.kT, self.acceptors_total
+            )
+            for name, dens in self.acceptors.items()
+        }
 
     @property
     def ef_minus_ec_eV(self):
@@ -159,12 +166,14 @@ def charge_balance_error(state: State) -> np.ndarray:
     kT = state.kT
     negative = [np.log(state.Nc) + log_fermi_dirac(0.5, state.eta_n)]
     positive = [np.log(state.Nv) + log_fermi_dirac(0.5, state.eta_p)]
-    for group, eta_band, total, side in ((state.donors, state.eta_n, state.donors_total, positive),
-                                         (state.acceptors, state.eta_p, state.acceptors_total,
-                                          negative)):
+    for group, eta_band, total, side in (
+        (state.donors, state.eta_n, state.donors_total, positive),
+        (state.acceptors, state.eta_p, state.acceptors_total, negative),
+    ):
         for name, density in group.items():
-            side.append(log_ionized_density(state.material.dopant(name), density, eta_band, kT,
-                                            total))
+            side.append(
+                log_ionized_density(state.material.dopant(name), density, eta_band, kT, total)
+            )
     with np.errstate(invalid="ignore", over="ignore"):
         ln_neg, ln_pos = np.logaddexp.reduce(negative), np.logaddexp.reduce(positive)
         top = np.maximum(ln_neg, ln_pos)
@@ -177,14 +186,23 @@ def _level_terms(dopant, density, kT, same_type_total):
     ln_b, ln_free = dopant.share_model().log_shares(same_type_total)
     factor = dopant.lowering_factor(same_type_total)
     ln_density = _log(density)
-    return [(ln_density + np.log(level.share), level.energy * factor / kT + np.log(level.degeneracy),
-             ln_b, ln_free) for level in dopant.bound_levels()]
+    return [
+        (
+            ln_density + np.log(level.share),
+            level.energy * factor / kT + np.log(level.degeneracy),
+            ln_b,
+            ln_free,
+        )
+        for level in dopant.bound_levels()
+    ]
 
 
 def log_ionized_density(dopant, density, eta_band, kT, same_type_total):
     """ln of :func:`ionized_density` without underflow (-inf where the density is 0)."""
-    parts = [ln_n + np.logaddexp(ln_free, ln_b - np.logaddexp(0.0, eta_band + offset))
-             for ln_n, offset, ln_b, ln_free in _level_terms(dopant, density, kT, same_type_total)]
+    parts = [
+        ln_n + np.logaddexp(ln_free, ln_b - np.logaddexp(0.0, eta_band + offset))
+        for ln_n, offset, ln_b, ln_free in _level_terms(dopant, density, kT, same_type_total)
+    ]
     return np.logaddexp.reduce(parts) if len(parts) > 1 else parts[0]
 
 
@@ -246,8 +264,10 @@ def _check_inputs(T, donors, acceptors):
         for species, value in group.items():
             if not np.all(np.isfinite(value)) or np.any(value < 0):
                 bad = value[~(np.isfinite(value) & (value >= 0))].ravel()[:3]
-                raise InputError(f"{kind} density of {species} must be finite and >= 0; "
-                                 f"got {(bad * 1e-6).tolist()} cm^-3")
+                raise InputError(
+                    f"{kind} density of {species} must be finite and >= 0; "
+                    f"got {(bad * 1e-6).tolist()} cm^-3"
+                )
 
 
 class _Neutrality:
@@ -284,15 +304,15 @@ class _Neutrality:
 
     def _species(self, k):
         row = self.BASE_ROWS + self.TERM_ROWS * k
-        return self.params[row:row + self.TERM_ROWS]
+        return self.params[row : row + self.TERM_ROWS]
 
     def __call__(self, eta):
         """Return (f, df/deta) with f = ln(left side) - ln(right side), increasing in eta."""
-        ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p = self.params[:self.BASE_ROWS]
+        ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p = self.params[: self.BASE_ROWS]
         eta_p = -eta - eg_kt
         size = eta.size
         both, both_minus = log_fermi_dirac_half_pair(np.concatenate([eta, eta_p]))
-        slopes = np.exp(both_minus - both)      # d ln F_1/2 / d eta = F_-1/2 / F_1/2
+        slopes = np.exp(both_minus - both)  # d ln F_1/2 / d eta = F_-1/2 / F_1/2
         left = [(ln_nc + both[:size], slopes[:size]), (ln_net_p, None)]
         right = [(ln_nv + both[size:], -slopes[size:]), (ln_net_n, None)]
         # the same balance written plainly, n + N_A^- = p + N_D^+: in freeze-out almost
@@ -330,12 +350,12 @@ def _impurity_terms(ln_density, argument, ln_b, ln_free, sign):
     N^0 = b N u and N^ion = N (1 - b + b (1 - u)), written as a sum of two positive
     parts so that neither form cancels.  ``sign`` is d arg / d eta.
     """
-    soft, ionized = _softplus_and_logistic(-argument)      # ln(1 + e^-arg), 1 - u
+    soft, ionized = _softplus_and_logistic(-argument)  # ln(1 + e^-arg), 1 - u
     neutral_value = ln_density + ln_b - soft
     neutral_slope = sign * ionized
-    bound_ionized = ln_b - (soft + argument)                # ln(b (1 - u))
+    bound_ionized = ln_b - (soft + argument)  # ln(b (1 - u))
     ion_value = np.logaddexp(ln_free, bound_ionized)
-    weight = np.exp(bound_ionized - ion_value)              # share of N^ion still bound-able
+    weight = np.exp(bound_ionized - ion_value)  # share of N^ion still bound-able
     ion_slope = sign * (ionized - 1.0) * weight
     return (neutral_value, neutral_slope), (ln_density + ion_value, ion_slope)
 
@@ -369,6 +389,7 @@ def _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd, na, e_donor, e_acceptor, metal_d
     its cancellation-free form, then combined with n_i; the p-type case mirrors
     it.  It is only the Newton start: the solve itself uses the full model.
     """
+
     def majority(n_major, n_minor, ln_n_band, energy, metal):
         net = np.maximum(n_major - n_minor, 0.0)
         ln_phi = np.clip(ln_n_band - np.log(2.0) - energy / kT, -690.0, 690.0)
@@ -400,7 +421,9 @@ def _eta_from_ln_u(ln_u):
     """Approximate inverse of F_1/2 from ln u: Joyce–Dixon below u = 8, Sommerfeld above."""
     u = np.exp(np.minimum(ln_u, 50.0))
     series = np.polyval(_JOYCE_DIXON + (0.0,), np.minimum(u, 8.0))
-    degenerate = np.sqrt(np.maximum(np.cbrt((0.75 * np.sqrt(np.pi) * u) ** 2) ** 2 - np.pi ** 2 / 6, 1.0))
+    degenerate = np.sqrt(
+        np.maximum(np.cbrt((0.75 * np.sqrt(np.pi) * u) ** 2) ** 2 - np.pi**2 / 6, 1.0)
+    )
     return np.where(ln_u < np.log(8.0), ln_u + series, degenerate)
 
 
@@ -416,7 +439,7 @@ def _newton(residual, eta0):
     out_eta = np.empty(n_points)
     out_f = np.empty(n_points)
     idx = np.arange(n_points)
-    work = np.empty((4, n_points))        # rows: x, lo, hi, step limit (compacted together)
+    work = np.empty((4, n_points))  # rows: x, lo, hi, step limit (compacted together)
     work[0] = eta0
     work[1] = -np.inf
     work[2] = np.inf
@@ -447,8 +470,9 @@ def _newton(residual, eta0):
             closed = np.isfinite(o_lo) & np.isfinite(o_hi)
             with np.errstate(invalid="ignore"):
                 middle = 0.5 * (o_lo + o_hi)
-            new[outside] = np.where(closed, middle,
-                                    np.where(f[outside] > 0, o_x - o_lim, o_x + o_lim))
+            new[outside] = np.where(
+                closed, middle, np.where(f[outside] > 0, o_x - o_lim, o_x + o_lim)
+            )
         if big.any():
             limit[big] *= 4.0
         np.copyto(x, new, where=~done)
@@ -463,15 +487,21 @@ def _newton(residual, eta0):
             residual = residual.subset(keep)
     raise ConvergenceError(
         f"Fermi-level solve did not converge at {idx.size} point(s) after "
-        f"{MAX_ITERATIONS} iterations")
+        f"{MAX_ITERATIONS} iterations"
+    )
 
 
 WORKERS = min(4, os.cpu_count() or 1)
 CHUNK = 1 << 15  # points per block: the solver's temporaries then stay in cache
 
 
-def solve(material: Material, T, donors: dict | None = None, acceptors: dict | None = None,
-          band_gap_narrowing: bool = False) -> State:
+def solve(
+    material: Material,
+    T,
+    donors: dict | None = None,
+    acceptors: dict | None = None,
+    band_gap_narrowing: bool = False,
+) -> State:
     """Solve charge neutrality for E_F at every (T, doping) point (vectorized).
 
     Formula: see the module docstring.  Units: T in K; ``donors`` and
@@ -486,13 +516,15 @@ def solve(material: Material, T, donors: dict | None = None, acceptors: dict | N
     """
     donors = dict(donors or {})
     acceptors = dict(acceptors or {})
-    arrays = np.broadcast_arrays(np.asarray(T, dtype=float),
-                                 *[np.asarray(v, dtype=float) for v in donors.values()],
-                                 *[np.asarray(v, dtype=float) for v in acceptors.values()])
+    arrays = np.broadcast_arrays(
+        np.asarray(T, dtype=float),
+        *[np.asarray(v, dtype=float) for v in donors.values()],
+        *[np.asarray(v, dtype=float) for v in acceptors.values()],
+    )
     shape = arrays[0].shape
     T = arrays[0].astype(float).ravel()
-    d_vals = [a.astype(float).ravel() for a in arrays[1:1 + len(donors)]]
-    a_vals = [a.astype(float).ravel() for a in arrays[1 + len(donors):]]
+    d_vals = [a.astype(float).ravel() for a in arrays[1 : 1 + len(donors)]]
+    a_vals = [a.astype(float).ravel() for a in arrays[1 + len(donors) :]]
     donors = dict(zip(donors, d_vals))
     acceptors = dict(zip(acceptors, a_vals))
     _check_inputs(T, donors, acceptors)
@@ -511,9 +543,15 @@ def solve(material: Material, T, donors: dict | None = None, acceptors: dict | N
 
     def block(i):
         part = slice(i, i + CHUNK)
-        return _solve_flat(material, T[part], {k: v[part] for k, v in donors.items()},
-                           {k: v[part] for k, v in acceptors.items()}, band_gap_narrowing, species,
-                           out=(eta[part], residual[part], metallic[part], narrowing[part]))
+        return _solve_flat(
+            material,
+            T[part],
+            {k: v[part] for k, v in donors.items()},
+            {k: v[part] for k, v in acceptors.items()},
+            band_gap_narrowing,
+            species,
+            out=(eta[part], residual[part], metallic[part], narrowing[part]),
+        )
 
     starts = range(0, T.size, CHUNK)
     if len(starts) > 1 and WORKERS > 1:
@@ -524,23 +562,31 @@ def solve(material: Material, T, donors: dict | None = None, acceptors: dict | N
             iterations = max(pool.map(block, starts))
     else:
         iterations = max(block(i) for i in starts)
-    state = State(material=material, T=T.reshape(shape),
-                  donors={k: v.reshape(shape) for k, v in donors.items()},
-                  acceptors={k: v.reshape(shape) for k, v in acceptors.items()},
-                  eta_n=eta.reshape(shape), metallic=metallic.reshape(shape),
-                  narrowing=narrowing.reshape(shape), residual=residual.reshape(shape),
-                  iterations=iterations)
+    state = State(
+        material=material,
+        T=T.reshape(shape),
+        donors={k: v.reshape(shape) for k, v in donors.items()},
+        acceptors={k: v.reshape(shape) for k, v in acceptors.items()},
+        eta_n=eta.reshape(shape),
+        metallic=metallic.reshape(shape),
+        narrowing=narrowing.reshape(shape),
+        residual=residual.reshape(shape),
+        iterations=iterations,
+    )
     # the promise is checked, not assumed: neutrality evaluated afresh from eta
     state.residual = np.maximum(state.residual, charge_balance_error(state))
     bad = ~(state.residual <= BALANCE_TOLERANCE)
     if bad.any():
-        raise ConvergenceError(f"Fermi-level solve: neutrality off by up to "
-                               f"{np.nanmax(state.residual):.1e} at {int(bad.sum())} point(s)")
+        raise ConvergenceError(
+            f"Fermi-level solve: neutrality off by up to "
+            f"{np.nanmax(state.residual):.1e} at {int(bad.sum())} point(s)"
+        )
     return state
 
 
 def _effective_levels(donors, acceptors, species, nd_total, na_total, T):
     """Ionization energy of the most abundant donor / acceptor at each point (for the start)."""
+
     def pick(group, total):
         energy = np.zeros_like(T)
         metal = np.zeros(T.shape, dtype=bool)
@@ -550,7 +596,7 @@ def _effective_levels(donors, acceptors, species, nd_total, na_total, T):
             d = species[name]
             energy = np.where(better, d.energy * d.lowering_factor(total), energy)
             best = np.maximum(best, dens)
-            metal |= total >= d.share_model().N_b   # mostly band-tail: start as ionized
+            metal |= total >= d.share_model().N_b  # mostly band-tail: start as ionized
         return energy, metal
 
     e_d, m_d = pick(donors, nd_total)
@@ -576,8 +622,11 @@ def _solve_flat(material, T, donors, acceptors, band_gap_narrowing, species, out
 
     def terms(group, total):
         # bound levels move with their band edge: band-gap narrowing leaves E_ion alone
-        return [term for name, density in group.items()
-                for term in _level_terms(species[name], density, kT, total)]
+        return [
+            term
+            for name, density in group.items()
+            for term in _level_terms(species[name], density, kT, total)
+        ]
 
     donor_terms = terms(donors, nd_total)
     acceptor_terms = terms(acceptors, na_total)
@@ -589,11 +638,25 @@ def _solve_flat(material, T, donors, acceptors, band_gap_narrowing, species, out
     ln_nc, ln_nv = np.log(Nc), np.log(Nv)
     ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
     net = nd_total - na_total
-    residual = _Neutrality.build(ln_nc, ln_nv, eg_kt, _log(np.maximum(net, 0.0)),
-                                 _log(np.maximum(-net, 0.0)), donor_terms, acceptor_terms)
-    eta0 = _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd_total, na_total,
-                          *_effective_levels(donors, acceptors, species, nd_total, na_total, T),
-                          ni)
+    residual = _Neutrality.build(
+        ln_nc,
+        ln_nv,
+        eg_kt,
+        _log(np.maximum(net, 0.0)),
+        _log(np.maximum(-net, 0.0)),
+        donor_terms,
+        acceptor_terms,
+    )
+    eta0 = _initial_guess(
+        ln_nc,
+        ln_nv,
+        eg_kt,
+        kT,
+        nd_total,
+        na_total,
+        *_effective_levels(donors, acceptors, species, nd_total, na_total, T),
+        ni,
+    )
     eta, final_f, iterations = _newton(residual, eta0)
     out_eta, out_residual, out_metallic, out_narrowing = out
     out_eta[:] = eta

@@ -25,10 +25,11 @@ J. S. Blakemore, Solid-State Electron. 25, 1067 (1982) (normalization, limits).
 NIST DLMF §25.12(iii) (definition and polylogarithm relation).
 T. Fukushima, Appl. Math. Comput. 259, 708 (2015) (piecewise approximation).
 """
+
 from __future__ import annotations
 
 from fractions import Fraction
-from functools import lru_cache
+from functools import cache
 
 import numpy as np
 
@@ -37,7 +38,7 @@ from . import _fd_tables
 
 SUPPORTED_ORDERS = tuple(Fraction(k, 2) for k in range(-3, 8))
 _CHUNK = 1 << 16  # elements per block: keeps the temporaries in cache
-_PI2 = np.pi ** 2
+_PI2 = np.pi**2
 
 
 def _order(j) -> Fraction:
@@ -48,7 +49,8 @@ def _order(j) -> Fraction:
     if frac not in SUPPORTED_ORDERS or abs(float(frac) - float(j)) > 1e-12:
         raise InputError(
             f"Fermi–Dirac order {j!r} is not supported; use one of "
-            + ", ".join(str(o) for o in SUPPORTED_ORDERS))
+            + ", ".join(str(o) for o in SUPPORTED_ORDERS)
+        )
     return frac
 
 
@@ -86,8 +88,9 @@ class _Piecewise:
             raise ValueError("Fermi-Dirac table edges must lie on a half-unit grid")
         grid = np.arange(2 * self.edges[0] - 1, 2 * self.edges[-1] + 1) / 2.0
         self.grid_start = grid[0]
-        self.lookup = np.minimum(np.searchsorted(self.edges, grid, side="right"),
-                                 self.last).astype(np.uint8)
+        self.lookup = np.minimum(np.searchsorted(self.edges, grid, side="right"), self.last).astype(
+            np.uint8
+        )
 
     def regions(self, eta):
         cell = np.subtract(eta, self.grid_start)
@@ -155,8 +158,8 @@ def _grouped(classifier: _Piecewise, eta: np.ndarray, jobs):
     n_regions = classifier.last + 1
     scratch = [np.empty(min(eta.size, _CHUNK)) for _ in jobs]
     for start in range(0, eta.size, _CHUNK):
-        block = eta[start:start + _CHUNK]
-        targets = [out[start:start + _CHUNK] for out in outs]
+        block = eta[start : start + _CHUNK]
+        targets = [out[start : start + _CHUNK] for out in outs]
         region = classifier.regions(block)
         counts = np.bincount(region, minlength=n_regions)
         busy = np.flatnonzero(counts)
@@ -169,7 +172,7 @@ def _grouped(classifier: _Piecewise, eta: np.ndarray, jobs):
             continue
         order = np.argsort(region, kind="stable")
         grouped = block[order]
-        results = [buffer[:block.size] for buffer in scratch]
+        results = [buffer[: block.size] for buffer in scratch]
         stop = 0
         for k in busy:
             first, stop = stop, stop + counts[k]
@@ -181,7 +184,7 @@ def _grouped(classifier: _Piecewise, eta: np.ndarray, jobs):
     return outs
 
 
-@lru_cache(maxsize=None)
+@cache
 def _evaluator(key: str) -> _Piecewise:
     return _Piecewise(key)
 
@@ -208,8 +211,8 @@ _REFLECTION = {
 def _integer_order(j: int, eta: np.ndarray) -> np.ndarray:
     out = np.empty_like(eta)
     for start in range(0, eta.size, _CHUNK):  # blocks keep the temporaries in cache
-        block = eta[start:start + _CHUNK]
-        out[start:start + _CHUNK] = _integer_order_block(j, block)
+        block = eta[start : start + _CHUNK]
+        out[start : start + _CHUNK] = _integer_order_block(j, block)
     return out
 
 
@@ -220,7 +223,7 @@ def _integer_order_block(j, eta):
         return _softplus(eta)
     poly, sign = _REFLECTION[j]
     magnitude = np.abs(eta)
-    base = _evaluator(str(j)).evaluate(-magnitude)     # F_j(-|eta|), tabulated
+    base = _evaluator(str(j)).evaluate(-magnitude)  # F_j(-|eta|), tabulated
     reflected = poly(magnitude)
     if sign > 0:
         reflected += base
@@ -274,8 +277,11 @@ def log_fermi_dirac(j, eta):
     elif order.denominator == 1 and int(order) == 0:
         # for eta < -30, ln(1+z) = z(1 - z/2 ...) -> eta + ln(1 - z/2)
         small = flat < -30.0
-        result = np.where(small, flat + np.log1p(-0.5 * np.exp(np.minimum(flat, 0.0))),
-                          np.log(_softplus(np.where(small, 0.0, flat))))
+        result = np.where(
+            small,
+            flat + np.log1p(-0.5 * np.exp(np.minimum(flat, 0.0))),
+            np.log(_softplus(np.where(small, 0.0, flat))),
+        )
     elif order.denominator == 1:
         # eta <= 0 from the table in log form; eta > 0 via the exact reflection
         negative = _evaluator(str(order)).evaluate(np.minimum(flat, 0.0), log=True)
@@ -331,8 +337,9 @@ def inverse_fermi_dirac_half(u):
     """
     arr = np.asarray(u, dtype=np.float64)
     if not np.all(np.isfinite(arr)) or np.any(arr <= 0):
-        raise InputError("inverse_fermi_dirac_half needs finite values u > 0 "
-                         "(F_1/2 is positive for every eta)")
+        raise InputError(
+            "inverse_fermi_dirac_half needs finite values u > 0 (F_1/2 is positive for every eta)"
+        )
     flat = np.ascontiguousarray(arr).ravel()
     log_u = np.log(flat)
     eta = _initial_inverse_half(log_u)

@@ -3,6 +3,7 @@
 A Hall measurement gives R_H; the "Hall density" 1/(q|R_H|) equals the carrier
 density only when the Hall scattering factor r_H = <tau^2>/<tau>^2 is one.
 """
+
 from __future__ import annotations
 
 from math import gamma
@@ -47,8 +48,11 @@ def hall_factor(eta, r, dimension=3):
     J. S. Blakemore, Semiconductor Statistics (Pergamon, 1962) (limits 3π/8, 315π/512).
     """
     eta = np.asarray(eta, dtype=float)
-    logs = (_log_moment(eta, 2 * r, dimension) + _log_moment(eta, 0.0, dimension)
-            - 2.0 * _log_moment(eta, r, dimension))
+    logs = (
+        _log_moment(eta, 2 * r, dimension)
+        + _log_moment(eta, 0.0, dimension)
+        - 2.0 * _log_moment(eta, r, dimension)
+    )
     return np.exp(logs)
 
 
@@ -66,7 +70,7 @@ def hall_density(n, p, mu_n, mu_p, rH_n, rH_p):
     ch. 1 (Hall effect, mixed conduction).
     """
     n, p, mu_n, mu_p = (np.asarray(v, dtype=float) for v in (n, p, mu_n, mu_p))
-    numerator = rH_p * p * mu_p ** 2 - rH_n * n * mu_n ** 2
+    numerator = rH_p * p * mu_p**2 - rH_n * n * mu_n**2
     coefficient = numerator / (ELEMENTARY_CHARGE * (n * mu_n + p * mu_p) ** 2)
     with np.errstate(divide="ignore"):
         return 1.0 / (ELEMENTARY_CHARGE * np.abs(coefficient))

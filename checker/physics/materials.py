@@ -8,6 +8,7 @@ sources) live in ``checker/data/materials`` and are read by the inputs layer.
 Units: energies J, densities m^-3, mobilities m^2/(V s), velocities m/s,
 fields V/m, temperatures K, masses in units of the free electron mass m0.
 """
+
 from __future__ import annotations
 
 from dataclasses import dataclass, field
@@ -25,8 +26,8 @@ class Provenance:
     """Where a parameter comes from and where it may be used."""
 
     source: str
-    valid_T: tuple[float, float] = (0.0, np.inf)       # K
-    valid_N: tuple[float, float] = (0.0, np.inf)       # m^-3 (doping models)
+    valid_T: tuple[float, float] = (0.0, np.inf)  # K
+    valid_N: tuple[float, float] = (0.0, np.inf)  # m^-3 (doping models)
     note: str = ""
 
 
@@ -92,7 +93,7 @@ class MassPolynomialDOS:
     def __call__(self, T):
         T = np.asarray(T, dtype=float)
         mass_term = np.polynomial.polynomial.polyval(np.minimum(T, self.T_fit), self.coefficients)
-        return 2.0 * (2 * np.pi * ELECTRON_MASS * BOLTZMANN * T / PLANCK ** 2) ** 1.5 * mass_term
+        return 2.0 * (2 * np.pi * ELECTRON_MASS * BOLTZMANN * T / PLANCK**2) ** 1.5 * mass_term
 
 
 @dataclass(frozen=True)
@@ -182,7 +183,7 @@ class Dopant:
     """
 
     name: str
-    kind: str            # "donor" | "acceptor"
+    kind: str  # "donor" | "acceptor"
     energy: float
     degeneracy: float
     mott_density: float
@@ -221,8 +222,9 @@ def edwards_sienko_mott_density(energy, eps_r):
     ----------
     P. P. Edwards and M. J. Sienko, Phys. Rev. B 17, 2575 (1978).
     """
-    radius = ELEMENTARY_CHARGE ** 2 / (8 * np.pi * VACUUM_PERMITTIVITY * eps_r
-                                       * np.asarray(energy, dtype=float))
+    radius = ELEMENTARY_CHARGE**2 / (
+        8 * np.pi * VACUUM_PERMITTIVITY * eps_r * np.asarray(energy, dtype=float)
+    )
     return (0.26 / radius) ** 3
 
 
@@ -262,8 +264,11 @@ class Masetti:
             first, mu_min2 = self.mu_min1 * np.exp(-self.P_c / N), 0.0
         else:
             first, mu_min2 = self.mu_min1, self.mu_min1
-        return (first + (mu_max - mu_min2) / (1 + (N / self.C_r) ** self.alpha)
-                - self.mu_1 / (1 + (self.C_s / N) ** self.beta))
+        return (
+            first
+            + (mu_max - mu_min2) / (1 + (N / self.C_r) ** self.alpha)
+            - self.mu_1 / (1 + (self.C_s / N) ** self.beta)
+        )
 
 
 @dataclass(frozen=True)
@@ -294,9 +299,10 @@ class Arora:
         N = np.asarray(N, dtype=float)
         T = np.asarray(T, dtype=float)
         Tn = T / T_REF
-        expo = self.alpha * Tn ** self.a_alpha
-        return (self.A_min * Tn ** self.a_min
-                + self.A_0 * T ** self.a_0 / (1 + (N / (self.N_ref * Tn ** self.a_N)) ** expo))
+        expo = self.alpha * Tn**self.a_alpha
+        return self.A_min * Tn**self.a_min + self.A_0 * T**self.a_0 / (
+            1 + (N / (self.N_ref * Tn**self.a_N)) ** expo
+        )
 
 
 @dataclass(frozen=True)
@@ -321,11 +327,11 @@ class ResistivityStandardMobility:
     Mattis, Y. M. Liu and J. J. Filliben, NBS Special Publication 400-64 (1981).
     """
 
-    form: str                  # "boron" | "phosphorus"
+    form: str  # "boron" | "phosphorus"
     coefficients: tuple
-    N_range: tuple             # m^-3
+    N_range: tuple  # m^-3
     provenance: Provenance
-    every_dopant = True        # conductivity convention: sigma = q N mu at 23 degC
+    every_dopant = True  # conductivity convention: sigma = q N mu at 23 degC
 
     def resistivity_cm(self, N_cm3):
         """The standard's resistivity (Ohm cm) at N (cm^-3)."""
@@ -335,7 +341,7 @@ class ResistivityStandardMobility:
         k, c0, c1, c2, c3, d1, d2, d3 = self.coefficients
         y = np.log10(N_cm3) - 16.0
         z = (c0 + y * (c1 + y * (c2 + y * c3))) / (1.0 + y * (d1 + y * (d2 + y * d3)))
-        return k / N_cm3 * 10.0 ** z
+        return k / N_cm3 * 10.0**z
 
     def __call__(self, N, T=None):
         N_cm3 = np.clip(np.asarray(N, dtype=float), *self.N_range) * 1e-6
@@ -401,7 +407,8 @@ class CaugheyThomas:
         Tn = np.asarray(T, dtype=float) / T_REF
         mu_max = self.mu_max * Tn ** (-self.theta1)
         return self.mu_min + (mu_max - self.mu_min) / (
-            1 + (N / (self.N_ref * Tn ** self.theta2)) ** self.lam)
+            1 + (N / (self.N_ref * Tn**self.theta2)) ** self.lam
+        )
 
 
 @dataclass(frozen=True)
@@ -428,8 +435,10 @@ class Levinshtein:
     def __call__(self, N, T):
         N = np.maximum(np.asarray(N, dtype=float), 1.0)
         Tn = np.asarray(T, dtype=float) / T_REF
-        B = (self.mu_min + self.mu_max * (self.N_ref / N) ** self.gamma) / (self.mu_max - self.mu_min)
-        return self.mu_max / (1.0 / (B * Tn ** self.beta) + Tn ** self.alpha)
+        B = (self.mu_min + self.mu_max * (self.N_ref / N) ** self.gamma) / (
+            self.mu_max - self.mu_min
+        )
+        return self.mu_max / (1.0 / (B * Tn**self.beta) + Tn**self.alpha)
 
 
 @dataclass(frozen=True)
@@ -532,24 +541,26 @@ class CubeRootNarrowing:
     provenance: Provenance
 
     def __call__(self, N_donor, N_acceptor):
-        return (self.a_n * np.cbrt(np.asarray(N_donor, dtype=float))
-                + self.a_p * np.cbrt(np.asarray(N_acceptor, dtype=float)))
+        return self.a_n * np.cbrt(np.asarray(N_donor, dtype=float)) + self.a_p * np.cbrt(
+            np.asarray(N_acceptor, dtype=float)
+        )
 
 
 @dataclass(frozen=True)
 class CarrierTransport:
     """Low-field and high-field transport models of one carrier type."""
 
-    mobility: dict            # model name -> callable(N_ionized, T) -> m^2/(V s)
+    mobility: dict  # model name -> callable(N_ionized, T) -> m^2/(V s)
     default_model: str
     dopant_models: dict = field(default_factory=dict)  # species -> model name
     vsat: SaturationVelocity | PowerLawVelocity | None = None
     beta: PowerLawExponent | None = None
-    thermal_mass: float | None = None   # m0 units (conductivity mass)
-    minority_model: str | None = None   # model for this carrier where it is the minority
+    thermal_mass: float | None = None  # m0 units (conductivity mass)
+    minority_model: str | None = None  # model for this carrier where it is the minority
 
-    def model_name(self, model: str | None = None, species: str | None = None,
-                   minority: bool = False) -> str:
+    def model_name(
+        self, model: str | None = None, species: str | None = None, minority: bool = False
+    ) -> str:
         if model:
             return model
         if minority and self.minority_model:
@@ -559,18 +570,26 @@ class CarrierTransport:
     def counts_every_dopant(self, model: str | None = None, species: str | None = None) -> bool:
         """True where the model's mobility is conductivity per dopant atom (sigma = q N mu
         at its reference temperature) rather than per free carrier."""
-        return bool(getattr(self.mobility.get(self.model_name(model, species)), "every_dopant",
-                            False))
+        return bool(
+            getattr(self.mobility.get(self.model_name(model, species)), "every_dopant", False)
+        )
 
-    def low_field(self, N_ionized, T, model: str | None = None, species: str | None = None,
-                  minority: bool = False):
+    def low_field(
+        self,
+        N_ionized,
+        T,
+        model: str | None = None,
+        species: str | None = None,
+        minority: bool = False,
+    ):
         name = self.model_name(model, species, minority)
         try:
             return self.mobility[name](N_ionized, T)
         except KeyError:
             raise MissingParameterError(
                 f"mobility model {name!r} is not defined; available: "
-                + ", ".join(sorted(self.mobility))) from None
+                + ", ".join(sorted(self.mobility))
+            ) from None
 
 
 @dataclass(frozen=True)
@@ -599,7 +618,8 @@ class Material:
         if value is None:
             raise MissingParameterError(
                 f"material {self.name!r} has no {attribute!r}; it is needed for {purpose}. "
-                f"Add it to the material definition.")
+                f"Add it to the material definition."
+            )
         return value
 
     def dopant(self, species: str) -> Dopant:
@@ -608,14 +628,32 @@ class Material:
         except KeyError:
             known = ", ".join(sorted(self.dopants)) or "none"
             raise UnknownDopantError(
-                f"material {self.name!r} has no dopant {species!r}; known: {known}") from None
+                f"material {self.name!r} has no dopant {species!r}; known: {known}"
+            ) from None
 
 
 __all__ = [
-    "AltermattLowering", "Arora", "BoundShare", "CarrierTransport", "CaugheyThomas",
-    "CubeRootNarrowing", "Dopant", "DopantLevel", "PearsonBardeenLowering",
-    "Levinshtein", "Masetti", "MassPolynomialDOS", "Material", "PowerLawDOS",
-    "PowerLawExponent", "PowerLawVelocity", "Provenance", "ResistivityStandardMobility",
-    "SaturationVelocity", "SlotboomNarrowing", "TemperatureRatio", "VarshniGap",
+    "AltermattLowering",
+    "Arora",
+    "BoundShare",
+    "CarrierTransport",
+    "CaugheyThomas",
+    "CubeRootNarrowing",
+    "Dopant",
+    "DopantLevel",
+    "PearsonBardeenLowering",
+    "Levinshtein",
+    "Masetti",
+    "MassPolynomialDOS",
+    "Material",
+    "PowerLawDOS",
+    "PowerLawExponent",
+    "PowerLawVelocity",
+    "Provenance",
+    "ResistivityStandardMobility",
+    "SaturationVelocity",
+    "SlotboomNarrowing",
+    "TemperatureRatio",
+    "VarshniGap",
     "edwards_sienko_mott_density",
 ]

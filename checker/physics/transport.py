@@ -5,6 +5,7 @@ All functions are vectorized and use SI units: mobility m^2/(V s), diffusion
 coefficient m^2/s, density m^-3, conductivity S/m, resistivity ohm m, length m,
 velocity m/s, field V/m, temperature K.
 """
+
 from __future__ import annotations
 
 import numpy as np
@@ -49,8 +50,13 @@ def diffusion_coefficient(mobility, T, eta, dimension=3):
     ----------
     Lundstrom, Fundamentals of Carrier Transport (2000), ch. 3.
     """
-    return mobility * BOLTZMANN * np.asarray(T, dtype=float) / ELEMENTARY_CHARGE \
+    return (
+        mobility
+        * BOLTZMANN
+        * np.asarray(T, dtype=float)
+        / ELEMENTARY_CHARGE
         * einstein_ratio(eta, dimension)
+    )
 
 
 def field_dependent_mobility(mu_low, field, v_sat, beta):
@@ -65,7 +71,7 @@ def field_dependent_mobility(mu_low, field, v_sat, beta):
     al., IEEE Trans. Electron Devices 22, 1045 (1975).
     """
     ratio = np.asarray(mu_low, dtype=float) * np.abs(np.asarray(field, dtype=float)) / v_sat
-    return mu_low / (1.0 + ratio ** beta) ** (1.0 / beta)
+    return mu_low / (1.0 + ratio**beta) ** (1.0 / beta)
 
 
 def drift_velocity(mu_low, field, v_sat, beta):

@@ -3,6 +3,7 @@
 JSON keys are stable and documented in the README ("JSON report").  Numbers in
 the JSON are in the unit named beside them (trade units, not SI).
 """
+
 from __future__ import annotations
 
 import json
@@ -25,19 +26,36 @@ def doping_text(donors: dict, acceptors: dict) -> str:
 
 
 # the state table of a check: a subset of the `state` command's rows
-STATE_ROWS = [row for row in ROWS if row[0] in (
-    "regime", "EF_minus_EC_eV", "eta_n", "eta_p", "n_cm3", "p_cm3", "donors_ionized_fraction",
-    "acceptors_ionized_fraction", "ni_cm3")]
+STATE_ROWS = [
+    row
+    for row in ROWS
+    if row[0]
+    in (
+        "regime",
+        "EF_minus_EC_eV",
+        "eta_n",
+        "eta_p",
+        "n_cm3",
+        "p_cm3",
+        "donors_ionized_fraction",
+        "acceptors_ionized_fraction",
+        "ni_cm3",
+    )
+]
 
 
 def summary_line(result, exit_code=None) -> str:
     counts = result.counts()
     files = len({r.calc.source for r in result.reports})
-    parts = [f"{counts[level]} {level}{'s' if counts[level] != 1 and level != 'info' else ''}"
-             for level in ("error", "warning", "info")]
-    text = (f"{len(result.reports)} calculation(s) in {files} file(s) checked: "
-            f"{', '.join(parts)}, {counts['waived']} waived; "
-            f"{len(result.input_errors)} input error(s).")
+    parts = [
+        f"{counts[level]} {level}{'s' if counts[level] != 1 and level != 'info' else ''}"
+        for level in ("error", "warning", "info")
+    ]
+    text = (
+        f"{len(result.reports)} calculation(s) in {files} file(s) checked: "
+        f"{', '.join(parts)}, {counts['waived']} waived; "
+        f"{len(result.input_errors)} input error(s)."
+    )
     return text
 
 
@@ -75,7 +93,7 @@ def render_console(result, console=None, stream=None) -> None:
     else:
         from rich.text import Text as RichText
 
-        class Text(RichText):       # user text reaches the terminal escaped
+        class Text(RichText):  # user text reaches the terminal escaped
             def append(self, text, style=None):
                 return super().append(visible(text) if isinstance(text, str) else text, style)
 
@@ -91,16 +109,23 @@ def render_console(result, console=None, stream=None) -> None:
         out = Text()
         title = f"── {' '.join(visible(calc.name).split())} "
         out.append(title + "─" * max(width - len(title), 3) + "\n", style="bold")
-        point = "sweep" if calc.sweep else \
-            f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}"
+        point = (
+            "sweep"
+            if calc.sweep
+            else f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}"
+        )
         add(out, f"{_where(calc.source, calc.line)} · {calc.material.name} · {point}", indent=0)
         if report.error:
             add(out, f"not checked: {report.error}", "bold red", indent=2)
             emit(out)
             continue
         if report.sweep:
-            add(out, f"sweep of {report.sweep['points']} points: " + " × ".join(
-                axis_text(label, axis) for label, axis in report.sweep["axes"]), indent=2)
+            add(
+                out,
+                f"sweep of {report.sweep['points']} points: "
+                + " × ".join(axis_text(label, axis) for label, axis in report.sweep["axes"]),
+                indent=2,
+            )
         else:
             for key, label, fmt in STATE_ROWS:
                 out.append(f"  {label:<24}", style="dim")
@@ -122,8 +147,11 @@ def render_console(result, console=None, stream=None) -> None:
                 add(out, f"regime indicator: {f.indicator_text()}", "dim")
             for c in f.corrections:
                 origin = "stated" if c.from_author else (c.origin or "shortcut")
-                add(out, f"{c.label}: {display(c.stated, c.unit)} ({origin}) → "
-                         f"{display(c.corrected, c.unit)}  [{c.error_text()}]")
+                add(
+                    out,
+                    f"{c.label}: {display(c.stated, c.unit)} ({origin}) → "
+                    f"{display(c.corrected, c.unit)}  [{c.error_text()}]",
+                )
             if f.waived:
                 add(out, f"waived: {f.waived}", "dim")
         for note in report.notes:
@@ -160,10 +188,19 @@ def formula_lines(r) -> list:
 def sweep_json(report) -> dict | None:
     if not report.sweep:
         return None
-    return {"points": report.sweep["points"],
-            "axes": [{"axis": label, "from": axis_value(axis, axis.values[0]),
-                      "to": axis_value(axis, axis.values[-1]), "steps": len(axis.values),
-                      "spacing": axis.spacing} for label, axis in report.sweep["axes"]]}
+    return {
+        "points": report.sweep["points"],
+        "axes": [
+            {
+                "axis": label,
+                "from": axis_value(axis, axis.values[0]),
+                "to": axis_value(axis, axis.values[-1]),
+                "steps": len(axis.values),
+                "spacing": axis.spacing,
+            }
+            for label, axis in report.sweep["axes"]
+        ],
+    }
 
 
 def _number(value):
@@ -173,25 +210,41 @@ def _number(value):
 def finding_json(f) -> dict:
     factor = DISPLAY_UNITS[f.indicator_unit]
     return {
-        "rule": f.rule, "title": f.title, "severity": f.severity,
-        "assumption": f.assumption, "carrier": f.carrier,
-        "indicator": {"label": f.indicator_label, "value": _number(f.indicator_value * factor),
-                      "threshold": _number(f.threshold * factor), "relation": f.relation,
-                      "unit": f.indicator_unit, "source": f.threshold_source},
+        "rule": f.rule,
+        "title": f.title,
+        "severity": f.severity,
+        "assumption": f.assumption,
+        "carrier": f.carrier,
+        "indicator": {
+            "label": f.indicator_label,
+            "value": _number(f.indicator_value * factor),
+            "threshold": _number(f.threshold * factor),
+            "relation": f.relation,
+            "unit": f.indicator_unit,
+            "source": f.threshold_source,
+        },
         "message": finding_message(f),
         "where": {"file": f.file, "line": f.line, "column": f.column},
-        "corrections": [{
-            "quantity": c.label, "unit": c.unit,
-            "stated": _number(c.stated * DISPLAY_UNITS[c.unit]),
-            "corrected": _number(c.corrected * DISPLAY_UNITS[c.unit]),
-            "relative_error": _number(c.error),
-            "stated_by": c.stated_by,
-        } for c in f.corrections],
+        "corrections": [
+            {
+                "quantity": c.label,
+                "unit": c.unit,
+                "stated": _number(c.stated * DISPLAY_UNITS[c.unit]),
+                "corrected": _number(c.corrected * DISPLAY_UNITS[c.unit]),
+                "relative_error": _number(c.error),
+                "stated_by": c.stated_by,
+            }
+            for c in f.corrections
+        ],
         "waived": f.waived,
         "formula": f.formula,
-        "sweep": None if f.sweep is None else {
-            "failing_fraction": f.sweep.failing_fraction, "boundary": boundary_lines(f.sweep),
-            "worst_point": worst_point(f.sweep)},
+        "sweep": None
+        if f.sweep is None
+        else {
+            "failing_fraction": f.sweep.failing_fraction,
+            "boundary": boundary_lines(f.sweep),
+            "worst_point": worst_point(f.sweep),
+        },
     }
 
 
@@ -199,17 +252,29 @@ def formula_json(r) -> dict:
     factor = DISPLAY_UNITS.get(r.unit, 1.0)
     match = r.match
     return {
-        "formula": r.text, "line": r.line, "status": r.status,
-        "dimensions": {"left": r.left_dimension or None, "right": r.right_dimension or None,
-                       "problem": r.problem, "likely_fix": r.fix},
+        "formula": r.text,
+        "line": r.line,
+        "status": r.status,
+        "dimensions": {
+            "left": r.left_dimension or None,
+            "right": r.right_dimension or None,
+            "problem": r.problem,
+            "likely_fix": r.fix,
+        },
         "embodies": list(match.labels) if match else [],
-        "assumptions": [{"assumption": word, "carrier": carrier}
-                        for word, carrier in (match.assumptions if match else ())],
+        "assumptions": [
+            {"assumption": word, "carrier": carrier}
+            for word, carrier in (match.assumptions if match else ())
+        ],
         "relations": list(match.relations) if match else [],
         "proof": match.proof if match else None,
-        "at_operating_point": {"unit": r.unit or r.si_unit or None, "formula": _number(r.value * factor),
-                               "exact": _number(r.exact * factor), "error": _number(r.error),
-                               "error_measure": "kT" if r.unit == "eV" else "relative"},
+        "at_operating_point": {
+            "unit": r.unit or r.si_unit or None,
+            "formula": _number(r.value * factor),
+            "exact": _number(r.exact * factor),
+            "error": _number(r.error),
+            "error_measure": "kT" if r.unit == "eV" else "relative",
+        },
     }
 
 
@@ -217,28 +282,42 @@ def render_json(result, exit_code: int) -> str:
     calculations = []
     for report in result.reports:
         calc = report.calc
-        calculations.append({
-            "source": {"file": calc.source, "line": calc.line},
-            "name": calc.name,
-            "material": calc.material.name,
-            "temperature_K": calc.temperature,
-            "doping_cm3": {"donors": {k: v * 1e-6 for k, v in calc.donors.items()},
-                           "acceptors": {k: v * 1e-6 for k, v in calc.acceptors.items()}},
-            "state": report.state,
-            "sweep": sweep_json(report),
-            "formulas": [formula_json(r) for r in report.formulas],
-            "findings": [finding_json(f) for f in report.findings],
-            "notes": report.notes,
-            "error": report.error,
-        })
+        calculations.append(
+            {
+                "source": {"file": calc.source, "line": calc.line},
+                "name": calc.name,
+                "material": calc.material.name,
+                "temperature_K": calc.temperature,
+                "doping_cm3": {
+                    "donors": {k: v * 1e-6 for k, v in calc.donors.items()},
+                    "acceptors": {k: v * 1e-6 for k, v in calc.acceptors.items()},
+                },
+                "state": report.state,
+                "sweep": sweep_json(report),
+                "formulas": [formula_json(r) for r in report.formulas],
+                "findings": [finding_json(f) for f in report.findings],
+                "notes": report.notes,
+                "error": report.error,
+            }
+        )
     counts = result.counts()
-    return json.dumps(visible_data({
-        "format": JSON_FORMAT,
-        "notice": DISCLAIMER,
-        "calculations": calculations,
-        "input_errors": result.input_errors,
-        "notes": result.notes,
-        "summary": {"calculations": len(result.reports), "findings": counts,
-                    "input_errors": len(result.input_errors), "worst": result.worst(),
-                    "exit_code": exit_code},
-    }), indent=2, ensure_ascii=False)
+    return json.dumps(
+        visible_data(
+            {
+                "format": JSON_FORMAT,
+                "notice": DISCLAIMER,
+                "calculations": calculations,
+                "input_errors": result.input_errors,
+                "notes": result.notes,
+                "summary": {
+                    "calculations": len(result.reports),
+                    "findings": counts,
+                    "input_errors": len(result.input_errors),
+                    "worst": result.worst(),
+                    "exit_code": exit_code,
+                },
+            }
+        ),
+        indent=2,
+        ensure_ascii=False,
+    )

@@ -13,6 +13,7 @@ below the fail level passes; input errors are errors of their file's suite.
 Both say once that the results are screening checks (SARIF run properties,
 JUnit testsuites properties).
 """
+
 from __future__ import annotations
 
 import json
@@ -37,8 +38,10 @@ def _finding_text(f) -> str:
     if f.indicator_text():
         parts.append(f"Regime indicator: {f.indicator_text()}.")
     for c in f.corrections:
-        parts.append(f"{c.label}: {display(c.stated, c.unit)} ({c.stated_by}) -> "
-                     f"{display(c.corrected, c.unit)} [{c.error_text()}].")
+        parts.append(
+            f"{c.label}: {display(c.stated, c.unit)} ({c.stated_by}) -> "
+            f"{display(c.corrected, c.unit)} [{c.error_text()}]."
+        )
     if f.formula:
         parts.append(f"From the stated formula {f.formula}.")
     if f.column:
@@ -52,7 +55,7 @@ def _uri(path: str) -> str:
     text = path.replace("\\", "/")
     try:
         raw = text.encode("utf-8", "surrogateescape")
-    except UnicodeEncodeError:          # a lone surrogate no file system gave us
+    except UnicodeEncodeError:  # a lone surrogate no file system gave us
         raw = text.encode("utf-8", "backslashreplace")
     return quote(raw, safe="/:")
 
@@ -60,19 +63,27 @@ def _uri(path: str) -> str:
 def render_sarif(result, exit_code: int) -> str:
     rules = list(result.rules)
     index = {rule.id: i for i, rule in enumerate(rules)}
-    descriptors = [{
-        "id": rule.id,
-        "name": re.sub(r"[^A-Za-z0-9]+", " ", rule.title).title().replace(" ", ""),
-        "shortDescription": {"text": rule.title},
-        "fullDescription": {"text": " ".join(rule.why.split())},
-        "help": {"text": f"Fix: {' '.join(rule.fix.split())} Example: "
-                         f"{' '.join(rule.example.split())}",
-                 "markdown": f"**Fix.** {' '.join(rule.fix.split())}\n\n**Example.** "
-                             f"{' '.join(rule.example.split())}\n\n**References.** "
-                             + "; ".join(rule.references)},
-        "defaultConfiguration": {"level": SARIF_LEVEL[rule.severity]},
-        "properties": {"assumption": rule.assumption, "threshold_source": rule.threshold_source},
-    } for rule in rules]
+    descriptors = [
+        {
+            "id": rule.id,
+            "name": re.sub(r"[^A-Za-z0-9]+", " ", rule.title).title().replace(" ", ""),
+            "shortDescription": {"text": rule.title},
+            "fullDescription": {"text": " ".join(rule.why.split())},
+            "help": {
+                "text": f"Fix: {' '.join(rule.fix.split())} Example: "
+                f"{' '.join(rule.example.split())}",
+                "markdown": f"**Fix.** {' '.join(rule.fix.split())}\n\n**Example.** "
+                f"{' '.join(rule.example.split())}\n\n**References.** "
+                + "; ".join(rule.references),
+            },
+            "defaultConfiguration": {"level": SARIF_LEVEL[rule.severity]},
+            "properties": {
+                "assumption": rule.assumption,
+                "threshold_source": rule.threshold_source,
+            },
+        }
+        for rule in rules
+    ]
     results = []
     for report in result.reports:
         for f in report.findings:
@@ -80,39 +91,69 @@ def render_sarif(result, exit_code: int) -> str:
                 "ruleId": f.rule,
                 "level": SARIF_LEVEL[f.severity],
                 "message": {"text": _finding_text(f)},
-                "locations": [{"physicalLocation": {
-                    "artifactLocation": {"uri": _uri(f.file)},
-                    "region": {"startLine": max(int(f.line), 1)}}}],
-                "properties": {"calculation": report.calc.name, "assumption": f.assumption,
-                               "carrier": f.carrier, "column": f.column},
+                "locations": [
+                    {
+                        "physicalLocation": {
+                            "artifactLocation": {"uri": _uri(f.file)},
+                            "region": {"startLine": max(int(f.line), 1)},
+                        }
+                    }
+                ],
+                "properties": {
+                    "calculation": report.calc.name,
+                    "assumption": f.assumption,
+                    "carrier": f.carrier,
+                    "column": f.column,
+                },
             }
             if f.rule in index:
                 entry["ruleIndex"] = index[f.rule]
             if f.waived:
-                entry["suppressions"] = [{"kind": "external" if "(configuration," in f.waived
-                                          else "inSource", "justification": f.waived}]
+                entry["suppressions"] = [
+                    {
+                        "kind": "external" if "(configuration," in f.waived else "inSource",
+                        "justification": f.waived,
+                    }
+                ]
             results.append(entry)
     notifications = []
     for message in result.input_errors:
         note = {"level": "error", "message": {"text": message}}
         match = _LOCATION.match(message)
         if match:
-            note["locations"] = [{"physicalLocation": {
-                "artifactLocation": {"uri": _uri(match["file"])},
-                "region": {"startLine": int(match["line"])}}}]
+            note["locations"] = [
+                {
+                    "physicalLocation": {
+                        "artifactLocation": {"uri": _uri(match["file"])},
+                        "region": {"startLine": int(match["line"])},
+                    }
+                }
+            ]
         notifications.append(note)
     log = {
         "$schema": SARIF_SCHEMA,
         "version": "2.1.0",
-        "runs": [{
-            "tool": {"driver": {"name": "regimecheck", "version": __version__,
-                                "semanticVersion": __version__, "rules": descriptors}},
-            "invocations": [{"executionSuccessful": not result.input_errors,
-                             "exitCode": exit_code,
-                             "toolExecutionNotifications": notifications}],
-            "results": results,
-            "properties": {"notice": DISCLAIMER, "notes": result.notes},
-        }],
+        "runs": [
+            {
+                "tool": {
+                    "driver": {
+                        "name": "regimecheck",
+                        "version": __version__,
+                        "semanticVersion": __version__,
+                        "rules": descriptors,
+                    }
+                },
+                "invocations": [
+                    {
+                        "executionSuccessful": not result.input_errors,
+                        "exitCode": exit_code,
+                        "toolExecutionNotifications": notifications,
+                    }
+                ],
+                "results": results,
+                "properties": {"notice": DISCLAIMER, "notes": result.notes},
+            }
+        ],
     }
     return json.dumps(visible_data(log), indent=2, ensure_ascii=False)
 
@@ -142,8 +183,9 @@ def render_junit(result, exit_code: int, fail_on: str) -> str:
                 if name in used:
                     continue
                 used.add(name)
-                case = ET.SubElement(suite, "testcase", name=name, classname=source,
-                                     file=source, line=str(calc.line))
+                case = ET.SubElement(
+                    suite, "testcase", name=name, classname=source, file=source, line=str(calc.line)
+                )
                 counts["tests"] += 1
                 hits = [f for f in report.findings if f.rule == rule.id]
                 if report.error:
@@ -154,18 +196,21 @@ def render_junit(result, exit_code: int, fail_on: str) -> str:
                 failing = [f for f in active if SEVERITY_RANK[f.severity] >= threshold]
                 if failing:
                     text = "\n".join(f"{f.file}:{f.line}: {_finding_text(f)}" for f in failing)
-                    ET.SubElement(case, "failure", message=failing[0].title,
-                                  type=failing[0].severity).text = text
+                    ET.SubElement(
+                        case, "failure", message=failing[0].title, type=failing[0].severity
+                    ).text = text
                     counts["failures"] += 1
                 elif hits and not active:
                     ET.SubElement(case, "skipped", message=f"waived: {hits[0].waived}")
                     counts["skipped"] += 1
                 elif active:
                     ET.SubElement(case, "system-out").text = "\n".join(
-                        f"{f.severity}: {_finding_text(f)}" for f in active)
+                        f"{f.severity}: {_finding_text(f)}" for f in active
+                    )
         for message in errors_by_file.get(source, []):
-            case = ET.SubElement(suite, "testcase", name=f"input :: {message[:80]}",
-                                 classname=source)
+            case = ET.SubElement(
+                suite, "testcase", name=f"input :: {message[:80]}", classname=source
+            )
             ET.SubElement(case, "error", message="input error").text = message
             counts["tests"] += 1
             counts["errors"] += 1

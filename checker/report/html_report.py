@@ -7,6 +7,7 @@ the regime map of its material and dopant with the point (or sweep) on it.  The
 markup is XHTML-compatible (every element closed), so it parses as XML as well as
 HTML, and it prints one calculation per page where it fits.
 """
+
 from __future__ import annotations
 
 import html
@@ -15,13 +16,17 @@ import re
 from ..engine.number_text import display
 from . import DISCLAIMER
 from .check_report import STATE_ROWS, formula_lines, summary_line
-from .sweep_text import axis_text, finding_message
 from .safe_text import visible
+from .sweep_text import axis_text, finding_message
 
 MAP_RESOLUTION = 90
-MAPS_PER_CALCULATION = 40      # above this many calculations: one map per material and dopant
-_ENTITIES = {"&InvisibleTimes;": "&#8290;", "&ApplyFunction;": "&#8289;",
-             "&#x2062;": "&#8290;", "&nbsp;": "&#160;"}
+MAPS_PER_CALCULATION = 40  # above this many calculations: one map per material and dopant
+_ENTITIES = {
+    "&InvisibleTimes;": "&#8290;",
+    "&ApplyFunction;": "&#8289;",
+    "&#x2062;": "&#8290;",
+    "&nbsp;": "&#160;",
+}
 
 STYLE = """
 body { font-family: "DejaVu Sans", Arial, sans-serif; margin: 2em auto; max-width: 62em;
@@ -61,8 +66,9 @@ def _mathml(tree_left, tree_right) -> str:
     for entity, number in _ENTITIES.items():
         markup = markup.replace(entity, number)
     # other named entities are HTML-only: write them as characters (XML knows five)
-    markup = re.sub(r"&(?!(?:amp|lt|gt|quot|apos);)([A-Za-z]+);",
-                    lambda m: html.unescape(m.group(0)), markup)
+    markup = re.sub(
+        r"&(?!(?:amp|lt|gt|quot|apos);)([A-Za-z]+);", lambda m: html.unescape(m.group(0)), markup
+    )
     return f'<math xmlns="http://www.w3.org/1998/Math/MathML" display="block">{markup}</math>'
 
 
@@ -71,10 +77,10 @@ def _svg(fig, salt: str) -> str:
 
     from .plots import render
 
-    matplotlib.rcParams["svg.hashsalt"] = salt     # ids unique across the inline figures
+    matplotlib.rcParams["svg.hashsalt"] = salt  # ids unique across the inline figures
     text = render(fig, "svg").decode("utf-8")
     # the RDF metadata block only names the generator; a review page does not need it
-    return re.sub(r"<metadata>.*?</metadata>\s*", "", text[text.index("<svg"):], flags=re.S)
+    return re.sub(r"<metadata>.*?</metadata>\s*", "", text[text.index("<svg") :], flags=re.S)
 
 
 def _findings_table(report) -> str:
@@ -82,34 +88,46 @@ def _findings_table(report) -> str:
         return '<p class="clean">No assumption leaves its regime.</p>'
     rows = []
     for f in report.findings:
-        tag = f'<span class="severity {"waived" if f.waived else f.severity}">' \
-              f'{"waived" if f.waived else f.severity}</span>'
+        tag = (
+            f'<span class="severity {"waived" if f.waived else f.severity}">'
+            f"{'waived' if f.waived else f.severity}</span>"
+        )
         where = f"{f.file}:{f.line}" + (f" ({f.column})" if f.column else "")
         details = [f"<strong>{_text(f.title)}.</strong> {_text(finding_message(f))}"]
         if f.indicator_text():
-            details.append(f'<br/><span class="meta">regime indicator: '
-                           f'{_text(f.indicator_text())}</span>')
+            details.append(
+                f'<br/><span class="meta">regime indicator: {_text(f.indicator_text())}</span>'
+            )
         if f.waived:
             details.append(f'<br/><span class="meta">waived: {_text(f.waived)}</span>')
-        corrections = "<br/>".join(
-            f"{_text(c.label)}: {_text(display(c.stated, c.unit))} ({_text(c.stated_by)}) → "
-            f"<strong>{_text(display(c.corrected, c.unit))}</strong> "
-            f"[{_text(c.error_text())}]" for c in f.corrections) or "–"
-        rows.append(f"<tr><td>{tag}</td><td>{_text(f.rule)}</td><td>{_text(where)}</td>"
-                    f"<td>{''.join(details)}</td><td>{corrections}</td></tr>")
-    return ("<table><thead><tr><th>severity</th><th>rule</th><th>where</th><th>finding</th>"
-            "<th>stated → corrected</th></tr></thead><tbody>" + "".join(rows)
-            + "</tbody></table>")
+        corrections = (
+            "<br/>".join(
+                f"{_text(c.label)}: {_text(display(c.stated, c.unit))} ({_text(c.stated_by)}) → "
+                f"<strong>{_text(display(c.corrected, c.unit))}</strong> "
+                f"[{_text(c.error_text())}]"
+                for c in f.corrections
+            )
+            or "–"
+        )
+        rows.append(
+            f"<tr><td>{tag}</td><td>{_text(f.rule)}</td><td>{_text(where)}</td>"
+            f"<td>{''.join(details)}</td><td>{corrections}</td></tr>"
+        )
+    return (
+        "<table><thead><tr><th>severity</th><th>rule</th><th>where</th><th>finding</th>"
+        "<th>stated → corrected</th></tr></thead><tbody>" + "".join(rows) + "</tbody></table>"
+    )
 
 
 def _state_table(report) -> str:
     if report.sweep:
-        axes = " × ".join(_text(axis_text(label, axis))
-                          for label, axis in report.sweep["axes"])
-        return f'<p>Sweep of {report.sweep["points"]} points: {axes}.</p>'
-    rows = "".join(f"<tr><th>{_text(label)}</th><td class=\"num\">"
-                   f"{_text(fmt.format(report.state[key]))}</td></tr>"
-                   for key, label, fmt in STATE_ROWS)
+        axes = " × ".join(_text(axis_text(label, axis)) for label, axis in report.sweep["axes"])
+        return f"<p>Sweep of {report.sweep['points']} points: {axes}.</p>"
+    rows = "".join(
+        f'<tr><th>{_text(label)}</th><td class="num">'
+        f"{_text(fmt.format(report.state[key]))}</td></tr>"
+        for key, label, fmt in STATE_ROWS
+    )
     return f'<table class="state"><tbody>{rows}</tbody></table>'
 
 
@@ -123,10 +141,13 @@ def _formulas(report) -> str:
         except Exception:  # noqa: BLE001 - printing is cosmetic; the text is shown anyway
             math = ""
         notes = "<br/>".join(_text(line) for line in formula_lines(r))
-        items.append(f"<tr><td><code>{_text(r.text)}</code> (line {r.line}){math}</td>"
-                     f"<td>{notes}</td></tr>")
-    return ("<h3>Stated formulas</h3><table><thead><tr><th>formula</th><th>what it is, and "
-            "its value here</th></tr></thead><tbody>" + "".join(items) + "</tbody></table>")
+        items.append(
+            f"<tr><td><code>{_text(r.text)}</code> (line {r.line}){math}</td><td>{notes}</td></tr>"
+        )
+    return (
+        "<h3>Stated formulas</h3><table><thead><tr><th>formula</th><th>what it is, and "
+        "its value here</th></tr></thead><tbody>" + "".join(items) + "</tbody></table>"
+    )
 
 
 def _map(report, index, grids, shared=None) -> str:
@@ -143,8 +164,10 @@ def _map(report, index, grids, shared=None) -> str:
     key = (name, species)
     if shared is not None:
         if key in grids:
-            return (f'<p class="meta">Regime map: see <a href="#map-{grids[key]}">{_text(name)}, '
-                    f"{_text(species)}</a>.</p>")
+            return (
+                f'<p class="meta">Regime map: see <a href="#map-{grids[key]}">{_text(name)}, '
+                f"{_text(species)}</a>.</p>"
+            )
         grids[key] = index
         points = shared[key][1]
         title = f"{name}: regimes of {species} doping, with every calculation of this run"
@@ -166,26 +189,41 @@ class _Single:
 
 
 def render_html(result, exit_code: int, maps: bool = True) -> str:
-    parts = ['<!DOCTYPE html>', '<html xmlns="http://www.w3.org/1999/xhtml" lang="en">',
-             '<head><meta charset="utf-8"/><title>regimecheck review</title>',
-             f"<style>{STYLE}</style></head><body>",
-             "<h1>regimecheck review</h1>", f'<p class="meta">{_text(summary_line(result))}</p>']
+    parts = [
+        "<!DOCTYPE html>",
+        '<html xmlns="http://www.w3.org/1999/xhtml" lang="en">',
+        '<head><meta charset="utf-8"/><title>regimecheck review</title>',
+        f"<style>{STYLE}</style></head><body>",
+        "<h1>regimecheck review</h1>",
+        f'<p class="meta">{_text(summary_line(result))}</p>',
+    ]
     grids = {}
     shared = None
     if len(result.reports) > MAPS_PER_CALCULATION:
         from ..engine.regime.regime_map import map_groups
 
         shared = map_groups(result)
-        parts.append(f'<p class="meta">{len(result.reports)} calculations: one regime map per '
-                     "material and dopant, with all their points.</p>")
+        parts.append(
+            f'<p class="meta">{len(result.reports)} calculations: one regime map per '
+            "material and dopant, with all their points.</p>"
+        )
     for index, report in enumerate(result.reports):
         calc = report.calc
         parts.append(f'<section id="calc-{index}"><h2>{_text(calc.name)}</h2>')
-        point = "sweep" if calc.sweep else (
-            f"{calc.temperature:.2f} K · " + ", ".join(
-                f"{k} {v * 1e-6:.3g} cm⁻³" for k, v in {**calc.donors, **calc.acceptors}.items()))
-        parts.append(f'<p class="meta">{_text(calc.source)}:{calc.line} · '
-                     f"{_text(calc.material.name)} · {_text(point)}</p>")
+        point = (
+            "sweep"
+            if calc.sweep
+            else (
+                f"{calc.temperature:.2f} K · "
+                + ", ".join(
+                    f"{k} {v * 1e-6:.3g} cm⁻³" for k, v in {**calc.donors, **calc.acceptors}.items()
+                )
+            )
+        )
+        parts.append(
+            f'<p class="meta">{_text(calc.source)}:{calc.line} · '
+            f"{_text(calc.material.name)} · {_text(point)}</p>"
+        )
         if report.error:
             parts.append(f'<p class="error">Not checked: {_text(report.error)}</p></section>')
             continue
@@ -198,8 +236,11 @@ def render_html(result, exit_code: int, maps: bool = True) -> str:
             parts.append(_map(report, index, grids, shared))
         parts.append("</section>")
     if result.input_errors:
-        parts.append("<h2>Input errors</h2><ul>" + "".join(
-            f"<li>{_text(m)}</li>" for m in result.input_errors) + "</ul>")
+        parts.append(
+            "<h2>Input errors</h2><ul>"
+            + "".join(f"<li>{_text(m)}</li>" for m in result.input_errors)
+            + "</ul>"
+        )
     for note in result.notes:
         parts.append(f'<p class="meta">note: {_text(note)}</p>')
     parts.append(f'<p class="notice">{_text(DISCLAIMER)}</p></body></html>')

@@ -4,6 +4,7 @@ A summary line, a table of the findings (severity, rule, where, what, stated ->
 corrected), then per calculation its operating point and its stated formulas
 with what each embodies.  The screening-check sentence closes it, once.
 """
+
 from __future__ import annotations
 
 import re
@@ -11,8 +12,8 @@ import re
 from ..engine.number_text import display
 from . import DISCLAIMER
 from .check_report import doping_text, formula_lines, summary_line
-from .sweep_text import axis_text, finding_message
 from .safe_text import visible
+from .sweep_text import axis_text, finding_message
 
 # Markdown would act on these (HTML tags, entities, links, emphasis, code, table cells)
 _MARKUP = re.compile(r"([\\`*_\[\]<>&|!~#])")
@@ -37,22 +38,33 @@ def _code(text) -> str:
 
 
 def _corrections(f) -> str:
-    return "<br>".join(_cell(f"{c.label}: {display(c.stated, c.unit)} → "
-                             f"{display(c.corrected, c.unit)} ({c.error_text()})")
-                       for c in f.corrections) or "–"
+    return (
+        "<br>".join(
+            _cell(
+                f"{c.label}: {display(c.stated, c.unit)} → "
+                f"{display(c.corrected, c.unit)} ({c.error_text()})"
+            )
+            for c in f.corrections
+        )
+        or "–"
+    )
 
 
 def render_markdown(result, exit_code: int) -> str:
     lines = ["## regimecheck review", "", _cell(summary_line(result)), ""]
     findings = [(r, f) for r in result.reports for f in r.findings]
     if findings:
-        lines += ["| severity | rule | where | finding | stated → corrected |",
-                  "|---|---|---|---|---|"]
-        for report, f in findings:
+        lines += [
+            "| severity | rule | where | finding | stated → corrected |",
+            "|---|---|---|---|---|",
+        ]
+        for _report, f in findings:
             severity = f"waived ({_cell(f.waived)})" if f.waived else f.severity
             column = f" ({_cell(f.column)})" if f.column else ""
-            lines.append(f"| {severity} | {_cell(f.rule)} | {_code(f'{f.file}:{f.line}')}{column} | "
-                         f"**{_cell(f.title)}.** {_cell(finding_message(f))} | {_corrections(f)} |")
+            lines.append(
+                f"| {severity} | {_cell(f.rule)} | {_code(f'{f.file}:{f.line}')}{column} | "
+                f"**{_cell(f.title)}.** {_cell(finding_message(f))} | {_corrections(f)} |"
+            )
         lines.append("")
     else:
         lines += ["No assumption leaves its regime.", ""]
@@ -60,30 +72,42 @@ def render_markdown(result, exit_code: int) -> str:
         calc = report.calc
         lines.append(f"### {_cell(calc.name)}")
         lines.append("")
-        lines.append(f"{_code(f'{calc.source}:{calc.line}')} · " + _cell(
-            f"{calc.material.name} · {calc.temperature:.2f} K · "
-            f"{doping_text(calc.donors, calc.acceptors)}"))
+        lines.append(
+            f"{_code(f'{calc.source}:{calc.line}')} · "
+            + _cell(
+                f"{calc.material.name} · {calc.temperature:.2f} K · "
+                f"{doping_text(calc.donors, calc.acceptors)}"
+            )
+        )
         lines.append("")
         if report.error:
             lines += [f"Not checked: {_cell(report.error)}", ""]
             continue
         state = report.state
         if report.sweep:
-            lines.append(_cell(f"Sweep of {report.sweep['points']} points: " + " × ".join(
-                axis_text(label, axis) for label, axis in report.sweep["axes"]) + "."))
+            lines.append(
+                _cell(
+                    f"Sweep of {report.sweep['points']} points: "
+                    + " × ".join(axis_text(label, axis) for label, axis in report.sweep["axes"])
+                    + "."
+                )
+            )
         else:
-            lines.append(f"Regime **{_cell(state['regime'])}**; " + _cell(
-                f"E_F − E_C = {state['EF_minus_EC_eV']:+.4f} eV (η_n = {state['eta_n']:+.3f}); "
-                f"n = {state['n_cm3']:.4g} cm⁻³, p = {state['p_cm3']:.4g} cm⁻³; "
-                f"n_i = {state['ni_cm3']:.4g} cm⁻³."))
+            lines.append(
+                f"Regime **{_cell(state['regime'])}**; "
+                + _cell(
+                    f"E_F − E_C = {state['EF_minus_EC_eV']:+.4f} eV (η_n = {state['eta_n']:+.3f}); "
+                    f"n = {state['n_cm3']:.4g} cm⁻³, p = {state['p_cm3']:.4g} cm⁻³; "
+                    f"n_i = {state['ni_cm3']:.4g} cm⁻³."
+                )
+            )
         lines.append("")
         if report.formulas:
             lines += ["| formula | line | what it is | here |", "|---|---|---|---|"]
             for r in report.formulas:
                 what = formula_lines(r)
                 here = what[1] if len(what) > 1 else "–"
-                lines.append(f"| {_code(r.text)} | {r.line} | {_cell(what[0])} | "
-                             f"{_cell(here)} |")
+                lines.append(f"| {_code(r.text)} | {r.line} | {_cell(what[0])} | {_cell(here)} |")
             lines.append("")
         for note in report.notes:
             lines += [f"> note: {_cell(note)}", ""]

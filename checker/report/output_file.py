@@ -5,6 +5,7 @@ or symlink to one, the settings file), and never half: the whole output is rende
 first, written to a temporary file beside the target and renamed over it only when
 complete, so an error or Ctrl-C leaves any previous file as it was.
 """
+
 from __future__ import annotations
 
 import contextlib
@@ -16,9 +17,16 @@ from pathlib import Path
 from ..errors import InputError
 
 # --output suffix -> report format, when --format is not given
-SUFFIX_FORMATS = {".json": "json", ".md": "markdown", ".markdown": "markdown",
-                  ".sarif": "sarif", ".xml": "junit", ".html": "html", ".htm": "html",
-                  ".txt": "console"}
+SUFFIX_FORMATS = {
+    ".json": "json",
+    ".md": "markdown",
+    ".markdown": "markdown",
+    ".sarif": "sarif",
+    ".xml": "junit",
+    ".html": "html",
+    ".htm": "html",
+    ".txt": "console",
+}
 
 
 def format_for(output) -> str | None:
@@ -47,8 +55,10 @@ def refuse_inputs(output, read, option="--output") -> None:
         if path is None:
             continue
         if os.path.realpath(path) == target or (identity and _identity(path) == identity):
-            raise InputError(f"{option} {output}: that is the input file {path} of this run; "
-                             "name another file (inputs are never overwritten)")
+            raise InputError(
+                f"{option} {output}: that is the input file {path} of this run; "
+                "name another file (inputs are never overwritten)"
+            )
 
 
 def _new_file_mode() -> int:
@@ -68,13 +78,14 @@ def write_atomically(output, data: bytes, option="--output") -> None:
         if info is not None and stat.S_ISDIR(info.st_mode):
             raise InputError(f"{option} {output}: that is a directory; name a file")
         if info is not None and not stat.S_ISREG(info.st_mode):
-            with open(output, "wb") as out:     # a pipe or device: cannot be renamed over
+            with open(output, "wb") as out:  # a pipe or device: cannot be renamed over
                 out.write(data)
             return
         target = Path(os.path.realpath(output))
         mode = stat.S_IMODE(info.st_mode) if info is not None else _new_file_mode()
-        handle, temporary = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.",
-                                             suffix=".partial")
+        handle, temporary = tempfile.mkstemp(
+            dir=target.parent, prefix=f".{target.name}.", suffix=".partial"
+        )
     except OSError as exc:
         raise InputError(f"{option} {output}: cannot write ({exc.strerror})") from None
     try:

@@ -3,6 +3,7 @@
 Formulas are pretty-printed by sympy from the parsed rule expressions (built
 directly as sympy objects, never re-parsed from text).
 """
+
 from __future__ import annotations
 
 import textwrap
@@ -14,8 +15,7 @@ _WRAP = 88
 
 
 def _block(title: str, text: str) -> str:
-    body = textwrap.fill(" ".join(text.split()), _WRAP, initial_indent="  ",
-                         subsequent_indent="  ")
+    body = textwrap.fill(" ".join(text.split()), _WRAP, initial_indent="  ", subsequent_indent="  ")
     return f"{title}\n{body}"
 
 
@@ -26,9 +26,15 @@ def _formula(label: str, tree) -> str:
 
 def _engine_text(rule) -> list:
     """The 'how it is evaluated' part of a rule checked by engine code (formula analysis)."""
-    lines = [_block("When it applies", "to every formula in a calculation's 'formulas' list, "
-                    "after its symbols are mapped onto trade symbols (regimecheck symbols)."),
-             "", "Condition (fires when)"]
+    lines = [
+        _block(
+            "When it applies",
+            "to every formula in a calculation's 'formulas' list, "
+            "after its symbols are mapped onto trade symbols (regimecheck symbols).",
+        ),
+        "",
+        "Condition (fires when)",
+    ]
     if rule.threshold == rule.threshold:
         lines.append(f"  {rule.indicator_label} > {rule.threshold:g}")
     else:
@@ -39,12 +45,18 @@ def _engine_text(rule) -> list:
 
 def explain_text(rule) -> str:
     if rule.evaluated_by:
-        lines = [f"{rule.id}  {rule.title}",
-                 f"  guards: {rule.assumption}   severity: {rule.severity}   evaluated by "
-                 f"{rule.evaluated_by}", ""] + _engine_text(rule)
+        lines = [
+            f"{rule.id}  {rule.title}",
+            f"  guards: {rule.assumption}   severity: {rule.severity}   evaluated by "
+            f"{rule.evaluated_by}",
+            "",
+        ] + _engine_text(rule)
         return "\n".join(lines + _closing(rule))
-    per = ("per carrier: names ending in _x are the carrier checked, _o the other one"
-           if rule.per == "carrier" else "per calculation")
+    per = (
+        "per carrier: names ending in _x are the carrier checked, _o the other one"
+        if rule.per == "carrier"
+        else "per calculation"
+    )
     applies = []
     if rule.declared:
         applies.append("the author declares " + " or ".join(rule.declared))
@@ -70,9 +82,14 @@ def explain_text(rule) -> str:
         for c in rule.corrections:
             lines.append(_formula(f"{c.label} [{c.unit}], shortcut", c.shortcut.tree))
             lines.append(_formula(f"{c.label} [{c.unit}], exact", c.exact.tree))
-    names = sorted(expression.names_in(rule.indicator.tree).union(
-        *(expression.names_in(c.exact.tree) | expression.names_in(c.shortcut.tree)
-          for c in rule.corrections)))
+    names = sorted(
+        expression.names_in(rule.indicator.tree).union(
+            *(
+                expression.names_in(c.exact.tree) | expression.names_in(c.shortcut.tree)
+                for c in rule.corrections
+            )
+        )
+    )
     glossary = {**COMMON, **PER_CARRIER}
     known = [n for n in names if n in glossary]
     if known:
@@ -82,6 +99,14 @@ def explain_text(rule) -> str:
 
 
 def _closing(rule) -> list:
-    lines = ["", _block("Why it matters", rule.why), "", _block("Example", rule.example), "",
-             _block("Fix", rule.fix), "", "References"]
+    lines = [
+        "",
+        _block("Why it matters", rule.why),
+        "",
+        _block("Example", rule.example),
+        "",
+        _block("Fix", rule.fix),
+        "",
+        "References",
+    ]
     return lines + [f"  - {ref}" for ref in rule.references]

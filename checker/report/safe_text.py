@@ -8,16 +8,19 @@ encoded, e.g. from a file name that is not UTF-8), U+FFFE/U+FFFF (forbidden in X
 1.0) and the bidirectional overrides (they reorder what a reviewer reads).  Tab and
 newline stay.  Each format adds its own quoting (HTML entities, Markdown escapes).
 """
+
 from __future__ import annotations
 
 import re
 
-_UNSAFE = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u061c\u200e\u200f\u202a-\u202e"
-                     "\u2066-\u2069\ud800-\udfff\ufffe\uffff]")
+_UNSAFE = re.compile(
+    "[\x00-\x08\x0b-\x1f\x7f-\x9f\u061c\u200e\u200f\u202a-\u202e"
+    "\u2066-\u2069\ud800-\udfff\ufffe\uffff]"
+)
 
 
 def _escape(match) -> str:
-    return ascii(match.group(0))[1:-1]      # '\x1b' -> \x1b, '\ud800' -> \ud800
+    return ascii(match.group(0))[1:-1]  # '\x1b' -> \x1b, '\ud800' -> \ud800
 
 
 def visible(text) -> str:

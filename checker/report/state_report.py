@@ -1,4 +1,5 @@
 """Render solved operating points for the console (rich) or as JSON."""
+
 from __future__ import annotations
 
 import json
@@ -33,8 +34,13 @@ def render_console(entries, errors, console) -> None:
 
     # user text as Text, never as a string rich would read as markup ("[/]" fails)
     for title, subtitle, summary in entries:
-        table = Table(title=Text(visible(title)), caption=Text(visible(subtitle)),
-                      show_header=False, title_justify="left", caption_justify="left")
+        table = Table(
+            title=Text(visible(title)),
+            caption=Text(visible(subtitle)),
+            show_header=False,
+            title_justify="left",
+            caption_justify="left",
+        )
         table.add_column("quantity")
         table.add_column("value", justify="right")
         for key, label, fmt in ROWS:
@@ -42,14 +48,20 @@ def render_console(entries, errors, console) -> None:
         console.print(table)
     for message in errors:
         console.print(Text("error ", style="bold red") + Text(visible(message)), highlight=False)
-    console.print(f"{len(entries)} operating point(s) solved, {len(errors)} input error(s).",
-                  highlight=False)
+    console.print(
+        f"{len(entries)} operating point(s) solved, {len(errors)} input error(s).", highlight=False
+    )
     console.print(DISCLAIMER, highlight=False)
 
 
 def render_json(entries, errors) -> str:
-    return json.dumps(visible_data({
-        "points": [{"name": t, "where": sub, "state": s} for t, sub, s in entries],
-        "errors": errors,
-        "notice": DISCLAIMER,
-    }), indent=2)
+    return json.dumps(
+        visible_data(
+            {
+                "points": [{"name": t, "where": sub, "state": s} for t, sub, s in entries],
+                "errors": errors,
+                "notice": DISCLAIMER,
+            }
+        ),
+        indent=2,
+    )

@@ -1,5 +1,6 @@
 """Sweeps in words: axis values in trade units, where a rule fails on the grid, and
 the message of a finding that covers a grid (from engine.regime.sweep's numbers)."""
+
 from __future__ import annotations
 
 from ..engine.regime.sweep import axis_label
@@ -12,8 +13,10 @@ def axis_value(axis, value) -> str:
 
 def axis_text(label, axis) -> str:
     """One axis of a sweep: 'T 233.1 K … 423.1 K (39 linear steps)'."""
-    return (f"{label} {axis_value(axis, axis.values[0])} … {axis_value(axis, axis.values[-1])} "
-            f"({len(axis.values)} {axis.spacing} steps)")
+    return (
+        f"{label} {axis_value(axis, axis.values[0])} … {axis_value(axis, axis.values[-1])} "
+        f"({len(axis.values)} {axis.spacing} steps)"
+    )
 
 
 def _runs_text(axis, runs) -> str:
@@ -27,8 +30,9 @@ def _runs_text(axis, runs) -> str:
         elif run.high is None:
             parts.append(f"for {label} ≥ {axis_value(axis, run.low)}")
         else:
-            parts.append(f"for {axis_value(axis, run.low)} ≤ {label} ≤ "
-                         f"{axis_value(axis, run.high)}")
+            parts.append(
+                f"for {axis_value(axis, run.low)} ≤ {label} ≤ {axis_value(axis, run.high)}"
+            )
     return " and ".join(parts) or "nowhere"
 
 
@@ -44,8 +48,11 @@ def boundary_lines(summary) -> list:
         if row.single:
             where = f"at {label} = {axis_value(row_axis, first)}"
         else:
-            span = f"every {label}" if row.every else (
-                f"{label} = {axis_value(row_axis, first)} … {axis_value(row_axis, last)}")
+            span = (
+                f"every {label}"
+                if row.every
+                else (f"{label} = {axis_value(row_axis, first)} … {axis_value(row_axis, last)}")
+            )
             edge = f" (edge at {axis_value(row_axis, middle)})" if summary.interpolated else ""
             where = f"at {span}{edge}"
         lines.append(f"{where}: fails {_runs_text(summary.axis, row.runs)}")
@@ -63,5 +70,7 @@ def finding_message(finding) -> str:
     if summary is None:
         return finding.message
     where = ", ".join(f"{k} = {v}" for k, v in worst_point(summary).items())
-    return (f"On {summary.failing_fraction:.1%} of the sweep; "
-            f"{'; '.join(boundary_lines(summary))}. Worst at {where}: {finding.message}")
+    return (
+        f"On {summary.failing_fraction:.1%} of the sweep; "
+        f"{'; '.join(boundary_lines(summary))}. Worst at {where}: {finding.message}"
+    )

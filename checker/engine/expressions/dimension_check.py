@@ -7,24 +7,43 @@ get an argument with a dimension, or where a quantity with a dimension is raised
 power that is not a constant.  A name's dimension follows from its display unit in
 engine/vocabulary.py (kT is shown in eV: an energy, J inside).
 """
+
 from __future__ import annotations
 
 import math
 
+from ..vocabulary import COMMON, CONSTANTS, PER_CARRIER
 from . import dimensions as dm
 from .parser import folded, to_text
-from ..vocabulary import COMMON, CONSTANTS, PER_CARRIER
 
 # display unit (vocabulary.DISPLAY_UNITS) -> dimension
 UNIT_DIMENSIONS = {
-    "1": dm.NONE, "%": dm.NONE, "K": dm.TEMPERATURE, "eV": dm.ENERGY, "V": dm.VOLTAGE,
-    "cm^-3": dm.density(3), "cm^-2": dm.density(2), "cm^-1": dm.density(1),
-    "cm^-6": dm.density(3) ** 2, "cm^-4": dm.density(2) ** 2,
-    "cm^2/(V*s)": dm.MOBILITY, "cm^2/s": dm.DIFFUSIVITY, "cm/s": dm.VELOCITY,
-    "kV/cm": dm.FIELD, "ohm*cm": dm.RESISTANCE * dm.LENGTH, "S/cm": dm.conductivity(3),
-    "ohm": dm.RESISTANCE, "ohm/sq": dm.RESISTANCE, "S": dm.NONE / dm.RESISTANCE,
-    "nm": dm.LENGTH, "um": dm.LENGTH, "um^2": dm.AREA, "A/cm^2": dm.CURRENT / dm.AREA,
-    "m0": dm.MASS, "ohm*cm^2": dm.RESISTANCE * dm.AREA, "ns": dm.TIME,
+    "1": dm.NONE,
+    "%": dm.NONE,
+    "K": dm.TEMPERATURE,
+    "eV": dm.ENERGY,
+    "V": dm.VOLTAGE,
+    "cm^-3": dm.density(3),
+    "cm^-2": dm.density(2),
+    "cm^-1": dm.density(1),
+    "cm^-6": dm.density(3) ** 2,
+    "cm^-4": dm.density(2) ** 2,
+    "cm^2/(V*s)": dm.MOBILITY,
+    "cm^2/s": dm.DIFFUSIVITY,
+    "cm/s": dm.VELOCITY,
+    "kV/cm": dm.FIELD,
+    "ohm*cm": dm.RESISTANCE * dm.LENGTH,
+    "S/cm": dm.conductivity(3),
+    "ohm": dm.RESISTANCE,
+    "ohm/sq": dm.RESISTANCE,
+    "S": dm.NONE / dm.RESISTANCE,
+    "nm": dm.LENGTH,
+    "um": dm.LENGTH,
+    "um^2": dm.AREA,
+    "A/cm^2": dm.CURRENT / dm.AREA,
+    "m0": dm.MASS,
+    "ohm*cm^2": dm.RESISTANCE * dm.AREA,
+    "ns": dm.TIME,
 }
 CONSTANT_DIMENSIONS = {"q": dm.CHARGE, "k": dm.ENERGY / dm.TEMPERATURE}
 
@@ -48,8 +67,10 @@ def name_dimension(name: str) -> dm.Dimension:
 def _same(trees, dimensions, what: str) -> dm.Dimension:
     for tree, dimension in zip(trees[1:], dimensions[1:]):
         if dimension != dimensions[0]:
-            raise DimensionProblem(f"{to_text(trees[0])} is {dm.describe(dimensions[0])} but "
-                                   f"{to_text(tree)} is {dm.describe(dimension)}; {what}")
+            raise DimensionProblem(
+                f"{to_text(trees[0])} is {dm.describe(dimensions[0])} but "
+                f"{to_text(tree)} is {dm.describe(dimension)}; {what}"
+            )
     return dimensions[0]
 
 
@@ -69,9 +90,11 @@ def dimension(tree, of_name=name_dimension) -> dm.Dimension:
         if name in _DIMENSIONLESS_ARGUMENTS:
             for argument, found in zip(args, inner):
                 if not found.dimensionless:
-                    raise DimensionProblem(f"the argument of {name}(), {to_text(argument)}, "
-                                           f"is {dm.describe(found)}; it must be "
-                                           "dimensionless")
+                    raise DimensionProblem(
+                        f"the argument of {name}(), {to_text(argument)}, "
+                        f"is {dm.describe(found)}; it must be "
+                        "dimensionless"
+                    )
             return dm.NONE
         if name == "sqrt":
             return inner[0] ** 0.5
@@ -81,8 +104,9 @@ def dimension(tree, of_name=name_dimension) -> dm.Dimension:
             _same(args, inner, "less() compares values of one dimension")
             return dm.NONE
         if name in _ALIKE_ARGUMENTS:
-            return _same(args, inner, f"the values {name}() chooses between must have one "
-                                      "dimension")
+            return _same(
+                args, inner, f"the values {name}() chooses between must have one dimension"
+            )
         raise DimensionProblem(f"{name}() has no dimension rule")
     left, right = dimension(tree[1], of_name), dimension(tree[2], of_name)
     if kind in ("+", "-"):
@@ -97,6 +121,8 @@ def dimension(tree, of_name=name_dimension) -> dm.Dimension:
         return dm.NONE
     power = folded(tree[2])
     if power is None or not math.isfinite(power):
-        raise DimensionProblem(f"{to_text(tree[1])} ({dm.describe(left)}) is raised to the "
-                               f"non-constant power {to_text(tree[2])}")
-    return left ** power
+        raise DimensionProblem(
+            f"{to_text(tree[1])} ({dm.describe(left)}) is raised to the "
+            f"non-constant power {to_text(tree[2])}"
+        )
+    return left**power

@@ -5,6 +5,7 @@ length, time, voltage, charge, temperature.  The basis is SI-equivalent
 (kg = V·C·s²/m², A = C/s) but reads the way device engineers write units:
 a mobility is m²/(V·s), not kg⁻¹·s²·A.
 """
+
 from __future__ import annotations
 
 from fractions import Fraction
@@ -17,8 +18,9 @@ class Dimension(tuple):
     """Exponents of (m, s, V, C, K); multiply/divide/power like quantities."""
 
     def __new__(cls, m=0, s=0, V=0, C=0, K=0):
-        return super().__new__(cls, (Fraction(m), Fraction(s), Fraction(V), Fraction(C),
-                                     Fraction(K)))
+        return super().__new__(
+            cls, (Fraction(m), Fraction(s), Fraction(V), Fraction(C), Fraction(K))
+        )
 
     def __mul__(self, other):
         return Dimension(*(a + b for a, b in zip(self, other)))
@@ -46,7 +48,7 @@ VOLTAGE = Dimension(V=1)
 CHARGE = Dimension(C=1)
 TEMPERATURE = Dimension(K=1)
 ENERGY = VOLTAGE * CHARGE
-MASS = ENERGY * TIME ** 2 / AREA
+MASS = ENERGY * TIME**2 / AREA
 CURRENT = CHARGE / TIME
 RESISTANCE = VOLTAGE / CURRENT
 MOBILITY = AREA / (VOLTAGE * TIME)
@@ -57,7 +59,7 @@ FIELD = VOLTAGE / LENGTH
 
 def density(dim: int) -> Dimension:
     """Carriers per unit volume (3D), area (2D) or length (1D)."""
-    return LENGTH ** -dim
+    return LENGTH**-dim
 
 
 def conductivity(dim: int) -> Dimension:
@@ -99,7 +101,7 @@ def _power(symbol: str, exponent: Fraction) -> str:
     if exponent == 1:
         return symbol
     if exponent.denominator != 1:
-        return f"{symbol}^({exponent})"           # m^(3/2): clearer than a superscript slash
+        return f"{symbol}^({exponent})"  # m^(3/2): clearer than a superscript slash
     return symbol + str(exponent).translate(_SUPERSCRIPT)
 
 

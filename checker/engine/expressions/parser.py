@@ -25,6 +25,7 @@ later step (numeric samples, the exact normal form, sympy) small.
 A product written without ``*`` (``2N_D``, ``N_D mu_n``, ``2(a + b)``) is refused
 with the explicit form to write instead.
 """
+
 from __future__ import annotations
 
 import ast
@@ -82,7 +83,12 @@ FUNCTIONS = {
     "min": (2, np.fmin, "Min", "smaller of two values"),
     "max": (2, np.fmax, "Max", "larger of two values"),
     "F": (2, _fermi, "F", "Fermi–Dirac integral F_j(eta), normalized (F_j -> e^eta for eta << 0)"),
-    "stated_or": (2, _stated_or, "stated_or", "the stated value where one is given, else the second"),
+    "stated_or": (
+        2,
+        _stated_or,
+        "stated_or",
+        "the stated value where one is given, else the second",
+    ),
     "present": (1, _present, "present", "1 where a value is given, else 0"),
     "less": (2, _less, "less", "1 where the first value is below the second, else 0"),
 }
@@ -100,8 +106,9 @@ def parse(text: str, names=None, where: str = "", functions=None) -> tuple:
     if not isinstance(text, str):
         raise InputError(f"{place}expected an expression as text, got {text!r}")
     if len(text) > MAX_LENGTH:
-        raise InputError(f"{place}expression is {len(text)} characters long; the limit is "
-                         f"{MAX_LENGTH}")
+        raise InputError(
+            f"{place}expression is {len(text)} characters long; the limit is {MAX_LENGTH}"
+        )
     if text.count("(") > MAX_DEPTH * 4:
         raise InputError(f"{place}expression has too many parentheses (limit {MAX_DEPTH * 4})")
     try:
@@ -113,8 +120,10 @@ def parse(text: str, names=None, where: str = "", functions=None) -> tuple:
             detail = f"it is nested deeper than {MAX_DEPTH} levels"
         products = _implicit_products(text)
         if products:
-            raise InputError(f"{place}a product needs an explicit '*' in {_shown(text)}: write "
-                             f"{', '.join(products)}") from None
+            raise InputError(
+                f"{place}a product needs an explicit '*' in {_shown(text)}: write "
+                f"{', '.join(products)}"
+            ) from None
         raise InputError(f"{place}cannot parse expression {_shown(text)}: {detail}") from None
     counter = [0]
     allowed = FUNCTIONS if functions is None else {f: FUNCTIONS[f] for f in functions}
@@ -131,11 +140,13 @@ def _walk(node, names, place, text, counter, depth, allowed):
     if isinstance(node, ast.Constant) and type(node.value) in (int, float):
         try:
             value = float(node.value)
-        except OverflowError:              # an integer literal of 309 digits or more
+        except OverflowError:  # an integer literal of 309 digits or more
             value = math.inf
         if not math.isfinite(value) or abs(value) > MAX_CONSTANT:
-            raise InputError(f"{place}constant {_shown(str(node.value), 24)} is out of range "
-                             "(|x| <= 1e300); write it with an exponent, e.g. 1.5e20")
+            raise InputError(
+                f"{place}constant {_shown(str(node.value), 24)} is out of range "
+                "(|x| <= 1e300); write it with an exponent, e.g. 1.5e20"
+            )
         return ("num", value)
     if isinstance(node, ast.Name):
         if names is not None and node.id not in names:
@@ -160,20 +171,28 @@ def _walk(node, names, place, text, counter, depth, allowed):
     if isinstance(node, ast.Call) and isinstance(node.func, ast.Name) and not node.keywords:
         name = node.func.id
         if name not in allowed:
-            raise InputError(f"{place}function {name!r} is not available; use one of "
-                             f"{', '.join(allowed)} (for a product write {name}*(...))")
+            raise InputError(
+                f"{place}function {name!r} is not available; use one of "
+                f"{', '.join(allowed)} (for a product write {name}*(...))"
+            )
         arity = allowed[name][0]
         if len(node.args) != arity or any(isinstance(a, ast.Starred) for a in node.args):
             raise InputError(f"{place}{name}() takes {arity} argument(s)")
         return ("call", name, tuple(go(arg) for arg in node.args))
     kind = type(node).__name__
-    if kind == "Call" and isinstance(node.func, (ast.Constant, ast.BinOp, ast.UnaryOp)) \
-            and not node.keywords:                       # 2(a + b), (a + b)(c + d)
+    if (
+        kind == "Call"
+        and isinstance(node.func, (ast.Constant, ast.BinOp, ast.UnaryOp))
+        and not node.keywords
+    ):  # 2(a + b), (a + b)(c + d)
         factor = ast.get_source_segment(text.replace("^", "**"), node.func) or "..."
-        raise InputError(f"{place}a product needs an explicit '*': write "
-                         f"{factor.replace('**', '^')[:30]}*(...)")
-    raise InputError(f"{place}{_describe(kind)} is not allowed in an expression ({text[:60]!r}); "
-                     "use numbers, names, + - * / ^ and the listed functions")
+        raise InputError(
+            f"{place}a product needs an explicit '*': write {factor.replace('**', '^')[:30]}*(...)"
+        )
+    raise InputError(
+        f"{place}{_describe(kind)} is not allowed in an expression ({text[:60]!r}); "
+        "use numbers, names, + - * / ^ and the listed functions"
+    )
 
 
 def _check_power(base, exponent, place):
@@ -181,22 +200,30 @@ def _check_power(base, exponent, place):
     nesting inside other powers is out of range, and a constant power beyond 1e300."""
     power = ("**", base, exponent)
     if exponent[0] != "num" and _has_power(exponent):
-        raise InputError(f"{place}nested powers such as a^b^c are not accepted; "
-                         "use parentheses and a single power")
+        raise InputError(
+            f"{place}nested powers such as a^b^c are not accepted; "
+            "use parentheses and a single power"
+        )
     value = folded(exponent)
     if value is not None and not abs(value) <= MAX_EXPONENT:
-        raise InputError(f"{place}the exponent {_shown(to_text(exponent), 30)} is "
-                         f"{value:g}; the limit is |x| <= {MAX_EXPONENT:g}")
+        raise InputError(
+            f"{place}the exponent {_shown(to_text(exponent), 30)} is "
+            f"{value:g}; the limit is |x| <= {MAX_EXPONENT:g}"
+        )
     growth = _growth(power)
     if growth > MAX_EXPONENT:
-        raise InputError(f"{place}the powers nested in {_shown(to_text(power), 40)} raise a "
-                         f"factor to the power {growth:g}; the limit is {MAX_EXPONENT:g} "
-                         "(write the combined power once)")
+        raise InputError(
+            f"{place}the powers nested in {_shown(to_text(power), 40)} raise a "
+            f"factor to the power {growth:g}; the limit is {MAX_EXPONENT:g} "
+            "(write the combined power once)"
+        )
     if value is not None and not names_in(base):
         result = folded(power)
-        if not abs(result) <= MAX_CONSTANT:           # also inf and nan
-            raise InputError(f"{place}{_shown(to_text(power), 40)} is {result:g}; a "
-                             "constant must be a finite number with |x| <= 1e300")
+        if not abs(result) <= MAX_CONSTANT:  # also inf and nan
+            raise InputError(
+                f"{place}{_shown(to_text(power), 40)} is {result:g}; a "
+                "constant must be a finite number with |x| <= 1e300"
+            )
 
 
 @lru_cache(maxsize=4096)
@@ -234,9 +261,11 @@ def _has_power(tree) -> bool:
 # a product written without "*": a number directly before a name or "(" (2N_D, 2(a+b)),
 # a name or number, spaces, then a name or number (N_D mu_n), ")" before a name, number or "("
 _NUMBER = r"(?>\d+(?:\.\d*)?(?:[eE][+-]?\d+)?)"
-_IMPLICIT = re.compile(rf"(?<![\w.])({_NUMBER})\s*(?=[^\W\d]|\()"
-                       rf"|(?<![\w.])({_NUMBER}|[^\W\d]\w*)\s+(?=\w)"
-                       rf"|(\))\s*(?=[\w(])")
+_IMPLICIT = re.compile(
+    rf"(?<![\w.])({_NUMBER})\s*(?=[^\W\d]|\()"
+    rf"|(?<![\w.])({_NUMBER}|[^\W\d]\w*)\s+(?=\w)"
+    rf"|(\))\s*(?=[\w(])"
+)
 _NEXT_TOKEN = re.compile(r"\w+|\(")
 
 
@@ -267,10 +296,17 @@ def _shown(text: str, width: int = 60) -> str:
 
 
 def _describe(kind: str) -> str:
-    return {"Attribute": "attribute access", "Subscript": "indexing", "Lambda": "a lambda",
-            "Constant": "a text or non-numeric constant", "Compare": "a comparison",
-            "ListComp": "a comprehension", "GeneratorExp": "a comprehension",
-            "Call": "this kind of call", "BoolOp": "and/or"}.get(kind, f"{kind} syntax")
+    return {
+        "Attribute": "attribute access",
+        "Subscript": "indexing",
+        "Lambda": "a lambda",
+        "Constant": "a text or non-numeric constant",
+        "Compare": "a comparison",
+        "ListComp": "a comprehension",
+        "GeneratorExp": "a comprehension",
+        "Call": "this kind of call",
+        "BoolOp": "and/or",
+    }.get(kind, f"{kind} syntax")
 
 
 def names_in(tree) -> set:
@@ -298,8 +334,7 @@ def rename(tree, mapping: dict) -> tuple:
     return (kind,) + tuple(rename(part, mapping) for part in tree[1:])
 
 
-_NUMPY_BINARY = {"+": np.add, "-": np.subtract, "*": np.multiply, "/": np.divide,
-                 "**": np.power}
+_NUMPY_BINARY = {"+": np.add, "-": np.subtract, "*": np.multiply, "/": np.divide, "**": np.power}
 
 
 def to_numpy(tree, strict: bool = False):
@@ -338,16 +373,20 @@ def _finite_or_nan(value):
 
 
 def _sympy_number(value):
-    import sympy
     from fractions import Fraction
+
+    import sympy
 
     value = float(value)
     if value.is_integer() and abs(value) < 1e15:
         return sympy.Integer(int(value))
     exact = Fraction(value).limit_denominator(64)
     # 0.5, 1.5, 0.75 and decimals such as 0.1 are the rationals they stand for
-    return sympy.Rational(exact.numerator, exact.denominator) if float(exact) == value \
+    return (
+        sympy.Rational(exact.numerator, exact.denominator)
+        if float(exact) == value
         else sympy.Float(value)
+    )
 
 
 def to_sympy(tree, symbols=None, evaluate=False):
@@ -378,11 +417,17 @@ def to_sympy(tree, symbols=None, evaluate=False):
         builder = FUNCTIONS[tree[1]][2]
         args = [go(a) for a in tree[2]]
         if builder == "log10":
-            return sympy.Mul(sympy.log(args[0], evaluate=evaluate),
-                             sympy.Pow(sympy.log(10), -1, evaluate=evaluate), evaluate=evaluate)
+            return sympy.Mul(
+                sympy.log(args[0], evaluate=evaluate),
+                sympy.Pow(sympy.log(10), -1, evaluate=evaluate),
+                evaluate=evaluate,
+            )
         function = getattr(sympy, builder, None) or sympy.Function(builder)
-        return function(*args, evaluate=evaluate) \
-            if builder in ("exp", "log", "sqrt", "Abs", "Min", "Max") else function(*args)
+        return (
+            function(*args, evaluate=evaluate)
+            if builder in ("exp", "log", "sqrt", "Abs", "Min", "Max")
+            else function(*args)
+        )
     left, right = go(tree[1]), go(tree[2])
     minus_one = sympy.Integer(-1)
     if kind == "+":
@@ -419,9 +464,11 @@ def to_text(tree) -> str:
     if _PRECEDENCE.get(left[0], 9) < mine or (kind == "**" and left[0] in _PRECEDENCE):
         left_text = f"({left_text})"
     # right operand of - and / binds tighter; a power's exponent is wrapped unless atomic
-    if _PRECEDENCE.get(right[0], 9) < mine or \
-            (kind in ("-", "/") and _PRECEDENCE.get(right[0], 9) == mine) or \
-            (kind == "**" and right[0] in _PRECEDENCE):
+    if (
+        _PRECEDENCE.get(right[0], 9) < mine
+        or (kind in ("-", "/") and _PRECEDENCE.get(right[0], 9) == mine)
+        or (kind == "**" and right[0] in _PRECEDENCE)
+    ):
         right_text = f"({right_text})"
     sign = "^" if kind == "**" else kind
     spaced = f" {sign} " if kind in ("+", "-") else sign

@@ -17,6 +17,7 @@ For each formula ``lhs = rhs`` of a calculation:
   is off by more than FORM03's threshold is a finding unless a rule already
   fired on an assumption it embodies.
 """
+
 from __future__ import annotations
 
 import math
@@ -28,42 +29,84 @@ import numpy as np
 
 from ...errors import InputError
 from ...physics.constants import ELECTRON_MASS, PLANCK
-from ..expressions import dimensions as dm
 from ..expressions import dimension_check as expression_dimensions
+from ..expressions import dimensions as dm
+from ..expressions.parser import MAX_LENGTH, parse, rename, to_numpy, to_text
 from ..findings import Correction, Embodied, Finding, carrier_code
 from ..number_text import display, error_text
-from ..expressions.parser import MAX_LENGTH, parse, rename, to_numpy, to_text
-from .match import Match, analyse
-from .symbols import dimension_of, parse_side
-from .relations import world
 from ..regime.rulebook import PLACEHOLDER
+from .match import Match, analyse
+from .relations import world
+from .symbols import dimension_of, parse_side
 
 # lhs dimension -> display unit of the report
 _DISPLAY = {
-    dm.density(3): "cm^-3", dm.density(2): "cm^-2", dm.density(1): "cm^-1",
-    dm.MOBILITY: "cm^2/(V*s)", dm.DIFFUSIVITY: "cm^2/s", dm.VELOCITY: "cm/s",
-    dm.FIELD: "kV/cm", dm.conductivity(3): "S/cm", dm.NONE / dm.conductivity(3): "ohm*cm",
-    dm.RESISTANCE: "ohm", dm.NONE / dm.RESISTANCE: "S", dm.ENERGY: "eV", dm.VOLTAGE: "V",
-    dm.TEMPERATURE: "K", dm.NONE: "1", dm.LENGTH: "nm", dm.AREA: "um^2", dm.MASS: "m0",
-    dm.CURRENT / dm.AREA: "A/cm^2", dm.density(3) ** 2: "cm^-6", dm.density(2) ** 2: "cm^-4",
-    dm.RESISTANCE * dm.AREA: "ohm*cm^2", dm.TIME: "ns",
+    dm.density(3): "cm^-3",
+    dm.density(2): "cm^-2",
+    dm.density(1): "cm^-1",
+    dm.MOBILITY: "cm^2/(V*s)",
+    dm.DIFFUSIVITY: "cm^2/s",
+    dm.VELOCITY: "cm/s",
+    dm.FIELD: "kV/cm",
+    dm.conductivity(3): "S/cm",
+    dm.NONE / dm.conductivity(3): "ohm*cm",
+    dm.RESISTANCE: "ohm",
+    dm.NONE / dm.RESISTANCE: "S",
+    dm.ENERGY: "eV",
+    dm.VOLTAGE: "V",
+    dm.TEMPERATURE: "K",
+    dm.NONE: "1",
+    dm.LENGTH: "nm",
+    dm.AREA: "um^2",
+    dm.MASS: "m0",
+    dm.CURRENT / dm.AREA: "A/cm^2",
+    dm.density(3) ** 2: "cm^-6",
+    dm.density(2) ** 2: "cm^-4",
+    dm.RESISTANCE * dm.AREA: "ohm*cm^2",
+    dm.TIME: "ns",
 }
 # formula symbol -> quantity of the solved state (SI)
 _FROM_STATE = {
-    "T": "T", "k": "k", "q": "q", "eta_n": "eta_n", "eta_p": "eta_p", "E_g": "Eg",
-    "n": "dens_n", "p": "dens_p", "N_c": "Nband_n", "N_v": "Nband_p", "n_i": "ni",
-    "N_D": "N_n", "N_A": "N_p", "N_D_plus": "Nion_n", "N_A_minus": "Nion_p",
-    "f_D": "f_n", "f_A": "f_p", "g_D": "gdeg_n", "g_A": "gdeg_p",
-    "dE_D": "Eion_n", "dE_A": "Eion_p", "mu_n": "used_mu_n", "mu_p": "used_mu_p",
-    "v_sat_n": "vsat_n", "v_sat_p": "vsat_p", "beta_n": "beta_n", "beta_p": "beta_p",
-    "lambda_n": "lambda_n", "lambda_p": "lambda_p", "E": "field", "sigma": "sigma",
-    "rho": "rho", "L": "L", "A": "A", "t": "thickness",
+    "T": "T",
+    "k": "k",
+    "q": "q",
+    "eta_n": "eta_n",
+    "eta_p": "eta_p",
+    "E_g": "Eg",
+    "n": "dens_n",
+    "p": "dens_p",
+    "N_c": "Nband_n",
+    "N_v": "Nband_p",
+    "n_i": "ni",
+    "N_D": "N_n",
+    "N_A": "N_p",
+    "N_D_plus": "Nion_n",
+    "N_A_minus": "Nion_p",
+    "f_D": "f_n",
+    "f_A": "f_p",
+    "g_D": "gdeg_n",
+    "g_A": "gdeg_p",
+    "dE_D": "Eion_n",
+    "dE_A": "Eion_p",
+    "mu_n": "used_mu_n",
+    "mu_p": "used_mu_p",
+    "v_sat_n": "vsat_n",
+    "v_sat_p": "vsat_p",
+    "beta_n": "beta_n",
+    "beta_p": "beta_p",
+    "lambda_n": "lambda_n",
+    "lambda_p": "lambda_p",
+    "E": "field",
+    "sigma": "sigma",
+    "rho": "rho",
+    "L": "L",
+    "A": "A",
+    "t": "thickness",
 }
 # symbols a calculation gives no value for (their formulas are dimension-checked only)
 _NOT_STATED = ("tau_n", "tau_p")
 # the solve is of a bulk (3D) crystal: its densities are not sheet or line densities
-_BULK_ONLY = ("n", "p", "N_c", "N_v", "n_i", "N_D", "N_A", "N_D_plus", "N_A_minus", "sigma",
-              "rho")
+_BULK_ONLY = ("n", "p", "N_c", "N_v", "n_i", "N_D", "N_A", "N_D_plus", "N_A_minus", "sigma", "rho")
 
 
 # a stated formula whose parts do not fit together (the shared walker's exception)
@@ -73,20 +116,20 @@ _Mismatch = expression_dimensions.DimensionProblem
 @dataclass
 class FormulaResult:
     text: str
-    where: str                     # file:line:column
+    where: str  # file:line:column
     line: int
     lhs: tuple
     rhs: tuple
     left_dimension: str = ""
     right_dimension: str = ""
-    problem: str | None = None     # dimension problem, in words
-    fix: str | None = None         # likely corrected formula
+    problem: str | None = None  # dimension problem, in words
+    fix: str | None = None  # likely corrected formula
     match: Match | None = None
-    value: float = math.nan        # right side at the operating point (SI)
-    exact: float = math.nan        # left side, exact, at the operating point (SI)
-    unit: str = ""                 # display unit (a key of DISPLAY_UNITS), "" for SI
-    si_unit: str = ""              # SI unit text where no display unit is set
-    error: float = math.nan        # relative error, or (value - exact)/kT for energies
+    value: float = math.nan  # right side at the operating point (SI)
+    exact: float = math.nan  # left side, exact, at the operating point (SI)
+    unit: str = ""  # display unit (a key of DISPLAY_UNITS), "" for SI
+    si_unit: str = ""  # SI unit text where no display unit is set
+    error: float = math.nan  # relative error, or (value - exact)/kT for energies
 
     @property
     def status(self) -> str:
@@ -108,9 +151,9 @@ class FormulaResult:
 
 @dataclass
 class FormulaAnalysis:
-    results: list = field(default_factory=list)     # FormulaResult, in file order
-    embodied: list = field(default_factory=list)    # Embodied
-    errors: list = field(default_factory=list)      # input errors (file:line: ...)
+    results: list = field(default_factory=list)  # FormulaResult, in file order
+    embodied: list = field(default_factory=list)  # Embodied
+    errors: list = field(default_factory=list)  # input errors (file:line: ...)
 
 
 # ---- parsing --------------------------------------------------------------------------------
@@ -118,17 +161,22 @@ def parse_formula(text: str, majority: str, where: str) -> tuple:
     """(lhs, rhs, spelled): trees in canonical symbols and the author's spelling of each
     symbol; InputError for anything else."""
     if len(text) > MAX_LENGTH:
-        raise InputError(f"{where}: the formula is {len(text)} characters long; the limit is "
-                         f"{MAX_LENGTH}")
+        raise InputError(
+            f"{where}: the formula is {len(text)} characters long; the limit is {MAX_LENGTH}"
+        )
     sides = text.split("=")
     if len(sides) != 2 or any(c in text for c in "<>!"):
-        raise InputError(f"{where}: write a formula as '<left side> = <right side>' with one "
-                         f"'=' (got {text[:60]!r})")
+        raise InputError(
+            f"{where}: write a formula as '<left side> = <right side>' with one "
+            f"'=' (got {text[:60]!r})"
+        )
     left, right = (side.strip() for side in sides)
     if not left or not right:
         raise InputError(f"{where}: one side of {text[:60]!r} is empty")
-    (lhs, left_names), (rhs, right_names) = (parse_side(left, majority, where),
-                                             parse_side(right, majority, where))
+    (lhs, left_names), (rhs, right_names) = (
+        parse_side(left, majority, where),
+        parse_side(right, majority, where),
+    )
     return lhs, rhs, {**right_names, **left_names}
 
 
@@ -138,7 +186,8 @@ def dimension(tree, dim: int) -> dm.Dimension:
     """The dimension of a canonical tree by the walker rule expressions use (one algebra
     for both); _Mismatch where it has none (cached: trees repeat across calculations)."""
     return expression_dimensions.dimension(
-        tree, lambda name: dm.NONE if name == "pi" else dimension_of(name, dim))
+        tree, lambda name: dm.NONE if name == "pi" else dimension_of(name, dim)
+    )
 
 
 def _factors(tree, exponent=1) -> list:
@@ -209,8 +258,13 @@ def operating_values(values: dict, calculations) -> list:
     known["E_c"] = np.asarray(values["Eg"], dtype=float)
     known["E_F"] = known["E_c"] + values["eta_n"] * kT
     known["W"] = np.array([c.structure.get("width", np.nan) for c in calculations], dtype=float)
-    known.update({"h": np.full(count, PLANCK), "m0": np.full(count, ELECTRON_MASS),
-                  "pi": np.full(count, math.pi)})
+    known.update(
+        {
+            "h": np.full(count, PLANCK),
+            "m0": np.full(count, ELECTRON_MASS),
+            "pi": np.full(count, math.pi),
+        }
+    )
     # no lifetime is stated in a calculation: what depends on one is not evaluated
     known.update({name: np.full(count, np.nan) for name in _NOT_STATED})
     dims = np.array([int(c.structure.get("dim", 3)) for c in calculations], dtype=int)
@@ -227,7 +281,8 @@ def operating_values(values: dict, calculations) -> list:
             for name in base.order:
                 if name not in point:
                     point[name] = np.broadcast_to(
-                        to_numpy(base.definitions[name])(point), (len(members),))
+                        to_numpy(base.definitions[name])(point), (len(members),)
+                    )
         for k, i in enumerate(members):
             out[i] = {name: float(array[k]) for name, array in point.items()}
     return out
@@ -265,8 +320,9 @@ def analyse_calculation(calc, point: dict | None) -> FormulaAnalysis:
             continue
         result.left_dimension, result.right_dimension = dm.describe(left), dm.describe(right)
         if left != right:
-            result.problem = (f"the left side is {dm.describe(left)}, the right side "
-                              f"{dm.describe(right)}")
+            result.problem = (
+                f"the left side is {dm.describe(left)}, the right side {dm.describe(right)}"
+            )
             fix = likely_fix(lhs, rhs, dim, calc.majority)
             if fix is not None:
                 result.fix = f"{to_text(rename(lhs, spelled))} = {to_text(rename(fix, spelled))}"
@@ -293,20 +349,23 @@ def analyse_all(calculations, values, skip=()) -> list:
     if with_formulas:
         solved = [i for i in with_formulas if i not in skip]
         if solved:
-            subset = {name: np.asarray(array)[solved] if np.ndim(array) else array
-                      for name, array in values.items()}
-            for i, point in zip(solved, operating_values(subset, [calculations[i]
-                                                                  for i in solved])):
+            subset = {
+                name: np.asarray(array)[solved] if np.ndim(array) else array
+                for name, array in values.items()
+            }
+            for i, point in zip(
+                solved, operating_values(subset, [calculations[i] for i in solved])
+            ):
                 points[i] = point
-    return [analyse_calculation(calc, points[i]) if calc.formulas else FormulaAnalysis()
-            for i, calc in enumerate(calculations)]
+    return [
+        analyse_calculation(calc, points[i]) if calc.formulas else FormulaAnalysis()
+        for i, calc in enumerate(calculations)
+    ]
 
 
 # ---- findings -------------------------------------------------------------------------------
 def _fill(template: str, fields: dict) -> str:
     return PLACEHOLDER.sub(lambda m: fields.get(m.group(1), ""), template)
-
-
 
 
 def _covered(analysis, rules, rule_findings) -> set:
@@ -316,8 +375,11 @@ def _covered(analysis, rules, rule_findings) -> set:
         rule = rules.get(finding.rule)
         carrier = carrier_code(finding.carrier)
         for item in analysis.embodied:
-            if rule is not None and item.word in rule.declared and \
-                    (carrier is None or item.carrier in (None, carrier)):
+            if (
+                rule is not None
+                and item.word in rule.declared
+                and (carrier is None or item.carrier in (None, carrier))
+            ):
                 covered.add(item.formula)
     return covered
 
@@ -327,45 +389,92 @@ def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings
     out = []
     covered = _covered(analysis, rules, rule_findings)
     for result in analysis.results:
-        fields = {"formula": result.text, "left": result.left_dimension,
-                  "right": result.right_dimension, "detail": result.problem or "",
-                  "fix": result.fix or "check the unit of each factor"}
+        fields = {
+            "formula": result.text,
+            "left": result.left_dimension,
+            "right": result.right_dimension,
+            "detail": result.problem or "",
+            "fix": result.fix or "check the unit of each factor",
+        }
         if result.problem:
             rule = rules.get("FORM01")
             if rule:
                 out.append(_finding(rule, calc, result, _fill(rule.message, fields), []))
             continue
         match = result.match
-        fields.update({
-            "value": result.show(result.value), "exact": result.show(result.exact),
-            "error": result.error_text(),
-            "embodies": ", ".join(match.labels) if match.labels else
-            ("no shortcut (it is exact)" if match.status == "exact" else
-             "no named limit (it matches no exact relation)"),
-        })
+        fields.update(
+            {
+                "value": result.show(result.value),
+                "exact": result.show(result.exact),
+                "error": result.error_text(),
+                "embodies": ", ".join(match.labels)
+                if match.labels
+                else (
+                    "no shortcut (it is exact)"
+                    if match.status == "exact"
+                    else "no named limit (it matches no exact relation)"
+                ),
+            }
+        )
         corrections = []
-        if np.isfinite(result.value) and np.isfinite(result.exact) and result.exact != 0 \
-                and result.unit:
-            corrections.append(Correction(to_text(result.lhs), result.unit, result.value,
-                                          result.exact, result.value / result.exact - 1.0,
-                                          False, origin="formula"))
+        if (
+            np.isfinite(result.value)
+            and np.isfinite(result.exact)
+            and result.exact != 0
+            and result.unit
+        ):
+            corrections.append(
+                Correction(
+                    to_text(result.lhs),
+                    result.unit,
+                    result.value,
+                    result.exact,
+                    result.value / result.exact - 1.0,
+                    False,
+                    origin="formula",
+                )
+            )
         off_rule = rules.get("FORM03")
-        off = off_rule is not None and np.isfinite(result.error) and \
-            abs(result.error) > off_rule.threshold and result.text not in covered
+        off = (
+            off_rule is not None
+            and np.isfinite(result.error)
+            and abs(result.error) > off_rule.threshold
+            and result.text not in covered
+        )
         if match.status == "unrecognised" and "FORM02" in rules:
             rule = rules["FORM02"]
             out.append(_finding(rule, calc, result, _fill(rule.message, fields), corrections))
         if off:
             fields["threshold"] = display(off_rule.threshold, off_rule.indicator_unit)
-            out.append(_finding(off_rule, calc, result, _fill(off_rule.message, fields),
-                                corrections, abs(result.error)))
+            out.append(
+                _finding(
+                    off_rule,
+                    calc,
+                    result,
+                    _fill(off_rule.message, fields),
+                    corrections,
+                    abs(result.error),
+                )
+            )
     return out
 
 
 def _finding(rule, calc, result, message, corrections, indicator=math.nan) -> Finding:
     return Finding(
-        rule=rule.id, title=rule.title, severity=rule.severity, assumption=rule.assumption,
-        carrier=None, indicator_label=rule.indicator_label, indicator_value=indicator,
-        indicator_unit=rule.indicator_unit, relation="above", threshold=rule.threshold,
-        threshold_source=rule.threshold_source, message=message, corrections=corrections,
-        file=calc.source, line=result.line, formula=result.text)
+        rule=rule.id,
+        title=rule.title,
+        severity=rule.severity,
+        assumption=rule.assumption,
+        carrier=None,
+        indicator_label=rule.indicator_label,
+        indicator_value=indicator,
+        indicator_unit=rule.indicator_unit,
+        relation="above",
+        threshold=rule.threshold,
+        threshold_source=rule.threshold_source,
+        message=message,
+        corrections=corrections,
+        file=calc.source,
+        line=result.line,
+        formula=result.text,
+    )

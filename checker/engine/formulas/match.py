@@ -24,6 +24,7 @@ computed from the tree first, and a formula above SYMPY_BUDGET is not proved
 No set: the formula is unrecognised.  The result depends only on the formula,
 the dimensionality and the majority carrier, so it is cached per process.
 """
+
 from __future__ import annotations
 
 import math
@@ -33,19 +34,29 @@ from itertools import combinations
 
 import numpy as np
 
-from . import normal_form
 from ..expressions.parser import folded, to_numpy, to_sympy
-from .relations import (RELATION_NAMES, WORDS_IN, acts_on, closure, expand, limited, limits,
-                        names_in, sample, world)
+from . import normal_form
+from .relations import (
+    RELATION_NAMES,
+    WORDS_IN,
+    acts_on,
+    closure,
+    expand,
+    limited,
+    limits,
+    names_in,
+    sample,
+    world,
+)
 
-POINTS = 12            # random points per identity test
-MIN_POINTS = 6         # points where both sides must be finite
-TOLERANCE = 1e-9       # relative agreement that counts as identical
+POINTS = 12  # random points per identity test
+MIN_POINTS = 6  # points where both sides must be finite
+TOLERANCE = 1e-9  # relative agreement that counts as identical
 SEED = 20261202
 # terms sympy may make of a difference (all sub-expressions together) times its symbols:
 # the catalogue's forms need at most ~1,000; 5,000 takes sympy about a second
 SYMPY_BUDGET = 5000
-MAX_SYMPY_EXPONENT = 256   # the parser allows 64; definitions raise it by a small factor
+MAX_SYMPY_EXPONENT = 256  # the parser allows 64; definitions raise it by a small factor
 # symbols that tie a formula to the donors or to the acceptors
 DONOR_SYMBOLS = frozenset({"N_D", "N_D_plus", "f_D", "g_D", "E_D"})
 ACCEPTOR_SYMBOLS = frozenset({"N_A", "N_A_minus", "f_A", "g_A", "E_A"})
@@ -55,12 +66,12 @@ _SIGNED = frozenset({"E_c", "E_v", "E_F"})
 
 @dataclass(frozen=True)
 class Match:
-    status: str                 # "exact" | "limit" | "unrecognised"
+    status: str  # "exact" | "limit" | "unrecognised"
     world: str | None
-    limits: tuple               # relations.Limit, in report order
-    relations: tuple            # names of the exact relations involved
-    assumptions: tuple          # (word, carrier or None) passed to the rules
-    proof: str | None           # "symbolic" | "numeric" | None
+    limits: tuple  # relations.Limit, in report order
+    relations: tuple  # names of the exact relations involved
+    assumptions: tuple  # (word, carrier or None) passed to the rules
+    proof: str | None  # "symbolic" | "numeric" | None
 
     @property
     def labels(self) -> tuple:
@@ -115,11 +126,15 @@ def _analyse(lhs: tuple, rhs: tuple, dim: int, majority: str) -> Match:
     for which in _worlds(names, majority):
         base = world(dim, which, majority)
         used = closure(names, base.definitions)
-        candidates = [limit for limit in limits(which)
-                      if any(acts_on(limit, base.definitions[n]) for n in used)
-                      or any(acts_on(limit, side) for side in (lhs, rhs))]
-        found = _smallest(lhs, rhs, base, candidates, names, rng,
-                          None if best is None else len(best[1]))
+        candidates = [
+            limit
+            for limit in limits(which)
+            if any(acts_on(limit, base.definitions[n]) for n in used)
+            or any(acts_on(limit, side) for side in (lhs, rhs))
+        ]
+        found = _smallest(
+            lhs, rhs, base, candidates, names, rng, None if best is None else len(best[1])
+        )
         if found is not None and (best is None or len(found) < len(best[1])):
             best = (base, found)
     if best is None:
@@ -128,8 +143,14 @@ def _analyse(lhs: tuple, rhs: tuple, dim: int, majority: str) -> Match:
     proof = _proof(lhs, rhs, limited(base, chosen))
     if proof is None:
         return Match("unrecognised", None, (), (), (), None)
-    return Match("exact" if not chosen else "limit", base.world, chosen,
-                 _relations(lhs, rhs, base, chosen), _assumptions(names, base, chosen), proof)
+    return Match(
+        "exact" if not chosen else "limit",
+        base.world,
+        chosen,
+        _relations(lhs, rhs, base, chosen),
+        _assumptions(names, base, chosen),
+        proof,
+    )
 
 
 def _smallest(lhs, rhs, base, candidates, names, rng, at_most):
@@ -144,10 +165,12 @@ def _smallest(lhs, rhs, base, candidates, names, rng, at_most):
             definitions = limited(base, chosen)
             needed = closure(names, definitions)
             # inputs a limit pins (e.g. N_A -> 0) come first, then definitions in order
-            order = tuple(n for n in needed if n not in base.definitions) + \
-                tuple(n for n in base.order if n in needed)
-            inputs_needed = (names | {m for n in needed for m in names_in(definitions[n])}) \
-                - set(definitions)
+            order = tuple(n for n in needed if n not in base.definitions) + tuple(
+                n for n in base.order if n in needed
+            )
+            inputs_needed = (names | {m for n in needed for m in names_in(definitions[n])}) - set(
+                definitions
+            )
             degenerate = tuple(x for x in ("n", "p") if f"deg_{x}" in ids)
             key = (degenerate, frozenset(inputs_needed))
             if key not in primitives_cache:
@@ -159,8 +182,9 @@ def _smallest(lhs, rhs, base, candidates, names, rng, at_most):
 
 
 def _acted(limit, names, base) -> list:
-    return [n for n in sorted(closure(names, base.definitions))
-            if acts_on(limit, base.definitions[n])]
+    return [
+        n for n in sorted(closure(names, base.definitions)) if acts_on(limit, base.definitions[n])
+    ]
 
 
 # a limit that acts on both carriers is still about one of them where only its relation is used
@@ -183,12 +207,19 @@ def _assumptions(names, base, chosen) -> tuple:
 
 
 def _relations(lhs, rhs, base, chosen) -> tuple:
-    direct = [n for n in _in_order(lhs) + _in_order(rhs) if n in base.definitions
-              and n in RELATION_NAMES]
+    direct = [
+        n for n in _in_order(lhs) + _in_order(rhs) if n in base.definitions and n in RELATION_NAMES
+    ]
     if chosen:
-        direct = [n for n in direct if any(
-            acts_on(limit, base.definitions[m]) for limit in chosen
-            for m in closure({n}, base.definitions))] or direct
+        direct = [
+            n
+            for n in direct
+            if any(
+                acts_on(limit, base.definitions[m])
+                for limit in chosen
+                for m in closure({n}, base.definitions)
+            )
+        ] or direct
     else:
         direct = direct[:1]
     names = []
@@ -243,7 +274,7 @@ class _OverBudget(Exception):
 
 
 def _within(count: int) -> int:
-    if count > SYMPY_BUDGET:               # numbers stay small however large the tree
+    if count > SYMPY_BUDGET:  # numbers stay small however large the tree
         raise _OverBudget
     return count
 
@@ -262,11 +293,11 @@ def _terms(tree, inner) -> int:
         if exponent is None or not math.isfinite(exponent):
             inner[0] = _within(inner[0] + base + _terms(tree[2], inner))
             return 1
-        if abs(exponent) > MAX_SYMPY_EXPONENT:   # sympy would compute 10^(10^9) exactly
+        if abs(exponent) > MAX_SYMPY_EXPONENT:  # sympy would compute 10^(10^9) exactly
             raise _OverBudget
-        whole = int(abs(exponent))          # (a + b)^(5/2) -> (a + b)^2 * sqrt(a + b)
+        whole = int(abs(exponent))  # (a + b)^(5/2) -> (a + b)^2 * sqrt(a + b)
         size = _within(math.comb(base + whole - 1, whole)) if base > 1 else 1
-        if exponent < 0:                   # the denominator is expanded on its own
+        if exponent < 0:  # the denominator is expanded on its own
             inner[0] = _within(inner[0] + size)
             return 1
         return size
@@ -281,8 +312,11 @@ def _proved_by_sympy(a, b) -> bool:
     symbols = {"pi": sympy.pi}
     for name in names_in(a) | names_in(b):
         if name != "pi":
-            symbols[name] = sympy.Symbol(name, real=True) if name in _SIGNED \
+            symbols[name] = (
+                sympy.Symbol(name, real=True)
+                if name in _SIGNED
                 else sympy.Symbol(name, positive=True)
+            )
     left = to_sympy(a, symbols, evaluate=True)
     right = to_sympy(b, symbols, evaluate=True)
     difference = left - right

@@ -18,13 +18,14 @@ sums, bits of a coefficient), which keep it from growing without end.  Symbols
 are taken as positive (energies appear only inside exp, log, F and as
 differences, which are kept as sums).
 """
+
 from __future__ import annotations
 
 from fractions import Fraction
 
-MAX_TERMS = 400          # larger expansions are left to sympy
-MAX_POWER = 8            # integer powers of sums expanded up to this
-MAX_BITS = 4096          # larger exact coefficients are left to sympy
+MAX_TERMS = 400  # larger expansions are left to sympy
+MAX_POWER = 8  # integer powers of sums expanded up to this
+MAX_BITS = 4096  # larger exact coefficients are left to sympy
 
 
 class Unsupported(Exception):
@@ -35,7 +36,7 @@ class Unsupported(Exception):
 # exp_argument = a frozen polynomial.  A polynomial (working form) is {monomial: Fraction};
 # frozen: a sorted tuple of (monomial, coefficient).
 ONE_MONO = ((), ())
-_SUMS = {}               # atom name -> frozen polynomial it stands for (powers of sums)
+_SUMS = {}  # atom name -> frozen polynomial it stands for (powers of sums)
 
 
 def _freeze(poly: dict) -> tuple:
@@ -116,8 +117,9 @@ def _mul(p: dict, q: dict) -> dict:
 
 def _expand_integer_sums(poly: dict) -> dict:
     """A power-of-sum atom whose exponent has become an integer is multiplied out."""
-    if not any(atom in _SUMS and power.denominator == 1
-               for mono in poly for atom, power in mono[0]):
+    if not any(
+        atom in _SUMS and power.denominator == 1 for mono in poly for atom, power in mono[0]
+    ):
         return poly
     out = {}
     for (factors, exp_arg), coeff in poly.items():
@@ -145,7 +147,7 @@ def _int_power(p: dict, k: int) -> dict:
 
 
 def _mono_inverse(p: dict) -> dict:
-    ((factors, exp_arg), coeff), = p.items()
+    (((factors, exp_arg), coeff),) = p.items()
     inverse = tuple((a, -e) for a, e in factors)
     exp_inverse = _freeze({m: -c for m, c in exp_arg})
     return {(inverse, exp_inverse): 1 / coeff}
@@ -155,7 +157,7 @@ def _mono_inverse(p: dict) -> dict:
 def _quotient(n: dict, d: dict) -> tuple:
     if not d:
         raise Unsupported("division by zero")
-    if len(d) == 1:                      # a monomial denominator divides into the numerator
+    if len(d) == 1:  # a monomial denominator divides into the numerator
         return _mul(n, _mono_inverse(d)), _const(1)
     return n, d
 
@@ -190,7 +192,7 @@ def _polynomial(q) -> dict:
 def _rational(value: Fraction, power: Fraction):
     """value**power as an exact fraction, or None."""
     size = max(value.numerator.bit_length(), value.denominator.bit_length())
-    if size > 1 and abs(power) * size > MAX_BITS:     # checked before the power is taken
+    if size > 1 and abs(power) * size > MAX_BITS:  # checked before the power is taken
         raise Unsupported("coefficient too large")
     if power.denominator == 1:
         return value ** int(power)
@@ -199,7 +201,7 @@ def _rational(value: Fraction, power: Fraction):
     root = power.denominator
     num = round(value.numerator ** (1.0 / root))
     den = round(value.denominator ** (1.0 / root))
-    if num ** root == value.numerator and den ** root == value.denominator:
+    if num**root == value.numerator and den**root == value.denominator:
         return Fraction(num, den) ** power.numerator
     return None
 
@@ -210,7 +212,7 @@ def _number_atoms(value: Fraction, power: Fraction) -> tuple:
         raise Unsupported("fractional power of a negative number")
     factors = {}
     for part, sign in ((value.numerator, 1), (value.denominator, -1)):
-        if part > 10 ** 9:
+        if part > 10**9:
             raise Unsupported("number too large to factor")
         prime = 2
         while prime * prime <= part:
@@ -265,7 +267,7 @@ def _poly_power(poly: dict, exponent: Fraction):
             return {}, _const(1)
         raise Unsupported("zero to a negative power")
     if len(poly) == 1:
-        ((factors, exp_arg), coeff), = poly.items()
+        (((factors, exp_arg), coeff),) = poly.items()
         exact = _rational(coeff, exponent)
         if exact is None:
             coeff_part, atoms = _number_atoms(coeff, exponent)
@@ -289,8 +291,12 @@ def _exp(q):
     powers, rest = (), {}
     for mono, coeff in arg.items():
         factors, exp_arg = mono
-        if not exp_arg and len(factors) == 1 and factors[0][1] == 1 and \
-                factors[0][0].startswith("log["):
+        if (
+            not exp_arg
+            and len(factors) == 1
+            and factors[0][1] == 1
+            and factors[0][0].startswith("log[")
+        ):
             powers = _merge(powers, ((factors[0][0][4:-1], coeff),))
         else:
             rest[mono] = coeff
@@ -304,7 +310,7 @@ def _log(q):
         if len(part) != 1:
             out = _add(out, _atom(f"log{_render(part)}"), sign)
             continue
-        ((factors, exp_arg), coeff), = part.items()
+        (((factors, exp_arg), coeff),) = part.items()
         if coeff <= 0:
             raise Unsupported("logarithm of a negative number")
         out = _add(out, dict(exp_arg), sign)
@@ -324,7 +330,7 @@ def _render(poly: dict) -> str:
 
 
 def _number(value: float) -> Fraction:
-    exact = Fraction(value).limit_denominator(10 ** 6)
+    exact = Fraction(value).limit_denominator(10**6)
     return exact if float(exact) == value else Fraction(value)
 
 
@@ -361,9 +367,12 @@ def to_normal(tree):
             return _power(left, _number(float(value)))
         exponent = to_normal(tree[2])
         if not left[0]:
-            return {}, _const(1)                 # 0**x with a positive symbolic x
-        if exponent[1] == _const(1) and len(exponent[0]) == 1 and \
-                next(iter(exponent[0])) == ONE_MONO:
+            return {}, _const(1)  # 0**x with a positive symbolic x
+        if (
+            exponent[1] == _const(1)
+            and len(exponent[0]) == 1
+            and next(iter(exponent[0])) == ONE_MONO
+        ):
             return _power(left, next(iter(exponent[0].values())))
         # x**y = exp(y log x) for positive x
         return _exp(_q_mul(exponent, _log(left)))

@@ -27,13 +27,15 @@ D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967): drift velocity.
 W. Shockley, Electrons and Holes in Semiconductors (Van Nostrand, 1950): the
   diffusion length L = sqrt(D tau) (from memory).
 """
+
 from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from functools import lru_cache
+from functools import cache, lru_cache
 
-from ..expressions.parser import names_in as _names_in, parse
+from ..expressions.parser import names_in as _names_in
+from ..expressions.parser import parse
 
 # definitions are tuples, hashable and reused: remember the names each one uses
 names_in = lru_cache(maxsize=None)(_names_in)
@@ -45,12 +47,12 @@ _GAMMA_TEXT = {2.5: "0.75*sqrt(pi)", 2.0: "1", 1.5: "0.5*sqrt(pi)", 1.0: "1", 0.
 @dataclass(frozen=True)
 class Limit:
     id: str
-    label: str                  # how the report names it
-    word: str | None            # assumption word passed to the rules (None: no rule guards it)
-    carrier: str | None         # "n", "p" or None (both / the conductor)
-    overrides: tuple = ()       # (name, value) pairs set by the limit
-    fermi: str | None = None    # "eta_n"/"eta_p": F_j of it is rewritten
-    fermi_form: str | None = None   # "exp" (non-degenerate) | "power" (degenerate)
+    label: str  # how the report names it
+    word: str | None  # assumption word passed to the rules (None: no rule guards it)
+    carrier: str | None  # "n", "p" or None (both / the conductor)
+    overrides: tuple = ()  # (name, value) pairs set by the limit
+    fermi: str | None = None  # "eta_n"/"eta_p": F_j of it is rewritten
+    fermi_form: str | None = None  # "exp" (non-degenerate) | "power" (degenerate)
     excludes: tuple = ()
 
 
@@ -59,26 +61,86 @@ def limits(world: str) -> tuple:
     carrier = "n" if world == "donor" else "p"
     other_dopant = "N_A" if world == "donor" else "N_D"
     return (
-        Limit("nondeg_n", "non-degenerate electrons (F_j -> e^η)", "non-degenerate", "n",
-              fermi="eta_n", fermi_form="exp", excludes=("deg_n",)),
-        Limit("nondeg_p", "non-degenerate holes (F_j -> e^η)", "non-degenerate", "p",
-              fermi="eta_p", fermi_form="exp", excludes=("deg_p",)),
-        Limit("deg_n", "degenerate electrons (F_j -> η^(j+1)/Γ(j+2))", None, "n",
-              fermi="eta_n", fermi_form="power", excludes=("nondeg_n", "deg_p")),
-        Limit("deg_p", "degenerate holes (F_j -> η^(j+1)/Γ(j+2))", None, "p",
-              fermi="eta_p", fermi_form="power", excludes=("nondeg_p", "deg_n")),
-        Limit("holes_negligible", "holes neglected beside electrons", "single-carrier", "n",
-              overrides=(("w_p", 0.0),), excludes=("electrons_negligible",)),
-        Limit("electrons_negligible", "electrons neglected beside holes", "single-carrier",
-              "p", overrides=(("w_n", 0.0),), excludes=("holes_negligible",)),
-        Limit("full_ionization", "full ionization (N_D+ -> N_D, N_A- -> N_A)",
-              "full-ionization", carrier, overrides=(("f_D", 1.0), ("f_A", 1.0))),
-        Limit("no_compensation", f"no compensation ({other_dopant} -> 0)", "no-compensation",
-              carrier, overrides=((other_dopant, 0.0),)),
-        Limit("diffusive", "diffusive transport (λ/L -> 0)", "diffusive", None,
-              overrides=(("s_d", 0.0),)),
-        Limit("low_field", "low field (μE/v_sat -> 0)", "low-field", None,
-              overrides=(("s_fn", 0.0), ("s_fp", 0.0))),
+        Limit(
+            "nondeg_n",
+            "non-degenerate electrons (F_j -> e^η)",
+            "non-degenerate",
+            "n",
+            fermi="eta_n",
+            fermi_form="exp",
+            excludes=("deg_n",),
+        ),
+        Limit(
+            "nondeg_p",
+            "non-degenerate holes (F_j -> e^η)",
+            "non-degenerate",
+            "p",
+            fermi="eta_p",
+            fermi_form="exp",
+            excludes=("deg_p",),
+        ),
+        Limit(
+            "deg_n",
+            "degenerate electrons (F_j -> η^(j+1)/Γ(j+2))",
+            None,
+            "n",
+            fermi="eta_n",
+            fermi_form="power",
+            excludes=("nondeg_n", "deg_p"),
+        ),
+        Limit(
+            "deg_p",
+            "degenerate holes (F_j -> η^(j+1)/Γ(j+2))",
+            None,
+            "p",
+            fermi="eta_p",
+            fermi_form="power",
+            excludes=("nondeg_p", "deg_n"),
+        ),
+        Limit(
+            "holes_negligible",
+            "holes neglected beside electrons",
+            "single-carrier",
+            "n",
+            overrides=(("w_p", 0.0),),
+            excludes=("electrons_negligible",),
+        ),
+        Limit(
+            "electrons_negligible",
+            "electrons neglected beside holes",
+            "single-carrier",
+            "p",
+            overrides=(("w_n", 0.0),),
+            excludes=("holes_negligible",),
+        ),
+        Limit(
+            "full_ionization",
+            "full ionization (N_D+ -> N_D, N_A- -> N_A)",
+            "full-ionization",
+            carrier,
+            overrides=(("f_D", 1.0), ("f_A", 1.0)),
+        ),
+        Limit(
+            "no_compensation",
+            f"no compensation ({other_dopant} -> 0)",
+            "no-compensation",
+            carrier,
+            overrides=((other_dopant, 0.0),),
+        ),
+        Limit(
+            "diffusive",
+            "diffusive transport (λ/L -> 0)",
+            "diffusive",
+            None,
+            overrides=(("s_d", 0.0),),
+        ),
+        Limit(
+            "low_field",
+            "low field (μE/v_sat -> 0)",
+            "low-field",
+            None,
+            overrides=(("s_fn", 0.0), ("s_fp", 0.0)),
+        ),
     )
 
 
@@ -92,19 +154,36 @@ WORDS_IN = {
 
 # what each defined symbol's relation is called in reports
 RELATION_NAMES = {
-    "eta_n": "reduced Fermi level", "eta_p": "reduced Fermi level", "E_g": "band gap",
-    "n": "electron density (Fermi–Dirac)", "p": "hole density (Fermi–Dirac)",
-    "n_i": "intrinsic density", "E_i": "intrinsic Fermi level", "E_D": "donor level", "E_A": "acceptor level",
-    "f_D": "donor ionization", "f_A": "acceptor ionization",
-    "N_D_plus": "ionized donors", "N_A_minus": "ionized acceptors",
-    "D_n": "generalized Einstein relation", "D_p": "generalized Einstein relation",
-    "sigma": "two-carrier conductivity", "rho": "resistivity",
-    "v_n": "field-dependent drift velocity", "v_p": "field-dependent drift velocity",
-    "J": "drift current density", "hbar": "reduced Planck constant",
-    "R": "short-conductor resistance", "R_s": "sheet resistance",
-    "m_n": "effective density of states", "m_p": "effective density of states",
-    "N_D": "charge neutrality", "N_A": "charge neutrality", "A": "cross-section",
-    "L_n": "diffusion length", "L_p": "diffusion length",
+    "eta_n": "reduced Fermi level",
+    "eta_p": "reduced Fermi level",
+    "E_g": "band gap",
+    "n": "electron density (Fermi–Dirac)",
+    "p": "hole density (Fermi–Dirac)",
+    "n_i": "intrinsic density",
+    "E_i": "intrinsic Fermi level",
+    "E_D": "donor level",
+    "E_A": "acceptor level",
+    "f_D": "donor ionization",
+    "f_A": "acceptor ionization",
+    "N_D_plus": "ionized donors",
+    "N_A_minus": "ionized acceptors",
+    "D_n": "generalized Einstein relation",
+    "D_p": "generalized Einstein relation",
+    "sigma": "two-carrier conductivity",
+    "rho": "resistivity",
+    "v_n": "field-dependent drift velocity",
+    "v_p": "field-dependent drift velocity",
+    "J": "drift current density",
+    "hbar": "reduced Planck constant",
+    "R": "short-conductor resistance",
+    "R_s": "sheet resistance",
+    "m_n": "effective density of states",
+    "m_p": "effective density of states",
+    "N_D": "charge neutrality",
+    "N_A": "charge neutrality",
+    "A": "cross-section",
+    "L_n": "diffusion length",
+    "L_p": "diffusion length",
 }
 
 SWITCHES = ("w_n", "w_p", "s_d", "s_fn", "s_fp")
@@ -140,26 +219,37 @@ def _common(j: float, x: str) -> dict:
 
 
 _GEOMETRY = {
-    3: {"R": "rho*(L + s_d*lambda_{x})/A", "R_s": "rho/t", "A": "W*t",
-        "m_n": "(N_c/2)^(2/3)*h^2/(2*pi*k*T)", "m_p": "(N_v/2)^(2/3)*h^2/(2*pi*k*T)"},
-    2: {"R": "rho*(L + s_d*lambda_{x})/W", "R_s": "rho",
-        "m_n": "N_c*pi*hbar^2/(k*T)", "m_p": "N_v*pi*hbar^2/(k*T)"},
+    3: {
+        "R": "rho*(L + s_d*lambda_{x})/A",
+        "R_s": "rho/t",
+        "A": "W*t",
+        "m_n": "(N_c/2)^(2/3)*h^2/(2*pi*k*T)",
+        "m_p": "(N_v/2)^(2/3)*h^2/(2*pi*k*T)",
+    },
+    2: {
+        "R": "rho*(L + s_d*lambda_{x})/W",
+        "R_s": "rho",
+        "m_n": "N_c*pi*hbar^2/(k*T)",
+        "m_p": "N_v*pi*hbar^2/(k*T)",
+    },
     1: {"R": "rho*(L + s_d*lambda_{x})"},
 }
-_NEUTRALITY = {"donor": {"N_D": "(n - w_p*p + N_A*f_A)/f_D"},
-               "acceptor": {"N_A": "(p - w_n*n + N_D*f_D)/f_A"}}
+_NEUTRALITY = {
+    "donor": {"N_D": "(n - w_p*p + N_A*f_A)/f_D"},
+    "acceptor": {"N_A": "(p - w_n*n + N_D*f_D)/f_A"},
+}
 
 
 @dataclass(frozen=True)
 class World:
     dim: int
-    world: str                  # "donor" | "acceptor"
+    world: str  # "donor" | "acceptor"
     majority: str
-    definitions: dict = field(hash=False, compare=False)   # name -> tree
-    order: tuple = ()           # defined names, dependencies first
+    definitions: dict = field(hash=False, compare=False)  # name -> tree
+    order: tuple = ()  # defined names, dependencies first
 
 
-@lru_cache(maxsize=None)
+@cache
 def world(dim: int, which: str, majority: str) -> World:
     j = dim / 2.0 - 1.0
     texts = _common(j, majority)
@@ -246,8 +336,9 @@ def _with_fermi(base: World, rewrites: tuple) -> dict:
 
 def limited(base: World, chosen) -> dict:
     """The definitions with the chosen limits applied (overrides and F_j rewrites)."""
-    definitions = dict(_with_fermi(base, tuple((limit.fermi, limit.fermi_form)
-                                               for limit in chosen if limit.fermi)))
+    definitions = dict(
+        _with_fermi(base, tuple((limit.fermi, limit.fermi_form) for limit in chosen if limit.fermi))
+    )
     for limit in chosen:
         for name, value in limit.overrides:
             definitions[name] = ("num", value)
@@ -272,17 +363,31 @@ _EV = 1.602176634e-19
 _DENSITY_DECADES = {3: (23.0, 26.0), 2: (15.0, 18.0), 1: (7.0, 9.0)}
 # primitive -> ("log", lo, hi) decades | ("lin", lo, hi) | ("scale", true value) | ("fixed", value)
 _SAMPLING = {
-    "q": ("scale", _EV), "h": ("scale", 6.62607015e-34),
-    "m0": ("scale", 9.1093837139e-31), "pi": ("fixed", math.pi),
-    "dE_D": ("lin", 0.005 * _EV, 0.2 * _EV), "dE_A": ("lin", 0.005 * _EV, 0.3 * _EV),
-    "g_D": ("lin", 1.5, 4.0), "g_A": ("lin", 2.0, 6.0),
-    "mu_n": ("log", -3.0, 0.0), "mu_p": ("log", -3.0, 0.0),
-    "L": ("log", -8.0, -4.0), "A": ("log", -14.0, -8.0), "W": ("log", -7.0, -4.0),
-    "t": ("log", -8.0, -5.0), "lambda_n": ("log", -9.0, -6.0), "lambda_p": ("log", -9.0, -6.0),
-    "E": ("log", 3.0, 7.0), "v_sat_n": ("log", 4.5, 5.5), "v_sat_p": ("log", 4.5, 5.5),
-    "beta_n": ("lin", 1.0, 2.5), "beta_p": ("lin", 1.0, 2.5),
-    "m_n": ("log", -32.0, -30.0), "m_p": ("log", -32.0, -30.0),
-    "tau_n": ("log", -10.0, -3.0), "tau_p": ("log", -10.0, -3.0),
+    "q": ("scale", _EV),
+    "h": ("scale", 6.62607015e-34),
+    "m0": ("scale", 9.1093837139e-31),
+    "pi": ("fixed", math.pi),
+    "dE_D": ("lin", 0.005 * _EV, 0.2 * _EV),
+    "dE_A": ("lin", 0.005 * _EV, 0.3 * _EV),
+    "g_D": ("lin", 1.5, 4.0),
+    "g_A": ("lin", 2.0, 6.0),
+    "mu_n": ("log", -3.0, 0.0),
+    "mu_p": ("log", -3.0, 0.0),
+    "L": ("log", -8.0, -4.0),
+    "A": ("log", -14.0, -8.0),
+    "W": ("log", -7.0, -4.0),
+    "t": ("log", -8.0, -5.0),
+    "lambda_n": ("log", -9.0, -6.0),
+    "lambda_p": ("log", -9.0, -6.0),
+    "E": ("log", 3.0, 7.0),
+    "v_sat_n": ("log", 4.5, 5.5),
+    "v_sat_p": ("log", 4.5, 5.5),
+    "beta_n": ("lin", 1.0, 2.5),
+    "beta_p": ("lin", 1.0, 2.5),
+    "m_n": ("log", -32.0, -30.0),
+    "m_p": ("log", -32.0, -30.0),
+    "tau_n": ("log", -10.0, -3.0),
+    "tau_p": ("log", -10.0, -3.0),
 }
 
 
@@ -299,8 +404,10 @@ def sample(names, dim: int, degenerate: tuple, rng, size: int) -> dict:
     k = 1.380649e-23 * rng.uniform(0.7, 1.4, size)
     out["T"], out["k"] = T, k
     kT = k * T
-    eta = {x: rng.uniform(0.5, 6.0, size) if x in degenerate else rng.uniform(-4.0, 4.0, size)
-           for x in ("n", "p")}
+    eta = {
+        x: rng.uniform(0.5, 6.0, size) if x in degenerate else rng.uniform(-4.0, 4.0, size)
+        for x in ("n", "p")
+    }
     out["E_v"] = rng.uniform(-1.0, 1.0, size) * _EV
     out["E_F"] = out["E_v"] - eta["p"] * kT
     out["E_c"] = out["E_F"] - eta["n"] * kT

@@ -19,6 +19,7 @@ A rule fires for a cell (and carrier) where
 Each firing becomes a :class:`Finding` with the indicator, the message, and
 every correction as stated (or shortcut) value -> exact value with the error.
 """
+
 from __future__ import annotations
 
 from dataclasses import dataclass
@@ -27,19 +28,19 @@ import numpy as np
 
 from ..findings import Correction, Finding, carrier_word
 from ..number_text import display
-from .rulebook import PLACEHOLDER
 from ..vocabulary import CARRIER_WORDS, carrier_names
+from .rulebook import PLACEHOLDER
 
 
 @dataclass
 class Cells:
     """Operating points ruled together."""
 
-    values: dict             # quantity name -> array over the cells (state_values)
-    calculations: list       # the calculations the cells belong to
-    owner: np.ndarray        # cell -> index into ``calculations``
-    embodied: list           # per calculation: the Embodied assumptions of its formulas
-    valid: np.ndarray        # cells that were solved
+    values: dict  # quantity name -> array over the cells (state_values)
+    calculations: list  # the calculations the cells belong to
+    owner: np.ndarray  # cell -> index into ``calculations``
+    embodied: list  # per calculation: the Embodied assumptions of its formulas
+    valid: np.ndarray  # cells that were solved
 
     @classmethod
     def points(cls, calculations, values, embodied=None, skip=()):
@@ -47,14 +48,20 @@ class Cells:
         count = len(calculations)
         valid = np.ones(count, dtype=bool)
         valid[list(skip)] = False
-        return cls(values, list(calculations), np.arange(count),
-                   embodied or [[] for _ in range(count)], valid)
+        return cls(
+            values,
+            list(calculations),
+            np.arange(count),
+            embodied or [[] for _ in range(count)],
+            valid,
+        )
 
     @classmethod
     def grid(cls, calc, values, count, embodied=()):
         """``count`` grid cells of the sweep ``calc``."""
-        return cls(values, [calc], np.zeros(count, dtype=int), [list(embodied)],
-                   np.ones(count, dtype=bool))
+        return cls(
+            values, [calc], np.zeros(count, dtype=int), [list(embodied)], np.ones(count, dtype=bool)
+        )
 
     @property
     def count(self) -> int:
@@ -67,11 +74,11 @@ class Ruled:
 
     rule: object
     x: str | None
-    names: dict              # the rule's _x/_o names -> concrete names
-    fired: np.ndarray        # bool per cell
-    indicator: np.ndarray    # per cell
-    implied: list            # (stated name, mask) of each implication, for the source line
-    by_formula: np.ndarray   # per cell: index into its calculation's embodied list (-1: none)
+    names: dict  # the rule's _x/_o names -> concrete names
+    fired: np.ndarray  # bool per cell
+    indicator: np.ndarray  # per cell
+    implied: list  # (stated name, mask) of each implication, for the source line
+    by_formula: np.ndarray  # per cell: index into its calculation's embodied list (-1: none)
 
     def excess(self) -> np.ndarray:
         """How far the indicator lies beyond the threshold (> 0: the wrong side)."""
@@ -101,8 +108,9 @@ def rule_cells(rules, cells):
             for x in rule.carriers:
                 names = carrier_names(x) if x else {}
                 made, by_formula = assumption_made(rule, x, names, cells)
-                fired, indicator, implied = rule_mask(rule, x, names, made, cells.values,
-                                                      cells.count)
+                fired, indicator, implied = rule_mask(
+                    rule, x, names, made, cells.values, cells.count
+                )
                 yield Ruled(rule, x, names, fired & cells.valid, indicator, implied, by_formula)
 
 
@@ -120,20 +128,23 @@ def assumption_made(rule, x, names, cells):
     if not rule.declared:
         return np.zeros(count, dtype=bool), np.full(count, -1)
     in_use = _nonzero(cells.values[names["in_use_x"]]) if x else np.ones(count, dtype=bool)
-    declared = np.array([any(word in calc.assumes for word in rule.declared)
-                         for calc in cells.calculations], dtype=bool)
+    declared = np.array(
+        [any(word in calc.assumes for word in rule.declared) for calc in cells.calculations],
+        dtype=bool,
+    )
     everywhere = np.full(len(cells.calculations), _NO_FORMULA)
     where_used = np.full(len(cells.calculations), _NO_FORMULA)
     for c, items in enumerate(cells.embodied):
-        for k, item in reversed(list(enumerate(items))):      # the first one wins
+        for k, item in reversed(list(enumerate(items))):  # the first one wins
             if item.word not in rule.declared:
                 continue
             if not x or item.carrier == x:
                 everywhere[c] = k
             elif item.carrier is None:
                 where_used[c] = k
-    first = np.minimum(everywhere[cells.owner],
-                       np.where(in_use, where_used[cells.owner], _NO_FORMULA))
+    first = np.minimum(
+        everywhere[cells.owner], np.where(in_use, where_used[cells.owner], _NO_FORMULA)
+    )
     by_formula = np.where(first == _NO_FORMULA, -1, first)
     return (declared[cells.owner] & in_use) | (by_formula >= 0), by_formula
 
@@ -147,8 +158,11 @@ def rule_mask(rule, x, names, made, values, count):
         name = names.get(imp.stated, imp.stated)
         stated = values[name]
         shortcut = np.asarray(imp.shortcut.run[x](values), dtype=float)
-        mask = np.isfinite(stated) & np.isfinite(shortcut) & \
-            (np.abs(stated / shortcut - 1.0) <= imp.within)
+        mask = (
+            np.isfinite(stated)
+            & np.isfinite(shortcut)
+            & (np.abs(stated / shortcut - 1.0) <= imp.within)
+        )
         implied.append((name, mask))
         made |= mask
     if not rule.declared and not rule.implied_by:
@@ -158,8 +172,9 @@ def rule_mask(rule, x, names, made, values, count):
     for name in rule.requires:
         made &= np.isfinite(values[names.get(name, name)])
     indicator = _cells_array(rule.indicator, x, values, count)
-    wrong_side = indicator > rule.threshold if rule.relation == "above" \
-        else indicator < rule.threshold
+    wrong_side = (
+        indicator > rule.threshold if rule.relation == "above" else indicator < rule.threshold
+    )
     # an infinite indicator (e.g. n_i over zero net doping) is on the wrong side too
     return made & ~np.isnan(indicator) & wrong_side, indicator, implied
 
@@ -183,9 +198,13 @@ def evaluate(rules, calculations, values, skip=(), embodied=None) -> list:
 
 # quantities derived from another stated key: where to point the reader
 _SOURCE_KEYS = {
-    "stated_sigma": ("stated_sigma", "stated_rho"), "stated_rho": ("stated_rho", "stated_sigma"),
-    **{f"stated_{stem}_{x}": ("stated_ef_minus_ec", "stated_ef_minus_ev")
-       for stem in ("ef", "eta") for x in ("n", "p")},
+    "stated_sigma": ("stated_sigma", "stated_rho"),
+    "stated_rho": ("stated_rho", "stated_sigma"),
+    **{
+        f"stated_{stem}_{x}": ("stated_ef_minus_ec", "stated_ef_minus_ev")
+        for stem in ("ef", "eta")
+        for x in ("n", "p")
+    },
 }
 
 
@@ -208,19 +227,24 @@ def add_findings(ruled, cells, findings):
 
 def _add_findings(ruled, cells, fired, findings):
     rule, x, names, values, count = ruled.rule, ruled.x, ruled.names, cells.values, cells.count
-    columns = [(corr, _cells_array(corr.shortcut, x, values, count),
-                _cells_array(corr.exact, x, values, count),
-                values[names.get(corr.stated, corr.stated)] if corr.stated
-                else np.full(count, np.nan)) for corr in rule.corrections]
-    shown = {key: (values[c], unit) if unit == "text" else
-             (_cells_array(c, x, values, count), unit)
-             for key, (c, unit) in rule.show.items()}
+    columns = [
+        (
+            corr,
+            _cells_array(corr.shortcut, x, values, count),
+            _cells_array(corr.exact, x, values, count),
+            values[names.get(corr.stated, corr.stated)] if corr.stated else np.full(count, np.nan),
+        )
+        for corr in rule.corrections
+    ]
+    shown = {
+        key: (values[c], unit) if unit == "text" else (_cells_array(c, x, values, count), unit)
+        for key, (c, unit) in rule.show.items()
+    }
     words = CARRIER_WORDS.get(x, ("carriers", "dopants", "carrier"))
     for i in fired:
         owner = int(cells.owner[i])
         calc = cells.calculations[owner]
-        formula = cells.embodied[owner][ruled.by_formula[i]] if ruled.by_formula[i] >= 0 \
-            else None
+        formula = cells.embodied[owner][ruled.by_formula[i]] if ruled.by_formula[i] >= 0 else None
         corrections = []
         line = column = None
         for corr, shortcut, exact, stated in columns:
@@ -228,8 +252,16 @@ def _add_findings(ruled, cells, fired, findings):
             value = stated[i] if author else shortcut[i]
             if not (np.isfinite(value) and np.isfinite(exact[i])) or exact[i] == 0:
                 continue
-            corrections.append(Correction(corr.label, corr.unit, float(value), float(exact[i]),
-                                          float(value / exact[i] - 1.0), author))
+            corrections.append(
+                Correction(
+                    corr.label,
+                    corr.unit,
+                    float(value),
+                    float(exact[i]),
+                    float(value / exact[i] - 1.0),
+                    author,
+                )
+            )
             if author and line is None:
                 line = _line_of(calc, names.get(corr.stated, corr.stated))
                 column = calc.columns.get(names.get(corr.stated, corr.stated))
@@ -242,17 +274,36 @@ def _add_findings(ruled, cells, fired, findings):
         fields = {
             "value": display(ruled.indicator[i], rule.indicator_unit),
             "threshold": display(rule.threshold, rule.indicator_unit),
-            "carrier": words[0], "dopants": words[1], "kind": words[2],
+            "carrier": words[0],
+            "dopants": words[1],
+            "kind": words[2],
             "error": corrections[0].error_text() if corrections else "n/a",
         }
-        fields.update({key: str(array[i]) if unit == "text" else display(array[i], unit)
-                       for key, (array, unit) in shown.items()})
+        fields.update(
+            {
+                key: str(array[i]) if unit == "text" else display(array[i], unit)
+                for key, (array, unit) in shown.items()
+            }
+        )
         message = PLACEHOLDER.sub(lambda m: fields[m.group(1)], rule.message)
-        findings[owner].append(Finding(
-            rule=rule.id, title=rule.title, severity=rule.severity, assumption=rule.assumption,
-            carrier=carrier_word(x), indicator_label=rule.indicator_label,
-            indicator_value=float(ruled.indicator[i]), indicator_unit=rule.indicator_unit,
-            relation=rule.relation, threshold=rule.threshold,
-            threshold_source=rule.threshold_source, message=message, corrections=corrections,
-            file=calc.source, line=int(line),
-            formula=formula.formula if formula is not None else None, column=column))
+        findings[owner].append(
+            Finding(
+                rule=rule.id,
+                title=rule.title,
+                severity=rule.severity,
+                assumption=rule.assumption,
+                carrier=carrier_word(x),
+                indicator_label=rule.indicator_label,
+                indicator_value=float(ruled.indicator[i]),
+                indicator_unit=rule.indicator_unit,
+                relation=rule.relation,
+                threshold=rule.threshold,
+                threshold_source=rule.threshold_source,
+                message=message,
+                corrections=corrections,
+                file=calc.source,
+                line=int(line),
+                formula=formula.formula if formula is not None else None,
+                column=column,
+            )
+        )

@@ -1,5 +1,6 @@
 """Single operating points: solved together, their stated formulas read, every rule
 evaluated over them (one cell per calculation), and one report per calculation."""
+
 from __future__ import annotations
 
 from dataclasses import dataclass, field
@@ -11,14 +12,14 @@ from .trade_summary import trade_summary
 
 @dataclass
 class CalculationReport:
-    calc: object                 # inputs.calculation_file.Calculation
-    state: dict | None           # trade-unit summary of the solved state
+    calc: object  # inputs.calculation_file.Calculation
+    state: dict | None  # trade-unit summary of the solved state
     findings: list = field(default_factory=list)
     notes: list = field(default_factory=list)
-    error: str | None = None     # the calculation could not be solved
-    formulas: list = field(default_factory=list)   # formula_check.FormulaResult
-    sweep: dict | None = None    # a sweep: {"axes": [(label, Axis)], "points": n}
-    embodied: list = field(default_factory=list)   # Embodied: what its formulas assume
+    error: str | None = None  # the calculation could not be solved
+    formulas: list = field(default_factory=list)  # formula_check.FormulaResult
+    sweep: dict | None = None  # a sweep: {"axes": [(label, Axis)], "points": n}
+    embodied: list = field(default_factory=list)  # Embodied: what its formulas assume
 
 
 def check_points(calculations, rules) -> tuple[list, list]:
@@ -26,27 +27,36 @@ def check_points(calculations, rules) -> tuple[list, list]:
     values, solve_errors, solve_notes = state_values.solve_all(calculations)
     analyses = [None] * len(calculations)
     if any(calc.formulas for calc in calculations):
-        from ..formulas import check as formula_check    # imported only when there are formulas to read
+        from ..formulas import (
+            check as formula_check,
+        )  # imported only when there are formulas to read
 
         analyses = formula_check.analyse_all(calculations, values, skip=solve_errors.keys())
     embodied = [a.embodied if a else [] for a in analyses]
-    findings = evaluate(rules, calculations, values, skip=solve_errors.keys(),
-                        embodied=embodied)
+    findings = evaluate(rules, calculations, values, skip=solve_errors.keys(), embodied=embodied)
     by_id = {rule.id: rule for rule in rules}
     reports = []
     for i, calc in enumerate(calculations):
         if i in solve_errors:
-            reports.append(CalculationReport(calc, None, error=f"{calc.source}:{calc.line}: "
-                                                               f"{solve_errors[i]}"))
+            reports.append(
+                CalculationReport(calc, None, error=f"{calc.source}:{calc.line}: {solve_errors[i]}")
+            )
             continue
         analysis = analyses[i]
         if analysis:
             findings[i] += formula_check.formula_findings(analysis, by_id, calc, findings[i])
         findings[i] = one_finding_per_stated_number(findings[i])
         notes = [solve_notes[i]] if i in solve_notes else []
-        reports.append(CalculationReport(calc, trade_summary(values, i), findings[i], notes,
-                                         formulas=analysis.results if analysis else [],
-                                         embodied=embodied[i]))
+        reports.append(
+            CalculationReport(
+                calc,
+                trade_summary(values, i),
+                findings[i],
+                notes,
+                formulas=analysis.results if analysis else [],
+                embodied=embodied[i],
+            )
+        )
     errors = [message for a in analyses if a for message in a.errors]
     return reports, errors
 
@@ -59,8 +69,13 @@ def one_finding_per_stated_number(findings: list) -> list:
     """Drop a value check (VAL..) on a stated number that a shortcut rule already
     corrects at the same line: the shortcut names the cause, the value check would
     only repeat the number."""
-    explained = {(f.file, f.line) for f in findings
-                 if not f.rule.startswith(VALUE_RULES)
-                 and any(c.from_author for c in f.corrections)}
-    return [f for f in findings
-            if not (f.rule.startswith(VALUE_RULES) and (f.file, f.line) in explained)]
+    explained = {
+        (f.file, f.line)
+        for f in findings
+        if not f.rule.startswith(VALUE_RULES) and any(c.from_author for c in f.corrections)
+    }
+    return [
+        f
+        for f in findings
+        if not (f.rule.startswith(VALUE_RULES) and (f.file, f.line) in explained)
+    ]

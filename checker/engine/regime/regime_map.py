@@ -7,6 +7,7 @@ the classes (η of the majority carrier, the ionized fraction, n_i over the net
 doping, the Mott density) are kept so that the map can draw them as contours.
 The operating points of checked calculations are placed on the plane.
 """
+
 from __future__ import annotations
 
 from dataclasses import dataclass, field
@@ -17,22 +18,22 @@ from ...physics import carriers, equilibrium
 from ...physics.carriers import REGIMES
 from ...vocabulary_words import SEVERITY_RANK
 
-DOPING_RANGE = (1e13 * 1e6, 1e21 * 1e6)      # m^-3
-TEMPERATURE_RANGE = (20.0, 700.0)            # K
+DOPING_RANGE = (1e13 * 1e6, 1e21 * 1e6)  # m^-3
+TEMPERATURE_RANGE = (20.0, 700.0)  # K
 
 
 @dataclass
 class RegimeGrid:
     material: object
     species: str
-    kind: str                 # "donor" | "acceptor"
-    doping: np.ndarray        # m^-3, the x axis (log spaced)
-    T: np.ndarray             # K, the y axis
-    codes: np.ndarray         # (len(T), len(doping)) index into REGIMES
-    eta: np.ndarray           # η of the majority carrier
-    fraction: np.ndarray      # ionized fraction of the dopant
-    ni_ratio: np.ndarray      # n_i / N
-    mott: float               # m^-3 (inf where the dopant has none)
+    kind: str  # "donor" | "acceptor"
+    doping: np.ndarray  # m^-3, the x axis (log spaced)
+    T: np.ndarray  # K, the y axis
+    codes: np.ndarray  # (len(T), len(doping)) index into REGIMES
+    eta: np.ndarray  # η of the majority carrier
+    fraction: np.ndarray  # ionized fraction of the dopant
+    ni_ratio: np.ndarray  # n_i / N
+    mott: float  # m^-3 (inf where the dopant has none)
 
     @property
     def carrier(self) -> str:
@@ -44,11 +45,11 @@ class RegimeGrid:
 class EtaCurve:
     material: object
     species: str
-    kind: str                 # "donor" | "acceptor"
-    density: float            # m^-3
-    T: np.ndarray             # K
-    eta: np.ndarray           # η of the majority carrier
-    codes: np.ndarray         # index into REGIMES per temperature
+    kind: str  # "donor" | "acceptor"
+    density: float  # m^-3
+    T: np.ndarray  # K
+    eta: np.ndarray  # η of the majority carrier
+    codes: np.ndarray  # index into REGIMES per temperature
 
     @property
     def carrier(self) -> str:
@@ -61,17 +62,22 @@ _CARRIER = {"donor": "n", "acceptor": "p"}
 @dataclass
 class MapPoint:
     label: str
-    doping: float             # m^-3 (net, of the map's dopant type)
+    doping: float  # m^-3 (net, of the map's dopant type)
     T: float
-    severity: str | None      # worst active finding
+    severity: str | None  # worst active finding
     # a sweep: (doping from, to) and (T from, to); equal ends for a missing axis
     doping_span: tuple = ()
     T_span: tuple = ()
     extra: dict = field(default_factory=dict)
 
 
-def regime_grid(material, species, doping_range=DOPING_RANGE,
-                temperature_range=TEMPERATURE_RANGE, size=(200, 200)) -> RegimeGrid:
+def regime_grid(
+    material,
+    species,
+    doping_range=DOPING_RANGE,
+    temperature_range=TEMPERATURE_RANGE,
+    size=(200, 200),
+) -> RegimeGrid:
     """Solve the plane on ``size`` = (doping points, temperature points)."""
     dopant = material.dopant(species)
     doping = np.geomspace(*doping_range, size[0])
@@ -83,11 +89,18 @@ def regime_grid(material, species, doping_range=DOPING_RANGE,
     shape = N.shape
     eta = state.eta_n if dopant.kind == "donor" else state.eta_p
     fraction = state.donor_fraction if dopant.kind == "donor" else state.acceptor_fraction
-    return RegimeGrid(material, species, dopant.kind, doping, T,
-                      carriers.regime_code(state).reshape(shape),
-                      np.asarray(eta).reshape(shape), np.asarray(fraction).reshape(shape),
-                      (np.asarray(state.ni) / N.ravel()).reshape(shape),
-                      float(dopant.mott_density))
+    return RegimeGrid(
+        material,
+        species,
+        dopant.kind,
+        doping,
+        T,
+        carriers.regime_code(state).reshape(shape),
+        np.asarray(eta).reshape(shape),
+        np.asarray(fraction).reshape(shape),
+        (np.asarray(state.ni) / N.ravel()).reshape(shape),
+        float(dopant.mott_density),
+    )
 
 
 def eta_curve(material, species, density, temperatures) -> EtaCurve:
@@ -116,11 +129,10 @@ def map_groups(result) -> dict:
         calc = report.calc
         if report.error:
             continue
-        spans = {axis.key: (float(axis.values[0]), float(axis.values[-1]))
-                 for axis in calc.sweep}
+        spans = {axis.key: (float(axis.values[0]), float(axis.values[-1])) for axis in calc.sweep}
         species, density = _map_dopant(calc, spans)
         if species is None:
-            continue                  # undoped everywhere: no place on a doping axis
+            continue  # undoped everywhere: no place on a doping axis
         active = [f.severity for f in report.findings if not f.waived]
         worst = max(active, key=SEVERITY_RANK.get) if active else None
         point = MapPoint(calc.name, density, calc.temperature, worst)
@@ -138,16 +150,19 @@ def _map_dopant(calc, spans):
     (the larger total, donors on a tie) and the net doping, or that dopant's density
     where the net is zero; (None, 0) when no dopant is above zero anywhere.  A swept
     density takes part with the larger end of its sweep."""
+
     def above_zero(group, densities):
-        peaks = {sp: max(value, *spans.get((group, sp), (value,)))
-                 for sp, value in densities.items()}
+        peaks = {
+            sp: max(value, *spans.get((group, sp), (value,))) for sp, value in densities.items()
+        }
         return {sp: v for sp, v in peaks.items() if v > 0}
 
     donors, acceptors = above_zero("donors", calc.donors), above_zero("acceptors", calc.acceptors)
     if not (donors or acceptors):
         return None, 0.0
     total_donors, total_acceptors = sum(calc.donors.values()), sum(calc.acceptors.values())
-    majority = donors if donors and (total_donors >= total_acceptors or not acceptors) \
-        else acceptors
+    majority = (
+        donors if donors and (total_donors >= total_acceptors or not acceptors) else acceptors
+    )
     species = max(majority, key=majority.get)
     return species, abs(total_donors - total_acceptors) or majority[species]

@@ -8,6 +8,7 @@ editor and the loader accept the same files.  What JSON Schema cannot say (an
 expression's names and dimensions, message placeholders, the id against the file
 name) the loader checks after the table.
 """
+
 from __future__ import annotations
 
 import difflib
@@ -51,7 +52,7 @@ class Text:
 
 @dataclass(frozen=True)
 class Pattern:
-    regex: str                 # matched against the whole text
+    regex: str  # matched against the whole text
     example: str
     about: str = ""
 
@@ -67,7 +68,7 @@ class Pattern:
 class Choice:
     words: tuple
     about: str = ""
-    what: str = ""              # what a word is, said instead of listing many words
+    what: str = ""  # what a word is, said instead of listing many words
 
     def problems(self, value, path):
         if not isinstance(value, str) or value not in self.words:
@@ -82,7 +83,7 @@ class Choice:
 
 @dataclass(frozen=True)
 class Number:
-    above: float | None = None          # exclusive lower bound
+    above: float | None = None  # exclusive lower bound
     about: str = ""
 
     def problems(self, value, path):
@@ -115,15 +116,21 @@ class Expression:
             yield path, f"is {len(value)} characters long; the limit is {self.longest}"
 
     def schema(self) -> dict:
-        return _described({"anyOf": [
-            {"type": "string", "pattern": NOT_BLANK, "maxLength": self.longest},
-            {"type": "number"}]}, self.about)
+        return _described(
+            {
+                "anyOf": [
+                    {"type": "string", "pattern": NOT_BLANK, "maxLength": self.longest},
+                    {"type": "number"},
+                ]
+            },
+            self.about,
+        )
 
 
 @dataclass(frozen=True)
 class ListOf:
     item: object
-    single: bool = False                # a lone item may stand for a list of one
+    single: bool = False  # a lone item may stand for a list of one
     about: str = ""
 
     def problems(self, value, path):
@@ -177,8 +184,10 @@ class Block:
             if key not in self.fields:
                 close = difflib.get_close_matches(str(key), list(self.fields), n=1)
                 hint = f" (did you mean {close[0]!r}?)" if close else ""
-                yield path + (key,), f"unknown field; fields here are " \
-                                     f"{', '.join(self.fields)}{hint}"
+                yield (
+                    path + (key,),
+                    f"unknown field; fields here are {', '.join(self.fields)}{hint}",
+                )
         for key, kind in self.fields.items():
             if key in value:
                 yield from kind.problems(value[key], path + (key,))
@@ -186,8 +195,13 @@ class Block:
                 yield path + (key,), "missing"
         given = [key for key in self.exactly_one if key in value]
         if self.exactly_one and len(given) != 1:
-            yield path, (f"give exactly one of {', '.join(self.exactly_one)}"
-                         + (f", not {' and '.join(given)}" if given else ""))
+            yield (
+                path,
+                (
+                    f"give exactly one of {', '.join(self.exactly_one)}"
+                    + (f", not {' and '.join(given)}" if given else "")
+                ),
+            )
         if self.at_least_one and not any(key in value for key in self.at_least_one):
             yield path, f"give at least one of {', '.join(self.at_least_one)}"
         for key, needed in self.needs.items():
@@ -195,9 +209,12 @@ class Block:
                 yield path + (key,), f"goes only with {needed!r}"
 
     def schema(self) -> dict:
-        schema = {"type": "object", "additionalProperties": False,
-                  "required": [k for k in self.fields if k not in self.optional],
-                  "properties": {k: kind.schema() for k, kind in self.fields.items()}}
+        schema = {
+            "type": "object",
+            "additionalProperties": False,
+            "required": [k for k in self.fields if k not in self.optional],
+            "properties": {k: kind.schema() for k, kind in self.fields.items()},
+        }
         if self.exactly_one:
             schema["oneOf"] = [{"required": [k]} for k in self.exactly_one]
         if self.at_least_one:
@@ -224,9 +241,15 @@ class Named:
             yield from self.item.problems(entry, path + (key,))
 
     def schema(self) -> dict:
-        return _described({"type": "object", "minProperties": 1,
-                           "propertyNames": self.name.schema(),
-                           "additionalProperties": self.item.schema()}, self.about)
+        return _described(
+            {
+                "type": "object",
+                "minProperties": 1,
+                "propertyNames": self.name.schema(),
+                "additionalProperties": self.item.schema(),
+            },
+            self.about,
+        )
 
 
 @dataclass(frozen=True)
@@ -244,5 +267,8 @@ class Alternatives:
         yield from self.chosen(value).problems(value, path)
 
     def schema(self) -> dict:
-        return {"if": {"type": "object", "required": [self.key]},
-                "then": self.given.schema(), "else": self.otherwise.schema()}
+        return {
+            "if": {"type": "object", "required": [self.key]},
+            "then": self.given.schema(),
+            "else": self.otherwise.schema(),
+        }

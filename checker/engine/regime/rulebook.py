@@ -11,6 +11,7 @@ once into numpy closures (a per-carrier rule for electrons and for holes).  A br
 rule file raises :class:`RuleFileError` with one line per problem:
 ``rule file <path>:<line>: field '<field>': <what is wrong>``.
 """
+
 from __future__ import annotations
 
 import re
@@ -25,19 +26,52 @@ from ...resources import rules_dir
 from ...vocabulary_words import ASSUMPTIONS, SEVERITIES, TOLERANCE_NAMES
 from ..expressions import dimensions as dm
 from ..expressions import parser as expression
-from ..expressions.dimension_check import UNIT_DIMENSIONS, DimensionProblem, dimension, name_dimension
-from .rule_fields import (Alternatives, Block, Choice, EmptyOrListOf, Expression, ListOf, Named,
-                          Number, Pattern, Text, field_name)
+from ..expressions.dimension_check import (
+    UNIT_DIMENSIONS,
+    DimensionProblem,
+    dimension,
+    name_dimension,
+)
 from ..vocabulary import DISPLAY_UNITS, TEXT, carrier_names, rule_names
+from .rule_fields import (
+    Alternatives,
+    Block,
+    Choice,
+    EmptyOrListOf,
+    Expression,
+    ListOf,
+    Named,
+    Number,
+    Pattern,
+    Text,
+    field_name,
+)
 
 # what a rule may guard beyond the words an author declares
-RULE_ONLY_ASSUMPTIONS = ("carrier-type", "stated-mobility", "stated-constants", "light-doping",
-                         "model-validity", "stated-formula", "stated-measurement")
+RULE_ONLY_ASSUMPTIONS = (
+    "carrier-type",
+    "stated-mobility",
+    "stated-constants",
+    "light-doping",
+    "model-validity",
+    "stated-formula",
+    "stated-measurement",
+)
 # checks done by engine code rather than by expressions; their rule files hold the
 # documentation, severity and threshold (see DEVELOPERS.md, "Rules evaluated by the engine")
 ENGINE_CHECKS = ("formula-analysis",)
-FORMULA_PLACEHOLDERS = {"formula", "left", "right", "detail", "fix", "value", "exact", "error",
-                        "threshold", "embodies"}
+FORMULA_PLACEHOLDERS = {
+    "formula",
+    "left",
+    "right",
+    "detail",
+    "fix",
+    "value",
+    "exact",
+    "error",
+    "threshold",
+    "embodies",
+}
 INDICATOR_PLACEHOLDERS = {"value", "threshold", "carrier", "dopants", "kind", "error"}
 PLACEHOLDER = re.compile(r"\{([A-Za-z_][A-Za-z0-9_]*)(?::([^{}]*))?\}")
 # the first line of every rule file: editors then check it against the schema
@@ -45,10 +79,14 @@ MODELINE = "# yaml-language-server: $schema=../checker/data/rule.schema.json"
 
 # ---- the table of rule-file fields (read by the loader and by the schema generator) -----
 _UNIT = Choice(tuple(DISPLAY_UNITS), "display unit (engine/vocabulary.py); 1 when left out")
-_EXPRESSION = Expression(expression.MAX_LENGTH, "expression over the names of "
-                         "engine/vocabulary.py (SI values)")
-_QUANTITY = Choice(tuple(sorted(rule_names())), "a quantity of engine/vocabulary.py",
-                   "quantity of engine/vocabulary.py")
+_EXPRESSION = Expression(
+    expression.MAX_LENGTH, "expression over the names of engine/vocabulary.py (SI values)"
+)
+_QUANTITY = Choice(
+    tuple(sorted(rule_names())),
+    "a quantity of engine/vocabulary.py",
+    "quantity of engine/vocabulary.py",
+)
 _HEAD = {
     "id": Pattern(r"[A-Z]{2,5}[0-9]{2}", "STAT01", "2-5 capitals and 2 digits; the file name"),
     "title": Text(),
@@ -56,53 +94,94 @@ _HEAD = {
     "severity": Choice(SEVERITIES),
 }
 _TAIL = {
-    "why": Text(), "example": Text(), "fix": Text(),
+    "why": Text(),
+    "example": Text(),
+    "fix": Text(),
     "references": ListOf(Text(), about="published sources (at least one)"),
 }
 _MESSAGE = Text("finding text with {placeholders}")
-EXPRESSION_RULE = Block({
-    **_HEAD,
-    "per": Choice(("carrier", "calculation"), "carrier: compiled for electrons and holes"),
-    "requires": ListOf(_QUANTITY, about="quantities that must be known"),
-    "applies": Block({
-        "declared": ListOf(Choice(ASSUMPTIONS), single=True,
-                           about="the author declares one of these words"),
-        "when": Expression(expression.MAX_LENGTH, "gate expression (non-zero: applies)"),
-        "implied_by": ListOf(Block({
-            "stated": _QUANTITY, "shortcut": _EXPRESSION,
-            "within": Number(above=0, about="relative tolerance, e.g. 0.02")}),
-            about="a stated number equal to a shortcut within a tolerance")},
-        optional=("declared", "when", "implied_by"),
-        at_least_one=("declared", "when", "implied_by")),
-    "indicator": Block({
-        "label": Text(), "expression": _EXPRESSION, "unit": _UNIT,
-        "above": Number(about="fires above this value"),
-        "below": Number(about="fires below this value"),
-        "tolerance": Choice(TOLERANCE_NAMES, "the configuration tolerance that sets the "
-                            "threshold (above = 1 + tolerance)"),
-        "source": Text("where the threshold comes from")},
-        optional=("unit", "above", "below", "tolerance"), exactly_one=("above", "below"),
-        needs={"tolerance": "above"}),
-    "show": Named(Pattern(r"[A-Za-z_][A-Za-z0-9_]*", "mfp"), Alternatives(
-        "text", Block({"text": Choice(tuple(TEXT), "a word-valued quantity")}),
-        Block({"expression": _EXPRESSION, "unit": _UNIT}, optional=("unit",))),
-        about="extra message values: name -> {expression, unit} or {text}"),
-    "message": _MESSAGE,
-    "corrections": EmptyOrListOf(Block({
-        "label": Text(), "unit": _UNIT, "stated": _QUANTITY,
-        "shortcut": _EXPRESSION, "exact": _EXPRESSION}, optional=("unit", "stated")),
-        about="stated (or shortcut) value -> exact value"),
-    **_TAIL,
-}, optional=("requires", "show"))
-ENGINE_RULE = Block({
-    **_HEAD,
-    "per": Choice(("calculation",), "an engine-evaluated rule runs once per calculation"),
-    "evaluated_by": Choice(ENGINE_CHECKS, "the engine code that produces the findings"),
-    "indicator": Block({"label": Text(), "unit": _UNIT, "above": Number(), "source": Text()},
-                       optional=("unit", "above")),
-    "message": _MESSAGE,
-    **_TAIL,
-})
+EXPRESSION_RULE = Block(
+    {
+        **_HEAD,
+        "per": Choice(("carrier", "calculation"), "carrier: compiled for electrons and holes"),
+        "requires": ListOf(_QUANTITY, about="quantities that must be known"),
+        "applies": Block(
+            {
+                "declared": ListOf(
+                    Choice(ASSUMPTIONS), single=True, about="the author declares one of these words"
+                ),
+                "when": Expression(expression.MAX_LENGTH, "gate expression (non-zero: applies)"),
+                "implied_by": ListOf(
+                    Block(
+                        {
+                            "stated": _QUANTITY,
+                            "shortcut": _EXPRESSION,
+                            "within": Number(above=0, about="relative tolerance, e.g. 0.02"),
+                        }
+                    ),
+                    about="a stated number equal to a shortcut within a tolerance",
+                ),
+            },
+            optional=("declared", "when", "implied_by"),
+            at_least_one=("declared", "when", "implied_by"),
+        ),
+        "indicator": Block(
+            {
+                "label": Text(),
+                "expression": _EXPRESSION,
+                "unit": _UNIT,
+                "above": Number(about="fires above this value"),
+                "below": Number(about="fires below this value"),
+                "tolerance": Choice(
+                    TOLERANCE_NAMES,
+                    "the configuration tolerance that sets the threshold (above = 1 + tolerance)",
+                ),
+                "source": Text("where the threshold comes from"),
+            },
+            optional=("unit", "above", "below", "tolerance"),
+            exactly_one=("above", "below"),
+            needs={"tolerance": "above"},
+        ),
+        "show": Named(
+            Pattern(r"[A-Za-z_][A-Za-z0-9_]*", "mfp"),
+            Alternatives(
+                "text",
+                Block({"text": Choice(tuple(TEXT), "a word-valued quantity")}),
+                Block({"expression": _EXPRESSION, "unit": _UNIT}, optional=("unit",)),
+            ),
+            about="extra message values: name -> {expression, unit} or {text}",
+        ),
+        "message": _MESSAGE,
+        "corrections": EmptyOrListOf(
+            Block(
+                {
+                    "label": Text(),
+                    "unit": _UNIT,
+                    "stated": _QUANTITY,
+                    "shortcut": _EXPRESSION,
+                    "exact": _EXPRESSION,
+                },
+                optional=("unit", "stated"),
+            ),
+            about="stated (or shortcut) value -> exact value",
+        ),
+        **_TAIL,
+    },
+    optional=("requires", "show"),
+)
+ENGINE_RULE = Block(
+    {
+        **_HEAD,
+        "per": Choice(("calculation",), "an engine-evaluated rule runs once per calculation"),
+        "evaluated_by": Choice(ENGINE_CHECKS, "the engine code that produces the findings"),
+        "indicator": Block(
+            {"label": Text(), "unit": _UNIT, "above": Number(), "source": Text()},
+            optional=("unit", "above"),
+        ),
+        "message": _MESSAGE,
+        **_TAIL,
+    }
+)
 RULE_FILE = Alternatives("evaluated_by", ENGINE_RULE, EXPRESSION_RULE)
 
 
@@ -116,7 +195,7 @@ class Compiled:
 
     text: str
     tree: tuple
-    run: dict          # carrier ("n", "p" or "") -> callable(values)
+    run: dict  # carrier ("n", "p" or "") -> callable(values)
 
 
 @dataclass
@@ -141,14 +220,14 @@ class Rule:
     title: str
     assumption: str
     severity: str
-    per: str                     # "carrier" | "calculation"
+    per: str  # "carrier" | "calculation"
     declared: tuple
     when: Compiled | None
     implied_by: list
     indicator_label: str
     indicator: Compiled
     indicator_unit: str
-    relation: str                # "above" | "below"
+    relation: str  # "above" | "below"
     threshold: float
     threshold_source: str
     message: str
@@ -161,8 +240,8 @@ class Rule:
     references: list
     path: str
     carriers: tuple = field(default=())
-    evaluated_by: str | None = None     # engine check that produces this rule's findings
-    tolerance: str | None = None        # configuration tolerance that sets the threshold
+    evaluated_by: str | None = None  # engine check that produces this rule's findings
+    tolerance: str | None = None  # configuration tolerance that sets the threshold
 
 
 # ---- reading a rule file ---------------------------------------------------------------
@@ -183,8 +262,9 @@ class _Report:
 
     def add(self, where: tuple, message: str, line: int | None = None):
         line = line or self.line(where)
-        self.found.append((line, f"rule file {self.path}:{line}: field "
-                                 f"{field_name(where)!r}: {message}"))
+        self.found.append(
+            (line, f"rule file {self.path}:{line}: field {field_name(where)!r}: {message}")
+        )
 
     def raise_any(self):
         if self.found:
@@ -201,8 +281,9 @@ def _read(path: Path) -> tuple:
         data = loader.construct_document(node) if node is not None else None
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark
-        raise RuleFileError(f"rule file {path}:{mark.line + 1 if mark else 1}: malformed "
-                            f"YAML: {exc.problem}") from None
+        raise RuleFileError(
+            f"rule file {path}:{mark.line + 1 if mark else 1}: malformed YAML: {exc.problem}"
+        ) from None
     finally:
         loader.dispose()
     report = _Report(path, {})
@@ -213,8 +294,11 @@ def _read(path: Path) -> tuple:
         if isinstance(node, yaml.MappingNode):
             for key, value in node.value:
                 if (*where, key.value) in report.lines:
-                    report.add((*where, key.value), "the key is given twice; keep one",
-                               key.start_mark.line + 1)
+                    report.add(
+                        (*where, key.value),
+                        "the key is given twice; keep one",
+                        key.start_mark.line + 1,
+                    )
                 report.lines[(*where, key.value)] = key.start_mark.line + 1
                 todo.append(((*where, key.value), value))
         elif isinstance(node, yaml.SequenceNode):
@@ -226,13 +310,17 @@ def load_rule(path: Path) -> Rule:
     path = Path(path)
     text, data, report = _read(path)
     if text.split("\n", 1)[0].rstrip() != MODELINE:
-        report.add(("(modeline)",), f"the first line must be '{MODELINE}' (editors check the "
-                                    "file against the rule schema with it)", line=1)
+        report.add(
+            ("(modeline)",),
+            f"the first line must be '{MODELINE}' (editors check the "
+            "file against the rule schema with it)",
+            line=1,
+        )
     problems = list(RULE_FILE.problems(data, ()))
     for where, message in problems:
         report.add(where, message)
     if problems:
-        report.raise_any()           # only sound fields can be built on
+        report.raise_any()  # only sound fields can be built on
     build = _Builder(path, report, data)
     rule = build.engine_rule() if "evaluated_by" in data else build.expression_rule()
     report.raise_any()
@@ -262,82 +350,142 @@ class _Builder:
         except DimensionProblem as exc:
             return self.report.add(where, f"the dimensions do not fit: {exc}")
         if expected is not None and found != expected[0]:
-            return self.report.add(where, f"{text.strip()!r} is {dm.describe(found)}, but "
-                                          f"{expected[1]} is {dm.describe(expected[0])}")
-        run = {x: expression.to_numpy(expression.rename(tree, carrier_names(x)) if x else tree)
-               for x in self.carriers}
+            return self.report.add(
+                where,
+                f"{text.strip()!r} is {dm.describe(found)}, but "
+                f"{expected[1]} is {dm.describe(expected[0])}",
+            )
+        run = {
+            x: expression.to_numpy(expression.rename(tree, carrier_names(x)) if x else tree)
+            for x in self.carriers
+        }
         return Compiled(text, tree, run)
 
     def message(self, allowed) -> str:
         message = self.data["message"].strip()
         for match in PLACEHOLDER.finditer(message):
             if match.group(1) not in allowed:
-                self.report.add(("message",), f"unknown placeholder {{{match.group(1)}}}; "
-                                              f"available: {', '.join(sorted(allowed))}")
+                self.report.add(
+                    ("message",),
+                    f"unknown placeholder {{{match.group(1)}}}; "
+                    f"available: {', '.join(sorted(allowed))}",
+                )
         return message
 
     def common(self) -> dict:
         """The fields every rule has, as Rule arguments."""
         data, indicator = self.data, self.data["indicator"]
-        return dict(id=data["id"], title=data["title"].strip(), assumption=data["assumption"],
-                    severity=data["severity"], per=data["per"],
-                    indicator_label=indicator["label"].strip(),
-                    indicator_unit=indicator.get("unit", "1"),
-                    threshold_source=indicator["source"].strip(), why=data["why"].strip(),
-                    example=data["example"].strip(), fix=data["fix"].strip(),
-                    references=list(data["references"]), path=str(self.path),
-                    carriers=self.carriers)
+        return dict(
+            id=data["id"],
+            title=data["title"].strip(),
+            assumption=data["assumption"],
+            severity=data["severity"],
+            per=data["per"],
+            indicator_label=indicator["label"].strip(),
+            indicator_unit=indicator.get("unit", "1"),
+            threshold_source=indicator["source"].strip(),
+            why=data["why"].strip(),
+            example=data["example"].strip(),
+            fix=data["fix"].strip(),
+            references=list(data["references"]),
+            path=str(self.path),
+            carriers=self.carriers,
+        )
 
     def expression_rule(self) -> Rule:
         data, applies, ind = self.data, self.data["applies"], self.data["indicator"]
         declared = applies.get("declared", ())
-        implied = [Implication(entry["stated"], self.compile(
-            entry["shortcut"], ("applies", "implied_by", i, "shortcut"),
-            (name_dimension(entry["stated"]), entry["stated"])), float(entry["within"]))
-            for i, entry in enumerate(applies.get("implied_by", ()))]
+        implied = [
+            Implication(
+                entry["stated"],
+                self.compile(
+                    entry["shortcut"],
+                    ("applies", "implied_by", i, "shortcut"),
+                    (name_dimension(entry["stated"]), entry["stated"]),
+                ),
+                float(entry["within"]),
+            )
+            for i, entry in enumerate(applies.get("implied_by", ()))
+        ]
         unit = ind.get("unit", "1")
-        indicator = self.compile(ind["expression"], ("indicator", "expression"),
-                                 (UNIT_DIMENSIONS[unit], f"its unit {unit}"))
-        corrections = [self.correction(entry, ("corrections", i))
-                       for i, entry in enumerate(data["corrections"])]
-        show = {name: self.shown(entry, ("show", name))
-                for name, entry in data.get("show", {}).items()}
+        indicator = self.compile(
+            ind["expression"],
+            ("indicator", "expression"),
+            (UNIT_DIMENSIONS[unit], f"its unit {unit}"),
+        )
+        corrections = [
+            self.correction(entry, ("corrections", i))
+            for i, entry in enumerate(data["corrections"])
+        ]
+        show = {
+            name: self.shown(entry, ("show", name)) for name, entry in data.get("show", {}).items()
+        }
         when = self.compile(applies["when"], ("applies", "when")) if "when" in applies else None
         relation = "above" if "above" in ind else "below"
         return Rule(
-            **self.common(), declared=(declared,) if isinstance(declared, str) else
-            tuple(declared), when=when, implied_by=implied, indicator=indicator,
-            relation=relation, threshold=float(ind[relation]), tolerance=ind.get("tolerance"),
-            message=self.message(INDICATOR_PLACEHOLDERS | set(show)), corrections=corrections,
-            requires=tuple(data.get("requires", ())), show=show)
+            **self.common(),
+            declared=(declared,) if isinstance(declared, str) else tuple(declared),
+            when=when,
+            implied_by=implied,
+            indicator=indicator,
+            relation=relation,
+            threshold=float(ind[relation]),
+            tolerance=ind.get("tolerance"),
+            message=self.message(INDICATOR_PLACEHOLDERS | set(show)),
+            corrections=corrections,
+            requires=tuple(data.get("requires", ())),
+            show=show,
+        )
 
     def correction(self, entry: dict, where: tuple) -> Correction:
         unit = entry.get("unit", "1")
         expected = (UNIT_DIMENSIONS[unit], f"its unit {unit}")
         stated = entry.get("stated")
         if stated is not None and name_dimension(stated) != expected[0]:
-            self.report.add((*where, "stated"), f"{stated} is "
-                            f"{dm.describe(name_dimension(stated))}, but its unit {unit} is "
-                            f"{dm.describe(expected[0])}")
-        return Correction(label=entry["label"].strip(), unit=unit, stated=stated,
-                          shortcut=self.compile(entry["shortcut"], (*where, "shortcut"), expected),
-                          exact=self.compile(entry["exact"], (*where, "exact"), expected))
+            self.report.add(
+                (*where, "stated"),
+                f"{stated} is "
+                f"{dm.describe(name_dimension(stated))}, but its unit {unit} is "
+                f"{dm.describe(expected[0])}",
+            )
+        return Correction(
+            label=entry["label"].strip(),
+            unit=unit,
+            stated=stated,
+            shortcut=self.compile(entry["shortcut"], (*where, "shortcut"), expected),
+            exact=self.compile(entry["exact"], (*where, "exact"), expected),
+        )
 
     def shown(self, entry: dict, where: tuple) -> tuple:
         if "text" in entry:
             return (entry["text"], "text")
         unit = entry.get("unit", "1")
-        return (self.compile(entry["expression"], (*where, "expression"),
-                             (UNIT_DIMENSIONS[unit], f"its unit {unit}")), unit)
+        return (
+            self.compile(
+                entry["expression"],
+                (*where, "expression"),
+                (UNIT_DIMENSIONS[unit], f"its unit {unit}"),
+            ),
+            unit,
+        )
 
     def engine_rule(self) -> Rule:
         """A rule whose findings come from engine code (e.g. formula analysis)."""
         ind = self.data["indicator"]
         return Rule(
-            **self.common(), declared=(), when=None, implied_by=[], indicator=None,
-            relation="above", threshold=float(ind.get("above", float("nan"))),
-            message=self.message(FORMULA_PLACEHOLDERS), corrections=[], requires=(), show={},
-            evaluated_by=self.data["evaluated_by"])
+            **self.common(),
+            declared=(),
+            when=None,
+            implied_by=[],
+            indicator=None,
+            relation="above",
+            threshold=float(ind.get("above", float("nan"))),
+            message=self.message(FORMULA_PLACEHOLDERS),
+            corrections=[],
+            requires=(),
+            show={},
+            evaluated_by=self.data["evaluated_by"],
+        )
 
 
 @lru_cache(maxsize=4)
@@ -356,6 +504,7 @@ def load_rules(folder: str | None = None) -> tuple:
 def configured(rules, config) -> tuple:
     """The rules a configuration selects, with its severities, thresholds and tolerances
     (a tolerance sets the threshold 1 + tolerance of the rule whose file names it)."""
+
     def named(rule_id, names):
         return any(rule_id == n or rule_id.startswith(n) for n in names)
 

@@ -6,6 +6,7 @@ one array per quantity name (see :mod:`checker.engine.vocabulary`), indexed by
 calculation.  A group that fails (e.g. a custom material lacking a parameter)
 is retried one calculation at a time so that only the bad ones are lost.
 """
+
 from __future__ import annotations
 
 import numpy as np
@@ -15,8 +16,14 @@ from ...physics import carriers, equilibrium, hall
 from ...physics.constants import ELEMENTARY_CHARGE
 from ..vocabulary import CONSTANTS, TEXT, concrete_names
 
-_STATED_COMMON = ("stated_kT_q", "stated_ni", "stated_Rsh", "stated_R", "stated_lambda",
-                  "stated_hall")
+_STATED_COMMON = (
+    "stated_kT_q",
+    "stated_ni",
+    "stated_Rsh",
+    "stated_R",
+    "stated_lambda",
+    "stated_hall",
+)
 _STATED_CARRIER = ("stated_dens", "stated_mu", "stated_D", "stated_v")
 
 
@@ -25,9 +32,15 @@ def _dominant(species: dict):
 
 
 def _group_key(calc):
-    return (id(calc.material), tuple(sorted(calc.donors)), tuple(sorted(calc.acceptors)),
-            _dominant(calc.donors), _dominant(calc.acceptors), calc.band_gap_narrowing,
-            int(calc.structure.get("dim", 3)))
+    return (
+        id(calc.material),
+        tuple(sorted(calc.donors)),
+        tuple(sorted(calc.acceptors)),
+        _dominant(calc.donors),
+        _dominant(calc.acceptors),
+        calc.band_gap_narrowing,
+        int(calc.structure.get("dim", 3)),
+    )
 
 
 def _unknown(count) -> dict:
@@ -44,8 +57,9 @@ def solve_sweep(calc, T, donors, acceptors) -> tuple[dict, str | None]:
     values = _unknown(count)
     put, skipped = solve_points(calc, T, donors, acceptors)
     for name, array in put.items():
-        values[name] = np.broadcast_to(array, (count,)).copy() if np.ndim(array) else \
-            np.full(count, array)
+        values[name] = (
+            np.broadcast_to(array, (count,)).copy() if np.ndim(array) else np.full(count, array)
+        )
     _fill_inputs([calc], values, count=count)
     return values, skipped
 
@@ -101,56 +115,119 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note)."""
     material, dim = first.material, int(first.structure.get("dim", 3))
-    state = equilibrium.solve(material, T, donors, acceptors,
-                              band_gap_narrowing=first.band_gap_narrowing)
+    state = equilibrium.solve(
+        material, T, donors, acceptors, band_gap_narrowing=first.band_gap_narrowing
+    )
     skipped = None
     try:
         flow = carriers.carrier_transport(state, dim)
     except MissingParameterError as exc:
         # statistics checks still run; mobility-based ones see NaN and stay silent
         skipped = f"transport checks skipped: {exc}"
-        flow = {key: np.full_like(T, np.nan) for key in (
-            "mu_n", "mu0_n", "vsat_n", "beta_n", "v_n", "mfp_n",
-            "mu_p", "mu0_p", "vsat_p", "beta_p", "v_p", "mfp_p")}
+        flow = {
+            key: np.full_like(T, np.nan)
+            for key in (
+                "mu_n",
+                "mu0_n",
+                "vsat_n",
+                "beta_n",
+                "v_n",
+                "mfp_n",
+                "mu_p",
+                "mu0_p",
+                "vsat_p",
+                "beta_p",
+                "v_p",
+                "mfp_p",
+            )
+        }
         flow["cond_n"] = flow["cond_p"] = np.ones_like(T)
         flow["kT_over_q"] = state.kT / ELEMENTARY_CHARGE
     (T_lo, T_hi), (N_lo, N_hi), binding = carriers.model_ranges(
-        material, _dominant(first.donors), _dominant(first.acceptors))
+        material, _dominant(first.donors), _dominant(first.acceptors)
+    )
     net = np.abs(state.donors_total - state.acceptors_total)
-    narrowing = material.narrowing(state.donors_total, state.acceptors_total) \
-        if material.narrowing else np.full_like(T, np.nan)
+    narrowing = (
+        material.narrowing(state.donors_total, state.acceptors_total)
+        if material.narrowing
+        else np.full_like(T, np.nan)
+    )
     ni_lo, ni_hi = _ni_spread(material, T, state.ni, first.band_gap_narrowing)
     put = {
-        "T": T, "kT": state.kT, "kT_q": flow["kT_over_q"], "Eg": state.Eg, "ni": state.ni,
-        "ni_lo": ni_lo, "ni_hi": ni_hi,
-        "Nnet": net, "Ntot": state.donors_total + state.acceptors_total,
+        "T": T,
+        "kT": state.kT,
+        "kT_q": flow["kT_over_q"],
+        "Eg": state.Eg,
+        "ni": state.ni,
+        "ni_lo": ni_lo,
+        "ni_hi": ni_hi,
+        "Nnet": net,
+        "Ntot": state.donors_total + state.acceptors_total,
         "T_onset": _onset(material, net),
-        "dEg_bgn": narrowing, "bgn_on": np.full_like(T, float(first.band_gap_narrowing)),
-        "T_lo": np.full_like(T, T_lo), "T_hi": np.full_like(T, T_hi),
-        "N_lo": np.full_like(T, N_lo), "N_hi": np.full_like(T, N_hi),
-        "dim": np.full_like(T, float(dim)), "regime": carriers.regime_label(state),
+        "dEg_bgn": narrowing,
+        "bgn_on": np.full_like(T, float(first.band_gap_narrowing)),
+        "T_lo": np.full_like(T, T_lo),
+        "T_hi": np.full_like(T, T_hi),
+        "N_lo": np.full_like(T, N_lo),
+        "N_hi": np.full_like(T, N_hi),
+        "dim": np.full_like(T, float(dim)),
+        "regime": carriers.regime_label(state),
         # which models set the edge a point leaves (for the model-validity messages)
-        "T_models": np.where(T < T_lo, ", ".join(binding["T_low"]),
-                             np.where(T > T_hi, ", ".join(binding["T_high"]), "")).astype(object),
+        "T_models": np.where(
+            T < T_lo,
+            ", ".join(binding["T_low"]),
+            np.where(T > T_hi, ", ".join(binding["T_high"]), ""),
+        ).astype(object),
         "N_models": np.full(T.shape, ", ".join(binding["N_high"]), dtype=object),
     }
     for x, eta, dens, nband, own, other, ionized, fraction, species in (
-            ("n", state.eta_n, state.n, state.Nc, state.donors_total, state.acceptors_total,
-             state.donors_ionized_total, state.donor_fraction, first.donors),
-            ("p", state.eta_p, state.p, state.Nv, state.acceptors_total, state.donors_total,
-             state.acceptors_ionized_total, state.acceptor_fraction, first.acceptors)):
+        (
+            "n",
+            state.eta_n,
+            state.n,
+            state.Nc,
+            state.donors_total,
+            state.acceptors_total,
+            state.donors_ionized_total,
+            state.donor_fraction,
+            first.donors,
+        ),
+        (
+            "p",
+            state.eta_p,
+            state.p,
+            state.Nv,
+            state.acceptors_total,
+            state.donors_total,
+            state.acceptors_ionized_total,
+            state.acceptor_fraction,
+            first.acceptors,
+        ),
+    ):
         mott = min((material.dopant(s).mott_density for s in species), default=np.inf)
         main = material.dopant(_dominant(species)) if species else None
-        put.update({
-            f"eta_{x}": eta, f"dens_{x}": dens, f"Nband_{x}": nband, f"N_{x}": own,
-            f"Ncomp_{x}": other, f"Nion_{x}": ionized, f"f_{x}": fraction,
-            f"mott_{x}": np.full_like(T, mott), f"metal_{x}": (own >= mott).astype(float),
-            f"mu_{x}": flow[f"mu_{x}"], f"mu0_{x}": flow[f"mu0_{x}"], f"cond_{x}": flow[f"cond_{x}"],
-            f"vsat_{x}": flow[f"vsat_{x}"], f"beta_{x}": flow[f"beta_{x}"],
-            f"vth_{x}": flow[f"v_{x}"], f"lambda_{x}": flow[f"mfp_{x}"],
-            f"Eion_{x}": np.full_like(T, main.energy if main else np.nan),
-            f"gdeg_{x}": np.full_like(T, main.degeneracy if main else np.nan),
-        })
+        put.update(
+            {
+                f"eta_{x}": eta,
+                f"dens_{x}": dens,
+                f"Nband_{x}": nband,
+                f"N_{x}": own,
+                f"Ncomp_{x}": other,
+                f"Nion_{x}": ionized,
+                f"f_{x}": fraction,
+                f"mott_{x}": np.full_like(T, mott),
+                f"metal_{x}": (own >= mott).astype(float),
+                f"mu_{x}": flow[f"mu_{x}"],
+                f"mu0_{x}": flow[f"mu0_{x}"],
+                f"cond_{x}": flow[f"cond_{x}"],
+                f"vsat_{x}": flow[f"vsat_{x}"],
+                f"beta_{x}": flow[f"beta_{x}"],
+                f"vth_{x}": flow[f"v_{x}"],
+                f"lambda_{x}": flow[f"mfp_{x}"],
+                f"Eion_{x}": np.full_like(T, main.energy if main else np.nan),
+                f"gdeg_{x}": np.full_like(T, main.degeneracy if main else np.nan),
+            }
+        )
     # electrons count as the majority on a tie (intrinsic material: n = p to rounding)
     put["maj_n"] = (state.n >= state.p * (1 - 1e-9)).astype(float)
     put["maj_p"] = 1.0 - put["maj_n"]
@@ -182,8 +259,11 @@ def _fill_inputs(calculations, values, count=None):
     def column(getter):
         if count is not None:
             return np.full(count, getter(calculations[0]), dtype=float)
-        return np.array([getter(c) for c in calculations], dtype=float) if calculations \
+        return (
+            np.array([getter(c) for c in calculations], dtype=float)
+            if calculations
             else np.zeros(0)
+        )
 
     def stated(name):
         return column(lambda c: c.stated.get(name, np.nan))
@@ -191,11 +271,17 @@ def _fill_inputs(calculations, values, count=None):
     for name in ("L", "thickness"):
         values[name] = column(lambda c, name=name: c.structure.get(name, np.nan))
     area = column(lambda c: c.structure.get("A", np.nan))
-    values["A"] = np.where(np.isfinite(area), area, column(
-        lambda c: c.structure.get("thickness", np.nan) * c.structure.get("width", np.nan)))
+    values["A"] = np.where(
+        np.isfinite(area),
+        area,
+        column(lambda c: c.structure.get("thickness", np.nan) * c.structure.get("width", np.nan)),
+    )
     field = column(lambda c: c.structure.get("field", np.nan))
-    values["field"] = np.where(np.isfinite(field), field, column(
-        lambda c: c.structure.get("voltage", np.nan)) / values["L"])
+    values["field"] = np.where(
+        np.isfinite(field),
+        field,
+        column(lambda c: c.structure.get("voltage", np.nan)) / values["L"],
+    )
     for name in _STATED_COMMON:
         values[name] = stated(name)
     sigma, rho = stated("stated_sigma"), stated("stated_rho")
@@ -217,17 +303,21 @@ def _fill_inputs(calculations, values, count=None):
     none = ~(specific["n"] | specific["p"])
     for x in ("n", "p"):
         values[f"in_use_{x}"] = (specific[x] | (none & (values[f"maj_{x}"] > 0))).astype(float)
-        used = np.where(np.isfinite(values[f"stated_mu_{x}"]), values[f"stated_mu_{x}"],
-                        values[f"mu_{x}"])
+        used = np.where(
+            np.isfinite(values[f"stated_mu_{x}"]), values[f"stated_mu_{x}"], values[f"mu_{x}"]
+        )
         # the mean free path scales with the mobility the author uses
         values[f"lambda_{x}"] = values[f"lambda_{x}"] * used / values[f"mu_{x}"]
         values[f"used_mu_{x}"] = used
-    values["sigma"] = ELEMENTARY_CHARGE * (values["dens_n"] * values["cond_n"] * values["used_mu_n"]
-                                           + values["dens_p"] * values["cond_p"] * values["used_mu_p"])
+    values["sigma"] = ELEMENTARY_CHARGE * (
+        values["dens_n"] * values["cond_n"] * values["used_mu_n"]
+        + values["dens_p"] * values["cond_p"] * values["used_mu_p"]
+    )
     values["rho"] = 1.0 / values["sigma"]
     values["sigma_model"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["mu_n"]
-        + values["dens_p"] * values["cond_p"] * values["mu_p"])
+        + values["dens_p"] * values["cond_p"] * values["mu_p"]
+    )
     _hall(values, column(lambda c: c.hall_exponent))
 
 
@@ -242,8 +332,14 @@ def _hall(values, exponents):
                 pick = (exponents == r) & (dims == dim)
                 factor[pick] = hall.hall_factor(values[f"eta_{x}"][pick], float(r), int(dim))
         values[f"rH_{x}"] = factor
-    values["n_hall"] = hall.hall_density(values["dens_n"], values["dens_p"], values["mu_n"],
-                                         values["mu_p"], values["rH_n"], values["rH_p"])
+    values["n_hall"] = hall.hall_density(
+        values["dens_n"],
+        values["dens_p"],
+        values["mu_n"],
+        values["mu_p"],
+        values["rH_n"],
+        values["rH_p"],
+    )
     # measured Hall factors (where the material tabulates them, for non-degenerate
     # carriers) span the expected density; elsewhere the model value +-5 %
     # (common practice (no source))
@@ -254,7 +350,10 @@ def _hall(values, exponents):
             measured = values[f"rH_{end}_{x}"]
             use = np.isfinite(measured) & (values[f"eta_{x}"] < -1.0)
             factors.append(np.where(use, measured, values[f"rH_{x}"] * spread))
-        bounds.append(hall.hall_density(values["dens_n"], values["dens_p"], values["mu_n"],
-                                        values["mu_p"], *factors))
+        bounds.append(
+            hall.hall_density(
+                values["dens_n"], values["dens_p"], values["mu_n"], values["mu_p"], *factors
+            )
+        )
     values["n_hall_lo"] = np.minimum(*bounds)
     values["n_hall_hi"] = np.maximum(*bounds)

@@ -8,6 +8,7 @@ crosses its threshold smoothly), the fraction of the grid that fails, and the fu
 finding at the worst cell, which is checked again as an ordinary single point.  Only
 numbers and names leave here; :mod:`checker.report.sweep_text` writes them as text.
 """
+
 from __future__ import annotations
 
 import copy
@@ -15,13 +16,13 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .evaluate import Cells, beyond, rule_cells, rule_indicator
 from ..findings import carrier_word
+from .evaluate import Cells, beyond, rule_cells, rule_indicator
 from .points import CalculationReport, check_points
 from .state_values import solve_sweep
 
-CHUNK = 100_000          # points solved and evaluated at a time (bounds the memory)
-ROWS_SHOWN = 5           # rows of a 2D grid whose boundary is written out
+CHUNK = 100_000  # points solved and evaluated at a time (bounds the memory)
+ROWS_SHOWN = 5  # rows of a 2D grid whose boundary is written out
 
 
 @dataclass
@@ -37,21 +38,21 @@ class FailingRun:
 class BoundaryRow:
     """Rows of the grid that fail alike (one axis: the single row, ``rows`` None)."""
 
-    rows: tuple | None       # (first, last, middle) value of the row axis
-    single: bool             # one row
-    every: bool              # the rows cover the whole row axis
-    runs: list               # FailingRun along the boundary axis
+    rows: tuple | None  # (first, last, middle) value of the row axis
+    single: bool  # one row
+    every: bool  # the rows cover the whole row axis
+    runs: list  # FailingRun along the boundary axis
 
 
 @dataclass
 class SweepSummary:
     points: int
     failing_fraction: float
-    axis: object = None               # inputs Axis the boundary runs along
-    row_axis: object = None           # inputs Axis of the rows (None: one axis)
-    rows: list = field(default_factory=list)          # BoundaryRow
-    interpolated: bool = False        # edges between grid points were interpolated
-    worst_point: list = field(default_factory=list)   # (Axis, value) per swept axis
+    axis: object = None  # inputs Axis the boundary runs along
+    row_axis: object = None  # inputs Axis of the rows (None: one axis)
+    rows: list = field(default_factory=list)  # BoundaryRow
+    interpolated: bool = False  # edges between grid points were interpolated
+    worst_point: list = field(default_factory=list)  # (Axis, value) per swept axis
 
 
 def axis_label(axis) -> str:
@@ -69,8 +70,7 @@ def grid(calc):
     size = arrays[0].size
     T = flat.get("T", np.full(size, calc.temperature))
     donors = {s: flat.get(("donors", s), np.full(size, v)) for s, v in calc.donors.items()}
-    acceptors = {s: flat.get(("acceptors", s), np.full(size, v))
-                 for s, v in calc.acceptors.items()}
+    acceptors = {s: flat.get(("acceptors", s), np.full(size, v)) for s, v in calc.acceptors.items()}
     return T, donors, acceptors, shape
 
 
@@ -93,7 +93,7 @@ def check_sweep(calc, rules, progress=None):
     (first,), errors = check_points([point(calc, T, donors, acceptors, 0)], rules)
     if first.error:
         return CalculationReport(calc, None, error=first.error), errors
-    for result in first.formulas:    # a value "here" belongs to one point, not to a sweep
+    for result in first.formulas:  # a value "here" belongs to one point, not to a sweep
         result.value = result.exact = result.error = float("nan")
     masks, notes = rule_grid(calc, rules, first.embodied, grid_points, progress)
     findings = [f for f in first.findings if f.rule in ("FORM01", "FORM02")]
@@ -104,11 +104,13 @@ def check_sweep(calc, rules, progress=None):
         if not match:
             continue
         finding = match[0]
-        finding.sweep = summarize_sweep(calc, mask, index, grid_points,
-                                        excess_at(calc, by_id[rule_id], x, grid_points))
+        finding.sweep = summarize_sweep(
+            calc, mask, index, grid_points, excess_at(calc, by_id[rule_id], x, grid_points)
+        )
         findings.append(finding)
-    report = CalculationReport(calc, None, findings, notes, formulas=first.formulas,
-                               embodied=first.embodied)
+    report = CalculationReport(
+        calc, None, findings, notes, formulas=first.formulas, embodied=first.embodied
+    )
     report.sweep = {"axes": [(axis_label(a), a) for a in calc.sweep], "points": int(T.size)}
     return report, errors
 
@@ -121,9 +123,12 @@ def rule_grid(calc, rules, embodied, grid_points, progress=None):
     masks, worst, notes = {}, {}, []
     for start in range(0, size, CHUNK):
         stop = min(start + CHUNK, size)
-        values, skipped = solve_sweep(calc, T[start:stop],
-                                      {s: a[start:stop] for s, a in donors.items()},
-                                      {s: a[start:stop] for s, a in acceptors.items()})
+        values, skipped = solve_sweep(
+            calc,
+            T[start:stop],
+            {s: a[start:stop] for s, a in donors.items()},
+            {s: a[start:stop] for s, a in acceptors.items()},
+        )
         if skipped and skipped not in notes:
             notes.append(skipped)
         for ruled in rule_cells(rules, Cells.grid(calc, values, stop - start, embodied)):
@@ -132,8 +137,7 @@ def rule_grid(calc, rules, embodied, grid_points, progress=None):
             key = (ruled.rule.id, ruled.x)
             masks.setdefault(key, np.zeros(size, dtype=bool))[start:stop] = ruled.fired
             with np.errstate(all="ignore"):
-                excess = np.where(ruled.fired, np.nan_to_num(ruled.excess(), posinf=1e300),
-                                  -np.inf)
+                excess = np.where(ruled.fired, np.nan_to_num(ruled.excess(), posinf=1e300), -np.inf)
             best = int(np.argmax(excess))
             if key not in worst or excess[best] > worst[key][0]:
                 worst[key] = (float(excess[best]), start + best)
@@ -145,12 +149,14 @@ def rule_grid(calc, rules, embodied, grid_points, progress=None):
 def _runs(flags) -> list:
     """(first, last) index of each run of True."""
     edges = np.diff(np.concatenate(([0], np.asarray(flags, dtype=np.int8), [0])))
-    return [(int(i), int(j)) for i, j in
-            zip(np.flatnonzero(edges == 1), np.flatnonzero(edges == -1) - 1)]
+    return [
+        (int(i), int(j))
+        for i, j in zip(np.flatnonzero(edges == 1), np.flatnonzero(edges == -1) - 1)
+    ]
 
 
-SMOOTH = 0.05      # |excess| at an edge, relative to its span, to accept it as a crossing
-STEPS = 4          # false-position steps between two grid points
+SMOOTH = 0.05  # |excess| at an edge, relative to its span, to accept it as a crossing
+STEPS = 4  # false-position steps between two grid points
 
 
 def _edges(flags) -> list:
@@ -205,8 +211,10 @@ def _failing_runs(axis, flags, crossings=None) -> list:
         value = (crossings or {}).get((passing, failing))
         return float(values[failing] if value is None else value)
 
-    return [FailingRun(None if i == 0 else edge(i - 1, i),
-                       None if j == last else edge(j + 1, j)) for i, j in _runs(flags)]
+    return [
+        FailingRun(None if i == 0 else edge(i - 1, i), None if j == last else edge(j + 1, j))
+        for i, j in _runs(flags)
+    ]
 
 
 def boundary(calc, mask, excess=None):
@@ -233,30 +241,39 @@ def boundary(calc, mask, excess=None):
 
     # rows whose failing cells are alike are described together, at their middle row
     alike = [_runs(grid_mask[r]) for r in range(count)]
-    groups = []                       # consecutive rows that fail alike: (first, last)
+    groups = []  # consecutive rows that fail alike: (first, last)
     for r, runs in enumerate(alike):
         if groups and alike[groups[-1][0]] == runs:
             groups[-1] = (groups[-1][0], r)
         else:
             groups.append((r, r))
-    if len(groups) > ROWS_SHOWN:      # too many to list: a few evenly spaced rows
+    if len(groups) > ROWS_SHOWN:  # too many to list: a few evenly spaced rows
         picks = np.linspace(0, count - 1, ROWS_SHOWN).round().astype(int)
         groups = [(r, r) for r in sorted(set(picks))]
     middles = [(first + last) // 2 for first, last in groups]
-    crossings = {}                    # row -> {(passing, failing): edge value or None}
+    crossings = {}  # row -> {(passing, failing): edge value or None}
     if excess is not None:
         edges = [(r, pair) for r in middles for pair in _edges(grid_mask[r])]
-        found = _interpolate(axis, [pair for _, pair in edges],
-                             [flat(r, pair[1]) for r, pair in edges], excess)
+        found = _interpolate(
+            axis, [pair for _, pair in edges], [flat(r, pair[1]) for r, pair in edges], excess
+        )
         for (r, pair), value in zip(edges, found):
             crossings.setdefault(r, {})[pair] = value
     described = []
     for (first, last), middle in zip(groups, middles):
-        at = None if rows is None else tuple(float(row_axis.values[r])
-                                             for r in (first, last, middle))
-        described.append(BoundaryRow(at, first == last, first == 0 and last == count - 1,
-                                     _failing_runs(axis, grid_mask[middle],
-                                                   crossings.get(middle))))
+        at = (
+            None
+            if rows is None
+            else tuple(float(row_axis.values[r]) for r in (first, last, middle))
+        )
+        described.append(
+            BoundaryRow(
+                at,
+                first == last,
+                first == 0 and last == count - 1,
+                _failing_runs(axis, grid_mask[middle], crossings.get(middle)),
+            )
+        )
     return axis, row_axis, described
 
 
@@ -291,5 +308,6 @@ def summarize_sweep(calc, mask, index, grid_points, excess=None) -> SweepSummary
     position = np.unravel_index(index, grid_points[3])
     axis, row_axis, rows = boundary(calc, mask, excess)
     worst = [(axis_, float(axis_.values[position[k]])) for k, axis_ in enumerate(calc.sweep)]
-    return SweepSummary(int(mask.size), float(mask.mean()), axis, row_axis, rows,
-                        excess is not None, worst)
+    return SweepSummary(
+        int(mask.size), float(mask.mean()), axis, row_axis, rows, excess is not None, worst
+    )
