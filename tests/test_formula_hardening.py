@@ -24,6 +24,7 @@ from reference import mp_fermi_half, reference_solve
 
 from checker import load_material
 from checker.engine.expressions import dimensions as dm
+from checker.engine.expressions import tree as node
 from checker.engine.expressions.parser import parse, to_numpy
 from checker.engine.formulas.check import dimension, parse_formula
 from checker.engine.formulas.match import SYMPY_BUDGET, expansion_cost
@@ -131,8 +132,9 @@ _FUNCTION_LEVEL = textwrap.dedent("""
     from checker.errors import InputError
     out = {}
     # the hang of issue 11, built without the parser: 10^(10^9) overflows in every sample
-    rhs = ("*", ("name", "N_D"), ("**", ("**", ("num", 10.0), ("num", 1e9)), ("num", 0.0)))
-    out["built"] = analyse(("name", "n"), rhs, 3, "n").status
+    from checker.engine.expressions.tree import binary, name, num
+    rhs = binary("*", name("N_D"), binary("**", binary("**", num(10), num(1e9)), num(0)))
+    out["built"] = analyse(name("n"), rhs, 3, "n").status
     lhs, rhs, _ = parse_formula(%r, "n", "test")
     out["over_budget"] = analyse(lhs, rhs, 3, "n").status
     refused = []
@@ -311,7 +313,8 @@ def test_implicit_products_are_refused_with_the_explicit_form(formula, explicit)
 
 def test_a_number_with_an_exponent_is_not_an_implicit_product():
     # 1e16 and 2.5E-3 are numbers (Python's float literal grammar), not 1*e16
-    assert parse("2.5E-3*x + 1e16") == ("+", ("*", ("num", 2.5e-3), ("name", "x")), ("num", 1e16))
+    product = node.binary("*", node.num(2.5e-3), node.name("x"))
+    assert parse("2.5E-3*x + 1e16") == node.binary("+", product, node.num(1e16))
 
 
 @pytest.mark.parametrize(
@@ -320,7 +323,7 @@ def test_a_number_with_an_exponent_is_not_an_implicit_product():
 )
 def test_fermi_orders_may_be_fractions(formula, order):
     rhs = parse_formula(formula, "n", "f")[1]
-    assert rhs[2] == ("call", "F", (("num", order), ("name", "eta_n")))
+    assert rhs.args[1] == node.call("F", (node.num(order), node.name("eta_n")))
     with pytest.raises(InputError, match="half-integer"):
         parse_formula("n = N_c*F(1/3, eta)", "n", "f")
 

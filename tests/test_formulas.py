@@ -19,6 +19,7 @@ from reference import mp_fermi_half, reference_solve
 
 from checker import load_material
 from checker.engine.expressions import parser as expression
+from checker.engine.expressions import tree
 from checker.engine.formulas import normal_form
 from checker.engine.formulas.check import dimension, parse_formula
 from checker.engine.formulas.match import analyse
@@ -180,7 +181,7 @@ def test_normal_form_does_not_prove_what_is_false():
 
 
 def test_spellings_and_unknown_symbols():
-    assert parse_formula("λ = lambda_n", "n", "f")[0] == ("name", "lambda_n")
+    assert parse_formula("λ = lambda_n", "n", "f")[0] == tree.name("lambda_n")
     assert (
         parse_formula("Dn = μn*Vt", "n", "f")[:2]
         == parse_formula("D_n = mu_n*(k*T/q)", "n", "f")[:2]
@@ -554,8 +555,8 @@ def test_every_relation_is_the_physics_layer(dim, which, majority):
     base = world(dim, which, majority)
 
     def relation(name, values):
-        tree = expand(("name", name), base.definitions)
-        return np.broadcast_to(expression.to_numpy(tree)(values), values["T"].shape)
+        expanded = expand(tree.name(name), base.definitions)
+        return np.broadcast_to(expression.to_numpy(expanded)(values), values["T"].shape)
 
     v, eta_n = _sample(dim, which, seed=1000 * dim + len(which) + ord(majority))
     # in this world one dopant density is defined by neutrality; the points are those

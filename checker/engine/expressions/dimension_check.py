@@ -15,6 +15,7 @@ import math
 from ..vocabulary import COMMON, CONSTANTS, PER_CARRIER
 from . import dimensions as dm
 from .parser import folded, to_text
+from .tree import CALL, NAME, NEG, NUM, fold
 
 # display unit (vocabulary.DISPLAY_UNITS) -> dimension
 UNIT_DIMENSIONS = {
@@ -75,54 +76,62 @@ def _same(trees, dimensions, what: str) -> dm.Dimension:
 
 
 def dimension(tree, of_name=name_dimension) -> dm.Dimension:
-    """The dimension of an expression tree (engine/expression.py); DimensionProblem
+    """The dimension of an expression tree (expressions/tree.py); DimensionProblem
     where it has none."""
-    kind = tree[0]
-    if kind == "num":
+
+    def visit(node, inner):
+        kind = node.kind
+        if kind == NUM:
+            return dm.NONE
+        if kind == NAME:
+            return of_name(node.value)
+        if kind == NEG:
+            return inner[0]
+        if kind == CALL:
+            return _call_dimension(node.value, node.args, inner)
+        return _operation_dimension(kind, node.args, inner)
+
+    return fold(tree, visit)
+
+
+def _call_dimension(name: str, args, inner) -> dm.Dimension:
+    if name in _DIMENSIONLESS_ARGUMENTS:
+        for argument, found in zip(args, inner):
+            if not found.dimensionless:
+                raise DimensionProblem(
+                    f"the argument of {name}(), {to_text(argument)}, "
+                    f"is {dm.describe(found)}; it must be "
+                    "dimensionless"
+                )
         return dm.NONE
-    if kind == "name":
-        return of_name(tree[1])
-    if kind == "neg":
-        return dimension(tree[1], of_name)
-    if kind == "call":
-        name, args = tree[1], tree[2]
-        inner = [dimension(a, of_name) for a in args]
-        if name in _DIMENSIONLESS_ARGUMENTS:
-            for argument, found in zip(args, inner):
-                if not found.dimensionless:
-                    raise DimensionProblem(
-                        f"the argument of {name}(), {to_text(argument)}, "
-                        f"is {dm.describe(found)}; it must be "
-                        "dimensionless"
-                    )
-            return dm.NONE
-        if name == "sqrt":
-            return inner[0] ** 0.5
-        if name == "present":
-            return dm.NONE
-        if name == "less":
-            _same(args, inner, "less() compares values of one dimension")
-            return dm.NONE
-        if name in _ALIKE_ARGUMENTS:
-            return _same(
-                args, inner, f"the values {name}() chooses between must have one dimension"
-            )
-        raise DimensionProblem(f"{name}() has no dimension rule")
-    left, right = dimension(tree[1], of_name), dimension(tree[2], of_name)
+    if name == "sqrt":
+        return inner[0] ** 0.5
+    if name == "present":
+        return dm.NONE
+    if name == "less":
+        _same(args, inner, "less() compares values of one dimension")
+        return dm.NONE
+    if name in _ALIKE_ARGUMENTS:
+        return _same(args, inner, f"the values {name}() chooses between must have one dimension")
+    raise DimensionProblem(f"{name}() has no dimension rule")
+
+
+def _operation_dimension(kind: str, args, inner) -> dm.Dimension:
+    left, right = inner
     if kind in ("+", "-"):
-        return _same(tree[1:], (left, right), "terms of a sum must have one dimension")
+        return _same(args, (left, right), "terms of a sum must have one dimension")
     if kind == "*":
         return left * right
     if kind == "/":
         return left / right
     if not right.dimensionless:
-        raise DimensionProblem(f"the exponent {to_text(tree[2])} is {dm.describe(right)}")
+        raise DimensionProblem(f"the exponent {to_text(args[1])} is {dm.describe(right)}")
     if left.dimensionless:
         return dm.NONE
-    power = folded(tree[2])
+    power = folded(args[1])
     if power is None or not math.isfinite(power):
         raise DimensionProblem(
-            f"{to_text(tree[1])} ({dm.describe(left)}) is raised to the "
-            f"non-constant power {to_text(tree[2])}"
+            f"{to_text(args[0])} ({dm.describe(left)}) is raised to the "
+            f"non-constant power {to_text(args[1])}"
         )
     return left**power

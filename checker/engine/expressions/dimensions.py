@@ -10,7 +10,6 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-BASIS = ("m", "s", "V", "C", "K")
 _SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
 
 

@@ -4,10 +4,8 @@ Text is parsed with Python's ``ast`` module in ``eval`` mode and then walked
 under a whitelist: numbers, names, + - * / ** ^ (``^`` is a power), unary
 minus/plus, parentheses, and calls of the functions in ``FUNCTIONS``.  Nothing
 else (attributes, subscripts, strings, lambdas, comprehensions, keywords,
-comparisons) is accepted.  The result is a small tree of tuples of our own:
-
-    ("num", value) | ("name", text) | (op, left, right) for op in + - * / **
-    | ("neg", operand) | ("call", function, (arguments...))
+comparisons) is accepted.  The result is a tree of typed nodes of our own
+(:mod:`.tree`: numbers, names, + - * / **, unary minus, calls), walked by one fold.
 
 Nothing is ever evaluated while parsing: no ``eval``, ``sympify``,
 ``parse_expr`` or ``lambdify`` touches the text.  From the tree,
@@ -37,6 +35,8 @@ import numpy as np
 
 from ...errors import InputError
 from ...physics.fermi import fermi_dirac
+from .tree import CALL, NAME, NEG, NUM, Node, binary, call, fold, neg, num, transform
+from .tree import name as name_node
 
 MAX_LENGTH = 4000
 MAX_NODES = 400
@@ -96,8 +96,8 @@ FUNCTIONS = {
 _BINARY = {ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/", ast.Pow: "**"}
 
 
-def parse(text: str, names=None, where: str = "", functions=None) -> tuple:
-    """Parse ``text`` into the tuple tree.
+def parse(text: str, names=None, where: str = "", functions=None) -> Node:
+    """Parse ``text`` into a tree of :class:`~.tree.Node`.
 
     ``names`` (optional) is the set of allowed names; ``functions`` (optional)
     narrows the callable functions to a subset of ``FUNCTIONS``.
@@ -147,7 +147,7 @@ def _walk(node, names, place, text, counter, depth, allowed):
                 f"{place}constant {_shown(str(node.value), 24)} is out of range "
                 "(|x| <= 1e300); write it with an exponent, e.g. 1.5e20"
             )
-        return ("num", value)
+        return num(value)
     if isinstance(node, ast.Name):
         if names is not None and node.id not in names:
             import difflib
@@ -155,19 +155,19 @@ def _walk(node, names, place, text, counter, depth, allowed):
             close = difflib.get_close_matches(node.id, sorted(names), n=3)
             hint = f"; did you mean {', '.join(close)}?" if close else ""
             raise InputError(f"{place}unknown name {node.id!r} in {text!r}{hint}")
-        return ("name", node.id)
+        return name_node(node.id)
     if isinstance(node, ast.BinOp) and type(node.op) in _BINARY:
         op = _BINARY[type(node.op)]
         left, right = go(node.left), go(node.right)
         if op == "**":
             _check_power(left, right, place)
-        return (op, left, right)
+        return binary(op, left, right)
     if isinstance(node, ast.UnaryOp) and isinstance(node.op, (ast.USub, ast.UAdd)):
         operand = go(node.operand)
         if isinstance(node.op, ast.UAdd):
             return operand
         # a negative literal is a number (F(-0.5, eta) names an order, not an operation)
-        return ("num", -operand[1]) if operand[0] == "num" else ("neg", operand)
+        return num(-operand.value) if operand.kind == NUM else neg(operand)
     if isinstance(node, ast.Call) and isinstance(node.func, ast.Name) and not node.keywords:
         name = node.func.id
         if name not in allowed:
@@ -178,7 +178,7 @@ def _walk(node, names, place, text, counter, depth, allowed):
         arity = allowed[name][0]
         if len(node.args) != arity or any(isinstance(a, ast.Starred) for a in node.args):
             raise InputError(f"{place}{name}() takes {arity} argument(s)")
-        return ("call", name, tuple(go(arg) for arg in node.args))
+        return call(name, [go(arg) for arg in node.args])
     kind = type(node).__name__
     if (
         kind == "Call"
@@ -198,8 +198,8 @@ def _walk(node, names, place, text, counter, depth, allowed):
 def _check_power(base, exponent, place):
     """Refuse a power whose exponent (folded to a constant where it is one) or whose
     nesting inside other powers is out of range, and a constant power beyond 1e300."""
-    power = ("**", base, exponent)
-    if exponent[0] != "num" and _has_power(exponent):
+    power = binary("**", base, exponent)
+    if exponent.kind != NUM and _has_power(exponent):
         raise InputError(
             f"{place}nested powers such as a^b^c are not accepted; "
             "use parentheses and a single power"
@@ -236,26 +236,24 @@ def folded(tree):
 
 
 @lru_cache(maxsize=4096)
-def _growth(tree) -> float:
+def _growth(tree: Node) -> float:
     """The largest constant power any leaf is raised to through nested powers."""
-    kind = tree[0]
-    if kind in ("num", "name"):
-        return 1.0
-    if kind == "call":
-        return max(_growth(a) for a in tree[2])
-    if kind == "**":
-        exponent = folded(tree[2])
-        if exponent is not None and math.isfinite(exponent):
-            return _growth(tree[1]) * abs(exponent)
-    return max(_growth(part) for part in tree[1:])
+
+    def visit(node, inner):
+        if not inner:
+            return 1.0
+        if node.kind == "**":
+            exponent = folded(node.args[1])
+            if exponent is not None and math.isfinite(exponent):
+                return inner[0] * abs(exponent)
+        return max(inner)
+
+    return fold(tree, visit)
 
 
-def _has_power(tree) -> bool:
-    if tree[0] == "**":
-        return True
-    if tree[0] == "call":
-        return False
-    return any(isinstance(part, tuple) and _has_power(part) for part in tree[1:])
+def _has_power(tree: Node) -> bool:
+    """A power anywhere outside function arguments."""
+    return fold(tree, lambda node, inner: node.kind == "**" or (node.kind != CALL and any(inner)))
 
 
 # a product written without "*": a number directly before a name or "(" (2N_D, 2(a+b)),
@@ -309,58 +307,51 @@ def _describe(kind: str) -> str:
     }.get(kind, f"{kind} syntax")
 
 
-def names_in(tree) -> set:
+def names_in(tree: Node) -> set:
     """Every name the tree refers to."""
-    if tree[0] == "name":
-        return {tree[1]}
-    if tree[0] == "num":
-        return set()
-    parts = tree[2] if tree[0] == "call" else tree[1:]
-    out = set()
-    for part in parts:
-        out |= names_in(part)
-    return out
+    return fold(
+        tree, lambda node, inner: {node.value} if node.kind == NAME else set().union(*inner)
+    )
 
 
-def rename(tree, mapping: dict) -> tuple:
+def rename(tree: Node, mapping: dict) -> Node:
     """The tree with names replaced by ``mapping`` (names not in it are kept)."""
-    kind = tree[0]
-    if kind == "name":
-        return ("name", mapping.get(tree[1], tree[1]))
-    if kind == "num":
-        return tree
-    if kind == "call":
-        return ("call", tree[1], tuple(rename(a, mapping) for a in tree[2]))
-    return (kind,) + tuple(rename(part, mapping) for part in tree[1:])
+    return transform(
+        tree,
+        lambda node: name_node(mapping.get(node.value, node.value)) if node.kind == NAME else node,
+    )
 
 
 _NUMPY_BINARY = {"+": np.add, "-": np.subtract, "*": np.multiply, "/": np.divide, "**": np.power}
 
 
-def to_numpy(tree, strict: bool = False):
+def to_numpy(tree: Node, strict: bool = False):
     """A function ``f(values)`` evaluating the tree on a dict of numpy arrays.
 
     ``strict``: every intermediate result that is not finite becomes NaN and stays NaN
     (numpy would turn inf**0 into 1 and 1/inf into 0), so a point where any step
     overflowed or left its domain shows as NaN in the result.
     """
-    kind = tree[0]
-    if kind == "num":
-        value = float(tree[1])
-        return lambda values: value
-    if kind == "name":
-        key = tree[1]
-        return lambda values: values[key]
-    if kind == "neg":
-        op, parts = np.negative, [tree[1]]
-    elif kind == "call":
-        op, parts = FUNCTIONS[tree[1]][1], tree[2]
-    else:
-        op, parts = (_strict_power if strict and kind == "**" else _NUMPY_BINARY[kind]), tree[1:]
-    parts = [to_numpy(part, strict) for part in parts]
-    if strict:
-        return lambda values: _finite_or_nan(op(*(part(values) for part in parts)))
-    return lambda values: op(*(part(values) for part in parts))
+
+    def visit(node, parts):
+        kind = node.kind
+        if kind == NUM:
+            value = node.value
+            return lambda values: value
+        if kind == NAME:
+            key = node.value
+            return lambda values: values[key]
+        if kind == NEG:
+            op = np.negative
+        elif kind == CALL:
+            op = FUNCTIONS[node.value][1]
+        else:
+            op = _strict_power if strict and kind == "**" else _NUMPY_BINARY[kind]
+        if strict:
+            return lambda values: _finite_or_nan(op(*(part(values) for part in parts)))
+        return lambda values: op(*(part(values) for part in parts))
+
+    return fold(tree, visit)
 
 
 def _strict_power(base, exponent):
@@ -389,7 +380,7 @@ def _sympy_number(value):
     )
 
 
-def to_sympy(tree, symbols=None, evaluate=False):
+def to_sympy(tree: Node, symbols=None, evaluate=False):
     """sympy objects built directly from the tree (nothing is re-parsed from text).
 
     ``symbols`` maps tree names to prepared sympy symbols (e.g. with
@@ -400,74 +391,88 @@ def to_sympy(tree, symbols=None, evaluate=False):
     import sympy
 
     symbols = {} if symbols is None else symbols
-    kind = tree[0]
-    if kind == "num":
-        return _sympy_number(tree[1])
-    if kind == "name":
-        if tree[1] not in symbols:
-            # sympy prints every "_" as a subscript: keep only the last one
-            stem, _, suffix = tree[1].rpartition("_")
-            shown = f"{stem.replace('_', '')}_{suffix}" if stem else suffix
-            symbols[tree[1]] = sympy.Symbol(shown)
-        return symbols[tree[1]]
-    go = lambda part: to_sympy(part, symbols, evaluate)
-    if kind == "neg":
-        return sympy.Mul(sympy.Integer(-1), go(tree[1]), evaluate=evaluate)
-    if kind == "call":
-        builder = FUNCTIONS[tree[1]][2]
-        args = [go(a) for a in tree[2]]
-        if builder == "log10":
-            return sympy.Mul(
-                sympy.log(args[0], evaluate=evaluate),
-                sympy.Pow(sympy.log(10), -1, evaluate=evaluate),
-                evaluate=evaluate,
-            )
-        function = getattr(sympy, builder, None) or sympy.Function(builder)
-        return (
-            function(*args, evaluate=evaluate)
-            if builder in ("exp", "log", "sqrt", "Abs", "Min", "Max")
-            else function(*args)
-        )
-    left, right = go(tree[1]), go(tree[2])
     minus_one = sympy.Integer(-1)
-    if kind == "+":
-        return sympy.Add(left, right, evaluate=evaluate)
-    if kind == "-":
-        return sympy.Add(left, sympy.Mul(minus_one, right, evaluate=evaluate), evaluate=evaluate)
-    if kind == "*":
-        return sympy.Mul(left, right, evaluate=evaluate)
-    if kind == "/":
-        return sympy.Mul(left, sympy.Pow(right, minus_one, evaluate=evaluate), evaluate=evaluate)
-    return sympy.Pow(left, right, evaluate=evaluate)
+
+    def visit(node, args):
+        kind = node.kind
+        if kind == NUM:
+            return _sympy_number(node.value)
+        if kind == NAME:
+            if node.value not in symbols:
+                # sympy prints every "_" as a subscript: keep only the last one
+                stem, _, suffix = node.value.rpartition("_")
+                shown = f"{stem.replace('_', '')}_{suffix}" if stem else suffix
+                symbols[node.value] = sympy.Symbol(shown)
+            return symbols[node.value]
+        if kind == NEG:
+            return sympy.Mul(minus_one, args[0], evaluate=evaluate)
+        if kind == CALL:
+            return _sympy_call(node.value, args, evaluate)
+        left, right = args
+        if kind == "+":
+            return sympy.Add(left, right, evaluate=evaluate)
+        if kind == "-":
+            return sympy.Add(
+                left, sympy.Mul(minus_one, right, evaluate=evaluate), evaluate=evaluate
+            )
+        if kind == "*":
+            return sympy.Mul(left, right, evaluate=evaluate)
+        if kind == "/":
+            return sympy.Mul(
+                left, sympy.Pow(right, minus_one, evaluate=evaluate), evaluate=evaluate
+            )
+        return sympy.Pow(left, right, evaluate=evaluate)
+
+    return fold(tree, visit)
+
+
+def _sympy_call(function_name: str, args: list, evaluate: bool):
+    import sympy
+
+    builder = FUNCTIONS[function_name][2]
+    if builder == "log10":
+        return sympy.Mul(
+            sympy.log(args[0], evaluate=evaluate),
+            sympy.Pow(sympy.log(10), -1, evaluate=evaluate),
+            evaluate=evaluate,
+        )
+    function = getattr(sympy, builder, None) or sympy.Function(builder)
+    return (
+        function(*args, evaluate=evaluate)
+        if builder in ("exp", "log", "sqrt", "Abs", "Min", "Max")
+        else function(*args)
+    )
 
 
 _PRECEDENCE = {"+": 1, "-": 1, "*": 2, "/": 2, "neg": 3, "**": 4}
 
 
-def to_text(tree) -> str:
+def to_text(tree: Node) -> str:
     """The tree written back as compact formula text (``*``, ``/``, ``^``)."""
-    kind = tree[0]
-    if kind == "num":
-        value = float(tree[1])
+    return fold(tree, _text_of)
+
+
+def _text_of(node: Node, texts: list) -> str:
+    kind = node.kind
+    if kind == NUM:
+        value = node.value
         return str(int(value)) if value.is_integer() and abs(value) < 1e15 else f"{value:g}"
-    if kind == "name":
-        return tree[1]
-    if kind == "call":
-        return f"{tree[1]}({', '.join(to_text(a) for a in tree[2])})"
-    if kind == "neg":
-        inner = tree[1]
-        shown = to_text(inner)
-        return f"-({shown})" if _PRECEDENCE.get(inner[0], 9) <= 2 else f"-{shown}"
+    if kind == NAME:
+        return node.value
+    if kind == CALL:
+        return f"{node.value}({', '.join(texts)})"
+    if kind == NEG:
+        shown = texts[0]
+        return f"-({shown})" if _PRECEDENCE.get(node.args[0].kind, 9) <= 2 else f"-{shown}"
     mine = _PRECEDENCE[kind]
-    left, right = tree[1], tree[2]
-    left_text, right_text = to_text(left), to_text(right)
-    if _PRECEDENCE.get(left[0], 9) < mine or (kind == "**" and left[0] in _PRECEDENCE):
+    (left, right), (left_text, right_text) = node.args, texts
+    if _PRECEDENCE.get(left.kind, 9) < mine or (kind == "**" and left.kind in _PRECEDENCE):
         left_text = f"({left_text})"
     # right operand of - and / binds tighter; a power's exponent is wrapped unless atomic
     if (
-        _PRECEDENCE.get(right[0], 9) < mine
-        or (kind in ("-", "/") and _PRECEDENCE.get(right[0], 9) == mine)
-        or (kind == "**" and right[0] in _PRECEDENCE)
+        _PRECEDENCE.get(right.kind, 9) < mine
+        or (kind in ("-", "/") and _PRECEDENCE.get(right.kind, 9) == mine)
+        or (kind == "**" and right.kind in _PRECEDENCE)
     ):
         right_text = f"({right_text})"
     sign = "^" if kind == "**" else kind

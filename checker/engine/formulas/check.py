@@ -32,6 +32,7 @@ from ...physics.constants import ELECTRON_MASS, PLANCK
 from ..expressions import dimension_check as expression_dimensions
 from ..expressions import dimensions as dm
 from ..expressions.parser import MAX_LENGTH, parse, rename, to_numpy, to_text
+from ..expressions.tree import Node, binary, fold, num
 from ..findings import Correction, Embodied, Finding, carrier_code
 from ..number_text import display, error_text
 from ..regime.rulebook import PLACEHOLDER
@@ -190,24 +191,29 @@ def dimension(tree, dim: int) -> dm.Dimension:
     )
 
 
-def _factors(tree, exponent=1) -> list:
-    if tree[0] == "*":
-        return _factors(tree[1], exponent) + _factors(tree[2], exponent)
-    if tree[0] == "/":
-        return _factors(tree[1], exponent) + _factors(tree[2], -exponent)
-    return [(tree, exponent)]
+def _factors(tree: Node) -> list:
+    """The factors of a product or quotient as (tree, +1 up / -1 down)."""
+
+    def visit(node: Node, inner: list) -> list:
+        if node.kind == "*":
+            return inner[0] + inner[1]
+        if node.kind == "/":
+            return inner[0] + [(t, -e) for t, e in inner[1]]
+        return [(node, 1)]
+
+    return fold(tree, visit)
 
 
-def _product(factors) -> tuple:
+def _product(factors) -> Node:
     def chain(parts):
         out = parts[0]
         for part in parts[1:]:
-            out = ("*", out, part)
+            out = binary("*", out, part)
         return out
 
-    up = [t for t, e in factors if e > 0] or [("num", 1.0)]
+    up = [t for t, e in factors if e > 0] or [num(1.0)]
     down = [t for t, e in factors if e < 0]
-    return chain(up) if not down else ("/", chain(up), chain(down))
+    return chain(up) if not down else binary("/", chain(up), chain(down))
 
 
 _MISSING = ("q", "k*T", "k*T/q", "k", "T")
@@ -232,7 +238,7 @@ def likely_fix(lhs, rhs, dim: int, majority: str):
     if not candidates:
         for text in _MISSING:
             extra = parse(text)
-            for tree in (("*", rhs, extra), ("/", rhs, extra)):
+            for tree in (binary("*", rhs, extra), binary("/", rhs, extra)):
                 if _has_dimension(tree, dim, target):
                     candidates.append(tree)
     for tree in candidates[:6]:

@@ -35,6 +35,7 @@ from itertools import combinations
 import numpy as np
 
 from ..expressions.parser import folded, to_numpy, to_sympy
+from ..expressions.tree import CALL, NAME, NEG, NUM, Node, binary, fold
 from . import normal_form
 from .relations import (
     RELATION_NAMES,
@@ -78,6 +79,8 @@ class Match:
         return tuple(limit.label for limit in self.limits)
 
 
+# the caches below are keyed by trees; bounded so that a long-lived process (the Python
+# API, a language server) checking many different formulas does not grow without end
 @lru_cache(maxsize=4096)
 def _compiled(tree):
     return to_numpy(tree, strict=True)
@@ -114,12 +117,12 @@ def _worlds(names: set, majority: str) -> tuple:
 
 
 @lru_cache(maxsize=4096)
-def analyse(lhs: tuple, rhs: tuple, dim: int, majority: str) -> Match:
+def analyse(lhs: Node, rhs: Node, dim: int, majority: str) -> Match:
     """The smallest limit set under which ``lhs = rhs`` holds (cached per process)."""
     return _analyse(lhs, rhs, dim, majority)
 
 
-def _analyse(lhs: tuple, rhs: tuple, dim: int, majority: str) -> Match:
+def _analyse(lhs: Node, rhs: Node, dim: int, majority: str) -> Match:
     names = names_in(lhs) | names_in(rhs)
     rng = np.random.default_rng(SEED)
     best = None
@@ -229,13 +232,14 @@ def _relations(lhs, rhs, base, chosen) -> tuple:
     return tuple(names)
 
 
-def _in_order(tree) -> list:
-    if tree[0] == "name":
-        return [tree[1]]
-    if tree[0] == "num":
-        return []
-    parts = tree[2] if tree[0] == "call" else tree[1:]
-    return [n for part in parts for n in _in_order(part)]
+def _in_order(tree: Node) -> list:
+    """The names of the tree, left to right (with repeats)."""
+    return fold(
+        tree,
+        lambda node, inner: (
+            [node.value] if node.kind == NAME else [n for part in inner for n in part]
+        ),
+    )
 
 
 def _proof(lhs, rhs, definitions):
@@ -248,7 +252,7 @@ def _proof(lhs, rhs, definitions):
             return "symbolic"
     except (normal_form.Unsupported, ArithmeticError, RecursionError):
         pass
-    if expansion_cost(("-", a, b)) > SYMPY_BUDGET:
+    if expansion_cost(binary("-", a, b)) > SYMPY_BUDGET:
         return None
     try:
         return "symbolic" if _proved_by_sympy(a, b) else "numeric"
@@ -261,12 +265,11 @@ def expansion_cost(tree) -> int:
     tree and the arguments of its functions and powers) times the number of symbols:
     sympy's factoring, the slowest step, grows with both.  Above SYMPY_BUDGET anywhere
     inside (even under a power of 0) it is SYMPY_BUDGET + 1."""
-    inner = [0]
     try:
-        terms = _terms(tree, inner)
+        terms, inner = fold(tree, _terms)
     except _OverBudget:
         return SYMPY_BUDGET + 1
-    return min((terms + inner[0]) * max(len(names_in(tree)), 1), SYMPY_BUDGET + 1)
+    return min((terms + inner) * max(len(names_in(tree)), 1), SYMPY_BUDGET + 1)
 
 
 class _OverBudget(Exception):
@@ -279,31 +282,31 @@ def _within(count: int) -> int:
     return count
 
 
-def _terms(tree, inner) -> int:
-    kind = tree[0]
-    if kind in ("num", "name"):
-        return 1
-    if kind == "neg":
-        return _terms(tree[1], inner)
-    if kind == "call":
-        inner[0] = _within(inner[0] + sum(_terms(a, inner) for a in tree[2]))
-        return 1
+def _terms(node: Node, parts: list) -> tuple:
+    """(terms of the node's expansion, terms inside its functions and non-constant
+    powers, which sympy expands on their own)."""
+    kind = node.kind
+    if kind in (NUM, NAME):
+        return 1, 0
+    inner = sum(part[1] for part in parts)
+    if kind == NEG:
+        return parts[0][0], inner
+    if kind == CALL:
+        return 1, _within(inner + sum(part[0] for part in parts))
+    (left, left_inner), (right, _) = parts
     if kind == "**":
-        base, exponent = _terms(tree[1], inner), folded(tree[2])
+        exponent = folded(node.args[1])
         if exponent is None or not math.isfinite(exponent):
-            inner[0] = _within(inner[0] + base + _terms(tree[2], inner))
-            return 1
+            return 1, _within(inner + left + right)
         if abs(exponent) > MAX_SYMPY_EXPONENT:  # sympy would compute 10^(10^9) exactly
             raise _OverBudget
         whole = int(abs(exponent))  # (a + b)^(5/2) -> (a + b)^2 * sqrt(a + b)
-        size = _within(math.comb(base + whole - 1, whole)) if base > 1 else 1
+        size = _within(math.comb(left + whole - 1, whole)) if left > 1 else 1
         if exponent < 0:  # the denominator is expanded on its own
-            inner[0] = _within(inner[0] + size)
-            return 1
-        return size
-    left, right = _terms(tree[1], inner), _terms(tree[2], inner)
+            return 1, _within(left_inner + size)
+        return size, left_inner
     # a quotient is brought over one denominator (cancel, factor): terms multiply
-    return _within(left + right if kind in ("+", "-") else left * right)
+    return _within(left + right if kind in ("+", "-") else left * right), inner
 
 
 def _proved_by_sympy(a, b) -> bool:

@@ -23,6 +23,8 @@ from __future__ import annotations
 
 from fractions import Fraction
 
+from ..expressions.tree import CALL, NAME, NEG, NUM, Node, fold
+
 MAX_TERMS = 400  # larger expansions are left to sympy
 MAX_POWER = 8  # integer powers of sums expanded up to this
 MAX_BITS = 4096  # larger exact coefficients are left to sympy
@@ -36,7 +38,10 @@ class Unsupported(Exception):
 # exp_argument = a frozen polynomial.  A polynomial (working form) is {monomial: Fraction};
 # frozen: a sorted tuple of (monomial, coefficient).
 ONE_MONO = ((), ())
-_SUMS = {}  # atom name -> frozen polynomial it stands for (powers of sums)
+# atom name -> frozen polynomial it stands for (powers of sums).  An atom's name is its
+# polynomial written out, so the table is only needed while one proof runs: equal()
+# empties it first, which bounds it by the size of one proof
+_SUMS = {}
 
 
 def _freeze(poly: dict) -> tuple:
@@ -334,49 +339,25 @@ def _number(value: float) -> Fraction:
     return exact if float(exact) == value else Fraction(value)
 
 
-def to_normal(tree):
+def to_normal(tree: Node):
     """The quotient (N, D) of a tree (names are positive symbols)."""
-    kind = tree[0]
-    if kind == "num":
-        return _q_const(_number(float(tree[1])))
-    if kind == "name":
-        return _atom(tree[1]), _const(1)
-    if kind == "neg":
-        n, d = to_normal(tree[1])
+    return fold(tree, _normal_of)
+
+
+def _normal_of(node: Node, inner: list):
+    kind = node.kind
+    if kind == NUM:
+        return _q_const(_number(node.value))
+    if kind == NAME:
+        return _atom(node.value), _const(1)
+    if kind == NEG:
+        n, d = inner[0]
         return _mul(n, _const(-1)), d
-    if kind == "call":
-        name, args = tree[1], tree[2]
-        if name == "exp":
-            return _exp(to_normal(args[0]))
-        if name in ("log", "ln"):
-            return _log(to_normal(args[0]))
-        if name == "log10":
-            return _q_div(_log(to_normal(args[0])), _log(_q_const(10)))
-        if name == "sqrt":
-            return _power(to_normal(args[0]), Fraction(1, 2))
-        if name == "F":
-            order = _number(float(args[0][1])) if args[0][0] == "num" else None
-            if order is None:
-                raise Unsupported("F with a non-numeric order")
-            return _atom(f"F{order}{_render(_polynomial(to_normal(args[1])))}"), _const(1)
-        raise Unsupported(f"function {name}")
-    left = to_normal(tree[1])
+    if kind == CALL:
+        return _call(node, inner)
+    left, right = inner
     if kind == "**":
-        if tree[2][0] == "num" or (tree[2][0] == "neg" and tree[2][1][0] == "num"):
-            value = tree[2][1] if tree[2][0] == "num" else -tree[2][1][1]
-            return _power(left, _number(float(value)))
-        exponent = to_normal(tree[2])
-        if not left[0]:
-            return {}, _const(1)  # 0**x with a positive symbolic x
-        if (
-            exponent[1] == _const(1)
-            and len(exponent[0]) == 1
-            and next(iter(exponent[0])) == ONE_MONO
-        ):
-            return _power(left, next(iter(exponent[0].values())))
-        # x**y = exp(y log x) for positive x
-        return _exp(_q_mul(exponent, _log(left)))
-    right = to_normal(tree[2])
+        return _power_of(node.args[1], left, right)
     if kind == "+":
         return _q_add(left, right)
     if kind == "-":
@@ -386,8 +367,42 @@ def to_normal(tree):
     return _q_div(left, right)
 
 
+def _call(node: Node, inner: list):
+    name, args = node.value, node.args
+    if name == "exp":
+        return _exp(inner[0])
+    if name in ("log", "ln"):
+        return _log(inner[0])
+    if name == "log10":
+        return _q_div(_log(inner[0]), _log(_q_const(10)))
+    if name == "sqrt":
+        return _power(inner[0], Fraction(1, 2))
+    if name == "F":
+        if args[0].kind != NUM:
+            raise Unsupported("F with a non-numeric order")
+        order = _number(args[0].value)
+        return _atom(f"F{order}{_render(_polynomial(inner[1]))}"), _const(1)
+    raise Unsupported(f"function {name}")
+
+
+def _power_of(exponent_tree: Node, left, exponent):
+    """left**exponent; a written constant exponent (2, -1/2 as a number) is taken exactly."""
+    if exponent_tree.kind == NUM or (
+        exponent_tree.kind == NEG and exponent_tree.args[0].kind == NUM
+    ):
+        value = exponent_tree.value if exponent_tree.kind == NUM else -exponent_tree.args[0].value
+        return _power(left, _number(value))
+    if not left[0]:
+        return {}, _const(1)  # 0**x with a positive symbolic x
+    if exponent[1] == _const(1) and len(exponent[0]) == 1 and next(iter(exponent[0])) == ONE_MONO:
+        return _power(left, next(iter(exponent[0].values())))
+    # x**y = exp(y log x) for positive x
+    return _exp(_q_mul(exponent, _log(left)))
+
+
 def equal(a, b) -> bool:
     """True when the normal forms show a == b; raises Unsupported when they cannot tell."""
+    _SUMS.clear()
     n1, d1 = to_normal(a)
     n2, d2 = to_normal(b)
     return not _add(_mul(n1, d2), _mul(n2, d1), -1)

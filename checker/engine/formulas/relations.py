@@ -36,9 +36,12 @@ from functools import cache, lru_cache
 
 from ..expressions.parser import names_in as _names_in
 from ..expressions.parser import parse
+from ..expressions.tree import CALL, NAME, Node, binary, call, fold, num, transform
+from ..expressions.tree import name as name_node
 
-# definitions are tuples, hashable and reused: remember the names each one uses
-names_in = lru_cache(maxsize=None)(_names_in)
+# definitions are hashable and reused: remember the names each one uses (bounded: the
+# definitions are a few hundred trees, stated formulas add theirs per process)
+names_in = lru_cache(maxsize=4096)(_names_in)
 
 # Gamma(j + 2) for the Fermi–Dirac orders that occur (j = d/2 - 1 and j - 1)
 _GAMMA_TEXT = {2.5: "0.75*sqrt(pi)", 2.0: "1", 1.5: "0.5*sqrt(pi)", 1.0: "1", 0.5: "sqrt(pi)"}
@@ -256,7 +259,7 @@ def world(dim: int, which: str, majority: str) -> World:
     texts.update({k: v.format(x=majority) for k, v in _GEOMETRY[dim].items()})
     texts.update(_NEUTRALITY[which])
     definitions = {name: parse(text) for name, text in texts.items()}
-    definitions.update({name: ("num", 1.0) for name in SWITCHES})
+    definitions.update({name: num(1.0) for name in SWITCHES})
     return World(dim, which, majority, definitions, _topological(definitions))
 
 
@@ -292,14 +295,12 @@ def closure(names, definitions: dict) -> set:
     return seen
 
 
-def _fermi_calls(tree, eta: str) -> bool:
-    if tree[0] == "call":
-        if tree[1] == "F" and tree[2][1] == ("name", eta):
-            return True
-        return any(_fermi_calls(a, eta) for a in tree[2])
-    if tree[0] in ("num", "name"):
-        return False
-    return any(_fermi_calls(part, eta) for part in tree[1:])
+def _is_fermi_of(node: Node, eta: str) -> bool:
+    return node.kind == CALL and node.value == "F" and node.args[1] == name_node(eta)
+
+
+def _fermi_calls(tree: Node, eta: str) -> bool:
+    return fold(tree, lambda node, inner: _is_fermi_of(node, eta) or any(inner))
 
 
 def acts_on(limit: Limit, tree) -> bool:
@@ -310,20 +311,19 @@ def acts_on(limit: Limit, tree) -> bool:
     return any(name in used for name, _ in limit.overrides)
 
 
-def _rewrite_fermi(tree, eta: str, form: str):
-    kind = tree[0]
-    if kind in ("num", "name"):
-        return tree
-    if kind == "call":
-        args = tuple(_rewrite_fermi(a, eta, form) for a in tree[2])
-        if tree[1] == "F" and args[1] == ("name", eta):
-            order = float(args[0][1])
-            if form == "exp":
-                return ("call", "exp", (args[1],))
-            gamma = parse(_GAMMA_TEXT[order + 2.0])
-            return ("/", ("**", args[1], ("num", order + 1.0)), gamma)
-        return ("call", tree[1], args)
-    return (kind,) + tuple(_rewrite_fermi(part, eta, form) for part in tree[1:])
+def _rewrite_fermi(tree: Node, eta: str, form: str) -> Node:
+    """F_j(eta) -> e^eta ("exp") or eta^(j+1)/Gamma(j+2) ("power")."""
+
+    def change(node: Node) -> Node:
+        if not _is_fermi_of(node, eta):
+            return node
+        order, argument = node.args
+        if form == "exp":
+            return call("exp", (argument,))
+        gamma = parse(_GAMMA_TEXT[order.value + 2.0])
+        return binary("/", binary("**", argument, num(order.value + 1.0)), gamma)
+
+    return transform(tree, change)
 
 
 @lru_cache(maxsize=256)
@@ -341,21 +341,18 @@ def limited(base: World, chosen) -> dict:
     )
     for limit in chosen:
         for name, value in limit.overrides:
-            definitions[name] = ("num", value)
+            definitions[name] = num(value)
     return definitions
 
 
-def expand(tree, definitions: dict) -> tuple:
+def expand(tree: Node, definitions: dict) -> Node:
     """The tree with every defined name replaced by its definition, recursively."""
-    kind = tree[0]
-    if kind == "name":
-        inner = definitions.get(tree[1])
-        return tree if inner is None else expand(inner, definitions)
-    if kind == "num":
-        return tree
-    if kind == "call":
-        return ("call", tree[1], tuple(expand(a, definitions) for a in tree[2]))
-    return (kind,) + tuple(expand(part, definitions) for part in tree[1:])
+
+    def change(node: Node) -> Node:
+        inner = definitions.get(node.value) if node.kind == NAME else None
+        return node if inner is None else expand(inner, definitions)
+
+    return transform(tree, change)
 
 
 # ---- random points for identity tests -------------------------------------------------------

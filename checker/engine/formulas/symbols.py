@@ -27,6 +27,8 @@ from functools import cache
 from ...errors import InputError
 from ..expressions import dimensions as dm
 from ..expressions.parser import folded, names_in, parse, to_text
+from ..expressions.tree import CALL, NAME, Node, binary, call, num, transform
+from ..expressions.tree import name as name_node
 
 # the functions a formula may call (F is the normalized Fermi–Dirac integral F_j(eta))
 FORMULA_FUNCTIONS = ("exp", "log", "ln", "log10", "sqrt", "abs", "F")
@@ -212,41 +214,42 @@ def prepare_text(text: str) -> str:
     return _LAMBDA.sub(_LAMBDA_NAME, text.translate(_OPERATORS))
 
 
-def _euler_powers(tree, where: str) -> tuple:
+def _euler_powers(tree: Node, where: str) -> Node:
     """e^x -> exp(x) where x has a symbol; any other use of e is refused (see above)."""
-    kind = tree[0]
-    if kind == "**" and tree[1] == ("name", EULER):
-        exponent = _euler_powers(tree[2], where)
+    euler = name_node(EULER)
+
+    def change(node: Node) -> Node:
+        if node.kind != "**" or node.args[0] != euler:
+            return node
+        exponent = node.args[1]
         if names_in(exponent):
-            return ("call", "exp", (exponent,))
-        charge = to_text(("**", ("name", "q"), tree[2]))
+            return call("exp", (exponent,))
+        charge = to_text(binary("**", name_node("q"), exponent))
         raise InputError(
-            f"{where}: {to_text(tree)!r} is ambiguous: write {charge} for the "
-            f"elementary charge or exp({to_text(tree[2])}) for Euler's number"
+            f"{where}: {to_text(node)!r} is ambiguous: write {charge} for the "
+            f"elementary charge or exp({to_text(exponent)}) for Euler's number"
         )
-    if kind == "name":
-        if tree[1] == EULER:
-            raise InputError(
-                f"{where}: 'e' alone is not a symbol: write q for the elementary "
-                "charge, or exp(x) for e^x"
-            )
-        return tree
-    if kind == "num":
-        return tree
-    if kind == "call":
-        return ("call", tree[1], tuple(_euler_powers(a, where) for a in tree[2]))
-    return (kind,) + tuple(_euler_powers(part, where) for part in tree[1:])
+
+    out = transform(tree, change)
+    if EULER in names_in(out):  # e left over: not the base of a power
+        raise InputError(
+            f"{where}: 'e' alone is not a symbol: write q for the elementary "
+            "charge, or exp(x) for e^x"
+        )
+    return out
 
 
 def dimension_of(name: str, dim: int) -> dm.Dimension:
     return _dimension(SYMBOLS[name].unit, dim)
 
 
-def canonical(tree, majority: str, where: str) -> tuple:
+def canonical(tree: Node, majority: str, where: str) -> Node:
     """The tree with every spelling replaced by its canonical symbol (or expression)."""
-    kind = tree[0]
-    if kind == "name":
-        spelled = "lambda" if tree[1] == _LAMBDA_NAME else tree[1]
+
+    def change(node: Node) -> Node:
+        if node.kind != NAME:
+            return node
+        spelled = "lambda" if node.value == _LAMBDA_NAME else node.value
         found = SPELLINGS.get(spelled)
         if found is None:
             close = difflib.get_close_matches(spelled, list(SPELLINGS), n=3, cutoff=0.5)
@@ -257,47 +260,42 @@ def canonical(tree, majority: str, where: str) -> tuple:
             )
         how, target = found
         if how == "symbol":
-            return ("name", target)
+            return name_node(target)
         if how == "generic":
-            return ("name", target.format(x=majority))
+            return name_node(target.format(x=majority))
         return target
-    if kind == "num":
-        return tree
-    if kind == "call":
-        return ("call", tree[1], tuple(canonical(a, majority, where) for a in tree[2]))
-    return (kind,) + tuple(canonical(part, majority, where) for part in tree[1:])
+
+    return transform(tree, change)
 
 
-def parse_side(text: str, majority: str, where: str) -> tuple:
+def parse_side(text: str, majority: str, where: str) -> tuple[Node, dict]:
     """(canonical tree, {canonical name: the author's spelling}) of one side of a formula."""
     raw = _euler_powers(parse(prepare_text(text), None, where, functions=FORMULA_FUNCTIONS), where)
     tree = _check_orders(canonical(raw, majority, where), where)
     spelled = {}
     for name in names_in(raw):
-        canonical_tree = canonical(("name", name), majority, where)
-        if canonical_tree[0] == "name":
-            spelled[canonical_tree[1]] = "lambda" if name == _LAMBDA_NAME else name
+        canonical_tree = canonical(name_node(name), majority, where)
+        if canonical_tree.kind == NAME:
+            spelled[canonical_tree.value] = "lambda" if name == _LAMBDA_NAME else name
     return tree, spelled
 
 
-def _check_orders(tree, where) -> tuple:
+def _check_orders(tree: Node, where) -> Node:
     """The tree with each Fermi–Dirac order folded to a number (F(1/2, eta) -> F(0.5, eta));
     an order that is not a constant half-integer from -3/2 to 7/2 is refused."""
-    kind = tree[0]
-    if kind in ("num", "name"):
-        return tree
-    if kind != "call":
-        return (kind,) + tuple(_check_orders(part, where) for part in tree[1:])
-    args = tuple(_check_orders(a, where) for a in tree[2])
-    if tree[1] == "F":
-        order = folded(args[0])
+
+    def change(node: Node) -> Node:
+        if node.kind != CALL or node.value != "F":
+            return node
+        order = folded(node.args[0])
         if order is None or not -1.5 <= order <= 3.5 or order * 2 != int(order * 2):
             raise InputError(
                 f"{where}: F(j, eta) needs a half-integer order j from -3/2 "
                 "to 7/2 written as a number, e.g. F(1/2, eta_n) or F(0.5, eta_n)"
             )
-        args = (("num", order),) + args[1:]
-    return ("call", tree[1], args)
+        return call("F", (num(order),) + node.args[1:])
+
+    return transform(tree, change)
 
 
 def glossary(dim: int = 3) -> list[tuple[str, str, str, str]]:
