@@ -618,7 +618,8 @@ def _run(argv) -> int:
         sys.stdout.flush()  # a closed pipe shows here, not at interpreter exit
         return code
     except SystemExit as exc:  # argparse: --help, --version, usage errors
-        return exc.code or 0
+        # as Python does: no code is 0, a message (not a number) is 1
+        return exc.code if isinstance(exc.code, int) else int(exc.code is not None)
     except KeyboardInterrupt:
         print("regimecheck: interrupted", file=sys.stderr)
         return EXIT_INTERRUPTED

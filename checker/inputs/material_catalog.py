@@ -11,8 +11,10 @@ same tables by ``tools/generate_schema.py``.
 from __future__ import annotations
 
 import re
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from functools import cache
+from typing import Any, Protocol
 
 import numpy as np
 
@@ -36,6 +38,14 @@ NEEDED_FOR = {
 
 
 # ---- the field kinds: each reads its value (SI, checked) and writes its JSON Schema ----
+class FieldKind(Protocol):
+    """What every field kind below offers (for the type checker)."""
+
+    def read(self, value: Any, place: Any, path: tuple) -> Any: ...
+
+    def schema(self) -> dict: ...
+
+
 def _shown(value) -> str:
     return "nothing" if value is None else repr(value)
 
@@ -113,7 +123,7 @@ class Quantity:
                 "pattern": quantity_pattern(True),
                 "description": f"a {self.dimension} with its unit, e.g. {example(self.dimension)}",
             }
-        number = {"type": "number"}
+        number: dict[str, object] = {"type": "number"}
         for bound, key in (
             (self.least, "minimum"),
             (self.above, "exclusiveMinimum"),
@@ -198,7 +208,7 @@ class NumberList:
 class BlockList:
     """A list of blocks of one form (e.g. the bound levels of a dopant)."""
 
-    item: object
+    item: Block
     required: bool = False
 
     def read(self, value, place, path):
@@ -283,7 +293,7 @@ def _unknown_key(key, value, known, place, path) -> InputError:
 class Named:
     """A mapping of names the author chooses (dopant species, model names) to ``item``."""
 
-    item: object
+    item: FieldKind
     what: str
     required: bool = True
 
@@ -370,13 +380,15 @@ PROVENANCE = {
     "valid_T": Range("temperature"),
     "valid_N": Range("density"),
 }
-_MOBILITY = dict(dimension="mobility", above="0 cm^2/(V*s)", most="1e7 cm^2/(V*s)")
-_MOBILITY_TERM = dict(dimension="mobility", least="0 cm^2/(V*s)", most="1e7 cm^2/(V*s)")
-_REF_DENSITY = dict(dimension="density", above="0 cm-3", most="1e24 cm-3")
-_POWER = dict(dimension="dimensionless", least="-10", most="10")
-_EXPONENT = dict(dimension="dimensionless", above="0", most="10")
+_MOBILITY: dict[str, Any] = dict(dimension="mobility", above="0 cm^2/(V*s)", most="1e7 cm^2/(V*s)")
+_MOBILITY_TERM: dict[str, Any] = dict(
+    dimension="mobility", least="0 cm^2/(V*s)", most="1e7 cm^2/(V*s)"
+)
+_REF_DENSITY: dict[str, Any] = dict(dimension="density", above="0 cm-3", most="1e24 cm-3")
+_POWER: dict[str, Any] = dict(dimension="dimensionless", least="-10", most="10")
+_EXPONENT: dict[str, Any] = dict(dimension="dimensionless", above="0", most="10")
 
-MOBILITY_MODELS = {
+MOBILITY_MODELS: dict[str, dict[str, Any]] = {
     "masetti": {
         "mu_min1": Quantity(**_MOBILITY),
         "mu_max": Quantity(**_MOBILITY),
@@ -580,7 +592,7 @@ MATERIAL = Block(
 class _Place:
     """Where a key of a material is: file:line:column and the key path, for messages."""
 
-    locate: object  # (*keys) -> "file:line:col" (or the file name)
+    locate: Callable[..., str]  # (*keys) -> "file:line:col" (or the file name)
     prefix: tuple = ()
     problems: Problems = field(default_factory=Problems)
 
@@ -908,13 +920,14 @@ def _index() -> dict:
     start-up does not parse every material file (a test checks this against a
     full parse).
     """
-    index = {}
+    index: dict[str, str] = {}
     for entry in _data_files().iterdir():
         if entry.name.endswith(".yaml"):
             text = entry.read_text(encoding="utf-8")
             name = re.search(r"^name:\s*(\S+)\s*$", text, re.M)
             aliases = re.search(r"^aliases:\s*\[([^\]]*)\]", text, re.M)
-            keys = [name.group(1)] + (
+            # a file without a name line is known by its file name
+            keys = [name.group(1) if name else entry.name[: -len(".yaml")]] + (
                 [a.strip() for a in aliases.group(1).split(",")] if aliases else []
             )
             for key in keys:
@@ -925,7 +938,7 @@ def _index() -> dict:
 @cache
 def _long_name_index() -> dict:
     """Long names as further aliases: 'gallium nitride (wurtzite)' and 'gallium nitride'."""
-    index = {}
+    index: dict[str, str] = {}
     for entry in _data_files().glob("*.yaml"):
         found = re.search(r"^long_name:\s*(.+?)\s*$", entry.read_text(encoding="utf-8"), re.M)
         if found:

@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import math
 import re
+from typing import Any
 
 from ..errors import InputError
 from ..physics.constants import EV
@@ -270,7 +271,7 @@ def _pint_unit(unit: str, dimension: str, text, place: str):
     )
 
 
-_REGISTRY = []
+_REGISTRY: list[Any] = []  # the pint registry, made on first use
 
 
 def _registry():

@@ -165,7 +165,8 @@ def _columns(header: list, where: str, mapping: dict) -> tuple[dict, list]:
     mapping = dict(mapping or {})
     ignored = {_normal(h) for h in mapping.pop(IGNORE, ())}
     mapped = {_normal(theirs): ours for ours, theirs in mapping.items()}
-    out, unknown = {}, []
+    out: dict[str, tuple[int, str, str | None]] = {}
+    unknown: list[str] = []
     for index, raw in enumerate(header):
         if not (raw or "").strip():
             continue  # spreadsheet exports end rows with separators

@@ -106,7 +106,8 @@ def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
     other documents, which are still read.  Quoted text is skipped roughly: a bracket in
     quotes counts only where the quotes are unbalanced on their line."""
     lines = text.split("\n")
-    errors, start, depth, deep = [], 0, 0, None
+    errors: list[str] = []
+    start, depth, deep = 0, 0, None
 
     def close(end):
         if deep is not None:

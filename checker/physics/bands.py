@@ -31,26 +31,28 @@ from __future__ import annotations
 import math
 import numbers
 from dataclasses import dataclass
+from typing import TypeAlias, TypeGuard
 
 import numpy as np
 
 from ..errors import InputError
+from .arrays import ArrayIn, FloatArray
 from .constants import ELECTRON_MASS, HBAR
 
 # volume of the unit ball in 0..3 dimensions
 _BALL = {0: 1.0, 1: 2.0, 2: math.pi, 3: 4.0 * math.pi / 3.0}
 
 
-def _is_real(value):
+def _is_real(value: object) -> bool:
     return isinstance(value, numbers.Real) and not isinstance(value, bool) and math.isfinite(value)
 
 
-def _positive(name, value):
+def _positive(name: str, value: float) -> None:
     if not (_is_real(value) and value > 0):
         raise InputError(f"{name} must be a finite positive number, got {value!r}")
 
 
-def _check_common(band, dimensions):
+def _check_common(band: Band, dimensions: tuple[int, ...]) -> None:
     if band.dimension not in dimensions:
         raise InputError(
             f"{type(band).__name__} needs dimension in {dimensions}, got {band.dimension!r}"
@@ -82,20 +84,20 @@ class ParabolicBand:
 
     power = 1  # k^2 = c E^power
 
-    def __post_init__(self):
+    def __post_init__(self) -> None:
         _check_common(self, (1, 2, 3))
         _positive("mass", self.mass)
 
     @property
-    def k_squared_coefficient(self):
+    def k_squared_coefficient(self) -> float:
         """c in k^2 = c E (m^-2 J^-1)."""
         return 2.0 * self.mass * ELECTRON_MASS / HBAR**2
 
-    def k_squared(self, energy):
+    def k_squared(self, energy: ArrayIn) -> FloatArray:
         """k^2(E) in m^-2 for E in J (E >= 0)."""
         return self.k_squared_coefficient * np.asarray(energy, dtype=float)
 
-    def k_squared_slope(self, energy):
+    def k_squared_slope(self, energy: ArrayIn) -> FloatArray:
         """d(k^2)/dE in m^-2 J^-1."""
         return np.full_like(np.asarray(energy, dtype=float), self.k_squared_coefficient)
 
@@ -124,18 +126,18 @@ class KaneBand:
 
     power = None  # not a power law: quadrature
 
-    def __post_init__(self):
+    def __post_init__(self) -> None:
         _check_common(self, (1, 2, 3))
         _positive("mass", self.mass)
         if not (_is_real(self.alpha) and self.alpha >= 0):
             raise InputError(f"alpha must be a finite number >= 0 (J^-1), got {self.alpha!r}")
 
-    def k_squared(self, energy):
+    def k_squared(self, energy: ArrayIn) -> FloatArray:
         """k^2(E) = (2 m* m_0 / hbar^2) E (1 + alpha E) in m^-2."""
         e = np.asarray(energy, dtype=float)
         return 2.0 * self.mass * ELECTRON_MASS / HBAR**2 * e * (1.0 + self.alpha * e)
 
-    def k_squared_slope(self, energy):
+    def k_squared_slope(self, energy: ArrayIn) -> FloatArray:
         """d(k^2)/dE = (2 m* m_0 / hbar^2) (1 + 2 alpha E) in m^-2 J^-1."""
         e = np.asarray(energy, dtype=float)
         return 2.0 * self.mass * ELECTRON_MASS / HBAR**2 * (1.0 + 2.0 * self.alpha * e)
@@ -165,26 +167,38 @@ class DiracBand:
     dimension = 2
     power = 2
 
-    def __post_init__(self):
+    def __post_init__(self) -> None:
         _check_common(self, (2,))
         _positive("fermi_velocity", self.fermi_velocity)
 
     @property
-    def k_squared_coefficient(self):
+    def k_squared_coefficient(self) -> float:
         """c in k^2 = c E^2 (m^-2 J^-2)."""
         return 1.0 / (HBAR * self.fermi_velocity) ** 2
 
-    def k_squared(self, energy):
+    def k_squared(self, energy: ArrayIn) -> FloatArray:
         """k^2(E) = E^2 / (hbar v_F)^2 in m^-2."""
         e = np.asarray(energy, dtype=float)
-        return self.k_squared_coefficient * e * e
+        k2: FloatArray = self.k_squared_coefficient * e * e
+        return k2
 
-    def k_squared_slope(self, energy):
+    def k_squared_slope(self, energy: ArrayIn) -> FloatArray:
         """d(k^2)/dE = 2 E / (hbar v_F)^2 in m^-2 J^-1."""
         return 2.0 * self.k_squared_coefficient * np.asarray(energy, dtype=float)
 
 
-def parabolic_subbands(dimension, mass, energies, valley_degeneracy=1.0):
+Band: TypeAlias = ParabolicBand | KaneBand | DiracBand
+PowerLawBand: TypeAlias = ParabolicBand | DiracBand  # k^2 = c E^power
+
+
+def is_power_law(band: Band) -> TypeGuard[PowerLawBand]:
+    """True for bands with k^2 = c E^power (closed Fermi–Dirac forms exist)."""
+    return band.power is not None
+
+
+def parabolic_subbands(
+    dimension: int, mass: float, energies: ArrayIn, valley_degeneracy: float = 1.0
+) -> tuple[ParabolicBand, ...]:
     """A ladder of parabolic subbands of one mass: one ParabolicBand per energy (J).
 
     ``energies`` are the subband bottoms above the reference energy of eta
@@ -201,7 +215,7 @@ def parabolic_subbands(dimension, mass, energies, valley_degeneracy=1.0):
     )
 
 
-def _k_power(k2, twice):
+def _k_power(k2: FloatArray, twice: int) -> FloatArray:
     """(k^2)^(twice/2) for an integer ``twice``; sqrt and products instead of a general power."""
     if twice == 0:
         return np.ones_like(k2)
@@ -215,20 +229,21 @@ def _k_power(k2, twice):
         return root
     if twice == -1:
         return np.divide(1.0, root, out=root)
-    return k2 ** (twice / 2.0)
+    powered: FloatArray = k2 ** (twice / 2.0)
+    return powered
 
 
-def _state_factor(band):
+def _state_factor(band: Band) -> float:
     d = band.dimension
     return band.spin_degeneracy * band.valley_degeneracy * _BALL[d] / (2.0 * math.pi) ** d
 
 
-def _mode_factor(band):
+def _mode_factor(band: Band) -> float:
     d = band.dimension
     return band.valley_degeneracy * _BALL[d - 1] / (2.0 * math.pi) ** (d - 1)
 
 
-def states_below(band, energy):
+def states_below(band: Band, energy: ArrayIn) -> FloatArray:
     """N(E) = g_s g_v V_d k(E)^d / (2 pi)^d: states per m^d with kinetic energy below E.
 
     Units: E in J (from the band edge) -> m^-d.  0 for E <= 0.
@@ -241,7 +256,7 @@ def states_below(band, energy):
     return _state_factor(band) * _k_power(k2, band.dimension)
 
 
-def density_of_states(band, energy):
+def density_of_states(band: Band, energy: ArrayIn) -> FloatArray:
     """D(E) = dN/dE = g_s g_v V_d (d/2) k^(d-2) (dk^2/dE) / (2 pi)^d in J^-1 m^-d.
 
     3D parabolic: g_v (m*)^(3/2) sqrt(2E) / (pi^2 hbar^3); 2D: g_v m*/(pi hbar^2);
@@ -257,7 +272,7 @@ def density_of_states(band, energy):
     return _state_factor(band) * (d / 2.0) * _k_power(k2, d - 2) * band.k_squared_slope(e)
 
 
-def mode_density(band, energy):
+def mode_density(band: Band, energy: ArrayIn) -> FloatArray:
     """M(E) = g_v V_(d-1) k^(d-1) / (2 pi)^(d-1): modes per spin, per unit cross-section.
 
     Units: 1D dimensionless (g_v per subband), 2D m^-1 (g_v k/pi), 3D m^-2
@@ -271,7 +286,7 @@ def mode_density(band, energy):
     return _mode_factor(band) * _k_power(k2, band.dimension - 1)
 
 
-def mean_free_path_exponent(band, time_exponent):
+def mean_free_path_exponent(band: Band, time_exponent: float) -> float:
     """r of lambda(E) ∝ E^r for a relaxation time tau ∝ E^s (power-law bands).
 
     lambda = c_d v tau (c_3 = 4/3, c_2 = pi/2, c_1 = 2) and v ∝ E^(1 - p/2) for

@@ -6,6 +6,8 @@ CODATA 2022 recommended values (P. J. Mohr et al., NIST, 2024); k_B, q, h are
 exact since the 2019 SI redefinition.  m_0, epsilon_0 and a_0 are CODATA 2022.
 """
 
+from .arrays import FloatOrArray
+
 BOLTZMANN = 1.380649e-23  # J/K, exact
 ELEMENTARY_CHARGE = 1.602176634e-19  # C, exact
 PLANCK = 6.62607015e-34  # J s, exact
@@ -18,7 +20,7 @@ EV = ELEMENTARY_CHARGE  # J per eV
 ROOM_TEMPERATURE = 300.0  # K, reference temperature of the material tables
 
 
-def thermal_voltage(temperature):
+def thermal_voltage(temperature: FloatOrArray) -> FloatOrArray:
     """kT/q in volts for a temperature in kelvin (array-friendly).
 
     Formula: V_T = k_B T / q.  Units: K -> V.  Valid for any T > 0.

@@ -41,13 +41,17 @@ J. S. Blakemore, Solid-State Electron. 25, 1067 (1982) (normalized F_j).
 from __future__ import annotations
 
 import os
+from collections.abc import Callable, Iterable, Sequence
 from fractions import Fraction
 from math import lgamma
+from typing import Literal, TypeAlias, overload
 
 import numpy as np
 
 from ..errors import ConvergenceError, InputError
 from . import bands as _bands
+from .arrays import ArrayIn, FloatArray, FloatOrArray, IndexArray
+from .bands import Band, PowerLawBand, is_power_law
 from .constants import BOLTZMANN, ELEMENTARY_CHARGE, PLANCK
 from .fermi import SUPPORTED_ORDERS, fermi_dirac, inverse_fermi_dirac_half, log_fermi_dirac
 
@@ -58,6 +62,11 @@ _BLOCK = 512  # points per block: (512 x 129) temporaries stay in cache
 _TASK = 1 << 15  # points per thread task
 WORKERS = min(2, os.cpu_count() or 1)
 
+# one band or several (subbands, valleys) whose densities and conductances add
+Bands: TypeAlias = Band | tuple[Band, ...] | list[Band]
+# G(x, rows): the window integrand at nodes x (points x nodes) for the rows of a block
+Integrand: TypeAlias = Callable[[FloatArray, slice], FloatArray]
+
 
 class _NodeSet:
     """tanh–sinh nodes on s in [0, 1] written in the window variable (module docstring).
@@ -66,7 +75,7 @@ class _NodeSet:
     w_k the weights of ds (sum -> 1); t_k = k h, |t_k| <= 4.
     """
 
-    def __init__(self, step, t_max=4.0):
+    def __init__(self, step: float, t_max: float = 4.0) -> None:
         t = np.arange(-round(t_max / step), round(t_max / step) + 1) * step
         ps = np.pi * np.sinh(t)
         self.q = 1.0 / (1.0 + np.exp(ps))
@@ -80,13 +89,22 @@ class _NodeSet:
 DENSITY_NODES, TRANSMISSION_NODES = _NodeSet(1.0 / 12.0), _NodeSet(1.0 / 16.0)
 
 
-def _as_bands(bands):
+def _as_bands(bands: Bands) -> tuple[Band, ...]:
     return tuple(bands) if isinstance(bands, (tuple, list)) else (bands,)
 
 
-def _window_nodes(eta, nodes):
+def _band_sum(bands: Iterable[Band], term: Callable[[Band], FloatArray]) -> FloatArray:
+    """The sum of ``term(band)`` over the bands (one at least): contributions add."""
+    first, *rest = bands
+    total = term(first)
+    for band in rest:
+        total = total + term(band)
+    return total
+
+
+def _window_nodes(eta: FloatArray, nodes: _NodeSet) -> FloatArray:
     """x_k(eta) for each point (rows) and node (columns), all > 0."""
-    x = np.log1p(np.exp(np.minimum(eta, _BIG_ETA))[:, None] * nodes.q)
+    x: FloatArray = np.log1p(np.exp(np.minimum(eta, _BIG_ETA))[:, None] * nodes.q)
     x += nodes.b
     big = eta > _BIG_ETA
     if np.any(big):
@@ -95,14 +113,16 @@ def _window_nodes(eta, nodes):
     return x
 
 
-def _window_sums(eta, integrands, nodes=DENSITY_NODES):
+def _window_sums(
+    eta: FloatArray, integrands: Sequence[Integrand], nodes: _NodeSet = DENSITY_NODES
+) -> list[FloatArray]:
     """sum_k w_k G(x_k) per point for each integrand G(x, rows) (rows: a slice).
 
     The window integral ∫ G (-f'(x - eta)) dx equals logistic(eta) times this sum.
     """
     outs = [np.empty(eta.size) for _ in integrands]
 
-    def task(first):
+    def task(first: int) -> None:
         for start in range(first, min(first + _TASK, eta.size), _BLOCK):
             rows = slice(start, start + _BLOCK)
             x = _window_nodes(eta[rows], nodes)
@@ -122,17 +142,17 @@ def _window_sums(eta, integrands, nodes=DENSITY_NODES):
     return outs
 
 
-def _log_logistic(eta):
+def _log_logistic(eta: FloatArray) -> FloatArray:
     """ln(1/(1 + e^-eta)) without overflow."""
     return -(np.maximum(-eta, 0.0) + np.log1p(np.exp(-np.abs(eta))))
 
 
-def _tabulated(order):
+def _tabulated(order: float) -> bool:
     frac = Fraction(order).limit_denominator(2)
     return frac in SUPPORTED_ORDERS and abs(float(frac) - order) < 1e-12
 
 
-def _power_law(band, kind):
+def _power_law(band: PowerLawBand, kind: Literal["states", "modes"]) -> tuple[float, float]:
     """(A, a) with quantity = A E^a for a power-law band, kind 'states' or 'modes'."""
     d, p, c = band.dimension, band.power, band.k_squared_coefficient
     if kind == "states":
@@ -140,12 +160,12 @@ def _power_law(band, kind):
     return _bands._mode_factor(band) * c ** ((d - 1) / 2.0), p * (d - 1) / 2.0
 
 
-def _check_method(method):
+def _check_method(method: str) -> None:
     if method not in ("auto", "quadrature"):
         raise InputError(f"method must be 'auto' or 'quadrature', got {method!r}")
 
 
-def _closed_form_ok(band, method, *orders):
+def _closed_form_ok(band: Band, method: str, *orders: float) -> bool:
     _check_method(method)
     return method == "auto" and band.power is not None and all(map(_tabulated, orders))
 
@@ -153,7 +173,7 @@ def _closed_form_ok(band, method, *orders):
 class _Points:
     """eta, T and extra per-point inputs broadcast together and flattened."""
 
-    def __init__(self, eta, T, **extra):
+    def __init__(self, eta: ArrayIn, T: ArrayIn, **extra: ArrayIn) -> None:
         arrays = np.broadcast_arrays(
             *(np.asarray(v, dtype=float) for v in (eta, T, *extra.values()))
         )
@@ -167,18 +187,20 @@ class _Points:
         self.kT = BOLTZMANN * self.T
         self.extra = dict(zip(extra, flat[2:]))
 
-    def band_eta(self, band):
+    def band_eta(self, band: Band) -> FloatArray:
         return self.eta - band.edge / self.kT
 
-    def shaped(self, flat):
+    def shaped(self, flat: FloatArray) -> FloatOrArray:
         out = flat.reshape(self.shape)
         return out if out.ndim else float(out)
 
 
-def _log_density_and_slope(band, pts, method, slope=True):
+def _log_density_and_slope(
+    band: Band, pts: _Points, method: str, slope: bool = True
+) -> tuple[FloatArray, FloatArray | None]:
     """(ln n, (dn/deta)/n or None) of one band at every point."""
     eta = pts.band_eta(band)
-    if band.power is not None:
+    if is_power_law(band):
         A, a = _power_law(band, "states")
         if _closed_form_ok(band, method, a - 1.0, a - 2.0):
             log_f = log_fermi_dirac(a - 1.0, eta)
@@ -196,7 +218,17 @@ def _log_density_and_slope(band, pts, method, slope=True):
     return log_n, sums[1] / sums[0] if slope else None
 
 
-def _total_log_density(bands, pts, method, slope=True):
+@overload
+def _total_log_density(
+    bands: Bands, pts: _Points, method: str, slope: Literal[True] = ...
+) -> tuple[FloatArray, FloatArray]: ...
+@overload
+def _total_log_density(
+    bands: Bands, pts: _Points, method: str, slope: Literal[False]
+) -> tuple[FloatArray, None]: ...
+def _total_log_density(
+    bands: Bands, pts: _Points, method: str, slope: bool = True
+) -> tuple[FloatArray, FloatArray | None]:
     parts = [_log_density_and_slope(b, pts, method, slope) for b in _as_bands(bands)]
     if len(parts) == 1:
         return parts[0]
@@ -209,7 +241,7 @@ def _total_log_density(bands, pts, method, slope=True):
     return top + np.log(total), mean_slope
 
 
-def carrier_density(bands, eta, T, method="auto"):
+def carrier_density(bands: Bands, eta: ArrayIn, T: ArrayIn, method: str = "auto") -> FloatOrArray:
     """Carrier density n(eta) of a band or a tuple of bands, per m^d.
 
     Formula: n = ∫ D(E) f(E) dE = ∫ N(E) (-df/dE) dE summed over the bands, with
@@ -232,7 +264,7 @@ def carrier_density(bands, eta, T, method="auto"):
     return pts.shaped(np.exp(log_n))
 
 
-def density_slope(bands, eta, T, method="auto"):
+def density_slope(bands: Bands, eta: ArrayIn, T: ArrayIn, method: str = "auto") -> FloatOrArray:
     """dn/deta = kT ∫ D(E) (-df/dE) dE per m^d (the thermodynamic density of states).
 
     Closed form for power-law bands: N_eff F_(pd/2-2)(eta).  Units and validity
@@ -247,7 +279,9 @@ def density_slope(bands, eta, T, method="auto"):
     return pts.shaped(np.exp(log_n) * slope)
 
 
-def generalized_einstein_ratio(bands, eta, T, method="auto"):
+def generalized_einstein_ratio(
+    bands: Bands, eta: ArrayIn, T: ArrayIn, method: str = "auto"
+) -> FloatOrArray:
     """(D/mu)/(kT/q) = n/(dn/deta), any band (Kane, Dirac, several subbands).
 
     Parabolic 3D/2D/1D: F_1/2/F_-1/2, (1 + e^-eta) ln(1 + e^eta), F_-1/2/F_-3/2;
@@ -263,7 +297,7 @@ def generalized_einstein_ratio(bands, eta, T, method="auto"):
     return pts.shaped(1.0 / slope)
 
 
-def effective_density(band, T):
+def effective_density(band: Band, T: ArrayIn) -> FloatArray:
     """N_eff of a power-law band, n = N_eff F_(pd/2-1)(eta), per m^d.
 
     Formula: N_eff = g_s g_v V_d c^(d/2) (kT)^(pd/2) Γ(pd/2 + 1) / (2 pi)^d for
@@ -276,22 +310,32 @@ def effective_density(band, T):
     Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2; Sze & Ng,
     Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1 (N_c).
     """
-    if band.power is None:
+    if not is_power_law(band):
         raise InputError("a Kane band has no effective density (not a power law)")
     A, a = _power_law(band, "states")
-    return A * (BOLTZMANN * np.asarray(T, dtype=float)) ** a * np.exp(lgamma(a + 1.0))
+    density: FloatArray = (
+        A * (BOLTZMANN * np.asarray(T, dtype=float)) ** a * np.exp(lgamma(a + 1.0))
+    )
+    return density
 
 
 # ----------------------------------------------------------------- conductance
 
 
-def _mode_integral(band, pts, method, exponent=0.0, length_ratio=None, r=0.0):
+def _mode_integral(
+    band: Band,
+    pts: _Points,
+    method: str,
+    exponent: float = 0.0,
+    length_ratio: FloatArray | None = None,
+    r: float = 0.0,
+) -> FloatArray:
     """∫ M(E) x^exponent T(E) (-df/dE) dE per unit cross-section, x = E/kT.
 
     T = 1/(1 + c x^-r) with c = ``length_ratio`` (per point, L/lambda_0); None: T = 1.
     """
     eta = pts.band_eta(band)
-    if length_ratio is None and band.power is not None:
+    if length_ratio is None and is_power_law(band):
         A, a = _power_law(band, "modes")
         if a + exponent <= -1.0:
             raise InputError(
@@ -300,11 +344,12 @@ def _mode_integral(band, pts, method, exponent=0.0, length_ratio=None, r=0.0):
             )
         if _closed_form_ok(band, method, a + exponent - 1.0):
             b = a + exponent  # M x^r = A (kT)^a x^(a + r)
-            return A * pts.kT**a * np.exp(lgamma(b + 1.0)) * fermi_dirac(b - 1.0, eta)
+            closed: FloatArray = A * pts.kT**a * np.exp(lgamma(b + 1.0)) * fermi_dirac(b - 1.0, eta)
+            return closed
     _check_method(method)
     kT = pts.kT
 
-    def integrand(x, rows):
+    def integrand(x: FloatArray, rows: slice) -> FloatArray:
         value = _bands.mode_density(band, x * kT[rows, None])
         if exponent:
             value *= x**exponent
@@ -319,7 +364,7 @@ def _mode_integral(band, pts, method, exponent=0.0, length_ratio=None, r=0.0):
     return np.exp(_log_logistic(eta)) * total
 
 
-def modes_in_window(bands, eta, T, method="auto"):
+def modes_in_window(bands: Bands, eta: ArrayIn, T: ArrayIn, method: str = "auto") -> FloatOrArray:
     """<M> = ∫ M(E) (-df/dE) dE: the number of conducting modes per spin in the window.
 
     Units: 1D dimensionless, 2D per m of width, 3D per m^2 of cross-section.
@@ -332,14 +377,22 @@ def modes_in_window(bands, eta, T, method="auto"):
     Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2-3.
     """
     pts = _Points(eta, T)
-    return pts.shaped(sum(_mode_integral(b, pts, method) for b in _as_bands(bands)))
+    return pts.shaped(_band_sum(_as_bands(bands), lambda b: _mode_integral(b, pts, method)))
 
 
-def _quantum(band):
+def _quantum(band: Band) -> float:
     return band.spin_degeneracy * ELEMENTARY_CHARGE**2 / PLANCK
 
 
-def conductance(bands, eta, T, length, mfp0, r=0.0, method="auto"):
+def conductance(
+    bands: Bands,
+    eta: ArrayIn,
+    T: ArrayIn,
+    length: ArrayIn,
+    mfp0: ArrayIn,
+    r: float = 0.0,
+    method: str = "auto",
+) -> FloatOrArray:
     """Landauer conductance G = (g_s q^2/h) ∫ M(E) T(E) (-df/dE) dE, T = lambda/(lambda + L).
 
     lambda(E) = lambda_0 (E/kT)^r, E the kinetic energy above each band's edge
@@ -361,14 +414,16 @@ def conductance(bands, eta, T, length, mfp0, r=0.0, method="auto"):
     ratio = pts.extra["length"] / pts.extra["mfp0"]
     if not np.any(ratio):
         ratio = None  # L = 0: the ballistic closed forms apply
-    total = sum(
-        _quantum(b) * _mode_integral(b, pts, method, length_ratio=ratio, r=float(r))
-        for b in _as_bands(bands)
+    total = _band_sum(
+        _as_bands(bands),
+        lambda b: _quantum(b) * _mode_integral(b, pts, method, length_ratio=ratio, r=float(r)),
     )
     return pts.shaped(total)
 
 
-def ballistic_conductance(bands, eta, T, method="auto"):
+def ballistic_conductance(
+    bands: Bands, eta: ArrayIn, T: ArrayIn, method: str = "auto"
+) -> FloatOrArray:
     """G = (g_s q^2/h) <M>, the L -> 0 limit of :func:`conductance` (same units).
 
     References
@@ -376,10 +431,14 @@ def ballistic_conductance(bands, eta, T, method="auto"):
     R. Landauer, IBM J. Res. Dev. 1, 223 (1957); Lundstrom & Jeong (2012), ch. 3.
     """
     pts = _Points(eta, T)
-    return pts.shaped(sum(_quantum(b) * _mode_integral(b, pts, method) for b in _as_bands(bands)))
+    return pts.shaped(
+        _band_sum(_as_bands(bands), lambda b: _quantum(b) * _mode_integral(b, pts, method))
+    )
 
 
-def diffusive_conductivity(bands, eta, T, mfp0, r=0.0, method="auto"):
+def diffusive_conductivity(
+    bands: Bands, eta: ArrayIn, T: ArrayIn, mfp0: ArrayIn, r: float = 0.0, method: str = "auto"
+) -> FloatOrArray:
     """sigma = lim L G(L) = (g_s q^2/h) ∫ M(E) lambda(E) (-df/dE) dE.
 
     Units: mfp0 in m; S/m (3D), S per square (2D sheet conductance), S m (1D).
@@ -395,11 +454,15 @@ def diffusive_conductivity(bands, eta, T, mfp0, r=0.0, method="auto"):
     if np.any(~(pts.extra["mfp0"] > 0)):
         raise InputError("mfp0 must be > 0 (m)")
     r = float(r)
-    total = sum(_quantum(b) * _mode_integral(b, pts, method, exponent=r) for b in _as_bands(bands))
+    total = _band_sum(
+        _as_bands(bands), lambda b: _quantum(b) * _mode_integral(b, pts, method, exponent=r)
+    )
     return pts.shaped(total * pts.extra["mfp0"])
 
 
-def diffusive_mobility(bands, eta, T, mfp0, r=0.0, method="auto"):
+def diffusive_mobility(
+    bands: Bands, eta: ArrayIn, T: ArrayIn, mfp0: ArrayIn, r: float = 0.0, method: str = "auto"
+) -> FloatOrArray:
     """mu = sigma/(q n) in m^2/(V s), sigma from :func:`diffusive_conductivity`.
 
     Parabolic 3D with lambda = (4/3) v tau, tau = tau_0 (E/kT)^s (r = s + 1/2):
@@ -417,7 +480,7 @@ def diffusive_mobility(bands, eta, T, mfp0, r=0.0, method="auto"):
 # ----------------------------------------------------------------- graphene
 
 
-def dirac_net_density(band, eta, T):
+def dirac_net_density(band: Band, eta: ArrayIn, T: ArrayIn) -> FloatOrArray:
     """n - p of a Dirac band (both cones) at eta = (E_F - E_D)/kT, per m^2.
 
     Formula: N_eff [F_1(eta) - F_1(-eta)] = N_eff [eta^2/2 + pi^2/6 - 2 F_1(-|eta|)]
@@ -436,7 +499,7 @@ def dirac_net_density(band, eta, T):
     return pts.shaped(net)
 
 
-def dirac_intrinsic_density(band, T):
+def dirac_intrinsic_density(band: Band, T: ArrayIn) -> FloatArray:
     """n_i = n = p at eta = 0: (g_s g_v/4) (pi/6) (kT/(hbar v_F))^2 per m^2.
 
     Graphene (g_s = g_v = 2): n_i = (pi/6)(kT/(hbar v_F))^2, about 8e10 cm^-2 at
@@ -452,7 +515,9 @@ def dirac_intrinsic_density(band, T):
 # ----------------------------------------------------------------- inverse
 
 
-def _single_closed_form(band, density, T, kT):
+def _single_closed_form(
+    band: Band, density: FloatArray, T: FloatArray, kT: FloatArray
+) -> FloatOrArray | None:
     """eta for one parabolic band in 2D (ln(e^u - 1)) or 3D (inverse F_1/2), else None."""
     if not isinstance(band, _bands.ParabolicBand) or band.dimension == 1:
         return None
@@ -469,7 +534,9 @@ def _single_closed_form(band, density, T, kT):
     return eta + band.edge / kT
 
 
-def eta_from_density(bands, density, T, method="auto"):
+def eta_from_density(
+    bands: Bands, density: ArrayIn, T: ArrayIn, method: str = "auto"
+) -> FloatOrArray:
     """eta = (E_F - E_ref)/kT at which the band(s) hold ``density`` (per m^d), vectorized.
 
     One parabolic 2D subband: eta = ln(e^(n/N_2D) - 1) (exact; expm1/log1p keep
@@ -496,7 +563,9 @@ def eta_from_density(bands, density, T, method="auto"):
     return pts.shaped(_newton_on_log_density(group, np.log(n), pts, method))
 
 
-def _newton_on_log_density(group, target, pts, method):
+def _newton_on_log_density(
+    group: tuple[Band, ...], target: FloatArray, pts: _Points, method: str
+) -> FloatArray:
     eta = np.zeros_like(target)
     lo, hi = np.full_like(target, -np.inf), np.full_like(target, np.inf)
     active = np.arange(target.size)
@@ -526,7 +595,7 @@ def _newton_on_log_density(group, target, pts, method):
 class _Subset(_Points):
     """The points ``index`` of ``pts`` at new eta values (no re-validation)."""
 
-    def __init__(self, pts, index, eta):  # noqa: D107 - shares _Points' fields
+    def __init__(self, pts: _Points, index: IndexArray, eta: FloatArray) -> None:  # noqa: D107
         self.shape = eta.shape
         self.eta, self.T, self.kT = eta, pts.T[index], pts.kT[index]
         self.extra = {}

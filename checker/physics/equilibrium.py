@@ -31,19 +31,27 @@ Statistics (1962); P. P. Edwards and M. J. Sienko, Phys. Rev. B 17, 2575 (1978)
 from __future__ import annotations
 
 import os
+from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import cached_property
+from typing import TypeAlias
 
 import numpy as np
 
 from ..errors import ConvergenceError, InputError
+from .arrays import ArrayIn, BoolArray, FloatArray, IndexArray
 from .constants import BOLTZMANN, EV
 from .fermi import log_fermi_dirac, log_fermi_dirac_half_pair
-from .materials import Material
+from .materials import Dopant, Material
 
 MAX_ITERATIONS = 200
 TOLERANCE = 1e-12
 BALANCE_TOLERANCE = 1e-10  # relative neutrality error every returned point meets
+
+# one bound level: (ln N_level, occupancy offset E(N)/kT + ln g, ln b, ln(1 - b))
+LevelTerm: TypeAlias = tuple[FloatArray, FloatArray, FloatArray, FloatArray]
+# a log density and its slope d/d eta (None: a constant)
+SlopedTerm: TypeAlias = tuple[FloatArray, FloatArray | None]
 
 
 @dataclass
@@ -56,52 +64,55 @@ class State:
     """
 
     material: Material
-    T: np.ndarray
-    donors: dict  # species -> total density
-    acceptors: dict
-    eta_n: np.ndarray
-    metallic: np.ndarray  # bool: some species above its Mott density
-    narrowing: np.ndarray  # band-gap narrowing applied (J), split half to each band
-    residual: np.ndarray  # |1 - (n + N_A^-)/(p + N_D^+)|
+    T: FloatArray
+    donors: dict[str, FloatArray]  # species -> total density
+    acceptors: dict[str, FloatArray]
+    eta_n: FloatArray
+    metallic: BoolArray  # some species above its Mott density
+    narrowing: FloatArray  # band-gap narrowing applied (J), split half to each band
+    residual: FloatArray  # |1 - (n + N_A^-)/(p + N_D^+)|
     iterations: int = 0
 
     @cached_property
-    def kT(self):
+    def kT(self) -> FloatArray:
         return BOLTZMANN * self.T
 
     @cached_property
-    def Eg(self):
+    def Eg(self) -> FloatArray:
         """Band gap including any narrowing (J)."""
-        return self.material.band_gap(self.T) - self.narrowing
+        gap: FloatArray = self.material.need("band_gap", "the band gap")(self.T)
+        return gap - self.narrowing
 
     @cached_property
-    def Nc(self):
-        return self.material.Nc(self.T)
+    def Nc(self) -> FloatArray:
+        density: FloatArray = self.material.need("Nc", "the electron density")(self.T)
+        return density
 
     @cached_property
-    def Nv(self):
-        return self.material.Nv(self.T)
+    def Nv(self) -> FloatArray:
+        density: FloatArray = self.material.need("Nv", "the hole density")(self.T)
+        return density
 
     @cached_property
-    def eta_p(self):
+    def eta_p(self) -> FloatArray:
         """(E_V - E_F)/kT."""
         return -self.eta_n - self.Eg / self.kT
 
     @cached_property
-    def n(self):
+    def n(self) -> FloatArray:
         return self.Nc * np.exp(log_fermi_dirac(0.5, self.eta_n))
 
     @cached_property
-    def p(self):
+    def p(self) -> FloatArray:
         return self.Nv * np.exp(log_fermi_dirac(0.5, self.eta_p))
 
     @cached_property
-    def ni(self):
+    def ni(self) -> FloatArray:
         """sqrt(N_c N_v) exp(-E_g/2kT): the intrinsic density in the Boltzmann definition."""
         return np.sqrt(self.Nc * self.Nv) * np.exp(-0.5 * self.Eg / self.kT)
 
     @cached_property
-    def donors_ionized(self):
+    def donors_ionized(self) -> dict[str, FloatArray]:
         return {
             name: ionized_density(
                 self.material.dopant(name), dens, self.eta_n, self.kT, self.donors_total
@@ -110,7 +121,7 @@ class State:
         }
 
     @cached_property
-    def acceptors_ionized(self):
+    def acceptors_ionized(self) -> dict[str, FloatArray]:
         return {
             name: ionized_density(
                 self.material.dopant(name), dens, self.eta_p, self.kT, self.acceptors_total
@@ -119,40 +130,40 @@ class State:
         }
 
     @property
-    def ef_minus_ec_eV(self):
+    def ef_minus_ec_eV(self) -> FloatArray:
         return self.eta_n * self.kT / EV
 
     @property
-    def ef_minus_ev_eV(self):
+    def ef_minus_ev_eV(self) -> FloatArray:
         return -self.eta_p * self.kT / EV
 
     @cached_property
-    def donors_total(self):
+    def donors_total(self) -> FloatArray:
         return _sum(self.donors, self.T)
 
     @cached_property
-    def acceptors_total(self):
+    def acceptors_total(self) -> FloatArray:
         return _sum(self.acceptors, self.T)
 
     @property
-    def donors_ionized_total(self):
+    def donors_ionized_total(self) -> FloatArray:
         return _sum(self.donors_ionized, self.T)
 
     @property
-    def acceptors_ionized_total(self):
+    def acceptors_ionized_total(self) -> FloatArray:
         return _sum(self.acceptors_ionized, self.T)
 
     @property
-    def donor_fraction(self):
+    def donor_fraction(self) -> FloatArray:
         """Ionized fraction of all donors (1 where there are none)."""
         return _fraction(self.donors_ionized_total, self.donors_total)
 
     @property
-    def acceptor_fraction(self):
+    def acceptor_fraction(self) -> FloatArray:
         return _fraction(self.acceptors_ionized_total, self.acceptors_total)
 
 
-def charge_balance_error(state: State) -> np.ndarray:
+def charge_balance_error(state: State) -> FloatArray:
     """Relative neutrality error |(n + N_A^-) - (p + N_D^+)| / max(n + N_A^-, p + N_D^+).
 
     Evaluated afresh from the solved eta_n with the plain form of neutrality (not the
@@ -181,7 +192,9 @@ def charge_balance_error(state: State) -> np.ndarray:
     return np.where(np.isfinite(top), error, 0.0)
 
 
-def _level_terms(dopant, density, kT, same_type_total):
+def _level_terms(
+    dopant: Dopant, density: FloatArray, kT: FloatArray, same_type_total: FloatArray
+) -> list[LevelTerm]:
     """Per bound level: (ln N_level, occupancy offset E(N)/kT + ln g, ln b, ln(1 - b))."""
     ln_b, ln_free = dopant.share_model().log_shares(same_type_total)
     factor = dopant.lowering_factor(same_type_total)
@@ -197,7 +210,13 @@ def _level_terms(dopant, density, kT, same_type_total):
     ]
 
 
-def log_ionized_density(dopant, density, eta_band, kT, same_type_total):
+def log_ionized_density(
+    dopant: Dopant,
+    density: FloatArray,
+    eta_band: FloatArray,
+    kT: FloatArray,
+    same_type_total: FloatArray,
+) -> FloatArray:
     """ln of :func:`ionized_density` without underflow (-inf where the density is 0)."""
     parts = [
         ln_n + np.logaddexp(ln_free, ln_b - np.logaddexp(0.0, eta_band + offset))
@@ -206,7 +225,13 @@ def log_ionized_density(dopant, density, eta_band, kT, same_type_total):
     return np.logaddexp.reduce(parts) if len(parts) > 1 else parts[0]
 
 
-def ionized_density(dopant, density, eta_band, kT, same_type_total):
+def ionized_density(
+    dopant: Dopant,
+    density: FloatArray,
+    eta_band: FloatArray,
+    kT: FloatArray,
+    same_type_total: FloatArray,
+) -> FloatArray:
     """Ionized density of one species (m^-3), vectorized.
 
     Formula, summed over the species' bound levels k (share s_k, degeneracy g_k):
@@ -226,19 +251,19 @@ def ionized_density(dopant, density, eta_band, kT, same_type_total):
     return np.exp(log_ionized_density(dopant, density, eta_band, kT, same_type_total))
 
 
-def _sum(parts: dict, like):
+def _sum(parts: Mapping[str, FloatArray], like: FloatArray) -> FloatArray:
     total = np.zeros(np.shape(like))
     for value in parts.values():
         total = total + value
     return total
 
 
-def _fraction(part, whole):
+def _fraction(part: FloatArray, whole: FloatArray) -> FloatArray:
     with np.errstate(invalid="ignore", divide="ignore"):
         return np.where(whole > 0, part / np.where(whole > 0, whole, 1.0), 1.0)
 
 
-def _softplus_and_logistic(x):
+def _softplus_and_logistic(x: FloatArray) -> tuple[FloatArray, FloatArray]:
     """ln(1 + e^x) and 1/(1 + e^-x), sharing one exponential."""
     e = np.abs(x)
     np.negative(e, out=e)
@@ -251,12 +276,14 @@ def _softplus_and_logistic(x):
     return soft, logistic
 
 
-def _log(x):
+def _log(x: FloatArray) -> FloatArray:
     with np.errstate(divide="ignore"):
         return np.log(x)
 
 
-def _check_inputs(T, donors, acceptors):
+def _check_inputs(
+    T: FloatArray, donors: Mapping[str, FloatArray], acceptors: Mapping[str, FloatArray]
+) -> None:
     if not np.all(np.isfinite(T)) or np.any(T <= 0):
         bad = T[~(np.isfinite(T) & (T > 0))].ravel()[:3]
         raise InputError(f"temperature must be finite and above 0 K; got {bad.tolist()} K")
@@ -286,40 +313,49 @@ class _Neutrality:
     BASE_ROWS = 5  # ln N_c, ln N_v, E_g/kT, ln max(N_D - N_A, 0), ln max(N_A - N_D, 0)
     TERM_ROWS = 4  # per bound level: ln N_level, offset, ln b, ln(1 - b)
 
-    def __init__(self, params, n_donors, n_acceptors):
+    def __init__(self, params: FloatArray, n_donors: int, n_acceptors: int) -> None:
         self.params = params
         self.n_donors, self.n_acceptors = n_donors, n_acceptors
 
     @classmethod
-    def build(cls, ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p, donor_terms, acceptor_terms):
+    def build(
+        cls,
+        ln_nc: FloatArray,
+        ln_nv: FloatArray,
+        eg_kt: FloatArray,
+        ln_net_n: FloatArray,
+        ln_net_p: FloatArray,
+        donor_terms: list[LevelTerm],
+        acceptor_terms: list[LevelTerm],
+    ) -> _Neutrality:
         """Each term: (ln N_level, occupancy offset, ln b, ln(1 - b)) of one bound level."""
         rows = [ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p]
         for term in donor_terms + acceptor_terms:
             rows += list(term)
         return cls(np.array(rows), len(donor_terms), len(acceptor_terms))
 
-    def subset(self, keep):
+    def subset(self, keep: IndexArray) -> _Neutrality:
         """The residual restricted to the points at integer positions ``keep``."""
         return _Neutrality(np.take(self.params, keep, axis=1), self.n_donors, self.n_acceptors)
 
-    def _species(self, k):
+    def _species(self, k: int) -> FloatArray:
         row = self.BASE_ROWS + self.TERM_ROWS * k
         return self.params[row : row + self.TERM_ROWS]
 
-    def __call__(self, eta):
+    def __call__(self, eta: FloatArray) -> tuple[FloatArray, FloatArray]:
         """Return (f, df/deta) with f = ln(left side) - ln(right side), increasing in eta."""
         ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p = self.params[: self.BASE_ROWS]
         eta_p = -eta - eg_kt
         size = eta.size
         both, both_minus = log_fermi_dirac_half_pair(np.concatenate([eta, eta_p]))
         slopes = np.exp(both_minus - both)  # d ln F_1/2 / d eta = F_-1/2 / F_1/2
-        left = [(ln_nc + both[:size], slopes[:size]), (ln_net_p, None)]
-        right = [(ln_nv + both[size:], -slopes[size:]), (ln_net_n, None)]
+        left: list[SlopedTerm] = [(ln_nc + both[:size], slopes[:size]), (ln_net_p, None)]
+        right: list[SlopedTerm] = [(ln_nv + both[size:], -slopes[size:]), (ln_net_n, None)]
         # the same balance written plainly, n + N_A^- = p + N_D^+: in freeze-out almost
         # every impurity is neutral and the form above cancels (N^0 ~ N), while this one
         # keeps full resolution; each point takes the form with the steeper slope
-        plain_left = [(ln_nc + both[:size], slopes[:size])]
-        plain_right = [(ln_nv + both[size:], -slopes[size:])]
+        plain_left: list[SlopedTerm] = [(ln_nc + both[:size], slopes[:size])]
+        plain_right: list[SlopedTerm] = [(ln_nv + both[size:], -slopes[size:])]
         for k in range(self.n_donors):
             ln_n, offset, ln_b, ln_free = self._species(k)
             neutral, ionized = _impurity_terms(ln_n, eta + offset, ln_b, ln_free, +1.0)
@@ -343,7 +379,9 @@ class _Neutrality:
         return f, df
 
 
-def _impurity_terms(ln_density, argument, ln_b, ln_free, sign):
+def _impurity_terms(
+    ln_density: FloatArray, argument: FloatArray, ln_b: FloatArray, ln_free: FloatArray, sign: float
+) -> tuple[SlopedTerm, SlopedTerm]:
     """(ln N^0, slope) and (ln N^ion, slope) of one bound level; slopes are d/d eta.
 
     With the isolated-level occupancy u = 1/(1 + e^-arg) (arg = eta_band + offset):
@@ -360,10 +398,10 @@ def _impurity_terms(ln_density, argument, ln_b, ln_free, sign):
     return (neutral_value, neutral_slope), (ln_density + ion_value, ion_slope)
 
 
-def _logsumexp_with_slope(terms):
+def _logsumexp_with_slope(terms: list[SlopedTerm]) -> tuple[FloatArray, FloatArray]:
     """ln(sum e^a_i) and its derivative sum w_i a_i' (w = softmax weights)."""
-    if len(terms) == 1:
-        return terms[0]
+    if len(terms) == 1 and terms[0][1] is not None:
+        return terms[0][0], terms[0][1]
     top = terms[0][0].copy()
     for value, _ in terms[1:]:
         np.maximum(top, value, out=top)
@@ -382,7 +420,19 @@ def _logsumexp_with_slope(terms):
     return total, slope
 
 
-def _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd, na, e_donor, e_acceptor, metal_d, metal_a, ni):
+def _initial_guess(
+    ln_nc: FloatArray,
+    ln_nv: FloatArray,
+    eg_kt: FloatArray,
+    kT: FloatArray,
+    nd: FloatArray,
+    na: FloatArray,
+    e_donor: FloatArray,
+    e_acceptor: FloatArray,
+    metal_d: BoolArray,
+    metal_a: BoolArray,
+    ni: FloatArray,
+) -> FloatArray:
     """Boltzmann estimate of eta_n with one effective donor and acceptor level.
 
     Net donors: n (n + N_A) / (N_D - N_A - n) = (N_c/2) e^(-E_D/kT), solved in
@@ -390,7 +440,13 @@ def _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd, na, e_donor, e_acceptor, metal_d
     it.  It is only the Newton start: the solve itself uses the full model.
     """
 
-    def majority(n_major, n_minor, ln_n_band, energy, metal):
+    def majority(
+        n_major: FloatArray,
+        n_minor: FloatArray,
+        ln_n_band: FloatArray,
+        energy: FloatArray,
+        metal: BoolArray,
+    ) -> FloatArray:
         net = np.maximum(n_major - n_minor, 0.0)
         ln_phi = np.clip(ln_n_band - np.log(2.0) - energy / kT, -690.0, 690.0)
         phi = np.where(metal, np.inf, np.exp(ln_phi))
@@ -417,7 +473,7 @@ def _initial_guess(ln_nc, ln_nv, eg_kt, kT, nd, na, e_donor, e_acceptor, metal_d
 _JOYCE_DIXON = (-4.42563e-6, 1.48386e-4, -4.95009e-3, 0.353553)  # A4, A3, A2, A1
 
 
-def _eta_from_ln_u(ln_u):
+def _eta_from_ln_u(ln_u: FloatArray) -> FloatArray:
     """Approximate inverse of F_1/2 from ln u: Joyce–Dixon below u = 8, Sommerfeld above."""
     u = np.exp(np.minimum(ln_u, 50.0))
     series = np.polyval(_JOYCE_DIXON + (0.0,), np.minimum(u, 8.0))
@@ -427,7 +483,7 @@ def _eta_from_ln_u(ln_u):
     return np.where(ln_u < np.log(8.0), ln_u + series, degenerate)
 
 
-def _newton(residual, eta0):
+def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatArray, int]:
     """Newton with a growing step limit and a bracket kept from the signs of f.
 
     f is strictly increasing, so every evaluation tightens [lo, hi]; a Newton
@@ -497,9 +553,9 @@ CHUNK = 1 << 15  # points per block: the solver's temporaries then stay in cache
 
 def solve(
     material: Material,
-    T,
-    donors: dict | None = None,
-    acceptors: dict | None = None,
+    T: ArrayIn,
+    donors: Mapping[str, ArrayIn] | None = None,
+    acceptors: Mapping[str, ArrayIn] | None = None,
     band_gap_narrowing: bool = False,
 ) -> State:
     """Solve charge neutrality for E_F at every (T, doping) point (vectorized).
@@ -514,46 +570,46 @@ def solve(
     ----------
     Sze & Ng (2007) ch. 1; Edwards & Sienko, Phys. Rev. B 17, 2575 (1978).
     """
-    donors = dict(donors or {})
-    acceptors = dict(acceptors or {})
+    donor_inputs, acceptor_inputs = dict(donors or {}), dict(acceptors or {})
     arrays = np.broadcast_arrays(
         np.asarray(T, dtype=float),
-        *[np.asarray(v, dtype=float) for v in donors.values()],
-        *[np.asarray(v, dtype=float) for v in acceptors.values()],
+        *[np.asarray(v, dtype=float) for v in donor_inputs.values()],
+        *[np.asarray(v, dtype=float) for v in acceptor_inputs.values()],
     )
     shape = arrays[0].shape
-    T = arrays[0].astype(float).ravel()
-    d_vals = [a.astype(float).ravel() for a in arrays[1 : 1 + len(donors)]]
-    a_vals = [a.astype(float).ravel() for a in arrays[1 + len(donors) :]]
-    donors = dict(zip(donors, d_vals))
-    acceptors = dict(zip(acceptors, a_vals))
-    _check_inputs(T, donors, acceptors)
-    species = {name: material.dopant(name) for name in [*donors, *acceptors]}
-    for name in donors:
+    # flat float copies of the broadcast inputs (the solve works on 1-D blocks)
+    flat: list[FloatArray] = [a.astype(float).ravel() for a in arrays]
+    temps = flat[0]
+    n_donor_species = len(donor_inputs)
+    donor_flat = dict(zip(donor_inputs, flat[1 : 1 + n_donor_species]))
+    acceptor_flat = dict(zip(acceptor_inputs, flat[1 + n_donor_species :]))
+    _check_inputs(temps, donor_flat, acceptor_flat)
+    species = {name: material.dopant(name) for name in [*donor_flat, *acceptor_flat]}
+    for name in donor_flat:
         if species[name].kind != "donor":
             raise InputError(f"{name} is an acceptor in {material.name}; list it under acceptors")
-    for name in acceptors:
+    for name in acceptor_flat:
         if species[name].kind != "acceptor":
             raise InputError(f"{name} is a donor in {material.name}; list it under donors")
 
-    eta = np.empty_like(T)
-    residual = np.empty_like(T)
-    metallic = np.empty(T.shape, dtype=bool)
-    narrowing = np.empty_like(T)
+    eta = np.empty_like(temps)
+    residual = np.empty_like(temps)
+    metallic = np.empty(temps.shape, dtype=bool)
+    narrowing = np.empty_like(temps)
 
-    def block(i):
+    def block(i: int) -> int:
         part = slice(i, i + CHUNK)
         return _solve_flat(
             material,
-            T[part],
-            {k: v[part] for k, v in donors.items()},
-            {k: v[part] for k, v in acceptors.items()},
+            temps[part],
+            {k: v[part] for k, v in donor_flat.items()},
+            {k: v[part] for k, v in acceptor_flat.items()},
             band_gap_narrowing,
             species,
             out=(eta[part], residual[part], metallic[part], narrowing[part]),
         )
 
-    starts = range(0, T.size, CHUNK)
+    starts = range(0, temps.size, CHUNK)
     if len(starts) > 1 and WORKERS > 1:
         # numpy releases the GIL inside ufuncs, so blocks overlap on both cores
         from concurrent.futures import ThreadPoolExecutor  # only large solves need it
@@ -564,9 +620,9 @@ def solve(
         iterations = max(block(i) for i in starts)
     state = State(
         material=material,
-        T=T.reshape(shape),
-        donors={k: v.reshape(shape) for k, v in donors.items()},
-        acceptors={k: v.reshape(shape) for k, v in acceptors.items()},
+        T=temps.reshape(shape),
+        donors={k: v.reshape(shape) for k, v in donor_flat.items()},
+        acceptors={k: v.reshape(shape) for k, v in acceptor_flat.items()},
         eta_n=eta.reshape(shape),
         metallic=metallic.reshape(shape),
         narrowing=narrowing.reshape(shape),
@@ -584,10 +640,17 @@ def solve(
     return state
 
 
-def _effective_levels(donors, acceptors, species, nd_total, na_total, T):
+def _effective_levels(
+    donors: Mapping[str, FloatArray],
+    acceptors: Mapping[str, FloatArray],
+    species: Mapping[str, Dopant],
+    nd_total: FloatArray,
+    na_total: FloatArray,
+    T: FloatArray,
+) -> tuple[FloatArray, FloatArray, BoolArray, BoolArray]:
     """Ionization energy of the most abundant donor / acceptor at each point (for the start)."""
 
-    def pick(group, total):
+    def pick(group: Mapping[str, FloatArray], total: FloatArray) -> tuple[FloatArray, BoolArray]:
         energy = np.zeros_like(T)
         metal = np.zeros(T.shape, dtype=bool)
         best = np.full_like(T, -1.0)
@@ -604,7 +667,15 @@ def _effective_levels(donors, acceptors, species, nd_total, na_total, T):
     return e_d, e_a, m_d, m_a
 
 
-def _solve_flat(material, T, donors, acceptors, band_gap_narrowing, species, out) -> int:
+def _solve_flat(
+    material: Material,
+    T: FloatArray,
+    donors: Mapping[str, FloatArray],
+    acceptors: Mapping[str, FloatArray],
+    band_gap_narrowing: bool,
+    species: Mapping[str, Dopant],
+    out: tuple[FloatArray, FloatArray, BoolArray, FloatArray],
+) -> int:
     """Solve one block; write eta, residual, metallic flag and narrowing into ``out``."""
     kT = BOLTZMANN * T
     Eg = material.need("band_gap", "the equilibrium solve")(T)
@@ -620,7 +691,7 @@ def _solve_flat(material, T, donors, acceptors, band_gap_narrowing, species, out
     Eg_eff = Eg - narrowing
     eg_kt = Eg_eff / kT
 
-    def terms(group, total):
+    def terms(group: Mapping[str, FloatArray], total: FloatArray) -> list[LevelTerm]:
         # bound levels move with their band edge: band-gap narrowing leaves E_ion alone
         return [
             term

@@ -28,20 +28,24 @@ T. Fukushima, Appl. Math. Comput. 259, 708 (2015) (piecewise approximation).
 
 from __future__ import annotations
 
+from collections.abc import Callable, Sequence
 from fractions import Fraction
 from functools import cache
+from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from ..errors import ConvergenceError, InputError
 from . import _fd_tables
+from .arrays import ArrayIn, FloatArray, FloatOrArray
 
 SUPPORTED_ORDERS = tuple(Fraction(k, 2) for k in range(-3, 8))
 _CHUNK = 1 << 16  # elements per block: keeps the temporaries in cache
 _PI2 = np.pi**2
 
 
-def _order(j) -> Fraction:
+def _order(j: Any) -> Fraction:
     try:
         frac = Fraction(j).limit_denominator(2)
     except (TypeError, ValueError):
@@ -54,7 +58,7 @@ def _order(j) -> Fraction:
     return frac
 
 
-def _horner(coeffs, t, out=None):
+def _horner(coeffs: Sequence[float], t: FloatArray, out: FloatArray | None = None) -> FloatArray:
     acc = np.multiply(t, coeffs[-1], out=out)
     acc += coeffs[-2]
     for c in coeffs[-3::-1]:
@@ -73,13 +77,17 @@ class _Piecewise:
     last the Sommerfeld series (half-integer orders only).
     """
 
-    def __init__(self, key: str):
-        table = _fd_tables.TABLES[key]
-        self.low = table["low"]
-        self.pieces = [((a + b) / 2, 2.0 / (b - a), c) for a, b, c in table["pieces"]]
-        self.edges = np.array([ETA_DEEP, _fd_tables.ETA_LOW] + [b for _, b, _ in table["pieces"]])
-        self.asym = table["asym"]
-        self.gamma = table["gamma"]
+    def __init__(self, key: str) -> None:
+        # the generated table is plain literals: name the types of its entries here
+        table: dict[str, Any] = _fd_tables.TABLES[key]
+        self.low: list[float] = table["low"]
+        self.pieces: list[tuple[float, float, list[float]]] = [
+            ((a + b) / 2, 2.0 / (b - a), c) for a, b, c in table["pieces"]
+        ]
+        edges = [ETA_DEEP, _fd_tables.ETA_LOW] + [b for _, b, _ in table["pieces"]]
+        self.edges: FloatArray = np.array(edges, dtype=np.float64)
+        self.asym: list[float] = table["asym"]
+        self.gamma: float = table["gamma"]
         self.power = Fraction(key) + 1  # j + 1
         self.last = len(self.edges) if self.asym else len(self.edges) - 1
         # All edges lie on a half-unit grid, so the region of each eta is a table
@@ -88,19 +96,20 @@ class _Piecewise:
             raise ValueError("Fermi-Dirac table edges must lie on a half-unit grid")
         grid = np.arange(2 * self.edges[0] - 1, 2 * self.edges[-1] + 1) / 2.0
         self.grid_start = grid[0]
-        self.lookup = np.minimum(np.searchsorted(self.edges, grid, side="right"), self.last).astype(
-            np.uint8
-        )
+        self.lookup: npt.NDArray[np.uint8] = np.minimum(
+            np.searchsorted(self.edges, grid, side="right"), self.last
+        ).astype(np.uint8)
 
-    def regions(self, eta):
+    def regions(self, eta: FloatArray) -> npt.NDArray[np.uint8]:
         cell = np.subtract(eta, self.grid_start)
         cell *= 2.0
         # fmax/fmin drop NaN, which so lands in region 0, whose formulas pass NaN on
         np.fmax(cell, 0.0, out=cell)
         np.fmin(cell, len(self.lookup) - 1, out=cell)
-        return self.lookup[cell.astype(np.intp)]
+        labels: npt.NDArray[np.uint8] = self.lookup[cell.astype(np.intp)]
+        return labels
 
-    def region(self, k, eta, log, out):
+    def region(self, k: int, eta: FloatArray, log: bool, out: FloatArray) -> None:
         """Write F_j (or ln F_j) of region k at eta into ``out`` (same length)."""
         if k == 0:
             if log:
@@ -125,7 +134,7 @@ class _Piecewise:
             if log:
                 np.log(out, out=out)
 
-    def _asymptotic(self, eta, log, out):
+    def _asymptotic(self, eta: FloatArray, log: bool, out: FloatArray) -> None:
         inv2 = eta * eta
         np.divide(1.0, inv2, out=inv2)
         series = _horner(self.asym, inv2, out)
@@ -143,11 +152,13 @@ class _Piecewise:
             series *= lead
             series /= self.gamma
 
-    def evaluate(self, eta: np.ndarray, log: bool = False) -> np.ndarray:
+    def evaluate(self, eta: FloatArray, log: bool = False) -> FloatArray:
         return _grouped(self, eta, [(self, log)])[0]
 
 
-def _grouped(classifier: _Piecewise, eta: np.ndarray, jobs):
+def _grouped(
+    classifier: _Piecewise, eta: FloatArray, jobs: Sequence[tuple[_Piecewise, bool]]
+) -> list[FloatArray]:
     """Evaluate several (evaluator, log) jobs on eta, grouping points by region.
 
     The evaluators must share the classifier's edges.  Work proceeds in
@@ -166,9 +177,9 @@ def _grouped(classifier: _Piecewise, eta: np.ndarray, jobs):
         if busy.size == 2 and busy[1] == 1:
             busy = busy[1:]  # only deep and series points: the series formula serves both
         if busy.size == 1:
-            k = int(busy[0])
+            only = int(busy[0])
             for target, (ev, log) in zip(targets, jobs):
-                ev.region(k, block, log, target)
+                ev.region(only, block, log, target)
             continue
         order = np.argsort(region, kind="stable")
         grouped = block[order]
@@ -189,26 +200,26 @@ def _evaluator(key: str) -> _Piecewise:
     return _Piecewise(key)
 
 
-def _softplus(eta):
+def _softplus(eta: FloatArray) -> FloatArray:
     """ln(1 + e^eta) without overflow or loss of relative accuracy."""
     pos = eta > 0
     return np.where(pos, eta, 0.0) + np.log1p(np.exp(-np.abs(eta)))
 
 
-def _logistic(eta):
+def _logistic(eta: FloatArray) -> FloatArray:
     e = np.exp(-np.abs(eta))
     return np.where(eta >= 0, 1.0 / (1.0 + e), e / (1.0 + e))
 
 
 # F_j(eta) = poly(eta) + sign * F_j(-eta), exact for integer j >= 1
-_REFLECTION = {
+_REFLECTION: dict[int, tuple[Callable[[FloatArray], FloatArray], float]] = {
     1: (lambda x: 0.5 * x * x + _PI2 / 6.0, -1.0),
     2: (lambda x: x * (x * x + _PI2) / 6.0, +1.0),
     3: (lambda x: x * x * (x * x / 24.0 + _PI2 / 12.0) + 7.0 * _PI2 * _PI2 / 360.0, -1.0),
 }
 
 
-def _integer_order(j: int, eta: np.ndarray) -> np.ndarray:
+def _integer_order(j: int, eta: FloatArray) -> FloatArray:
     out = np.empty_like(eta)
     for start in range(0, eta.size, _CHUNK):  # blocks keep the temporaries in cache
         block = eta[start : start + _CHUNK]
@@ -216,7 +227,7 @@ def _integer_order(j: int, eta: np.ndarray) -> np.ndarray:
     return out
 
 
-def _integer_order_block(j, eta):
+def _integer_order_block(j: int, eta: FloatArray) -> FloatArray:
     if j == -1:
         return _logistic(eta)
     if j == 0:
@@ -233,7 +244,7 @@ def _integer_order_block(j, eta):
     return base
 
 
-def fermi_dirac(j, eta):
+def fermi_dirac(j: float | Fraction, eta: ArrayIn) -> FloatOrArray:
     """Normalized Fermi–Dirac integral F_j(eta), vectorized.
 
     Formula: F_j(eta) = -Li_{j+1}(-e^eta) = 1/Gamma(j+1) Int_0^inf x^j/(1+e^(x-eta)) dx.
@@ -258,7 +269,7 @@ def fermi_dirac(j, eta):
     return result if arr.ndim else float(result)
 
 
-def log_fermi_dirac(j, eta):
+def log_fermi_dirac(j: float | Fraction, eta: ArrayIn) -> FloatOrArray:
     """ln F_j(eta) without underflow (for eta down to -1e300), vectorized.
 
     Formula: ln F_j(eta); for eta < -2 it is evaluated as eta + ln(F_j/e^eta).
@@ -293,7 +304,7 @@ def log_fermi_dirac(j, eta):
     return result if arr.ndim else float(result)
 
 
-def log_fermi_dirac_half_pair(eta):
+def log_fermi_dirac_half_pair(eta: ArrayIn) -> tuple[FloatArray, FloatArray]:
     """(ln F_{1/2}(eta), ln F_{-1/2}(eta)) in one pass (flat float arrays).
 
     The two orders share their interval edges, so points are classified and
@@ -311,7 +322,7 @@ def log_fermi_dirac_half_pair(eta):
     return a, b
 
 
-def _initial_inverse_half(log_u):
+def _initial_inverse_half(log_u: FloatArray) -> FloatArray:
     """Starting guess for eta with F_{1/2}(eta) = u (from ln u)."""
     u = np.exp(np.minimum(log_u, 700.0))
     # non-degenerate side: eta ~ ln u + u/sqrt(8) (first Joyce–Dixon term)
@@ -319,10 +330,11 @@ def _initial_inverse_half(log_u):
     # degenerate side: invert (4/(3 sqrt(pi))) eta^1.5 (1 + pi^2/(8 eta^2))
     x = np.cbrt((0.75 * np.sqrt(np.pi) * u) ** 2)
     high = np.sqrt(np.maximum(x * x - _PI2 / 6.0, 0.25))
-    return np.where(log_u < np.log(3.0), low, high)
+    guess: FloatArray = np.where(log_u < np.log(3.0), low, high)
+    return guess
 
 
-def inverse_fermi_dirac_half(u):
+def inverse_fermi_dirac_half(u: ArrayIn) -> FloatOrArray:
     """eta such that F_{1/2}(eta) = u (normalized integral), vectorized.
 
     Formula: solves ln F_{1/2}(eta) = ln u by Newton's method on the log, with

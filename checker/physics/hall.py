@@ -10,6 +10,7 @@ from math import gamma
 
 import numpy as np
 
+from .arrays import ArrayIn, FloatArray, FloatOrArray
 from .constants import ELEMENTARY_CHARGE
 from .fermi import log_fermi_dirac
 
@@ -17,13 +18,14 @@ from .fermi import log_fermi_dirac
 SCATTERING_EXPONENTS = {"acoustic": -0.5, "ionized-impurity": 1.5, "neutral-impurity": 0.0}
 
 
-def _log_moment(eta, s, dimension):
+def _log_moment(eta: FloatArray, s: float, dimension: int) -> FloatOrArray:
     """ln of ∫ x^(d/2+s) (-df/dx) dx = ln Γ(d/2+1+s) + ln F_(d/2-1+s)(eta) (normalized F)."""
     a = dimension / 2.0 + s
-    return np.log(gamma(a + 1.0)) + log_fermi_dirac(a - 1.0, eta)
+    moment: FloatOrArray = np.log(gamma(a + 1.0)) + log_fermi_dirac(a - 1.0, eta)
+    return moment
 
 
-def hall_factor(eta, r, dimension=3):
+def hall_factor(eta: ArrayIn, r: float, dimension: int = 3) -> FloatOrArray:
     """Hall scattering factor r_H = <tau^2>/<tau>^2 for tau ∝ E^r, Fermi–Dirac statistics.
 
     Formula (parabolic band, energy-dependent relaxation time, weight
@@ -56,7 +58,9 @@ def hall_factor(eta, r, dimension=3):
     return np.exp(logs)
 
 
-def hall_density(n, p, mu_n, mu_p, rH_n, rH_p):
+def hall_density(
+    n: ArrayIn, p: ArrayIn, mu_n: ArrayIn, mu_p: ArrayIn, rH_n: FloatOrArray, rH_p: FloatOrArray
+) -> FloatArray:
     """Density a Hall measurement reports, 1/(q|R_H|), for electrons and holes together.
 
     Formula (low field, two carrier types):
@@ -73,4 +77,5 @@ def hall_density(n, p, mu_n, mu_p, rH_n, rH_p):
     numerator = rH_p * p * mu_p**2 - rH_n * n * mu_n**2
     coefficient = numerator / (ELEMENTARY_CHARGE * (n * mu_n + p * mu_p) ** 2)
     with np.errstate(divide="ignore"):
-        return 1.0 / (ELEMENTARY_CHARGE * np.abs(coefficient))
+        density: FloatArray = 1.0 / (ELEMENTARY_CHARGE * np.abs(coefficient))
+    return density

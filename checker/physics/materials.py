@@ -12,13 +12,21 @@ fields V/m, temperatures K, masses in units of the free electron mass m0.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any, Protocol, TypeAlias
 
 import numpy as np
 
 from ..errors import MissingParameterError, UnknownDopantError
+from .arrays import ArrayIn, FloatArray, FloatOrArray
 from .constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE, PLANCK, VACUUM_PERMITTIVITY
 
 T_REF = 300.0
+
+
+class MobilityModel(Protocol):
+    """A low-field mobility model: mu(N_ionized in m^-3, T in K) in m^2/(V s), broadcasting."""
+
+    def __call__(self, N: ArrayIn, T: ArrayIn) -> FloatArray: ...
 
 
 @dataclass(frozen=True)
@@ -48,9 +56,10 @@ class VarshniGap:
     beta: float
     provenance: Provenance
 
-    def __call__(self, T):
+    def __call__(self, T: ArrayIn) -> FloatArray:
         T = np.asarray(T, dtype=float)
-        return self.Eg0 - self.alpha * T * T / (T + self.beta)
+        gap: FloatArray = self.Eg0 - self.alpha * T * T / (T + self.beta)
+        return gap
 
 
 @dataclass(frozen=True)
@@ -68,7 +77,7 @@ class PowerLawDOS:
     exponent: float
     provenance: Provenance
 
-    def __call__(self, T):
+    def __call__(self, T: ArrayIn) -> FloatArray:
         return self.N300 * (np.asarray(T, dtype=float) / T_REF) ** self.exponent
 
 
@@ -86,14 +95,17 @@ class MassPolynomialDOS:
     to 500 K, after M. A. Green, J. Appl. Phys. 67, 2944 (1990)).
     """
 
-    coefficients: tuple
+    coefficients: tuple[float, ...]
     T_fit: float
     provenance: Provenance
 
-    def __call__(self, T):
+    def __call__(self, T: ArrayIn) -> FloatArray:
         T = np.asarray(T, dtype=float)
         mass_term = np.polynomial.polynomial.polyval(np.minimum(T, self.T_fit), self.coefficients)
-        return 2.0 * (2 * np.pi * ELECTRON_MASS * BOLTZMANN * T / PLANCK**2) ** 1.5 * mass_term
+        density: FloatArray = (
+            2.0 * (2 * np.pi * ELECTRON_MASS * BOLTZMANN * T / PLANCK**2) ** 1.5 * mass_term
+        )
+        return density
 
 
 @dataclass(frozen=True)
@@ -112,7 +124,7 @@ class AltermattLowering:
     N_ref: float
     c: float
 
-    def __call__(self, N):
+    def __call__(self, N: ArrayIn) -> FloatArray:
         return 1.0 / (1.0 + (np.asarray(N, dtype=float) / self.N_ref) ** self.c)
 
 
@@ -131,8 +143,14 @@ class PearsonBardeenLowering:
     alpha: float
     E0: float
 
-    def __call__(self, N):
-        return np.maximum(1.0 - self.alpha * np.cbrt(np.asarray(N, dtype=float)) / self.E0, 0.0)
+    def __call__(self, N: ArrayIn) -> FloatArray:
+        factor: FloatArray = np.maximum(
+            1.0 - self.alpha * np.cbrt(np.asarray(N, dtype=float)) / self.E0, 0.0
+        )
+        return factor
+
+
+Lowering: TypeAlias = AltermattLowering | PearsonBardeenLowering  # N -> E(N)/E_0
 
 
 @dataclass(frozen=True)
@@ -151,7 +169,7 @@ class BoundShare:
     N_b: float
     d: float
 
-    def log_shares(self, N):
+    def log_shares(self, N: ArrayIn) -> tuple[FloatArray, FloatArray]:
         """(ln b, ln(1 - b)) without cancellation."""
         x = self.d * (np.log(np.maximum(np.asarray(N, dtype=float), 1e-300)) - np.log(self.N_b))
         soft = np.logaddexp(0.0, x)
@@ -189,11 +207,11 @@ class Dopant:
     mott_density: float
     mott_estimated: bool
     provenance: Provenance
-    levels: tuple = ()
-    lowering: object = None
+    levels: tuple[DopantLevel, ...] = ()
+    lowering: Lowering | None = None
     bound_share: BoundShare | None = None
 
-    def bound_levels(self) -> tuple:
+    def bound_levels(self) -> tuple[DopantLevel, ...]:
         return self.levels or (DopantLevel(self.energy, self.degeneracy, 1.0),)
 
     def share_model(self) -> BoundShare:
@@ -202,7 +220,7 @@ class Dopant:
         three), carried over to this species' Mott density (an assumption, no source)."""
         return self.bound_share or BoundShare(1.6 * self.mott_density, 2.3)
 
-    def lowering_factor(self, same_type_total):
+    def lowering_factor(self, same_type_total: ArrayIn) -> FloatArray:
         """E(N)/E_0: the published lowering where the material file gives one, else 1
         (the band-tail share alone then carries the crossover to full ionization)."""
         if self.lowering is None:
@@ -210,7 +228,7 @@ class Dopant:
         return self.lowering(same_type_total)
 
 
-def edwards_sienko_mott_density(energy, eps_r):
+def edwards_sienko_mott_density(energy: ArrayIn, eps_r: float) -> FloatArray:
     """Mott critical density from the hydrogenic radius of a bound carrier.
 
     Formula: n_c = (0.26 / a)^3 with a = q^2 / (8 pi eps0 eps_r E_ion), the
@@ -256,10 +274,11 @@ class Masetti:
     gamma: float
     provenance: Provenance
 
-    def __call__(self, N, T):
-        N = np.maximum(np.asarray(N, dtype=float), 1.0)  # 1 m^-3 floor: N -> 0 limit
+    def __call__(self, N: ArrayIn, T: ArrayIn) -> FloatArray:
+        N = np.asarray(np.maximum(N, 1.0), dtype=float)  # 1 m^-3 floor: N -> 0 limit
         T = np.asarray(T, dtype=float)
         mu_max = self.mu_max * (T / T_REF) ** self.gamma
+        first: FloatOrArray
         if self.P_c > 0:
             first, mu_min2 = self.mu_min1 * np.exp(-self.P_c / N), 0.0
         else:
@@ -295,7 +314,7 @@ class Arora:
     a_alpha: float
     provenance: Provenance
 
-    def __call__(self, N, T):
+    def __call__(self, N: ArrayIn, T: ArrayIn) -> FloatArray:
         N = np.asarray(N, dtype=float)
         T = np.asarray(T, dtype=float)
         Tn = T / T_REF
@@ -328,12 +347,12 @@ class ResistivityStandardMobility:
     """
 
     form: str  # "boron" | "phosphorus"
-    coefficients: tuple
-    N_range: tuple  # m^-3
+    coefficients: tuple[float, ...]
+    N_range: tuple[float, float]  # m^-3
     provenance: Provenance
     every_dopant = True  # conductivity convention: sigma = q N mu at 23 degC
 
-    def resistivity_cm(self, N_cm3):
+    def resistivity_cm(self, N_cm3: FloatArray) -> FloatArray:
         """The standard's resistivity (Ohm cm) at N (cm^-3)."""
         if self.form == "boron":
             a, b, c, e = self.coefficients
@@ -343,10 +362,11 @@ class ResistivityStandardMobility:
         z = (c0 + y * (c1 + y * (c2 + y * c3))) / (1.0 + y * (d1 + y * (d2 + y * d3)))
         return k / N_cm3 * 10.0**z
 
-    def __call__(self, N, T=None):
+    def __call__(self, N: ArrayIn, T: ArrayIn | None = None) -> FloatArray:
         N_cm3 = np.clip(np.asarray(N, dtype=float), *self.N_range) * 1e-6
         rho_ohm_m = self.resistivity_cm(N_cm3) * 1e-2
-        return 1.0 / (ELEMENTARY_CHARGE * N_cm3 * 1e6 * rho_ohm_m)
+        mobility: FloatArray = 1.0 / (ELEMENTARY_CHARGE * N_cm3 * 1e6 * rho_ohm_m)
+        return mobility
 
 
 @dataclass(frozen=True)
@@ -363,16 +383,16 @@ class TemperatureRatio:
     (1982) (the temperature dependence; stated accuracy +-13 % over 250-500 K).
     """
 
-    base: object
-    shape: object
+    base: MobilityModel
+    shape: MobilityModel
     T0: float
     provenance: Provenance
 
     @property
-    def every_dopant(self):
+    def every_dopant(self) -> bool:
         return getattr(self.base, "every_dopant", False)
 
-    def __call__(self, N, T):
+    def __call__(self, N: ArrayIn, T: ArrayIn) -> FloatArray:
         T = np.asarray(T, dtype=float)
         T0 = np.full_like(T, self.T0)
         return self.base(N, T0) * self.shape(N, T) / self.shape(N, T0)
@@ -402,7 +422,7 @@ class CaugheyThomas:
     theta2: float
     provenance: Provenance
 
-    def __call__(self, N, T):
+    def __call__(self, N: ArrayIn, T: ArrayIn) -> FloatArray:
         N = np.asarray(N, dtype=float)
         Tn = np.asarray(T, dtype=float) / T_REF
         mu_max = self.mu_max * Tn ** (-self.theta1)
@@ -432,8 +452,8 @@ class Levinshtein:
     gamma: float
     provenance: Provenance
 
-    def __call__(self, N, T):
-        N = np.maximum(np.asarray(N, dtype=float), 1.0)
+    def __call__(self, N: ArrayIn, T: ArrayIn) -> FloatArray:
+        N = np.asarray(np.maximum(N, 1.0), dtype=float)  # 1 m^-3 floor: N -> 0 limit
         Tn = np.asarray(T, dtype=float) / T_REF
         B = (self.mu_min + self.mu_max * (self.N_ref / N) ** self.gamma) / (
             self.mu_max - self.mu_min
@@ -457,7 +477,7 @@ class SaturationVelocity:
     A: float
     provenance: Provenance
 
-    def __call__(self, T):
+    def __call__(self, T: ArrayIn) -> FloatArray:
         return self.v300 / ((1 - self.A) + self.A * np.asarray(T, dtype=float) / T_REF)
 
 
@@ -477,7 +497,7 @@ class PowerLawVelocity:
     power: float
     provenance: Provenance
 
-    def __call__(self, T):
+    def __call__(self, T: ArrayIn) -> FloatArray:
         return self.v300 * (np.asarray(T, dtype=float) / T_REF) ** self.power
 
 
@@ -497,7 +517,7 @@ class PowerLawExponent:
     power: float
     provenance: Provenance
 
-    def __call__(self, T):
+    def __call__(self, T: ArrayIn) -> FloatArray:
         return self.ref * np.asarray(T, dtype=float) ** self.power
 
 
@@ -519,10 +539,13 @@ class SlotboomNarrowing:
     C: float
     provenance: Provenance
 
-    def __call__(self, N_donor, N_acceptor):
-        N = np.maximum(np.asarray(N_donor, dtype=float) + np.asarray(N_acceptor, dtype=float), 1.0)
+    def __call__(self, N_donor: ArrayIn, N_acceptor: ArrayIn) -> FloatArray:
+        N: FloatArray = np.maximum(
+            np.asarray(N_donor, dtype=float) + np.asarray(N_acceptor, dtype=float), 1.0
+        )
         x = np.log(N / self.N0)
-        return self.V1 * (x + np.sqrt(x * x + self.C))
+        narrowing: FloatArray = self.V1 * (x + np.sqrt(x * x + self.C))
+        return narrowing
 
 
 @dataclass(frozen=True)
@@ -540,19 +563,20 @@ class CubeRootNarrowing:
     a_p: float
     provenance: Provenance
 
-    def __call__(self, N_donor, N_acceptor):
-        return self.a_n * np.cbrt(np.asarray(N_donor, dtype=float)) + self.a_p * np.cbrt(
-            np.asarray(N_acceptor, dtype=float)
-        )
+    def __call__(self, N_donor: ArrayIn, N_acceptor: ArrayIn) -> FloatArray:
+        narrowing: FloatArray = self.a_n * np.cbrt(
+            np.asarray(N_donor, dtype=float)
+        ) + self.a_p * np.cbrt(np.asarray(N_acceptor, dtype=float))
+        return narrowing
 
 
 @dataclass(frozen=True)
 class CarrierTransport:
     """Low-field and high-field transport models of one carrier type."""
 
-    mobility: dict  # model name -> callable(N_ionized, T) -> m^2/(V s)
+    mobility: dict[str, MobilityModel]  # model name -> callable(N_ionized, T) -> m^2/(V s)
     default_model: str
-    dopant_models: dict = field(default_factory=dict)  # species -> model name
+    dopant_models: dict[str, str] = field(default_factory=dict)  # species -> model name
     vsat: SaturationVelocity | PowerLawVelocity | None = None
     beta: PowerLawExponent | None = None
     thermal_mass: float | None = None  # m0 units (conductivity mass)
@@ -576,12 +600,12 @@ class CarrierTransport:
 
     def low_field(
         self,
-        N_ionized,
-        T,
+        N_ionized: ArrayIn,
+        T: ArrayIn,
         model: str | None = None,
         species: str | None = None,
         minority: bool = False,
-    ):
+    ) -> FloatArray:
         name = self.model_name(model, species, minority)
         try:
             return self.mobility[name](N_ionized, T)
@@ -602,17 +626,17 @@ class Material:
     Nc: PowerLawDOS | MassPolynomialDOS | None
     Nv: PowerLawDOS | MassPolynomialDOS | None
     eps_r: float | None
-    dopants: dict
+    dopants: dict[str, Dopant]
     electron: CarrierTransport | None
     hole: CarrierTransport | None
     narrowing: SlotboomNarrowing | CubeRootNarrowing | None = None
-    sources: dict = field(default_factory=dict)
+    sources: dict[str, str | None] = field(default_factory=dict)
     # published spread of n_i at 300 K (low, high) in m^-3, where modern values disagree
-    ni_published: tuple | None = None
+    ni_published: tuple[float, float] | None = None
     # measured Hall factor ranges: band -> (low, high, (T_low, T_high))
-    hall_factors: dict = field(default_factory=dict)
+    hall_factors: dict[str, tuple[float, float, tuple[float, float]]] = field(default_factory=dict)
 
-    def need(self, attribute: str, purpose: str):
+    def need(self, attribute: str, purpose: str) -> Any:
         """Return a parameter or raise a clear error naming what needs it."""
         value = getattr(self, attribute)
         if value is None:
