@@ -1,7 +1,8 @@
 """Write the JSON Schemas of regimecheck's input files from the readers' key tables:
 
-- checker/data/calculation.schema.json  (STRUCTURE_KEYS, STATED_KEYS, ASSUMPTIONS, ...
-  of checker/inputs/calculation_file.py, with the material form embedded)
+- checker/data/calculation.schema.json  (the structure and stated keys of the quantity
+  registry, checker/quantity_registry/registry.py; ASSUMPTIONS, ... of
+  checker/inputs/calculation_file.py; with the material form embedded)
 - checker/data/material.schema.json     (MATERIAL of checker/inputs/material_catalog.py)
 - checker/data/rule.schema.json         (RULE_FILE of checker/engine/rulebook.py)
 
@@ -25,6 +26,7 @@ from checker.inputs import calculation_file as cf  # noqa: E402
 from checker.inputs.material_catalog import MATERIAL  # noqa: E402
 from checker.inputs.quantities import DIMENSIONS, quantity_pattern  # noqa: E402
 from checker.physics.hall import SCATTERING_EXPONENTS  # noqa: E402
+from checker.quantity_registry.registry import QUANTITIES  # noqa: E402
 
 DATA = ROOT / "checker" / "data"
 SCHEMA_PATH = DATA / "calculation.schema.json"
@@ -56,11 +58,13 @@ def or_null(schema: dict) -> dict:
     return {"anyOf": [schema, {"type": "null"}]}
 
 
-def quantity(dimension: str) -> dict:
+def quantity(dimension: str, meaning: str = "") -> dict:
+    article = "an" if dimension[0] in "aeiou" else "a"
+    form = f"{article} {dimension} with its unit, e.g. '{DIMENSIONS[dimension][1]}'"
     return {
         "type": "string",
         "pattern": quantity_pattern(True),
-        "description": f"a {dimension} with its unit, e.g. '{DIMENSIONS[dimension][1]}'",
+        "description": f"{meaning}: {form}" if meaning else form,
     }
 
 
@@ -93,12 +97,22 @@ def sweep(dimension, default, end) -> dict:
     }
 
 
-def section(keys: dict) -> dict:
-    properties = {k: quantity(d) for k, (_, d) in keys.items() if k != "dimensionality"}
-    if "dimensionality" in keys:
-        properties["dimensionality"] = {
-            "anyOf": [{"enum": [1, 2, 3]}, {"type": "string", "pattern": r"^\s*[123]\s*$"}]
-        }
+def section(name: str) -> dict:
+    """A calculation section (structure, stated): the registry's quantities given there,
+    each described by its meaning (per carrier: the carrier named)."""
+    properties = {}
+    for q in QUANTITIES:
+        if q.section != name:
+            continue
+        for key, (carrier, _) in zip(q.keys, q.carriers(), strict=True):
+            meaning = f"{q.meaning} ({carrier.plural})" if carrier else q.meaning
+            if key == "dimensionality":  # a bare number, not a quantity with a unit
+                properties[key] = {
+                    "anyOf": [{"enum": [1, 2, 3]}, {"type": "string", "pattern": r"^\s*[123]\s*$"}],
+                    "description": meaning,
+                }
+            else:
+                properties[key] = quantity(q.kind, meaning)
     return or_null({"type": "object", "additionalProperties": False, "properties": properties})
 
 
@@ -146,8 +160,8 @@ def build() -> dict:
                     "properties": {"donors": species, "acceptors": species},
                 }
             ),
-            "structure": section(cf.STRUCTURE_KEYS),
-            "stated": section(cf.STATED_KEYS),
+            "structure": section("structure"),
+            "stated": section("stated"),
             "assumes": text_list(
                 {
                     "type": "string",

@@ -1,8 +1,8 @@
 """What a check reports: findings, their corrections, and the assumptions formulas make.
 
 Carriers are coded "n"/"p" inside the engine (rule names ``*_n``, ``*_p``) and named
-"electrons"/"holes" in findings; ``carrier_word`` and ``carrier_code`` convert, from the
-one table in :mod:`checker.engine.vocabulary`.
+"electrons"/"holes" in findings; ``carrier_word`` and ``carrier_code`` convert, by the
+one enum :class:`checker.vocabulary_words.Carrier`.
 """
 
 from __future__ import annotations
@@ -11,18 +11,18 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .number_text import display, error_text
-from .vocabulary import CARRIER_WORDS
+from ..quantity_registry.number_text import display, error_text
+from ..vocabulary_words import Carrier
 
 
 def carrier_word(code: str | None) -> str | None:
     """'n' -> 'electrons', 'p' -> 'holes', None (the conductor as a whole) -> None."""
-    return CARRIER_WORDS[code][0] if code else None
+    return Carrier(code).plural if code else None
 
 
-def carrier_code(word: str | None) -> str | None:
-    """'electrons' -> 'n', 'holes' -> 'p', anything else -> None."""
-    return next((code for code, words in CARRIER_WORDS.items() if words[0] == word), None)
+def carrier_code(word: str | None) -> Carrier | None:
+    """'electrons' -> Carrier.N (equal to 'n'), 'holes' -> Carrier.P, anything else -> None."""
+    return Carrier.from_plural(word)
 
 
 @dataclass

@@ -14,7 +14,7 @@ from pathlib import Path
 
 from ..inputs.config import Config, check_rule_ids
 from ..inputs.sources import read_input
-from ..vocabulary_words import SEVERITIES, SEVERITY_RANK
+from ..vocabulary_words import Severity
 from .regime import rulebook
 from .regime.points import check_points
 from .waivers import apply_waivers
@@ -31,12 +31,11 @@ class RunResult:
     def active_findings(self):
         return [f for r in self.reports for f in r.findings if not f.waived]
 
-    def worst(self) -> str | None:
-        ranks = [SEVERITY_RANK[f.severity] for f in self.active_findings()]
-        return SEVERITIES[max(ranks)] if ranks else None
+    def worst(self) -> Severity | None:
+        return Severity.worst(f.severity for f in self.active_findings())
 
     def counts(self) -> dict:
-        out = {level: 0 for level in SEVERITIES}
+        out = {level.value: 0 for level in Severity}
         for finding in self.active_findings():
             out[finding.severity] += 1
         out["waived"] = sum(1 for r in self.reports for f in r.findings if f.waived)
@@ -109,7 +108,7 @@ def check_calculations(
     waivers = apply_waivers(rules, calculations, [r.findings for r in ordered], config)
     for i, report in enumerate(ordered):
         report.findings = sorted(
-            report.findings, key=lambda f: (-SEVERITY_RANK[f.severity], f.rule)
+            report.findings, key=lambda f: (-Severity(f.severity).rank, f.rule)
         )
         report.notes += waivers.notes[i]
     errors = list(input_errors) + waivers.errors + errors

@@ -33,6 +33,7 @@ import yaml
 
 from ..errors import InputError
 from ..physics.materials import Material
+from ..quantity_registry.registry import QUANTITIES, file_keys
 from ..vocabulary_words import ASSUMPTIONS
 from .material_catalog import resolve_material
 from .quantities import check_plausible, parse_quantity, parse_temperature, read_number
@@ -52,38 +53,9 @@ TOP_KEYS = (
 )
 DOPING_KEYS = ("donors", "acceptors")
 OPTION_KEYS = ("band_gap_narrowing", "hall_scattering")
-# YAML key -> (engine quantity name, dimension)
-STRUCTURE_KEYS = {
-    "dimensionality": ("dim", "dimensionless"),
-    "length": ("L", "length"),
-    "cross_section": ("A", "area"),
-    "thickness": ("thickness", "length"),
-    "width": ("width", "length"),
-    "field": ("field", "field"),
-    "voltage": ("voltage", "voltage"),
-}
-STATED_KEYS = {
-    "electron_density": ("stated_dens_n", "density"),
-    "hole_density": ("stated_dens_p", "density"),
-    "ef_minus_ec": ("stated_ef_minus_ec", "energy"),
-    "ef_minus_ev": ("stated_ef_minus_ev", "energy"),
-    "electron_mobility": ("stated_mu_n", "mobility"),
-    "hole_mobility": ("stated_mu_p", "mobility"),
-    "electron_diffusivity": ("stated_D_n", "diffusivity"),
-    "hole_diffusivity": ("stated_D_p", "diffusivity"),
-    "electron_velocity": ("stated_v_n", "velocity"),
-    "hole_velocity": ("stated_v_p", "velocity"),
-    "conductivity": ("stated_sigma", "conductivity"),
-    "resistivity": ("stated_rho", "resistivity"),
-    "sheet_resistance": ("stated_Rsh", "sheet resistance"),
-    "resistance": ("stated_R", "resistance"),
-    "thermal_voltage": ("stated_kT_q", "voltage"),
-    "intrinsic_density": ("stated_ni", "density"),
-    "conduction_dos": ("stated_Nband_n", "density"),
-    "valence_dos": ("stated_Nband_p", "density"),
-    "mean_free_path": ("stated_lambda", "length"),
-    "hall_density": ("stated_hall", "density"),
-}
+# YAML key -> (engine quantity name, dimension read as): views of the quantity registry
+STRUCTURE_KEYS = file_keys("structure")
+STATED_KEYS = file_keys("stated")
 # A few common spellings of the trade words an author may declare (ASSUMPTIONS).
 ASSUMPTION_SPELLINGS = {
     "nondegenerate": "non-degenerate",
@@ -96,7 +68,8 @@ ASSUMPTION_SPELLINGS = {
     "drift-diffusion": "diffusive",
     "ohmic": "low-field",
 }
-SIGNED_KEYS = ("ef_minus_ec", "ef_minus_ev")  # the only quantities that may be negative
+# the only quantities that may be negative
+SIGNED_KEYS = tuple(key for q in QUANTITIES if q.signed for key in q.keys)
 
 
 @dataclass

@@ -8,11 +8,12 @@ from __future__ import annotations
 
 import json
 
-from ..engine.number_text import display
-from ..engine.vocabulary import DISPLAY_UNITS
+from ..quantity_registry.display_units import DISPLAY_UNITS
+from ..quantity_registry.number_text import display
+from ..quantity_registry.summary_fields import CHECK_ROWS
+from ..vocabulary_words import Severity
 from . import DISCLAIMER
 from .safe_text import visible, visible_data
-from .state_report import ROWS
 from .sweep_text import axis_text, axis_value, boundary_lines, finding_message, worst_point
 
 JSON_FORMAT = "regimecheck-report/1"
@@ -25,31 +26,12 @@ def doping_text(donors: dict, acceptors: dict) -> str:
     return ", ".join(parts) or "undoped"
 
 
-# the state table of a check: a subset of the `state` command's rows
-STATE_ROWS = [
-    row
-    for row in ROWS
-    if row[0]
-    in (
-        "regime",
-        "EF_minus_EC_eV",
-        "eta_n",
-        "eta_p",
-        "n_cm3",
-        "p_cm3",
-        "donors_ionized_fraction",
-        "acceptors_ionized_fraction",
-        "ni_cm3",
-    )
-]
-
-
 def summary_line(result, exit_code=None) -> str:
     counts = result.counts()
     files = len({r.calc.source for r in result.reports})
     parts = [
         f"{counts[level]} {level}{'s' if counts[level] != 1 and level != 'info' else ''}"
-        for level in ("error", "warning", "info")
+        for level in reversed(Severity)
     ]
     text = (
         f"{len(result.reports)} calculation(s) in {files} file(s) checked: "
@@ -127,7 +109,7 @@ def render_console(result, console=None, stream=None) -> None:
                 indent=2,
             )
         else:
-            for key, label, fmt in STATE_ROWS:
+            for key, label, fmt in CHECK_ROWS:
                 out.append(f"  {label:<24}", style="dim")
                 out.append(f"{fmt.format(report.state[key]):>24}\n")
         for r in report.formulas:

@@ -22,8 +22,8 @@ from urllib.parse import quote
 from xml.etree import ElementTree as ET
 
 from .. import __version__
-from ..engine.number_text import display
-from ..vocabulary_words import SEVERITY_RANK
+from ..quantity_registry.number_text import display
+from ..vocabulary_words import Severity
 from . import DISCLAIMER
 from .safe_text import visible, visible_data
 from .sweep_text import finding_message
@@ -170,7 +170,7 @@ def render_junit(result, exit_code: int, fail_on: str) -> str:
     properties = ET.SubElement(root, "properties")
     ET.SubElement(properties, "property", name="notice", value=DISCLAIMER)
     totals = {"tests": 0, "failures": 0, "errors": 0, "skipped": 0}
-    threshold = SEVERITY_RANK[fail_on]
+    threshold = Severity(fail_on).rank
     for source in list(suites) + [f for f in errors_by_file if f not in suites]:
         suite = ET.SubElement(root, "testsuite", name=source)
         counts = {"tests": 0, "failures": 0, "errors": 0, "skipped": 0}
@@ -193,7 +193,7 @@ def render_junit(result, exit_code: int, fail_on: str) -> str:
                     counts["errors"] += 1
                     continue
                 active = [f for f in hits if not f.waived]
-                failing = [f for f in active if SEVERITY_RANK[f.severity] >= threshold]
+                failing = [f for f in active if Severity(f.severity).rank >= threshold]
                 if failing:
                     text = "\n".join(f"{f.file}:{f.line}: {_finding_text(f)}" for f in failing)
                     ET.SubElement(

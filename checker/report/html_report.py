@@ -13,9 +13,10 @@ from __future__ import annotations
 import html
 import re
 
-from ..engine.number_text import display
+from ..quantity_registry.number_text import display
+from ..quantity_registry.summary_fields import CHECK_ROWS
 from . import DISCLAIMER
-from .check_report import STATE_ROWS, formula_lines, summary_line
+from .check_report import formula_lines, summary_line
 from .safe_text import visible
 from .sweep_text import axis_text, finding_message
 
@@ -126,7 +127,7 @@ def _state_table(report) -> str:
     rows = "".join(
         f'<tr><th>{_text(label)}</th><td class="num">'
         f"{_text(fmt.format(report.state[key]))}</td></tr>"
-        for key, label, fmt in STATE_ROWS
+        for key, label, fmt in CHECK_ROWS
     )
     return f'<table class="state"><tbody>{rows}</tbody></table>'
 

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import re
 
-from ..engine.number_text import display
+from ..quantity_registry.number_text import display
 from . import DISCLAIMER
 from .check_report import doping_text, formula_lines, summary_line
 from .safe_text import visible

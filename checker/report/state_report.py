@@ -4,27 +4,9 @@ from __future__ import annotations
 
 import json
 
+from ..quantity_registry.summary_fields import STATE_ROWS as ROWS  # (key, label, format)
 from . import DISCLAIMER
 from .safe_text import visible, visible_data
-
-# (key of engine.regime.trade_summary, label, format)
-ROWS = [
-    ("regime", "regime", "{}"),
-    ("EF_minus_EC_eV", "E_F - E_C", "{:+.4f} eV"),
-    ("EF_minus_EV_eV", "E_F - E_V", "{:+.4f} eV"),
-    ("eta_n", "η_n = (E_F - E_C)/kT", "{:+.3f}"),
-    ("eta_p", "η_p = (E_V - E_F)/kT", "{:+.3f}"),
-    ("n_cm3", "n", "{:.4g} cm^-3"),
-    ("p_cm3", "p", "{:.4g} cm^-3"),
-    ("donors_ionized_fraction", "donors ionized", "{:.1%}"),
-    ("acceptors_ionized_fraction", "acceptors ionized", "{:.1%}"),
-    ("ni_cm3", "n_i", "{:.4g} cm^-3"),
-    ("band_gap_eV", "E_g", "{:.4f} eV"),
-    ("Nc_cm3", "N_c", "{:.4g} cm^-3"),
-    ("Nv_cm3", "N_v", "{:.4g} cm^-3"),
-    ("above_mott_density", "above Mott density", "{}"),
-    ("neutrality_residual", "neutrality residual", "{:.1e}"),
-]
 
 
 def render_console(entries, errors, console) -> None:

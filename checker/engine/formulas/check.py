@@ -29,12 +29,13 @@ import numpy as np
 
 from ...errors import InputError
 from ...physics.constants import ELECTRON_MASS, PLANCK
+from ...quantity_registry.number_text import display, error_text
+from ...quantity_registry.registry import formula_symbols, registered
 from ..expressions import dimension_check as expression_dimensions
 from ..expressions import dimensions as dm
 from ..expressions.parser import MAX_LENGTH, parse, rename, to_numpy, to_text
 from ..expressions.tree import Node, binary, fold, num
 from ..findings import Correction, Embodied, Finding, carrier_code
-from ..number_text import display, error_text
 from ..regime.rulebook import PLACEHOLDER
 from .match import Match, analyse
 from .relations import world
@@ -66,48 +67,18 @@ _DISPLAY = {
     dm.RESISTANCE * dm.AREA: "ohm*cm^2",
     dm.TIME: "ns",
 }
-# formula symbol -> quantity of the solved state (SI)
+# formula symbol -> quantity of the solved state (SI), and those the reader alone keeps
+# (a structure key no rule reads: the width)
 _FROM_STATE = {
-    "T": "T",
-    "k": "k",
-    "q": "q",
-    "eta_n": "eta_n",
-    "eta_p": "eta_p",
-    "E_g": "Eg",
-    "n": "dens_n",
-    "p": "dens_p",
-    "N_c": "Nband_n",
-    "N_v": "Nband_p",
-    "n_i": "ni",
-    "N_D": "N_n",
-    "N_A": "N_p",
-    "N_D_plus": "Nion_n",
-    "N_A_minus": "Nion_p",
-    "f_D": "f_n",
-    "f_A": "f_p",
-    "g_D": "gdeg_n",
-    "g_A": "gdeg_p",
-    "dE_D": "Eion_n",
-    "dE_A": "Eion_p",
-    "mu_n": "used_mu_n",
-    "mu_p": "used_mu_p",
-    "v_sat_n": "vsat_n",
-    "v_sat_p": "vsat_p",
-    "beta_n": "beta_n",
-    "beta_p": "beta_p",
-    "lambda_n": "lambda_n",
-    "lambda_p": "lambda_p",
-    "E": "field",
-    "sigma": "sigma",
-    "rho": "rho",
-    "L": "L",
-    "A": "A",
-    "t": "thickness",
+    symbol: name for symbol, name in formula_symbols().items() if registered(name).in_rules
+}
+_FROM_INPUTS = {
+    symbol: name for symbol, name in formula_symbols().items() if not registered(name).in_rules
 }
 # symbols a calculation gives no value for (their formulas are dimension-checked only)
 _NOT_STATED = ("tau_n", "tau_p")
 # the solve is of a bulk (3D) crystal: its densities are not sheet or line densities
-_BULK_ONLY = ("n", "p", "N_c", "N_v", "n_i", "N_D", "N_A", "N_D_plus", "N_A_minus", "sigma", "rho")
+_BULK_ONLY = tuple(symbol for symbol, name in _FROM_STATE.items() if registered(name).bulk)
 
 
 # a stated formula whose parts do not fit together (the shared walker's exception)
@@ -263,7 +234,10 @@ def operating_values(values: dict, calculations) -> list:
     known["E_v"] = np.zeros(count)
     known["E_c"] = np.asarray(values["Eg"], dtype=float)
     known["E_F"] = known["E_c"] + values["eta_n"] * kT
-    known["W"] = np.array([c.structure.get("width", np.nan) for c in calculations], dtype=float)
+    for symbol, name in _FROM_INPUTS.items():
+        known[symbol] = np.array(
+            [c.structure.get(name, c.stated.get(name, np.nan)) for c in calculations], dtype=float
+        )
     known.update(
         {
             "h": np.full(count, PLANCK),

@@ -26,9 +26,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ...quantity_registry.number_text import display
+from ...vocabulary_words import carrier_message_words
 from ..findings import Correction, Finding, carrier_word
-from ..number_text import display
-from ..vocabulary import CARRIER_WORDS, carrier_names
+from ..vocabulary import carrier_names
 from .rulebook import PLACEHOLDER
 
 
@@ -240,7 +241,7 @@ def _add_findings(ruled, cells, fired, findings):
         key: (values[c], unit) if unit == "text" else (_cells_array(c, x, values, count), unit)
         for key, (c, unit) in rule.show.items()
     }
-    words = CARRIER_WORDS.get(x, ("carriers", "dopants", "carrier"))
+    words = carrier_message_words(x)
     for i in fired:
         owner = int(cells.owner[i])
         calc = cells.calculations[owner]

@@ -2,8 +2,8 @@
 
 Calculations that share a material, dopant species, dimensionality and
 options are solved together in one vectorized call; the results are placed in
-one array per quantity name (see :mod:`checker.engine.vocabulary`), indexed by
-calculation.  A group that fails (e.g. a custom material lacking a parameter)
+one array per quantity name (the registry's, :mod:`checker.quantity_registry.registry`),
+indexed by calculation.  A group that fails (e.g. a custom material lacking a parameter)
 is retried one calculation at a time so that only the bad ones are lost.
 """
 
@@ -14,17 +14,16 @@ import numpy as np
 from ...errors import MissingParameterError, RegimecheckError
 from ...physics import carriers, equilibrium, hall
 from ...physics.constants import ELEMENTARY_CHARGE
-from ..vocabulary import CONSTANTS, TEXT, concrete_names
+from ...quantity_registry.registry import QUANTITIES, Source, value_names
+from ...vocabulary_words import Carrier
 
-_STATED_COMMON = (
-    "stated_kT_q",
-    "stated_ni",
-    "stated_Rsh",
-    "stated_R",
-    "stated_lambda",
-    "stated_hall",
+# the stated numbers laid out as given (conductivity and resistivity then complete each other)
+_STATED = tuple(
+    name for q in QUANTITIES if q.source is Source.STATED and q.in_rules for _, name in q.carriers()
 )
-_STATED_CARRIER = ("stated_dens", "stated_mu", "stated_D", "stated_v")
+# a number stated for one carrier says the calculation uses that carrier (the band's
+# density of states does not)
+_CARRIER_SPECIFIC = ("stated_dens", "stated_mu", "stated_D", "stated_v")
 
 
 def _dominant(species: dict):
@@ -45,9 +44,12 @@ def _group_key(calc):
 
 def _unknown(count) -> dict:
     """Every quantity over ``count`` points, unknown (NaN, or empty text) until solved."""
-    values = {name: np.full(count, np.nan) for name in concrete_names()}
-    values.update({name: np.full(count, value) for name, value in CONSTANTS.items()})
-    values.update({name: np.full(count, "", dtype=object) for name in TEXT})
+    values = {name: np.full(count, np.nan) for name in value_names()}
+    for q in QUANTITIES:
+        if q.source is Source.CONSTANT:
+            values[q.name] = np.full(count, q.value)
+        elif q.source is Source.TEXT:
+            values[q.name] = np.full(count, "", dtype=object)
     return values
 
 
@@ -60,7 +62,7 @@ def solve_sweep(calc, T, donors, acceptors) -> tuple[dict, str | None]:
         values[name] = (
             np.broadcast_to(array, (count,)).copy() if np.ndim(array) else np.full(count, array)
         )
-    _fill_inputs([calc], values, count=count)
+    fill_inputs([calc], values, count=count)
     return values, skipped
 
 
@@ -89,7 +91,7 @@ def solve_all(calculations) -> tuple[dict, dict, dict]:
             continue
         if skipped:
             notes.update({index: skipped for index in members})
-    _fill_inputs(calculations, values)
+    fill_inputs(calculations, values)
     return values, errors, notes
 
 
@@ -231,8 +233,8 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
     # electrons count as the majority on a tie (intrinsic material: n = p to rounding)
     put["maj_n"] = (state.n >= state.p * (1 - 1e-9)).astype(float)
     put["maj_p"] = 1.0 - put["maj_n"]
-    for x, band in (("n", "electron"), ("p", "hole")):
-        low, high, (t_low, t_high) = material.hall_factors.get(band, (np.nan, np.nan, (0, 0)))
+    for x in Carrier:
+        low, high, (t_low, t_high) = material.hall_factors.get(x.singular, (np.nan, np.nan, (0, 0)))
         inside = (T >= t_low) & (T <= t_high)
         put[f"rH_lo_{x}"] = np.where(inside, low, np.nan)
         put[f"rH_hi_{x}"] = np.where(inside, high, np.nan)
@@ -251,9 +253,10 @@ def _ni_spread(material, T, ni, narrowing_on):
     return np.minimum(ni, low * scale), np.maximum(ni, high * scale)
 
 
-def _fill_inputs(calculations, values, count=None):
-    """Structure and stated numbers, and what depends on them (vectorized after the fill).
-    ``count``: the points of a sweep, which all share the single calculation given."""
+def fill_inputs(calculations, values, count=None):
+    """Structure and stated numbers, and what depends on them (vectorized after the fill),
+    written into ``values``.  ``count``: the points of a sweep, which all share the single
+    calculation given."""
     size = len(calculations) if count is None else count
 
     def column(getter):
@@ -282,14 +285,11 @@ def _fill_inputs(calculations, values, count=None):
         field,
         column(lambda c: c.structure.get("voltage", np.nan)) / values["L"],
     )
-    for name in _STATED_COMMON:
+    for name in _STATED:
         values[name] = stated(name)
-    sigma, rho = stated("stated_sigma"), stated("stated_rho")
+    sigma, rho = values["stated_sigma"], values["stated_rho"]
     values["stated_sigma"] = np.where(np.isfinite(sigma), sigma, 1.0 / rho)
     values["stated_rho"] = np.where(np.isfinite(rho), rho, 1.0 / sigma)
-    for x in ("n", "p"):
-        for stem in _STATED_CARRIER + ("stated_Nband",):
-            values[f"{stem}_{x}"] = stated(f"{stem}_{x}")
     ec, ev = stated("stated_ef_minus_ec"), stated("stated_ef_minus_ev")
     kT, Eg = values["kT"], values["Eg"]
     values["stated_eta_n"] = np.where(np.isfinite(ec), ec, ev - Eg) / kT
@@ -298,7 +298,7 @@ def _fill_inputs(calculations, values, count=None):
     for x in ("n", "p"):
         values[f"stated_ef_{x}"] = values[f"stated_eta_{x}"] * kT
         specific[x] = np.zeros(size, dtype=bool)
-        for stem in _STATED_CARRIER:
+        for stem in _CARRIER_SPECIFIC:
             specific[x] |= np.isfinite(values[f"{stem}_{x}"])
     none = ~(specific["n"] | specific["p"])
     for x in ("n", "p"):

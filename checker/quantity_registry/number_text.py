@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .vocabulary import DISPLAY_UNITS
+from .display_units import DISPLAY_UNITS
 
 
 def display(value, unit: str, digits: int = 4) -> str:

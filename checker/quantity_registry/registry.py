@@ -1,0 +1,361 @@
+"""Every quantity regimecheck knows, once: its name, meaning, display unit (which fixes its
+dimension), how it is produced, whether it exists per carrier, where a calculation file
+may state it, and its trade symbols in stated formulas.
+
+The rule vocabulary (engine/vocabulary.py), the ``structure:`` and ``stated:`` keys of
+calculation files (inputs/calculation_file.py, and so the JSON Schema), the formula
+symbols' values at the operating point (engine/formulas/check.py) and the trade summary
+(summary_fields.py) are views of this table; tests check that the solve produces exactly
+the quantities registered here.
+
+Names ending in ``_x`` exist per carrier: ``dens_x`` stands for ``dens_n`` (electrons) and
+``dens_p`` (holes); a rule reads it per carrier, also as ``dens_o`` (the other carrier).
+Per-carrier keys and symbols are pairs, electrons first.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from enum import StrEnum
+
+from ..physics.constants import BOLTZMANN, ELEMENTARY_CHARGE
+from ..vocabulary_words import Carrier
+from .display_units import BULK_UNITS, DISPLAY_UNITS, UNIT_KINDS
+
+
+class Source(StrEnum):
+    """Where a quantity's value comes from."""
+
+    SOLVE = "solve"  # the Fermi–Dirac solve and the material's models
+    INPUTS = "inputs"  # the calculation's structure (and what it implies)
+    STATED = "stated"  # a number the author states
+    DERIVED = "derived"  # computed from the above after the solve
+    CONSTANT = "constant"  # a physical constant
+    TEXT = "text"  # words, not numbers (model names, the regime)
+
+
+TEXT_UNIT = "text"  # the "unit" of a word-valued quantity
+
+
+@dataclass(frozen=True)
+class Quantity:
+    name: str  # engine name; "<stem>_x" per carrier
+    unit: str  # display unit (DISPLAY_UNITS); TEXT_UNIT for words; SI for a constant
+    meaning: str  # as rule authors read it (regimecheck explain)
+    source: Source
+    section: str | None = None  # "stated" or "structure": where a calculation gives it
+    keys: tuple = ()  # its YAML key(s) in that section (electrons', holes')
+    symbols: tuple = ()  # its trade symbol(s) in stated formulas (electrons', holes')
+    in_rules: bool = True  # False: only the reader (or the state command) uses it
+    signed: bool = False  # a stated value may be negative
+    value: float | None = None  # a constant's value (SI)
+
+    @property
+    def per_carrier(self) -> bool:
+        return self.name.endswith("_x")
+
+    @property
+    def kind(self) -> str:
+        """The dimension a calculation file's text is read in (inputs/quantities)."""
+        return UNIT_KINDS[self.unit]
+
+    def concrete(self, carrier: Carrier | None = None) -> str:
+        """The name for ``carrier`` (``dens_x`` -> ``dens_n``); the name itself if common."""
+        return f"{self.name[:-2]}_{carrier}" if self.per_carrier else self.name
+
+    def carriers(self) -> tuple:
+        """(carrier or None, concrete name) of each form the values carry."""
+        if self.per_carrier:
+            return tuple((c, self.concrete(c)) for c in Carrier)
+        return ((None, self.name),)
+
+    @property
+    def bulk(self) -> bool:
+        """A value of the 3D solve that is no sheet or line quantity."""
+        return self.unit in BULK_UNITS
+
+
+def _q(name, unit, meaning, source=Source.SOLVE, **more) -> Quantity:
+    return Quantity(name, unit, meaning, source, **more)
+
+
+def _stated(name, unit, meaning, keys, **more) -> Quantity:
+    return Quantity(name, unit, meaning, Source.STATED, section="stated", keys=keys, **more)
+
+
+def _structure(name, unit, meaning, key, source=Source.INPUTS, **more) -> Quantity:
+    return Quantity(name, unit, meaning, source, section="structure", keys=(key,), **more)
+
+
+_D, _S, _T = Source.DERIVED, Source.SOLVE, Source.TEXT
+
+QUANTITIES = (
+    # ---- the solve and the material's models, one value per point --------------------------
+    _q("T", "K", "temperature", symbols=("T",)),
+    _q("kT", "eV", "thermal energy k*T (J inside)"),
+    _q("kT_q", "V", "thermal voltage k*T/q"),
+    _q(
+        "Eg",
+        "eV",
+        "band gap at T (J inside; narrowed when band_gap_narrowing is on)",
+        symbols=("E_g",),
+    ),
+    _q("ni", "cm^-3", "intrinsic density sqrt(N_c N_v) exp(-E_g/2kT)", symbols=("n_i",)),
+    _q(
+        "ni_lo",
+        "cm^-3",
+        "lowest published n_i at T (the material's 300 K spread carried to T "
+        "by the model; the model value where no spread is tabulated)",
+    ),
+    _q("ni_hi", "cm^-3", "highest published n_i at T (as ni_lo)"),
+    _q("Nnet", "cm^-3", "net doping |N_D - N_A|"),
+    _q("Ntot", "cm^-3", "total dopant density N_D + N_A"),
+    _q("T_onset", "K", "temperature where n_i reaches 10 % of the net doping"),
+    _q("dEg_bgn", "eV", "band-gap narrowing of the material's model at this doping (J inside)"),
+    _q("bgn_on", "1", "1 where band-gap narrowing was applied in the solve"),
+    _q("T_lo", "K", "lowest temperature inside every model's fitted range"),
+    _q("T_hi", "K", "highest temperature inside every model's fitted range"),
+    _q("N_lo", "cm^-3", "lowest doping inside the mobility models' fitted range"),
+    _q("N_hi", "cm^-3", "highest doping inside the mobility models' fitted range"),
+    _structure(
+        "dim", "1", "dimensionality of the conductor (3, 2 or 1)", "dimensionality", source=_S
+    ),
+    _q(
+        "residual",
+        "1",
+        "relative charge-neutrality residual of the solve (the state command shows it)",
+        in_rules=False,
+    ),
+    # ---- the solve, per carrier ---------------------------------------------------------------
+    _q(
+        "eta_x",
+        "1",
+        "reduced Fermi level of the carrier: (E_F - E_C)/kT or (E_V - E_F)/kT",
+        symbols=("eta_n", "eta_p"),
+    ),
+    _q("dens_x", "cm^-3", "carrier density (Fermi–Dirac solve)", symbols=("n", "p")),
+    _q(
+        "Nband_x",
+        "cm^-3",
+        "effective density of states of the carrier's band",
+        symbols=("N_c", "N_v"),
+    ),
+    _q(
+        "N_x",
+        "cm^-3",
+        "dopants that give this carrier (donors for electrons)",
+        symbols=("N_D", "N_A"),
+    ),
+    _q("Ncomp_x", "cm^-3", "dopants of the other type (compensating)"),
+    _q("Nion_x", "cm^-3", "ionized density of N_x", symbols=("N_D_plus", "N_A_minus")),
+    _q("f_x", "1", "ionized fraction of N_x (1 where there are none)", symbols=("f_D", "f_A")),
+    _q("mott_x", "cm^-3", "lowest Mott density among the species of N_x (inf: none)"),
+    _q(
+        "Eion_x",
+        "eV",
+        "ionization energy of the main species of N_x (J inside)",
+        symbols=("dE_D", "dE_A"),
+    ),
+    _q(
+        "gdeg_x",
+        "1",
+        "ground-state degeneracy factor of the main species of N_x",
+        symbols=("g_D", "g_A"),
+    ),
+    _q("rH_lo_x", "1", "lowest measured Hall factor of the carrier at T (NaN: none tabulated)"),
+    _q("rH_hi_x", "1", "highest measured Hall factor of the carrier at T (NaN: none tabulated)"),
+    _q("metal_x", "1", "1 where N_x is above its Mott density"),
+    _q("maj_x", "1", "1 where this carrier is the majority"),
+    _q("mu_x", "cm^2/(V*s)", "low-field mobility of the material model at N_D + N_A"),
+    _q(
+        "mu0_x",
+        "cm^2/(V*s)",
+        "lattice-limited mobility (highest of the material's published fits at N = 0)",
+    ),
+    _q(
+        "cond_x",
+        "1",
+        "conduction credit: 1/(ionized fraction at the fit temperature) for a "
+        "mobility given per dopant atom (the silicon resistivity standard), else 1",
+    ),
+    _q("vsat_x", "cm/s", "saturation velocity", symbols=("v_sat_n", "v_sat_p")),
+    _q("beta_x", "1", "Caughey–Thomas field exponent", symbols=("beta_n", "beta_p")),
+    _q("vth_x", "cm/s", "unidirectional thermal velocity <v_x+> (Fermi–Dirac)"),
+    _q(
+        "lambda_x",
+        "nm",
+        "backscattering mean free path 2D/<v_x+> at the mobility used",
+        symbols=("lambda_n", "lambda_p"),
+    ),
+    # ---- words ----------------------------------------------------------------------------------
+    _q("regime", TEXT_UNIT, "regime of the operating point", _T),
+    _q("T_models", TEXT_UNIT, "models whose fitted temperature range the point leaves", _T),
+    _q("N_models", TEXT_UNIT, "mobility models whose fitted doping range the point exceeds", _T),
+    # ---- the structure of the conductor ---------------------------------------------------------
+    _structure("L", "um", "conductor length", "length", symbols=("L",)),
+    _structure("A", "um^2", "cross-section (thickness x width)", "cross_section", symbols=("A",)),
+    _structure("thickness", "um", "layer thickness", "thickness", symbols=("t",)),
+    _structure("width", "um", "conductor width", "width", symbols=("W",), in_rules=False),
+    _structure("field", "kV/cm", "applied field (or voltage/length)", "field", symbols=("E",)),
+    _structure("voltage", "V", "applied voltage", "voltage", in_rules=False),
+    # ---- numbers the author states (in the order the schema lists them) -------------------------
+    _stated(
+        "stated_dens_x", "cm^-3", "stated carrier density", ("electron_density", "hole_density")
+    ),
+    _stated(
+        "stated_ef_minus_ec",
+        "eV",
+        "stated Fermi level E_F - E_C",
+        ("ef_minus_ec",),
+        in_rules=False,
+        signed=True,
+    ),
+    _stated(
+        "stated_ef_minus_ev",
+        "eV",
+        "stated Fermi level E_F - E_V",
+        ("ef_minus_ev",),
+        in_rules=False,
+        signed=True,
+    ),
+    _stated("stated_mu_x", "cm^2/(V*s)", "stated mobility", ("electron_mobility", "hole_mobility")),
+    _stated(
+        "stated_D_x",
+        "cm^2/s",
+        "stated diffusion coefficient",
+        ("electron_diffusivity", "hole_diffusivity"),
+    ),
+    _stated("stated_v_x", "cm/s", "stated drift velocity", ("electron_velocity", "hole_velocity")),
+    _stated(
+        "stated_sigma", "S/cm", "stated conductivity (or 1/stated resistivity)", ("conductivity",)
+    ),
+    _stated(
+        "stated_rho", "ohm*cm", "stated resistivity (or 1/stated conductivity)", ("resistivity",)
+    ),
+    _stated("stated_Rsh", "ohm/sq", "stated sheet resistance", ("sheet_resistance",)),
+    _stated("stated_R", "ohm", "stated resistance", ("resistance",)),
+    _stated("stated_kT_q", "V", "stated thermal voltage", ("thermal_voltage",)),
+    _stated("stated_ni", "cm^-3", "stated intrinsic density", ("intrinsic_density",)),
+    _stated(
+        "stated_Nband_x",
+        "cm^-3",
+        "stated effective density of states of the carrier's band",
+        ("conduction_dos", "valence_dos"),
+    ),
+    _stated("stated_lambda", "nm", "stated mean free path", ("mean_free_path",)),
+    _stated("stated_hall", "cm^-3", "stated Hall density 1/(q|R_H|)", ("hall_density",)),
+    # ---- computed after the solve from the solve and the inputs ---------------------------------
+    _q(
+        "stated_eta_x",
+        "1",
+        "stated Fermi level as a reduced Fermi level of this carrier",
+        _D,
+    ),
+    _q(
+        "stated_ef_x",
+        "eV",
+        "stated Fermi level relative to this carrier's band edge (J inside)",
+        _D,
+    ),
+    _q("in_use_x", "1", "1 where the calculation uses this carrier", _D),
+    _q(
+        "used_mu_x",
+        "cm^2/(V*s)",
+        "mobility the calculation uses: the stated one, else the model's",
+        _D,
+        symbols=("mu_n", "mu_p"),
+    ),
+    _q(
+        "sigma",
+        "S/cm",
+        "two-carrier conductivity q(n mu_n + p mu_p), stated mobilities where given",
+        _D,
+        symbols=("sigma",),
+    ),
+    _q("rho", "ohm*cm", "resistivity 1/sigma", _D, symbols=("rho",)),
+    _q(
+        "sigma_model",
+        "S/cm",
+        "conductivity the doping gives: q(n mu_n + p mu_p) with the model "
+        "mobilities and each carrier's conduction credit",
+        _D,
+    ),
+    _q("hall_r", "1", "exponent r of tau ∝ E^r used for the Hall factor", _D),
+    _q("rH_x", "1", "Hall scattering factor <tau^2>/<tau>^2 of the carrier (Fermi–Dirac)", _D),
+    _q(
+        "n_hall",
+        "cm^-3",
+        "Hall density 1/(q|R_H|) the solve and the mobility model predict "
+        "(two carriers, Hall factors)",
+        _D,
+    ),
+    _q(
+        "n_hall_lo",
+        "cm^-3",
+        "lowest expected Hall density over the measured Hall-factor range "
+        "(the model's Hall factor +-5 % where none is tabulated)",
+        _D,
+    ),
+    _q(
+        "n_hall_hi",
+        "cm^-3",
+        "highest expected Hall density over the measured Hall-factor range",
+        _D,
+    ),
+    # ---- constants (CODATA 2022, physics/constants.py) ------------------------------------------
+    # (their SI units: constants are never shown in a display unit)
+    _q("q", "C", "elementary charge", Source.CONSTANT, symbols=("q",), value=ELEMENTARY_CHARGE),
+    _q("k", "J/K", "Boltzmann constant", Source.CONSTANT, symbols=("k",), value=BOLTZMANN),
+)
+
+BY_NAME = {quantity.name: quantity for quantity in QUANTITIES}
+
+
+def registered(name: str) -> Quantity | None:
+    """The quantity of a concrete name (``dens_n``, ``dens_o``, ``T``), or None."""
+    found = BY_NAME.get(name)
+    if found is None and name[-2:] in ("_n", "_p", "_o"):
+        found = BY_NAME.get(name[:-2] + "_x")
+    return found
+
+
+def value_names() -> set:
+    """The concrete names of every quantity the solve lays out for rules (constants and
+    words included): what engine/regime/state_values.py must produce."""
+    return {name for quantity in QUANTITIES if quantity.in_rules for _, name in quantity.carriers()}
+
+
+def file_keys(section: str) -> dict:
+    """YAML key -> (engine name, dimension read as) of a calculation file's section, in
+    the table's order (the reader's error messages and the schema list them so)."""
+    out = {}
+    for quantity in QUANTITIES:
+        if quantity.section == section:
+            for key, (_, name) in zip(quantity.keys, quantity.carriers(), strict=True):
+                out[key] = (name, quantity.kind)
+    return out
+
+
+def formula_symbols() -> dict:
+    """Trade symbol of a stated formula -> the concrete quantity name that gives its value."""
+    return {
+        symbol: name
+        for quantity in QUANTITIES
+        if quantity.symbols
+        for symbol, (_, name) in zip(quantity.symbols, quantity.carriers(), strict=True)
+    }
+
+
+def _check_table() -> None:
+    """Refuse a malformed row at import (a programming error, not user input)."""
+    for quantity in QUANTITIES:
+        forms = len(quantity.carriers())
+        shown = quantity.source is not Source.CONSTANT and quantity.unit != TEXT_UNIT
+        assert quantity.unit in DISPLAY_UNITS or not shown, quantity.name
+        assert len(quantity.keys) in (0, forms), quantity.name
+        assert len(quantity.symbols) in (0, forms), quantity.name
+        assert bool(quantity.keys) == (quantity.section is not None), quantity.name
+    assert len(BY_NAME) == len(QUANTITIES), "a quantity is registered twice"
+
+
+_check_table()

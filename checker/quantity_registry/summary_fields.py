@@ -1,0 +1,119 @@
+"""The trade-unit summary of a solved operating point: the ``state`` object of the JSON
+reports (``check`` and ``state`` commands, the Python API) and the rows of the console
+tables, one field each, so that a quantity has one key and one label everywhere.
+
+A field reads registered quantities (SI, :mod:`.registry`) and gives one number, word or
+flag in the trade unit its key names.  JSON lists the fields every summary has first,
+then those of the ``state`` command alone (the band densities of states and the solve's
+residual); the console tables list them in the table's order.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+
+from ..physics.constants import EV
+
+PER_CM3 = 1e-6  # m^-3 -> cm^-3
+
+
+@dataclass(frozen=True)
+class SummaryField:
+    key: str  # JSON key (its trade unit in the name)
+    label: str | None  # console label; None: JSON only
+    shown: str  # console format of the value
+    reads: tuple  # the registered quantities (concrete names) it is computed from
+    value: Callable  # get(name) -> the point's value of a quantity  ->  the field's value
+    state_only: bool = False  # only the state command solves for it
+    in_check: bool = False  # also a row of the check report's state table
+
+
+def _number(name, factor=1.0):
+    return lambda get: float(get(name)) * factor
+
+
+def _energy_ev(name):
+    return lambda get: float(get(name)) / EV
+
+
+FIELDS = (
+    SummaryField(
+        "regime", "regime", "{}", ("regime",), lambda get: str(get("regime")), False, True
+    ),
+    SummaryField("temperature_K", None, "{} K", ("T",), _number("T")),
+    SummaryField(
+        "EF_minus_EC_eV",
+        "E_F - E_C",
+        "{:+.4f} eV",
+        ("eta_n", "kT"),
+        lambda get: float(get("eta_n")) * float(get("kT")) / EV,
+        in_check=True,
+    ),
+    SummaryField(
+        "EF_minus_EV_eV",
+        "E_F - E_V",
+        "{:+.4f} eV",
+        ("eta_p", "kT"),
+        lambda get: -float(get("eta_p")) * float(get("kT")) / EV,
+    ),
+    SummaryField(
+        "eta_n", "η_n = (E_F - E_C)/kT", "{:+.3f}", ("eta_n",), _number("eta_n"), in_check=True
+    ),
+    SummaryField(
+        "eta_p", "η_p = (E_V - E_F)/kT", "{:+.3f}", ("eta_p",), _number("eta_p"), in_check=True
+    ),
+    SummaryField(
+        "n_cm3", "n", "{:.4g} cm^-3", ("dens_n",), _number("dens_n", PER_CM3), in_check=True
+    ),
+    SummaryField(
+        "p_cm3", "p", "{:.4g} cm^-3", ("dens_p",), _number("dens_p", PER_CM3), in_check=True
+    ),
+    SummaryField(
+        "donors_ionized_fraction",
+        "donors ionized",
+        "{:.1%}",
+        ("f_n",),
+        _number("f_n"),
+        in_check=True,
+    ),
+    SummaryField(
+        "acceptors_ionized_fraction",
+        "acceptors ionized",
+        "{:.1%}",
+        ("f_p",),
+        _number("f_p"),
+        in_check=True,
+    ),
+    SummaryField("ni_cm3", "n_i", "{:.4g} cm^-3", ("ni",), _number("ni", PER_CM3), in_check=True),
+    SummaryField("band_gap_eV", "E_g", "{:.4f} eV", ("Eg",), _energy_ev("Eg")),
+    SummaryField(
+        "Nc_cm3", "N_c", "{:.4g} cm^-3", ("Nband_n",), _number("Nband_n", PER_CM3), state_only=True
+    ),
+    SummaryField(
+        "Nv_cm3", "N_v", "{:.4g} cm^-3", ("Nband_p",), _number("Nband_p", PER_CM3), state_only=True
+    ),
+    SummaryField(
+        "above_mott_density",
+        "above Mott density",
+        "{}",
+        ("metal_n", "metal_p"),
+        lambda get: bool(float(get("metal_n")) > 0 or float(get("metal_p")) > 0),
+    ),
+    SummaryField(
+        "neutrality_residual",
+        "neutrality residual",
+        "{:.1e}",
+        ("residual",),
+        _number("residual"),
+        state_only=True,
+    ),
+)
+
+# the JSON order: the fields of every summary, then the state command's own
+JSON_FIELDS = tuple(f for f in FIELDS if not f.state_only) + tuple(
+    f for f in FIELDS if f.state_only
+)
+# (key, label, format) of the console tables: the state command's, and the check report's
+STATE_ROWS = tuple((f.key, f.label, f.shown) for f in FIELDS if f.label)
+CHECK_ROWS = tuple((f.key, f.label, f.shown) for f in FIELDS if f.label and f.in_check)
