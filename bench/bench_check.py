@@ -1,12 +1,12 @@
-"""Whole-process timings of `regimecheck check`.
+"""Whole-process timings of the installed `regimecheck check` command.
 
 Targets: one example, cold, <= 0.35 s wall without formulas and <= 0.8 s with
 formulas (design.md §7; issue 3 allowed 0.5 s), measured as the median of
 interleaved runs beside `python -c pass`; 1,000 calculations in one run <= 10 s
 (every other one with four stated formulas); a directory of 1,000 small files
 <= 15 s; the expression parser and the formula reader refuse hostile text in well
-under a second.  Prints a table;
-asserts nothing.
+under a second.  Prints a table; stops with exit code 1 where the command exits with
+a code other than 0 or 1 (an error is not timed).
 """
 
 import argparse
@@ -16,6 +16,9 @@ import sys
 import tempfile
 import time
 from pathlib import Path
+
+import installed_command
+from installed_command import CHECKED
 
 ROOT = Path(__file__).resolve().parents[1]
 ONE = ROOT / "examples" / "lc9_counterdoped_well.yaml"  # no formulas
@@ -35,11 +38,21 @@ MIXES = [
 ]
 
 
-def wall(command, runs):
+def wall(args, runs, expected=CHECKED):
+    """Wall times of ``regimecheck *args`` (the installed command)."""
     times = []
     for _ in range(runs):
         start = time.perf_counter()
-        subprocess.run(command, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, cwd=ROOT)
+        installed_command.run(args, expected, cwd=ROOT)
+        times.append(time.perf_counter() - start)
+    return times
+
+
+def interpreter_start(runs):
+    times = []
+    for _ in range(runs):
+        start = time.perf_counter()
+        subprocess.run([sys.executable, "-c", "pass"], check=True)
         times.append(time.perf_counter() - start)
     return times
 
@@ -67,10 +80,10 @@ def main():
     parser.add_argument("--runs", type=int, default=15)
     parser.add_argument("--calculations", type=int, default=1000)
     args = parser.parse_args()
-    tool = [sys.executable, "-m", "checker", "check"]
+    tool = ["check"]
     baseline, one, formulas = [], [], []
     for _ in range(args.runs):  # interleaved: machine noise hits all alike
-        baseline += wall([sys.executable, "-c", "pass"], 1)
+        baseline += interpreter_start(1)
         one += wall(tool + [str(ONE)], 1)
         formulas += wall(tool + [str(WITH_FORMULAS)], 1)
     every = wall(tool + [str(ROOT / "examples")], 5)

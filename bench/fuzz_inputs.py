@@ -15,7 +15,8 @@ case in-process through ``checker.cli.main`` in a worker thread with a time boun
 (a loop that holds the interpreter) is killed and its current case recorded as a
 hang.  Every few hundred cases a worker re-runs a fixed calculation and compares
 the report with its first run (class ``state-leak``: one input changed how a later
-one is checked).
+one is checked); a report that differs is compared with a fresh run of the installed
+`regimecheck` command (an exit code other than 0 or 1 there is written to workers.log).
 
 Prints a table: kind, cases, exit codes 0/1/2, failures by class (exit3, traceback,
 input-modified, hang, malformed-output, lost-calculation, state-leak), then each
@@ -45,6 +46,7 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT / "tests"))
 
 import fuzz_inputs as fz  # noqa: E402  (the shared strategies and harness)
+import installed_command  # noqa: E402  (bench/: the command a fresh process runs)
 
 CLASSES = fz.FAILURE_CLASSES + ("state-leak",)
 CANARY_EVERY = 250
@@ -95,12 +97,17 @@ def _fresh_canary(timeout) -> str:
         path.write_bytes(fz.SENTINEL)
         try:
             done = subprocess.run(
-                [sys.executable, "-m", "checker", "check", str(path), "--format", "json"],
+                [installed_command.command(), "check", str(path), "--format", "json"],
                 capture_output=True,
                 text=True,
                 timeout=timeout + 30,
             )
         except subprocess.TimeoutExpired:
+            return ""
+        if done.returncode not in installed_command.CHECKED:
+            # inside a worker: said in workers.log, and the differing report is kept as
+            # a state-leak reproduction rather than ending the run
+            print(f"fresh canary run exited with {done.returncode}: {done.stderr}", file=sys.stderr)
             return ""
         return re.sub(r"/tmp/regimecheck-fuzz-[^/\"]+/", "", done.stdout.rstrip("\n") + "\n")
 
@@ -541,6 +548,7 @@ def main(argv=None) -> int:
         )
     if args.replay:
         return replay(args.replay, args.timeout)
+    installed_command.command()  # the workers' canary needs it: stop now if it is missing
     return run_parent(args)
 
 
