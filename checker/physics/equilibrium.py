@@ -40,7 +40,7 @@ import numpy as np
 
 from ..errors import ConvergenceError, InputError
 from .arrays import ArrayIn, BoolArray, FloatArray, IndexArray
-from .constants import BOLTZMANN, EV
+from .constants import BOLTZMANN
 from .fermi import log_fermi_dirac, log_fermi_dirac_half_pair
 from .materials import Dopant, Material
 
@@ -59,7 +59,7 @@ class State:
     """Solved equilibrium at every operating point (SI units, numpy arrays).
 
     The solve produces eta_n (and its residual); everything else is derived
-    from it on first access and cached.  Energies in J (``*_eV`` give eV),
+    from it on first access and cached.  Energies in J,
     densities in m^-3, all arrays of the broadcast input shape.
     """
 
@@ -128,14 +128,6 @@ class State:
             )
             for name, dens in self.acceptors.items()
         }
-
-    @property
-    def ef_minus_ec_eV(self) -> FloatArray:
-        return self.eta_n * self.kT / EV
-
-    @property
-    def ef_minus_ev_eV(self) -> FloatArray:
-        return -self.eta_p * self.kT / EV
 
     @cached_property
     def donors_total(self) -> FloatArray:

@@ -10,12 +10,11 @@ The operating points of checked calculations are placed on the plane.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 import numpy as np
 
 from ...physics import carriers, equilibrium
-from ...physics.carriers import REGIMES
 from ...vocabulary_words import SEVERITY_RANK
 
 DOPING_RANGE = (1e13 * 1e6, 1e21 * 1e6)  # m^-3
@@ -68,7 +67,6 @@ class MapPoint:
     # a sweep: (doping from, to) and (T from, to); equal ends for a missing axis
     doping_span: tuple = ()
     T_span: tuple = ()
-    extra: dict = field(default_factory=dict)
 
 
 def regime_grid(
@@ -113,13 +111,6 @@ def eta_curve(material, species, density, temperatures) -> EtaCurve:
     state = equilibrium.solve(material, T, donors, acceptors)
     eta = np.asarray(state.eta_n if dopant.kind == "donor" else state.eta_p)
     return EtaCurve(material, species, dopant.kind, density, T, eta, carriers.regime_code(state))
-
-
-def regime_at(grid: RegimeGrid, doping: float, T: float) -> str:
-    """The regime of the grid cell that holds (doping, T)."""
-    i = int(np.argmin(np.abs(np.log(grid.doping) - np.log(doping))))
-    j = int(np.argmin(np.abs(grid.T - T)))
-    return REGIMES[grid.codes[j, i]]
 
 
 def map_groups(result) -> dict:
