@@ -40,7 +40,9 @@ class _Version(argparse.Action):
         try:
             number = version("regimecheck")
         except PackageNotFoundError:  # run from a source tree that is not installed
-            from . import __version__ as number
+            from . import __version__
+
+            number = __version__
         print(f"regimecheck {number}")
         parser.exit()
 

@@ -217,7 +217,7 @@ class _StrictLoader(yaml.SafeLoader):
 
     def compose_mapping_node(self, anchor):
         node = super().compose_mapping_node(anchor)
-        seen = {}
+        seen: dict[str, int] = {}  # key -> its line (0-based)
         for key_node, _ in node.value:
             if not isinstance(key_node, yaml.ScalarNode):
                 self._refuse(
