@@ -399,6 +399,10 @@ class _Bands:
             "A": Dopant("A", "acceptor", dE_A, g_A, np.inf, False, _ANY, bound_share=share),
         }
 
+    def need(self, attribute, purpose):
+        # State asks its material for a parameter this way (materials.Material.need)
+        return getattr(self, attribute)
+
     def band_gap(self, T):
         return self.Eg
 
@@ -474,6 +478,7 @@ def _physics(name, v, state, dim, majority):
     n = v["N_c"] * fermi_dirac(j, state.eta_n)
     p = v["N_v"] * fermi_dirac(j, state.eta_p)
     lam = v[f"lambda_{majority}"]
+    rho = 1.0 / transport.conductivity(n, p, v["mu_n"], v["mu_p"])
     fast = {
         x: transport.field_dependent_mobility(v[f"mu_{x}"], v["E"], v[f"v_sat_{x}"], v[f"beta_{x}"])
         for x in "np"
@@ -499,7 +504,7 @@ def _physics(name, v, state, dim, majority):
         "D_n": transport.diffusion_coefficient(v["mu_n"], v["T"], state.eta_n, dim),
         "D_p": transport.diffusion_coefficient(v["mu_p"], v["T"], state.eta_p, dim),
         "sigma": transport.conductivity(n, p, v["mu_n"], v["mu_p"]),
-        "rho": transport.resistivity(n, p, v["mu_n"], v["mu_p"]),
+        "rho": 1.0 / transport.conductivity(n, p, v["mu_n"], v["mu_p"]),
         "v_n": transport.drift_velocity(v["mu_n"], v["E"], v["v_sat_n"], v["beta_n"]),
         "v_p": transport.drift_velocity(v["mu_p"], v["E"], v["v_sat_p"], v["beta_p"]),
         "J": transport.conductivity(n, p, fast["n"], fast["p"]) * v["E"],
@@ -512,20 +517,11 @@ def _physics(name, v, state, dim, majority):
         "L_p": np.sqrt(
             transport.diffusion_coefficient(v["mu_p"], v["T"], state.eta_p, dim) * v["tau_p"]
         ),
-        # R = rho (L + lambda)/A; A = W t (3D), the width W of a sheet (2D), 1 for a wire
-        "R": transport.short_conductor_resistance(
-            transport.resistivity(n, p, v["mu_n"], v["mu_p"]),
-            v["L"],
-            {3: v["W"] * v["t"], 2: v["W"], 1: 1.0}[dim],
-            lam,
-        ),
+        # R = rho (L + lambda)/A (Lundstrom & Jeong 2012, ch. 3); A = W t (3D), the width W
+        # of a sheet (2D), 1 for a wire
+        "R": rho * (v["L"] + lam) / {3: v["W"] * v["t"], 2: v["W"], 1: 1.0}[dim],
         # sheet resistance: the diffusive resistance of one square (side W)
-        "R_s": transport.short_conductor_resistance(
-            transport.resistivity(n, p, v["mu_n"], v["mu_p"]),
-            v["W"],
-            {3: v["W"] * v["t"], 2: v["W"]}.get(dim, np.nan),
-            0.0,
-        ),
+        "R_s": rho * v["W"] / {3: v["W"] * v["t"], 2: v["W"]}.get(dim, np.nan),
         "A": v["W"] * v["t"],
     }.get(name)
 

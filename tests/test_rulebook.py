@@ -213,8 +213,8 @@ DIMENSIONS = [
     ),
     (
         "STAT02.yaml",
-        'expression: "F(dim/2 - 1, eta_x)/F(dim/2 - 2, eta_x)"',
-        'expression: "F(dim/2 - 1, eta_x*kT)/F(dim/2 - 2, eta_x)"',
+        'expression: "einstein_ratio(dim, eta_x)"',
+        'expression: "einstein_ratio(dim, eta_x*kT)"',
         "indicator.expression",
         "eta_x*kT",
     ),

@@ -1,5 +1,10 @@
 """Transport: generalized Einstein relation, mobility, conductivity, thermal
-velocity, backscattering mean free path and short-conductor resistance.
+velocity and backscattering mean free path.
+
+The relations written in engine/formulas/relation_table.py (Einstein ratio,
+Caughey–Thomas velocity and mobility, conductivity, the short-conductor resistance
+``_relations.conductor_resistance``) are computed by the generated ``_relations``
+module: one implementation for the physics layer and the rules.
 
 All functions are vectorized and use SI units: mobility m^2/(V s), diffusion
 coefficient m^2/s, density m^-3, conductivity S/m, resistivity ohm m, length m,
@@ -11,6 +16,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import InputError
+from . import _relations
 from .constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE
 from .fermi import log_fermi_dirac
 
@@ -37,8 +43,7 @@ def einstein_ratio(eta, dimension=3):
     P. T. Landsberg, Eur. J. Phys. 2, 213 (1981); M. Lundstrom, Fundamentals
     of Carrier Transport, 2nd ed. (2000), ch. 3.
     """
-    j = _DENSITY_ORDER[_dimension(dimension)]
-    return np.exp(log_fermi_dirac(j, eta) - log_fermi_dirac(j - 1, eta))
+    return _relations.einstein_ratio(_dimension(dimension), eta)
 
 
 def diffusion_coefficient(mobility, T, eta, dimension=3):
@@ -70,8 +75,8 @@ def field_dependent_mobility(mu_low, field, v_sat, beta):
     D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967); C. Canali et
     al., IEEE Trans. Electron Devices 22, 1045 (1975).
     """
-    ratio = np.asarray(mu_low, dtype=float) * np.abs(np.asarray(field, dtype=float)) / v_sat
-    return mu_low / (1.0 + ratio**beta) ** (1.0 / beta)
+    magnitude = np.abs(np.asarray(field, dtype=float))
+    return _relations.field_mobility(np.asarray(mu_low, dtype=float), magnitude, v_sat, beta)
 
 
 def drift_velocity(mu_low, field, v_sat, beta):
@@ -81,7 +86,8 @@ def drift_velocity(mu_low, field, v_sat, beta):
     ----------
     Caughey & Thomas, Proc. IEEE 55, 2192 (1967).
     """
-    return field_dependent_mobility(mu_low, field, v_sat, beta) * np.abs(field)
+    magnitude = np.abs(np.asarray(field, dtype=float))
+    return _relations.field_velocity(np.asarray(mu_low, dtype=float), magnitude, v_sat, beta)
 
 
 def conductivity(n, p, mu_n, mu_p):
@@ -91,19 +97,9 @@ def conductivity(n, p, mu_n, mu_p):
     ----------
     Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1.
     """
-    return ELEMENTARY_CHARGE * (np.asarray(n) * mu_n + np.asarray(p) * mu_p)
-
-
-def resistivity(n, p, mu_n, mu_p):
-    """rho = 1/sigma in ohm m (inf where there are no carriers).
-
-    References
-    ----------
-    Sze & Ng (2007), ch. 1.
-    """
-    sigma = conductivity(n, p, mu_n, mu_p)
-    with np.errstate(divide="ignore"):
-        return 1.0 / sigma
+    return _relations.two_carrier_conductivity(
+        np.asarray(n), np.asarray(p), mu_n, mu_p, ELEMENTARY_CHARGE
+    )
 
 
 _THERMAL_PREFACTOR = {3: 2.0 / np.pi, 2: np.pi / 2.0, 1: 2.0 / np.pi}
@@ -143,17 +139,3 @@ def backscattering_mean_free_path(diffusion, thermal_velocity):
     al., J. Appl. Phys. 107, 023707 (2010).
     """
     return 2.0 * np.asarray(diffusion) / thermal_velocity
-
-
-def short_conductor_resistance(resistivity_value, length, area, mean_free_path):
-    """R = rho (L + lambda) / A (ohm): ballistic plus diffusive (Landauer).
-
-    Reduces to rho L / A when L >> lambda; when L << lambda it tends to the
-    ballistic limit rho lambda / A.
-
-    References
-    ----------
-    Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 3 (eq. for the
-    resistance of a conductor of arbitrary length).
-    """
-    return np.asarray(resistivity_value) * (np.asarray(length) + mean_free_path) / np.asarray(area)

@@ -11,10 +11,12 @@ engine/vocabulary.py (kT is shown in eV: an energy, J inside).
 from __future__ import annotations
 
 import math
+from functools import cache
 
 from ..vocabulary import COMMON, CONSTANTS, PER_CARRIER
+from . import _relation_texts
 from . import dimensions as dm
-from .parser import folded, to_text
+from .parser import folded, parse, to_text
 from .tree import CALL, NAME, NEG, NUM, fold
 
 # display unit (vocabulary.DISPLAY_UNITS) -> dimension
@@ -113,7 +115,29 @@ def _call_dimension(name: str, args, inner) -> dm.Dimension:
         return dm.NONE
     if name in _ALIKE_ARGUMENTS:
         return _same(args, inner, f"the values {name}() chooses between must have one dimension")
+    if name in _relation_texts.FUNCTIONS:
+        return _relation_dimension(name, inner)
     raise DimensionProblem(f"{name}() has no dimension rule")
+
+
+@cache  # one tree per relation function: a handful
+def _relation_formula(name: str):
+    return parse(_relation_texts.FUNCTIONS[name][1])
+
+
+def _relation_dimension(name: str, inner) -> dm.Dimension:
+    """A relation function's dimension: its generated formula walked with the
+    arguments' dimensions (so its sums, exponents and F arguments are checked too)."""
+    parameters = _relation_texts.FUNCTIONS[name][0]
+    given = dict(zip(parameters, inner))
+    try:
+        return dimension(
+            _relation_formula(name),
+            lambda symbol: given[symbol] if symbol in given else CONSTANT_DIMENSIONS[symbol],
+        )
+    except DimensionProblem as exc:
+        shown = ", ".join(f"{p}: {dm.describe(d)}" for p, d in given.items())
+        raise DimensionProblem(f"in {name}({shown}): {exc}") from None
 
 
 def _operation_dimension(kind: str, args, inner) -> dm.Dimension:

@@ -34,7 +34,7 @@ from functools import lru_cache
 import numpy as np
 
 from ...errors import InputError
-from ...physics.fermi import fermi_dirac
+from ...physics import _relations
 from .tree import CALL, NAME, NEG, NUM, Node, binary, call, fold, neg, num, transform
 from .tree import name as name_node
 
@@ -48,20 +48,6 @@ MAX_EXPONENT = 64.0
 def _stated_or(stated, fallback):
     stated = np.asarray(stated, dtype=float)
     return np.where(np.isfinite(stated), stated, fallback)
-
-
-def _fermi(order, eta):
-    """F_j(eta) with an order that may differ per point (e.g. from the dimensionality)."""
-    order = np.asarray(order, dtype=float)
-    eta = np.asarray(eta, dtype=float)
-    if order.ndim == 0:
-        return fermi_dirac(float(order), eta)
-    order, eta = np.broadcast_arrays(order, eta)
-    out = np.full(eta.shape, np.nan)
-    for j in np.unique(order[np.isfinite(order)]):
-        pick = order == j
-        out[pick] = fermi_dirac(float(j), eta[pick])
-    return out
 
 
 def _present(x):
@@ -82,7 +68,12 @@ FUNCTIONS = {
     "abs": (1, np.abs, "Abs", "absolute value"),
     "min": (2, np.fmin, "Min", "smaller of two values"),
     "max": (2, np.fmax, "Max", "larger of two values"),
-    "F": (2, _fermi, "F", "Fermi–Dirac integral F_j(eta), normalized (F_j -> e^eta for eta << 0)"),
+    "F": (
+        2,
+        _relations._fermi,
+        "F",
+        "Fermi–Dirac integral F_j(eta), normalized (F_j -> e^eta for eta << 0)",
+    ),
     "stated_or": (
         2,
         _stated_or,
@@ -92,6 +83,14 @@ FUNCTIONS = {
     "present": (1, _present, "present", "1 where a value is given, else 0"),
     "less": (2, _less, "less", "1 where the first value is below the second, else 0"),
 }
+
+# the relations of engine/formulas/relation_table.py, by name (generated numpy functions)
+FUNCTIONS.update(
+    {
+        name: (len(parameters), getattr(_relations, name), name, meaning)
+        for name, (parameters, meaning) in _relations.SIGNATURES.items()
+    }
+)
 
 _BINARY = {ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/", ast.Pow: "**"}
 

@@ -1,12 +1,14 @@
 """The exact relations stated formulas are compared with, and the named limits.
 
-Every trade symbol that is not an independent input is *defined* here by the
-relation the physics core computes (Fermi–Dirac densities with F_j, the
-generalized Einstein relation for the dimensionality, two-carrier
-conductivity, charge neutrality with partial ionization, n_i, the
-short-conductor resistance, the Caughey–Thomas drift velocity, ...).  A
-*limit* is a symbolic substitution on these definitions: F_j(eta) -> e^eta,
-a switch set to zero (holes neglected beside electrons, lambda/L -> 0,
+Every trade symbol that is not an independent input is *defined* by the relation the
+physics core computes (Fermi–Dirac densities with F_j, the generalized Einstein
+relation for the dimensionality, two-carrier conductivity, charge neutrality with
+partial ionization, n_i, the short-conductor resistance, the Caughey–Thomas drift
+velocity, ...).  The definitions are written once, in sympy, in
+:mod:`checker.engine.formulas.relation_table`; ``tools/generate_relations.py`` writes
+them as text (``expressions/_relation_texts.py``), which is parsed here -- no sympy at
+run time.  A *limit* is a symbolic substitution on these definitions: F_j(eta) ->
+e^eta, a switch set to zero (holes neglected beside electrons, lambda/L -> 0,
 mu E/v_sat -> 0), an ionized fraction set to one.  A stated formula embodies
 a set of limits when it is an identity of the definitions with those limits
 applied (see :mod:`checker.engine.formulas.match`).
@@ -34,6 +36,7 @@ import math
 from dataclasses import dataclass, field
 from functools import cache, lru_cache
 
+from ..expressions import _relation_texts
 from ..expressions.parser import names_in as _names_in
 from ..expressions.parser import parse
 from ..expressions.tree import CALL, NAME, Node, binary, call, fold, num, transform
@@ -192,57 +195,6 @@ RELATION_NAMES = {
 SWITCHES = ("w_n", "w_p", "s_d", "s_fn", "s_fp")
 
 
-def _common(j: float, x: str) -> dict:
-    jm1 = j - 1.0
-    return {
-        "eta_n": "(E_F - E_c)/(k*T)",
-        "eta_p": "(E_v - E_F)/(k*T)",
-        "E_g": "E_c - E_v",
-        "n": f"N_c*F({j}, eta_n)",
-        "p": f"N_v*F({j}, eta_p)",
-        "n_i": "sqrt(N_c*N_v)*exp(-E_g/(2*k*T))",
-        "E_i": "(E_c + E_v)/2 + k*T/2*log(N_v/N_c)",
-        "E_D": "E_c - dE_D",
-        "E_A": "E_v + dE_A",
-        "f_D": "1/(1 + g_D*exp((E_F - E_D)/(k*T)))",
-        "f_A": "1/(1 + g_A*exp((E_A - E_F)/(k*T)))",
-        "N_D_plus": "N_D*f_D",
-        "N_A_minus": "N_A*f_A",
-        "D_n": f"mu_n*k*T/q*F({j}, eta_n)/F({jm1}, eta_n)",
-        "D_p": f"mu_p*k*T/q*F({j}, eta_p)/F({jm1}, eta_p)",
-        "sigma": "q*(w_n*n*mu_n + w_p*p*mu_p)",
-        "rho": "1/sigma",
-        "v_n": "mu_n*E/(1 + (s_fn*mu_n*E/v_sat_n)^beta_n)^(1/beta_n)",
-        "v_p": "mu_p*E/(1 + (s_fp*mu_p*E/v_sat_p)^beta_p)^(1/beta_p)",
-        "J": "q*(w_n*n*v_n + w_p*p*v_p)",
-        "hbar": "h/(2*pi)",
-        "L_n": "sqrt(D_n*tau_n)",
-        "L_p": "sqrt(D_p*tau_p)",
-    }
-
-
-_GEOMETRY = {
-    3: {
-        "R": "rho*(L + s_d*lambda_{x})/A",
-        "R_s": "rho/t",
-        "A": "W*t",
-        "m_n": "(N_c/2)^(2/3)*h^2/(2*pi*k*T)",
-        "m_p": "(N_v/2)^(2/3)*h^2/(2*pi*k*T)",
-    },
-    2: {
-        "R": "rho*(L + s_d*lambda_{x})/W",
-        "R_s": "rho",
-        "m_n": "N_c*pi*hbar^2/(k*T)",
-        "m_p": "N_v*pi*hbar^2/(k*T)",
-    },
-    1: {"R": "rho*(L + s_d*lambda_{x})"},
-}
-_NEUTRALITY = {
-    "donor": {"N_D": "(n - w_p*p + N_A*f_A)/f_D"},
-    "acceptor": {"N_A": "(p - w_n*n + N_D*f_D)/f_A"},
-}
-
-
 @dataclass(frozen=True)
 class World:
     dim: int
@@ -254,10 +206,9 @@ class World:
 
 @cache
 def world(dim: int, which: str, majority: str) -> World:
-    j = dim / 2.0 - 1.0
-    texts = _common(j, majority)
-    texts.update({k: v.format(x=majority) for k, v in _GEOMETRY[dim].items()})
-    texts.update(_NEUTRALITY[which])
+    # the definitions are generated from relation_table.py (the one place they are written)
+    texts = dict(_relation_texts.DEFINITIONS[dim, majority])
+    texts.update(_relation_texts.NEUTRALITY[which])
     definitions = {name: parse(text) for name, text in texts.items()}
     definitions.update({name: num(1.0) for name in SWITCHES})
     return World(dim, which, majority, definitions, _topological(definitions))

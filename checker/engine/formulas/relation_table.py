@@ -1,0 +1,222 @@
+"""Every relation regimecheck computes, written once, as a sympy expression.
+
+Imported only by ``tools/generate_relations.py``, by ``explain`` and by the tests --
+never when ``check`` starts (sympy takes a second to import).  The generator writes
+from this table:
+
+* ``checker/physics/_relations.py``: one vectorized numpy function per entry of
+  :data:`FUNCTIONS` (the physics layer and the rule language call these);
+* ``checker/engine/expressions/_relation_texts.py``: each function's formula as text of
+  the expression language (for the dimension check of rule expressions) and the exact
+  definitions that stated formulas are compared with (:data:`definitions`), built from
+  the same functions by substitution.
+
+``F(j, eta)`` is the normalized Fermi–Dirac integral F_j(eta) (F_j -> e^eta as
+eta -> -inf).  Named limits that follow from a relation are derived here by sympy
+(:func:`derived_limits`) and checked by the tests.
+
+References
+----------
+J. S. Blakemore, Semiconductor Statistics (Pergamon, 1962): F_j densities,
+  ionization statistics, degenerate limit F_j(eta) ~ eta^(j+1)/Gamma(j+2).
+S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1:
+  neutrality, n_i, two-carrier conductivity, generalized Einstein relation.
+P. T. Landsberg, Eur. J. Phys. 2, 213 (1981): generalized Einstein relation.
+D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967): field-dependent velocity.
+M. Lundstrom and C. Jeong, Near-Equilibrium Transport (2012), ch. 3: R = rho(L+lambda)/A.
+W. Shockley, Electrons and Holes in Semiconductors (Van Nostrand, 1950): the
+  diffusion length L = sqrt(D tau) (from memory).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import sympy as sp
+
+F = sp.Function("F")  # normalized Fermi–Dirac integral F_j(eta)
+
+
+def _positive(names: str):
+    return sp.symbols(names, positive=True)
+
+
+@dataclass(frozen=True)
+class Function:
+    """A relation callable from rules and from the physics layer."""
+
+    name: str
+    parameters: tuple  # sympy symbols, in call order
+    expression: sp.Expr
+    meaning: str  # one line, with units of the result
+    validity: str
+    reference: str
+
+    def __call__(self, *args) -> sp.Expr:
+        """The expression with the parameters replaced by ``args`` (simultaneously)."""
+        return self.expression.subs(dict(zip(self.parameters, args)), simultaneous=True)
+
+
+dim, eta = sp.symbols("dim eta", real=True)
+mu, field, v_sat, beta = _positive("mu field v_sat beta")
+rho, length, mfp, area = _positive("rho L mean_free_path A")
+n_c, n_v, e_g, kT = _positive("N_c N_v E_g kT")
+n, p, mu_n, mu_p, q = _positive("n p mu_n mu_p q")
+
+FUNCTIONS = {
+    f.name: f
+    for f in (
+        Function(
+            "einstein_ratio",
+            (dim, eta),
+            F(dim / 2 - 1, eta) / F(dim / 2 - 2, eta),
+            "generalized Einstein ratio (D/mu)/(kT/q) of a parabolic band of "
+            "dimensionality dim at reduced Fermi level eta (dimensionless)",
+            "parabolic band, one subband in 2D and 1D; dim in {1, 2, 3}, any real eta",
+            "P. T. Landsberg, Eur. J. Phys. 2, 213 (1981)",
+        ),
+        Function(
+            "field_velocity",
+            (mu, field, v_sat, beta),
+            mu * field / (1 + (mu * field / v_sat) ** beta) ** (1 / beta),
+            "Caughey–Thomas drift velocity at field magnitude E (m/s)",
+            "E >= 0; monotone saturation (no negative differential mobility)",
+            "D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967)",
+        ),
+        Function(
+            "field_mobility",
+            (mu, field, v_sat, beta),
+            mu / (1 + (mu * field / v_sat) ** beta) ** (1 / beta),
+            "Caughey–Thomas mobility at field magnitude E (m^2/(V s))",
+            "E >= 0; monotone saturation (no negative differential mobility)",
+            "D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967)",
+        ),
+        Function(
+            "conductor_resistance",
+            (rho, length, mfp, area),
+            rho * (length + mfp) / area,
+            "resistance of a conductor of any length, diffusive plus ballistic (ohm)",
+            "near equilibrium (low bias); lambda the backscattering mean free path",
+            "M. Lundstrom and C. Jeong, Near-Equilibrium Transport (2012), ch. 3",
+        ),
+        Function(
+            "intrinsic_density",
+            (n_c, n_v, e_g, kT),
+            sp.sqrt(n_c * n_v) * sp.exp(-e_g / (2 * kT)),
+            "intrinsic density n_i (per m^3 for N_c, N_v per m^3)",
+            "non-degenerate intrinsic carriers (E_g >> kT)",
+            "S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1",
+        ),
+        Function(
+            "two_carrier_conductivity",
+            (n, p, mu_n, mu_p, q),
+            q * (n * mu_n + p * mu_p),
+            "drift conductivity of electrons and holes (S/m)",
+            "low field; densities per m^3, mobilities in m^2/(V s), q in C",
+            "S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1",
+        ),
+    )
+}
+
+
+def derived_limits() -> dict:
+    """Named limits of the functions, derived by sympy: name -> (expression, limit)."""
+    j = sp.Symbol("j")
+    nondegenerate = {F: sp.Lambda((j, eta), sp.exp(eta))}
+    degenerate = {F: sp.Lambda((j, eta), eta ** (j + 1) / sp.gamma(j + 2))}
+    ratio = FUNCTIONS["einstein_ratio"].expression
+    velocity = FUNCTIONS["field_velocity"].expression
+    resistance = FUNCTIONS["conductor_resistance"].expression
+    return {
+        "einstein_ratio, non-degenerate (Einstein relation)": sp.simplify(
+            ratio.replace(F, nondegenerate[F])
+        ),
+        "einstein_ratio, degenerate": sp.gammasimp(ratio.replace(F, degenerate[F])),
+        "field_velocity, low field": sp.limit(velocity, v_sat, sp.oo),
+        "conductor_resistance, diffusive (lambda << L)": sp.limit(resistance / length, mfp, 0)
+        * length,
+    }
+
+
+# ---- the exact definitions stated formulas are compared with ---------------------------------
+def S(name: str) -> sp.Symbol:
+    """A trade symbol of stated formulas (energies may be negative: real)."""
+    if name in ("E_c", "E_v", "E_F", "E_D", "E_A", "E_i", "eta_n", "eta_p"):
+        return sp.Symbol(name, real=True)
+    return sp.Symbol(name, positive=True)
+
+
+def _common(d: int) -> dict:
+    """Definitions shared by both neutrality worlds, for dimensionality ``d``.
+
+    The switches w_n, w_p (a carrier counted), s_d (lambda/L counted), s_fn, s_fp
+    (mu E/v_sat counted) are 1 in the exact relation; a named limit sets one to 0.
+    """
+    k, T, q_ = S("k"), S("T"), S("q")
+    kT_ = k * T
+    out = {
+        "eta_n": (S("E_F") - S("E_c")) / kT_,
+        "eta_p": (S("E_v") - S("E_F")) / kT_,
+        "E_g": S("E_c") - S("E_v"),
+        "n": S("N_c") * F(sp.Rational(d, 2) - 1, S("eta_n")),
+        "p": S("N_v") * F(sp.Rational(d, 2) - 1, S("eta_p")),
+        "n_i": FUNCTIONS["intrinsic_density"](S("N_c"), S("N_v"), S("E_g"), kT_),
+        "E_i": (S("E_c") + S("E_v")) / 2 + kT_ / 2 * sp.log(S("N_v") / S("N_c")),
+        "E_D": S("E_c") - S("dE_D"),
+        "E_A": S("E_v") + S("dE_A"),
+        "f_D": 1 / (1 + S("g_D") * sp.exp((S("E_F") - S("E_D")) / kT_)),
+        "f_A": 1 / (1 + S("g_A") * sp.exp((S("E_A") - S("E_F")) / kT_)),
+        "N_D_plus": S("N_D") * S("f_D"),
+        "N_A_minus": S("N_A") * S("f_A"),
+        "sigma": FUNCTIONS["two_carrier_conductivity"](
+            S("w_n") * S("n"), S("w_p") * S("p"), S("mu_n"), S("mu_p"), q_
+        ),
+        "rho": 1 / S("sigma"),
+        "J": q_ * (S("w_n") * S("n") * S("v_n") + S("w_p") * S("p") * S("v_p")),
+        "hbar": S("h") / (2 * sp.pi),
+    }
+    for x in ("n", "p"):
+        out[f"D_{x}"] = S(f"mu_{x}") * kT_ / q_ * FUNCTIONS["einstein_ratio"](d, S(f"eta_{x}"))
+        # the low-field limit is v_sat -> infinity: s_f (= 1) / v_sat -> 0
+        out[f"v_{x}"] = FUNCTIONS["field_velocity"](
+            S(f"mu_{x}"), S("E"), S(f"v_sat_{x}") / S(f"s_f{x}"), S(f"beta_{x}")
+        )
+        out[f"L_{x}"] = sp.sqrt(S(f"D_{x}") * S(f"tau_{x}"))
+    return out
+
+
+def _geometry(d: int, majority: str) -> dict:
+    h, k, T = S("h"), S("k"), S("T")
+    resistance = FUNCTIONS["conductor_resistance"]
+    path = S("s_d") * S(f"lambda_{majority}")  # s_d = 0: the diffusive limit
+    if d == 3:
+        return {
+            "R": resistance(S("rho"), S("L"), path, S("A")),
+            "R_s": S("rho") / S("t"),
+            "A": S("W") * S("t"),
+            "m_n": (S("N_c") / 2) ** sp.Rational(2, 3) * h**2 / (2 * sp.pi * k * T),
+            "m_p": (S("N_v") / 2) ** sp.Rational(2, 3) * h**2 / (2 * sp.pi * k * T),
+        }
+    if d == 2:
+        return {
+            "R": resistance(S("rho"), S("L"), path, S("W")),
+            "R_s": S("rho"),
+            "m_n": S("N_c") * sp.pi * S("hbar") ** 2 / (k * T),
+            "m_p": S("N_v") * sp.pi * S("hbar") ** 2 / (k * T),
+        }
+    return {"R": resistance(S("rho"), S("L"), path, 1)}
+
+
+# charge neutrality n + N_A- = p + N_D+ has no explicit form for n: it is written for the
+# dopant instead (the donor world defines N_D, the acceptor world N_A)
+NEUTRALITY = {
+    "donor": {"N_D": (S("n") - S("w_p") * S("p") + S("N_A") * S("f_A")) / S("f_D")},
+    "acceptor": {"N_A": (S("p") - S("w_n") * S("n") + S("N_D") * S("f_D")) / S("f_A")},
+}
+
+
+def definitions(d: int, majority: str) -> dict:
+    """name -> sympy expression of every defined trade symbol (without neutrality)."""
+    out = _common(d)
+    out.update(_geometry(d, majority))
+    return out
