@@ -3,19 +3,28 @@ reports (``check`` and ``state`` commands, the Python API) and the rows of the c
 tables, one field each, so that a quantity has one key and one label everywhere.
 
 A field reads registered quantities (SI, :mod:`.registry`) and gives one number, word or
-flag in the trade unit its key names.  JSON lists the fields every summary has first,
-then those of the ``state`` command alone (the band densities of states and the solve's
-residual); the console tables list them in the table's order.
+flag in the trade unit its key names, or None where the point has no such value (no field
+given, band-gap narrowing off, a material without mobility data, or values that do not
+carry the quantity): JSON writes null, the console tables leave the row out.  JSON lists
+the fields every summary has first, then those of the ``state`` command alone (the band
+densities of states and the solve's residual); the console tables list them in the
+table's order.
+
+Derived transport numbers (D, v(E)) are computed by the physics functions, never
+re-typed here.
 """
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
+from ..physics import transport
 from ..physics.constants import EV
+from .display_units import DISPLAY_UNITS
 
-PER_CM3 = 1e-6  # m^-3 -> cm^-3
+PER_CM3 = DISPLAY_UNITS["cm^-3"]  # m^-3 -> cm^-3
 
 
 @dataclass(frozen=True)
@@ -36,6 +45,108 @@ def _number(name, factor=1.0):
 def _energy_ev(name):
     return lambda get: float(get(name)) / EV
 
+
+def _where_known(compute, unit):
+    """The value of ``compute`` in ``unit``, or None where it is unknown: a quantity the
+    values do not carry (a summary built from a bare solve has no structure), or NaN
+    (no field given, no mobility data)."""
+
+    def value(get):
+        try:
+            number = float(compute(get)) * DISPLAY_UNITS[unit]
+        except KeyError:
+            return None
+        return number if math.isfinite(number) else None
+
+    return value
+
+
+def _diffusivity(x):
+    # generalized Einstein relation at the mobility the calculation uses (physics.transport)
+    return lambda get: transport.diffusion_coefficient(
+        float(get(f"used_mu_{x}")), float(get("T")), float(get(f"eta_{x}")), int(get("dim"))
+    )
+
+
+def _field_velocity(x):
+    # Caughey–Thomas velocity at the given field; NaN (so no row) where no field is given
+    return lambda get: transport.drift_velocity(
+        float(get(f"used_mu_{x}")),
+        float(get("field")),
+        float(get(f"vsat_{x}")),
+        float(get(f"beta_{x}")),
+    )
+
+
+def _per_carrier(key, label, shown, reads, compute, unit, in_check=False):
+    """One field per carrier: ``{x}`` in key, label and reads stands for n and p."""
+    return tuple(
+        SummaryField(
+            key.format(x=x),
+            label.format(x=x),
+            shown,
+            tuple(name.format(x=x) for name in reads),
+            _where_known(compute(x), unit),
+            in_check=in_check,
+        )
+        for x in ("n", "p")
+    )
+
+
+# the transport the engine computes, in the trade's units (state rows; the check report's
+# table keeps the mobilities, the resistivity and what is only there when the
+# calculation asks for it: v(E) with a field)
+TRANSPORT = (
+    *_per_carrier(
+        "mu_{x}_cm2_per_Vs",
+        "μ_{x} (model)",
+        "{:.4g} cm^2/(V*s)",
+        ("mu_{x}",),
+        lambda x: lambda get: get(f"mu_{x}"),
+        "cm^2/(V*s)",
+        in_check=True,
+    ),
+    *_per_carrier(
+        "D_{x}_cm2_per_s",
+        "D_{x} (generalized Einstein)",
+        "{:.4g} cm^2/s",
+        ("used_mu_{x}", "T", "eta_{x}", "dim"),
+        _diffusivity,
+        "cm^2/s",
+    ),
+    *_per_carrier(
+        "v_{x}_at_field_cm_per_s",
+        "v_{x}(E) (Caughey–Thomas)",
+        "{:.4g} cm/s",
+        ("used_mu_{x}", "field", "vsat_{x}", "beta_{x}"),
+        _field_velocity,
+        "cm/s",
+        in_check=True,
+    ),
+    *_per_carrier(
+        "lambda_{x}_nm",
+        "λ_{x} (mean free path)",
+        "{:.3g} nm",
+        ("lambda_{x}",),
+        lambda x: lambda get: get(f"lambda_{x}"),
+        "nm",
+    ),
+    SummaryField(
+        "sigma_S_per_cm",
+        "σ",
+        "{:.4g} S/cm",
+        ("sigma",),
+        _where_known(lambda get: get("sigma"), "S/cm"),
+    ),
+    SummaryField(
+        "rho_ohm_cm",
+        "ρ",
+        "{:.4g} ohm*cm",
+        ("rho",),
+        _where_known(lambda get: get("rho"), "ohm*cm"),
+        in_check=True,
+    ),
+)
 
 FIELDS = (
     SummaryField(
@@ -100,6 +211,7 @@ FIELDS = (
         ("metal_n", "metal_p"),
         lambda get: bool(float(get("metal_n")) > 0 or float(get("metal_p")) > 0),
     ),
+    *TRANSPORT,
     SummaryField(
         "neutrality_residual",
         "neutrality residual",
@@ -117,3 +229,12 @@ JSON_FIELDS = tuple(f for f in FIELDS if not f.state_only) + tuple(
 # (key, label, format) of the console tables: the state command's, and the check report's
 STATE_ROWS = tuple((f.key, f.label, f.shown) for f in FIELDS if f.label)
 CHECK_ROWS = tuple((f.key, f.label, f.shown) for f in FIELDS if f.label and f.in_check)
+
+
+def shown_rows(rows, summary) -> list:
+    """(label, text) of the rows a console table shows: those with a value here."""
+    return [
+        (label, shown.format(summary[key]))
+        for key, label, shown in rows
+        if summary[key] is not None
+    ]

@@ -10,11 +10,11 @@ import json
 
 from ..quantity_registry.display_units import DISPLAY_UNITS
 from ..quantity_registry.number_text import display
-from ..quantity_registry.summary_fields import CHECK_ROWS
+from ..quantity_registry.summary_fields import CHECK_ROWS, shown_rows
 from ..vocabulary_words import Severity
 from . import DISCLAIMER
 from .safe_text import visible, visible_data
-from .sweep_text import axis_text, axis_value, boundary_lines, finding_message, worst_point
+from .sweep_text import axis_value, boundary_lines, finding_message, sweep_ranges, worst_point
 
 JSON_FORMAT = "regimecheck-report/1"
 STYLE = {"error": "bold red", "warning": "yellow", "info": "cyan"}
@@ -24,6 +24,24 @@ def doping_text(donors: dict, acceptors: dict) -> str:
     parts = [f"{k} {v * 1e-6:.3g} cm^-3 (donor)" for k, v in donors.items()]
     parts += [f"{k} {v * 1e-6:.3g} cm^-3 (acceptor)" for k, v in acceptors.items()]
     return ", ".join(parts) or "undoped"
+
+
+def point_text(calc) -> str:
+    """The operating point of a calculation; for a sweep the swept ranges, then what
+    the sweep holds fixed (never the first grid point as if it were the point)."""
+    if not calc.sweep:
+        return f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}"
+    swept = {axis.key for axis in calc.sweep}
+    parts = [sweep_ranges(calc.sweep)]
+    if "T" not in swept:
+        parts.append(f"{calc.temperature:.2f} K")
+    donors, acceptors = (
+        {k: v for k, v in species.items() if (group, k) not in swept}
+        for group, species in (("donors", calc.donors), ("acceptors", calc.acceptors))
+    )
+    if donors or acceptors:
+        parts.append(doping_text(donors, acceptors))
+    return " · ".join(parts)
 
 
 def summary_line(result, exit_code=None) -> str:
@@ -91,27 +109,21 @@ def render_console(result, console=None, stream=None) -> None:
         out = Text()
         title = f"── {' '.join(visible(calc.name).split())} "
         out.append(title + "─" * max(width - len(title), 3) + "\n", style="bold")
-        point = (
-            "sweep"
-            if calc.sweep
-            else f"{calc.temperature:.2f} K · {doping_text(calc.donors, calc.acceptors)}"
+        add(
+            out,
+            f"{_where(calc.source, calc.line)} · {calc.material.name} · {point_text(calc)}",
+            indent=0,
         )
-        add(out, f"{_where(calc.source, calc.line)} · {calc.material.name} · {point}", indent=0)
         if report.error:
             add(out, f"not checked: {report.error}", "bold red", indent=2)
             emit(out)
             continue
         if report.sweep:
-            add(
-                out,
-                f"sweep of {report.sweep['points']} points: "
-                + " × ".join(axis_text(label, axis) for label, axis in report.sweep["axes"]),
-                indent=2,
-            )
+            add(out, f"sweep of {report.sweep['points']} grid points", indent=2)
         else:
-            for key, label, fmt in CHECK_ROWS:
+            for label, text in shown_rows(CHECK_ROWS, report.state):
                 out.append(f"  {label:<24}", style="dim")
-                out.append(f"{fmt.format(report.state[key]):>24}\n")
+                out.append(f"{text:>24}\n")
         for r in report.formulas:
             out.append(f"  formula (line {r.line})".ljust(26), style="dim")
             out.append(f"{r.text}\n", style="bold")
@@ -128,12 +140,7 @@ def render_console(result, console=None, stream=None) -> None:
             if f.indicator_text():
                 add(out, f"regime indicator: {f.indicator_text()}", "dim")
             for c in f.corrections:
-                origin = "stated" if c.from_author else (c.origin or "shortcut")
-                add(
-                    out,
-                    f"{c.label}: {display(c.stated, c.unit)} ({origin}) → "
-                    f"{display(c.corrected, c.unit)}  [{c.error_text()}]",
-                )
+                add(out, correction_text(c))
             if f.waived:
                 add(out, f"waived: {f.waived}", "dim")
         for note in report.notes:
@@ -146,6 +153,59 @@ def render_console(result, console=None, stream=None) -> None:
         tail.append(f"input error: {message}\n", style="bold red")
     tail.append(f"\n{summary_line(result)}\n{DISCLAIMER}\n")
     emit(tail)
+
+
+def correction_text(c) -> str:
+    """'label: stated (who) → corrected  [error]' of one correction."""
+    origin = "stated" if c.from_author else (c.origin or "shortcut")
+    return (
+        f"{c.label}: {display(c.stated, c.unit)} ({origin}) → "
+        f"{display(c.corrected, c.unit)}  [{c.error_text()}]"
+    )
+
+
+def worst_active(report) -> Severity | None:
+    """The highest severity among a calculation's findings that are not waived."""
+    return Severity.worst(f.severity for f in report.findings if not f.waived)
+
+
+def _one_line(text) -> str:
+    return " ".join(visible(text).split())
+
+
+def render_compact(result, exit_code: int | None = None) -> str:
+    """A short plain-text form for CI logs: per calculation with findings one header
+    line and one line per finding, one line per clean calculation, then the summary
+    and the notice.  Every line stands alone (file:line on each), so a log search
+    for a file, a rule id or a severity finds whole findings."""
+    lines = []
+    for report in result.reports:
+        calc = report.calc
+        head = f"{_where(calc.source, calc.line)}  {_one_line(calc.name)}"
+        if report.error:
+            lines.append(f"not checked  {head}: {_one_line(report.error)}")
+            continue
+        if not report.findings:
+            notes = "".join(f"  (note: {_one_line(note)})" for note in report.notes)
+            lines.append(f"ok  {head}{notes}")
+            continue
+        count = len(report.findings)
+        lines.append(f"{head}  ({count} finding{'s' if count != 1 else ''})")
+        for f in report.findings:
+            tag = f"waived-{f.severity}" if f.waived else f.severity
+            parts = [_one_line(f.title)]
+            if f.sweep is not None:
+                parts.append(f"on {f.sweep.failing_fraction:.1%} of the sweep")
+            parts += [_one_line(correction_text(c)) for c in f.corrections]
+            lines.append(
+                f"  {tag:<15} {f.rule:<7} {_where(f.file, f.line, f.column)}  " + " · ".join(parts)
+            )
+        for note in report.notes:
+            lines.append(f"  note: {_one_line(note)}")
+    lines += [f"note: {_one_line(note)}" for note in result.notes]
+    lines += [f"input error: {_one_line(message)}" for message in result.input_errors]
+    lines += [summary_line(result), DISCLAIMER]
+    return "\n".join(lines) + "\n"
 
 
 def formula_lines(r) -> list:

@@ -1,9 +1,11 @@
 """A self-contained HTML review report (``--format html``).
 
 One file: inline CSS, inline SVG plots, formulas as MathML, no scripts, no network.
-Per calculation: where it comes from, the operating point (or the sweep), the stated
-formulas as math with what each embodies, the findings (stated → corrected), and
-the regime map of its material and dopant with the point (or sweep) on it.  The
+It opens with a summary table (one row per calculation: where, worst severity, the
+rules that fired, a link to its section).  Per calculation: where it comes from, the
+findings (stated → corrected) first, then the operating point (or the sweep), the
+stated formulas as math with what each embodies, and the regime map of its material
+and dopant with the point (or sweep) on it.  The
 markup is XHTML-compatible (every element closed), so it parses as XML as well as
 HTML, and it prints one calculation per page where it fits.
 """
@@ -14,11 +16,11 @@ import html
 import re
 
 from ..quantity_registry.number_text import display
-from ..quantity_registry.summary_fields import CHECK_ROWS
+from ..quantity_registry.summary_fields import CHECK_ROWS, shown_rows
 from . import DISCLAIMER
-from .check_report import formula_lines, summary_line
+from .check_report import formula_lines, point_text, summary_line, worst_active
 from .safe_text import visible
-from .sweep_text import axis_text, finding_message
+from .sweep_text import finding_message
 
 MAP_RESOLUTION = 90
 MAPS_PER_CALCULATION = 40  # above this many calculations: one map per material and dopant
@@ -42,6 +44,8 @@ table.state { width: auto; min-width: 26em; }
 .severity { font-weight: bold; text-transform: uppercase; font-size: 0.8em; }
 .error { color: #c62828; } .warning { color: #ef6c00; } .info { color: #0277bd; }
 .waived { color: #777; } .clean { color: #2e7d32; }
+table.overview td.rules { font-family: "DejaVu Sans Mono", monospace; font-size: 0.9em; }
+a.back { font-size: 0.8em; font-weight: normal; margin-left: 0.8em; }
 .meta { color: #555; font-size: 0.9em; }
 .map svg { max-width: 100%; height: auto; }
 math { font-size: 1.05em; }
@@ -122,14 +126,51 @@ def _findings_table(report) -> str:
 
 def _state_table(report) -> str:
     if report.sweep:
-        axes = " × ".join(_text(axis_text(label, axis)) for label, axis in report.sweep["axes"])
-        return f"<p>Sweep of {report.sweep['points']} points: {axes}.</p>"
+        return f"<p>Sweep of {report.sweep['points']} grid points.</p>"
     rows = "".join(
-        f'<tr><th>{_text(label)}</th><td class="num">'
-        f"{_text(fmt.format(report.state[key]))}</td></tr>"
-        for key, label, fmt in CHECK_ROWS
+        f'<tr><th>{_text(label)}</th><td class="num">{_text(text)}</td></tr>'
+        for label, text in shown_rows(CHECK_ROWS, report.state)
     )
-    return f'<table class="state"><tbody>{rows}</tbody></table>'
+    return f'<h3>Solved state</h3><table class="state"><tbody>{rows}</tbody></table>'
+
+
+def _fired(report) -> str:
+    """The rule ids of a calculation's findings, each once, waived ones marked (a rule
+    counts as waived only where every finding of it is)."""
+    waived = {}
+    for f in report.findings:
+        waived[f.rule] = waived.get(f.rule, True) and bool(f.waived)
+    return ", ".join(
+        f'<span class="waived">{_text(rule)} (waived)</span>' if all_waived else _text(rule)
+        for rule, all_waived in waived.items()
+    )
+
+
+def _overview(result) -> str:
+    """One row per calculation: where to find it and how bad it is."""
+    rows = []
+    for index, report in enumerate(result.reports):
+        calc = report.calc
+        if report.error:
+            verdict = '<span class="severity error">not checked</span>'
+        else:
+            worst = worst_active(report)
+            verdict = (
+                f'<span class="severity {worst}">{worst}</span>'
+                if worst
+                else '<span class="clean">clean</span>'
+            )
+        rows.append(
+            f'<tr><td><a href="#calc-{index}">{_text(calc.name)}</a></td>'
+            f"<td>{_text(calc.source)}:{calc.line}</td><td>{verdict}</td>"
+            f'<td class="rules">{_fired(report)}</td></tr>'
+        )
+    return (
+        '<table class="overview" id="summary"><thead><tr><th>calculation</th><th>where</th>'
+        "<th>worst</th><th>rules fired</th></tr></thead><tbody>"
+        + "".join(rows)
+        + "</tbody></table>"
+    )
 
 
 def _formulas(report) -> str:
@@ -197,6 +238,7 @@ def render_html(result, exit_code: int, maps: bool = True) -> str:
         f"<style>{STYLE}</style></head><body>",
         "<h1>regimecheck review</h1>",
         f'<p class="meta">{_text(summary_line(result))}</p>',
+        _overview(result),
     ]
     grids = {}
     shared = None
@@ -210,27 +252,21 @@ def render_html(result, exit_code: int, maps: bool = True) -> str:
         )
     for index, report in enumerate(result.reports):
         calc = report.calc
-        parts.append(f'<section id="calc-{index}"><h2>{_text(calc.name)}</h2>')
-        point = (
-            "sweep"
-            if calc.sweep
-            else (
-                f"{calc.temperature:.2f} K · "
-                + ", ".join(
-                    f"{k} {v * 1e-6:.3g} cm⁻³" for k, v in {**calc.donors, **calc.acceptors}.items()
-                )
-            )
+        parts.append(
+            f'<section id="calc-{index}"><h2>{_text(calc.name)}'
+            '<a class="back" href="#summary">↑ summary</a></h2>'
         )
         parts.append(
             f'<p class="meta">{_text(calc.source)}:{calc.line} · '
-            f"{_text(calc.material.name)} · {_text(point)}</p>"
+            f"{_text(calc.material.name)} · {_text(point_text(calc))}</p>"
         )
         if report.error:
             parts.append(f'<p class="error">Not checked: {_text(report.error)}</p></section>')
             continue
+        # what a reviewer acts on first: the findings, then the state they rest on
+        parts.append("<h3>Findings</h3>" + _findings_table(report))
         parts.append(_state_table(report))
         parts.append(_formulas(report))
-        parts.append("<h3>Findings</h3>" + _findings_table(report))
         for note in report.notes:
             parts.append(f'<p class="meta">note: {_text(note)}</p>')
         if maps:

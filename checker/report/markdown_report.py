@@ -11,9 +11,9 @@ import re
 
 from ..quantity_registry.number_text import display
 from . import DISCLAIMER
-from .check_report import doping_text, formula_lines, summary_line
+from .check_report import formula_lines, point_text, summary_line
 from .safe_text import visible
-from .sweep_text import axis_text, finding_message
+from .sweep_text import finding_message
 
 # Markdown would act on these (HTML tags, entities, links, emphasis, code, table cells)
 _MARKUP = re.compile(r"([\\`*_\[\]<>&|!~#])")
@@ -74,10 +74,7 @@ def render_markdown(result, exit_code: int) -> str:
         lines.append("")
         lines.append(
             f"{_code(f'{calc.source}:{calc.line}')} · "
-            + _cell(
-                f"{calc.material.name} · {calc.temperature:.2f} K · "
-                f"{doping_text(calc.donors, calc.acceptors)}"
-            )
+            + _cell(f"{calc.material.name} · {point_text(calc)}")
         )
         lines.append("")
         if report.error:
@@ -85,13 +82,7 @@ def render_markdown(result, exit_code: int) -> str:
             continue
         state = report.state
         if report.sweep:
-            lines.append(
-                _cell(
-                    f"Sweep of {report.sweep['points']} points: "
-                    + " × ".join(axis_text(label, axis) for label, axis in report.sweep["axes"])
-                    + "."
-                )
-            )
+            lines.append(_cell(f"Sweep of {report.sweep['points']} grid points."))
         else:
             lines.append(
                 f"Regime **{_cell(state['regime'])}**; "

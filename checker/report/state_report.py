@@ -5,6 +5,7 @@ from __future__ import annotations
 import json
 
 from ..quantity_registry.summary_fields import STATE_ROWS as ROWS  # (key, label, format)
+from ..quantity_registry.summary_fields import shown_rows
 from . import DISCLAIMER
 from .safe_text import visible, visible_data
 
@@ -25,8 +26,8 @@ def render_console(entries, errors, console) -> None:
         )
         table.add_column("quantity")
         table.add_column("value", justify="right")
-        for key, label, fmt in ROWS:
-            table.add_row(label, fmt.format(summary[key]))
+        for label, text in shown_rows(ROWS, summary):
+            table.add_row(label, text)
         console.print(table)
     for message in errors:
         console.print(Text("error ", style="bold red") + Text(visible(message)), highlight=False)

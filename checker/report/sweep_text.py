@@ -6,17 +6,26 @@ from __future__ import annotations
 from ..engine.regime.sweep import axis_label
 
 
+def _trade(axis, value) -> tuple[str, str]:
+    """(number, unit) of a grid value in trade units."""
+    return (f"{value:.4g}", "K") if axis.key == "T" else (f"{value * 1e-6:.3g}", "cm⁻³")
+
+
 def axis_value(axis, value) -> str:
     """A grid value in trade units: '300 K', '2.5e+18 cm⁻³'."""
-    return f"{value:.4g} K" if axis.key == "T" else f"{value * 1e-6:.3g} cm⁻³"
+    return " ".join(_trade(axis, value))
 
 
 def axis_text(label, axis) -> str:
-    """One axis of a sweep: 'T 233.1 K … 423.1 K (39 linear steps)'."""
-    return (
-        f"{label} {axis_value(axis, axis.values[0])} … {axis_value(axis, axis.values[-1])} "
-        f"({len(axis.values)} {axis.spacing} steps)"
-    )
+    """One axis of a sweep as its range: 'T 233.1–423.1 K (39 points, linear)'."""
+    first, unit = _trade(axis, axis.values[0])
+    last, _ = _trade(axis, axis.values[-1])
+    return f"{label} {first}–{last} {unit} ({len(axis.values)} points, {axis.spacing})"
+
+
+def sweep_ranges(axes) -> str:
+    """Every swept axis of a calculation (its ``sweep``) as a range, joined by ×."""
+    return " × ".join(axis_text(axis_label(axis), axis) for axis in axes)
 
 
 def _runs_text(axis, runs) -> str:
