@@ -87,17 +87,18 @@ def render_console(result, console=None, stream=None) -> None:
     One text per calculation, emitted once; long lines wrapped here, indent kept."""
     import textwrap
 
+    Text: type
     if console is None:
         Text, width = _PlainText, PLAIN_WIDTH
         emit = lambda text: stream.write(text.plain)
     else:
         from rich.text import Text as RichText
 
-        class Text(RichText):  # user text reaches the terminal escaped
+        class _EscapedText(RichText):  # user text reaches the terminal escaped
             def append(self, text, style=None):
                 return super().append(visible(text) if isinstance(text, str) else text, style)
 
-        width = max(console.width, 60)
+        Text, width = _EscapedText, max(console.width, 60)
         emit = lambda text: console.print(text, end="", highlight=False)
 
     def add(text, line, style="", indent=8):

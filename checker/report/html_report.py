@@ -137,7 +137,7 @@ def _state_table(report) -> str:
 def _fired(report) -> str:
     """The rule ids of a calculation's findings, each once, waived ones marked (a rule
     counts as waived only where every finding of it is)."""
-    waived = {}
+    waived: dict[str, bool] = {}
     for f in report.findings:
         waived[f.rule] = waived.get(f.rule, True) and bool(f.waived)
     return ", ".join(
@@ -240,7 +240,7 @@ def render_html(result, exit_code: int, maps: bool = True) -> str:
         f'<p class="meta">{_text(summary_line(result))}</p>',
         _overview(result),
     ]
-    grids = {}
+    grids: dict = {}
     shared = None
     if len(result.reports) > MAPS_PER_CALCULATION:
         from ..engine.regime.regime_map import map_groups
