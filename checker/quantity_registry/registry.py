@@ -100,7 +100,18 @@ QUANTITIES = (
         "band gap at T (J inside; narrowed when band_gap_narrowing is on)",
         symbols=("E_g",),
     ),
-    _q("ni", "cm^-3", "intrinsic density sqrt(N_c N_v) exp(-E_g/2kT)", symbols=("n_i",)),
+    _q(
+        "ni",
+        "cm^-3",
+        "intrinsic density sqrt(N_c N_v) exp(-E_g/2kT) of the undoped crystal",
+        symbols=("n_i",),
+    ),
+    _q(
+        "nie",
+        "cm^-3",
+        "effective intrinsic density of the solve: n_i exp(ΔE_g/2kT) with band-gap "
+        "narrowing on, n_i otherwise",
+    ),
     _q(
         "ni_lo",
         "cm^-3",
@@ -181,11 +192,13 @@ QUANTITIES = (
     _q("vsat_x", "cm/s", "saturation velocity", symbols=("v_sat_n", "v_sat_p")),
     _q("beta_x", "1", "Caughey–Thomas field exponent", symbols=("beta_n", "beta_p")),
     _q("vth_x", "cm/s", "unidirectional thermal velocity <v_x+> (Fermi–Dirac)"),
+    _q("lambda_model_x", "nm", "backscattering mean free path 2D/<v_x+> at the model mobility"),
     _q(
-        "lambda_x",
-        "nm",
-        "backscattering mean free path 2D/<v_x+> at the mobility used",
-        symbols=("lambda_n", "lambda_p"),
+        "dens_bgn_x",
+        "cm^-3",
+        "carrier density of a solve with the material's band-gap narrowing (dens_x where "
+        "narrowing is on already, the material has no narrowing model, or it shifts n_i² by "
+        "less than 1 %)",
     ),
     # ---- words ----------------------------------------------------------------------------------
     _q("regime", TEXT_UNIT, "regime of the operating point", _T),
@@ -261,9 +274,17 @@ QUANTITIES = (
     _q(
         "used_mu_x",
         "cm^2/(V*s)",
-        "mobility the calculation uses: the stated one, else the model's",
+        "mobility of the corrected calculation: the stated one unless a rule rejects it "
+        "(replaces:), else the model's",
         _D,
         symbols=("mu_n", "mu_p"),
+    ),
+    _q(
+        "lambda_x",
+        "nm",
+        "backscattering mean free path 2D/<v_x+> at the mobility of the corrected calculation",
+        _D,
+        symbols=("lambda_n", "lambda_p"),
     ),
     _q(
         "sigma",
@@ -273,6 +294,13 @@ QUANTITIES = (
         symbols=("sigma",),
     ),
     _q("rho", "ohm*cm", "resistivity 1/sigma", _D, symbols=("rho",)),
+    _q(
+        "used_rho",
+        "ohm*cm",
+        "resistivity of the corrected calculation: the stated one (or 1/stated conductivity) "
+        "unless a rule rejects it (replaces:), else rho",
+        _D,
+    ),
     _q(
         "sigma_model",
         "S/cm",

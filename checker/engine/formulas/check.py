@@ -102,6 +102,7 @@ class FormulaResult:
     unit: str = ""  # display unit (a key of DISPLAY_UNITS), "" for SI
     si_unit: str = ""  # SI unit text where no display unit is set
     error: float = math.nan  # relative error, or (value - exact)/kT for energies
+    energy: bool = False  # an energy: its error is measured in kT
 
     @property
     def status(self) -> str:
@@ -310,37 +311,58 @@ def analyse_calculation(calc, point: dict | None) -> FormulaAnalysis:
         result.match = analyse(lhs, rhs, dim, calc.majority)
         result.unit = _DISPLAY.get(left, "")
         result.si_unit = dm.text(left)
+        result.energy = left == dm.ENERGY
         if point is not None:
-            result.value, result.exact = _evaluate(rhs, point), _evaluate(lhs, point)
-            if np.isfinite(result.value) and np.isfinite(result.exact):
-                if left == dm.ENERGY:
-                    result.error = (result.value - result.exact) / (point["k"] * point["T"])
-                elif result.exact != 0:
-                    result.error = result.value / result.exact - 1.0
+            _value(result, point)
         for word, carrier in result.match.assumptions:
             out.embodied.append(Embodied(word, carrier, line, text))
     return out
 
 
-def analyse_all(calculations, values, skip=()) -> list:
-    """FormulaAnalysis per calculation (values at the operating point unless skipped)."""
+def _points(calculations, values, skip) -> list:
+    """Every formula symbol's value per calculation with formulas (None: none, or skipped)."""
     with_formulas = [i for i, c in enumerate(calculations) if c.formulas]
     points = [None] * len(calculations)
-    if with_formulas:
-        solved = [i for i in with_formulas if i not in skip]
-        if solved:
-            subset = {
-                name: np.asarray(array)[solved] if np.ndim(array) else array
-                for name, array in values.items()
-            }
-            for i, point in zip(
-                solved, operating_values(subset, [calculations[i] for i in solved])
-            ):
-                points[i] = point
+    solved = [i for i in with_formulas if i not in skip]
+    if solved:
+        subset = {
+            name: np.asarray(array)[solved] if np.ndim(array) else array
+            for name, array in values.items()
+        }
+        for i, point in zip(solved, operating_values(subset, [calculations[i] for i in solved])):
+            points[i] = point
+    return points
+
+
+def analyse_all(calculations, values, skip=()) -> list:
+    """FormulaAnalysis per calculation (values at the operating point unless skipped)."""
+    points = _points(calculations, values, skip)
     return [
         analyse_calculation(calc, points[i]) if calc.formulas else FormulaAnalysis()
         for i, calc in enumerate(calculations)
     ]
+
+
+def evaluate_all(analyses, calculations, values, skip=()) -> None:
+    """Each formula's value and the exact value at its operating point again, from
+    ``values`` as the rules left them (the corrected calculation: a rejected stated
+    mobility no longer sets the exact D a formula line is compared with)."""
+    points = _points(calculations, values, skip)
+    for analysis, point in zip(analyses, points):
+        if analysis is not None and point is not None:
+            for result in analysis.results:
+                if result.match is not None:
+                    _value(result, point)
+
+
+def _value(result, point) -> None:
+    result.value, result.exact = _evaluate(result.rhs, point), _evaluate(result.lhs, point)
+    result.error = math.nan
+    if np.isfinite(result.value) and np.isfinite(result.exact):
+        if result.energy:
+            result.error = (result.value - result.exact) / (point["k"] * point["T"])
+        elif result.exact != 0:
+            result.error = result.value / result.exact - 1.0
 
 
 # ---- findings -------------------------------------------------------------------------------
@@ -421,7 +443,10 @@ def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings
             and abs(result.error) > off_rule.threshold
             and result.text not in covered
         )
-        if match.status == "unrecognised" and "FORM02" in rules:
+        # one finding per formula line: off at this point, a formula is FORM03's (a
+        # warning) whether or not it matches a relation; FORM02 (info) is left for one
+        # that matches none but agrees here
+        if match.status == "unrecognised" and "FORM02" in rules and not off:
             rule = rules["FORM02"]
             out.append(_finding(rule, calc, result, _fill(rule.message, fields), corrections))
         if off:

@@ -31,6 +31,7 @@ from ...vocabulary_words import carrier_message_words
 from ..findings import Correction, Finding, carrier_word
 from ..vocabulary import carrier_names
 from .rulebook import PLACEHOLDER
+from .state_values import derive_corrected
 
 
 @dataclass
@@ -101,18 +102,43 @@ def _cells_array(expression, x, values, count) -> np.ndarray:
 
 def rule_cells(rules, cells):
     """:class:`Ruled` of every rule and carrier over ``cells`` (rules evaluated by engine
-    code, ``evaluated_by``, are left to it)."""
+    code, ``evaluated_by``, are left to it).
+
+    Rules that reject a stated input (``replaces:``, e.g. a stated mobility off the model)
+    are ruled first; where they fire, the corrected calculation takes the replacement and
+    everything downstream is derived again (state_values.derive_corrected), so that every
+    later rule -- and the formulas' exact values -- see one consistent calculation."""
+    ordered = sorted(
+        (rule for rule in rules if not rule.evaluated_by), key=lambda r: not r.replaces
+    )
+    replaced = {}
     with np.errstate(all="ignore"):
-        for rule in rules:
-            if rule.evaluated_by:
-                continue
+        for k, rule in enumerate(ordered):
+            if replaced and not rule.replaces and ordered[k - 1].replaces:
+                derive_corrected(cells.values, replaced)
             for x in rule.carriers:
                 names = carrier_names(x) if x else {}
                 made, by_formula = assumption_made(rule, x, names, cells)
                 fired, indicator, implied = rule_mask(
                     rule, x, names, made, cells.values, cells.count
                 )
-                yield Ruled(rule, x, names, fired & cells.valid, indicator, implied, by_formula)
+                ruled = Ruled(rule, x, names, fired & cells.valid, indicator, implied, by_formula)
+                _replace(ruled, cells.values, replaced)
+                yield ruled
+        if replaced and all(rule.replaces for rule in ordered):
+            derive_corrected(cells.values, replaced)
+
+
+def _replace(ruled, values, replaced) -> None:
+    """Where ``ruled`` fired, put its replacements into the corrected calculation and
+    remember the cells (``replaced``: concrete name -> mask)."""
+    if not ruled.rule.replaces or not ruled.fired.any():
+        return
+    for target, source in ruled.rule.replaces.items():
+        name = ruled.names.get(target, target)
+        fill = np.broadcast_to(values[ruled.names.get(source, source)], ruled.fired.shape)
+        values[name] = np.where(ruled.fired, fill, values[name])
+        replaced[name] = replaced.get(name, np.zeros(ruled.fired.shape, bool)) | ruled.fired
 
 
 _NO_FORMULA = np.iinfo(np.int64).max
@@ -192,7 +218,9 @@ def evaluate(rules, calculations, values, skip=(), embodied=None) -> list:
     assumptions of its stated formulas; ``skip``: calculations not solved)."""
     cells = Cells.points(calculations, values, embodied, skip)
     findings = [[] for _ in calculations]
-    for ruled in rule_cells(rules, cells):
+    # every rule first, so that each correction is read off the one corrected calculation
+    # (after every replacement), whichever rule reports it
+    for ruled in list(rule_cells(rules, cells)):
         add_findings(ruled, cells, findings)
     return findings
 

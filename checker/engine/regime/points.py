@@ -34,6 +34,10 @@ def check_points(calculations, rules) -> tuple[list, list]:
         analyses = formula_check.analyse_all(calculations, values, skip=solve_errors.keys())
     embodied = [a.embodied if a else [] for a in analyses]
     findings = evaluate(rules, calculations, values, skip=solve_errors.keys(), embodied=embodied)
+    if any(analyses):
+        # the rules may have replaced a rejected stated input: the formulas' exact values
+        # follow the corrected calculation too
+        formula_check.evaluate_all(analyses, calculations, values, skip=solve_errors.keys())
     by_id = {rule.id: rule for rule in rules}
     reports = []
     for i, calc in enumerate(calculations):

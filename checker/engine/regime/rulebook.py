@@ -87,6 +87,9 @@ _QUANTITY = Choice(
     "a quantity of engine/vocabulary.py",
     "quantity of engine/vocabulary.py",
 )
+# what a rule may replace in the corrected calculation where it fires (the rule-file forms
+# of state_values.REPLACEABLE): a rejected stated mobility or resistivity, or a density
+REPLACEABLE = ("used_mu_x", "used_rho", "dens_x", "dens_o")
 _HEAD = {
     "id": Pattern(r"[A-Z]{2,5}[0-9]{2}", "STAT01", "2-5 capitals and 2 digits; the file name"),
     "title": Text(),
@@ -151,6 +154,14 @@ EXPRESSION_RULE = Block(
             ),
             about="extra message values: name -> {expression, unit} or {text}",
         ),
+        "replaces": Named(
+            Choice(REPLACEABLE, "a quantity the corrected calculation may take from elsewhere"),
+            _QUANTITY,
+            about=(
+                "where the rule fires, the corrected calculation uses the quantity on the "
+                "right for the one on the left (a rejected stated value is not used downstream)"
+            ),
+        ),
         "message": _MESSAGE,
         "corrections": EmptyOrListOf(
             Block(
@@ -167,7 +178,7 @@ EXPRESSION_RULE = Block(
         ),
         **_TAIL,
     },
-    optional=("requires", "show"),
+    optional=("requires", "show", "replaces"),
 )
 ENGINE_RULE = Block(
     {
@@ -242,6 +253,7 @@ class Rule:
     carriers: tuple = field(default=())
     evaluated_by: str | None = None  # engine check that produces this rule's findings
     tolerance: str | None = None  # configuration tolerance that sets the threshold
+    replaces: dict = field(default_factory=dict)  # name -> name used where the rule fires
 
 
 # ---- reading a rule file ---------------------------------------------------------------
@@ -435,7 +447,18 @@ class _Builder:
             corrections=corrections,
             requires=tuple(data.get("requires", ())),
             show=show,
+            replaces=self.replacements(data.get("replaces", {})),
         )
+
+    def replacements(self, entries: dict) -> dict:
+        for target, source in entries.items():
+            if name_dimension(target) != name_dimension(source):
+                self.report.add(
+                    ("replaces", target),
+                    f"{source} is {dm.describe(name_dimension(source))}, but {target} is "
+                    f"{dm.describe(name_dimension(target))}",
+                )
+        return dict(entries)
 
     def correction(self, entry: dict, where: tuple) -> Correction:
         unit = entry.get("unit", "1")

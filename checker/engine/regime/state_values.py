@@ -154,13 +154,17 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
         if material.narrowing
         else np.full_like(T, np.nan)
     )
-    ni_lo, ni_hi = _ni_spread(material, T, state.ni, first.band_gap_narrowing)
+    # n_i is the intrinsic density of the undoped crystal; with narrowing on the solve's
+    # is the effective one, n_ie
+    ni = state.ni * np.exp(-narrowing / (2 * state.kT)) if first.band_gap_narrowing else state.ni
+    ni_lo, ni_hi = _ni_spread(material, T, ni)
     put = {
         "T": T,
         "kT": state.kT,
         "kT_q": flow["kT_over_q"],
         "Eg": state.Eg,
-        "ni": state.ni,
+        "ni": ni,
+        "nie": state.ni,
         "ni_lo": ni_lo,
         "ni_hi": ni_hi,
         "Nnet": net,
@@ -225,11 +229,12 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
                 f"vsat_{x}": flow[f"vsat_{x}"],
                 f"beta_{x}": flow[f"beta_{x}"],
                 f"vth_{x}": flow[f"v_{x}"],
-                f"lambda_{x}": flow[f"mfp_{x}"],
+                f"lambda_model_{x}": flow[f"mfp_{x}"],
                 f"Eion_{x}": np.full_like(T, main.energy if main else np.nan),
                 f"gdeg_{x}": np.full_like(T, main.degeneracy if main else np.nan),
             }
         )
+    put.update(_narrowed_densities(first, T, donors, acceptors, state, narrowing))
     # electrons count as the majority on a tie (intrinsic material: n = p to rounding)
     put["maj_n"] = (state.n >= state.p * (1 - 1e-9)).astype(float)
     put["maj_p"] = 1.0 - put["maj_n"]
@@ -241,10 +246,39 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
     return put, skipped
 
 
-def _ni_spread(material, T, ni, narrowing_on):
+# narrowing that changes n_i^2 by less than this factor is not worth a second solve
+_NARROWING_NEGLIGIBLE = 1.01
+
+
+def _narrowed_densities(first, T, donors, acceptors, state, narrowing) -> dict:
+    """dens_bgn_x: the carrier densities of a solve with the material's band-gap narrowing
+    where the calculation solves without it and the narrowing matters (the corrected
+    calculation takes the minority density from it where DOPE01 rejects the undoped
+    n_i); the solve's own densities elsewhere."""
+    out = {"dens_bgn_n": state.n.copy(), "dens_bgn_p": state.p.copy()}
+    if first.band_gap_narrowing or first.material.narrowing is None:
+        return out
+    with np.errstate(all="ignore"):
+        matters = np.exp(narrowing / state.kT) > _NARROWING_NEGLIGIBLE
+    if not matters.any():
+        return out
+    pick = np.flatnonzero(matters)
+    narrowed = equilibrium.solve(
+        first.material,
+        T[pick],
+        {s: np.broadcast_to(d, T.shape)[pick] for s, d in donors.items()},
+        {s: np.broadcast_to(d, T.shape)[pick] for s, d in acceptors.items()},
+        band_gap_narrowing=True,
+    )
+    out["dens_bgn_n"][pick] = narrowed.n
+    out["dens_bgn_p"][pick] = narrowed.p
+    return out
+
+
+def _ni_spread(material, T, ni):
     """The material's published 300 K spread of n_i carried to T by the model's own
     temperature dependence (the model value itself where none is tabulated)."""
-    if material.ni_published is None or narrowing_on:
+    if material.ni_published is None:
         # no tabulated spread: the model value +-5 % (common practice (no source))
         return ni / 1.05, ni * 1.05
     at_300 = equilibrium.solve(material, np.array([300.0])).ni[0]
@@ -303,22 +337,45 @@ def fill_inputs(calculations, values, count=None):
     none = ~(specific["n"] | specific["p"])
     for x in ("n", "p"):
         values[f"in_use_{x}"] = (specific[x] | (none & (values[f"maj_{x}"] > 0))).astype(float)
-        used = np.where(
-            np.isfinite(values[f"stated_mu_{x}"]), values[f"stated_mu_{x}"], values[f"mu_{x}"]
-        )
-        # the mean free path scales with the mobility the author uses
-        values[f"lambda_{x}"] = values[f"lambda_{x}"] * used / values[f"mu_{x}"]
-        values[f"used_mu_{x}"] = used
-    values["sigma"] = ELEMENTARY_CHARGE * (
-        values["dens_n"] * values["cond_n"] * values["used_mu_n"]
-        + values["dens_p"] * values["cond_p"] * values["used_mu_p"]
-    )
-    values["rho"] = 1.0 / values["sigma"]
+    derive_corrected(values, {})
     values["sigma_model"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["mu_n"]
         + values["dens_p"] * values["cond_p"] * values["mu_p"]
     )
     _hall(values, column(lambda c: c.hall_exponent))
+
+
+# what a rule's replaces: may set in the corrected calculation (see derive_corrected)
+REPLACEABLE = ("used_mu_n", "used_mu_p", "used_rho", "dens_n", "dens_p")
+
+
+def derive_corrected(values, replaced) -> None:
+    """The quantities of the corrected calculation that follow from the mobility, the
+    resistivity and the densities it uses, written into ``values``.
+
+    A stated mobility or resistivity is used unless a rule rejected it: ``replaced`` maps
+    a name of REPLACEABLE to a boolean array of the cells where a rule's ``replaces:``
+    put the model's value in (evaluate.rule_cells applies it, then calls this again), so
+    everything downstream -- mean free path, σ, ρ, R, D -- follows one chain."""
+
+    def kept(name):
+        return ~replaced[name] if name in replaced else True
+
+    for x in Carrier:
+        stated, model = values[f"stated_mu_{x}"], values[f"mu_{x}"]
+        used = np.where(np.isfinite(stated) & kept(f"used_mu_{x}"), stated, model)
+        values[f"used_mu_{x}"] = used
+        # the mean free path scales with the mobility used
+        values[f"lambda_{x}"] = values[f"lambda_model_{x}"] * used / model
+    values["sigma"] = ELEMENTARY_CHARGE * (
+        values["dens_n"] * values["cond_n"] * values["used_mu_n"]
+        + values["dens_p"] * values["cond_p"] * values["used_mu_p"]
+    )
+    values["rho"] = 1.0 / values["sigma"]
+    stated_rho = values["stated_rho"]
+    values["used_rho"] = np.where(
+        np.isfinite(stated_rho) & kept("used_rho"), stated_rho, values["rho"]
+    )
 
 
 def _hall(values, exponents):
