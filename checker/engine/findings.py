@@ -34,6 +34,7 @@ class Correction:
     error: float  # stated / corrected - 1
     from_author: bool  # True: the author wrote the number; False: shortcut value
     origin: str = ""  # "formula" where a stated formula gave the value
+    key: str | None = None  # the stated quantity corrected (regime/corrected.py), if any
 
     @property
     def stated_by(self) -> str:
@@ -64,6 +65,7 @@ class Finding:
     formula: str | None = None  # the stated formula that made the assumption
     column: str | None = None  # table column of the stated number (CSV inputs)
     sweep: object = None  # sweep.SweepSummary where the finding covers a grid
+    also_at: tuple = ()  # other lines of the same file where the assumption is made
 
     def indicator_text(self) -> str | None:
         """'η = 1.16 > -3', or None for a check without a numeric indicator."""
