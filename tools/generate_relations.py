@@ -43,31 +43,38 @@ checker/physics/fermi.py; its order may differ per point.
 
 # ruff: noqa: E501
 
+from __future__ import annotations
+
+from collections.abc import Callable
+
 import numpy
 
+from .arrays import ArrayIn, FloatArray, FloatOrArray
 from .fermi import fermi_dirac, log_fermi_dirac
 
 
-def _per_order(function, order, eta):
+def _per_order(
+    function: Callable[[float, FloatArray], FloatOrArray], order: ArrayIn, eta: ArrayIn
+) -> FloatOrArray:
     """function(j, eta) where the order j may be an array (one call per distinct order)."""
-    order = numpy.asarray(order, dtype=float)
-    eta = numpy.asarray(eta, dtype=float)
-    if order.ndim == 0:
-        return function(float(order), eta)
-    order, eta = numpy.broadcast_arrays(order, eta)
-    out = numpy.full(eta.shape, numpy.nan)
-    for j in numpy.unique(order[numpy.isfinite(order)]):
-        pick = order == j
-        out[pick] = function(float(j), eta[pick])
+    orders = numpy.asarray(order, dtype=float)
+    etas = numpy.asarray(eta, dtype=float)
+    if orders.ndim == 0:
+        return function(float(orders), etas)
+    orders, etas = numpy.broadcast_arrays(orders, etas)
+    out = numpy.full(etas.shape, numpy.nan)
+    for j in numpy.unique(orders[numpy.isfinite(orders)]):
+        pick = orders == j
+        out[pick] = function(float(j), etas[pick])
     return out
 
 
-def _fermi(order, eta):
+def _fermi(order: ArrayIn, eta: ArrayIn) -> FloatOrArray:
     """F_j(eta), normalized (F_j -> e^eta for eta -> -inf)."""
     return _per_order(fermi_dirac, order, eta)
 
 
-def _fermi_ratio(upper, lower, eta):
+def _fermi_ratio(upper: ArrayIn, lower: ArrayIn, eta: ArrayIn) -> FloatOrArray:
     """F_upper(eta)/F_lower(eta) as exp(ln F_upper - ln F_lower): finite where both
     underflow (eta << 0)."""
     return numpy.exp(
@@ -114,10 +121,14 @@ def physics_module() -> str:
     for f in table.FUNCTIONS.values():
         args = [str(p) for p in f.parameters]
         body = printer.doprint(_fermi_ratios(f.expression))
+        typed = ", ".join(f"{a}: ArrayIn" for a in args)
+        # float arrays from here on: numpy semantics (inf, not ZeroDivisionError) for
+        # plain numbers too, and array types for the type checker
+        as_arrays = "".join(f"    {a} = numpy.asarray({a}, dtype=float)\n" for a in args)
         parts.append(
             f'''
 
-def {f.name}({", ".join(args)}):
+def {f.name}({typed}) -> FloatOrArray:
     """{f.meaning[0].upper() + f.meaning[1:]}.
 
     Formula: {text(f.expression)}
@@ -127,13 +138,14 @@ def {f.name}({", ".join(args)}):
     ----------
     {f.reference}
     """
-    return {body}
+{as_arrays}    value: FloatOrArray = {body}
+    return value
 '''
         )
         signatures.append(f"    {f.name!r}: ({tuple(args)!r}, {f.meaning!r}),")
     parts.append(
         "\n\n# name -> (parameters, meaning): the functions rule expressions may call\n"
-        "SIGNATURES = {\n" + "\n".join(signatures) + "\n}\n"
+        "SIGNATURES: dict[str, tuple[tuple[str, ...], str]] = {\n" + "\n".join(signatures) + "\n}\n"
     )
     return "".join(parts)
 
@@ -167,13 +179,13 @@ def texts_module() -> str:
         "# ruff: noqa: E501",
         "",
         "# relation function -> (parameters, formula over them)",
-        "FUNCTIONS = {",
+        "FUNCTIONS: dict[str, tuple[tuple[str, ...], str]] = {",
     ]
     for f in table.FUNCTIONS.values():
         params = tuple(str(p) for p in f.parameters)
         lines.append(f"    {f.name!r}: ({params!r}, {text(f.expression)!r}),")
     lines += ["}", "", "# (dimensionality, majority carrier) -> defined symbol -> definition"]
-    lines.append("DEFINITIONS = {")
+    lines.append("DEFINITIONS: dict[tuple[int, str], dict[str, str]] = {")
     for d in (3, 2, 1):
         for majority in ("n", "p"):
             lines.append(f"    ({d}, {majority!r}): {{")
@@ -184,7 +196,7 @@ def texts_module() -> str:
         "}",
         "",
         "# neutrality world -> the dopant it defines -> definition",
-        "NEUTRALITY = {",
+        "NEUTRALITY: dict[str, dict[str, str]] = {",
     ]
     for world, defined in table.NEUTRALITY.items():
         inner = ", ".join(f"{name!r}: {text(expr)!r}" for name, expr in defined.items())

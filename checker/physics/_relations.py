@@ -7,31 +7,38 @@ checker/physics/fermi.py; its order may differ per point.
 
 # ruff: noqa: E501
 
+from __future__ import annotations
+
+from collections.abc import Callable
+
 import numpy
 
+from .arrays import ArrayIn, FloatArray, FloatOrArray
 from .fermi import fermi_dirac, log_fermi_dirac
 
 
-def _per_order(function, order, eta):
+def _per_order(
+    function: Callable[[float, FloatArray], FloatOrArray], order: ArrayIn, eta: ArrayIn
+) -> FloatOrArray:
     """function(j, eta) where the order j may be an array (one call per distinct order)."""
-    order = numpy.asarray(order, dtype=float)
-    eta = numpy.asarray(eta, dtype=float)
-    if order.ndim == 0:
-        return function(float(order), eta)
-    order, eta = numpy.broadcast_arrays(order, eta)
-    out = numpy.full(eta.shape, numpy.nan)
-    for j in numpy.unique(order[numpy.isfinite(order)]):
-        pick = order == j
-        out[pick] = function(float(j), eta[pick])
+    orders = numpy.asarray(order, dtype=float)
+    etas = numpy.asarray(eta, dtype=float)
+    if orders.ndim == 0:
+        return function(float(orders), etas)
+    orders, etas = numpy.broadcast_arrays(orders, etas)
+    out = numpy.full(etas.shape, numpy.nan)
+    for j in numpy.unique(orders[numpy.isfinite(orders)]):
+        pick = orders == j
+        out[pick] = function(float(j), etas[pick])
     return out
 
 
-def _fermi(order, eta):
+def _fermi(order: ArrayIn, eta: ArrayIn) -> FloatOrArray:
     """F_j(eta), normalized (F_j -> e^eta for eta -> -inf)."""
     return _per_order(fermi_dirac, order, eta)
 
 
-def _fermi_ratio(upper, lower, eta):
+def _fermi_ratio(upper: ArrayIn, lower: ArrayIn, eta: ArrayIn) -> FloatOrArray:
     """F_upper(eta)/F_lower(eta) as exp(ln F_upper - ln F_lower): finite where both
     underflow (eta << 0)."""
     return numpy.exp(
@@ -39,7 +46,7 @@ def _fermi_ratio(upper, lower, eta):
     )
 
 
-def einstein_ratio(dim, eta):
+def einstein_ratio(dim: ArrayIn, eta: ArrayIn) -> FloatOrArray:
     """Generalized Einstein ratio (D/mu)/(kT/q) of a parabolic band of dimensionality dim at reduced Fermi level eta (dimensionless).
 
     Formula: F(-1 + dim/2, eta)/F(-2 + dim/2, eta)
@@ -49,10 +56,13 @@ def einstein_ratio(dim, eta):
     ----------
     P. T. Landsberg, Eur. J. Phys. 2, 213 (1981)
     """
-    return _fermi_ratio((1 / 2) * dim - 1, (1 / 2) * dim - 2, eta)
+    dim = numpy.asarray(dim, dtype=float)
+    eta = numpy.asarray(eta, dtype=float)
+    value: FloatOrArray = _fermi_ratio((1 / 2) * dim - 1, (1 / 2) * dim - 2, eta)
+    return value
 
 
-def field_velocity(mu, field, v_sat, beta):
+def field_velocity(mu: ArrayIn, field: ArrayIn, v_sat: ArrayIn, beta: ArrayIn) -> FloatOrArray:
     """Caughey–Thomas drift velocity at field magnitude E (m/s).
 
     Formula: field*mu/(1 + (field*mu/v_sat)**beta)**(1/beta)
@@ -62,10 +72,15 @@ def field_velocity(mu, field, v_sat, beta):
     ----------
     D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967)
     """
-    return field * mu * ((field * mu / v_sat) ** beta + 1) ** (-1 / beta)
+    mu = numpy.asarray(mu, dtype=float)
+    field = numpy.asarray(field, dtype=float)
+    v_sat = numpy.asarray(v_sat, dtype=float)
+    beta = numpy.asarray(beta, dtype=float)
+    value: FloatOrArray = field * mu * ((field * mu / v_sat) ** beta + 1) ** (-1 / beta)
+    return value
 
 
-def field_mobility(mu, field, v_sat, beta):
+def field_mobility(mu: ArrayIn, field: ArrayIn, v_sat: ArrayIn, beta: ArrayIn) -> FloatOrArray:
     """Caughey–Thomas mobility at field magnitude E (m^2/(V s)).
 
     Formula: mu/(1 + (field*mu/v_sat)**beta)**(1/beta)
@@ -75,10 +90,17 @@ def field_mobility(mu, field, v_sat, beta):
     ----------
     D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967)
     """
-    return mu * ((field * mu / v_sat) ** beta + 1) ** (-1 / beta)
+    mu = numpy.asarray(mu, dtype=float)
+    field = numpy.asarray(field, dtype=float)
+    v_sat = numpy.asarray(v_sat, dtype=float)
+    beta = numpy.asarray(beta, dtype=float)
+    value: FloatOrArray = mu * ((field * mu / v_sat) ** beta + 1) ** (-1 / beta)
+    return value
 
 
-def conductor_resistance(rho, L, mean_free_path, A):
+def conductor_resistance(
+    rho: ArrayIn, L: ArrayIn, mean_free_path: ArrayIn, A: ArrayIn
+) -> FloatOrArray:
     """Resistance of a conductor of any length, diffusive plus ballistic (ohm).
 
     Formula: rho*(L + mean_free_path)/A
@@ -88,10 +110,15 @@ def conductor_resistance(rho, L, mean_free_path, A):
     ----------
     M. Lundstrom and C. Jeong, Near-Equilibrium Transport (2012), ch. 3
     """
-    return rho * (L + mean_free_path) / A
+    rho = numpy.asarray(rho, dtype=float)
+    L = numpy.asarray(L, dtype=float)
+    mean_free_path = numpy.asarray(mean_free_path, dtype=float)
+    A = numpy.asarray(A, dtype=float)
+    value: FloatOrArray = rho * (L + mean_free_path) / A
+    return value
 
 
-def intrinsic_density(N_c, N_v, E_g, kT):
+def intrinsic_density(N_c: ArrayIn, N_v: ArrayIn, E_g: ArrayIn, kT: ArrayIn) -> FloatOrArray:
     """Intrinsic density n_i (per m^3 for N_c, N_v per m^3).
 
     Formula: sqrt(N_c)*sqrt(N_v)*exp(-E_g/(2*kT))
@@ -101,10 +128,17 @@ def intrinsic_density(N_c, N_v, E_g, kT):
     ----------
     S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1
     """
-    return numpy.sqrt(N_c) * numpy.sqrt(N_v) * numpy.exp(-1 / 2 * E_g / kT)
+    N_c = numpy.asarray(N_c, dtype=float)
+    N_v = numpy.asarray(N_v, dtype=float)
+    E_g = numpy.asarray(E_g, dtype=float)
+    kT = numpy.asarray(kT, dtype=float)
+    value: FloatOrArray = numpy.sqrt(N_c) * numpy.sqrt(N_v) * numpy.exp(-1 / 2 * E_g / kT)
+    return value
 
 
-def two_carrier_conductivity(n, p, mu_n, mu_p, q):
+def two_carrier_conductivity(
+    n: ArrayIn, p: ArrayIn, mu_n: ArrayIn, mu_p: ArrayIn, q: ArrayIn
+) -> FloatOrArray:
     """Drift conductivity of electrons and holes (S/m).
 
     Formula: q*(mu_n*n + mu_p*p)
@@ -114,11 +148,17 @@ def two_carrier_conductivity(n, p, mu_n, mu_p, q):
     ----------
     S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1
     """
-    return q * (mu_n * n + mu_p * p)
+    n = numpy.asarray(n, dtype=float)
+    p = numpy.asarray(p, dtype=float)
+    mu_n = numpy.asarray(mu_n, dtype=float)
+    mu_p = numpy.asarray(mu_p, dtype=float)
+    q = numpy.asarray(q, dtype=float)
+    value: FloatOrArray = q * (mu_n * n + mu_p * p)
+    return value
 
 
 # name -> (parameters, meaning): the functions rule expressions may call
-SIGNATURES = {
+SIGNATURES: dict[str, tuple[tuple[str, ...], str]] = {
     "einstein_ratio": (
         ("dim", "eta"),
         "generalized Einstein ratio (D/mu)/(kT/q) of a parabolic band of dimensionality dim at reduced Fermi level eta (dimensionless)",

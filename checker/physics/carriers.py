@@ -7,18 +7,33 @@ models used.  Vectorized; SI units.
 from __future__ import annotations
 
 import numpy as np
+import numpy.typing as npt
 
 from . import transport
+from .arrays import ArrayIn, FloatArray, FloatOrArray
 from .constants import BOLTZMANN, ELEMENTARY_CHARGE
 from .equilibrium import State
-from .materials import Material
+from .materials import (
+    CarrierTransport,
+    MassPolynomialDOS,
+    Material,
+    PowerLawDOS,
+    Provenance,
+    VarshniGap,
+)
+
+# the fitted temperature and doping ranges of the models a check relies on, and the models
+# setting each edge (see model_ranges)
+Ranges = tuple[tuple[float, float], tuple[float, float], dict[str, list[str]]]
 
 
-def _dominant(species: dict):
+def _dominant(species: dict[str, FloatArray]) -> str | None:
     return max(species, key=lambda k: float(np.max(species[k])), default=None)
 
 
-def carrier_transport(state: State, dimension=3, mobility_model=None) -> dict:
+def carrier_transport(
+    state: State, dimension: int = 3, mobility_model: str | None = None
+) -> dict[str, FloatOrArray]:
     """Mobilities, diffusion coefficients, conductivity and mean free paths at a State.
 
     Mobility comes from the material's model at the total dopant density
@@ -41,13 +56,13 @@ def carrier_transport(state: State, dimension=3, mobility_model=None) -> dict:
     # a carrier is the minority where the other outnumbers it twice over (not in
     # intrinsic material, where the minority-carrier fits for doped layers do not apply)
     minority_n, minority_p = state.n < 0.5 * state.p, state.p < 0.5 * state.n
-    result = {"kT_over_q": BOLTZMANN * state.T / ELEMENTARY_CHARGE}
-    conduction = {}
+    result: dict[str, FloatOrArray] = {"kT_over_q": BOLTZMANN * state.T / ELEMENTARY_CHARGE}
+    conduction: dict[str, FloatArray] = {}
     for x, band, eta, _dens, species, majority in (
         ("n", "electron", state.eta_n, state.n, state.donors, ~minority_n),
         ("p", "hole", state.eta_p, state.p, state.acceptors, ~minority_p),
     ):
-        model = material.need(band, "mobility (conductivity, Einstein relation)")
+        model: CarrierTransport = material.need(band, "mobility (conductivity, Einstein relation)")
         main = _dominant(species)
         mu = model.low_field(impurities, state.T, mobility_model, main)
         if model.minority_model and not mobility_model and not np.all(majority):
@@ -83,7 +98,13 @@ def carrier_transport(state: State, dimension=3, mobility_model=None) -> dict:
     return result
 
 
-def _every_dopant_factor(state: State, model, mobility_model, species, carrier):
+def _every_dopant_factor(
+    state: State,
+    model: CarrierTransport,
+    mobility_model: str | None,
+    species: str | None,
+    carrier: str,
+) -> FloatArray:
     """1/f(T_0) for a mobility given per dopant atom (sigma = q N mu at T_0, as the
     silicon resistivity standard is): the free carriers at T_0 are then credited with
     the conduction of every dopant, so incomplete ionization is not counted twice,
@@ -111,7 +132,7 @@ DEGENERATE_ETA = -3.0  # the 3kT rule
 IONIZED_FRACTION = 0.9  # below it: incomplete ionization
 
 
-def regime_code(state: State, degenerate_eta=DEGENERATE_ETA):
+def regime_code(state: State, degenerate_eta: float = DEGENERATE_ETA) -> npt.NDArray[np.int8]:
     """The regime of each point as an index into REGIMES: metallic, degenerate,
     intrinsic, incomplete ionization, extrinsic (checked in that order of precedence).
 
@@ -140,12 +161,14 @@ def regime_code(state: State, degenerate_eta=DEGENERATE_ETA):
     return codes
 
 
-def regime_label(state: State, degenerate_eta=DEGENERATE_ETA):
+def regime_label(state: State, degenerate_eta: float = DEGENERATE_ETA) -> npt.NDArray[np.object_]:
     """A short regime name per point (see :func:`regime_code`)."""
     return np.asarray(REGIMES, dtype=object)[regime_code(state, degenerate_eta)]
 
 
-def intrinsic_onset_temperature(material: Material, net_density, fraction=0.1, T_max=3000.0):
+def intrinsic_onset_temperature(
+    material: Material, net_density: ArrayIn, fraction: float = 0.1, T_max: float = 3000.0
+) -> FloatArray:
     """Lowest temperature where n_i(T) reaches ``fraction`` of the net doping (K).
 
     Formula: n_i(T) = sqrt(N_c N_v) exp(-E_g(T)/2kT) (Boltzmann; n_i << N_c
@@ -165,11 +188,16 @@ def intrinsic_onset_temperature(material: Material, net_density, fraction=0.1, T
     lo = np.zeros_like(target)
     hi = np.full_like(target, np.log(T_max))
 
-    def ln_ni(ln_T):
+    # a material without these parameters gets the clear error, not a call of None
+    purpose = "the intrinsic-onset temperature"
+    gap: VarshniGap = material.need("band_gap", purpose)
+    Nc: PowerLawDOS | MassPolynomialDOS = material.need("Nc", purpose)
+    Nv: PowerLawDOS | MassPolynomialDOS = material.need("Nv", purpose)
+
+    def ln_ni(ln_T: FloatArray) -> FloatArray:
         T = np.exp(ln_T)
-        return 0.5 * np.log(material.Nc(T) * material.Nv(T)) - 0.5 * material.band_gap(T) / (
-            BOLTZMANN * T
-        )
+        ln: FloatArray = 0.5 * np.log(Nc(T) * Nv(T)) - 0.5 * gap(T) / (BOLTZMANN * T)
+        return ln
 
     for _ in range(60):
         mid = 0.5 * (lo + hi)
@@ -181,7 +209,12 @@ def intrinsic_onset_temperature(material: Material, net_density, fraction=0.1, T
     return np.where(np.isfinite(target), onset, np.nan)
 
 
-def model_ranges(material: Material, donor_species, acceptor_species, mobility_model=None):
+def model_ranges(
+    material: Material,
+    donor_species: str | None,
+    acceptor_species: str | None,
+    mobility_model: str | None = None,
+) -> Ranges:
     """Fitted temperature and doping ranges of the models a check relies on.
 
     Returns ((T_low, T_high), (N_low, N_high), binding): the intersection over
@@ -189,19 +222,23 @@ def model_ranges(material: Material, donor_species, acceptor_species, mobility_m
     models selected for the given dominant species (SI units), and for each
     edge ("T_low", "T_high", "N_low", "N_high") the names of the models that set it.
     """
-    parts = []
+    parts: list[tuple[str, Provenance, bool]] = []
     if material.band_gap:
         parts.append(("band gap", material.band_gap.provenance, False))
     if material.Nc:
         parts.append(("density of states", material.Nc.provenance, False))
-    for band, species in (("electron", donor_species), ("hole", acceptor_species)):
-        model = getattr(material, band)
+    for band, model, species in (
+        ("electron", material.electron, donor_species),
+        ("hole", material.hole, acceptor_species),
+    ):
         if model is None:
             continue
         name = model.model_name(mobility_model, species)
         fit = model.mobility.get(name)
         if fit is not None:
-            parts.append((f"{band} mobility ({name})", fit.provenance, True))
+            # every fit has a provenance; the MobilityModel protocol does not declare it yet
+            provenance: Provenance = fit.provenance  # type: ignore[attr-defined]
+            parts.append((f"{band} mobility ({name})", provenance, True))
     T_low = max((p.valid_T[0] for _, p, _ in parts), default=0.0)
     T_high = min((p.valid_T[1] for _, p, _ in parts), default=np.inf)
     N_low = max((p.valid_N[0] for _, p, doping in parts if doping), default=0.0)

@@ -17,6 +17,7 @@ import numpy as np
 
 from ..errors import InputError
 from . import _relations
+from .arrays import ArrayIn, FloatOrArray
 from .constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE
 from .fermi import log_fermi_dirac
 
@@ -24,13 +25,13 @@ from .fermi import log_fermi_dirac
 _DENSITY_ORDER = {3: 0.5, 2: 0.0, 1: -0.5}
 
 
-def _dimension(dimension) -> int:
+def _dimension(dimension: object) -> int:
     if dimension not in _DENSITY_ORDER:
         raise InputError(f"dimensionality must be 3, 2 or 1, got {dimension!r}")
     return int(dimension)
 
 
-def einstein_ratio(eta, dimension=3):
+def einstein_ratio(eta: ArrayIn, dimension: int = 3) -> FloatOrArray:
     """Generalized Einstein ratio (D/mu)/(kT/q) for a parabolic band.
 
     Formula: F_j(eta)/F_{j-1}(eta) with j = 1/2 (3D), 0 (2D), -1/2 (1D).
@@ -46,7 +47,9 @@ def einstein_ratio(eta, dimension=3):
     return _relations.einstein_ratio(_dimension(dimension), eta)
 
 
-def diffusion_coefficient(mobility, T, eta, dimension=3):
+def diffusion_coefficient(
+    mobility: ArrayIn, T: ArrayIn, eta: ArrayIn, dimension: int = 3
+) -> FloatOrArray:
     """D = mu (kT/q) F_j/F_{j-1}: the diffusion coefficient (m^2/s).
 
     Units: mobility m^2/(V s), T in K.  Reduces to D = mu kT/q when non-degenerate.
@@ -55,16 +58,19 @@ def diffusion_coefficient(mobility, T, eta, dimension=3):
     ----------
     Lundstrom, Fundamentals of Carrier Transport (2000), ch. 3.
     """
-    return (
-        mobility
+    diffusion: FloatOrArray = (
+        np.asarray(mobility, dtype=float)
         * BOLTZMANN
         * np.asarray(T, dtype=float)
         / ELEMENTARY_CHARGE
         * einstein_ratio(eta, dimension)
     )
+    return diffusion
 
 
-def field_dependent_mobility(mu_low, field, v_sat, beta):
+def field_dependent_mobility(
+    mu_low: ArrayIn, field: ArrayIn, v_sat: ArrayIn, beta: ArrayIn
+) -> FloatOrArray:
     """Caughey–Thomas field dependence mu(E) = mu0 / (1 + (mu0 E / v_sat)^beta)^(1/beta).
 
     Units: mu0 m^2/(V s), E V/m, v_sat m/s.  Validity: monotone saturation
@@ -79,7 +85,7 @@ def field_dependent_mobility(mu_low, field, v_sat, beta):
     return _relations.field_mobility(np.asarray(mu_low, dtype=float), magnitude, v_sat, beta)
 
 
-def drift_velocity(mu_low, field, v_sat, beta):
+def drift_velocity(mu_low: ArrayIn, field: ArrayIn, v_sat: ArrayIn, beta: ArrayIn) -> FloatOrArray:
     """|v| = mu(E) |E| (m/s) with the Caughey–Thomas mobility.
 
     References
@@ -90,7 +96,7 @@ def drift_velocity(mu_low, field, v_sat, beta):
     return _relations.field_velocity(np.asarray(mu_low, dtype=float), magnitude, v_sat, beta)
 
 
-def conductivity(n, p, mu_n, mu_p):
+def conductivity(n: ArrayIn, p: ArrayIn, mu_n: ArrayIn, mu_p: ArrayIn) -> FloatOrArray:
     """sigma = q (n mu_n + p mu_p) in S/m (two-carrier drift conductivity).
 
     References
@@ -105,7 +111,9 @@ def conductivity(n, p, mu_n, mu_p):
 _THERMAL_PREFACTOR = {3: 2.0 / np.pi, 2: np.pi / 2.0, 1: 2.0 / np.pi}
 
 
-def unidirectional_thermal_velocity(T, mass, eta=None, dimension=3):
+def unidirectional_thermal_velocity(
+    T: ArrayIn, mass: ArrayIn, eta: ArrayIn | None = None, dimension: int = 3
+) -> FloatOrArray:
     """Mean velocity of the carriers moving in +x, <v_x^+> (m/s).
 
     Formula: non-degenerate sqrt(2kT/(pi m*)) in 3D and 1D, sqrt(pi kT/(2 m*))
@@ -128,7 +136,7 @@ def unidirectional_thermal_velocity(T, mass, eta=None, dimension=3):
     return base * np.exp(log_fermi_dirac(upper, eta) - log_fermi_dirac(j, eta))
 
 
-def backscattering_mean_free_path(diffusion, thermal_velocity):
+def backscattering_mean_free_path(diffusion: ArrayIn, thermal_velocity: ArrayIn) -> FloatOrArray:
     """lambda = 2 D / <v_x^+> (m): the mean free path for backscattering.
 
     Use the Fermi–Dirac forms of D and <v_x^+> when degenerate.
@@ -138,4 +146,7 @@ def backscattering_mean_free_path(diffusion, thermal_velocity):
     Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 6; C. Jeong et
     al., J. Appl. Phys. 107, 023707 (2010).
     """
-    return 2.0 * np.asarray(diffusion) / thermal_velocity
+    path: FloatOrArray = (
+        2.0 * np.asarray(diffusion, dtype=float) / np.asarray(thermal_velocity, dtype=float)
+    )
+    return path

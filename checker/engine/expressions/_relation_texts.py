@@ -7,7 +7,7 @@ checker/engine/formulas/relation_table.py; never edit by hand.
 # ruff: noqa: E501
 
 # relation function -> (parameters, formula over them)
-FUNCTIONS = {
+FUNCTIONS: dict[str, tuple[tuple[str, ...], str]] = {
     "einstein_ratio": (("dim", "eta"), "F(-1 + dim/2, eta)/F(-2 + dim/2, eta)"),
     "field_velocity": (
         ("mu", "field", "v_sat", "beta"),
@@ -23,7 +23,7 @@ FUNCTIONS = {
 }
 
 # (dimensionality, majority carrier) -> defined symbol -> definition
-DEFINITIONS = {
+DEFINITIONS: dict[tuple[int, str], dict[str, str]] = {
     (3, "n"): {
         "eta_n": "(E_F - E_c)/(T*k)",
         "eta_p": "(E_v - E_F)/(T*k)",
@@ -197,7 +197,7 @@ DEFINITIONS = {
 }
 
 # neutrality world -> the dopant it defines -> definition
-NEUTRALITY = {
+NEUTRALITY: dict[str, dict[str, str]] = {
     "donor": {"N_D": "(n + N_A*f_A - p*w_p)/f_D"},
     "acceptor": {"N_A": "(p + N_D*f_D - n*w_n)/f_A"},
 }
