@@ -34,8 +34,9 @@ from ...quantity_registry.registry import formula_symbols, registered
 from ..expressions import dimension_check as expression_dimensions
 from ..expressions import dimensions as dm
 from ..expressions.parser import MAX_LENGTH, parse, rename, to_numpy, to_text
-from ..expressions.tree import Node, binary, fold, num
+from ..expressions.tree import NAME, Node, binary, fold, num
 from ..findings import Correction, Embodied, Finding, carrier_code
+from ..regime.corrected import formula_key
 from ..regime.rulebook import PLACEHOLDER
 from .match import Match, analyse
 from .relations import world
@@ -103,6 +104,7 @@ class FormulaResult:
     si_unit: str = ""  # SI unit text where no display unit is set
     error: float = math.nan  # relative error, or (value - exact)/kT for energies
     energy: bool = False  # an energy: its error is measured in kT
+    key: str | None = None  # the stated quantity its left side computes (corrected.py)
 
     @property
     def status(self) -> str:
@@ -312,6 +314,8 @@ def analyse_calculation(calc, point: dict | None) -> FormulaAnalysis:
         result.unit = _DISPLAY.get(left, "")
         result.si_unit = dm.text(left)
         result.energy = left == dm.ENERGY
+        if lhs.kind == NAME:
+            result.key = formula_key(lhs.value)
         if point is not None:
             _value(result, point)
         for word, carrier in result.match.assumptions:
@@ -434,6 +438,7 @@ def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings
                     result.value / result.exact - 1.0,
                     False,
                     origin="formula",
+                    key=result.key,
                 )
             )
         off_rule = rules.get("FORM03")

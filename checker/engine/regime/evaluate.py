@@ -30,6 +30,7 @@ from ...quantity_registry.number_text import display
 from ...vocabulary_words import carrier_message_words
 from ..findings import Correction, Finding, carrier_word
 from ..vocabulary import carrier_names
+from .corrected import quantity_key
 from .rulebook import PLACEHOLDER
 from .state_values import derive_corrected
 
@@ -270,6 +271,7 @@ def _add_findings(ruled, cells, fired, findings):
         for key, (c, unit) in rule.show.items()
     }
     words = carrier_message_words(x)
+    causes = [(text, _nonzero(_cells_array(gate, x, values, count))) for gate, text in rule.causes]
     for i in fired:
         owner = int(cells.owner[i])
         calc = cells.calculations[owner]
@@ -289,6 +291,7 @@ def _add_findings(ruled, cells, fired, findings):
                     float(exact[i]),
                     float(value / exact[i] - 1.0),
                     author,
+                    key=quantity_key(names.get(corr.stated, corr.stated)),
                 )
             )
             if author and line is None:
@@ -315,6 +318,15 @@ def _add_findings(ruled, cells, fired, findings):
             }
         )
         message = PLACEHOLDER.sub(lambda m: fields[m.group(1)], rule.message)
+        cause = next((text for text, held in causes if held[i]), None)
+        if cause:
+            message += f" Likely cause: {cause}."
+        # every formula line that makes the same assumption for this carrier
+        uses = {
+            item.line
+            for item in cells.embodied[owner]
+            if item.word in rule.declared and (not x or item.carrier in (x, None))
+        }
         findings[owner].append(
             Finding(
                 rule=rule.id,
@@ -334,5 +346,6 @@ def _add_findings(ruled, cells, fired, findings):
                 line=int(line),
                 formula=formula.formula if formula is not None else None,
                 column=column,
+                also_at=tuple(sorted(uses - {int(line)})),
             )
         )

@@ -6,6 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from . import state_values
+from .corrected import corrected_set
 from .evaluate import evaluate
 from .trade_summary import trade_summary
 
@@ -20,6 +21,7 @@ class CalculationReport:
     formulas: list = field(default_factory=list)  # formula_check.FormulaResult
     sweep: dict | None = None  # a sweep: {"axes": [(label, Axis)], "points": n}
     embodied: list = field(default_factory=list)  # Embodied: what its formulas assume
+    corrected: list = field(default_factory=list)  # corrected.CorrectedEntry, one per quantity
 
 
 def check_points(calculations, rules) -> tuple[list, list]:
@@ -50,6 +52,7 @@ def check_points(calculations, rules) -> tuple[list, list]:
         if analysis:
             findings[i] += formula_check.formula_findings(analysis, by_id, calc, findings[i])
         findings[i] = one_finding_per_stated_number(findings[i])
+        corrected = corrected_set(findings[i])
         notes = [solve_notes[i]] if i in solve_notes else []
         reports.append(
             CalculationReport(
@@ -59,6 +62,7 @@ def check_points(calculations, rules) -> tuple[list, list]:
                 notes,
                 formulas=analysis.results if analysis else [],
                 embodied=embodied[i],
+                corrected=corrected,
             )
         )
     errors = [message for a in analyses if a for message in a.errors]

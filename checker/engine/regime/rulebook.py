@@ -163,6 +163,18 @@ EXPRESSION_RULE = Block(
             ),
         ),
         "message": _MESSAGE,
+        "causes": ListOf(
+            Block(
+                {
+                    "when": Expression(
+                        expression.MAX_LENGTH, "non-zero where this explains the stated number"
+                    ),
+                    "text": Text("the likely cause, appended to the message"),
+                }
+            ),
+            about="likely causes of a stated number the rule rejects; the first that holds "
+            "is named in the message",
+        ),
         "corrections": EmptyOrListOf(
             Block(
                 {
@@ -178,7 +190,7 @@ EXPRESSION_RULE = Block(
         ),
         **_TAIL,
     },
-    optional=("requires", "show", "replaces"),
+    optional=("requires", "show", "replaces", "causes"),
 )
 ENGINE_RULE = Block(
     {
@@ -254,6 +266,7 @@ class Rule:
     evaluated_by: str | None = None  # engine check that produces this rule's findings
     tolerance: str | None = None  # configuration tolerance that sets the threshold
     replaces: dict = field(default_factory=dict)  # name -> name used where the rule fires
+    causes: list = field(default_factory=list)  # (Compiled gate, text): likely causes
 
 
 # ---- reading a rule file ---------------------------------------------------------------
@@ -448,6 +461,10 @@ class _Builder:
             requires=tuple(data.get("requires", ())),
             show=show,
             replaces=self.replacements(data.get("replaces", {})),
+            causes=[
+                (self.compile(entry["when"], ("causes", i, "when")), entry["text"].strip())
+                for i, entry in enumerate(data.get("causes", ()))
+            ],
         )
 
     def replacements(self, entries: dict) -> dict:
