@@ -131,7 +131,7 @@ def read_documents(text: str, name: str) -> tuple[list[Located], list[str]]:
     nodes, errors = compose_documents(text, name)
     docs = []
     for node in nodes:
-        positions = {}
+        positions: dict[tuple[object, ...], tuple[int, int]] = {}
         docs.append(Located(_plain(node, (), positions), positions))
     return docs, errors
 
@@ -212,7 +212,7 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
                 )
             )
     material = problems.run(_material, data, where) if "material" in data else None
-    axes = []
+    axes: list[Axis] = []
     temperature = problems.run(_temperature, data, where, axes) if "temperature" in data else None
     groups = (
         problems.run(_doping, data, material, where, axes, default={})
@@ -221,7 +221,7 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     )
     options = problems.run(_options, data, where, default=(False, -0.5))
     name = problems.run(_name, data, where)
-    structure, lines = {}, {}
+    lines: dict[str, int] = {}
     structure = problems.run(_structure, data, where, lines, default={})
     stated = problems.run(_quantities, data, "stated", STATED_KEYS, where, lines, default={})
     assumes = problems.run(_assumptions, data.get("assumes"), where, default={})
@@ -230,6 +230,8 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     problems.run(_check_sweep_size, axes, where)
     problems.messages.sort(key=lambda message: _position(message, path))
     problems.raise_any()
+    # both were read: a missing or unreadable one is a problem, raised above
+    assert material is not None and temperature is not None
     line = doc.positions.get((), (1, 1))[0]
     calc = Calculation(
         name=name or f"{Path(path).name}:{line}",
@@ -290,7 +292,7 @@ def _doping(data, material, where, axes) -> dict:
     doping = _mapping(data, "doping", where, "of 'donors' and/or 'acceptors' to {species: density}")
     problems = Problems()
     problems.run(_unknown_keys, doping, DOPING_KEYS, where, "doping", ("doping",))
-    groups = {}
+    groups: dict[str, dict[str, float]] = {}
     for group in DOPING_KEYS:
         entries = doping.get(group) or {}
         if not isinstance(entries, dict):
@@ -396,19 +398,22 @@ def _axis(spec: dict, dimension: str, key, where, path) -> Axis:
             else parse_quantity(text, dimension, at)
         )
         ends.append(check_plausible(value, dimension, text, at))
-    steps = str(spec["steps"]).strip()
-    if not re.fullmatch(r"[0-9]{1,6}", steps) or not 2 <= int(steps) <= MAX_SWEEP_STEPS:
+    steps_text = str(spec["steps"]).strip()
+    if not re.fullmatch(r"[0-9]{1,6}", steps_text) or not 2 <= int(steps_text) <= MAX_SWEEP_STEPS:
         raise InputError(
             f"{where.key(*path, 'steps')}: steps must be a whole number from 2 to "
             f"{MAX_SWEEP_STEPS}, got {spec['steps']!r}"
         )
-    steps = int(steps)
+    steps = int(steps_text)
     spacing = str(spec.get("spacing", "linear" if dimension == "temperature" else "log"))
     if spacing not in ("linear", "log"):
         raise InputError(f"{where(*path, 'spacing')}: spacing is linear or log")
     if spacing == "log" and min(ends) <= 0:
         raise InputError(f"{here}: a log sweep needs both ends above zero")
-    values = np.geomspace(*ends, steps) if spacing == "log" else np.linspace(*ends, steps)
+    start, stop = ends
+    values = (
+        np.geomspace(start, stop, steps) if spacing == "log" else np.linspace(start, stop, steps)
+    )
     return Axis(key, dimension, values, spacing, where.line(*path))
 
 

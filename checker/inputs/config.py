@@ -64,6 +64,8 @@ KEYS = (
 DEFAULT_PATTERNS = ("*.yaml", "*.yml", "*.md", "*.csv")
 WAIVER_KEYS = ("path", "rule", "reason")
 TABLE = ("tool", "regimecheck")
+# a TOML key path: table and key names, and the index in an array of tables
+KeyPath = tuple[str | int, ...]
 
 
 @dataclass
@@ -192,10 +194,9 @@ def load_config(path=None, search_from=None) -> Config:
         raise InputError(f"{path}: tool.regimecheck must be a table ([tool.regimecheck])")
     lines = toml_key_lines(text)
     config = Config(source=str(path))
+    # () is the line of the [tool.regimecheck] table itself, where there is one
     config.lines = {
-        key[len(prefix) :]: line
-        for key, line in lines.items()
-        if key[: len(prefix)] == prefix and len(key) > len(prefix)
+        key[len(prefix) :]: line for key, line in lines.items() if key[: len(prefix)] == prefix
     }
     return _parse(table, config)
 
@@ -298,7 +299,10 @@ def _waivers(waivers, config: Config, fail) -> None:
                 str(entry["path"]),
                 str(entry["rule"]).upper(),
                 str(entry["reason"]).strip(),
-                config.lines.get(("waive", number), config.lines.get(("waive",))),
+                # an inline table (regimecheck = {waive = [...]}) has no line per key
+                config.lines.get(("waive", number))
+                or config.lines.get(("waive",))
+                or config.lines.get((), 1),
             )
         )
 
@@ -350,12 +354,15 @@ _ASSIGN = re.compile(rf"\s*({_DOTTED})\s*=")
 _PARTS = re.compile(_PART)
 
 
-def toml_key_lines(text: str) -> dict:
+def toml_key_lines(text: str) -> dict[KeyPath, int]:
     """Key path -> 1-based line of every table header and key of a TOML text.  Paths
     are tuples of key names; an array of tables adds its element index
     (``("tool", "regimecheck", "waive", 0, "rule")``).  No recursion, so any nesting
     depth is safe; lines inside multi-line strings and arrays are not keys."""
-    out, arrays, table, top = {}, {}, (), _top_lines(text)
+    out: dict[KeyPath, int] = {}
+    arrays: dict[KeyPath, int] = {}
+    table: KeyPath = ()
+    top = _top_lines(text)
     for number, line in enumerate(text.split("\n"), start=1):
         if number not in top:
             continue
@@ -376,13 +383,13 @@ def toml_key_lines(text: str) -> dict:
     return out
 
 
-def _names(dotted: str) -> tuple:
+def _names(dotted: str) -> tuple[str, ...]:
     return tuple(p[1:-1] if p[0] in "\"'" else p for p in _PARTS.findall(dotted))
 
 
-def _resolve(names: tuple, arrays: dict) -> tuple:
+def _resolve(names: tuple[str, ...], arrays: dict[KeyPath, int]) -> KeyPath:
     """A table path with the current index of every array of tables on it."""
-    path = ()
+    path: KeyPath = ()
     for name in names[:-1]:
         path += (name,)
         if path in arrays:

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import json
 import re
+from typing import Any
 from urllib.parse import quote
 from xml.etree import ElementTree as ET
 
@@ -118,7 +119,7 @@ def render_sarif(result, exit_code: int) -> str:
             results.append(entry)
     notifications = []
     for message in result.input_errors:
-        note = {"level": "error", "message": {"text": message}}
+        note: dict[str, object] = {"level": "error", "message": {"text": message}}
         match = _LOCATION.match(message)
         if match:
             note["locations"] = [
@@ -159,10 +160,10 @@ def render_sarif(result, exit_code: int) -> str:
 
 
 def render_junit(result, exit_code: int, fail_on: str) -> str:
-    suites = {}
+    suites: dict[str, list[Any]] = {}  # file -> its calculations' reports
     for report in result.reports:
         suites.setdefault(report.calc.source, []).append(report)
-    errors_by_file = {}
+    errors_by_file: dict[str, list[str]] = {}
     for message in result.input_errors:
         match = _LOCATION.match(message)
         errors_by_file.setdefault(match["file"] if match else "(input)", []).append(message)
