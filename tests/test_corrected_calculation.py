@@ -161,3 +161,21 @@ def test_a_shortcut_is_located_at_every_formula_line(tmp_path):
     )
     stat01 = next(f for f in report.findings if f.rule == "STAT01")
     assert {stat01.line, *stat01.also_at} == {5, 6}
+
+
+def test_stated_numbers_no_rule_can_compare_are_listed(tmp_path):
+    # a resistance without the conductor's length and cross-section, a sheet resistance
+    # without a thickness: nothing to compare them with, so they are listed, not passed
+    bare, with_geometry = _check(
+        tmp_path,
+        "name: bare\nmaterial: Si\ntemperature: 300 K\ndoping: {donors: {P: 1e16 cm-3}}\n"
+        "stated: {resistance: 100 ohm, sheet_resistance: 100 ohm/sq, "
+        "electron_mobility: 1300 cm^2/(V*s)}\n"
+        "---\n"
+        "name: with geometry\nmaterial: Si\ntemperature: 300 K\n"
+        "doping: {donors: {P: 1e16 cm-3}}\n"
+        "structure: {length: 100 um, cross_section: 10 um^2, thickness: 1 um}\n"
+        "stated: {resistance: 100 ohm, sheet_resistance: 100 ohm/sq}\n",
+    )
+    assert sorted(bare.unchecked) == ["resistance", "sheet_resistance"]
+    assert with_geometry.unchecked == []

@@ -30,6 +30,7 @@ from ...quantity_registry.number_text import display
 from ...vocabulary_words import carrier_message_words
 from ..findings import Correction, Finding, carrier_word
 from ..vocabulary import carrier_names
+from ..expressions.parser import names_in
 from .corrected import quantity_key
 from .rulebook import PLACEHOLDER
 from .state_values import derive_corrected
@@ -213,17 +214,58 @@ def rule_indicator(rule, x, values, count) -> np.ndarray:
         return _cells_array(rule.indicator, x, values, count)
 
 
-def evaluate(rules, calculations, values, skip=(), embodied=None) -> list:
-    """Findings per calculation of single operating points (``values`` from
+def evaluate(rules, calculations, values, skip=(), embodied=None) -> tuple[list, list]:
+    """(findings, unchecked) per calculation of single operating points (``values`` from
     :func:`state_values.solve_all`; ``embodied``: per calculation the Embodied
-    assumptions of its stated formulas; ``skip``: calculations not solved)."""
+    assumptions of its stated formulas; ``skip``: calculations not solved).  ``unchecked``
+    lists, per calculation, the stated numbers no rule could compare there."""
     cells = Cells.points(calculations, values, embodied, skip)
     findings = [[] for _ in calculations]
     # every rule first, so that each correction is read off the one corrected calculation
     # (after every replacement), whichever rule reports it
-    for ruled in list(rule_cells(rules, cells)):
+    ruled_all = list(rule_cells(rules, cells))
+    for ruled in ruled_all:
         add_findings(ruled, cells, findings)
-    return findings
+    compared = compared_numbers(ruled_all, cells)
+    unchecked = [
+        [
+            name
+            for name in calc.stated
+            if not any(compared[f][c] for f in _FORMS.get(name, (name,)) if f in compared)
+        ]
+        if cells.valid[c]
+        else []
+        for c, calc in enumerate(calculations)
+    ]
+    return findings, unchecked
+
+
+# the stated keys whose numbers rules read under another name
+_FORMS = {
+    "stated_ef_minus_ec": ("stated_ef_n", "stated_eta_n", "stated_ef_p", "stated_eta_p"),
+    "stated_ef_minus_ev": ("stated_ef_n", "stated_eta_n", "stated_ef_p", "stated_eta_p"),
+    "stated_sigma": ("stated_sigma", "stated_rho"),
+    "stated_rho": ("stated_rho", "stated_sigma"),
+}
+
+
+def compared_numbers(ruled_all, cells) -> dict:
+    """Stated name -> cells where some rule compared it: the rule's indicator reads it (or
+    a correction of the rule is of it) and is a number there, with every quantity the
+    rule requires known -- whether or not the rule's gate let it fire."""
+    out: dict = {}
+    for ruled in ruled_all:
+        rule = ruled.rule
+        reads = names_in(rule.indicator.tree) | {c.stated for c in rule.corrections if c.stated}
+        stated = {ruled.names.get(n, n) for n in reads if n.startswith("stated_")}
+        if not stated:
+            continue
+        known = np.isfinite(np.asarray(ruled.indicator, dtype=float))
+        for name in rule.requires:
+            known = known & np.isfinite(cells.values[ruled.names.get(name, name)])
+        for name in stated:
+            out[name] = out.get(name, np.zeros(cells.count, dtype=bool)) | known
+    return out
 
 
 # quantities derived from another stated key: where to point the reader

@@ -6,7 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from . import state_values
-from .corrected import corrected_set
+from .corrected import corrected_set, quantity_key
 from .evaluate import evaluate
 from .trade_summary import trade_summary
 
@@ -22,6 +22,7 @@ class CalculationReport:
     sweep: dict | None = None  # a sweep: {"axes": [(label, Axis)], "points": n}
     embodied: list = field(default_factory=list)  # Embodied: what its formulas assume
     corrected: list = field(default_factory=list)  # corrected.CorrectedEntry, one per quantity
+    unchecked: list = field(default_factory=list)  # keys of stated numbers no rule compared
 
 
 def check_points(calculations, rules) -> tuple[list, list]:
@@ -35,7 +36,9 @@ def check_points(calculations, rules) -> tuple[list, list]:
 
         analyses = formula_check.analyse_all(calculations, values, skip=solve_errors.keys())
     embodied = [a.embodied if a else [] for a in analyses]
-    findings = evaluate(rules, calculations, values, skip=solve_errors.keys(), embodied=embodied)
+    findings, unchecked = evaluate(
+        rules, calculations, values, skip=solve_errors.keys(), embodied=embodied
+    )
     if any(analyses):
         # the rules may have replaced a rejected stated input: the formulas' exact values
         # follow the corrected calculation too
@@ -63,6 +66,7 @@ def check_points(calculations, rules) -> tuple[list, list]:
                 formulas=analysis.results if analysis else [],
                 embodied=embodied[i],
                 corrected=corrected,
+                unchecked=[quantity_key(name) or name for name in unchecked[i]],
             )
         )
     errors = [message for a in analyses if a for message in a.errors]
