@@ -28,9 +28,9 @@ import numpy as np
 
 from ...quantity_registry.number_text import display
 from ...vocabulary_words import carrier_message_words
+from ..expressions.parser import names_in
 from ..findings import Correction, Finding, carrier_word
 from ..vocabulary import carrier_names
-from ..expressions.parser import names_in
 from .corrected import quantity_key
 from .rulebook import PLACEHOLDER
 from .state_values import derive_corrected
