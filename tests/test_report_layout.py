@@ -211,6 +211,19 @@ def test_velocity_row_only_where_a_field_is_given(tmp_path):
     assert state["v_n_at_field_cm_per_s"] == pytest.approx(v, rel=2e-3)  # v300 rounded
 
 
+def test_effective_intrinsic_density_only_with_band_gap_narrowing(tmp_path):
+    heavy = AS_1E17.replace("1e17", "1e18")
+    assert _check_one(tmp_path, heavy)["nie_cm3"] is None
+    state = _check_one(tmp_path, heavy + "options:\n  band_gap_narrowing: true\n")
+    # mass action with Fermi–Dirac carriers: n p = n_ie^2 F_1/2(eta_n) e^-eta_n
+    # F_1/2(eta_p) e^-eta_p (Sze & Ng, 3rd ed., ch. 1)
+    factor = _fermi(0.5, state["eta_n"]) * mp.exp(-state["eta_n"])
+    factor *= _fermi(0.5, state["eta_p"]) * mp.exp(-state["eta_p"])
+    nie = float(mp.sqrt(state["n_cm3"] * state["p_cm3"] / factor))
+    assert state["nie_cm3"] == pytest.approx(nie, rel=1e-6)
+    assert state["nie_cm3"] > 1.5 * state["ni_cm3"]  # narrowing raises it
+
+
 def test_json_state_keys_are_additive(examples):
     # the keys the README documents before the transport rows stay (never renamed)
     earlier = {
@@ -221,4 +234,12 @@ def test_json_state_keys_are_additive(examples):
     report = json.loads(render_json(examples, 1))
     state = next(c["state"] for c in report["calculations"] if c["state"])
     assert earlier <= set(state)
-    assert {"mu_n_cm2_per_Vs", "D_p_cm2_per_s", "rho_ohm_cm"} <= set(state)
+    assert {"mu_n_cm2_per_Vs", "D_p_cm2_per_s", "rho_ohm_cm", "nie_cm3"} <= set(state)
+
+
+def test_compact_form_names_input_errors_on_their_own_lines(tmp_path):
+    path = tmp_path / "bad.yaml"
+    path.write_text("name: Fictional TS-9\nmaterial: Si\ntemperature: 300\n", encoding="utf-8")
+    lines = render_compact(check_paths([str(path)])).splitlines()
+    (error,) = [line for line in lines if line.startswith("input error: ")]
+    assert f"{path}:3" in error and "1 input error(s)." in lines[-2]

@@ -78,6 +78,11 @@ def _field_velocity(x):
     )
 
 
+def _narrowed_ni(get):
+    # shown only where the solve narrows the gap (elsewhere n_ie is n_i, the row above)
+    return float(get("nie")) if float(get("bgn_on")) > 0 else math.nan
+
+
 def _per_carrier(key, label, shown, reads, compute, unit, in_check=False):
     """One field per carrier: ``{x}`` in key, label and reads stands for n and p."""
     return tuple(
@@ -95,7 +100,7 @@ def _per_carrier(key, label, shown, reads, compute, unit, in_check=False):
 
 # the transport the engine computes, in the trade's units (state rows; the check report's
 # table keeps the mobilities, the resistivity and what is only there when the
-# calculation asks for it: v(E) with a field)
+# calculation asks for it: v(E) with a field, n_ie with band-gap narrowing)
 TRANSPORT = (
     *_per_carrier(
         "mu_{x}_cm2_per_Vs",
@@ -146,7 +151,16 @@ TRANSPORT = (
         _where_known(lambda get: get("rho"), "ohm*cm"),
         in_check=True,
     ),
+    SummaryField(
+        "nie_cm3",
+        "n_ie (narrowed gap)",
+        "{:.4g} cm^-3",
+        ("nie", "bgn_on"),
+        _where_known(_narrowed_ni, "cm^-3"),
+        in_check=True,
+    ),
 )
+
 
 FIELDS = (
     SummaryField(
