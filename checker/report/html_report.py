@@ -19,18 +19,12 @@ from ..quantity_registry.number_text import display
 from ..quantity_registry.summary_fields import CHECK_ROWS, shown_rows
 from . import DISCLAIMER
 from .check_report import formula_lines, point_text, summary_line, worst_active
+from .formula_markup import formula_mathml
 from .safe_text import visible
 from .sweep_text import finding_message
 
 MAP_RESOLUTION = 90
 MAPS_PER_CALCULATION = 40  # above this many calculations: one map per material and dopant
-_ENTITIES = {
-    "&InvisibleTimes;": "&#8290;",
-    "&ApplyFunction;": "&#8289;",
-    "&#x2062;": "&#8290;",
-    "&nbsp;": "&#160;",
-}
-
 STYLE = """
 body { font-family: "DejaVu Sans", Arial, sans-serif; margin: 2em auto; max-width: 62em;
        color: #222; line-height: 1.4; }
@@ -57,24 +51,6 @@ math { font-size: 1.05em; }
 
 def _text(value) -> str:
     return html.escape(str(value), quote=True)
-
-
-def _mathml(tree_left, tree_right) -> str:
-    import sympy
-    from sympy.printing.mathml import mathml
-
-    from ..engine.expressions.parser import to_sympy
-
-    script_f = sympy.Function("ℱ")
-    sides = [to_sympy(t).replace(sympy.Function("F"), script_f) for t in (tree_left, tree_right)]
-    markup = mathml(sympy.Eq(*sides, evaluate=False), printer="presentation")
-    for entity, number in _ENTITIES.items():
-        markup = markup.replace(entity, number)
-    # other named entities are HTML-only: write them as characters (XML knows five)
-    markup = re.sub(
-        r"&(?!(?:amp|lt|gt|quot|apos);)([A-Za-z]+);", lambda m: html.unescape(m.group(0)), markup
-    )
-    return f'<math xmlns="http://www.w3.org/1998/Math/MathML" display="block">{markup}</math>'
 
 
 def _svg(fig, salt: str) -> str:
@@ -178,10 +154,7 @@ def _formulas(report) -> str:
         return ""
     items = []
     for r in report.formulas:
-        try:
-            math = _mathml(r.lhs, r.rhs)
-        except Exception:  # noqa: BLE001 - printing is cosmetic; the text is shown anyway
-            math = ""
+        math = formula_mathml(r.lhs, r.rhs)
         notes = "<br/>".join(_text(line) for line in formula_lines(r))
         items.append(
             f"<tr><td><code>{_text(r.text)}</code> (line {r.line}){math}</td><td>{notes}</td></tr>"

@@ -1,7 +1,8 @@
 """Plain-text explanation of a rule (``regimecheck explain ID``).
 
-Formulas are pretty-printed by sympy from the parsed rule expressions (built
-directly as sympy objects, never re-parsed from text).
+Expressions are shown as the rule's author wrote them (whitespace folded), so a reader
+finds them again in the rule file; the relations they call by name are listed with
+their formulas (from the one relation table, engine/formulas/relation_table.py).
 """
 
 from __future__ import annotations
@@ -9,6 +10,8 @@ from __future__ import annotations
 import textwrap
 
 from ..engine.expressions import parser as expression
+from ..engine.expressions._relation_texts import FUNCTIONS as RELATIONS
+from ..engine.expressions.tree import CALL, fold
 from ..engine.vocabulary import COMMON, PER_CARRIER
 
 _WRAP = 88
@@ -19,9 +22,31 @@ def _block(title: str, text: str) -> str:
     return f"{title}\n{body}"
 
 
-def _formula(label: str, tree) -> str:
-    art = expression.pretty(tree)
-    return f"  {label}:\n" + textwrap.indent(art, "      ")
+def _formula(label: str, compiled) -> str:
+    written = " ".join(compiled.text.split())
+    return f"  {label}:\n" + textwrap.indent(
+        textwrap.fill(written, _WRAP - 6, break_long_words=False), "      "
+    )
+
+
+def _calls_in(tree) -> set:
+    """The functions an expression tree calls."""
+    return fold(
+        tree,
+        lambda node, inner: set().union(*inner) | ({node.value} if node.kind == CALL else set()),
+    )
+
+
+def _relations(trees) -> list:
+    """'Relations' lines for the relation functions the expressions call."""
+    called = sorted(set().union(*(_calls_in(tree) for tree in trees)) & set(RELATIONS))
+    if not called:
+        return []
+    lines = ["", "Relations (engine/formulas/relation_table.py)"]
+    for name in called:
+        parameters, formula = RELATIONS[name]
+        lines.append(f"  {name}({', '.join(parameters)}) = {formula.replace('**', '^')}")
+    return lines
 
 
 def _engine_text(rule) -> list:
@@ -72,7 +97,7 @@ def explain_text(rule) -> str:
         _block("When it applies", "; ".join(applies) + "."),
         "",
         "Condition (fires when)",
-        _formula(f"{rule.indicator_label} {sign} {rule.threshold:g}", rule.indicator.tree),
+        _formula(f"{rule.indicator_label} {sign} {rule.threshold:g}", rule.indicator),
         _block("  threshold source", rule.threshold_source),
     ]
     if rule.requires:
@@ -80,8 +105,8 @@ def explain_text(rule) -> str:
     if rule.corrections:
         lines += ["", "Corrections (stated or shortcut value -> exact value)"]
         for c in rule.corrections:
-            lines.append(_formula(f"{c.label} [{c.unit}], shortcut", c.shortcut.tree))
-            lines.append(_formula(f"{c.label} [{c.unit}], exact", c.exact.tree))
+            lines.append(_formula(f"{c.label} [{c.unit}], shortcut", c.shortcut))
+            lines.append(_formula(f"{c.label} [{c.unit}], exact", c.exact))
     names = sorted(
         expression.names_in(rule.indicator.tree).union(
             *(
@@ -95,6 +120,10 @@ def explain_text(rule) -> str:
     if known:
         lines += ["", "Quantities"]
         lines += [f"  {n:14s} {glossary[n][1]} [{glossary[n][0]}]" for n in known]
+    lines += _relations(
+        [rule.indicator.tree]
+        + [tree for c in rule.corrections for tree in (c.shortcut.tree, c.exact.tree)]
+    )
     return "\n".join(lines + _closing(rule))
 
 

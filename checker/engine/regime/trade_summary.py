@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from ...errors import MissingParameterError
+from ...physics import carriers
 from ...physics.carriers import regime_label
 from ...quantity_registry.summary_fields import JSON_FIELDS
 
@@ -27,7 +29,39 @@ def trade_summary(values, index=()) -> dict:
 
 
 def state_values(state) -> dict:
-    """The quantities :func:`trade_summary` reads, from a physics ``State``."""
+    """The quantities :func:`trade_summary` reads, from a physics ``State``: a bulk
+    crystal with no structure and no stated numbers, so the mobility used is the
+    model's and there is no field."""
+    return {
+        **_state_solve(state),
+        **_bulk_transport(state),
+    }
+
+
+def _bulk_transport(state) -> dict:
+    """Transport at the State from the material's models (3D); nothing where the material
+    lacks mobility data (the summary then shows no transport rows)."""
+    try:
+        flow = carriers.carrier_transport(state, 3)
+    except MissingParameterError:
+        return {}
+    out = {
+        "dim": np.full_like(state.T, 3.0),
+        "field": np.full_like(state.T, np.nan),
+        "sigma": flow["sigma"],
+        "rho": flow["rho"],
+    }
+    for x in ("n", "p"):
+        out[f"mu_{x}"] = out[f"used_mu_{x}"] = flow[f"mu_{x}"]
+        out[f"lambda_{x}"] = flow[f"mfp_{x}"]
+        out[f"vsat_{x}"] = flow[f"vsat_{x}"]
+        out[f"beta_{x}"] = flow[f"beta_{x}"]
+    return out
+
+
+def _state_solve(state) -> dict:
+    # with band-gap narrowing on, the State's n_i is the effective one (n_ie)
+    undoped = np.exp(-state.narrowing / (2 * state.kT))
     return {
         "regime": regime_label(state),
         "T": state.T,
@@ -38,7 +72,9 @@ def state_values(state) -> dict:
         "dens_p": state.p,
         "f_n": state.donor_fraction,
         "f_p": state.acceptor_fraction,
-        "ni": state.ni,
+        "ni": state.ni * undoped,
+        "nie": state.ni,
+        "bgn_on": (np.asarray(state.narrowing) > 0).astype(float),
         "Eg": state.Eg,
         "Nband_n": state.Nc,
         "Nband_p": state.Nv,
