@@ -149,7 +149,7 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
-FORMATS = ("console", "json", "markdown", "sarif", "junit", "html")
+FORMATS = ("console", "compact", "json", "markdown", "sarif", "junit", "html")
 
 
 def _report_options(command):
@@ -157,7 +157,8 @@ def _report_options(command):
         "--format",
         choices=FORMATS,
         default=None,
-        help="console (default), json, markdown (to paste under a memo), "
+        help="console (default), compact (one line per finding and per clean "
+        "calculation, for CI logs), json, markdown (to paste under a memo), "
         "sarif (SARIF 2.1.0), junit (JUnit XML), html (a self-contained "
         "review report with regime maps); with --output and no "
         "--format, the file's suffix chooses (.json .md .sarif .xml "
@@ -244,6 +245,10 @@ def _render(result, code, args) -> str:
         from .report.check_report import render_json
 
         return render_json(result, code)
+    if args.format == "compact":
+        from .report.check_report import render_compact
+
+        return render_compact(result, code)
     if args.format == "markdown":
         from .report.markdown_report import render_markdown
 

@@ -62,6 +62,8 @@ def test_json_keys_are_stable(example_report):
         "sweep",
         "formulas",
         "findings",
+        "corrected",
+        "unchecked",
         "notes",
         "error",
     }
@@ -81,7 +83,7 @@ def test_json_keys_are_stable(example_report):
         "formula",
         "sweep",
     }
-    assert set(finding["where"]) == {"file", "line", "column"}
+    assert set(finding["where"]) == {"file", "line", "column", "also_at_lines"}
     assert set(finding["indicator"]) == {
         "label",
         "value",
@@ -100,6 +102,7 @@ def test_json_keys_are_stable(example_report):
         "corrected",
         "relative_error",
         "stated_by",
+        "corrects",
     }
     waived = [f for cc in data["calculations"] for f in cc["findings"] if f["waived"]]
     assert waived and data["summary"]["findings"]["waived"] == len(waived)
@@ -124,6 +127,7 @@ def test_json_keys_are_stable(example_report):
             "exact",
             "error",
             "error_measure",
+            "corrects",
         }
 
 

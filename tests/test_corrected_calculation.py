@@ -179,3 +179,35 @@ def test_stated_numbers_no_rule_can_compare_are_listed(tmp_path):
     )
     assert sorted(bare.unchecked) == ["resistance", "sheet_resistance"]
     assert with_geometry.unchecked == []
+
+
+def test_reports_carry_the_corrected_set_the_unchecked_numbers_and_every_line(tmp_path):
+    import json
+
+    from checker.cli import main
+
+    path = _write(
+        tmp_path,
+        "name: resistor\nmaterial: Si\ntemperature: 300 K\ndoping: {donors: {P: 1e17 cm-3}}\n"
+        "stated:\n  electron_mobility: 1250 cm^2/(V*s)\n  electron_diffusivity: 32.4 cm^2/s\n"
+        "  sheet_resistance: 50 ohm/sq\n"
+        "---\n"
+        "name: degenerate\nmaterial: GaAs\ntemperature: 300 K\n"
+        "doping: {donors: {Si: 5e18 cm-3}}\n"
+        "formulas:\n  - n = N_c*exp(eta_n)\n  - E_F - E_c = k*T*ln(n/N_c)\n",
+    )
+    out = tmp_path / "report.json"
+    assert main(["check", str(path), "--output", str(out), "--exit-zero"]) == 0
+    first, second = json.loads(out.read_text(encoding="utf-8"))["calculations"]
+    corrected = {e["quantity"]: e for e in first["corrected"]}
+    assert set(corrected) == {"electron_mobility", "electron_diffusivity"}
+    assert corrected["electron_diffusivity"]["stated"] == pytest.approx(32.4)
+    assert corrected["electron_mobility"]["rules"] == ["MOB01"]
+    assert first["unchecked"] == ["sheet_resistance"]
+    stat01 = next(f for f in second["findings"] if f["rule"] == "STAT01")
+    assert [stat01["where"]["line"], *stat01["where"]["also_at_lines"]] == [15, 16]
+    # the compact form for CI logs: one line per finding, the other lines named
+    compact = tmp_path / "report.txt"
+    assert main(["check", str(path), "--format", "compact", "--output", str(compact)]) == 1
+    text = compact.read_text(encoding="utf-8")
+    assert "(also line 16)" in text and "not checked: sheet_resistance" in text

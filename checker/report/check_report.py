@@ -64,6 +64,40 @@ def _where(file, line, column=None) -> str:
     return f"{place} (column {column!r})" if column else place
 
 
+def also_lines(f) -> str:
+    """' (also line 22)' / ' (also lines 22, 25)' for the other lines of a finding."""
+    if not f.also_at:
+        return ""
+    word = "line" if len(f.also_at) == 1 else "lines"
+    return f" (also {word} {', '.join(map(str, f.also_at))})"
+
+
+def finding_where(f) -> str:
+    """Where a finding is, with the other lines that make the same assumption."""
+    also = also_lines(f)
+    return _where(f.file, f.line, f.column) + also
+
+
+def unchecked_text(report) -> str | None:
+    """The line naming stated numbers no rule could compare, or None."""
+    if not report.unchecked:
+        return None
+    return (
+        f"not checked: {', '.join(report.unchecked)} (nothing to compare them with at this "
+        "point: a structure key or a material model is missing)"
+    )
+
+
+def corrected_lines(report) -> list:
+    """The corrected calculation, one line per stated quantity the findings correct."""
+    return [
+        f"{e.key}: {display(e.stated, e.unit)} → {display(e.corrected, e.unit)} "
+        f"({', '.join(e.rules)})"
+        for e in report.corrected
+        if e.stated is not None
+    ]
+
+
 class _PlainText:
     """The part of rich's Text used here, for output without colour (no rich import)."""
 
@@ -136,7 +170,7 @@ def render_console(result, console=None, stream=None) -> None:
             tag = "waived" if f.waived else f.severity
             out.append(f"{tag.upper():8s}", style="dim" if f.waived else STYLE[f.severity])
             out.append(f"{f.rule}  {f.title}", style="bold")
-            out.append(f"  at {_where(f.file, f.line, f.column)}\n", style="dim")
+            out.append(f"  at {finding_where(f)}\n", style="dim")
             add(out, finding_message(f))
             if f.indicator_text():
                 add(out, f"regime indicator: {f.indicator_text()}", "dim")
@@ -144,6 +178,13 @@ def render_console(result, console=None, stream=None) -> None:
                 add(out, correction_text(c))
             if f.waived:
                 add(out, f"waived: {f.waived}", "dim")
+        corrected = corrected_lines(report)
+        if len(corrected) > 1:
+            add(out, "corrected calculation (each stated number once):", "bold", indent=2)
+            for line in corrected:
+                add(out, line, indent=4)
+        if unchecked_text(report):
+            add(out, unchecked_text(report), "yellow", indent=2)
         for note in report.notes:
             add(out, f"note: {note}", "yellow", indent=2)
         emit(out)
@@ -188,7 +229,8 @@ def render_compact(result, exit_code: int | None = None) -> str:
             continue
         if not report.findings:
             notes = "".join(f"  (note: {_one_line(note)})" for note in report.notes)
-            lines.append(f"ok  {head}{notes}")
+            unchecked = f"  ({unchecked_text(report)})" if report.unchecked else ""
+            lines.append(f"ok  {head}{unchecked}{notes}")
             continue
         count = len(report.findings)
         lines.append(f"{head}  ({count} finding{'s' if count != 1 else ''})")
@@ -198,9 +240,9 @@ def render_compact(result, exit_code: int | None = None) -> str:
             if f.sweep is not None:
                 parts.append(f"on {f.sweep.failing_fraction:.1%} of the sweep")
             parts += [_one_line(correction_text(c)) for c in f.corrections]
-            lines.append(
-                f"  {tag:<15} {f.rule:<7} {_where(f.file, f.line, f.column)}  " + " · ".join(parts)
-            )
+            lines.append(f"  {tag:<15} {f.rule:<7} {finding_where(f)}  " + " · ".join(parts))
+        if unchecked_text(report):
+            lines.append(f"  {unchecked_text(report)}")
         for note in report.notes:
             lines.append(f"  note: {_one_line(note)}")
     lines += [f"note: {_one_line(note)}" for note in result.notes]
@@ -267,7 +309,12 @@ def finding_json(f) -> dict:
             "source": f.threshold_source,
         },
         "message": finding_message(f),
-        "where": {"file": f.file, "line": f.line, "column": f.column},
+        "where": {
+            "file": f.file,
+            "line": f.line,
+            "column": f.column,
+            "also_at_lines": list(f.also_at),
+        },
         "corrections": [
             {
                 "quantity": c.label,
@@ -276,6 +323,7 @@ def finding_json(f) -> dict:
                 "corrected": _number(c.corrected * DISPLAY_UNITS[c.unit]),
                 "relative_error": _number(c.error),
                 "stated_by": c.stated_by,
+                "corrects": c.key,
             }
             for c in f.corrections
         ],
@@ -317,8 +365,25 @@ def formula_json(r) -> dict:
             "exact": _number(r.exact * factor),
             "error": _number(r.error),
             "error_measure": "kT" if r.unit == "eV" else "relative",
+            "corrects": getattr(r, "key", None),
         },
     }
+
+
+def corrected_json(report) -> list:
+    return [
+        {
+            "quantity": e.key,
+            "label": e.label,
+            "unit": e.unit,
+            "stated": None if e.stated is None else _number(e.stated * DISPLAY_UNITS[e.unit]),
+            "corrected": _number(e.corrected * DISPLAY_UNITS[e.unit]),
+            "relative_error": None if e.error is None else _number(e.error),
+            "rules": list(e.rules),
+            "lines": list(e.lines),
+        }
+        for e in report.corrected
+    ]
 
 
 def render_json(result, exit_code: int) -> str:
@@ -339,6 +404,8 @@ def render_json(result, exit_code: int) -> str:
                 "sweep": sweep_json(report),
                 "formulas": [formula_json(r) for r in report.formulas],
                 "findings": [finding_json(f) for f in report.findings],
+                "corrected": corrected_json(report),
+                "unchecked": list(report.unchecked),
                 "notes": report.notes,
                 "error": report.error,
             }

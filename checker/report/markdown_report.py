@@ -11,7 +11,7 @@ import re
 
 from ..quantity_registry.number_text import display
 from . import DISCLAIMER
-from .check_report import formula_lines, point_text, summary_line
+from .check_report import also_lines, formula_lines, point_text, summary_line
 from .safe_text import visible
 from .sweep_text import finding_message
 
@@ -61,8 +61,9 @@ def render_markdown(result, exit_code: int) -> str:
         for _report, f in findings:
             severity = f"waived ({_cell(f.waived)})" if f.waived else f.severity
             column = f" ({_cell(f.column)})" if f.column else ""
+            also = also_lines(f)
             lines.append(
-                f"| {severity} | {_cell(f.rule)} | {_code(f'{f.file}:{f.line}')}{column} | "
+                f"| {severity} | {_cell(f.rule)} | {_code(f'{f.file}:{f.line}')}{column}{also} | "
                 f"**{_cell(f.title)}.** {_cell(finding_message(f))} | {_corrections(f)} |"
             )
         lines.append("")
