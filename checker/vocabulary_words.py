@@ -17,6 +17,7 @@ and SARIF keep their exact words and a plain word read from a file compares equa
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from enum import StrEnum
 
 ASSUMPTIONS = (
@@ -55,7 +56,7 @@ class Severity(StrEnum):
         return _SEVERITY_ORDER.index(self)
 
     @classmethod
-    def worst(cls, words) -> Severity | None:
+    def worst(cls, words: Iterable[str]) -> Severity | None:
         """The highest of ``words`` (severity words or members); None for none."""
         return max((cls(word) for word in words), key=lambda s: s.rank, default=None)
 

@@ -58,14 +58,14 @@ class Finding:
     threshold: float
     threshold_source: str
     message: str  # the rule's message at this point (a sweep: the worst)
-    corrections: list
+    corrections: list[Correction]
     file: str
     line: int
     waived: str | None = None
     formula: str | None = None  # the stated formula that made the assumption
     column: str | None = None  # table column of the stated number (CSV inputs)
     sweep: object = None  # sweep.SweepSummary where the finding covers a grid
-    also_at: tuple = ()  # other lines of the same file where the assumption is made
+    also_at: tuple[int, ...] = ()  # other lines of the same file where the assumption is made
 
     def indicator_text(self) -> str | None:
         """'η = 1.16 > -3', or None for a check without a numeric indicator."""

@@ -9,32 +9,39 @@ findings -> :class:`RunResult` (which the reports render).
 
 from __future__ import annotations
 
+from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from ..inputs.calculation_file import Calculation
 from ..inputs.config import Config, check_rule_ids
 from ..inputs.sources import read_input
 from ..vocabulary_words import Severity
+from .findings import Finding
 from .regime import rulebook
-from .regime.points import check_points
+from .regime.points import CalculationReport, check_points
+from .regime.rulebook import Rule
 from .waivers import apply_waivers
+
+# progress(done, total) of a sweep's grid
+Progress = Callable[[int, int], None]
 
 
 @dataclass
 class RunResult:
-    reports: list
-    input_errors: list
-    rules: tuple
-    notes: list = field(default_factory=list)  # run-level notes (configuration waivers)
-    files_read: list = field(default_factory=list)  # every input file (and settings file)
+    reports: list[CalculationReport]
+    input_errors: list[str]
+    rules: tuple[Rule, ...]
+    notes: list[str] = field(default_factory=list)  # run-level (configuration waivers)
+    files_read: list[str] = field(default_factory=list)  # every input and settings file
 
-    def active_findings(self):
+    def active_findings(self) -> list[Finding]:
         return [f for r in self.reports for f in r.findings if not f.waived]
 
     def worst(self) -> Severity | None:
         return Severity.worst(f.severity for f in self.active_findings())
 
-    def counts(self) -> dict:
+    def counts(self) -> dict[str, int]:
         out = {level.value: 0 for level in Severity}
         for finding in self.active_findings():
             out[finding.severity] += 1
@@ -42,15 +49,20 @@ class RunResult:
         return out
 
 
-def expand_paths(paths, config=None) -> tuple[list, list[str]]:
+def expand_paths(
+    paths: Iterable[str], config: Config | None = None
+) -> tuple[list[tuple[str, bool]], list[str]]:
     """(path, named on the command line) of the files named directly, plus every file
     under named directories that the configuration's file patterns select and its
     exclude patterns do not.  Each file once, however often it is named (directly, in
     a directory, through a link); named directly anywhere counts as named."""
     config = config or Config()
-    files, errors, seen = [], [], {}
+    files: list[tuple[str, bool]] = []
+    errors: list[str] = []
+    seen: dict[tuple[int, int] | str, int] = {}  # the file's identity -> index in files
 
-    def add(path, explicit):
+    def add(path: Path, explicit: bool) -> None:
+        key: tuple[int, int] | str
         try:
             info = path.stat()
             key = (info.st_dev, info.st_ino)
@@ -90,7 +102,11 @@ def expand_paths(paths, config=None) -> tuple[list, list[str]]:
 
 
 def check_calculations(
-    calculations, rules=None, input_errors=(), config=None, progress=None
+    calculations: Sequence[Calculation],
+    rules: tuple[Rule, ...] | None = None,
+    input_errors: Iterable[str] = (),
+    config: Config | None = None,
+    progress: Progress | None = None,
 ) -> RunResult:
     """Solve and check already-read calculations (``config``: an inputs.config.Config).
     Sweeps are checked over their grid (``progress(done, total)`` is told how far)."""
@@ -116,7 +132,13 @@ def check_calculations(
     return RunResult(ordered, errors, tuple(rules), waivers.run_notes)
 
 
-def check_paths(paths, rules=None, config=None, skip_unrelated=False, progress=None) -> RunResult:
+def check_paths(
+    paths: Iterable[str],
+    rules: tuple[Rule, ...] | None = None,
+    config: Config | None = None,
+    skip_unrelated: bool = False,
+    progress: Progress | None = None,
+) -> RunResult:
     """Read every calculation under ``paths`` and check them all in one pass.
 
     ``config`` (an inputs.config.Config) selects and adjusts the rules, the files
@@ -127,7 +149,7 @@ def check_paths(paths, rules=None, config=None, skip_unrelated=False, progress=N
     check_rule_ids(config, rules)
     rules = rulebook.configured(rules, config)
     files, errors = expand_paths(paths, config)
-    calculations = []
+    calculations: list[Calculation] = []
     for path, explicit in files:
         read = read_input(path, explicit and not skip_unrelated, config.columns)
         calculations.extend(read.calculations)

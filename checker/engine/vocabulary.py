@@ -37,10 +37,10 @@ for _name, (_unit, _meaning) in list(PER_CARRIER.items()):
 TEXT = {q.name: q.meaning for q in QUANTITIES if q.source is Source.TEXT}
 
 
-def carrier_names(x: str) -> dict:
+def carrier_names(x: str) -> dict[str, str]:
     """Map ``name_x``/``name_o`` to the concrete names for carrier ``x`` ("n" or "p")."""
     carrier = Carrier(x)
-    mapping = {}
+    mapping: dict[str, str] = {}
     for name in PER_CARRIER:
         stem, suffix = name[:-2], name[-1]
         mapping[name] = f"{stem}_{carrier if suffix == 'x' else carrier.other}"
@@ -48,7 +48,7 @@ def carrier_names(x: str) -> dict:
 
 
 @cache
-def rule_names() -> frozenset:
+def rule_names() -> frozenset[str]:
     """Every name a rule expression may use: the ``_x``/``_o`` forms (expanded per
     carrier) and the concrete ``_n``/``_p`` ones (e.g. dens_n in a per-calculation rule)."""
     return (
@@ -59,7 +59,7 @@ def rule_names() -> frozenset:
     )
 
 
-def concrete_names() -> set:
+def concrete_names() -> set[str]:
     names = set(COMMON) | set(CONSTANTS)
     for x in Carrier:
         names |= set(carrier_names(x).values())

@@ -3,23 +3,36 @@
 from __future__ import annotations
 
 import difflib
+from collections.abc import Sequence
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from ..inputs.calculation_file import Calculation
+    from ..inputs.config import Config
+    from .findings import Finding
+    from .regime.rulebook import Rule
 
 
 @dataclass
 class WaiverResult:
-    notes: list = field(default_factory=list)  # per calculation index: list[str]
-    errors: list = field(default_factory=list)  # input errors (unknown rule ids)
-    run_notes: list = field(default_factory=list)  # configuration waivers that waived nothing
+    notes: list[list[str]] = field(default_factory=list)  # per calculation index
+    errors: list[str] = field(default_factory=list)  # input errors (unknown rule ids)
+    run_notes: list[str] = field(default_factory=list)  # configuration waivers idle
 
 
-def apply_waivers(rules, calculations, findings, config=None) -> WaiverResult:
+def apply_waivers(
+    rules: Sequence[Rule],
+    calculations: Sequence[Calculation],
+    findings: Sequence[list[Finding]],
+    config: Config | None = None,
+) -> WaiverResult:
     """Mark waived findings (the calculation's own waivers, then the configuration's
     waivers per path); note waivers that waive nothing; unknown rule ids are errors."""
     result = WaiverResult([[] for _ in calculations], [])
     known = [rule.id for rule in rules]
     if config is not None:
-        used = set()
+        used: set[int] = set()
         for i, calc in enumerate(calculations):
             for waiver in config.waivers_for(calc.source):
                 for finding in findings[i]:

@@ -11,7 +11,7 @@ import numpy as np
 from .display_units import DISPLAY_UNITS
 
 
-def display(value, unit: str, digits: int = 4) -> str:
+def display(value: float | None, unit: str, digits: int = 4) -> str:
     """An SI value in a display unit, e.g. display(1e23, 'cm^-3') -> '1e+17 cm^-3'."""
     if value is None or not np.isfinite(value):
         return "n/a" if value is None or np.isnan(value) else ("inf" if value > 0 else "-inf")

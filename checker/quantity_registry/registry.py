@@ -17,6 +17,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from enum import StrEnum
+from typing import Any
 
 from ..physics.constants import BOLTZMANN, ELEMENTARY_CHARGE
 from ..vocabulary_words import Carrier
@@ -44,8 +45,8 @@ class Quantity:
     meaning: str  # as rule authors read it (regimecheck explain)
     source: Source
     section: str | None = None  # "stated" or "structure": where a calculation gives it
-    keys: tuple = ()  # its YAML key(s) in that section (electrons', holes')
-    symbols: tuple = ()  # its trade symbol(s) in stated formulas (electrons', holes')
+    keys: tuple[str, ...] = ()  # its YAML key(s) in that section (electrons', holes')
+    symbols: tuple[str, ...] = ()  # its trade symbol(s) in stated formulas (electrons', holes')
     in_rules: bool = True  # False: only the reader (or the state command) uses it
     signed: bool = False  # a stated value may be negative
     value: float | None = None  # a constant's value (SI)
@@ -63,7 +64,7 @@ class Quantity:
         """The name for ``carrier`` (``dens_x`` -> ``dens_n``); the name itself if common."""
         return f"{self.name[:-2]}_{carrier}" if self.per_carrier else self.name
 
-    def carriers(self) -> tuple:
+    def carriers(self) -> tuple[tuple[Carrier | None, str], ...]:
         """(carrier or None, concrete name) of each form the values carry."""
         if self.per_carrier:
             return tuple((c, self.concrete(c)) for c in Carrier)
@@ -75,15 +76,17 @@ class Quantity:
         return self.unit in BULK_UNITS
 
 
-def _q(name, unit, meaning, source=Source.SOLVE, **more) -> Quantity:
+def _q(name: str, unit: str, meaning: str, source: Source = Source.SOLVE, **more: Any) -> Quantity:
     return Quantity(name, unit, meaning, source, **more)
 
 
-def _stated(name, unit, meaning, keys, **more) -> Quantity:
+def _stated(name: str, unit: str, meaning: str, keys: tuple[str, ...], **more: Any) -> Quantity:
     return Quantity(name, unit, meaning, Source.STATED, section="stated", keys=keys, **more)
 
 
-def _structure(name, unit, meaning, key, source=Source.INPUTS, **more) -> Quantity:
+def _structure(
+    name: str, unit: str, meaning: str, key: str, source: Source = Source.INPUTS, **more: Any
+) -> Quantity:
     return Quantity(name, unit, meaning, source, section="structure", keys=(key,), **more)
 
 
@@ -347,16 +350,16 @@ def registered(name: str) -> Quantity | None:
     return found
 
 
-def value_names() -> set:
+def value_names() -> set[str]:
     """The concrete names of every quantity the solve lays out for rules (constants and
     words included): what engine/regime/state_values.py must produce."""
     return {name for quantity in QUANTITIES if quantity.in_rules for _, name in quantity.carriers()}
 
 
-def file_keys(section: str) -> dict:
+def file_keys(section: str) -> dict[str, tuple[str, str]]:
     """YAML key -> (engine name, dimension read as) of a calculation file's section, in
     the table's order (the reader's error messages and the schema list them so)."""
-    out = {}
+    out: dict[str, tuple[str, str]] = {}
     for quantity in QUANTITIES:
         if quantity.section == section:
             for key, (_, name) in zip(quantity.keys, quantity.carriers(), strict=True):
@@ -364,7 +367,7 @@ def file_keys(section: str) -> dict:
     return out
 
 
-def formula_symbols() -> dict:
+def formula_symbols() -> dict[str, str]:
     """Trade symbol of a stated formula -> the concrete quantity name that gives its value."""
     return {
         symbol: name

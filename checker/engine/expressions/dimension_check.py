@@ -11,13 +11,14 @@ engine/vocabulary.py (kT is shown in eV: an energy, J inside).
 from __future__ import annotations
 
 import math
+from collections.abc import Callable, Sequence
 from functools import cache
 
 from ..vocabulary import COMMON, CONSTANTS, PER_CARRIER
 from . import _relation_texts
 from . import dimensions as dm
 from .parser import folded, parse, to_text
-from .tree import CALL, NAME, NEG, NUM, fold
+from .tree import CALL, NAME, NEG, NUM, Node, fold
 
 # display unit (vocabulary.DISPLAY_UNITS) -> dimension
 UNIT_DIMENSIONS = {
@@ -67,7 +68,7 @@ def name_dimension(name: str) -> dm.Dimension:
     return UNIT_DIMENSIONS[PER_CARRIER[name[:-2] + "_x"][0]]
 
 
-def _same(trees, dimensions, what: str) -> dm.Dimension:
+def _same(trees: Sequence[Node], dimensions: Sequence[dm.Dimension], what: str) -> dm.Dimension:
     for tree, dimension in zip(trees[1:], dimensions[1:]):
         if dimension != dimensions[0]:
             raise DimensionProblem(
@@ -77,11 +78,11 @@ def _same(trees, dimensions, what: str) -> dm.Dimension:
     return dimensions[0]
 
 
-def dimension(tree, of_name=name_dimension) -> dm.Dimension:
+def dimension(tree: Node, of_name: Callable[[str], dm.Dimension] = name_dimension) -> dm.Dimension:
     """The dimension of an expression tree (expressions/tree.py); DimensionProblem
     where it has none."""
 
-    def visit(node, inner):
+    def visit(node: Node, inner: list[dm.Dimension]) -> dm.Dimension:
         kind = node.kind
         if kind == NUM:
             return dm.NONE
@@ -96,7 +97,7 @@ def dimension(tree, of_name=name_dimension) -> dm.Dimension:
     return fold(tree, visit)
 
 
-def _call_dimension(name: str, args, inner) -> dm.Dimension:
+def _call_dimension(name: str, args: Sequence[Node], inner: Sequence[dm.Dimension]) -> dm.Dimension:
     if name in _DIMENSIONLESS_ARGUMENTS:
         for argument, found in zip(args, inner):
             if not found.dimensionless:
@@ -121,11 +122,11 @@ def _call_dimension(name: str, args, inner) -> dm.Dimension:
 
 
 @cache  # one tree per relation function: a handful
-def _relation_formula(name: str):
+def _relation_formula(name: str) -> Node:
     return parse(_relation_texts.FUNCTIONS[name][1])
 
 
-def _relation_dimension(name: str, inner) -> dm.Dimension:
+def _relation_dimension(name: str, inner: Sequence[dm.Dimension]) -> dm.Dimension:
     """A relation function's dimension: its generated formula walked with the
     arguments' dimensions (so its sums, exponents and F arguments are checked too)."""
     parameters = _relation_texts.FUNCTIONS[name][0]
@@ -140,7 +141,9 @@ def _relation_dimension(name: str, inner) -> dm.Dimension:
         raise DimensionProblem(f"in {name}({shown}): {exc}") from None
 
 
-def _operation_dimension(kind: str, args, inner) -> dm.Dimension:
+def _operation_dimension(
+    kind: str, args: Sequence[Node], inner: Sequence[dm.Dimension]
+) -> dm.Dimension:
     left, right = inner
     if kind in ("+", "-"):
         return _same(args, (left, right), "terms of a sum must have one dimension")

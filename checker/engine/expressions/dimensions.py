@@ -13,29 +13,38 @@ from fractions import Fraction
 _SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
 
 
-class Dimension(tuple):
-    """Exponents of (m, s, V, C, K); multiply/divide/power like quantities."""
+# an exponent as written (int) or computed (Fraction)
+Exponent = int | Fraction
 
-    def __new__(cls, m=0, s=0, V=0, C=0, K=0):
+
+class Dimension(tuple[Fraction, ...]):
+    """Exponents of (m, s, V, C, K); multiply/divide/power like quantities.
+
+    ``*`` and ``/`` combine two dimensions (not tuple repetition): the overrides differ
+    from tuple's on purpose."""
+
+    def __new__(
+        cls, m: Exponent = 0, s: Exponent = 0, V: Exponent = 0, C: Exponent = 0, K: Exponent = 0
+    ) -> Dimension:
         return super().__new__(
             cls, (Fraction(m), Fraction(s), Fraction(V), Fraction(C), Fraction(K))
         )
 
-    def __mul__(self, other):
+    def __mul__(self, other: Dimension) -> Dimension:  # type: ignore[override]
         return Dimension(*(a + b for a, b in zip(self, other)))
 
-    def __truediv__(self, other):
+    def __truediv__(self, other: Dimension) -> Dimension:
         return Dimension(*(a - b for a, b in zip(self, other)))
 
-    def __pow__(self, power):
-        power = Fraction(power).limit_denominator(64)
-        return Dimension(*(a * power for a in self))
+    def __pow__(self, power: float | Fraction) -> Dimension:
+        exponent = Fraction(power).limit_denominator(64)
+        return Dimension(*(a * exponent for a in self))
 
     @property
     def dimensionless(self) -> bool:
         return not any(self)
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"Dimension({text(self)})"
 
 

@@ -29,12 +29,15 @@ from __future__ import annotations
 import ast
 import math
 import re
+from collections.abc import Callable, Collection, Iterable, Mapping
 from functools import lru_cache
+from typing import Any
 
 import numpy as np
 
 from ...errors import InputError
 from ...physics import _relations
+from ...physics.arrays import ArrayIn, FloatArray
 from .tree import CALL, NAME, NEG, NUM, Node, binary, call, fold, neg, num, transform
 from .tree import name as name_node
 
@@ -44,22 +47,28 @@ MAX_DEPTH = 40
 MAX_CONSTANT = 1e300
 MAX_EXPONENT = 64.0
 
-
-def _stated_or(stated, fallback):
-    stated = np.asarray(stated, dtype=float)
-    return np.where(np.isfinite(stated), stated, fallback)
-
-
-def _present(x):
-    return np.isfinite(np.asarray(x, dtype=float)).astype(float)
+# values by name (numpy arrays or numbers, SI) -> the expression's value there
+Evaluator = Callable[[Mapping[str, Any]], Any]
+# sympy ships no type information: its objects are Any to the type checker
+SympyExpr = Any
 
 
-def _less(a, b):
+def _stated_or(stated: ArrayIn, fallback: ArrayIn) -> FloatArray:
+    given = np.asarray(stated, dtype=float)
+    return np.where(np.isfinite(given), given, fallback)
+
+
+def _present(x: ArrayIn) -> FloatArray:
+    given: FloatArray = np.isfinite(np.asarray(x, dtype=float)).astype(float)
+    return given
+
+
+def _less(a: ArrayIn, b: ArrayIn) -> FloatArray:
     return (np.asarray(a, dtype=float) < np.asarray(b, dtype=float)).astype(float)
 
 
 # name -> (number of arguments, numpy function, sympy builder name, meaning)
-FUNCTIONS = {
+FUNCTIONS: dict[str, tuple[int, Callable[..., Any], str, str]] = {
     "exp": (1, np.exp, "exp", "e^x"),
     "log": (1, np.log, "log", "natural logarithm"),
     "ln": (1, np.log, "log", "natural logarithm (same as log)"),
@@ -95,7 +104,12 @@ FUNCTIONS.update(
 _BINARY = {ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/", ast.Pow: "**"}
 
 
-def parse(text: str, names=None, where: str = "", functions=None) -> Node:
+def parse(
+    text: str,
+    names: Collection[str] | None = None,
+    where: str = "",
+    functions: Iterable[str] | None = None,
+) -> Node:
     """Parse ``text`` into a tree of :class:`~.tree.Node`.
 
     ``names`` (optional) is the set of allowed names; ``functions`` (optional)
@@ -129,14 +143,30 @@ def parse(text: str, names=None, where: str = "", functions=None) -> Node:
     return _walk(tree.body, names, place, text, counter, 0, allowed)
 
 
-def _walk(node, names, place, text, counter, depth, allowed):
+def _walk(
+    node: ast.expr,
+    names: Collection[str] | None,
+    place: str,
+    text: str,
+    counter: list[int],
+    depth: int,
+    allowed: Mapping[str, tuple[int, Callable[..., Any], str, str]],
+) -> Node:
     counter[0] += 1
     if counter[0] > MAX_NODES:
         raise InputError(f"{place}expression has more than {MAX_NODES} parts; split it")
     if depth > MAX_DEPTH:
         raise InputError(f"{place}expression is nested deeper than {MAX_DEPTH} levels")
-    go = lambda child: _walk(child, names, place, text, counter, depth + 1, allowed)
-    if isinstance(node, ast.Constant) and type(node.value) in (int, float):
+
+    def go(child: ast.expr) -> Node:
+        return _walk(child, names, place, text, counter, depth + 1, allowed)
+
+    # numbers only (a bool is an int to Python: True is not a number here)
+    if (
+        isinstance(node, ast.Constant)
+        and isinstance(node.value, int | float)
+        and not isinstance(node.value, bool)
+    ):
         try:
             value = float(node.value)
         except OverflowError:  # an integer literal of 309 digits or more
@@ -180,7 +210,7 @@ def _walk(node, names, place, text, counter, depth, allowed):
         return call(name, [go(arg) for arg in node.args])
     kind = type(node).__name__
     if (
-        kind == "Call"
+        isinstance(node, ast.Call)
         and isinstance(node.func, (ast.Constant, ast.BinOp, ast.UnaryOp))
         and not node.keywords
     ):  # 2(a + b), (a + b)(c + d)
@@ -194,7 +224,7 @@ def _walk(node, names, place, text, counter, depth, allowed):
     )
 
 
-def _check_power(base, exponent, place):
+def _check_power(base: Node, exponent: Node, place: str) -> None:
     """Refuse a power whose exponent (folded to a constant where it is one) or whose
     nesting inside other powers is out of range, and a constant power beyond 1e300."""
     power = binary("**", base, exponent)
@@ -217,8 +247,8 @@ def _check_power(base, exponent, place):
             "(write the combined power once)"
         )
     if value is not None and not names_in(base):
-        result = folded(power)
-        if not abs(result) <= MAX_CONSTANT:  # also inf and nan
+        result = folded(power)  # a number: neither side has a name
+        if result is not None and not abs(result) <= MAX_CONSTANT:  # also inf and nan
             raise InputError(
                 f"{place}{_shown(to_text(power), 40)} is {result:g}; a "
                 "constant must be a finite number with |x| <= 1e300"
@@ -226,7 +256,7 @@ def _check_power(base, exponent, place):
 
 
 @lru_cache(maxsize=4096)
-def folded(tree):
+def folded(tree: Node) -> float | None:
     """The value of a tree without names (a float, possibly inf or nan), else None."""
     if names_in(tree):
         return None
@@ -238,7 +268,7 @@ def folded(tree):
 def _growth(tree: Node) -> float:
     """The largest constant power any leaf is raised to through nested powers."""
 
-    def visit(node, inner):
+    def visit(node: Node, inner: list[float]) -> float:
         if not inner:
             return 1.0
         if node.kind == "**":
@@ -266,7 +296,7 @@ _IMPLICIT = re.compile(
 _NEXT_TOKEN = re.compile(r"\w+|\(")
 
 
-def _implicit_products(text: str) -> list:
+def _implicit_products(text: str) -> list[str]:
     """How to write ``text`` with explicit products: the whole text when short ("2*N_D"),
     else the first few products; [] when inserting '*' does not make it parse."""
     matches = list(_IMPLICIT.finditer(text))
@@ -281,7 +311,8 @@ def _implicit_products(text: str) -> list:
         return [explicit.strip()]
     products = []
     for m in matches[:3]:
-        following = _NEXT_TOKEN.match(text, m.end()).group(0)
+        token = _NEXT_TOKEN.match(text, m.end())  # the lookaheads of _IMPLICIT promise one
+        following = token.group(0) if token else "..."
         before = m.group(1) or m.group(2) or "(...)"
         products.append(f"{before}*{following}{'...)' if following == '(' else ''}")
     return products
@@ -306,14 +337,14 @@ def _describe(kind: str) -> str:
     }.get(kind, f"{kind} syntax")
 
 
-def names_in(tree: Node) -> set:
+def names_in(tree: Node) -> set[str]:
     """Every name the tree refers to."""
     return fold(
         tree, lambda node, inner: {node.value} if node.kind == NAME else set().union(*inner)
     )
 
 
-def rename(tree: Node, mapping: dict) -> Node:
+def rename(tree: Node, mapping: Mapping[str, str]) -> Node:
     """The tree with names replaced by ``mapping`` (names not in it are kept)."""
     return transform(
         tree,
@@ -324,7 +355,7 @@ def rename(tree: Node, mapping: dict) -> Node:
 _NUMPY_BINARY = {"+": np.add, "-": np.subtract, "*": np.multiply, "/": np.divide, "**": np.power}
 
 
-def to_numpy(tree: Node, strict: bool = False):
+def to_numpy(tree: Node, strict: bool = False) -> Evaluator:
     """A function ``f(values)`` evaluating the tree on a dict of numpy arrays.
 
     ``strict``: every intermediate result that is not finite becomes NaN and stays NaN
@@ -332,8 +363,9 @@ def to_numpy(tree: Node, strict: bool = False):
     overflowed or left its domain shows as NaN in the result.
     """
 
-    def visit(node, parts):
+    def visit(node: Node, parts: list[Evaluator]) -> Evaluator:
         kind = node.kind
+        op: Callable[..., Any]
         if kind == NUM:
             value = node.value
             return lambda values: value
@@ -353,16 +385,16 @@ def to_numpy(tree: Node, strict: bool = False):
     return fold(tree, visit)
 
 
-def _strict_power(base, exponent):
+def _strict_power(base: ArrayIn, exponent: ArrayIn) -> FloatArray:
     return np.where(np.isnan(base) | np.isnan(exponent), np.nan, np.power(base, exponent))
 
 
-def _finite_or_nan(value):
-    value = np.asarray(value, dtype=float)
-    return np.where(np.isfinite(value), value, np.nan)
+def _finite_or_nan(value: ArrayIn) -> FloatArray:
+    array = np.asarray(value, dtype=float)
+    return np.where(np.isfinite(array), array, np.nan)
 
 
-def _sympy_number(value):
+def _sympy_number(value: float) -> SympyExpr:
     from fractions import Fraction
 
     import sympy
@@ -379,7 +411,9 @@ def _sympy_number(value):
     )
 
 
-def to_sympy(tree: Node, symbols=None, evaluate=False):
+def to_sympy(
+    tree: Node, symbols: dict[str, SympyExpr] | None = None, evaluate: bool = False
+) -> SympyExpr:
     """sympy objects built directly from the tree (nothing is re-parsed from text).
 
     ``symbols`` maps tree names to prepared sympy symbols (e.g. with
@@ -392,7 +426,7 @@ def to_sympy(tree: Node, symbols=None, evaluate=False):
     symbols = {} if symbols is None else symbols
     minus_one = sympy.Integer(-1)
 
-    def visit(node, args):
+    def visit(node: Node, args: list[SympyExpr]) -> SympyExpr:
         kind = node.kind
         if kind == NUM:
             return _sympy_number(node.value)
@@ -425,7 +459,7 @@ def to_sympy(tree: Node, symbols=None, evaluate=False):
     return fold(tree, visit)
 
 
-def _sympy_call(function_name: str, args: list, evaluate: bool):
+def _sympy_call(function_name: str, args: list[SympyExpr], evaluate: bool) -> SympyExpr:
     import sympy
 
     builder = FUNCTIONS[function_name][2]
@@ -451,13 +485,13 @@ def to_text(tree: Node) -> str:
     return fold(tree, _text_of)
 
 
-def _text_of(node: Node, texts: list) -> str:
+def _text_of(node: Node, texts: list[str]) -> str:
     kind = node.kind
     if kind == NUM:
         value = node.value
         return str(int(value)) if value.is_integer() and abs(value) < 1e15 else f"{value:g}"
     if kind == NAME:
-        return node.value
+        return str(node.value)
     if kind == CALL:
         return f"{node.value}({', '.join(texts)})"
     if kind == NEG:
@@ -479,8 +513,8 @@ def _text_of(node: Node, texts: list) -> str:
     return f"{left_text}{spaced}{right_text}"
 
 
-def pretty(tree) -> str:
+def pretty(tree: Node) -> str:
     """A readable one-line (or multi-line, via sympy) rendering for ``explain``."""
     import sympy
 
-    return sympy.pretty(to_sympy(tree), use_unicode=True, wrap_line=False)
+    return str(sympy.pretty(to_sympy(tree), use_unicode=True, wrap_line=False))

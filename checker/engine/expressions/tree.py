@@ -18,8 +18,8 @@ rebuilds the tree (renaming, substitution, rewriting).
 
 from __future__ import annotations
 
-from collections.abc import Callable
-from typing import Any, NamedTuple
+from collections.abc import Callable, Iterable
+from typing import Any, NamedTuple, TypeVar
 
 NUM = "num"
 NAME = "name"
@@ -30,11 +30,14 @@ BINARY = ("+", "-", "*", "/", "**")
 
 class Node(NamedTuple):
     kind: str
-    value: Any = None
-    args: tuple = ()
+    value: Any = None  # float (NUM), str (NAME, CALL) or None
+    args: tuple[Node, ...] = ()
 
 
-def num(value) -> Node:
+Folded = TypeVar("Folded")
+
+
+def num(value: float) -> Node:
     return Node(NUM, float(value))
 
 
@@ -46,7 +49,7 @@ def neg(operand: Node) -> Node:
     return Node(NEG, None, (operand,))
 
 
-def call(function: str, args) -> Node:
+def call(function: str, args: Iterable[Node]) -> Node:
     return Node(CALL, function, tuple(args))
 
 
@@ -54,7 +57,7 @@ def binary(op: str, left: Node, right: Node) -> Node:
     return Node(op, None, (left, right))
 
 
-def fold(tree: Node, visit: Callable[[Node, list], Any]):
+def fold(tree: Node, visit: Callable[[Node, list[Folded]], Folded]) -> Folded:
     """``visit(node, results)`` applied bottom-up; ``results`` are the folds of
     ``node.args`` in order.  The one traversal every walker uses."""
     return visit(tree, [fold(arg, visit) for arg in tree.args])
@@ -64,7 +67,7 @@ def transform(tree: Node, change: Callable[[Node], Node]) -> Node:
     """The tree rebuilt bottom-up: ``change(node)`` sees each node with its arguments
     already changed and returns the node to put in its place."""
 
-    def visit(node: Node, args: list) -> Node:
+    def visit(node: Node, args: list[Node]) -> Node:
         return change(node._replace(args=tuple(args)) if args else node)
 
     return fold(tree, visit)

@@ -28,18 +28,24 @@ the dimensionality and the majority carrier, so it is cached per process.
 from __future__ import annotations
 
 import math
+from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Set as AbstractSet
 from dataclasses import dataclass
 from functools import lru_cache
 from itertools import combinations
+from typing import Any
 
 import numpy as np
 
-from ..expressions.parser import folded, to_numpy, to_sympy
+from ...physics.arrays import ArrayIn
+from ..expressions.parser import Evaluator, folded, to_numpy, to_sympy
 from ..expressions.tree import CALL, NAME, NEG, NUM, Node, binary, fold
 from . import normal_form
 from .relations import (
     RELATION_NAMES,
     WORDS_IN,
+    Limit,
+    World,
     acts_on,
     closure,
     expand,
@@ -64,29 +70,38 @@ ACCEPTOR_SYMBOLS = frozenset({"N_A", "N_A_minus", "f_A", "g_A", "E_A"})
 # real (possibly negative) symbols; every other input is positive
 _SIGNED = frozenset({"E_c", "E_v", "E_F"})
 
+# an assumption passed to the rules: (word, carrier "n"/"p" or None)
+Assumption = tuple[str, str | None]
+
 
 @dataclass(frozen=True)
 class Match:
     status: str  # "exact" | "limit" | "unrecognised"
     world: str | None
-    limits: tuple  # relations.Limit, in report order
-    relations: tuple  # names of the exact relations involved
-    assumptions: tuple  # (word, carrier or None) passed to the rules
+    limits: tuple[Limit, ...]  # in report order
+    relations: tuple[str, ...]  # names of the exact relations involved
+    assumptions: tuple[Assumption, ...]  # passed to the rules
     proof: str | None  # "symbolic" | "numeric" | None
 
     @property
-    def labels(self) -> tuple:
+    def labels(self) -> tuple[str, ...]:
         return tuple(limit.label for limit in self.limits)
 
 
 # the caches below are keyed by trees; bounded so that a long-lived process (the Python
 # API, a language server) checking many different formulas does not grow without end
 @lru_cache(maxsize=4096)
-def _compiled(tree):
+def _compiled(tree: Node) -> Evaluator:
     return to_numpy(tree, strict=True)
 
 
-def _evaluate(lhs, rhs, definitions, order, inputs) -> tuple:
+def _evaluate(
+    lhs: Node,
+    rhs: Node,
+    definitions: Mapping[str, Node],
+    order: Iterable[str],
+    inputs: Mapping[str, Any],
+) -> tuple[Any, Any]:
     values = dict(inputs)
     for name in order:
         values[name] = _compiled(definitions[name])(values)
@@ -94,18 +109,18 @@ def _evaluate(lhs, rhs, definitions, order, inputs) -> tuple:
         return _compiled(lhs)(values), _compiled(rhs)(values)
 
 
-def identical(a, b) -> bool:
+def identical(a: ArrayIn, b: ArrayIn) -> bool:
     """True when two sampled sides agree to TOLERANCE wherever both are finite."""
-    a, b = np.broadcast_arrays(np.asarray(a, dtype=float), np.asarray(b, dtype=float))
-    finite = np.isfinite(a) & np.isfinite(b)
-    if finite.sum() < min(MIN_POINTS, a.size):
+    left, right = np.broadcast_arrays(np.asarray(a, dtype=float), np.asarray(b, dtype=float))
+    finite = np.isfinite(left) & np.isfinite(right)
+    if finite.sum() < min(MIN_POINTS, left.size):
         return False
-    a, b = a[finite], b[finite]
-    scale = np.maximum(np.abs(a), np.abs(b))
-    return bool(np.all(np.abs(a - b) <= TOLERANCE * scale))
+    left, right = left[finite], right[finite]
+    scale = np.maximum(np.abs(left), np.abs(right))
+    return bool(np.all(np.abs(left - right) <= TOLERANCE * scale))
 
 
-def _worlds(names: set, majority: str) -> tuple:
+def _worlds(names: AbstractSet[str], majority: str) -> tuple[str, ...]:
     """Which way round to write neutrality: for the dopant the formula is about."""
     donor, acceptor = bool(names & DONOR_SYMBOLS), bool(names & ACCEPTOR_SYMBOLS)
     first = "donor" if majority == "n" else "acceptor"
@@ -125,7 +140,7 @@ def analyse(lhs: Node, rhs: Node, dim: int, majority: str) -> Match:
 def _analyse(lhs: Node, rhs: Node, dim: int, majority: str) -> Match:
     names = names_in(lhs) | names_in(rhs)
     rng = np.random.default_rng(SEED)
-    best = None
+    best: tuple[World, tuple[Limit, ...]] | None = None
     for which in _worlds(names, majority):
         base = world(dim, which, majority)
         used = closure(names, base.definitions)
@@ -156,9 +171,18 @@ def _analyse(lhs: Node, rhs: Node, dim: int, majority: str) -> Match:
     )
 
 
-def _smallest(lhs, rhs, base, candidates, names, rng, at_most):
+def _smallest(
+    lhs: Node,
+    rhs: Node,
+    base: World,
+    candidates: Sequence[Limit],
+    names: AbstractSet[str],
+    rng: np.random.Generator,
+    at_most: int | None,
+) -> tuple[Limit, ...] | None:
     """The first limit set (smallest, in catalogue order) making the formula an identity."""
-    primitives_cache = {}
+    # (degenerate carriers, inputs) -> sampled input values
+    primitives_cache: dict[tuple[tuple[str, ...], frozenset[str]], dict[str, Any]] = {}
     largest = len(candidates) if at_most is None else min(at_most - 1, len(candidates))
     for size in range(largest + 1):
         for chosen in combinations(candidates, size):
@@ -184,7 +208,7 @@ def _smallest(lhs, rhs, base, candidates, names, rng, at_most):
     return None
 
 
-def _acted(limit, names, base) -> list:
+def _acted(limit: Limit, names: AbstractSet[str], base: World) -> list[str]:
     return [
         n for n in sorted(closure(names, base.definitions)) if acts_on(limit, base.definitions[n])
     ]
@@ -194,8 +218,10 @@ def _acted(limit, names, base) -> list:
 _CARRIER_OF = {"v_n": "n", "v_p": "p", "D_n": "n", "D_p": "p"}
 
 
-def _assumptions(names, base, chosen) -> tuple:
-    out = []
+def _assumptions(
+    names: AbstractSet[str], base: World, chosen: Sequence[Limit]
+) -> tuple[Assumption, ...]:
+    out: list[Assumption] = []
     for limit in chosen:
         acted = _acted(limit, names, base)
         words = {WORDS_IN.get(n, {}).get(limit.id, limit.word) for n in acted} or {limit.word}
@@ -209,7 +235,7 @@ def _assumptions(names, base, chosen) -> tuple:
     return tuple(out)
 
 
-def _relations(lhs, rhs, base, chosen) -> tuple:
+def _relations(lhs: Node, rhs: Node, base: World, chosen: Sequence[Limit]) -> tuple[str, ...]:
     direct = [
         n for n in _in_order(lhs) + _in_order(rhs) if n in base.definitions and n in RELATION_NAMES
     ]
@@ -225,14 +251,14 @@ def _relations(lhs, rhs, base, chosen) -> tuple:
         ] or direct
     else:
         direct = direct[:1]
-    names = []
+    names: list[str] = []
     for name in direct:
         if RELATION_NAMES[name] not in names:
             names.append(RELATION_NAMES[name])
     return tuple(names)
 
 
-def _in_order(tree: Node) -> list:
+def _in_order(tree: Node) -> list[str]:
     """The names of the tree, left to right (with repeats)."""
     return fold(
         tree,
@@ -242,7 +268,7 @@ def _in_order(tree: Node) -> list:
     )
 
 
-def _proof(lhs, rhs, definitions):
+def _proof(lhs: Node, rhs: Node, definitions: Mapping[str, Node]) -> str | None:
     """How lhs = rhs under the definitions is confirmed: "symbolic" by our exact normal
     form (no sympy import) or by sympy's expand / power collection / factoring, else
     "numeric"; None when the formula is too large for sympy's budget."""
@@ -260,7 +286,7 @@ def _proof(lhs, rhs, definitions):
         return "numeric"
 
 
-def expansion_cost(tree) -> int:
+def expansion_cost(tree: Node) -> int:
     """An upper bound on the terms sympy's expansion makes of ``tree`` (summed over the
     tree and the arguments of its functions and powers) times the number of symbols:
     sympy's factoring, the slowest step, grows with both.  Above SYMPY_BUDGET anywhere
@@ -282,7 +308,7 @@ def _within(count: int) -> int:
     return count
 
 
-def _terms(node: Node, parts: list) -> tuple:
+def _terms(node: Node, parts: list[tuple[int, int]]) -> tuple[int, int]:
     """(terms of the node's expansion, terms inside its functions and non-constant
     powers, which sympy expands on their own)."""
     kind = node.kind
@@ -309,7 +335,7 @@ def _terms(node: Node, parts: list) -> tuple:
     return _within(left + right if kind in ("+", "-") else left * right), inner
 
 
-def _proved_by_sympy(a, b) -> bool:
+def _proved_by_sympy(a: Node, b: Node) -> bool:
     import sympy
 
     symbols = {"pi": sympy.pi}
@@ -332,4 +358,4 @@ def _proved_by_sympy(a, b) -> bool:
         ratio = sympy.powsimp(sympy.expand_power_base(left / right, force=True), force=True)
         if sympy.expand(sympy.cancel(ratio)) == 1:
             return True
-    return sympy.expand(sympy.radsimp(sympy.factor(difference))) == 0
+    return bool(sympy.expand(sympy.radsimp(sympy.factor(difference))) == 0)

@@ -22,6 +22,7 @@ differences, which are kept as sums).
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import TypeAlias
 
 from ..expressions.tree import CALL, NAME, NEG, NUM, Node, fold
 
@@ -37,20 +38,25 @@ class Unsupported(Exception):
 # A monomial: (factors, exp_argument); factors = sorted ((atom, exponent), ...),
 # exp_argument = a frozen polynomial.  A polynomial (working form) is {monomial: Fraction};
 # frozen: a sorted tuple of (monomial, coefficient).
-ONE_MONO = ((), ())
+Factor: TypeAlias = tuple[str, Fraction]
+Monomial: TypeAlias = "tuple[tuple[Factor, ...], Frozen]"
+Frozen: TypeAlias = "tuple[tuple[Monomial, Fraction], ...]"
+Poly: TypeAlias = dict[Monomial, Fraction]
+Quotient: TypeAlias = tuple[Poly, Poly]  # numerator, denominator
+ONE_MONO: Monomial = ((), ())
 # atom name -> frozen polynomial it stands for (powers of sums).  An atom's name is its
 # polynomial written out, so the table is only needed while one proof runs: equal()
 # empties it first, which bounds it by the size of one proof
-_SUMS = {}
+_SUMS: dict[str, Frozen] = {}
 
 
-def _freeze(poly: dict) -> tuple:
+def _freeze(poly: Poly) -> Frozen:
     return tuple(sorted(poly.items()))
 
 
-def _const(value) -> dict:
-    value = Fraction(value)
-    return {ONE_MONO: value} if value else {}
+def _const(value: Fraction | int) -> Poly:
+    exact = Fraction(value)
+    return {ONE_MONO: exact} if exact else {}
 
 
 def _bounded(value: Fraction) -> Fraction:
@@ -60,7 +66,7 @@ def _bounded(value: Fraction) -> Fraction:
     return value
 
 
-def _add(p: dict, q: dict, sign=1) -> dict:
+def _add(p: Poly, q: Poly, sign: int = 1) -> Poly:
     out = dict(p)
     for mono, coeff in q.items():
         total = out.get(mono, 0) + sign * coeff
@@ -71,7 +77,7 @@ def _add(p: dict, q: dict, sign=1) -> dict:
     return out
 
 
-def _merge(a: tuple, b: tuple) -> tuple:
+def _merge(a: tuple[Factor, ...], b: tuple[Factor, ...]) -> tuple[Factor, ...]:
     factors = dict(a)
     for atom, power in b:
         total = factors.get(atom, 0) + power
@@ -82,18 +88,19 @@ def _merge(a: tuple, b: tuple) -> tuple:
     return tuple(sorted(factors.items()))
 
 
-def _mono_mul(m1, m2):
+def _mono_mul(m1: Monomial, m2: Monomial) -> Monomial:
     exp_arg = _freeze(_add(dict(m1[1]), dict(m2[1]))) if m1[1] or m2[1] else ()
     return (_merge(m1[0], m2[0]), exp_arg)
 
 
-def _numbers_out(mono):
+def _numbers_out(mono: Monomial) -> tuple[Monomial, Fraction | int]:
     """Move the whole part of prime-number atoms ('#2' ** 3/2 -> 2 * '#2' ** 1/2) to the
     coefficient: returns (monomial, factor)."""
     factors, exp_arg = mono
     if not any(atom[0] == "#" and (power < 0 or power >= 1) for atom, power in factors):
         return mono, 1
-    kept, factor = [], Fraction(1)
+    kept: list[Factor] = []
+    factor = Fraction(1)
     for atom, power in factors:
         if atom[0] == "#":
             whole = power.numerator // power.denominator
@@ -105,8 +112,8 @@ def _numbers_out(mono):
     return (tuple(kept), exp_arg), factor
 
 
-def _mul(p: dict, q: dict) -> dict:
-    out = {}
+def _mul(p: Poly, q: Poly) -> Poly:
+    out: Poly = {}
     for m1, c1 in p.items():
         for m2, c2 in q.items():
             mono, factor = _numbers_out(_mono_mul(m1, m2))
@@ -120,13 +127,13 @@ def _mul(p: dict, q: dict) -> dict:
     return _expand_integer_sums(out)
 
 
-def _expand_integer_sums(poly: dict) -> dict:
+def _expand_integer_sums(poly: Poly) -> Poly:
     """A power-of-sum atom whose exponent has become an integer is multiplied out."""
     if not any(
         atom in _SUMS and power.denominator == 1 for mono in poly for atom, power in mono[0]
     ):
         return poly
-    out = {}
+    out: Poly = {}
     for (factors, exp_arg), coeff in poly.items():
         rest = tuple((a, e) for a, e in factors if not (a in _SUMS and e.denominator == 1))
         term = {(rest, exp_arg): coeff}
@@ -137,7 +144,7 @@ def _expand_integer_sums(poly: dict) -> dict:
     return out
 
 
-def _int_power(p: dict, k: int) -> dict:
+def _int_power(p: Poly, k: int) -> Poly:
     if abs(k) > MAX_POWER:
         raise Unsupported("power too large")
     if k < 0:
@@ -151,7 +158,7 @@ def _int_power(p: dict, k: int) -> dict:
     return out
 
 
-def _mono_inverse(p: dict) -> dict:
+def _mono_inverse(p: Poly) -> Poly:
     (((factors, exp_arg), coeff),) = p.items()
     inverse = tuple((a, -e) for a, e in factors)
     exp_inverse = _freeze({m: -c for m, c in exp_arg})
@@ -159,7 +166,7 @@ def _mono_inverse(p: dict) -> dict:
 
 
 # ---- quotients N/D ---------------------------------------------------------------------------
-def _quotient(n: dict, d: dict) -> tuple:
+def _quotient(n: Poly, d: Poly) -> Quotient:
     if not d:
         raise Unsupported("division by zero")
     if len(d) == 1:  # a monomial denominator divides into the numerator
@@ -167,26 +174,26 @@ def _quotient(n: dict, d: dict) -> tuple:
     return n, d
 
 
-def _q_const(value) -> tuple:
+def _q_const(value: Fraction | int) -> Quotient:
     return _const(value), _const(1)
 
 
-def _q_add(a, b, sign=1):
+def _q_add(a: Quotient, b: Quotient, sign: int = 1) -> Quotient:
     (n1, d1), (n2, d2) = a, b
     if d1 == d2:
         return _quotient(_add(n1, n2, sign), d1)
     return _quotient(_add(_mul(n1, d2), _mul(n2, d1), sign), _mul(d1, d2))
 
 
-def _q_mul(a, b):
+def _q_mul(a: Quotient, b: Quotient) -> Quotient:
     return _quotient(_mul(a[0], b[0]), _mul(a[1], b[1]))
 
 
-def _q_div(a, b):
+def _q_div(a: Quotient, b: Quotient) -> Quotient:
     return _quotient(_mul(a[0], b[1]), _mul(a[1], b[0]))
 
 
-def _polynomial(q) -> dict:
+def _polynomial(q: Quotient) -> Poly:
     n, d = q
     if d != _const(1):
         raise Unsupported("a quotient where a polynomial is needed")
@@ -194,7 +201,7 @@ def _polynomial(q) -> dict:
 
 
 # ---- functions ---------------------------------------------------------------------------
-def _rational(value: Fraction, power: Fraction):
+def _rational(value: Fraction, power: Fraction) -> Fraction | None:
     """value**power as an exact fraction, or None."""
     size = max(value.numerator.bit_length(), value.denominator.bit_length())
     if size > 1 and abs(power) * size > MAX_BITS:  # checked before the power is taken
@@ -211,11 +218,11 @@ def _rational(value: Fraction, power: Fraction):
     return None
 
 
-def _number_atoms(value: Fraction, power: Fraction) -> tuple:
+def _number_atoms(value: Fraction, power: Fraction) -> tuple[Fraction, tuple[Factor, ...]]:
     """value**power for a positive rational: prime atoms '#p' with fractional exponents."""
     if value <= 0:
         raise Unsupported("fractional power of a negative number")
-    factors = {}
+    factors: dict[int, int] = {}  # prime -> its count
     for part, sign in ((value.numerator, 1), (value.denominator, -1)):
         if part > 10**9:
             raise Unsupported("number too large to factor")
@@ -227,7 +234,8 @@ def _number_atoms(value: Fraction, power: Fraction) -> tuple:
             prime += 1
         if part > 1:
             factors[part] = factors.get(part, 0) + sign
-    coeff, atoms = Fraction(1), []
+    coeff = Fraction(1)
+    atoms: list[Factor] = []
     for prime, count in factors.items():
         exponent = count * power
         whole = exponent.numerator // exponent.denominator
@@ -237,11 +245,11 @@ def _number_atoms(value: Fraction, power: Fraction) -> tuple:
     return coeff, tuple(sorted(atoms))
 
 
-def _content(poly: dict):
+def _content(poly: Poly) -> tuple[Poly, Poly]:
     """poly = monomial content * primitive poly (leading coefficient 1)."""
     monos = list(poly)
     atoms = {a for mono in monos for a, _ in mono[0]}
-    common = []
+    common: list[Factor] = []
     for atom in sorted(atoms):
         powers = [dict(m[0]).get(atom, Fraction(0)) for m in monos]
         low = min(powers)
@@ -249,14 +257,14 @@ def _content(poly: dict):
             common.append((atom, low))
     exp_args = {m[1] for m in monos}
     shared_exp = monos[0][1] if len(exp_args) == 1 else ()
-    content = {(tuple(common), shared_exp): Fraction(1)}
+    content: Poly = {(tuple(common), shared_exp): Fraction(1)}
     primitive = _mul(poly, _mono_inverse(content))
     # the sign stays inside the sum (its sign is not known); the size goes to the content
     lead = abs(_freeze(primitive)[0][1])
     return _mul(content, _const(lead)), _mul(primitive, _const(1 / lead))
 
 
-def _power(base, exponent):
+def _power(base: Quotient, exponent: Fraction) -> Quotient:
     """base**exponent for a quotient base and an exact rational exponent."""
     n, d = base
     if exponent.denominator == 1:
@@ -266,7 +274,7 @@ def _power(base, exponent):
     return _q_div(_poly_power(n, exponent), _poly_power(d, exponent))
 
 
-def _poly_power(poly: dict, exponent: Fraction):
+def _poly_power(poly: Poly, exponent: Fraction) -> Quotient:
     if not poly:
         if exponent > 0:
             return {}, _const(1)
@@ -274,6 +282,7 @@ def _poly_power(poly: dict, exponent: Fraction):
     if len(poly) == 1:
         (((factors, exp_arg), coeff),) = poly.items()
         exact = _rational(coeff, exponent)
+        atoms: tuple[Factor, ...]
         if exact is None:
             coeff_part, atoms = _number_atoms(coeff, exponent)
         else:
@@ -285,15 +294,16 @@ def _poly_power(poly: dict, exponent: Fraction):
     content, primitive = _content(poly)
     name = f"({_render(primitive)})"
     _SUMS[name] = _freeze(primitive)
-    atom = {(((name, exponent),), ()): Fraction(1)}
+    atom: Poly = {(((name, exponent),), ()): Fraction(1)}
     outer, _ = _poly_power(content, exponent)
     return _mul(outer, atom), _const(1)
 
 
-def _exp(q):
+def _exp(q: Quotient) -> Quotient:
     """exp of a polynomial; its c*log(x) terms come out as x**c."""
     arg = _polynomial(q)
-    powers, rest = (), {}
+    powers: tuple[Factor, ...] = ()
+    rest: Poly = {}
     for mono, coeff in arg.items():
         factors, exp_arg = mono
         if (
@@ -308,9 +318,9 @@ def _exp(q):
     return _expand_integer_sums({(powers, _freeze(rest)): Fraction(1)}), _const(1)
 
 
-def _log(q):
+def _log(q: Quotient) -> Quotient:
     n, d = q
-    out = {}
+    out: Poly = {}
     for part, sign in ((n, 1), (d, -1)):
         if len(part) != 1:
             out = _add(out, _atom(f"log{_render(part)}"), sign)
@@ -326,11 +336,11 @@ def _log(q):
     return out, _const(1)
 
 
-def _atom(name: str) -> dict:
+def _atom(name: str) -> Poly:
     return {(((name, Fraction(1)),), ()): Fraction(1)}
 
 
-def _render(poly: dict) -> str:
+def _render(poly: Poly) -> str:
     return repr(_freeze(poly))
 
 
@@ -339,12 +349,12 @@ def _number(value: float) -> Fraction:
     return exact if float(exact) == value else Fraction(value)
 
 
-def to_normal(tree: Node):
+def to_normal(tree: Node) -> Quotient:
     """The quotient (N, D) of a tree (names are positive symbols)."""
     return fold(tree, _normal_of)
 
 
-def _normal_of(node: Node, inner: list):
+def _normal_of(node: Node, inner: list[Quotient]) -> Quotient:
     kind = node.kind
     if kind == NUM:
         return _q_const(_number(node.value))
@@ -367,7 +377,7 @@ def _normal_of(node: Node, inner: list):
     return _q_div(left, right)
 
 
-def _call(node: Node, inner: list):
+def _call(node: Node, inner: list[Quotient]) -> Quotient:
     name, args = node.value, node.args
     if name == "exp":
         return _exp(inner[0])
@@ -385,7 +395,7 @@ def _call(node: Node, inner: list):
     raise Unsupported(f"function {name}")
 
 
-def _power_of(exponent_tree: Node, left, exponent):
+def _power_of(exponent_tree: Node, left: Quotient, exponent: Quotient) -> Quotient:
     """left**exponent; a written constant exponent (2, -1/2 as a number) is taken exactly."""
     if exponent_tree.kind == NUM or (
         exponent_tree.kind == NEG and exponent_tree.args[0].kind == NUM
@@ -400,7 +410,7 @@ def _power_of(exponent_tree: Node, left, exponent):
     return _exp(_q_mul(exponent, _log(left)))
 
 
-def equal(a, b) -> bool:
+def equal(a: Node, b: Node) -> bool:
     """True when the normal forms show a == b; raises Unsupported when they cannot tell."""
     _SUMS.clear()
     n1, d1 = to_normal(a)

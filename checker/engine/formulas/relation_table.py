@@ -31,13 +31,14 @@ W. Shockley, Electrons and Holes in Semiconductors (Van Nostrand, 1950): the
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 import sympy as sp
 
 F = sp.Function("F")  # normalized Fermi–Dirac integral F_j(eta)
 
 
-def _positive(names: str):
+def _positive(names: str) -> Any:
     return sp.symbols(names, positive=True)
 
 
@@ -46,13 +47,13 @@ class Function:
     """A relation callable from rules and from the physics layer."""
 
     name: str
-    parameters: tuple  # sympy symbols, in call order
+    parameters: tuple[Any, ...]  # sympy symbols, in call order
     expression: sp.Expr
     meaning: str  # one line, with units of the result
     validity: str
     reference: str
 
-    def __call__(self, *args) -> sp.Expr:
+    def __call__(self, *args: Any) -> sp.Expr:
         """The expression with the parameters replaced by ``args`` (simultaneously)."""
         return self.expression.subs(dict(zip(self.parameters, args)), simultaneous=True)
 
@@ -119,7 +120,7 @@ FUNCTIONS = {
 }
 
 
-def derived_limits() -> dict:
+def derived_limits() -> dict[str, tuple[Any, Any]]:
     """Named limits of the functions, derived by sympy: name -> (expression, limit)."""
     j = sp.Symbol("j")
     nondegenerate = {F: sp.Lambda((j, eta), sp.exp(eta))}
@@ -146,7 +147,7 @@ def S(name: str) -> sp.Symbol:
     return sp.Symbol(name, positive=True)
 
 
-def _common(d: int) -> dict:
+def _common(d: int) -> dict[str, Any]:
     """Definitions shared by both neutrality worlds, for dimensionality ``d``.
 
     The switches w_n, w_p (a carrier counted), s_d (lambda/L counted), s_fn, s_fp
@@ -185,7 +186,7 @@ def _common(d: int) -> dict:
     return out
 
 
-def _geometry(d: int, majority: str) -> dict:
+def _geometry(d: int, majority: str) -> dict[str, Any]:
     h, k, T = S("h"), S("k"), S("T")
     resistance = FUNCTIONS["conductor_resistance"]
     path = S("s_d") * S(f"lambda_{majority}")  # s_d = 0: the diffusive limit
@@ -215,7 +216,7 @@ NEUTRALITY = {
 }
 
 
-def definitions(d: int, majority: str) -> dict:
+def definitions(d: int, majority: str) -> dict[str, Any]:
     """name -> sympy expression of every defined trade symbol (without neutrality)."""
     out = _common(d)
     out.update(_geometry(d, majority))

@@ -33,14 +33,19 @@ W. Shockley, Electrons and Holes in Semiconductors (Van Nostrand, 1950): the
 from __future__ import annotations
 
 import math
+from collections.abc import Collection, Iterable, Mapping
 from dataclasses import dataclass, field
 from functools import cache, lru_cache
+from typing import TYPE_CHECKING, Any
 
 from ..expressions import _relation_texts
 from ..expressions.parser import names_in as _names_in
 from ..expressions.parser import parse
 from ..expressions.tree import CALL, NAME, Node, binary, call, fold, num, transform
 from ..expressions.tree import name as name_node
+
+if TYPE_CHECKING:
+    import numpy as np
 
 # definitions are hashable and reused: remember the names each one uses (bounded: the
 # definitions are a few hundred trees, stated formulas add theirs per process)
@@ -56,13 +61,13 @@ class Limit:
     label: str  # how the report names it
     word: str | None  # assumption word passed to the rules (None: no rule guards it)
     carrier: str | None  # "n", "p" or None (both / the conductor)
-    overrides: tuple = ()  # (name, value) pairs set by the limit
+    overrides: tuple[tuple[str, float], ...] = ()  # (name, value) pairs set by the limit
     fermi: str | None = None  # "eta_n"/"eta_p": F_j of it is rewritten
     fermi_form: str | None = None  # "exp" (non-degenerate) | "power" (degenerate)
-    excludes: tuple = ()
+    excludes: tuple[str, ...] = ()
 
 
-def limits(world: str) -> tuple:
+def limits(world: str) -> tuple[Limit, ...]:
     """The named limits, in the order they are reported."""
     carrier = "n" if world == "donor" else "p"
     other_dopant = "N_A" if world == "donor" else "N_D"
@@ -200,8 +205,8 @@ class World:
     dim: int
     world: str  # "donor" | "acceptor"
     majority: str
-    definitions: dict = field(hash=False, compare=False)  # name -> tree
-    order: tuple = ()  # defined names, dependencies first
+    definitions: dict[str, Node] = field(hash=False, compare=False)  # name -> tree
+    order: tuple[str, ...] = ()  # defined names, dependencies first
 
 
 @cache
@@ -214,10 +219,11 @@ def world(dim: int, which: str, majority: str) -> World:
     return World(dim, which, majority, definitions, _topological(definitions))
 
 
-def _topological(definitions: dict) -> tuple:
-    order, state = [], {}
+def _topological(definitions: dict[str, Node]) -> tuple[str, ...]:
+    order: list[str] = []
+    state: dict[str, str] = {}  # name -> "busy" | "done"
 
-    def visit(name):
+    def visit(name: str) -> None:
         if state.get(name) == "done":
             return
         if state.get(name) == "busy":
@@ -234,9 +240,10 @@ def _topological(definitions: dict) -> tuple:
     return tuple(order)
 
 
-def closure(names, definitions: dict) -> set:
+def closure(names: Iterable[str], definitions: Mapping[str, Node]) -> set[str]:
     """Every defined symbol the names depend on (including themselves)."""
-    seen, todo = set(), [n for n in names if n in definitions]
+    seen: set[str] = set()
+    todo = [n for n in names if n in definitions]
     while todo:
         name = todo.pop()
         if name in seen:
@@ -254,7 +261,7 @@ def _fermi_calls(tree: Node, eta: str) -> bool:
     return fold(tree, lambda node, inner: _is_fermi_of(node, eta) or any(inner))
 
 
-def acts_on(limit: Limit, tree) -> bool:
+def acts_on(limit: Limit, tree: Node) -> bool:
     """True when the limit changes this (unexpanded) definition."""
     if limit.fermi and _fermi_calls(tree, limit.fermi):
         return True
@@ -278,14 +285,14 @@ def _rewrite_fermi(tree: Node, eta: str, form: str) -> Node:
 
 
 @lru_cache(maxsize=256)
-def _with_fermi(base: World, rewrites: tuple) -> dict:
+def _with_fermi(base: World, rewrites: tuple[tuple[str, str], ...]) -> dict[str, Node]:
     definitions = base.definitions
     for eta, form in rewrites:
         definitions = {name: _rewrite_fermi(tree, eta, form) for name, tree in definitions.items()}
     return definitions
 
 
-def limited(base: World, chosen) -> dict:
+def limited(base: World, chosen: Collection[Limit]) -> dict[str, Node]:
     """The definitions with the chosen limits applied (overrides and F_j rewrites)."""
     definitions = dict(
         _with_fermi(base, tuple((limit.fermi, limit.fermi_form) for limit in chosen if limit.fermi))
@@ -296,7 +303,7 @@ def limited(base: World, chosen) -> dict:
     return definitions
 
 
-def expand(tree: Node, definitions: dict) -> Node:
+def expand(tree: Node, definitions: Mapping[str, Node]) -> Node:
     """The tree with every defined name replaced by its definition, recursively."""
 
     def change(node: Node) -> Node:
@@ -310,7 +317,7 @@ def expand(tree: Node, definitions: dict) -> Node:
 _EV = 1.602176634e-19
 _DENSITY_DECADES = {3: (23.0, 26.0), 2: (15.0, 18.0), 1: (7.0, 9.0)}
 # primitive -> ("log", lo, hi) decades | ("lin", lo, hi) | ("scale", true value) | ("fixed", value)
-_SAMPLING = {
+_SAMPLING: dict[str, tuple[str, float] | tuple[str, float, float]] = {
     "q": ("scale", _EV),
     "h": ("scale", 6.62607015e-34),
     "m0": ("scale", 9.1093837139e-31),
@@ -339,7 +346,13 @@ _SAMPLING = {
 }
 
 
-def sample(names, dim: int, degenerate: tuple, rng, size: int) -> dict:
+def sample(
+    names: Iterable[str],
+    dim: int,
+    degenerate: Collection[str],
+    rng: np.random.Generator,
+    size: int,
+) -> dict[str, Any]:
     """Random values for the primitive ``names`` (and the band energies).
 
     Reduced Fermi levels are drawn in (-4, 4) (so F_j differs from e^eta by
@@ -347,7 +360,7 @@ def sample(names, dim: int, degenerate: tuple, rng, size: int) -> dict:
     the band edges follow from them, which may put E_c below E_v: the
     identities tested are algebraic and do not care.
     """
-    out = {}
+    out: dict[str, Any] = {}  # name -> array of size points (pi: a number)
     T = rng.uniform(150.0, 600.0, size)
     k = 1.380649e-23 * rng.uniform(0.7, 1.4, size)
     out["T"], out["k"] = T, k

@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import difflib
 import re
+from collections.abc import Iterable
 from dataclasses import dataclass
 from functools import cache
 
@@ -39,7 +40,7 @@ class FormulaSymbol:
     name: str
     unit: str  # dimension key, see _DIMENSION
     meaning: str
-    spellings: tuple
+    spellings: tuple[str, ...]
 
 
 def _dimension(key: str, dim: int) -> dm.Dimension:
@@ -47,7 +48,7 @@ def _dimension(key: str, dim: int) -> dm.Dimension:
 
 
 @cache
-def _dimension_table(dim: int) -> dict:
+def _dimension_table(dim: int) -> dict[str, dm.Dimension]:
     return {
         "density": dm.density(dim),
         "energy": dm.ENERGY,
@@ -72,7 +73,7 @@ def _dimension_table(dim: int) -> dict:
     }
 
 
-def _symbols(rows):
+def _symbols(rows: Iterable[tuple[str, str, str, str]]) -> dict[str, FormulaSymbol]:
     return {
         name: FormulaSymbol(name, unit, meaning, tuple(s.strip() for s in spell.split(",")))
         for name, unit, meaning, spell in rows
@@ -184,8 +185,12 @@ SHORTHANDS = {
 }
 
 
-def _spelling_table() -> dict:
-    table = {}
+# spelling -> ("symbol", name) | ("generic", name pattern) | ("shorthand", its tree)
+Spelling = tuple[str, str | Node]
+
+
+def _spelling_table() -> dict[str, Spelling]:
+    table: dict[str, Spelling] = {}
     for symbol in SYMBOLS.values():
         for spelling in symbol.spellings:
             table[spelling] = ("symbol", symbol.name)
@@ -259,20 +264,20 @@ def canonical(tree: Node, majority: str, where: str) -> Node:
                 "(run 'regimecheck symbols' for the list)"
             )
         how, target = found
+        if isinstance(target, Node):  # a shorthand: its expression
+            return target
         if how == "symbol":
             return name_node(target)
-        if how == "generic":
-            return name_node(target.format(x=majority))
-        return target
+        return name_node(target.format(x=majority))  # generic
 
     return transform(tree, change)
 
 
-def parse_side(text: str, majority: str, where: str) -> tuple[Node, dict]:
+def parse_side(text: str, majority: str, where: str) -> tuple[Node, dict[str, str]]:
     """(canonical tree, {canonical name: the author's spelling}) of one side of a formula."""
     raw = _euler_powers(parse(prepare_text(text), None, where, functions=FORMULA_FUNCTIONS), where)
     tree = _check_orders(canonical(raw, majority, where), where)
-    spelled = {}
+    spelled: dict[str, str] = {}
     for name in names_in(raw):
         canonical_tree = canonical(name_node(name), majority, where)
         if canonical_tree.kind == NAME:
@@ -280,7 +285,7 @@ def parse_side(text: str, majority: str, where: str) -> tuple[Node, dict]:
     return tree, spelled
 
 
-def _check_orders(tree: Node, where) -> Node:
+def _check_orders(tree: Node, where: str) -> Node:
     """The tree with each Fermi–Dirac order folded to a number (F(1/2, eta) -> F(0.5, eta));
     an order that is not a constant half-integer from -3/2 to 7/2 is refused."""
 
