@@ -304,3 +304,33 @@ def test_batched_run_equals_one_file_at_a_time(example_report):
                 for f in c["findings"]
             )
             assert batched[key(c)] == single, key(c)
+
+
+def test_point_says_the_diffusive_resistance_is_low(capsys):
+    from checker.cli import main
+
+    # R = rho L/A leaves out rho lambda/A (Lundstrom & Jeong, Near-Equilibrium Transport
+    # (2012), ch. 3): the shortcut is low by lambda/(L + lambda), never "high"
+    code = main(
+        [
+            "point",
+            "--material",
+            "Si",
+            "--temperature",
+            "300K",
+            "--donor",
+            "P=1e17cm-3",
+            "--length",
+            "50nm",
+            "--format",
+            "json",
+            "--exit-zero",
+        ]
+    )
+    assert code == 0
+    data = json.loads(capsys.readouterr().out)
+    (tran01,) = [f for f in data["calculations"][0]["findings"] if f["rule"] == "TRAN01"]
+    ratio = tran01["indicator"]["value"] / 100  # lambda / L, shown in %
+    low = ratio / (1 + ratio)
+    assert f"{low * 100:.3g} % low against R = ρ(L + λ)/A" in tran01["message"]
+    assert "ρL/A leaves out the ballistic resistance ρλ/A" in tran01["message"]
