@@ -3,13 +3,16 @@
 SARIF: one run; the driver lists every rule of the run (short description = title,
 full description = why, help = fix and example, default level = severity); each
 finding is a result with rule id, level (info -> note), message and the region
-(file and line); a waived finding carries an ``external`` or ``inSource``
-suppression with its reason; input errors are tool execution notifications.
+(file and line); the other lines of the file where the finding's assumption is made
+(Finding.also_at) are its ``relatedLocations``; a waived finding carries an
+``external`` or ``inSource`` suppression with its reason; input errors are tool
+execution notifications.
 
 JUnit: one test suite per input file, one test case per calculation and rule
 (``<calculation> :: <rule>``, unique within the suite); a finding at or above the
-fail level is a failure, a waived one is skipped with its reason, everything
-below the fail level passes; input errors are errors of their file's suite.
+fail level is a failure (its text names the other lines the assumption is made on),
+a waived one is skipped with its reason, everything below the fail level passes;
+input errors are errors of their file's suite.
 Both say once that the results are screening checks (SARIF run properties,
 JUnit testsuites properties).
 """
@@ -61,6 +64,29 @@ def _uri(path: str) -> str:
     return quote(raw, safe="/:")
 
 
+def _also_text(f) -> str:
+    """The other lines the finding's assumption is made on, in words ("" for none)."""
+    if not f.also_at:
+        return ""
+    word = "line" if len(f.also_at) == 1 else "lines"
+    return f" (the same assumption also on {word} {', '.join(map(str, f.also_at))})"
+
+
+def _related(f) -> list[dict[str, Any]]:
+    """SARIF relatedLocations: each other line of the same file making the assumption."""
+    return [
+        {
+            "id": number,
+            "physicalLocation": {
+                "artifactLocation": {"uri": _uri(f.file)},
+                "region": {"startLine": line},
+            },
+            "message": {"text": f"the assumption of {f.rule} is also made here"},
+        }
+        for number, line in enumerate(f.also_at)
+    ]
+
+
 def render_sarif(result, exit_code: int) -> str:
     rules = list(result.rules)
     index = {rule.id: i for i, rule in enumerate(rules)}
@@ -107,6 +133,8 @@ def render_sarif(result, exit_code: int) -> str:
                     "column": f.column,
                 },
             }
+            if f.also_at:
+                entry["relatedLocations"] = _related(f)
             if f.rule in index:
                 entry["ruleIndex"] = index[f.rule]
             if f.waived:
@@ -196,7 +224,9 @@ def render_junit(result, exit_code: int, fail_on: str) -> str:
                 active = [f for f in hits if not f.waived]
                 failing = [f for f in active if Severity(f.severity).rank >= threshold]
                 if failing:
-                    text = "\n".join(f"{f.file}:{f.line}: {_finding_text(f)}" for f in failing)
+                    text = "\n".join(
+                        f"{f.file}:{f.line}{_also_text(f)}: {_finding_text(f)}" for f in failing
+                    )
                     ET.SubElement(
                         case, "failure", message=failing[0].title, type=failing[0].severity
                     ).text = text
