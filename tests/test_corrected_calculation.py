@@ -211,3 +211,15 @@ def test_reports_carry_the_corrected_set_the_unchecked_numbers_and_every_line(tm
     assert main(["check", str(path), "--format", "compact", "--output", str(compact)]) == 1
     text = compact.read_text(encoding="utf-8")
     assert "(also line 16)" in text and "not checked: sheet_resistance" in text
+
+
+def test_two_stated_numbers_on_one_line_are_checked_apart(tmp_path):
+    # a flow mapping puts the resistivity and the resistance on one line: the resistivity
+    # rejected by MEAS01 must not hide the resistance computed from it (VAL05)
+    (report,) = _check(
+        tmp_path,
+        "material: Si\ntemperature: 300 K\ndoping: {donors: {P: 1e16 cm-3}}\n"
+        "structure: {length: 200 um, cross_section: 8 um^2}\n"
+        "stated: {resistivity: 0.05 ohm*cm, resistance: 12500 ohm}\n",
+    )
+    assert {f.rule for f in report.findings} >= {"MEAS01", "VAL05"}

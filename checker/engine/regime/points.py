@@ -79,15 +79,16 @@ VALUE_RULES = "VAL"
 
 def one_finding_per_stated_number(findings: list) -> list:
     """Drop a value check (VAL..) on a stated number that a shortcut rule already
-    corrects at the same line: the shortcut names the cause, the value check would
-    only repeat the number."""
-    explained = {
-        (f.file, f.line)
-        for f in findings
-        if not f.rule.startswith(VALUE_RULES) and any(c.from_author for c in f.corrections)
-    }
+    corrects: the shortcut names the cause, the value check would only repeat the number.
+    The stated number is the quantity a correction is of (two numbers on one line, as in
+    a flow mapping, stay apart); a correction without one falls back to its line."""
+
+    def stated(f):
+        return {(f.file, c.key if c.key else f.line) for c in f.corrections if c.from_author}
+
+    explained = set().union(*(stated(f) for f in findings if not f.rule.startswith(VALUE_RULES)))
     return [
         f
         for f in findings
-        if not (f.rule.startswith(VALUE_RULES) and (f.file, f.line) in explained)
+        if not (f.rule.startswith(VALUE_RULES) and stated(f) and stated(f) <= explained)
     ]
