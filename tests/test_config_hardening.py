@@ -31,7 +31,10 @@ def refused(path):
 def test_non_utf8_configuration_names_file_and_line(tmp_path):
     """TOML v1.0.0: "A TOML file must be a valid UTF-8 encoded Unicode document"."""
     path = settings(tmp_path, b'only = ["STAT"]\n# r\xe9sum\xe9\n')
-    assert refused(path) == (f"{path}:2: the configuration is not UTF-8 text; save it as UTF-8")
+    assert refused(path) == (
+        f"{path}:2:4: not UTF-8 text: byte 0xE9 at byte offset 19 cannot be read as UTF-8; "
+        "save the configuration as UTF-8"
+    )
 
 
 @pytest.mark.parametrize("value", ["[" * 2000 + "]" * 2000, "{a = " * 2000 + "1" + "}" * 2000])

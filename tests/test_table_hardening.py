@@ -204,7 +204,11 @@ def test_table_that_is_not_utf8_is_an_input_error(tmp_path):
     path = tmp_path / "latin1.csv"
     path.write_bytes((HEADER + "B\xe9ta,Si,P,1e16,300 K,0.5\n").encode("latin-1"))
     read = read_table(path)
-    assert not read.calculations and read.errors == [f"{path}: not UTF-8 text; save it as UTF-8"]
+    # the header is line 1 (ASCII); "B\xe9ta" starts line 2, the bad byte is its 2nd
+    assert not read.calculations and read.errors == [
+        f"{path}:2:2: not UTF-8 text: byte 0xE9 at byte offset {len(HEADER) + 1} cannot be "
+        "read as UTF-8; save the table as UTF-8"
+    ]
 
 
 def test_many_unknown_headers_are_named_up_to_a_cap(tmp_path):

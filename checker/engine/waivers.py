@@ -28,7 +28,9 @@ def apply_waivers(
     config: Config | None = None,
 ) -> WaiverResult:
     """Mark waived findings (the calculation's own waivers, then the configuration's
-    waivers per path); note waivers that waive nothing; unknown rule ids are errors."""
+    waivers per path); note waivers that waive nothing; unknown rule ids are errors.
+    A rule that exists but is not run (``only``/``skip``, or left out of ``rules``)
+    is not unknown: its waiver gets a note saying so."""
     result = WaiverResult([[] for _ in calculations], [])
     known = [rule.id for rule in rules]
     if config is not None:
@@ -47,6 +49,13 @@ def apply_waivers(
     for i, calc in enumerate(calculations):
         for rule_id, (reason, line) in calc.waivers.items():
             if rule_id not in known:
+                not_run = _not_run(rule_id, config)
+                if not_run:
+                    result.notes[i].append(
+                        f"{calc.source}:{line}: the waiver of {rule_id} waives nothing here: "
+                        f"the rule exists but is not run {not_run}"
+                    )
+                    continue
                 close = difflib.get_close_matches(rule_id, known, n=1)
                 hint = (
                     f"did you mean {close[0]}?" if close else "run 'regimecheck rules' for the ids"
@@ -64,3 +73,16 @@ def apply_waivers(
                     "remove it or check the rule id"
                 )
     return result
+
+
+def _not_run(rule_id: str, config: Config | None) -> str:
+    """Why a rule of the shipped rulebook is not among the rules run ("" where no
+    shipped rule has this id)."""
+    from .regime.rulebook import load_rules
+
+    if rule_id not in {rule.id for rule in load_rules()}:
+        return ""
+    if config is not None and not config.selects(rule_id):
+        where = config.source or "the defaults"
+        return f"under this configuration (only/skip in {where}); select it or remove the waiver"
+    return "in this run (the rules checked leave it out); remove the waiver or run the rule"

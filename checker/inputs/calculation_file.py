@@ -37,6 +37,7 @@ from ..quantity_registry.registry import QUANTITIES, file_keys
 from ..vocabulary_words import ASSUMPTIONS
 from .material_catalog import resolve_material
 from .quantities import check_plausible, parse_quantity, parse_temperature, read_number
+from .text_bytes import read_text_file
 from .yaml_source import Problems, compose_documents
 
 TOP_KEYS = (
@@ -594,16 +595,6 @@ def _looks_like_calculation(text: str, path: str) -> bool:
     if errors:
         return True  # broken YAML is reported when parsed
     return any(isinstance(doc.value, dict) and "material" in doc.value for doc in docs)
-
-
-def read_text_file(path: str):
-    """(text, error message or None) of a UTF-8 input file."""
-    try:
-        return Path(path).read_text(encoding="utf-8"), None
-    except OSError as exc:
-        return None, f"{path}: cannot read the file ({exc.strerror})"
-    except UnicodeDecodeError:
-        return None, f"{path}: not UTF-8 text; save it as UTF-8"
 
 
 def parse_calculations(text: str, path: str) -> FileResult:

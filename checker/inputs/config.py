@@ -47,6 +47,7 @@ from ..errors import InputError
 from ..vocabulary_words import SEVERITIES, TOLERANCE_NAMES
 from .table import IGNORE as IGNORED_COLUMNS
 from .table import KEYS as TABLE_KEYS
+from .text_bytes import decode_utf8
 
 LEVELS = SEVERITIES  # the fail levels are the rules' severities
 KEYS = (
@@ -90,6 +91,14 @@ class Config:
     columns: dict = field(default_factory=dict)  # our table key -> header in the CSV
     waive: list = field(default_factory=list)  # PathWaiver
     lines: dict = field(default_factory=dict)  # key path (below our table) -> line
+
+    def selects(self, rule_id: str) -> bool:
+        """Whether ``only``/``skip`` (ids or id prefixes) let the rule run."""
+
+        def named(names) -> bool:
+            return any(rule_id == n or rule_id.startswith(n) for n in names)
+
+        return (not self.only or named(self.only)) and not named(self.skip)
 
     def where(self, *keys) -> str:
         """``file:line`` of the deepest of ``keys`` (e.g. "threshold", "STAT01") found."""
@@ -136,10 +145,17 @@ class Config:
 
     def reads(self, name: str) -> bool:
         """Whether a directory walk reads a file of this name; the suffix matches in
-        any case, as the readers take it."""
-        stem, dot, suffix = name.rpartition(".")
-        forms = {name, f"{stem}{dot}{suffix.lower()}"} if dot else {name}
-        return any(fnmatch.fnmatchcase(f, p) for f in forms for p in self.file_patterns)
+        any case on both sides (``*.YAML`` and ``*.yaml`` read ``a.yaml`` and
+        ``B.YAML`` alike), as the readers take it."""
+        forms = {name, _lower_suffix(name)}
+        patterns = {p for pattern in self.file_patterns for p in (pattern, _lower_suffix(pattern))}
+        return any(fnmatch.fnmatchcase(f, p) for f in forms for p in patterns)
+
+
+def _lower_suffix(name: str) -> str:
+    """``name`` with the part after its last dot in lower case (a folder part kept)."""
+    stem, dot, suffix = name.rpartition(".")
+    return f"{stem}.{suffix.lower()}" if dot and "/" not in suffix else name
 
 
 def find_config(start: Path | None = None) -> Path | None:
@@ -152,7 +168,7 @@ def find_config(start: Path | None = None) -> Path | None:
                 text = candidate.read_text(encoding="utf-8")
             except (OSError, UnicodeDecodeError):
                 continue
-            if re.search(r"^\s*\[\s*tool\.regimecheck[\].]", text, re.MULTILINE):
+            if re.search(r"^\ufeff?\s*\[\s*tool\.regimecheck[\].]", text, re.MULTILINE):
                 return candidate
     return None
 
@@ -167,18 +183,18 @@ def load_config(path=None, search_from=None) -> Config:
             return Config()
     path = Path(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        raw = path.read_bytes()
     except OSError as exc:
         raise InputError(f"{path}: cannot read the configuration ({exc.strerror})") from None
-    except UnicodeDecodeError as exc:
-        line = exc.object[: exc.start].count(b"\n") + 1
-        raise InputError(
-            f"{path}:{line}: the configuration is not UTF-8 text; save it as UTF-8"
-        ) from None
+    text, problem = decode_utf8(raw)
+    if problem:
+        raise InputError(f"{path}:{problem}; save the configuration as UTF-8") from None
+    # a byte-order mark some editors write: TOML has no place for one, so it goes
+    text = text.removeprefix("\ufeff")
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"{path}: malformed TOML: {exc}") from None
+        raise InputError(_toml_error(path, exc)) from None
     except RecursionError:
         raise InputError(
             f"{path}: arrays or inline tables nested too deeply to read; "
@@ -305,6 +321,16 @@ def _waivers(waivers, config: Config, fail) -> None:
                 or config.lines.get((), 1),
             )
         )
+
+
+def _toml_error(path: Path, exc: Exception) -> str:
+    """``file:line:column: malformed TOML: ...`` (tomllib puts the place at the end)."""
+    text = str(exc)
+    place = re.search(r"\(at line (\d+), column (\d+)\)$", text)
+    if place is None:
+        return f"{path}: malformed TOML: {text}"
+    what = text[: place.start()].rstrip()
+    return f"{path}:{place[1]}:{place[2]}: malformed TOML: {what}; correct this line"
 
 
 def check_rule_ids(config: Config, known) -> None:

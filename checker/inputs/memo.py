@@ -20,7 +20,8 @@ the block's own indentation.  Other fenced blocks and the prose are ignored.
 
 from __future__ import annotations
 
-from .calculation_file import FileResult, parse_calculations, read_text_file
+from .calculation_file import FileResult, parse_calculations
+from .text_bytes import read_text_file
 
 INFO_STRING = "regimecheck"
 MEMO_SUFFIXES = (".md", ".markdown")

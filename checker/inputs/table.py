@@ -39,6 +39,7 @@ from ..errors import InputError
 from .calculation_file import Calculation, FileResult, _hall_exponent
 from .material_catalog import resolve_material
 from .quantities import check_plausible, parse_quantity, parse_temperature
+from .text_bytes import undecodable
 
 TABLE_SUFFIXES = (".csv",)
 MAX_TABLE_ROWS = 100_000
@@ -298,10 +299,21 @@ def _read_rows(path, lines: _CountedLines, mapping) -> FileResult:
             [f"{path}:{line}: malformed CSV ({exc}); check quotes and separators from this row on"],
         )
     except UnicodeDecodeError:
-        return FileResult(path, [], [f"{path}: not UTF-8 text; save it as UTF-8"])
+        return FileResult(path, [], [_not_utf8(path)])
     if not calculations and not errors:
         errors.append(f"{path}: the table has a header but no rows")
     return FileResult(path, calculations, errors)
+
+
+def _not_utf8(path: str) -> str:
+    """The message for a table that is not UTF-8, naming the first bad byte's place
+    (read again as bytes: the text reader's position is a buffer's, not a line's)."""
+    try:
+        with open(path, "rb") as handle:
+            where = undecodable(handle)
+    except OSError as exc:
+        return f"{path}: cannot read the file ({exc.strerror})"
+    return f"{path}:{where or ' not UTF-8 text'}; save the table as UTF-8"
 
 
 def _row(row, columns, path, line) -> Calculation:
