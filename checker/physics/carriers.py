@@ -236,9 +236,7 @@ def model_ranges(
         name = model.model_name(mobility_model, species)
         fit = model.mobility.get(name)
         if fit is not None:
-            # every fit has a provenance; the MobilityModel protocol does not declare it yet
-            provenance: Provenance = fit.provenance  # type: ignore[attr-defined]
-            parts.append((f"{band} mobility ({name})", provenance, True))
+            parts.append((f"{band} mobility ({name})", fit.provenance, True))
     T_low = max((p.valid_T[0] for _, p, _ in parts), default=0.0)
     T_high = min((p.valid_T[1] for _, p, _ in parts), default=np.inf)
     N_low = max((p.valid_N[0] for _, p, doping in parts if doping), default=0.0)

@@ -28,6 +28,9 @@ class MobilityModel(Protocol):
 
     def __call__(self, N: ArrayIn, T: ArrayIn) -> FloatArray: ...
 
+    @property
+    def provenance(self) -> Provenance: ...  # where its parameters come from
+
 
 @dataclass(frozen=True)
 class Provenance:

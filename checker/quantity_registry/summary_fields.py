@@ -19,6 +19,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable
 from dataclasses import dataclass
+from typing import Any, SupportsFloat, TypeAlias
 
 from ..physics import transport
 from ..physics.constants import EV
@@ -26,32 +27,41 @@ from .display_units import DISPLAY_UNITS
 
 PER_CM3 = DISPLAY_UNITS["cm^-3"]  # m^-3 -> cm^-3
 
+# get(name): the point's value of a registered quantity (a number, or a word for the
+# text-valued ones such as the regime); KeyError where the values do not carry it
+Getter: TypeAlias = Callable[[str], Any]
+# what a summary field gives: a number, a word, a flag, or None (unknown here)
+FieldValue: TypeAlias = float | str | bool | None
+Reader: TypeAlias = Callable[[Getter], FieldValue]
+# a number computed from the quantities (a float or a one-point array)
+Compute: TypeAlias = Callable[[Getter], SupportsFloat]
+
 
 @dataclass(frozen=True)
 class SummaryField:
     key: str  # JSON key (its trade unit in the name)
     label: str | None  # console label; None: JSON only
     shown: str  # console format of the value
-    reads: tuple  # the registered quantities (concrete names) it is computed from
-    value: Callable  # get(name) -> the point's value of a quantity  ->  the field's value
+    reads: tuple[str, ...]  # the registered quantities (concrete names) it is computed from
+    value: Reader  # get(name) -> the point's value of a quantity  ->  the field's value
     state_only: bool = False  # only the state command solves for it
     in_check: bool = False  # also a row of the check report's state table
 
 
-def _number(name, factor=1.0):
+def _number(name: str, factor: float = 1.0) -> Reader:
     return lambda get: float(get(name)) * factor
 
 
-def _energy_ev(name):
+def _energy_ev(name: str) -> Reader:
     return lambda get: float(get(name)) / EV
 
 
-def _where_known(compute, unit):
+def _where_known(compute: Compute, unit: str) -> Reader:
     """The value of ``compute`` in ``unit``, or None where it is unknown: a quantity the
     values do not carry (a summary built from a bare solve has no structure), or NaN
     (no field given, no mobility data)."""
 
-    def value(get):
+    def value(get: Getter) -> float | None:
         try:
             number = float(compute(get)) * DISPLAY_UNITS[unit]
         except KeyError:
@@ -61,14 +71,14 @@ def _where_known(compute, unit):
     return value
 
 
-def _diffusivity(x):
+def _diffusivity(x: str) -> Compute:
     # generalized Einstein relation at the mobility the calculation uses (physics.transport)
     return lambda get: transport.diffusion_coefficient(
         float(get(f"used_mu_{x}")), float(get("T")), float(get(f"eta_{x}")), int(get("dim"))
     )
 
 
-def _field_velocity(x):
+def _field_velocity(x: str) -> Compute:
     # Caughey–Thomas velocity at the given field; NaN (so no row) where no field is given
     return lambda get: transport.drift_velocity(
         float(get(f"used_mu_{x}")),
@@ -78,12 +88,20 @@ def _field_velocity(x):
     )
 
 
-def _narrowed_ni(get):
+def _narrowed_ni(get: Getter) -> float:
     # shown only where the solve narrows the gap (elsewhere n_ie is n_i, the row above)
     return float(get("nie")) if float(get("bgn_on")) > 0 else math.nan
 
 
-def _per_carrier(key, label, shown, reads, compute, unit, in_check=False):
+def _per_carrier(
+    key: str,
+    label: str,
+    shown: str,
+    reads: tuple[str, ...],
+    compute: Callable[[str], Compute],
+    unit: str,
+    in_check: bool = False,
+) -> tuple[SummaryField, ...]:
     """One field per carrier: ``{x}`` in key, label and reads stands for n and p."""
     return tuple(
         SummaryField(
@@ -245,7 +263,11 @@ STATE_ROWS = tuple((f.key, f.label, f.shown) for f in FIELDS if f.label)
 CHECK_ROWS = tuple((f.key, f.label, f.shown) for f in FIELDS if f.label and f.in_check)
 
 
-def shown_rows(rows, summary) -> list:
+# (key, label, format) of one console row
+Row: TypeAlias = tuple[str, str, str]
+
+
+def shown_rows(rows: tuple[Row, ...], summary: dict[str, FieldValue]) -> list[tuple[str, str]]:
     """(label, text) of the rows a console table shows: those with a value here."""
     return [
         (label, shown.format(summary[key]))

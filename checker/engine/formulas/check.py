@@ -21,26 +21,37 @@ For each formula ``lhs = rhs`` of a calculation:
 from __future__ import annotations
 
 import math
+from collections.abc import Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
 from itertools import combinations
+from typing import TYPE_CHECKING, TypeAlias
 
 import numpy as np
 
 from ...errors import InputError
 from ...physics.constants import ELECTRON_MASS, PLANCK
 from ...quantity_registry.number_text import display, error_text
-from ...quantity_registry.registry import formula_symbols, registered
+from ...quantity_registry.registry import Quantity, formula_symbols, registered
 from ..expressions import dimension_check as expression_dimensions
 from ..expressions import dimensions as dm
 from ..expressions.parser import MAX_LENGTH, parse, rename, to_numpy, to_text
 from ..expressions.tree import NAME, Node, binary, fold, num
 from ..findings import Correction, Embodied, Finding, carrier_code
 from ..regime.corrected import formula_key
-from ..regime.rulebook import PLACEHOLDER
+from ..regime.rulebook import PLACEHOLDER, Rule
+from ..regime.state_values import Values
 from .match import Match, analyse
 from .relations import world
 from .symbols import dimension_of, parse_side
+
+if TYPE_CHECKING:
+    from ...inputs.calculation_file import Calculation
+
+# formula symbol -> its exact value (SI) at one operating point
+Point: TypeAlias = dict[str, float]
+# a factor of a product or quotient: (tree, +1 up / -1 down)
+Factor: TypeAlias = tuple[Node, int]
 
 # lhs dimension -> display unit of the report
 _DISPLAY = {
@@ -68,18 +79,29 @@ _DISPLAY = {
     dm.RESISTANCE * dm.AREA: "ohm*cm^2",
     dm.TIME: "ns",
 }
+
+
+def _quantity(name: str) -> Quantity:
+    """The registered quantity of a formula symbol's name (the registry checks that every
+    formula symbol names one)."""
+    quantity = registered(name)
+    if quantity is None:
+        raise LookupError(f"formula symbols name {name}, which is not registered")
+    return quantity
+
+
 # formula symbol -> quantity of the solved state (SI), and those the reader alone keeps
 # (a structure key no rule reads: the width)
 _FROM_STATE = {
-    symbol: name for symbol, name in formula_symbols().items() if registered(name).in_rules
+    symbol: name for symbol, name in formula_symbols().items() if _quantity(name).in_rules
 }
 _FROM_INPUTS = {
-    symbol: name for symbol, name in formula_symbols().items() if not registered(name).in_rules
+    symbol: name for symbol, name in formula_symbols().items() if not _quantity(name).in_rules
 }
 # symbols a calculation gives no value for (their formulas are dimension-checked only)
 _NOT_STATED = ("tau_n", "tau_p")
 # the solve is of a bulk (3D) crystal: its densities are not sheet or line densities
-_BULK_ONLY = tuple(symbol for symbol, name in _FROM_STATE.items() if registered(name).bulk)
+_BULK_ONLY = tuple(symbol for symbol, name in _FROM_STATE.items() if _quantity(name).bulk)
 
 
 # a stated formula whose parts do not fit together (the shared walker's exception)
@@ -91,8 +113,8 @@ class FormulaResult:
     text: str
     where: str  # file:line:column
     line: int
-    lhs: tuple
-    rhs: tuple
+    lhs: Node
+    rhs: Node
     left_dimension: str = ""
     right_dimension: str = ""
     problem: str | None = None  # dimension problem, in words
@@ -108,7 +130,15 @@ class FormulaResult:
 
     @property
     def status(self) -> str:
-        return "dimension-error" if self.problem else self.match.status
+        return "dimension-error" if self.problem else self.matched.status
+
+    @property
+    def matched(self) -> Match:
+        """The match of a formula whose sides' dimensions agree (every result without a
+        problem has one)."""
+        if self.match is None:
+            raise ValueError(f"{self.where}: {self.text!r} was not matched ({self.problem})")
+        return self.match
 
     def error_text(self) -> str:
         if not (np.isfinite(self.value) and np.isfinite(self.exact)) or self.exact == 0:
@@ -126,13 +156,13 @@ class FormulaResult:
 
 @dataclass
 class FormulaAnalysis:
-    results: list = field(default_factory=list)  # FormulaResult, in file order
-    embodied: list = field(default_factory=list)  # Embodied
-    errors: list = field(default_factory=list)  # input errors (file:line: ...)
+    results: list[FormulaResult] = field(default_factory=list)  # in file order
+    embodied: list[Embodied] = field(default_factory=list)
+    errors: list[str] = field(default_factory=list)  # input errors (file:line: ...)
 
 
 # ---- parsing --------------------------------------------------------------------------------
-def parse_formula(text: str, majority: str, where: str) -> tuple:
+def parse_formula(text: str, majority: str, where: str) -> tuple[Node, Node, dict[str, str]]:
     """(lhs, rhs, spelled): trees in canonical symbols and the author's spelling of each
     symbol; InputError for anything else."""
     if len(text) > MAX_LENGTH:
@@ -157,7 +187,7 @@ def parse_formula(text: str, majority: str, where: str) -> tuple:
 
 # ---- dimensions -----------------------------------------------------------------------------
 @lru_cache(maxsize=4096)
-def dimension(tree, dim: int) -> dm.Dimension:
+def dimension(tree: Node, dim: int) -> dm.Dimension:
     """The dimension of a canonical tree by the walker rule expressions use (one algebra
     for both); _Mismatch where it has none (cached: trees repeat across calculations)."""
     return expression_dimensions.dimension(
@@ -165,10 +195,10 @@ def dimension(tree, dim: int) -> dm.Dimension:
     )
 
 
-def _factors(tree: Node) -> list:
+def _factors(tree: Node) -> list[Factor]:
     """The factors of a product or quotient as (tree, +1 up / -1 down)."""
 
-    def visit(node: Node, inner: list) -> list:
+    def visit(node: Node, inner: list[list[Factor]]) -> list[Factor]:
         if node.kind == "*":
             return inner[0] + inner[1]
         if node.kind == "/":
@@ -178,8 +208,8 @@ def _factors(tree: Node) -> list:
     return fold(tree, visit)
 
 
-def _product(factors) -> Node:
-    def chain(parts):
+def _product(factors: Sequence[Factor]) -> Node:
+    def chain(parts: list[Node]) -> Node:
         out = parts[0]
         for part in parts[1:]:
             out = binary("*", out, part)
@@ -193,14 +223,14 @@ def _product(factors) -> Node:
 _MISSING = ("q", "k*T", "k*T/q", "k", "T")
 
 
-def likely_fix(lhs, rhs, dim: int, majority: str):
+def likely_fix(lhs: Node, rhs: Node, dim: int, majority: str) -> Node | None:
     """A corrected right side: a few factors inverted (or one common factor added)."""
     try:
         target = dimension(lhs, dim)
     except _Mismatch:
         return None
     factors = _factors(rhs)
-    candidates = []
+    candidates: list[Node] = []
     if len(factors) <= 8:
         for size in range(1, min(3, len(factors)) + 1):
             for flip in combinations(range(len(factors)), size):
@@ -221,7 +251,7 @@ def likely_fix(lhs, rhs, dim: int, majority: str):
     return candidates[0] if candidates else None
 
 
-def _has_dimension(tree, dim, target) -> bool:
+def _has_dimension(tree: Node, dim: int, target: dm.Dimension) -> bool:
     try:
         return dimension(tree, dim) == target
     except _Mismatch:
@@ -229,7 +259,7 @@ def _has_dimension(tree, dim, target) -> bool:
 
 
 # ---- values at the operating point ----------------------------------------------------------
-def operating_values(values: dict, calculations) -> list:
+def operating_values(values: Values, calculations: Sequence[Calculation]) -> list[Point | None]:
     """Per calculation, every formula symbol's exact value at its operating point (SI)."""
     count = len(calculations)
     known = {name: np.asarray(values[key], dtype=float) for name, key in _FROM_STATE.items()}
@@ -253,8 +283,8 @@ def operating_values(values: dict, calculations) -> list:
     dims = np.array([int(c.structure.get("dim", 3)) for c in calculations], dtype=int)
     for name in _BULK_ONLY:
         known[name] = np.where(dims == 3, known[name], np.nan)
-    out = [None] * count
-    groups = {}
+    out: list[Point | None] = [None] * count
+    groups: dict[tuple[int, str], list[int]] = {}
     for i, calc in enumerate(calculations):
         groups.setdefault((int(dims[i]), calc.majority), []).append(i)
     for (dim, majority), members in groups.items():
@@ -274,7 +304,7 @@ def operating_values(values: dict, calculations) -> list:
 _compiled = lru_cache(maxsize=4096)(to_numpy)
 
 
-def _evaluate(tree, point: dict) -> float:
+def _evaluate(tree: Node, point: Mapping[str, float]) -> float:
     try:
         with np.errstate(all="ignore"):
             return float(_compiled(tree)(point))
@@ -283,7 +313,7 @@ def _evaluate(tree, point: dict) -> float:
 
 
 # ---- one calculation ------------------------------------------------------------------------
-def analyse_calculation(calc, point: dict | None) -> FormulaAnalysis:
+def analyse_calculation(calc: Calculation, point: Point | None) -> FormulaAnalysis:
     """Parse, dimension-check, match and evaluate every formula of ``calc``."""
     out = FormulaAnalysis()
     dim = int(calc.structure.get("dim", 3))
@@ -323,10 +353,12 @@ def analyse_calculation(calc, point: dict | None) -> FormulaAnalysis:
     return out
 
 
-def _points(calculations, values, skip) -> list:
+def _points(
+    calculations: Sequence[Calculation], values: Values, skip: Collection[int]
+) -> list[Point | None]:
     """Every formula symbol's value per calculation with formulas (None: none, or skipped)."""
     with_formulas = [i for i, c in enumerate(calculations) if c.formulas]
-    points = [None] * len(calculations)
+    points: list[Point | None] = [None] * len(calculations)
     solved = [i for i in with_formulas if i not in skip]
     if solved:
         subset = {
@@ -338,7 +370,9 @@ def _points(calculations, values, skip) -> list:
     return points
 
 
-def analyse_all(calculations, values, skip=()) -> list:
+def analyse_all(
+    calculations: Sequence[Calculation], values: Values, skip: Collection[int] = ()
+) -> list[FormulaAnalysis]:
     """FormulaAnalysis per calculation (values at the operating point unless skipped)."""
     points = _points(calculations, values, skip)
     return [
@@ -347,7 +381,12 @@ def analyse_all(calculations, values, skip=()) -> list:
     ]
 
 
-def evaluate_all(analyses, calculations, values, skip=()) -> None:
+def evaluate_all(
+    analyses: Sequence[FormulaAnalysis | None],
+    calculations: Sequence[Calculation],
+    values: Values,
+    skip: Collection[int] = (),
+) -> None:
     """Each formula's value and the exact value at its operating point again, from
     ``values`` as the rules left them (the corrected calculation: a rejected stated
     mobility no longer sets the exact D a formula line is compared with)."""
@@ -359,7 +398,7 @@ def evaluate_all(analyses, calculations, values, skip=()) -> None:
                     _value(result, point)
 
 
-def _value(result, point) -> None:
+def _value(result: FormulaResult, point: Mapping[str, float]) -> None:
     result.value, result.exact = _evaluate(result.rhs, point), _evaluate(result.lhs, point)
     result.error = math.nan
     if np.isfinite(result.value) and np.isfinite(result.exact):
@@ -370,13 +409,15 @@ def _value(result, point) -> None:
 
 
 # ---- findings -------------------------------------------------------------------------------
-def _fill(template: str, fields: dict) -> str:
+def _fill(template: str, fields: Mapping[str, str]) -> str:
     return PLACEHOLDER.sub(lambda m: fields.get(m.group(1), ""), template)
 
 
-def _covered(analysis, rules, rule_findings) -> set:
+def _covered(
+    analysis: FormulaAnalysis, rules: Mapping[str, Rule], rule_findings: Iterable[Finding]
+) -> set[str]:
     """Formulas with an embodied assumption on which a rule has fired already."""
-    covered = set()
+    covered: set[str] = set()
     for finding in rule_findings:
         rule = rules.get(finding.rule)
         carrier = carrier_code(finding.carrier)
@@ -390,9 +431,14 @@ def _covered(analysis, rules, rule_findings) -> set:
     return covered
 
 
-def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings) -> list:
+def formula_findings(
+    analysis: FormulaAnalysis,
+    rules: Mapping[str, Rule],
+    calc: Calculation,
+    rule_findings: Iterable[Finding],
+) -> list[Finding]:
     """FORM01-03 findings of one calculation; ``rules`` maps rule id -> Rule."""
-    out = []
+    out: list[Finding] = []
     covered = _covered(analysis, rules, rule_findings)
     for result in analysis.results:
         fields = {
@@ -407,7 +453,7 @@ def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings
             if rule:
                 out.append(_finding(rule, calc, result, _fill(rule.message, fields), []))
             continue
-        match = result.match
+        match = result.matched
         fields.update(
             {
                 "value": result.show(result.value),
@@ -422,7 +468,7 @@ def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings
                 ),
             }
         )
-        corrections = []
+        corrections: list[Correction] = []
         if (
             np.isfinite(result.value)
             and np.isfinite(result.exact)
@@ -441,20 +487,23 @@ def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings
                     key=result.key,
                 )
             )
-        off_rule = rules.get("FORM03")
-        off = (
-            off_rule is not None
+        form03 = rules.get("FORM03")
+        # FORM03 where the value is off at this point (None: it is not)
+        off_rule = (
+            form03
+            if form03 is not None
             and np.isfinite(result.error)
-            and abs(result.error) > off_rule.threshold
+            and abs(result.error) > form03.threshold
             and result.text not in covered
+            else None
         )
         # one finding per formula line: off at this point, a formula is FORM03's (a
         # warning) whether or not it matches a relation; FORM02 (info) is left for one
         # that matches none but agrees here
-        if match.status == "unrecognised" and "FORM02" in rules and not off:
+        if match.status == "unrecognised" and "FORM02" in rules and off_rule is None:
             rule = rules["FORM02"]
             out.append(_finding(rule, calc, result, _fill(rule.message, fields), corrections))
-        if off:
+        if off_rule is not None:
             fields["threshold"] = display(off_rule.threshold, off_rule.indicator_unit)
             out.append(
                 _finding(
@@ -469,7 +518,14 @@ def formula_findings(analysis: FormulaAnalysis, rules: dict, calc, rule_findings
     return out
 
 
-def _finding(rule, calc, result, message, corrections, indicator=math.nan) -> Finding:
+def _finding(
+    rule: Rule,
+    calc: Calculation,
+    result: FormulaResult,
+    message: str,
+    corrections: list[Correction],
+    indicator: float = math.nan,
+) -> Finding:
     return Finding(
         rule=rule.id,
         title=rule.title,

@@ -10,9 +10,11 @@ corrections into one entry per quantity: the set a reviewer applies to the memo.
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 
 from ...quantity_registry.registry import formula_symbols, registered
+from ..findings import Finding
 
 # stated Fermi levels are read per carrier from ef_minus_ec / ef_minus_ev; their
 # corrections are given relative to the carrier's own band edge
@@ -58,15 +60,15 @@ class CorrectedEntry:
     unit: str  # display unit
     stated: float | None  # SI: the author's number (None: only a shortcut gave one)
     corrected: float  # SI
-    rules: list = field(default_factory=list)  # ids of the findings that correct it
-    lines: list = field(default_factory=list)  # where it is stated or computed
+    rules: list[str] = field(default_factory=list)  # ids of the findings that correct it
+    lines: list[int] = field(default_factory=list)  # where it is stated or computed
 
     @property
     def error(self) -> float | None:
         return None if self.stated is None else self.stated / self.corrected - 1.0
 
 
-def corrected_set(findings) -> list:
+def corrected_set(findings: Iterable[Finding]) -> list[CorrectedEntry]:
     """One entry per corrected quantity of one calculation, in the order findings name
     them (waived findings included: a waiver accepts the risk, not a second value)."""
     entries: dict[str, CorrectedEntry] = {}

@@ -22,32 +22,44 @@ every correction as stated (or shortcut) value -> exact value with the error.
 
 from __future__ import annotations
 
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
+from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray
 from ...quantity_registry.number_text import display
 from ...vocabulary_words import carrier_message_words
 from ..expressions.parser import names_in
-from ..findings import Correction, Finding, carrier_word
+from ..findings import Correction, Embodied, Finding, carrier_word
 from ..vocabulary import carrier_names
 from .corrected import quantity_key
-from .rulebook import PLACEHOLDER
-from .state_values import derive_corrected
+from .rulebook import PLACEHOLDER, Compiled, Rule
+from .state_values import Replaced, Values, derive_corrected
+
+if TYPE_CHECKING:
+    from ...inputs.calculation_file import Calculation
 
 
 @dataclass
 class Cells:
     """Operating points ruled together."""
 
-    values: dict  # quantity name -> array over the cells (state_values)
-    calculations: list  # the calculations the cells belong to
-    owner: np.ndarray  # cell -> index into ``calculations``
-    embodied: list  # per calculation: the Embodied assumptions of its formulas
-    valid: np.ndarray  # cells that were solved
+    values: Values  # quantity name -> array over the cells (state_values)
+    calculations: list[Calculation]  # the calculations the cells belong to
+    owner: IndexArray  # cell -> index into ``calculations``
+    embodied: list[list[Embodied]]  # per calculation: the assumptions of its formulas
+    valid: BoolArray  # cells that were solved
 
     @classmethod
-    def points(cls, calculations, values, embodied=None, skip=()):
+    def points(
+        cls,
+        calculations: Sequence[Calculation],
+        values: Values,
+        embodied: list[list[Embodied]] | None = None,
+        skip: Iterable[int] = (),
+    ) -> Cells:
         """One cell per calculation; ``skip``: indices whose solve failed."""
         count = len(calculations)
         valid = np.ones(count, dtype=bool)
@@ -61,7 +73,9 @@ class Cells:
         )
 
     @classmethod
-    def grid(cls, calc, values, count, embodied=()):
+    def grid(
+        cls, calc: Calculation, values: Values, count: int, embodied: Iterable[Embodied] = ()
+    ) -> Cells:
         """``count`` grid cells of the sweep ``calc``."""
         return cls(
             values, [calc], np.zeros(count, dtype=int), [list(embodied)], np.ones(count, dtype=bool)
@@ -74,35 +88,37 @@ class Cells:
 
 @dataclass
 class Ruled:
-    """One rule for one carrier (``x``: "n", "p", or None) over cells."""
+    """One rule for one carrier (``x``: "n", "p", or "" for a rule of the calculation as a
+    whole) over cells."""
 
-    rule: object
-    x: str | None
-    names: dict  # the rule's _x/_o names -> concrete names
-    fired: np.ndarray  # bool per cell
-    indicator: np.ndarray  # per cell
-    implied: list  # (stated name, mask) of each implication, for the source line
-    by_formula: np.ndarray  # per cell: index into its calculation's embodied list (-1: none)
+    rule: Rule
+    x: str
+    names: dict[str, str]  # the rule's _x/_o names -> concrete names
+    fired: BoolArray  # per cell
+    indicator: FloatArray  # per cell
+    implied: list[tuple[str, BoolArray]]  # (stated name, mask) of each implication
+    by_formula: IndexArray  # per cell: index into its calculation's embodied list (-1: none)
 
-    def excess(self) -> np.ndarray:
+    def excess(self) -> FloatArray:
         """How far the indicator lies beyond the threshold (> 0: the wrong side)."""
         return beyond(self.rule, self.indicator)
 
 
-def beyond(rule, indicator):
+def beyond(rule: Rule, indicator: FloatArray) -> FloatArray:
     return indicator - rule.threshold if rule.relation == "above" else rule.threshold - indicator
 
 
-def _nonzero(array) -> np.ndarray:
-    array = np.asarray(array, dtype=float)
-    return np.isfinite(array) & (array != 0)
+def _nonzero(array: ArrayIn) -> BoolArray:
+    numbers = np.asarray(array, dtype=float)
+    nonzero: BoolArray = np.isfinite(numbers) & (numbers != 0)
+    return nonzero
 
 
-def _cells_array(expression, x, values, count) -> np.ndarray:
+def _cells_array(expression: Compiled, x: str, values: Values, count: int) -> FloatArray:
     return np.broadcast_to(np.asarray(expression.run[x](values), dtype=float), (count,))
 
 
-def rule_cells(rules, cells):
+def rule_cells(rules: Iterable[Rule], cells: Cells) -> Iterator[Ruled]:
     """:class:`Ruled` of every rule and carrier over ``cells`` (rules evaluated by engine
     code, ``evaluated_by``, are left to it).
 
@@ -113,7 +129,7 @@ def rule_cells(rules, cells):
     ordered = sorted(
         (rule for rule in rules if not rule.evaluated_by), key=lambda r: not r.replaces
     )
-    replaced = {}
+    replaced: Replaced = {}
     with np.errstate(all="ignore"):
         for k, rule in enumerate(ordered):
             if replaced and not rule.replaces and ordered[k - 1].replaces:
@@ -131,7 +147,7 @@ def rule_cells(rules, cells):
             derive_corrected(cells.values, replaced)
 
 
-def _replace(ruled, values, replaced) -> None:
+def _replace(ruled: Ruled, values: Values, replaced: Replaced) -> None:
     """Where ``ruled`` fired, put its replacements into the corrected calculation and
     remember the cells (``replaced``: concrete name -> mask)."""
     if not ruled.rule.replaces or not ruled.fired.any():
@@ -146,7 +162,9 @@ def _replace(ruled, values, replaced) -> None:
 _NO_FORMULA = np.iinfo(np.int64).max
 
 
-def assumption_made(rule, x, names, cells):
+def assumption_made(
+    rule: Rule, x: str, names: Mapping[str, str], cells: Cells
+) -> tuple[BoolArray, IndexArray]:
     """(made, by_formula): where the author declares the rule's assumption or a stated
     formula embodies it, for the carrier in use; ``by_formula`` names, per cell, the
     first formula that makes it (an index into the calculation's embodied list, -1
@@ -178,11 +196,13 @@ def assumption_made(rule, x, names, cells):
     return (declared[cells.owner] & in_use) | (by_formula >= 0), by_formula
 
 
-def rule_mask(rule, x, names, made, values, count):
+def rule_mask(
+    rule: Rule, x: str, names: Mapping[str, str], made: BoolArray, values: Values, count: int
+) -> tuple[BoolArray, FloatArray, list[tuple[str, BoolArray]]]:
     """(fired, indicator, implications) of one rule over ``count`` cells, given where
     its assumption is declared or embodied (``made``, a boolean array)."""
     made = made.copy()
-    implied = []
+    implied: list[tuple[str, BoolArray]] = []
     for imp in rule.implied_by:
         name = names.get(imp.stated, imp.stated)
         stated = values[name]
@@ -200,7 +220,7 @@ def rule_mask(rule, x, names, made, values, count):
         made &= _nonzero(np.broadcast_to(rule.when.run[x](values), (count,)))
     for name in rule.requires:
         made &= np.isfinite(values[names.get(name, name)])
-    indicator = _cells_array(rule.indicator, x, values, count)
+    indicator = _cells_array(rule.expression, x, values, count)
     wrong_side = (
         indicator > rule.threshold if rule.relation == "above" else indicator < rule.threshold
     )
@@ -208,19 +228,25 @@ def rule_mask(rule, x, names, made, values, count):
     return made & ~np.isnan(indicator) & wrong_side, indicator, implied
 
 
-def rule_indicator(rule, x, values, count) -> np.ndarray:
+def rule_indicator(rule: Rule, x: str, values: Values, count: int) -> FloatArray:
     """The rule's indicator for carrier ``x`` over ``count`` cells."""
     with np.errstate(all="ignore"):
-        return _cells_array(rule.indicator, x, values, count)
+        return _cells_array(rule.expression, x, values, count)
 
 
-def evaluate(rules, calculations, values, skip=(), embodied=None) -> tuple[list, list]:
+def evaluate(
+    rules: Iterable[Rule],
+    calculations: Sequence[Calculation],
+    values: Values,
+    skip: Iterable[int] = (),
+    embodied: list[list[Embodied]] | None = None,
+) -> tuple[list[list[Finding]], list[list[str]]]:
     """(findings, unchecked) per calculation of single operating points (``values`` from
     :func:`state_values.solve_all`; ``embodied``: per calculation the Embodied
     assumptions of its stated formulas; ``skip``: calculations not solved).  ``unchecked``
     lists, per calculation, the stated numbers no rule could compare there."""
     cells = Cells.points(calculations, values, embodied, skip)
-    findings = [[] for _ in calculations]
+    findings: list[list[Finding]] = [[] for _ in calculations]
     # every rule first, so that each correction is read off the one corrected calculation
     # (after every replacement), whichever rule reports it
     ruled_all = list(rule_cells(rules, cells))
@@ -249,14 +275,14 @@ _FORMS = {
 }
 
 
-def compared_numbers(ruled_all, cells) -> dict:
+def compared_numbers(ruled_all: Iterable[Ruled], cells: Cells) -> dict[str, BoolArray]:
     """Stated name -> cells where some rule compared it: the rule's indicator reads it (or
     a correction of the rule is of it) and is a number there, with every quantity the
     rule requires known -- whether or not the rule's gate let it fire."""
-    out: dict = {}
+    out: dict[str, BoolArray] = {}
     for ruled in ruled_all:
         rule = ruled.rule
-        reads = names_in(rule.indicator.tree) | {c.stated for c in rule.corrections if c.stated}
+        reads = names_in(rule.expression.tree) | {c.stated for c in rule.corrections if c.stated}
         stated = {ruled.names.get(n, n) for n in reads if n.startswith("stated_")}
         if not stated:
             continue
@@ -280,14 +306,15 @@ _SOURCE_KEYS = {
 }
 
 
-def _line_of(calc, name):
+def _line_of(calc: Calculation, name: str) -> int | None:
     for key in _SOURCE_KEYS.get(name, (name,)):
         if key in calc.lines:
-            return calc.lines[key]
+            line: int = calc.lines[key]
+            return line
     return None
 
 
-def add_findings(ruled, cells, findings):
+def add_findings(ruled: Ruled, cells: Cells, findings: list[list[Finding]]) -> None:
     """The reduction of single points: a Finding for each fired cell, appended to
     ``findings[calculation index]``."""
     fired = np.flatnonzero(ruled.fired)
@@ -297,19 +324,25 @@ def add_findings(ruled, cells, findings):
         _add_findings(ruled, cells, fired, findings)
 
 
-def _add_findings(ruled, cells, fired, findings):
+def _add_findings(
+    ruled: Ruled, cells: Cells, fired: IndexArray, findings: list[list[Finding]]
+) -> None:
     rule, x, names, values, count = ruled.rule, ruled.x, ruled.names, cells.values, cells.count
+    # (correction, shortcut, exact, the stated number's concrete name, its value) per cell
     columns = [
         (
             corr,
             _cells_array(corr.shortcut, x, values, count),
             _cells_array(corr.exact, x, values, count),
-            values[names.get(corr.stated, corr.stated)] if corr.stated else np.full(count, np.nan),
+            name,
+            values[name] if name else np.full(count, np.nan),
         )
         for corr in rule.corrections
+        for name in [names.get(corr.stated, corr.stated) if corr.stated else None]
     ]
+    # a word-valued quantity (unit "text") is shown as it is
     shown = {
-        key: (values[c], unit) if unit == "text" else (_cells_array(c, x, values, count), unit)
+        key: (values[c], unit) if isinstance(c, str) else (_cells_array(c, x, values, count), unit)
         for key, (c, unit) in rule.show.items()
     }
     words = carrier_message_words(x)
@@ -319,8 +352,9 @@ def _add_findings(ruled, cells, fired, findings):
         calc = cells.calculations[owner]
         formula = cells.embodied[owner][ruled.by_formula[i]] if ruled.by_formula[i] >= 0 else None
         corrections = []
-        line = column = None
-        for corr, shortcut, exact, stated in columns:
+        line: int | None = None
+        column: str | None = None
+        for corr, shortcut, exact, stated_name, stated in columns:
             author = bool(np.isfinite(stated[i]))
             value = stated[i] if author else shortcut[i]
             if not (np.isfinite(value) and np.isfinite(exact[i])) or exact[i] == 0:
@@ -333,12 +367,12 @@ def _add_findings(ruled, cells, fired, findings):
                     float(exact[i]),
                     float(value / exact[i] - 1.0),
                     author,
-                    key=quantity_key(names.get(corr.stated, corr.stated)),
+                    key=quantity_key(stated_name),
                 )
             )
-            if author and line is None:
-                line = _line_of(calc, names.get(corr.stated, corr.stated))
-                column = calc.columns.get(names.get(corr.stated, corr.stated))
+            if author and line is None and stated_name:
+                line = _line_of(calc, stated_name)
+                column = calc.columns.get(stated_name)
         if line is None:
             line = next((_line_of(calc, name) for name, mask in ruled.implied if mask[i]), None)
         if line is None and formula is not None:

@@ -3,32 +3,50 @@ evaluated over them (one cell per calculation), and one report per calculation."
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, TypedDict
 
+from ...quantity_registry.summary_fields import FieldValue
+from ..findings import Embodied, Finding
 from . import state_values
-from .corrected import corrected_set, quantity_key
+from .corrected import CorrectedEntry, corrected_set, quantity_key
 from .evaluate import evaluate
+from .rulebook import Rule
 from .trade_summary import trade_summary
+
+if TYPE_CHECKING:
+    from ...inputs.calculation_file import Axis, Calculation
+    from ..formulas.check import FormulaAnalysis, FormulaResult
+
+
+class SweepGrid(TypedDict):
+    """What a sweep's report says of its grid."""
+
+    axes: list[tuple[str, Axis]]  # (label, swept input)
+    points: int
 
 
 @dataclass
 class CalculationReport:
-    calc: object  # inputs.calculation_file.Calculation
-    state: dict | None  # trade-unit summary of the solved state
-    findings: list = field(default_factory=list)
-    notes: list = field(default_factory=list)
+    calc: Calculation
+    state: dict[str, FieldValue] | None  # trade-unit summary of the solved state
+    findings: list[Finding] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
     error: str | None = None  # the calculation could not be solved
-    formulas: list = field(default_factory=list)  # formula_check.FormulaResult
-    sweep: dict | None = None  # a sweep: {"axes": [(label, Axis)], "points": n}
-    embodied: list = field(default_factory=list)  # Embodied: what its formulas assume
-    corrected: list = field(default_factory=list)  # corrected.CorrectedEntry, one per quantity
-    unchecked: list = field(default_factory=list)  # keys of stated numbers no rule compared
+    formulas: list[FormulaResult] = field(default_factory=list)
+    sweep: SweepGrid | None = None  # a sweep's grid
+    embodied: list[Embodied] = field(default_factory=list)  # what its formulas assume
+    corrected: list[CorrectedEntry] = field(default_factory=list)  # one per quantity
+    unchecked: list[str] = field(default_factory=list)  # keys of stated numbers no rule compared
 
 
-def check_points(calculations, rules) -> tuple[list, list]:
+def check_points(
+    calculations: Sequence[Calculation], rules: Sequence[Rule]
+) -> tuple[list[CalculationReport], list[str]]:
     """(one CalculationReport per calculation, input errors of their formulas)."""
     values, solve_errors, solve_notes = state_values.solve_all(calculations)
-    analyses = [None] * len(calculations)
+    analyses: Sequence[FormulaAnalysis | None] = [None] * len(calculations)
     if any(calc.formulas for calc in calculations):
         from ..formulas import (
             check as formula_check,
@@ -44,7 +62,7 @@ def check_points(calculations, rules) -> tuple[list, list]:
         # follow the corrected calculation too
         formula_check.evaluate_all(analyses, calculations, values, skip=solve_errors.keys())
     by_id = {rule.id: rule for rule in rules}
-    reports = []
+    reports: list[CalculationReport] = []
     for i, calc in enumerate(calculations):
         if i in solve_errors:
             reports.append(
@@ -77,16 +95,18 @@ def check_points(calculations, rules) -> tuple[list, list]:
 VALUE_RULES = "VAL"
 
 
-def one_finding_per_stated_number(findings: list) -> list:
+def one_finding_per_stated_number(findings: list[Finding]) -> list[Finding]:
     """Drop a value check (VAL..) on a stated number that a shortcut rule already
     corrects: the shortcut names the cause, the value check would only repeat the number.
     The stated number is the quantity a correction is of (two numbers on one line, as in
     a flow mapping, stay apart); a correction without one falls back to its line."""
 
-    def stated(f):
+    def stated(f: Finding) -> set[tuple[str, str | int]]:
         return {(f.file, c.key if c.key else f.line) for c in f.corrections if c.from_author}
 
-    explained = set().union(*(stated(f) for f in findings if not f.rule.startswith(VALUE_RULES)))
+    explained: set[tuple[str, str | int]] = set().union(
+        *(stated(f) for f in findings if not f.rule.startswith(VALUE_RULES))
+    )
     return [
         f
         for f in findings

@@ -10,12 +10,22 @@ The operating points of checked calculations are placed on the plane.
 
 from __future__ import annotations
 
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING, Protocol
 
 import numpy as np
+import numpy.typing as npt
 
 from ...physics import carriers, equilibrium
+from ...physics.arrays import ArrayIn, FloatArray
+from ...physics.materials import Material
 from ...vocabulary_words import SEVERITY_RANK
+from .axes import AxisKey, axis_key, axis_values
+
+if TYPE_CHECKING:
+    from ...inputs.calculation_file import Calculation
+    from .points import CalculationReport
 
 DOPING_RANGE = (1e13 * 1e6, 1e21 * 1e6)  # m^-3
 TEMPERATURE_RANGE = (20.0, 700.0)  # K
@@ -23,15 +33,15 @@ TEMPERATURE_RANGE = (20.0, 700.0)  # K
 
 @dataclass
 class RegimeGrid:
-    material: object
+    material: Material
     species: str
     kind: str  # "donor" | "acceptor"
-    doping: np.ndarray  # m^-3, the x axis (log spaced)
-    T: np.ndarray  # K, the y axis
-    codes: np.ndarray  # (len(T), len(doping)) index into REGIMES
-    eta: np.ndarray  # η of the majority carrier
-    fraction: np.ndarray  # ionized fraction of the dopant
-    ni_ratio: np.ndarray  # n_i / N
+    doping: FloatArray  # m^-3, the x axis (log spaced)
+    T: FloatArray  # K, the y axis
+    codes: npt.NDArray[np.int8]  # (len(T), len(doping)) index into REGIMES
+    eta: FloatArray  # η of the majority carrier
+    fraction: FloatArray  # ionized fraction of the dopant
+    ni_ratio: FloatArray  # n_i / N
     mott: float  # m^-3 (inf where the dopant has none)
 
     @property
@@ -42,13 +52,13 @@ class RegimeGrid:
 
 @dataclass
 class EtaCurve:
-    material: object
+    material: Material
     species: str
     kind: str  # "donor" | "acceptor"
     density: float  # m^-3
-    T: np.ndarray  # K
-    eta: np.ndarray  # η of the majority carrier
-    codes: np.ndarray  # index into REGIMES per temperature
+    T: FloatArray  # K
+    eta: FloatArray  # η of the majority carrier
+    codes: npt.NDArray[np.int8]  # index into REGIMES per temperature
 
     @property
     def carrier(self) -> str:
@@ -58,6 +68,13 @@ class EtaCurve:
 _CARRIER = {"donor": "n", "acceptor": "p"}
 
 
+class CheckedReports(Protocol):
+    """What the map reads of a run (engine.run.RunResult, or one report of it)."""
+
+    @property
+    def reports(self) -> Sequence[CalculationReport]: ...
+
+
 @dataclass
 class MapPoint:
     label: str
@@ -65,16 +82,16 @@ class MapPoint:
     T: float
     severity: str | None  # worst active finding
     # a sweep: (doping from, to) and (T from, to); equal ends for a missing axis
-    doping_span: tuple = ()
-    T_span: tuple = ()
+    doping_span: tuple[float, ...] = ()
+    T_span: tuple[float, ...] = ()
 
 
 def regime_grid(
-    material,
-    species,
-    doping_range=DOPING_RANGE,
-    temperature_range=TEMPERATURE_RANGE,
-    size=(200, 200),
+    material: Material,
+    species: str,
+    doping_range: tuple[float, float] = DOPING_RANGE,
+    temperature_range: tuple[float, float] = TEMPERATURE_RANGE,
+    size: tuple[int, int] = (200, 200),
 ) -> RegimeGrid:
     """Solve the plane on ``size`` = (doping points, temperature points)."""
     dopant = material.dopant(species)
@@ -101,7 +118,7 @@ def regime_grid(
     )
 
 
-def eta_curve(material, species, density, temperatures) -> EtaCurve:
+def eta_curve(material: Material, species: str, density: float, temperatures: ArrayIn) -> EtaCurve:
     """η of the majority carrier and the regime at each of ``temperatures`` (K) for
     ``density`` (m^-3) of ``species``."""
     dopant = material.dopant(species)
@@ -113,19 +130,22 @@ def eta_curve(material, species, density, temperatures) -> EtaCurve:
     return EtaCurve(material, species, dopant.kind, density, T, eta, carriers.regime_code(state))
 
 
-def map_groups(result) -> dict:
+def map_groups(result: CheckedReports) -> dict[tuple[str, str], tuple[Material, list[MapPoint]]]:
     """(material name, species) -> (material, [MapPoint]) for the checked calculations."""
-    groups = {}
+    groups: dict[tuple[str, str], tuple[Material, list[MapPoint]]] = {}
     for report in result.reports:
         calc = report.calc
         if report.error:
             continue
-        spans = {axis.key: (float(axis.values[0]), float(axis.values[-1])) for axis in calc.sweep}
+        spans = {
+            axis_key(axis): (float(axis_values(axis)[0]), float(axis_values(axis)[-1]))
+            for axis in calc.sweep
+        }
         species, density = _map_dopant(calc, spans)
         if species is None:
             continue  # undoped everywhere: no place on a doping axis
         active = [f.severity for f in report.findings if not f.waived]
-        worst = max(active, key=SEVERITY_RANK.get) if active else None
+        worst = max(active, key=SEVERITY_RANK.__getitem__) if active else None
         point = MapPoint(calc.name, density, calc.temperature, worst)
         for key, ends in spans.items():
             if key == "T":
@@ -136,13 +156,15 @@ def map_groups(result) -> dict:
     return groups
 
 
-def _map_dopant(calc, spans):
+def _map_dopant(
+    calc: Calculation, spans: Mapping[AxisKey, tuple[float, float]]
+) -> tuple[str | None, float]:
     """(species, density in m^-3) that places ``calc`` on a map: the majority dopant
     (the larger total, donors on a tie) and the net doping, or that dopant's density
     where the net is zero; (None, 0) when no dopant is above zero anywhere.  A swept
     density takes part with the larger end of its sweep."""
 
-    def above_zero(group, densities):
+    def above_zero(group: str, densities: Mapping[str, float]) -> dict[str, float]:
         peaks = {
             sp: max(value, *spans.get((group, sp), (value,))) for sp, value in densities.items()
         }
@@ -155,5 +177,5 @@ def _map_dopant(calc, spans):
     majority = (
         donors if donors and (total_donors >= total_acceptors or not acceptors) else acceptors
     )
-    species = max(majority, key=majority.get)
+    species = max(majority, key=majority.__getitem__)
     return species, abs(total_donors - total_acceptors) or majority[species]

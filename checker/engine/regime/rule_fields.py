@@ -13,24 +13,41 @@ from __future__ import annotations
 
 import difflib
 import re
+from collections.abc import Iterator
 from dataclasses import dataclass, field
+from typing import Any, Protocol, TypeAlias, TypeGuard
 
 NOT_BLANK = r"\S"
 
+# where a value stands in a rule file: keys and list positions from the top
+KeyPath: TypeAlias = tuple[str | int, ...]
+Problem: TypeAlias = tuple[KeyPath, str]
+Problems: TypeAlias = Iterator[Problem]
+# a JSON Schema fragment (tools/generate_schema.py writes it out as JSON)
+Schema: TypeAlias = dict[str, Any]
 
-def _shown(value) -> str:
+
+class FieldKind(Protocol):
+    """What every kind of field does: find the problems of a value, write its schema."""
+
+    def problems(self, value: object, path: KeyPath) -> Problems: ...
+
+    def schema(self) -> Schema: ...
+
+
+def _shown(value: object) -> str:
     return "nothing" if value is None else repr(value)
 
 
-def _described(schema: dict, about: str) -> dict:
+def _described(schema: Schema, about: str) -> Schema:
     return {**schema, "description": about} if about else schema
 
 
-def _is_number(value) -> bool:
+def _is_number(value: object) -> TypeGuard[int | float]:
     return isinstance(value, (int, float)) and not isinstance(value, bool)
 
 
-def field_name(path: tuple) -> str:
+def field_name(path: KeyPath) -> str:
     """('corrections', 0, 'unit') -> 'corrections[0].unit' (as rule authors read it)."""
     out = ""
     for part in path:
@@ -42,11 +59,11 @@ def field_name(path: tuple) -> str:
 class Text:
     about: str = ""
 
-    def problems(self, value, path):
+    def problems(self, value: object, path: KeyPath) -> Problems:
         if not isinstance(value, str) or not re.search(NOT_BLANK, value):
             yield path, f"must be non-empty text, got {_shown(value)}"
 
-    def schema(self) -> dict:
+    def schema(self) -> Schema:
         return _described({"type": "string", "pattern": NOT_BLANK}, self.about)
 
 
@@ -56,28 +73,28 @@ class Pattern:
     example: str
     about: str = ""
 
-    def problems(self, value, path):
+    def problems(self, value: object, path: KeyPath) -> Problems:
         if not isinstance(value, str) or not re.fullmatch(self.regex, value):
             yield path, f"must look like {self.example}, got {_shown(value)}"
 
-    def schema(self) -> dict:
+    def schema(self) -> Schema:
         return _described({"type": "string", "pattern": f"^(?:{self.regex})$"}, self.about)
 
 
 @dataclass(frozen=True)
 class Choice:
-    words: tuple
+    words: tuple[str, ...]
     about: str = ""
     what: str = ""  # what a word is, said instead of listing many words
 
-    def problems(self, value, path):
+    def problems(self, value: object, path: KeyPath) -> Problems:
         if not isinstance(value, str) or value not in self.words:
             close = difflib.get_close_matches(str(value), self.words, n=1)
             hint = f"; did you mean {close[0]!r}?" if close else ""
             known = f"a {self.what}" if self.what else f"one of {', '.join(self.words)}"
             yield path, f"{_shown(value)} is not {known}{hint}"
 
-    def schema(self) -> dict:
+    def schema(self) -> Schema:
         return _described({"enum": list(self.words)}, self.about)
 
 
@@ -86,14 +103,14 @@ class Number:
     above: float | None = None  # exclusive lower bound
     about: str = ""
 
-    def problems(self, value, path):
+    def problems(self, value: object, path: KeyPath) -> Problems:
         if not _is_number(value):
             yield path, f"must be a number, got {_shown(value)}"
         elif self.above is not None and not value > self.above:
             yield path, f"must be above {self.above:g}, got {value!r}"
 
-    def schema(self) -> dict:
-        schema = {"type": "number"}
+    def schema(self) -> Schema:
+        schema: Schema = {"type": "number"}
         if self.above is not None:
             schema["exclusiveMinimum"] = self.above
         return _described(schema, self.about)
@@ -107,7 +124,7 @@ class Expression:
     longest: int
     about: str = ""
 
-    def problems(self, value, path):
+    def problems(self, value: object, path: KeyPath) -> Problems:
         if _is_number(value):
             return
         if not isinstance(value, str) or not re.search(NOT_BLANK, value):
@@ -115,7 +132,7 @@ class Expression:
         elif len(value) > self.longest:
             yield path, f"is {len(value)} characters long; the limit is {self.longest}"
 
-    def schema(self) -> dict:
+    def schema(self) -> Schema:
         return _described(
             {
                 "anyOf": [
@@ -129,11 +146,11 @@ class Expression:
 
 @dataclass(frozen=True)
 class ListOf:
-    item: object
+    item: FieldKind
     single: bool = False  # a lone item may stand for a list of one
     about: str = ""
 
-    def problems(self, value, path):
+    def problems(self, value: object, path: KeyPath) -> Problems:
         if self.single and not isinstance(value, list):
             yield from self.item.problems(value, path)
             return
@@ -143,8 +160,8 @@ class ListOf:
         for i, entry in enumerate(value):
             yield from self.item.problems(entry, path + (i,))
 
-    def schema(self) -> dict:
-        listed = {"type": "array", "minItems": 1, "items": self.item.schema()}
+    def schema(self) -> Schema:
+        listed: Schema = {"type": "array", "minItems": 1, "items": self.item.schema()}
         if self.single:
             listed = {"anyOf": [self.item.schema(), listed]}
         return _described(listed, self.about)
@@ -154,12 +171,12 @@ class ListOf:
 class EmptyOrListOf(ListOf):
     """A list that may be empty (a rule without corrections says ``corrections: []``)."""
 
-    def problems(self, value, path):
+    def problems(self, value: object, path: KeyPath) -> Problems:
         if value == []:
             return
         yield from super().problems(value, path)
 
-    def schema(self) -> dict:
+    def schema(self) -> Schema:
         return _described({"type": "array", "items": self.item.schema()}, self.about)
 
 
@@ -169,14 +186,14 @@ class Block:
     ``exactly_one``: keys of which one and only one is given; ``at_least_one``: keys of
     which one or more are given; ``needs``: key -> the key it cannot go without."""
 
-    fields: dict
-    optional: tuple = ()
-    exactly_one: tuple = ()
-    at_least_one: tuple = ()
-    needs: dict = field(default_factory=dict)
+    fields: dict[str, FieldKind]
+    optional: tuple[str, ...] = ()
+    exactly_one: tuple[str, ...] = ()
+    at_least_one: tuple[str, ...] = ()
+    needs: dict[str, str] = field(default_factory=dict)
     about: str = ""
 
-    def problems(self, value, path):
+    def problems(self, value: object, path: KeyPath) -> Problems:
         if not isinstance(value, dict):
             yield path, f"must be a mapping of {', '.join(self.fields)}, got {_shown(value)}"
             return
@@ -208,8 +225,8 @@ class Block:
             if key in value and needed not in value:
                 yield path + (key,), f"goes only with {needed!r}"
 
-    def schema(self) -> dict:
-        schema = {
+    def schema(self) -> Schema:
+        schema: Schema = {
             "type": "object",
             "additionalProperties": False,
             "required": [k for k in self.fields if k not in self.optional],
@@ -228,11 +245,11 @@ class Block:
 class Named:
     """A mapping of names the author chooses (message placeholders) to ``item``."""
 
-    name: Pattern
-    item: object
+    name: FieldKind  # the names' form: a Pattern, or a Choice of fixed names
+    item: FieldKind
     about: str = ""
 
-    def problems(self, value, path):
+    def problems(self, value: object, path: KeyPath) -> Problems:
         if not isinstance(value, dict) or not value:
             yield path, f"must be a non-empty mapping of names to entries, got {_shown(value)}"
             return
@@ -240,7 +257,7 @@ class Named:
             yield from self.name.problems(key, path + (key,))
             yield from self.item.problems(entry, path + (key,))
 
-    def schema(self) -> dict:
+    def schema(self) -> Schema:
         return _described(
             {
                 "type": "object",
@@ -260,13 +277,13 @@ class Alternatives:
     given: Block
     otherwise: Block
 
-    def chosen(self, value) -> Block:
+    def chosen(self, value: object) -> Block:
         return self.given if isinstance(value, dict) and self.key in value else self.otherwise
 
-    def problems(self, value, path):
+    def problems(self, value: object, path: KeyPath) -> Problems:
         yield from self.chosen(value).problems(value, path)
 
-    def schema(self) -> dict:
+    def schema(self) -> Schema:
         return {
             "if": {"type": "object", "required": [self.key]},
             "then": self.given.schema(),

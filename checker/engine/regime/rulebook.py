@@ -15,9 +15,11 @@ rule file raises :class:`RuleFileError` with one line per problem:
 from __future__ import annotations
 
 import re
+from collections.abc import Iterable
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from pathlib import Path
+from typing import TYPE_CHECKING, Any, TypeAlias
 
 import yaml
 
@@ -32,6 +34,8 @@ from ..expressions.dimension_check import (
     dimension,
     name_dimension,
 )
+from ..expressions.parser import Evaluator
+from ..expressions.tree import Node, num
 from ..vocabulary import DISPLAY_UNITS, TEXT, carrier_names, rule_names
 from .rule_fields import (
     Alternatives,
@@ -39,6 +43,8 @@ from .rule_fields import (
     Choice,
     EmptyOrListOf,
     Expression,
+    FieldKind,
+    KeyPath,
     ListOf,
     Named,
     Number,
@@ -46,6 +52,9 @@ from .rule_fields import (
     Text,
     field_name,
 )
+
+if TYPE_CHECKING:
+    from ...inputs.config import Config
 
 # what a rule may guard beyond the words an author declares
 RULE_ONLY_ASSUMPTIONS = (
@@ -90,13 +99,13 @@ _QUANTITY = Choice(
 # what a rule may replace in the corrected calculation where it fires (the rule-file forms
 # of state_values.REPLACEABLE): a rejected stated mobility or resistivity, or a density
 REPLACEABLE = ("used_mu_x", "used_rho", "dens_x", "dens_o")
-_HEAD = {
+_HEAD: dict[str, FieldKind] = {
     "id": Pattern(r"[A-Z]{2,5}[0-9]{2}", "STAT01", "2-5 capitals and 2 digits; the file name"),
     "title": Text(),
     "assumption": Choice(ASSUMPTIONS + RULE_ONLY_ASSUMPTIONS, "the assumption the rule guards"),
     "severity": Choice(SEVERITIES),
 }
-_TAIL = {
+_TAIL: dict[str, FieldKind] = {
     "why": Text(),
     "example": Text(),
     "fix": Text(),
@@ -217,8 +226,14 @@ class Compiled:
     """One expression: its source text, tree, and a numpy closure per carrier."""
 
     text: str
-    tree: tuple
-    run: dict  # carrier ("n", "p" or "") -> callable(values)
+    tree: Node
+    run: dict[str, Evaluator]  # carrier ("n", "p" or "") -> callable(values)
+
+
+# a message value: (the expression, its display unit), or (a word-valued quantity, "text")
+Shown: TypeAlias = tuple[Compiled | str, str]
+# a likely cause of a rejected number: (where it holds, the text naming it)
+Cause: TypeAlias = tuple[Compiled, str]
 
 
 @dataclass
@@ -244,29 +259,38 @@ class Rule:
     assumption: str
     severity: str
     per: str  # "carrier" | "calculation"
-    declared: tuple
+    declared: tuple[str, ...]
     when: Compiled | None
-    implied_by: list
+    implied_by: list[Implication]
     indicator_label: str
-    indicator: Compiled
+    indicator: Compiled | None  # None: a rule evaluated by engine code (evaluated_by)
     indicator_unit: str
     relation: str  # "above" | "below"
     threshold: float
     threshold_source: str
     message: str
-    corrections: list
-    requires: tuple
-    show: dict
+    corrections: list[Correction]
+    requires: tuple[str, ...]
+    show: dict[str, Shown]
     why: str
     example: str
     fix: str
-    references: list
+    references: list[str]
     path: str
-    carriers: tuple = field(default=())
+    carriers: tuple[str, ...] = field(default=())
     evaluated_by: str | None = None  # engine check that produces this rule's findings
     tolerance: str | None = None  # configuration tolerance that sets the threshold
-    replaces: dict = field(default_factory=dict)  # name -> name used where the rule fires
-    causes: list = field(default_factory=list)  # (Compiled gate, text): likely causes
+    # name -> name used where the rule fires
+    replaces: dict[str, str] = field(default_factory=dict)
+    causes: list[Cause] = field(default_factory=list)  # likely causes
+
+    @property
+    def expression(self) -> Compiled:
+        """The indicator of a rule evaluated over cells (every rule without
+        ``evaluated_by``)."""
+        if self.indicator is None:
+            raise ValueError(f"rule {self.id} is evaluated by engine code: no indicator")
+        return self.indicator
 
 
 # ---- reading a rule file ---------------------------------------------------------------
@@ -276,27 +300,28 @@ _LOADER = getattr(yaml, "CSafeLoader", yaml.SafeLoader)
 class _Report:
     """The problems of one rule file, each at the line of its field."""
 
-    def __init__(self, path: Path, lines: dict):
-        self.path, self.lines, self.found = path, lines, []
+    def __init__(self, path: Path, lines: dict[KeyPath, int]):
+        self.path, self.lines = path, lines
+        self.found: list[tuple[int, str]] = []
 
-    def line(self, where: tuple) -> int:
+    def line(self, where: KeyPath) -> int:
         for cut in range(len(where), -1, -1):
             if where[:cut] in self.lines:
                 return self.lines[where[:cut]]
         return 1
 
-    def add(self, where: tuple, message: str, line: int | None = None):
+    def add(self, where: KeyPath, message: str, line: int | None = None) -> None:
         line = line or self.line(where)
         self.found.append(
             (line, f"rule file {self.path}:{line}: field {field_name(where)!r}: {message}")
         )
 
-    def raise_any(self):
+    def raise_any(self) -> None:
         if self.found:
             raise RuleFileError("\n".join(text for _, text in sorted(self.found)))
 
 
-def _read(path: Path) -> tuple:
+def _read(path: Path) -> tuple[str, Any, _Report]:
     """(text, data, report) of a rule file; the report knows the line of every key and
     list entry (key path -> 1-based line) and holds any key given twice."""
     text = path.read_text(encoding="utf-8")
@@ -312,7 +337,7 @@ def _read(path: Path) -> tuple:
     finally:
         loader.dispose()
     report = _Report(path, {})
-    todo = [((), node)] if node is not None else []
+    todo: list[tuple[KeyPath, yaml.Node]] = [((), node)] if node is not None else []
     while todo:
         where, node = todo.pop()
         report.lines.setdefault(where, node.start_mark.line + 1)
@@ -356,29 +381,33 @@ class _Builder:
     """Builds a Rule from a rule file whose fields passed the table, recording the
     problems of its expressions and text."""
 
-    def __init__(self, path: Path, report: _Report, data: dict):
+    def __init__(self, path: Path, report: _Report, data: dict[str, Any]):
         self.path, self.report, self.data = path, report, data
         self.carriers = ("n", "p") if data["per"] == "carrier" else ("",)
         if path.stem != data["id"]:
             report.add(("id",), f"must match the file name ({path.stem})")
 
-    def compile(self, text, where: tuple, expected=None) -> Compiled | None:
-        """One expression, parsed, dimension-checked and compiled per carrier; None after
-        recording a problem.  ``expected``: (dimension, what it is the dimension of)."""
+    def compile(
+        self, text: str | float, where: KeyPath, expected: tuple[dm.Dimension, str] | None = None
+    ) -> Compiled:
+        """One expression, parsed, dimension-checked and compiled per carrier; after
+        recording a problem, an unusable stand-in (the rule is never returned: load_rule
+        raises the report).  ``expected``: (dimension, what it is the dimension of)."""
         if isinstance(text, (int, float)):
             text = repr(float(text))
         try:
             tree = expression.parse(text, rule_names())
             found = dimension(tree)
         except RegimecheckError as exc:
-            return self.report.add(where, str(exc))
+            return self._broken(where, str(exc), text)
         except DimensionProblem as exc:
-            return self.report.add(where, f"the dimensions do not fit: {exc}")
+            return self._broken(where, f"the dimensions do not fit: {exc}", text)
         if expected is not None and found != expected[0]:
-            return self.report.add(
+            return self._broken(
                 where,
                 f"{text.strip()!r} is {dm.describe(found)}, but "
                 f"{expected[1]} is {dm.describe(expected[0])}",
+                text,
             )
         run = {
             x: expression.to_numpy(expression.rename(tree, carrier_names(x)) if x else tree)
@@ -386,8 +415,12 @@ class _Builder:
         }
         return Compiled(text, tree, run)
 
-    def message(self, allowed) -> str:
-        message = self.data["message"].strip()
+    def _broken(self, where: KeyPath, problem: str, text: str) -> Compiled:
+        self.report.add(where, problem)
+        return Compiled(text, num(float("nan")), {})
+
+    def message(self, allowed: Iterable[str]) -> str:
+        message: str = self.data["message"].strip()
         for match in PLACEHOLDER.finditer(message):
             if match.group(1) not in allowed:
                 self.report.add(
@@ -397,7 +430,7 @@ class _Builder:
                 )
         return message
 
-    def common(self) -> dict:
+    def common(self) -> dict[str, Any]:
         """The fields every rule has, as Rule arguments."""
         data, indicator = self.data, self.data["indicator"]
         return dict(
@@ -467,7 +500,7 @@ class _Builder:
             ],
         )
 
-    def replacements(self, entries: dict) -> dict:
+    def replacements(self, entries: dict[str, str]) -> dict[str, str]:
         for target, source in entries.items():
             if name_dimension(target) != name_dimension(source):
                 self.report.add(
@@ -477,7 +510,7 @@ class _Builder:
                 )
         return dict(entries)
 
-    def correction(self, entry: dict, where: tuple) -> Correction:
+    def correction(self, entry: dict[str, Any], where: KeyPath) -> Correction:
         unit = entry.get("unit", "1")
         expected = (UNIT_DIMENSIONS[unit], f"its unit {unit}")
         stated = entry.get("stated")
@@ -496,7 +529,7 @@ class _Builder:
             exact=self.compile(entry["exact"], (*where, "exact"), expected),
         )
 
-    def shown(self, entry: dict, where: tuple) -> tuple:
+    def shown(self, entry: dict[str, Any], where: KeyPath) -> Shown:
         if "text" in entry:
             return (entry["text"], "text")
         unit = entry.get("unit", "1")
@@ -529,10 +562,10 @@ class _Builder:
 
 
 @lru_cache(maxsize=4)
-def load_rules(folder: str | None = None) -> tuple:
+def load_rules(folder: str | None = None) -> tuple[Rule, ...]:
     """Every rule of the folder (default: the shipped rules), sorted by id."""
-    folder = Path(folder) if folder else rules_dir()
-    rules = [load_rule(p) for p in sorted(folder.glob("*.yaml"))]
+    where = Path(folder) if folder else rules_dir()
+    rules = [load_rule(p) for p in sorted(where.glob("*.yaml"))]
     seen = set()
     for rule in rules:
         if rule.id in seen:
@@ -541,18 +574,18 @@ def load_rules(folder: str | None = None) -> tuple:
     return tuple(rules)
 
 
-def configured(rules, config) -> tuple:
+def configured(rules: Iterable[Rule], config: Config) -> tuple[Rule, ...]:
     """The rules a configuration selects, with its severities, thresholds and tolerances
     (a tolerance sets the threshold 1 + tolerance of the rule whose file names it)."""
 
-    def named(rule_id, names):
+    def named(rule_id: str, names: Iterable[str]) -> bool:
         return any(rule_id == n or rule_id.startswith(n) for n in names)
 
     out = []
     for rule in rules:
         if (config.only and not named(rule.id, config.only)) or named(rule.id, config.skip):
             continue
-        changes = {}
+        changes: dict[str, Any] = {}
         if rule.id in config.severity:
             changes["severity"] = config.severity[rule.id]
         if rule.tolerance in config.tolerance:

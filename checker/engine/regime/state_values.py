@@ -9,13 +9,31 @@ is retried one calculation at a time so that only the bad ones are lost.
 
 from __future__ import annotations
 
+from collections.abc import Callable, Mapping, Sequence
+from typing import TYPE_CHECKING, Any, TypeAlias
+
 import numpy as np
+import numpy.typing as npt
 
 from ...errors import MissingParameterError, RegimecheckError
 from ...physics import carriers, equilibrium, hall
+from ...physics.arrays import ArrayIn, BoolArray, FloatArray
 from ...physics.constants import ELEMENTARY_CHARGE
+from ...physics.equilibrium import State
+from ...physics.materials import Material
 from ...quantity_registry.registry import QUANTITIES, Source, value_names
 from ...vocabulary_words import Carrier
+
+if TYPE_CHECKING:
+    from ...inputs.calculation_file import Calculation
+
+# quantity name -> one array over the points (cells): float64, or an object array of
+# words for the text-valued quantities (the regime, the models that bound a range)
+Values: TypeAlias = dict[str, npt.NDArray[Any]]
+# a name of REPLACEABLE -> the cells where a rule put the replacement in
+Replaced: TypeAlias = dict[str, BoolArray]
+# dopant species -> density per point (m^-3)
+Densities: TypeAlias = dict[str, FloatArray]
 
 # the stated numbers laid out as given (conductivity and resistivity then complete each other)
 _STATED = tuple(
@@ -26,11 +44,11 @@ _STATED = tuple(
 _CARRIER_SPECIFIC = ("stated_dens", "stated_mu", "stated_D", "stated_v")
 
 
-def _dominant(species: dict):
-    return max(species, key=species.get, default=None)
+def _dominant(species: Mapping[str, float]) -> str | None:
+    return max(species, key=lambda s: species[s], default=None)
 
 
-def _group_key(calc):
+def _group_key(calc: Calculation) -> tuple[object, ...]:
     return (
         id(calc.material),
         tuple(sorted(calc.donors)),
@@ -42,9 +60,9 @@ def _group_key(calc):
     )
 
 
-def _unknown(count) -> dict:
+def _unknown(count: int) -> Values:
     """Every quantity over ``count`` points, unknown (NaN, or empty text) until solved."""
-    values = {name: np.full(count, np.nan) for name in value_names()}
+    values: Values = {name: np.full(count, np.nan) for name in value_names()}
     for q in QUANTITIES:
         if q.source is Source.CONSTANT:
             values[q.name] = np.full(count, q.value)
@@ -53,7 +71,9 @@ def _unknown(count) -> dict:
     return values
 
 
-def solve_sweep(calc, T, donors, acceptors) -> tuple[dict, str | None]:
+def solve_sweep(
+    calc: Calculation, T: FloatArray, donors: Densities, acceptors: Densities
+) -> tuple[Values, str | None]:
     """Every quantity over the points of a sweep of ``calc`` (arrays of one length)."""
     count = len(T)
     values = _unknown(count)
@@ -66,14 +86,17 @@ def solve_sweep(calc, T, donors, acceptors) -> tuple[dict, str | None]:
     return values, skipped
 
 
-def solve_all(calculations) -> tuple[dict, dict, dict]:
+def solve_all(
+    calculations: Sequence[Calculation],
+) -> tuple[Values, dict[int, str], dict[int, str]]:
     """Return (values, errors, notes): values maps every quantity name to an array
     over the calculations (NaN where unknown); errors maps a calculation index to
     the message of a solve that could not be done; notes maps an index to what
     was skipped (e.g. transport checks for a material without mobility data)."""
     values = _unknown(len(calculations))
-    errors, notes = {}, {}
-    groups = {}
+    errors: dict[int, str] = {}
+    notes: dict[int, str] = {}
+    groups: dict[tuple[object, ...], list[int]] = {}
     for index, calc in enumerate(calculations):
         groups.setdefault(_group_key(calc), []).append(index)
     for members in groups.values():
@@ -95,7 +118,9 @@ def solve_all(calculations) -> tuple[dict, dict, dict]:
     return values, errors, notes
 
 
-def _solve_group(calculations, members, values):
+def _solve_group(
+    calculations: Sequence[Calculation], members: list[int], values: Values
+) -> str | None:
     calcs = [calculations[i] for i in members]
     T = np.array([c.temperature for c in calcs])
     donors = {s: np.array([c.donors[s] for c in calcs]) for s in calcs[0].donors}
@@ -106,14 +131,16 @@ def _solve_group(calculations, members, values):
     return skipped
 
 
-def _onset(material, net):
+def _onset(material: Material, net: FloatArray) -> FloatArray:
     """Intrinsic-onset temperature per point, solved once per distinct net doping (a
     sweep over temperature repeats each doping many times)."""
     distinct, back = np.unique(net, return_inverse=True)
     return carriers.intrinsic_onset_temperature(material, distinct)[back.reshape(net.shape)]
 
 
-def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
+def solve_points(
+    first: Calculation, T: FloatArray, donors: Densities, acceptors: Densities
+) -> tuple[dict[str, ArrayIn], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note)."""
     material, dim = first.material, int(first.structure.get("dim", 3))
@@ -158,7 +185,7 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
     # is the effective one, n_ie
     ni = state.ni * np.exp(-narrowing / (2 * state.kT)) if first.band_gap_narrowing else state.ni
     ni_lo, ni_hi = _ni_spread(material, T, ni)
-    put = {
+    put: dict[str, ArrayIn] = {
         "T": T,
         "kT": state.kT,
         "kT_q": flow["kT_over_q"],
@@ -211,7 +238,8 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
         ),
     ):
         mott = min((material.dopant(s).mott_density for s in species), default=np.inf)
-        main = material.dopant(_dominant(species)) if species else None
+        dominant = _dominant(species)
+        main = material.dopant(dominant) if dominant is not None else None
         put.update(
             {
                 f"eta_{x}": eta,
@@ -236,8 +264,8 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
         )
     put.update(_narrowed_densities(first, T, donors, acceptors, state, narrowing))
     # electrons count as the majority on a tie (intrinsic material: n = p to rounding)
-    put["maj_n"] = (state.n >= state.p * (1 - 1e-9)).astype(float)
-    put["maj_p"] = 1.0 - put["maj_n"]
+    majority_n = (state.n >= state.p * (1 - 1e-9)).astype(float)
+    put["maj_n"], put["maj_p"] = majority_n, 1.0 - majority_n
     for x in Carrier:
         low, high, (t_low, t_high) = material.hall_factors.get(x.singular, (np.nan, np.nan, (0, 0)))
         inside = (T >= t_low) & (T <= t_high)
@@ -250,7 +278,14 @@ def solve_points(first, T, donors, acceptors) -> tuple[dict, str | None]:
 _NARROWING_NEGLIGIBLE = 1.01
 
 
-def _narrowed_densities(first, T, donors, acceptors, state, narrowing) -> dict:
+def _narrowed_densities(
+    first: Calculation,
+    T: FloatArray,
+    donors: Densities,
+    acceptors: Densities,
+    state: State,
+    narrowing: FloatArray,
+) -> dict[str, FloatArray]:
     """dens_bgn_x: the carrier densities of a solve with the material's band-gap narrowing
     where the calculation solves without it and the narrowing matters (the corrected
     calculation takes the minority density from it where DOPE01 rejects the undoped
@@ -275,7 +310,7 @@ def _narrowed_densities(first, T, donors, acceptors, state, narrowing) -> dict:
     return out
 
 
-def _ni_spread(material, T, ni):
+def _ni_spread(material: Material, T: FloatArray, ni: FloatArray) -> tuple[FloatArray, FloatArray]:
     """The material's published 300 K spread of n_i carried to T by the model's own
     temperature dependence (the model value itself where none is tabulated)."""
     if material.ni_published is None:
@@ -287,13 +322,15 @@ def _ni_spread(material, T, ni):
     return np.minimum(ni, low * scale), np.maximum(ni, high * scale)
 
 
-def fill_inputs(calculations, values, count=None):
+def fill_inputs(
+    calculations: Sequence[Calculation], values: Values, count: int | None = None
+) -> None:
     """Structure and stated numbers, and what depends on them (vectorized after the fill),
     written into ``values``.  ``count``: the points of a sweep, which all share the single
     calculation given."""
     size = len(calculations) if count is None else count
 
-    def column(getter):
+    def column(getter: Callable[[Calculation], float]) -> FloatArray:
         if count is not None:
             return np.full(count, getter(calculations[0]), dtype=float)
         return (
@@ -302,22 +339,25 @@ def fill_inputs(calculations, values, count=None):
             else np.zeros(0)
         )
 
-    def stated(name):
+    def structure(name: str) -> FloatArray:
+        return column(lambda c: c.structure.get(name, np.nan))
+
+    def stated(name: str) -> FloatArray:
         return column(lambda c: c.stated.get(name, np.nan))
 
     for name in ("L", "thickness"):
-        values[name] = column(lambda c, name=name: c.structure.get(name, np.nan))
-    area = column(lambda c: c.structure.get("A", np.nan))
+        values[name] = structure(name)
+    area = structure("A")
     values["A"] = np.where(
         np.isfinite(area),
         area,
         column(lambda c: c.structure.get("thickness", np.nan) * c.structure.get("width", np.nan)),
     )
-    field = column(lambda c: c.structure.get("field", np.nan))
+    field = structure("field")
     values["field"] = np.where(
         np.isfinite(field),
         field,
-        column(lambda c: c.structure.get("voltage", np.nan)) / values["L"],
+        structure("voltage") / values["L"],
     )
     for name in _STATED:
         values[name] = stated(name)
@@ -328,7 +368,7 @@ def fill_inputs(calculations, values, count=None):
     kT, Eg = values["kT"], values["Eg"]
     values["stated_eta_n"] = np.where(np.isfinite(ec), ec, ev - Eg) / kT
     values["stated_eta_p"] = -np.where(np.isfinite(ev), ev, ec + Eg) / kT
-    specific = {}
+    specific: dict[str, BoolArray] = {}
     for x in ("n", "p"):
         values[f"stated_ef_{x}"] = values[f"stated_eta_{x}"] * kT
         specific[x] = np.zeros(size, dtype=bool)
@@ -349,7 +389,7 @@ def fill_inputs(calculations, values, count=None):
 REPLACEABLE = ("used_mu_n", "used_mu_p", "used_rho", "dens_n", "dens_p")
 
 
-def derive_corrected(values, replaced) -> None:
+def derive_corrected(values: Values, replaced: Replaced) -> None:
     """The quantities of the corrected calculation that follow from the mobility, the
     resistivity and the densities it uses, written into ``values``.
 
@@ -358,7 +398,7 @@ def derive_corrected(values, replaced) -> None:
     put the model's value in (evaluate.rule_cells applies it, then calls this again), so
     everything downstream -- mean free path, σ, ρ, R, D -- follows one chain."""
 
-    def kept(name):
+    def kept(name: str) -> BoolArray | bool:
         return ~replaced[name] if name in replaced else True
 
     for x in Carrier:
@@ -378,7 +418,7 @@ def derive_corrected(values, replaced) -> None:
     )
 
 
-def _hall(values, exponents):
+def _hall(values: Values, exponents: FloatArray) -> None:
     """Hall factors for each calculation's scattering exponent, and the Hall density."""
     values["hall_r"] = exponents
     dims = values["dim"]

@@ -12,14 +12,29 @@ numbers and names leave here; :mod:`checker.report.sweep_text` writes them as te
 from __future__ import annotations
 
 import copy
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, TypeAlias
 
 import numpy as np
 
-from ..findings import carrier_word
+from ...physics.arrays import ArrayIn, BoolArray, FloatArray
+from ..findings import Embodied, carrier_word
+from .axes import AxisKey, axis_key, axis_values
 from .evaluate import Cells, beyond, rule_cells, rule_indicator
 from .points import CalculationReport, check_points
-from .state_values import solve_sweep
+from .rulebook import Rule
+from .state_values import Densities, solve_sweep
+
+if TYPE_CHECKING:
+    from ...inputs.calculation_file import Axis, Calculation
+
+# (T, donors, acceptors, grid shape) of every grid point, flattened
+GridPoints: TypeAlias = tuple[FloatArray, Densities, Densities, tuple[int, ...]]
+# excess(flat indices, (axis key, values) or None) -> the indicator beyond its threshold
+Excess: TypeAlias = Callable[[ArrayIn, "tuple[AxisKey, ArrayIn] | None"], FloatArray]
+# (rule id, carrier) -> (failing mask over the grid, worst flat index)
+Masks: TypeAlias = dict[tuple[str, str], tuple[BoolArray, int]]
 
 CHUNK = 100_000  # points solved and evaluated at a time (bounds the memory)
 ROWS_SHOWN = 5  # rows of a 2D grid whose boundary is written out
@@ -38,35 +53,36 @@ class FailingRun:
 class BoundaryRow:
     """Rows of the grid that fail alike (one axis: the single row, ``rows`` None)."""
 
-    rows: tuple | None  # (first, last, middle) value of the row axis
+    rows: tuple[float, ...] | None  # (first, last, middle) value of the row axis
     single: bool  # one row
     every: bool  # the rows cover the whole row axis
-    runs: list  # FailingRun along the boundary axis
+    runs: list[FailingRun]  # along the boundary axis
 
 
 @dataclass
 class SweepSummary:
     points: int
     failing_fraction: float
-    axis: object = None  # inputs Axis the boundary runs along
-    row_axis: object = None  # inputs Axis of the rows (None: one axis)
-    rows: list = field(default_factory=list)  # BoundaryRow
+    axis: Axis | None = None  # the axis the boundary runs along
+    row_axis: Axis | None = None  # the axis of the rows (None: one axis)
+    rows: list[BoundaryRow] = field(default_factory=list)
     interpolated: bool = False  # edges between grid points were interpolated
-    worst_point: list = field(default_factory=list)  # (Axis, value) per swept axis
+    worst_point: list[tuple[Axis, float]] = field(default_factory=list)  # per swept axis
 
 
-def axis_label(axis) -> str:
-    if axis.key == "T":
-        return "T"
-    group, species = axis.key
+def axis_label(axis: Axis) -> str:
+    key = axis_key(axis)
+    if isinstance(key, str):  # the temperature axis, "T"
+        return key
+    group, species = key
     return f"{'N_D' if group == 'donors' else 'N_A'}({species})"
 
 
-def grid(calc):
+def grid(calc: Calculation) -> GridPoints:
     """(T, donors, acceptors, shape) of every grid point, flattened (axis 0 slowest)."""
-    arrays = np.meshgrid(*[axis.values for axis in calc.sweep], indexing="ij")
+    arrays = np.meshgrid(*[axis_values(axis) for axis in calc.sweep], indexing="ij")
     shape = arrays[0].shape
-    flat = {axis.key: a.ravel() for axis, a in zip(calc.sweep, arrays)}
+    flat = {axis_key(axis): a.ravel() for axis, a in zip(calc.sweep, arrays)}
     size = arrays[0].size
     T = flat.get("T", np.full(size, calc.temperature))
     donors = {s: flat.get(("donors", s), np.full(size, v)) for s, v in calc.donors.items()}
@@ -74,7 +90,9 @@ def grid(calc):
     return T, donors, acceptors, shape
 
 
-def point(calc, T, donors, acceptors, index):
+def point(
+    calc: Calculation, T: FloatArray, donors: Densities, acceptors: Densities, index: int
+) -> Calculation:
     """The single-point calculation at grid index ``index``."""
     single = copy.copy(calc)
     single.sweep = []
@@ -84,7 +102,11 @@ def point(calc, T, donors, acceptors, index):
     return single
 
 
-def check_sweep(calc, rules, progress=None):
+def check_sweep(
+    calc: Calculation,
+    rules: Sequence[Rule],
+    progress: Callable[[int, int], None] | None = None,
+) -> tuple[CalculationReport, list[str]]:
     """(CalculationReport, input errors) of a sweep: its first point read as a single
     point (formulas, solvability), every rule over the grid, then each failing rule's
     worst point checked in full and its boundary summarized."""
@@ -115,12 +137,20 @@ def check_sweep(calc, rules, progress=None):
     return report, errors
 
 
-def rule_grid(calc, rules, embodied, grid_points, progress=None):
+def rule_grid(
+    calc: Calculation,
+    rules: Sequence[Rule],
+    embodied: list[Embodied],
+    grid_points: GridPoints,
+    progress: Callable[[int, int], None] | None = None,
+) -> tuple[Masks, list[str]]:
     """({(rule id, carrier): (failing mask over the grid, worst flat index)}, notes):
     every rule over the grid in chunks of cells."""
     T, donors, acceptors, shape = grid_points
     size = T.size
-    masks, worst, notes = {}, {}, []
+    masks: dict[tuple[str, str], BoolArray] = {}
+    worst: dict[tuple[str, str], tuple[float, int]] = {}
+    notes: list[str] = []
     for start in range(0, size, CHUNK):
         stop = min(start + CHUNK, size)
         values, skipped = solve_sweep(
@@ -146,7 +176,7 @@ def rule_grid(calc, rules, embodied, grid_points, progress=None):
     return {key: (mask.reshape(shape), worst[key][1]) for key, mask in masks.items()}, notes
 
 
-def _runs(flags) -> list:
+def _runs(flags: ArrayIn) -> list[tuple[int, int]]:
     """(first, last) index of each run of True."""
     edges = np.diff(np.concatenate(([0], np.asarray(flags, dtype=np.int8), [0])))
     return [
@@ -159,7 +189,7 @@ SMOOTH = 0.05  # |excess| at an edge, relative to its span, to accept it as a cr
 STEPS = 4  # false-position steps between two grid points
 
 
-def _edges(flags) -> list:
+def _edges(flags: BoolArray) -> list[tuple[int, int]]:
     """(passing, failing) grid-index pairs at the ends of each failing run."""
     last = len(flags) - 1
     out = []
@@ -171,7 +201,9 @@ def _edges(flags) -> list:
     return out
 
 
-def _interpolate(axis, pairs, bases, excess) -> list:
+def _interpolate(
+    axis: Axis, pairs: list[tuple[int, int]], bases: Sequence[int], excess: Excess
+) -> list[float | None]:
     """Where the indicator's excess crosses zero between each (passing, failing) pair of
     grid indices along ``axis`` (``bases``: the failing points' flat indices), by false
     position (in log for a log axis), all pairs in one solve per step.  A pair that does
@@ -180,11 +212,12 @@ def _interpolate(axis, pairs, bases, excess) -> list:
     if not pairs:
         return []
     log = axis.spacing == "log"
-    passing = np.array([axis.values[p] for p, _ in pairs], dtype=float)
-    failing = np.array([axis.values[f] for _, f in pairs], dtype=float)
-    bases = np.asarray(bases)
-    fa = excess(bases, (axis.key, passing))
-    fb = excess(bases, (axis.key, failing))
+    values, key = axis_values(axis), axis_key(axis)
+    passing = np.array([values[p] for p, _ in pairs], dtype=float)
+    failing = np.array([values[f] for _, f in pairs], dtype=float)
+    at = np.asarray(bases)
+    fa = excess(at, (key, passing))
+    fb = excess(at, (key, failing))
     ok = np.isfinite(fa) & np.isfinite(fb) & (fa <= 0) & (fb > 0)
     span = np.where(ok, fb - fa, 1.0)
     xa, xb = (np.log(passing), np.log(failing)) if log else (passing, failing)
@@ -192,22 +225,25 @@ def _interpolate(axis, pairs, bases, excess) -> list:
     for _ in range(STEPS):
         denominator = np.where(ok, fb - fa, 1.0)
         x = np.where(ok, xa - fa * (xb - xa) / denominator, xb)
-        f = excess(bases, (axis.key, np.exp(x) if log else x))
+        f = excess(at, (key, np.exp(x) if log else x))
         ok &= np.isfinite(f)
         below = ok & (f <= 0)
         xa, fa = np.where(below, x, xa), np.where(below, f, fa)
         xb, fb = np.where(ok & ~below, x, xb), np.where(ok & ~below, f, fb)
     good = ok & (np.abs(f) <= SMOOTH * span)
-    values = np.exp(x) if log else x
-    return [float(values[k]) if good[k] else None for k in range(len(pairs))]
+    found = np.exp(x) if log else x
+    return [float(found[k]) if good[k] else None for k in range(len(pairs))]
 
 
-def _failing_runs(axis, flags, crossings=None) -> list:
+def _failing_runs(
+    axis: Axis, flags: BoolArray, crossings: dict[tuple[int, int], float | None] | None = None
+) -> list[FailingRun]:
     """The failing runs along one axis; ``crossings`` maps (passing, failing) index
     pairs to the interpolated edge value (None: the failing grid value)."""
-    values, last = axis.values, len(axis.values) - 1
+    values = axis_values(axis)
+    last = len(values) - 1
 
-    def edge(passing, failing):
+    def edge(passing: int, failing: int) -> float:
         value = (crossings or {}).get((passing, failing))
         return float(values[failing] if value is None else value)
 
@@ -217,22 +253,25 @@ def _failing_runs(axis, flags, crossings=None) -> list:
     ]
 
 
-def boundary(calc, mask, excess=None):
+def boundary(
+    calc: Calculation, mask: BoolArray, excess: Excess | None = None
+) -> tuple[Axis, Axis | None, list[BoundaryRow]]:
     """(boundary axis, row axis or None, [BoundaryRow]): where on the grid the rule
     fails.  ``excess(flat indices, override)`` (optional) gives the indicator's distance
     beyond its threshold, for interpolating the edges between grid points."""
     axes = calc.sweep
     shape = mask.shape
     if len(axes) == 1:
-        rows, cols, grid_mask, row_axis, count = None, 0, mask[None, :], None, 1
+        rows: int | None = None
+        cols, grid_mask, row_axis, count = 0, mask[None, :], None, 1
     else:
         # temperature (if swept) labels the rows; the boundary runs along the other axis
         rows, cols = (0, 1) if axes[0].key == "T" or axes[1].key != "T" else (1, 0)
         grid_mask = mask if rows == 0 else mask.T
-        row_axis, count = axes[rows], len(axes[rows].values)
+        row_axis, count = axes[rows], len(axis_values(axes[rows]))
     axis = axes[cols]
 
-    def flat(r, c):
+    def flat(r: int, c: int) -> int:
         if rows is None:
             return c
         position = [0, 0]
@@ -241,7 +280,7 @@ def boundary(calc, mask, excess=None):
 
     # rows whose failing cells are alike are described together, at their middle row
     alike = [_runs(grid_mask[r]) for r in range(count)]
-    groups = []  # consecutive rows that fail alike: (first, last)
+    groups: list[tuple[int, int]] = []  # consecutive rows that fail alike: (first, last)
     for r, runs in enumerate(alike):
         if groups and alike[groups[-1][0]] == runs:
             groups[-1] = (groups[-1][0], r)
@@ -251,7 +290,8 @@ def boundary(calc, mask, excess=None):
         picks = np.linspace(0, count - 1, ROWS_SHOWN).round().astype(int)
         groups = [(r, r) for r in sorted(set(picks))]
     middles = [(first + last) // 2 for first, last in groups]
-    crossings = {}  # row -> {(passing, failing): edge value or None}
+    # row -> {(passing, failing): edge value or None}
+    crossings: dict[int, dict[tuple[int, int], float | None]] = {}
     if excess is not None:
         edges = [(r, pair) for r in middles for pair in _edges(grid_mask[r])]
         found = _interpolate(
@@ -263,8 +303,8 @@ def boundary(calc, mask, excess=None):
     for (first, last), middle in zip(groups, middles):
         at = (
             None
-            if rows is None
-            else tuple(float(row_axis.values[r]) for r in (first, last, middle))
+            if row_axis is None
+            else tuple(float(axis_values(row_axis)[r]) for r in (first, last, middle))
         )
         described.append(
             BoundaryRow(
@@ -277,15 +317,15 @@ def boundary(calc, mask, excess=None):
     return axis, row_axis, described
 
 
-def excess_at(calc, rule, x, grid_points):
+def excess_at(calc: Calculation, rule: Rule, x: str, grid_points: GridPoints) -> Excess:
     """A function: flat grid indices -> how far the rule's indicator is beyond its
     threshold there."""
     T, donors, acceptors, _ = grid_points
 
-    def excess(indices, override=None):
-        """At grid points ``indices``; ``override`` = (axis key, value or one value per
-        point) moves them along that axis."""
-        indices = np.asarray(indices)
+    def excess(at: ArrayIn, override: tuple[AxisKey, ArrayIn] | None = None) -> FloatArray:
+        """At grid points ``at`` (flat indices); ``override`` = (axis key, value or one
+        value per point) moves them along that axis."""
+        indices = np.asarray(at)
         T_at = T[indices]
         donors_at = {s: a[indices] for s, a in donors.items()}
         acceptors_at = {s: a[indices] for s, a in acceptors.items()}
@@ -304,10 +344,16 @@ def excess_at(calc, rule, x, grid_points):
     return excess
 
 
-def summarize_sweep(calc, mask, index, grid_points, excess=None) -> SweepSummary:
+def summarize_sweep(
+    calc: Calculation,
+    mask: BoolArray,
+    index: int,
+    grid_points: GridPoints,
+    excess: Excess | None = None,
+) -> SweepSummary:
     position = np.unravel_index(index, grid_points[3])
     axis, row_axis, rows = boundary(calc, mask, excess)
-    worst = [(axis_, float(axis_.values[position[k]])) for k, axis_ in enumerate(calc.sweep)]
+    worst = [(axis_, float(axis_values(axis_)[position[k]])) for k, axis_ in enumerate(calc.sweep)]
     return SweepSummary(
         int(mask.size), float(mask.mean()), axis, row_axis, rows, excess is not None, worst
     )

@@ -8,27 +8,34 @@ everywhere (the points above a Mott density are ``above_mott_density``).
 
 from __future__ import annotations
 
+from collections.abc import Mapping
+from typing import Any
+
 import numpy as np
 
 from ...errors import MissingParameterError
 from ...physics import carriers
+from ...physics.arrays import ArrayIn
 from ...physics.carriers import regime_label
-from ...quantity_registry.summary_fields import JSON_FIELDS
+from ...physics.equilibrium import State
+from ...quantity_registry.summary_fields import JSON_FIELDS, FieldValue
 
 
-def trade_summary(values, index=()) -> dict:
+def trade_summary(
+    values: Mapping[str, ArrayIn], index: int | tuple[int, ...] = ()
+) -> dict[str, FieldValue]:
     """Trade-unit numbers of point ``index`` of ``values`` (registered quantity names, SI).
     Where the values carry the solve's ``residual`` (the ``state`` command), the band
     densities of states and the residual are added."""
 
-    def get(name):
+    def get(name: str) -> Any:
         return np.asarray(values[name])[index]
 
     full = "residual" in values
     return {f.key: f.value(get) for f in JSON_FIELDS if full or not f.state_only}
 
 
-def state_values(state) -> dict:
+def state_values(state: State) -> dict[str, ArrayIn]:
     """The quantities :func:`trade_summary` reads, from a physics ``State``: a bulk
     crystal with no structure and no stated numbers, so the mobility used is the
     model's and there is no field."""
@@ -38,14 +45,14 @@ def state_values(state) -> dict:
     }
 
 
-def _bulk_transport(state) -> dict:
+def _bulk_transport(state: State) -> dict[str, ArrayIn]:
     """Transport at the State from the material's models (3D); nothing where the material
     lacks mobility data (the summary then shows no transport rows)."""
     try:
         flow = carriers.carrier_transport(state, 3)
     except MissingParameterError:
         return {}
-    out = {
+    out: dict[str, ArrayIn] = {
         "dim": np.full_like(state.T, 3.0),
         "field": np.full_like(state.T, np.nan),
         "sigma": flow["sigma"],
@@ -59,7 +66,7 @@ def _bulk_transport(state) -> dict:
     return out
 
 
-def _state_solve(state) -> dict:
+def _state_solve(state: State) -> dict[str, ArrayIn]:
     # with band-gap narrowing on, the State's n_i is the effective one (n_ie)
     undoped = np.exp(-state.narrowing / (2 * state.kT))
     return {
