@@ -15,16 +15,17 @@ from pathlib import Path
 _CHECKOUT_RULES = Path(__file__).resolve().parent.parent / "rules"
 
 
-def rules_dir():
-    """The directory of the declarative rule files (``rules/`` in the repository)."""
+def rules_dir() -> Path:
+    """The directory of the declarative rule files (``rules/`` in the repository); the
+    package is installed unpacked (a plain folder), so it is a filesystem path."""
     try:
-        return resources.files("checker.rules")
+        return Path(str(resources.files("checker.rules")))
     except ModuleNotFoundError:
         if (_CHECKOUT_RULES / "__init__.py").is_file():
             return _CHECKOUT_RULES
         raise
 
 
-def materials_dir():
+def materials_dir() -> Path:
     """The directory of the built-in material data files."""
-    return resources.files("checker") / "data" / "materials"
+    return Path(str(resources.files("checker"))) / "data" / "materials"

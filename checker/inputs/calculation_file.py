@@ -28,10 +28,12 @@ import difflib
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import TypeAlias
 
 import yaml
 
 from ..errors import InputError
+from ..physics.arrays import FloatArray
 from ..physics.materials import Material
 from ..quantity_registry.registry import QUANTITIES, file_keys
 from ..vocabulary_words import ASSUMPTIONS
@@ -361,13 +363,17 @@ def _check_sweep_size(axes, where):
         )
 
 
+# "T" for the temperature, or (group, species) of a density, e.g. ("donors", "P")
+AxisKey: TypeAlias = str | tuple[str, str]
+
+
 @dataclass
 class Axis:
     """One swept input: temperature (key "T") or a density ((group, species))."""
 
-    key: object
+    key: AxisKey  # "T", or (group, species) of a density, e.g. ("donors", "P")
     dimension: str
-    values: object  # numpy array, SI
+    values: FloatArray  # SI, in the order of the grid
     spacing: str  # "linear" | "log"
     line: int
 

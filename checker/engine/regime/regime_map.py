@@ -17,11 +17,11 @@ from typing import TYPE_CHECKING, Protocol
 import numpy as np
 import numpy.typing as npt
 
+from ...inputs.calculation_file import AxisKey
 from ...physics import carriers, equilibrium
 from ...physics.arrays import ArrayIn, FloatArray
 from ...physics.materials import Material
 from ...vocabulary_words import SEVERITY_RANK
-from .axes import AxisKey, axis_key, axis_values
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
@@ -137,10 +137,7 @@ def map_groups(result: CheckedReports) -> dict[tuple[str, str], tuple[Material, 
         calc = report.calc
         if report.error:
             continue
-        spans = {
-            axis_key(axis): (float(axis_values(axis)[0]), float(axis_values(axis)[-1]))
-            for axis in calc.sweep
-        }
+        spans = {axis.key: (float(axis.values[0]), float(axis.values[-1])) for axis in calc.sweep}
         species, density = _map_dopant(calc, spans)
         if species is None:
             continue  # undoped everywhere: no place on a doping axis

@@ -18,9 +18,9 @@ from typing import TYPE_CHECKING, TypeAlias
 
 import numpy as np
 
+from ...inputs.calculation_file import AxisKey
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray
 from ..findings import Embodied, carrier_word
-from .axes import AxisKey, axis_key, axis_values
 from .evaluate import Cells, beyond, rule_cells, rule_indicator
 from .points import CalculationReport, check_points
 from .rulebook import Rule
@@ -71,7 +71,7 @@ class SweepSummary:
 
 
 def axis_label(axis: Axis) -> str:
-    key = axis_key(axis)
+    key = axis.key
     if isinstance(key, str):  # the temperature axis, "T"
         return key
     group, species = key
@@ -80,9 +80,9 @@ def axis_label(axis: Axis) -> str:
 
 def grid(calc: Calculation) -> GridPoints:
     """(T, donors, acceptors, shape) of every grid point, flattened (axis 0 slowest)."""
-    arrays = np.meshgrid(*[axis_values(axis) for axis in calc.sweep], indexing="ij")
+    arrays = np.meshgrid(*[axis.values for axis in calc.sweep], indexing="ij")
     shape = arrays[0].shape
-    flat = {axis_key(axis): a.ravel() for axis, a in zip(calc.sweep, arrays)}
+    flat = {axis.key: a.ravel() for axis, a in zip(calc.sweep, arrays)}
     size = arrays[0].size
     T = flat.get("T", np.full(size, calc.temperature))
     donors = {s: flat.get(("donors", s), np.full(size, v)) for s, v in calc.donors.items()}
@@ -212,7 +212,7 @@ def _interpolate(
     if not pairs:
         return []
     log = axis.spacing == "log"
-    values, key = axis_values(axis), axis_key(axis)
+    values, key = axis.values, axis.key
     passing = np.array([values[p] for p, _ in pairs], dtype=float)
     failing = np.array([values[f] for _, f in pairs], dtype=float)
     at = np.asarray(bases)
@@ -240,7 +240,7 @@ def _failing_runs(
 ) -> list[FailingRun]:
     """The failing runs along one axis; ``crossings`` maps (passing, failing) index
     pairs to the interpolated edge value (None: the failing grid value)."""
-    values = axis_values(axis)
+    values = axis.values
     last = len(values) - 1
 
     def edge(passing: int, failing: int) -> float:
@@ -268,7 +268,7 @@ def boundary(
         # temperature (if swept) labels the rows; the boundary runs along the other axis
         rows, cols = (0, 1) if axes[0].key == "T" or axes[1].key != "T" else (1, 0)
         grid_mask = mask if rows == 0 else mask.T
-        row_axis, count = axes[rows], len(axis_values(axes[rows]))
+        row_axis, count = axes[rows], len(axes[rows].values)
     axis = axes[cols]
 
     def flat(r: int, c: int) -> int:
@@ -304,7 +304,7 @@ def boundary(
         at = (
             None
             if row_axis is None
-            else tuple(float(axis_values(row_axis)[r]) for r in (first, last, middle))
+            else tuple(float(row_axis.values[r]) for r in (first, last, middle))
         )
         described.append(
             BoundaryRow(
@@ -353,7 +353,7 @@ def summarize_sweep(
 ) -> SweepSummary:
     position = np.unravel_index(index, grid_points[3])
     axis, row_axis, rows = boundary(calc, mask, excess)
-    worst = [(axis_, float(axis_values(axis_)[position[k]])) for k, axis_ in enumerate(calc.sweep)]
+    worst = [(axis_, float(axis_.values[position[k]])) for k, axis_ in enumerate(calc.sweep)]
     return SweepSummary(
         int(mask.size), float(mask.mean()), axis, row_axis, rows, excess is not None, worst
     )
