@@ -134,7 +134,10 @@ def _parser() -> argparse.ArgumentParser:
         help="temperature range in K (default 20:700)",
     )
     curve.add_argument("--output", required=True, metavar="FILE", help="a .png or .svg file")
-    sub.add_parser("materials", help="list the built-in materials and their dopants")
+    listing = sub.add_parser(
+        "materials", help="list the built-in materials: bands, models, dopants, sources"
+    )
+    listing.add_argument("name", nargs="*", help="only these materials (name or alias)")
     sub.add_parser("rules", help="list the checks")
     symbols = sub.add_parser("symbols", help="the trade symbols a stated formula may use")
     symbols.add_argument(
@@ -577,16 +580,14 @@ def _cmd_curve(args) -> int:
     return EXIT_OK
 
 
-def _cmd_materials(_args) -> int:
+def _cmd_materials(args) -> int:
     from .inputs.material_catalog import builtin_material, builtin_names
+    from .report.material_listing import material_block
 
-    for name in builtin_names():
-        material = builtin_material(name)
-        dopants = ", ".join(
-            f"{k} ({d.kind[0]}, {d.energy / 1.602176634e-22:.0f} meV)"
-            for k, d in material.dopants.items()
-        )
-        print(f"{name:8s} {material.long_name}: {dopants}")
+    names = args.name or builtin_names()
+    for number, name in enumerate(names):
+        material = builtin_material(name)  # an unknown name: a clear message, exit 2
+        print(("\n" if number else "") + "\n".join(material_block(material, name)))
     return EXIT_OK
 
 

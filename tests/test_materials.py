@@ -21,17 +21,12 @@ EV = sc.e
 CM2 = 1e-4
 
 
-def test_all_eight_materials_are_built_in():
-    assert set(builtin_materials()) == {
-        "Si",
-        "Ge",
-        "GaAs",
-        "InP",
-        "GaN",
-        "4H-SiC",
-        "InAs",
-        "InGaAs",
-    }
+BULK = ["Si", "Ge", "GaAs", "InP", "GaN", "4H-SiC", "InAs", "InGaAs"]
+CHANNELS = ["GaAs-AlGaAs", "GaN-AlGaN", "InGaAs-QW", "Si100-inversion", "graphene"]
+
+
+def test_the_bulk_and_2d_materials_are_built_in():
+    assert set(builtin_materials()) == set(BULK + CHANNELS)
 
 
 @pytest.mark.parametrize("name", ["Si", "Ge", "GaAs", "InP", "GaN", "4H-SiC", "InAs", "InGaAs"])

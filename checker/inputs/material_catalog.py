@@ -20,9 +20,17 @@ import numpy as np
 
 from ..errors import InputError, UnknownMaterialError
 from ..physics import materials as m
+from ..physics.band_shapes import BandShape
 from ..physics.constants import EV, ROOM_TEMPERATURE
 from ..resources import materials_dir
-from .quantities import example, parse_quantity, quantity_pattern
+from .quantities import (
+    NUMBER,
+    WRITTEN_NUMBER,
+    example,
+    parse_quantity,
+    quantity_pattern,
+    read_number,
+)
 from .yaml_source import Problems, load_package_yaml
 
 # What each optional block is needed for (used in "missing parameter" messages).
@@ -132,6 +140,68 @@ class Quantity:
             if bound is not None:
                 number[key] = float(bound)
         return {"anyOf": [number, {"type": "string", "pattern": quantity_pattern(False)}]}
+
+
+# 1/eV has no dimension in the unit table (inputs/quantities.py); the Kane coefficient
+# is its only use, so its few trade spellings are read here, in a closed table.
+_PER_ENERGY_UNITS = {"1/eV": 1.0, "/eV": 1.0, "eV^-1": 1.0, "eV-1": 1.0, "1/meV": 1e3,
+                     "/meV": 1e3, "meV^-1": 1e3, "meV-1": 1e3}  # fmt: skip
+_PER_ENERGY = re.compile(
+    rf"^\s*({NUMBER})\s*({'|'.join(re.escape(u) for u in _PER_ENERGY_UNITS)})\s*$"
+)
+
+
+@dataclass(frozen=True)
+class PerEnergy:
+    """A number per energy with its unit (``0.61 1/eV``), read into J^-1, 0 <= x <= most."""
+
+    most: float  # in 1/eV
+    required: bool = True
+
+    def read(self, value, place, path):
+        text = str(value).replace("\u207b\u00b9", "^-1").replace("\u2212", "-")
+        found = None if isinstance(value, (bool, dict, list)) else _PER_ENERGY.match(text)
+        per_ev = read_number(found.group(1)) * _PER_ENERGY_UNITS[found.group(2)] if found else None
+        if per_ev is None or not 0.0 <= per_ev <= self.most:
+            raise InputError(
+                f"{place(*path)}: write a value from 0 to {self.most:g} per eV with its "
+                f"unit, e.g. '0.61 1/eV', got {_shown(value)}"
+            )
+        return per_ev / EV
+
+    def schema(self) -> dict:
+        units = "|".join(re.escape(u) for u in _PER_ENERGY_UNITS)
+        return {
+            "type": "string",
+            "pattern": rf"^\s*{WRITTEN_NUMBER}\s*({units}|eV⁻¹|meV⁻¹)\s*$",
+            "description": "a value per energy with its unit, e.g. 0.61 1/eV",
+        }
+
+
+@dataclass(frozen=True)
+class WholeNumber:
+    """A whole number from ``least`` to ``most`` (a count, a dimensionality)."""
+
+    least: int
+    most: int
+    default: int | None = None
+    required: bool = False
+
+    def read(self, value, place, path):
+        # calculation files keep scalars as text, the package files as YAML numbers
+        if isinstance(value, str) and re.fullmatch(r"\s*[0-9]{1,3}\s*", value):
+            value = int(value)
+        if isinstance(value, bool) or not isinstance(value, int):
+            raise InputError(
+                f"{place(*path)}: write a whole number from {self.least} to {self.most}, "
+                f"got {_shown(value)}"
+            )
+        if not self.least <= value <= self.most:
+            raise InputError(f"{place(*path)}: {value} must be from {self.least} to {self.most}")
+        return value
+
+    def schema(self) -> dict:
+        return {"type": "integer", "minimum": self.least, "maximum": self.most}
 
 
 @dataclass(frozen=True)
@@ -318,35 +388,51 @@ class Named:
 
 @dataclass(frozen=True)
 class Variants:
-    """A parameter block whose keys depend on its ``model`` (a key of ``variants``)."""
+    """A parameter block whose keys depend on its ``key`` (``model``; a key of ``variants``)."""
 
     variants: dict
     common: dict
     implied_model: str | None = None  # the model when the block does not say
     required: bool = True
+    key: str = "model"
 
     def _block(self, model) -> Block:
         choice = Choice(tuple(self.variants), required=self.implied_model is None)
-        return Block({"model": choice, **self.variants[model], **self.common})
+        return Block({self.key: choice, **self.variants[model], **self.common})
 
     def read(self, value, place, path):
         first = next(iter(self.variants))
         _must_be_mapping(
-            value, place, path, f"{{model: {first}, ...}} (models: {', '.join(self.variants)})"
+            value,
+            place,
+            path,
+            f"{{{self.key}: {first}, ...}} ({self.key}s: {', '.join(self.variants)})",
         )
-        model = value.get("model", self.implied_model)
+        model = value.get(self.key, self.implied_model)
         if not isinstance(model, str) or model not in self.variants:
             raise InputError(
-                f"{place(*path, 'model')}: model must be one of "
+                f"{place(*path, self.key)}: {self.key} must be one of "
                 f"{', '.join(self.variants)}, got {_shown(model)}"
             )
-        return {**self._block(model).read(value, place, path), "model": model}
+        self._refuse_other_models_keys(value, model, place, path)
+        return {**self._block(model).read(value, place, path), self.key: model}
+
+    def _refuse_other_models_keys(self, value, model, place, path) -> None:
+        """A key of another model (fermi_velocity in a kane band) says which model takes it."""
+        mine = self._block(model).fields
+        for name in value:
+            owners = [other for other, keys in self.variants.items() if name in keys]
+            if name not in mine and owners:
+                raise InputError(
+                    f"{place(*path, name)}: {name!r} belongs to {self.key} "
+                    f"{' or '.join(owners)}, not {model}; remove it or change {self.key}"
+                )
 
     def schema(self) -> dict:
         options = []
         for model in self.variants:
             block = self._block(model).schema()
-            block["properties"]["model"] = {"const": model}
+            block["properties"][self.key] = {"const": model}
             options.append(block)
         return options[0] if len(options) == 1 else {"oneOf": options}
 
@@ -547,6 +633,27 @@ DOPANT = Block(
         **PROVENANCE,
     }
 )
+# the band of one carrier: its shape, density-of-states mass per valley and valleys
+BAND_MODELS = {
+    "parabolic": {"dos_mass": _MASS},
+    # E (1 + alpha E) = hbar^2 k^2 / 2m* (Kane 1957); alpha in 1/eV
+    "kane": {"dos_mass": _MASS, "nonparabolicity": PerEnergy(most=100.0)},
+    # E = +-hbar v_F |k|, zero gap, 2D (graphene)
+    "linear": {"fermi_velocity": Quantity("velocity", above="0 cm/s", most="1e9 cm/s")},
+}
+BAND = Variants(
+    BAND_MODELS,
+    {
+        "valley_degeneracy": Quantity(
+            "dimensionless", above="0", most="100", required=False, why="equivalent valleys"
+        ),
+        "source": Text(),
+        "note": Text(),
+    },
+    implied_model="parabolic",
+    required=False,
+    key="band_model",
+)
 PERMITTIVITY = Quantity(
     "dimensionless", least="1", most="1000", why="the static relative permittivity; vacuum has 1"
 )
@@ -583,6 +690,22 @@ MATERIAL = Block(
             {"electron": CARRIER, "hole": CARRIER, "source": Text(), "note": Text()}, required=False
         ),
         "band_gap_narrowing": Variants(NARROWING_MODELS, PROVENANCE, required=False),
+        # 3: a bulk crystal; 2: a sheet or 2D channel (graphene, a heterojunction gas)
+        "dimensionality": WholeNumber(2, 3, default=3),
+        "bands": Block(
+            {"electron": BAND, "hole": BAND, "source": Text(), "note": Text()}, required=False
+        ),
+        # what is typically measured, for plausibility (a 2D channel has no doping model)
+        "typical_mobility": Block(
+            {
+                "electron": Range("mobility"),
+                "hole": Range("mobility"),
+                "at": Quantity("temperature", above="0 K", most="3000 K", default=300.0),
+                "source": Text(),
+                "note": Text(),
+            },
+            required=False,
+        ),
     }
 )
 # ---------------------------------------------------------------------------------------
@@ -828,6 +951,79 @@ def _narrowing(block):
     )
 
 
+def _band_shapes(values: dict, place: _Place) -> dict:
+    """BandShapes per carrier, checked against the rest of the material: a linear band
+    is 2D, gapless and shared by both carriers; a 2D material states its masses (the
+    bulk N_c and N_v do not apply to it)."""
+    block = values.get("bands") or {}
+    shapes = {}
+    for carrier in ("electron", "hole"):
+        if (spec := block.get(carrier)) is not None:
+            shapes[carrier] = BandShape(
+                model=spec["band_model"],
+                dos_mass=spec.get("dos_mass"),
+                valley_degeneracy=spec.get("valley_degeneracy", 1.0),
+                nonparabolicity=spec.get("nonparabolicity", 0.0),
+                fermi_velocity=spec.get("fermi_velocity"),
+                source=spec.get("source") or block.get("source"),
+            )
+    linear = [c for c, shape in shapes.items() if shape.model == "linear"]
+    flat = values.get("dimensionality") == 2
+
+    def refuse(keys: tuple, message: str) -> None:
+        place.problems.add(InputError(f"{place(*keys)}: {message}"))
+
+    if linear and len(linear) != len(shapes):
+        refuse(
+            ("bands",),
+            "a linear (zero-gap) band is shared by electrons and holes: give band_model: "
+            "linear to both, or describe only the electron band",
+        )
+    if linear and not flat:
+        refuse(
+            ("bands", linear[0], "band_model"),
+            "a linear zero-gap band is two-dimensional (graphene); add dimensionality: 2",
+        )
+    if linear and "band_gap" in values:
+        refuse(
+            ("band_gap",),
+            "a linear band has no gap (its cones touch at the Dirac point); remove "
+            "band_gap, or describe the bands as parabolic or kane",
+        )
+    if flat and "density_of_states" in values:
+        refuse(
+            ("density_of_states",),
+            "N_c and N_v are bulk (per volume) densities; a 2D material gives "
+            "bands.electron.dos_mass (in-plane) and valley_degeneracy instead",
+        )
+    if flat and not linear and "electron" not in shapes:
+        refuse(
+            ("bands",) if "bands" in values else (),
+            "a 2D material describes its bands, e.g. "
+            "bands: {electron: {dos_mass: 0.067, valley_degeneracy: 1}}",
+        )
+    for carrier, shape in shapes.items():
+        if flat and shape.model != "linear" and shape.dos_mass is None:
+            refuse(
+                ("bands", carrier),
+                "a 2D band needs its in-plane dos_mass (the density-of-states mass of "
+                "one valley over m0), e.g. dos_mass: 0.067",
+            )
+    return shapes
+
+
+def _typical_mobility(block) -> dict:
+    if block is None:
+        return {}
+    return {
+        carrier: m.MobilityRange(
+            block[carrier][0], block[carrier][1], block["at"], block.get("source")
+        )
+        for carrier in ("electron", "hole")
+        if carrier in block
+    }
+
+
 def material_from_mapping(data, where: str = "material", locate=None) -> m.Material:
     """Build a Material from a mapping in the data-file form (units required).
 
@@ -865,6 +1061,7 @@ def material_from_mapping(data, where: str = "material", locate=None) -> m.Mater
         )
         for carrier in ("electron", "hole")
     }
+    shapes = _band_shapes(values, place)
     place.problems.raise_any()
     name = str(values.get("name", "custom"))
     return m.Material(
@@ -879,6 +1076,9 @@ def material_from_mapping(data, where: str = "material", locate=None) -> m.Mater
         narrowing=_narrowing(values.get("band_gap_narrowing")),
         ni_published=ni_published,
         hall_factors=_hall_factors(values.get("hall_factor")),
+        dimensionality=values["dimensionality"],
+        band_shapes=shapes,
+        typical_mobility=_typical_mobility(values.get("typical_mobility")),
         sources={
             k: (v.get("source") if isinstance(v, dict) else None)
             for k, v in data.items()
@@ -962,7 +1162,7 @@ def _builtin_file(name: str):
         close = difflib.get_close_matches(key, known, n=3, cutoff=0.5)
         hint = f"; did you mean {', '.join(close)}?" if close else ""
         raise UnknownMaterialError(
-            f"unknown material {name!r}{hint} Built in: {', '.join(builtin_names())}; "
+            f"unknown material {name!r}{hint or '.'} Built in: {', '.join(builtin_names())}; "
             "or define it as a mapping with the same parameters"
         )
     return found

@@ -16,8 +16,10 @@ from typing import Any, Protocol, TypeAlias
 
 import numpy as np
 
-from ..errors import MissingParameterError, UnknownDopantError
+from ..errors import InputError, MissingParameterError, UnknownDopantError
 from .arrays import ArrayIn, FloatArray, FloatOrArray
+from .band_shapes import BandShape, bands_for, mass_from_effective_density
+from .bands import Band
 from .constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE, PLANCK, VACUUM_PERMITTIVITY
 
 T_REF = 300.0
@@ -620,8 +622,25 @@ class CarrierTransport:
 
 
 @dataclass(frozen=True)
+class MobilityRange:
+    """The range of mobilities typically measured in a material (a channel's 2D gas),
+    low and high in m^2/(V s) at ``T`` (K), with its source.  A plausibility range for
+    stated values, not a model."""
+
+    low: float
+    high: float
+    T: float
+    source: str | None = None
+
+
+@dataclass(frozen=True)
 class Material:
-    """All parameters of one semiconductor (see the module docstring for units)."""
+    """All parameters of one semiconductor (see the module docstring for units).
+
+    ``dimensionality`` is 3 for a bulk crystal and 2 for a sheet or a 2D channel
+    (graphene, the electron gas at a heterojunction or an inversion layer);
+    ``band_shapes`` the band description per carrier ("electron", "hole"; parabolic
+    with the mass of N_c / N_v where absent)."""
 
     name: str
     long_name: str
@@ -638,6 +657,70 @@ class Material:
     ni_published: tuple[float, float] | None = None
     # measured Hall factor ranges: band -> (low, high, (T_low, T_high))
     hall_factors: dict[str, tuple[float, float, tuple[float, float]]] = field(default_factory=dict)
+    dimensionality: int = 3
+    band_shapes: dict[str, BandShape] = field(default_factory=dict)
+    typical_mobility: dict[str, MobilityRange] = field(default_factory=dict)
+
+    def band_shape(self, carrier: str) -> BandShape:
+        """The carrier's band description; a bulk band without one is parabolic with
+        one valley (its mass then follows from N_c or N_v).  A linear (zero-gap) band
+        serves both carriers: the holes are the lower cone of the same band."""
+        if carrier not in ("electron", "hole"):
+            raise InputError(f"a band belongs to 'electron' or 'hole', got {carrier!r}")
+        shape = self.band_shapes.get(carrier)
+        if shape is None:
+            other = self.band_shapes.get("hole" if carrier == "electron" else "electron")
+            shape = other if other is not None and other.model == "linear" else BandShape()
+        return shape
+
+    def dos_mass(self, carrier: str) -> float | None:
+        """Density-of-states mass of one valley over m_0: the stated one, else the mass
+        that reproduces N_c (electrons) or N_v (holes) at 300 K (exactly at every T where
+        N is a T^(3/2) power law); None for a linear band."""
+        shape = self.band_shape(carrier)
+        if shape.model == "linear":
+            return None
+        if shape.dos_mass is not None:
+            return shape.dos_mass
+        effective = self.Nc if carrier == "electron" else self.Nv
+        if self.dimensionality != 3:
+            raise MissingParameterError(
+                f"material {self.name!r} describes no {carrier} band (bands.{carrier}); "
+                "it is needed for this carrier's density of states. Add it to the "
+                "material definition."
+            )
+        if effective is None:
+            raise MissingParameterError(
+                f"material {self.name!r} has neither bands.{carrier}.dos_mass nor "
+                "density_of_states; one of them is needed for the band's density of states. "
+                "Add it to the material definition."
+            )
+        return mass_from_effective_density(float(effective(T_REF)), T_REF, shape.valley_degeneracy)
+
+    def bands(
+        self, carrier: str, dimension: int | None = None, subband_energies: ArrayIn | None = None
+    ) -> tuple[Band, ...]:
+        """The physics bands of a carrier (``physics.bands``) for a dimensionality.
+
+        ``dimension``: 3 (bulk), 2 (a sheet or well: one subband at 0, or a ladder at
+        ``subband_energies`` in J) or 1; default the material's own dimensionality.  A
+        bulk material gives 2D and 1D bands of its own (isotropic) mass, the usual
+        picture of a quantum well or wire of a direct-gap crystal; a 2D material has no
+        bulk bands.
+
+        References
+        ----------
+        T. Ando, A. B. Fowler and F. Stern, Rev. Mod. Phys. 54, 437 (1982), sec. III.
+        """
+        dimension = self.dimensionality if dimension is None else dimension
+        if dimension > self.dimensionality:
+            raise InputError(
+                f"material {self.name!r} is a {self.dimensionality}D material; it has no "
+                f"{dimension}D bands (choose a bulk material for a 3D calculation)"
+            )
+        return bands_for(
+            self.band_shape(carrier), self.dos_mass(carrier), dimension, subband_energies
+        )
 
     def need(self, attribute: str, purpose: str) -> Any:
         """Return a parameter or raise a clear error naming what needs it."""
@@ -673,6 +756,7 @@ __all__ = [
     "Masetti",
     "MassPolynomialDOS",
     "Material",
+    "MobilityRange",
     "PowerLawDOS",
     "PowerLawExponent",
     "PowerLawVelocity",
