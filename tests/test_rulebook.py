@@ -233,7 +233,13 @@ DIMENSIONS = [
         "indicator.expression",
         'expression: "ni"',
     ),
-    ("ION01.yaml", '  unit: "%"\n', '  unit: "cm^-3"\n', "indicator.expression", "expression: f_x"),
+    (
+        "ION01.yaml",
+        '  unit: "%"\n',
+        '  unit: "cm^-3"\n',
+        "indicator.expression",
+        'expression: "(Nion_x - Nion_o)/(N_x - Ncomp_x)"',
+    ),
     (
         "STAT01.yaml",
         'shortcut: "Nband_x*exp(eta_x)"\n',
