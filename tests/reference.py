@@ -11,6 +11,39 @@ def mp_fermi_half(eta):
     return -mp.re(mp.polylog(mp.mpf(1.5), -mp.exp(eta)))
 
 
+def mp_kane_half(eta, beta):
+    """F_K(eta, beta) = (2/sqrt(pi)) ∫_0^∞ sqrt(x (1 + beta x)) (1 + 2 beta x) f(x - eta) dx,
+    f(u) = 1/(1 + e^u): n/N_c of a Kane band E(1 + alpha E) = hbar^2 k^2/2m*, beta = alpha kT,
+    by mpmath quadrature of its density of states (E. O. Kane, J. Phys. Chem. Solids 1, 249
+    (1957))."""
+    beta, eta = mp.mpf(beta), mp.mpf(eta)
+    # f = e^eta/(e^eta + e^x) below eta = 0: mpmath's error control is absolute, so the
+    # integrand is kept of order one however small the density
+    scale = min(eta, 0)
+
+    def integrand(x):
+        return (
+            mp.sqrt(x * (1 + beta * x))
+            * (1 + 2 * beta * x)
+            / (mp.exp(scale) + mp.exp(x - eta + scale))
+        )
+
+    top = max(eta, 1)
+    return 2 / mp.sqrt(mp.pi) * mp.exp(scale) * mp.quad(integrand, [0, top, top + 40, mp.inf])
+
+
+def kane_alpha(material):
+    """alpha (J^-1) of the material's bulk Kane conduction band, 0 where it is parabolic."""
+    shape = material.band_shape("electron")
+    return float(shape.nonparabolicity) if shape.model == "kane" else 0.0
+
+
+def mp_electron_half(material, eta, kT):
+    """n/N_c: F_1/2(eta) for a parabolic conduction band, F_K(eta, alpha kT) for a Kane one."""
+    alpha = kane_alpha(material)
+    return mp_kane_half(eta, alpha * kT) if alpha > 0 else mp_fermi_half(eta)
+
+
 def _lowered_energy(dopant, level_energy, N):
     """E(N) written out from the published forms (parameters are the dopant's data):
     Altermatt et al., J. Appl. Phys. 100, 113715 (2006): E_0 / (1 + (N/N_ref)^c);
@@ -59,7 +92,7 @@ def reference_solve(material, T, donors, acceptors):
 
         def charge(eta):
             eta_p = -eta - Eg / kT
-            total = Nc * mp_fermi_half(eta) - Nv * mp_fermi_half(eta_p)
+            total = Nc * mp_electron_half(material, eta, kT) - Nv * mp_fermi_half(eta_p)
             for name, N in acceptors.items():
                 total += N * ionized_fraction(material.dopant(name), eta_p, kT, na_tot)
             for name, N in donors.items():

@@ -25,7 +25,7 @@ from pathlib import Path
 import mpmath as mp
 import numpy as np
 from conftest import fd_reference
-from reference import mp_fermi_half, reference_solve
+from reference import K_B, kane_alpha, mp_electron_half, reference_solve
 
 PATH = Path(__file__).resolve().parent / "data" / "reference_values.json"
 REGENERATE = (
@@ -111,6 +111,8 @@ def material_inputs(material, T, species) -> dict:
         "Nc": float(material.Nc(T)),
         "Nv": float(material.Nv(T)),
     }
+    if kane_alpha(material) > 0:  # a Kane conduction band enters the electron density
+        out["alpha"] = kane_alpha(material)
     for name in sorted(species):
         dopant = material.dopant(name)
         out[name] = (
@@ -127,7 +129,8 @@ def equilibrium_value(material, T, donors, acceptors) -> dict:
     a = {k: v * PER_CM3 for k, v in acceptors.items()}
     eta = reference_solve(material, float(T), d, a)
     with mp.workdps(30):
-        n = float(material.Nc(float(T))) * float(mp_fermi_half(mp.mpf(eta)))
+        kT = mp.mpf(K_B) * float(T)
+        n = float(material.Nc(float(T))) * float(mp_electron_half(material, mp.mpf(eta), kT))
     return {"eta_n": eta, "n": n}
 
 

@@ -286,6 +286,49 @@ def mode_density(band: Band, energy: ArrayIn) -> FloatArray:
     return _mode_factor(band) * _k_power(k2, band.dimension - 1)
 
 
+def _kane_mode_area_factor(y: FloatArray) -> FloatArray:
+    """g(y) = (3/2) ∫_0^1 sqrt(u (1 + y u)) du: 1 at y = 0 (series below y = 0.01)."""
+    series = 1.0 + y * (3.0 / 10.0 + y * (-3.0 / 56.0 + y * (1.0 / 48.0 - y * 15.0 / 1408.0)))
+    big = np.maximum(y, 1e-2)
+    root = np.sqrt(big + big * big)
+    closed = 1.5 * ((2.0 * big + 1.0) * root - np.arcsinh(np.sqrt(big))) / (4.0 * big**1.5)
+    return np.where(y < 1e-2, series, closed)
+
+
+def modes_below(band: Band, energy: ArrayIn) -> FloatArray:
+    """M_c(E) = ∫_0^E M(E') dE': the modes per spin below E, times energy (J m^-(d-1)).
+
+    The carriers' flux in +x is (2 g_s/h) ∫ M f dE = (2 g_s/h) ∫ M_c (-df/dE) dE
+    (M = (h/4) v_x^+ D per spin), so <v_x^+> = that flux over n.
+    Power-law bands (M = A E^a): A E^(a+1)/(a+1).  Kane bands (c = 2 m* m_0/hbar^2):
+    3D g_v c (E^2/2 + alpha E^3/3)/(4 pi); 2D (g_v/pi) sqrt(c) (2/3) E^(3/2) g(alpha E)
+    with g(y) = 3 [(2y + 1) sqrt(y + y^2) - asinh(sqrt y)] / (8 y^(3/2)) (a binomial
+    series below y = 0.01, truncation < 1e-12); 1D g_v E.  E in J from the edge; 0 for
+    E <= 0.
+
+    References
+    ----------
+    Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2 (M = (h/4) <v_x^+> D);
+    E. O. Kane, J. Phys. Chem. Solids 1, 249 (1957).
+    """
+    e = np.maximum(np.asarray(energy, dtype=float), 0.0)
+    d, factor = band.dimension, _mode_factor(band)
+    if not isinstance(band, KaneBand):
+        a = band.power * (d - 1) / 2.0
+        scale = factor * band.k_squared_coefficient ** ((d - 1) / 2.0) / (a + 1.0)
+        power_law: FloatArray = scale * e ** (a + 1.0)
+        return power_law
+    c = 2.0 * band.mass * ELECTRON_MASS / HBAR**2
+    if d == 3:
+        cubic: FloatArray = factor * c * e * e * (0.5 + band.alpha * e / 3.0)
+        return cubic
+    if d == 2:
+        area: FloatArray = _kane_mode_area_factor(band.alpha * e) * e**1.5
+        return factor * math.sqrt(c) * (2.0 / 3.0) * area
+    linear: FloatArray = factor * e
+    return linear
+
+
 def mean_free_path_exponent(band: Band, time_exponent: float) -> float:
     """r of lambda(E) ∝ E^r for a relaxation time tau ∝ E^s (power-law bands).
 

@@ -43,7 +43,8 @@ def carrier_transport(
     ``mu0_*`` is the same model at N = 0 (the lattice-limited mobility);
     ``vsat_*`` and ``beta_*`` the saturation velocity and Caughey–Thomas
     exponent (NaN where the material has none).  D uses the generalized
-    Einstein relation, lambda = 2D/<v_x^+> with Fermi–Dirac statistics.
+    Einstein relation, lambda = 2D/<v_x^+> with Fermi–Dirac statistics; a bulk
+    Kane conduction band (``state.electron_band``) sets both for the electrons.
     Returns a dict of SI arrays.
 
     References
@@ -70,7 +71,9 @@ def carrier_transport(
         conduction[x] = np.where(
             majority, _every_dopant_factor(state, model, mobility_model, main, x), 1.0
         )
-        d = transport.diffusion_coefficient(mu, state.T, eta, dimension)
+        # a Kane conduction band (bulk) sets the electrons' Einstein ratio and velocity
+        kane = state.electron_band if x == "n" and dimension == 3 else None
+        d = transport.diffusion_coefficient(mu, state.T, eta, dimension, kane)
         result[f"mu_{x}"] = mu
         result[f"cond_{x}"] = conduction[x]
         # the lattice limit: the highest of the material's published fits at N = 0
@@ -85,7 +88,7 @@ def carrier_transport(
         result[f"beta_{x}"] = model.beta(state.T) if model.beta else np.full_like(mu, np.nan)
         if model.thermal_mass:
             v = transport.unidirectional_thermal_velocity(
-                state.T, model.thermal_mass, eta, dimension
+                state.T, model.thermal_mass, eta, dimension, kane
             )
             result[f"v_{x}"] = v
             result[f"mfp_{x}"] = transport.backscattering_mean_free_path(d, v)

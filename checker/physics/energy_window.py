@@ -297,6 +297,75 @@ def generalized_einstein_ratio(
     return pts.shaped(1.0 / slope)
 
 
+def log_density_and_slope(
+    bands: Bands, eta: ArrayIn, T: ArrayIn, method: str = "auto"
+) -> tuple[FloatOrArray, FloatOrArray]:
+    """(ln n, d ln n/d eta) of a band or bands: the pair a Newton solve on eta needs.
+
+    ln n in ln(m^-d) without underflow (eta down to -1e4 and below); the slope is
+    (dn/deta)/n, in (0, 1] for every band.  Units and validity as for
+    :func:`carrier_density`.
+
+    References
+    ----------
+    Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2.
+    """
+    pts = _Points(eta, T)
+    log_n, slope = _total_log_density(bands, pts, method)
+    return pts.shaped(log_n), pts.shaped(slope)
+
+
+def kane_density_factor(
+    band: _bands.KaneBand, eta: ArrayIn, T: ArrayIn
+) -> tuple[FloatOrArray, FloatOrArray]:
+    """(ln F_K, d ln F_K/d eta): the Kane density over the parabolic N_c of the same mass.
+
+    Formula: n = N_c F_K(eta, beta), beta = alpha kT,
+      F_K = (2/sqrt(pi)) ∫_0^∞ sqrt(x (1 + beta x)) (1 + 2 beta x) / (1 + e^(x - eta)) dx,
+    independent of the mass, so a material's own N_c(T) times F_K is the Kane
+    density; F_K = F_1/2 at alpha = 0.  Dimensionless; T in K.  Validity and
+    accuracy as for :func:`carrier_density` (quadrature, <= 1e-12 relative).
+
+    References
+    ----------
+    E. O. Kane, J. Phys. Chem. Solids 1, 249 (1957); B. R. Nag, Electron Transport
+    in Compound Semiconductors (Springer, 1980), ch. 3 (non-parabolic carrier density).
+    """
+    if band.dimension != 3:
+        raise InputError("the Kane density factor is defined for a bulk (3D) band")
+    log_n, slope = log_density_and_slope(band, eta, T, "quadrature")
+    twin = _bands.ParabolicBand(3, band.mass, band.valley_degeneracy, band.spin_degeneracy)
+    return log_n - np.log(effective_density(twin, T)), slope
+
+
+def forward_velocity(bands: Bands, eta: ArrayIn, T: ArrayIn) -> FloatOrArray:
+    """<v_x^+>: the mean velocity of the carriers moving in +x, any band (m/s).
+
+    Formula: <v_x^+> = (2 g_s/h) ∫ M(E) f(E) dE / n = (2 g_s/h) ∫ M_c (-df/dE) dE / n
+    with M_c = ∫ M dE (``bands.modes_below``), by the fixed quadrature.  Parabolic
+    3D: sqrt(2kT/(pi m*)) F_1/F_1/2.  Evaluated in logarithms, finite for any eta.
+
+    References
+    ----------
+    Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2 and 6.
+    """
+    pts = _Points(eta, T)
+    group = _as_bands(bands)
+    kT = pts.kT
+
+    def log_flux(band: Band) -> FloatArray:
+        band_eta = pts.band_eta(band)
+        (total,) = _window_sums(
+            band_eta, [lambda x, rows: _bands.modes_below(band, x * kT[rows, None])]
+        )
+        prefactor: float = np.log(2.0 * band.spin_degeneracy / PLANCK)
+        return prefactor + _log_logistic(band_eta) + np.log(total)
+
+    flux = np.logaddexp.reduce([log_flux(b) for b in group])
+    log_n, _ = _total_log_density(group, pts, "auto", slope=False)
+    return pts.shaped(np.exp(flux - log_n))
+
+
 def effective_density(band: Band, T: ArrayIn) -> FloatArray:
     """N_eff of a power-law band, n = N_eff F_(pd/2-1)(eta), per m^d.
 

@@ -4,6 +4,8 @@ compensation, and the metallic (fully ionized) regime above the Mott density.
 
 Neutrality:   n + sum_k N_A,k^-  =  p + sum_i N_D,i^+
   n = N_c F_1/2(eta_n),  p = N_v F_1/2(eta_p),  eta_n = (E_F - E_C)/kT,
+  (a Kane conduction band, E(1 + alpha E) = hbar^2 k^2/2m*: n = N_c F_K(eta_n, alpha kT),
+  ``energy_window.kane_density_factor``; parabolic bands keep the closed F_1/2),
   eta_p = (E_V - E_F)/kT = -eta_n - E_g/kT,
   N_D,i^+ = N_D,i / (1 + g_D exp(eta_n + E_D,i/kT))      (E_D,i below E_C)
   N_A,k^- = N_A,k / (1 + g_A exp(eta_p + E_A,k/kT))      (E_A,k above E_V)
@@ -39,7 +41,9 @@ from typing import TypeAlias
 import numpy as np
 
 from ..errors import ConvergenceError, InputError
+from . import energy_window
 from .arrays import ArrayIn, BoolArray, FloatArray, IndexArray
+from .bands import KaneBand
 from .constants import BOLTZMANN
 from .fermi import log_fermi_dirac, log_fermi_dirac_half_pair
 from .materials import Dopant, Material
@@ -72,6 +76,7 @@ class State:
     narrowing: FloatArray  # band-gap narrowing applied (J), split half to each band
     residual: FloatArray  # |1 - (n + N_A^-)/(p + N_D^+)|
     iterations: int = 0
+    electron_band: KaneBand | None = None  # None: parabolic conduction band (closed F_1/2)
 
     @cached_property
     def kT(self) -> FloatArray:
@@ -99,8 +104,16 @@ class State:
         return -self.eta_n - self.Eg / self.kT
 
     @cached_property
+    def log_electron_factor(self) -> FloatArray:
+        """ln(n/N_c): ln F_1/2(eta_n), or ln F_K(eta_n, alpha kT) for a Kane band."""
+        if self.electron_band is None:
+            return np.asarray(log_fermi_dirac(0.5, self.eta_n))
+        factor, _ = energy_window.kane_density_factor(self.electron_band, self.eta_n, self.T)
+        return np.asarray(factor, dtype=float)
+
+    @cached_property
     def n(self) -> FloatArray:
-        return self.Nc * np.exp(log_fermi_dirac(0.5, self.eta_n))
+        return self.Nc * np.exp(self.log_electron_factor)
 
     @cached_property
     def p(self) -> FloatArray:
@@ -167,7 +180,7 @@ def charge_balance_error(state: State) -> FloatArray:
     Sze & Ng (2007) ch. 1 (charge neutrality).
     """
     kT = state.kT
-    negative = [np.log(state.Nc) + log_fermi_dirac(0.5, state.eta_n)]
+    negative = [np.log(state.Nc) + state.log_electron_factor]
     positive = [np.log(state.Nv) + log_fermi_dirac(0.5, state.eta_p)]
     for group, eta_band, total, side in (
         (state.donors, state.eta_n, state.donors_total, positive),
@@ -182,6 +195,25 @@ def charge_balance_error(state: State) -> FloatArray:
         top = np.maximum(ln_neg, ln_pos)
         error = np.abs(np.exp(ln_neg - top) - np.exp(ln_pos - top))
     return np.where(np.isfinite(top), error, 0.0)
+
+
+def kane_conduction_band(material: Material) -> KaneBand | None:
+    """The bulk material's Kane conduction band (alpha > 0), else None (parabolic).
+
+    None keeps the closed-form F_1/2 path of the solve; a Kane band sends the
+    electron density through ``energy_window.kane_density_factor``.
+
+    References
+    ----------
+    E. O. Kane, J. Phys. Chem. Solids 1, 249 (1957).
+    """
+    if material.dimensionality != 3:
+        return None
+    shape = material.band_shape("electron")
+    if shape.model != "kane" or not shape.nonparabolicity > 0:
+        return None
+    (band,) = material.bands("electron", 3)
+    return band if isinstance(band, KaneBand) else None
 
 
 def _level_terms(
@@ -305,9 +337,12 @@ class _Neutrality:
     BASE_ROWS = 5  # ln N_c, ln N_v, E_g/kT, ln max(N_D - N_A, 0), ln max(N_A - N_D, 0)
     TERM_ROWS = 4  # per bound level: ln N_level, offset, ln b, ln(1 - b)
 
-    def __init__(self, params: FloatArray, n_donors: int, n_acceptors: int) -> None:
-        self.params = params
+    def __init__(
+        self, params: FloatArray, n_donors: int, n_acceptors: int, kane: KaneBand | None = None
+    ) -> None:
+        self.params = params  # a Kane solve carries T (K) as its last row
         self.n_donors, self.n_acceptors = n_donors, n_acceptors
+        self.kane = kane
 
     @classmethod
     def build(
@@ -319,16 +354,22 @@ class _Neutrality:
         ln_net_p: FloatArray,
         donor_terms: list[LevelTerm],
         acceptor_terms: list[LevelTerm],
+        kane: tuple[KaneBand, FloatArray] | None = None,
     ) -> _Neutrality:
-        """Each term: (ln N_level, occupancy offset, ln b, ln(1 - b)) of one bound level."""
+        """Each term: (ln N_level, occupancy offset, ln b, ln(1 - b)) of one bound level;
+        ``kane``: the Kane conduction band and the temperatures (K) of the points."""
         rows = [ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p]
         for term in donor_terms + acceptor_terms:
             rows += list(term)
-        return cls(np.array(rows), len(donor_terms), len(acceptor_terms))
+        if kane is None:
+            return cls(np.array(rows), len(donor_terms), len(acceptor_terms))
+        return cls(np.array([*rows, kane[1]]), len(donor_terms), len(acceptor_terms), kane[0])
 
     def subset(self, keep: IndexArray) -> _Neutrality:
         """The residual restricted to the points at integer positions ``keep``."""
-        return _Neutrality(np.take(self.params, keep, axis=1), self.n_donors, self.n_acceptors)
+        return _Neutrality(
+            np.take(self.params, keep, axis=1), self.n_donors, self.n_acceptors, self.kane
+        )
 
     def _species(self, k: int) -> FloatArray:
         row = self.BASE_ROWS + self.TERM_ROWS * k
@@ -338,16 +379,14 @@ class _Neutrality:
         """Return (f, df/deta) with f = ln(left side) - ln(right side), increasing in eta."""
         ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p = self.params[: self.BASE_ROWS]
         eta_p = -eta - eg_kt
-        size = eta.size
-        both, both_minus = log_fermi_dirac_half_pair(np.concatenate([eta, eta_p]))
-        slopes = np.exp(both_minus - both)  # d ln F_1/2 / d eta = F_-1/2 / F_1/2
-        left: list[SlopedTerm] = [(ln_nc + both[:size], slopes[:size]), (ln_net_p, None)]
-        right: list[SlopedTerm] = [(ln_nv + both[size:], -slopes[size:]), (ln_net_n, None)]
+        electrons, holes = self._band_terms(ln_nc, ln_nv, eta, eta_p)
+        left: list[SlopedTerm] = [electrons, (ln_net_p, None)]
+        right: list[SlopedTerm] = [holes, (ln_net_n, None)]
         # the same balance written plainly, n + N_A^- = p + N_D^+: in freeze-out almost
         # every impurity is neutral and the form above cancels (N^0 ~ N), while this one
         # keeps full resolution; each point takes the form with the steeper slope
-        plain_left: list[SlopedTerm] = [(ln_nc + both[:size], slopes[:size])]
-        plain_right: list[SlopedTerm] = [(ln_nv + both[size:], -slopes[size:])]
+        plain_left: list[SlopedTerm] = [electrons]
+        plain_right: list[SlopedTerm] = [holes]
         for k in range(self.n_donors):
             ln_n, offset, ln_b, ln_free = self._species(k)
             neutral, ionized = _impurity_terms(ln_n, eta + offset, ln_b, ln_free, +1.0)
@@ -369,6 +408,20 @@ class _Neutrality:
             np.copyto(f, pl - pr, where=steeper)
             np.copyto(df, plain_df, where=steeper)
         return f, df
+
+    def _band_terms(
+        self, ln_nc: FloatArray, ln_nv: FloatArray, eta: FloatArray, eta_p: FloatArray
+    ) -> tuple[SlopedTerm, SlopedTerm]:
+        """(ln n, d ln n/d eta) and (ln p, d ln p/d eta) at the points."""
+        if self.kane is None:  # parabolic: both closed F_1/2 in one pass (the fast path)
+            size = eta.size
+            both, both_minus = log_fermi_dirac_half_pair(np.concatenate([eta, eta_p]))
+            slopes = np.exp(both_minus - both)  # d ln F_1/2 / d eta = F_-1/2 / F_1/2
+            return (ln_nc + both[:size], slopes[:size]), (ln_nv + both[size:], -slopes[size:])
+        holes, holes_minus = log_fermi_dirac_half_pair(eta_p)
+        factor, slope = energy_window.kane_density_factor(self.kane, eta, self.params[-1])
+        electrons: SlopedTerm = (ln_nc + np.asarray(factor), np.asarray(slope))
+        return electrons, (ln_nv + holes, -np.exp(holes_minus - holes))
 
 
 def _impurity_terms(
@@ -584,6 +637,7 @@ def solve(
         if species[name].kind != "acceptor":
             raise InputError(f"{name} is a donor in {material.name}; list it under donors")
 
+    kane = kane_conduction_band(material)
     eta = np.empty_like(temps)
     residual = np.empty_like(temps)
     metallic = np.empty(temps.shape, dtype=bool)
@@ -599,6 +653,7 @@ def solve(
             band_gap_narrowing,
             species,
             out=(eta[part], residual[part], metallic[part], narrowing[part]),
+            kane=kane,
         )
 
     starts = range(0, temps.size, CHUNK)
@@ -620,6 +675,7 @@ def solve(
         narrowing=narrowing.reshape(shape),
         residual=residual.reshape(shape),
         iterations=iterations,
+        electron_band=kane,
     )
     # the promise is checked, not assumed: neutrality evaluated afresh from eta
     state.residual = np.maximum(state.residual, charge_balance_error(state))
@@ -667,6 +723,7 @@ def _solve_flat(
     band_gap_narrowing: bool,
     species: Mapping[str, Dopant],
     out: tuple[FloatArray, FloatArray, BoolArray, FloatArray],
+    kane: KaneBand | None = None,
 ) -> int:
     """Solve one block; write eta, residual, metallic flag and narrowing into ``out``."""
     kT = BOLTZMANN * T
@@ -709,6 +766,7 @@ def _solve_flat(
         _log(np.maximum(-net, 0.0)),
         donor_terms,
         acceptor_terms,
+        None if kane is None else (kane, T),
     )
     eta0 = _initial_guess(
         ln_nc,

@@ -16,8 +16,9 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import InputError
-from . import _relations
+from . import _relations, energy_window
 from .arrays import ArrayIn, FloatOrArray
+from .bands import Band, KaneBand, ParabolicBand
 from .constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE
 from .fermi import log_fermi_dirac
 
@@ -48,22 +49,30 @@ def einstein_ratio(eta: ArrayIn, dimension: int = 3) -> FloatOrArray:
 
 
 def diffusion_coefficient(
-    mobility: ArrayIn, T: ArrayIn, eta: ArrayIn, dimension: int = 3
+    mobility: ArrayIn, T: ArrayIn, eta: ArrayIn, dimension: int = 3, band: Band | None = None
 ) -> FloatOrArray:
     """D = mu (kT/q) F_j/F_{j-1}: the diffusion coefficient (m^2/s).
 
     Units: mobility m^2/(V s), T in K.  Reduces to D = mu kT/q when non-degenerate.
+    ``band`` (e.g. a Kane band): D = mu (kT/q) n/(dn/deta) of that band instead
+    (``energy_window.generalized_einstein_ratio``); None: the parabolic closed form.
 
     References
     ----------
-    Lundstrom, Fundamentals of Carrier Transport (2000), ch. 3.
+    Lundstrom, Fundamentals of Carrier Transport (2000), ch. 3; P. T. Landsberg,
+    Eur. J. Phys. 2, 213 (1981) (D/mu = n/(q dn/dE_F) for any band).
     """
+    ratio = (
+        einstein_ratio(eta, dimension)
+        if band is None
+        else energy_window.generalized_einstein_ratio(band, eta, T)
+    )
     diffusion: FloatOrArray = (
         np.asarray(mobility, dtype=float)
         * BOLTZMANN
         * np.asarray(T, dtype=float)
         / ELEMENTARY_CHARGE
-        * einstein_ratio(eta, dimension)
+        * ratio
     )
     return diffusion
 
@@ -112,14 +121,20 @@ _THERMAL_PREFACTOR = {3: 2.0 / np.pi, 2: np.pi / 2.0, 1: 2.0 / np.pi}
 
 
 def unidirectional_thermal_velocity(
-    T: ArrayIn, mass: ArrayIn, eta: ArrayIn | None = None, dimension: int = 3
+    T: ArrayIn,
+    mass: ArrayIn,
+    eta: ArrayIn | None = None,
+    dimension: int = 3,
+    band: KaneBand | ParabolicBand | None = None,
 ) -> FloatOrArray:
     """Mean velocity of the carriers moving in +x, <v_x^+> (m/s).
 
     Formula: non-degenerate sqrt(2kT/(pi m*)) in 3D and 1D, sqrt(pi kT/(2 m*))
     in 2D; with Fermi–Dirac statistics multiplied by F_1/F_1/2 (3D),
     F_1/2/F_0 (2D) or F_0/F_-1/2 (1D).  Degenerate 3D limit: (3/8) v_F.  ``mass`` in units of m0 (a
-    conductivity effective mass).  Validity: parabolic band.
+    conductivity effective mass).  Validity: parabolic band.  ``band`` (e.g. a Kane
+    band) with ``eta``: the non-degenerate value above times <v_x^+>/<v_x^+>_0 of that
+    band (``energy_window.forward_velocity`` over its own non-degenerate parabolic value).
 
     References
     ----------
@@ -131,6 +146,10 @@ def unidirectional_thermal_velocity(
     base = np.sqrt(_THERMAL_PREFACTOR[dim] * BOLTZMANN * T / (np.asarray(mass) * ELECTRON_MASS))
     if eta is None:
         return base
+    if band is not None:
+        own = np.sqrt(_THERMAL_PREFACTOR[dim] * BOLTZMANN * T / (band.mass * ELECTRON_MASS))
+        factor: FloatOrArray = energy_window.forward_velocity(band, eta, T) / own
+        return base * factor
     j = _DENSITY_ORDER[dim]
     upper = j + 0.5
     return base * np.exp(log_fermi_dirac(upper, eta) - log_fermi_dirac(j, eta))
