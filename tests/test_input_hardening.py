@@ -226,7 +226,7 @@ def test_wrong_dimension_names_the_key_and_the_expected_unit():
 def test_sheet_density_for_a_volume_density():
     error = one_error("material: Si\ntemperature: 300 K\ndoping: {donors: {P: 1e12 cm-2}}\n")
     assert error.startswith("calc.yaml:3:22: doping.donors.P: '1e12 cm-2' is a sheet density")
-    assert "sheet densities (cm^-2) are not supported yet" in error and "cm-3" in error
+    assert "electron_sheet_density" in error and "dimensionality: 2" in error and "cm-3" in error
 
 
 # --- all errors at once; material names ---------------------------------------------------

@@ -80,6 +80,14 @@ structure:
 stated:
   ef_minus_ev: 0.15 eV
   resistivity: 0.2 ohm*cm
+---
+name: every key, a zero-gap sheet
+material: graphene
+temperature: 300 K
+stated:
+  net_sheet_density: 1e12 cm-2
+  electron_sheet_density: 1.006e12 cm-2
+  hole_sheet_density: 6e9 cm-2
 """
 
 

@@ -64,6 +64,9 @@ DOCUMENTED = {
         "(3D), -2.27 (2D) by the generalized Einstein relation (Landsberg 1981)",
     ),
     "CARR01": (0.01, "1 % minority share (common practice (no source))"),
+    "GRAPH01": (1.10, "10 % density error (common practice (no source)); Fang et al. 2007"),
+    "GRAPH02": (0.01, "1 % minority share, as CARR01 (common practice (no source))"),
+    "GRAPH03": (1.05, "5 % error in D, as STAT02 (common practice (no source)); Landsberg 1981"),
     "CARR02": (0.10, "10 % (common practice (no source))"),
     "CARR03": (1.0, "the other carrier type carries most of the current (definition)"),
     "ION01": (0.95, "95 % ionized (common practice (no source))"),
@@ -254,6 +257,46 @@ def stat02(target):
 
 def stat02_2d(target):
     return _stat02(target, 2)
+
+
+# --- zero-gap sheets: graphene, v_F = 1e6 m/s, g_s = g_v = 2 (Castro Neto et al. 2009) ---
+def _graphene(eta, stated):
+    kT = K_B * 300.0
+    extra = f"stated:\n  ef_minus_ec: {_num(eta * kT / Q):.12e} eV\n{stated}"
+    return _calc("graphene", 300.0, extra=extra)
+
+
+def _graphene_neff():
+    # N_eff = (g_s g_v/2 pi)(kT/hbar v_F)^2 in cm^-2 (Fang et al., APL 91, 092109 (2007))
+    return 2 / math.pi * (K_B * 300.0 / (sc.hbar * 1e6)) ** 2 * CM2
+
+
+def graph01(target):
+    # n/n(T = 0) = F_1(eta)/(eta^2/2); the stated density is the T = 0 one
+    eta = _root(lambda e: F(1, e) / (e * e / 2) - target, 5.0)
+    stated = f"  electron_sheet_density: {_num(_graphene_neff() * eta * eta / 2):.12e} cm-2\n"
+    return Point(_graphene(eta, stated), float(F(1, eta) / (eta * eta / 2)), "electrons")
+
+
+def graph02(target):
+    # p/n = F_1(-eta)/F_1(eta) of the two cones at one Fermi level
+    eta = _root(lambda e: mp.log(F(1, -e) / F(1, e) / target), 4.0)
+    return Point(
+        _graphene(eta, "assumes: [single-carrier]\n"),
+        float(F(1, -eta) / F(1, eta)),
+        "electrons",
+    )
+
+
+def graph03(target):
+    # (D/mu)/(kT/q) = F_1(eta)/F_0(eta) of a linear band (Landsberg 1981)
+    eta = _root(lambda e: F(1, e) / F(0, e) - target, -1.0)
+    return Point(
+        # a stated electron mobility: the electrons (minority at eta < 0) are the ones used
+        _graphene(eta, "  electron_mobility: 5000 cm^2/(V*s)\nassumes: [einstein-relation]\n"),
+        float(F(1, eta) / F(0, eta)),
+        "electrons",
+    )
 
 
 def carr01(target):
@@ -632,6 +675,9 @@ BUILDERS = {
     "STAT01": [stat01],
     "STAT02": [stat02, stat02_2d],
     "CARR01": [carr01],
+    "GRAPH01": [graph01],
+    "GRAPH02": [graph02],
+    "GRAPH03": [graph03],
     "CARR02": [carr02],
     "CARR03": [carr03],
     "ION01": [ion01],

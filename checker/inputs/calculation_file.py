@@ -9,7 +9,8 @@ Keys (all optional except material and temperature):
       donors:    {<species>: "<density>" | {from, to, steps[, spacing]}, ...}
       acceptors: {<species>: "<density>", ...}
     structure:   dimensionality (3/2/1), length, cross_section | thickness + width,
-                 field | voltage
+                 field | voltage, subband_energies (a 2D gas: [<energy>, ...] from the
+                 band edge)
     stated:      the numbers the author gives (see STATED_KEYS)
     assumes:     [trade words of ASSUMPTIONS]
     formulas:    ["<lhs> = <rhs>", ...] in trade symbols (analysed by the engine)
@@ -34,6 +35,7 @@ import yaml
 
 from ..errors import InputError
 from ..physics.arrays import FloatArray
+from ..physics.constants import EV
 from ..physics.materials import Material
 from ..quantity_registry.registry import QUANTITIES, file_keys
 from ..vocabulary_words import ASSUMPTIONS
@@ -59,6 +61,11 @@ OPTION_KEYS = ("band_gap_narrowing", "hall_scattering")
 # YAML key -> (engine quantity name, dimension read as): views of the quantity registry
 STRUCTURE_KEYS = file_keys("structure")
 STATED_KEYS = file_keys("stated")
+# a structure key that is a list, not one quantity: the subband bottoms of a 2D gas
+SUBBAND_KEY = "subband_energies"
+MAX_SUBBANDS = 20
+# stated keys only a sheet (a 2D calculation) has: its densities are per area
+SHEET_KEYS = tuple(key for q in QUANTITIES if q.unit == "cm^-2" for key in q.keys)
 # A few common spellings of the trade words an author may declare (ASSUMPTIONS).
 ASSUMPTION_SPELLINGS = {
     "nondegenerate": "non-degenerate",
@@ -102,6 +109,7 @@ class Calculation:
     formulas: list = field(default_factory=list)  # (text, "file:line:col", line)
     columns: dict = field(default_factory=dict)  # engine name -> table column header
     sweep: list = field(default_factory=list)  # Axis objects (empty: one point)
+    subband_energies: tuple = ()  # J above the band edge (a 2D gas); () for one at 0
 
     @property
     def majority(self) -> str:
@@ -226,7 +234,10 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     name = problems.run(_name, data, where)
     lines: dict[str, int] = {}
     structure = problems.run(_structure, data, where, lines, default={})
+    subbands = problems.run(_subband_energies, data, where, default=())
     stated = problems.run(_quantities, data, "stated", STATED_KEYS, where, lines, default={})
+    if material is not None and structure is not None and stated is not None:
+        problems.run(_sheet_fit, material, structure, stated, groups or {}, subbands, where)
     assumes = problems.run(_assumptions, data.get("assumes"), where, default={})
     waivers = problems.run(_waivers, data.get("waivers"), where, default={})
     formulas = problems.run(_formulas, data.get("formulas"), where, default=[])
@@ -249,6 +260,7 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     )
     calc.structure, calc.stated, calc.lines = structure, stated, lines
     calc.assumes, calc.waivers, calc.formulas, calc.sweep = assumes, waivers, formulas, axes
+    calc.subband_energies = subbands or ()
     return calc
 
 
@@ -470,10 +482,11 @@ def normal_word(text) -> str:
     return str(text).strip().lower().replace("_", "-").replace(" ", "-")
 
 
-def _quantities(data, section, keys, where, lines) -> dict:
+def _quantities(data, section, keys, where, lines, lists=()) -> dict:
+    """The quantities of a section (``lists``: allowed keys read elsewhere)."""
     block = _mapping(data, section, where, f"of {', '.join(keys)} to quantities")
     problems = Problems()
-    problems.run(_unknown_keys, block, tuple(keys), where, section, (section,))
+    problems.run(_unknown_keys, block, tuple(keys) + tuple(lists), where, section, (section,))
     out = {}
     for key, text in block.items():
         if key in keys:
@@ -507,7 +520,7 @@ AGREEMENT = 0.01
 
 def _structure(data, where, lines) -> dict:
     """The structure block; a field or area given twice over must agree."""
-    structure = _quantities(data, "structure", STRUCTURE_KEYS, where, lines)
+    structure = _quantities(data, "structure", STRUCTURE_KEYS, where, lines, (SUBBAND_KEY,))
     given = _mapping(data, "structure", where, "")
     problems = Problems()
     if "voltage" in structure and "L" not in structure:
@@ -630,3 +643,101 @@ def read_calculation_file(path, explicit: bool = True) -> FileResult:
     if not result.calculations and not result.errors:
         result.errors.append(f"{path}: the file holds no calculation")
     return result
+
+
+def _subband_energies(data, where) -> tuple:
+    """structure.subband_energies: the subband bottoms of a 2D gas (J), from the band edge."""
+    block = data.get("structure")
+    if not isinstance(block, dict) or SUBBAND_KEY not in block:
+        return ()
+    entries = block[SUBBAND_KEY]
+    here = where.key("structure", SUBBAND_KEY)
+    if isinstance(entries, str):
+        entries = [entries]
+    if not isinstance(entries, list) or not 1 <= len(entries) <= MAX_SUBBANDS:
+        raise InputError(
+            f"{here} must be a list of 1 to {MAX_SUBBANDS} energies from the band edge, "
+            "e.g. [0 meV, 45 meV]"
+        )
+    problems = Problems()
+    energies = []
+    for i, text in enumerate(entries):
+        at = where.key("structure", SUBBAND_KEY, i)
+        value = problems.run(parse_quantity, text, "energy", at)
+        if value is not None and not 0 <= value <= 2 * EV:
+            problems.add(
+                InputError(
+                    f"{at}: a subband bottom lies 0 to 2 eV above the band edge, got {text!r}"
+                )
+            )
+        elif value is not None:
+            energies.append(value)
+    problems.raise_any()
+    return tuple(sorted(energies))
+
+
+def _sheet_fit(material, structure, stated, groups, subbands, where) -> None:
+    """A sheet (2D) calculation and its inputs fit together: sheet densities only in 2D, a
+    2D material never solved as bulk, and something that fixes a sheet's Fermi level."""
+    problems = Problems()
+    dim = int(structure.get("dim", material.dimensionality))
+    sheet_keys = [key for key in SHEET_KEYS if STATED_KEYS[key][0] in stated]
+    if material.dimensionality == 2 and dim != 2:
+        problems.add(
+            InputError(
+                f"{where.key('structure', 'dimensionality')}: {material.name} is a 2D "
+                f"material (a sheet or channel); write dimensionality: 2 or leave it out"
+            )
+        )
+    for key in sheet_keys if dim != 2 else ():
+        problems.add(
+            InputError(
+                f"{where.key('stated', key)}: a sheet density (cm-2) belongs to a 2D "
+                "calculation; add structure: {dimensionality: 2} (or choose a 2D material), "
+                "or state the volume density, e.g. electron_density: 1e17 cm-3"
+            )
+        )
+    if subbands and dim != 2:
+        problems.add(
+            InputError(
+                f"{where.key('structure', SUBBAND_KEY)}: subbands belong to a 2D gas; add "
+                "dimensionality: 2 or remove subband_energies"
+            )
+        )
+    linear = material.band_shape("electron").model == "linear"
+    if linear and subbands:
+        problems.add(
+            InputError(
+                f"{where.key('structure', SUBBAND_KEY)}: {material.name} has linear bands "
+                "without a subband ladder; remove subband_energies"
+            )
+        )
+    if "stated_net_sheet" in stated and not linear:
+        problems.add(
+            InputError(
+                f"{where.key('stated', 'net_sheet_density')}: the net sheet density n - p "
+                "fixes the Fermi level of a zero-gap sheet (graphene); for a 2D gas state "
+                "electron_sheet_density or hole_sheet_density"
+            )
+        )
+    is_sheet = dim == 2 and (material.dimensionality == 2 or sheet_keys)
+    fixes = sheet_keys + [k for k in ("ef_minus_ec", "ef_minus_ev") if STATED_KEYS[k][0] in stated]
+    if is_sheet and not fixes:
+        problems.add(
+            InputError(
+                f"{where.key('stated')}: a 2D gas or sheet takes its carriers from the "
+                "stated sheet density; add e.g. electron_sheet_density: 1e12 cm-2 "
+                + ("(or net_sheet_density, the gate-induced n - p) " if linear else "")
+                + "under stated:"
+            )
+        )
+    if is_sheet and any(groups.values()):
+        problems.add(
+            InputError(
+                f"{where.key('doping')}: a 2D gas or sheet has no dopants in its channel; "
+                "remove doping and state the sheet density it gives instead"
+            )
+        )
+    if is_sheet:
+        structure.setdefault("dim", 2.0)
+    problems.raise_any()

@@ -206,9 +206,10 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
         unit_dimension, factor = _pint_unit(unit, dimension, text, place)
     if unit_dimension == "sheet density" and dimension == "density":
         raise InputError(
-            f"{place}{text!r} is a sheet density (per area); sheet densities "
-            "(cm^-2) are not supported yet for this key: give the volume density "
-            f"(sheet density / layer thickness), e.g. {example(dimension)}"
+            f"{place}{text!r} is a sheet density (per area); sheet densities (cm^-2) go "
+            "under stated: electron_sheet_density, hole_sheet_density or net_sheet_density "
+            "of a 2D calculation (structure: {dimensionality: 2}, or a 2D material); for "
+            f"this key give the volume density, e.g. {example(dimension)}"
         )
     if unit_dimension != dimension:
         raise InputError(

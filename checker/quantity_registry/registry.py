@@ -58,7 +58,7 @@ class Quantity:
     @property
     def kind(self) -> str:
         """The dimension a calculation file's text is read in (inputs/quantities)."""
-        return UNIT_KINDS[self.unit]
+        return _READ_AS[self.unit]
 
     def concrete(self, carrier: Carrier | None = None) -> str:
         """The name for ``carrier`` (``dens_x`` -> ``dens_n``); the name itself if common."""
@@ -74,6 +74,10 @@ class Quantity:
     def bulk(self) -> bool:
         """A value of the 3D solve that is no sheet or line quantity."""
         return self.unit in BULK_UNITS
+
+
+# sheet densities are read only by the keys of the sheet solve (bulk keys refuse cm^-2)
+_READ_AS = {**UNIT_KINDS, "cm^-2": "sheet density"}
 
 
 def _q(name: str, unit: str, meaning: str, source: Source = Source.SOLVE, **more: Any) -> Quantity:
@@ -333,6 +337,52 @@ QUANTITIES = (
         "highest expected Hall density over the measured Hall-factor range",
         _D,
     ),
+    # ---- sheets and 2D gases, graphene (engine/regime/sheet_values.py) -------------------------
+    # The sheet solve leaves the bulk quantities (cm^-3, S/cm, ohm*cm) unknown: its densities
+    # are per area and carry their own names, so no report prints a sheet value in a bulk unit.
+    _q(
+        "ns_x",
+        "cm^-2",
+        "sheet density of the carrier (2D statistics of the material's sheet bands; "
+        "NaN in a bulk calculation)",
+        symbols=("n_s", "p_s"),
+    ),
+    _q(
+        "N2D_x",
+        "cm^-2",
+        "effective density of states of the carrier's lowest 2D subband, "
+        "g_v m* kT/(pi hbar^2); for a linear band (g_s g_v/2 pi)(kT/hbar v_F)^2",
+    ),
+    _q(
+        "einstein_x",
+        "1",
+        "generalized Einstein ratio (D/mu)/(kT/q) = n/(dn/deta) of the carrier's bands "
+        "(energy window: every subband, linear bands; the parabolic F_j ratio in bulk)",
+    ),
+    _q("ni_s", "cm^-2", "intrinsic sheet density of a zero-gap sheet, n = p at E_F = E_D"),
+    _q("linear", "1", "1 where the bands are linear and zero-gap (graphene), else 0"),
+    _q("vF", "cm/s", "Fermi velocity of a linear band", symbols=("v_F",)),
+    _q("subbands", "1", "number of 2D subbands in the sheet solve (0: bulk solve)"),
+    _stated(
+        "stated_ns_x",
+        "cm^-2",
+        "stated carrier sheet density",
+        ("electron_sheet_density", "hole_sheet_density"),
+    ),
+    _stated(
+        "stated_net_sheet",
+        "cm^-2",
+        "stated net sheet density n - p of a zero-gap sheet (gate-induced: C_g (V_g - V_D)/q)",
+        ("net_sheet_density",),
+        signed=True,
+    ),
+    _q(
+        "sigma_s",
+        "S",
+        "sheet conductance q(n_s mu_n + p_s mu_p) of the corrected calculation",
+        _D,
+    ),
+    _q("Rs", "ohm/sq", "sheet resistance 1/sigma_s of the corrected calculation", _D),
     # ---- constants (CODATA 2022, physics/constants.py) ------------------------------------------
     # (their SI units: constants are never shown in a display unit)
     _q("q", "C", "elementary charge", Source.CONSTANT, symbols=("q",), value=ELEMENTARY_CHARGE),

@@ -51,6 +51,7 @@ def _dimension(key: str, dim: int) -> dm.Dimension:
 def _dimension_table(dim: int) -> dict[str, dm.Dimension]:
     return {
         "density": dm.density(dim),
+        "sheet_density": dm.density(2),  # per area in any calculation (n_s, p_s)
         "energy": dm.ENERGY,
         "none": dm.NONE,
         "temperature": dm.TEMPERATURE,
@@ -152,6 +153,10 @@ SYMBOLS = _symbols(
         ("rho", "resistivity", "resistivity", "rho, ρ"),
         ("R", "resistance", "resistance of the conductor", "R"),
         ("R_s", "resistance", "sheet resistance (ohm per square)", "R_s, Rs, R_sh, Rsh, R_sq"),
+        # sheets and 2D gases
+        ("n_s", "sheet_density", "electron sheet density", "n_s, ns, n_2D, n_sheet"),
+        ("p_s", "sheet_density", "hole sheet density", "p_s, ps, p_2D, p_sheet"),
+        ("v_F", "velocity", "Fermi velocity of a linear (zero-gap) band", "v_F, vF, v_f"),
         (
             "rho_c",
             "contact_resistivity",

@@ -16,13 +16,14 @@ import numpy as np
 import numpy.typing as npt
 
 from ...errors import MissingParameterError, RegimecheckError
-from ...physics import carriers, equilibrium, hall
+from ...physics import carriers, equilibrium, hall, transport
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray
 from ...physics.constants import ELEMENTARY_CHARGE
 from ...physics.equilibrium import State
 from ...physics.materials import Material
 from ...quantity_registry.registry import QUANTITIES, Source, value_names
 from ...vocabulary_words import Carrier
+from . import sheet_values
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
@@ -41,7 +42,7 @@ _STATED = tuple(
 )
 # a number stated for one carrier says the calculation uses that carrier (the band's
 # density of states does not)
-_CARRIER_SPECIFIC = ("stated_dens", "stated_mu", "stated_D", "stated_v")
+_CARRIER_SPECIFIC = ("stated_dens", "stated_mu", "stated_D", "stated_v", "stated_ns")
 
 
 def _dominant(species: Mapping[str, float]) -> str | None:
@@ -57,6 +58,8 @@ def _group_key(calc: Calculation) -> tuple[object, ...]:
         _dominant(calc.acceptors),
         calc.band_gap_narrowing,
         int(calc.structure.get("dim", 3)),
+        sheet_values.is_sheet(calc),
+        calc.subband_energies,
     )
 
 
@@ -125,7 +128,8 @@ def _solve_group(
     T = np.array([c.temperature for c in calcs])
     donors = {s: np.array([c.donors[s] for c in calcs]) for s in calcs[0].donors}
     acceptors = {s: np.array([c.acceptors[s] for c in calcs]) for s in calcs[0].acceptors}
-    put, skipped = solve_points(calcs[0], T, donors, acceptors)
+    sheet = sheet_values.sheet_inputs(calcs) if sheet_values.is_sheet(calcs[0]) else None
+    put, skipped = solve_points(calcs[0], T, donors, acceptors, sheet)
     for name, array in put.items():
         values[name][members] = np.broadcast_to(array, T.shape)
     return skipped
@@ -139,10 +143,20 @@ def _onset(material: Material, net: FloatArray) -> FloatArray:
 
 
 def solve_points(
-    first: Calculation, T: FloatArray, donors: Densities, acceptors: Densities
+    first: Calculation,
+    T: FloatArray,
+    donors: Densities,
+    acceptors: Densities,
+    sheet: dict[str, FloatArray] | None = None,
 ) -> tuple[dict[str, ArrayIn], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
-    the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note)."""
+    the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
+    A sheet (2D gas, graphene) takes the sheet solve, its Fermi level fixed by ``sheet``
+    (sheet_values.sheet_inputs; default: ``first``'s own stated numbers)."""
+    if sheet_values.is_sheet(first):
+        if sheet is None:
+            sheet = sheet_values.sheet_inputs([first])
+        return sheet_values.solve_sheet_points(first, T, sheet)
     material, dim = first.material, int(first.structure.get("dim", 3))
     state = equilibrium.solve(
         material, T, donors, acceptors, band_gap_narrowing=first.band_gap_narrowing
@@ -377,6 +391,13 @@ def fill_inputs(
     none = ~(specific["n"] | specific["p"])
     for x in ("n", "p"):
         values[f"in_use_{x}"] = (specific[x] | (none & (values[f"maj_{x}"] > 0))).astype(float)
+    # the bulk solve's Einstein ratio (the sheet solve gives its own from the energy window)
+    ratio_unknown = ~np.isfinite(values["einstein_n"])
+    for x in Carrier:
+        bulk_ratio = _bulk_einstein_ratio(values[f"eta_{x}"], values["dim"])
+        values[f"einstein_{x}"] = np.where(ratio_unknown, bulk_ratio, values[f"einstein_{x}"])
+    for name in ("linear", "subbands"):
+        values[name] = np.nan_to_num(values[name], nan=0.0)
     derive_corrected(values, {})
     values["sigma_model"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["mu_n"]
@@ -405,8 +426,16 @@ def derive_corrected(values: Values, replaced: Replaced) -> None:
         stated, model = values[f"stated_mu_{x}"], values[f"mu_{x}"]
         used = np.where(np.isfinite(stated) & kept(f"used_mu_{x}"), stated, model)
         values[f"used_mu_{x}"] = used
-        # the mean free path scales with the mobility used
-        values[f"lambda_{x}"] = values[f"lambda_model_{x}"] * used / model
+    _symmetric_cones(values)
+    for x in Carrier:
+        used = values[f"used_mu_{x}"]
+        # the mean free path scales with the mobility used; a sheet without a mobility
+        # model: lambda = 2D/<v_x+>, D = mu (kT/q) (D/mu ratio)
+        values[f"lambda_{x}"] = np.where(
+            np.isfinite(values[f"lambda_model_{x}"]),
+            values[f"lambda_model_{x}"] * used / values[f"mu_{x}"],
+            2.0 * used * values["kT_q"] * values[f"einstein_{x}"] / values[f"vth_{x}"],
+        )
     values["sigma"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["used_mu_n"]
         + values["dens_p"] * values["cond_p"] * values["used_mu_p"]
@@ -416,6 +445,34 @@ def derive_corrected(values: Values, replaced: Replaced) -> None:
     values["used_rho"] = np.where(
         np.isfinite(stated_rho) & kept("used_rho"), stated_rho, values["rho"]
     )
+    # a sheet: sheet conductance of the carriers it holds (an absent carrier adds nothing)
+    parts = [values[f"ns_{x}"] * values[f"used_mu_{x}"] for x in Carrier]
+    counted = np.isfinite(parts[0]) | np.isfinite(parts[1])
+    total = np.nansum(parts, axis=0)
+    values["sigma_s"] = np.where(counted, ELEMENTARY_CHARGE * total, np.nan)
+    values["Rs"] = 1.0 / values["sigma_s"]
+
+
+def _symmetric_cones(values: Values) -> None:
+    """A zero-gap sheet: a carrier without a mobility of its own takes the other's (the
+    two cones are mirror images; electron-hole symmetric transport, common practice (no
+    source))."""
+    linear = values["linear"] > 0
+    if not linear.any():
+        return
+    mu_n, mu_p = values["used_mu_n"], values["used_mu_p"]
+    values["used_mu_n"] = np.where(linear & ~np.isfinite(mu_n), mu_p, mu_n)
+    values["used_mu_p"] = np.where(linear & ~np.isfinite(mu_p), mu_n, mu_p)
+
+
+def _bulk_einstein_ratio(eta: FloatArray, dims: FloatArray) -> FloatArray:
+    """(D/mu)/(kT/q) of the parabolic bulk solve per point (F_j ratio of its dimensionality)."""
+    out = np.full_like(eta, np.nan)
+    for dim in np.unique(dims[np.isfinite(dims)]):
+        pick = (dims == dim) & np.isfinite(eta)
+        if pick.any():
+            out[pick] = transport.einstein_ratio(eta[pick], int(dim))
+    return out
 
 
 def _hall(values: Values, exponents: FloatArray) -> None:
