@@ -213,3 +213,16 @@ def test_bad_sheet_input_names_file_line_and_fix(tmp_path, text, place, words):
     said = (done.stdout + done.stderr).replace(str(tmp_path) + "/", "")
     assert done.returncode == 2 and "Traceback" not in said
     assert place in said and words in said
+
+
+def test_a_bulk_material_as_a_2d_gas_takes_its_own_mass():
+    # a quantum well of a bulk crystal: one subband of the crystal's own (edge) mass,
+    # N_2D = g_v m* kT/(pi hbar^2) (Ando, Fowler & Stern 1982); GaAs Gamma valley, g_v = 1
+    text = GAN.replace("material: GaN-AlGaN", "material: GaAs\nstructure: {dimensionality: 2}")
+    read = parse_calculations(text, "sheet.yaml")
+    mass = read.calculations[0].material.dos_mass("electron")
+    assert mass == pytest.approx(0.067, abs=0.005)  # GaAs Gamma mass (Vurgaftman et al. 2001)
+    values, notes = _solve(text)
+    assert values["N2D_n"][0] == pytest.approx(_n2d(mass), rel=1e-12)
+    assert values["ns_n"][0] == pytest.approx(1e17, rel=1e-9)
+    assert "2D statistics of the electrons" in notes[0]

@@ -23,8 +23,8 @@ import numpy as np
 from ...errors import MissingParameterError
 from ...physics import energy_window, sheet_statistics
 from ...physics.arrays import ArrayIn, FloatArray
-from ...physics.bands import Band, DiracBand
-from ...physics.constants import BOLTZMANN, ELEMENTARY_CHARGE
+from ...physics.bands import Band, DiracBand, KaneBand, ParabolicBand
+from ...physics.constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE, HBAR
 from ...physics.materials import Material
 from ...vocabulary_words import Carrier
 
@@ -102,7 +102,7 @@ def solve_sheet_points(
         count = len(first.subband_energies) or 1
         notes.append(
             f"2D statistics of the {_BAND[x]}s ({count} subband{'s' * (count > 1)}, "
-            f"N_2D = {_sheet_text(energy_window.effective_density(lowest, T))} cm-2)"
+            f"N_2D = {_sheet_text(_edge_density(lowest, T))} cm-2)"
         )
     majority_n = np.nan_to_num(put.get("ns_n", 0.0)) >= np.nan_to_num(put.get("ns_p", 0.0))
     put["maj_n"], put["maj_p"] = majority_n.astype(float), (~majority_n).astype(float)
@@ -137,8 +137,18 @@ def _parabolic_sheet(
     lowest = min(bands, key=lambda b: b.edge)
     return _carrier_values(x, bands, eta_ref, T) | {
         f"eta_{x}": eta_ref - lowest.edge / kT,  # from the lowest subband (STAT01's edge)
-        f"N2D_{x}": energy_window.effective_density(lowest, T),
+        f"N2D_{x}": _edge_density(lowest, T),
     }
+
+
+def _edge_density(band: Band, T: FloatArray) -> FloatArray:
+    """N_2D = g_v m* kT/(pi hbar^2) of a 2D subband (spin included); a Kane subband's at its
+    edge mass, where D(E) = (g_v m*/pi hbar^2)(1 + 2 alpha E) starts (Kane 1957)."""
+    if isinstance(band, ParabolicBand | KaneBand):
+        scale = band.valley_degeneracy * band.spin_degeneracy / 2.0
+        density: FloatArray = scale * band.mass * ELECTRON_MASS * BOLTZMANN * T / (np.pi * HBAR**2)
+        return density
+    return energy_window.effective_density(band, T)
 
 
 def _carrier_values(
