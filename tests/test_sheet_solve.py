@@ -194,6 +194,11 @@ def test_examples_fire_the_sheet_rules():
         ),
         ("material: graphene\ntemperature: 300 K\n", "x.yaml:1:", "net_sheet_density"),
         (
+            "material: GaN-AlGaN\ntemperature: 300 K\nstated: {hole_sheet_density: 1e12 cm-2}\n",
+            "x.yaml:3:",
+            "describes no hole band",
+        ),
+        (
             "material: GaN-AlGaN\ntemperature: 300 K\nstructure: {dimensionality: 3}\n"
             "stated: {electron_sheet_density: 1e13 cm-2}\n",
             "x.yaml:3:",

@@ -33,7 +33,7 @@ from typing import TypeAlias
 
 import yaml
 
-from ..errors import InputError
+from ..errors import InputError, RegimecheckError
 from ..physics.arrays import FloatArray
 from ..physics.constants import EV
 from ..physics.materials import Material
@@ -720,6 +720,12 @@ def _sheet_fit(material, structure, stated, groups, subbands, where) -> None:
                 "electron_sheet_density or hole_sheet_density"
             )
         )
+    for key, carrier in (("electron_sheet_density", "electron"), ("hole_sheet_density", "hole")):
+        if key in sheet_keys and dim == 2:
+            try:
+                material.bands(carrier, 2, subbands or None)
+            except RegimecheckError as exc:
+                problems.add(InputError(f"{where.key('stated', key)}: {exc}"))
     is_sheet = dim == 2 and (material.dimensionality == 2 or sheet_keys)
     fixes = sheet_keys + [k for k in ("ef_minus_ec", "ef_minus_ev") if STATED_KEYS[k][0] in stated]
     if is_sheet and not fixes:
