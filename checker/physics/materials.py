@@ -220,10 +220,18 @@ class Dopant:
         return self.levels or (DopantLevel(self.energy, self.degeneracy, 1.0),)
 
     def share_model(self) -> BoundShare:
-        """b(N).  Without published values: the shape Altermatt et al. (2006) fitted for
-        Si:P, B and As (d = 2.3, N_b = 1.6 times the Mott density, their ratio for all
-        three), carried over to this species' Mott density (an assumption, no source)."""
-        return self.bound_share or BoundShare(1.6 * self.mott_density, 2.3)
+        """b(N).  Without published values: with a published level lowering, the shape
+        Altermatt et al. (2006) fitted together with theirs for Si:P, B and As (d = 2.3,
+        N_b = 1.6 times the Mott density), carried over to this species' Mott density;
+        without one, the share alone carries the whole crossover, so it is half at the
+        Mott density and falls steeply above it (d = 6: 1.5 % bindable at twice the Mott
+        density) -- shallow donors in GaAs, InP or InAs do not freeze out above it
+        (an assumption: common practice (no source))."""
+        if self.bound_share is not None:
+            return self.bound_share
+        if self.lowering is not None:
+            return BoundShare(1.6 * self.mott_density, 2.3)
+        return BoundShare(self.mott_density, 6.0)
 
     def lowering_factor(self, same_type_total: ArrayIn) -> FloatArray:
         """E(N)/E_0: the published lowering where the material file gives one, else 1
