@@ -24,7 +24,7 @@ import pytest
 import scipy.constants as sc
 import yaml
 from conftest import fd_reference
-from reference import ionized_fraction, reference_solve
+from reference import ionized_fraction, mp_electron_half, reference_solve
 
 from checker import load_material, regime_label, solve_equilibrium
 from checker.engine.regime.rulebook import load_rules
@@ -64,6 +64,7 @@ DOCUMENTED = {
         "(3D), -2.27 (2D) by the generalized Einstein relation (Landsberg 1981)",
     ),
     "CARR01": (0.01, "1 % minority share (common practice (no source))"),
+    "BAND01": (1.0, "one kT of Fermi-level error (common practice (no source))"),
     "GRAPH01": (1.10, "10 % density error (common practice (no source)); Fang et al. 2007"),
     "GRAPH02": (0.01, "1 % minority share, as CARR01 (common practice (no source))"),
     "GRAPH03": (1.05, "5 % error in D, as STAT02 (common practice (no source)); Landsberg 1981"),
@@ -178,8 +179,11 @@ def _density_for_eta(material, T, species, eta):
         kT, Eg, Nc, Nv = _bands(material, T)
         eta = mp.mpf(eta)
         other = -eta - Eg / kT
-        own, opposite = (Nc, Nv) if dopant.kind == "donor" else (Nv, Nc)
-        free = own * F(0.5, eta) - opposite * F(0.5, other)
+        # electrons: N_c F_1/2, or N_c F_K of a Kane band (tests/reference.py)
+        if dopant.kind == "donor":
+            free = Nc * mp_electron_half(material, eta, kT) - Nv * F(0.5, other)
+        else:
+            free = Nv * F(0.5, eta) - Nc * mp_electron_half(material, other, kT)
         share = mp.findroot(
             lambda x: x * ionized_fraction(dopant, eta, kT, x * free) - 1, (mp.mpf(1), mp.mpf(1.05))
         )
@@ -199,9 +203,11 @@ def _eta(material, T, donors=None, acceptors=None):
 
 
 def _densities(material, T, eta_n, eta_p):
-    """n, p (m^-3) = N_c F_1/2(eta_n), N_v F_1/2(eta_p) (mpmath)."""
-    _, _, Nc, Nv = _bands(material, T)
-    return float(Nc * F(0.5, eta_n)), float(Nv * F(0.5, eta_p))
+    """n, p (m^-3) = N_c F_1/2(eta_n) (F_K of a Kane band), N_v F_1/2(eta_p) (mpmath)."""
+    kT, _, Nc, Nv = _bands(material, T)
+    with mp.workdps(30):
+        n = Nc * mp_electron_half(material, mp.mpf(eta_n), kT)
+    return float(n), float(Nv * F(0.5, eta_p))
 
 
 def _einstein_ratio(eta, dim=3):
@@ -523,6 +529,28 @@ def model01(target):
     return Point(_fitted_calc(T, 1e16), T / 400.0, None)
 
 
+def _kane_excess(material, T, eta):
+    """(eta_par - eta, eta_par): eta_par the parabolic inversion, N_c F_1/2(eta_par) =
+    N_c F_K(eta), of the Kane density at eta (mpmath quadrature, tests/reference.py)."""
+    kT = mp.mpf(K_B) * T
+    with mp.workdps(30):
+        u = mp_electron_half(material, mp.mpf(eta), kT)
+        par = mp.findroot(lambda e: F(0.5, e) / u - 1, mp.mpf(eta) + 1)
+    return float(par - eta), float(par)
+
+
+def band01(target):
+    # InAs:S at 300 K (Kane alpha of the material file), the stated Fermi level the
+    # parabolic inversion of the solved density
+    inas = load_material("InAs")
+    eta = _root(lambda e: _kane_excess(inas, 300.0, e)[0] - target, 3.0)
+    N = _num(_density_for_eta(inas, 300.0, "S", eta))
+    eta_n, _ = _eta(inas, 300.0, {"S": N})
+    excess, par = _kane_excess(inas, 300.0, eta_n)
+    extra = f"stated:\n  ef_minus_ec: {par * K_B * 300.0 / Q:.12e} eV\n"
+    return Point(_calc("InAs", 300.0, {"S": N}, extra=extra), excess, "electrons")
+
+
 def model02(target):
     N = _num(1e19 * target)
     return Point(_fitted_calc(300.0, N), N / 1e19, None)
@@ -675,6 +703,7 @@ BUILDERS = {
     "STAT01": [stat01],
     "STAT02": [stat02, stat02_2d],
     "CARR01": [carr01],
+    "BAND01": [band01],
     "GRAPH01": [graph01],
     "GRAPH02": [graph02],
     "GRAPH03": [graph03],

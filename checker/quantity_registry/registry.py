@@ -207,6 +207,25 @@ QUANTITIES = (
         "narrowing is on already, the material has no narrowing model, or it shifts n_i² by "
         "less than 1 %)",
     ),
+    # ---- non-parabolic bulk bands (BAND01; state_values._band_shape_values) ---------------------
+    _q(
+        "beta_kane_x",
+        "1",
+        "alpha kT of the carrier's bulk Kane band, E(1 + alpha E) = hbar^2 k^2/2m* "
+        "(0: a parabolic band)",
+    ),
+    _q(
+        "eta_par_x",
+        "1",
+        "reduced Fermi level a parabolic band (n = N_c F_1/2(eta)) gives for the solved "
+        "density (eta_x where the band is parabolic)",
+    ),
+    _q(
+        "dens_par_x",
+        "cm^-3",
+        "density a parabolic band, N_c F_1/2(eta), holds at the solved Fermi level "
+        "(dens_x where the band is parabolic)",
+    ),
     # ---- words ----------------------------------------------------------------------------------
     _q("regime", TEXT_UNIT, "regime of the operating point", _T),
     _q("T_models", TEXT_UNIT, "models whose fitted temperature range the point leaves", _T),
