@@ -29,6 +29,15 @@ def _kane(material, density_cm3):
     return reference_solve(material, T300, {"S": density_cm3 * CM3}, {})
 
 
+def _kane_einstein_ratio(material, eta):
+    """n/(dn/deta) of the Kane band (Landsberg, Eur. J. Phys. 2, 213 (1981)), mpmath."""
+    beta = material.band_shape("electron").nonparabolicity * KT
+    with mp.workdps(30):
+        density = mp_kane_half(eta, beta)
+        slope = mp.diff(lambda e: mp_kane_half(e, beta), mp.mpf(eta))
+    return float(density / slope)
+
+
 def _stated_ef(eta):
     return f"stated:\n  ef_minus_ec: {eta * KT / sc.e:.6f} eV\n"
 
@@ -74,8 +83,11 @@ def test_band01_implied_by_a_parabolic_diffusivity(tmp_path):
     report = check(tmp_path, calc("InAs", "300 K", "S: 1e18 cm-3", extra=extra))
     finding = one(report, "BAND01", "electrons")
     eta = _kane(material, 1e18)
-    level = correction(finding, "Fermi level")
-    assert level.corrected == pytest.approx(eta * KT, rel=1e-9)
+    diffusion = correction(finding, "diffusion coefficient")
+    # SI: mu in m^2/(V s), D in m^2/s
+    expected = mu * 1e-4 * KT / sc.e * _kane_einstein_ratio(material, eta)
+    assert diffusion.corrected == pytest.approx(expected, rel=1e-8)
+    assert diffusion.stated == pytest.approx(round(d, 2) * 1e-4, rel=1e-12)
 
 
 def test_band01_quiet_below_its_threshold_and_for_the_kane_value(tmp_path):

@@ -16,7 +16,7 @@ import numpy as np
 import numpy.typing as npt
 
 from ...errors import MissingParameterError, RegimecheckError
-from ...physics import carriers, equilibrium, fermi, hall, transport
+from ...physics import carriers, energy_window, equilibrium, fermi, hall, transport
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray
 from ...physics.constants import ELEMENTARY_CHARGE
 from ...physics.equilibrium import State
@@ -285,26 +285,27 @@ def solve_points(
         inside = (T >= t_low) & (T <= t_high)
         put[f"rH_lo_{x}"] = np.where(inside, low, np.nan)
         put[f"rH_hi_{x}"] = np.where(inside, high, np.nan)
-    put.update(_band_shape_values(state))
+    put.update(_band_shape_values(state, dim))
     return put, skipped
 
 
-def _band_shape_values(state: State) -> dict[str, FloatArray]:
+def _band_shape_values(state: State, dim: int) -> dict[str, FloatArray]:
     """What a parabolic band would make of the bulk solve (BAND01): the Fermi level of
     n = N_c F_1/2(eta) at the solved density, the density at the solved Fermi level, and
-    alpha kT.  A parabolic band gives the solve's own values (alpha kT = 0)."""
-    band = state.electron_band
-    out: dict[str, FloatArray] = {
-        "eta_par_p": state.eta_p,
-        "dens_par_p": state.p,
-        "beta_kane_p": np.zeros_like(state.T),
-    }
-    if band is None:
-        out.update(eta_par_n=state.eta_n, dens_par_n=state.n, beta_kane_n=np.zeros_like(state.T))
-        return out
-    out["eta_par_n"] = np.asarray(fermi.inverse_fermi_dirac_half(state.n / state.Nc))
-    out["dens_par_n"] = state.Nc * np.asarray(fermi.fermi_dirac(0.5, state.eta_n))
-    out["beta_kane_n"] = band.alpha * state.kT
+    alpha kT; and each band's own Einstein ratio n/(dn/deta) (a Kane conduction band's
+    from the energy window).  A parabolic band gives the solve's own values (alpha kT = 0)."""
+    band = state.electron_band if dim == 3 else None
+    out: dict[str, FloatArray] = {}
+    for x, eta, dens in (("n", state.eta_n, state.n), ("p", state.eta_p, state.p)):
+        out[f"eta_par_{x}"], out[f"dens_par_{x}"] = eta, dens
+        out[f"beta_kane_{x}"] = np.zeros_like(state.T)
+        out[f"einstein_{x}"] = np.asarray(transport.einstein_ratio(eta, dim))
+    if band is not None:
+        out["eta_par_n"] = np.asarray(fermi.inverse_fermi_dirac_half(state.n / state.Nc))
+        out["dens_par_n"] = state.Nc * np.asarray(fermi.fermi_dirac(0.5, state.eta_n))
+        out["beta_kane_n"] = band.alpha * state.kT
+        ratio = energy_window.generalized_einstein_ratio(band, state.eta_n, state.T)
+        out["einstein_n"] = np.asarray(ratio)
     return out
 
 
