@@ -513,6 +513,19 @@ def _initial_guess(
     return np.where(n_type, eta_n, -eg_kt - eta_p)
 
 
+def _kane_start(eta_parabolic: FloatArray, beta: FloatArray, n_type: BoolArray) -> FloatArray:
+    """Newton start for a Kane conduction band from the parabolic one (n-type points).
+
+    The same density needs a lower Fermi level: degenerate, E(1 + alpha E) = E_par
+    (the T = 0 limit), solved as E = 2 E_par/(1 + sqrt(1 + 4 alpha E_par)); non-degenerate,
+    F_K ~ (1 + 15 beta/4) F_1/2 (first order in beta = alpha kT).  Only the start.
+    """
+    positive = np.maximum(eta_parabolic, 0.0)
+    degenerate = 2.0 * positive / (1.0 + np.sqrt(1.0 + 4.0 * beta * positive))
+    start = np.where(eta_parabolic > 0, degenerate, eta_parabolic) - np.log1p(3.75 * beta)
+    return np.where(n_type, start, eta_parabolic)
+
+
 # Joyce–Dixon series for the inverse of F_1/2: eta = ln u + sum A_k u^k
 # (W. B. Joyce and R. W. Dixon, Appl. Phys. Lett. 31, 354 (1977)).
 _JOYCE_DIXON = (-4.42563e-6, 1.48386e-4, -4.95009e-3, 0.353553)  # A4, A3, A2, A1
@@ -778,6 +791,8 @@ def _solve_flat(
         *_effective_levels(donors, acceptors, species, nd_total, na_total, T),
         ni,
     )
+    if kane is not None:
+        eta0 = _kane_start(eta0, kane.alpha * kT, nd_total >= na_total)
     eta, final_f, iterations = _newton(residual, eta0)
     out_eta, out_residual, out_metallic, out_narrowing = out
     out_eta[:] = eta
