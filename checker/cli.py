@@ -454,6 +454,29 @@ def _cmd_explain(args) -> int:
     return EXIT_OK
 
 
+def _solve_calculation(calc) -> dict:
+    """The state summary of one calculation: the bulk solve of its doping, or -- for a
+    sheet (2D gas, graphene), whose Fermi level its stated sheet density fixes -- the
+    engine's sheet solve, as `check` does."""
+    from .engine.regime import sheet_values
+
+    if not sheet_values.is_sheet(calc):
+        return _solve_point(
+            calc.material, calc.temperature, calc.donors, calc.acceptors, calc.band_gap_narrowing
+        )
+    import numpy as np
+
+    from .engine.regime.state_values import solve_all
+    from .engine.regime.trade_summary import trade_summary
+
+    values, errors, _ = solve_all([calc])
+    if errors:
+        raise RegimecheckError(errors[0])
+    # every row of the state table; a sheet solve has no bulk residual (shown as unknown)
+    full = {**values, "residual": np.full(1, np.nan)}
+    return {"material": calc.material.name, **trade_summary(full, 0)}
+
+
 def _cmd_state(args) -> int:
     from .inputs.calculation_file import read_calculation_file
     from .report.check_report import doping_text
@@ -465,13 +488,7 @@ def _cmd_state(args) -> int:
         errors.extend(result.errors)
         for calc in result.calculations:
             try:
-                summary = _solve_point(
-                    calc.material,
-                    calc.temperature,
-                    calc.donors,
-                    calc.acceptors,
-                    calc.band_gap_narrowing,
-                )
+                summary = _solve_calculation(calc)
             except RegimecheckError as exc:
                 errors.append(f"{calc.source}:{calc.line}: {exc}")
                 continue

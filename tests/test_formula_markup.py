@@ -55,10 +55,12 @@ def test_explain_prints_rule_expressions_as_written():
     from checker.engine.regime.rulebook import load_rules
     from checker.report.rule_text import explain_text
 
-    text = explain_text(next(r for r in load_rules() if r.id == "STAT02"))
+    rules = {r.id: r for r in load_rules()}
+    text = explain_text(rules["STAT02"])
     assert "used_mu_x*stated_or(stated_kT_q, kT_q)" in text
-    assert "einstein_ratio(dim, eta_x)" in text
-    # the relation it calls, with its formula from the relation table
-    assert "einstein_ratio(dim, eta) = F(-1 + dim/2, eta)/F(-2 + dim/2, eta)" in text
     # no pretty-printer mangling of names (subscript letters)
     assert not re.search("[ₐₑₒₓᵢᵣ]", text)
+    # a relation called by name is listed with its formula from the relation table
+    text = explain_text(rules["TRAN01"])
+    assert "conductor_resistance(used_rho, L, lambda_x, A)" in text
+    assert "conductor_resistance(rho, L, mean_free_path, A) = rho*(L + mean_free_path)/A" in text

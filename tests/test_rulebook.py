@@ -212,11 +212,11 @@ DIMENSIONS = [
         "log(stated_or(stated_dens_x, Nnet))",
     ),
     (
-        "STAT02.yaml",
-        'expression: "einstein_ratio(dim, eta_x)"',
-        'expression: "einstein_ratio(dim, eta_x*kT)"',
-        "indicator.expression",
-        "eta_x*kT",
+        "TRAN01.yaml",
+        'exact: "conductor_resistance(used_rho, L, lambda_x, A)"',
+        'exact: "conductor_resistance(used_rho, L*kT, lambda_x, A)"',
+        "corrections[0].exact",
+        "L*kT",
     ),
     (
         "CONST03.yaml",

@@ -72,10 +72,24 @@ def _where_known(compute: Compute, unit: str) -> Reader:
 
 
 def _diffusivity(x: str) -> Compute:
-    # generalized Einstein relation at the mobility the calculation uses (physics.transport)
-    return lambda get: transport.diffusion_coefficient(
-        float(get(f"used_mu_{x}")), float(get("T")), float(get(f"eta_{x}")), int(get("dim"))
-    )
+    # generalized Einstein relation at the mobility the calculation uses: the solve's own
+    # ratio n/(dn/deta) where it gives one (Kane bulk bands, sheets, linear bands), else
+    # physics.transport's parabolic form
+    def compute(get: Getter) -> float:
+        try:
+            ratio = float(get(f"einstein_{x}"))
+        except KeyError:
+            return float(
+                transport.diffusion_coefficient(
+                    float(get(f"used_mu_{x}")),
+                    float(get("T")),
+                    float(get(f"eta_{x}")),
+                    int(get("dim")),
+                )
+            )
+        return float(get(f"used_mu_{x}")) * float(get("kT_q")) * ratio
+
+    return compute
 
 
 def _field_velocity(x: str) -> Compute:
@@ -180,6 +194,36 @@ TRANSPORT = (
 )
 
 
+# a sheet (2D gas, graphene): its densities per area (the bulk rows stay unknown there)
+SHEET = (
+    *_per_carrier(
+        "{x}s_cm2",
+        "{x}_s (sheet)",
+        "{:.4g} cm^-2",
+        ("ns_{x}",),
+        lambda x: lambda get: get(f"ns_{x}"),
+        "cm^-2",
+        in_check=True,
+    ),
+    *_per_carrier(
+        "N2D_{x}_cm2",
+        "N_2D ({x})",
+        "{:.4g} cm^-2",
+        ("N2D_{x}",),
+        lambda x: lambda get: get(f"N2D_{x}"),
+        "cm^-2",
+    ),
+    SummaryField(
+        "ni_sheet_cm2",
+        "n_i (sheet)",
+        "{:.4g} cm^-2",
+        ("ni_s",),
+        _where_known(lambda get: get("ni_s"), "cm^-2"),
+        in_check=True,
+    ),
+)
+
+
 FIELDS = (
     SummaryField(
         "regime", "regime", "{}", ("regime",), lambda get: str(get("regime")), False, True
@@ -244,6 +288,7 @@ FIELDS = (
         lambda get: bool(float(get("metal_n")) > 0 or float(get("metal_p")) > 0),
     ),
     *TRANSPORT,
+    *SHEET,
     SummaryField(
         "neutrality_residual",
         "neutrality residual",
@@ -272,5 +317,5 @@ def shown_rows(rows: tuple[Row, ...], summary: dict[str, FieldValue]) -> list[tu
     return [
         (label, shown.format(summary[key]))
         for key, label, shown in rows
-        if summary[key] is not None
+        if summary[key] is not None and summary[key] == summary[key]  # NaN: unknown here
     ]
