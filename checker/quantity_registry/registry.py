@@ -376,7 +376,8 @@ QUANTITIES = (
         "einstein_x",
         "1",
         "generalized Einstein ratio (D/mu)/(kT/q) = n/(dn/deta) of the carrier's bands "
-        "(energy window: every subband, linear bands; the parabolic F_j ratio in bulk)",
+        "(energy window: every subband, linear bands, a Kane bulk band where the material "
+        "gives α; the parabolic F_j ratio otherwise)",
     ),
     _q("ni_s", "cm^-2", "intrinsic sheet density of a zero-gap sheet, n = p at E_F = E_D"),
     _q("linear", "1", "1 where the bands are linear and zero-gap (graphene), else 0"),
