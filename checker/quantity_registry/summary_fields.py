@@ -102,6 +102,22 @@ def _field_velocity(x: str) -> Compute:
     )
 
 
+def _is_linear(get: Getter) -> bool:
+    try:
+        return float(get("linear")) > 0
+    except KeyError:  # a bare bulk solve carries no band shape: gapped
+        return False
+
+
+def _gapped(compute: Reader) -> Reader:
+    # band edges E_C, E_V exist only where there is a gap; a zero-gap sheet has E_D
+    return lambda get: None if _is_linear(get) else compute(get)
+
+
+def _zero_gap(compute: Reader) -> Reader:
+    return lambda get: compute(get) if _is_linear(get) else None
+
+
 def _narrowed_ni(get: Getter) -> float:
     # shown only where the solve narrows the gap (elsewhere n_ie is n_i, the row above)
     return float(get("nie")) if float(get("bgn_on")) > 0 else math.nan
@@ -234,7 +250,7 @@ FIELDS = (
         "E_F - E_C",
         "{:+.4f} eV",
         ("eta_n", "kT"),
-        lambda get: float(get("eta_n")) * float(get("kT")) / EV,
+        _gapped(lambda get: float(get("eta_n")) * float(get("kT")) / EV),
         in_check=True,
     ),
     SummaryField(
@@ -242,7 +258,15 @@ FIELDS = (
         "E_F - E_V",
         "{:+.4f} eV",
         ("eta_p", "kT"),
-        lambda get: -float(get("eta_p")) * float(get("kT")) / EV,
+        _gapped(lambda get: -float(get("eta_p")) * float(get("kT")) / EV),
+    ),
+    SummaryField(
+        "EF_minus_ED_eV",
+        "E_F - E_D (Dirac point)",
+        "{:+.4f} eV",
+        ("eta_n", "kT", "linear"),
+        _zero_gap(lambda get: float(get("eta_n")) * float(get("kT")) / EV),
+        in_check=True,
     ),
     SummaryField(
         "eta_n", "η_n = (E_F - E_C)/kT", "{:+.3f}", ("eta_n",), _number("eta_n"), in_check=True
