@@ -84,10 +84,12 @@ stated:
 name: every key, a zero-gap sheet
 material: graphene
 temperature: 300 K
+structure: {width: 1 um}
 stated:
   net_sheet_density: 1e12 cm-2
   electron_sheet_density: 1.006e12 cm-2
   hole_sheet_density: 6e9 cm-2
+  conductance: 1e-4 S
 """
 
 

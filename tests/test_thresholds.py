@@ -129,6 +129,11 @@ DOCUMENTED = {
         "Jeong 2012, ch. 6); a factor 2 (common practice (no source))",
     ),
     "VAL05": (1.2, "the resistivity tolerance of MEAS01, 20 % (common practice (no source))"),
+    "LAND01": (
+        1.01,
+        "the ballistic limit 2q^2/h per mode (Landauer 1957, Buettiker 1986); 1 % above "
+        "three-digit rounding (common practice (no source))",
+    ),
 }
 
 
@@ -703,6 +708,39 @@ def val05(target):
     return Point(_calc("Si", 300.0, {"P": 1e15}, extra=extra), stated / expected, "electrons")
 
 
+def ballistic_limit_of_sheet(material, n_s_cm2, width_m, T=300.0):
+    """2q^2/h x W <M> of a parabolic 2D gas: <M> = ∫ M(E)(-df/dE) dE with
+    M(E) = g_v sqrt(2 m* E)/(pi hbar) per spin and width (Lundstrom & Jeong 2012, ch. 2),
+    eta from n_s = N_2D ln(1 + e^eta), N_2D = g_v m* kT/(pi hbar^2); mpmath quadrature,
+    G_0 = 2e^2/h from scipy.constants."""
+    (band,) = material.bands("electron", 2)
+    kT, m = K_B * T, band.mass * sc.m_e
+    g_v = band.valley_degeneracy
+    n2d = g_v * m * kT / (math.pi * sc.hbar**2)
+    with mp.workdps(30):
+        eta = mp.log(mp.expm1(n_s_cm2 / CM2 / n2d))
+
+        def weighted(x):  # x = E/kT; -df/dE = f(1 - f)/kT
+            f = 1 / (1 + mp.exp(x - eta))
+            return g_v * mp.sqrt(2 * m * x * kT) / (mp.pi * sc.hbar) * f * (1 - f)
+
+        modes = mp.quad(weighted, [0, eta + 1 if eta > 0 else 1, mp.inf])
+    return 2 * sc.e**2 / sc.h * width_m * float(modes)
+
+
+def land01(target):
+    # a GaN 2D gas (parabolic band) 1 um wide at 1e13 cm^-2, its stated conductance a
+    # factor from the ballistic limit of its modes in the energy window
+    gan = load_material("GaN")
+    bound = ballistic_limit_of_sheet(gan, 1e13, 1e-6)
+    stated = _num(bound * target)
+    extra = (
+        "structure: {dimensionality: 2, width: 1 um, length: 0.05 um}\n"
+        f"stated:\n  electron_sheet_density: 1e13 cm-2\n  conductance: {stated:.12e} S\n"
+    )
+    return Point(_calc("GaN", 300.0, extra=extra), stated / bound, None)
+
+
 BUILDERS = {
     "STAT01": [stat01],
     "STAT02": [stat02, stat02_2d],
@@ -735,6 +773,7 @@ BUILDERS = {
     "VAL03": [val03],
     "VAL04": [val04],
     "VAL05": [val05],
+    "LAND01": [land01],
 }
 CASES = [(rule, build) for rule in sorted(THRESHOLDS) for build in BUILDERS.get(rule, [])]
 

@@ -42,6 +42,7 @@ DIMENSIONS = {
     "resistance": ("ohm", "1.5 kohm"),
     "sheet resistance": ("ohm", "250 ohm/sq"),
     "sheet density": ("m**-2", "1e12 cm-2"),
+    "conductance": ("S", "2.5e-4 S"),
 }
 
 # unit text (normalised: spaces removed, see _normal_unit) -> (dimension name, factor to SI)
@@ -97,6 +98,9 @@ UNITS = {
     "kohm": ("resistance", 1e3),
     "ohm/sq": ("sheet resistance", 1.0),
     "kohm/sq": ("sheet resistance", 1e3),
+    "S": ("conductance", 1.0),
+    "mS": ("conductance", 1e-3),
+    "uS": ("conductance", 1e-6),
     "eV*cm": ("energy times length", EV * _CM),
 }
 # A decimal number in ASCII digits, optionally times a power of ten written the trade

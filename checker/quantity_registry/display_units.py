@@ -50,6 +50,7 @@ UNIT_KINDS = {
     "S/cm": "conductivity",
     "ohm": "resistance",
     "ohm/sq": "sheet resistance",
+    "S": "conductance",
     "nm": "length",
     "um": "length",
     "um^2": "area",

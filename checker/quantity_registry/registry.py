@@ -403,6 +403,21 @@ QUANTITIES = (
         _D,
     ),
     _q("Rs", "ohm/sq", "sheet resistance 1/sigma_s of the corrected calculation", _D),
+    # ---- ballistic and quasi-ballistic conductors (LAND01) -------------------------------------
+    _q(
+        "modes_w",
+        "cm^-1",
+        "conducting modes per width of a sheet in the energy window, <M> = ∫ M(E)(-df/dE) dE "
+        "summed over its bands as 2q^2/h counts them (NaN in a bulk calculation)",
+    ),
+    _q("modes", "1", "conducting modes of a sheet of the given width: modes_w times width", _D),
+    _q(
+        "G_ballistic",
+        "S",
+        "ballistic limit of the conductor, 2q^2/h (exact, SI 2019) times its modes",
+        _D,
+    ),
+    _stated("stated_G", "S", "stated conductance of the conductor", ("conductance",)),
     # ---- constants (CODATA 2022, physics/constants.py) ------------------------------------------
     # (their SI units: constants are never shown in a display unit)
     _q("q", "C", "elementary charge", Source.CONSTANT, symbols=("q",), value=ELEMENTARY_CHARGE),

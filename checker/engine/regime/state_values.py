@@ -394,6 +394,9 @@ def fill_inputs(
         field,
         structure("voltage") / values["L"],
     )
+    # a sheet's modes in the energy window over its width, and their ballistic limit (LAND01)
+    values["modes"] = values["modes_w"] * structure("width")
+    values["G_ballistic"] = energy_window.LANDAUER_QUANTUM * values["modes"]
     for name in _STATED:
         values[name] = stated(name)
     sigma, rho = values["stated_sigma"], values["stated_rho"]
