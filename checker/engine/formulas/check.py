@@ -267,6 +267,12 @@ def operating_values(values: Values, calculations: Sequence[Calculation]) -> lis
     known["E_v"] = np.zeros(count)
     known["E_c"] = np.asarray(values["Eg"], dtype=float)
     known["E_F"] = known["E_c"] + values["eta_n"] * kT
+    # D from the solve's own Einstein ratio n/(dn/deta): the relation table's F_j ratio holds
+    # for parabolic bands only (a Kane bulk band, a sheet's subbands, a linear band differ)
+    for x in ("n", "p"):
+        known[f"D_{x}"] = np.asarray(
+            values[f"used_mu_{x}"] * values["kT_q"] * values[f"einstein_{x}"], dtype=float
+        )
     for symbol, name in _FROM_INPUTS.items():
         known[symbol] = np.array(
             [c.structure.get(name, c.stated.get(name, np.nan)) for c in calculations], dtype=float
