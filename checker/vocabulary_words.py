@@ -40,6 +40,7 @@ TOLERANCE_NAMES = (
     "drift_velocity",
     "mean_free_path",
     "resistance",
+    "conductance",
 )
 
 

@@ -93,3 +93,23 @@ def test_conductance_in_a_wrong_unit_names_the_line_and_exits_2(tmp_path):
     shown = result.stdout + result.stderr
     assert "sheet.yaml:6" in shown and "conductance" in shown
     assert "Traceback" not in shown
+
+
+def test_landauer_value_of_a_long_sheet_is_the_diffusive_conductance():
+    # L >> lambda: (2q^2/h) W <M> lambda/(lambda + L) -> sigma_s W/L with sigma_s = q n_s mu
+    # (Lundstrom & Jeong 2012, ch. 3 and 6); a GaN 2D gas 1 um wide and 1 cm long
+    from checker.engine.regime import state_values
+
+    text = (
+        "material: GaN\ntemperature: 300 K\n"
+        "structure: {dimensionality: 2, width: 1 um, length: 1 cm}\n"
+        "stated:\n  electron_sheet_density: 1e13 cm-2\n"
+        "  electron_mobility: 1500 cm^2/(V*s)\n  conductance: 1e-6 S\n"
+    )
+    read = parse_calculations(text, "long.yaml")
+    values, errors, _ = state_values.solve_all(read.calculations)
+    assert not errors
+    diffusive = sc.e * 1e17 * 0.15 * 1e-6 / 1e-2  # q n_s mu W/L in SI
+    # lambda is about 126 nm, so the Landauer value lies 1.3e-5 below the diffusive one
+    assert values["G_landauer"][0] == pytest.approx(diffusive, rel=3e-5)
+    assert values["G_landauer"][0] < diffusive

@@ -84,8 +84,9 @@ stated:
 name: every key, a zero-gap sheet
 material: graphene
 temperature: 300 K
-structure: {width: 1 um}
+structure: {width: 1 um, length: 0.5 um}
 stated:
+  electron_mobility: 5000 cm^2/(V*s)
   net_sheet_density: 1e12 cm-2
   electron_sheet_density: 1.006e12 cm-2
   hole_sheet_density: 6e9 cm-2

@@ -134,6 +134,7 @@ DOCUMENTED = {
         "the ballistic limit 2q^2/h per mode (Landauer 1957, Buettiker 1986); 1 % above "
         "three-digit rounding (common practice (no source))",
     ),
+    "LAND02": (1.2, "the resistance tolerance of VAL05, 20 % (common practice (no source))"),
 }
 
 
@@ -708,11 +709,10 @@ def val05(target):
     return Point(_calc("Si", 300.0, {"P": 1e15}, extra=extra), stated / expected, "electrons")
 
 
-def ballistic_limit_of_sheet(material, n_s_cm2, width_m, T=300.0):
-    """2q^2/h x W <M> of a parabolic 2D gas: <M> = ∫ M(E)(-df/dE) dE with
-    M(E) = g_v sqrt(2 m* E)/(pi hbar) per spin and width (Lundstrom & Jeong 2012, ch. 2),
-    eta from n_s = N_2D ln(1 + e^eta), N_2D = g_v m* kT/(pi hbar^2); mpmath quadrature,
-    G_0 = 2e^2/h from scipy.constants."""
+def _sheet_modes(material, n_s_cm2, T=300.0):
+    """<M> = ∫ M(E)(-df/dE) dE (per m of width) of a parabolic 2D gas at sheet density
+    n_s: M(E) = g_v sqrt(2 m* E)/(pi hbar) per spin (Lundstrom & Jeong 2012, ch. 2), eta
+    from n_s = N_2D ln(1 + e^eta), N_2D = g_v m* kT/(pi hbar^2); mpmath quadrature."""
     (band,) = material.bands("electron", 2)
     kT, m = K_B * T, band.mass * sc.m_e
     g_v = band.valley_degeneracy
@@ -724,21 +724,39 @@ def ballistic_limit_of_sheet(material, n_s_cm2, width_m, T=300.0):
             f = 1 / (1 + mp.exp(x - eta))
             return g_v * mp.sqrt(2 * m * x * kT) / (mp.pi * sc.hbar) * f * (1 - f)
 
-        modes = mp.quad(weighted, [0, eta + 1 if eta > 0 else 1, mp.inf])
-    return 2 * sc.e**2 / sc.h * width_m * float(modes)
+        return float(mp.quad(weighted, [0, eta + 1 if eta > 0 else 1, mp.inf]))
+
+
+G_0 = 2 * sc.e**2 / sc.h  # conductance quantum, exact in the SI (scipy.constants)
+
+
+def _gan_sheet(stated):
+    # a GaN 2D gas (parabolic band) at 1e13 cm^-2, 1 um wide and 0.3 um long
+    extra = (
+        "structure: {dimensionality: 2, width: 1 um, length: 0.3 um}\n"
+        f"stated:\n  electron_sheet_density: 1e13 cm-2\n{stated}"
+    )
+    return _calc("GaN", 300.0, extra=extra)
 
 
 def land01(target):
-    # a GaN 2D gas (parabolic band) 1 um wide at 1e13 cm^-2, its stated conductance a
-    # factor from the ballistic limit of its modes in the energy window
-    gan = load_material("GaN")
-    bound = ballistic_limit_of_sheet(gan, 1e13, 1e-6)
+    # stated conductance a factor from the ballistic limit 2q^2/h W <M>
+    bound = G_0 * 1e-6 * _sheet_modes(load_material("GaN"), 1e13)
     stated = _num(bound * target)
-    extra = (
-        "structure: {dimensionality: 2, width: 1 um, length: 0.05 um}\n"
-        f"stated:\n  electron_sheet_density: 1e13 cm-2\n  conductance: {stated:.12e} S\n"
-    )
-    return Point(_calc("GaN", 300.0, extra=extra), stated / bound, None)
+    return Point(_gan_sheet(f"  conductance: {stated:.12e} S\n"), stated / bound, None)
+
+
+def land02(target):
+    # Landauer G = 2q^2/h W <M> lambda/(lambda + L) with an energy-independent lambda, which
+    # gives the diffusive sigma_s = 2q^2/h <M> lambda = q n_s mu (Lundstrom & Jeong 2012,
+    # ch. 3 and 6): lambda = q n_s mu/(2q^2/h <M>); the stated conductance above it
+    modes = _sheet_modes(load_material("GaN"), 1e13)
+    sigma_s = sc.e * 1e13 / CM2 * 1500.0 * CM2  # S per square
+    lam = sigma_s / (G_0 * modes)
+    landauer = G_0 * 1e-6 * modes * lam / (lam + 0.3e-6)
+    stated = _num(landauer * target)
+    text = _gan_sheet(f"  electron_mobility: 1500 cm^2/(V*s)\n  conductance: {stated:.12e} S\n")
+    return Point(text, stated / landauer, None)
 
 
 BUILDERS = {
@@ -774,6 +792,7 @@ BUILDERS = {
     "VAL04": [val04],
     "VAL05": [val05],
     "LAND01": [land01],
+    "LAND02": [land02],
 }
 CASES = [(rule, build) for rule in sorted(THRESHOLDS) for build in BUILDERS.get(rule, [])]
 

@@ -234,7 +234,7 @@ QUANTITIES = (
     _structure("L", "um", "conductor length", "length", symbols=("L",)),
     _structure("A", "um^2", "cross-section (thickness x width)", "cross_section", symbols=("A",)),
     _structure("thickness", "um", "layer thickness", "thickness", symbols=("t",)),
-    _structure("width", "um", "conductor width", "width", symbols=("W",), in_rules=False),
+    _structure("width", "um", "conductor width", "width", symbols=("W",)),
     _structure("field", "kV/cm", "applied field (or voltage/length)", "field", symbols=("E",)),
     _structure("voltage", "V", "applied voltage", "voltage", in_rules=False),
     # ---- numbers the author states (in the order the schema lists them) -------------------------
@@ -405,16 +405,28 @@ QUANTITIES = (
     _q("Rs", "ohm/sq", "sheet resistance 1/sigma_s of the corrected calculation", _D),
     # ---- ballistic and quasi-ballistic conductors (LAND01) -------------------------------------
     _q(
-        "modes_w",
+        "modes_w_x",
         "cm^-1",
-        "conducting modes per width of a sheet in the energy window, <M> = ∫ M(E)(-df/dE) dE "
-        "summed over its bands as 2q^2/h counts them (NaN in a bulk calculation)",
+        "conducting modes per width of the carrier's sheet bands in the energy window, "
+        "<M> = ∫ M(E)(-df/dE) dE as 2q^2/h counts them (NaN in a bulk calculation)",
     ),
-    _q("modes", "1", "conducting modes of a sheet of the given width: modes_w times width", _D),
+    _q(
+        "modes",
+        "1",
+        "conducting modes of a sheet of the given width: (modes_w_n + modes_w_p) times width",
+        _D,
+    ),
     _q(
         "G_ballistic",
         "S",
         "ballistic limit of the conductor, 2q^2/h (exact, SI 2019) times its modes",
+        _D,
+    ),
+    _q(
+        "G_landauer",
+        "S",
+        "Landauer conductance of a sheet of the given width and length: the sum over the "
+        "carriers of (2q^2/h) W <M> lambda/(lambda + L), lambda_x of the corrected calculation",
         _D,
     ),
     _stated("stated_G", "S", "stated conductance of the conductor", ("conductance",)),

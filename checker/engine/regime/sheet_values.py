@@ -82,7 +82,6 @@ def solve_sheet_points(
         put[f"cond_{x}"] = np.ones_like(T)
     if is_linear(first.material):
         put.update(_linear_sheet(first.material, T, kT, given))
-        _add_modes(put, T)
         band = first.material.bands("electron", 2)[0]
         note = (
             "zero-gap sheet statistics (linear bands, both carriers): n_i = "
@@ -105,7 +104,6 @@ def solve_sheet_points(
             f"2D statistics of the {_BAND[x]}s ({count} subband{'s' * (count > 1)}, "
             f"N_2D = {_sheet_text(_edge_density(lowest, T))} cm-2)"
         )
-    _add_modes(put, T)
     majority_n = np.nan_to_num(put.get("ns_n", 0.0)) >= np.nan_to_num(put.get("ns_p", 0.0))
     put["maj_n"], put["maj_p"] = majority_n.astype(float), (~majority_n).astype(float)
     put["subbands"] = np.full_like(T, float(len(first.subband_energies) or 1))
@@ -157,7 +155,7 @@ def _carrier_values(
     x: Carrier, bands: tuple[Band, ...], eta: FloatArray, T: FloatArray
 ) -> dict[str, ArrayIn]:
     """Density, Einstein ratio, <v_x+> and the modes per width of one carrier at eta (NaN
-    where eta is; ``modes_w_x`` is summed over the carriers by _add_modes)."""
+    where eta is)."""
     names = (f"ns_{x}", f"einstein_{x}", f"vth_{x}", f"modes_w_{x}")
     out = {name: np.full_like(T, np.nan) for name in names}
     ok = np.isfinite(eta)
@@ -169,13 +167,6 @@ def _carrier_values(
         ballistic = energy_window.ballistic_conductance(bands, eta[ok], T[ok])
         out[f"modes_w_{x}"][ok] = ballistic / energy_window.LANDAUER_QUANTUM
     return dict(out)
-
-
-def _add_modes(put: dict[str, ArrayIn], T: FloatArray) -> None:
-    """modes_w: the conducting modes per width of both carriers (an absent one adds none)."""
-    parts = [np.broadcast_to(put.pop(f"modes_w_{x}", np.nan), T.shape) for x in Carrier]
-    counted = np.isfinite(parts[0]) | np.isfinite(parts[1])
-    put["modes_w"] = np.where(counted, np.nansum(parts, axis=0), np.nan)
 
 
 def _linear_sheet(

@@ -380,7 +380,7 @@ def fill_inputs(
     def stated(name: str) -> FloatArray:
         return column(lambda c: c.stated.get(name, np.nan))
 
-    for name in ("L", "thickness"):
+    for name in ("L", "thickness", "width"):
         values[name] = structure(name)
     area = structure("A")
     values["A"] = np.where(
@@ -395,7 +395,7 @@ def fill_inputs(
         structure("voltage") / values["L"],
     )
     # a sheet's modes in the energy window over its width, and their ballistic limit (LAND01)
-    values["modes"] = values["modes_w"] * structure("width")
+    values["modes"] = _carrier_sum([values[f"modes_w_{x}"] for x in Carrier]) * values["width"]
     values["G_ballistic"] = energy_window.LANDAUER_QUANTUM * values["modes"]
     for name in _STATED:
         values[name] = stated(name)
@@ -470,11 +470,32 @@ def derive_corrected(values: Values, replaced: Replaced) -> None:
         np.isfinite(stated_rho) & kept("used_rho"), stated_rho, values["rho"]
     )
     # a sheet: sheet conductance of the carriers it holds (an absent carrier adds nothing)
-    parts = [values[f"ns_{x}"] * values[f"used_mu_{x}"] for x in Carrier]
-    counted = np.isfinite(parts[0]) | np.isfinite(parts[1])
-    total = np.nansum(parts, axis=0)
-    values["sigma_s"] = np.where(counted, ELEMENTARY_CHARGE * total, np.nan)
+    values["sigma_s"] = ELEMENTARY_CHARGE * _carrier_sum(
+        [values[f"ns_{x}"] * values[f"used_mu_{x}"] for x in Carrier]
+    )
     values["Rs"] = 1.0 / values["sigma_s"]
+    # Landauer conductance with T = lambda/(lambda + L): lambda_x does not depend on the
+    # energy, so the window integral is the modes times T (Lundstrom & Jeong 2012, ch. 3)
+    values["G_landauer"] = (
+        energy_window.LANDAUER_QUANTUM
+        * values["width"]
+        * _carrier_sum(
+            [
+                values[f"modes_w_{x}"]
+                * values[f"lambda_{x}"]
+                / (values[f"lambda_{x}"] + values["L"])
+                for x in Carrier
+            ]
+        )
+    )
+
+
+def _carrier_sum(parts: list[FloatArray]) -> FloatArray:
+    """The sum over the carriers a sheet holds (an absent one, NaN, adds nothing; NaN where
+    neither is known)."""
+    counted = np.isfinite(parts[0]) | np.isfinite(parts[1])
+    total: FloatArray = np.where(counted, np.nansum(parts, axis=0), np.nan)
+    return total
 
 
 def _symmetric_cones(values: Values) -> None:
