@@ -223,3 +223,18 @@ def test_two_stated_numbers_on_one_line_are_checked_apart(tmp_path):
         "stated: {resistivity: 0.05 ohm*cm, resistance: 12500 ohm}\n",
     )
     assert {f.rule for f in report.findings} >= {"MEAS01", "VAL05"}
+
+
+def test_every_format_renders_sheets_and_zero_gap_sheets(tmp_path, monkeypatch):
+    # a 2D gas and a graphene sheet have no bulk densities or band edges: every report
+    # format must still render them (the Markdown state line once raised on E_F - E_C)
+    from checker.cli import main
+
+    monkeypatch.chdir(ROOT)
+    files = ["examples/lh9_gan_hemt_channel.yaml", "examples/lq2_graphene_sensor.yaml"]
+    for suffix in (".md", ".json", ".sarif", ".xml", ".html", ".txt"):
+        out = tmp_path / f"report{suffix}"
+        assert main(["check", *files, "--output", str(out), "--exit-zero"]) == 0, suffix
+        assert "graphene" in out.read_text(encoding="utf-8"), suffix
+    text = (tmp_path / "report.md").read_text(encoding="utf-8")
+    assert "E\\_F - E\\_D (Dirac point) =" in text and "n\\_s (sheet) =" in text

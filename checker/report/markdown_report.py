@@ -10,6 +10,7 @@ from __future__ import annotations
 import re
 
 from ..quantity_registry.number_text import display
+from ..quantity_registry.summary_fields import CHECK_ROWS, shown_rows
 from . import DISCLAIMER
 from .check_report import also_lines, formula_lines, point_text, summary_line
 from .safe_text import visible
@@ -85,14 +86,14 @@ def render_markdown(result, exit_code: int) -> str:
         if report.sweep:
             lines.append(_cell(f"Sweep of {report.sweep['points']} grid points."))
         else:
-            lines.append(
-                f"Regime **{_cell(state['regime'])}**; "
-                + _cell(
-                    f"E_F − E_C = {state['EF_minus_EC_eV']:+.4f} eV (η_n = {state['eta_n']:+.3f}); "
-                    f"n = {state['n_cm3']:.4g} cm⁻³, p = {state['p_cm3']:.4g} cm⁻³; "
-                    f"n_i = {state['ni_cm3']:.4g} cm⁻³."
-                )
-            )
+            # the rows of the check report's state table that have a value here (a sheet or
+            # a zero-gap sheet has no bulk densities or band edges)
+            shown = [
+                f"{label} = {text.strip()}"
+                for label, text in shown_rows(CHECK_ROWS, state)
+                if label != "regime"
+            ]
+            lines.append(f"Regime **{_cell(state['regime'])}**; " + _cell("; ".join(shown) + "."))
         lines.append("")
         if report.formulas:
             lines += ["| formula | line | what it is | here |", "|---|---|---|---|"]
