@@ -101,3 +101,22 @@ def test_a_file_that_is_not_utf8_names_the_first_bad_byte(tmp_path, name, data, 
     assert error.startswith(f"{path}:{line}:{column}: not UTF-8 text: byte 0xE9 ")
     assert f"at byte offset {offset} " in error and "save the" in error
     assert path.read_bytes() == data  # never modified
+
+
+def test_an_absurd_sheet_density_is_refused_once(tmp_path):
+    # a monolayer of atoms is ~1e15 cm^-2: 1e30 cm^-2 is a slipped exponent, refused with
+    # its line, and the sheet is not also told to "state a sheet density"
+    from checker.cli import main
+
+    path = tmp_path / "sheet.yaml"
+    path.write_text(
+        "material: GaN-AlGaN\ntemperature: 300 K\nstated: {electron_sheet_density: 1e30 cm-2}\n",
+        encoding="utf-8",
+    )
+    out = tmp_path / "report.json"
+    assert main(["check", str(path), "--output", str(out)]) == 2
+    import json
+
+    errors = json.loads(out.read_text(encoding="utf-8"))["input_errors"]
+    assert len(errors) == 1 and "not a plausible sheet density" in errors[0]
+    assert errors[0].startswith(f"{path}:3:")

@@ -235,8 +235,12 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     lines: dict[str, int] = {}
     structure = problems.run(_structure, data, where, lines, default={})
     subbands = problems.run(_subband_energies, data, where, default=())
+    known = len(problems.messages)
     stated = problems.run(_quantities, data, "stated", STATED_KEYS, where, lines, default={})
-    if material is not None and structure is not None and stated is not None:
+    # a stated section that could not be read says so itself: judging the sheet's inputs
+    # from what is left would only add "state a sheet density" beside a refused one
+    stated_read = len(problems.messages) == known
+    if material is not None and structure is not None and stated is not None and stated_read:
         problems.run(_sheet_fit, material, structure, stated, groups or {}, subbands, where)
     assumes = problems.run(_assumptions, data.get("assumes"), where, default={})
     waivers = problems.run(_waivers, data.get("waivers"), where, default={})

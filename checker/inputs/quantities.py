@@ -292,6 +292,13 @@ def _registry():
 PLAUSIBLE = {
     "temperature": (1.0, 3000.0, "regimecheck solves 1 K to 3000 K (silicon melts at 1687 K)"),
     "density": (0.0, 1e29, "no semiconductor has more than ~1e23 atoms per cm^3"),
+    # signed: a zero-gap sheet's net density n - p may be negative
+    "sheet density": (
+        -1e20,
+        1e20,
+        "a sheet holds far less than 1e16 cm^-2 (a monolayer of atoms is ~1e15 cm^-2)",
+    ),
+    "conductance": (0.0, 1e9, "conductances above 1e9 S are not those of a device"),
     "length": (1e-10, 1.0, "lengths between 0.1 nm and 1 m are accepted"),
     "area": (1e-20, 1.0, "cross-sections between 0.01 nm^2 and 1 m^2 are accepted"),
     "field": (0.0, 1e10, "fields above 1e8 V/cm exceed any breakdown field"),
