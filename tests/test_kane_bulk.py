@@ -188,3 +188,43 @@ def test_two_d_kane_modes_below_against_mpmath(alpha_ev):
             a = mp.mpf(band.alpha)
             expected = mp.quad(lambda E, a=a: mp.sqrt(c * E * (1 + a * E)) / mp.pi, [0, energy])
         assert value == pytest.approx(float(expected), rel=1e-12)
+
+
+def test_a_cold_undoped_kane_crystal_is_checked_like_any_other(tmp_path):
+    # fuzz reproduction: an InGaAs sweep down to 1.05 K underflows n to 0; the parabolic
+    # Fermi level of BAND01 must not stop the run (it is the solve's own there: Boltzmann)
+    from checker.engine.run import check_paths
+
+    path = tmp_path / "cold.yaml"
+    path.write_text(
+        "material: InGaAs\ntemperature: {from: 0 degC, to: -272.1 degC, steps: 2}\n"
+        "assumes: [non-degenerate]\n"
+        "---\nmaterial: Si\ntemperature: 300 K\ndoping: {donors: {P: 1e16 cm-3}}\n",
+        encoding="utf-8",
+    )
+    result = check_paths([str(path)])
+    assert not result.input_errors, result.input_errors
+    assert len(result.reports) == 2 and all(r.error is None for r in result.reports)
+
+
+def test_a_sweep_the_solve_cannot_finish_loses_only_itself(tmp_path, monkeypatch):
+    # the run's other calculations are still checked when one sweep's solve fails
+    from checker.engine.regime import sweep
+    from checker.engine.run import check_paths
+    from checker.errors import ConvergenceError
+
+    def fails(*args, **kwargs):
+        raise ConvergenceError("the solve did not converge on this grid")
+
+    monkeypatch.setattr(sweep, "rule_grid", fails)
+    path = tmp_path / "two.yaml"
+    path.write_text(
+        "material: Si\ntemperature: {from: 250 K, to: 400 K, steps: 4}\n"
+        "doping: {donors: {P: 1e16 cm-3}}\n"
+        "---\nmaterial: Si\ntemperature: 300 K\ndoping: {donors: {P: 1e16 cm-3}}\n",
+        encoding="utf-8",
+    )
+    result = check_paths([str(path)])
+    first, second = result.reports
+    assert "did not converge" in first.error and first.error.startswith(f"{path}:1")
+    assert second.error is None and second.state is not None

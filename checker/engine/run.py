@@ -13,6 +13,7 @@ from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from ..errors import RegimecheckError
 from ..inputs.calculation_file import Calculation
 from ..inputs.config import Config, check_rule_ids
 from ..inputs.sources import read_input
@@ -118,7 +119,14 @@ def check_calculations(
         if calc.sweep:
             from .regime.sweep import check_sweep  # imported only for a sweep
 
-            by_index[i], sweep_errors = check_sweep(calc, rules, progress)
+            try:
+                by_index[i], sweep_errors = check_sweep(calc, rules, progress)
+            except RegimecheckError as exc:
+                # a grid the solve cannot finish loses this sweep, not the other calculations
+                by_index[i] = CalculationReport(
+                    calc, None, error=f"{calc.source}:{calc.line}: {exc}"
+                )
+                continue
             errors += sweep_errors
     ordered = [by_index[i] for i in range(len(calculations))]
     waivers = apply_waivers(rules, calculations, [r.findings for r in ordered], config)

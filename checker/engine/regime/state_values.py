@@ -301,7 +301,15 @@ def _band_shape_values(state: State, dim: int) -> dict[str, FloatArray]:
         out[f"beta_kane_{x}"] = np.zeros_like(state.T)
         out[f"einstein_{x}"] = np.asarray(transport.einstein_ratio(eta, dim))
     if band is not None:
-        out["eta_par_n"] = np.asarray(fermi.inverse_fermi_dirac_half(state.n / state.Nc))
+        # a density that underflows (a cold, undoped crystal) is deep in the Boltzmann
+        # regime, where the Kane and the parabolic band give the same Fermi level
+        u = state.n / state.Nc
+        tiny = ~(np.isfinite(u) & (u > 1e-300))
+        out["eta_par_n"] = np.where(
+            tiny,
+            state.eta_n,
+            np.asarray(fermi.inverse_fermi_dirac_half(np.where(tiny, 1.0, u))),
+        )
         out["dens_par_n"] = state.Nc * np.asarray(fermi.fermi_dirac(0.5, state.eta_n))
         out["beta_kane_n"] = band.alpha * state.kT
         ratio = energy_window.generalized_einstein_ratio(band, state.eta_n, state.T)
