@@ -113,6 +113,24 @@ def test_diffusivity_follows_the_corrected_mobility(tmp_path):
     )
 
 
+def test_a_mobility_above_the_lattice_limit_draws_one_verdict(tmp_path):
+    # Si:P 1e18 at 300 K stated at 1500 cm^2/(V s): above the lattice-limited 1414 of
+    # Masetti et al., IEEE Trans. Electron Devices 30, 764 (1983) (MOB02, an error) and far
+    # from the doped value, about 280 there (MOB01, a warning): one finding, the error,
+    # with the one correction both would give
+    (report,) = _check(
+        tmp_path,
+        "material: Si\ntemperature: 300 K\ndoping: {donors: {P: 1e18 cm-3}}\n"
+        "stated:\n  electron_mobility: 1500 cm^2/(V*s)\n",
+    )
+    on_mobility = [
+        f for f in report.findings if any(c.key == "electron_mobility" for c in f.corrections)
+    ]
+    assert [f.rule for f in on_mobility] == ["MOB02"]
+    (correction,) = on_mobility[0].corrections
+    assert 200 * CM2 < correction.corrected < 350 * CM2
+
+
 def test_resistance_follows_the_corrected_resistivity(tmp_path):
     # a resistivity stated 10x off (MEAS01) and R = rho L/A from it: R is corrected with
     # the calculation's rho, R = rho (L + lambda)/A (Lundstrom & Jeong, Near-Equilibrium

@@ -8,6 +8,7 @@ from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, TypedDict
 
 from ...quantity_registry.summary_fields import FieldValue
+from ...vocabulary_words import Severity
 from ..findings import Embodied, Finding
 from . import state_values
 from .corrected import CorrectedEntry, corrected_set, quantity_key
@@ -107,8 +108,36 @@ def one_finding_per_stated_number(findings: list[Finding]) -> list[Finding]:
     explained: set[tuple[str, str | int]] = set().union(
         *(stated(f) for f in findings if not f.rule.startswith(VALUE_RULES))
     )
-    return [
+    kept = [
         f
         for f in findings
         if not (f.rule.startswith(VALUE_RULES) and stated(f) and stated(f) <= explained)
+    ]
+    return _one_verdict_per_correction(kept)
+
+
+def _one_verdict_per_correction(findings: list[Finding]) -> list[Finding]:
+    """Of two rules guarding the same assumption that correct the same stated number to
+    the same value (a mobility above the lattice limit is also far from the doping model:
+    MOB02, an error, and MOB01, a warning), keep the more severe one: the milder would
+    repeat the correction under a weaker verdict.  Rules of different assumptions each
+    name their own cause and stay."""
+
+    def corrected(f: Finding) -> set[tuple[str, str, str | int, float]]:
+        return {
+            (f.assumption, f.file, c.key if c.key else f.line, float(f"{c.corrected:.9g}"))
+            for c in f.corrections
+            if c.from_author
+        }
+
+    worst: dict[tuple[str, str, str | int, float], int] = {}
+    for f in findings:
+        for item in corrected(f):
+            worst[item] = max(worst.get(item, -1), Severity(f.severity).rank)
+    return [
+        f
+        for f in findings
+        if not (
+            corrected(f) and all(worst[item] > Severity(f.severity).rank for item in corrected(f))
+        )
     ]
