@@ -269,6 +269,13 @@ DIMENSIONS = [
         "rho)/A",
     ),
     (
+        "DOPE02.yaml",
+        "within: 0.02, exact: eta_x}",
+        "within: 0.02, exact: T}",
+        "applies.implied_by[0].exact",
+        "exact: T}",
+    ),
+    (
         "CARR01.yaml",
         "    unit: S/cm\n    stated: stated_sigma\n",
         "    unit: S/cm\n    stated: stated_R\n",

@@ -86,7 +86,8 @@ def explain_text(rule) -> str:
     if rule.declared:
         applies.append("the author declares " + " or ".join(rule.declared))
     for imp in rule.implied_by:
-        applies.append(f"{imp.stated} equals {imp.shortcut.text} within {imp.within:.0%}")
+        nearer = f" and lies nearer it than {imp.exact.text}" if imp.exact else ""
+        applies.append(f"{imp.stated} equals {imp.shortcut.text} within {imp.within:.0%}{nearer}")
     if rule.when is not None:
         applies.append(f"and only where {rule.when.text} is non-zero")
     sign = ">" if rule.relation == "above" else "<"

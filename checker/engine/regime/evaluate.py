@@ -214,8 +214,11 @@ def rule_mask(
         )
         # near a rule's threshold the shortcut and the exact value lie closer together than
         # the match window: a stated number nearer the exact value was not made with the
-        # shortcut (the rule's own correction of that number gives the exact value)
-        exact = next((c.exact for c in rule.corrections if c.stated == imp.stated), None)
+        # shortcut (the implication's own exact value, else the rule's correction of that
+        # number gives it)
+        exact = imp.exact or next(
+            (c.exact for c in rule.corrections if c.stated == imp.stated), None
+        )
         if exact is not None:
             right = np.asarray(exact.run[x](values), dtype=float)
             mask &= ~(np.abs(np.log(stated / right)) < np.abs(np.log(stated / shortcut)))

@@ -129,7 +129,14 @@ EXPRESSION_RULE = Block(
                             "stated": _QUANTITY,
                             "shortcut": _EXPRESSION,
                             "within": Number(above=0, about="relative tolerance, e.g. 0.02"),
-                        }
+                            "exact": Expression(
+                                expression.MAX_LENGTH,
+                                "the exact value of the stated number (default: the exact "
+                                "value of the rule's correction of it): a stated number "
+                                "nearer this than the shortcut was not made with it",
+                            ),
+                        },
+                        optional=("exact",),
                     ),
                     about="a stated number equal to a shortcut within a tolerance",
                 ),
@@ -250,6 +257,7 @@ class Implication:
     stated: str
     shortcut: Compiled
     within: float
+    exact: Compiled | None = None  # the stated number's exact value, if no correction has it
 
 
 @dataclass
@@ -462,6 +470,13 @@ class _Builder:
                     (name_dimension(entry["stated"]), entry["stated"]),
                 ),
                 float(entry["within"]),
+                self.compile(
+                    entry["exact"],
+                    ("applies", "implied_by", i, "exact"),
+                    (name_dimension(entry["stated"]), entry["stated"]),
+                )
+                if "exact" in entry
+                else None,
             )
             for i, entry in enumerate(applies.get("implied_by", ()))
         ]
