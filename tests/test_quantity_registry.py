@@ -91,6 +91,14 @@ stated:
   electron_sheet_density: 1.006e12 cm-2
   hole_sheet_density: 6e9 cm-2
   conductance: 1e-4 S
+---
+name: every key, a 1D wire
+material: GaAs
+temperature: 300 K
+structure: {dimensionality: 1}
+stated:
+  electron_line_density: 2e6 cm-1
+  hole_line_density: 1e3 cm-1
 """
 
 

@@ -113,6 +113,16 @@ def section(name: str) -> dict:
                 }
             else:
                 properties[key] = quantity(q.kind, meaning)
+    if name == "structure":  # a list, not one quantity: read by calculation_file itself
+        energy = quantity("energy", "a subband bottom above the band edge")
+        properties[cf.SUBBAND_KEY] = {
+            "anyOf": [
+                energy,
+                {"type": "array", "items": energy, "minItems": 1, "maxItems": cf.MAX_SUBBANDS},
+            ],
+            "description": "subband bottoms of a 2D gas or a 1D wire, from the band edge, "
+            "e.g. [0 meV, 45 meV]",
+        }
     return or_null({"type": "object", "additionalProperties": False, "properties": properties})
 
 

@@ -9,8 +9,8 @@ Keys (all optional except material and temperature):
       donors:    {<species>: "<density>" | {from, to, steps[, spacing]}, ...}
       acceptors: {<species>: "<density>", ...}
     structure:   dimensionality (3/2/1), length, cross_section | thickness + width,
-                 field | voltage, subband_energies (a 2D gas: [<energy>, ...] from the
-                 band edge)
+                 field | voltage, subband_energies (a 2D gas or a 1D wire: [<energy>, ...]
+                 from the band edge)
     stated:      the numbers the author gives (see STATED_KEYS)
     assumes:     [trade words of ASSUMPTIONS]
     formulas:    ["<lhs> = <rhs>", ...] in trade symbols (analysed by the engine)
@@ -66,6 +66,8 @@ SUBBAND_KEY = "subband_energies"
 MAX_SUBBANDS = 20
 # stated keys only a sheet (a 2D calculation) has: its densities are per area
 SHEET_KEYS = tuple(key for q in QUANTITIES if q.unit == "cm^-2" for key in q.keys)
+# stated keys only a wire (a 1D calculation) has: its densities are per length
+WIRE_KEYS = tuple(key for q in QUANTITIES if q.unit == "cm^-1" and q.section for key in q.keys)
 # A few common spellings of the trade words an author may declare (ASSUMPTIONS).
 ASSUMPTION_SPELLINGS = {
     "nondegenerate": "non-degenerate",
@@ -650,7 +652,8 @@ def read_calculation_file(path, explicit: bool = True) -> FileResult:
 
 
 def _subband_energies(data, where) -> tuple:
-    """structure.subband_energies: the subband bottoms of a 2D gas (J), from the band edge."""
+    """structure.subband_energies: the subband bottoms of a 2D gas or a 1D wire (J), from
+    the band edge."""
     block = data.get("structure")
     if not isinstance(block, dict) or SUBBAND_KEY not in block:
         return ()
@@ -681,16 +684,23 @@ def _subband_energies(data, where) -> tuple:
 
 
 def _sheet_fit(material, structure, stated, groups, subbands, where) -> None:
-    """A sheet (2D) calculation and its inputs fit together: sheet densities only in 2D, a
-    2D material never solved as bulk, and something that fixes a sheet's Fermi level."""
+    """A sheet (2D) or wire (1D) calculation and its inputs fit together: sheet densities
+    only in 2D, line densities only in 1D, a 2D material never solved as bulk, and
+    something that fixes a sheet's or a wire's Fermi level."""
     problems = Problems()
     dim = int(structure.get("dim", material.dimensionality))
+    if dim == 1 or any(STATED_KEYS[key][0] in stated for key in WIRE_KEYS):
+        problems.run(_wire_fit, material, dim, stated, groups, subbands, where)
+        problems.raise_any()
+        if dim == 1:
+            return
     sheet_keys = [key for key in SHEET_KEYS if STATED_KEYS[key][0] in stated]
-    if material.dimensionality == 2 and dim != 2:
+    if material.dimensionality == 2 and dim == 3:
         problems.add(
             InputError(
                 f"{where.key('structure', 'dimensionality')}: {material.name} is a 2D "
-                f"material (a sheet or channel); write dimensionality: 2 or leave it out"
+                "material (a sheet or channel); write dimensionality: 2 (or 1 for a wire) "
+                "or leave it out"
             )
         )
     for key in sheet_keys if dim != 2 else ():
@@ -750,4 +760,64 @@ def _sheet_fit(material, structure, stated, groups, subbands, where) -> None:
         )
     if is_sheet:
         structure.setdefault("dim", 2.0)
+    problems.raise_any()
+
+
+def _wire_fit(material, dim, stated, groups, subbands, where) -> None:
+    """A wire (1D) calculation and its inputs fit together: line densities only in 1D, no
+    sheet densities there, a line density or Fermi level fixing the wire's carriers (a 2D
+    material, or a wire without dopants), and bands for the carrier stated."""
+    problems = Problems()
+    wire_keys = [key for key in WIRE_KEYS if STATED_KEYS[key][0] in stated]
+    for key in wire_keys if dim != 1 else ():
+        problems.add(
+            InputError(
+                f"{where.key('stated', key)}: a line density (cm-1) belongs to a 1D "
+                "calculation (a nanowire or quantum wire); add structure: "
+                "{dimensionality: 1}, or state the density of this calculation's "
+                "dimensionality (cm-3 in 3D, cm-2 in 2D)"
+            )
+        )
+    if dim != 1:
+        problems.raise_any()
+        return
+    sheet_keys = [key for key in SHEET_KEYS if STATED_KEYS[key][0] in stated]
+    for key in sheet_keys:
+        problems.add(
+            InputError(
+                f"{where.key('stated', key)}: a sheet density (cm-2) belongs to a 2D "
+                "calculation; a 1D wire takes its line density, e.g. "
+                "electron_line_density: 2e6 cm-1"
+            )
+        )
+    if material.band_shape("electron").model == "linear":
+        problems.add(
+            InputError(
+                f"{where.key('structure', 'dimensionality')}: {material.name} has linear "
+                "zero-gap bands of a sheet, without 1D bands; write dimensionality: 2"
+            )
+        )
+        problems.raise_any()
+    for key, carrier in (("electron_line_density", "electron"), ("hole_line_density", "hole")):
+        if key in wire_keys:
+            try:
+                material.bands(carrier, 1, subbands or None)
+            except RegimecheckError as exc:
+                problems.add(InputError(f"{where.key('stated', key)}: {exc}"))
+    doped = any(groups.values())
+    if wire_keys and doped:
+        problems.add(
+            InputError(
+                f"{where.key('doping')}: a wire whose line density is stated takes its "
+                "carriers from it; remove doping (or the line density, for a doped bulk "
+                "crystal with 1D ratios)"
+            )
+        )
+    if not wire_keys and not sheet_keys and (material.dimensionality == 2 or not doped):
+        problems.add(
+            InputError(
+                f"{where.key('stated')}: a 1D wire takes its carriers from the stated line "
+                "density; add e.g. electron_line_density: 2e6 cm-1 under stated:"
+            )
+        )
     problems.raise_any()

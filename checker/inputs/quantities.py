@@ -42,6 +42,7 @@ DIMENSIONS = {
     "resistance": ("ohm", "1.5 kohm"),
     "sheet resistance": ("ohm", "250 ohm/sq"),
     "sheet density": ("m**-2", "1e12 cm-2"),
+    "line density": ("m**-1", "2e6 cm-1"),
     "conductance": ("S", "2.5e-4 S"),
 }
 
@@ -66,6 +67,12 @@ UNITS = {
     "/cm2": ("sheet density", _CM**-2),
     "m-2": ("sheet density", 1.0),
     "m^-2": ("sheet density", 1.0),
+    "cm-1": ("line density", 1 / _CM),
+    "cm^-1": ("line density", 1 / _CM),
+    "/cm": ("line density", 1 / _CM),
+    "1/cm": ("line density", 1 / _CM),
+    "m-1": ("line density", 1.0),
+    "m^-1": ("line density", 1.0),
     "cm^2/(V*s)": ("mobility", _CM**2),
     "cm2/Vs": ("mobility", _CM**2),
     "cm^2/Vs": ("mobility", _CM**2),
@@ -215,6 +222,13 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
             "of a 2D calculation (structure: {dimensionality: 2}, or a 2D material); for "
             f"this key give the volume density, e.g. {example(dimension)}"
         )
+    if unit_dimension == "line density" and dimension != "line density":
+        raise InputError(
+            f"{place}{text!r} is a line density (per length); line densities (cm^-1) go "
+            "under stated: electron_line_density or hole_line_density of a 1D calculation "
+            "(structure: {dimensionality: 1}); for this key give a "
+            f"{dimension}, e.g. {example(dimension)}"
+        )
     if unit_dimension != dimension:
         raise InputError(
             f"{place}{text!r} has a unit of {unit_dimension} where {dimension} is "
@@ -298,6 +312,8 @@ PLAUSIBLE = {
         1e20,
         "a sheet holds far less than 1e16 cm^-2 (a monolayer of atoms is ~1e15 cm^-2)",
     ),
+    # a wire: a chain of atoms is ~1e8 cm^-1, so 1e9 cm^-1 is an exponent or unit slip
+    "line density": (0.0, 1e11, "a wire holds far less than 1e9 cm^-1 (one atom per 0.1 nm)"),
     "conductance": (0.0, 1e9, "conductances above 1e9 S are not those of a device"),
     "length": (1e-10, 1.0, "lengths between 0.1 nm and 1 m are accepted"),
     "area": (1e-20, 1.0, "cross-sections between 0.01 nm^2 and 1 m^2 are accepted"),

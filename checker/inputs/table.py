@@ -11,6 +11,9 @@ numbers in that column):
     name          a label for the row                (optional)
     resistivity, sheet_resistance (with thickness), mobility (of the majority
     carrier the dopant gives), hall_density, diffusivity     (any of them)
+    line_density  a 1D wire's carriers per length, e.g. 2e6 cm-1: the row is then a
+                  wire (dimensionality 1) of the dopant's carrier (donor: electrons,
+                  acceptor: holes) and leaves density empty
     hall_scattering   acoustic | ionized-impurity | neutral-impurity | exponent r
     notes, comment, remarks   free text, not read
 
@@ -35,7 +38,7 @@ import itertools
 import os
 import re
 
-from ..errors import InputError
+from ..errors import InputError, RegimecheckError
 from .calculation_file import Calculation, FileResult, _hall_exponent
 from .material_catalog import resolve_material
 from .quantities import check_plausible, parse_quantity, parse_temperature
@@ -54,12 +57,15 @@ MEASURED = {
     "hall_density": ("stated_hall", "stated_hall", "density"),
     "diffusivity": ("stated_D_n", "stated_D_p", "diffusivity"),
 }
-OPTIONAL = ("name", "thickness", "hall_scattering")
+OPTIONAL = ("name", "thickness", "hall_scattering", "line_density")
+# a wire row: its carriers per length, of the dopant kind's carrier (no volume doping)
+WIRE_STATED = {True: "stated_nl_n", False: "stated_nl_p"}
 KEYS = REQUIRED + tuple(MEASURED) + OPTIONAL
 # columns whose unit is checked once, on the header, rather than on every row
 DIMENSIONS = {
     "density": "density",
     "thickness": "length",
+    "line_density": "line density",
     **{key: spec[2] for key, spec in MEASURED.items()},
 }
 ALIASES = {
@@ -84,6 +90,8 @@ ALIASES = {
     "label": "name",
     "sample": "name",
     "thick": "thickness",
+    "n_l": "line_density",
+    "linear_density": "line_density",
     "scattering": "hall_scattering",
 }
 NOTE_COLUMNS = ("note", "notes", "comment", "comments", "remark", "remarks")
@@ -329,9 +337,15 @@ def _row(row, columns, path, line) -> Calculation:
             raise InputError(f"{where(key)}: {cell(key)!r} must be larger than zero")
         return check_plausible(value, dimension, cell(key), where(key))
 
+    wire = bool(cell("line_density"))
     for key in REQUIRED:
-        if not cell(key):
+        if not cell(key) and not (wire and key == "density"):
             raise InputError(f"{where(key)}: empty; every row needs {', '.join(REQUIRED)}")
+    if wire and cell("density"):
+        raise InputError(
+            f"{where('density')}: a wire row (line_density given) takes its carriers from "
+            "the line density; leave density empty, or line_density for a doped crystal"
+        )
     try:
         material = resolve_material(cell("material"))
     except InputError as exc:
@@ -340,11 +354,15 @@ def _row(row, columns, path, line) -> Calculation:
         dopant = material.dopant(cell("dopant"))
     except InputError as exc:
         raise InputError(f"{where('dopant')}: {exc}") from None
-    density = check_plausible(
-        parse_quantity(cell("density"), "density", where("density")),
-        "density",
-        cell("density"),
-        where("density"),
+    density = (
+        0.0
+        if wire
+        else check_plausible(
+            parse_quantity(cell("density"), "density", where("density")),
+            "density",
+            cell("density"),
+            where("density"),
+        )
     )
     temperature = check_plausible(
         parse_temperature(cell("temperature"), where("temperature")),
@@ -353,7 +371,7 @@ def _row(row, columns, path, line) -> Calculation:
         where("temperature"),
     )
     donor = dopant.kind == "donor"
-    species = {dopant.name: density}
+    species = {} if wire else {dopant.name: density}
     calc = Calculation(
         name=cell("name") or f"{path.rsplit('/', 1)[-1]} line {line}",
         source=path,
@@ -367,6 +385,10 @@ def _row(row, columns, path, line) -> Calculation:
         calc.hall_exponent = _hall_exponent(cell("hall_scattering"), where("hall_scattering"))
     if cell("thickness"):
         calc.structure["thickness"] = positive("thickness", "length")
+    if wire:
+        _wire_row(calc, donor, positive("line_density", "line density"), where("line_density"))
+        calc.lines[WIRE_STATED[donor]] = line
+        calc.columns[WIRE_STATED[donor]] = columns["line_density"][1]
     for key, (for_donors, for_acceptors, dimension) in MEASURED.items():
         if not cell(key):
             continue
@@ -374,9 +396,25 @@ def _row(row, columns, path, line) -> Calculation:
         calc.stated[name] = positive(key, dimension)
         calc.lines[name] = line
         calc.columns[name] = columns[key][1]
+    if wire and "stated_Rsh" in calc.stated:
+        raise InputError(
+            f"{where('sheet_resistance')}: a wire (line_density given) has no sheet "
+            "resistance; leave one of the two empty"
+        )
     if "stated_Rsh" in calc.stated and "thickness" not in calc.structure:
         raise InputError(
             f"{where('sheet_resistance')}: a sheet resistance needs the layer "
             "thickness (add a thickness column)"
         )
     return calc
+
+
+def _wire_row(calc: Calculation, donor: bool, density: float, where: str) -> None:
+    """Make ``calc`` a 1D wire holding ``density`` (m^-1) of the dopant kind's carrier."""
+    carrier = "electron" if donor else "hole"
+    try:
+        calc.material.bands(carrier, 1)
+    except RegimecheckError as exc:
+        raise InputError(f"{where}: a wire needs 1D {carrier} bands: {exc}") from None
+    calc.structure["dim"] = 1.0
+    calc.stated[WIRE_STATED[donor]] = density

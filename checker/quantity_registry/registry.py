@@ -76,8 +76,9 @@ class Quantity:
         return self.unit in BULK_UNITS
 
 
-# sheet densities are read only by the keys of the sheet solve (bulk keys refuse cm^-2)
-_READ_AS = {**UNIT_KINDS, "cm^-2": "sheet density"}
+# sheet and line densities are read only by the keys of the sheet and wire solves (bulk keys
+# refuse cm^-2 and cm^-1)
+_READ_AS = {**UNIT_KINDS, "cm^-2": "sheet density", "cm^-1": "line density"}
 
 
 def _q(name: str, unit: str, meaning: str, source: Source = Source.SOLVE, **more: Any) -> Quantity:
@@ -403,6 +404,33 @@ QUANTITIES = (
         _D,
     ),
     _q("Rs", "ohm/sq", "sheet resistance 1/sigma_s of the corrected calculation", _D),
+    # ---- 1D conductors: nanowires, quantum wires (engine/regime/sheet_values.py) ---------------
+    # Per length, under names of their own: like a sheet's, a wire's densities never reach a
+    # bulk (cm^-3) or sheet (cm^-2) quantity.
+    _q(
+        "nl_x",
+        "cm^-1",
+        "line density of the carrier (1D statistics of the material's wire subbands; "
+        "NaN unless the calculation is 1D)",
+    ),
+    _q(
+        "N1D_x",
+        "cm^-1",
+        "effective density of states of the carrier's lowest 1D subband, "
+        "g_v sqrt(2 m* kT/(pi hbar^2)) (spin included; a Kane subband's at its edge mass)",
+    ),
+    _q(
+        "modes_1d_x",
+        "1",
+        "conducting modes of the carrier's 1D subbands in the energy window, a count: "
+        "<M> = ∫ M(E)(-df/dE) dE as 2q^2/h counts them (NaN unless 1D)",
+    ),
+    _stated(
+        "stated_nl_x",
+        "cm^-1",
+        "stated carrier line density of a 1D conductor",
+        ("electron_line_density", "hole_line_density"),
+    ),
     # ---- ballistic and quasi-ballistic conductors (LAND01) -------------------------------------
     _q(
         "modes_w_x",

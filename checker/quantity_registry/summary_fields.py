@@ -239,6 +239,34 @@ SHEET = (
     ),
 )
 
+# a wire (1D conductor): its densities per length and its conducting modes, a count
+WIRE = (
+    *_per_carrier(
+        "{x}l_cm1",
+        "{x}_l (line)",
+        "{:.4g} cm^-1",
+        ("nl_{x}",),
+        lambda x: lambda get: get(f"nl_{x}"),
+        "cm^-1",
+        in_check=True,
+    ),
+    *_per_carrier(
+        "N1D_{x}_cm1",
+        "N_1D ({x})",
+        "{:.4g} cm^-1",
+        ("N1D_{x}",),
+        lambda x: lambda get: get(f"N1D_{x}"),
+        "cm^-1",
+    ),
+    *_per_carrier(
+        "modes_{x}_wire",
+        "modes ({x}, wire)",
+        "{:.4g}",
+        ("modes_1d_{x}",),
+        lambda x: lambda get: get(f"modes_1d_{x}"),
+        "1",
+    ),
+)
 
 FIELDS = (
     SummaryField(
@@ -313,6 +341,7 @@ FIELDS = (
     ),
     *TRANSPORT,
     *SHEET,
+    *WIRE,
     SummaryField(
         "neutrality_residual",
         "neutrality residual",

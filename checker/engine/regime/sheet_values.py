@@ -1,16 +1,24 @@
-"""The sheet solve: 2D electron and hole gases and zero-gap sheets (graphene).
+"""The low-dimensional solve: 2D electron and hole gases, zero-gap sheets (graphene) and
+1D conductors (nanowires, quantum wires).
 
-A sheet has no dopants in its channel: the stated sheet density (or, for a zero-gap
-sheet, the net density n - p a gate induces, or the stated Fermi level) fixes the Fermi
-level.  The solve lays out the quantities rules read under their registered names: eta_x
-(from the lowest subband, or from the Dirac point), the sheet densities ns_x, N2D_x, the
-generalized Einstein ratio and the unidirectional velocity from the energy window.  The
-bulk quantities (cm^-3, S/cm, ohm*cm, n_i of a crystal) stay unknown, so no bulk rule reads
-a sheet as an undoped, intrinsic crystal.
+A sheet or wire has no dopants in its channel: the stated sheet or line density (or, for
+a zero-gap sheet, the net density n - p a gate induces, or the stated Fermi level) fixes
+the Fermi level.  The solve lays out the quantities rules read under their registered
+names: eta_x (from the lowest subband, or from the Dirac point), the densities (ns_x,
+N2D_x per area; nl_x, N1D_x per length), the generalized Einstein ratio, the
+unidirectional velocity and the modes from the energy window.  The bulk quantities
+(cm^-3, S/cm, ohm*cm, n_i of a crystal) stay unknown, and a wire's sheet quantities too,
+so no rule reads a sheet or a wire as an undoped, intrinsic crystal.
 
 Which solve a calculation gets: a 2D material, or ``dimensionality: 2`` with a sheet
-density stated.  A bulk material given ``dimensionality: 2`` and doping keeps the bulk
-solve (its D/mu and lambda then use the 2D ratios).
+density stated, or ``dimensionality: 1`` with a line density stated.  A bulk material
+given ``dimensionality: 2`` and doping keeps the bulk solve (its D/mu and lambda then use
+the 2D ratios).
+
+The statistics of one 1D subband at E_i: n_l = N_1D F_-1/2(eta - E_i/kT), N_1D = g_v
+sqrt(2 m* kT/(pi hbar^2)) (spin included), the 2D one n_s = N_2D ln(1 + e^(eta - E_i/kT)),
+N_2D = g_v m* kT/(pi hbar^2) (Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2;
+J. H. Davies, The Physics of Low-Dimensional Semiconductors (1998), ch. 3).
 """
 
 from __future__ import annotations
@@ -31,25 +39,36 @@ from ...vocabulary_words import Carrier
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
 
-# the stated numbers that can fix a sheet's Fermi level (engine names)
+# the stated numbers that can fix a sheet's or a wire's Fermi level (engine names)
 SHEET_INPUTS = (
     "stated_ns_n",
     "stated_ns_p",
     "stated_net_sheet",
     "stated_ef_minus_ec",
     "stated_ef_minus_ev",
+    "stated_nl_n",
+    "stated_nl_p",
 )
+WIRE_INPUTS = ("stated_nl_n", "stated_nl_p")
 _BAND = {"n": "electron", "p": "hole"}
-_PER_CM2 = 1e-4  # m^-2 -> cm^-2 (for the note)
+# per dimensionality: the stem of the density names, its display unit and factor from SI
+_DENSITY = {2: ("ns", "cm-2", 1e-4), 1: ("nl", "cm-1", 1e-2)}
+_MODES = {2: "modes_w", 1: "modes_1d"}  # modes per width (2D), a count (1D)
+
+
+def is_wire(calc: Calculation) -> bool:
+    """True where the 1D solve applies (a stated line density in a 1D calculation)."""
+    stated = any(name in calc.stated for name in WIRE_INPUTS)
+    return stated and int(calc.structure.get("dim", 3)) == 1
 
 
 def is_sheet(calc: Calculation) -> bool:
-    """True where the sheet solve applies (a 2D material, or a stated sheet density in a
-    2D calculation)."""
-    if calc.material.dimensionality == 2:
+    """True where the low-dimensional solve applies: a 2D material, a stated sheet density
+    in a 2D calculation, or a wire (``is_wire``)."""
+    if calc.material.dimensionality == 2 and int(calc.structure.get("dim", 2)) == 2:
         return True
     stated = any(name in calc.stated for name in SHEET_INPUTS[:3])
-    return stated and int(calc.structure.get("dim", 3)) == 2
+    return (stated and int(calc.structure.get("dim", 3)) == 2) or is_wire(calc)
 
 
 def is_linear(material: Material) -> bool:
@@ -68,15 +87,17 @@ def sheet_inputs(calcs: Sequence[Calculation]) -> dict[str, FloatArray]:
 def solve_sheet_points(
     first: Calculation, T: FloatArray, given: dict[str, FloatArray]
 ) -> tuple[dict[str, ArrayIn], str]:
-    """Quantities of sheet points sharing ``first``'s material and subbands at ``T``
-    (``given``: sheet_inputs arrays, broadcast against T); return (quantities, note)."""
+    """Quantities of sheet or wire points sharing ``first``'s material, dimensionality and
+    subbands at ``T`` (``given``: sheet_inputs arrays, broadcast against T); return
+    (quantities, note)."""
     given = {name: np.broadcast_to(array, T.shape) for name, array in given.items()}
     kT = BOLTZMANN * T
+    dim = 1 if is_wire(first) else 2
     put: dict[str, ArrayIn] = {
         "T": T,
         "kT": kT,
         "kT_q": kT / ELEMENTARY_CHARGE,
-        "dim": np.full_like(T, 2.0),
+        "dim": np.full_like(T, float(dim)),
     }
     for x in Carrier:
         put[f"cond_{x}"] = np.ones_like(T)
@@ -85,49 +106,61 @@ def solve_sheet_points(
         band = first.material.bands("electron", 2)[0]
         note = (
             "zero-gap sheet statistics (linear bands, both carriers): n_i = "
-            f"{_sheet_text(energy_window.dirac_intrinsic_density(band, T))} cm-2"
+            f"{_density_text(energy_window.dirac_intrinsic_density(band, T), 2)} cm-2"
         )
         return put, note
     notes = []
+    stem, unit, _ = _DENSITY[dim]
     for x in Carrier:
         try:
-            bands = first.material.bands(_BAND[x], 2, first.subband_energies or None)
+            bands = first.material.bands(_BAND[x], dim, first.subband_energies or None)
         except MissingParameterError:
-            continue  # a 2D gas of one carrier: the other band is not described
-        density = given[f"stated_ns_{x}"]
-        if not np.any(np.isfinite(density)) and x == "p":
-            continue  # the hole band of an electron gas: no holes to count
-        put.update(_parabolic_sheet(x, bands, T, kT, given))
+            continue  # a gas of one carrier: the other band is not described
+        density = given[f"stated_{stem}_{x}"]
+        other = given[f"stated_{stem}_{'n' if x == 'p' else 'p'}"]
+        if not np.any(np.isfinite(density)) and (x == "p" or np.any(np.isfinite(other))):
+            continue  # the other band of a one-carrier gas or wire: nothing to count
+        put.update(_parabolic_sheet(x, bands, T, kT, given, dim))
         lowest = min(bands, key=lambda b: b.edge)
         count = len(first.subband_energies) or 1
         notes.append(
-            f"2D statistics of the {_BAND[x]}s ({count} subband{'s' * (count > 1)}, "
-            f"N_2D = {_sheet_text(_edge_density(lowest, T))} cm-2)"
+            f"{dim}D statistics of the {_BAND[x]}s ({count} subband{'s' * (count > 1)}, "
+            f"N_{dim}D = {_density_text(_edge_density(lowest, T), dim)} {unit})"
         )
-    majority_n = np.nan_to_num(put.get("ns_n", 0.0)) >= np.nan_to_num(put.get("ns_p", 0.0))
+    majority_n = np.nan_to_num(put.get(f"{stem}_n", 0.0)) >= np.nan_to_num(
+        put.get(f"{stem}_p", 0.0)
+    )
     put["maj_n"], put["maj_p"] = majority_n.astype(float), (~majority_n).astype(float)
     put["subbands"] = np.full_like(T, float(len(first.subband_energies) or 1))
     put["linear"] = np.zeros_like(T)
     etas = [np.broadcast_to(put.get(f"eta_{x}", np.nan), T.shape) for x in Carrier]
     degenerate = np.fmax(*etas) > -3.0  # the 3kT rule, as the bulk regime label
+    kind = "2D gas" if dim == 2 else "wire"
     put["regime"] = np.asarray(
-        np.where(degenerate, "degenerate 2D gas", "non-degenerate 2D gas"), dtype=object
+        np.where(degenerate, f"degenerate {kind}", f"non-degenerate {kind}"), dtype=object
     )
     return put, "; ".join(notes)
 
 
-def _sheet_text(density: FloatArray) -> str:
-    """A sheet density (m^-2) for the note: one value, or the range over the points."""
-    values = np.atleast_1d(density) * _PER_CM2
+def _density_text(density: FloatArray, dim: int) -> str:
+    """A sheet (m^-2) or line (m^-1) density in its display unit for the note: one value,
+    or the range over the points."""
+    values = np.atleast_1d(density) * _DENSITY[dim][2]
     low, high = float(np.min(values)), float(np.max(values))
     return f"{low:.3g}" if np.isclose(low, high) else f"{low:.3g}-{high:.3g}"
 
 
 def _parabolic_sheet(
-    x: Carrier, bands: tuple[Band, ...], T: FloatArray, kT: FloatArray, given: dict[str, FloatArray]
+    x: Carrier,
+    bands: tuple[Band, ...],
+    T: FloatArray,
+    kT: FloatArray,
+    given: dict[str, FloatArray],
+    dim: int,
 ) -> dict[str, ArrayIn]:
-    """One carrier's gas: eta from its sheet density, else from the stated Fermi level."""
-    density = given[f"stated_ns_{x}"]
+    """One carrier's gas (2D) or wire (1D): eta from its sheet or line density, else from
+    the stated Fermi level."""
+    density = given[f"stated_{_DENSITY[dim][0]}_{x}"]
     ef = given["stated_ef_minus_ec"] if x == "n" else -given["stated_ef_minus_ev"]
     eta_ref = np.full_like(T, np.nan)
     known = np.isfinite(density) & (density > 0)
@@ -135,37 +168,48 @@ def _parabolic_sheet(
         eta_ref[known] = energy_window.eta_from_density(bands, density[known], T[known])
     eta_ref = np.where(known, eta_ref, ef / kT)
     lowest = min(bands, key=lambda b: b.edge)
-    return _carrier_values(x, bands, eta_ref, T) | {
+    return _carrier_values(x, bands, eta_ref, T, dim) | {
         f"eta_{x}": eta_ref - lowest.edge / kT,  # from the lowest subband (STAT01's edge)
-        f"N2D_{x}": _edge_density(lowest, T),
+        f"N{dim}D_{x}": _edge_density(lowest, T),
     }
 
 
 def _edge_density(band: Band, T: FloatArray) -> FloatArray:
-    """N_2D = g_v m* kT/(pi hbar^2) of a 2D subband (spin included); a Kane subband's at its
-    edge mass, where D(E) = (g_v m*/pi hbar^2)(1 + 2 alpha E) starts (Kane 1957)."""
-    if isinstance(band, ParabolicBand | KaneBand):
+    """Effective density of a 2D or 1D subband at its edge mass (spin included).
+
+    Formula: N_2D = g_v m* kT/(pi hbar^2) (m^-2), N_1D = g_v sqrt(2 m* kT/(pi hbar^2))
+    (m^-1); a Kane subband's at its edge mass, where its D(E) starts (Kane 1957).  Units:
+    T in K.  Validity: the parabolic form near the subband bottom.
+
+    References
+    ----------
+    Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2; J. H. Davies, The Physics
+    of Low-Dimensional Semiconductors (1998), ch. 3.
+    """
+    if isinstance(band, ParabolicBand | KaneBand) and band.dimension in (1, 2):
         scale = band.valley_degeneracy * band.spin_degeneracy / 2.0
-        density: FloatArray = scale * band.mass * ELECTRON_MASS * BOLTZMANN * T / (np.pi * HBAR**2)
+        thermal = band.mass * ELECTRON_MASS * BOLTZMANN * T / (np.pi * HBAR**2)
+        density: FloatArray = scale * (thermal if band.dimension == 2 else np.sqrt(2.0 * thermal))
         return density
     return energy_window.effective_density(band, T)
 
 
 def _carrier_values(
-    x: Carrier, bands: tuple[Band, ...], eta: FloatArray, T: FloatArray
+    x: Carrier, bands: tuple[Band, ...], eta: FloatArray, T: FloatArray, dim: int = 2
 ) -> dict[str, ArrayIn]:
-    """Density, Einstein ratio, <v_x+> and the modes per width of one carrier at eta (NaN
-    where eta is)."""
-    names = (f"ns_{x}", f"einstein_{x}", f"vth_{x}", f"modes_w_{x}")
+    """Density, Einstein ratio, <v_x+> and the modes (per width in 2D, a count in 1D) of
+    one carrier at eta (NaN where eta is)."""
+    density, modes = f"{_DENSITY[dim][0]}_{x}", f"{_MODES[dim]}_{x}"
+    names = (density, f"einstein_{x}", f"vth_{x}", modes)
     out = {name: np.full_like(T, np.nan) for name in names}
     ok = np.isfinite(eta)
     if ok.any():
-        out[f"ns_{x}"][ok] = energy_window.carrier_density(bands, eta[ok], T[ok])
+        out[density][ok] = energy_window.carrier_density(bands, eta[ok], T[ok])
         out[f"einstein_{x}"][ok] = energy_window.generalized_einstein_ratio(bands, eta[ok], T[ok])
         out[f"vth_{x}"][ok] = sheet_statistics.unidirectional_velocity(bands, eta[ok], T[ok])
-        # modes as 2q^2/h counts them: the ballistic conductance per width over G_0
+        # modes as 2q^2/h counts them: the ballistic conductance (per width) over G_0
         ballistic = energy_window.ballistic_conductance(bands, eta[ok], T[ok])
-        out[f"modes_w_{x}"][ok] = ballistic / energy_window.LANDAUER_QUANTUM
+        out[modes][ok] = ballistic / energy_window.LANDAUER_QUANTUM
     return dict(out)
 
 
