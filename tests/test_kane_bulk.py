@@ -151,6 +151,42 @@ def test_inas_einstein_ratio_and_velocity_use_the_kane_band():
     assert result["D_n"][2] / (result["mu_n"][2] * kT / sc.e) < 0.8 * parabolic
 
 
+def test_a_kane_crystal_written_as_a_layer_keeps_its_band_in_the_plane():
+    # InAs 1e18 written as a 2D layer (bulk solve, 2D ratios): D/mu and <v_x+> of the
+    # in-plane Kane band E(1 + aE) = hbar^2 k^2/2m*, whose 2D density of states is
+    # (m*/pi hbar^2)(1 + 2aE) (Kane, J. Phys. Chem. Solids 1, 249 (1957)); by mpmath:
+    # D/mu = (kT/q) n/(dn/deta) (Landsberg 1981) and <v_x+> = (2/pi) <v> over the
+    # occupied states (Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2)
+    material = load_material("InAs")
+    state = solve_equilibrium(material, T300, {"S": np.array([1e18]) * PER_CM3})
+    result = carrier_transport(state, 2)
+    alpha, mass = state.electron_band.alpha, state.electron_band.mass * sc.m_e
+    kT = sc.k * T300
+    eta = mp.mpf(float(state.eta_n[0]))
+    with mp.workdps(30):
+        beta = mp.mpf(alpha * kT)  # x = E/kT below
+
+        def dos(x):
+            return 1 + 2 * beta * x
+
+        def speed(x):  # in units of sqrt(2kT/m*)
+            return mp.sqrt(x * (1 + beta * x)) / (1 + 2 * beta * x)
+
+        def occupied(x):
+            return 1 / (1 + mp.exp(x - eta))
+
+        edges = [0, 1, eta, eta + 60]
+        count = mp.quad(lambda x: dos(x) * occupied(x), edges)
+        window = mp.quad(lambda x: dos(x) * occupied(x) * (1 - occupied(x)), edges)
+        flux = mp.quad(lambda x: dos(x) * speed(x) * occupied(x), edges)
+        ratio = float(count / window)
+        velocity = float(2 / mp.pi * flux / count) * math.sqrt(2 * kT / mass)
+    assert result["D_n"][0] / (result["mu_n"][0] * kT / sc.e) == pytest.approx(ratio, rel=1e-10)
+    own = math.sqrt(2 * sc.k * T300 / (math.pi * mass))
+    thermal = math.sqrt(2 * sc.k * T300 / (math.pi * material.electron.thermal_mass * sc.m_e))
+    assert result["v_n"][0] == pytest.approx(thermal * velocity / own, rel=1e-9)
+
+
 def window_quad(g, eta):
     """∫_0^inf g(x) (-df/dx) dx with -df/dx = e^(x-eta)/(1 + e^(x-eta))^2 (mpmath)."""
 

@@ -2,6 +2,7 @@
 
 import math
 
+import mpmath as mp
 import numpy as np
 import pytest
 import scipy.constants as sc
@@ -93,6 +94,34 @@ def test_silicon_resistivity_against_irvin_curve(N, rho_published):
     state = solve_equilibrium("Si", 300.0, {"P": N * PER_CM3})
     rho = float(carrier_transport(state)["rho"]) * 100  # ohm m -> ohm cm
     assert rho == pytest.approx(rho_published, rel=0.15)
+
+
+@pytest.mark.parametrize("dimension", [1, 2, 3])
+@pytest.mark.parametrize("eta", [-30.0, 0.0, 4.29])
+def test_unidirectional_velocity_in_every_dimensionality_against_quadrature(dimension, eta):
+    # <v_x+> = (flux of carriers moving in +x)/(half the density), written out with
+    # mpmath for a parabolic band of dimensionality d: the states at speed v carry
+    # v^(d-1) dv, a carrier at v moving in +x has the mean x-velocity v <cos>_+ with
+    # <cos>_+ = 1, 2/pi, 1/2 in 1D, 2D, 3D (Lundstrom & Jeong, Near-Equilibrium
+    # Transport (2012), ch. 2); the non-degenerate limit is sqrt(2kT/(pi m*)) in each
+    T, m = 300.0, 0.067
+    kT, mass = sc.k * T, m * sc.m_e
+    cosine = {1: mp.mpf(1), 2: 2 / mp.pi, 3: mp.mpf(1) / 2}[dimension]
+
+    def occupied(v):
+        return v ** (dimension - 1) / (1 + mp.exp(mass * v**2 / (2 * kT) - eta))
+
+    unit = mp.sqrt(2 * kT / mass)  # speed at E = kT
+    edges = [unit * mp.sqrt(x) for x in (0, 1, 4, 16, max(eta, 0) + 80)]
+    if eta > 0:
+        edges = sorted(edges + [unit * mp.sqrt(eta)])
+    flux = mp.quad(lambda v: v * cosine * occupied(v), edges)
+    count = mp.quad(occupied, edges)
+    expected = float(flux / count)
+    got = transport.unidirectional_thermal_velocity(T, m, eta, dimension)
+    assert got == pytest.approx(expected, rel=1e-9)
+    if eta < -20:
+        assert got == pytest.approx(math.sqrt(2 * kT / (math.pi * mass)), rel=1e-9)
 
 
 def test_unidirectional_thermal_velocity():

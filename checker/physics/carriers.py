@@ -6,6 +6,8 @@ models used.  Vectorized; SI units.
 
 from __future__ import annotations
 
+import dataclasses
+
 import numpy as np
 import numpy.typing as npt
 
@@ -43,8 +45,9 @@ def carrier_transport(
     ``mu0_*`` is the same model at N = 0 (the lattice-limited mobility);
     ``vsat_*`` and ``beta_*`` the saturation velocity and Caughey–Thomas
     exponent (NaN where the material has none).  D uses the generalized
-    Einstein relation, lambda = 2D/<v_x^+> with Fermi–Dirac statistics; a bulk
-    Kane conduction band (``state.electron_band``) sets both for the electrons.
+    Einstein relation, lambda = 2D/<v_x^+> with Fermi–Dirac statistics; a
+    Kane conduction band (``state.electron_band``, in the calculation's dimensionality) sets
+    both for the electrons.
     Returns a dict of SI arrays.
 
     References
@@ -72,7 +75,13 @@ def carrier_transport(
             majority, _every_dopant_factor(state, model, mobility_model, main, x), 1.0
         )
         # a Kane conduction band (bulk) sets the electrons' Einstein ratio and velocity
-        kane = state.electron_band if x == "n" and dimension == 3 else None
+        # a Kane conduction band in the calculation's dimensionality (a bulk crystal
+        # written as a 2D layer keeps its non-parabolic dispersion in the plane)
+        kane = (
+            dataclasses.replace(state.electron_band, dimension=dimension)
+            if x == "n" and state.electron_band is not None
+            else None
+        )
         d = transport.diffusion_coefficient(mu, state.T, eta, dimension, kane)
         result[f"mu_{x}"] = mu
         result[f"cond_{x}"] = conduction[x]

@@ -117,7 +117,9 @@ def conductivity(n: ArrayIn, p: ArrayIn, mu_n: ArrayIn, mu_p: ArrayIn) -> FloatO
     )
 
 
-_THERMAL_PREFACTOR = {3: 2.0 / np.pi, 2: np.pi / 2.0, 1: 2.0 / np.pi}
+# <v_x+> of a Maxwellian is sqrt(2kT/(pi m*)) in every dimensionality: the x-velocity
+# distribution is the same Gaussian (sqrt(pi kT/(2 m*)) is the 2D mean *speed*, not <v_x+>)
+_THERMAL_PREFACTOR = 2.0 / np.pi
 
 
 def unidirectional_thermal_velocity(
@@ -129,12 +131,12 @@ def unidirectional_thermal_velocity(
 ) -> FloatOrArray:
     """Mean velocity of the carriers moving in +x, <v_x^+> (m/s).
 
-    Formula: non-degenerate sqrt(2kT/(pi m*)) in 3D and 1D, sqrt(pi kT/(2 m*))
-    in 2D; with Fermi–Dirac statistics multiplied by F_1/F_1/2 (3D),
-    F_1/2/F_0 (2D) or F_0/F_-1/2 (1D).  Degenerate 3D limit: (3/8) v_F.  ``mass`` in units of m0 (a
-    conductivity effective mass).  Validity: parabolic band.  ``band`` (e.g. a Kane
-    band) with ``eta``: the non-degenerate value above times <v_x^+>/<v_x^+>_0 of that
-    band (``energy_window.forward_velocity`` over its own non-degenerate parabolic value).
+    Formula: non-degenerate sqrt(2kT/(pi m*)) in 3D, 2D and 1D alike; with Fermi–Dirac
+    statistics multiplied by F_1/F_1/2 (3D), F_1/2/F_0 (2D) or F_0/F_-1/2 (1D).
+    Degenerate 3D limit: (3/8) v_F.  ``mass`` in units of m0 (a conductivity effective
+    mass).  Validity: parabolic band.  ``band`` (e.g. a Kane band) with ``eta``: the
+    non-degenerate value above times <v_x^+>/<v_x^+>_0 of that band
+    (``energy_window.forward_velocity`` over its own non-degenerate parabolic value).
 
     References
     ----------
@@ -143,11 +145,11 @@ def unidirectional_thermal_velocity(
     """
     dim = _dimension(dimension)
     T = np.asarray(T, dtype=float)
-    base = np.sqrt(_THERMAL_PREFACTOR[dim] * BOLTZMANN * T / (np.asarray(mass) * ELECTRON_MASS))
+    base = np.sqrt(_THERMAL_PREFACTOR * BOLTZMANN * T / (np.asarray(mass) * ELECTRON_MASS))
     if eta is None:
         return base
     if band is not None:
-        own = np.sqrt(_THERMAL_PREFACTOR[dim] * BOLTZMANN * T / (band.mass * ELECTRON_MASS))
+        own = np.sqrt(_THERMAL_PREFACTOR * BOLTZMANN * T / (band.mass * ELECTRON_MASS))
         factor: FloatOrArray = energy_window.forward_velocity(band, eta, T) / own
         return base * factor
     j = _DENSITY_ORDER[dim]

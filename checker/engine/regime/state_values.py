@@ -9,6 +9,7 @@ is retried one calculation at a time so that only the bad ones are lost.
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Callable, Mapping, Sequence
 from typing import TYPE_CHECKING, Any, TypeAlias
 
@@ -293,14 +294,20 @@ def _band_shape_values(state: State, dim: int) -> dict[str, FloatArray]:
     """What a parabolic band would make of the bulk solve (BAND01): the Fermi level of
     n = N_c F_1/2(eta) at the solved density, the density at the solved Fermi level, and
     alpha kT; and each band's own Einstein ratio n/(dn/deta) (a Kane conduction band's
-    from the energy window).  A parabolic band gives the solve's own values (alpha kT = 0)."""
-    band = state.electron_band if dim == 3 else None
+    from the energy window, in the calculation's dimensionality).  A parabolic band gives
+    the solve's own values (alpha kT = 0); so does a Kane band outside 3D, where the bulk
+    solve's density is not the layer's (BAND01 compares bulk densities)."""
+    band = state.electron_band
     out: dict[str, FloatArray] = {}
     for x, eta, dens in (("n", state.eta_n, state.n), ("p", state.eta_p, state.p)):
         out[f"eta_par_{x}"], out[f"dens_par_{x}"] = eta, dens
         out[f"beta_kane_{x}"] = np.zeros_like(state.T)
         out[f"einstein_{x}"] = np.asarray(transport.einstein_ratio(eta, dim))
     if band is not None:
+        in_plane = dataclasses.replace(band, dimension=dim)
+        ratio = energy_window.generalized_einstein_ratio(in_plane, state.eta_n, state.T)
+        out["einstein_n"] = np.asarray(ratio)
+    if band is not None and dim == 3:
         # a density that underflows (a cold, undoped crystal) is deep in the Boltzmann
         # regime, where the Kane and the parabolic band give the same Fermi level
         u = state.n / state.Nc
@@ -312,8 +319,6 @@ def _band_shape_values(state: State, dim: int) -> dict[str, FloatArray]:
         )
         out["dens_par_n"] = state.Nc * np.asarray(fermi.fermi_dirac(0.5, state.eta_n))
         out["beta_kane_n"] = band.alpha * state.kT
-        ratio = energy_window.generalized_einstein_ratio(band, state.eta_n, state.T)
-        out["einstein_n"] = np.asarray(ratio)
     return out
 
 
