@@ -71,18 +71,26 @@ def test_graphene_sheet_above_its_modes_is_an_error_and_below_is_not():
     assert above[0].indicator_value == pytest.approx(1.05, rel=1e-4)
 
 
-def test_bulk_conductor_without_a_mode_count_is_not_judged():
-    # the solve counts modes of sheets only: a bulk resistor's stated conductance is left alone
+def test_bulk_conductor_is_judged_by_its_modes_per_cross_section():
+    # a bulk bar's modes: A <M>, and in the Boltzmann regime n <v_x+> = (4/h) kT <M>
+    # (Lundstrom & Jeong 2012, ch. 2), so 2q^2/h A <M> = q^2 A n <v_x+>/(2kT) with
+    # <v_x+> = sqrt(2kT/(pi m_c)), m_c = 0.26 (silicon's conductivity mass, Sze & Ng 2007
+    # App. F (from memory)) and n = N_D (1e16 cm-3 phosphorus is ionized to within 1 % at
+    # 300 K, Sze & Ng 2007 ch. 1)
+    kT, area, n = sc.k * 300.0, 1e-12, 1e22
+    v = (2 * kT / (3.141592653589793 * 0.26 * sc.m_e)) ** 0.5
+    bound = sc.e**2 * area * n * v / (2 * kT)
     text = (
         "material: Si\ntemperature: 300 K\ndoping: {donors: {P: 1e16 cm-3}}\n"
         "structure: {length: 10 um, cross_section: 1 um^2}\nstated: {conductance: 1 S}\n"
     )
-    assert _land01(text) == [[]]
+    (fired,) = _land01(text)
+    assert len(fired) == 1
+    assert fired[0].indicator_value == pytest.approx(1.0 / bound, rel=0.01)
 
 
-def test_conductance_in_a_wrong_unit_names_the_line_and_exits_2(tmp_path):
-    path = tmp_path / "sheet.yaml"
-    path.write_text(_graphene_sheet(1e-3).replace("e-03 S", "e-03 ohm"), encoding="utf-8")
+def input_error_shown(path) -> str:
+    """What ``regimecheck check path`` prints for a bad input: exit code 2, no traceback."""
     result = subprocess.run(
         [sys.executable, "-m", "checker", "check", str(path)],
         capture_output=True,
@@ -91,8 +99,15 @@ def test_conductance_in_a_wrong_unit_names_the_line_and_exits_2(tmp_path):
     )
     assert result.returncode == 2
     shown = result.stdout + result.stderr
-    assert "sheet.yaml:6" in shown and "conductance" in shown
     assert "Traceback" not in shown
+    return shown
+
+
+def test_conductance_in_a_wrong_unit_names_the_line_and_exits_2(tmp_path):
+    path = tmp_path / "sheet.yaml"
+    path.write_text(_graphene_sheet(1e-3).replace("e-03 S", "e-03 ohm"), encoding="utf-8")
+    shown = input_error_shown(path)
+    assert "sheet.yaml:6" in shown and "conductance" in shown
 
 
 def test_landauer_value_of_a_long_sheet_is_the_diffusive_conductance():

@@ -48,6 +48,7 @@ structure:
   thickness: 1 um
   width: 2 um
   voltage: 1 V
+  modes: 2
 stated:
   electron_density: 1e16 cm-3
   hole_density: 1e4 cm-3

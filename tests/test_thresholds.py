@@ -135,6 +135,8 @@ DOCUMENTED = {
         "three-digit rounding (common practice (no source))",
     ),
     "LAND02": (1.2, "the resistance tolerance of VAL05, 20 % (common practice (no source))"),
+    # quasi-ballistic conductors: the averaged-lambda shortcut against the energy-resolved value
+    "TRAN03": (1.05, "5 % resistance error, as TRAN01 (common practice (no source))"),
 }
 
 
@@ -759,6 +761,51 @@ def land02(target):
     return Point(text, stated / landauer, None)
 
 
+def _sheet_ratio(L, n_s_cm2=1e13, mu=1500.0, r=2.0, T=300.0):
+    """(G_resolved/G_averaged, G_averaged per m of width) of the GaN 2D gas of _gan_sheet
+    with lambda(E) = lambda_0 (E/kT)^r: G = 2q^2/h ∫ M T (-df/dE) dE, T = lambda/(lambda + L),
+    lambda_0 from sigma_s = 2q^2/h lambda_0 <M x^r>; the shortcut sigma_s/(L + lambda),
+    lambda = sigma_s/(2q^2/h <M>) (energy-independent lambda; Lundstrom & Jeong 2012, ch. 3
+    and 6); mpmath quadrature, M(E) as in _sheet_modes."""
+    (band,) = load_material("GaN").bands("electron", 2)
+    kT, m, g_v = K_B * T, band.mass * sc.m_e, band.valley_degeneracy
+    n2d = g_v * m * kT / (math.pi * sc.hbar**2)
+    with mp.workdps(30):
+        eta = mp.log(mp.expm1(n_s_cm2 / CM2 / n2d))
+
+        def window(weight):
+            def integrand(x):
+                f = 1 / (1 + mp.exp(x - eta))
+                return g_v * mp.sqrt(2 * m * x * kT) / (mp.pi * sc.hbar) * weight(x) * f * (1 - f)
+
+            return mp.quad(integrand, [0, eta + 1, mp.inf])
+
+        sigma_s = sc.e * n_s_cm2 / CM2 * mu * CM2
+        lam = sigma_s / (G_0 * window(lambda x: 1))
+        lam0 = sigma_s / (G_0 * window(lambda x: x**r))
+        resolved = G_0 * window(lambda x: lam0 * x**r / (lam0 * x**r + L))
+        averaged = sigma_s / (L + lam)
+        return float(resolved / averaged), float(averaged)
+
+
+def tran03(target):
+    # ionized-impurity scattering (tau ∝ E^(3/2), r = 2 in a parabolic 2D band): a sheet
+    # conductance stated as sigma_s W/(L + lambda); L on the short side of the largest gap
+    # (10-100 nm at 1e13 cm^-2), where the gap grows with L
+    L = float(
+        mp.findroot(
+            lambda x: 1 / _sheet_ratio(float(x))[0] - target, (1e-9, 9e-8), solver="anderson"
+        )
+    )
+    L_nm = _num(L * 1e9)
+    ratio, averaged = _sheet_ratio(L_nm * 1e-9)
+    stated = _num(averaged * 1e-6)  # 1 um wide
+    text = _gan_sheet(f"  electron_mobility: 1500 cm^2/(V*s)\n  conductance: {stated:.12e} S\n")
+    text = text.replace("length: 0.3 um", f"length: {L_nm:.12e} nm")
+    text += "options: {hall_scattering: ionized-impurity}\n"
+    return Point(text, max(ratio, 1 / ratio), "electrons")
+
+
 BUILDERS = {
     "STAT01": [stat01],
     "STAT02": [stat02, stat02_2d],
@@ -791,6 +838,7 @@ BUILDERS = {
     "VAL03": [val03],
     "VAL04": [val04],
     "VAL05": [val05],
+    "TRAN03": [tran03],
     "LAND01": [land01],
     "LAND02": [land02],
 }

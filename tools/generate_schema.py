@@ -111,6 +111,14 @@ def section(name: str) -> dict:
                     "anyOf": [{"enum": [1, 2, 3]}, {"type": "string", "pattern": r"^\s*[123]\s*$"}],
                     "description": meaning,
                 }
+            elif q.kind == "dimensionless":  # a count (structure.modes): a plain number
+                properties[key] = {
+                    "anyOf": [
+                        {"type": "number", "exclusiveMinimum": 0},
+                        {"type": "string", "pattern": r"^\s*[0-9.eE+-]+\s*$"},
+                    ],
+                    "description": meaning,
+                }
             else:
                 properties[key] = quantity(q.kind, meaning)
     if name == "structure":  # a list, not one quantity: read by calculation_file itself

@@ -519,6 +519,8 @@ def _quantity(section, key, dimension, text, where) -> float:
     return value
 
 
+# structure.modes: more modes than a square millimetre of a metal carries is a typo
+MAX_MODES = 1e12
 # Two ways of giving the same number must agree to this fraction (rounded trade
 # numbers; common practice (no source)).
 AGREEMENT = 0.01
@@ -557,6 +559,15 @@ def _structure(data, where, lines) -> dict:
                     "um^2; give cross_section or thickness and width, not both"
                 )
             )
+    modes = structure.get("modes_given")  # a stated mode count bounds G by 2q^2/h per mode
+    if modes is not None and not 0 < modes <= MAX_MODES:
+        problems.add(
+            InputError(
+                f"{where.key('structure', 'modes')}: {given['modes']!r} is not a number of "
+                f"conducting modes; give a count above 0 and at most {MAX_MODES:.0e} (a bulk "
+                "wire of 1 um^2 has some thousands), e.g. modes: 2"
+            )
+        )
     problems.raise_any()
     return structure
 

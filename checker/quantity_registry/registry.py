@@ -441,7 +441,9 @@ QUANTITIES = (
     _q(
         "modes",
         "1",
-        "conducting modes of a sheet of the given width: (modes_w_n + modes_w_p) times width",
+        "conducting modes of the conductor: the stated count (structure: modes) where given, "
+        "else (modes_w_n + modes_w_p) times the width of a sheet, (modes_a_n + modes_a_p) "
+        "times the cross-section of a bulk conductor, or modes_1d_n + modes_1d_p of a wire",
         _D,
     ),
     _q(
@@ -453,9 +455,38 @@ QUANTITIES = (
     _q(
         "G_landauer",
         "S",
-        "Landauer conductance of a sheet of the given width and length: the sum over the "
-        "carriers of (2q^2/h) W <M> lambda/(lambda + L), lambda_x of the corrected calculation",
+        "Landauer conductance of the conductor: G_energy where known, else the averaged-lambda "
+        "value, the sum over the carriers of (2q^2/h) W <M> lambda/(lambda + L) (sheet) or "
+        "sigma A/(L + lambda) (bulk), lambda_x of the corrected calculation",
         _D,
+    ),
+    # ---- energy-resolved Landauer value, bulk modes, a stated mode count (conductor_values) ----
+    _q(
+        "modes_a_x",
+        "cm^-2",
+        "conducting modes per cross-section of the carrier's bulk bands in the energy window, "
+        "<M> = ∫ M(E)(-df/dE) dE as 2q^2/h counts them (NaN in a sheet)",
+    ),
+    _q(
+        "kpower_x",
+        "1",
+        "power p of k^2 ∝ E^p of the carrier's bands (1 parabolic, 2 linear); NaN where no "
+        "single power law describes them (a Kane band, several subbands)",
+    ),
+    _q(
+        "G_energy",
+        "S",
+        "energy-resolved Landauer conductance (2q^2/h) ∫ M T (-df/dE) dE times the width or "
+        "cross-section, T = lambda(E)/(lambda(E) + L), lambda(E) = lambda_0 (E/kT)^r with r "
+        "from the Hall exponent and lambda_0 from the conductivity used; NaN where no single "
+        "power-law band describes a carrier",
+        _D,
+    ),
+    _structure(
+        "modes_given",
+        "1",
+        "stated number of conducting modes of the conductor (each carries at most 2q^2/h)",
+        "modes",
     ),
     _stated("stated_G", "S", "stated conductance of the conductor", ("conductance",)),
     # ---- constants (CODATA 2022, physics/constants.py) ------------------------------------------

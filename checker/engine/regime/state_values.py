@@ -24,7 +24,7 @@ from ...physics.equilibrium import State
 from ...physics.materials import Material
 from ...quantity_registry.registry import QUANTITIES, Source, value_names
 from ...vocabulary_words import Carrier
-from . import sheet_values
+from . import conductor_values, sheet_values
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
@@ -157,7 +157,9 @@ def solve_points(
     if sheet_values.is_sheet(first):
         if sheet is None:
             sheet = sheet_values.sheet_inputs([first])
-        return sheet_values.solve_sheet_points(first, T, sheet)
+        solved, note = sheet_values.solve_sheet_points(first, T, sheet)
+        solved.update(conductor_values.band_values(first, T, solved, sheet=True))
+        return solved, note
     material, dim = first.material, int(first.structure.get("dim", 3))
     state = equilibrium.solve(
         material, T, donors, acceptors, band_gap_narrowing=first.band_gap_narrowing
@@ -287,6 +289,7 @@ def solve_points(
         put[f"rH_lo_{x}"] = np.where(inside, low, np.nan)
         put[f"rH_hi_{x}"] = np.where(inside, high, np.nan)
     put.update(_band_shape_values(state, dim))
+    put.update(conductor_values.band_values(first, T, put, sheet=False))
     return put, skipped
 
 
@@ -407,9 +410,8 @@ def fill_inputs(
         field,
         structure("voltage") / values["L"],
     )
-    # a sheet's modes in the energy window over its width, and their ballistic limit (LAND01)
-    values["modes"] = _carrier_sum([values[f"modes_w_{x}"] for x in Carrier]) * values["width"]
-    values["G_ballistic"] = energy_window.LANDAUER_QUANTUM * values["modes"]
+    # a stated mode count (LAND01's bound where given; conductor_values)
+    values["modes_given"] = structure("modes_given")
     for name in _STATED:
         values[name] = stated(name)
     sigma, rho = values["stated_sigma"], values["stated_rho"]
@@ -435,6 +437,7 @@ def fill_inputs(
         values[f"einstein_{x}"] = np.where(ratio_unknown, bulk_ratio, values[f"einstein_{x}"])
     for name in ("linear", "subbands"):
         values[name] = np.nan_to_num(values[name], nan=0.0)
+    values["hall_r"] = column(lambda c: c.hall_exponent)  # lambda(E) of the Landauer value
     derive_corrected(values, {})
     values["sigma_model"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["mu_n"]
@@ -483,32 +486,13 @@ def derive_corrected(values: Values, replaced: Replaced) -> None:
         np.isfinite(stated_rho) & kept("used_rho"), stated_rho, values["rho"]
     )
     # a sheet: sheet conductance of the carriers it holds (an absent carrier adds nothing)
-    values["sigma_s"] = ELEMENTARY_CHARGE * _carrier_sum(
+    values["sigma_s"] = ELEMENTARY_CHARGE * conductor_values.carrier_sum(
         [values[f"ns_{x}"] * values[f"used_mu_{x}"] for x in Carrier]
     )
     values["Rs"] = 1.0 / values["sigma_s"]
-    # Landauer conductance with T = lambda/(lambda + L): lambda_x does not depend on the
-    # energy, so the window integral is the modes times T (Lundstrom & Jeong 2012, ch. 3)
-    values["G_landauer"] = (
-        energy_window.LANDAUER_QUANTUM
-        * values["width"]
-        * _carrier_sum(
-            [
-                values[f"modes_w_{x}"]
-                * values[f"lambda_{x}"]
-                / (values[f"lambda_{x}"] + values["L"])
-                for x in Carrier
-            ]
-        )
-    )
-
-
-def _carrier_sum(parts: list[FloatArray]) -> FloatArray:
-    """The sum over the carriers a sheet holds (an absent one, NaN, adds nothing; NaN where
-    neither is known)."""
-    counted = np.isfinite(parts[0]) | np.isfinite(parts[1])
-    total: FloatArray = np.where(counted, np.nansum(parts, axis=0), np.nan)
-    return total
+    # modes, ballistic limit and the energy-resolved Landauer conductance at the mobility
+    # used (lambda(E) = lambda_0 (E/kT)^r, lambda_0 from sigma)
+    conductor_values.conductor_values(values)
 
 
 def _symmetric_cones(values: Values) -> None:
