@@ -29,6 +29,8 @@ ASSUMPTIONS = (
     "einstein-relation",
     "diffusive",
     "low-field",
+    "parabolic-band",
+    "zero-temperature",
 )
 
 TOLERANCE_NAMES = (

@@ -493,6 +493,9 @@ def _physics(name, v, state, dim, majority):
         "E_g": state.Eg,
         "n": state.n if dim == 3 else n,
         "p": state.p if dim == 3 else p,
+        # a sheet's densities are its sheet densities
+        "n_s": n if dim == 2 else None,
+        "p_s": p if dim == 2 else None,
         "n_i": state.ni,
         # E_D, E_A: levels measured from their own band edge (the physics Dopant.energy)
         "E_D": v["E_c"] - state.material.dopant("D").energy,

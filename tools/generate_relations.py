@@ -49,7 +49,10 @@ from collections.abc import Callable
 
 import numpy
 
+from . import energy_window
 from .arrays import ArrayIn, FloatArray, FloatOrArray
+from .bands import KaneBand
+from .constants import BOLTZMANN
 from .fermi import fermi_dirac, log_fermi_dirac
 
 
@@ -74,6 +77,58 @@ def _fermi(order: ArrayIn, eta: ArrayIn) -> FloatOrArray:
     return _per_order(fermi_dirac, order, eta)
 
 
+# F_K depends on alpha and T only through beta = alpha kT: one band with alpha k = 1/(1000 K)
+# carries every beta at T = 1000 beta kelvin (the factor is mass-free)
+_KANE_KELVIN_PER_BETA = 1000.0
+_KANE_UNIT = KaneBand(3, 1.0, 1.0 / (BOLTZMANN * _KANE_KELVIN_PER_BETA))
+
+
+# the formula match evaluates the same few sampled points under many limit sets: the last
+# small inputs are remembered (inputs -> (ln F_K, slope)); large sweeps are never kept
+_KANE_MEMO: dict[bytes, tuple[FloatArray, FloatArray]] = {}
+_KANE_MEMO_POINTS = 256
+_KANE_MEMO_ENTRIES = 32
+
+
+def _kane_log_factor(beta: ArrayIn, eta: ArrayIn) -> tuple[FloatArray, FloatArray]:
+    """(ln F_K, d ln F_K/d eta) of a bulk Kane band at beta = alpha kT, by the energy-window
+    quadrature (energy_window.kane_density_factor); the parabolic F_1/2 pair where beta = 0."""
+    betas, etas = numpy.broadcast_arrays(
+        numpy.asarray(beta, dtype=float), numpy.asarray(eta, dtype=float)
+    )
+    shape, betas, etas = etas.shape, betas.ravel(), etas.ravel()
+    key = betas.tobytes() + etas.tobytes() if betas.size <= _KANE_MEMO_POINTS else None
+    if key is not None and key in _KANE_MEMO:
+        log_factor, slope = _KANE_MEMO[key]
+        return log_factor.reshape(shape), slope.reshape(shape)
+    log_factor = numpy.full(betas.shape, numpy.nan)
+    slope = numpy.full(betas.shape, numpy.nan)
+    kane = (betas > 0) & numpy.isfinite(betas) & numpy.isfinite(etas)
+    if kane.any():
+        log_factor[kane], slope[kane] = energy_window.kane_density_factor(
+            _KANE_UNIT, etas[kane], _KANE_KELVIN_PER_BETA * betas[kane]
+        )
+    flat = (betas == 0) & ~numpy.isnan(etas)  # alpha = 0: the parabolic band
+    if flat.any():
+        log_factor[flat] = log_fermi_dirac(0.5, etas[flat])
+        slope[flat] = numpy.exp(log_fermi_dirac(-0.5, etas[flat]) - log_factor[flat])
+    if key is not None:
+        if len(_KANE_MEMO) >= _KANE_MEMO_ENTRIES:
+            _KANE_MEMO.pop(next(iter(_KANE_MEMO)))
+        _KANE_MEMO[key] = (log_factor, slope)
+    return log_factor.reshape(shape), slope.reshape(shape)
+
+
+def _kane_factor(beta: ArrayIn, eta: ArrayIn) -> FloatOrArray:
+    """F_K(beta, eta) = n/N_c of a bulk Kane band (F_1/2(eta) at beta = 0)."""
+    return numpy.exp(_kane_log_factor(beta, eta)[0])
+
+
+def _kane_ratio(beta: ArrayIn, eta: ArrayIn) -> FloatOrArray:
+    """F_K/(dF_K/deta): the Einstein ratio of a bulk Kane band (F_1/2/F_-1/2 at beta = 0)."""
+    return 1.0 / _kane_log_factor(beta, eta)[1]
+
+
 def _fermi_ratio(upper: ArrayIn, lower: ArrayIn, eta: ArrayIn) -> FloatOrArray:
     """F_upper(eta)/F_lower(eta) as exp(ln F_upper - ln F_lower): finite where both
     underflow (eta << 0)."""
@@ -83,9 +138,18 @@ def _fermi_ratio(upper: ArrayIn, lower: ArrayIn, eta: ArrayIn) -> FloatOrArray:
 '''
 
 
+# sympy functions of relation_table without a closed form -> (numpy helper, relation name)
+_OPAQUE = {
+    "K": ("_kane_factor", "kane_density_factor"),
+    "K_ratio": ("_kane_ratio", "kane_einstein_ratio"),
+}
+
+
 class _NumpyText(NumPyPrinter):
     def _print_Function(self, expr):
         name = type(expr).__name__
+        if name in _OPAQUE:
+            return f"{_OPAQUE[name][0]}({', '.join(self._print(a) for a in expr.args)})"
         if name in ("F", "_fermi_ratio"):
             target = "_fermi" if name == "F" else name
             return f"{target}({', '.join(self._print(a) for a in expr.args)})"
@@ -131,7 +195,7 @@ def physics_module() -> str:
 def {f.name}({typed}) -> FloatOrArray:
     """{f.meaning[0].upper() + f.meaning[1:]}.
 
-    Formula: {text(f.expression)}
+    Formula: {text(f.expression) if f.dimension_text is None else f.meaning}
     Units: SI.  Validity: {f.validity}.
 
     References
@@ -158,6 +222,9 @@ class _ExpressionText(StrPrinter):
             order = expr.args[0]
             shown = repr(float(order)) if order.is_number else self._print(order)
             return f"F({shown}, {self._print(expr.args[1])})"
+        if type(expr).__name__ in _OPAQUE:  # the relation function of the rule language
+            name = _OPAQUE[type(expr).__name__][1]
+            return f"{name}({', '.join(self._print(a) for a in expr.args)})"
         return super()._print_Function(expr)
 
     def _print_Exp1(self, expr):
@@ -183,15 +250,22 @@ def texts_module() -> str:
     ]
     for f in table.FUNCTIONS.values():
         params = tuple(str(p) for p in f.parameters)
-        lines.append(f"    {f.name!r}: ({params!r}, {text(f.expression)!r}),")
-    lines += ["}", "", "# (dimensionality, majority carrier) -> defined symbol -> definition"]
-    lines.append("DEFINITIONS: dict[tuple[int, str], dict[str, str]] = {")
+        # a quadrature has no formula text: its dimension stand-in (pure numbers in and out)
+        shown = text(f.expression) if f.dimension_text is None else f.dimension_text
+        lines.append(f"    {f.name!r}: ({params!r}, {shown!r}),")
+    lines += [
+        "}",
+        "",
+        "# (dimensionality, majority carrier, band world) -> defined symbol -> definition",
+    ]
+    lines.append("DEFINITIONS: dict[tuple[int, str, str], dict[str, str]] = {")
     for d in (3, 2, 1):
-        for majority in ("n", "p"):
-            lines.append(f"    ({d}, {majority!r}): {{")
-            for name, expr in table.definitions(d, majority).items():
-                lines.append(f"        {name!r}: {text(expr)!r},")
-            lines.append("    },")
+        for band in table.BANDS[d]:
+            for majority in ("n", "p"):
+                lines.append(f"    ({d}, {majority!r}, {band!r}): {{")
+                for name, expr in table.definitions(d, majority, band).items():
+                    lines.append(f"        {name!r}: {text(expr)!r},")
+                lines.append("    },")
     lines += [
         "}",
         "",

@@ -13,7 +13,10 @@ from collections.abc import Callable
 
 import numpy
 
+from . import energy_window
 from .arrays import ArrayIn, FloatArray, FloatOrArray
+from .bands import KaneBand
+from .constants import BOLTZMANN
 from .fermi import fermi_dirac, log_fermi_dirac
 
 
@@ -38,6 +41,58 @@ def _fermi(order: ArrayIn, eta: ArrayIn) -> FloatOrArray:
     return _per_order(fermi_dirac, order, eta)
 
 
+# F_K depends on alpha and T only through beta = alpha kT: one band with alpha k = 1/(1000 K)
+# carries every beta at T = 1000 beta kelvin (the factor is mass-free)
+_KANE_KELVIN_PER_BETA = 1000.0
+_KANE_UNIT = KaneBand(3, 1.0, 1.0 / (BOLTZMANN * _KANE_KELVIN_PER_BETA))
+
+
+# the formula match evaluates the same few sampled points under many limit sets: the last
+# small inputs are remembered (inputs -> (ln F_K, slope)); large sweeps are never kept
+_KANE_MEMO: dict[bytes, tuple[FloatArray, FloatArray]] = {}
+_KANE_MEMO_POINTS = 256
+_KANE_MEMO_ENTRIES = 32
+
+
+def _kane_log_factor(beta: ArrayIn, eta: ArrayIn) -> tuple[FloatArray, FloatArray]:
+    """(ln F_K, d ln F_K/d eta) of a bulk Kane band at beta = alpha kT, by the energy-window
+    quadrature (energy_window.kane_density_factor); the parabolic F_1/2 pair where beta = 0."""
+    betas, etas = numpy.broadcast_arrays(
+        numpy.asarray(beta, dtype=float), numpy.asarray(eta, dtype=float)
+    )
+    shape, betas, etas = etas.shape, betas.ravel(), etas.ravel()
+    key = betas.tobytes() + etas.tobytes() if betas.size <= _KANE_MEMO_POINTS else None
+    if key is not None and key in _KANE_MEMO:
+        log_factor, slope = _KANE_MEMO[key]
+        return log_factor.reshape(shape), slope.reshape(shape)
+    log_factor = numpy.full(betas.shape, numpy.nan)
+    slope = numpy.full(betas.shape, numpy.nan)
+    kane = (betas > 0) & numpy.isfinite(betas) & numpy.isfinite(etas)
+    if kane.any():
+        log_factor[kane], slope[kane] = energy_window.kane_density_factor(
+            _KANE_UNIT, etas[kane], _KANE_KELVIN_PER_BETA * betas[kane]
+        )
+    flat = (betas == 0) & ~numpy.isnan(etas)  # alpha = 0: the parabolic band
+    if flat.any():
+        log_factor[flat] = log_fermi_dirac(0.5, etas[flat])
+        slope[flat] = numpy.exp(log_fermi_dirac(-0.5, etas[flat]) - log_factor[flat])
+    if key is not None:
+        if len(_KANE_MEMO) >= _KANE_MEMO_ENTRIES:
+            _KANE_MEMO.pop(next(iter(_KANE_MEMO)))
+        _KANE_MEMO[key] = (log_factor, slope)
+    return log_factor.reshape(shape), slope.reshape(shape)
+
+
+def _kane_factor(beta: ArrayIn, eta: ArrayIn) -> FloatOrArray:
+    """F_K(beta, eta) = n/N_c of a bulk Kane band (F_1/2(eta) at beta = 0)."""
+    return numpy.exp(_kane_log_factor(beta, eta)[0])
+
+
+def _kane_ratio(beta: ArrayIn, eta: ArrayIn) -> FloatOrArray:
+    """F_K/(dF_K/deta): the Einstein ratio of a bulk Kane band (F_1/2/F_-1/2 at beta = 0)."""
+    return 1.0 / _kane_log_factor(beta, eta)[1]
+
+
 def _fermi_ratio(upper: ArrayIn, lower: ArrayIn, eta: ArrayIn) -> FloatOrArray:
     """F_upper(eta)/F_lower(eta) as exp(ln F_upper - ln F_lower): finite where both
     underflow (eta << 0)."""
@@ -59,6 +114,38 @@ def einstein_ratio(dim: ArrayIn, eta: ArrayIn) -> FloatOrArray:
     dim = numpy.asarray(dim, dtype=float)
     eta = numpy.asarray(eta, dtype=float)
     value: FloatOrArray = _fermi_ratio((1 / 2) * dim - 1, (1 / 2) * dim - 2, eta)
+    return value
+
+
+def kane_density_factor(beta: ArrayIn, eta: ArrayIn) -> FloatOrArray:
+    """Kane non-parabolic density factor F_K = n/N_c at beta = alpha kT and reduced Fermi level eta, F_K = (2/sqrt(pi)) integral of sqrt(x(1 + beta x))(1 + 2 beta x)/(1 + e^(x - eta)) dx (dimensionless; F_1/2(eta) at beta = 0).
+
+    Formula: Kane non-parabolic density factor F_K = n/N_c at beta = alpha kT and reduced Fermi level eta, F_K = (2/sqrt(pi)) integral of sqrt(x(1 + beta x))(1 + 2 beta x)/(1 + e^(x - eta)) dx (dimensionless; F_1/2(eta) at beta = 0)
+    Units: SI.  Validity: bulk (3D) Kane band E(1 + alpha E) = hbar^2 k^2/2m*; beta >= 0, any real eta.
+
+    References
+    ----------
+    E. O. Kane, J. Phys. Chem. Solids 1, 249 (1957)
+    """
+    beta = numpy.asarray(beta, dtype=float)
+    eta = numpy.asarray(eta, dtype=float)
+    value: FloatOrArray = _kane_factor(beta, eta)
+    return value
+
+
+def kane_einstein_ratio(beta: ArrayIn, eta: ArrayIn) -> FloatOrArray:
+    """Generalized Einstein ratio (D/mu)/(kT/q) = F_K/(dF_K/deta) of a bulk Kane band (dimensionless; F_1/2/F_-1/2 at beta = 0).
+
+    Formula: generalized Einstein ratio (D/mu)/(kT/q) = F_K/(dF_K/deta) of a bulk Kane band (dimensionless; F_1/2/F_-1/2 at beta = 0)
+    Units: SI.  Validity: bulk (3D) Kane band; beta >= 0, any real eta.
+
+    References
+    ----------
+    P. T. Landsberg, Eur. J. Phys. 2, 213 (1981); E. O. Kane, J. Phys. Chem. Solids 1, 249 (1957)
+    """
+    beta = numpy.asarray(beta, dtype=float)
+    eta = numpy.asarray(eta, dtype=float)
+    value: FloatOrArray = _kane_ratio(beta, eta)
     return value
 
 
@@ -162,6 +249,14 @@ SIGNATURES: dict[str, tuple[tuple[str, ...], str]] = {
     "einstein_ratio": (
         ("dim", "eta"),
         "generalized Einstein ratio (D/mu)/(kT/q) of a parabolic band of dimensionality dim at reduced Fermi level eta (dimensionless)",
+    ),
+    "kane_density_factor": (
+        ("beta", "eta"),
+        "Kane non-parabolic density factor F_K = n/N_c at beta = alpha kT and reduced Fermi level eta, F_K = (2/sqrt(pi)) integral of sqrt(x(1 + beta x))(1 + 2 beta x)/(1 + e^(x - eta)) dx (dimensionless; F_1/2(eta) at beta = 0)",
+    ),
+    "kane_einstein_ratio": (
+        ("beta", "eta"),
+        "generalized Einstein ratio (D/mu)/(kT/q) = F_K/(dF_K/deta) of a bulk Kane band (dimensionless; F_1/2/F_-1/2 at beta = 0)",
     ),
     "field_velocity": (
         ("mu", "field", "v_sat", "beta"),

@@ -42,7 +42,7 @@ from ..regime.corrected import formula_key
 from ..regime.rulebook import PLACEHOLDER, Rule
 from ..regime.state_values import Values
 from .match import Match, analyse
-from .relations import world
+from .relations import band_world, world
 from .symbols import dimension_of, parse_side
 
 if TYPE_CHECKING:
@@ -223,7 +223,9 @@ def _product(factors: Sequence[Factor]) -> Node:
 _MISSING = ("q", "k*T", "k*T/q", "k", "T")
 
 
-def likely_fix(lhs: Node, rhs: Node, dim: int, majority: str) -> Node | None:
+def likely_fix(
+    lhs: Node, rhs: Node, dim: int, majority: str, band: str = "parabolic"
+) -> Node | None:
     """A corrected right side: a few factors inverted (or one common factor added)."""
     try:
         target = dimension(lhs, dim)
@@ -246,7 +248,7 @@ def likely_fix(lhs: Node, rhs: Node, dim: int, majority: str) -> Node | None:
                 if _has_dimension(tree, dim, target):
                     candidates.append(tree)
     for tree in candidates[:6]:
-        if analyse(lhs, tree, dim, majority).status != "unrecognised":
+        if analyse(lhs, tree, dim, majority, band).status != "unrecognised":
             return tree
     return candidates[0] if candidates else None
 
@@ -289,12 +291,15 @@ def operating_values(values: Values, calculations: Sequence[Calculation]) -> lis
     dims = np.array([int(c.structure.get("dim", 3)) for c in calculations], dtype=int)
     for name in _BULK_ONLY:
         known[name] = np.where(dims == 3, known[name], np.nan)
+    # alpha kT of a Kane conduction band (0: parabolic), the definitions' beta_kane_n
+    known["beta_kane_n"] = _column(values, "beta_kane_n", count)
+    bands = point_bands(values, dims)
     out: list[Point | None] = [None] * count
-    groups: dict[tuple[int, str], list[int]] = {}
+    groups: dict[tuple[int, str, str], list[int]] = {}
     for i, calc in enumerate(calculations):
-        groups.setdefault((int(dims[i]), calc.majority), []).append(i)
-    for (dim, majority), members in groups.items():
-        base = world(dim, "donor", majority)
+        groups.setdefault((int(dims[i]), calc.majority, bands[i]), []).append(i)
+    for (dim, majority, band), members in groups.items():
+        base = world(dim, "donor", majority, band)
         point = {name: array[members] for name, array in known.items()}
         with np.errstate(all="ignore"):
             for name in base.order:
@@ -305,6 +310,24 @@ def operating_values(values: Values, calculations: Sequence[Calculation]) -> lis
         for k, i in enumerate(members):
             out[i] = {name: float(array[k]) for name, array in point.items()}
     return out
+
+
+def _column(values: Values, name: str, count: int) -> np.ndarray:
+    """values[name] as floats over the calculations; zeros where the solve did not lay it out
+    (a sheet has no Kane band, a bulk crystal no linear one)."""
+    if name not in values:
+        return np.zeros(count)
+    column: np.ndarray = np.nan_to_num(
+        np.broadcast_to(np.asarray(values[name], dtype=float), (count,))
+    )
+    return column
+
+
+def point_bands(values: Values, dims: np.ndarray) -> list[str]:
+    """The band world of each calculation (relations.band_world) from the solved values."""
+    count = len(dims)
+    kane, linear = _column(values, "beta_kane_n", count), _column(values, "linear", count)
+    return [band_world(int(d), float(b), float(g)) for d, b, g in zip(dims, kane, linear)]
 
 
 _compiled = lru_cache(maxsize=4096)(to_numpy)
@@ -319,8 +342,11 @@ def _evaluate(tree: Node, point: Mapping[str, float]) -> float:
 
 
 # ---- one calculation ------------------------------------------------------------------------
-def analyse_calculation(calc: Calculation, point: Point | None) -> FormulaAnalysis:
-    """Parse, dimension-check, match and evaluate every formula of ``calc``."""
+def analyse_calculation(
+    calc: Calculation, point: Point | None, band: str = "parabolic"
+) -> FormulaAnalysis:
+    """Parse, dimension-check, match and evaluate every formula of ``calc`` (in the band
+    world ``band`` of its material: relations.band_world)."""
     out = FormulaAnalysis()
     dim = int(calc.structure.get("dim", 3))
     for text, where, line in calc.formulas:
@@ -342,11 +368,11 @@ def analyse_calculation(calc: Calculation, point: Point | None) -> FormulaAnalys
             result.problem = (
                 f"the left side is {dm.describe(left)}, the right side {dm.describe(right)}"
             )
-            fix = likely_fix(lhs, rhs, dim, calc.majority)
+            fix = likely_fix(lhs, rhs, dim, calc.majority, band)
             if fix is not None:
                 result.fix = f"{to_text(rename(lhs, spelled))} = {to_text(rename(fix, spelled))}"
             continue
-        result.match = analyse(lhs, rhs, dim, calc.majority)
+        result.match = analyse(lhs, rhs, dim, calc.majority, band)
         result.unit = _DISPLAY.get(left, "")
         result.si_unit = dm.text(left)
         result.energy = left == dm.ENERGY
@@ -381,8 +407,10 @@ def analyse_all(
 ) -> list[FormulaAnalysis]:
     """FormulaAnalysis per calculation (values at the operating point unless skipped)."""
     points = _points(calculations, values, skip)
+    dims = np.array([int(c.structure.get("dim", 3)) for c in calculations], dtype=int)
+    bands = point_bands(values, dims)
     return [
-        analyse_calculation(calc, points[i]) if calc.formulas else FormulaAnalysis()
+        analyse_calculation(calc, points[i], bands[i]) if calc.formulas else FormulaAnalysis()
         for i, calc in enumerate(calculations)
     ]
 

@@ -22,7 +22,8 @@ computed from the tree first, and a formula above SYMPY_BUDGET is not proved
 (reported as unrecognised) rather than expanded.  Deterministic: no clock.
 
 No set: the formula is unrecognised.  The result depends only on the formula,
-the dimensionality and the majority carrier, so it is cached per process.
+the dimensionality, the majority carrier and the band world (parabolic, a bulk
+Kane conduction band, a linear zero-gap sheet), so it is cached per process.
 """
 
 from __future__ import annotations
@@ -132,17 +133,18 @@ def _worlds(names: AbstractSet[str], majority: str) -> tuple[str, ...]:
 
 
 @lru_cache(maxsize=4096)
-def analyse(lhs: Node, rhs: Node, dim: int, majority: str) -> Match:
-    """The smallest limit set under which ``lhs = rhs`` holds (cached per process)."""
-    return _analyse(lhs, rhs, dim, majority)
+def analyse(lhs: Node, rhs: Node, dim: int, majority: str, band: str = "parabolic") -> Match:
+    """The smallest limit set under which ``lhs = rhs`` holds in the band world ``band``
+    (relations.band_world; cached per process)."""
+    return _analyse(lhs, rhs, dim, majority, band)
 
 
-def _analyse(lhs: Node, rhs: Node, dim: int, majority: str) -> Match:
+def _analyse(lhs: Node, rhs: Node, dim: int, majority: str, band: str) -> Match:
     names = names_in(lhs) | names_in(rhs)
     rng = np.random.default_rng(SEED)
     best: tuple[World, tuple[Limit, ...]] | None = None
     for which in _worlds(names, majority):
-        base = world(dim, which, majority)
+        base = world(dim, which, majority, band)
         used = closure(names, base.definitions)
         candidates = [
             limit
@@ -201,7 +203,9 @@ def _smallest(
             degenerate = tuple(x for x in ("n", "p") if f"deg_{x}" in ids)
             key = (degenerate, frozenset(inputs_needed))
             if key not in primitives_cache:
-                primitives_cache[key] = sample(inputs_needed, base.dim, degenerate, rng, POINTS)
+                primitives_cache[key] = sample(
+                    inputs_needed, base.dim, degenerate, rng, POINTS, base.band
+                )
             a, b = _evaluate(lhs, rhs, definitions, order, primitives_cache[key])
             if identical(a, b):
                 return chosen

@@ -377,6 +377,11 @@ def _normal_of(node: Node, inner: list[Quotient]) -> Quotient:
     return _q_div(left, right)
 
 
+# relations without a closed form (quadratures of a Kane band): an atom of their arguments,
+# like F_j, so an identity that keeps them whole is proved without sympy
+OPAQUE_RELATIONS = frozenset({"kane_density_factor", "kane_einstein_ratio"})
+
+
 def _call(node: Node, inner: list[Quotient]) -> Quotient:
     name, args = node.value, node.args
     if name == "exp":
@@ -392,6 +397,8 @@ def _call(node: Node, inner: list[Quotient]) -> Quotient:
             raise Unsupported("F with a non-numeric order")
         order = _number(args[0].value)
         return _atom(f"F{order}{_render(_polynomial(inner[1]))}"), _const(1)
+    if name in OPAQUE_RELATIONS:
+        return _atom(name + "".join(_render(_polynomial(part)) for part in inner)), _const(1)
     raise Unsupported(f"function {name}")
 
 

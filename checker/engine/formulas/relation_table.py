@@ -36,6 +36,10 @@ from typing import Any
 import sympy as sp
 
 F = sp.Function("F")  # normalized Fermi–Dirac integral F_j(eta)
+# Kane non-parabolic density factor F_K(beta, eta) = n/N_c (beta = alpha kT) and the Einstein
+# ratio F_K/(dF_K/deta) of that band: quadratures of the physics layer, no closed form
+K = sp.Function("K")
+K_RATIO = sp.Function("K_ratio")
 
 
 def _positive(names: str) -> Any:
@@ -52,6 +56,9 @@ class Function:
     meaning: str  # one line, with units of the result
     validity: str
     reference: str
+    # text the dimension check walks where the relation has no closed form (a quadrature):
+    # it states only that the arguments and the result are pure numbers
+    dimension_text: str | None = None
 
     def __call__(self, *args: Any) -> sp.Expr:
         """The expression with the parameters replaced by ``args`` (simultaneously)."""
@@ -59,6 +66,7 @@ class Function:
 
 
 dim, eta = sp.symbols("dim eta", real=True)
+beta_k = sp.Symbol("beta", nonnegative=True)  # alpha kT of a Kane band
 mu, field, v_sat, beta = _positive("mu field v_sat beta")
 rho, length, mfp, area = _positive("rho L mean_free_path A")
 n_c, n_v, e_g, kT = _positive("N_c N_v E_g kT")
@@ -75,6 +83,28 @@ FUNCTIONS = {
             "dimensionality dim at reduced Fermi level eta (dimensionless)",
             "parabolic band, one subband in 2D and 1D; dim in {1, 2, 3}, any real eta",
             "P. T. Landsberg, Eur. J. Phys. 2, 213 (1981)",
+        ),
+        Function(
+            "kane_density_factor",
+            (beta_k, eta),
+            K(beta_k, eta),
+            "Kane non-parabolic density factor F_K = n/N_c at beta = alpha kT and reduced "
+            "Fermi level eta, F_K = (2/sqrt(pi)) integral of sqrt(x(1 + beta x))(1 + 2 beta x)"
+            "/(1 + e^(x - eta)) dx (dimensionless; F_1/2(eta) at beta = 0)",
+            "bulk (3D) Kane band E(1 + alpha E) = hbar^2 k^2/2m*; beta >= 0, any real eta",
+            "E. O. Kane, J. Phys. Chem. Solids 1, 249 (1957)",
+            "F(0.5, eta) + 0*beta",
+        ),
+        Function(
+            "kane_einstein_ratio",
+            (beta_k, eta),
+            K_RATIO(beta_k, eta),
+            "generalized Einstein ratio (D/mu)/(kT/q) = F_K/(dF_K/deta) of a bulk Kane band "
+            "(dimensionless; F_1/2/F_-1/2 at beta = 0)",
+            "bulk (3D) Kane band; beta >= 0, any real eta",
+            "P. T. Landsberg, Eur. J. Phys. 2, 213 (1981); E. O. Kane, J. Phys. Chem. Solids "
+            "1, 249 (1957)",
+            "F(0.5, eta) + 0*beta",
         ),
         Function(
             "field_velocity",
@@ -216,8 +246,72 @@ NEUTRALITY = {
 }
 
 
-def definitions(d: int, majority: str) -> dict[str, Any]:
-    """name -> sympy expression of every defined trade symbol (without neutrality)."""
+# the band worlds of each dimensionality: "parabolic" everywhere, a Kane conduction band in
+# bulk, linear zero-gap bands (graphene) in a sheet
+BANDS = {3: ("parabolic", "kane"), 2: ("parabolic", "linear"), 1: ("parabolic",)}
+
+
+def _kane(d: int) -> dict[str, Any]:
+    """A bulk Kane conduction band: n = N_c F_K(beta, eta_n), D_n/mu_n from the same band
+    (beta_kane_n = alpha kT; Kane 1957, Landsberg 1981).  Holes stay parabolic."""
+    k, T, q_ = S("k"), S("T"), S("q")
+    beta_n = S("beta_kane_n")
+    return {
+        "n": S("N_c") * FUNCTIONS["kane_density_factor"](beta_n, S("eta_n")),
+        "D_n": S("mu_n") * k * T / q_ * FUNCTIONS["kane_einstein_ratio"](beta_n, S("eta_n")),
+    }
+
+
+# g_s g_v of graphene: N_eff = (g_s g_v/2 pi)(kT/hbar v_F)^2 = (2/pi)(kT/hbar v_F)^2
+GRAPHENE_DEGENERACY = 4
+
+
+def _linear(d: int) -> dict[str, Any]:
+    """A zero-gap sheet with linear bands E = +-hbar v_F |k| (Fang et al. 2007).
+
+    Energies are measured from the Dirac point: E_D (here the Dirac point, not a donor
+    level) is the energy zero, so E_F - E_D and E_F alone are the same number; eta_p =
+    -eta_n; n_s = N_eff F_1(eta_n), p_s = N_eff F_1(eta_p); D/mu = (kT/q) F_1/F_0.
+    """
+    k, T, q_ = S("k"), S("T"), S("q")
+    kT_ = k * T
+    n_eff = sp.Rational(GRAPHENE_DEGENERACY, 2) / sp.pi * (kT_ / (S("hbar") * S("v_F"))) ** 2
+    out = {
+        "E_D": sp.Integer(0),
+        "E_c": S("E_D"),
+        "E_v": S("E_D"),
+        "eta_n": (S("E_F") - S("E_D")) / kT_,
+        "eta_p": (S("E_D") - S("E_F")) / kT_,
+        "N_c": n_eff,
+        "N_v": n_eff,
+        "n_s": S("N_c") * F(1, S("eta_n")),
+        "p_s": S("N_v") * F(1, S("eta_p")),
+        "n": S("n_s"),
+        "p": S("p_s"),
+        # both cones at E_F = E_D: N_eff F_1(0) = (pi/6)(kT/hbar v_F)^2 for graphene
+        "n_i": S("N_c") * sp.pi**2 / 12,
+        "E_i": S("E_D"),
+    }
+    for x in ("n", "p"):
+        out[f"D_{x}"] = S(f"mu_{x}") * kT_ / q_ * F(1, S(f"eta_{x}")) / F(0, S(f"eta_{x}"))
+    return out
+
+
+# a linear sheet has no dopant levels and no band masses
+_NOT_LINEAR = ("E_A", "f_D", "f_A", "N_D_plus", "N_A_minus", "m_n", "m_p")
+
+
+def definitions(d: int, majority: str, band: str = "parabolic") -> dict[str, Any]:
+    """name -> sympy expression of every defined trade symbol (without neutrality), for
+    dimensionality ``d``, majority carrier ``majority`` and band world ``band``."""
     out = _common(d)
     out.update(_geometry(d, majority))
+    if d == 2:  # a sheet's densities are its sheet densities
+        out.update({"n_s": S("n"), "p_s": S("p")})
+    if band == "kane":
+        out.update(_kane(d))
+    elif band == "linear":
+        for name in _NOT_LINEAR + ("n_s", "p_s"):
+            out.pop(name, None)
+        out.update(_linear(d))
     return out

@@ -52,7 +52,19 @@ if TYPE_CHECKING:
 names_in = lru_cache(maxsize=4096)(_names_in)
 
 # Gamma(j + 2) for the Fermi–Dirac orders that occur (j = d/2 - 1 and j - 1)
-_GAMMA_TEXT = {2.5: "0.75*sqrt(pi)", 2.0: "1", 1.5: "0.5*sqrt(pi)", 1.0: "1", 0.5: "sqrt(pi)"}
+_GAMMA_TEXT = {
+    3.0: "2",
+    2.5: "0.75*sqrt(pi)",
+    2.0: "1",
+    1.5: "0.5*sqrt(pi)",
+    1.0: "1",
+    0.5: "sqrt(pi)",
+}
+# a Kane band's relation functions -> their parabolic (alpha -> 0) form, over the eta argument
+_PARABOLIC_FORMS = {
+    "kane_density_factor": "F(0.5, eta)",
+    "kane_einstein_ratio": "F(0.5, eta)/F(-0.5, eta)",
+}
 
 
 @dataclass(frozen=True)
@@ -65,6 +77,7 @@ class Limit:
     fermi: str | None = None  # "eta_n"/"eta_p": F_j of it is rewritten
     fermi_form: str | None = None  # "exp" (non-degenerate) | "power" (degenerate)
     excludes: tuple[str, ...] = ()
+    parabolic: bool = False  # Kane relations -> their parabolic forms (alpha -> 0)
 
 
 def limits(world: str) -> tuple[Limit, ...]:
@@ -72,6 +85,13 @@ def limits(world: str) -> tuple[Limit, ...]:
     carrier = "n" if world == "donor" else "p"
     other_dopant = "N_A" if world == "donor" else "N_D"
     return (
+        Limit(
+            "parabolic_n",
+            "parabolic conduction band (α -> 0)",
+            "parabolic-band",
+            "n",
+            parabolic=True,
+        ),
         Limit(
             "nondeg_n",
             "non-degenerate electrons (F_j -> e^η)",
@@ -160,6 +180,9 @@ WORDS_IN = {
     "D_n": {"nondeg_n": "einstein-relation"},
     "D_p": {"nondeg_p": "einstein-relation"},
     "N_D": {"holes_negligible": "extrinsic"},
+    # the T = 0 density of a linear band: its degenerate limit (n_s = E_F^2/(pi hbar^2 v_F^2))
+    "n_s": {"deg_n": "zero-temperature"},
+    "p_s": {"deg_p": "zero-temperature"},
     "N_A": {"electrons_negligible": "extrinsic"},
 }
 
@@ -170,6 +193,10 @@ RELATION_NAMES = {
     "E_g": "band gap",
     "n": "electron density (Fermi–Dirac)",
     "p": "hole density (Fermi–Dirac)",
+    "n_s": "electron sheet density (Fermi–Dirac)",
+    "p_s": "hole sheet density (Fermi–Dirac)",
+    "N_c": "effective density of states",
+    "N_v": "effective density of states",
     "n_i": "intrinsic density",
     "E_i": "intrinsic Fermi level",
     "E_D": "donor level",
@@ -205,18 +232,29 @@ class World:
     dim: int
     world: str  # "donor" | "acceptor"
     majority: str
+    band: str  # "parabolic" | "kane" (bulk Kane conduction band) | "linear" (zero-gap sheet)
     definitions: dict[str, Node] = field(hash=False, compare=False)  # name -> tree
     order: tuple[str, ...] = ()  # defined names, dependencies first
 
 
 @cache
-def world(dim: int, which: str, majority: str) -> World:
+def world(dim: int, which: str, majority: str, band: str = "parabolic") -> World:
     # the definitions are generated from relation_table.py (the one place they are written)
-    texts = dict(_relation_texts.DEFINITIONS[dim, majority])
+    texts = dict(_relation_texts.DEFINITIONS[dim, majority, band])
     texts.update(_relation_texts.NEUTRALITY[which])
     definitions = {name: parse(text) for name, text in texts.items()}
     definitions.update({name: num(1.0) for name in SWITCHES})
-    return World(dim, which, majority, definitions, _topological(definitions))
+    return World(dim, which, majority, band, definitions, _topological(definitions))
+
+
+def band_world(dim: int, kane_beta: float, linear: float) -> str:
+    """The band world of an operating point: "kane" where the bulk conduction band is Kane
+    (alpha kT > 0), "linear" for a zero-gap sheet, else "parabolic"."""
+    if dim == 3 and kane_beta > 0:
+        return "kane"
+    if dim == 2 and linear > 0:
+        return "linear"
+    return "parabolic"
 
 
 def _topological(definitions: dict[str, Node]) -> tuple[str, ...]:
@@ -261,9 +299,25 @@ def _fermi_calls(tree: Node, eta: str) -> bool:
     return fold(tree, lambda node, inner: _is_fermi_of(node, eta) or any(inner))
 
 
+def _kane_calls(tree: Node, eta: str | None = None) -> bool:
+    """True where the tree calls a Kane relation (of ``eta``, if given)."""
+
+    def is_kane(node: Node) -> bool:
+        return (
+            node.kind == CALL
+            and node.value in _PARABOLIC_FORMS
+            and (eta is None or node.args[1] == name_node(eta))
+        )
+
+    return fold(tree, lambda node, inner: is_kane(node) or any(inner))
+
+
 def acts_on(limit: Limit, tree: Node) -> bool:
-    """True when the limit changes this (unexpanded) definition."""
-    if limit.fermi and _fermi_calls(tree, limit.fermi):
+    """True when the limit changes this (unexpanded) definition (a Kane relation's
+    parabolic form has F_j of the same eta)."""
+    if limit.fermi and (_fermi_calls(tree, limit.fermi) or _kane_calls(tree, limit.fermi)):
+        return True
+    if limit.parabolic and _kane_calls(tree):
         return True
     used = names_in(tree)
     return any(name in used for name, _ in limit.overrides)
@@ -284,9 +338,30 @@ def _rewrite_fermi(tree: Node, eta: str, form: str) -> Node:
     return transform(tree, change)
 
 
+@cache
+def _parabolic_form(function: str) -> Node:
+    return parse(_PARABOLIC_FORMS[function])
+
+
+def _rewrite_kane(tree: Node) -> Node:
+    """kane_density_factor(beta, eta) -> F(1/2, eta), kane_einstein_ratio(beta, eta) ->
+    F(1/2, eta)/F(-1/2, eta): the Kane band's alpha -> 0."""
+
+    def change(node: Node) -> Node:
+        if node.kind != CALL or node.value not in _PARABOLIC_FORMS:
+            return node
+        return expand(_parabolic_form(node.value), {"eta": node.args[1]})
+
+    return transform(tree, change)
+
+
 @lru_cache(maxsize=256)
-def _with_fermi(base: World, rewrites: tuple[tuple[str, str], ...]) -> dict[str, Node]:
+def _with_fermi(
+    base: World, rewrites: tuple[tuple[str, str], ...], parabolic: bool = False
+) -> dict[str, Node]:
     definitions = base.definitions
+    if parabolic:  # first: the parabolic forms' F_j are then rewritten like any other
+        definitions = {name: _rewrite_kane(tree) for name, tree in definitions.items()}
     for eta, form in rewrites:
         definitions = {name: _rewrite_fermi(tree, eta, form) for name, tree in definitions.items()}
     return definitions
@@ -295,7 +370,11 @@ def _with_fermi(base: World, rewrites: tuple[tuple[str, str], ...]) -> dict[str,
 def limited(base: World, chosen: Collection[Limit]) -> dict[str, Node]:
     """The definitions with the chosen limits applied (overrides and F_j rewrites)."""
     definitions = dict(
-        _with_fermi(base, tuple((limit.fermi, limit.fermi_form) for limit in chosen if limit.fermi))
+        _with_fermi(
+            base,
+            tuple((limit.fermi, limit.fermi_form) for limit in chosen if limit.fermi),
+            any(limit.parabolic for limit in chosen),
+        )
     )
     for limit in chosen:
         for name, value in limit.overrides:
@@ -343,6 +422,9 @@ _SAMPLING: dict[str, tuple[str, float] | tuple[str, float, float]] = {
     "m_p": ("log", -32.0, -30.0),
     "tau_n": ("log", -10.0, -3.0),
     "tau_p": ("log", -10.0, -3.0),
+    # alpha kT of a Kane band: InP at 150 K to InSb at 600 K and beyond
+    "beta_kane_n": ("lin", 0.01, 0.5),
+    "v_F": ("log", 5.5, 6.5),
 }
 
 
@@ -352,6 +434,7 @@ def sample(
     degenerate: Collection[str],
     rng: np.random.Generator,
     size: int,
+    band: str = "parabolic",
 ) -> dict[str, Any]:
     """Random values for the primitive ``names`` (and the band energies).
 
@@ -372,6 +455,8 @@ def sample(
     out["E_v"] = rng.uniform(-1.0, 1.0, size) * _EV
     out["E_F"] = out["E_v"] - eta["p"] * kT
     out["E_c"] = out["E_F"] - eta["n"] * kT
+    if band == "linear":  # energies from the Dirac point (E_D = 0); holes at -eta_n
+        out["E_F"] = (-eta["p"] if "p" in degenerate else eta["n"]) * kT
     lo, hi = _DENSITY_DECADES[dim]
     for name in sorted(names):
         if name in out:
