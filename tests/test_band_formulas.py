@@ -250,6 +250,9 @@ def test_two_dimensional_gas_formulas():
         set(),
         set(),
     )
+    # ... proved by the exact normal form, F_0(x) = ln(1 + e^x) (DLMF 25.12.16)
+    lhs, rhs, _ = parse_formula("n_s = N_c*log(1 + exp(eta_n))", "n", "test")
+    assert analyse(lhs, rhs, 2, "n", "parabolic").proof == "symbolic"
     assert _limits("n_s = N_c*exp(eta_n)", 2, "n", "parabolic") == (
         "limit",
         {"nondeg_n"},

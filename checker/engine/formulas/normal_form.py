@@ -396,6 +396,8 @@ def _call(node: Node, inner: list[Quotient]) -> Quotient:
         if args[0].kind != NUM:
             raise Unsupported("F with a non-numeric order")
         order = _number(args[0].value)
+        if order == 0:  # F_0(x) = ln(1 + e^x) (DLMF 25.12.16): a 2D gas written either way
+            return _log(_q_add(_q_const(1), _exp(inner[1])))
         return _atom(f"F{order}{_render(_polynomial(inner[1]))}"), _const(1)
     if name in OPAQUE_RELATIONS:
         return _atom(name + "".join(_render(_polynomial(part)) for part in inner)), _const(1)
