@@ -12,7 +12,12 @@ from this table:
   the same functions by substitution.
 
 ``F(j, eta)`` is the normalized Fermi–Dirac integral F_j(eta) (F_j -> e^eta as
-eta -> -inf).  Named limits that follow from a relation are derived here by sympy
+eta -> -inf).  The definitions come in band worlds (:data:`BANDS`): parabolic bands,
+a bulk Kane conduction band (n = N_c F_K(beta, eta_n), whose F_K and Einstein ratio are
+quadratures of the physics layer, written here as the opaque functions K and K_ratio)
+and a linear zero-gap sheet (graphene; energies from the Dirac point).
+
+Named limits that follow from a relation are derived here by sympy
 (:func:`derived_limits`) and checked by the tests.
 
 References
@@ -26,6 +31,9 @@ D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967): field-dependent velo
 M. Lundstrom and C. Jeong, Near-Equilibrium Transport (2012), ch. 3: R = rho(L+lambda)/A.
 W. Shockley, Electrons and Holes in Semiconductors (Van Nostrand, 1950): the
   diffusion length L = sqrt(D tau) (from memory).
+E. O. Kane, J. Phys. Chem. Solids 1, 249 (1957): the non-parabolic band E(1 + alpha E).
+T. Fang, A. Konar, H. Xing and D. Jena, Appl. Phys. Lett. 91, 092109 (2007): densities
+  and n_i of graphene's linear bands.
 """
 
 from __future__ import annotations

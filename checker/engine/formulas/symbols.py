@@ -106,7 +106,13 @@ SYMBOLS = _symbols(
         ("E_F", "energy", "Fermi level", "E_F, E_f, EF, Ef"),
         ("E_g", "energy", "band gap E_c - E_v", "E_g, E_G, Eg, EG"),
         ("E_i", "energy", "intrinsic Fermi level", "E_i, E_I, Ei, EI"),
-        ("E_D", "energy", "donor level (E_c minus the ionization energy)", "E_D, E_d, Ed, ED"),
+        (
+            "E_D",
+            "energy",
+            "donor level (E_c minus the ionization energy); in a zero-gap sheet the Dirac "
+            "point, from which E_F is measured (E_F - E_D and E_F alone are the same there)",
+            "E_D, E_d, Ed, ED",
+        ),
         ("E_A", "energy", "acceptor level (E_v plus the ionization energy)", "E_A, E_a"),
         (
             "eta_n",
