@@ -137,6 +137,12 @@ DOCUMENTED = {
     "LAND02": (1.2, "the resistance tolerance of VAL05, 20 % (common practice (no source))"),
     # quasi-ballistic conductors: the averaged-lambda shortcut against the energy-resolved value
     "TRAN03": (1.05, "5 % resistance error, as TRAN01 (common practice (no source))"),
+    "VAL06": (1.2, "the resistivity tolerance of MEAS01, 20 % (common practice (no source))"),
+    "MOB03": (
+        1.2,
+        "the top of the channel's room-temperature range (AlGaN/GaN 2200 cm^2/(V s), "
+        "J.-T. Chen et al. 2015); 20 % (common practice (no source))",
+    ),
 }
 
 
@@ -806,6 +812,27 @@ def tran03(target):
     return Point(text, max(ratio, 1 / ratio), "electrons")
 
 
+def val06(target):
+    # R_s = 1/(q n_s mu) (Sze & Ng 2007, ch. 1) with q from CODATA (scipy.constants)
+    expected = 1.0 / (sc.e * 1e13 / CM2 * 2000.0 * CM2)
+    stated = _num(expected * target)
+    text = _gan_sheet(
+        f"  electron_mobility: 2000 cm^2/(V*s)\n  sheet_resistance: {stated:.12e} ohm/sq\n"
+    )
+    return Point(text, stated / expected, None)
+
+
+def mob03(target):
+    # the top of the AlGaN/GaN range at 300 K, 2200 cm^2/(V s) (J.-T. Chen et al., Appl.
+    # Phys. Lett. 106, 251601 (2015)), as the material entry gives it
+    stated = _num(2200.0 * target)
+    extra = (
+        "stated:\n  electron_sheet_density: 1e13 cm-2\n"
+        f"  electron_mobility: {stated:.12e} cm^2/(V*s)\n"
+    )
+    return Point(_calc("GaN-AlGaN", 300.0, extra=extra), stated / 2200.0, "electrons")
+
+
 BUILDERS = {
     "STAT01": [stat01],
     "STAT02": [stat02, stat02_2d],
@@ -841,6 +868,8 @@ BUILDERS = {
     "TRAN03": [tran03],
     "LAND01": [land01],
     "LAND02": [land02],
+    "VAL06": [val06],
+    "MOB03": [mob03],
 }
 CASES = [(rule, build) for rule in sorted(THRESHOLDS) for build in BUILDERS.get(rule, [])]
 

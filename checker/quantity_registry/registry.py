@@ -186,6 +186,25 @@ QUANTITIES = (
     _q("metal_x", "1", "1 where N_x is above its Mott density"),
     _q("maj_x", "1", "1 where this carrier is the majority"),
     _q("mu_x", "cm^2/(V*s)", "low-field mobility of the material model at N_D + N_A"),
+    # ---- mobilities typically measured in the material's channels (a plausibility range)
+    _q(
+        "mu_typ_lo_x",
+        "cm^2/(V*s)",
+        "lowest mobility typically measured in the channels at mu_typ_T (NaN: no range)",
+        Source.INPUTS,
+    ),
+    _q(
+        "mu_typ_hi_x",
+        "cm^2/(V*s)",
+        "highest mobility typically measured in the channels at mu_typ_T (NaN: no range)",
+        Source.INPUTS,
+    ),
+    _q(
+        "mu_typ_T",
+        "K",
+        "temperature of the material's typical mobility range (NaN: no range)",
+        Source.INPUTS,
+    ),
     _q(
         "mu0_x",
         "cm^2/(V*s)",

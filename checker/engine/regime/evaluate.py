@@ -36,6 +36,7 @@ from ..findings import Correction, Embodied, Finding, carrier_word
 from ..vocabulary import carrier_names
 from .corrected import quantity_key
 from .rulebook import PLACEHOLDER, Compiled, Rule
+from .sheet_values import solve_inputs
 from .state_values import Replaced, Values, derive_corrected
 
 if TYPE_CHECKING:
@@ -263,11 +264,13 @@ def evaluate(
     for ruled in ruled_all:
         add_findings(ruled, cells, findings)
     compared = compared_numbers(ruled_all, cells)
+    inputs = [solve_inputs(calc) for calc in calculations]  # a sheet's own inputs
     unchecked = [
         [
             name
             for name in calc.stated
             if not any(compared[f][c] for f in _FORMS.get(name, (name,)) if f in compared)
+            and name not in inputs[c]
         ]
         if cells.valid[c]
         else []
@@ -385,6 +388,10 @@ def _add_findings(
                 column = calc.columns.get(stated_name)
         if line is None:
             line = next((_line_of(calc, name) for name, mask in ruled.implied if mask[i]), None)
+        if line is None:
+            # a rule without a correction of a stated number: the stated number it reads
+            stated_lines = (_line_of(calc, ruled.names.get(n, n)) for n in rule.requires)
+            line = next((at for at in stated_lines if at is not None), None)
         if line is None and formula is not None:
             line = formula.line
         if line is None:

@@ -71,6 +71,22 @@ def is_sheet(calc: Calculation) -> bool:
     return (stated and int(calc.structure.get("dim", 3)) == 2) or is_wire(calc)
 
 
+def solve_inputs(calc: Calculation) -> set[str]:
+    """The stated numbers (engine names) that fixed the Fermi level of a sheet or wire: the
+    inputs of its solve, which no rule needs to compare (the others are claims).  Each
+    carrier of a gas or wire takes its own density, else the stated Fermi level; a zero-gap
+    sheet takes the net density, else the Fermi level, else one carrier's density."""
+    if not is_sheet(calc):
+        return set()
+    stated = set(calc.stated)
+    if is_linear(calc.material):
+        order = ("stated_net_sheet", "stated_ef_minus_ec", "stated_ns_n", "stated_ns_p")
+        return set(next(([name] for name in order if name in stated), []))
+    densities = stated & set(SHEET_INPUTS) - {"stated_net_sheet"}
+    densities -= {"stated_ef_minus_ec", "stated_ef_minus_ev"}
+    return densities or stated & {"stated_ef_minus_ec", "stated_ef_minus_ev"}
+
+
 def is_linear(material: Material) -> bool:
     """A zero-gap sheet with linear bands (graphene)."""
     return material.band_shape("electron").model == "linear"

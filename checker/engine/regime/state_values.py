@@ -10,6 +10,8 @@ is retried one calculation at a time so that only the bad ones are lost.
 from __future__ import annotations
 
 import dataclasses
+import functools
+import itertools
 from collections.abc import Callable, Mapping, Sequence
 from typing import TYPE_CHECKING, Any, TypeAlias
 
@@ -398,6 +400,12 @@ def fill_inputs(
 
     for name in ("L", "thickness", "width"):
         values[name] = structure(name)
+    # the mobilities typically measured in the material's channels, and at what temperature
+    values["mu_typ_T"] = column(lambda c: _typical_mobility(c, "T"))
+    for carrier, end in itertools.product(Carrier, ("low", "high")):
+        values[f"mu_typ_{end[:2]}_{carrier}"] = column(
+            functools.partial(_typical_mobility, field=end, carrier=carrier)
+        )
     area = structure("A")
     values["A"] = np.where(
         np.isfinite(area),
@@ -444,6 +452,14 @@ def fill_inputs(
         + values["dens_p"] * values["cond_p"] * values["mu_p"]
     )
     _hall(values, column(lambda c: c.hall_exponent))
+
+
+def _typical_mobility(calc: Calculation, field: str, carrier: Carrier | None = None) -> float:
+    """``field`` (low, high: m^2/(V s); T: K) of the mobility range typically measured in
+    the calculation's material (for ``carrier``; T: of any carrier); NaN where none."""
+    spans = calc.material.typical_mobility
+    span = spans.get(carrier.singular) if carrier else next(iter(spans.values()), None)
+    return float(getattr(span, field)) if span is not None else np.nan
 
 
 # what a rule's replaces: may set in the corrected calculation (see derive_corrected)
