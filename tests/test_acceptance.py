@@ -330,8 +330,12 @@ def _operating_point(doc):
     return N, _kelvin(doc["temperature"]), E, (species[0] if species else None)
 
 
-def _stated(doc):
-    ((key, text),) = doc["stated"].items()
+def _stated(doc, key=None):
+    """The case's stated number: the only one, or ``key`` where the calculation also states
+    its inputs (a sheet's density and mobility)."""
+    if key is not None:
+        return _number(doc["stated"][key])
+    ((_, text),) = doc["stated"].items()
     return _number(text)
 
 
@@ -341,7 +345,7 @@ CASES_WITH_VALUE = [pytest.param(c, id=c["id"]) for c in INDEX if "value" in c]
 @pytest.mark.parametrize("case", CASES_WITH_VALUE)
 def test_stated_value_is_the_published_one(case):
     doc = next(d for _, _, d in _documents() if d["name"] == case["id"])
-    value, unit = _stated(doc)
+    value, unit = _stated(doc, case.get("key"))
     assert value == pytest.approx(case["value"], rel=1e-9)  # file and index agree
     if "reference" not in case:
         return
@@ -350,6 +354,44 @@ def test_stated_value_is_the_published_one(case):
     N, T, E, species = _operating_point(doc)
     rel = TOLERANCE.get(case["reference"], 5e-3)
     assert value == pytest.approx(published(N, T, E, species), rel=rel), case["source"]
+
+
+def _low_dimensional_values():
+    """The numbers of the 2D, graphene and Landauer cases from their published formulas,
+    with CODATA constants (scipy.constants) and mpmath."""
+    import mpmath as mp
+
+    kT_q = sc.k * 300.0 / sc.e
+    g0 = 2 * sc.e**2 / sc.h  # 2q^2/h, exact in the SI (CODATA 2018)
+    # 2D gas (m* = 0.20): eta from n_s = N_2D ln(1 + e^eta); D/mu = (kT/q)(1 + e^-eta) ln(1 + e^eta)
+    n2d = 0.20 * sc.m_e * sc.k * 300.0 / (math.pi * sc.hbar**2) * 1e-4  # cm^-2
+    eta = float(mp.log(mp.expm1(1e13 / n2d)))
+    ratio_2d = (1 + math.exp(-eta)) * math.log1p(math.exp(eta))
+    return {
+        # R_s = 1/(q n_s mu) (Sze & Ng 2007, ch. 1), cm^-2 and cm^2/(V s)
+        "ld-gan-2deg-sheet-resistance": (1 / (sc.e * 1e13 * 2000), 2e-3),
+        "ld-gaas-2deg-sheet-resistance": (1 / (sc.e * 5e11 * 8000), 2e-3),
+        "ld-graphene-sio2-sheet-resistance": (1 / (sc.e * 1e12 * 40000), 2e-3),
+        # D/mu at the Dirac point: F_1(0)/F_0(0) = (pi^2/12)/ln 2 (Blakemore 1982)
+        "ld-graphene-dirac-point-einstein": (5000 * kT_q * math.pi**2 / (12 * math.log(2)), 1e-3),
+        "ld-gan-2deg-einstein": (1800 * kT_q * ratio_2d, 1e-3),
+        "x-gan-2deg-boltzmann-einstein": (1800 * kT_q, 2e-3),
+        "x-graphene-boltzmann-einstein": (5000 * kT_q, 2e-3),
+        # n = E_F^2/(pi hbar^2 v_F^2) at 50 meV, v_F = 1e6 m/s (Fang et al. 2007), cm^-2
+        "x-graphene-zero-temperature-density": (
+            (0.05 * sc.e) ** 2 / (math.pi * (sc.hbar * 1e6) ** 2) * 1e-4,
+            5e-3,
+        ),
+        "x-graphene-one-carrier-near-neutrality": (1 / (sc.e * 1e11 * 5000), 2e-3),
+        "x-2deg-sheet-resistance-decade": (0.1 / (sc.e * 1e13 * 2000), 2e-3),
+        "ld-point-contact-third-plateau": (3 * g0, 1e-4),
+    }
+
+
+def test_low_dimensional_cases_follow_their_published_formulas():
+    index = {case["id"]: case for case in INDEX}
+    for name, (expected, rel) in _low_dimensional_values().items():
+        assert index[name]["value"] == pytest.approx(expected, rel=rel), name
 
 
 def test_published_values_cited_beside_the_equations():
