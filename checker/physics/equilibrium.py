@@ -36,7 +36,7 @@ import os
 from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import cached_property
-from typing import TypeAlias
+from typing import TYPE_CHECKING, TypeAlias
 
 import numpy as np
 
@@ -47,6 +47,9 @@ from .bands import KaneBand
 from .constants import BOLTZMANN
 from .fermi import log_fermi_dirac, log_fermi_dirac_half_pair
 from .materials import Dopant, Material
+
+if TYPE_CHECKING:
+    from concurrent.futures import ThreadPoolExecutor
 
 MAX_ITERATIONS = 200
 TOLERANCE = 1e-12
@@ -180,18 +183,29 @@ def charge_balance_error(state: State) -> FloatArray:
     Sze & Ng (2007) ch. 1 (charge neutrality).
     """
     kT = state.kT
-    negative = [np.log(state.Nc) + state.log_electron_factor]
-    positive = [np.log(state.Nv) + log_fermi_dirac(0.5, state.eta_p)]
-    for group, eta_band, total, side in (
-        (state.donors, state.eta_n, state.donors_total, positive),
-        (state.acceptors, state.eta_p, state.acceptors_total, negative),
-    ):
-        for name, density in group.items():
-            side.append(
-                log_ionized_density(state.material.dopant(name), density, eta_band, kT, total)
-            )
+
+    def terms(group: Mapping[str, FloatArray], total: FloatArray) -> list[LevelTerm]:
+        return [
+            term
+            for name, density in group.items()
+            for term in _level_terms(state.material.dopant(name), density, kT, total)
+        ]
+
+    return _plain_balance_error(
+        np.log(state.Nc) + state.log_electron_factor,
+        np.log(state.Nv) + log_fermi_dirac(0.5, state.eta_p),
+        [_log_ionized(term, state.eta_n) for term in terms(state.donors, state.donors_total)],
+        [_log_ionized(term, state.eta_p) for term in terms(state.acceptors, state.acceptors_total)],
+    )
+
+
+def _plain_balance_error(
+    ln_n: FloatArray, ln_p: FloatArray, ln_donors: list[FloatArray], ln_acceptors: list[FloatArray]
+) -> FloatArray:
+    """|(n + N_A^-) - (p + N_D^+)| / max of the two, from the log densities."""
     with np.errstate(invalid="ignore", over="ignore"):
-        ln_neg, ln_pos = np.logaddexp.reduce(negative), np.logaddexp.reduce(positive)
+        ln_neg = np.logaddexp.reduce([ln_n, *ln_acceptors])
+        ln_pos = np.logaddexp.reduce([ln_p, *ln_donors])
         top = np.maximum(ln_neg, ln_pos)
         error = np.abs(np.exp(ln_neg - top) - np.exp(ln_pos - top))
     return np.where(np.isfinite(top), error, 0.0)
@@ -243,10 +257,15 @@ def log_ionized_density(
 ) -> FloatArray:
     """ln of :func:`ionized_density` without underflow (-inf where the density is 0)."""
     parts = [
-        ln_n + np.logaddexp(ln_free, ln_b - np.logaddexp(0.0, eta_band + offset))
-        for ln_n, offset, ln_b, ln_free in _level_terms(dopant, density, kT, same_type_total)
+        _log_ionized(term, eta_band) for term in _level_terms(dopant, density, kT, same_type_total)
     ]
     return np.logaddexp.reduce(parts) if len(parts) > 1 else parts[0]
+
+
+def _log_ionized(term: LevelTerm, eta_band: FloatArray) -> FloatArray:
+    """ln N^ion of one bound level: ln N + ln(1 - b + b/(1 + g e^(eta_band + E/kT)))."""
+    ln_n, offset, ln_b, ln_free = term
+    return ln_n + np.logaddexp(ln_free, ln_b - np.logaddexp(0.0, eta_band + offset))
 
 
 def ionized_density(
@@ -607,6 +626,20 @@ def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatA
 
 WORKERS = min(4, os.cpu_count() or 1)
 CHUNK = 1 << 15  # points per block: the solver's temporaries then stay in cache
+MIN_BLOCK = 1 << 12  # smaller blocks cost more in per-call overhead than a thread gains
+
+
+_POOLS: dict[int, ThreadPoolExecutor] = {}
+
+
+def _pool() -> ThreadPoolExecutor:
+    """One pool of WORKERS threads, started on first need and kept: a sweep solves many
+    chunks, and starting threads per solve cost more than small blocks gain."""
+    if WORKERS not in _POOLS:
+        from concurrent.futures import ThreadPoolExecutor  # only large solves need it
+
+        _POOLS[WORKERS] = ThreadPoolExecutor(max_workers=WORKERS)
+    return _POOLS[WORKERS]
 
 
 def solve(
@@ -657,7 +690,7 @@ def solve(
     narrowing = np.empty_like(temps)
 
     def block(i: int) -> int:
-        part = slice(i, i + CHUNK)
+        part = slice(i, i + size)
         return _solve_flat(
             material,
             temps[part],
@@ -669,13 +702,13 @@ def solve(
             kane=kane,
         )
 
-    starts = range(0, temps.size, CHUNK)
+    # blocks of at most CHUNK points, and at least one per worker once each gets MIN_BLOCK
+    blocks = max(-(-temps.size // CHUNK), min(WORKERS, temps.size // MIN_BLOCK), 1)
+    size = max(-(-temps.size // blocks), 1)
+    starts = range(0, temps.size, size)
     if len(starts) > 1 and WORKERS > 1:
         # numpy releases the GIL inside ufuncs, so blocks overlap on both cores
-        from concurrent.futures import ThreadPoolExecutor  # only large solves need it
-
-        with ThreadPoolExecutor(max_workers=WORKERS) as pool:
-            iterations = max(pool.map(block, starts))
+        iterations = max(_pool().map(block, starts))
     else:
         iterations = max(block(i) for i in starts)
     state = State(
@@ -690,8 +723,6 @@ def solve(
         iterations=iterations,
         electron_band=kane,
     )
-    # the promise is checked, not assumed: neutrality evaluated afresh from eta
-    state.residual = np.maximum(state.residual, charge_balance_error(state))
     bad = ~(state.residual <= BALANCE_TOLERANCE)
     if bad.any():
         raise ConvergenceError(
@@ -794,9 +825,24 @@ def _solve_flat(
     if kane is not None:
         eta0 = _kane_start(eta0, kane.alpha * kT, nd_total >= na_total)
     eta, final_f, iterations = _newton(residual, eta0)
+    # the promise is checked, not assumed: neutrality in its plain form, evaluated afresh
+    # from eta with the model's own densities (charge_balance_error, per block)
+    eta_p = -eta - eg_kt
+    if kane is None:
+        both = np.asarray(log_fermi_dirac(0.5, np.concatenate([eta, eta_p])))
+        ln_f_n, ln_f_p = both[: eta.size], both[eta.size :]
+    else:
+        ln_f_n = np.asarray(energy_window.kane_density_factor(kane, eta, T)[0], dtype=float)
+        ln_f_p = np.asarray(log_fermi_dirac(0.5, eta_p))
+    balance = _plain_balance_error(
+        ln_nc + ln_f_n,
+        ln_nv + ln_f_p,
+        [_log_ionized(term, eta) for term in donor_terms],
+        [_log_ionized(term, eta_p) for term in acceptor_terms],
+    )
     out_eta, out_residual, out_metallic, out_narrowing = out
     out_eta[:] = eta
-    out_residual[:] = np.abs(np.expm1(final_f))
+    np.maximum(np.abs(np.expm1(final_f)), balance, out=out_residual)
     out_metallic[:] = metallic
     out_narrowing[:] = narrowing
     return iterations
