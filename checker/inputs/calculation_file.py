@@ -626,8 +626,7 @@ def _waivers(entries, where) -> dict:
     return out
 
 
-def _looks_like_calculation(text: str, path: str) -> bool:
-    docs, errors = read_documents(text, path)
+def _looks_like_calculation(docs: list[Located], errors: list[str]) -> bool:
     if errors:
         return True  # broken YAML is reported when parsed
     return any(isinstance(doc.value, dict) and "material" in doc.value for doc in docs)
@@ -636,7 +635,10 @@ def _looks_like_calculation(text: str, path: str) -> bool:
 def parse_calculations(text: str, path: str) -> FileResult:
     """Every calculation of a YAML text; a bad one is an error, the others still load.
     Line numbers are those of ``text`` (a memo pads its blocks to keep its own)."""
-    docs, errors = read_documents(text, path)
+    return _calculations_of(*read_documents(text, path), path)
+
+
+def _calculations_of(docs: list[Located], errors: list[str], path: str) -> FileResult:
     calculations, problems = [], Problems()
     problems.messages += errors
     for doc in docs:
@@ -654,9 +656,10 @@ def read_calculation_file(path, explicit: bool = True) -> FileResult:
     text, error = read_text_file(path)
     if error:
         return FileResult(path, [], [error])
-    if not explicit and not _looks_like_calculation(text, path):
+    docs, errors = read_documents(text, path)  # read once: a walk decides on the same
+    if not explicit and not _looks_like_calculation(docs, errors):
         return FileResult(path, [], [])
-    result = parse_calculations(text, path)
+    result = _calculations_of(docs, errors, path)
     if not result.calculations and not result.errors:
         result.errors.append(f"{path}: the file holds no calculation")
     return result

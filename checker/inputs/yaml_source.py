@@ -14,6 +14,8 @@ file:line:column:
 from __future__ import annotations
 
 import re
+from collections.abc import Callable
+from typing import Any
 
 import yaml
 
@@ -145,26 +147,31 @@ def check_characters(text: str, name: str):
         raise InputError(found[0][1])
 
 
-def _at(mark) -> str:
-    return f"{mark.name}:{mark.line + 1}:{mark.column + 1}"
+def _at(mark, name: str) -> str:
+    """file:line:column of a mark (``name``: libyaml's marks carry no file name)."""
+    return f"{name}:{mark.line + 1}:{mark.column + 1}"
 
 
 def _blank_node(mark):
     return yaml.ScalarNode("tag:yaml.org,2002:null", "", mark, mark)
 
 
-class _StrictLoader(yaml.SafeLoader):
-    """SafeLoader that refuses aliases, tags, duplicate or composite keys and deep nesting.
+class _StrictRules(yaml.composer.Composer):
+    """Composer rules that refuse aliases, tags, duplicate or composite keys and deep
+    nesting, over any YAML event source (libyaml's parser or PyYAML's pure-Python one).
 
     A refusal is recorded in ``problems`` and composing goes on, so that the other
     documents of the file are still read."""
 
-    def __init__(self, stream):
-        super().__init__(stream)
-        self.problems, self._depth = [], 0
+    problems: list
+    _depth: int
+    name: str
+    # supplied by the event source
+    peek_event: Callable[[], yaml.Event]
+    get_event: Callable[[], yaml.Event]
 
     def _refuse(self, mark, message: str):
-        self.problems.append(f"{_at(mark)}: {message}")
+        self.problems.append(f"{_at(mark, self.name)}: {message}")
 
     def compose_node(self, parent, index):
         event = self.peek_event()
@@ -174,8 +181,9 @@ class _StrictLoader(yaml.SafeLoader):
                 event.start_mark, "YAML aliases (*name) are not accepted; write the value out"
             )
             return _blank_node(event.start_mark)
-        if getattr(event, "tag", None) is not None:
-            shown = event.tag.replace("tag:yaml.org,2002:", "!!")
+        tag = getattr(event, "tag", None)
+        if tag is not None:
+            shown = tag.replace("tag:yaml.org,2002:", "!!")
             self._refuse(
                 event.start_mark,
                 f"YAML tags ({shown}) are not accepted; write the "
@@ -236,17 +244,66 @@ class _StrictLoader(yaml.SafeLoader):
         return node
 
 
-def compose_documents(text: str, name: str) -> tuple[list, list]:
-    """(node tree of every sound document, error messages) of a user's YAML text.
+class _StrictLoader(_StrictRules, yaml.SafeLoader):
+    """The strict rules on PyYAML's pure-Python scanner and parser (where libyaml is
+    absent, and for load_yaml_text, which constructs values)."""
 
-    Nothing is constructed: the caller reads the scalars as text.  A document with a
-    refused construct is left out and its errors reported; the others are kept.  A
-    control character is deleted for parsing and refuses the document holding it."""
-    text, deep = _without_deep_flow(text, name)
-    bad_characters = _character_errors(text, name)
-    if bad_characters:
-        text = _FORBIDDEN.sub("", text)  # deleted: a blank could change indentation
-    loader = _StrictLoader(text)
+    def __init__(self, stream):
+        super().__init__(stream)
+        self.problems, self._depth = [], 0
+
+
+# the tags PyYAML's resolver gives a node without an explicit tag, minus the
+# scalar forms (bool, int, float, null...) that regimecheck reads itself
+_PLAIN_TAGS = {
+    yaml.ScalarNode: "tag:yaml.org,2002:str",
+    yaml.SequenceNode: "tag:yaml.org,2002:seq",
+    yaml.MappingNode: "tag:yaml.org,2002:map",
+}
+_CParser: Any = getattr(getattr(yaml, "_yaml", None), "CParser", None)
+
+
+# Where libyaml's and PyYAML's parsers disagree, PyYAML's reading is kept: libyaml accepts
+# tabs and explicit '?' keys in places PyYAML refuses, and counts a byte-order mark inside
+# the text (not at its start) as no column.  A text holding one of these is read by
+# PyYAML's parser alone.
+def _pure_only(text: str) -> bool:
+    return "\t" in text or "?" in text or "\ufeff" in text[1:]
+
+
+if _CParser is not None:
+
+    class _StrictEventLoader(_StrictRules, _CParser):
+        """The strict rules composed in Python over libyaml's events (which carry the
+        same line and column marks): the scanner and parser, most of the cost, run in C.
+        libyaml's own composer is not used: it resolves aliases and keeps no trace of
+        an explicit tag or a repeated key.  Scalars are not resolved (every value is
+        read as text by regimecheck), so each gets the plain-text tag; libyaml's marks name
+        no file, so messages take the name from the loader."""
+
+        def __init__(self, stream):
+            _CParser.__init__(self, stream)
+            yaml.composer.Composer.__init__(self)
+            self.problems, self._depth = [], 0
+
+        def resolve(self, kind, value, implicit):
+            return _PLAIN_TAGS[kind]
+
+        def descend_resolver(self, parent, index):  # no path-dependent tags
+            pass
+
+        def ascend_resolver(self):
+            pass
+
+    _COMPOSER: type = _StrictEventLoader
+else:  # PyYAML built without libyaml
+    _COMPOSER = _StrictLoader
+
+
+def _compose(loader_class, text: str, name: str, bad_characters: list, fallback=False):
+    """(nodes, errors) of every document; ``fallback``: a YAML error is raised instead
+    of reported."""
+    loader = loader_class(text)
     loader.name = name
     nodes, errors = [], []
     try:
@@ -260,15 +317,45 @@ def compose_documents(text: str, name: str) -> tuple[list, list]:
             elif node is not None:
                 nodes.append(node)
     except yaml.MarkedYAMLError as exc:
+        if fallback:
+            raise
         mark = exc.problem_mark
-        errors.append(f"{_at(mark) if mark else name}: malformed YAML: {exc.problem}")
+        errors.append(f"{_at(mark, name) if mark else name}: malformed YAML: {exc.problem}")
     except yaml.YAMLError as exc:  # reader errors carry no mark
+        if fallback:
+            raise
         errors.append(f"{name}: malformed YAML: {exc}")
     finally:
         loader.dispose()
+    return nodes, errors
+
+
+def compose_documents(text: str, name: str) -> tuple[list, list]:
+    """(node tree of every sound document, error messages) of a user's YAML text.
+
+    Nothing is constructed: the caller reads the scalars as text.  A document with a
+    refused construct is left out and its errors reported; the others are kept.  A
+    control character is deleted for parsing and refuses the document holding it."""
+    text, deep = _without_deep_flow(text, name)
+    bad_characters = _character_errors(text, name)
+    if bad_characters:
+        text = _FORBIDDEN.sub("", text)  # deleted: a blank could change indentation
+    if _COMPOSER is _StrictLoader or _pure_only(text):
+        nodes, errors = _compose(_StrictLoader, text, name, bad_characters)
+        return nodes, deep + _with_unreported(errors, bad_characters)
+    try:
+        nodes, errors = _compose(_COMPOSER, text, name, bad_characters, fallback=True)
+    except yaml.YAMLError:
+        # malformed YAML: PyYAML's own parser reads it again, so that what it reports
+        # (and which documents it still reads) is the same with or without libyaml
+        nodes, errors = _compose(_StrictLoader, text, name, bad_characters)
+    return nodes, deep + _with_unreported(errors, bad_characters)
+
+
+def _with_unreported(errors: list, bad_characters: list) -> list:
+    """``errors`` and each control-character message not already among them."""
     reported = set(errors)
-    errors += [message for _, message in bad_characters if message not in reported]
-    return nodes, deep + errors
+    return errors + [message for _, message in bad_characters if message not in reported]
 
 
 def load_yaml_text(text: str, name: str):
@@ -284,7 +371,7 @@ def load_yaml_text(text: str, name: str):
         return data
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark
-        where = _at(mark) if mark else name
+        where = _at(mark, name) if mark else name
         raise InputError(f"{where}: malformed YAML: {exc.problem}") from None
     except (yaml.YAMLError, ValueError, TypeError) as exc:
         raise InputError(f"{name}: malformed YAML: {exc}") from None
