@@ -52,6 +52,9 @@ class Cells:
     owner: IndexArray  # cell -> index into ``calculations``
     embodied: list[list[Embodied]]  # per calculation: the assumptions of its formulas
     valid: BoolArray  # cells that were solved
+    # every rule's indicator even where the rule cannot fire (single points: which stated
+    # numbers a rule compared); a sweep reads it only where a rule fires
+    all_indicators: bool = True
 
     @classmethod
     def points(
@@ -79,7 +82,12 @@ class Cells:
     ) -> Cells:
         """``count`` grid cells of the sweep ``calc``."""
         return cls(
-            values, [calc], np.zeros(count, dtype=int), [list(embodied)], np.ones(count, dtype=bool)
+            values,
+            [calc],
+            np.zeros(count, dtype=int),
+            [list(embodied)],
+            np.ones(count, dtype=bool),
+            all_indicators=False,
         )
 
     @property
@@ -139,7 +147,7 @@ def rule_cells(rules: Iterable[Rule], cells: Cells) -> Iterator[Ruled]:
                 names = carrier_names(x) if x else {}
                 made, by_formula = assumption_made(rule, x, names, cells)
                 fired, indicator, implied = rule_mask(
-                    rule, x, names, made, cells.values, cells.count
+                    rule, x, names, made, cells.values, cells.count, cells.all_indicators
                 )
                 ruled = Ruled(rule, x, names, fired & cells.valid, indicator, implied, by_formula)
                 _replace(ruled, cells.values, replaced)
@@ -190,29 +198,45 @@ def assumption_made(
                 everywhere[c] = k
             elif item.carrier is None:
                 where_used[c] = k
-    first = np.minimum(
-        everywhere[cells.owner], np.where(in_use, where_used[cells.owner], _NO_FORMULA)
-    )
+    if len(cells.calculations) == 1:  # a sweep's chunk: one calculation, no gathering
+        declared_here: bool | BoolArray = bool(declared[0])
+        first = np.where(in_use, min(everywhere[0], where_used[0]), everywhere[0])
+    else:
+        declared_here = declared[cells.owner]
+        first = np.minimum(
+            everywhere[cells.owner], np.where(in_use, where_used[cells.owner], _NO_FORMULA)
+        )
     by_formula = np.where(first == _NO_FORMULA, -1, first)
-    return (declared[cells.owner] & in_use) | (by_formula >= 0), by_formula
+    return (declared_here & in_use) | (by_formula >= 0), by_formula
 
 
 def rule_mask(
-    rule: Rule, x: str, names: Mapping[str, str], made: BoolArray, values: Values, count: int
+    rule: Rule,
+    x: str,
+    names: Mapping[str, str],
+    made: BoolArray,
+    values: Values,
+    count: int,
+    all_indicators: bool = True,
 ) -> tuple[BoolArray, FloatArray, list[tuple[str, BoolArray]]]:
     """(fired, indicator, implications) of one rule over ``count`` cells, given where
-    its assumption is declared or embodied (``made``, a boolean array)."""
+    its assumption is declared or embodied (``made``, a boolean array).
+
+    Work is skipped where its outcome is already known: an implication whose stated
+    number is nowhere given matches nowhere, and where the assumption is made at no cell
+    the gate, the requirements and (unless ``all_indicators``; then NaN) the indicator
+    cannot change that nothing fires."""
     made = made.copy()
     implied: list[tuple[str, BoolArray]] = []
     for imp in rule.implied_by:
         name = names.get(imp.stated, imp.stated)
         stated = values[name]
+        mask = np.isfinite(stated)
+        if not mask.any():  # not stated at any cell (a sweep: the whole chunk)
+            implied.append((name, mask))
+            continue
         shortcut = np.asarray(imp.shortcut.run[x](values), dtype=float)
-        mask = (
-            np.isfinite(stated)
-            & np.isfinite(shortcut)
-            & (np.abs(stated / shortcut - 1.0) <= imp.within)
-        )
+        mask &= np.isfinite(shortcut) & (np.abs(stated / shortcut - 1.0) <= imp.within)
         # near a rule's threshold the shortcut and the exact value lie closer together than
         # the match window: a stated number nearer the exact value was not made with the
         # shortcut (the implication's own exact value, else the rule's correction of that
@@ -227,6 +251,13 @@ def rule_mask(
         made |= mask
     if not rule.declared and not rule.implied_by:
         made[:] = True
+    if not made.any():
+        indicator = (
+            _cells_array(rule.expression, x, values, count)
+            if all_indicators
+            else np.full(count, np.nan)
+        )
+        return made, indicator, implied
     if rule.when is not None:
         made &= _nonzero(np.broadcast_to(rule.when.run[x](values), (count,)))
     for name in rule.requires:

@@ -278,14 +278,11 @@ def boundary(
         position[rows], position[cols] = r, c
         return int(np.ravel_multi_index(tuple(position), shape))
 
-    # rows whose failing cells are alike are described together, at their middle row
-    alike = [_runs(grid_mask[r]) for r in range(count)]
-    groups: list[tuple[int, int]] = []  # consecutive rows that fail alike: (first, last)
-    for r, runs in enumerate(alike):
-        if groups and alike[groups[-1][0]] == runs:
-            groups[-1] = (groups[-1][0], r)
-        else:
-            groups.append((r, r))
+    # rows whose failing cells are alike (the same mask, so the same runs) are described
+    # together, at their middle row: consecutive rows (first, last)
+    starts = np.flatnonzero(np.concatenate(([True], np.any(grid_mask[1:] != grid_mask[:-1], 1))))
+    ends = np.append(starts[1:] - 1, count - 1)
+    groups = [(int(first), int(last)) for first, last in zip(starts, ends)]
     if len(groups) > ROWS_SHOWN:  # too many to list: a few evenly spaced rows
         picks = np.linspace(0, count - 1, ROWS_SHOWN).round().astype(int)
         groups = [(r, r) for r in sorted(set(picks))]
