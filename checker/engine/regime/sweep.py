@@ -24,19 +24,24 @@ from ..findings import Embodied, carrier_word
 from .evaluate import Cells, beyond, rule_cells, rule_indicator
 from .points import CalculationReport, check_points
 from .rulebook import Rule
-from .state_values import Densities, solve_sweep
+from .state_values import solve_sweep
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Axis, Calculation
 
 # (T, donors, acceptors, grid shape) of every grid point, flattened
-GridPoints: TypeAlias = tuple[FloatArray, Densities, Densities, tuple[int, ...]]
+GridPoints: TypeAlias = (
+    "tuple[GridQuantity, dict[str, GridQuantity], dict[str, GridQuantity], tuple[int, ...]]"
+)
 # excess(flat indices, (axis key, values) or None) -> the indicator beyond its threshold
 Excess: TypeAlias = Callable[[ArrayIn, "tuple[AxisKey, ArrayIn] | None"], FloatArray]
 # (rule id, carrier) -> (failing mask over the grid, worst flat index)
 Masks: TypeAlias = dict[tuple[str, str], tuple[BoolArray, int]]
 
-CHUNK = 100_000  # points solved and evaluated at a time (bounds the memory)
+# points solved and ruled at a time: a chunk's ~150 quantities and their temporaries take
+# ~3 kB a point, so 32k points keep a sweep of any size near 100 MB of working set, and the
+# solve still splits each chunk over two threads
+CHUNK = 1 << 15
 ROWS_SHOWN = 5  # rows of a 2D grid whose boundary is written out
 
 
@@ -78,20 +83,50 @@ def axis_label(axis: Axis) -> str:
     return f"{'N_D' if group == 'donors' else 'N_A'}({species})"
 
 
+class GridQuantity:
+    """One quantity over the flattened grid, computed on indexing instead of stored (a
+    2000 x 2000 sweep would hold 32 MB per quantity): the value at flat index i is
+    ``values[(i // stride) % len(values)]``."""
+
+    def __init__(self, values: ArrayIn, stride: int, size: int) -> None:
+        self.values = np.atleast_1d(np.asarray(values, dtype=float))
+        self.stride, self.size = stride, size
+
+    def __len__(self) -> int:
+        return self.size
+
+    def __getitem__(self, index: int | slice | ArrayIn) -> FloatArray:
+        """Values at an index, a slice or an integer array of flat indices."""
+        at = np.arange(*index.indices(self.size)) if isinstance(index, slice) else index
+        picked: FloatArray = self.values[(np.asarray(at) // self.stride) % self.values.size]
+        return picked
+
+
 def grid(calc: Calculation) -> GridPoints:
     """(T, donors, acceptors, shape) of every grid point, flattened (axis 0 slowest)."""
-    arrays = np.meshgrid(*[axis.values for axis in calc.sweep], indexing="ij")
-    shape = arrays[0].shape
-    flat = {axis.key: a.ravel() for axis, a in zip(calc.sweep, arrays)}
-    size = arrays[0].size
-    T = flat.get("T", np.full(size, calc.temperature))
-    donors = {s: flat.get(("donors", s), np.full(size, v)) for s, v in calc.donors.items()}
-    acceptors = {s: flat.get(("acceptors", s), np.full(size, v)) for s, v in calc.acceptors.items()}
+    shape = tuple(len(axis.values) for axis in calc.sweep)
+    size = int(np.prod(shape))
+    strides = [int(np.prod(shape[k + 1 :])) for k in range(len(shape))]
+    swept = {
+        axis.key: GridQuantity(axis.values, stride, size)
+        for axis, stride in zip(calc.sweep, strides)
+    }
+
+    def quantity(key: AxisKey, fixed: float) -> GridQuantity:
+        return swept[key] if key in swept else GridQuantity(fixed, 1, size)
+
+    T = quantity("T", calc.temperature)
+    donors = {s: quantity(("donors", s), v) for s, v in calc.donors.items()}
+    acceptors = {s: quantity(("acceptors", s), v) for s, v in calc.acceptors.items()}
     return T, donors, acceptors, shape
 
 
 def point(
-    calc: Calculation, T: FloatArray, donors: Densities, acceptors: Densities, index: int
+    calc: Calculation,
+    T: GridQuantity,
+    donors: dict[str, GridQuantity],
+    acceptors: dict[str, GridQuantity],
+    index: int,
 ) -> Calculation:
     """The single-point calculation at grid index ``index``."""
     single = copy.copy(calc)
