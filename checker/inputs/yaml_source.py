@@ -97,6 +97,7 @@ def _character_errors(text: str, name: str) -> list:
 
 
 _DOCUMENT_MARK = re.compile(r"^(---|\.\.\.)(\s|$)")
+_BRACKETS = re.compile(r"[\[\]{}]")
 
 
 def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
@@ -107,6 +108,8 @@ def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
     this is decided on the text before parsing.  Blank lines keep the line numbers of the
     other documents, which are still read.  Quoted text is skipped roughly: a bracket in
     quotes counts only where the quotes are unbalanced on their line."""
+    if text.count("[") + text.count("{") <= MAX_NESTING:
+        return text, []  # too few brackets to nest that deep (the usual file)
     lines = text.split("\n")
     errors: list[str] = []
     start, depth, deep = 0, 0, None
@@ -121,6 +124,8 @@ def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
             close(number)
             start, depth, deep = number + 1, 0, None
             continue
+        if not _BRACKETS.search(line):
+            continue  # quotes are balanced per line: nothing here changes the depth
         quote = None
         for column, char in enumerate(line, 1):
             if quote:

@@ -329,6 +329,10 @@ class _Report:
             raise RuleFileError("\n".join(text for _, text in sorted(self.found)))
 
 
+# the renaming of _x/_o names per carrier, built once (some 400 expressions use it)
+_carrier_names = lru_cache(maxsize=2)(carrier_names)
+
+
 def _read(path: Path) -> tuple[str, Any, _Report]:
     """(text, data, report) of a rule file; the report knows the line of every key and
     list entry (key path -> 1-based line) and holds any key given twice."""
@@ -418,7 +422,7 @@ class _Builder:
                 text,
             )
         run = {
-            x: expression.to_numpy(expression.rename(tree, carrier_names(x)) if x else tree)
+            x: expression.to_numpy(expression.rename(tree, _carrier_names(x)) if x else tree)
             for x in self.carriers
         }
         return Compiled(text, tree, run)

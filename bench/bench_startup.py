@@ -1,0 +1,88 @@
+"""Reading, start-up and report cost of the installed `regimecheck`, as ratios measured
+in the same run (interleaved rounds, bench/interleaved.py).
+
+Anchors and targets (issue 16):
+- cold `check` of one example (no formulas) / `python -c "import numpy, yaml"` <= 1.3
+- `check` of 1,000 calculations in one file / the same import floor           <= 4
+- a walk of 1,000 one-calculation files / the 1,000 in one file (per calculation) <= 1.2
+- `check examples/ --format html` / the console report of the same files       <= 2
+
+Every run of the command must exit 0 or 1 (bench/installed_command.py), else the bench
+stops.  Prints a table of median per-round ratios with their spread; asserts nothing.
+Usage: python bench/bench_startup.py [--rounds 7] [--calculations 1000]
+"""
+
+from __future__ import annotations
+
+import argparse
+import subprocess
+import sys
+import tempfile
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+import installed_command  # noqa: E402
+from bench_check import ONE, ROOT, many_calculations  # noqa: E402
+from installed_command import CHECKED  # noqa: E402
+from interleaved import interleaved, ratios  # noqa: E402
+
+FLOOR = [sys.executable, "-c", "import numpy, yaml"]
+EXAMPLES = ROOT / "examples"
+
+
+def command(*args):
+    """A case: ``regimecheck *args`` run once (exit 0 or 1, else the bench stops)."""
+    return lambda: installed_command.run(list(args), CHECKED, cwd=ROOT)
+
+
+def write_inputs(folder: Path, count: int) -> tuple[Path, Path]:
+    """(one file of ``count`` calculations, a folder of ``count`` one-calculation files)."""
+    text = many_calculations(count)
+    many = folder / "many.yaml"
+    many.write_text(text, encoding="utf-8")
+    files = folder / "files"
+    for i, doc in enumerate(text.split("---\n")):
+        target = files / f"block{i // 100}" / f"calc{i}.yaml"
+        target.parent.mkdir(parents=True, exist_ok=True)
+        target.write_text(doc, encoding="utf-8")
+    return many, files
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+    parser.add_argument("--rounds", type=int, default=7)
+    parser.add_argument("--calculations", type=int, default=1000)
+    args = parser.parse_args()
+    with tempfile.TemporaryDirectory() as tmp:
+        out = Path(tmp) / "report.html"
+        many, files = write_inputs(Path(tmp), args.calculations)
+        cases = {
+            "import numpy, yaml": lambda: subprocess.run(FLOOR, check=True),
+            f"check {ONE.name}": command("check", ONE),
+            f"check {args.calculations} in one file": command("check", many),
+            f"check a walk of {args.calculations} files": command("check", files),
+            "check examples/ (console)": command("check", EXAMPLES),
+            "check examples/ --format html": command(
+                "check", EXAMPLES, "--format", "html", "--output", out
+            ),
+        }
+        timings = interleaved(cases, args.rounds)
+    names = list(cases)
+    floor = ratios(timings, names[0])
+    rows = [
+        (names[1], floor[names[1]], names[0], "1.3"),
+        (names[2], floor[names[2]], names[0], "4"),
+        (names[3], ratios(timings, names[2])[names[3]], names[2], "1.2"),
+        (names[5], ratios(timings, names[4])[names[5]], names[4], "2"),
+    ]
+    print(f"{'case':<36} {'best s':>7} {'ratio':>6} {'spread':>11}  {'to':<30} {'target':>6}")
+    for name, (median, low, high), anchor, target in rows:
+        best = timings[name].best
+        spread = f"{low:.2f}-{high:.2f}"
+        print(f"{name:<36} {best:7.3f} {median:6.2f} {spread:>11}  {anchor:<30} {target:>6}")
+    print(f"{names[0]:<36} {timings[names[0]].best:7.3f}  (the floor)")
+    print(f"{names[4]:<36} {timings[names[4]].best:7.3f}  (console report)")
+
+
+if __name__ == "__main__":
+    main()
