@@ -84,7 +84,7 @@ def main() -> None:
     parser = argparse.ArgumentParser()
     parser.add_argument("--sizes", nargs="+", type=float, default=[1e5, 1e6, 1e7])
     parser.add_argument("--rounds", type=int, default=7)
-    parser.add_argument("--orders", nargs="+", type=float, default=ORDERS)
+    parser.add_argument("--orders", nargs="*", type=float, default=ORDERS)
     parser.add_argument("--no-inverse", action="store_true")
     parser.add_argument(
         "--workers", nargs="+", type=int, default=[1, 2], help="thread counts to compare"
