@@ -136,13 +136,21 @@ def test_inas_einstein_ratio_and_velocity_use_the_kane_band():
             flux = 4 / sc.h * window_quad(modes, mp.mpf(eta))
             nc = 2 * (band.mass * sc.m_e * kT / (2 * math.pi * sc.hbar**2)) ** 1.5
             velocity = float(flux / (nc * density))
+
+            # the window velocity <<v_x^+>> = (4kT/h) ∫ M (-df/dE) dE / (dn/deta) ties lambda to
+            # D (D = <<v_x^+>> lambda/2, Lundstrom & Jeong 2012, ch. 6), M = dM_c/dE
+            def mode_density(x, c=c, e_kt=e_kt):
+                E = x * e_kt
+                return c * (E + alpha * E**2) / (4 * mp.pi)
+
+            window = float(4 * kT / sc.h * window_quad(mode_density, mp.mpf(eta)) / (nc * slope))
         got_ratio = result["D_n"][i] / (result["mu_n"][i] * kT / sc.e)
         assert got_ratio == pytest.approx(ratio, rel=1e-10)
         own = math.sqrt(2 * kT / (math.pi * band.mass * sc.m_e))
         thermal = math.sqrt(2 * kT / (math.pi * material.electron.thermal_mass * sc.m_e))
         assert result["v_n"][i] == pytest.approx(thermal * velocity / own, rel=1e-9)
         assert result["mfp_n"][i] == pytest.approx(
-            2 * result["D_n"][i] / result["v_n"][i], rel=1e-12
+            2 * result["D_n"][i] / (thermal * window / own), rel=1e-9
         )
     # degenerate InAs: the Kane ratio lies well below the parabolic F_1/2/F_-1/2 (mpmath)
     with mp.workdps(30):

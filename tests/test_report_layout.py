@@ -180,12 +180,12 @@ def test_diffusivity_and_mean_free_path_follow_their_published_forms(tmp_path):
     # Phys. 2, 213 (1981))
     D = mu * kT_q * float(_fermi(0.5, eta) / _fermi(-0.5, eta))
     assert state["D_n_cm2_per_s"] == pytest.approx(D, rel=1e-9)
-    # lambda = 2D/<v_x+>, <v_x+> = sqrt(2kT/(pi m*)) F_1(eta)/F_1/2(eta) (the +x flux goes
-    # as F_1, the density as F_1/2; Lundstrom and Jeong, Near-Equilibrium Transport (2012),
-    # ch. 2 and 6); m* = 0.26 m0 for Si electrons (Sze & Ng, Physics of Semiconductor
-    # Devices, 3rd ed., App. F; from memory)
+    # lambda = 2D/<<v_x+>> with the window velocity <<v_x+>> = sqrt(2kT/(pi m*)) F_0/F_-1/2
+    # (D = (v_T lambda/2) F_0/F_-1/2 for a constant lambda: Lundstrom and Jeong,
+    # Near-Equilibrium Transport (2012), ch. 6); m* = 0.26 m0 for Si electrons (Sze & Ng,
+    # Physics of Semiconductor Devices, 3rd ed., App. F; from memory)
     v_plus = (2 * sc.k * 300.0 / (sc.pi * 0.26 * sc.m_e)) ** 0.5 * 100  # cm/s
-    v_plus *= float(_fermi(1, eta) / _fermi(0.5, eta))
+    v_plus *= float(_fermi(0, eta) / _fermi(-0.5, eta))
     assert state["lambda_n_nm"] == pytest.approx(2 * D / v_plus * 1e7, rel=1e-6)
 
 

@@ -213,8 +213,8 @@ DIMENSIONS = [
     ),
     (
         "TRAN01.yaml",
-        'exact: "conductor_resistance(used_rho, L, lambda_x, A)"',
-        'exact: "conductor_resistance(used_rho, L*kT, lambda_x, A)"',
+        'exact: "stated_or(conductor_resistance(used_rho, L, lambda_x, A),',
+        'exact: "stated_or(conductor_resistance(used_rho, L*kT, lambda_x, A),',
         "corrections[0].exact",
         "L*kT",
     ),

@@ -395,11 +395,12 @@ def test_carr03_quiet_when_the_majority_is_used(tmp_path):
 
 
 def _mean_free_path(material, T, eta, mu):
-    """lambda = 2D/<v_x+>, D = mu kT/q F_1/2/F_-1/2, <v_x+> = sqrt(2kT/(pi m*)) F_1/F_1/2
-    (Lundstrom & Jeong, Near-Equilibrium Transport, 2012, ch. 6)."""
+    """lambda = 2D/<<v_x+>>, D = mu kT/q F_1/2/F_-1/2 and the window velocity
+    <<v_x+>> = sqrt(2kT/(pi m*)) F_0/F_-1/2, so that D = (v_T lambda/2) F_0/F_-1/2 for a
+    constant lambda (Lundstrom & Jeong, Near-Equilibrium Transport, 2012, ch. 6)."""
     m = material.electron.thermal_mass * sc.m_e
     D = mu * K_B * T / Q * fd(0.5, eta) / fd(-0.5, eta)
-    v = math.sqrt(2 * K_B * T / (math.pi * m)) * fd(1, eta) / fd(0.5, eta)
+    v = math.sqrt(2 * K_B * T / (math.pi * m)) * fd(0, eta) / fd(-0.5, eta)
     return 2 * D / v
 
 

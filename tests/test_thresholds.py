@@ -684,14 +684,15 @@ def val03(target):
 
 
 def _mean_free_path(mu):
-    """lambda = 2D/<v_x+> (m) of Si:P 1e15 cm^-3 electrons at 300 K for a stated mobility
-    (Lundstrom & Jeong 2012, ch. 6; see tran01)."""
+    """lambda = 2D/<<v_x+>> (m) of Si:P 1e15 cm^-3 electrons at 300 K for a stated mobility,
+    <<v_x+>> = sqrt(2kT/(pi m*)) F_0/F_-1/2 the window velocity (Lundstrom & Jeong 2012,
+    ch. 6)."""
     si = load_material("Si")
     eta_n, _ = _eta(si, 300.0, {"P": 1e15})
     kT = K_B * 300.0
     D = mu * CM2 * kT / Q * _einstein_ratio(eta_n)
     v = math.sqrt(2 * kT / (math.pi * si.electron.thermal_mass * sc.m_e)) * float(
-        F(1, eta_n) / F(0.5, eta_n)
+        F(0, eta_n) / F(-0.5, eta_n)
     )
     return 2 * D / v
 

@@ -103,9 +103,9 @@ def test_val04_mean_free_path(tmp_path):
     )
     finding = _one(report, "VAL04")
     # mobility: ASTM F723 eqs. (5)-(6) at 23 degC, mu = 1/(q N rho), carried to 300 K by
-    # Arora's ratio; lambda = 2D/<v_x+>, D = mu kT/q F_1/2/F_-1/2, <v_x+> = sqrt(2kT/(pi m*))
-    # F_1/F_1/2 with the conductivity mass 0.26 m0 (Lundstrom & Jeong, Near-Equilibrium
-    # Transport (2012), ch. 6; mass: Sze & Ng (2007), from memory)
+    # Arora's ratio; lambda = 2D/<<v_x+>>, D = mu kT/q F_1/2/F_-1/2, the window velocity
+    # <<v_x+>> = sqrt(2kT/(pi m*)) F_0/F_-1/2 with the conductivity mass 0.26 m0 (Lundstrom &
+    # Jeong, Near-Equilibrium Transport (2012), ch. 6; mass: Sze & Ng (2007), from memory)
     y = 1.0
     z = (-3.0769 + 2.2108 * y - 0.62272 * y**2 + 0.057501 * y**3) / (
         1 - 0.68157 * y + 0.19833 * y**2 - 0.018376 * y**3
@@ -115,7 +115,7 @@ def test_val04_mean_free_path(tmp_path):
     eta, _ = _electrons(1e17)
     kT = sc.k * 300.0
     D = mu * 1e-4 * kT / sc.e * _fd(0.5, eta) / _fd(-0.5, eta)
-    v = math.sqrt(2 * kT / (math.pi * 0.26 * sc.m_e)) * _fd(1, eta) / _fd(0.5, eta)
+    v = math.sqrt(2 * kT / (math.pi * 0.26 * sc.m_e)) * _fd(0, eta) / _fd(-0.5, eta)
     assert finding.corrections[0].corrected == pytest.approx(2 * D / v, rel=1e-6)
     assert finding.indicator_value == pytest.approx(300e-9 / (2 * D / v), rel=1e-6)
 

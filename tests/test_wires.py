@@ -260,3 +260,37 @@ def test_bad_wire_input_names_file_line_and_fix(tmp_path, capsys, text, place, w
     said = "".join(capsys.readouterr()).replace(str(tmp_path) + "/", "")
     assert code == 2 and "Traceback" not in said
     assert place in said and words in said
+
+
+def _wire_resistance_reference(line_density_cm, mobility_cm2, length):
+    """(L/(q n_l mu), (L + lambda)/(q n_l mu)) of the GaAs-AlGaAs wire (m* = 0.067) by
+    mpmath: eta from n_l = N_1D F_-1/2(eta), D = mu (kT/q) F_-1/2/F_-3/2 (Landsberg 1981),
+    the window velocity <<v_x+>> = sqrt(2kT/(pi m*)) F_-1/F_-3/2 and lambda = 2D/<<v_x+>>
+    (Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 2 and 6)."""
+    n_l, mu = line_density_cm / PER_CM, mobility_cm2 * 1e-4
+    n1d, kT_q = _n1d(0.067), sc.k * T300 / sc.e
+    eta = mp.findroot(lambda e: n1d * _fd(-0.5, e) - n_l, 0.0)
+    diffusivity = mu * kT_q * float(_fd(-0.5, eta) / _fd(-1.5, eta))
+    velocity = np.sqrt(2 * sc.k * T300 / (np.pi * 0.067 * sc.m_e)) * float(
+        _fd(-1.0, eta) / _fd(-1.5, eta)
+    )
+    per_length = 1.0 / (sc.e * n_l * mu)
+    return per_length * length, per_length * (length + 2 * diffusivity / velocity)
+
+
+def test_a_wire_resistance_from_drift_diffusion_draws_tran01_and_a_slip_val05():
+    # R = L/(q n_l mu) of a 200 nm wire leaves out the ballistic part: TRAN01 corrects it to
+    # (L + lambda)/(q n_l mu); a resistance a decade off that draws VAL05 (20 %, common
+    # practice (no source)) with the same corrected value
+    diffusive, landauer = _wire_resistance_reference(5e5, 4000, 200e-9)
+    text = WIRE.format(density="5e5").replace("length: 2 um", "length: 200 nm")
+    stated = f"  resistance: {diffusive:.6e} ohm\n"
+    slip = f"  resistance: {landauer / 10:.6e} ohm\n"
+    reports = check_calculations(
+        parse_calculations(text + stated + "---\n" + text + slip, "w.yaml").calculations
+    ).reports
+    (tran01,) = [f for f in reports[0].findings if f.rule == "TRAN01"]
+    resistance = next(c for c in tran01.corrections if c.label == "resistance R")
+    assert resistance.corrected == pytest.approx(landauer, rel=1e-6)
+    (val05,) = [f for f in reports[1].findings if f.rule == "VAL05"]
+    assert val05.corrections[0].corrected == pytest.approx(landauer, rel=1e-6)

@@ -100,7 +100,9 @@ def carrier_transport(
                 state.T, model.thermal_mass, eta, dimension, kane
             )
             result[f"v_{x}"] = v
-            result[f"mfp_{x}"] = transport.backscattering_mean_free_path(d, v)
+            # lambda from the window-weighted velocity: D = <<v_x+>> lambda/2 at any eta
+            window = transport.window_velocity(state.T, model.thermal_mass, eta, dimension, kane)
+            result[f"mfp_{x}"] = transport.backscattering_mean_free_path(d, window)
         else:
             result[f"v_{x}"] = result[f"mfp_{x}"] = np.full_like(mu, np.nan)
     result["sigma"] = transport.conductivity(

@@ -157,10 +157,49 @@ def unidirectional_thermal_velocity(
     return base * np.exp(log_fermi_dirac(upper, eta) - log_fermi_dirac(j, eta))
 
 
-def backscattering_mean_free_path(diffusion: ArrayIn, thermal_velocity: ArrayIn) -> FloatOrArray:
-    """lambda = 2 D / <v_x^+> (m): the mean free path for backscattering.
+def window_velocity(
+    T: ArrayIn,
+    mass: ArrayIn,
+    eta: ArrayIn,
+    dimension: int = 3,
+    band: KaneBand | ParabolicBand | None = None,
+) -> FloatOrArray:
+    """<<v_x^+>>: the velocity of the carriers moving in +x weighted by the transport window
+    -df/dE (m/s), the one that ties a backscattering mean free path lambda to D:
+    D = <<v_x^+>> lambda/2 for any degeneracy (with <v_x^+> of the occupied states that holds
+    only in the Boltzmann regime).
 
-    Use the Fermi–Dirac forms of D and <v_x^+> when degenerate.
+    Formula: sqrt(2kT/(pi m*)) F_(j-1/2)(eta)/F_(j-1)(eta), j = d/2 - 1 the density order:
+    F_0/F_-1/2 (3D), F_-1/2/F_-1 (2D), F_-1/F_-3/2 (1D).  Limits: sqrt(2kT/(pi m*)) (non-
+    degenerate, = <v_x^+>); v_F/2 (degenerate 3D), 2 v_F/pi (2D), v_F (1D).  ``mass`` in m0
+    (a conductivity mass); ``band`` (e.g. a Kane band): the non-degenerate value times that
+    band's window velocity (``sheet_statistics.unidirectional_velocity``) over its own
+    non-degenerate parabolic value.  Validity: elastic scattering, near equilibrium.
+
+    References
+    ----------
+    M. Lundstrom and C. Jeong, Near-Equilibrium Transport (World Scientific, 2012), ch. 6
+    (D, mu and lambda_0 of a constant mean free path: D = (v_T lambda_0/2) F_0/F_-1/2 in 3D).
+    """
+    from .sheet_statistics import unidirectional_velocity  # the window form of any band
+
+    dim = _dimension(dimension)
+    T = np.asarray(T, dtype=float)
+    base = np.sqrt(_THERMAL_PREFACTOR * BOLTZMANN * T / (np.asarray(mass) * ELECTRON_MASS))
+    if band is not None:
+        own = np.sqrt(_THERMAL_PREFACTOR * BOLTZMANN * T / (band.mass * ELECTRON_MASS))
+        factor: FloatOrArray = unidirectional_velocity(band, eta, T) / own
+        return base * factor
+    j = _DENSITY_ORDER[dim]
+    return base * np.exp(log_fermi_dirac(j - 0.5, eta) - log_fermi_dirac(j - 1.0, eta))
+
+
+def backscattering_mean_free_path(diffusion: ArrayIn, thermal_velocity: ArrayIn) -> FloatOrArray:
+    """lambda = 2 D / <<v_x^+>> (m): the mean free path for backscattering.
+
+    Use the Fermi–Dirac D and the window velocity (:func:`window_velocity`) when
+    degenerate: lambda is then the constant mean free path whose Landauer conductance
+    (2q^2/h) <M> lambda/(lambda + L) gives the diffusive sigma for L >> lambda.
 
     References
     ----------

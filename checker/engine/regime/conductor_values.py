@@ -18,7 +18,8 @@ the degeneracies, so the integrals are taken for one unit band of that shape and
 by the carrier's own ballistic conductance: one vectorized call per (dimension, p, r)
 group of points, with the mobility of the corrected calculation (a rule that replaces it
 calls this again).  Where no single power law applies the Landauer value is the
-averaged-lambda one, sigma (W or A)/(L + lambda), lambda = 2D/<v_x+>.
+averaged-lambda one, sigma (W or A)/(L + lambda), lambda = 2D/<<v_x+>> (the window-weighted
+velocity: for r = 0 the two agree at any eta).
 
 References
 ----------
