@@ -98,6 +98,7 @@ def _character_errors(text: str, name: str) -> list:
 
 _DOCUMENT_MARK = re.compile(r"^(---|\.\.\.)(\s|$)")
 _BRACKETS = re.compile(r"[\[\]{}]")
+_FLOW_CHARACTERS = re.compile(r"[\[\]{}\"']")
 
 
 def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
@@ -127,7 +128,8 @@ def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
         if not _BRACKETS.search(line):
             continue  # quotes are balanced per line: nothing here changes the depth
         quote = None
-        for column, char in enumerate(line, 1):
+        for match in _FLOW_CHARACTERS.finditer(line):  # the others change nothing
+            column, char = match.start() + 1, match.group()
             if quote:
                 quote = None if char == quote else quote
             elif char in "\"'":
@@ -208,13 +210,17 @@ class _StrictRules(yaml.composer.Composer):
             node = super().compose_node(parent, index)
         finally:
             self._depth -= 1
-        if isinstance(node, yaml.ScalarNode) and (bad := _FORBIDDEN.search(node.value)):
+        if isinstance(node, yaml.ScalarNode):
+            self._check_scalar(node)
+        return node
+
+    def _check_scalar(self, node):
+        if bad := _FORBIDDEN.search(node.value):
             self._refuse(
                 node.start_mark,
                 f"the value holds {describe_character(bad.group())}; "
                 "remove the escape that writes it",
             )
-        return node
 
     def _skip_node(self):
         """Consume the events of one node without recursion."""
@@ -230,6 +236,10 @@ class _StrictRules(yaml.composer.Composer):
 
     def compose_mapping_node(self, anchor):
         node = super().compose_mapping_node(anchor)
+        self._check_keys(node)
+        return node
+
+    def _check_keys(self, node):
         seen: dict[str, int] = {}  # key -> its line (0-based)
         for key_node, _ in node.value:
             if not isinstance(key_node, yaml.ScalarNode):
@@ -246,7 +256,6 @@ class _StrictRules(yaml.composer.Composer):
                 )
             else:
                 seen[key_node.value] = key_node.start_mark.line
-        return node
 
 
 class _StrictLoader(_StrictRules, yaml.SafeLoader):
@@ -260,11 +269,8 @@ class _StrictLoader(_StrictRules, yaml.SafeLoader):
 
 # the tags PyYAML's resolver gives a node without an explicit tag, minus the
 # scalar forms (bool, int, float, null...) that regimecheck reads itself
-_PLAIN_TAGS = {
-    yaml.ScalarNode: "tag:yaml.org,2002:str",
-    yaml.SequenceNode: "tag:yaml.org,2002:seq",
-    yaml.MappingNode: "tag:yaml.org,2002:map",
-}
+_STR_TAG, _SEQ_TAG, _MAP_TAG = (f"tag:yaml.org,2002:{kind}" for kind in ("str", "seq", "map"))
+_PLAIN_TAGS = {yaml.ScalarNode: _STR_TAG, yaml.SequenceNode: _SEQ_TAG, yaml.MappingNode: _MAP_TAG}
 _CParser: Any = getattr(getattr(yaml, "_yaml", None), "CParser", None)
 
 
@@ -290,6 +296,49 @@ if _CParser is not None:
             _CParser.__init__(self, stream)
             yaml.composer.Composer.__init__(self)
             self.problems, self._depth = [], 0
+
+        def compose_node(self, parent, index):
+            """The common case composed directly: a scalar, mapping or sequence without
+            anchor or tag, above the nesting limit.  Everything else (aliases, anchors,
+            tags, the limit) takes the general path of the strict rules."""
+            event = self.peek_event()
+            kind = type(event)
+            if (
+                kind is yaml.AliasEvent
+                or event.anchor is not None
+                or event.tag is not None
+                or self._depth >= MAX_NESTING
+            ):
+                return super().compose_node(parent, index)
+            self.get_event()
+            if kind is yaml.ScalarEvent:
+                node = yaml.ScalarNode(
+                    _STR_TAG, event.value, event.start_mark, event.end_mark, style=event.style
+                )
+                self._check_scalar(node)
+                return node
+            mapping = kind is yaml.MappingStartEvent
+            node = (yaml.MappingNode if mapping else yaml.SequenceNode)(
+                _MAP_TAG if mapping else _SEQ_TAG,
+                [],
+                event.start_mark,
+                None,
+                flow_style=event.flow_style,
+            )
+            end = yaml.MappingEndEvent if mapping else yaml.SequenceEndEvent
+            items = node.value
+            self._depth += 1
+            while type(self.peek_event()) is not end:
+                if mapping:
+                    key = self.compose_node(node, None)
+                    items.append((key, self.compose_node(node, key)))
+                else:
+                    items.append(self.compose_node(node, len(items)))
+            self._depth -= 1
+            node.end_mark = self.get_event().end_mark
+            if mapping:
+                self._check_keys(node)
+            return node
 
         def resolve(self, kind, value, implicit):
             return _PLAIN_TAGS[kind]
