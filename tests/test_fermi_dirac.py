@@ -120,6 +120,20 @@ def test_broadcasting_and_scalars():
     assert scalar == pytest.approx(float(fd_reference(0.5, 1.0)), rel=1e-14)
 
 
+@pytest.mark.parametrize("j", [-1.5, 0.5, 1, 3])
+def test_large_arrays_split_over_blocks_and_threads(j, monkeypatch):
+    """An array of several thread tasks (two workers forced) gives mpmath's values
+    (DLMF 25.12.16) at the points on both sides of every block and task boundary."""
+    from checker.physics import fermi
+
+    monkeypatch.setattr(fermi, "WORKERS", 2)
+    eta = np.linspace(-45.0, 70.0, 300_001)
+    picks = [0, 65_535, 65_536, 131_071, 131_072, 196_608, 262_144, 300_000]
+    got = fermi_dirac(j, eta)[picks]
+    expected = np.array([float(fd_reference(j, eta[i])) for i in picks])
+    assert np.allclose(got, expected, rtol=1e-14, atol=0)
+
+
 def test_unsupported_order_is_a_clear_error():
     with pytest.raises(InputError, match="not supported"):
         fermi_dirac(0.25, 1.0)

@@ -70,9 +70,12 @@ def test_roots_at_the_ends_of_the_root_table():
     assert error.max() <= 1e-13, error
 
 
-def test_block_and_thread_boundaries_do_not_change_values():
-    """A large array (several thread tasks) gives, element by element, the roots of the
-    same u passed one by one: mpmath roots at a few points spread through it."""
+def test_block_and_thread_boundaries_do_not_change_values(monkeypatch):
+    """A large array (several thread tasks, two workers forced) gives mpmath's roots at
+    the points on both sides of the block and task boundaries."""
+    from checker.physics import fermi
+
+    monkeypatch.setattr(fermi, "WORKERS", 2)
     eta = np.linspace(-45.0, 70.0, 300_001)
     picks = np.array([0, 65_535, 65_536, 131_071, 131_072, 299_999, 300_000])
     u, roots = _cases(eta[picks])

@@ -18,6 +18,11 @@ Method
   Chebyshev-derived polynomials on intervals up to eta = 50, and the
   Sommerfeld asymptotic series above (remainder O(exp(-eta)) < 1e-21 there).
   Relative error about 1e-15 at worst in float64 (measured by the tests against mpmath).
+* Evaluation: in blocks of 65,536 points, each labelled by region (a sum of edge
+  comparisons), sorted by label (radix sort of uint8) so each region's formula runs on one
+  contiguous slice; blocks of large arrays run on WORKERS threads.
+* Inverse of F_1/2: a quintic Hermite table of eta - ln u in ln u (see
+  inverse_fermi_dirac_half).
 
 References
 ----------
@@ -48,6 +53,8 @@ _CHUNK = 1 << 16  # elements per block: keeps the temporaries in cache
 _TASK = 1 << 17  # elements per thread task (two blocks)
 WORKERS = min(2, os.cpu_count() or 1)  # threads for large arrays (1: no threads)
 _POOLS: dict[int, ThreadPoolExecutor] = {}
+if hasattr(os, "register_at_fork"):  # a forked child has none of the parent's threads
+    os.register_at_fork(after_in_child=_POOLS.clear)
 _PI2 = np.pi**2
 
 
