@@ -8,7 +8,8 @@ first differing lines of each report that differs.
     python tools/compare_example_reports.py 09fbaf1            # exit 1 on any difference
     python tools/compare_example_reports.py 09fbaf1 --ignore-key above_mott_density
 
-Reports compared: `check examples/` as console, JSON, SARIF and Markdown, and `state`
+Reports compared: `check examples/` as console, JSON, SARIF, Markdown and HTML (its inline
+SVG maps included: drawn with fixed ids and no date), and `state`
 of every example YAML as JSON.  ``--ignore-key`` drops a JSON key (at any depth) from
 both sides, for a deliberate, documented renaming.
 """
@@ -29,6 +30,7 @@ REPORTS = {
     "check.json": ["check", "examples/", "--format", "json", "--exit-zero"],
     "check.sarif": ["check", "examples/", "--format", "sarif", "--exit-zero"],
     "check.md": ["check", "examples/", "--format", "markdown", "--exit-zero"],
+    "check.html": ["check", "examples/", "--format", "html", "--exit-zero"],
     "state.json": [
         "state",
         *sorted(str(p.relative_to(ROOT)) for p in (ROOT / "examples").glob("*.yaml")),
