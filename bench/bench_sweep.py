@@ -1,21 +1,32 @@
-"""A sweep of 1,000 temperatures x 1,000 dopings checked in one run (issue target <= 5 s).
+"""A sweep checked by the installed command, per grid point, against the solve of the same grid.
 
-Whole-process wall time and peak memory of `regimecheck check` on a generated
-1,000 x 1,000 silicon grid with the textbook shortcuts declared, beside a 100 x 100
-grid; prints a table; stops with exit code 1 where the installed command exits with a
-code other than 0 or 1 (an error is not timed).
+A generated silicon grid (temperature x donor density, the textbook shortcuts declared)
+is checked by `regimecheck check` (bench/installed_command.py: the console script beside
+this interpreter; any exit code other than 0 or 1 stops the bench).  Timed in interleaved
+rounds (bench/interleaved.py) beside the anchor, ``solve_equilibrium`` of the very same
+grid points in this process (all worker threads, as the sweep solves); a one-point check
+gives the command's start-up, so that the net ratio is the grid's own cost.  The headline
+is the median per-round ratio to the solve, with its spread.  Last, the peak resident
+memory of the command on a 2000 x 2000 grid (4e6 points), measured on that child alone
+(os.wait4).  Prints tables; asserts nothing.
 """
 
 import argparse
-import resource
-import statistics
+import os
+import subprocess
+import sys
 import tempfile
-import time
 from pathlib import Path
 
 import installed_command
+import interleaved
+import numpy as np
 from installed_command import CHECKED
 
+from checker import load_material, solve_equilibrium
+
+T_RANGE = (200.0, 500.0)  # K, as in GRID
+N_RANGE = (1e14, 1e20)  # cm^-3, as in GRID (log spacing, the default of a density axis)
 GRID = """name: bench sweep {n} x {n}
 material: Si
 temperature: {{from: 200 K, to: 500 K, steps: {n}}}
@@ -25,30 +36,74 @@ assumes: [non-degenerate, full-ionization, einstein-relation, single-carrier, ex
 formulas:
   - D_n = mu_n*k*T/q
 """
+POINT = """name: bench one point
+material: Si
+temperature: 300 K
+doping: {donors: {P: 1e16 cm-3}}
+assumes: [non-degenerate, full-ionization, einstein-relation, single-carrier, extrinsic]
+"""
 
 
-def run(path):
-    start = time.perf_counter()
-    installed_command.run(["check", path], CHECKED)
-    return time.perf_counter() - start
+def grid_file(folder, n):
+    path = Path(folder) / f"grid{n}.yaml"
+    path.write_text(GRID.format(n=n), encoding="utf-8")
+    return path
+
+
+def grid_points(n):
+    """The grid's points as the sweep builds them (temperature slowest; log doping axis)."""
+    T = np.linspace(*T_RANGE, n)
+    nd = np.geomspace(*N_RANGE, n) * 1e6
+    return np.repeat(T, n), np.tile(nd, n)
+
+
+def peak_memory_mb(path):
+    """Peak resident memory (MB) of one `regimecheck check` of ``path``, that child alone."""
+    proc = subprocess.Popen(
+        [installed_command.command(), "check", str(path)],
+        stdout=subprocess.DEVNULL,
+        stderr=subprocess.PIPE,
+    )
+    _, status, usage = os.wait4(proc.pid, 0)
+    code = os.waitstatus_to_exitcode(status)
+    if code not in CHECKED:
+        error = proc.stderr.read().decode(errors="replace").strip().splitlines()[-5:]
+        sys.exit(f"bench: `regimecheck check {path}` exited with {code}:\n" + "\n".join(error))
+    proc.stderr.close()
+    return usage.ru_maxrss / 1024  # Linux: kB
 
 
 def main():
     parser = argparse.ArgumentParser()
-    parser.add_argument("--runs", type=int, default=3)
+    parser.add_argument("--size", type=int, default=1000, help="grid points per axis")
+    parser.add_argument("--rounds", type=int, default=3)
+    parser.add_argument("--memory-size", type=int, default=2000, help="0: skip the memory row")
     args = parser.parse_args()
-    print(f"{'grid':<20} {'points':>10} {'median s':>9} {'best s':>8} {'peak MB':>8} {'target':>7}")
+    n = args.size
+    points = n * n
+    si = load_material("Si")
+    T, nd = grid_points(n)
     with tempfile.TemporaryDirectory() as tmp:
-        for n, target in ((100, ""), (1000, "5")):
-            path = Path(tmp) / f"grid{n}.yaml"
-            path.write_text(GRID.format(n=n), encoding="utf-8")
-            before = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss
-            times = [run(path) for _ in range(args.runs)]
-            peak = max(resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss, before) / 1024
-            print(
-                f"{f'{n} x {n}':<20} {n * n:>10} {statistics.median(times):9.2f} "
-                f"{min(times):8.2f} {peak:8.0f} {target:>7}"
-            )
+        path, one = grid_file(tmp, n), Path(tmp) / "point.yaml"
+        one.write_text(POINT, encoding="utf-8")
+        cases = {
+            "solve of the grid": lambda: solve_equilibrium(si, T, {"P": nd}),
+            "check, one point (start-up)": lambda: installed_command.run(["check", one], CHECKED),
+            f"check, {n} x {n} sweep": lambda: installed_command.run(["check", path], CHECKED),
+        }
+        timings = interleaved.interleaved(cases, rounds=args.rounds)
+        print(f"sweep of {points:.0e} points, {args.rounds} interleaved rounds")
+        print(interleaved.ratio_table(timings, "solve of the grid", per=points, unit="us/point"))
+        solve, start, sweep = (timings[name].seconds for name in cases)
+        net = sorted((s - u) / v for s, u, v in zip(sweep, start, solve, strict=True))
+        print(
+            f"{'sweep less start-up, x solve':<40} {'':>10} {net[len(net) // 2]:>14.2f} "
+            f"{f'{net[0]:.2f}-{net[-1]:.2f}':>15}"
+        )
+        if args.memory_size:
+            m = args.memory_size
+            peak = peak_memory_mb(grid_file(tmp, m))
+            print(f"peak resident memory, check of a {m} x {m} sweep: {peak:.0f} MB")
 
 
 if __name__ == "__main__":
