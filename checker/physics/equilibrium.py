@@ -32,6 +32,7 @@ Statistics (1962); P. P. Edwards and M. J. Sienko, Phys. Rev. B 17, 2575 (1978)
 
 from __future__ import annotations
 
+import functools
 import os
 from collections.abc import Mapping
 from dataclasses import dataclass
@@ -204,8 +205,9 @@ def _plain_balance_error(
 ) -> FloatArray:
     """|(n + N_A^-) - (p + N_D^+)| / max of the two, from the log densities."""
     with np.errstate(invalid="ignore", over="ignore"):
-        ln_neg = np.logaddexp.reduce([ln_n, *ln_acceptors])
-        ln_pos = np.logaddexp.reduce([ln_p, *ln_donors])
+        # pairwise in order, as logaddexp.reduce over the stacked terms, without the stack
+        ln_neg = functools.reduce(np.logaddexp, ln_acceptors, ln_n)
+        ln_pos = functools.reduce(np.logaddexp, ln_donors, ln_p)
         top = np.maximum(ln_neg, ln_pos)
         error = np.abs(np.exp(ln_neg - top) - np.exp(ln_pos - top))
     return np.where(np.isfinite(top), error, 0.0)
