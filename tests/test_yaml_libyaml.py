@@ -3,7 +3,8 @@ Python; the reading must be the one of PyYAML's own pure-Python parser, the refe
 here: the same values at the same line and column, and the same refusals and messages.
 
 References: PyYAML 6 (``yaml.SafeLoader``, pure Python: scanner, parser, composer) and
-its libyaml binding (``yaml.CSafeLoader``); both implement YAML 1.1."""
+its libyaml binding (``yaml.CSafeLoader``); both implement YAML 1.1.  The last test checks
+that a file found by a directory walk is parsed once."""
 
 import random
 from pathlib import Path
@@ -49,9 +50,11 @@ def pure_strict(text: str, name: str):
         yaml_source._COMPOSER = saved
 
 
-def test_libyaml_is_there():
-    # the speed of `check` rests on it; PyYAML wheels ship it for every common platform
-    assert yaml_source._COMPOSER is not yaml_source._StrictLoader
+def test_libyaml_parses_where_pyyaml_has_it():
+    # the speed of `check` rests on it; PyYAML wheels ship it for the common platforms,
+    # and without it the pure-Python parser reads alone
+    with_libyaml = getattr(yaml, "__with_libyaml__", False)
+    assert (yaml_source._COMPOSER is not yaml_source._StrictLoader) == with_libyaml
 
 
 def assert_reads_as_pyyaml(text: str):
@@ -130,3 +133,27 @@ def test_without_libyaml_the_pure_parser_reads(monkeypatch):
     nodes, errors = compose_documents("a: &x 1\nb: *x\n---\nc: 2\n", "f.yaml")
     assert errors == ["f.yaml:2:4: YAML aliases (*name) are not accepted; write the value out"]
     assert [shape(n) for n in nodes] == [([[("c", (3, 0)), ("2", (3, 3))]], (3, 0))]
+
+
+def test_a_walked_file_is_parsed_once(tmp_path, monkeypatch):
+    """A file found by a directory walk is read once: the documents that decide whether
+    it holds calculations are those that are checked."""
+    from checker.inputs import calculation_file
+
+    calls = []
+    original = calculation_file.compose_documents
+
+    def counted(text, name):
+        calls.append(name)
+        return original(text, name)
+
+    monkeypatch.setattr(calculation_file, "compose_documents", counted)
+    calc = tmp_path / "calc.yaml"
+    calc.write_text("name: a\nmaterial: Si\ntemperature: 300 K\n", encoding="utf-8")
+    other = tmp_path / "settings.yaml"
+    other.write_text("jobs: {build: {runs-on: x}}\n", encoding="utf-8")
+    read = calculation_file.read_calculation_file(calc, explicit=False)
+    skipped = calculation_file.read_calculation_file(other, explicit=False)
+    assert [c.name for c in read.calculations] == ["a"] and read.errors == []
+    assert skipped.calculations == [] and skipped.errors == []  # some other YAML
+    assert calls == [str(calc), str(other)]
