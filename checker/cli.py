@@ -312,9 +312,11 @@ def _report(result, args, config) -> int:
 def _choose_format(args) -> None:
     """--format, else the --output file's suffix, else the console."""
     if hasattr(args, "format") and args.format is None:
-        from .report.output_file import format_for
+        args.format = "console"
+        if args.output:  # imported only then: it brings tempfile
+            from .report.output_file import format_for
 
-        args.format = (format_for(args.output) if args.output else None) or "console"
+            args.format = format_for(args.output) or "console"
 
 
 def _settings(args):
