@@ -155,8 +155,12 @@ def check_sweep(
     masks, notes = rule_grid(calc, rules, first.embodied, grid_points, progress)
     findings = [f for f in first.findings if f.rule in ("FORM01", "FORM02")]
     by_id = {rule.id: rule for rule in rules}
-    for (rule_id, x), (mask, index) in sorted(masks.items()):
-        (worst,), _ = check_points([point(calc, T, donors, acceptors, index)], rules)
+    ordered = sorted(masks.items())
+    # every rule's worst point checked in full, in one call (one solve)
+    worst_reports, _ = check_points(
+        [point(calc, T, donors, acceptors, index) for _, (_, index) in ordered], rules
+    )
+    for ((rule_id, x), (mask, index)), worst in zip(ordered, worst_reports):
         match = [f for f in worst.findings if f.rule == rule_id and f.carrier == carrier_word(x)]
         if not match:
             continue
@@ -251,8 +255,8 @@ def _interpolate(
     passing = np.array([values[p] for p, _ in pairs], dtype=float)
     failing = np.array([values[f] for _, f in pairs], dtype=float)
     at = np.asarray(bases)
-    fa = excess(at, (key, passing))
-    fb = excess(at, (key, failing))
+    both = excess(np.concatenate([at, at]), (key, np.concatenate([passing, failing])))
+    fa, fb = both[: at.size], both[at.size :]
     ok = np.isfinite(fa) & np.isfinite(fb) & (fa <= 0) & (fb > 0)
     span = np.where(ok, fb - fa, 1.0)
     xa, xb = (np.log(passing), np.log(failing)) if log else (passing, failing)
