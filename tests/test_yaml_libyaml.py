@@ -97,6 +97,7 @@ def test_marks_count_characters_as_pyyaml_does(text):
         "a: b\x0cc\n",
         "a:\n\t- b\n",  # a tab PyYAML refuses and libyaml would accept
         "a: {b: c, ? d}\n",  # an explicit key in flow: the same
+        "a: [x, !b, c]\n",  # libyaml ends the tag before the comma, PyYAML after it
         "a: [b\n",
         "a: 1\n---\nb: &y 2\nc: *y\n---\nd: 3\n",
         "[" * 40 + "]" * 40 + "\n---\na: 1\n",

@@ -275,11 +275,12 @@ _CParser: Any = getattr(getattr(yaml, "_yaml", None), "CParser", None)
 
 
 # Where libyaml's and PyYAML's parsers disagree, PyYAML's reading is kept: libyaml accepts
-# tabs and explicit '?' keys in places PyYAML refuses, and counts a byte-order mark inside
-# the text (not at its start) as no column.  A text holding one of these is read by
-# PyYAML's parser alone.
+# tabs and explicit '?' keys in places PyYAML refuses, ends a tag in flow style before a
+# comma PyYAML takes into it ('[!a, b]'), and counts a byte-order mark inside the text
+# (not at its start) as no column.  A text holding one of these is read by PyYAML's
+# parser alone.
 def _pure_only(text: str) -> bool:
-    return "\t" in text or "?" in text or "\ufeff" in text[1:]
+    return "\t" in text or "?" in text or "!" in text or "\ufeff" in text[1:]
 
 
 if _CParser is not None:
