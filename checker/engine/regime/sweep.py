@@ -12,7 +12,7 @@ numbers and names leave here; :mod:`checker.report.sweep_text` writes them as te
 from __future__ import annotations
 
 import copy
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Generator, Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, TypeAlias
 
@@ -24,7 +24,7 @@ from ..findings import Embodied, carrier_word
 from .evaluate import Cells, beyond, rule_cells, rule_indicator
 from .points import CalculationReport, check_points
 from .rulebook import Rule
-from .state_values import solve_sweep
+from .state_values import Values, solve_sweep
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Axis, Calculation
@@ -33,8 +33,10 @@ if TYPE_CHECKING:
 GridPoints: TypeAlias = (
     "tuple[GridQuantity, dict[str, GridQuantity], dict[str, GridQuantity], tuple[int, ...]]"
 )
-# excess(flat indices, (axis key, values) or None) -> the indicator beyond its threshold
-Excess: TypeAlias = Callable[[ArrayIn, "tuple[AxisKey, ArrayIn] | None"], FloatArray]
+# a step of the edges' false position: (flat indices, (axis key, values there))
+Request: TypeAlias = "tuple[ArrayIn, tuple[AxisKey, ArrayIn]]"
+# (boundary axis, row axis or None, rows)
+Boundary: TypeAlias = "tuple[Axis, Axis | None, list[BoundaryRow]]"
 # (rule id, carrier) -> (failing mask over the grid, worst flat index)
 Masks: TypeAlias = dict[tuple[str, str], tuple[BoolArray, int]]
 
@@ -160,14 +162,16 @@ def check_sweep(
     worst_reports, _ = check_points(
         [point(calc, T, donors, acceptors, index) for _, (_, index) in ordered], rules
     )
+    kept = []  # (finding, mask, worst index) of each rule confirmed at its worst point
     for ((rule_id, x), (mask, index)), worst in zip(ordered, worst_reports):
         match = [f for f in worst.findings if f.rule == rule_id and f.carrier == carrier_word(x)]
-        if not match:
-            continue
-        finding = match[0]
-        finding.sweep = summarize_sweep(
-            calc, mask, index, grid_points, excess_at(calc, by_id[rule_id], x, grid_points)
-        )
+        if match:
+            kept.append((match[0], by_id[rule_id], x, mask, index))
+    found = boundaries_together(
+        calc, grid_points, [(rule, x, mask) for _, rule, x, mask, _ in kept]
+    )
+    for (finding, _, _, mask, index), where in zip(kept, found):
+        finding.sweep = _summary(mask, index, grid_points, calc, where, True)
         findings.append(finding)
     report = CalculationReport(
         calc, None, findings, notes, formulas=first.formulas, embodied=first.embodied
@@ -241,13 +245,14 @@ def _edges(flags: BoolArray) -> list[tuple[int, int]]:
 
 
 def _interpolate(
-    axis: Axis, pairs: list[tuple[int, int]], bases: Sequence[int], excess: Excess
-) -> list[float | None]:
+    axis: Axis, pairs: list[tuple[int, int]], bases: Sequence[int]
+) -> Generator[Request, FloatArray, list[float | None]]:
     """Where the indicator's excess crosses zero between each (passing, failing) pair of
     grid indices along ``axis`` (``bases``: the failing points' flat indices), by false
-    position (in log for a log axis), all pairs in one solve per step.  A pair that does
-    not cross smoothly (a jump, e.g. the Mott density switching the picture, or a gate)
-    gets None: its grid value is used."""
+    position (in log for a log axis), all pairs in one solve per step: each step yields
+    (flat indices, (axis key, values there)) and is sent the excess at those points.  A
+    pair that does not cross smoothly (a jump, e.g. the Mott density switching the
+    picture, or a gate) gets None: its grid value is used."""
     if not pairs:
         return []
     log = axis.spacing == "log"
@@ -255,7 +260,7 @@ def _interpolate(
     passing = np.array([values[p] for p, _ in pairs], dtype=float)
     failing = np.array([values[f] for _, f in pairs], dtype=float)
     at = np.asarray(bases)
-    both = excess(np.concatenate([at, at]), (key, np.concatenate([passing, failing])))
+    both = yield np.concatenate([at, at]), (key, np.concatenate([passing, failing]))
     fa, fb = both[: at.size], both[at.size :]
     ok = np.isfinite(fa) & np.isfinite(fb) & (fa <= 0) & (fb > 0)
     span = np.where(ok, fb - fa, 1.0)
@@ -264,7 +269,7 @@ def _interpolate(
     for _ in range(STEPS):
         denominator = np.where(ok, fb - fa, 1.0)
         x = np.where(ok, xa - fa * (xb - xa) / denominator, xb)
-        f = excess(at, (key, np.exp(x) if log else x))
+        f = yield at, (key, np.exp(x) if log else x)
         ok &= np.isfinite(f)
         below = ok & (f <= 0)
         xa, fa = np.where(below, x, xa), np.where(below, f, fa)
@@ -292,12 +297,14 @@ def _failing_runs(
     ]
 
 
-def boundary(
-    calc: Calculation, mask: BoolArray, excess: Excess | None = None
-) -> tuple[Axis, Axis | None, list[BoundaryRow]]:
+def boundary_steps(
+    calc: Calculation, mask: BoolArray, interpolate: bool = True
+) -> Generator[Request, FloatArray, Boundary]:
     """(boundary axis, row axis or None, [BoundaryRow]): where on the grid the rule
-    fails.  ``excess(flat indices, override)`` (optional) gives the indicator's distance
-    beyond its threshold, for interpolating the edges between grid points."""
+    fails, as steps: with ``interpolate``, each false-position step of the edges between
+    grid points yields (flat indices, override) and is sent the indicator's excess there,
+    so that the boundaries of several rules share one solve per step
+    (:func:`boundaries_together`)."""
     axes = calc.sweep
     shape = mask.shape
     if len(axes) == 1:
@@ -328,10 +335,10 @@ def boundary(
     middles = [(first + last) // 2 for first, last in groups]
     # row -> {(passing, failing): edge value or None}
     crossings: dict[int, dict[tuple[int, int], float | None]] = {}
-    if excess is not None:
+    if interpolate:
         edges = [(r, pair) for r in middles for pair in _edges(grid_mask[r])]
-        found = _interpolate(
-            axis, [pair for _, pair in edges], [flat(r, pair[1]) for r, pair in edges], excess
+        found = yield from _interpolate(
+            axis, [pair for _, pair in edges], [flat(r, pair[1]) for r, pair in edges]
         )
         for (r, pair), value in zip(edges, found):
             crossings.setdefault(r, {})[pair] = value
@@ -353,43 +360,84 @@ def boundary(
     return axis, row_axis, described
 
 
-def excess_at(calc: Calculation, rule: Rule, x: str, grid_points: GridPoints) -> Excess:
-    """A function: flat grid indices -> how far the rule's indicator is beyond its
-    threshold there."""
-    T, donors, acceptors, _ = grid_points
-
-    def excess(at: ArrayIn, override: tuple[AxisKey, ArrayIn] | None = None) -> FloatArray:
-        """At grid points ``at`` (flat indices); ``override`` = (axis key, value or one
-        value per point) moves them along that axis."""
-        indices = np.asarray(at)
-        T_at = T[indices]
-        donors_at = {s: a[indices] for s, a in donors.items()}
-        acceptors_at = {s: a[indices] for s, a in acceptors.items()}
-        if override is not None:
-            key, value = override
-            moved = np.broadcast_to(np.asarray(value, dtype=float), indices.shape).copy()
-            if key == "T":
-                T_at = moved
-            else:
-                (donors_at if key[0] == "donors" else acceptors_at)[key[1]] = moved
-        values, _ = solve_sweep(calc, T_at, donors_at, acceptors_at)
-        indicator = rule_indicator(rule, x, values, indices.size)
-        with np.errstate(all="ignore"):
-            return np.asarray(beyond(rule, indicator), dtype=float)
-
-    return excess
-
-
-def summarize_sweep(
+def _values_at(
     calc: Calculation,
+    grid_points: GridPoints,
+    at: ArrayIn,
+    override: tuple[AxisKey, ArrayIn] | None = None,
+) -> Values:
+    """Every quantity at grid points ``at`` (flat indices); ``override`` = (axis key,
+    value or one value per point) moves them along that axis."""
+    T, donors, acceptors, _ = grid_points
+    indices = np.asarray(at)
+    T_at = T[indices]
+    donors_at = {s: a[indices] for s, a in donors.items()}
+    acceptors_at = {s: a[indices] for s, a in acceptors.items()}
+    if override is not None:
+        key, value = override
+        moved = np.broadcast_to(np.asarray(value, dtype=float), indices.shape).copy()
+        if key == "T":
+            T_at = moved
+        else:
+            (donors_at if key[0] == "donors" else acceptors_at)[key[1]] = moved
+    values, _ = solve_sweep(calc, T_at, donors_at, acceptors_at)
+    return values
+
+
+def _excess(rule: Rule, x: str, values: Values, count: int) -> FloatArray:
+    indicator = rule_indicator(rule, x, values, count)
+    with np.errstate(all="ignore"):
+        return np.asarray(beyond(rule, indicator), dtype=float)
+
+
+def boundaries_together(
+    calc: Calculation, grid_points: GridPoints, jobs: Sequence[tuple[Rule, str, BoolArray]]
+) -> list[Boundary]:
+    """The boundaries (:func:`boundary_steps`), edges interpolated, of every (rule,
+    carrier, mask) in ``jobs``, in lockstep: each false-position step of all of them is
+    one solve (the solve and the indicators work point by point: no number changes)."""
+    steps = [boundary_steps(calc, mask) for _, _, mask in jobs]
+    results: dict[int, Boundary] = {}
+    pending: dict[int, Request] = {}
+
+    def advance(k: int, sent: FloatArray | None) -> None:
+        try:
+            pending[k] = next(steps[k]) if sent is None else steps[k].send(sent)
+        except StopIteration as done:
+            pending.pop(k, None)
+            results[k] = done.value
+
+    for k in range(len(jobs)):
+        advance(k, None)
+    while pending:
+        keys = list(pending)
+        requests = [pending[k] for k in keys]
+        axis_key = requests[0][1][0]  # the boundary axis, the same for every rule
+        at = np.concatenate([np.asarray(r[0]) for r in requests])
+        moved = np.concatenate(
+            [np.broadcast_to(np.asarray(r[1][1], float), np.shape(r[0])) for r in requests]
+        )
+        values = _values_at(calc, grid_points, at, (axis_key, moved))
+        start = 0
+        for k, request in zip(keys, requests):
+            rule, x, _ = jobs[k]
+            stop = start + np.size(request[0])
+            advance(k, _excess(rule, x, values, at.size)[start:stop])
+            start = stop
+    return [results[k] for k in range(len(jobs))]
+
+
+def _summary(
     mask: BoolArray,
     index: int,
     grid_points: GridPoints,
-    excess: Excess | None = None,
+    calc: Calculation,
+    found: Boundary,
+    interpolated: bool,
 ) -> SweepSummary:
     position = np.unravel_index(index, grid_points[3])
-    axis, row_axis, rows = boundary(calc, mask, excess)
+    axis, row_axis, rows = found
     worst = [(axis_, float(axis_.values[position[k]])) for k, axis_ in enumerate(calc.sweep)]
     return SweepSummary(
-        int(mask.size), float(mask.mean()), axis, row_axis, rows, excess is not None, worst
+        int(mask.size), float(mask.mean()), axis, row_axis, rows, interpolated, worst
     )
