@@ -1,29 +1,34 @@
-"""Whole-process timings of the installed `regimecheck check` command.
-
-Targets: one example, cold, <= 0.35 s wall without formulas and <= 0.8 s with
-formulas (design.md §7; issue 3 allowed 0.5 s), measured as the median of
-interleaved runs beside `python -c pass`; 1,000 calculations in one run <= 10 s
-(every other one with four stated formulas); a directory of 1,000 small files
-<= 15 s; the expression parser and the formula reader refuse hostile text in well
-under a second.  Prints a table; stops with exit code 1 where the command exits with
-a code other than 0 or 1 (an error is not timed).
+"""Whole-process cost of the installed `regimecheck check` command, as ratios to
+`python -c "import numpy, yaml"` (the import floor every check pays) measured in the same
+interleaved rounds (bench/interleaved.py: rotated order, median of per-round ratios and
+their spread): one example without formulas, one with formulas, all examples, 1,000
+calculations in one file (every other one with four stated formulas; console and JSON)
+and the same calculations one per file in a directory.  The expression parser and the
+formula reader must refuse hostile text in well under a second (the slowest refusal is
+printed).  Prints a table; stops with exit code 1 where the command exits with a code
+other than 0 or 1 (an error is not timed).  The issue-16 targets (cold start, reading,
+walk, HTML) are in bench/bench_startup.py.
+Usage: python bench/bench_check.py [--rounds 5] [--calculations 1000]
 """
 
 import argparse
-import statistics
 import subprocess
 import sys
 import tempfile
 import time
 from pathlib import Path
 
-import installed_command
-from installed_command import CHECKED
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+import installed_command  # noqa: E402
+from installed_command import CHECKED  # noqa: E402
+from interleaved import interleaved, ratio_table  # noqa: E402
 
 ROOT = Path(__file__).resolve().parents[1]
 ONE = ROOT / "examples" / "lc9_counterdoped_well.yaml"  # no formulas
 WITH_FORMULAS = ROOT / "examples" / "lk7_contact_cap.yaml"  # 7 formulas, 2 calculations
 FORMULAS = ("n = N_D", "D_n = mu_n*k*T/q", "sigma = q*n*mu_n", "E_F - E_c = k*T*ln(N_D/N_c)")
+FLOOR = [sys.executable, "-c", "import numpy, yaml"]
+FLOOR_NAME = "import numpy, yaml"
 
 # (material, donor, acceptor) cycled through the generated run
 MIXES = [
@@ -38,23 +43,14 @@ MIXES = [
 ]
 
 
-def wall(args, runs, expected=CHECKED):
-    """Wall times of ``regimecheck *args`` (the installed command)."""
-    times = []
-    for _ in range(runs):
-        start = time.perf_counter()
-        installed_command.run(args, expected, cwd=ROOT)
-        times.append(time.perf_counter() - start)
-    return times
+def command(*args):
+    """A case: ``regimecheck *args`` run once (exit 0 or 1, else the bench stops)."""
+    return lambda: installed_command.run([str(a) for a in args], CHECKED, cwd=ROOT)
 
 
-def interpreter_start(runs):
-    times = []
-    for _ in range(runs):
-        start = time.perf_counter()
-        subprocess.run([sys.executable, "-c", "pass"], check=True)
-        times.append(time.perf_counter() - start)
-    return times
+def floor():
+    """The case every check is measured against: the interpreter importing numpy and yaml."""
+    return lambda: subprocess.run(FLOOR, check=True)
 
 
 def many_calculations(count: int) -> str:
@@ -75,30 +71,22 @@ def many_calculations(count: int) -> str:
     return "---\n".join(docs)
 
 
-def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--runs", type=int, default=15)
-    parser.add_argument("--calculations", type=int, default=1000)
-    args = parser.parse_args()
-    tool = ["check"]
-    baseline, one, formulas = [], [], []
-    for _ in range(args.runs):  # interleaved: machine noise hits all alike
-        baseline += interpreter_start(1)
-        one += wall(tool + [str(ONE)], 1)
-        formulas += wall(tool + [str(WITH_FORMULAS)], 1)
-    every = wall(tool + [str(ROOT / "examples")], 5)
-    with tempfile.TemporaryDirectory() as tmp:
-        path = Path(tmp) / "many.yaml"
-        path.write_text(many_calculations(args.calculations), encoding="utf-8")
-        many = wall(tool + [str(path)], 3)
-        many_json = wall(tool + [str(path), "--format", "json"], 3)
-        folder = Path(tmp) / "files"  # 1,000 small files in nested folders
-        for i, doc in enumerate(many_calculations(1000).split("---\n")):
-            target = folder / f"block{i // 100}" / f"calc{i}.yaml"
-            target.parent.mkdir(parents=True, exist_ok=True)
-            target.write_text(doc, encoding="utf-8")
-        files = wall(tool + [str(folder)], 3)
+def write_inputs(folder: Path, count: int) -> tuple[Path, Path]:
+    """(one file of ``count`` calculations, a folder of the same calculations one per file,
+    100 files a subfolder)."""
+    text = many_calculations(count)
+    many = folder / "many.yaml"
+    many.write_text(text, encoding="utf-8")
+    files = folder / "files"
+    for i, doc in enumerate(text.split("---\n")):
+        target = files / f"block{i // 100}" / f"calc{i}.yaml"
+        target.parent.mkdir(parents=True, exist_ok=True)
+        target.write_text(doc, encoding="utf-8")
+    return many, files
 
+
+def slowest_refusal() -> float:
+    """Seconds of the slowest refusal of hostile expression or formula text."""
     from checker.engine.expressions import parser as expression
     from checker.engine.formulas.check import parse_formula
     from checker.errors import InputError
@@ -120,26 +108,31 @@ def main():
             except InputError:
                 pass
             worst = max(worst, time.perf_counter() - start)
+    return worst
 
-    print(f"{'what':<52} {'median s':>9} {'best s':>8} {'target':>8}")
-    rows = [
-        ("python -c pass", baseline, ""),
-        (f"check {ONE.name} (no formulas)", one, "0.35"),
-        (f"check {WITH_FORMULAS.name} (7 formulas)", formulas, "0.8"),
-        ("check examples/ (all example files)", every, ""),
-        (f"check {args.calculations} calculations (console)", many, "10"),
-        (f"check {args.calculations} calculations (--format json)", many_json, "10"),
-        ("check a directory of 1000 small files", files, "15"),
-    ]
-    for label, times, target in rows:
-        print(f"{label:<52} {statistics.median(times):9.3f} {min(times):8.3f} {target:>8}")
-    ratio = statistics.median(one) / statistics.median(baseline)
+
+def main():
+    parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+    parser.add_argument("--rounds", type=int, default=5)
+    parser.add_argument("--calculations", type=int, default=1000)
+    args = parser.parse_args()
+    count = args.calculations
+    with tempfile.TemporaryDirectory() as tmp:
+        many, files = write_inputs(Path(tmp), count)
+        cases = {
+            FLOOR_NAME: floor(),
+            f"check {ONE.name}": command("check", ONE),
+            f"check {WITH_FORMULAS.name} (formulas)": command("check", WITH_FORMULAS),
+            "check examples/": command("check", ROOT / "examples"),
+            f"check {count} calculations": command("check", many),
+            f"check {count} calculations, json": command("check", many, "--format", "json"),
+            f"check {count} files (a walk)": command("check", files),
+        }
+        timings = interleaved(cases, args.rounds)
+    print(ratio_table(timings, FLOOR_NAME, unit="us/run"))
     print(
-        f"one example minus interpreter start: "
-        f"{statistics.median(one) - statistics.median(baseline):.3f} s "
-        f"(ratio to python -c pass: {ratio:.1f}x)"
+        f"slowest refusal of hostile expression or formula text: {slowest_refusal() * 1e3:.1f} ms"
     )
-    print(f"slowest refusal of hostile expression or formula text: {worst * 1e3:.1f} ms")
 
 
 if __name__ == "__main__":

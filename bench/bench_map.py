@@ -1,46 +1,54 @@
-"""Regime map timings: a 200 x 200 map solved and drawn (target <= 3 s), in-process and as
-the installed `regimecheck map` command; prints a table; stops with exit code 1 where the
-command fails.  ``--resolution`` sets another grid size (the target is for 200)."""
+"""Regime map cost, as ratios measured in the same interleaved rounds
+(bench/interleaved.py): the installed `regimecheck map` command (a 200 x 200 map of Si:P
+written as SVG) against `python -c "import numpy, yaml"`, and in-process the drawing of
+the solved grid (SVG, PNG) against the solve of that grid.  ``--resolution`` sets the
+points per axis.  Prints tables; stops with exit code 1 where the command fails.
+Usage: python bench/bench_map.py [--resolution 200] [--rounds 5]
+"""
 
 import argparse
+import sys
 import tempfile
-import time
 from pathlib import Path
 
-import installed_command
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+import installed_command  # noqa: E402
+from bench_check import FLOOR_NAME, floor  # noqa: E402
+from interleaved import interleaved, ratio_table  # noqa: E402
 
 
 def main():
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     parser.add_argument("--resolution", type=int, default=200, help="points per axis")
-    size = parser.parse_args().resolution
-    target = "3" if size == 200 else ""
+    parser.add_argument("--rounds", type=int, default=5)
+    args = parser.parse_args()
+    size = args.resolution
 
     from checker import load_material
     from checker.engine.regime.regime_map import regime_grid
     from checker.report.plots import draw_map, render
 
-    print(f"{'what':<44} {'seconds':>8} {'target':>7}")
     material = load_material("Si")
-    start = time.perf_counter()
     grid = regime_grid(material, "P", size=(size, size))
-    solved = time.perf_counter()
-    svg = render(draw_map(grid), "svg")
-    drawn = time.perf_counter()
-    render(draw_map(grid), "png")
-    png = time.perf_counter()
-    print(f"{f'solve {size} x {size} grid':<44} {solved - start:8.2f}")
-    print(f"{'draw it as SVG (first figure, imports)':<44} {drawn - solved:8.2f}")
-    print(f"{'draw it as PNG':<44} {png - drawn:8.2f}")
-    print(f"{'grid + SVG':<44} {drawn - start:8.2f} {target:>7}")
+    solve = f"solve {size} x {size} grid"
+    drawing = {
+        solve: lambda: regime_grid(material, "P", size=(size, size)),
+        "draw it as SVG": lambda: render(draw_map(grid), "svg"),
+        "draw it as PNG": lambda: render(draw_map(grid), "png"),
+    }
+    print(ratio_table(interleaved(drawing, args.rounds), solve, unit="us/map"))
+    print()
     with tempfile.TemporaryDirectory() as tmp:
         out = Path(tmp) / "map.svg"
-        t = time.perf_counter()
-        installed_command.run(
-            ["map", "--material", "Si", "--dopant", "P", "--resolution", size, "--output", out]
-        )
-        print(f"{'regimecheck map (whole process)':<44} {time.perf_counter() - t:8.2f} {target:>7}")
-    print(f"SVG size: {len(svg) / 1024:.0f} KiB")
+        command = ["map", "--material", "Si", "--dopant", "P", "--resolution", size]
+        whole = {
+            FLOOR_NAME: floor(),
+            "regimecheck map (whole process)": lambda: installed_command.run(
+                [*command, "--output", out]
+            ),
+        }
+        print(ratio_table(interleaved(whole, args.rounds), FLOOR_NAME, unit="us/run"))
+        print(f"SVG size: {out.stat().st_size / 1024:.0f} KiB")
 
 
 if __name__ == "__main__":

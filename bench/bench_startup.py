@@ -15,37 +15,15 @@ Usage: python bench/bench_startup.py [--rounds 7] [--calculations 1000]
 from __future__ import annotations
 
 import argparse
-import subprocess
 import sys
 import tempfile
 from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-import installed_command  # noqa: E402
-from bench_check import ONE, ROOT, many_calculations  # noqa: E402
-from installed_command import CHECKED  # noqa: E402
+from bench_check import FLOOR_NAME, ONE, ROOT, command, floor, write_inputs  # noqa: E402
 from interleaved import interleaved, ratios  # noqa: E402
 
-FLOOR = [sys.executable, "-c", "import numpy, yaml"]
 EXAMPLES = ROOT / "examples"
-
-
-def command(*args):
-    """A case: ``regimecheck *args`` run once (exit 0 or 1, else the bench stops)."""
-    return lambda: installed_command.run(list(args), CHECKED, cwd=ROOT)
-
-
-def write_inputs(folder: Path, count: int) -> tuple[Path, Path]:
-    """(one file of ``count`` calculations, a folder of ``count`` one-calculation files)."""
-    text = many_calculations(count)
-    many = folder / "many.yaml"
-    many.write_text(text, encoding="utf-8")
-    files = folder / "files"
-    for i, doc in enumerate(text.split("---\n")):
-        target = files / f"block{i // 100}" / f"calc{i}.yaml"
-        target.parent.mkdir(parents=True, exist_ok=True)
-        target.write_text(doc, encoding="utf-8")
-    return many, files
 
 
 def main() -> None:
@@ -57,7 +35,7 @@ def main() -> None:
         out = Path(tmp) / "report.html"
         many, files = write_inputs(Path(tmp), args.calculations)
         cases = {
-            "import numpy, yaml": lambda: subprocess.run(FLOOR, check=True),
+            FLOOR_NAME: floor(),
             f"check {ONE.name}": command("check", ONE),
             f"check {args.calculations} in one file": command("check", many),
             f"check a walk of {args.calculations} files": command("check", files),
@@ -68,10 +46,10 @@ def main() -> None:
         }
         timings = interleaved(cases, args.rounds)
     names = list(cases)
-    floor = ratios(timings, names[0])
+    to_floor = ratios(timings, names[0])
     rows = [
-        (names[1], floor[names[1]], names[0], "1.3"),
-        (names[2], floor[names[2]], names[0], "4"),
+        (names[1], to_floor[names[1]], names[0], "1.3"),
+        (names[2], to_floor[names[2]], names[0], "4"),
         (names[3], ratios(timings, names[2])[names[3]], names[2], "1.2"),
         (names[5], ratios(timings, names[4])[names[5]], names[4], "2"),
     ]
