@@ -2,6 +2,7 @@
 published handbook values."""
 
 import math
+import os
 import warnings
 
 import mpmath as mp
@@ -219,3 +220,26 @@ def test_fermi_level_rises_with_donor_density():
     for T in (50.0, 300.0, 900.0):
         eta = solve_equilibrium("Si", T, {"P": N}, {"B": 1e15 * PER_CM3}).eta_n
         assert np.all(np.diff(eta) > 0)
+
+
+@pytest.mark.skipif(not hasattr(os, "fork"), reason="needs os.fork")
+def test_a_forked_child_starts_its_own_thread_pool():
+    """Large solves keep one thread pool; a forked child inherits it without its threads
+    (work sent there would never run), so the child must start afresh.  The child's solve
+    of 1e20 cm^-3 phosphorus at 300 K must also meet the neutrality promise."""
+    from checker.physics import equilibrium
+
+    T = np.full(4 * equilibrium.MIN_BLOCK, 300.0)
+    donors = {"P": np.full(T.size, 1e20 * PER_CM3)}
+    solve_equilibrium("Si", T, donors)
+    if equilibrium.WORKERS < 2:
+        pytest.skip("one worker: no pool")
+    assert equilibrium._POOLS  # the parent keeps its pool
+    pid = os.fork()
+    if pid == 0:  # the child: exit 0 only with no inherited pool and a sound solve
+        if equilibrium._POOLS:
+            os._exit(1)  # before solving: an inherited pool would never return
+        state = solve_equilibrium("Si", T, donors)
+        os._exit(0 if np.all(state.residual <= 1e-10) else 2)
+    _, status = os.waitpid(pid, 0)
+    assert os.waitstatus_to_exitcode(status) == 0

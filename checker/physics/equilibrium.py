@@ -632,6 +632,8 @@ MIN_BLOCK = 1 << 12  # smaller blocks cost more in per-call overhead than a thre
 
 
 _POOLS: dict[int, ThreadPoolExecutor] = {}
+# a forked child inherits the pool without its threads: work sent to it would never run
+os.register_at_fork(after_in_child=_POOLS.clear)
 
 
 def _pool() -> ThreadPoolExecutor:
