@@ -302,7 +302,9 @@ if _CParser is not None:
             """The common case composed directly: a scalar, mapping or sequence without
             anchor or tag, above the nesting limit.  Everything else (aliases, anchors,
             tags, the limit) takes the general path of the strict rules."""
-            event = self.peek_event()
+            # libyaml's events carry the attributes of their kind (the stubs type them all
+            # as the base Event), and its marks are its own Mark type
+            event: Any = self.peek_event()
             kind = type(event)
             if (
                 kind is yaml.AliasEvent
@@ -312,6 +314,7 @@ if _CParser is not None:
             ):
                 return super().compose_node(parent, index)
             self.get_event()
+            node: Any
             if kind is yaml.ScalarEvent:
                 node = yaml.ScalarNode(
                     _STR_TAG, event.value, event.start_mark, event.end_mark, style=event.style
