@@ -36,7 +36,7 @@ import numpy.typing as npt
 
 from ...errors import RegimecheckError
 from ...physics import energy_window
-from ...physics.arrays import FloatArray
+from ...physics.arrays import FloatArray, distinct
 from ...physics.bands import Band, DiracBand, ParabolicBand
 from ...physics.constants import ELEMENTARY_CHARGE
 from ...vocabulary_words import Carrier
@@ -231,7 +231,7 @@ def _energy_resolved(
             & (mode_power + r > -1.0)  # the window integral of E^(a + r) converges
         )
         keys = np.stack([dims, power, r], axis=1)
-        for dim, p, rr in np.unique(keys[ok], axis=0):
+        for dim, p, rr in distinct(keys[ok], axis=0):
             pick = ok & (dims == dim) & (power == p) & (r == rr)
             ratio = energy_resolved_ratio(
                 int(dim),

@@ -20,7 +20,7 @@ import numpy.typing as npt
 
 from ...errors import MissingParameterError, RegimecheckError
 from ...physics import carriers, energy_window, equilibrium, fermi, hall, transport
-from ...physics.arrays import ArrayIn, BoolArray, FloatArray
+from ...physics.arrays import ArrayIn, BoolArray, FloatArray, distinct
 from ...physics.constants import ELEMENTARY_CHARGE
 from ...physics.equilibrium import State
 from ...physics.materials import Material
@@ -526,7 +526,7 @@ def _symmetric_cones(values: Values) -> None:
 def _bulk_einstein_ratio(eta: FloatArray, dims: FloatArray) -> FloatArray:
     """(D/mu)/(kT/q) of the parabolic bulk solve per point (F_j ratio of its dimensionality)."""
     out = np.full_like(eta, np.nan)
-    for dim in np.unique(dims[np.isfinite(dims)]):
+    for dim in distinct(dims[np.isfinite(dims)]):
         pick = (dims == dim) & np.isfinite(eta)
         if pick.any():
             out[pick] = transport.einstein_ratio(eta[pick], int(dim))
@@ -539,8 +539,8 @@ def _hall(values: Values, exponents: FloatArray) -> None:
     dims = values["dim"]
     for x in ("n", "p"):
         factor = np.full(len(exponents), np.nan)
-        for r in np.unique(exponents):
-            for dim in np.unique(dims[np.isfinite(dims)]):
+        for r in distinct(exponents):
+            for dim in distinct(dims[np.isfinite(dims)]):
                 pick = (exponents == r) & (dims == dim)
                 factor[pick] = hall.hall_factor(values[f"eta_{x}"][pick], float(r), int(dim))
         values[f"rH_{x}"] = factor

@@ -1,0 +1,28 @@
+"""What a console check of one file imports: nothing it does not use (start-up cost; the
+speed itself is measured by bench/bench_startup.py, never asserted here)."""
+
+import subprocess
+import sys
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+
+PROBE = """
+import sys
+from checker.cli import main
+try:
+    main(["check", sys.argv[1], "--exit-zero"])
+except SystemExit:
+    pass
+print(",".join(sorted(m for m in ("numpy.ma", "sympy", "matplotlib") if m in sys.modules)))
+"""
+
+
+def test_a_console_check_imports_neither_numpy_ma_nor_sympy_nor_matplotlib():
+    # numpy.ma came in through np.unique without a return_* flag (numpy 2.4); sympy and
+    # matplotlib are for formulas' symbolic proofs and plots only
+    example = ROOT / "examples" / "lc9_counterdoped_well.yaml"
+    done = subprocess.run(
+        [sys.executable, "-c", PROBE, str(example)], capture_output=True, text=True, check=True
+    )
+    assert done.stdout.strip().splitlines()[-1] == ""
