@@ -609,3 +609,37 @@ def test_every_relation_is_the_physics_layer(dim, which, majority):
         checked.add(name)
     assert checked == set(base.definitions) - set(SWITCHES)
     assert checked <= set(RELATION_NAMES)
+
+
+SHARED_TEXT = """name: first
+material: Si
+temperature: 300 K
+doping:
+  donors: {P: 1e16 cm-3}
+formulas:
+  - n = N_D
+  - n = N_Q
+---
+name: second
+material: Si
+temperature: 400 K
+doping:
+  donors: {P: 3e17 cm-3}
+formulas:
+  - n = N_D
+  - n = N_Q
+"""
+
+
+def test_a_formula_text_stated_twice_is_valued_at_each_point_and_refused_at_each_line(tmp_path):
+    # the analysis of a formula text is shared by the calculations stating it; its value
+    # and every refusal are each calculation's own
+    path = tmp_path / "shared.yaml"
+    path.write_text(SHARED_TEXT, encoding="utf-8")
+    read = read_calculation_file(path)
+    result = check_calculations(read.calculations)
+    values = [r.value for report in result.reports for r in report.formulas]
+    # N_D as written in each calculation, cm^-3 -> m^-3 (1 cm^-3 = 1e6 m^-3: SI definition)
+    assert values == [pytest.approx(1e16 * 1e6, rel=1e-12), pytest.approx(3e17 * 1e6, rel=1e-12)]
+    errors = read.errors + result.input_errors
+    assert [e.split(":")[1] for e in errors if "N_Q" in e] == ["8", "17"], errors

@@ -243,3 +243,20 @@ def test_compact_form_names_input_errors_on_their_own_lines(tmp_path):
     lines = render_compact(check_paths([str(path)])).splitlines()
     (error,) = [line for line in lines if line.startswith("input error: ")]
     assert f"{path}:3" in error and "1 input error(s)." in lines[-2]
+
+
+def test_console_wrapping_is_the_standard_library_wrap():
+    # reference: Python's own textwrap.wrap (break_on_hyphens=False); the console's
+    # shortcut for lines of single-spaced words must give the same lines for any text
+    import random
+    import textwrap
+
+    from checker.report.check_report import wrapped
+
+    pieces = ["a", "bb", "n=1.5e+17", "x" * 40, " ", "  ", "\t", "-", "é", "\u00a0", "\n", "a-b"]
+    rng = random.Random(16)
+    for _ in range(20_000):
+        line = "".join(rng.choice(pieces) for _ in range(rng.randint(0, 30)))
+        width = rng.randint(1, 60)
+        expected = textwrap.wrap(line, width, break_on_hyphens=False) or [""]
+        assert wrapped(line, width) == expected, (line, width)

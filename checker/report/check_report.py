@@ -115,12 +115,32 @@ class _PlainText:
 PLAIN_WIDTH = 110
 
 
+def wrapped(line: str, width: int) -> list[str]:
+    """``textwrap.wrap(line, width, break_on_hyphens=False) or [""]``, without textwrap's
+    chunking for the usual line: printable (no tab, newline or whitespace other than a
+    space, which textwrap rewrites), words one space apart (no leading, trailing or double
+    space, which it drops or keeps by position) and none longer than ``width`` (which it
+    breaks).  There its greedy fill is words joined while the line stays within ``width``."""
+    words = line.split(" ")
+    if not line.isprintable() or "" in words or max(map(len, words)) > width:
+        import textwrap
+
+        return textwrap.wrap(line, width, break_on_hyphens=False) or [""]
+    lines, current = [], words[0]
+    for word in words[1:]:
+        if len(current) + 1 + len(word) <= width:
+            current += " " + word
+        else:
+            lines.append(current)
+            current = word
+    lines.append(current)
+    return lines
+
+
 def render_console(result, console=None, stream=None) -> None:
     """The report for a reader: with a rich ``console`` (a terminal: colour), or as
     plain text to ``stream`` (a pipe or a file: no colour, rich not even imported).
     One text per calculation, emitted once; long lines wrapped here, indent kept."""
-    import textwrap
-
     Text: type
     if console is None:
         Text, width = _PlainText, PLAIN_WIDTH
@@ -136,7 +156,7 @@ def render_console(result, console=None, stream=None) -> None:
         emit = lambda text: console.print(text, end="", highlight=False)
 
     def add(text, line, style="", indent=8):
-        for part in textwrap.wrap(visible(line), width - indent, break_on_hyphens=False) or [""]:
+        for part in wrapped(visible(line), width - indent):
             text.append(" " * indent + part + "\n", style=style)
 
     for report in result.reports:

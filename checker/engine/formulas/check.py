@@ -341,6 +341,76 @@ def _evaluate(tree: Node, point: Mapping[str, float]) -> float:
         return math.nan
 
 
+# ---- one formula text -----------------------------------------------------------------------
+@dataclass(frozen=True)
+class _TextAnalysis:
+    """What a formula text gives regardless of the operating point: its trees, dimensions,
+    likely fix, match, units and stated key (shared by every calculation stating it)."""
+
+    lhs: Node
+    rhs: Node
+    left_dimension: str = ""
+    right_dimension: str = ""
+    problem: str | None = None
+    fix: str | None = None
+    match: Match | None = None
+    unit: str = ""
+    si_unit: str = ""
+    energy: bool = False
+    key: str | None = None
+
+
+# (text, majority, dim, band) -> its analysis; a file of 1,000 calculations states a handful
+# of distinct formulas.  Texts that fail to parse are not kept (the message names the line).
+_TEXTS: dict[tuple[str, str, int, str], _TextAnalysis] = {}
+_TEXTS_KEPT = 4096
+
+
+def _text_analysis(text: str, majority: str, dim: int, band: str, where: str) -> _TextAnalysis:
+    """The analysis of one formula text (InputError where it does not parse)."""
+    key = (text, majority, dim, band)
+    found = _TEXTS.get(key)
+    if found is None:
+        found = _analyse_text(text, majority, dim, band, where)
+        if len(_TEXTS) >= _TEXTS_KEPT:
+            _TEXTS.clear()
+        _TEXTS[key] = found
+    return found
+
+
+def _analyse_text(text: str, majority: str, dim: int, band: str, where: str) -> _TextAnalysis:
+    lhs, rhs, spelled = parse_formula(text, majority, where)
+    try:
+        left = dimension(lhs, dim)
+        right = dimension(rhs, dim)
+    except _Mismatch as exc:
+        return _TextAnalysis(lhs, rhs, problem=str(exc))
+    left_text, right_text = dm.describe(left), dm.describe(right)
+    if left != right:
+        fix = likely_fix(lhs, rhs, dim, majority, band)
+        return _TextAnalysis(
+            lhs,
+            rhs,
+            left_text,
+            right_text,
+            problem=f"the left side is {left_text}, the right side {right_text}",
+            fix=None
+            if fix is None
+            else f"{to_text(rename(lhs, spelled))} = {to_text(rename(fix, spelled))}",
+        )
+    return _TextAnalysis(
+        lhs,
+        rhs,
+        left_text,
+        right_text,
+        match=analyse(lhs, rhs, dim, majority, band),
+        unit=_DISPLAY.get(left, ""),
+        si_unit=dm.text(left),
+        energy=left == dm.ENERGY,
+        key=formula_key(lhs.value) if lhs.kind == NAME else None,
+    )
+
+
 # ---- one calculation ------------------------------------------------------------------------
 def analyse_calculation(
     calc: Calculation, point: Point | None, band: str = "parabolic"
@@ -351,33 +421,29 @@ def analyse_calculation(
     dim = int(calc.structure.get("dim", 3))
     for text, where, line in calc.formulas:
         try:
-            lhs, rhs, spelled = parse_formula(text, calc.majority, where)
+            known = _text_analysis(text, calc.majority, dim, band, where)
         except InputError as exc:
             out.errors.append(str(exc))
             continue
-        result = FormulaResult(text, where, line, lhs, rhs)
+        result = FormulaResult(
+            text,
+            where,
+            line,
+            known.lhs,
+            known.rhs,
+            known.left_dimension,
+            known.right_dimension,
+            known.problem,
+            known.fix,
+            known.match,
+            unit=known.unit,
+            si_unit=known.si_unit,
+            energy=known.energy,
+            key=known.key,
+        )
         out.results.append(result)
-        try:
-            left = dimension(lhs, dim)
-            right = dimension(rhs, dim)
-        except _Mismatch as exc:
-            result.problem = str(exc)
+        if result.match is None:
             continue
-        result.left_dimension, result.right_dimension = dm.describe(left), dm.describe(right)
-        if left != right:
-            result.problem = (
-                f"the left side is {dm.describe(left)}, the right side {dm.describe(right)}"
-            )
-            fix = likely_fix(lhs, rhs, dim, calc.majority, band)
-            if fix is not None:
-                result.fix = f"{to_text(rename(lhs, spelled))} = {to_text(rename(fix, spelled))}"
-            continue
-        result.match = analyse(lhs, rhs, dim, calc.majority, band)
-        result.unit = _DISPLAY.get(left, "")
-        result.si_unit = dm.text(left)
-        result.energy = left == dm.ENERGY
-        if lhs.kind == NAME:
-            result.key = formula_key(lhs.value)
         if point is not None:
             _value(result, point)
         for word, carrier in result.match.assumptions:
