@@ -62,6 +62,8 @@ def carrier_transport(
     minority_n, minority_p = state.n < 0.5 * state.p, state.p < 0.5 * state.n
     result: dict[str, FloatOrArray] = {"kT_over_q": BOLTZMANN * state.T / ELEMENTARY_CHARGE}
     conduction: dict[str, FloatArray] = {}
+    # the solve at a reference temperature, shared by the two carriers
+    at_T0: dict[float, tuple[State, npt.NDArray[np.intp]]] = {}
     for x, band, eta, _dens, species, majority in (
         ("n", "electron", state.eta_n, state.n, state.donors, ~minority_n),
         ("p", "hole", state.eta_p, state.p, state.acceptors, ~minority_p),
@@ -72,7 +74,7 @@ def carrier_transport(
         if model.minority_model and not mobility_model and not np.all(majority):
             mu = np.where(majority, mu, model.low_field(impurities, state.T, minority=True))
         conduction[x] = np.where(
-            majority, _every_dopant_factor(state, model, mobility_model, main, x), 1.0
+            majority, _every_dopant_factor(state, model, mobility_model, main, x, at_T0), 1.0
         )
         # a Kane conduction band (bulk) sets the electrons' Einstein ratio and velocity
         # a Kane conduction band in the calculation's dimensionality (a bulk crystal
@@ -118,26 +120,48 @@ def _every_dopant_factor(
     mobility_model: str | None,
     species: str | None,
     carrier: str,
+    at_T0: dict[float, tuple[State, npt.NDArray[np.intp]]],
 ) -> FloatArray:
     """1/f(T_0) for a mobility given per dopant atom (sigma = q N mu at T_0, as the
     silicon resistivity standard is): the free carriers at T_0 are then credited with
     the conduction of every dopant, so incomplete ionization is not counted twice,
-    while freeze-out relative to T_0 still lowers the conductivity.  1 otherwise."""
+    while freeze-out relative to T_0 still lowers the conductivity.  1 otherwise.
+    ``at_T0``: solves at a T_0 already done for these points (filled here)."""
     if not model.counts_every_dopant(mobility_model, species):
         return np.ones_like(state.T)
+    fit = model.mobility[model.model_name(mobility_model, species)]
+    T0 = float(getattr(fit, "T0", 296.15))
+    if T0 not in at_T0:
+        at_T0[T0] = _solve_at(state, T0)
+    solved, where = at_T0[T0]
+    fraction = solved.donor_fraction if carrier == "n" else solved.acceptor_fraction
+    return 1.0 / np.maximum(fraction[where], 1e-300)
+
+
+def _solve_at(state: State, T0: float) -> tuple[State, npt.NDArray[np.intp]]:
+    """The state's doping solved at the one temperature T0, each distinct doping once (a
+    sweep over temperature repeats every doping; the solve is pointwise, so this gives
+    what solving every point would), and the index of each point's doping in that solve."""
     from .equilibrium import solve
 
-    fit = model.mobility[model.model_name(mobility_model, species)]
-    T0 = np.full_like(state.T, getattr(fit, "T0", 296.15))
-    at_T0 = solve(
+    shape = np.shape(state.T)
+    groups = (state.donors, state.acceptors)
+    columns = [np.broadcast_to(d, shape).ravel() for group in groups for d in group.values()]
+    if columns:
+        rows, back = np.unique(np.stack(columns, axis=1), axis=0, return_inverse=True)
+    else:  # undoped: one point stands for all
+        rows, back = np.zeros((1, 0)), np.zeros(int(np.prod(shape)), dtype=np.intp)
+    names = [list(group) for group in groups]
+    donors = {s: rows[:, i] for i, s in enumerate(names[0])}
+    acceptors = {s: rows[:, len(names[0]) + i] for i, s in enumerate(names[1])}
+    solved = solve(
         state.material,
-        T0,
-        state.donors,
-        state.acceptors,
+        np.full(len(rows), T0),
+        donors,
+        acceptors,
         band_gap_narrowing=bool(np.any(state.narrowing > 0)),
     )
-    fraction = at_T0.donor_fraction if carrier == "n" else at_T0.acceptor_fraction
-    return 1.0 / np.maximum(fraction, 1e-300)
+    return solved, back.reshape(shape)
 
 
 # regime names, indexed by the codes of regime_code (precedence rises with the code)
