@@ -117,24 +117,26 @@ PLAIN_WIDTH = 110
 
 def wrapped(line: str, width: int) -> list[str]:
     """``textwrap.wrap(line, width, break_on_hyphens=False) or [""]``, without textwrap's
-    chunking for the usual line: printable (no tab, newline or whitespace other than a
-    space, which textwrap rewrites), words one space apart (no leading, trailing or double
-    space, which it drops or keeps by position) and none longer than ``width`` (which it
-    breaks).  There its greedy fill is words joined while the line stays within ``width``."""
-    words = line.split(" ")
-    if not line.isprintable() or "" in words or max(map(len, words)) > width:
-        import textwrap
-
-        return textwrap.wrap(line, width, break_on_hyphens=False) or [""]
-    lines, current = [], words[0]
-    for word in words[1:]:
-        if len(current) + 1 + len(word) <= width:
-            current += " " + word
+    chunk lists for the usual line: printable (no tab, newline or whitespace other than
+    spaces, which textwrap rewrites), no leading or trailing space (which it keeps or drops
+    by position) and no word longer than ``width`` (which it breaks, filling the line
+    before).  There its greedy fill ends each line at the last space within ``width``, the
+    spaces at a break dropped."""
+    lines: list[str] = []
+    rest = line
+    if line.isprintable() and line[:1] != " " and line[-1:] != " ":
+        while len(rest) > width:
+            cut = rest.rfind(" ", 0, width + 1)
+            if cut < 0:  # a word longer than the line: textwrap's own breaking
+                break
+            lines.append(rest[:cut].rstrip(" "))
+            rest = rest[cut:].lstrip(" ")
         else:
-            lines.append(current)
-            current = word
-    lines.append(current)
-    return lines
+            lines.append(rest)
+            return lines
+    import textwrap
+
+    return textwrap.wrap(line, width, break_on_hyphens=False) or [""]
 
 
 def render_console(result, console=None, stream=None) -> None:
