@@ -88,12 +88,17 @@ def carrier_transport(
         result[f"mu_{x}"] = mu
         result[f"cond_{x}"] = conduction[x]
         # the lattice limit: the highest of the material's published fits at N = 0
-        zero = np.zeros_like(impurities)
-        result[f"mu0_{x}"] = (
-            model.low_field(zero, state.T, mobility_model, main)
+        # a function of T alone: evaluated once per distinct temperature (a sweep over
+        # doping repeats each one)
+        first, back = _distinct_points([np.ravel(state.T)], np.size(state.T))
+        T_rows = np.ravel(state.T)[first]
+        zero = np.zeros_like(T_rows)
+        mu0 = (
+            model.low_field(zero, T_rows, mobility_model, main)
             if mobility_model
-            else np.max([fit(zero, state.T) for fit in model.mobility.values()], axis=0)
+            else np.max([fit(zero, T_rows) for fit in model.mobility.values()], axis=0)
         )
+        result[f"mu0_{x}"] = np.broadcast_to(mu0, T_rows.shape)[back].reshape(np.shape(state.T))
         result[f"D_{x}"] = d
         result[f"vsat_{x}"] = model.vsat(state.T) if model.vsat else np.full_like(mu, np.nan)
         result[f"beta_{x}"] = model.beta(state.T) if model.beta else np.full_like(mu, np.nan)
@@ -145,23 +150,35 @@ def _solve_at(state: State, T0: float) -> tuple[State, npt.NDArray[np.intp]]:
     from .equilibrium import solve
 
     shape = np.shape(state.T)
-    groups = (state.donors, state.acceptors)
-    columns = [np.broadcast_to(d, shape).ravel() for group in groups for d in group.values()]
-    if columns:
-        rows, back = np.unique(np.stack(columns, axis=1), axis=0, return_inverse=True)
-    else:  # undoped: one point stands for all
-        rows, back = np.zeros((1, 0)), np.zeros(int(np.prod(shape)), dtype=np.intp)
-    names = [list(group) for group in groups]
-    donors = {s: rows[:, i] for i, s in enumerate(names[0])}
-    acceptors = {s: rows[:, len(names[0]) + i] for i, s in enumerate(names[1])}
+    donors, acceptors = (
+        {s: np.broadcast_to(d, shape).ravel() for s, d in g.items()}
+        for g in (state.donors, state.acceptors)
+    )
+    first, back = _distinct_points([*donors.values(), *acceptors.values()], int(np.prod(shape)))
     solved = solve(
         state.material,
-        np.full(len(rows), T0),
-        donors,
-        acceptors,
+        np.full(len(first), T0),
+        {s: d[first] for s, d in donors.items()},
+        {s: d[first] for s, d in acceptors.items()},
         band_gap_narrowing=bool(np.any(state.narrowing > 0)),
     )
     return solved, back.reshape(shape)
+
+
+def _distinct_points(
+    columns: list[FloatArray], size: int
+) -> tuple[npt.NDArray[np.intp], npt.NDArray[np.intp]]:
+    """(one point of each distinct combination of the columns' values, the combination of
+    every point): a row's values are column[first], a point's row is back.  Each column is
+    numbered by its own distinct values and the numbers combined (a 1-D np.unique per
+    column, an order of magnitude faster than np.unique over rows); no column: one row."""
+    key = np.zeros(size, dtype=np.intp)
+    for column in columns:
+        values, code = np.unique(column, return_inverse=True)
+        # renumbered at each step, so the combined key stays below size * len(values)
+        key = np.unique(key * len(values) + code.ravel(), return_inverse=True)[1].ravel()
+    _, first, back = np.unique(key, return_index=True, return_inverse=True)
+    return first, back.ravel()
 
 
 # regime names, indexed by the codes of regime_code (precedence rises with the code)
