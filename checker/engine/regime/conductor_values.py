@@ -57,11 +57,24 @@ def _single_power(bands: tuple[Band, ...]) -> float:
     return float(next(iter(powers)))  # type: ignore[arg-type]
 
 
+def has_cross_section(calc: Calculation) -> bool:
+    """A bulk conductor's modes count only through its cross-section (A, or thickness x
+    width; conductor_values): without one they reach no value a rule reads."""
+    given = calc.structure
+    return "A" in given or ("thickness" in given and "width" in given)
+
+
 def band_values(
-    first: Calculation, T: FloatArray, eta: dict[str, Any], sheet: bool
+    first: Calculation,
+    T: FloatArray,
+    eta: dict[str, Any],
+    sheet: bool,
+    modes_at: npt.NDArray[np.bool_] | None = None,
 ) -> dict[str, FloatArray]:
     """kpower_x of every calculation, and modes_a_x (modes per m^2 of cross-section in
-    the energy window) of a bulk one at the solved ``eta`` (``eta_n``, ``eta_p``)."""
+    the energy window) of a bulk one at the solved ``eta`` (``eta_n``, ``eta_p``), at the
+    points ``modes_at`` (default: all; NaN elsewhere: the window quadrature is the bulk
+    solve's largest cost, and a point without a cross-section never uses its modes)."""
     out: dict[str, FloatArray] = {}
     # a sheet or wire solve says its dimensionality (2 or 1); a bulk solve has 3D bands
     dim = int(np.asarray(eta["dim"]).flat[0]) if sheet else int(first.structure.get("dim", 3))
@@ -78,7 +91,7 @@ def band_values(
         if sheet or dim != 3:
             continue
         at = np.broadcast_to(np.asarray(eta[f"eta_{x}"], dtype=float), T.shape)
-        ok = np.isfinite(at)
+        ok = np.isfinite(at) if modes_at is None else np.isfinite(at) & modes_at
         if ok.any():
             modes = np.asarray(energy_window.ballistic_conductance(bands, at[ok], T[ok])) / G0
             out[f"modes_a_{x}"][ok] = modes * _mode_mass_factor(bands, at[ok], T[ok], eta, x, ok)

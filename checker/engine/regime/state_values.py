@@ -132,7 +132,8 @@ def _solve_group(
     donors = {s: np.array([c.donors[s] for c in calcs]) for s in calcs[0].donors}
     acceptors = {s: np.array([c.acceptors[s] for c in calcs]) for s in calcs[0].acceptors}
     sheet = sheet_values.sheet_inputs(calcs) if sheet_values.is_sheet(calcs[0]) else None
-    put, skipped = solve_points(calcs[0], T, donors, acceptors, sheet)
+    modes_at = np.array([conductor_values.has_cross_section(c) for c in calcs])
+    put, skipped = solve_points(calcs[0], T, donors, acceptors, sheet, modes_at)
     for name, array in put.items():
         values[name][members] = np.broadcast_to(array, T.shape)
     return skipped
@@ -151,11 +152,14 @@ def solve_points(
     donors: Densities,
     acceptors: Densities,
     sheet: dict[str, FloatArray] | None = None,
+    modes_at: BoolArray | None = None,
 ) -> tuple[dict[str, ArrayIn], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
     A sheet (2D gas, graphene) takes the sheet solve, its Fermi level fixed by ``sheet``
-    (sheet_values.sheet_inputs; default: ``first``'s own stated numbers)."""
+    (sheet_values.sheet_inputs; default: ``first``'s own stated numbers).  ``modes_at``:
+    the points whose calculation gives a bulk conductor's cross-section (default: as
+    ``first`` does), the only ones whose bulk modes are computed."""
     if sheet_values.is_sheet(first):
         if sheet is None:
             sheet = sheet_values.sheet_inputs([first])
@@ -291,7 +295,9 @@ def solve_points(
         put[f"rH_lo_{x}"] = np.where(inside, low, np.nan)
         put[f"rH_hi_{x}"] = np.where(inside, high, np.nan)
     put.update(_band_shape_values(state, dim))
-    put.update(conductor_values.band_values(first, T, put, sheet=False))
+    if modes_at is None:
+        modes_at = np.full(T.shape, conductor_values.has_cross_section(first))
+    put.update(conductor_values.band_values(first, T, put, sheet=False, modes_at=modes_at))
     return put, skipped
 
 
