@@ -604,3 +604,16 @@ def test_rule_id_pattern_in_schema_matches_the_documented_form():
     assert re.search(pattern, "STAT01") and re.search(pattern, "MODEL12")
     assert not re.search(pattern, "S01") and not re.search(pattern, "STAT1")
     assert not re.search(pattern, "STATE001") and not re.search(pattern, "stat01")
+
+
+def test_compiled_forms_offer_exactly_the_rule_carriers():
+    # the per-carrier closures are built on first use; a rule answers for its own carriers
+    # (DEVELOPERS.md "Adding a rule": per carrier -> n and p, else one form) and no other
+    for rule in load_rules():
+        if rule.indicator is None:
+            continue
+        run = rule.indicator.run
+        assert tuple(run) == rule.carriers == (("n", "p") if rule.per == "carrier" else ("",))
+        assert all(callable(run[x]) and run[x] is run[x] for x in rule.carriers)
+        with pytest.raises(KeyError):
+            run["x"]

@@ -15,7 +15,7 @@ rule file raises :class:`RuleFileError` with one line per problem:
 from __future__ import annotations
 
 import re
-from collections.abc import Iterable
+from collections.abc import Iterable, Iterator, Mapping
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from pathlib import Path
@@ -234,7 +234,7 @@ class Compiled:
 
     text: str
     tree: Node
-    run: dict[str, Evaluator]  # carrier ("n", "p" or "") -> callable(values)
+    run: Mapping[str, Evaluator]  # carrier ("n", "p" or "") -> callable(values)
 
 
 # a message value: (the expression, its display unit), or (a word-valued quantity, "text")
@@ -333,6 +333,32 @@ class _Report:
 _carrier_names = lru_cache(maxsize=2)(carrier_names)
 
 
+class _PerCarrier(Mapping[str, Evaluator]):
+    """carrier -> the expression's numpy closure, renamed and compiled on first use: a run
+    evaluates a few rules' expressions for one carrier, and building all of them was a
+    fifth of loading the rules.  Both steps are total on a parsed, dimension-checked tree
+    (they raise nothing), so deferring them moves no problem out of load_rule."""
+
+    def __init__(self, tree: Node, carriers: tuple[str, ...]):
+        self._tree, self._carriers = tree, carriers
+        self._made: dict[str, Evaluator] = {}
+
+    def __getitem__(self, carrier: str) -> Evaluator:
+        made = self._made.get(carrier)
+        if made is None:
+            if carrier not in self._carriers:
+                raise KeyError(carrier)
+            tree = expression.rename(self._tree, _carrier_names(carrier)) if carrier else self._tree
+            made = self._made[carrier] = expression.to_numpy(tree)
+        return made
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self._carriers)
+
+    def __len__(self) -> int:
+        return len(self._carriers)
+
+
 def _read(path: Path) -> tuple[str, Any, _Report]:
     """(text, data, report) of a rule file; the report knows the line of every key and
     list entry (key path -> 1-based line) and holds any key given twice."""
@@ -421,11 +447,7 @@ class _Builder:
                 f"{expected[1]} is {dm.describe(expected[0])}",
                 text,
             )
-        run = {
-            x: expression.to_numpy(expression.rename(tree, _carrier_names(x)) if x else tree)
-            for x in self.carriers
-        }
-        return Compiled(text, tree, run)
+        return Compiled(text, tree, _PerCarrier(tree, self.carriers))
 
     def _broken(self, where: KeyPath, problem: str, text: str) -> Compiled:
         self.report.add(where, problem)
