@@ -132,8 +132,7 @@ def _solve_group(
     donors = {s: np.array([c.donors[s] for c in calcs]) for s in calcs[0].donors}
     acceptors = {s: np.array([c.acceptors[s] for c in calcs]) for s in calcs[0].acceptors}
     sheet = sheet_values.sheet_inputs(calcs) if sheet_values.is_sheet(calcs[0]) else None
-    modes_at = np.array([conductor_values.has_cross_section(c) for c in calcs])
-    put, skipped = solve_points(calcs[0], T, donors, acceptors, sheet, modes_at)
+    put, skipped = solve_points(calcs[0], T, donors, acceptors, sheet, calcs)
     for name, array in put.items():
         values[name][members] = np.broadcast_to(array, T.shape)
     return skipped
@@ -152,14 +151,20 @@ def solve_points(
     donors: Densities,
     acceptors: Densities,
     sheet: dict[str, FloatArray] | None = None,
-    modes_at: BoolArray | None = None,
+    calcs: Sequence[Calculation] | None = None,
 ) -> tuple[dict[str, ArrayIn], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
     A sheet (2D gas, graphene) takes the sheet solve, its Fermi level fixed by ``sheet``
-    (sheet_values.sheet_inputs; default: ``first``'s own stated numbers).  ``modes_at``:
-    the points whose calculation gives a bulk conductor's cross-section (default: as
-    ``first`` does), the only ones whose bulk modes are computed."""
+    (sheet_values.sheet_inputs; default: ``first``'s own stated numbers).  ``calcs``: the
+    calculation of each point (default: ``first`` for all); what only some calculations
+    read (bulk modes, the solve with narrowing) is computed at their points alone."""
+
+    def where(reads: Callable[[Calculation], bool]) -> BoolArray:
+        if calcs is None:
+            return np.full(T.shape, reads(first))
+        return np.array([reads(c) for c in calcs], dtype=bool)
+
     if sheet_values.is_sheet(first):
         if sheet is None:
             sheet = sheet_values.sheet_inputs([first])
@@ -285,7 +290,11 @@ def solve_points(
                 f"gdeg_{x}": np.full_like(T, main.degeneracy if main else np.nan),
             }
         )
-    put.update(_narrowed_densities(first, T, donors, acceptors, state, narrowing))
+    put.update(
+        _narrowed_densities(
+            first, T, donors, acceptors, state, narrowing, where(_reads_narrowed_densities)
+        )
+    )
     # electrons count as the majority on a tie (intrinsic material: n = p to rounding)
     majority_n = (state.n >= state.p * (1 - 1e-9)).astype(float)
     put["maj_n"], put["maj_p"] = majority_n, 1.0 - majority_n
@@ -295,8 +304,7 @@ def solve_points(
         put[f"rH_lo_{x}"] = np.where(inside, low, np.nan)
         put[f"rH_hi_{x}"] = np.where(inside, high, np.nan)
     put.update(_band_shape_values(state, dim))
-    if modes_at is None:
-        modes_at = np.full(T.shape, conductor_values.has_cross_section(first))
+    modes_at = where(conductor_values.has_cross_section)
     put.update(conductor_values.band_values(first, T, put, sheet=False, modes_at=modes_at))
     return put, skipped
 
@@ -344,16 +352,17 @@ def _narrowed_densities(
     acceptors: Densities,
     state: State,
     narrowing: FloatArray,
+    wanted: BoolArray,
 ) -> dict[str, FloatArray]:
     """dens_bgn_x: the carrier densities of a solve with the material's band-gap narrowing
-    where the calculation solves without it and the narrowing matters (the corrected
-    calculation takes the minority density from it where DOPE01 rejects the undoped
-    n_i); the solve's own densities elsewhere."""
+    where the calculation solves without it, the narrowing matters and the calculation
+    reads them (``wanted``: the corrected calculation takes the minority density from it
+    where DOPE01 rejects the undoped n_i); the solve's own densities elsewhere."""
     out = {"dens_bgn_n": state.n.copy(), "dens_bgn_p": state.p.copy()}
     if first.band_gap_narrowing or first.material.narrowing is None:
         return out
     with np.errstate(all="ignore"):
-        matters = np.exp(narrowing / state.kT) > _NARROWING_NEGLIGIBLE
+        matters = (np.exp(narrowing / state.kT) > _NARROWING_NEGLIGIBLE) & wanted
     if not matters.any():
         return out
     pick = np.flatnonzero(matters)
@@ -367,6 +376,12 @@ def _narrowed_densities(
     out["dens_bgn_n"][pick] = narrowed.n
     out["dens_bgn_p"][pick] = narrowed.p
     return out
+
+
+def _reads_narrowed_densities(calc: Calculation) -> bool:
+    """The rules read dens_bgn_x only beside a stated n_i or carrier density (DOPE01 and
+    VAL01 gate on them): elsewhere the second solve would reach no finding."""
+    return any(name in calc.stated for name in ("stated_ni", "stated_dens_n", "stated_dens_p"))
 
 
 def _ni_spread(material: Material, T: FloatArray, ni: FloatArray) -> tuple[FloatArray, FloatArray]:
