@@ -3,7 +3,13 @@ the message of a finding that covers a grid (from engine.regime.sweep's numbers)
 
 from __future__ import annotations
 
-from ..engine.regime.sweep import axis_label
+
+def axis_label(axis) -> str:
+    """engine.regime.sweep.axis_label, imported where a sweep is reported (a point check's
+    report does not load the sweep module)."""
+    from ..engine.regime.sweep import axis_label as label
+
+    return label(axis)
 
 
 def _trade(axis, value) -> tuple[str, str]:
