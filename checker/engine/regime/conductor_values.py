@@ -226,6 +226,8 @@ def _energy_resolved(
 ) -> FloatArray:
     """Sum over the carriers of the energy-resolved G per unit width or cross-section (a
     wire: G itself)."""
+    if not (np.isfinite(values["L"]) & (values["L"] > 0)).any():
+        return np.full(values["L"].shape, np.nan)  # no conductor length: no conductance
     sheet, wire = _solved_as(values, "modes_w"), _solved_as(values, "modes_1d")
     dims = np.where(wire, 1.0, np.where(sheet, 2.0, values["dim"]))
     parts = []

@@ -462,7 +462,7 @@ def fill_inputs(
     # the bulk solve's Einstein ratio (the sheet solve gives its own from the energy window)
     ratio_unknown = ~np.isfinite(values["einstein_n"])
     for x in Carrier:
-        bulk_ratio = _bulk_einstein_ratio(values[f"eta_{x}"], values["dim"])
+        bulk_ratio = _bulk_einstein_ratio(values[f"eta_{x}"], values["dim"], ratio_unknown)
         values[f"einstein_{x}"] = np.where(ratio_unknown, bulk_ratio, values[f"einstein_{x}"])
     for name in ("linear", "subbands"):
         values[name] = np.nan_to_num(values[name], nan=0.0)
@@ -544,11 +544,12 @@ def _symmetric_cones(values: Values) -> None:
     values["used_mu_p"] = np.where(linear & ~np.isfinite(mu_p), mu_n, mu_p)
 
 
-def _bulk_einstein_ratio(eta: FloatArray, dims: FloatArray) -> FloatArray:
-    """(D/mu)/(kT/q) of the parabolic bulk solve per point (F_j ratio of its dimensionality)."""
+def _bulk_einstein_ratio(eta: FloatArray, dims: FloatArray, at: BoolArray) -> FloatArray:
+    """(D/mu)/(kT/q) of the parabolic bulk solve at the points ``at`` (F_j ratio of each
+    point's dimensionality; NaN elsewhere)."""
     out = np.full_like(eta, np.nan)
-    for dim in distinct(dims[np.isfinite(dims)]):
-        pick = (dims == dim) & np.isfinite(eta)
+    for dim in distinct(dims[np.isfinite(dims) & at]):
+        pick = (dims == dim) & np.isfinite(eta) & at
         if pick.any():
             out[pick] = transport.einstein_ratio(eta[pick], int(dim))
     return out
