@@ -172,6 +172,9 @@ def _distinct_points(
     every point): a row's values are column[first], a point's row is back.  Each column is
     numbered by its own distinct values and the numbers combined (a 1-D np.unique per
     column, an order of magnitude faster than np.unique over rows); no column: one row."""
+    if len(columns) == 1:
+        _, first, back = np.unique(columns[0], return_index=True, return_inverse=True)
+        return first, back.ravel()
     key = np.zeros(size, dtype=np.intp)
     for column in columns:
         values, code = np.unique(column, return_inverse=True)

@@ -234,11 +234,7 @@ def solve_points(
         "dim": np.full_like(T, float(dim)),
         "regime": carriers.regime_label(state),
         # which models set the edge a point leaves (for the model-validity messages)
-        "T_models": np.where(
-            T < T_lo,
-            ", ".join(binding["T_low"]),
-            np.where(T > T_hi, ", ".join(binding["T_high"]), ""),
-        ).astype(object),
+        "T_models": _models_beyond(T, T_lo, T_hi, binding),
         "N_models": np.full(T.shape, ", ".join(binding["N_high"]), dtype=object),
     }
     for x, eta, dens, nband, own, other, ionized, fraction, species in (
@@ -307,6 +303,16 @@ def solve_points(
     modes_at = where(conductor_values.has_cross_section)
     put.update(conductor_values.band_values(first, T, put, sheet=False, modes_at=modes_at))
     return put, skipped
+
+
+def _models_beyond(
+    T: FloatArray, T_lo: float, T_hi: float, binding: dict[str, list[str]]
+) -> npt.NDArray[np.object_]:
+    """Per point, the models whose fitted temperature range the point leaves ("" inside)."""
+    names = np.full(T.shape, "", dtype=object)
+    names[T > T_hi] = ", ".join(binding["T_high"])
+    names[T < T_lo] = ", ".join(binding["T_low"])  # the low edge first where ranges cross
+    return names
 
 
 def _band_shape_values(state: State, dim: int) -> dict[str, FloatArray]:
