@@ -12,7 +12,7 @@ from __future__ import annotations
 import dataclasses
 import functools
 import itertools
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Callable, Collection, Mapping, Sequence
 from typing import TYPE_CHECKING, Any, TypeAlias
 
 import numpy as np
@@ -66,10 +66,13 @@ def _group_key(calc: Calculation) -> tuple[object, ...]:
     )
 
 
-def _unknown(count: int) -> Values:
-    """Every quantity over ``count`` points, unknown (NaN, or empty text) until solved."""
-    values: Values = {name: np.full(count, np.nan) for name in value_names()}
+def _unknown(count: int, solved: Collection[str] = ()) -> Values:
+    """Every quantity over ``count`` points, unknown (NaN, or empty text) until solved;
+    the names in ``solved`` (given their values next) are left out."""
+    values: Values = {name: np.full(count, np.nan) for name in value_names() - set(solved)}
     for q in QUANTITIES:
+        if q.name in solved:
+            continue
         if q.source is Source.CONSTANT:
             values[q.name] = np.full(count, q.value)
         elif q.source is Source.TEXT:
@@ -82,8 +85,8 @@ def solve_sweep(
 ) -> tuple[Values, str | None]:
     """Every quantity over the points of a sweep of ``calc`` (arrays of one length)."""
     count = len(T)
-    values = _unknown(count)
     put, skipped = solve_points(calc, T, donors, acceptors)
+    values = _unknown(count, put)
     for name, array in put.items():
         values[name] = (
             np.broadcast_to(array, (count,)).copy() if np.ndim(array) else np.full(count, array)
