@@ -87,12 +87,31 @@ def solve_sweep(
     count = len(T)
     put, skipped = solve_points(calc, T, donors, acceptors)
     values = _unknown(count, put)
+    # the solve's own arrays are kept as they are; a copy only where an array would be
+    # shared (a caller's input, or one array under two names) or is not yet one per point
+    shared = {_memory(a) for a in (T, *donors.values(), *acceptors.values())}
     for name, array in put.items():
-        values[name] = (
-            np.broadcast_to(array, (count,)).copy() if np.ndim(array) else np.full(count, array)
-        )
+        if not np.ndim(array):
+            values[name] = np.full(count, array)
+        elif (
+            isinstance(array, np.ndarray)
+            and array.shape == (count,)
+            and array.flags.writeable
+            and _memory(array) not in shared
+        ):
+            values[name] = array
+            shared.add(_memory(array))
+        else:
+            values[name] = np.broadcast_to(array, (count,)).copy()
     fill_inputs([calc], values, count=count)
     return values, skipped
+
+
+def _memory(array: object) -> int:
+    """Identity of the buffer an array views (views of one buffer share it)."""
+    while isinstance(array, np.ndarray) and array.base is not None:
+        array = array.base
+    return id(array)
 
 
 def solve_all(
