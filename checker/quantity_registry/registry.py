@@ -484,7 +484,8 @@ QUANTITIES = (
         "modes_a_x",
         "cm^-2",
         "conducting modes per cross-section of the carrier's bulk bands in the energy window, "
-        "<M> = ∫ M(E)(-df/dE) dE as 2q^2/h counts them (NaN in a sheet)",
+        "<M> = ∫ M(E)(-df/dE) dE as 2q^2/h counts them, where the calculation gives a "
+        "cross-section (NaN otherwise and in a sheet)",
     ),
     _q(
         "kpower_x",
