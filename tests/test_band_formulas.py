@@ -395,3 +395,30 @@ def test_calculation_schema_accepts_the_new_words():
     for words in (["parabolic-band"], ["zero-temperature", "single-carrier"]):
         assert not list(validator.iter_errors({**document, "assumes": words})), words
     assert list(validator.iter_errors({**document, "assumes": ["parabolic-bands"]}))
+
+
+def test_the_zero_temperature_formula_draws_one_verdict_at_the_formula_tolerance(tmp_path):
+    # graphene at n - p = 3e12 cm^-2 (E_F - E_D ~ 7.8 kT): E_F^2/(pi hbar^2 v_F^2) is the T = 0
+    # limit of N_eff F_1(eta) (Fang et al., Appl. Phys. Lett. 91, 092109 (2007)); mpmath puts
+    # n/n(T = 0) = F_1(eta)/(eta^2/2) at about 1.054 there, above GRAPH01's 5 % (the
+    # tolerance of every stated formula, FORM03): GRAPH01 fires and FORM03 does not repeat it
+    # (v_F = 1.0e6 m/s and g_s g_v = 4, as the material entry gives them)
+    text = (
+        "material: graphene\ntemperature: 300 K\nstated:\n  net_sheet_density: 3e12 cm-2\n"
+        "formulas:\n  - n_s = E_F^2/(pi*hbar^2*v_F^2)\n"
+    )
+    report = check(tmp_path, text)
+    rules = sorted(f.rule for f in report.findings)
+    assert rules == ["GRAPH01"]
+    (finding,) = report.findings
+    eta = mp.findroot(
+        lambda e: (
+            (2 / mp.pi)
+            * (sc.k * 300 / (sc.hbar * 1e6)) ** 2
+            * (-mp.polylog(2, -mp.exp(e)) + mp.polylog(2, -mp.exp(-e)))
+            - 3e16
+        ),
+        7.0,
+    )
+    expected = float(-mp.polylog(2, -mp.exp(eta)) / (eta**2 / 2))
+    assert finding.indicator_value == pytest.approx(expected, rel=1e-3)

@@ -65,7 +65,10 @@ DOCUMENTED = {
     ),
     "CARR01": (0.01, "1 % minority share (common practice (no source))"),
     "BAND01": (1.0, "one kT of Fermi-level error (common practice (no source))"),
-    "GRAPH01": (1.10, "10 % density error (common practice (no source)); Fang et al. 2007"),
+    "GRAPH01": (
+        1.05,
+        "5 % density error, as FORM03 (common practice (no source)); Fang et al. 2007",
+    ),
     "GRAPH02": (0.01, "1 % minority share, as CARR01 (common practice (no source))"),
     "GRAPH03": (1.05, "5 % error in D, as STAT02 (common practice (no source)); Landsberg 1981"),
     "CARR02": (0.10, "10 % (common practice (no source))"),
