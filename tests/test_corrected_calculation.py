@@ -256,3 +256,22 @@ def test_every_format_renders_sheets_and_zero_gap_sheets(tmp_path, monkeypatch):
         assert "graphene" in out.read_text(encoding="utf-8"), suffix
     text = (tmp_path / "report.md").read_text(encoding="utf-8")
     assert "E\\_F - E\\_D (Dirac point) =" in text and "n\\_s (sheet) =" in text
+
+
+def test_a_value_check_gives_way_to_the_shortcut_that_explains_the_number(tmp_path):
+    # GaAs:Si 5e18 at 300 K is degenerate (generalized Einstein relation, Landsberg, Eur. J.
+    # Phys. 2, 213 (1981)): D = mu kT/q for mu = 3000 cm^2/(V s) is 77.6 cm^2/s, CODATA kT/q.
+    # STAT02 names the shortcut; MEAS03 (a value check, like VAL..) would repeat the number
+    stated_d = 3000 * sc.k * 300.0 / sc.e
+    (report,) = _check(
+        tmp_path,
+        "material: GaAs\ntemperature: 300 K\ndoping: {donors: {Si: 5e18 cm-3}}\n"
+        "stated:\n  electron_mobility: 3000 cm^2/(V*s)\n"
+        f"  electron_diffusivity: {stated_d:.4f} cm^2/s\n",
+    )
+    on_d = [
+        f.rule
+        for f in report.findings
+        if any(c.key == "electron_diffusivity" for c in f.corrections)
+    ]
+    assert "STAT02" in on_d and "MEAS03" not in on_d

@@ -92,26 +92,27 @@ def check_points(
     return reports, errors
 
 
-# rules that compare a stated number with the solve when no shortcut explains it
-VALUE_RULES = "VAL"
+# the assumption of the value checks: rules that compare a stated number with the solve
+# when no shortcut explains it (VAL01-06, MEAS01-03, LAND01/02), whatever their id
+VALUE_CHECK = "stated-measurement"
 
 
 def one_finding_per_stated_number(findings: list[Finding]) -> list[Finding]:
-    """Drop a value check (VAL..) on a stated number that a shortcut rule already
-    corrects: the shortcut names the cause, the value check would only repeat the number.
-    The stated number is the quantity a correction is of (two numbers on one line, as in
-    a flow mapping, stay apart); a correction without one falls back to its line."""
+    """Drop a value check on a stated number that a shortcut rule already corrects: the
+    shortcut names the cause, the value check would only repeat the number.  The stated
+    number is the quantity a correction is of (two numbers on one line, as in a flow
+    mapping, stay apart); a correction without one falls back to its line."""
 
     def stated(f: Finding) -> set[tuple[str, str | int]]:
         return {(f.file, c.key if c.key else f.line) for c in f.corrections if c.from_author}
 
     explained: set[tuple[str, str | int]] = set().union(
-        *(stated(f) for f in findings if not f.rule.startswith(VALUE_RULES))
+        *(stated(f) for f in findings if f.assumption != VALUE_CHECK)
     )
     kept = [
         f
         for f in findings
-        if not (f.rule.startswith(VALUE_RULES) and stated(f) and stated(f) <= explained)
+        if not (f.assumption == VALUE_CHECK and stated(f) and stated(f) <= explained)
     ]
     return _one_verdict_per_correction(kept)
 
