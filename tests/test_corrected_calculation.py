@@ -260,15 +260,14 @@ def test_every_format_renders_sheets_and_zero_gap_sheets(tmp_path, monkeypatch):
 
 def test_a_value_check_gives_way_to_the_shortcut_that_explains_the_number(tmp_path):
     # GaN:Si 5e18 at 300 K (a parabolic band) is degenerate (generalized Einstein relation,
-    # Landsberg, Eur. J. Phys. 2, 213 (1981)): D = mu kT/q with mu = 90 cm^2/(V s), near the
-    # doping model's value, is 2.33 cm^2/s (CODATA kT/q).
-    # STAT02 names the shortcut; MEAS03 (a value check, like VAL..) would repeat the number
-    stated_d = 90 * sc.k * 300.0 / sc.e
+    # Landsberg, Eur. J. Phys. 2, 213 (1981)): a memo's D, stated beside its formula
+    # D_n = mu_n*k*T/q, is corrected by STAT02 (the shortcut, named at the formula);
+    # MEAS03, a value check like VAL.., would only repeat the same stated number
     (report,) = _check(
         tmp_path,
         "material: GaN\ntemperature: 300 K\ndoping: {donors: {Si: 5e18 cm-3}}\n"
-        "stated:\n  electron_mobility: 90 cm^2/(V*s)\n"
-        f"  electron_diffusivity: {stated_d:.4f} cm^2/s\n",
+        "stated:\n  electron_mobility: 90 cm^2/(V*s)\n  electron_diffusivity: 1.5 cm^2/s\n"
+        "formulas:\n  - D_n = mu_n*k*T/q\n",
     )
     on_d = [
         f.rule
