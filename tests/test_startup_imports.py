@@ -14,13 +14,16 @@ try:
     main(["check", sys.argv[1], "--exit-zero"])
 except SystemExit:
     pass
-unused = ("numpy.ma", "sympy", "matplotlib", "checker.engine.regime.sweep")
+unused = (
+    "numpy.ma", "sympy", "matplotlib", "checker.engine.regime.sweep", "concurrent.futures"
+)
 print("loaded:" + ",".join(m for m in unused if m in sys.modules))
 """
 
 
 def test_a_console_check_imports_neither_numpy_ma_nor_sympy_nor_matplotlib():
-    # numpy.ma came in through np.unique without a return_* flag (numpy 2.4); sympy and
+    # numpy.ma came in through np.unique without a return_* flag (numpy 2.4); the thread
+    # pools (concurrent.futures) only serve large arrays; sympy and
     # matplotlib are for formulas' symbolic proofs and plots only; the sweep module for a
     # calculation with swept axes only (the example has none)
     example = ROOT / "examples" / "lc9_counterdoped_well.yaml"

@@ -37,20 +37,17 @@ import os
 from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import cached_property
-from typing import TYPE_CHECKING, TypeAlias
+from typing import TypeAlias
 
 import numpy as np
 
 from ..errors import ConvergenceError, InputError
-from . import energy_window
+from . import _threads, energy_window
 from .arrays import ArrayIn, BoolArray, FloatArray, IndexArray
 from .bands import KaneBand
 from .constants import BOLTZMANN
 from .fermi import log_fermi_dirac, log_fermi_dirac_half_pair
 from .materials import Dopant, Material
-
-if TYPE_CHECKING:
-    from concurrent.futures import ThreadPoolExecutor
 
 MAX_ITERATIONS = 200
 TOLERANCE = 1e-12
@@ -631,19 +628,7 @@ CHUNK = 1 << 15  # points per block: the solver's temporaries then stay in cache
 MIN_BLOCK = 1 << 12  # smaller blocks cost more in per-call overhead than a thread gains
 
 
-_POOLS: dict[int, ThreadPoolExecutor] = {}
-# a forked child inherits the pool without its threads: work sent to it would never run
-os.register_at_fork(after_in_child=_POOLS.clear)
-
-
-def _pool() -> ThreadPoolExecutor:
-    """One pool of WORKERS threads, started on first need and kept: a sweep solves many
-    chunks, and starting threads per solve cost more than small blocks gain."""
-    if WORKERS not in _POOLS:
-        from concurrent.futures import ThreadPoolExecutor  # only large solves need it
-
-        _POOLS[WORKERS] = ThreadPoolExecutor(max_workers=WORKERS)
-    return _POOLS[WORKERS]
+_POOLS = _threads.POOLS  # one pool per worker count, shared with the F_j kernels
 
 
 def solve(
@@ -712,7 +697,7 @@ def solve(
     starts = range(0, temps.size, size)
     if len(starts) > 1 and WORKERS > 1:
         # numpy releases the GIL inside ufuncs, so blocks overlap on both cores
-        iterations = max(_pool().map(block, starts))
+        iterations = max(_threads.pool(WORKERS).map(block, starts))
     else:
         iterations = max(block(i) for i in starts)
     state = State(

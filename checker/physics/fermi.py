@@ -34,9 +34,7 @@ T. Fukushima, Appl. Math. Comput. 259, 708 (2015) (piecewise approximation).
 from __future__ import annotations
 
 import os
-import threading
 from collections.abc import Callable, Sequence
-from concurrent.futures import ThreadPoolExecutor
 from fractions import Fraction
 from functools import cache
 from typing import Any
@@ -45,16 +43,13 @@ import numpy as np
 import numpy.typing as npt
 
 from ..errors import ConvergenceError, InputError
-from . import _fd_tables
+from . import _fd_tables, _threads
 from .arrays import ArrayIn, FloatArray, FloatOrArray
 
 SUPPORTED_ORDERS = tuple(Fraction(k, 2) for k in range(-3, 8))
 _CHUNK = 1 << 16  # elements per block: keeps the temporaries in cache
 _TASK = 1 << 17  # elements per thread task (two blocks)
 WORKERS = min(2, os.cpu_count() or 1)  # threads for large arrays (1: no threads)
-_POOLS: dict[int, ThreadPoolExecutor] = {}
-if hasattr(os, "register_at_fork"):  # a forked child has none of the parent's threads
-    os.register_at_fork(after_in_child=_POOLS.clear)
 _PI2 = np.pi**2
 
 
@@ -167,13 +162,6 @@ class _Piecewise:
         return _grouped(self, eta, [(self, log)], threads)[0]
 
 
-def _pool() -> ThreadPoolExecutor:
-    """One pool of WORKERS threads, started on first need and kept."""
-    if WORKERS not in _POOLS:
-        _POOLS[WORKERS] = ThreadPoolExecutor(max_workers=WORKERS)
-    return _POOLS[WORKERS]
-
-
 def _blockwise(size: int, work: Callable[[slice], None], threads: bool) -> None:
     """Call ``work`` on cache-sized slices covering range(size).
 
@@ -187,13 +175,8 @@ def _blockwise(size: int, work: Callable[[slice], None], threads: bool) -> None:
             work(slice(start, min(start + _CHUNK, first + _TASK, size)))
 
     starts = range(0, size, _TASK)
-    if (
-        threads
-        and len(starts) > 1
-        and WORKERS > 1
-        and threading.current_thread() is threading.main_thread()
-    ):
-        list(_pool().map(task, starts))
+    if threads and len(starts) > 1 and WORKERS > 1 and _threads.on_main_thread():
+        list(_threads.pool(WORKERS).map(task, starts))
     else:
         for first in starts:
             task(first)

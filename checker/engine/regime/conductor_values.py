@@ -44,7 +44,6 @@ from ...vocabulary_words import Carrier
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
 
-_BAND = {"n": "electron", "p": "hole"}
 G0 = energy_window.LANDAUER_QUANTUM  # 2q^2/h in S (exact, SI 2019)
 
 
@@ -83,7 +82,7 @@ def band_values(
         out[f"modes_a_{x}"] = np.full_like(T, np.nan)
         try:
             bands = first.material.bands(
-                _BAND[x], dim, (first.subband_energies or None) if sheet else None
+                x.singular, dim, (first.subband_energies or None) if sheet else None
             )
         except RegimecheckError:
             continue  # no band described for this carrier (or dimension)

@@ -50,7 +50,6 @@ SHEET_INPUTS = (
     "stated_nl_p",
 )
 WIRE_INPUTS = ("stated_nl_n", "stated_nl_p")
-_BAND = {"n": "electron", "p": "hole"}
 # per dimensionality: the stem of the density names, its display unit and factor from SI
 _DENSITY = {2: ("ns", "cm-2", 1e-4), 1: ("nl", "cm-1", 1e-2)}
 _MODES = {2: "modes_w", 1: "modes_1d"}  # modes per width (2D), a count (1D)
@@ -129,7 +128,7 @@ def solve_sheet_points(
     stem, unit, _ = _DENSITY[dim]
     for x in Carrier:
         try:
-            bands = first.material.bands(_BAND[x], dim, first.subband_energies or None)
+            bands = first.material.bands(x.singular, dim, first.subband_energies or None)
         except MissingParameterError:
             continue  # a gas of one carrier: the other band is not described
         density = given[f"stated_{stem}_{x}"]
@@ -140,7 +139,7 @@ def solve_sheet_points(
         lowest = min(bands, key=lambda b: b.edge)
         count = len(first.subband_energies) or 1
         notes.append(
-            f"{dim}D statistics of the {_BAND[x]}s ({count} subband{'s' * (count > 1)}, "
+            f"{dim}D statistics of the {x.singular}s ({count} subband{'s' * (count > 1)}, "
             f"N_{dim}D = {_density_text(_edge_density(lowest, T), dim)} {unit})"
         )
     majority_n = np.nan_to_num(put.get(f"{stem}_n", 0.0)) >= np.nan_to_num(

@@ -494,13 +494,14 @@ def fill_inputs(
         values[f"einstein_{x}"] = np.where(ratio_unknown, bulk_ratio, values[f"einstein_{x}"])
     for name in ("linear", "subbands"):
         values[name] = np.nan_to_num(values[name], nan=0.0)
-    values["hall_r"] = column(lambda c: c.hall_exponent)  # lambda(E) of the Landauer value
+    # tau ∝ E^r: the Hall factor's and the Landauer value's lambda(E)
+    values["hall_r"] = column(lambda c: c.hall_exponent)
     derive_corrected(values, {})
     values["sigma_model"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["mu_n"]
         + values["dens_p"] * values["cond_p"] * values["mu_p"]
     )
-    _hall(values, column(lambda c: c.hall_exponent))
+    _hall(values, values["hall_r"])
 
 
 def _typical_mobility(calc: Calculation, field: str, carrier: Carrier | None = None) -> float:
@@ -585,7 +586,6 @@ def _bulk_einstein_ratio(eta: FloatArray, dims: FloatArray, at: BoolArray) -> Fl
 
 def _hall(values: Values, exponents: FloatArray) -> None:
     """Hall factors for each calculation's scattering exponent, and the Hall density."""
-    values["hall_r"] = exponents
     dims = values["dim"]
     for x in ("n", "p"):
         factor = np.full(len(exponents), np.nan)

@@ -297,11 +297,9 @@ def _failing_runs(
     ]
 
 
-def boundary_steps(
-    calc: Calculation, mask: BoolArray, interpolate: bool = True
-) -> Generator[Request, FloatArray, Boundary]:
+def boundary_steps(calc: Calculation, mask: BoolArray) -> Generator[Request, FloatArray, Boundary]:
     """(boundary axis, row axis or None, [BoundaryRow]): where on the grid the rule
-    fails, as steps: with ``interpolate``, each false-position step of the edges between
+    fails, as steps: each false-position step of the edges between
     grid points yields (flat indices, override) and is sent the indicator's excess there,
     so that the boundaries of several rules share one solve per step
     (:func:`boundaries_together`)."""
@@ -335,13 +333,12 @@ def boundary_steps(
     middles = [(first + last) // 2 for first, last in groups]
     # row -> {(passing, failing): edge value or None}
     crossings: dict[int, dict[tuple[int, int], float | None]] = {}
-    if interpolate:
-        edges = [(r, pair) for r in middles for pair in _edges(grid_mask[r])]
-        found = yield from _interpolate(
-            axis, [pair for _, pair in edges], [flat(r, pair[1]) for r, pair in edges]
-        )
-        for (r, pair), value in zip(edges, found):
-            crossings.setdefault(r, {})[pair] = value
+    edges = [(r, pair) for r in middles for pair in _edges(grid_mask[r])]
+    found = yield from _interpolate(
+        axis, [pair for _, pair in edges], [flat(r, pair[1]) for r, pair in edges]
+    )
+    for (r, pair), value in zip(edges, found):
+        crossings.setdefault(r, {})[pair] = value
     described = []
     for (first, last), middle in zip(groups, middles):
         at = (
