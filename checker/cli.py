@@ -13,6 +13,7 @@ import os
 import sys
 from pathlib import Path
 
+from .close_words import close_matches
 from .errors import RegimecheckError
 from .vocabulary_words import SEVERITIES
 
@@ -447,9 +448,7 @@ def _cmd_explain(args) -> int:
     rules = {rule.id: rule for rule in load_rules()}
     rule = rules.get(args.rule.strip().upper())
     if rule is None:
-        import difflib
-
-        close = difflib.get_close_matches(args.rule.upper(), list(rules), n=1)
+        close = close_matches(args.rule.upper(), list(rules), n=1)
         hint = f"did you mean {close[0]}? " if close else ""
         raise RegimecheckError(f"no rule {args.rule!r}; {hint}'regimecheck rules' lists them")
     print(explain_text(rule))

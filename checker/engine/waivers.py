@@ -2,10 +2,11 @@
 
 from __future__ import annotations
 
-import difflib
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
+
+from ..close_words import close_matches
 
 if TYPE_CHECKING:
     from ..inputs.calculation_file import Calculation
@@ -56,7 +57,7 @@ def apply_waivers(
                         f"the rule exists but is not run {not_run}"
                     )
                     continue
-                close = difflib.get_close_matches(rule_id, known, n=1)
+                close = close_matches(rule_id, known, n=1)
                 hint = (
                     f"did you mean {close[0]}?" if close else "run 'regimecheck rules' for the ids"
                 )

@@ -25,7 +25,6 @@ string and 1.0e17 as a float).  Aliases and duplicate keys are refused.
 
 from __future__ import annotations
 
-import difflib
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -33,6 +32,7 @@ from typing import TypeAlias
 
 import yaml
 
+from ..close_words import close_matches
 from ..errors import InputError, RegimecheckError
 from ..physics.arrays import FloatArray
 from ..physics.constants import EV
@@ -176,7 +176,7 @@ def _unknown_keys(mapping: dict, allowed, where, what: str, section=()):
     problems = Problems()
     for key in mapping:
         if key not in allowed:
-            close = difflib.get_close_matches(key, allowed, n=1)
+            close = close_matches(key, allowed, n=1)
             hint = f"; did you mean {close[0]!r}?" if close else f"; allowed: {', '.join(allowed)}"
             problems.add(InputError(f"{where(*section, key)}: unknown {what} key {key!r}{hint}"))
     problems.raise_any()
@@ -211,10 +211,7 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     problems = Problems()
     problems.run(_unknown_keys, data, TOP_KEYS, where, "calculation")
     misspelt = {
-        close
-        for key in data
-        if key not in TOP_KEYS
-        for close in difflib.get_close_matches(key, TOP_KEYS, n=1)
+        close for key in data if key not in TOP_KEYS for close in close_matches(key, TOP_KEYS, n=1)
     }
     for key in ("material", "temperature"):
         if key not in data and key not in misspelt:  # else 'did you mean' says it
@@ -592,7 +589,7 @@ def _assumptions(entries, where) -> dict:
         text = normal_word(word)
         text = ASSUMPTION_SPELLINGS.get(text, text)
         if text not in ASSUMPTIONS:
-            close = difflib.get_close_matches(text, ASSUMPTIONS, n=1)
+            close = close_matches(text, ASSUMPTIONS, n=1)
             hint = f"did you mean {close[0]!r}?" if close else f"known: {', '.join(ASSUMPTIONS)}"
             raise InputError(f"{here}: unknown assumption {word!r}; {hint}")
         out[text] = where.line("assumes", i)

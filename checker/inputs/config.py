@@ -36,13 +36,13 @@ patterns match a file's suffix in any case (``*.yaml`` reads ``NOTES.YAML``).
 
 from __future__ import annotations
 
-import difflib
 import fnmatch
 import math
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from ..close_words import close_matches
 from ..errors import InputError
 from ..vocabulary_words import SEVERITIES, TOLERANCE_NAMES
 from .table import IGNORE as IGNORED_COLUMNS
@@ -175,12 +175,12 @@ def find_config(start: Path | None = None) -> Path | None:
 
 def load_config(path=None, search_from=None) -> Config:
     """The configuration of ``path`` (a TOML file), else the one found upward, else defaults."""
-    import tomllib
-
     if path is None:
         path = find_config(search_from)
         if path is None:
             return Config()
+    import tomllib  # only where there is a configuration to read
+
     path = Path(path)
     try:
         raw = path.read_bytes()
@@ -223,7 +223,7 @@ def _parse(table: dict, config: Config) -> Config:
 
     for key in table:
         if key not in KEYS:
-            close = difflib.get_close_matches(key, KEYS, n=1)
+            close = close_matches(key, KEYS, n=1)
             hint = f"; did you mean {close[0]!r}?" if close else f"; keys are {', '.join(KEYS)}"
             fail(f"unknown key{hint}", key)
     if "fail-level" in table:
@@ -352,7 +352,7 @@ def check_rule_ids(config: Config, known) -> None:
     named += [("waive", w.rule, False) for w in config.waive]
     for key, name, prefix_ok in named:
         if not exists(name, prefix_ok):
-            close = difflib.get_close_matches(name, ids, n=1)
+            close = close_matches(name, ids, n=1)
             hint = f"; did you mean {close[0]}?" if close else "; 'regimecheck rules' lists them"
             here = config.where(key, name) if key != "waive" else _waiver_line(config, name)
             raise InputError(f"{here}: [tool.regimecheck] {key}: unknown rule {name!r}{hint}")

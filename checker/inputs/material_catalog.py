@@ -18,6 +18,7 @@ from typing import Any, Protocol
 
 import numpy as np
 
+from ..close_words import close_matches
 from ..errors import InputError, UnknownMaterialError
 from ..physics import materials as m
 from ..physics.band_shapes import BandShape
@@ -346,15 +347,13 @@ class Block:
 
 
 def _unknown_key(key, value, known, place, path) -> InputError:
-    import difflib
-
     if value in (None, "") and " " in str(key):
         return InputError(
             f"{place(*path)}: {key!r} is not a key; a comma in unquoted text "
             "inside {...} starts a new key: quote the text, e.g. "
             'source: "Author, Journal 1 (2000)"'
         )
-    close = difflib.get_close_matches(str(key), list(known), n=1)
+    close = close_matches(str(key), list(known), n=1)
     hint = f"did you mean {close[0]!r}?" if close else f"known: {', '.join(known)}"
     return InputError(f"{place(*path, key)}: unknown material field {key!r}; {hint}")
 
@@ -1156,10 +1155,8 @@ def _builtin_file(name: str):
     key = _lookup_key(name)
     found = _index().get(key) or _long_name_index().get(key)
     if found is None:
-        import difflib
-
         known = list(_index()) + list(_long_name_index())
-        close = difflib.get_close_matches(key, known, n=3, cutoff=0.5)
+        close = close_matches(key, known, n=3, cutoff=0.5)
         hint = f"; did you mean {', '.join(close)}?" if close else ""
         raise UnknownMaterialError(
             f"unknown material {name!r}{hint or '.'} Built in: {', '.join(builtin_names())}; "

@@ -32,12 +32,11 @@ run is reported, about 5 kB a row).
 
 from __future__ import annotations
 
-import csv
-import difflib
 import itertools
 import os
 import re
 
+from ..close_words import close_matches
 from ..errors import InputError, RegimecheckError
 from .calculation_file import Calculation, FileResult, _hall_exponent
 from .material_catalog import resolve_material
@@ -134,7 +133,7 @@ def _known_header(raw: str, mapped: dict, ignored: set):
 
 
 def _unknown_column(raw: str, position: int, where: str) -> str:
-    close = difflib.get_close_matches(
+    close = close_matches(
         _normal(split_header(raw)[0]), list(KEYS) + list(ALIASES), n=3, cutoff=0.6
     )
     hint = (
@@ -157,7 +156,7 @@ def _lacking(missing: list, header: list, where: str) -> str:
     guesses = [
         f"{names[close[0]]!r} for {key}"
         for key in missing
-        for close in [difflib.get_close_matches(key, list(names), n=1, cutoff=0.6)]
+        for close in [close_matches(key, list(names), n=1, cutoff=0.6)]
         if close
     ]
     hint = f"; is {', '.join(guesses)} misspelt?" if guesses else ""
@@ -262,6 +261,8 @@ def read_table(path, mapping=None) -> FileResult:
 
 
 def _read_rows(path, lines: _CountedLines, mapping) -> FileResult:
+    import csv  # here: a run without tables does not pay for the module
+
     line = 1  # where a malformed header is reported
     try:
         first = lines.header()

@@ -6,8 +6,6 @@ the JSON are in the unit named beside them (trade units, not SI).
 
 from __future__ import annotations
 
-import json
-
 from ..quantity_registry.display_units import DISPLAY_UNITS
 from ..quantity_registry.number_text import display
 from ..quantity_registry.summary_fields import CHECK_ROWS, shown_rows
@@ -409,6 +407,8 @@ def corrected_json(report) -> list:
 
 
 def render_json(result, exit_code: int) -> str:
+    import json  # only the JSON report needs it
+
     calculations = []
     for report in result.reports:
         calc = report.calc

@@ -35,6 +35,7 @@ from typing import Any
 
 import numpy as np
 
+from ...close_words import close_matches
 from ...errors import InputError
 from ...physics import _relations
 from ...physics.arrays import ArrayIn, FloatArray
@@ -179,9 +180,7 @@ def _walk(
         return num(value)
     if isinstance(node, ast.Name):
         if names is not None and node.id not in names:
-            import difflib
-
-            close = difflib.get_close_matches(node.id, sorted(names), n=3)
+            close = close_matches(node.id, sorted(names), n=3)
             hint = f"; did you mean {', '.join(close)}?" if close else ""
             raise InputError(f"{place}unknown name {node.id!r} in {text!r}{hint}")
         return name_node(node.id)

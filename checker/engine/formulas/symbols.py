@@ -19,12 +19,12 @@ from.  A Fermi–Dirac order may be written as a fraction: ``F(1/2, eta)``.
 
 from __future__ import annotations
 
-import difflib
 import re
 from collections.abc import Iterable
 from dataclasses import dataclass
 from functools import cache
 
+from ...close_words import close_matches
 from ...errors import InputError
 from ..expressions import dimensions as dm
 from ..expressions.parser import folded, names_in, parse, to_text
@@ -268,7 +268,7 @@ def canonical(tree: Node, majority: str, where: str) -> Node:
         spelled = "lambda" if node.value == _LAMBDA_NAME else node.value
         found = SPELLINGS.get(spelled)
         if found is None:
-            close = difflib.get_close_matches(spelled, list(SPELLINGS), n=3, cutoff=0.5)
+            close = close_matches(spelled, list(SPELLINGS), n=3, cutoff=0.5)
             hint = f"; closest known: {', '.join(close)}" if close else ""
             raise InputError(
                 f"{where}: unknown symbol {spelled!r} in the formula{hint} "

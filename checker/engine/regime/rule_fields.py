@@ -11,11 +11,12 @@ name) the loader checks after the table.
 
 from __future__ import annotations
 
-import difflib
 import re
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 from typing import Any, Protocol, TypeAlias, TypeGuard
+
+from ...close_words import close_matches
 
 NOT_BLANK = r"\S"
 
@@ -89,7 +90,7 @@ class Choice:
 
     def problems(self, value: object, path: KeyPath) -> Problems:
         if not isinstance(value, str) or value not in self.words:
-            close = difflib.get_close_matches(str(value), self.words, n=1)
+            close = close_matches(str(value), self.words, n=1)
             hint = f"; did you mean {close[0]!r}?" if close else ""
             known = f"a {self.what}" if self.what else f"one of {', '.join(self.words)}"
             yield path, f"{_shown(value)} is not {known}{hint}"
@@ -199,7 +200,7 @@ class Block:
             return
         for key in value:
             if key not in self.fields:
-                close = difflib.get_close_matches(str(key), list(self.fields), n=1)
+                close = close_matches(str(key), list(self.fields), n=1)
                 hint = f" (did you mean {close[0]!r}?)" if close else ""
                 yield (
                     path + (key,),
