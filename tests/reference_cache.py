@@ -27,6 +27,8 @@ import numpy as np
 from conftest import fd_reference
 from reference import K_B, kane_alpha, mp_electron_half, reference_solve
 
+from checker.records import FrozenRecord, record_fields
+
 PATH = Path(__file__).resolve().parent / "data" / "reference_values.json"
 REGENERATE = (
     "run `python tools/make_reference_values.py` and commit tests/data/reference_values.json"
@@ -91,11 +93,14 @@ def case_key(name, T, donors, acceptors) -> str:
 
 
 def _numbers(obj) -> list:
-    """The numbers of a model object (dataclass fields, recursively; text left out)."""
+    """The numbers of a model object (dataclass or record fields, recursively; text left
+    out)."""
     if obj is None:
         return []
     if dataclasses.is_dataclass(obj):
         return [x for f in dataclasses.fields(obj) for x in _numbers(getattr(obj, f.name))]
+    if isinstance(obj, FrozenRecord):
+        return [x for _, value in record_fields(obj) for x in _numbers(value)]
     if isinstance(obj, (tuple, list)):
         return [x for item in obj for x in _numbers(item)]
     if isinstance(obj, (int, float)) and not isinstance(obj, bool):

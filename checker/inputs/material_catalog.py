@@ -23,6 +23,7 @@ from ..errors import InputError, UnknownMaterialError
 from ..physics import materials as m
 from ..physics.band_shapes import BandShape
 from ..physics.constants import EV, ROOM_TEMPERATURE
+from ..records import FrozenRecord
 from ..resources import materials_dir
 from .quantities import (
     NUMBER,
@@ -59,8 +60,7 @@ def _shown(value) -> str:
     return "nothing" if value is None else repr(value)
 
 
-@dataclass(frozen=True)
-class Text:
+class Text(FrozenRecord):
     required: bool = False
 
     def read(self, value, place, path):
@@ -72,8 +72,7 @@ class Text:
         return {"type": ["string", "number", "boolean"]}
 
 
-@dataclass(frozen=True)
-class Choice:
+class Choice(FrozenRecord):
     words: tuple
     required: bool = True
 
@@ -88,8 +87,7 @@ class Choice:
         return {"enum": list(self.words)}
 
 
-@dataclass(frozen=True)
-class Quantity:
+class Quantity(FrozenRecord):
     """A number with a unit of ``dimension`` (a plain number if dimensionless), bounded:
     ``least`` (inclusive), ``above`` (exclusive), ``most`` (inclusive), as trade text."""
 
@@ -152,8 +150,7 @@ _PER_ENERGY = re.compile(
 )
 
 
-@dataclass(frozen=True)
-class PerEnergy:
+class PerEnergy(FrozenRecord):
     """A number per energy with its unit (``0.61 1/eV``), read into J^-1, 0 <= x <= most."""
 
     most: float  # in 1/eV
@@ -179,8 +176,7 @@ class PerEnergy:
         }
 
 
-@dataclass(frozen=True)
-class WholeNumber:
+class WholeNumber(FrozenRecord):
     """A whole number from ``least`` to ``most`` (a count, a dimensionality)."""
 
     least: int
@@ -205,8 +201,7 @@ class WholeNumber:
         return {"type": "integer", "minimum": self.least, "maximum": self.most}
 
 
-@dataclass(frozen=True)
-class Range:
+class Range(FrozenRecord):
     """[low, high] of a dimension, both >= 0 (the fitted range of a model)."""
 
     dimension: str
@@ -236,8 +231,7 @@ class Range:
         }
 
 
-@dataclass(frozen=True)
-class TextList:
+class TextList(FrozenRecord):
     required: bool = False
 
     def read(self, value, place, path):
@@ -249,8 +243,7 @@ class TextList:
         return {"type": "array", "items": Text().schema()}
 
 
-@dataclass(frozen=True)
-class NumberList:
+class NumberList(FrozenRecord):
     """A list of plain numbers (the coefficients of a published fit, in its own units)."""
 
     least_items: int = 1
@@ -275,8 +268,7 @@ class NumberList:
         }
 
 
-@dataclass(frozen=True)
-class BlockList:
+class BlockList(FrozenRecord):
     """A list of blocks of one form (e.g. the bound levels of a dopant)."""
 
     item: Block
@@ -296,8 +288,7 @@ def _must_be_mapping(value, place, path, form: str):
         raise InputError(f"{place(*path)}: must be a mapping {form}, got {_shown(value)}")
 
 
-@dataclass(frozen=True)
-class Block:
+class Block(FrozenRecord):
     """A mapping with fixed keys; unknown keys and missing required keys are errors."""
 
     fields: dict
@@ -358,8 +349,7 @@ def _unknown_key(key, value, known, place, path) -> InputError:
     return InputError(f"{place(*path, key)}: unknown material field {key!r}; {hint}")
 
 
-@dataclass(frozen=True)
-class Named:
+class Named(FrozenRecord):
     """A mapping of names the author chooses (dopant species, model names) to ``item``."""
 
     item: FieldKind
@@ -385,8 +375,7 @@ class Named:
         }
 
 
-@dataclass(frozen=True)
-class Variants:
+class Variants(FrozenRecord):
     """A parameter block whose keys depend on its ``key`` (``model``; a key of ``variants``)."""
 
     variants: dict
@@ -436,8 +425,7 @@ class Variants:
         return options[0] if len(options) == 1 else {"oneOf": options}
 
 
-@dataclass(frozen=True)
-class NumberOrBlock:
+class NumberOrBlock(FrozenRecord):
     """A plain number, or a block {value: number, source, note}."""
 
     number: Quantity

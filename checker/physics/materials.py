@@ -11,12 +11,12 @@ fields V/m, temperatures K, masses in units of the free electron mass m0.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
 from typing import Any, Protocol, TypeAlias
 
 import numpy as np
 
 from ..errors import InputError, MissingParameterError, UnknownDopantError
+from ..records import FrozenRecord, field
 from .arrays import ArrayIn, FloatArray, FloatOrArray
 from .band_shapes import BandShape, bands_for, mass_from_effective_density
 from .bands import Band
@@ -34,8 +34,7 @@ class MobilityModel(Protocol):
     def provenance(self) -> Provenance: ...  # where its parameters come from
 
 
-@dataclass(frozen=True)
-class Provenance:
+class Provenance(FrozenRecord):
     """Where a parameter comes from and where it may be used."""
 
     source: str
@@ -44,8 +43,7 @@ class Provenance:
     note: str = ""
 
 
-@dataclass(frozen=True)
-class VarshniGap:
+class VarshniGap(FrozenRecord):
     """Band gap E_g(T) = E_g0 - alpha T^2 / (T + beta).
 
     Units: E_g0 in J, alpha in J/K, beta in K; T in K -> J.
@@ -67,8 +65,7 @@ class VarshniGap:
         return gap
 
 
-@dataclass(frozen=True)
-class PowerLawDOS:
+class PowerLawDOS(FrozenRecord):
     """Effective density of states N(T) = N_300 (T/300 K)^exponent (parabolic: 3/2).
 
     Units: N_300 in m^-3; T in K -> m^-3.
@@ -86,8 +83,7 @@ class PowerLawDOS:
         return self.N300 * (np.asarray(T, dtype=float) / T_REF) ** self.exponent
 
 
-@dataclass(frozen=True)
-class MassPolynomialDOS:
+class MassPolynomialDOS(FrozenRecord):
     """Effective density of states with a temperature-dependent DOS mass:
     N(T) = 2 (2 pi m0 k T / h^2)^(3/2) D(T),  D(T) = (m_d(T)/m0)^(3/2) = sum_k a_k T^k.
 
@@ -113,8 +109,7 @@ class MassPolynomialDOS:
         return density
 
 
-@dataclass(frozen=True)
-class AltermattLowering:
+class AltermattLowering(FrozenRecord):
     """Ionization energy lowered by doping: E(N) = E_0 / (1 + (N/N_ref)^c).
 
     Units: N and N_ref in m^-3; returns the factor E(N)/E_0 (dimensionless).
@@ -133,8 +128,7 @@ class AltermattLowering:
         return 1.0 / (1.0 + (np.asarray(N, dtype=float) / self.N_ref) ** self.c)
 
 
-@dataclass(frozen=True)
-class PearsonBardeenLowering:
+class PearsonBardeenLowering(FrozenRecord):
     """Ionization energy lowered by doping: E(N) = max(E_0 - alpha N^(1/3), 0).
 
     ``alpha`` in J m; returns the factor E(N)/E_0 (dimensionless).  Validity: below
@@ -158,8 +152,7 @@ class PearsonBardeenLowering:
 Lowering: TypeAlias = AltermattLowering | PearsonBardeenLowering  # N -> E(N)/E_0
 
 
-@dataclass(frozen=True)
-class BoundShare:
+class BoundShare(FrozenRecord):
     """Share of dopants that can bind a carrier: b(N) = 1 / (1 + (N/N_b)^d).
 
     The rest (1 - b) sit in the band tail merged with the band and are always
@@ -181,8 +174,7 @@ class BoundShare:
         return -soft, x - soft
 
 
-@dataclass(frozen=True)
-class DopantLevel:
+class DopantLevel(FrozenRecord):
     """One bound level of a species: ionization energy from its band edge (J),
     ground-state degeneracy, and the share of the species' atoms on it (e.g. the
     hexagonal and cubic lattice sites of 4H-SiC)."""
@@ -192,8 +184,7 @@ class DopantLevel:
     share: float = 1.0
 
 
-@dataclass(frozen=True)
-class Dopant:
+class Dopant(FrozenRecord):
     """An impurity species: donor or acceptor with its bound level(s).
 
     ``energy`` is the (first) level's isolated ionization energy from the nearest band
@@ -259,8 +250,7 @@ def edwards_sienko_mott_density(energy: ArrayIn, eps_r: float) -> FloatArray:
     return (0.26 / radius) ** 3
 
 
-@dataclass(frozen=True)
-class Masetti:
+class Masetti(FrozenRecord):
     """Masetti doping-dependent mobility (one published parameter set).
 
     Formula (electrons, eq. 1; holes, eq. 4 with mu_min2 = 0 and P_c > 0):
@@ -303,8 +293,7 @@ class Masetti:
         )
 
 
-@dataclass(frozen=True)
-class Arora:
+class Arora(FrozenRecord):
     """Arora doping- and temperature-dependent mobility of silicon.
 
     Formula: mu = A_min Tn^a_min + A_0 T^a_0 / (1 + (N / (N_ref Tn^a_N))^(alpha Tn^a_alpha)),
@@ -337,8 +326,7 @@ class Arora:
         )
 
 
-@dataclass(frozen=True)
-class ResistivityStandardMobility:
+class ResistivityStandardMobility(FrozenRecord):
     """Conductivity mobility per dopant atom from the silicon resistivity standard:
     mu(N) = 1 / (q N rho(N)) at 23 degC, with rho(N) the dopant-density-to-resistivity
     conversion of ASTM F723 (Thurber et al. 1980) for boron or phosphorus:
@@ -382,8 +370,7 @@ class ResistivityStandardMobility:
         return mobility
 
 
-@dataclass(frozen=True)
-class TemperatureRatio:
+class TemperatureRatio(FrozenRecord):
     """A mobility known at one temperature carried to others by another model's ratio:
     mu(N, T) = base(N, T_0) * shape(N, T) / shape(N, T_0).
 
@@ -411,8 +398,7 @@ class TemperatureRatio:
         return self.base(N, T0) * self.shape(N, T) / self.shape(N, T0)
 
 
-@dataclass(frozen=True)
-class CaugheyThomas:
+class CaugheyThomas(FrozenRecord):
     """Caughey–Thomas mobility with power-law temperature terms.
 
     Formula: mu = mu_min + (mu_max (T/300)^(-theta1) - mu_min)
@@ -444,8 +430,7 @@ class CaugheyThomas:
         )
 
 
-@dataclass(frozen=True)
-class Levinshtein:
+class Levinshtein(FrozenRecord):
     """GaN doping- and temperature-dependent mobility (Mnatsakanov/Levinshtein).
 
     Formula: mu = mu_max / (1/(B(N) (T/300)^beta) + (T/300)^alpha),
@@ -474,8 +459,7 @@ class Levinshtein:
         return self.mu_max / (1.0 / (B * Tn**self.beta) + Tn**self.alpha)
 
 
-@dataclass(frozen=True)
-class SaturationVelocity:
+class SaturationVelocity(FrozenRecord):
     """Saturation velocity v_sat(T) = v_300 / ((1 - A) + A T/300).
 
     Units: m/s.  (A = 0 gives a constant.)
@@ -494,8 +478,7 @@ class SaturationVelocity:
         return self.v300 / ((1 - self.A) + self.A * np.asarray(T, dtype=float) / T_REF)
 
 
-@dataclass(frozen=True)
-class PowerLawVelocity:
+class PowerLawVelocity(FrozenRecord):
     """Saturation velocity v_m(T) = v_300 (T/300 K)^power.
 
     Units: m/s.  Validity: the fitted range in ``provenance.valid_T``.
@@ -514,8 +497,7 @@ class PowerLawVelocity:
         return self.v300 * (np.asarray(T, dtype=float) / T_REF) ** self.power
 
 
-@dataclass(frozen=True)
-class PowerLawExponent:
+class PowerLawExponent(FrozenRecord):
     """A dimensionless model parameter b(T) = b_ref T^k (T in K; k = 0: constant).
 
     Used for the Caughey–Thomas field exponent beta (Canali: 2.57e-2 T^0.66
@@ -534,8 +516,7 @@ class PowerLawExponent:
         return self.ref * np.asarray(T, dtype=float) ** self.power
 
 
-@dataclass(frozen=True)
-class SlotboomNarrowing:
+class SlotboomNarrowing(FrozenRecord):
     """Apparent band-gap narrowing dE_g = V1 (ln(N/N0) + sqrt(ln(N/N0)^2 + C)).
 
     Units: V1 in J, N0 and N in m^-3 -> J.
@@ -561,8 +542,7 @@ class SlotboomNarrowing:
         return narrowing
 
 
-@dataclass(frozen=True)
-class CubeRootNarrowing:
+class CubeRootNarrowing(FrozenRecord):
     """Band-gap narrowing dE_g = a_n N_D^(1/3) + a_p N_A^(1/3) (per doping type).
 
     Units: a_n, a_p in J m (J per m^-1), densities m^-3 -> J.
@@ -583,8 +563,7 @@ class CubeRootNarrowing:
         return narrowing
 
 
-@dataclass(frozen=True)
-class CarrierTransport:
+class CarrierTransport(FrozenRecord):
     """Low-field and high-field transport models of one carrier type."""
 
     mobility: dict[str, MobilityModel]  # model name -> callable(N_ionized, T) -> m^2/(V s)
@@ -629,8 +608,7 @@ class CarrierTransport:
             ) from None
 
 
-@dataclass(frozen=True)
-class MobilityRange:
+class MobilityRange(FrozenRecord):
     """The range of mobilities typically measured in a material (a channel's 2D gas),
     low and high in m^2/(V s) at ``T`` (K), with its source.  A plausibility range for
     stated values, not a model."""
@@ -641,8 +619,7 @@ class MobilityRange:
     source: str | None = None
 
 
-@dataclass(frozen=True)
-class Material:
+class Material(FrozenRecord):
     """All parameters of one semiconductor (see the module docstring for units).
 
     ``dimensionality`` is 3 for a bulk crystal and 2 for a sheet or a 2D channel
