@@ -10,7 +10,9 @@ test for it.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from functools import cache
+from types import MappingProxyType
 
 from ..quantity_registry.display_units import DISPLAY_UNITS
 from ..quantity_registry.registry import QUANTITIES, Source
@@ -37,14 +39,16 @@ for _name, (_unit, _meaning) in list(PER_CARRIER.items()):
 TEXT = {q.name: q.meaning for q in QUANTITIES if q.source is Source.TEXT}
 
 
-def carrier_names(x: str) -> dict[str, str]:
-    """Map ``name_x``/``name_o`` to the concrete names for carrier ``x`` ("n" or "p")."""
+@cache
+def carrier_names(x: str) -> Mapping[str, str]:
+    """Map ``name_x``/``name_o`` to the concrete names for carrier ``x`` ("n" or "p");
+    built once per carrier (every rule and carrier of a run asks for it) and read-only."""
     carrier = Carrier(x)
     mapping: dict[str, str] = {}
     for name in PER_CARRIER:
         stem, suffix = name[:-2], name[-1]
         mapping[name] = f"{stem}_{carrier if suffix == 'x' else carrier.other}"
-    return mapping
+    return MappingProxyType(mapping)
 
 
 @cache

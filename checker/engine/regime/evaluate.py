@@ -102,7 +102,7 @@ class Ruled:
 
     rule: Rule
     x: str
-    names: dict[str, str]  # the rule's _x/_o names -> concrete names
+    names: Mapping[str, str]  # the rule's _x/_o names -> concrete names
     fired: BoolArray  # per cell
     indicator: FloatArray  # per cell
     implied: list[tuple[str, BoolArray]]  # (stated name, mask) of each implication
@@ -144,7 +144,7 @@ def rule_cells(rules: Iterable[Rule], cells: Cells) -> Iterator[Ruled]:
             if replaced and not rule.replaces and ordered[k - 1].replaces:
                 derive_corrected(cells.values, replaced)
             for x in rule.carriers:
-                names = carrier_names(x) if x else {}
+                names: Mapping[str, str] = carrier_names(x) if x else {}
                 made, by_formula = assumption_made(rule, x, names, cells)
                 fired, indicator, implied = rule_mask(
                     rule, x, names, made, cells.values, cells.count, cells.all_indicators

@@ -113,10 +113,6 @@ class Rule:
         return self.indicator
 
 
-# the renaming of _x/_o names per carrier, built once (some 400 expressions use it)
-_carrier_names = lru_cache(maxsize=2)(carrier_names)
-
-
 class PerCarrier(Mapping[str, Evaluator]):
     """carrier -> the expression's numpy closure, renamed and compiled on first use: a run
     evaluates a few rules' expressions for one carrier, and building all of them was a
@@ -132,7 +128,7 @@ class PerCarrier(Mapping[str, Evaluator]):
         if made is None:
             if carrier not in self._carriers:
                 raise KeyError(carrier)
-            tree = expression.rename(self._tree, _carrier_names(carrier)) if carrier else self._tree
+            tree = expression.rename(self._tree, carrier_names(carrier)) if carrier else self._tree
             made = self._made[carrier] = expression.to_numpy(tree)
         return made
 
