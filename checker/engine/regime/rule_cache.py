@@ -14,7 +14,6 @@ the folder cannot be written the rules are simply read each run.
 from __future__ import annotations
 
 import contextlib
-import hashlib
 import io
 import os
 import pickle
@@ -22,6 +21,11 @@ import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
+
+try:  # the module behind hashlib.blake2b: hashlib itself loads OpenSSL (~2 ms)
+    from _blake2 import blake2b
+except ImportError:  # pragma: no cover - a Python built without it
+    from hashlib import blake2b
 
 if TYPE_CHECKING:
     from .rulebook import Rule
@@ -66,7 +70,7 @@ def cache_folder() -> Path:
 
 def key(folder: Path, paths: Sequence[Path]) -> str:
     """The hash of everything a cached rule set of ``folder`` depends on."""
-    digest = hashlib.blake2b(digest_size=20)
+    digest = blake2b(digest_size=20)
     digest.update(f"{sys.version}\0{folder}\0".encode())
     for path in (*_READER_SOURCES, *paths):
         digest.update(f"{path.name}\0".encode())
@@ -83,7 +87,7 @@ class _RuleUnpickler(pickle.Unpickler):
 
 
 def _file_of(folder: Path) -> Path:
-    name = hashlib.blake2b(str(folder).encode(), digest_size=8).hexdigest()
+    name = blake2b(str(folder).encode(), digest_size=8).hexdigest()
     return cache_folder() / f"rules-{name}.pickle"
 
 
