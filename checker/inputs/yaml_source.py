@@ -319,7 +319,10 @@ if _CParser is not None:
                 node = yaml.ScalarNode(
                     _STR_TAG, event.value, event.start_mark, event.end_mark, style=event.style
                 )
-                self._check_scalar(node)
+                # the text was cleared of forbidden characters before parsing, so only a
+                # double-quoted scalar's escapes ("\x07") can write one
+                if event.style == '"':
+                    self._check_scalar(node)
                 return node
             mapping = kind is yaml.MappingStartEvent
             node = (yaml.MappingNode if mapping else yaml.SequenceNode)(

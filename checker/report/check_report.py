@@ -105,6 +105,10 @@ class _PlainText:
     def append(self, text, style=""):
         self.parts.append(visible(text))
 
+    def append_safe(self, text, style=""):
+        """Append text already made visible (or our own words): no second pass."""
+        self.parts.append(text)
+
     @property
     def plain(self):
         return "".join(self.parts)
@@ -152,12 +156,16 @@ def render_console(result, console=None, stream=None) -> None:
             def append(self, text, style=None):
                 return super().append(visible(text) if isinstance(text, str) else text, style)
 
+            def append_safe(self, text, style=None):
+                return super().append(text, style)
+
         Text, width = _EscapedText, max(console.width, 60)
         emit = lambda text: console.print(text, end="", highlight=False)
 
     def add(text, line, style="", indent=8):
+        margin = " " * indent
         for part in wrapped(visible(line), width - indent):
-            text.append(" " * indent + part + "\n", style=style)
+            text.append_safe(margin + part + "\n", style=style)
 
     for report in result.reports:
         calc = report.calc
@@ -177,7 +185,7 @@ def render_console(result, console=None, stream=None) -> None:
             add(out, f"sweep of {report.sweep['points']} grid points", indent=2)
         else:
             for label, text in shown_rows(CHECK_ROWS, report.state):
-                out.append(f"  {label:<24}", style="dim")
+                out.append_safe(f"  {label:<24}", style="dim")  # our labels
                 out.append(f"{text:>24}\n")
         for r in report.formulas:
             out.append(f"  formula (line {r.line})".ljust(26), style="dim")
@@ -185,10 +193,10 @@ def render_console(result, console=None, stream=None) -> None:
             for line in formula_lines(r):
                 add(out, line, indent=26)
         if not report.findings:
-            out.append("  no assumption leaves its regime\n", style="green")
+            out.append_safe("  no assumption leaves its regime\n", style="green")
         for f in report.findings:
             tag = "waived" if f.waived else f.severity
-            out.append(f"{tag.upper():8s}", style="dim" if f.waived else STYLE[f.severity])
+            out.append_safe(f"{tag.upper():8s}", style="dim" if f.waived else STYLE[f.severity])
             out.append(f"{f.rule}  {f.title}", style="bold")
             out.append(f"  at {finding_where(f)}\n", style="dim")
             add(out, finding_message(f))
