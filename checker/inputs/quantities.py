@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import math
 import re
+from functools import lru_cache
 from typing import Any
 
 from ..errors import InputError
@@ -157,12 +158,16 @@ _DOT_DENOMINATOR = re.compile(
 
 def _normal_text(text: str) -> str:
     """Superscript exponents as ^n and the minus sign as '-' (number and unit alike)."""
+    if text.isascii():  # both are outside ASCII: the usual text is already normal
+        return text
     text = _SUPERSCRIPT_RUN.sub(lambda m: "^" + m.group(0).translate(_SUPERSCRIPTS), text)
     return text.replace("\u2212", "-")
 
 
+@lru_cache(maxsize=512)
 def _normal_unit(unit: str) -> str:
-    """The trade spellings of a unit in the form of the table: Ω·cm -> ohm*cm, µm -> um."""
+    """The trade spellings of a unit in the form of the table: Ω·cm -> ohm*cm, µm -> um
+    (kept per spelling: a file of many calculations writes the same few units)."""
     unit = _HYPHEN_PRODUCT.sub("·", unit.replace(" ", ""))
     unit = _DOT_DENOMINATOR.sub(r"/(\1)", unit)
     for mark in "·⋅×":

@@ -14,7 +14,7 @@ from . import state_values
 from .corrected import CorrectedEntry, corrected_set, quantity_key
 from .evaluate import evaluate
 from .rulebook import Rule
-from .trade_summary import trade_summary
+from .trade_summary import PointSummaries
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Axis, Calculation
@@ -63,6 +63,7 @@ def check_points(
         # follow the corrected calculation too
         formula_check.evaluate_all(analyses, calculations, values, skip=solve_errors.keys())
     by_id = {rule.id: rule for rule in rules}
+    summaries = PointSummaries(values)
     reports: list[CalculationReport] = []
     for i, calc in enumerate(calculations):
         if i in solve_errors:
@@ -79,7 +80,7 @@ def check_points(
         reports.append(
             CalculationReport(
                 calc,
-                trade_summary(values, i),
+                summaries[i],
                 findings[i],
                 notes,
                 formulas=analysis.results if analysis else [],

@@ -8,7 +8,7 @@ everywhere (the points above a Mott density are ``above_mott_density``).
 
 from __future__ import annotations
 
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from typing import Any
 
 import numpy as np
@@ -31,8 +31,32 @@ def trade_summary(
     def get(name: str) -> Any:
         return np.asarray(values[name])[index]
 
-    full = "residual" in values
+    return _summary(get, "residual" in values)
+
+
+def _summary(get: Callable[[str], Any], full: bool) -> dict[str, FieldValue]:
     return {f.key: f.value(get) for f in JSON_FIELDS if full or not f.state_only}
+
+
+class PointSummaries:
+    """:func:`trade_summary` of each point of one-dimensional ``values``, each quantity
+    read out as Python numbers once for all points (a check of many calculations asked
+    numpy for some twenty scalars per point)."""
+
+    def __init__(self, values: Mapping[str, ArrayIn]):
+        self._values = values
+        self._columns: dict[str, list[Any]] = {}
+
+    def __getitem__(self, index: int) -> dict[str, FieldValue]:
+        columns, values = self._columns, self._values
+
+        def get(name: str) -> Any:
+            column = columns.get(name)
+            if column is None:  # a missing quantity raises KeyError, as trade_summary's
+                column = columns[name] = np.asarray(values[name]).tolist()
+            return column[index]
+
+        return _summary(get, "residual" in values)
 
 
 def state_values(state: State) -> dict[str, ArrayIn]:
