@@ -23,7 +23,7 @@ every correction as stated (or shortcut) value -> exact value with the error.
 from __future__ import annotations
 
 from collections.abc import Iterable, Iterator, Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -55,6 +55,9 @@ class Cells:
     # every rule's indicator even where the rule cannot fire (single points: which stated
     # numbers a rule compared); a sweep reads it only where a rule fires
     all_indicators: bool = True
+    _word_index: (
+        tuple[dict[str, BoolArray], dict[str, list[tuple[int, int, str | None]]]] | None
+    ) = field(default=None, init=False, repr=False)
 
     @classmethod
     def points(
@@ -93,6 +96,40 @@ class Cells:
     @property
     def count(self) -> int:
         return self.owner.size
+
+    def declaring(self, words: tuple[str, ...]) -> BoolArray:
+        """Per calculation: whether its author declares one of ``words``."""
+        index = self._index()[0]
+        declared = np.zeros(len(self.calculations), dtype=bool)
+        for word in words:
+            if word in index:
+                declared |= index[word]
+        return declared
+
+    def embodying(self, words: tuple[str, ...]) -> list[tuple[int, int, str | None]]:
+        """(calculation, index into its embodied list, carrier) of every stated formula
+        that embodies one of ``words``, in calculation and list order."""
+        index = self._index()[1]
+        return sorted(item for word in set(words) for item in index.get(word, ()))
+
+    def _index(
+        self,
+    ) -> tuple[dict[str, BoolArray], dict[str, list[tuple[int, int, str | None]]]]:
+        # every rule asks which calculations declare or embody its words: one pass over
+        # the calculations for all rules, not one per rule
+        if self._word_index is None:
+            declared: dict[str, BoolArray] = {}
+            for c, calc in enumerate(self.calculations):
+                for word in calc.assumes:
+                    if word not in declared:
+                        declared[word] = np.zeros(len(self.calculations), dtype=bool)
+                    declared[word][c] = True
+            embodied: dict[str, list[tuple[int, int, str | None]]] = {}
+            for c, items in enumerate(self.embodied):
+                for k, item in enumerate(items):
+                    embodied.setdefault(item.word, []).append((c, k, item.carrier))
+            self._word_index = (declared, embodied)
+        return self._word_index
 
 
 @dataclass
@@ -184,20 +221,14 @@ def assumption_made(
     if not rule.declared:
         return np.zeros(count, dtype=bool), np.full(count, -1)
     in_use = _nonzero(cells.values[names["in_use_x"]]) if x else np.ones(count, dtype=bool)
-    declared = np.array(
-        [any(word in calc.assumes for word in rule.declared) for calc in cells.calculations],
-        dtype=bool,
-    )
+    declared = cells.declaring(rule.declared)
     everywhere = np.full(len(cells.calculations), _NO_FORMULA)
     where_used = np.full(len(cells.calculations), _NO_FORMULA)
-    for c, items in enumerate(cells.embodied):
-        for k, item in reversed(list(enumerate(items))):  # the first one wins
-            if item.word not in rule.declared:
-                continue
-            if not x or item.carrier == x:
-                everywhere[c] = k
-            elif item.carrier is None:
-                where_used[c] = k
+    for c, k, carrier in reversed(cells.embodying(rule.declared)):  # the first one wins
+        if not x or carrier == x:
+            everywhere[c] = k
+        elif carrier is None:
+            where_used[c] = k
     if len(cells.calculations) == 1:  # a sweep's chunk: one calculation, no gathering
         declared_here: bool | BoolArray = bool(declared[0])
         first = np.where(in_use, min(everywhere[0], where_used[0]), everywhere[0])
