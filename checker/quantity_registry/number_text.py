@@ -6,15 +6,15 @@ them (indicators, corrections), so both use these two functions.
 
 from __future__ import annotations
 
-import numpy as np
+import math
 
 from .display_units import DISPLAY_UNITS
 
 
 def display(value: float | None, unit: str, digits: int = 4) -> str:
     """An SI value in a display unit, e.g. display(1e23, 'cm^-3') -> '1e+17 cm^-3'."""
-    if value is None or not np.isfinite(value):
-        return "n/a" if value is None or np.isnan(value) else ("inf" if value > 0 else "-inf")
+    if value is None or not math.isfinite(value):
+        return "n/a" if value is None or math.isnan(value) else ("inf" if value > 0 else "-inf")
     shown = value * DISPLAY_UNITS[unit]
     if unit == "%":
         return f"{shown:.{max(digits - 1, 1)}g} %"

@@ -22,9 +22,10 @@ every correction as stated (or shortcut) value -> exact value with the error.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -403,14 +404,20 @@ def _add_findings(
     ruled: Ruled, cells: Cells, fired: IndexArray, findings: list[list[Finding]]
 ) -> None:
     rule, x, names, values, count = ruled.rule, ruled.x, ruled.names, cells.values, cells.count
-    # (correction, shortcut, exact, the stated number's concrete name, its value) per cell
+
+    def at_fired(array: ArrayIn) -> list[Any]:
+        # the fired cells' values as Python numbers: the loop below reads each a few times
+        return list(np.asarray(array)[fired].tolist())
+
+    # (correction, shortcut, exact, the stated number's concrete name, its value) at each
+    # fired cell
     columns = [
         (
             corr,
-            _cells_array(corr.shortcut, x, values, count),
-            _cells_array(corr.exact, x, values, count),
+            at_fired(_cells_array(corr.shortcut, x, values, count)),
+            at_fired(_cells_array(corr.exact, x, values, count)),
             name,
-            values[name] if name else np.full(count, np.nan),
+            at_fired(values[name]) if name else [math.nan] * fired.size,
         )
         for corr in rule.corrections
         for name in [names.get(corr.stated, corr.stated) if corr.stated else None]
@@ -422,7 +429,7 @@ def _add_findings(
     }
     words = carrier_message_words(x)
     causes = [(text, _nonzero(_cells_array(gate, x, values, count))) for gate, text in rule.causes]
-    for i in fired:
+    for j, i in enumerate(fired.tolist()):
         owner = int(cells.owner[i])
         calc = cells.calculations[owner]
         formula = cells.embodied[owner][ruled.by_formula[i]] if ruled.by_formula[i] >= 0 else None
@@ -430,17 +437,18 @@ def _add_findings(
         line: int | None = None
         column: str | None = None
         for corr, shortcut, exact, stated_name, stated in columns:
-            author = bool(np.isfinite(stated[i]))
-            value = stated[i] if author else shortcut[i]
-            if not (np.isfinite(value) and np.isfinite(exact[i])) or exact[i] == 0:
+            author = math.isfinite(stated[j])
+            value = float(stated[j] if author else shortcut[j])
+            truth = float(exact[j])
+            if not (math.isfinite(value) and math.isfinite(truth)) or truth == 0:
                 continue
             corrections.append(
                 Correction(
                     corr.label,
                     corr.unit,
-                    float(value),
-                    float(exact[i]),
-                    float(value / exact[i] - 1.0),
+                    value,
+                    truth,
+                    value / truth - 1.0,
                     author,
                     key=quantity_key(stated_name),
                 )
