@@ -22,7 +22,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Collection, Iterable, Mapping, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from itertools import combinations
 from typing import TYPE_CHECKING, TypeAlias
@@ -261,8 +261,11 @@ def _has_dimension(tree: Node, dim: int, target: dm.Dimension) -> bool:
 
 
 # ---- values at the operating point ----------------------------------------------------------
-def operating_values(values: Values, calculations: Sequence[Calculation]) -> list[Point | None]:
-    """Per calculation, every formula symbol's exact value at its operating point (SI)."""
+def operating_values(
+    values: Values, calculations: Sequence[Calculation], bands: Sequence[str] | None = None
+) -> list[Point | None]:
+    """Per calculation, every formula symbol's exact value at its operating point (SI);
+    ``bands``: their band worlds where the caller has them (point_bands)."""
     count = len(calculations)
     known = {name: np.asarray(values[key], dtype=float) for name, key in _FROM_STATE.items()}
     kT = values["kT"]
@@ -293,7 +296,8 @@ def operating_values(values: Values, calculations: Sequence[Calculation]) -> lis
         known[name] = np.where(dims == 3, known[name], np.nan)
     # alpha kT of a Kane conduction band (0: parabolic), the definitions' beta_kane_n
     known["beta_kane_n"] = _column(values, "beta_kane_n", count)
-    bands = point_bands(values, dims)
+    if bands is None:
+        bands = point_bands(values, dims)
     out: list[Point | None] = [None] * count
     groups: dict[tuple[int, str, str], list[int]] = {}
     for i, calc in enumerate(calculations):
@@ -342,31 +346,16 @@ def _evaluate(tree: Node, point: Mapping[str, float]) -> float:
 
 
 # ---- one formula text -----------------------------------------------------------------------
-@dataclass(frozen=True)
-class _TextAnalysis:
-    """What a formula text gives regardless of the operating point: its trees, dimensions,
-    likely fix, match, units and stated key (shared by every calculation stating it)."""
-
-    lhs: Node
-    rhs: Node
-    left_dimension: str = ""
-    right_dimension: str = ""
-    problem: str | None = None
-    fix: str | None = None
-    match: Match | None = None
-    unit: str = ""
-    si_unit: str = ""
-    energy: bool = False
-    key: str | None = None
-
-
-# (text, majority, dim, band) -> its analysis; a file of 1,000 calculations states a handful
-# of distinct formulas.  Texts that fail to parse are not kept (the message names the line).
-_TEXTS: dict[tuple[str, str, int, str], _TextAnalysis] = {}
+# (text, majority, dim, band) -> what the text gives regardless of the operating point (its
+# trees, dimensions, likely fix, match, units and stated key): a FormulaResult without place
+# or values, copied for each calculation stating it.  A file of 1,000 calculations states a
+# handful of distinct formulas.  Texts that fail to parse are not kept (the message names
+# the line).
+_TEXTS: dict[tuple[str, str, int, str], FormulaResult] = {}
 _TEXTS_KEPT = 4096
 
 
-def _text_analysis(text: str, majority: str, dim: int, band: str, where: str) -> _TextAnalysis:
+def _text_analysis(text: str, majority: str, dim: int, band: str, where: str) -> FormulaResult:
     """The analysis of one formula text (InputError where it does not parse)."""
     key = (text, majority, dim, band)
     found = _TEXTS.get(key)
@@ -378,17 +367,20 @@ def _text_analysis(text: str, majority: str, dim: int, band: str, where: str) ->
     return found
 
 
-def _analyse_text(text: str, majority: str, dim: int, band: str, where: str) -> _TextAnalysis:
+def _analyse_text(text: str, majority: str, dim: int, band: str, where: str) -> FormulaResult:
     lhs, rhs, spelled = parse_formula(text, majority, where)
     try:
         left = dimension(lhs, dim)
         right = dimension(rhs, dim)
     except _Mismatch as exc:
-        return _TextAnalysis(lhs, rhs, problem=str(exc))
+        return FormulaResult(text, "", 0, lhs, rhs, problem=str(exc))
     left_text, right_text = dm.describe(left), dm.describe(right)
     if left != right:
         fix = likely_fix(lhs, rhs, dim, majority, band)
-        return _TextAnalysis(
+        return FormulaResult(
+            text,
+            "",
+            0,
             lhs,
             rhs,
             left_text,
@@ -398,7 +390,10 @@ def _analyse_text(text: str, majority: str, dim: int, band: str, where: str) -> 
             if fix is None
             else f"{to_text(rename(lhs, spelled))} = {to_text(rename(fix, spelled))}",
         )
-    return _TextAnalysis(
+    return FormulaResult(
+        text,
+        "",
+        0,
         lhs,
         rhs,
         left_text,
@@ -425,22 +420,7 @@ def analyse_calculation(
         except InputError as exc:
             out.errors.append(str(exc))
             continue
-        result = FormulaResult(
-            text,
-            where,
-            line,
-            known.lhs,
-            known.rhs,
-            known.left_dimension,
-            known.right_dimension,
-            known.problem,
-            known.fix,
-            known.match,
-            unit=known.unit,
-            si_unit=known.si_unit,
-            energy=known.energy,
-            key=known.key,
-        )
+        result = replace(known, where=where, line=line)
         out.results.append(result)
         if result.match is None:
             continue
@@ -452,9 +432,13 @@ def analyse_calculation(
 
 
 def _points(
-    calculations: Sequence[Calculation], values: Values, skip: Collection[int]
+    calculations: Sequence[Calculation],
+    values: Values,
+    skip: Collection[int],
+    bands: Sequence[str] | None = None,
 ) -> list[Point | None]:
-    """Every formula symbol's value per calculation with formulas (None: none, or skipped)."""
+    """Every formula symbol's value per calculation with formulas (None: none, or skipped);
+    ``bands``: every calculation's band world, where the caller has them."""
     with_formulas = [i for i, c in enumerate(calculations) if c.formulas]
     points: list[Point | None] = [None] * len(calculations)
     solved = [i for i in with_formulas if i not in skip]
@@ -463,7 +447,12 @@ def _points(
             name: np.asarray(array)[solved] if np.ndim(array) else array
             for name, array in values.items()
         }
-        for i, point in zip(solved, operating_values(subset, [calculations[i] for i in solved])):
+        found = operating_values(
+            subset,
+            [calculations[i] for i in solved],
+            None if bands is None else [bands[i] for i in solved],
+        )
+        for i, point in zip(solved, found):
             points[i] = point
     return points
 
@@ -472,9 +461,9 @@ def analyse_all(
     calculations: Sequence[Calculation], values: Values, skip: Collection[int] = ()
 ) -> list[FormulaAnalysis]:
     """FormulaAnalysis per calculation (values at the operating point unless skipped)."""
-    points = _points(calculations, values, skip)
     dims = np.array([int(c.structure.get("dim", 3)) for c in calculations], dtype=int)
     bands = point_bands(values, dims)
+    points = _points(calculations, values, skip, bands)
     return [
         analyse_calculation(calc, points[i], bands[i]) if calc.formulas else FormulaAnalysis()
         for i, calc in enumerate(calculations)
