@@ -41,6 +41,7 @@ from ..findings import Correction, Embodied, Finding, carrier_code
 from ..regime.corrected import formula_key
 from ..regime.rulebook import PLACEHOLDER, Rule
 from ..regime.state_values import Values
+from . import match_store
 from .match import Match, analyse
 from .relations import band_world, world
 from .symbols import dimension_of, parse_side
@@ -464,10 +465,12 @@ def analyse_all(
     dims = np.array([int(c.structure.get("dim", 3)) for c in calculations], dtype=int)
     bands = point_bands(values, dims)
     points = _points(calculations, values, skip, bands)
-    return [
+    analyses = [
         analyse_calculation(calc, points[i], bands[i]) if calc.formulas else FormulaAnalysis()
         for i, calc in enumerate(calculations)
     ]
+    match_store.STORE.save()  # the matches this run searched for, for the next
+    return analyses
 
 
 def evaluate_all(

@@ -41,7 +41,7 @@ import numpy as np
 from ...physics.arrays import ArrayIn
 from ..expressions.parser import Evaluator, folded, to_numpy, to_sympy
 from ..expressions.tree import CALL, NAME, NEG, NUM, Node, binary, fold
-from . import normal_form
+from . import match_store, normal_form
 from .relations import (
     RELATION_NAMES,
     WORDS_IN,
@@ -135,8 +135,44 @@ def _worlds(names: AbstractSet[str], majority: str) -> tuple[str, ...]:
 @lru_cache(maxsize=4096)
 def analyse(lhs: Node, rhs: Node, dim: int, majority: str, band: str = "parabolic") -> Match:
     """The smallest limit set under which ``lhs = rhs`` holds in the band world ``band``
-    (relations.band_world; cached per process)."""
-    return _analyse(lhs, rhs, dim, majority, band)
+    (relations.band_world; cached per process, and between runs by match_store)."""
+    stored = match_store.key(lhs, rhs, dim, majority, band)
+    outcome = match_store.STORE.get(stored)
+    if outcome is not None:
+        rebuilt = _rebuilt(lhs, rhs, dim, majority, band, outcome)
+        if rebuilt is not None:
+            return rebuilt
+    found = _analyse(lhs, rhs, dim, majority, band)
+    ids = [limit.id for limit in found.limits]
+    match_store.STORE.put(stored, [found.status, found.world, ids, found.proof])
+    return found
+
+
+def _rebuilt(
+    lhs: Node, rhs: Node, dim: int, majority: str, band: str, outcome: match_store.Outcome
+) -> Match | None:
+    """The Match a stored outcome stands for, rebuilt from the limit catalogue (None where
+    the outcome does not fit it)."""
+    status, which, ids, proof = outcome
+    if status == "unrecognised":
+        return Match("unrecognised", None, (), (), (), None)
+    if which not in ("donor", "acceptor") or proof not in ("symbolic", "numeric"):
+        return None
+    if not isinstance(ids, list) or (status == "exact") != (not ids):
+        return None
+    base = world(dim, which, majority, band)
+    chosen = tuple(limit for limit in limits(which) if limit.id in ids)
+    if len(chosen) != len(ids):
+        return None
+    names = names_in(lhs) | names_in(rhs)
+    return Match(
+        status,
+        base.world,
+        chosen,
+        _relations(lhs, rhs, base, chosen),
+        _assumptions(names, base, chosen),
+        proof,
+    )
 
 
 def _analyse(lhs: Node, rhs: Node, dim: int, majority: str, band: str) -> Match:

@@ -13,19 +13,14 @@ the folder cannot be written the rules are simply read each run.
 
 from __future__ import annotations
 
-import contextlib
 import io
-import os
 import pickle
 import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-try:  # the module behind hashlib.blake2b: hashlib itself loads OpenSSL (~2 ms)
-    from _blake2 import blake2b
-except ImportError:  # pragma: no cover - a Python built without it
-    from hashlib import blake2b
+from ..user_cache import blake2b, cache_folder, write_whole
 
 if TYPE_CHECKING:
     from .rulebook import Rule
@@ -60,12 +55,6 @@ _ALLOWED = {
     ("checker.engine.regime.rulebook", "PerCarrier"),
     ("checker.engine.expressions.tree", "Node"),
 }
-
-
-def cache_folder() -> Path:
-    """Where cached rule sets are kept."""
-    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
-    return Path(base) / "regimecheck"
 
 
 def key(folder: Path, paths: Sequence[Path]) -> str:
@@ -106,14 +95,7 @@ def _stored(file: Path, wanted: str) -> tuple[Rule, ...] | None:
 
 
 def _store(file: Path, wanted: str, rules: tuple[Rule, ...]) -> None:
-    temporary = file.with_name(f"{file.name}.{os.getpid()}.tmp")
-    try:
-        file.parent.mkdir(parents=True, exist_ok=True)
-        temporary.write_bytes(pickle.dumps((wanted, rules), protocol=pickle.HIGHEST_PROTOCOL))
-        os.replace(temporary, file)  # whole or not at all, for a run beside this one
-    except OSError:  # a read-only or full cache folder: the rules are read each run
-        with contextlib.suppress(OSError):
-            temporary.unlink(missing_ok=True)
+    write_whole(file, pickle.dumps((wanted, rules), protocol=pickle.HIGHEST_PROTOCOL))
 
 
 def cached(
