@@ -22,7 +22,31 @@ EXIT_BROKEN_PIPE = 141  # 128 + SIGPIPE, as a shell reports it
 EXIT_INTERRUPTED = 130  # 128 + SIGINT
 
 
+def _terminal_columns() -> int:
+    """What shutil.get_terminal_size gives argparse (COLUMNS, else the terminal of the
+    standard output, else 80), without importing shutil and the archive modules it pulls
+    in on every run: argparse builds a formatter for each option it is given."""
+    try:
+        columns = int(os.environ.get("COLUMNS", "0"))
+    except ValueError:
+        columns = 0
+    if columns <= 0:
+        try:
+            columns = os.get_terminal_size(sys.__stdout__.fileno()).columns  # type: ignore[union-attr]
+        except (AttributeError, ValueError, OSError):
+            columns = 0
+    return columns or 80
+
+
+def _formatter(prog: str) -> argparse.HelpFormatter:
+    return argparse.HelpFormatter(prog, width=_terminal_columns() - 2)  # argparse's margin
+
+
 class _Parser(argparse.ArgumentParser):
+    def __init__(self, *args, **kwargs):
+        kwargs.setdefault("formatter_class", _formatter)
+        super().__init__(*args, **kwargs)
+
     def error(self, message):  # usage errors exit 2 with a one-line hint
         self.print_usage(sys.stderr)
         print(f"regimecheck: {message}", file=sys.stderr)

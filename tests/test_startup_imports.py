@@ -23,7 +23,8 @@ print("loaded:" + ",".join(m for m in unused if m in sys.modules))
 # formulas' symbolic proofs and plots only; the sweep module for a calculation with swept
 # axes only (the example has none); rich for progress bars and tables, not the console
 # report; difflib for 'did you mean' hints, tomllib where a configuration exists, csv for
-# tables, json for the JSON report; importlib.resources was only a path lookup; the rule
+# tables, json for the JSON report; importlib.resources was only a path lookup,
+# numpy.polynomial one polyval, shutil argparse's terminal width; the rule
 # reader and what it validates with (field table, dimension check) only where the rule
 # cache is cold or stale
 UNUSED = (
@@ -38,6 +39,8 @@ UNUSED = (
     "csv",
     "json",
     "importlib.resources",
+    "numpy.polynomial",
+    "shutil",
     "checker.engine.regime.rule_reader",
     "checker.engine.regime.rule_fields",
     "checker.engine.expressions.dimension_check",

@@ -102,7 +102,9 @@ class MassPolynomialDOS(FrozenRecord):
 
     def __call__(self, T: ArrayIn) -> FloatArray:
         T = np.asarray(T, dtype=float)
-        mass_term = np.polynomial.polynomial.polyval(np.minimum(T, self.T_fit), self.coefficients)
+        # Horner from the highest power, as numpy.polynomial's polyval (which a check
+        # would import for this one call)
+        mass_term = np.polyval(self.coefficients[::-1], np.minimum(T, self.T_fit))
         density: FloatArray = (
             2.0 * (2 * np.pi * ELECTRON_MASS * BOLTZMANN * T / PLANCK**2) ** 1.5 * mass_term
         )
