@@ -1,12 +1,15 @@
-"""Frozen value records: what ``@dataclass(frozen=True)`` gives a parameter model (an
-``__init__`` over the annotated fields in order, with defaults, repr, equality, hashing,
-no assignment after construction), at a fraction of its cost when a module is imported.
+"""Value records: what ``@dataclass`` and ``@dataclass(frozen=True)`` give a plain data
+type (an ``__init__`` over the annotated fields in order, with defaults and factories,
+repr, equality; frozen: hashing and no assignment after construction), at a fraction of
+their cost when a module is imported.
 
 dataclasses writes and compiles six methods for every class as its module is imported
-(0.4-0.7 ms a class here); the material models and the material-file key table are some
-40 such classes, all imported by every check.  A :class:`FrozenRecord` subclass is read
-once when it is created (its fields and defaults) and shares generic methods; type
-checkers see it as a frozen dataclass (``dataclass_transform``).
+(0.4-0.7 ms a class here); the material models, the material-file key table, the
+calculation, finding and report types are some 50 such classes, all imported by every
+check.  A :class:`Record` or :class:`FrozenRecord` subclass is read once when it is
+created (its fields and defaults) and shares generic methods; type checkers see it as a
+dataclass (``dataclass_transform``).  Where dataclasses.replace or a field that is not
+an ``__init__`` argument is needed, a type stays a dataclass.
 """
 
 from __future__ import annotations
@@ -30,12 +33,9 @@ def field(*, default_factory: Callable[[], T]) -> T:
     return _Factory(default_factory)  # type: ignore[return-value]
 
 
-@dataclass_transform(eq_default=True, frozen_default=True, field_specifiers=(field,))
-class FrozenRecord:
-    """Base of a frozen record: subclass it and annotate the fields (a ClassVar is no
-    field); a field with a default may not precede one without.  ``__post_init__``, where
-    a record defines it, runs after the fields are set (it sets any further one with
-    ``object.__setattr__``, as in a frozen dataclass)."""
+class _Fields:
+    """What both records share: the fields read from the annotations when a subclass is
+    made, the generic __init__, repr and equality."""
 
     _fields: ClassVar[tuple[str, ...]] = ()
     _defaults: ClassVar[dict[str, Any]] = {}
@@ -92,6 +92,22 @@ class FrozenRecord:
             return NotImplemented
         return self._values() == other._values()  # type: ignore[attr-defined, no-any-return]
 
+
+@dataclass_transform(eq_default=True, field_specifiers=(field,))
+class Record(_Fields):
+    """Base of a mutable record, as ``@dataclass``: fields may be assigned, and like a
+    dataclass that compares by value it is not hashable."""
+
+    __hash__ = None  # type: ignore[assignment]
+
+
+@dataclass_transform(eq_default=True, frozen_default=True, field_specifiers=(field,))
+class FrozenRecord(_Fields):
+    """Base of a frozen record: subclass it and annotate the fields (a ClassVar is no
+    field); a field with a default may not precede one without.  ``__post_init__``, where
+    a record defines it, runs after the fields are set (it sets any further one with
+    ``object.__setattr__``, as in a frozen dataclass)."""
+
     def __hash__(self) -> int:
         return hash(self._values())
 
@@ -102,6 +118,6 @@ class FrozenRecord:
         raise AttributeError(f"cannot delete field {key!r} of a frozen {type(self).__name__}")
 
 
-def record_fields(record: FrozenRecord) -> Iterator[tuple[str, Any]]:
+def record_fields(record: _Fields) -> Iterator[tuple[str, Any]]:
     """(name, value) of each field of a record, in order."""
     return ((key, getattr(record, key)) for key in record._fields)

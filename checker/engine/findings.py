@@ -7,11 +7,10 @@ one enum :class:`checker.vocabulary_words.Carrier`.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
 from ..quantity_registry.number_text import display, error_text
+from ..records import FrozenRecord, Record
 from ..vocabulary_words import Carrier
 
 
@@ -25,8 +24,7 @@ def carrier_code(word: str | None) -> Carrier | None:
     return Carrier.from_plural(word)
 
 
-@dataclass
-class Correction:
+class Correction(Record):
     label: str
     unit: str
     stated: float  # SI: the author's number, or what the shortcut gives
@@ -44,8 +42,7 @@ class Correction:
         return error_text(self.stated, self.corrected, self.unit)
 
 
-@dataclass
-class Finding:
+class Finding(Record):
     rule: str
     title: str
     severity: str
@@ -78,8 +75,7 @@ class Finding:
         )
 
 
-@dataclass(frozen=True)
-class Embodied:
+class Embodied(FrozenRecord):
     """An assumption a stated formula makes (from its limits), and where the formula is."""
 
     word: str

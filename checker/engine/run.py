@@ -10,13 +10,13 @@ findings -> :class:`RunResult` (which the reports render).
 from __future__ import annotations
 
 from collections.abc import Callable, Iterable, Sequence
-from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import RegimecheckError
 from ..inputs.calculation_file import Calculation
 from ..inputs.config import Config, check_rule_ids
 from ..inputs.sources import read_input
+from ..records import Record, field
 from ..vocabulary_words import Severity
 from .findings import Finding
 from .regime import rulebook
@@ -28,8 +28,7 @@ from .waivers import apply_waivers
 Progress = Callable[[int, int], None]
 
 
-@dataclass
-class RunResult:
+class RunResult(Record):
     reports: list[CalculationReport]
     input_errors: list[str]
     rules: tuple[Rule, ...]

@@ -3,10 +3,10 @@
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
 from ..close_words import close_matches
+from ..records import Record, field
 
 if TYPE_CHECKING:
     from ..inputs.calculation_file import Calculation
@@ -15,8 +15,7 @@ if TYPE_CHECKING:
     from .regime.rulebook import Rule
 
 
-@dataclass
-class WaiverResult:
+class WaiverResult(Record):
     notes: list[list[str]] = field(default_factory=list)  # per calculation index
     errors: list[str] = field(default_factory=list)  # input errors (unknown rule ids)
     run_notes: list[str] = field(default_factory=list)  # configuration waivers idle

@@ -26,7 +26,6 @@ string and 1.0e17 as a float).  Aliases and duplicate keys are refused.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass, field
 from pathlib import Path
 from typing import TypeAlias
 
@@ -38,6 +37,7 @@ from ..physics.arrays import FloatArray
 from ..physics.constants import EV
 from ..physics.materials import Material
 from ..quantity_registry.registry import QUANTITIES, file_keys
+from ..records import Record, field
 from ..vocabulary_words import ASSUMPTIONS
 from .material_catalog import resolve_material
 from .quantities import check_plausible, parse_quantity, parse_temperature, read_number
@@ -84,16 +84,14 @@ ASSUMPTION_SPELLINGS = {
 SIGNED_KEYS = tuple(key for q in QUANTITIES if q.signed for key in q.keys)
 
 
-@dataclass
-class Located:
+class Located(Record):
     """A plain value tree plus the (line, column) of every node, 1-based."""
 
     value: object
     positions: dict = field(default_factory=dict)
 
 
-@dataclass
-class Calculation:
+class Calculation(Record):
     name: str
     source: str  # file path
     line: int
@@ -119,8 +117,7 @@ class Calculation:
         return "p" if sum(self.acceptors.values()) > sum(self.donors.values()) else "n"
 
 
-@dataclass
-class FileResult:
+class FileResult(Record):
     path: str
     calculations: list
     errors: list  # InputError messages (each names file:line:column)
@@ -382,8 +379,7 @@ def _check_sweep_size(axes, where):
 AxisKey: TypeAlias = str | tuple[str, str]
 
 
-@dataclass
-class Axis:
+class Axis(Record):
     """One swept input: temperature (key "T") or a density ((group, species))."""
 
     key: AxisKey  # "T", or (group, species) of a density, e.g. ("donors", "P")

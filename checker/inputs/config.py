@@ -39,11 +39,11 @@ from __future__ import annotations
 import fnmatch
 import math
 import re
-from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..close_words import close_matches
 from ..errors import InputError
+from ..records import Record, field
 from ..vocabulary_words import SEVERITIES, TOLERANCE_NAMES
 from .table import IGNORE as IGNORED_COLUMNS
 from .table import KEYS as TABLE_KEYS
@@ -69,16 +69,14 @@ TABLE = ("tool", "regimecheck")
 KeyPath = tuple[str | int, ...]
 
 
-@dataclass
-class PathWaiver:
+class PathWaiver(Record):
     pattern: str
     rule: str
     reason: str
     line: int
 
 
-@dataclass
-class Config:
+class Config(Record):
     source: str | None = None  # file the settings came from (None: defaults)
     fail_level: str | None = None
     only: tuple = ()

@@ -12,7 +12,6 @@ from __future__ import annotations
 
 import re
 from collections.abc import Callable
-from dataclasses import dataclass, field
 from functools import cache
 from typing import Any, Protocol
 
@@ -23,7 +22,7 @@ from ..errors import InputError, UnknownMaterialError
 from ..physics import materials as m
 from ..physics.band_shapes import BandShape
 from ..physics.constants import EV, ROOM_TEMPERATURE
-from ..records import FrozenRecord
+from ..records import FrozenRecord, Record, field
 from ..resources import materials_dir
 from .quantities import (
     NUMBER,
@@ -698,8 +697,7 @@ MATERIAL = Block(
 # ---------------------------------------------------------------------------------------
 
 
-@dataclass
-class _Place:
+class _Place(Record):
     """Where a key of a material is: file:line:column and the key path, for messages."""
 
     locate: Callable[..., str]  # (*keys) -> "file:line:col" (or the file name)

@@ -15,11 +15,11 @@ Per-carrier keys and symbols are pairs, electrons first.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from enum import StrEnum
 from typing import Any
 
 from ..physics.constants import BOLTZMANN, ELEMENTARY_CHARGE
+from ..records import FrozenRecord
 from ..vocabulary_words import Carrier
 from .display_units import BULK_UNITS, DISPLAY_UNITS, UNIT_KINDS
 
@@ -38,8 +38,7 @@ class Source(StrEnum):
 TEXT_UNIT = "text"  # the "unit" of a word-valued quantity
 
 
-@dataclass(frozen=True)
-class Quantity:
+class Quantity(FrozenRecord):
     name: str  # engine name; "<stem>_x" per carrier
     unit: str  # display unit (DISPLAY_UNITS); TEXT_UNIT for words; SI for a constant
     meaning: str  # as rule authors read it (regimecheck explain)

@@ -18,11 +18,11 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable
-from dataclasses import dataclass
 from typing import Any, SupportsFloat, TypeAlias
 
 from ..physics import transport
 from ..physics.constants import EV
+from ..records import FrozenRecord
 from .display_units import DISPLAY_UNITS
 
 PER_CM3 = DISPLAY_UNITS["cm^-3"]  # m^-3 -> cm^-3
@@ -37,8 +37,7 @@ Reader: TypeAlias = Callable[[Getter], FieldValue]
 Compute: TypeAlias = Callable[[Getter], SupportsFloat]
 
 
-@dataclass(frozen=True)
-class SummaryField:
+class SummaryField(FrozenRecord):
     key: str  # JSON key (its trade unit in the name)
     label: str | None  # console label; None: JSON only
     shown: str  # console format of the value

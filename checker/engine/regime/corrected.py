@@ -11,9 +11,9 @@ corrections into one entry per quantity: the set a reviewer applies to the memo.
 from __future__ import annotations
 
 from collections.abc import Iterable
-from dataclasses import dataclass, field
 
 from ...quantity_registry.registry import formula_symbols, registered
+from ...records import Record, field
 from ..findings import Finding
 
 # stated Fermi levels are read per carrier from ef_minus_ec / ef_minus_ev; their
@@ -51,8 +51,7 @@ def formula_key(symbol: str | None) -> str | None:
     return quantity_key(_STATED + name) if name else None
 
 
-@dataclass
-class CorrectedEntry:
+class CorrectedEntry(Record):
     """One stated quantity of the corrected calculation."""
 
     key: str  # calculation-file key (electron_diffusivity, resistance, ...)

@@ -31,6 +31,7 @@ import numpy as np
 
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray
 from ...quantity_registry.number_text import display
+from ...records import Record
 from ...vocabulary_words import carrier_message_words
 from ..expressions.parser import names_in
 from ..findings import Correction, Embodied, Finding, carrier_word
@@ -133,8 +134,7 @@ class Cells:
         return self._word_index
 
 
-@dataclass
-class Ruled:
+class Ruled(Record):
     """One rule for one carrier (``x``: "n", "p", or "" for a rule of the calculation as a
     whole) over cells."""
 

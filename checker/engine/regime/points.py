@@ -4,10 +4,10 @@ evaluated over them (one cell per calculation), and one report per calculation."
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, TypedDict
 
 from ...quantity_registry.summary_fields import FieldValue
+from ...records import Record, field
 from ...vocabulary_words import Severity
 from ..findings import Embodied, Finding
 from . import state_values
@@ -28,8 +28,7 @@ class SweepGrid(TypedDict):
     points: int
 
 
-@dataclass
-class CalculationReport:
+class CalculationReport(Record):
     calc: Calculation
     state: dict[str, FieldValue] | None  # trade-unit summary of the solved state
     findings: list[Finding] = field(default_factory=list)
