@@ -312,8 +312,10 @@ def operating_values(
                     point[name] = np.broadcast_to(
                         to_numpy(base.definitions[name])(point), (len(members),)
                     )
+        # each symbol's column as Python floats once, not a numpy scalar per point
+        columns = {name: np.asarray(array, dtype=float).tolist() for name, array in point.items()}
         for k, i in enumerate(members):
-            out[i] = {name: float(array[k]) for name, array in point.items()}
+            out[i] = {name: column[k] for name, column in columns.items()}
     return out
 
 
