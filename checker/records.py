@@ -33,6 +33,34 @@ def field(*, default_factory: Callable[[], T]) -> T:
     return _Factory(default_factory)  # type: ignore[return-value]
 
 
+def _written_init(cls: type[_Fields]) -> Callable[..., None]:
+    """``__init__(self, <fields, with their defaults>)`` of a record type: the fields go
+    into the instance's __dict__ (a frozen record's __setattr__ refuses them), a factory
+    default is called per record, then ``__post_init__`` where the type has one."""
+    namespace: dict[str, Any] = {"_MISSING": _MISSING}
+    params, body = [], []
+    for key in cls._fields:
+        default = cls._defaults.get(key, _MISSING)
+        if default is _MISSING:
+            params.append(key)
+        elif isinstance(default, _Factory):
+            namespace[f"_factory_{key}"] = default.make
+            params.append(f"{key}=_MISSING")
+            body.append(f"    if {key} is _MISSING:\n        {key} = _factory_{key}()")
+        else:
+            namespace[f"_default_{key}"] = default
+            params.append(f"{key}=_default_{key}")
+    values = ", ".join(f"{key!r}: {key}" for key in cls._fields)
+    body.append(f"    self.__dict__.update({{{values}}})")
+    if hasattr(cls, "__post_init__"):
+        body.append("    self.__post_init__()")
+    source = f"def __init__(self, {', '.join(params)}):\n" + "\n".join(body)
+    exec(source, namespace)  # our own annotated field names only, never user text
+    made: Callable[..., None] = namespace["__init__"]
+    made.__qualname__ = f"{cls.__qualname__}.__init__"
+    return made
+
+
 class _Fields:
     """What both records share: the fields read from the annotations when a subclass is
     made, the generic __init__, repr and equality."""
@@ -55,30 +83,16 @@ class _Fields:
         if late:
             raise TypeError(f"{cls.__name__}: field {late[0]!r} has no default but follows one")
         cls._fields, cls._defaults = fields, defaults
+        if "__init__" not in cls.__dict__:  # each record type writes its own, on first use
+            cls.__init__ = _Fields.__init__  # type: ignore[method-assign]
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
-        fields, name = self._fields, type(self).__name__
-        if len(args) > len(fields):
-            raise TypeError(f"{name}() takes {len(fields)} arguments but {len(args)} were given")
-        values = dict(zip(fields, args))
-        for key, value in kwargs.items():
-            if key not in fields:
-                raise TypeError(f"{name}() got an unexpected keyword argument {key!r}")
-            if key in values:
-                raise TypeError(f"{name}() got multiple values for argument {key!r}")
-            values[key] = value
-        for key in fields:
-            value = values.get(key, _MISSING)
-            if value is _MISSING:
-                value = self._defaults.get(key, _MISSING)
-                if value is _MISSING:
-                    raise TypeError(f"{name}() missing required argument: {key!r}")
-                if isinstance(value, _Factory):
-                    value = value.make()
-            object.__setattr__(self, key, value)
-        post = getattr(self, "__post_init__", None)
-        if post is not None:
-            post()
+        # the first record of a type writes that type's own __init__ (as dataclasses do
+        # for every type at import): a type made thousands of times per run (a finding)
+        # gets a plain function, a type never made costs nothing
+        made = _written_init(type(self))
+        type(self).__init__ = made  # type: ignore[method-assign]
+        made(self, *args, **kwargs)
 
     def _values(self) -> tuple[Any, ...]:
         return tuple(getattr(self, key) for key in self._fields)
