@@ -13,6 +13,7 @@ from __future__ import annotations
 import re
 from collections.abc import Callable
 from functools import cache
+from pathlib import Path
 from typing import Any, Protocol
 
 import numpy as np
@@ -24,6 +25,7 @@ from ..physics.band_shapes import BandShape
 from ..physics.constants import EV, ROOM_TEMPERATURE
 from ..records import FrozenRecord, Record, field
 from ..resources import materials_dir
+from ..user_cache import blake2b, kept
 from .quantities import (
     NUMBER,
     WRITTEN_NUMBER,
@@ -1151,9 +1153,52 @@ def _builtin_file(name: str):
     return found
 
 
+# the code that decides what a material file becomes: a built material is kept in the
+# user cache while its file and these are unchanged (reading and checking Si's file was
+# a tenth of a one-file check's own time; unpickling it takes microseconds)
+_CHECKER = Path(__file__).resolve().parent.parent
+_BUILDERS = tuple(
+    _CHECKER / name
+    for name in (
+        "inputs/material_catalog.py",
+        "inputs/quantities.py",
+        "inputs/yaml_source.py",
+        "physics/materials.py",
+        "physics/band_shapes.py",
+        "physics/bands.py",
+        "physics/constants.py",
+        "records.py",
+        "errors.py",
+        "user_cache.py",
+    )
+)
+# the only classes a kept material may name: the models of physics.materials and the
+# band shapes
+_MATERIAL_CLASSES = frozenset(
+    {
+        ("checker.physics.materials", name)
+        for name, kind in vars(m).items()
+        if isinstance(kind, type) and issubclass(kind, FrozenRecord)
+    }
+    | {("checker.physics.band_shapes", "BandShape")}
+)
+
+
 @cache
 def _load_builtin(file_name: str) -> m.Material:
     entry = _data_files() / file_name
+    place = blake2b(str(entry).encode(), digest_size=8).hexdigest()
+    found = kept(
+        f"material-{entry.stem}-{place}.pickle",
+        (entry, *_BUILDERS),
+        _MATERIAL_CLASSES,
+        lambda: _read_builtin(entry),
+        lambda made: isinstance(made, m.Material),
+    )
+    return found  # type: ignore[return-value]  # checked to be a Material
+
+
+def _read_builtin(entry: Path) -> m.Material:
     data = load_package_yaml(entry.read_text(encoding="utf-8"), entry.name)
     return material_from_mapping(_drop_split_text(data), where=entry.name)
 

@@ -18,7 +18,7 @@ import json
 from pathlib import Path
 from typing import Any
 
-from ..user_cache import blake2b, cache_folder, write_whole
+from ...user_cache import blake2b, cache_folder, write_whole
 
 _CHECKER = Path(__file__).resolve().parents[2]
 _SOURCES = (

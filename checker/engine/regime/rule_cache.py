@@ -13,14 +13,11 @@ the folder cannot be written the rules are simply read each run.
 
 from __future__ import annotations
 
-import io
-import pickle
-import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
-from ..user_cache import blake2b, cache_folder, write_whole
+from ...user_cache import blake2b, cache_folder, kept, source_hash
 
 if TYPE_CHECKING:
     from .rulebook import Rule
@@ -44,6 +41,7 @@ _READER_SOURCES = tuple(
         "engine/regime/rule_reader.py",
         "engine/regime/rulebook.py",
         "engine/regime/rule_cache.py",
+        "user_cache.py",
     )
 )
 # the only globals a cache file may name
@@ -58,21 +56,9 @@ _ALLOWED = {
 
 
 def key(folder: Path, paths: Sequence[Path]) -> str:
-    """The hash of everything a cached rule set of ``folder`` depends on."""
-    digest = blake2b(digest_size=20)
-    digest.update(f"{sys.version}\0{folder}\0".encode())
-    for path in (*_READER_SOURCES, *paths):
-        digest.update(f"{path.name}\0".encode())
-        digest.update(path.read_bytes())
-        digest.update(b"\0")
-    return digest.hexdigest()
-
-
-class _RuleUnpickler(pickle.Unpickler):
-    def find_class(self, module: str, name: str) -> Any:
-        if (module, name) not in _ALLOWED:
-            raise pickle.UnpicklingError(f"{module}.{name} is not part of a rule set")
-        return super().find_class(module, name)
+    """The hash of everything a cached rule set of ``folder`` depends on (the rule files'
+    paths name the folder)."""
+    return source_hash((*_READER_SOURCES, *paths))
 
 
 def _file_of(folder: Path) -> Path:
@@ -80,22 +66,10 @@ def _file_of(folder: Path) -> Path:
     return cache_folder() / f"rules-{name}.pickle"
 
 
-def _stored(file: Path, wanted: str) -> tuple[Rule, ...] | None:
+def _is_rule_set(found: object) -> bool:
     from .rulebook import Rule
 
-    try:
-        found, rules = _RuleUnpickler(io.BytesIO(file.read_bytes())).load()
-    except Exception:  # absent, truncated, foreign: read the rules afresh
-        return None
-    if found != wanted or not isinstance(rules, tuple):
-        return None
-    if not all(isinstance(rule, Rule) for rule in rules):
-        return None
-    return rules
-
-
-def _store(file: Path, wanted: str, rules: tuple[Rule, ...]) -> None:
-    write_whole(file, pickle.dumps((wanted, rules), protocol=pickle.HIGHEST_PROTOCOL))
+    return isinstance(found, tuple) and all(isinstance(rule, Rule) for rule in found)
 
 
 def cached(
@@ -103,13 +77,6 @@ def cached(
 ) -> tuple[Rule, ...]:
     """The rules of ``folder`` (its rule files ``paths``): the cached set where its key
     matches, else ``read()``, which is then cached (only a set that read without error)."""
-    try:
-        wanted = key(folder, paths)
-    except OSError:
-        return read()  # a rule file that cannot be read: the reader names it
-    file = _file_of(folder)
-    rules = _stored(file, wanted)
-    if rules is None:
-        rules = read()
-        _store(file, wanted, rules)
-    return rules
+    sources = (*_READER_SOURCES, *paths)
+    rules = kept(_file_of(folder).name, sources, _ALLOWED, read, _is_rule_set)
+    return rules  # type: ignore[return-value]  # _is_rule_set checked it

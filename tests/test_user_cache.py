@@ -1,0 +1,63 @@
+"""Objects kept in the user cache (checker/user_cache.py): built-in materials come back
+equal to the ones their files make, a kept object is rebuilt when a source changes, and a
+cache file can name no class the caller did not allow."""
+
+import os
+import pickle
+
+from checker import user_cache
+from checker.inputs import material_catalog as catalog
+
+
+def test_every_builtin_material_from_the_cache_is_the_one_its_file_makes(tmp_path, monkeypatch):
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path))
+    for name in catalog.builtin_names():
+        entry = catalog._data_files() / catalog._builtin_file(name)
+        for _ in range(2):  # the first builds and keeps it, the second reads it back
+            catalog._load_builtin.cache_clear()
+            assert catalog.builtin_material(name) == catalog._read_builtin(entry), name
+    assert len(list(tmp_path.glob("regimecheck/material-*.pickle"))) == len(
+        {catalog._builtin_file(n) for n in catalog.builtin_names()}
+    )
+    catalog._load_builtin.cache_clear()
+
+
+def test_a_changed_source_rebuilds(tmp_path, monkeypatch):
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path))
+    source = tmp_path / "source.txt"
+    source.write_text("one", encoding="utf-8")
+    builds = []
+
+    def build():
+        builds.append(1)
+        return ("made", source.read_text(encoding="utf-8"))
+
+    def fits(made):
+        return isinstance(made, tuple)
+
+    assert user_cache.kept("thing.pickle", [source], (), build, fits) == ("made", "one")
+    assert user_cache.kept("thing.pickle", [source], (), build, fits) == ("made", "one")
+    source.write_text("two", encoding="utf-8")
+    assert user_cache.kept("thing.pickle", [source], (), build, fits) == ("made", "two")
+    assert builds == [1, 1]
+
+
+class _Planted:
+    def __init__(self, marker):
+        self.marker = marker
+
+    def __reduce__(self):
+        return (os.mkdir, (str(self.marker),))
+
+
+def test_a_cache_file_names_no_class_it_was_not_allowed(tmp_path, monkeypatch):
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path))
+    source = tmp_path / "source.txt"
+    source.write_text("one", encoding="utf-8")
+    marker = tmp_path / "ran"
+    folder = user_cache.cache_folder()
+    folder.mkdir(parents=True)
+    wanted = user_cache.source_hash([source])
+    (folder / "thing.pickle").write_bytes(pickle.dumps((wanted, _Planted(marker))))
+    made = user_cache.kept("thing.pickle", [source], (), lambda: "built", lambda m: True)
+    assert made == "built" and not marker.exists()
