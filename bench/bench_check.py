@@ -3,7 +3,9 @@
 interleaved rounds (bench/interleaved.py: rotated order, median of per-round ratios and
 their spread): one example without formulas, one with formulas, all examples, 1,000
 calculations in one file (every other one with four stated formulas; console and JSON)
-and the same calculations one per file in a directory.  The expression parser and the
+and the same calculations one per file in a directory; the one example also with an
+empty user cache (the first run after an install).  The package's bytecode is written
+first, as pip writes it.  The expression parser and the
 formula reader must refuse hostile text in well under a second (the slowest refusal is
 printed).  Prints a table; stops with exit code 1 where the command exits with a code
 other than 0 or 1 (an error is not timed).  The issue-16 targets (cold start, reading,
@@ -12,6 +14,7 @@ Usage: python bench/bench_check.py [--rounds 5] [--calculations 1000]
 """
 
 import argparse
+import os
 import subprocess
 import sys
 import tempfile
@@ -46,6 +49,29 @@ MIXES = [
 def command(*args):
     """A case: ``regimecheck *args`` run once (exit 0 or 1, else the bench stops)."""
     return lambda: installed_command.run([str(a) for a in args], CHECKED, cwd=ROOT)
+
+
+def cold_command(*args):
+    """A case: ``regimecheck *args`` with an empty user cache (XDG_CACHE_HOME), as the
+    first run after an install or upgrade: the rules, materials and formula matches are
+    read, checked and searched afresh, then kept."""
+
+    def case():
+        with tempfile.TemporaryDirectory() as cache:
+            env = {**os.environ, "XDG_CACHE_HOME": cache}
+            installed_command.run([str(a) for a in args], CHECKED, cwd=ROOT, env=env)
+
+    return case
+
+
+def compile_package() -> None:
+    """Write the package's bytecode, as pip does when it installs: an editable checkout
+    run under PYTHONDONTWRITEBYTECODE would otherwise time the compiler on every run."""
+    import compileall
+
+    import checker
+
+    compileall.compile_dir(Path(checker.__file__).parent, quiet=1)
 
 
 def floor():
@@ -117,11 +143,13 @@ def main():
     parser.add_argument("--calculations", type=int, default=1000)
     args = parser.parse_args()
     count = args.calculations
+    compile_package()
     with tempfile.TemporaryDirectory() as tmp:
         many, files = write_inputs(Path(tmp), count)
         cases = {
             FLOOR_NAME: floor(),
             f"check {ONE.name}": command("check", ONE),
+            f"check {ONE.name}, empty user cache": cold_command("check", ONE),
             f"check {WITH_FORMULAS.name} (formulas)": command("check", WITH_FORMULAS),
             "check examples/": command("check", ROOT / "examples"),
             f"check {count} calculations": command("check", many),
