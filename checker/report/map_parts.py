@@ -16,6 +16,7 @@ import numpy as np
 
 from ..physics.carriers import DEGENERATE_ETA, IONIZED_FRACTION, REGIMES
 from ..vocabulary_words import SEVERITY_RANK
+from .map_layout import Box
 from .safe_text import visible
 
 COLOURS = {
@@ -158,6 +159,22 @@ def markers(
     return found
 
 
+def sweep_outlines(found, to_display) -> list[Box]:
+    """Thin boxes along the drawn sweeps (rectangle sides, lines): numbers keep off them.
+    ``to_display``: (cm⁻³, K) -> display units."""
+    boxes: list[Box] = []
+    for marker in found:
+        if not marker.swept:
+            continue
+        dx, dy = marker.spans()
+        x0, y0 = to_display(min(dx), min(dy))
+        x1, y1 = to_display(max(dx), max(dy))
+        x0, x1, y0, y1 = min(x0, x1), max(x0, x1), min(y0, y1), max(y0, y1)
+        sides = [(x0, y0, x0, y1), (x1, y0, x1, y1), (x0, y0, x1, y0), (x0, y1, x1, y1)]
+        boxes += [(a - 1.5, b - 1.5, c + 1.5, d + 1.5) for a, b, c, d in sides]
+    return boxes
+
+
 def key_layout(count: int) -> tuple[int, int, int]:
     """(columns, rows, characters per name) of the list of ``count`` calculations."""
     shown = min(count, KEY_MOST) + (count > KEY_MOST)
@@ -170,17 +187,23 @@ def short(text: str, most: int) -> str:
     return text if len(text) <= most else text[: most - 1].rstrip() + "…"
 
 
-def key_lines(found: list[Marker], most: int) -> list[str]:
-    """The list under the map: each calculation by its marker's number, names cut to
-    ``most`` characters; past KEY_MOST the rest are counted."""
-    entries = [(m.number, p) for m in found for p in m.points]
-    lines = [
-        f"{number}  {short(p.label, most)} ({p.severity or 'no finding'})"
-        for number, p in entries[:KEY_MOST]
+def key_entries(found: list[Marker]) -> tuple[list[tuple[str, str, str]], str | None]:
+    """The list under the map as (number, name, severity) of each calculation, at most
+    KEY_MOST of them, and the line counting the rest (None where all are listed)."""
+    entries = [
+        (f"{m.number}  ", visible(p.label), f" ({p.severity or 'no finding'})")
+        for m in found
+        for p in m.points
     ]
-    if len(entries) > KEY_MOST:
-        lines.append(f"… and {len(entries) - KEY_MOST} more calculations")
-    return lines
+    rest = len(entries) - KEY_MOST
+    return entries[:KEY_MOST], (f"… and {rest} more calculations" if rest > 0 else None)
+
+
+def key_lines(found: list[Marker], most: int) -> list[str]:
+    """The list under the map, names cut to ``most`` characters (key_entries)."""
+    entries, rest = key_entries(found)
+    lines = [number + short(name, most) + severity for number, name, severity in entries]
+    return lines + ([rest] if rest else [])
 
 
 def severities_shown(found: list[Marker]) -> list[tuple[str, str]]:

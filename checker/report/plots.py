@@ -31,6 +31,7 @@ from .map_parts import (
     present_regimes,
     rank,
     severities_shown,
+    sweep_outlines,
 )
 from .safe_text import visible
 
@@ -165,22 +166,6 @@ def _draw_markers(ax, found) -> None:
             ax.plot(dx, dy, color=colour, lw=2.2, zorder=order, label=label)
 
 
-def sweep_outlines(found, to_display) -> list[Box]:
-    """Thin boxes along the drawn sweeps (rectangle sides, lines): numbers keep off them.
-    ``to_display``: (cm⁻³, K) -> display units."""
-    boxes: list[Box] = []
-    for marker in found:
-        if not marker.swept:
-            continue
-        dx, dy = marker.spans()
-        x0, y0 = to_display(min(dx), min(dy))
-        x1, y1 = to_display(max(dx), max(dy))
-        x0, x1, y0, y1 = min(x0, x1), max(x0, x1), min(y0, y1), max(y0, y1)
-        sides = [(x0, y0, x0, y1), (x1, y0, x1, y1), (x0, y0, x1, y0), (x0, y1, x1, y1)]
-        boxes += [(a - 1.5, b - 1.5, c + 1.5, d + 1.5) for a, b, c, d in sides]
-    return boxes
-
-
 def _number_markers(ax, found, renderer, obstacles) -> None:
     """Each marker's number beside it, clear of the region names, the markers and the
     other numbers; a number moved away from its point gets a thin leader line."""
@@ -269,9 +254,10 @@ def draw_map(grid, points=(), title=None, size=(7.8, 5.0), notice=True):
         (px - reach, py - reach, px + reach, py + reach)
         for px, py in (to_display(*m.anchor()) for m in found if not m.swept)
     ]
-    taken = _region_labels(ax, grid, renderer, dots)
+    outlines = sweep_outlines(found, to_display)
+    taken = _region_labels(ax, grid, renderer, [*dots, *outlines])
     _draw_markers(ax, found)
-    _number_markers(ax, found, renderer, [*taken, *dots, *sweep_outlines(found, to_display)])
+    _number_markers(ax, found, renderer, [*taken, *dots, *outlines])
     legend = [
         Patch(facecolor=COLOURS[r], edgecolor="#999999", label=CRITERIA[r])
         for r in present_regimes(grid)
