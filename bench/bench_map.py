@@ -1,10 +1,11 @@
 """Regime map cost, as ratios measured in the same interleaved rounds
 (bench/interleaved.py): the installed `regimecheck map` command (a 200 x 200 map of Si:P
 written as SVG) against `python -c "import numpy, yaml"`, in-process the drawing of
-the solved grid (SVG, PNG) against the solve of that grid, and `check examples/
---format html` (its inline maps) against the console report of the same files (issue 16:
-<= 2).  ``--resolution`` sets the points per axis; ``--html-only`` runs the last table
-alone.  Prints tables; stops with exit code 1 where the command fails.
+the solved grid (matplotlib SVG and PNG, the HTML report's own SVG) against the solve
+of that grid, and `check examples/ --format html` (its inline maps) against the console
+report of the same files (issue 16: <= 2).  ``--resolution`` sets the points per
+axis; ``--html-only`` runs the last table alone.  Prints tables; stops with exit code
+1 where the command fails.
 Usage: python bench/bench_map.py [--resolution 200] [--rounds 5] [--html-only]
 """
 
@@ -51,6 +52,7 @@ def _maps(args):
 
     from checker import load_material
     from checker.engine.regime.regime_map import regime_grid
+    from checker.report.map_svg import map_svg
     from checker.report.plots import draw_map, render
 
     material = load_material("Si")
@@ -60,6 +62,7 @@ def _maps(args):
         solve: lambda: regime_grid(material, "P", size=(size, size)),
         "draw it as SVG": lambda: render(draw_map(grid), "svg"),
         "draw it as PNG": lambda: render(draw_map(grid), "png"),
+        "write it as inline SVG (HTML report)": lambda: map_svg(grid),
     }
     print(ratio_table(interleaved(drawing, args.rounds), solve, unit="us/map"))
     print()

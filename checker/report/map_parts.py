@@ -48,6 +48,7 @@ class Boundary:
     level: float
     colour: str
     label: str
+    logarithmic: bool = False  # spans decades: crossings are placed in its logarithm
 
 
 def boundaries(grid) -> list[Boundary]:
@@ -56,7 +57,7 @@ def boundaries(grid) -> list[Boundary]:
     candidates = [
         Boundary(grid.eta, DEGENERATE_ETA, "#b45f06", f"η_{carrier} = {DEGENERATE_ETA:g}"),
         Boundary(grid.fraction, IONIZED_FRACTION, "#1155cc", f"{IONIZED_FRACTION:.0%} ionized"),
-        Boundary(grid.ni_ratio, 1.0, "#bf9000", "n_i = N"),
+        Boundary(grid.ni_ratio, 1.0, "#bf9000", "n_i = N", logarithmic=True),
     ]
     drawn = []
     with np.errstate(all="ignore"):

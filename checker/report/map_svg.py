@@ -249,7 +249,11 @@ def _boundary_paths(grid, frame: _Frame) -> list[str]:
     ys = frame.y(grid.T)
     paths = []
     for line in boundaries(grid):
-        d = "".join(_polyline(p) for p in contour_lines(line.values, line.level, xs, ys))
+        values, level = line.values, line.level
+        if line.logarithmic:
+            with np.errstate(all="ignore"):
+                values, level = np.log(values), math.log(level)
+        d = "".join(_polyline(p) for p in contour_lines(values, level, xs, ys))
         paths.append(
             f'<path d="{d}" stroke="{line.colour}" stroke-width="1.5" '
             f'stroke-linejoin="round"><title>{_e(line.label)}</title></path>'

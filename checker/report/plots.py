@@ -1,7 +1,8 @@
 """Regime map and η(T) curve, drawn with matplotlib (object API, no pyplot, no display).
 
-matplotlib is imported only here and only when a plot is asked for; it draws SVG
-(inline in the HTML report) or PNG.
+matplotlib is imported only here and only when a plot is asked for: the `map` and
+`curve` commands' PNG and SVG files (one drawing for both suffixes).  The HTML report
+draws its maps without it (map_svg.py); both read what a map shows from map_parts.py.
 """
 
 from __future__ import annotations
