@@ -338,6 +338,11 @@ def _region_names(grid, frame: _Frame, dots: list[Box]) -> tuple[list[str], list
         x0, y0, x1, y1 = _svg_box(box)
         cx, cy = (x0 + x1) / 2, (y0 + y1) / 2
         turn = f' transform="rotate(-90 {_n(cx)} {_n(cy)})"' if upright else ""
+        # a halo in the region's own colour: a boundary line passing under the name
+        # is hidden there, not drawn through its letters
+        turn += f' stroke="{COLOURS[REGIMES[code]]}" stroke-width="3" paint-order="stroke"'
+        turn += ' stroke-linejoin="round"'
+
         texts.append(
             _text(
                 cx,
