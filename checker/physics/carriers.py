@@ -12,7 +12,7 @@ import numpy as np
 import numpy.typing as npt
 
 from . import transport
-from .arrays import ArrayIn, FloatArray, FloatOrArray
+from .arrays import ArrayIn, FloatArray, FloatOrArray, distinct_points
 from .constants import BOLTZMANN, ELEMENTARY_CHARGE
 from .equilibrium import State
 from .materials import (
@@ -90,7 +90,7 @@ def carrier_transport(
         # the lattice limit: the highest of the material's published fits at N = 0
         # a function of T alone: evaluated once per distinct temperature (a sweep over
         # doping repeats each one)
-        first, back = _distinct_points([np.ravel(state.T)], np.size(state.T))
+        first, back = distinct_points([np.ravel(state.T)], np.size(state.T))
         T_rows = np.ravel(state.T)[first]
         zero = np.zeros_like(T_rows)
         mu0 = (
@@ -154,7 +154,7 @@ def _solve_at(state: State, T0: float) -> tuple[State, npt.NDArray[np.intp]]:
         {s: np.broadcast_to(d, shape).ravel() for s, d in g.items()}
         for g in (state.donors, state.acceptors)
     )
-    first, back = _distinct_points([*donors.values(), *acceptors.values()], int(np.prod(shape)))
+    first, back = distinct_points([*donors.values(), *acceptors.values()], int(np.prod(shape)))
     solved = solve(
         state.material,
         np.full(len(first), T0),
@@ -163,25 +163,6 @@ def _solve_at(state: State, T0: float) -> tuple[State, npt.NDArray[np.intp]]:
         band_gap_narrowing=bool(np.any(state.narrowing > 0)),
     )
     return solved, back.reshape(shape)
-
-
-def _distinct_points(
-    columns: list[FloatArray], size: int
-) -> tuple[npt.NDArray[np.intp], npt.NDArray[np.intp]]:
-    """(one point of each distinct combination of the columns' values, the combination of
-    every point): a row's values are column[first], a point's row is back.  Each column is
-    numbered by its own distinct values and the numbers combined (a 1-D np.unique per
-    column, an order of magnitude faster than np.unique over rows); no column: one row."""
-    if len(columns) == 1:
-        _, first, back = np.unique(columns[0], return_index=True, return_inverse=True)
-        return first, back.ravel()
-    key = np.zeros(size, dtype=np.intp)
-    for column in columns:
-        values, code = np.unique(column, return_inverse=True)
-        # renumbered at each step, so the combined key stays below size * len(values)
-        key = np.unique(key * len(values) + code.ravel(), return_inverse=True)[1].ravel()
-    _, first, back = np.unique(key, return_index=True, return_inverse=True)
-    return first, back.ravel()
 
 
 # regime names, indexed by the codes of regime_code (precedence rises with the code)
