@@ -251,6 +251,11 @@ def rule_mask(
         made |= mask
     if not rule.declared and not rule.implied_by:
         made[:] = True
+    # the requirements before the gate: a value check whose stated number is nowhere
+    # given (a sweep's chunk states the same numbers everywhere) ends here
+    for name in rule.requires:
+        if made.any():
+            made &= np.isfinite(values[names.get(name, name)])
     if not made.any():
         indicator = (
             _cells_array(rule.expression, x, values, count)
@@ -260,8 +265,6 @@ def rule_mask(
         return made, indicator, implied
     if rule.when is not None:
         made &= _nonzero(np.broadcast_to(rule.when.run[x](values), (count,)))
-    for name in rule.requires:
-        made &= np.isfinite(values[names.get(name, name)])
     indicator = _cells_array(rule.expression, x, values, count)
     wrong_side = (
         indicator > rule.threshold if rule.relation == "above" else indicator < rule.threshold

@@ -66,18 +66,30 @@ def _group_key(calc: Calculation) -> tuple[object, ...]:
     )
 
 
-def _unknown(count: int, solved: Collection[str] = ()) -> Values:
+def _unknown(count: int, solved: Collection[str] = (), writable: bool = True) -> Values:
     """Every quantity over ``count`` points, unknown (NaN, or empty text) until solved;
-    the names in ``solved`` (given their values next) are left out."""
-    values: Values = {name: np.full(count, np.nan) for name in value_names() - set(solved)}
+    the names in ``solved`` (given their values next) are left out.  Not ``writable``:
+    read-only views of one value each (a sweep's chunk only replaces whole arrays, and
+    ~100 unknown quantities would otherwise each fill 256 kB per chunk)."""
+    fill = _filled if writable else _constant
+    values: Values = {name: fill(count, np.nan) for name in value_names() - set(solved)}
     for q in QUANTITIES:
         if q.name in solved:
             continue
         if q.source is Source.CONSTANT:
-            values[q.name] = np.full(count, q.value)
+            values[q.name] = fill(count, q.value)
         elif q.source is Source.TEXT:
-            values[q.name] = np.full(count, "", dtype=object)
+            values[q.name] = fill(count, "", object)
     return values
+
+
+def _filled(count: int, value: object, dtype: type = float) -> npt.NDArray[Any]:
+    return np.full(count, value, dtype=dtype)
+
+
+def _constant(count: int, value: object, dtype: type = float) -> npt.NDArray[Any]:
+    """``value`` at ``count`` points without the memory: a read-only view of one element."""
+    return np.broadcast_to(np.array(value, dtype=dtype), (count,))
 
 
 def solve_sweep(
@@ -86,7 +98,7 @@ def solve_sweep(
     """Every quantity over the points of a sweep of ``calc`` (arrays of one length)."""
     count = len(T)
     put, skipped = solve_points(calc, T, donors, acceptors)
-    values = _unknown(count, put)
+    values = _unknown(count, put, writable=False)
     # the solve's own arrays are kept as they are; a copy only where an array would be
     # shared (a caller's input, or one array under two names) or is not yet one per point
     shared = {_memory(a) for a in (T, *donors.values(), *acceptors.values())}
@@ -433,8 +445,8 @@ def fill_inputs(
     size = len(calculations) if count is None else count
 
     def column(getter: Callable[[Calculation], float]) -> FloatArray:
-        if count is not None:
-            return np.full(count, getter(calculations[0]), dtype=float)
+        if count is not None:  # a sweep: one value for the whole chunk (read-only)
+            return _constant(count, getter(calculations[0]))
         return (
             np.array([getter(c) for c in calculations], dtype=float)
             if calculations
