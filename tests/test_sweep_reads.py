@@ -1,0 +1,85 @@
+"""A sweep's chunks compute only what its rules read (evaluate.chunk_reads): a rule whose
+assumption no cell can make reads nothing, so its quantities may stay unknown.  Pruning
+must change no cell of any rule: the masks and worst cells of a pruned run are those of a
+run that computes every quantity."""
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from checker.engine.regime import rulebook, state_values, sweep
+from checker.engine.run import check_calculations
+from checker.inputs.calculation_file import parse_calculations
+
+ROOT = Path(__file__).resolve().parents[1]
+
+# a grid stating numbers many rules compare (a Hall density, a mobility, a resistivity)
+STATED = """name: stated numbers over a grid
+material: Si
+temperature: {from: 220 K, to: 420 K, steps: 7}
+doping:
+  donors: {P: {from: 1e15 cm-3, to: 1e20 cm-3, steps: 9}}
+  acceptors: {B: 3e15 cm-3}
+structure: {length: 2 um, cross_section: 1 um^2}
+stated:
+  hall_density: 1e17 cm-3
+  electron_mobility: 1200 cm^2/(V*s)
+  resistivity: 0.05 ohm*cm
+assumes: [non-degenerate, full-ionization, einstein-relation]
+"""
+PLAIN = STATED.split("stated:")[0] + "assumes: [non-degenerate]\n"
+
+
+def _sweep(text, name="grid.yaml"):
+    read = parse_calculations(text, name)
+    assert not read.errors, read.errors
+    (calc,) = read.calculations
+    return calc
+
+
+def _example_sweep():
+    path = ROOT / "examples" / "lw3_corner_sweep.yaml"
+    return _sweep(path.read_text(encoding="utf-8"), str(path))
+
+
+@pytest.mark.parametrize("make", [lambda: _sweep(STATED), lambda: _sweep(PLAIN), _example_sweep])
+def test_pruned_chunks_rule_every_cell_as_full_ones(make, monkeypatch):
+    monkeypatch.setattr(sweep, "CHUNK", 16)  # several chunks, and a short last one
+    calc = make()
+    rules = rulebook.load_rules()
+    report = check_calculations([calc]).reports[0]
+    grid_points = sweep.grid(calc)
+    reads = sweep.sweep_reads(calc, rules, report.embodied, grid_points)
+    full, _ = sweep.rule_grid(calc, rules, report.embodied, grid_points)
+    pruned, _ = sweep.rule_grid(calc, rules, report.embodied, grid_points, reads=reads)
+    assert full, "no rule fires on the grid: nothing compared"
+    assert full.keys() == pruned.keys()
+    for key, (mask, worst) in full.items():
+        np.testing.assert_array_equal(pruned[key][0], mask, err_msg=str(key))
+        assert pruned[key][1] == worst, key
+
+
+def test_the_hall_factors_are_computed_only_where_a_rule_reads_them():
+    rules = rulebook.load_rules()
+    for text, hall_read in ((STATED, True), (PLAIN, False)):
+        calc = _sweep(text)
+        report = check_calculations([calc]).reports[0]
+        grid_points = sweep.grid(calc)
+        reads = sweep.sweep_reads(calc, rules, report.embodied, grid_points)
+        assert ("n_hall" in reads) is hall_read
+        T, donors, acceptors, _ = grid_points
+        at = np.arange(5)
+        values, _ = state_values.solve_sweep(
+            calc,
+            T[at],
+            {s: a[at] for s, a in donors.items()},
+            {s: a[at] for s, a in acceptors.items()},
+            reads,
+        )
+        assert bool(np.isfinite(values["rH_n"]).all()) is hall_read
+        if hall_read:  # lattice scattering, non-degenerate (1e15 cm^-3, 220 K): 3 pi/8
+            # (Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1)
+            assert values["rH_n"][0] == pytest.approx(3 * np.pi / 8, rel=1e-4)
+        else:
+            assert np.isnan(values["rH_n"]).all() and np.isnan(values["n_hall"]).all()
