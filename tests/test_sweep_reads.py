@@ -29,6 +29,11 @@ stated:
 assumes: [non-degenerate, full-ionization, einstein-relation]
 """
 PLAIN = STATED.split("stated:")[0] + "assumes: [non-degenerate]\n"
+# a short bar whose conductance and mean free path are stated (the Landauer and the
+# mean-free-path rules read the carriers' velocities)
+CONDUCTOR = STATED.split("stated:")[0] + (
+    "stated: {conductance: 2 mS, mean_free_path: 40 nm}\nassumes: [diffusive]\n"
+)
 
 
 def _sweep(text, name="grid.yaml"):
@@ -43,7 +48,10 @@ def _example_sweep():
     return _sweep(path.read_text(encoding="utf-8"), str(path))
 
 
-@pytest.mark.parametrize("make", [lambda: _sweep(STATED), lambda: _sweep(PLAIN), _example_sweep])
+@pytest.mark.parametrize(
+    "make",
+    [lambda: _sweep(STATED), lambda: _sweep(PLAIN), lambda: _sweep(CONDUCTOR), _example_sweep],
+)
 def test_pruned_chunks_rule_every_cell_as_full_ones(make, monkeypatch):
     monkeypatch.setattr(sweep, "CHUNK", 16)  # several chunks, and a short last one
     calc = make()
@@ -60,26 +68,38 @@ def test_pruned_chunks_rule_every_cell_as_full_ones(make, monkeypatch):
         assert pruned[key][1] == worst, key
 
 
+def _reads_and_first_cells(text, count):
+    """(what the grid's rules read, the values of its first ``count`` cells so pruned)."""
+    calc = _sweep(text)
+    report = check_calculations([calc]).reports[0]
+    grid_points = sweep.grid(calc)
+    reads = sweep.sweep_reads(calc, rulebook.load_rules(), report.embodied, grid_points)
+    T, donors, acceptors, _ = grid_points
+    at = np.arange(count)
+    values, _ = state_values.solve_sweep(
+        calc,
+        T[at],
+        {s: a[at] for s, a in donors.items()},
+        {s: a[at] for s, a in acceptors.items()},
+        reads,
+    )
+    return reads, values
+
+
 def test_the_hall_factors_are_computed_only_where_a_rule_reads_them():
-    rules = rulebook.load_rules()
     for text, hall_read in ((STATED, True), (PLAIN, False)):
-        calc = _sweep(text)
-        report = check_calculations([calc]).reports[0]
-        grid_points = sweep.grid(calc)
-        reads = sweep.sweep_reads(calc, rules, report.embodied, grid_points)
+        reads, values = _reads_and_first_cells(text, 5)
         assert ("n_hall" in reads) is hall_read
-        T, donors, acceptors, _ = grid_points
-        at = np.arange(5)
-        values, _ = state_values.solve_sweep(
-            calc,
-            T[at],
-            {s: a[at] for s, a in donors.items()},
-            {s: a[at] for s, a in acceptors.items()},
-            reads,
-        )
         assert bool(np.isfinite(values["rH_n"]).all()) is hall_read
         if hall_read:  # lattice scattering, non-degenerate (1e15 cm^-3, 220 K): 3 pi/8
             # (Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (2007), ch. 1)
             assert values["rH_n"][0] == pytest.approx(3 * np.pi / 8, rel=1e-4)
         else:
             assert np.isnan(values["rH_n"]).all() and np.isnan(values["n_hall"]).all()
+
+
+def test_the_velocities_are_computed_only_where_a_rule_reads_them():
+    for text, read in ((CONDUCTOR, True), (PLAIN, False)):
+        reads, values = _reads_and_first_cells(text, 3)
+        assert ("lambda_n" in reads or "G_landauer" in reads) is read
+        assert bool(np.isfinite(values["vth_n"]).all()) is read

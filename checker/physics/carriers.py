@@ -34,7 +34,10 @@ def _dominant(species: dict[str, FloatArray]) -> str | None:
 
 
 def carrier_transport(
-    state: State, dimension: int = 3, mobility_model: str | None = None
+    state: State,
+    dimension: int = 3,
+    mobility_model: str | None = None,
+    velocities: bool = True,
 ) -> dict[str, FloatOrArray]:
     """Mobilities, diffusion coefficients, conductivity and mean free paths at a State.
 
@@ -47,7 +50,8 @@ def carrier_transport(
     exponent (NaN where the material has none).  D uses the generalized
     Einstein relation, lambda = 2D/<v_x^+> with Fermi–Dirac statistics; a
     Kane conduction band (``state.electron_band``, in the calculation's dimensionality) sets
-    both for the electrons.
+    both for the electrons.  ``velocities`` False: D, <v_x+> and lambda (their F_j ratios
+    and window averages) are left NaN, for a caller that reads none of them.
     Returns a dict of SI arrays.
 
     References
@@ -84,7 +88,11 @@ def carrier_transport(
             if x == "n" and state.electron_band is not None
             else None
         )
-        d = transport.diffusion_coefficient(mu, state.T, eta, dimension, kane)
+        d = (
+            transport.diffusion_coefficient(mu, state.T, eta, dimension, kane)
+            if velocities
+            else np.full_like(mu, np.nan)
+        )
         result[f"mu_{x}"] = mu
         result[f"cond_{x}"] = conduction[x]
         # the lattice limit: the highest of the material's published fits at N = 0
@@ -102,7 +110,7 @@ def carrier_transport(
         result[f"D_{x}"] = d
         result[f"vsat_{x}"] = model.vsat(state.T) if model.vsat else np.full_like(mu, np.nan)
         result[f"beta_{x}"] = model.beta(state.T) if model.beta else np.full_like(mu, np.nan)
-        if model.thermal_mass:
+        if model.thermal_mass and velocities:
             v = transport.unidirectional_thermal_velocity(
                 state.T, model.thermal_mass, eta, dimension, kane
             )

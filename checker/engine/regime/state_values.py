@@ -102,8 +102,8 @@ def solve_sweep(
     """Every quantity over the points of a sweep of ``calc`` (arrays of one length).
     ``reads``: the names the sweep's rules read (evaluate.chunk_reads); then the words
     only reports and messages read (the regime, the models past their range) and the
-    intrinsic-onset temperature and Hall factors where no rule reads them are left
-    unknown.  None: every quantity."""
+    intrinsic-onset temperature, the Hall factors and the carriers' velocities and mean
+    free paths where no rule reads them are left unknown.  None: every quantity."""
     count = len(T)
     put, skipped = solve_points(calc, T, donors, acceptors, reads=reads)
     values = _unknown(count, put, writable=False)
@@ -221,7 +221,9 @@ def solve_points(
     )
     skipped = None
     try:
-        flow = carriers.carrier_transport(state, dim)
+        flow = carriers.carrier_transport(
+            state, dim, velocities=reads is None or not _VELOCITY.isdisjoint(reads)
+        )
     except MissingParameterError as exc:
         # statistics checks still run; mobility-based ones see NaN and stay silent
         skipped = f"transport checks skipped: {exc}"
@@ -532,6 +534,11 @@ def fill_inputs(
         _hall(values, values["hall_r"])
 
 
+# what reads the carriers' D, <v_x+> and lambda: the mean free paths, the bulk modes (their
+# valleys' velocity factor) and the conductances built on them
+_VELOCITY = frozenset(
+    f"{stem}_{x}" for stem in ("vth", "lambda_model", "lambda", "modes_a") for x in Carrier
+) | {"modes", "G_ballistic", "G_energy", "G_landauer"}
 # what _hall gives (a sweep whose rules read none of it skips the Hall factors' F_j moments)
 _HALL = frozenset({"rH_n", "rH_p", "n_hall", "n_hall_lo", "n_hall_hi"})
 
