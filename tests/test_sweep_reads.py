@@ -1,7 +1,7 @@
-"""A sweep's chunks compute only what its rules read (evaluate.chunk_reads): a rule whose
-assumption no cell can make reads nothing, so its quantities may stay unknown.  Pruning
-must change no cell of any rule: the masks and worst cells of a pruned run are those of a
-run that computes every quantity."""
+"""A sweep's chunks rule only the rules that may fire on its grid and compute only what
+those read (evaluate.sweep_rules): a rule whose assumption no cell can make fires nowhere
+and reads nothing.  Pruning must change no cell of any rule: the masks and worst cells of
+a pruned run are those of a run of every rule over every quantity."""
 
 from pathlib import Path
 
@@ -58,9 +58,10 @@ def test_pruned_chunks_rule_every_cell_as_full_ones(make, monkeypatch):
     rules = rulebook.load_rules()
     report = check_calculations([calc]).reports[0]
     grid_points = sweep.grid(calc)
-    reads = sweep.sweep_reads(calc, rules, report.embodied, grid_points)
+    ruled, reads = sweep.grid_rules(calc, rules, report.embodied, grid_points)
+    assert len(ruled) < len(rules)
     full, _ = sweep.rule_grid(calc, rules, report.embodied, grid_points)
-    pruned, _ = sweep.rule_grid(calc, rules, report.embodied, grid_points, reads=reads)
+    pruned, _ = sweep.rule_grid(calc, ruled, report.embodied, grid_points, reads=reads)
     assert full, "no rule fires on the grid: nothing compared"
     assert full.keys() == pruned.keys()
     for key, (mask, worst) in full.items():
@@ -73,7 +74,7 @@ def _reads_and_first_cells(text, count):
     calc = _sweep(text)
     report = check_calculations([calc]).reports[0]
     grid_points = sweep.grid(calc)
-    reads = sweep.sweep_reads(calc, rulebook.load_rules(), report.embodied, grid_points)
+    _, reads = sweep.grid_rules(calc, rulebook.load_rules(), report.embodied, grid_points)
     T, donors, acceptors, _ = grid_points
     at = np.arange(count)
     values, _ = state_values.solve_sweep(

@@ -219,15 +219,18 @@ def assumption_made(
     return (declared_here & in_use) | (by_formula >= 0), by_formula
 
 
-def chunk_reads(rules: Iterable[Rule], cells: Cells) -> frozenset[str]:
-    """The quantities ruling a sweep's chunks reads (concrete names), from ``cells``, one
-    probe cell of the sweep: a rule whose assumption no chunk can make (not declared, no
-    stated formula embodies it, no stated number implies it; or a stated number it
-    requires is not given) reads nothing there, as :func:`rule_mask` then stops before
-    its gate and indicator.  The sweep's stated numbers are the same at every cell, so
-    the probe decides for the whole grid; a rule that may fire anywhere counts whole."""
+def sweep_rules(rules: Iterable[Rule], cells: Cells) -> tuple[list[Rule], frozenset[str]]:
+    """(the rules that may fire at some cell of a sweep, the quantities they read as
+    concrete names), from ``cells``, one probe cell of the sweep.  A rule whose assumption
+    no cell can make (not declared, no stated formula embodies it, no stated number
+    implies it; or a stated number it requires, or whose present() is a factor of its
+    gate, is not given) fires nowhere, and :func:`rule_mask` would stop before its gate
+    and indicator: ruling the chunks without it, and without what only it reads, changes
+    no cell.  The sweep's stated numbers are the same at every cell, so the probe decides
+    for the whole grid; a rule that may fire anywhere counts whole."""
     (calc,), (embodied,) = cells.calculations, cells.embodied
     values = cells.values
+    kept: list[Rule] = []
     reads: set[str] = set()
     for rule in rules:
         if rule.evaluated_by:
@@ -248,6 +251,8 @@ def chunk_reads(rules: Iterable[Rule], cells: Cells) -> frozenset[str]:
             needed = [n for n in (*rule.requires, *_gate_presences(rule)) if _is_stated(n)]
             if not made or not all(given(n) for n in needed):
                 continue
+            if not kept or kept[-1] is not rule:
+                kept.append(rule)
             trees = [rule.expression.tree, *([rule.when.tree] if rule.when else [])]
             for imp in rule.implied_by:
                 trees += [imp.shortcut.tree, *([imp.exact.tree] if imp.exact else [])]
@@ -260,7 +265,7 @@ def chunk_reads(rules: Iterable[Rule], cells: Cells) -> frozenset[str]:
             for tree in trees:
                 found |= names_in(tree)
             reads |= {names.get(name, name) for name in found}
-    return frozenset(reads)
+    return kept, frozenset(reads)
 
 
 def _gate_presences(rule: Rule) -> list[str]:

@@ -100,7 +100,7 @@ def solve_sweep(
     reads: Collection[str] | None = None,
 ) -> tuple[Values, str | None]:
     """Every quantity over the points of a sweep of ``calc`` (arrays of one length).
-    ``reads``: the names the sweep's rules read (evaluate.chunk_reads); then the words
+    ``reads``: the names the sweep's rules read (evaluate.sweep_rules); then the words
     only reports and messages read (the regime, the models past their range) and the
     intrinsic-onset temperature, the Hall factors and the carriers' velocities and mean
     free paths where no rule reads them are left unknown.  None: every quantity."""

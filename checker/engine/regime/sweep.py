@@ -21,7 +21,7 @@ import numpy as np
 from ...inputs.calculation_file import AxisKey
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray
 from ..findings import Embodied, carrier_word
-from .evaluate import Cells, beyond, chunk_reads, rule_cells, rule_indicator
+from .evaluate import Cells, beyond, rule_cells, rule_indicator, sweep_rules
 from .points import CalculationReport, check_points
 from .rulebook import Rule
 from .state_values import Values, solve_sweep
@@ -154,8 +154,8 @@ def check_sweep(
         return CalculationReport(calc, None, error=first.error), errors
     for result in first.formulas:  # a value "here" belongs to one point, not to a sweep
         result.value = result.exact = result.error = float("nan")
-    reads = sweep_reads(calc, rules, first.embodied, grid_points)
-    masks, notes = rule_grid(calc, rules, first.embodied, grid_points, progress, reads)
+    ruled, reads = grid_rules(calc, rules, first.embodied, grid_points)
+    masks, notes = rule_grid(calc, ruled, first.embodied, grid_points, progress, reads)
     findings = [f for f in first.findings if f.rule in ("FORM01", "FORM02")]
     by_id = {rule.id: rule for rule in rules}
     ordered = sorted(masks.items())
@@ -181,13 +181,13 @@ def check_sweep(
     return report, errors
 
 
-def sweep_reads(
+def grid_rules(
     calc: Calculation, rules: Sequence[Rule], embodied: list[Embodied], grid_points: GridPoints
-) -> frozenset[str]:
-    """The quantities the rules read over the grid (evaluate.chunk_reads), from a probe of
-    the grid's first point: what none reads, a chunk need not compute."""
+) -> tuple[list[Rule], frozenset[str]]:
+    """(the rules that may fire on the grid, the quantities they read): evaluate.sweep_rules
+    from a probe of the grid's first point; the chunks rule and compute only those."""
     values = _values_at(calc, grid_points, [0])
-    return chunk_reads(rules, Cells.grid(calc, values, 1, embodied))
+    return sweep_rules(rules, Cells.grid(calc, values, 1, embodied))
 
 
 def rule_grid(
@@ -199,7 +199,7 @@ def rule_grid(
     reads: frozenset[str] | None = None,
 ) -> tuple[Masks, list[str]]:
     """({(rule id, carrier): (failing mask over the grid, worst flat index)}, notes):
-    every rule over the grid in chunks of cells (``reads``: sweep_reads; None: every
+    every rule over the grid in chunks of cells (``reads``: grid_rules; None: every
     quantity)."""
     T, donors, acceptors, shape = grid_points
     size = T.size
