@@ -19,7 +19,9 @@ residual f(eta) = ln(left) - ln(right) is strictly increasing in eta; it is
 evaluated entirely in logarithms (densities from e^-10000 to e^50 never under-
 or overflow) and solved by safeguarded Newton (bisection whenever a step
 leaves the bracket).  Every point either meets |f| <= 1e-12 (relative
-neutrality residual) or raises ConvergenceError.
+neutrality residual; measured, or bounded after a last Newton step of at most
+2^-21, see ACCEPT_STEP) or raises ConvergenceError; every block then measures
+neutrality afresh in its plain form (<= 1e-10).
 
 References
 ----------
@@ -51,6 +53,10 @@ from .materials import Dopant, Material
 
 MAX_ITERATIONS = 200
 TOLERANCE = 1e-12
+# a Newton step this small is taken as the last: f'' <= 4 (each side's ln-sum has slopes in
+# [-1, 1], so its curvature is at most the slopes' variance plus a term's own, <= 1 + 1),
+# so |f| after it is at most f''/2 step^2 <= 2 (2^-21)^2 ~ 4.5e-13, below TOLERANCE
+ACCEPT_STEP = 2.0**-21
 BALANCE_TOLERANCE = 1e-10  # relative neutrality error every returned point meets
 
 # one bound level: (ln N_level, occupancy offset E(N)/kT + ln g, ln b, ln(1 - b))
@@ -614,6 +620,10 @@ def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatA
         done = small_f | (np.abs(step) <= tiny) | (hi - lo <= tiny)
         new = x + step
         outside = ((new <= lo) | (new >= hi)) & ~done
+        # a last Newton step inside the bracket: its point is returned without another
+        # evaluation (|f| there <= 4.5e-13, see ACCEPT_STEP; the block's plain-form
+        # neutrality check measures it)
+        last = (np.abs(step) <= ACCEPT_STEP) & ~done & ~outside
         if outside.any():
             o_lo, o_hi, o_x, o_lim = lo[outside], hi[outside], x[outside], limit[outside]
             closed = np.isfinite(o_lo) & np.isfinite(o_hi)
@@ -625,9 +635,13 @@ def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatA
         if big.any():
             limit[big] *= 4.0
         np.copyto(x, new, where=~done)
+        # f is not measured after a last step: the block's plain balance is its residual
+        measured = np.abs(f)
+        measured[last] = 0.0
+        done |= last
         if done.any():
             out_eta[idx[done]] = x[done]
-            out_f[idx[done]] = np.abs(f[done])
+            out_f[idx[done]] = measured[done]
             keep = np.flatnonzero(~done)
             if keep.size == 0:
                 return out_eta, out_f, iterations
