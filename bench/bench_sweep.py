@@ -5,7 +5,8 @@ is checked by `regimecheck check` (bench/installed_command.py: the console scrip
 this interpreter; any exit code other than 0 or 1 stops the bench).  Timed in interleaved
 rounds (bench/interleaved.py) beside the anchor, ``solve_equilibrium`` of the very same
 grid points in this process (all worker threads, as the sweep solves); a one-point check
-gives the command's start-up, so that the net ratio is the grid's own cost.  The headline
+gives the command's start-up, and the row "sweep less start-up" (each round's sweep less
+its start-up) the grid's own cost.  The headline
 is the median per-round ratio to the solve, with its spread.  Last, the peak resident
 memory of the command on a 2000 x 2000 grid (4e6 points), measured on that child alone
 (os.wait4).  Prints tables; asserts nothing.
@@ -92,14 +93,12 @@ def main():
             f"check, {n} x {n} sweep": lambda: installed_command.run(["check", path], CHECKED),
         }
         timings = interleaved.interleaved(cases, rounds=args.rounds)
+        # the grid's own cost: each round's sweep less that round's start-up
+        solve, start, sweep = (timings[name] for name in cases)
+        net = tuple(s - u for s, u in zip(sweep.seconds, start.seconds, strict=True))
+        timings["sweep less start-up"] = interleaved.Timing("sweep less start-up", net)
         print(f"sweep of {points:.0e} points, {args.rounds} interleaved rounds")
-        print(interleaved.ratio_table(timings, "solve of the grid", per=points, unit="us/point"))
-        solve, start, sweep = (timings[name].seconds for name in cases)
-        net = sorted((s - u) / v for s, u, v in zip(sweep, start, solve, strict=True))
-        print(
-            f"{'sweep less start-up, x solve':<40} {'':>10} {net[len(net) // 2]:>14.2f} "
-            f"{f'{net[0]:.2f}-{net[-1]:.2f}':>15}"
-        )
+        print(interleaved.ratio_table(timings, solve.name, per=points, unit="us/point"))
         if args.memory_size:
             m = args.memory_size
             peak = peak_memory_mb(grid_file(tmp, m))

@@ -25,6 +25,28 @@ from checker.report.plots import (
 )
 
 CM3 = 1e6  # cm^-3 in m^-3
+# three calculations at one point (worst: error), two elsewhere (invented devices)
+COINCIDENT = [
+    MapPoint("LX-1 resistor, nominal", 1e16 * CM3, 300.0, None),
+    MapPoint("LX-1 resistor, hot", 1e16 * CM3, 300.0, "error"),
+    MapPoint("LX-1 resistor, cold", 1e16 * CM3, 300.0, "warning"),
+    MapPoint("LX-2 contact", 1e19 * CM3, 300.0, "info"),
+    MapPoint("LX-3 well", 1e15 * CM3, 400.0, "warning"),
+]
+
+
+def crowded_points(count: int = 40) -> list[MapPoint]:
+    """``count`` invented dies scattered over one decade of doping near 300 K."""
+    rng = np.random.default_rng(7)
+    return [
+        MapPoint(
+            f"LX-{i} die {i}",
+            10 ** rng.uniform(15.5, 16.5) * CM3,
+            float(rng.uniform(280, 330)),
+            ("warning", None, "error")[i % 3],
+        )
+        for i in range(count)
+    ]
 
 
 @pytest.fixture(scope="module")
@@ -52,13 +74,7 @@ def _apart(boxes):
 
 
 def test_coincident_points_share_one_marker_in_the_worst_colour(silicon):
-    here = [
-        MapPoint("LX-1 resistor, nominal", 1e16 * CM3, 300.0, None),
-        MapPoint("LX-1 resistor, hot", 1e16 * CM3, 300.0, "error"),
-        MapPoint("LX-1 resistor, cold", 1e16 * CM3, 300.0, "warning"),
-        MapPoint("LX-2 contact", 1e19 * CM3, 300.0, "info"),
-        MapPoint("LX-3 well", 1e15 * CM3, 400.0, "warning"),
-    ]
+    here = COINCIDENT
     ax, renderer = _drawn(draw_map(silicon, here))
     markers = _tagged(ax.lines, MARKER_TAG)
     assert len(markers) == 3  # one per distinct point
@@ -81,16 +97,7 @@ def test_coincident_points_share_one_marker_in_the_worst_colour(silicon):
 
 
 def test_numbers_of_forty_crowded_points_cover_nothing(silicon):
-    rng = np.random.default_rng(7)
-    crowd = [
-        MapPoint(
-            f"LX-{i} die {i}",
-            10 ** rng.uniform(15.5, 16.5) * CM3,
-            float(rng.uniform(280, 330)),
-            ("warning", None, "error")[i % 3],
-        )
-        for i in range(40)
-    ]
+    crowd = crowded_points()
     ax, renderer = _drawn(draw_map(silicon, crowd))
     numbers = _boxes(_tagged(ax.texts, NUMBER_TAG), renderer)
     regions = _boxes(_tagged(ax.texts, REGION_TAG), renderer)

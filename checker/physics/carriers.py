@@ -12,7 +12,7 @@ import numpy as np
 import numpy.typing as npt
 
 from . import transport
-from .arrays import ArrayIn, FloatArray, FloatOrArray
+from .arrays import ArrayIn, FloatArray, FloatOrArray, distinct_points
 from .constants import BOLTZMANN, ELEMENTARY_CHARGE
 from .equilibrium import State
 from .materials import (
@@ -34,7 +34,11 @@ def _dominant(species: dict[str, FloatArray]) -> str | None:
 
 
 def carrier_transport(
-    state: State, dimension: int = 3, mobility_model: str | None = None
+    state: State,
+    dimension: int = 3,
+    mobility_model: str | None = None,
+    velocities: bool = True,
+    reference: ReferenceSolves | None = None,
 ) -> dict[str, FloatOrArray]:
     """Mobilities, diffusion coefficients, conductivity and mean free paths at a State.
 
@@ -47,7 +51,9 @@ def carrier_transport(
     exponent (NaN where the material has none).  D uses the generalized
     Einstein relation, lambda = 2D/<v_x^+> with Fermi–Dirac statistics; a
     Kane conduction band (``state.electron_band``, in the calculation's dimensionality) sets
-    both for the electrons.
+    both for the electrons.  ``velocities`` False: D, <v_x+> and lambda (their F_j ratios
+    and window averages) are left NaN, for a caller that reads none of them;
+    ``reference``: solves at a reference temperature kept from earlier calls (a sweep's).
     Returns a dict of SI arrays.
 
     References
@@ -62,8 +68,9 @@ def carrier_transport(
     minority_n, minority_p = state.n < 0.5 * state.p, state.p < 0.5 * state.n
     result: dict[str, FloatOrArray] = {"kT_over_q": BOLTZMANN * state.T / ELEMENTARY_CHARGE}
     conduction: dict[str, FloatArray] = {}
-    # the solve at a reference temperature, shared by the two carriers
-    at_T0: dict[float, tuple[State, npt.NDArray[np.intp]]] = {}
+    # the solves at a reference temperature, shared by the two carriers
+    if reference is None:
+        reference = ReferenceSolves()
     for x, band, eta, _dens, species, majority in (
         ("n", "electron", state.eta_n, state.n, state.donors, ~minority_n),
         ("p", "hole", state.eta_p, state.p, state.acceptors, ~minority_p),
@@ -74,7 +81,7 @@ def carrier_transport(
         if model.minority_model and not mobility_model and not np.all(majority):
             mu = np.where(majority, mu, model.low_field(impurities, state.T, minority=True))
         conduction[x] = np.where(
-            majority, _every_dopant_factor(state, model, mobility_model, main, x, at_T0), 1.0
+            majority, _every_dopant_factor(state, model, mobility_model, main, x, reference), 1.0
         )
         # a Kane conduction band (bulk) sets the electrons' Einstein ratio and velocity
         # a Kane conduction band in the calculation's dimensionality (a bulk crystal
@@ -84,13 +91,17 @@ def carrier_transport(
             if x == "n" and state.electron_band is not None
             else None
         )
-        d = transport.diffusion_coefficient(mu, state.T, eta, dimension, kane)
+        d = (
+            transport.diffusion_coefficient(mu, state.T, eta, dimension, kane)
+            if velocities
+            else np.full_like(mu, np.nan)
+        )
         result[f"mu_{x}"] = mu
         result[f"cond_{x}"] = conduction[x]
         # the lattice limit: the highest of the material's published fits at N = 0
         # a function of T alone: evaluated once per distinct temperature (a sweep over
         # doping repeats each one)
-        first, back = _distinct_points([np.ravel(state.T)], np.size(state.T))
+        first, back = distinct_points([np.ravel(state.T)], np.size(state.T))
         T_rows = np.ravel(state.T)[first]
         zero = np.zeros_like(T_rows)
         mu0 = (
@@ -102,7 +113,7 @@ def carrier_transport(
         result[f"D_{x}"] = d
         result[f"vsat_{x}"] = model.vsat(state.T) if model.vsat else np.full_like(mu, np.nan)
         result[f"beta_{x}"] = model.beta(state.T) if model.beta else np.full_like(mu, np.nan)
-        if model.thermal_mass:
+        if model.thermal_mass and velocities:
             v = transport.unidirectional_thermal_velocity(
                 state.T, model.thermal_mass, eta, dimension, kane
             )
@@ -125,63 +136,61 @@ def _every_dopant_factor(
     mobility_model: str | None,
     species: str | None,
     carrier: str,
-    at_T0: dict[float, tuple[State, npt.NDArray[np.intp]]],
+    reference: ReferenceSolves,
 ) -> FloatArray:
     """1/f(T_0) for a mobility given per dopant atom (sigma = q N mu at T_0, as the
     silicon resistivity standard is): the free carriers at T_0 are then credited with
     the conduction of every dopant, so incomplete ionization is not counted twice,
     while freeze-out relative to T_0 still lowers the conductivity.  1 otherwise.
-    ``at_T0``: solves at a T_0 already done for these points (filled here)."""
+    ``reference``: the solves at T_0 done so far (filled here)."""
     if not model.counts_every_dopant(mobility_model, species):
         return np.ones_like(state.T)
     fit = model.mobility[model.model_name(mobility_model, species)]
     T0 = float(getattr(fit, "T0", 296.15))
-    if T0 not in at_T0:
-        at_T0[T0] = _solve_at(state, T0)
-    solved, where = at_T0[T0]
-    fraction = solved.donor_fraction if carrier == "n" else solved.acceptor_fraction
-    return 1.0 / np.maximum(fraction[where], 1e-300)
+    fraction = reference.ionized_fraction(state, T0, 0 if carrier == "n" else 1)
+    return 1.0 / np.maximum(fraction, 1e-300)
 
 
-def _solve_at(state: State, T0: float) -> tuple[State, npt.NDArray[np.intp]]:
-    """The state's doping solved at the one temperature T0, each distinct doping once (a
-    sweep over temperature repeats every doping; the solve is pointwise, so this gives
-    what solving every point would), and the index of each point's doping in that solve."""
-    from .equilibrium import solve
+class ReferenceSolves:
+    """Ionized fractions of dopings solved at a reference temperature, kept across calls:
+    each distinct doping is solved once, however many points or calls repeat it (a sweep
+    over temperature repeats every doping in every chunk).  The solve is pointwise, so a
+    kept fraction is what solving the point again would give."""
 
-    shape = np.shape(state.T)
-    donors, acceptors = (
-        {s: np.broadcast_to(d, shape).ravel() for s, d in g.items()}
-        for g in (state.donors, state.acceptors)
-    )
-    first, back = _distinct_points([*donors.values(), *acceptors.values()], int(np.prod(shape)))
-    solved = solve(
-        state.material,
-        np.full(len(first), T0),
-        {s: d[first] for s, d in donors.items()},
-        {s: d[first] for s, d in acceptors.items()},
-        band_gap_narrowing=bool(np.any(state.narrowing > 0)),
-    )
-    return solved, back.reshape(shape)
+    def __init__(self) -> None:
+        # (T0, material, species, narrowing) -> doping row -> (donor, acceptor fraction)
+        self._rows: dict[tuple[object, ...], dict[tuple[float, ...], tuple[float, float]]] = {}
 
+    def ionized_fraction(self, state: State, T0: float, kind: int) -> FloatArray:
+        """The donor (``kind`` 0) or acceptor (1) ionized fraction at T0 of each point's
+        doping (the state's own band-gap narrowing option)."""
+        from .equilibrium import solve
 
-def _distinct_points(
-    columns: list[FloatArray], size: int
-) -> tuple[npt.NDArray[np.intp], npt.NDArray[np.intp]]:
-    """(one point of each distinct combination of the columns' values, the combination of
-    every point): a row's values are column[first], a point's row is back.  Each column is
-    numbered by its own distinct values and the numbers combined (a 1-D np.unique per
-    column, an order of magnitude faster than np.unique over rows); no column: one row."""
-    if len(columns) == 1:
-        _, first, back = np.unique(columns[0], return_index=True, return_inverse=True)
-        return first, back.ravel()
-    key = np.zeros(size, dtype=np.intp)
-    for column in columns:
-        values, code = np.unique(column, return_inverse=True)
-        # renumbered at each step, so the combined key stays below size * len(values)
-        key = np.unique(key * len(values) + code.ravel(), return_inverse=True)[1].ravel()
-    _, first, back = np.unique(key, return_index=True, return_inverse=True)
-    return first, back.ravel()
+        shape = np.shape(state.T)
+        donors, acceptors = (
+            {s: np.broadcast_to(d, shape).ravel() for s, d in g.items()}
+            for g in (state.donors, state.acceptors)
+        )
+        columns = [*donors.values(), *acceptors.values()]
+        first, back = distinct_points(columns, int(np.prod(shape)))
+        rows = [tuple(float(column[i]) for column in columns) for i in first]
+        narrowing = bool(np.any(state.narrowing > 0))
+        key = (T0, id(state.material), tuple(donors), tuple(acceptors), narrowing)
+        known = self._rows.setdefault(key, {})
+        missing = np.array([i for i, row in zip(first, rows) if row not in known], dtype=int)
+        if missing.size:
+            solved = solve(
+                state.material,
+                np.full(missing.size, T0),
+                {s: d[missing] for s, d in donors.items()},
+                {s: d[missing] for s, d in acceptors.items()},
+                band_gap_narrowing=narrowing,
+            )
+            for k, (fd, fa) in enumerate(zip(solved.donor_fraction, solved.acceptor_fraction)):
+                known[tuple(float(column[missing[k]]) for column in columns)] = (fd, fa)
+        fractions = np.array([known[row][kind] for row in rows], dtype=float)
+        out: FloatArray = fractions[back].reshape(shape)
+        return out
 
 
 # regime names, indexed by the codes of regime_code (precedence rises with the code)

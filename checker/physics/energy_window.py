@@ -49,6 +49,7 @@ from typing import Literal, TypeAlias, overload
 import numpy as np
 
 from ..errors import ConvergenceError, InputError
+from . import _threads
 from . import bands as _bands
 from .arrays import ArrayIn, FloatArray, FloatOrArray, IndexArray
 from .bands import Band, PowerLawBand, is_power_law
@@ -130,12 +131,11 @@ def _window_sums(
                 out[rows] = integrand(x, rows) @ nodes.w
 
     starts = range(0, eta.size, _TASK)
-    if len(starts) > 1 and WORKERS > 1:
-        # numpy releases the GIL inside ufuncs, so tasks overlap on both cores
-        from concurrent.futures import ThreadPoolExecutor  # only large inputs need it
-
-        with ThreadPoolExecutor(max_workers=WORKERS) as pool:
-            list(pool.map(task, starts))
+    if len(starts) > 1 and WORKERS > 1 and _threads.on_main_thread():
+        # numpy releases the GIL inside ufuncs, so tasks overlap on both cores (the pool
+        # is the physics layer's, kept across calls; a call from one of its workers, e.g.
+        # a Kane block of the solve, works alone rather than wait on its own pool)
+        list(_threads.pool(WORKERS).map(task, starts))
     else:
         for first in starts:
             task(first)

@@ -19,7 +19,9 @@ residual f(eta) = ln(left) - ln(right) is strictly increasing in eta; it is
 evaluated entirely in logarithms (densities from e^-10000 to e^50 never under-
 or overflow) and solved by safeguarded Newton (bisection whenever a step
 leaves the bracket).  Every point either meets |f| <= 1e-12 (relative
-neutrality residual) or raises ConvergenceError.
+neutrality residual; measured, or bounded after a last Newton step of at most
+2^-21, see ACCEPT_STEP) or raises ConvergenceError; every block then measures
+neutrality afresh in its plain form (<= 1e-10).
 
 References
 ----------
@@ -51,6 +53,10 @@ from .materials import Dopant, Material
 
 MAX_ITERATIONS = 200
 TOLERANCE = 1e-12
+# a Newton step this small is taken as the last: f'' <= 4 (each side's ln-sum has slopes in
+# [-1, 1], so its curvature is at most the slopes' variance plus a term's own, <= 1 + 1),
+# so |f| after it is at most f''/2 step^2 <= 2 (2^-21)^2 ~ 4.5e-13, below TOLERANCE
+ACCEPT_STEP = 2.0**-21
 BALANCE_TOLERANCE = 1e-10  # relative neutrality error every returned point meets
 
 # one bound level: (ln N_level, occupancy offset E(N)/kT + ln g, ln b, ln(1 - b))
@@ -106,11 +112,14 @@ class State:
 
     @cached_property
     def log_electron_factor(self) -> FloatArray:
-        """ln(n/N_c): ln F_1/2(eta_n), or ln F_K(eta_n, alpha kT) for a Kane band."""
-        if self.electron_band is None:
-            return np.asarray(log_fermi_dirac(0.5, self.eta_n))
-        factor, _ = energy_window.kane_density_factor(self.electron_band, self.eta_n, self.T)
-        return np.asarray(factor, dtype=float)
+        """ln(n/N_c): ln F_1/2(eta_n), or ln F_K(eta_n, alpha kT) for a Kane band (a solve
+        keeps its own neutrality check's, evaluated at the same eta)."""
+        return log_electron_factor(self.electron_band, self.eta_n, self.T)
+
+    @cached_property
+    def log_hole_factor(self) -> FloatArray:
+        """ln(p/N_v) = ln F_1/2(eta_p) (a solve keeps its own check's, as above)."""
+        return np.asarray(log_fermi_dirac(0.5, self.eta_p))
 
     @cached_property
     def n(self) -> FloatArray:
@@ -118,7 +127,7 @@ class State:
 
     @cached_property
     def p(self) -> FloatArray:
-        return self.Nv * np.exp(log_fermi_dirac(0.5, self.eta_p))
+        return self.Nv * np.exp(self.log_hole_factor)
 
     @cached_property
     def ni(self) -> FloatArray:
@@ -189,12 +198,26 @@ def charge_balance_error(state: State) -> FloatArray:
             for term in _level_terms(state.material.dopant(name), density, kT, total)
         ]
 
-    return _plain_balance_error(
-        np.log(state.Nc) + state.log_electron_factor,
+    return _plain_balance_error(  # afresh: not the state's cached band factors
+        np.log(state.Nc) + log_electron_factor(state.electron_band, state.eta_n, state.T),
         np.log(state.Nv) + log_fermi_dirac(0.5, state.eta_p),
         [_log_ionized(term, state.eta_n) for term in terms(state.donors, state.donors_total)],
         [_log_ionized(term, state.eta_p) for term in terms(state.acceptors, state.acceptors_total)],
     )
+
+
+def log_electron_factor(band: KaneBand | None, eta: FloatArray, T: FloatArray) -> FloatArray:
+    """ln(n/N_c) at eta = (E_F - E_C)/kT: ln F_1/2(eta) for a parabolic band (``band``
+    None), ln F_K(eta, alpha kT) for a Kane band at temperatures T (K).
+
+    References
+    ----------
+    Blakemore (1962) (F_1/2); Kane (1957), see kane_conduction_band.
+    """
+    if band is None:
+        return np.asarray(log_fermi_dirac(0.5, eta))
+    factor, _ = energy_window.kane_density_factor(band, eta, T)
+    return np.asarray(factor, dtype=float)
 
 
 def _plain_balance_error(
@@ -597,6 +620,10 @@ def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatA
         done = small_f | (np.abs(step) <= tiny) | (hi - lo <= tiny)
         new = x + step
         outside = ((new <= lo) | (new >= hi)) & ~done
+        # a last Newton step inside the bracket: its point is returned without another
+        # evaluation (|f| there <= 4.5e-13, see ACCEPT_STEP; the block's plain-form
+        # neutrality check measures it)
+        last = (np.abs(step) <= ACCEPT_STEP) & ~done & ~outside
         if outside.any():
             o_lo, o_hi, o_x, o_lim = lo[outside], hi[outside], x[outside], limit[outside]
             closed = np.isfinite(o_lo) & np.isfinite(o_hi)
@@ -608,9 +635,13 @@ def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatA
         if big.any():
             limit[big] *= 4.0
         np.copyto(x, new, where=~done)
+        # f is not measured after a last step: the block's plain balance is its residual
+        measured = np.abs(f)
+        measured[last] = 0.0
+        done |= last
         if done.any():
             out_eta[idx[done]] = x[done]
-            out_f[idx[done]] = np.abs(f[done])
+            out_f[idx[done]] = measured[done]
             keep = np.flatnonzero(~done)
             if keep.size == 0:
                 return out_eta, out_f, iterations
@@ -677,6 +708,7 @@ def solve(
     residual = np.empty_like(temps)
     metallic = np.empty(temps.shape, dtype=bool)
     narrowing = np.empty_like(temps)
+    factors = np.empty((2, temps.size))  # ln(n/N_c), ln(p/N_v) at the returned eta
 
     def block(i: int) -> int:
         part = slice(i, i + size)
@@ -687,7 +719,7 @@ def solve(
             {k: v[part] for k, v in acceptor_flat.items()},
             band_gap_narrowing,
             species,
-            out=(eta[part], residual[part], metallic[part], narrowing[part]),
+            out=(eta[part], residual[part], metallic[part], narrowing[part], factors[:, part]),
             kane=kane,
         )
 
@@ -712,6 +744,9 @@ def solve(
         iterations=iterations,
         electron_band=kane,
     )
+    # each block's check evaluated both band factors at the returned eta: kept, not redone
+    state.__dict__["log_electron_factor"] = factors[0].reshape(shape)
+    state.__dict__["log_hole_factor"] = factors[1].reshape(shape)
     bad = ~(state.residual <= BALANCE_TOLERANCE)
     if bad.any():
         raise ConvergenceError(
@@ -755,10 +790,11 @@ def _solve_flat(
     acceptors: Mapping[str, FloatArray],
     band_gap_narrowing: bool,
     species: Mapping[str, Dopant],
-    out: tuple[FloatArray, FloatArray, BoolArray, FloatArray],
+    out: tuple[FloatArray, FloatArray, BoolArray, FloatArray, FloatArray],
     kane: KaneBand | None = None,
 ) -> int:
-    """Solve one block; write eta, residual, metallic flag and narrowing into ``out``."""
+    """Solve one block; write eta, residual, metallic flag, narrowing and the band factors
+    ln(n/N_c), ln(p/N_v) (rows) into ``out``."""
     kT = BOLTZMANN * T
     Eg = material.need("band_gap", "the equilibrium solve")(T)
     Nc = material.need("Nc", "the equilibrium solve")(T)
@@ -821,7 +857,7 @@ def _solve_flat(
         both = np.asarray(log_fermi_dirac(0.5, np.concatenate([eta, eta_p])))
         ln_f_n, ln_f_p = both[: eta.size], both[eta.size :]
     else:
-        ln_f_n = np.asarray(energy_window.kane_density_factor(kane, eta, T)[0], dtype=float)
+        ln_f_n = log_electron_factor(kane, eta, T)
         ln_f_p = np.asarray(log_fermi_dirac(0.5, eta_p))
     balance = _plain_balance_error(
         ln_nc + ln_f_n,
@@ -829,8 +865,9 @@ def _solve_flat(
         [_log_ionized(term, eta) for term in donor_terms],
         [_log_ionized(term, eta_p) for term in acceptor_terms],
     )
-    out_eta, out_residual, out_metallic, out_narrowing = out
+    out_eta, out_residual, out_metallic, out_narrowing, out_factors = out
     out_eta[:] = eta
+    out_factors[0], out_factors[1] = ln_f_n, ln_f_p
     np.maximum(np.abs(np.expm1(final_f)), balance, out=out_residual)
     out_metallic[:] = metallic
     out_narrowing[:] = narrowing

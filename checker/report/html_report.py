@@ -1,6 +1,7 @@
 """A self-contained HTML review report (``--format html``).
 
-One file: inline CSS, inline SVG plots, formulas as MathML, no scripts, no network.
+One file: inline CSS, inline SVG maps (map_svg.py, written without matplotlib),
+formulas as MathML, no scripts, no network.
 It opens with a summary table (one row per calculation: where, worst severity, the
 rules that fired, a link to its section).  Per calculation: where it comes from, the
 findings (stated → corrected) first, then the operating point (or the sweep), the
@@ -13,7 +14,6 @@ HTML, and it prints one calculation per page where it fits.
 from __future__ import annotations
 
 import html
-import re
 
 from ..quantity_registry.number_text import display
 from ..quantity_registry.summary_fields import CHECK_ROWS, shown_rows
@@ -51,17 +51,6 @@ math { font-size: 1.05em; }
 
 def _text(value) -> str:
     return html.escape(str(value), quote=True)
-
-
-def _svg(fig, salt: str) -> str:
-    import matplotlib
-
-    from .plots import render
-
-    matplotlib.rcParams["svg.hashsalt"] = salt  # ids unique across the inline figures
-    text = render(fig, "svg").decode("utf-8")
-    # the RDF metadata block only names the generator; a review page does not need it
-    return re.sub(r"<metadata>.*?</metadata>\s*", "", text[text.index("<svg") :], flags=re.S)
 
 
 def _findings_table(report) -> str:
@@ -170,7 +159,7 @@ def _map(report, index, grids, shared=None) -> str:
     (large runs) the group's map is drawn once, with all its points, and later
     calculations of the group link to it."""
     from ..engine.regime.regime_map import map_groups, regime_grid
-    from .plots import draw_map
+    from .map_svg import map_svg
 
     groups = map_groups(_Single(report))
     if not groups:
@@ -192,8 +181,8 @@ def _map(report, index, grids, shared=None) -> str:
             grids[key] = regime_grid(material, species, size=(MAP_RESOLUTION, MAP_RESOLUTION))
         grid = grids[key]
         title = f"{name}: regimes of {species} doping, with this calculation"
-    fig = draw_map(grid, points, size=(7.4, 4.4), title=title, notice=False)
-    return f'<div class="map" id="map-{index}">{_svg(fig, f"regimecheck-map-{index}")}</div>'
+    svg = map_svg(grid, points, title=title, ident=f"map-{index}")
+    return f'<div class="map" id="map-{index}">{svg}</div>'
 
 
 class _Single:

@@ -135,3 +135,45 @@ def _share(cells: np.ndarray, columns: np.ndarray, rows: np.ndarray, box: Box) -
     j0, j1 = np.searchsorted(rows, [box[1], box[3]])
     under = cells[j0 : max(j1, j0 + 1), i0 : max(i1, i0 + 1)]
     return float(under.mean()) if under.size else 0.0
+
+
+def place_region_labels(
+    codes: np.ndarray,
+    columns: np.ndarray,
+    rows: np.ndarray,
+    sizes: dict[int, tuple[float, float]],
+    avoid: Sequence[Box],
+    bounds: Box,
+    least: float,
+) -> list[tuple[int, Box, bool]]:
+    """(code, box, upright) for each region name of ``sizes`` (code -> (width, height),
+    taken in that order), clear of the names placed before it: where the name lying
+    flat would mostly sit on a narrow region, it is tried upright; a name with less
+    than ``least`` of its box in its region is left out (it would mislead; the legend
+    still names the region by its colour)."""
+    taken: list[Box] = []
+    placed = []
+    for code, size in sizes.items():
+        cells = codes == code
+        found = region_label_box(cells, columns, rows, size, taken, avoid, bounds)
+        upright = False
+        if found is not None and found[1] < 0.9:
+            turned = region_label_box(cells, columns, rows, size[::-1], taken, avoid, bounds)
+            if turned is not None and turned[1] > found[1]:
+                found, upright = turned, True
+        if found is None or found[1] < least:
+            continue
+        taken.append(found[0])
+        placed.append((code, found[0], upright))
+    return placed
+
+
+def leader_end(anchor: tuple[float, float], box: Box, gap: float) -> tuple[float, float] | None:
+    """Where a thin line from ``anchor`` to its label ``box`` ends (the box's edge
+    nearest the anchor), or None where the label sits close enough to need none."""
+    x, y = anchor
+    centre = ((box[0] + box[2]) / 2, (box[1] + box[3]) / 2)
+    reach = 2.5 * gap + max(box[2] - box[0], box[3] - box[1]) / 2
+    if math.hypot(centre[0] - x, centre[1] - y) <= reach:
+        return None
+    return (min(max(x, box[0]), box[2]), min(max(y, box[1]), box[3]))

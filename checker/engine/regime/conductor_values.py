@@ -36,7 +36,7 @@ import numpy.typing as npt
 
 from ...errors import RegimecheckError
 from ...physics import energy_window
-from ...physics.arrays import FloatArray, distinct
+from ...physics.arrays import FloatArray, distinct_points
 from ...physics.bands import Band, DiracBand, ParabolicBand
 from ...physics.constants import ELEMENTARY_CHARGE
 from ...vocabulary_words import Carrier
@@ -244,9 +244,12 @@ def _energy_resolved(
             & np.isfinite(r)
             & (mode_power + r > -1.0)  # the window integral of E^(a + r) converges
         )
-        keys = np.stack([dims, power, r], axis=1)
-        for dim, p, rr in distinct(keys[ok], axis=0):
-            pick = ok & (dims == dim) & (power == p) & (r == rr)
+        at = np.flatnonzero(ok)
+        columns = [dims[at], power[at], r[at]]
+        first, back = distinct_points(columns, at.size)
+        for row, k in enumerate(first):  # each (dimension, band power, exponent) once
+            dim, p, rr = (float(column[k]) for column in columns)
+            pick = at[back == row]
             ratio = energy_resolved_ratio(
                 int(dim),
                 float(p),

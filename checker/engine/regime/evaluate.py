@@ -34,6 +34,7 @@ from ...quantity_registry.number_text import display
 from ...records import Record
 from ...vocabulary_words import carrier_message_words
 from ..expressions.parser import names_in
+from ..expressions.tree import CALL, NAME
 from ..findings import Correction, Embodied, Finding, carrier_word
 from ..vocabulary import carrier_names
 from .corrected import quantity_key
@@ -221,7 +222,6 @@ def assumption_made(
     count = cells.count
     if not rule.declared:
         return np.zeros(count, dtype=bool), np.full(count, -1)
-    in_use = _nonzero(cells.values[names["in_use_x"]]) if x else np.ones(count, dtype=bool)
     declared = cells.declaring(rule.declared)
     everywhere = np.full(len(cells.calculations), _NO_FORMULA)
     where_used = np.full(len(cells.calculations), _NO_FORMULA)
@@ -230,7 +230,11 @@ def assumption_made(
             everywhere[c] = k
         elif carrier is None:
             where_used[c] = k
-    if len(cells.calculations) == 1:  # a sweep's chunk: one calculation, no gathering
+    one = len(cells.calculations) == 1  # a sweep's chunk: one calculation, no gathering
+    if one and not declared[0] and everywhere[0] == where_used[0] == _NO_FORMULA:
+        return np.zeros(count, dtype=bool), np.full(count, -1)  # made at no cell
+    in_use = _nonzero(cells.values[names["in_use_x"]]) if x else np.ones(count, dtype=bool)
+    if one:
         declared_here: bool | BoolArray = bool(declared[0])
         first = np.where(in_use, min(everywhere[0], where_used[0]), everywhere[0])
     else:
@@ -240,6 +244,77 @@ def assumption_made(
         )
     by_formula = np.where(first == _NO_FORMULA, -1, first)
     return (declared_here & in_use) | (by_formula >= 0), by_formula
+
+
+def sweep_rules(rules: Iterable[Rule], cells: Cells) -> tuple[list[Rule], frozenset[str]]:
+    """(the rules that may fire at some cell of a sweep, the quantities they read as
+    concrete names), from ``cells``, one probe cell of the sweep.  A rule whose assumption
+    no cell can make (not declared, no stated formula embodies it, no stated number
+    implies it; or a stated number it requires, or whose present() is a factor of its
+    gate, is not given) fires nowhere, and :func:`rule_mask` would stop before its gate
+    and indicator: ruling the chunks without it, and without what only it reads, changes
+    no cell.  The sweep's stated numbers are the same at every cell, so the probe decides
+    for the whole grid; a rule that may fire anywhere counts whole."""
+    (calc,), (embodied,) = cells.calculations, cells.embodied
+    values = cells.values
+    kept: list[Rule] = []
+    reads: set[str] = set()
+    for rule in rules:
+        if rule.evaluated_by:
+            continue
+        for x in rule.carriers:
+            names: Mapping[str, str] = carrier_names(x) if x else {}
+
+            def given(name: str, names: Mapping[str, str] = names) -> bool:
+                return bool(np.isfinite(values[names.get(name, name)]).any())
+
+            made = (
+                any(word in calc.assumes for word in rule.declared)
+                or any(item.word in rule.declared for item in embodied)
+                or any(given(imp.stated) for imp in rule.implied_by)
+                or not (rule.declared or rule.implied_by)
+            )
+            # a stated number the rule requires, or whose presence its gate multiplies by
+            needed = [n for n in (*rule.requires, *_gate_presences(rule)) if _is_stated(n)]
+            if not made or not all(given(n) for n in needed):
+                continue
+            if not kept or kept[-1] is not rule:
+                kept.append(rule)
+            trees = [rule.expression.tree, *([rule.when.tree] if rule.when else [])]
+            for imp in rule.implied_by:
+                trees += [imp.shortcut.tree, *([imp.exact.tree] if imp.exact else [])]
+            trees += [c.exact.tree for c in rule.corrections if c.stated]
+            found = (
+                set(rule.requires)
+                | set(rule.replaces.values())
+                | {imp.stated for imp in rule.implied_by}
+            )
+            for tree in trees:
+                found |= names_in(tree)
+            reads |= {names.get(name, name) for name in found}
+    return kept, frozenset(reads)
+
+
+def _gate_presences(rule: Rule) -> list[str]:
+    """The names whose present(...) is a factor of the rule's gate (a product): where one
+    is not given, the gate is 0 (or NaN) at every cell."""
+    factors, product = [], [rule.when.tree] if rule.when else []
+    while product:
+        node = product.pop()
+        if node.kind == "*":
+            product += node.args
+        else:
+            factors.append(node)
+    return [
+        f.args[0].value
+        for f in factors
+        if f.kind == CALL and f.value == "present" and f.args[0].kind == NAME
+    ]
+
+
+def _is_stated(name: str) -> bool:
+    """A stated number (the same at every cell of a sweep)."""
+    return name.startswith("stated_")
 
 
 def rule_mask(
@@ -283,6 +358,11 @@ def rule_mask(
         made |= mask
     if not rule.declared and not rule.implied_by:
         made[:] = True
+    # the requirements before the gate: a value check whose stated number is nowhere
+    # given (a sweep's chunk states the same numbers everywhere) ends here
+    for name in rule.requires:
+        if made.any():
+            made &= np.isfinite(values[names.get(name, name)])
     if not made.any():
         indicator = (
             _cells_array(rule.expression, x, values, count)
@@ -292,8 +372,6 @@ def rule_mask(
         return made, indicator, implied
     if rule.when is not None:
         made &= _nonzero(np.broadcast_to(rule.when.run[x](values), (count,)))
-    for name in rule.requires:
-        made &= np.isfinite(values[names.get(name, name)])
     indicator = _cells_array(rule.expression, x, values, count)
     wrong_side = (
         indicator > rule.threshold if rule.relation == "above" else indicator < rule.threshold

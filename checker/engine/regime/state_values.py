@@ -66,27 +66,47 @@ def _group_key(calc: Calculation) -> tuple[object, ...]:
     )
 
 
-def _unknown(count: int, solved: Collection[str] = ()) -> Values:
+def _unknown(count: int, solved: Collection[str] = (), writable: bool = True) -> Values:
     """Every quantity over ``count`` points, unknown (NaN, or empty text) until solved;
-    the names in ``solved`` (given their values next) are left out."""
-    values: Values = {name: np.full(count, np.nan) for name in value_names() - set(solved)}
+    the names in ``solved`` (given their values next) are left out.  Not ``writable``:
+    read-only views of one value each (a sweep's chunk only replaces whole arrays, and
+    ~100 unknown quantities would otherwise each fill 256 kB per chunk)."""
+    fill = _filled if writable else _constant
+    values: Values = {name: fill(count, np.nan) for name in value_names() - set(solved)}
     for q in QUANTITIES:
         if q.name in solved:
             continue
         if q.source is Source.CONSTANT:
-            values[q.name] = np.full(count, q.value)
+            values[q.name] = fill(count, q.value)
         elif q.source is Source.TEXT:
-            values[q.name] = np.full(count, "", dtype=object)
+            values[q.name] = fill(count, "", object)
     return values
 
 
+def _filled(count: int, value: object, dtype: type = float) -> npt.NDArray[Any]:
+    return np.full(count, value, dtype=dtype)
+
+
+def _constant(count: int, value: object, dtype: type = float) -> npt.NDArray[Any]:
+    """``value`` at ``count`` points without the memory: a read-only view of one element."""
+    return np.broadcast_to(np.array(value, dtype=dtype), (count,))
+
+
 def solve_sweep(
-    calc: Calculation, T: FloatArray, donors: Densities, acceptors: Densities
+    calc: Calculation,
+    T: FloatArray,
+    donors: Densities,
+    acceptors: Densities,
+    reads: Collection[str] | None = None,
 ) -> tuple[Values, str | None]:
-    """Every quantity over the points of a sweep of ``calc`` (arrays of one length)."""
+    """Every quantity over the points of a sweep of ``calc`` (arrays of one length).
+    ``reads``: the names the sweep's rules read (evaluate.sweep_rules); then the words
+    only reports and messages read (the regime, the models past their range) and the
+    intrinsic-onset temperature, the Hall factors and the carriers' velocities and mean
+    free paths where no rule reads them are left unknown.  None: every quantity."""
     count = len(T)
-    put, skipped = solve_points(calc, T, donors, acceptors)
-    values = _unknown(count, put)
+    put, skipped = solve_points(calc, T, donors, acceptors, reads=reads)
+    values = _unknown(count, put, writable=False)
     # the solve's own arrays are kept as they are; a copy only where an array would be
     # shared (a caller's input, or one array under two names) or is not yet one per point
     shared = {_memory(a) for a in (T, *donors.values(), *acceptors.values())}
@@ -103,7 +123,7 @@ def solve_sweep(
             shared.add(_memory(array))
         else:
             values[name] = np.broadcast_to(array, (count,)).copy()
-    fill_inputs([calc], values, count=count)
+    fill_inputs([calc], values, count=count, reads=reads)
     return values, skipped
 
 
@@ -174,13 +194,15 @@ def solve_points(
     acceptors: Densities,
     sheet: dict[str, FloatArray] | None = None,
     calcs: Sequence[Calculation] | None = None,
+    reads: Collection[str] | None = None,
 ) -> tuple[dict[str, ArrayIn], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
     A sheet (2D gas, graphene) takes the sheet solve, its Fermi level fixed by ``sheet``
     (sheet_values.sheet_inputs; default: ``first``'s own stated numbers).  ``calcs``: the
     calculation of each point (default: ``first`` for all); what only some calculations
-    read (bulk modes, the solve with narrowing) is computed at their points alone."""
+    read (bulk modes, the solve with narrowing) is computed at their points alone;
+    ``reads``: see :func:`solve_sweep`."""
 
     def where(reads: Callable[[Calculation], bool]) -> BoolArray:
         if calcs is None:
@@ -199,7 +221,9 @@ def solve_points(
     )
     skipped = None
     try:
-        flow = carriers.carrier_transport(state, dim)
+        flow = carriers.carrier_transport(
+            state, dim, velocities=reads is None or not _VELOCITY.isdisjoint(reads)
+        )
     except MissingParameterError as exc:
         # statistics checks still run; mobility-based ones see NaN and stay silent
         skipped = f"transport checks skipped: {exc}"
@@ -246,7 +270,6 @@ def solve_points(
         "ni_hi": ni_hi,
         "Nnet": net,
         "Ntot": state.donors_total + state.acceptors_total,
-        "T_onset": _onset(material, net),
         "dEg_bgn": narrowing,
         "bgn_on": np.full_like(T, float(first.band_gap_narrowing)),
         "T_lo": np.full_like(T, T_lo),
@@ -254,11 +277,14 @@ def solve_points(
         "N_lo": np.full_like(T, N_lo),
         "N_hi": np.full_like(T, N_hi),
         "dim": np.full_like(T, float(dim)),
-        "regime": carriers.regime_label(state),
-        # which models set the edge a point leaves (for the model-validity messages)
-        "T_models": _models_beyond(T, T_lo, T_hi, binding),
-        "N_models": np.full(T.shape, ", ".join(binding["N_high"]), dtype=object),
     }
+    if reads is None:  # words for reports and messages (a sweep's chunk shows none)
+        put["regime"] = carriers.regime_label(state)
+        # which models set the edge a point leaves (for the model-validity messages)
+        put["T_models"] = _models_beyond(T, T_lo, T_hi, binding)
+        put["N_models"] = np.full(T.shape, ", ".join(binding["N_high"]), dtype=object)
+    if reads is None or "T_onset" in reads:
+        put["T_onset"] = _onset(material, net)
     for x, eta, dens, nband, own, other, ionized, fraction, species in (
         (
             "n",
@@ -425,16 +451,19 @@ def _ni_spread(material: Material, T: FloatArray, ni: FloatArray) -> tuple[Float
 
 
 def fill_inputs(
-    calculations: Sequence[Calculation], values: Values, count: int | None = None
+    calculations: Sequence[Calculation],
+    values: Values,
+    count: int | None = None,
+    reads: Collection[str] | None = None,
 ) -> None:
     """Structure and stated numbers, and what depends on them (vectorized after the fill),
     written into ``values``.  ``count``: the points of a sweep, which all share the single
-    calculation given."""
+    calculation given; ``reads``: see :func:`solve_sweep`."""
     size = len(calculations) if count is None else count
 
     def column(getter: Callable[[Calculation], float]) -> FloatArray:
-        if count is not None:
-            return np.full(count, getter(calculations[0]), dtype=float)
+        if count is not None:  # a sweep: one value for the whole chunk (read-only)
+            return _constant(count, getter(calculations[0]))
         return (
             np.array([getter(c) for c in calculations], dtype=float)
             if calculations
@@ -501,7 +530,17 @@ def fill_inputs(
         values["dens_n"] * values["cond_n"] * values["mu_n"]
         + values["dens_p"] * values["cond_p"] * values["mu_p"]
     )
-    _hall(values, values["hall_r"])
+    if reads is None or not _HALL.isdisjoint(reads):
+        _hall(values, values["hall_r"])
+
+
+# what reads the carriers' D, <v_x+> and lambda: the mean free paths, the bulk modes (their
+# valleys' velocity factor) and the conductances built on them
+_VELOCITY = frozenset(
+    f"{stem}_{x}" for stem in ("vth", "lambda_model", "lambda", "modes_a") for x in Carrier
+) | {"modes", "G_ballistic", "G_energy", "G_landauer"}
+# what _hall gives (a sweep whose rules read none of it skips the Hall factors' F_j moments)
+_HALL = frozenset({"rH_n", "rH_p", "n_hall", "n_hall_lo", "n_hall_hi"})
 
 
 def _typical_mobility(calc: Calculation, field: str, carrier: Carrier | None = None) -> float:

@@ -21,7 +21,7 @@ import numpy as np
 from ...inputs.calculation_file import AxisKey
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray
 from ..findings import Embodied, carrier_word
-from .evaluate import Cells, beyond, rule_cells, rule_indicator
+from .evaluate import Cells, beyond, rule_cells, rule_indicator, sweep_rules
 from .points import CalculationReport, check_points
 from .rulebook import Rule
 from .state_values import Values, solve_sweep
@@ -154,7 +154,8 @@ def check_sweep(
         return CalculationReport(calc, None, error=first.error), errors
     for result in first.formulas:  # a value "here" belongs to one point, not to a sweep
         result.value = result.exact = result.error = float("nan")
-    masks, notes = rule_grid(calc, rules, first.embodied, grid_points, progress)
+    ruled, reads = grid_rules(calc, rules, first.embodied, grid_points)
+    masks, notes = rule_grid(calc, ruled, first.embodied, grid_points, progress, reads)
     findings = [f for f in first.findings if f.rule in ("FORM01", "FORM02")]
     by_id = {rule.id: rule for rule in rules}
     ordered = sorted(masks.items())
@@ -168,7 +169,7 @@ def check_sweep(
         if match:
             kept.append((match[0], by_id[rule_id], x, mask, index))
     found = boundaries_together(
-        calc, grid_points, [(rule, x, mask) for _, rule, x, mask, _ in kept]
+        calc, grid_points, [(rule, x, mask) for _, rule, x, mask, _ in kept], reads
     )
     for (finding, _, _, mask, index), where in zip(kept, found):
         finding.sweep = _summary(mask, index, grid_points, calc, where, True)
@@ -180,15 +181,26 @@ def check_sweep(
     return report, errors
 
 
+def grid_rules(
+    calc: Calculation, rules: Sequence[Rule], embodied: list[Embodied], grid_points: GridPoints
+) -> tuple[list[Rule], frozenset[str]]:
+    """(the rules that may fire on the grid, the quantities they read): evaluate.sweep_rules
+    from a probe of the grid's first point; the chunks rule and compute only those."""
+    values = _values_at(calc, grid_points, [0])
+    return sweep_rules(rules, Cells.grid(calc, values, 1, embodied))
+
+
 def rule_grid(
     calc: Calculation,
     rules: Sequence[Rule],
     embodied: list[Embodied],
     grid_points: GridPoints,
     progress: Callable[[int, int], None] | None = None,
+    reads: frozenset[str] | None = None,
 ) -> tuple[Masks, list[str]]:
     """({(rule id, carrier): (failing mask over the grid, worst flat index)}, notes):
-    every rule over the grid in chunks of cells."""
+    every rule over the grid in chunks of cells (``reads``: grid_rules; None: every
+    quantity)."""
     T, donors, acceptors, shape = grid_points
     size = T.size
     masks: dict[tuple[str, str], BoolArray] = {}
@@ -201,6 +213,7 @@ def rule_grid(
             T[start:stop],
             {s: a[start:stop] for s, a in donors.items()},
             {s: a[start:stop] for s, a in acceptors.items()},
+            reads,
         )
         if skipped and skipped not in notes:
             notes.append(skipped)
@@ -362,9 +375,11 @@ def _values_at(
     grid_points: GridPoints,
     at: ArrayIn,
     override: tuple[AxisKey, ArrayIn] | None = None,
+    reads: frozenset[str] | None = None,
 ) -> Values:
-    """Every quantity at grid points ``at`` (flat indices); ``override`` = (axis key,
-    value or one value per point) moves them along that axis."""
+    """Every quantity (``reads``: those the rules read) at grid points ``at`` (flat
+    indices); ``override`` = (axis key, value or one value per point) moves them along
+    that axis."""
     T, donors, acceptors, _ = grid_points
     indices = np.asarray(at)
     T_at = T[indices]
@@ -377,7 +392,7 @@ def _values_at(
             T_at = moved
         else:
             (donors_at if key[0] == "donors" else acceptors_at)[key[1]] = moved
-    values, _ = solve_sweep(calc, T_at, donors_at, acceptors_at)
+    values, _ = solve_sweep(calc, T_at, donors_at, acceptors_at, reads)
     return values
 
 
@@ -388,7 +403,10 @@ def _excess(rule: Rule, x: str, values: Values, count: int) -> FloatArray:
 
 
 def boundaries_together(
-    calc: Calculation, grid_points: GridPoints, jobs: Sequence[tuple[Rule, str, BoolArray]]
+    calc: Calculation,
+    grid_points: GridPoints,
+    jobs: Sequence[tuple[Rule, str, BoolArray]],
+    reads: frozenset[str] | None = None,
 ) -> list[Boundary]:
     """The boundaries (:func:`boundary_steps`), edges interpolated, of every (rule,
     carrier, mask) in ``jobs``, in lockstep: each false-position step of all of them is
@@ -414,7 +432,7 @@ def boundaries_together(
         moved = np.concatenate(
             [np.broadcast_to(np.asarray(r[1][1], float), np.shape(r[0])) for r in requests]
         )
-        values = _values_at(calc, grid_points, at, (axis_key, moved))
+        values = _values_at(calc, grid_points, at, (axis_key, moved), reads)
         start = 0
         for k, request in zip(keys, requests):
             rule, x, _ = jobs[k]
