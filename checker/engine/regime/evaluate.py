@@ -502,15 +502,24 @@ def _add_findings(
     ]
     # a word-valued quantity (unit "text") is shown as it is
     shown = {
-        key: (values[c], unit) if isinstance(c, str) else (_cells_array(c, x, values, count), unit)
+        key: (at_fired(values[c]), unit)
+        if isinstance(c, str)
+        else (at_fired(_cells_array(c, x, values, count)), unit)
         for key, (c, unit) in rule.show.items()
     }
-    words = carrier_message_words(x)
-    causes = [(text, _nonzero(_cells_array(gate, x, values, count))) for gate, text in rule.causes]
-    for j, i in enumerate(fired.tolist()):
-        owner = int(cells.owner[i])
+    words, carrier = carrier_message_words(x), carrier_word(x)
+    threshold = display(rule.threshold, rule.indicator_unit)
+    causes = [
+        (text, at_fired(_nonzero(_cells_array(gate, x, values, count))))
+        for gate, text in rule.causes
+    ]
+    implied = [(name, at_fired(mask)) for name, mask in ruled.implied]
+    owners, by_formula = at_fired(cells.owner), at_fired(ruled.by_formula)
+    indicators = at_fired(ruled.indicator)
+    for j in range(fired.size):
+        owner = owners[j]
         calc = cells.calculations[owner]
-        formula = cells.embodied[owner][ruled.by_formula[i]] if ruled.by_formula[i] >= 0 else None
+        formula = cells.embodied[owner][by_formula[j]] if by_formula[j] >= 0 else None
         corrections = []
         line: int | None = None
         column: str | None = None
@@ -535,7 +544,7 @@ def _add_findings(
                 line = _line_of(calc, stated_name)
                 column = calc.columns.get(stated_name)
         if line is None:
-            line = next((_line_of(calc, name) for name, mask in ruled.implied if mask[i]), None)
+            line = next((_line_of(calc, name) for name, mask in implied if mask[j]), None)
         if line is None:
             # a rule without a correction of a stated number: the stated number it reads
             stated_lines = (_line_of(calc, ruled.names.get(n, n)) for n in rule.requires)
@@ -545,8 +554,8 @@ def _add_findings(
         if line is None:
             line = next((calc.assumes[w] for w in rule.declared if w in calc.assumes), calc.line)
         fields = {
-            "value": display(ruled.indicator[i], rule.indicator_unit),
-            "threshold": display(rule.threshold, rule.indicator_unit),
+            "value": display(indicators[j], rule.indicator_unit),
+            "threshold": threshold,
             "carrier": words[0],
             "dopants": words[1],
             "kind": words[2],
@@ -554,12 +563,12 @@ def _add_findings(
         }
         fields.update(
             {
-                key: str(array[i]) if unit == "text" else display(array[i], unit)
+                key: str(array[j]) if unit == "text" else display(array[j], unit)
                 for key, (array, unit) in shown.items()
             }
         )
         message = PLACEHOLDER.sub(lambda m: fields[m.group(1)], rule.message)
-        cause = next((text for text, held in causes if held[i]), None)
+        cause = next((text for text, held in causes if held[j]), None)
         if cause:
             message += f" Likely cause: {cause}."
         # every formula line that makes the same assumption for this carrier
@@ -574,9 +583,9 @@ def _add_findings(
                 title=rule.title,
                 severity=rule.severity,
                 assumption=rule.assumption,
-                carrier=carrier_word(x),
+                carrier=carrier,
                 indicator_label=rule.indicator_label,
-                indicator_value=float(ruled.indicator[i]),
+                indicator_value=float(indicators[j]),
                 indicator_unit=rule.indicator_unit,
                 relation=rule.relation,
                 threshold=rule.threshold,
