@@ -7,7 +7,7 @@ one enum :class:`checker.vocabulary_words.Carrier`.
 
 from __future__ import annotations
 
-import numpy as np
+import math
 
 from ..quantity_registry.number_text import display, error_text
 from ..records import FrozenRecord, Record
@@ -66,7 +66,7 @@ class Finding(Record):
 
     def indicator_text(self) -> str | None:
         """'η = 1.16 > -3', or None for a check without a numeric indicator."""
-        if not np.isfinite(self.indicator_value):
+        if not math.isfinite(self.indicator_value):
             return None
         sign = ">" if self.relation == "above" else "<"
         return (

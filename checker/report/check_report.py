@@ -200,8 +200,9 @@ def render_console(result, console=None, stream=None) -> None:
             out.append(f"{f.rule}  {f.title}", style="bold")
             out.append(f"  at {finding_where(f)}\n", style="dim")
             add(out, finding_message(f))
-            if f.indicator_text():
-                add(out, f"regime indicator: {f.indicator_text()}", "dim")
+            indicator = f.indicator_text()
+            if indicator:
+                add(out, f"regime indicator: {indicator}", "dim")
             for c in f.corrections:
                 add(out, correction_text(c))
             if f.waived:
@@ -211,8 +212,9 @@ def render_console(result, console=None, stream=None) -> None:
             add(out, "corrected calculation (each stated number once):", "bold", indent=2)
             for line in corrected:
                 add(out, line, indent=4)
-        if unchecked_text(report):
-            add(out, unchecked_text(report), "yellow", indent=2)
+        unchecked = unchecked_text(report)
+        if unchecked:
+            add(out, unchecked, "yellow", indent=2)
         for note in report.notes:
             add(out, f"note: {note}", "yellow", indent=2)
         emit(out)
@@ -293,8 +295,9 @@ def formula_lines(r) -> list:
     if match.proof == "numeric":
         what += " (identity shown at random points; sympy did not close it)"
     lines = [what]
-    if r.error_text() != "n/a":
-        lines.append(f"here {r.show(r.value)}, exact {r.show(r.exact)} ({r.error_text()})")
+    error = r.error_text()
+    if error != "n/a":
+        lines.append(f"here {r.show(r.value)}, exact {r.show(r.exact)} ({error})")
     return lines
 
 

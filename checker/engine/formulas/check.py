@@ -142,7 +142,7 @@ class FormulaResult:
         return self.match
 
     def error_text(self) -> str:
-        if not (np.isfinite(self.value) and np.isfinite(self.exact)) or self.exact == 0:
+        if not (math.isfinite(self.value) and math.isfinite(self.exact)) or self.exact == 0:
             return "n/a"
         if abs(self.error) < 1e-4:
             return "agrees"
@@ -495,7 +495,7 @@ def evaluate_all(
 def _value(result: FormulaResult, point: Mapping[str, float]) -> None:
     result.value, result.exact = _evaluate(result.rhs, point), _evaluate(result.lhs, point)
     result.error = math.nan
-    if np.isfinite(result.value) and np.isfinite(result.exact):
+    if math.isfinite(result.value) and math.isfinite(result.exact):
         if result.energy:
             result.error = (result.value - result.exact) / (point["k"] * point["T"])
         elif result.exact != 0:
