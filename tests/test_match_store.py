@@ -69,6 +69,11 @@ def test_an_entry_the_catalogue_does_not_know_is_searched_again(fresh_store, tmp
     file.write_text(json.dumps(stored), encoding="utf-8")
     fresh_store()
     assert match.analyse(*_trees(*form[:3:2]), *form[1:]) == found
+    for outcome in stored.values():  # a status the engine does not have
+        outcome[:] = ["proved", "donor", [], "symbolic"]
+    file.write_text(json.dumps(stored), encoding="utf-8")
+    fresh_store()
+    assert match.analyse(*_trees(*form[:3:2]), *form[1:]) == found
 
 
 def test_a_damaged_file_or_an_unwritable_folder_only_costs_the_search(fresh_store, tmp_path):

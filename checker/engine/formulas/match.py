@@ -156,7 +156,9 @@ def _rebuilt(
     status, which, ids, proof = outcome
     if status == "unrecognised":
         return Match("unrecognised", None, (), (), (), None)
-    if which not in ("donor", "acceptor") or proof not in ("symbolic", "numeric"):
+    if status not in ("exact", "limit") or which not in ("donor", "acceptor"):
+        return None
+    if proof not in ("symbolic", "numeric"):
         return None
     if not isinstance(ids, list) or (status == "exact") != (not ids):
         return None
