@@ -314,18 +314,10 @@ if _CParser is not None:
             ):
                 return super().compose_node(parent, index)
             self.get_event()
-            node: Any
             if kind is yaml.ScalarEvent:
-                node = yaml.ScalarNode(
-                    _STR_TAG, event.value, event.start_mark, event.end_mark, style=event.style
-                )
-                # the text was cleared of forbidden characters before parsing, so only a
-                # double-quoted scalar's escapes ("\x07") can write one
-                if event.style == '"':
-                    self._check_scalar(node)
-                return node
+                return self._scalar(event)
             mapping = kind is yaml.MappingStartEvent
-            node = (yaml.MappingNode if mapping else yaml.SequenceNode)(
+            node: Any = (yaml.MappingNode if mapping else yaml.SequenceNode)(
                 _MAP_TAG if mapping else _SEQ_TAG,
                 [],
                 event.start_mark,
@@ -335,16 +327,39 @@ if _CParser is not None:
             end = yaml.MappingEndEvent if mapping else yaml.SequenceEndEvent
             items = node.value
             self._depth += 1
-            while type(self.peek_event()) is not end:
-                if mapping:
-                    key = self.compose_node(node, None)
-                    items.append((key, self.compose_node(node, key)))
+            while True:
+                # a plain scalar (most keys and values) is taken here, without a call
+                # through compose_node; anything else goes through it (the same checks)
+                item: Any = self.peek_event()
+                if type(item) is end:
+                    break
+                if (
+                    type(item) is yaml.ScalarEvent
+                    and item.anchor is None
+                    and item.tag is None
+                    and self._depth < MAX_NESTING  # else compose_node refuses the depth
+                ):
+                    self.get_event()
+                    child = self._scalar(item)
                 else:
-                    items.append(self.compose_node(node, len(items)))
+                    child = self.compose_node(node, None if mapping else len(items))
+                items.append(child)
             self._depth -= 1
+            if mapping:  # keys and values alternate
+                node.value = list(zip(items[::2], items[1::2]))
             node.end_mark = self.get_event().end_mark
             if mapping:
                 self._check_keys(node)
+            return node
+
+        def _scalar(self, event: Any) -> yaml.ScalarNode:
+            node = yaml.ScalarNode(
+                _STR_TAG, event.value, event.start_mark, event.end_mark, style=event.style
+            )
+            # the text was cleared of forbidden characters before parsing, so only a
+            # double-quoted scalar's escapes ("\x07") can write one
+            if event.style == '"':
+                self._check_scalar(node)
             return node
 
         def resolve(self, kind, value, implicit):
