@@ -98,7 +98,7 @@ class Carrier(StrEnum):
     @classmethod
     def from_plural(cls, word: str | None) -> Carrier | None:
         """'electrons' -> Carrier.N, 'holes' -> Carrier.P, anything else -> None."""
-        return next((c for c in cls if _CARRIER_WORDS[c][0] == word), None)
+        return _BY_PLURAL.get(word) if isinstance(word, str) else None
 
 
 # (plural, dopants, singular); the last row: a check of the conductor as a whole
@@ -107,6 +107,8 @@ _CARRIER_WORDS = {
     Carrier.P: ("holes", "acceptors", "hole"),
     None: ("carriers", "dopants", "carrier"),
 }
+# 'electrons' -> Carrier.N, 'holes' -> Carrier.P (looked up for every finding)
+_BY_PLURAL = {_CARRIER_WORDS[carrier][0]: carrier for carrier in Carrier}
 
 
 def carrier_message_words(code: str | None) -> tuple[str, str, str]:

@@ -22,7 +22,8 @@ from __future__ import annotations
 
 import math
 from collections.abc import Collection, Iterable, Mapping, Sequence
-from dataclasses import dataclass, field, replace
+from copy import copy
+from dataclasses import dataclass, field
 from functools import lru_cache
 from itertools import combinations
 from typing import TYPE_CHECKING, TypeAlias
@@ -423,7 +424,8 @@ def analyse_calculation(
         except InputError as exc:
             out.errors.append(str(exc))
             continue
-        result = replace(known, where=where, line=line)
+        result = copy(known)  # the text's shared analysis, placed at this line
+        result.where, result.line = where, line
         out.results.append(result)
         if result.match is None:
             continue
