@@ -339,6 +339,8 @@ def point_bands(values: Values, dims: np.ndarray) -> list[str]:
 
 
 _compiled = lru_cache(maxsize=4096)(to_numpy)
+# a formula's left side as the reports write it (every calculation stating it asks)
+_text_of = lru_cache(maxsize=4096)(to_text)
 
 
 def _evaluate(tree: Node, point: Mapping[str, float]) -> float:
@@ -566,14 +568,14 @@ def formula_findings(
         )
         corrections: list[Correction] = []
         if (
-            np.isfinite(result.value)
-            and np.isfinite(result.exact)
+            math.isfinite(result.value)
+            and math.isfinite(result.exact)
             and result.exact != 0
             and result.unit
         ):
             corrections.append(
                 Correction(
-                    to_text(result.lhs),
+                    _text_of(result.lhs),
                     result.unit,
                     result.value,
                     result.exact,
@@ -588,7 +590,7 @@ def formula_findings(
         off_rule = (
             form03
             if form03 is not None
-            and np.isfinite(result.error)
+            and math.isfinite(result.error)
             and abs(result.error) > form03.threshold
             and result.text not in covered
             else None
