@@ -13,8 +13,10 @@ Method
 * j = -1, 0: closed forms (logistic, softplus).
 * j = 1, 2, 3: the exact reflection F_j(eta) = poly_j(eta) -/+ F_j(-eta), so only
   eta <= 0 is approximated.
+* every tabulated j below eta = -8: the first five terms of the exact series
+  F_j = sum_k (-1)^k z^(k+1)/(k+1)^(j+1), z = exp(eta) (remainder < 1.1e-17 relative).
 * half-integer j: piecewise polynomial fits generated in multiple precision
-  by tools/generate_fd_tables.py: a series in z = exp(eta) below eta = -2,
+  by tools/generate_fd_tables.py: a series in z = exp(eta) for -8 <= eta < -2,
   Chebyshev-derived polynomials on intervals up to eta = 50, and the
   Sommerfeld asymptotic series above (remainder O(exp(-eta)) < 1e-21 there).
   Relative error about 1e-15 at worst in float64 (measured by the tests against mpmath).
@@ -75,28 +77,37 @@ def _horner(coeffs: Sequence[float], t: FloatArray, out: FloatArray | None = Non
     return acc
 
 
-ETA_DEEP = -38.0  # below this F_j = e^eta to double precision (next term e^(2 eta)/2^(j+1))
+# Below ETA_SERIES, F_j = z (1 - z/2^(j+1) + z^2/3^(j+1) - z^3/4^(j+1) + z^4/5^(j+1)),
+# z = e^eta, to double precision: the series F_j/z = sum_k (-z)^k/(k+1)^(j+1) alternates
+# with decreasing terms there (ratio <= sqrt(2) z for j >= -3/2), so the remainder is below
+# the first omitted term z^5 6^-(j+1) <= e^-40 sqrt(6) = 1.1e-17 (DLMF 25.12.10, s = j+1).
+ETA_SERIES = -8.0
+_SERIES_TERMS = 5
 
 
 class _Piecewise:
     """Evaluator for one order from its generated table.
 
-    Regions: 0 deep tail (F = e^eta), 1 series in e^eta, 2.. fitted pieces,
-    last the Sommerfeld series (half-integer orders only).
+    Regions: 0 the short exact series in e^eta (below ETA_SERIES, the deep tail included),
+    1 the fitted series in e^eta, 2.. fitted pieces, last the Sommerfeld series
+    (half-integer orders only).
     """
 
     def __init__(self, key: str) -> None:
         # the generated table is plain literals: name the types of its entries here
         table: dict[str, Any] = _fd_tables.TABLES[key]
+        self.power = Fraction(key) + 1  # j + 1
+        self.short: list[float] = [
+            (-1) ** k / (k + 1) ** float(self.power) for k in range(_SERIES_TERMS)
+        ]
         self.low: list[float] = table["low"]
         self.pieces: list[tuple[float, float, list[float]]] = [
             ((a + b) / 2, 2.0 / (b - a), c) for a, b, c in table["pieces"]
         ]
-        edges = [ETA_DEEP, _fd_tables.ETA_LOW] + [b for _, b, _ in table["pieces"]]
+        edges = [ETA_SERIES, _fd_tables.ETA_LOW] + [b for _, b, _ in table["pieces"]]
         self.edges: FloatArray = np.array(edges, dtype=np.float64)
         self.asym: list[float] = table["asym"]
         self.gamma: float = table["gamma"]
-        self.power = Fraction(key) + 1  # j + 1
         self.last = len(self.edges) if self.asym else len(self.edges) - 1
 
     def regions(self, eta: FloatArray) -> tuple[npt.NDArray[np.uint8], npt.NDArray[np.intp]]:
@@ -104,7 +115,7 @@ class _Piecewise:
 
         The label is the count of edges at or below eta (a sum of comparisons: four
         times cheaper than a table look-up or a binary search); NaN compares false
-        and so lands in region 0, whose formulas pass NaN on."""
+        and so lands in region 0, whose formula passes NaN on."""
         labels: npt.NDArray[np.uint8] = np.zeros(eta.shape, dtype=np.uint8)
         at_least: list[int] = [eta.size]  # points in region k or above
         for edge in self.edges[: self.last]:
@@ -117,14 +128,9 @@ class _Piecewise:
 
     def region(self, k: int, eta: FloatArray, log: bool, out: FloatArray) -> None:
         """Write F_j (or ln F_j) of region k at eta into ``out`` (same length)."""
-        if k == 0:
-            if log:
-                np.copyto(out, eta)
-            else:
-                np.exp(eta, out=out)
-        elif k == 1:
+        if k <= 1:
             z = np.exp(eta)
-            _horner(self.low, z, out)
+            _horner(self.short if k == 0 else self.low, z, out)
             if log:
                 np.log(out, out=out)
                 out += eta
@@ -202,7 +208,7 @@ def _grouped(
         region, counts = classifier.regions(block)
         busy = np.flatnonzero(counts)
         if busy.size == 2 and busy[1] == 1:
-            busy = busy[1:]  # only deep and series points: the series formula serves both
+            busy = busy[1:]  # only points below ETA_LOW: the fitted series serves both
         if busy.size == 1:
             only = int(busy[0])
             for target, (ev, log) in zip(targets, jobs):
@@ -252,38 +258,46 @@ def _integer_order(j: int, eta: FloatArray, threads: bool = False) -> FloatArray
     out = np.empty_like(eta)
 
     def work(rows: slice) -> None:
-        out[rows] = _integer_order_block(j, eta[rows])
+        _integer_order_block(j, eta[rows], out[rows])
 
     _blockwise(eta.size, work, threads)
     return out
 
 
-def _integer_order_block(j: int, eta: FloatArray) -> FloatArray:
+def _integer_order_block(j: int, eta: FloatArray, out: FloatArray) -> None:
+    """Write F_j(eta), integer j, into ``out`` (same length as eta)."""
     if j == -1:
-        return _logistic(eta)
+        out[...] = _logistic(eta)
+        return
     if j == 0:
-        return _softplus(eta)
+        out[...] = _softplus(eta)
+        return
     poly, sign = _REFLECTION[j]
-    magnitude = np.abs(eta)
-    # F_j(-|eta|) from the table: the series in e^-|eta| serves |eta| > 2 (and the deep
-    # tail) on the whole block; the few points with |eta| <= 2 are patched from the fit
+    # F_j(-|eta|) from the table: the short series in e^-|eta| serves |eta| > 8 (and the
+    # deep tail) on the whole block; the points with |eta| <= 8 are patched from the
+    # fitted series and, for |eta| <= 2, the fitted piece on [ETA_LOW, 0]
     table = _evaluator(str(j))
-    base = np.negative(magnitude)
-    table.region(1, base, False, base)
-    near = np.flatnonzero(magnitude <= -_fd_tables.ETA_LOW)
+    base = np.abs(eta, out=out)
+    near = np.flatnonzero(base <= -ETA_SERIES)
+    np.negative(base, out=base)
+    fitted = base[near]
+    table.region(0, base, False, base)
     if near.size:
-        fitted = np.negative(magnitude[near])
-        table.region(2, fitted, False, fitted)  # the one fitted piece, [ETA_LOW, 0]
+        closest = np.flatnonzero(fitted >= _fd_tables.ETA_LOW)
+        middle = fitted[closest]
+        table.region(1, fitted, False, fitted)
+        table.region(2, middle, False, middle)  # the one fitted piece, [ETA_LOW, 0]
+        fitted[closest] = middle
         base[near] = fitted
-    # eta > 0: F_j(eta) = poly(eta) + sign * F_j(-eta); sign is exact (+-1); poly(0)
-    # stands in for eta <= 0 (finite, then zeroed) so no power of a huge |eta| overflows
+    # eta > 0: F_j(eta) = poly(eta) + sign * F_j(-eta), sign exactly +-1; poly(0) stands
+    # in for eta <= 0 (finite, then zeroed) so no power of a huge |eta| overflows.  Masks
+    # enter as factors 0 and 1: masked copies and np.where cost several times more.
     positive = eta > 0
     reflected = poly(np.maximum(eta, 0.0))
     reflected *= positive
     if sign < 0:
-        base *= 1.0 - 2.0 * positive
-    reflected += base
-    return reflected
+        base *= 1.0 - 2.0 * positive  # exact: -1 where eta > 0
+    base += reflected
 
 
 def fermi_dirac(j: float | Fraction, eta: ArrayIn) -> FloatOrArray:
