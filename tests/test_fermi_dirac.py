@@ -154,6 +154,32 @@ def test_large_arrays_split_over_blocks_and_threads(j, monkeypatch):
     assert np.allclose(got, expected, rtol=1e-14, atol=0)
 
 
+def test_results_are_not_overwritten_by_later_calls():
+    """The kernels keep work arrays from call to call: a returned array must own its
+    values.  Results of each kernel, then calls of every other kernel on other points,
+    then the first results again against mpmath (DLMF 25.12.16, 22 digits)."""
+    from checker.physics.fermi import log_fermi_dirac_half_pair
+
+    eta = np.linspace(-45.0, 70.0, 70_001)
+    picks = [0, 9_000, 30_000, 35_000, 40_000, 52_000, 70_000]
+    first = {j: fermi_dirac(j, eta) for j in (0.5, 1, 3)}
+    first_pair = log_fermi_dirac_half_pair(eta)
+    first_roots = inverse_fermi_dirac_half(first[0.5])
+    other = np.linspace(-9.0, 55.0, 66_000)
+    for j in (-1.5, 0.5, 1, 2, 3):
+        fermi_dirac(j, other)
+        log_fermi_dirac(j, other)
+    log_fermi_dirac_half_pair(other)
+    inverse_fermi_dirac_half(np.asarray(fermi_dirac(0.5, other)))
+    for j, values in first.items():
+        expected = np.array([float(fd_reference(j, eta[i])) for i in picks])
+        assert np.allclose(values[picks], expected, rtol=1e-14, atol=0), j
+    for j, logs in zip((0.5, -0.5), first_pair):
+        expected = np.array([float(mp.log(fd_reference(j, eta[i]))) for i in picks])
+        assert np.allclose(logs[picks], expected, rtol=1e-14, atol=1e-14), j
+    assert np.allclose(first_roots[picks], eta[picks], rtol=1e-13, atol=1e-13)
+
+
 def test_unsupported_order_is_a_clear_error():
     with pytest.raises(InputError, match="not supported"):
         fermi_dirac(0.25, 1.0)
