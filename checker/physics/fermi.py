@@ -304,11 +304,21 @@ def _integer_order(j: int, eta: FloatArray, threads: bool = False) -> FloatArray
 
 def _integer_order_block(j: int, eta: FloatArray, out: FloatArray) -> None:
     """Write F_j(eta), integer j, into ``out`` (same length as eta)."""
-    if j == -1:
-        out[...] = _logistic(eta)
-        return
-    if j == 0:
-        out[...] = _softplus(eta)
+    if j <= 0:
+        # e^-|eta| once; F_0 = max(eta, 0) + ln(1 + e^-|eta|) and F_-1 = e^-|eta|/(1 +
+        # e^-|eta|) below 0, 1/(1 + e^-|eta|) from 0: as _softplus and _logistic compute
+        # them, in work arrays
+        tail = np.abs(eta, out=_work("tail", eta.size))
+        np.negative(tail, out=tail)
+        np.exp(tail, out=tail)
+        if j == 0:
+            np.log1p(tail, out=tail)
+            np.maximum(eta, 0.0, out=out)
+            out += tail
+        else:
+            np.maximum(tail, eta >= 0, out=out)  # the numerator: 1 where eta >= 0 (tail <= 1)
+            tail += 1.0
+            out /= tail
         return
     # F_j(-|eta|) from the table: the short series in e^-|eta| serves |eta| > 8 (and the
     # deep tail) on the whole block; the points with |eta| <= 8 are patched from the
