@@ -343,9 +343,9 @@ def _integer_order_block(j: int, eta: FloatArray, out: FloatArray) -> None:
     reflected = _reflection_polynomial(j, np.maximum(eta, 0.0, out=_work("reflected", eta.size)))
     reflected *= positive
     if _REFLECTION_SIGN[j] < 0:
-        flip = np.multiply(positive, -2.0, out=_work("flip", eta.size))
-        flip += 1.0  # exact: -1 where eta > 0, else 1
-        base *= flip
+        # -F_j(-eta) where eta > 0: the sign of 0.0 - eta (+0.0 for eta = +-0.0)
+        side = np.subtract(0.0, eta, out=_work("side", eta.size))
+        np.copysign(base, side, out=base)
     base += reflected
 
 
