@@ -537,16 +537,18 @@ def inverse_fermi_dirac_half(u: ArrayIn) -> FloatOrArray:
     guess); Blakemore, Solid-State Electron. 25, 1067 (1982).
     """
     arr = np.asarray(u, dtype=np.float64)
-    # two reductions, no temporaries; NaN fails both comparisons
-    if arr.size and not (np.min(arr) > 0.0 and np.max(arr) < np.inf):
-        raise InputError(
-            "inverse_fermi_dirac_half needs finite values u > 0 (F_1/2 is positive for every eta)"
-        )
     flat = np.ascontiguousarray(arr).ravel()
     roots = np.empty_like(flat)
 
     def work(rows: slice) -> None:
-        _inverse_block(flat[rows], roots[rows])
+        block = flat[rows]
+        # two reductions per block, while it is in cache; NaN fails both comparisons
+        if not (np.min(block) > 0.0 and np.max(block) < np.inf):
+            raise InputError(
+                "inverse_fermi_dirac_half needs finite values u > 0"
+                " (F_1/2 is positive for every eta)"
+            )
+        _inverse_block(block, roots[rows])
 
     _blockwise(flat.size, work, threads=True)
     result = roots.reshape(arr.shape)
