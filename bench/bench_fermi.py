@@ -7,9 +7,11 @@ dependency).  fdint computes the unnormalized integral (Gamma(j+1) times ours): 
 multiply apart, the same cost.  Targets (issue 16): every order <= 1.0x fdint and
 <= 10x np.exp(out=); the inverse <= 2x fdint's ifd1h, flat per element from 1e5 to 1e7.
 eta ~ U[-40, 80]; the inverse is fed u = F_1/2(eta) of those points.
+Each kernel gets three rows (ours, np.exp(out=), fdint), the ratio column taken to fdint
+where it is importable (else to np.exp), so "ours" reads ours / fdint and "exp(out=)"
+reads exp / fdint: ours / exp is the quotient of the two.  Rows are tagged with the size
+and thread count (``--workers 1 2``: fermi.WORKERS; fdint and np.exp run on one thread).
 Prints tables; asserts nothing.
-Rows are tagged with the thread count (``--workers 1 2``: fermi.WORKERS; fdint and
-np.exp run on one thread).
 Usage: python bench/bench_fermi.py [--sizes 1e5 1e6 1e7] [--rounds 7] [--orders 0.5 1]
                                    [--workers 1 2] [--no-inverse]
 """
@@ -18,12 +20,13 @@ from __future__ import annotations
 
 import argparse
 import sys
+from collections.abc import Callable
 from pathlib import Path
 
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from interleaved import exp_anchor, fdint, interleaved, ratios  # noqa: E402
+from interleaved import exp_anchor, fdint, interleaved, ratio_table  # noqa: E402
 
 from checker.physics import fermi  # noqa: E402
 from checker.physics.fermi import fermi_dirac, inverse_fermi_dirac_half  # noqa: E402
@@ -38,46 +41,41 @@ def fdint_kernel(module, j: float):
     return getattr(module, name, None)
 
 
+def kernel_table(
+    name: str, ours: Callable[[], object], theirs: Callable[[], object] | None, x, rounds: int
+) -> list[str]:
+    """The ratio table of ours, np.exp(out=) and fdint on x, to fdint where it is
+    importable (else to np.exp); the anchor row is named after the anchor alone, so every
+    kernel's table has the same header."""
+    anchor = "fdint" if theirs is not None else "exp(out=)"
+    cases = {f"{name} ours": ours, f"{name} exp(out=)": exp_anchor(x)}
+    if theirs is not None:
+        cases[anchor] = theirs
+    else:
+        cases[anchor] = cases.pop(f"{name} exp(out=)")
+    return ratio_table(interleaved(cases, rounds), anchor, per=x.size).splitlines()
+
+
 def order_rows(eta: np.ndarray, rounds: int, orders: list[float], tag: str) -> list[str]:
     lib = fdint()
     rows = []
+    buffer = np.empty_like(eta)
     for j in orders:
-        buffer = np.empty_like(eta)
-        cases = {"exp": exp_anchor(eta), "ours": lambda j=j: fermi_dirac(j, eta)}
-        theirs = fdint_kernel(lib, j) if lib is not None else None
-        if theirs is not None:
-            cases["fdint"] = lambda f=theirs: f(eta, buffer)
-        timings = interleaved(cases, rounds)
-        r = ratios(timings, "exp")
-        vs = ratios(timings, "fdint")["ours"] if "fdint" in timings else None
-        rows.append(
-            row(f"F_{j:g}{tag}", eta.size, timings["ours"].best, r["ours"], r.get("fdint"), vs)
-        )
+        kernel = fdint_kernel(lib, j) if lib is not None else None
+        theirs = None if kernel is None else (lambda f=kernel: f(eta, buffer))
+        rows += kernel_table(f"F_{j:g}{tag}", lambda j=j: fermi_dirac(j, eta), theirs, eta, rounds)
     return rows
 
 
-def inverse_row(eta: np.ndarray, rounds: int, tag: str) -> str:
+def inverse_rows(eta: np.ndarray, rounds: int, tag: str) -> list[str]:
     u = np.asarray(fermi_dirac(0.5, eta))
     lib = fdint()
-    cases = {"exp": exp_anchor(u), "ours": lambda: inverse_fermi_dirac_half(u)}
+    theirs = None
     if lib is not None:
         unnormalized = u * (np.sqrt(np.pi) / 2.0)  # fdint's F_1/2 is Gamma(3/2) times ours
         buffer = np.empty_like(u)
-        cases["fdint"] = lambda: lib.ifd1h(unnormalized, buffer)
-    timings = interleaved(cases, rounds)
-    r = ratios(timings, "exp")
-    vs = ratios(timings, "fdint")["ours"] if "fdint" in timings else None
-    return row(f"F_1/2 inv{tag}", u.size, timings["ours"].best, r["ours"], r.get("fdint"), vs)
-
-
-def row(name, n, best, ours_exp, fdint_exp, ours_fdint) -> str:
-    def fmt(triple):
-        return "-" if triple is None else f"{triple[0]:.2f} ({triple[1]:.2f}-{triple[2]:.2f})"
-
-    return (
-        f"{name:<16} {n:>9d} {best / n * 1e9:>8.2f} {fmt(ours_exp):>20} "
-        f"{fmt(fdint_exp):>20} {fmt(ours_fdint):>20}"
-    )
+        theirs = lambda: lib.ifd1h(unnormalized, buffer)  # noqa: E731
+    return kernel_table(f"F_1/2 inv{tag}", lambda: inverse_fermi_dirac_half(u), theirs, u, rounds)
 
 
 def main() -> None:
@@ -91,23 +89,24 @@ def main() -> None:
     )
     args = parser.parse_args()
     rng = np.random.default_rng(7)
-    print("eta ~ U[-40, 80]; ratios: median of per-round ratios (lowest-highest)")
-    print("fdint: " + ("installed" if fdint() is not None else "not importable: column empty"))
-    print(
-        f"{'kernel':<16} {'points':>9} {'ns/elem':>8} {'ours / exp(out=)':>20} "
-        f"{'fdint / exp(out=)':>20} {'ours / fdint':>20}"
-    )
+    lib = fdint()
+    print("eta ~ U[-40, 80]; ratios: median of per-round ratios (spread: lowest-highest)")
+    print("fdint: " + ("installed; ratios to fdint" if lib else "not importable; ratios to exp"))
+    header = ""
     for size in args.sizes:
         n = int(size)
         eta = rng.uniform(-40.0, 80.0, n)
         rounds = args.rounds if n <= 1_000_000 else max(3, args.rounds // 2)
         for workers in args.workers:
             fermi.WORKERS = workers
-            tag = f" {workers}t"
-            for line in order_rows(eta, rounds, args.orders, tag):
-                print(line, flush=True)
+            tag = f" {n:.0e} {workers}t"
+            rows = order_rows(eta, rounds, args.orders, tag)
             if not args.no_inverse:
-                print(inverse_row(eta, rounds, tag), flush=True)
+                rows += inverse_rows(eta, rounds, tag)
+            for line in rows:
+                if line != header:  # each kernel's table repeats the header: print it once
+                    print(line, flush=True)
+                    header = header or line
 
 
 if __name__ == "__main__":

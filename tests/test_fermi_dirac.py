@@ -47,6 +47,26 @@ def test_reference_cache_matches_mpmath():
         assert root == pytest.approx(reference_cache.inverse_value(u), rel=1e-15, abs=1e-15)
 
 
+@pytest.mark.parametrize("j", [-1.5, -0.5, 0.5, 1, 1.5, 2, 2.5, 3, 3.5])
+def test_values_on_both_sides_of_every_formula_edge(j):
+    """Where the evaluator changes formula (the short exact series below eta = -8, the
+    fitted series below -2, the ends of every fitted piece, the Sommerfeld series from 50)
+    and the floats next to each, mirrored to negative eta for the reflected integer
+    orders: within 1.6e-15 of mpmath (DLMF 25.12.16, 30 digits), the documented measured
+    accuracy."""
+    from checker.physics import _fd_tables, fermi
+
+    key = str(fermi._order(j))
+    edges = [fermi.ETA_SERIES, _fd_tables.ETA_LOW]
+    edges += [b for _, b, _ in _fd_tables.TABLES[key]["pieces"]]
+    near = [x for e in edges for x in (np.nextafter(e, -np.inf), e, np.nextafter(e, np.inf))]
+    eta = np.array(near + [-x for x in near if x > 0])
+    got = fermi_dirac(j, eta)
+    expected = np.array([float(fd_reference(j, x, dps=30)) for x in eta])
+    worst = np.max(np.abs(got / expected - 1))
+    assert worst <= 1.6e-15, (eta[np.argmax(np.abs(got / expected - 1))], worst)
+
+
 @pytest.mark.parametrize("j", ORDERS)
 def test_value_at_zero_is_dirichlet_eta(j):
     # F_j(0) = (1 - 2^-j) zeta(j+1) = Dirichlet eta(j+1); F_0(0) = ln 2 (DLMF 25.12)
@@ -132,6 +152,32 @@ def test_large_arrays_split_over_blocks_and_threads(j, monkeypatch):
     got = fermi_dirac(j, eta)[picks]
     expected = np.array([float(fd_reference(j, eta[i])) for i in picks])
     assert np.allclose(got, expected, rtol=1e-14, atol=0)
+
+
+def test_results_are_not_overwritten_by_later_calls():
+    """The kernels keep work arrays from call to call: a returned array must own its
+    values.  Results of each kernel, then calls of every other kernel on other points,
+    then the first results again against mpmath (DLMF 25.12.16, 22 digits)."""
+    from checker.physics.fermi import log_fermi_dirac_half_pair
+
+    eta = np.linspace(-45.0, 70.0, 70_001)
+    picks = [0, 9_000, 30_000, 35_000, 40_000, 52_000, 70_000]
+    first = {j: fermi_dirac(j, eta) for j in (0.5, 1, 3)}
+    first_pair = log_fermi_dirac_half_pair(eta)
+    first_roots = inverse_fermi_dirac_half(first[0.5])
+    other = np.linspace(-9.0, 55.0, 66_000)
+    for j in (-1.5, 0.5, 1, 2, 3):
+        fermi_dirac(j, other)
+        log_fermi_dirac(j, other)
+    log_fermi_dirac_half_pair(other)
+    inverse_fermi_dirac_half(np.asarray(fermi_dirac(0.5, other)))
+    for j, values in first.items():
+        expected = np.array([float(fd_reference(j, eta[i])) for i in picks])
+        assert np.allclose(values[picks], expected, rtol=1e-14, atol=0), j
+    for j, logs in zip((0.5, -0.5), first_pair):
+        expected = np.array([float(mp.log(fd_reference(j, eta[i]))) for i in picks])
+        assert np.allclose(logs[picks], expected, rtol=1e-14, atol=1e-14), j
+    assert np.allclose(first_roots[picks], eta[picks], rtol=1e-13, atol=1e-13)
 
 
 def test_unsupported_order_is_a_clear_error():

@@ -84,3 +84,17 @@ def test_block_and_thread_boundaries_do_not_change_values(monkeypatch):
     got = inverse_fermi_dirac_half(big)[picks]
     error = np.abs(got - roots) / np.maximum(1.0, np.abs(roots))
     assert error.max() <= 1e-13, error
+
+
+@pytest.mark.parametrize("bad", [0.0, -2.0, np.nan, np.inf])
+def test_a_bad_value_deep_in_a_large_array_is_refused(bad, monkeypatch):
+    """Values are checked block by block: one u outside (0, inf) in the third thread task
+    of a large array still raises the clear error (F_1/2 > 0 for every eta, DLMF 25.12.16)."""
+    from checker import InputError
+    from checker.physics import fermi
+
+    monkeypatch.setattr(fermi, "WORKERS", 2)
+    u = np.ones(400_000)
+    u[300_001] = bad
+    with pytest.raises(InputError, match="u > 0"):
+        inverse_fermi_dirac_half(u)

@@ -13,14 +13,18 @@ Method
 * j = -1, 0: closed forms (logistic, softplus).
 * j = 1, 2, 3: the exact reflection F_j(eta) = poly_j(eta) -/+ F_j(-eta), so only
   eta <= 0 is approximated.
+* every tabulated j below eta = -8: the first five terms of the exact series
+  F_j = sum_k (-1)^k z^(k+1)/(k+1)^(j+1), z = exp(eta) (remainder < 1.1e-17 relative).
 * half-integer j: piecewise polynomial fits generated in multiple precision
-  by tools/generate_fd_tables.py: a series in z = exp(eta) below eta = -2,
+  by tools/generate_fd_tables.py: a series in z = exp(eta) for -8 <= eta < -2,
   Chebyshev-derived polynomials on intervals up to eta = 50, and the
   Sommerfeld asymptotic series above (remainder O(exp(-eta)) < 1e-21 there).
   Relative error about 1e-15 at worst in float64 (measured by the tests against mpmath).
 * Evaluation: in blocks of 65,536 points, each labelled by region (a sum of edge
   comparisons), sorted by label (radix sort of uint8) so each region's formula runs on one
-  contiguous slice; blocks of large arrays run on WORKERS threads.
+  contiguous slice; blocks of large arrays run on WORKERS threads.  A block's temporaries
+  live in work arrays kept per thread from call to call (fresh 512 KiB arrays cost a page
+  fault per 4 KiB); no result is ever a view of one.
 * Inverse of F_1/2: a quintic Hermite table of eta - ln u in ln u (see
   inverse_fermi_dirac_half).
 
@@ -33,6 +37,7 @@ T. Fukushima, Appl. Math. Comput. 259, 708 (2015) (piecewise approximation).
 
 from __future__ import annotations
 
+import _thread
 import os
 from collections.abc import Callable, Sequence
 from fractions import Fraction
@@ -66,6 +71,28 @@ def _order(j: Any) -> Fraction:
     return frac
 
 
+# Work arrays reused from call to call, one set per thread: a block's temporaries are
+# 64k doubles (512 KiB), which the C allocator serves by mmap or returns to the system on
+# free, so fresh ones cost a page fault every 4 KiB (measured: 40-80 % of a 1e5-point
+# call); at most a few MiB per thread stay allocated.
+_WORK: dict[tuple[int, str], npt.NDArray[Any]] = {}
+
+
+def _work(name: str, size: int, dtype: type = np.float64) -> npt.NDArray[Any]:
+    """This thread's work array ``name`` of ``size`` elements (contents undefined)."""
+    key = (_thread.get_ident(), name)
+    buffer = _WORK.get(key)
+    if buffer is None or buffer.size < size:
+        if not _WORK:
+            # numpy.argsort and numpy.flatnonzero still return fresh 512 KiB arrays per
+            # block.  glibc serves those from the heap (no page faults) only once a freed
+            # mmap'd block has raised its mmap threshold, which arrays over 32 MiB never
+            # do: free one of 1 MiB now (measured at 1e7 points: F_1/2 24 -> 17-20 ns).
+            np.ones(1 << 17)
+        buffer = _WORK[key] = np.empty(max(size, _CHUNK), dtype=dtype)
+    return buffer[:size]
+
+
 def _horner(coeffs: Sequence[float], t: FloatArray, out: FloatArray | None = None) -> FloatArray:
     acc = np.multiply(t, coeffs[-1], out=out)
     acc += coeffs[-2]
@@ -75,28 +102,37 @@ def _horner(coeffs: Sequence[float], t: FloatArray, out: FloatArray | None = Non
     return acc
 
 
-ETA_DEEP = -38.0  # below this F_j = e^eta to double precision (next term e^(2 eta)/2^(j+1))
+# Below ETA_SERIES, F_j = z (1 - z/2^(j+1) + z^2/3^(j+1) - z^3/4^(j+1) + z^4/5^(j+1)),
+# z = e^eta, to double precision: the series F_j/z = sum_k (-z)^k/(k+1)^(j+1) alternates
+# with decreasing terms there (ratio <= sqrt(2) z for j >= -3/2), so the remainder is below
+# the first omitted term z^5 6^-(j+1) <= e^-40 sqrt(6) = 1.1e-17 (DLMF §25.12(ii), s = j+1).
+ETA_SERIES = -8.0
+_SERIES_TERMS = 5
 
 
 class _Piecewise:
     """Evaluator for one order from its generated table.
 
-    Regions: 0 deep tail (F = e^eta), 1 series in e^eta, 2.. fitted pieces,
-    last the Sommerfeld series (half-integer orders only).
+    Regions: 0 the short exact series in e^eta (below ETA_SERIES, the deep tail included),
+    1 the fitted series in e^eta, 2.. fitted pieces, last the Sommerfeld series
+    (half-integer orders only).
     """
 
     def __init__(self, key: str) -> None:
         # the generated table is plain literals: name the types of its entries here
         table: dict[str, Any] = _fd_tables.TABLES[key]
+        self.power = Fraction(key) + 1  # j + 1
+        self.short: list[float] = [
+            (-1) ** k / (k + 1) ** float(self.power) for k in range(_SERIES_TERMS)
+        ]
         self.low: list[float] = table["low"]
         self.pieces: list[tuple[float, float, list[float]]] = [
             ((a + b) / 2, 2.0 / (b - a), c) for a, b, c in table["pieces"]
         ]
-        edges = [ETA_DEEP, _fd_tables.ETA_LOW] + [b for _, b, _ in table["pieces"]]
+        edges = [ETA_SERIES, _fd_tables.ETA_LOW] + [b for _, b, _ in table["pieces"]]
         self.edges: FloatArray = np.array(edges, dtype=np.float64)
         self.asym: list[float] = table["asym"]
         self.gamma: float = table["gamma"]
-        self.power = Fraction(key) + 1  # j + 1
         self.last = len(self.edges) if self.asym else len(self.edges) - 1
 
     def regions(self, eta: FloatArray) -> tuple[npt.NDArray[np.uint8], npt.NDArray[np.intp]]:
@@ -104,7 +140,7 @@ class _Piecewise:
 
         The label is the count of edges at or below eta (a sum of comparisons: four
         times cheaper than a table look-up or a binary search); NaN compares false
-        and so lands in region 0, whose formulas pass NaN on."""
+        and so lands in region 0, whose formula passes NaN on."""
         labels: npt.NDArray[np.uint8] = np.zeros(eta.shape, dtype=np.uint8)
         at_least: list[int] = [eta.size]  # points in region k or above
         for edge in self.edges[: self.last]:
@@ -117,14 +153,9 @@ class _Piecewise:
 
     def region(self, k: int, eta: FloatArray, log: bool, out: FloatArray) -> None:
         """Write F_j (or ln F_j) of region k at eta into ``out`` (same length)."""
-        if k == 0:
-            if log:
-                np.copyto(out, eta)
-            else:
-                np.exp(eta, out=out)
-        elif k == 1:
-            z = np.exp(eta)
-            _horner(self.low, z, out)
+        if k <= 1:
+            z = np.exp(eta, out=_work("variable", eta.size))
+            _horner(self.short if k == 0 else self.low, z, out)
             if log:
                 np.log(out, out=out)
                 out += eta
@@ -134,25 +165,25 @@ class _Piecewise:
             self._asymptotic(eta, log, out)
         else:
             mid, inv_half, coeffs = self.pieces[k - 2]
-            t = np.subtract(eta, mid)
+            t = np.subtract(eta, mid, out=_work("variable", eta.size))
             t *= inv_half
             _horner(coeffs, t, out)
             if log:
                 np.log(out, out=out)
 
     def _asymptotic(self, eta: FloatArray, log: bool, out: FloatArray) -> None:
-        inv2 = eta * eta
+        inv2 = np.multiply(eta, eta, out=_work("variable", eta.size))
         np.divide(1.0, inv2, out=inv2)
         series = _horner(self.asym, inv2, out)
         whole = int(self.power - Fraction(1, 2))  # eta^(j+1) = eta^whole * sqrt(eta)
-        lead = np.sqrt(eta)
+        lead = np.sqrt(eta, out=_work("lead", eta.size))
         if whole < 0:
             np.divide(1.0, lead, out=lead)
         for _ in range(max(whole, 0)):
             lead *= eta
         if log:
             np.log(series, out=series)
-            series += np.log(lead)
+            series += np.log(lead, out=lead)
             series -= np.log(self.gamma)
         else:
             series *= lead
@@ -202,15 +233,15 @@ def _grouped(
         region, counts = classifier.regions(block)
         busy = np.flatnonzero(counts)
         if busy.size == 2 and busy[1] == 1:
-            busy = busy[1:]  # only deep and series points: the series formula serves both
+            busy = busy[1:]  # only points below ETA_LOW: the fitted series serves both
         if busy.size == 1:
             only = int(busy[0])
             for target, (ev, log) in zip(targets, jobs):
                 ev.region(only, block, log, target)
             return
         order = np.argsort(region, kind="stable")
-        grouped = block[order]
-        results = [np.empty_like(grouped) for _ in jobs]
+        grouped = np.take(block, order, out=_work("grouped", block.size))
+        results = [_work(f"result {i}", block.size) for i in range(len(jobs))]
         stop = 0
         for k in busy:
             first, stop = stop, stop + counts[k]
@@ -240,50 +271,88 @@ def _logistic(eta: FloatArray) -> FloatArray:
     return np.where(eta >= 0, 1.0 / (1.0 + e), e / (1.0 + e))
 
 
-# F_j(eta) = poly(eta) + sign * F_j(-eta), exact for integer j >= 1
-_REFLECTION: dict[int, tuple[Callable[[FloatArray], FloatArray], float]] = {
-    1: (lambda x: 0.5 * x * x + _PI2 / 6.0, -1.0),
-    2: (lambda x: x * (x * x + _PI2) / 6.0, +1.0),
-    3: (lambda x: x * x * (x * x / 24.0 + _PI2 / 12.0) + 7.0 * _PI2 * _PI2 / 360.0, -1.0),
-}
+# F_j(eta) = poly_j(eta) + sign_j * F_j(-eta), exact for integer j >= 1 (Blakemore 1982)
+_REFLECTION_SIGN = {1: -1.0, 2: +1.0, 3: -1.0}
+
+
+def _reflection_polynomial(j: int, x: FloatArray) -> FloatArray:
+    """poly_j(x) = x^2/2 + pi^2/6, x (x^2 + pi^2)/6, x^4/24 + pi^2 x^2/12 + 7 pi^4/360 for
+    j = 1, 2, 3, in a work array (x may be overwritten); the operations and their order
+    are those of the written formulas, so the roundings are too."""
+    square: FloatArray
+    if j == 1:
+        square = np.multiply(x, 0.5, out=_work("square", x.size))
+        square *= x
+        square += _PI2 / 6.0
+        return square
+    square = np.multiply(x, x, out=_work("square", x.size))
+    if j == 2:
+        square += _PI2
+        square *= x
+        square /= 6.0
+        return square
+    np.divide(square, 24.0, out=x)
+    x += _PI2 / 12.0
+    square *= x
+    square += 7.0 * _PI2 * _PI2 / 360.0
+    return square
 
 
 def _integer_order(j: int, eta: FloatArray, threads: bool = False) -> FloatArray:
     out = np.empty_like(eta)
 
     def work(rows: slice) -> None:
-        out[rows] = _integer_order_block(j, eta[rows])
+        _integer_order_block(j, eta[rows], out[rows])
 
     _blockwise(eta.size, work, threads)
     return out
 
 
-def _integer_order_block(j: int, eta: FloatArray) -> FloatArray:
-    if j == -1:
-        return _logistic(eta)
-    if j == 0:
-        return _softplus(eta)
-    poly, sign = _REFLECTION[j]
-    magnitude = np.abs(eta)
-    # F_j(-|eta|) from the table: the series in e^-|eta| serves |eta| > 2 (and the deep
-    # tail) on the whole block; the few points with |eta| <= 2 are patched from the fit
+def _integer_order_block(j: int, eta: FloatArray, out: FloatArray) -> None:
+    """Write F_j(eta), integer j, into ``out`` (same length as eta)."""
+    if j <= 0:
+        # e^-|eta| once; F_0 = max(eta, 0) + ln(1 + e^-|eta|) and F_-1 = e^-|eta|/(1 +
+        # e^-|eta|) below 0, 1/(1 + e^-|eta|) from 0: as _softplus and _logistic compute
+        # them, in work arrays
+        tail = np.abs(eta, out=_work("tail", eta.size))
+        np.negative(tail, out=tail)
+        np.exp(tail, out=tail)
+        if j == 0:
+            np.log1p(tail, out=tail)
+            np.maximum(eta, 0.0, out=out)
+            out += tail
+        else:
+            np.maximum(tail, eta >= 0, out=out)  # the numerator: 1 where eta >= 0 (tail <= 1)
+            tail += 1.0
+            out /= tail
+        return
+    # F_j(-|eta|) from the table: the short series in e^-|eta| serves |eta| > 8 (and the
+    # deep tail) on the whole block; the points with |eta| <= 8 are patched from the
+    # fitted series and, for |eta| <= 2, the fitted piece on [ETA_LOW, 0]
     table = _evaluator(str(j))
-    base = np.negative(magnitude)
-    table.region(1, base, False, base)
-    near = np.flatnonzero(magnitude <= -_fd_tables.ETA_LOW)
+    base = np.abs(eta, out=out)
+    near = np.flatnonzero(base <= -ETA_SERIES)
+    np.negative(base, out=base)
+    fitted = np.take(base, near, out=_work("fitted", near.size))
+    table.region(0, base, False, base)
     if near.size:
-        fitted = np.negative(magnitude[near])
-        table.region(2, fitted, False, fitted)  # the one fitted piece, [ETA_LOW, 0]
+        closest = np.flatnonzero(fitted >= _fd_tables.ETA_LOW)
+        middle = np.take(fitted, closest, out=_work("middle", closest.size))
+        table.region(1, fitted, False, fitted)
+        table.region(2, middle, False, middle)  # the one fitted piece, [ETA_LOW, 0]
+        fitted[closest] = middle
         base[near] = fitted
-    # eta > 0: F_j(eta) = poly(eta) + sign * F_j(-eta); sign is exact (+-1); poly(0)
-    # stands in for eta <= 0 (finite, then zeroed) so no power of a huge |eta| overflows
+    # eta > 0: F_j(eta) = poly(eta) + sign * F_j(-eta), sign exactly +-1; poly(0) stands
+    # in for eta <= 0 (finite, then zeroed) so no power of a huge |eta| overflows.  Masks
+    # enter as factors 0 and 1: masked copies and np.where cost several times more.
     positive = eta > 0
-    reflected = poly(np.maximum(eta, 0.0))
+    reflected = _reflection_polynomial(j, np.maximum(eta, 0.0, out=_work("reflected", eta.size)))
     reflected *= positive
-    if sign < 0:
-        base *= 1.0 - 2.0 * positive
-    reflected += base
-    return reflected
+    if _REFLECTION_SIGN[j] < 0:
+        # -F_j(-eta) where eta > 0: the sign of 0.0 - eta (+0.0 for eta = +-0.0)
+        side = np.subtract(0.0, eta, out=_work("side", eta.size))
+        np.copysign(base, side, out=base)
+    base += reflected
 
 
 def fermi_dirac(j: float | Fraction, eta: ArrayIn) -> FloatOrArray:
@@ -433,18 +502,21 @@ def _inverse_table() -> list[FloatArray]:
     ]
 
 
-def _inverse_block(log_u: FloatArray) -> FloatArray:
-    """The table's eta in range and below it (there g(-38) ~ 1e-17 is below half an ulp of
-    eta); Newton from scratch above it."""
+def _inverse_block(u: FloatArray, eta: FloatArray) -> None:
+    """Write the roots for ``u`` into ``eta``: the table's in range and below it (there
+    g(-38) ~ 1e-17 is below half an ulp of eta); Newton from scratch above it."""
     coeffs = _inverse_table()
     cells = coeffs[0].size
-    x = np.subtract(log_u, _INV_S_LOW)
+    log_u = np.log(u, out=_work("log u", u.size))
+    x = np.subtract(log_u, _INV_S_LOW, out=_work("position", u.size))
     x *= _INV_CELLS_PER_UNIT
     np.clip(x, 0.0, cells, out=x)  # points above the table are replaced below
-    cell = np.minimum(x.astype(np.intp), cells - 1)
+    cell = _work("cell", u.size, np.intp)
+    np.copyto(cell, x, casting="unsafe")  # truncation: the floor of x >= 0
+    np.minimum(cell, cells - 1, out=cell)
     x -= cell  # t in [0, 1]
-    eta = np.take(coeffs[-1], cell)
-    scratch = np.empty_like(eta)
+    np.take(coeffs[-1], cell, out=eta)
+    scratch = _work("coefficient", u.size)
     for c in coeffs[-2::-1]:
         eta *= x
         eta += np.take(c, cell, out=scratch)
@@ -452,7 +524,6 @@ def _inverse_block(log_u: FloatArray) -> FloatArray:
     if np.count_nonzero(log_u > _INV_S_HIGH):
         above = np.flatnonzero(log_u > _INV_S_HIGH)
         eta[above] = _newton_inverse_half(log_u[above])
-    return eta
 
 
 def inverse_fermi_dirac_half(u: ArrayIn) -> FloatOrArray:
@@ -472,16 +543,18 @@ def inverse_fermi_dirac_half(u: ArrayIn) -> FloatOrArray:
     guess); Blakemore, Solid-State Electron. 25, 1067 (1982).
     """
     arr = np.asarray(u, dtype=np.float64)
-    # two reductions, no temporaries; NaN fails both comparisons
-    if arr.size and not (np.min(arr) > 0.0 and np.max(arr) < np.inf):
-        raise InputError(
-            "inverse_fermi_dirac_half needs finite values u > 0 (F_1/2 is positive for every eta)"
-        )
     flat = np.ascontiguousarray(arr).ravel()
     roots = np.empty_like(flat)
 
     def work(rows: slice) -> None:
-        roots[rows] = _inverse_block(np.log(flat[rows]))
+        block = flat[rows]
+        # two reductions per block, while it is in cache; NaN fails both comparisons
+        if not (np.min(block) > 0.0 and np.max(block) < np.inf):
+            raise InputError(
+                "inverse_fermi_dirac_half needs finite values u > 0"
+                " (F_1/2 is positive for every eta)"
+            )
+        _inverse_block(block, roots[rows])
 
     _blockwise(flat.size, work, threads=True)
     result = roots.reshape(arr.shape)
