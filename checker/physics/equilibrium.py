@@ -580,21 +580,16 @@ def _initial_guess(
     ln_band = np.where(n_type, ln_nc, ln_nv)
     ln_phi = ln_band - np.where(n_type, offset_d, offset_a)
     bound = np.where(n_type, bound_d, bound_a)
-    carriers = majority(major, minor, ln_phi, bound, ni)
-    eta = _eta_from_ln_u(np.log(np.maximum(carriers, 1e-300)) - ln_band)
-    # near degeneracy the occupancy sees e^eta = gamma n/N_band (gamma = F_1/2(eta)/e^eta
-    # < 1), not n/N_band: once more with phi scaled by gamma at the first estimate
-    near = np.flatnonzero(eta > _DEGENERACY_ONSET)
-    if near.size:
-        e = eta[near]
-        ln_gamma = np.asarray(log_fermi_dirac(0.5, e)) - e
-        again = majority(major[near], minor[near], ln_phi[near] + ln_gamma, bound[near], ni[near])
-        eta[near] = _eta_from_ln_u(np.log(np.maximum(again, 1e-300)) - ln_band[near])
+    ln_u = np.log(np.maximum(majority(major, minor, ln_phi, bound, ni), 1e-300)) - ln_band
+    eta = _eta_from_ln_u(ln_u)
+    # the occupancy sees e^eta = gamma n/N_band with gamma = F_1/2(eta)/e^eta = u e^-eta
+    # (< 1; 0.6 % below 1 already at eta = -4), not n/N_band: once more with phi scaled
+    # by gamma at the first estimate (no F_1/2 evaluation: eta inverts u)
+    nearer = np.where(eta > _NONDEGENERATE_LN_U, ln_u - eta, 0.0)
+    nearer += ln_phi
+    ln_u = np.log(np.maximum(majority(major, minor, nearer, bound, ni), 1e-300)) - ln_band
+    eta = _eta_from_ln_u(ln_u)
     return np.where(n_type, eta, -eg_kt - eta)
-
-
-# below this eta, F_1/2(eta) = e^eta to within 2 %: the start needs no degeneracy factor
-_DEGENERACY_ONSET = -4.0
 
 
 def _kane_start(eta_parabolic: FloatArray, beta: FloatArray, n_type: BoolArray) -> FloatArray:
