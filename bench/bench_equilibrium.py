@@ -14,9 +14,10 @@ all present).  Cases, timed in interleaved rounds (bench/interleaved.py), each a
 
 The headline is the median per-round ratio with its spread; microseconds per point are
 shown beside it (absolute times drift by up to 1.5x on a shared machine).  The last rows
-give the worst neutrality residual and Newton iteration count, then InAs (Kane conduction
-band: the quadrature path) beside Si on a quarter of the points, interleaved.  Prints
-tables; asserts nothing.
+give the worst neutrality residual and Newton iteration count, residual evaluations per
+point on four materials and a sweep-like grid (the solve's cost is about proportional
+to them), then InAs (Kane conduction band: the quadrature path) beside Si on a quarter
+of the points, interleaved.  Prints tables; asserts nothing.
 """
 
 import argparse
