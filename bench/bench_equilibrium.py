@@ -14,9 +14,10 @@ all present).  Cases, timed in interleaved rounds (bench/interleaved.py), each a
 
 The headline is the median per-round ratio with its spread; microseconds per point are
 shown beside it (absolute times drift by up to 1.5x on a shared machine).  The last rows
-give the worst neutrality residual and Newton iteration count, then InAs (Kane conduction
-band: the quadrature path) beside Si on a quarter of the points, interleaved.  Prints
-tables; asserts nothing.
+give the worst neutrality residual and Newton iteration count, residual evaluations per
+point on four materials and a sweep-like grid (the solve's cost is about proportional
+to them), then InAs (Kane conduction band: the quadrature path) beside Si on a quarter
+of the points, interleaved.  Prints tables; asserts nothing.
 """
 
 import argparse
@@ -54,20 +55,11 @@ def fdint_sketch(fdint, material, T, nd, na):
     donor, acceptor = material.dopant("P"), material.dopant("B")
     off_d = donor.energy / kT + np.log(donor.degeneracy)
     off_a = acceptor.energy / kT + np.log(acceptor.degeneracy)
-    # the solver's own start (Boltzmann, one level per dopant), made outside the timing
-    never = np.zeros(T.shape, dtype=bool)
+    # the solver's own start (Boltzmann, one level per dopant, every dopant bindable: b = 1),
+    # made outside the timing
+    one = np.ones_like(T)
     start = equilibrium._initial_guess(
-        ln_nc,
-        ln_nv,
-        eg,
-        kT,
-        nd,
-        na,
-        donor.energy,
-        acceptor.energy,
-        never,
-        never,
-        np.exp(0.5 * (ln_nc + ln_nv - eg)),
+        ln_nc, ln_nv, eg, nd, na, off_d, off_a, np.exp(0.5 * (ln_nc + ln_nv - eg)), one, one
     )
 
     # fdint's fd1h is the unnormalized integral: F_1/2 = 2/sqrt(pi) fd1h, dF_1/2 = fdm1h/sqrt(pi)
@@ -131,7 +123,45 @@ def main():
         f"max Newton iterations {state.iterations}"
     )
     print()
+    _evaluation_rows(min(n, 100_000))
+    print()
     _kane_row(max(n // 4, 1), max(args.rounds // 2, 1))
+
+
+def evaluations_per_point(material, T, donors, acceptors):
+    """Residual evaluations per point of one solve (each one F_1/2 pair on eta and eta_p),
+    counted by wrapping the residual; the last Newton step and the check are not counted."""
+    counted = []
+    residual = equilibrium._Neutrality.__call__
+
+    def counting(self, eta):
+        counted.append(eta.size)
+        return residual(self, eta)
+
+    equilibrium._Neutrality.__call__ = counting
+    try:
+        solve_equilibrium(material, T, donors, acceptors)
+    finally:
+        equilibrium._Neutrality.__call__ = residual
+    return sum(counted) / T.size
+
+
+def _evaluation_rows(n):
+    """Evaluations per point on random points of four materials (one donor, one acceptor)
+    and on a grid like a sweep's (Si, P only, 100-600 K x 1e14-1e20 cm^-3)."""
+    print(f"residual evaluations per point ({n:.0e} random points; grid 300 x 300)")
+    for name, donor, acceptor in (
+        ("Si", "P", "B"),
+        ("GaN", "Si", "Mg"),
+        ("Ge", "P", "B"),
+        ("InAs", "S", "Zn"),
+    ):
+        T, nd, na = points(n, seed=5)
+        per_point = evaluations_per_point(load_material(name), T, {donor: nd}, {acceptor: na})
+        print(f"  {name:<5} {donor}/{acceptor}  {per_point:.2f}")
+    T, nd = np.meshgrid(np.linspace(100.0, 600.0, 300), np.logspace(20, 26, 300))
+    grid = evaluations_per_point(load_material("Si"), T.ravel(), {"P": nd.ravel()}, {})
+    print(f"  Si grid, P only  {grid:.2f}")
 
 
 def _kane_row(n, rounds):
