@@ -51,7 +51,7 @@ import numpy as np
 from ..errors import ConvergenceError, InputError
 from . import _threads
 from . import bands as _bands
-from .arrays import ArrayIn, FloatArray, FloatOrArray, IndexArray
+from .arrays import ArrayIn, FloatArray, FloatOrArray, IndexArray, softplus
 from .bands import Band, PowerLawBand, is_power_law
 from .constants import BOLTZMANN, ELEMENTARY_CHARGE, PLANCK
 from .fermi import SUPPORTED_ORDERS, fermi_dirac, inverse_fermi_dirac_half, log_fermi_dirac
@@ -80,7 +80,7 @@ class _NodeSet:
         t = np.arange(-round(t_max / step), round(t_max / step) + 1) * step
         ps = np.pi * np.sinh(t)
         self.q = 1.0 / (1.0 + np.exp(ps))
-        self.b = np.maximum(-ps, 0.0) + np.log1p(np.exp(-np.abs(ps)))
+        self.b = softplus(-ps)
         self.a = self.b + ps
         self.w = step * np.pi * np.cosh(t) * self.q / (1.0 + np.exp(-ps))
         self.size = t.size
@@ -144,7 +144,7 @@ def _window_sums(
 
 def _log_logistic(eta: FloatArray) -> FloatArray:
     """ln(1/(1 + e^-eta)) without overflow."""
-    return -(np.maximum(-eta, 0.0) + np.log1p(np.exp(-np.abs(eta))))
+    return -softplus(-eta)
 
 
 def _tabulated(order: float) -> bool:

@@ -45,7 +45,7 @@ import numpy as np
 
 from ..errors import ConvergenceError, InputError
 from . import _threads, energy_window
-from .arrays import ArrayIn, BoolArray, FloatArray, IndexArray
+from .arrays import ArrayIn, BoolArray, FloatArray, IndexArray, softplus
 from .bands import KaneBand
 from .constants import BOLTZMANN
 from .fermi import inverse_fermi_dirac_half, log_fermi_dirac, log_fermi_dirac_half_pair
@@ -287,7 +287,7 @@ def log_ionized_density(
 def _log_ionized(term: LevelTerm, eta_band: FloatArray) -> FloatArray:
     """ln N^ion of one bound level: ln N + ln(1 - b + b/(1 + g e^(eta_band + E/kT)))."""
     ln_n, offset, ln_b, ln_free = term
-    bound = _softplus(eta_band + offset)
+    bound = softplus(eta_band + offset)
     np.subtract(ln_b, bound, out=bound)
     return ln_n + _log_add(ln_free, bound)
 
@@ -355,16 +355,6 @@ def _log_add(a: FloatArray, b: FloatArray) -> FloatArray:
     np.log1p(gap, out=gap)
     gap += np.maximum(a, b)
     return gap
-
-
-def _softplus(x: FloatArray) -> FloatArray:
-    """ln(1 + e^x) without overflow, as _log_add(0, x)."""
-    out = np.asarray(np.abs(x), dtype=float)
-    np.negative(out, out=out)
-    np.exp(out, out=out)
-    np.log1p(out, out=out)
-    out += np.maximum(x, 0.0)
-    return out
 
 
 def _log(x: FloatArray) -> FloatArray:

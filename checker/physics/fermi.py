@@ -49,7 +49,7 @@ import numpy.typing as npt
 
 from ..errors import ConvergenceError, InputError
 from . import _fd_tables, _threads
-from .arrays import ArrayIn, FloatArray, FloatOrArray
+from .arrays import ArrayIn, FloatArray, FloatOrArray, softplus
 
 SUPPORTED_ORDERS = tuple(Fraction(k, 2) for k in range(-3, 8))
 _CHUNK = 1 << 16  # elements per block: keeps the temporaries in cache
@@ -260,12 +260,6 @@ def _evaluator(key: str) -> _Piecewise:
     return _Piecewise(key)
 
 
-def _softplus(eta: FloatArray) -> FloatArray:
-    """ln(1 + e^eta) without overflow or loss of relative accuracy."""
-    pos = eta > 0
-    return np.where(pos, eta, 0.0) + np.log1p(np.exp(-np.abs(eta)))
-
-
 def _logistic(eta: FloatArray) -> FloatArray:
     e = np.exp(-np.abs(eta))
     return np.where(eta >= 0, 1.0 / (1.0 + e), e / (1.0 + e))
@@ -395,14 +389,14 @@ def log_fermi_dirac(j: float | Fraction, eta: ArrayIn) -> FloatOrArray:
     arr = np.asarray(eta, dtype=np.float64)
     flat = np.ascontiguousarray(arr).ravel()
     if order.denominator == 1 and int(order) == -1:
-        result = -_softplus(-flat)
+        result = -softplus(-flat)
     elif order.denominator == 1 and int(order) == 0:
         # for eta < -30, ln(1+z) = z(1 - z/2 ...) -> eta + ln(1 - z/2)
         small = flat < -30.0
         result = np.where(
             small,
             flat + np.log1p(-0.5 * np.exp(np.minimum(flat, 0.0))),
-            np.log(_softplus(np.where(small, 0.0, flat))),
+            np.log(softplus(np.where(small, 0.0, flat))),
         )
     elif order.denominator == 1:
         # eta <= 0 from the table in log form; eta > 0 via the exact reflection

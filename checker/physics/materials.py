@@ -17,7 +17,7 @@ import numpy as np
 
 from ..errors import InputError, MissingParameterError, UnknownDopantError
 from ..records import FrozenRecord, field
-from .arrays import ArrayIn, FloatArray, FloatOrArray
+from .arrays import ArrayIn, FloatArray, FloatOrArray, softplus
 from .band_shapes import BandShape, bands_for, mass_from_effective_density
 from .bands import Band
 from .constants import BOLTZMANN, ELECTRON_MASS, ELEMENTARY_CHARGE, PLANCK, VACUUM_PERMITTIVITY
@@ -172,7 +172,7 @@ class BoundShare(FrozenRecord):
     def log_shares(self, N: ArrayIn) -> tuple[FloatArray, FloatArray]:
         """(ln b, ln(1 - b)) without cancellation."""
         x = self.d * (np.log(np.maximum(np.asarray(N, dtype=float), 1e-300)) - np.log(self.N_b))
-        soft = np.logaddexp(0.0, x)
+        soft = softplus(x)
         return -soft, x - soft
 
 
