@@ -20,9 +20,20 @@ except ImportError:  # pragma: no cover - a Python built without it
 __all__ = ["blake2b", "cache_folder", "kept", "source_hash", "write_whole"]
 
 
-def cache_folder() -> Path:
-    """Where regimecheck keeps what it may compute again (``$XDG_CACHE_HOME/regimecheck``,
-    else ``~/.cache/regimecheck``)."""
+CACHE_SETTING = "REGIMECHECK_CACHE"  # a folder to use, or "off" to keep nothing
+_OFF = {"off", "no", "none", "0", "false"}
+
+
+def cache_folder() -> Path | None:
+    """Where regimecheck keeps what it may compute again: the folder named by
+    ``$REGIMECHECK_CACHE``, else ``$XDG_CACHE_HOME/regimecheck``, else
+    ``~/.cache/regimecheck``; None where ``REGIMECHECK_CACHE=off`` (nothing is kept or
+    read: every run computes everything afresh)."""
+    setting = os.environ.get(CACHE_SETTING, "").strip()
+    if setting.lower() in _OFF:
+        return None
+    if setting:
+        return Path(setting)
     base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
     return Path(base) / "regimecheck"
 
@@ -77,11 +88,14 @@ def kept(
     (module, class) pairs, and the object is used only where ``fits(object)``.  Anything
     absent, unreadable, stale or foreign is built afresh (and kept, where the folder can
     be written); a source that cannot be read means no cache."""
+    folder = cache_folder()
+    if folder is None:
+        return build()
     try:
         wanted = source_hash(sources)
     except OSError:
         return build()
-    file = cache_folder() / name
+    file = folder / name
     try:
         found, made = _AllowedUnpickler(file.read_bytes(), allowed).load()
         if found == wanted and fits(made):

@@ -62,3 +62,10 @@ def silicon():
     from checker import load_material
 
     return load_material("Si")
+
+
+@pytest.fixture(autouse=True)
+def _no_cache_setting_from_the_caller(monkeypatch):
+    """Tests choose their cache folder through XDG_CACHE_HOME; a REGIMECHECK_CACHE in the
+    caller's environment would override it."""
+    monkeypatch.delenv("REGIMECHECK_CACHE", raising=False)

@@ -82,7 +82,7 @@ def test_a_planted_cache_file_names_no_code(tmp_path, monkeypatch):
     monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
     folder, paths = _shipped_copy(tmp_path)
     marker = tmp_path / "ran"
-    file = rule_cache._file_of(folder)
+    file = tmp_path / "cache" / "regimecheck" / rule_cache._file_name(folder)
     file.parent.mkdir(parents=True)
     wanted = rule_cache.key(folder, paths)
     file.write_bytes(pickle.dumps((wanted, (_Planted(marker),))))
@@ -97,7 +97,7 @@ def test_a_damaged_cache_file_is_read_past(tmp_path, monkeypatch):
     folder, paths = _shipped_copy(tmp_path)
     reads: list[int] = []
     rule_cache.cached(folder, paths, _read_counted(paths, reads))
-    file = rule_cache._file_of(folder)
+    file = tmp_path / "cache" / "regimecheck" / rule_cache._file_name(folder)
     file.write_bytes(file.read_bytes()[:1000])
     rules = rule_cache.cached(folder, paths, _read_counted(paths, reads))
     assert reads == [1, 1] and len(rules) == len(paths)

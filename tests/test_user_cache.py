@@ -55,9 +55,31 @@ def test_a_cache_file_names_no_class_it_was_not_allowed(tmp_path, monkeypatch):
     source = tmp_path / "source.txt"
     source.write_text("one", encoding="utf-8")
     marker = tmp_path / "ran"
-    folder = user_cache.cache_folder()
+    folder = tmp_path / "regimecheck"
     folder.mkdir(parents=True)
     wanted = user_cache.source_hash([source])
     (folder / "thing.pickle").write_bytes(pickle.dumps((wanted, _Planted(marker))))
     made = user_cache.kept("thing.pickle", [source], (), lambda: "built", lambda m: True)
     assert made == "built" and not marker.exists()
+
+
+def test_the_cache_setting_names_the_folder_or_switches_it_off(tmp_path, monkeypatch):
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "xdg"))
+    source = tmp_path / "source.txt"
+    source.write_text("one", encoding="utf-8")
+    builds = []
+
+    def build():
+        builds.append(1)
+        return "made"
+
+    chosen = tmp_path / "chosen"
+    monkeypatch.setenv(user_cache.CACHE_SETTING, str(chosen))
+    assert user_cache.kept("thing.pickle", [source], (), build, lambda m: True) == "made"
+    assert (chosen / "thing.pickle").is_file() and not (tmp_path / "xdg").exists()
+    monkeypatch.setenv(user_cache.CACHE_SETTING, "off")
+    assert user_cache.cache_folder() is None
+    assert user_cache.kept("other.pickle", [source], (), build, lambda m: True) == "made"
+    assert user_cache.kept("other.pickle", [source], (), build, lambda m: True) == "made"
+    assert builds == [1, 1, 1]  # off: built every time, nothing written
+    assert sorted(p.name for p in tmp_path.rglob("*.pickle")) == ["thing.pickle"]

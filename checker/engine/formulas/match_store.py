@@ -49,7 +49,11 @@ class MatchStore:
                 digest = blake2b(digest_size=12)
                 for path in _SOURCES:
                     digest.update(path.read_bytes())
-                self._file = cache_folder() / f"matches-{digest.hexdigest()}.json"
+                folder = cache_folder()
+                if folder is None:  # REGIMECHECK_CACHE=off: nothing read or kept
+                    self._outcomes = {}
+                    return self._outcomes
+                self._file = folder / f"matches-{digest.hexdigest()}.json"
                 found = json.loads(self._file.read_text(encoding="utf-8"))
                 self._outcomes = found if isinstance(found, dict) else {}
             except (OSError, ValueError):

@@ -17,7 +17,7 @@ from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from ...user_cache import blake2b, cache_folder, kept, source_hash
+from ...user_cache import blake2b, kept, source_hash
 
 if TYPE_CHECKING:
     from .rulebook import Rule
@@ -61,9 +61,9 @@ def key(folder: Path, paths: Sequence[Path]) -> str:
     return source_hash((*_READER_SOURCES, *paths))
 
 
-def _file_of(folder: Path) -> Path:
+def _file_name(folder: Path) -> str:
     name = blake2b(str(folder).encode(), digest_size=8).hexdigest()
-    return cache_folder() / f"rules-{name}.pickle"
+    return f"rules-{name}.pickle"
 
 
 def _is_rule_set(found: object) -> bool:
@@ -78,5 +78,5 @@ def cached(
     """The rules of ``folder`` (its rule files ``paths``): the cached set where its key
     matches, else ``read()``, which is then cached (only a set that read without error)."""
     sources = (*_READER_SOURCES, *paths)
-    rules = kept(_file_of(folder).name, sources, _ALLOWED, read, _is_rule_set)
+    rules = kept(_file_name(folder), sources, _ALLOWED, read, _is_rule_set)
     return rules  # type: ignore[return-value]  # _is_rule_set checked it
