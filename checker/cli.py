@@ -74,7 +74,12 @@ class _Version(argparse.Action):
 
 def _parser() -> argparse.ArgumentParser:
     parser = _Parser(
-        prog="regimecheck", description="Solve and check semiconductor operating points."
+        prog="regimecheck",
+        description="Solve and check semiconductor operating points.",
+        epilog="Environment: REGIMECHECK_CACHE=<folder> or off (the user cache of validated "
+        "rules, built-in materials and formula matches; default $XDG_CACHE_HOME/regimecheck "
+        "or ~/.cache/regimecheck), REGIMECHECK_DEBUG=1 (show a traceback on an internal "
+        "error).",
     )
     parser.add_argument("--version", action=_Version)
     sub = parser.add_subparsers(dest="command", required=True)

@@ -133,3 +133,15 @@ def test_a_cached_rule_evaluates_in_a_new_process(tmp_path):
     assert len(list(tmp_path.glob("regimecheck/rules-*.pickle"))) == 1
     for run in runs:
         assert json.loads(run) == [800.0 / 456.5, 600.0 / 300.0]
+
+
+def test_a_cached_set_that_is_not_one_rule_per_file_is_read_afresh(tmp_path, monkeypatch):
+    # a rewritten cache file with the right key but a rule dropped (a verdict silenced)
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    folder, paths = _shipped_copy(tmp_path)
+    reads: list[int] = []
+    rules = rule_cache.cached(folder, paths, _read_counted(paths, reads))
+    file = tmp_path / "cache" / "regimecheck" / rule_cache._file_name(folder)
+    file.write_bytes(pickle.dumps((rule_cache.key(folder, paths), rules[1:])))
+    again = rule_cache.cached(folder, paths, _read_counted(paths, reads))
+    assert reads == [1, 1] and len(again) == len(paths)

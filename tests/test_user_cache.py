@@ -83,3 +83,27 @@ def test_the_cache_setting_names_the_folder_or_switches_it_off(tmp_path, monkeyp
     assert user_cache.kept("other.pickle", [source], (), build, lambda m: True) == "made"
     assert builds == [1, 1, 1]  # off: built every time, nothing written
     assert sorted(p.name for p in tmp_path.rglob("*.pickle")) == ["thing.pickle"]
+
+
+def test_a_folder_others_can_write_is_not_used(tmp_path, monkeypatch):
+    shared = tmp_path / "shared"
+    shared.mkdir()
+    shared.chmod(0o777)
+    monkeypatch.setenv(user_cache.CACHE_SETTING, str(shared))
+    assert user_cache.usable_folder() is None
+    assert user_cache.kept("thing.pickle", [], (), lambda: "built", lambda m: True) == "built"
+    assert list(shared.iterdir()) == []
+    monkeypatch.setenv(user_cache.CACHE_SETTING, str(tmp_path / "fresh"))
+    assert user_cache.usable_folder() == tmp_path / "fresh"
+    assert (tmp_path / "fresh").stat().st_mode & 0o777 == 0o700
+
+
+def test_a_relative_cache_home_is_ignored(tmp_path, monkeypatch):
+    # the XDG base-directory convention: a relative XDG_CACHE_HOME is invalid
+    monkeypatch.chdir(tmp_path)
+    monkeypatch.setenv("XDG_CACHE_HOME", "relative")
+    monkeypatch.setenv("HOME", str(tmp_path / "home"))
+    (tmp_path / "home").mkdir()
+    assert user_cache.cache_folder() == tmp_path / "home" / ".cache" / "regimecheck"
+    monkeypatch.setenv("HOME", str(tmp_path / "missing"))
+    assert user_cache.cache_folder() is None

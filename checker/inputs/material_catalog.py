@@ -1153,25 +1153,9 @@ def _builtin_file(name: str):
     return found
 
 
-# the code that decides what a material file becomes: a built material is kept in the
-# user cache while its file and these are unchanged (reading and checking Si's file was
-# a tenth of a one-file check's own time; unpickling it takes microseconds)
-_CHECKER = Path(__file__).resolve().parent.parent
-_BUILDERS = tuple(
-    _CHECKER / name
-    for name in (
-        "inputs/material_catalog.py",
-        "inputs/quantities.py",
-        "inputs/yaml_source.py",
-        "physics/materials.py",
-        "physics/band_shapes.py",
-        "physics/bands.py",
-        "physics/constants.py",
-        "records.py",
-        "errors.py",
-        "user_cache.py",
-    )
-)
+# a built material is kept in the user cache while its file and the package's code are
+# unchanged (reading and checking Si's file was a tenth of a one-file check's own time;
+# unpickling it takes microseconds)
 # the only classes a kept material may name: the models of physics.materials and the
 # band shapes
 _MATERIAL_CLASSES = frozenset(
@@ -1190,7 +1174,7 @@ def _load_builtin(file_name: str) -> m.Material:
     place = blake2b(str(entry).encode(), digest_size=8).hexdigest()
     found = kept(
         f"material-{entry.stem}-{place}.pickle",
-        (entry, *_BUILDERS),
+        (entry,),  # and user_cache.code_stamp(): every module of the package
         _MATERIAL_CLASSES,
         lambda: _read_builtin(entry),
         lambda made: isinstance(made, m.Material),

@@ -3,9 +3,9 @@ over limit sets, then a symbolic proof, some 10-25 ms a text, sympy's import whe
 normal form cannot prove it) is done once per text and code, not once per run.
 
 One JSON file in the user's cache folder (that of the rule cache) per version of the code
-that decides a match (the formula modules, the expression parser and tree, the generated
-relations and the Fermi–Dirac kernels the numeric search evaluates): its name holds the
-hash of their sources, so a changed module starts a new file.  An entry records only the
+(user_cache.code_stamp: every module of the package, the Python and numpy versions): its
+name holds that stamp's hash, so a changed module starts a new file and the old ones are
+removed when it is written.  An entry records only the
 outcome -- status, world, the ids of the chosen limits, the proof -- and the Match is
 rebuilt from the catalogue (relations.limits), so a file holds no code, only words; an
 entry naming a limit the catalogue lacks is ignored and the search runs.  Anything
@@ -14,21 +14,13 @@ unreadable is ignored; where the folder cannot be written the search runs each t
 
 from __future__ import annotations
 
+import contextlib
 import json
 from pathlib import Path
 from typing import Any
 
-from ...user_cache import blake2b, cache_folder, write_whole
+from ...user_cache import blake2b, code_stamp, usable_folder, write_whole
 
-_CHECKER = Path(__file__).resolve().parents[2]
-_SOURCES = (
-    *sorted((_CHECKER / "engine" / "formulas").glob("*.py")),
-    *sorted((_CHECKER / "engine" / "expressions").glob("*.py")),
-    _CHECKER / "physics" / "fermi.py",
-    _CHECKER / "physics" / "_fd_tables.py",
-    _CHECKER / "physics" / "_relations.py",
-    _CHECKER / "physics" / "constants.py",
-)
 _MOST = 4096  # entries kept; beyond, the file starts afresh
 
 # an outcome: [status, world or None, limit ids, proof or None]
@@ -47,9 +39,8 @@ class MatchStore:
         if self._outcomes is None:
             try:
                 digest = blake2b(digest_size=12)
-                for path in _SOURCES:
-                    digest.update(path.read_bytes())
-                folder = cache_folder()
+                digest.update(code_stamp().encode())
+                folder = usable_folder()
                 if folder is None:  # REGIMECHECK_CACHE=off: nothing read or kept
                     self._outcomes = {}
                     return self._outcomes
@@ -77,6 +68,11 @@ class MatchStore:
             return
         if write_whole(self._file, json.dumps(self._outcomes).encode()):
             self._added = False
+            # entries of other code versions can never match again: keep the folder small
+            for old in self._file.parent.glob("matches-*.json"):
+                if old != self._file:
+                    with contextlib.suppress(OSError):
+                        old.unlink()
 
 
 def key(*parts: object) -> str:

@@ -4,8 +4,9 @@ rules was about a quarter of a one-file check's own start-up).
 
 One file per installed rule folder in the user's cache folder (``$XDG_CACHE_HOME/regimecheck``,
 else ``~/.cache/regimecheck``).  It is used only when its key matches: a hash of the
-rule files' names and contents, of the source of the modules that read and build rules,
-and of the Python version.  It is read by an unpickler that admits the rule classes and
+rule files' names and contents and of the package's code (user_cache.code_stamp: every
+module, the Python and numpy versions); the set must hold one rule per file, named as
+its file.  It is read by an unpickler that admits the rule classes and
 the expression tree only, so a file planted in the cache folder can name no other code;
 anything unreadable, foreign or stale is ignored and the rules are read afresh.  Where
 the folder cannot be written the rules are simply read each run.
@@ -22,28 +23,6 @@ from ...user_cache import blake2b, kept, source_hash
 if TYPE_CHECKING:
     from .rulebook import Rule
 
-_ENGINE = Path(__file__).resolve().parent.parent
-# the modules whose code decides what a rule file becomes (the field table, the parser,
-# the dimension check, the vocabulary): a change to any of them invalidates the cache
-_READER_SOURCES = tuple(
-    _ENGINE.parent / name
-    for name in (
-        "vocabulary_words.py",
-        "quantity_registry/registry.py",
-        "quantity_registry/display_units.py",
-        "engine/vocabulary.py",
-        "engine/expressions/tree.py",
-        "engine/expressions/parser.py",
-        "engine/expressions/dimensions.py",
-        "engine/expressions/dimension_check.py",
-        "engine/expressions/_relation_texts.py",
-        "engine/regime/rule_fields.py",
-        "engine/regime/rule_reader.py",
-        "engine/regime/rulebook.py",
-        "engine/regime/rule_cache.py",
-        "user_cache.py",
-    )
-)
 # the only globals a cache file may name
 _ALLOWED = {
     ("checker.engine.regime.rulebook", "Rule"),
@@ -58,7 +37,7 @@ _ALLOWED = {
 def key(folder: Path, paths: Sequence[Path]) -> str:
     """The hash of everything a cached rule set of ``folder`` depends on (the rule files'
     paths name the folder)."""
-    return source_hash((*_READER_SOURCES, *paths))
+    return source_hash(paths)  # and user_cache.code_stamp(): every module of the package
 
 
 def _file_name(folder: Path) -> str:
@@ -66,10 +45,15 @@ def _file_name(folder: Path) -> str:
     return f"rules-{name}.pickle"
 
 
-def _is_rule_set(found: object) -> bool:
+def _is_rule_set(found: object, paths: Sequence[Path]) -> bool:
+    """A tuple of rules, one per rule file, each named as its file."""
     from .rulebook import Rule
 
-    return isinstance(found, tuple) and all(isinstance(rule, Rule) for rule in found)
+    return (
+        isinstance(found, tuple)
+        and all(isinstance(rule, Rule) for rule in found)
+        and sorted(rule.id for rule in found) == sorted(path.stem for path in paths)
+    )
 
 
 def cached(
@@ -77,6 +61,9 @@ def cached(
 ) -> tuple[Rule, ...]:
     """The rules of ``folder`` (its rule files ``paths``): the cached set where its key
     matches, else ``read()``, which is then cached (only a set that read without error)."""
-    sources = (*_READER_SOURCES, *paths)
-    rules = kept(_file_name(folder), sources, _ALLOWED, read, _is_rule_set)
+
+    def fits(found: object) -> bool:
+        return _is_rule_set(found, paths)
+
+    rules = kept(_file_name(folder), paths, _ALLOWED, read, fits)
     return rules  # type: ignore[return-value]  # _is_rule_set checked it
