@@ -82,9 +82,11 @@ class _Fields:
         late = [key for key in fields[first_default:] if key not in defaults]
         if late:
             raise TypeError(f"{cls.__name__}: field {late[0]!r} has no default but follows one")
+        if "__init__" in cls.__dict__:  # the first instance would replace it
+            raise TypeError(f"{cls.__name__}: a record writes its own __init__; use __post_init__")
         cls._fields, cls._defaults = fields, defaults
-        if "__init__" not in cls.__dict__:  # each record type writes its own, on first use
-            cls.__init__ = _Fields.__init__  # type: ignore[method-assign]
+        cls.__match_args__ = fields  # type: ignore[attr-defined,misc]  # patterns, as a dataclass
+        cls.__init__ = _Fields.__init__  # type: ignore[method-assign]  # written on first use
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
         # the first record of a type writes that type's own __init__ (as dataclasses do

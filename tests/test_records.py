@@ -108,3 +108,21 @@ def test_post_init_runs_after_the_fields_are_set():
 def test_a_record_pickles_and_copies():
     gap = Gap(1.0, 2.0, sources={"Eg0": "a handbook"})
     assert pickle.loads(pickle.dumps(gap)) == gap
+
+
+def test_a_record_may_not_define_its_own_init_and_matches_positionally():
+    with pytest.raises(TypeError, match="__post_init__"):
+
+        class Own(FrozenRecord):
+            x: int
+
+            def __init__(self, x):
+                object.__setattr__(self, "x", x * 10)
+
+    class Point(FrozenRecord):
+        x: int
+        y: int = 0
+
+    match Point(1, 2):
+        case Point(a, b):
+            assert (a, b) == (1, 2)
