@@ -213,3 +213,18 @@ class TestInverse:
     def test_rejects_non_positive(self, bad):
         with pytest.raises(InputError, match="u > 0"):
             inverse_fermi_dirac_half(np.array([1.0, bad]))
+
+
+def test_ended_threads_leave_no_work_arrays_behind():
+    import threading
+
+    from checker.physics import fermi
+
+    eta = np.linspace(-5.0, 5.0, 1000)
+    for _ in range(12):  # short-lived threads, one after another, as an API user's
+        worker = threading.Thread(target=fermi.fermi_dirac, args=(0.5, eta))
+        worker.start()
+        worker.join()
+    alive = {thread.ident for thread in threading.enumerate()}
+    held = {ident for ident, _ in fermi._WORK}
+    assert len(held - alive) < fermi._KEPT_THREADS

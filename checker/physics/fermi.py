@@ -89,8 +89,23 @@ def _work(name: str, size: int, dtype: type = np.float64) -> npt.NDArray[Any]:
             # mmap'd block has raised its mmap threshold, which arrays over 32 MiB never
             # do: free one of 1 MiB now (measured at 1e7 points: F_1/2 24 -> 17-20 ns).
             np.ones(1 << 17)
+        elif buffer is None and len({ident for ident, _ in _WORK}) >= _KEPT_THREADS:
+            _forget_ended_threads()
         buffer = _WORK[key] = np.empty(max(size, _CHUNK), dtype=dtype)
     return buffer[:size]
+
+
+_KEPT_THREADS = 4  # the main thread and a pool's workers; beyond, look for ended threads
+
+
+def _forget_ended_threads() -> None:
+    """Drop the work arrays of threads that have ended (~7 MiB each): an API user's
+    short-lived threads must not leave theirs behind."""
+    import threading  # loaded by then: other threads have run kernels
+
+    alive = {thread.ident for thread in threading.enumerate()}
+    for key in [key for key in _WORK if key[0] not in alive]:
+        del _WORK[key]
 
 
 def _horner(coeffs: Sequence[float], t: FloatArray, out: FloatArray | None = None) -> FloatArray:
