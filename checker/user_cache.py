@@ -3,10 +3,11 @@ built-in materials: where it is, the hash that keys its files, writing a file wh
 not at all, and objects kept as pickles that may name only the classes a caller allows.
 
 Every key includes a stamp of the whole package's code (each module's path, size and
-modification time) and of the Python and numpy versions, so no edit or upgrade can leave a
-stale entry in use.  The folder is used only where it belongs to the user running the
-check and no one else can write to it (it is made with mode 0700): a folder shared with
-others, or restored from an untrusted source, is ignored rather than trusted."""
+modification time), of the Python and numpy versions and of the sympy install, so no
+edit or upgrade can leave a stale entry in use.  The folder is used only where it belongs
+to the user running the check and no one else can write to it (it is made with mode
+0700): a folder shared with others, or restored from an untrusted source, is ignored
+rather than trusted."""
 
 from __future__ import annotations
 
@@ -72,11 +73,18 @@ _STAMP: list[str] = []
 
 def code_stamp() -> str:
     """A hash of the package's modules (path, size, modification time) and of the Python
-    and numpy versions: any edit, reinstall or upgrade changes it."""
+    and numpy versions and the sympy install: any edit, reinstall or upgrade changes it."""
     if not _STAMP:
         digest = blake2b(digest_size=20)
         numpy = sys.modules.get("numpy")
         digest.update(f"{sys.version}\0{getattr(numpy, '__version__', '')}\0".encode())
+        for place in sys.path:  # sympy proves formula matches: its install, by its files'
+            try:  # stat (reading its version would import it or importlib.metadata)
+                found = os.stat(os.path.join(place or ".", "sympy", "release.py"))
+            except OSError:
+                continue
+            digest.update(f"sympy\0{found.st_size}\0{found.st_mtime_ns}\0".encode())
+            break
         folders = [str(_PACKAGE)]
         while folders:  # os.scandir: a third of pathlib.rglob's cost
             with os.scandir(folders.pop()) as entries:

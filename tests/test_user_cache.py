@@ -107,3 +107,15 @@ def test_a_relative_cache_home_is_ignored(tmp_path, monkeypatch):
     assert user_cache.cache_folder() == tmp_path / "home" / ".cache" / "regimecheck"
     monkeypatch.setenv("HOME", str(tmp_path / "missing"))
     assert user_cache.cache_folder() is None
+
+
+def test_the_code_stamp_changes_with_the_sympy_install(tmp_path, monkeypatch):
+    # formula matches are proved with sympy: another sympy must not reuse their outcomes
+    fake = tmp_path / "site" / "sympy"
+    fake.mkdir(parents=True)
+    (fake / "release.py").write_text('__version__ = "0.0"\n', encoding="utf-8")
+    monkeypatch.setattr(user_cache, "_STAMP", [])
+    before = user_cache.code_stamp()
+    monkeypatch.setattr(user_cache, "_STAMP", [])
+    monkeypatch.syspath_prepend(str(tmp_path / "site"))
+    assert user_cache.code_stamp() != before

@@ -3,7 +3,7 @@ over limit sets, then a symbolic proof, some 10-25 ms a text, sympy's import whe
 normal form cannot prove it) is done once per text and code, not once per run.
 
 One JSON file in the user's cache folder (that of the rule cache) per version of the code
-(user_cache.code_stamp: every module of the package, the Python and numpy versions): its
+(user_cache.code_stamp: every module of the package, the Python, numpy and sympy installs): its
 name holds that stamp's hash, so a changed module starts a new file and the old ones are
 removed when it is written.  An entry records only the
 outcome -- status, world, the ids of the chosen limits, the proof -- and the Match is

@@ -5,7 +5,7 @@ rules was about a quarter of a one-file check's own start-up).
 One file per installed rule folder in the user's cache folder (``$XDG_CACHE_HOME/regimecheck``,
 else ``~/.cache/regimecheck``).  It is used only when its key matches: a hash of the
 rule files' names and contents and of the package's code (user_cache.code_stamp: every
-module, the Python and numpy versions); the set must hold one rule per file, named as
+module, the Python, numpy and sympy installs); the set must hold one rule per file, named as
 its file.  It is read by an unpickler that admits the rule classes and
 the expression tree only, so a file planted in the cache folder can name no other code;
 anything unreadable, foreign or stale is ignored and the rules are read afresh.  Where
