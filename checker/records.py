@@ -15,6 +15,7 @@ an ``__init__`` argument is needed, a type stays a dataclass.
 from __future__ import annotations
 
 from collections.abc import Callable, Iterator
+from reprlib import recursive_repr
 from typing import Any, ClassVar, TypeVar, dataclass_transform
 
 T = TypeVar("T")
@@ -78,6 +79,12 @@ class _Fields:
         fields = cls._fields + tuple(name for name in own if name not in cls._fields)
         defaults = dict(cls._defaults)
         defaults.update((name, cls.__dict__[name]) for name in own if name in cls.__dict__)
+        for name in own:  # one list shared by every record: refused, as by dataclasses
+            if isinstance(defaults.get(name), (list, dict, set)):
+                raise ValueError(
+                    f"{cls.__name__}: mutable default for field {name!r}; "
+                    "use field(default_factory=...)"
+                )
         first_default = min((fields.index(key) for key in defaults), default=len(fields))
         late = [key for key in fields[first_default:] if key not in defaults]
         if late:
@@ -99,6 +106,7 @@ class _Fields:
     def _values(self) -> tuple[Any, ...]:
         return tuple(getattr(self, key) for key in self._fields)
 
+    @recursive_repr()
     def __repr__(self) -> str:
         shown = ", ".join(f"{key}={getattr(self, key)!r}" for key in self._fields)
         return f"{type(self).__qualname__}({shown})"

@@ -126,3 +126,21 @@ def test_a_record_may_not_define_its_own_init_and_matches_positionally():
     match Point(1, 2):
         case Point(a, b):
             assert (a, b) == (1, 2)
+
+
+def test_a_mutable_default_is_refused_and_a_record_holding_itself_has_a_repr():
+    # the behaviour of dataclasses (Python documentation, dataclasses: "Mutable default
+    # values"; reprlib.recursive_repr for self-containing values)
+    with pytest.raises(ValueError, match="default_factory"):
+
+        class Shared(FrozenRecord):
+            items: list = []  # noqa: RUF012
+
+    from checker.records import Record
+
+    class Box(Record):
+        content: object = None
+
+    box = Box()
+    box.content = box
+    assert repr(box).endswith("<locals>.Box(content=...)")
