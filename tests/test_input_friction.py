@@ -120,3 +120,13 @@ def test_an_absurd_sheet_density_is_refused_once(tmp_path):
     errors = json.loads(out.read_text(encoding="utf-8"))["input_errors"]
     assert len(errors) == 1 and "not a plausible sheet density" in errors[0]
     assert errors[0].startswith(f"{path}:3:")
+
+
+def test_a_near_miss_key_offers_the_two_nearest_keys(tmp_path):
+    # found in a practitioner's trial: "assumptions" drew only "did you mean 'options'?",
+    # while the key meant is "assumes" (README, "Writing a calculation")
+    calc = _write(
+        tmp_path / "calc.yaml", CALC.replace("waivers:", "assumptions: [single-carrier]\nwaivers:")
+    )
+    (error,) = check_paths([str(calc)]).input_errors
+    assert "did you mean 'options' or 'assumes'?" in str(error)

@@ -173,8 +173,8 @@ def _unknown_keys(mapping: dict, allowed, where, what: str, section=()):
     problems = Problems()
     for key in mapping:
         if key not in allowed:
-            close = close_matches(key, allowed, n=1)
-            hint = f"; did you mean {close[0]!r}?" if close else f"; allowed: {', '.join(allowed)}"
+            close = " or ".join(repr(word) for word in close_matches(key, allowed, n=2))
+            hint = f"; did you mean {close}?" if close else f"; allowed: {', '.join(allowed)}"
             problems.add(InputError(f"{where(*section, key)}: unknown {what} key {key!r}{hint}"))
     problems.raise_any()
 
