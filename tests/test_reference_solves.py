@@ -34,3 +34,41 @@ def test_a_doping_is_solved_at_the_reference_temperature_once(monkeypatch):
     assert solved_points == [6]  # six distinct dopings, solved for the first chunk only
     for one, other in zip(fresh, reused, strict=True):
         np.testing.assert_array_equal(one, other)
+
+
+def test_a_sweep_keeps_its_reference_solves_across_chunks(tmp_path, monkeypatch):
+    """A grid in chunks of 7 cells: every chunk's carrier transport reads one kept set of
+    reference-temperature solves, and each distinct doping is solved at T_0 once."""
+    from test_sweep import TWO_AXES
+    from test_sweep import _calc as sweep_calculation
+
+    from checker.engine.regime import rulebook, sweep
+    from checker.engine.run import check_calculations
+
+    monkeypatch.setattr(sweep, "CHUNK", 7)
+    calc = sweep_calculation(tmp_path, TWO_AXES)
+    report = check_calculations([calc]).reports[0]
+    kept_sets = []
+    ionized_fraction = carriers.ReferenceSolves.ionized_fraction
+
+    def recording(self, *args, **kwargs):
+        kept_sets.append(id(self))
+        return ionized_fraction(self, *args, **kwargs)
+
+    monkeypatch.setattr(carriers.ReferenceSolves, "ionized_fraction", recording)
+    grid_points = sweep.grid(calc)
+    solved_points = []
+    solve = equilibrium.solve
+
+    def counting_reference(material, T, *args, **kwargs):
+        if np.all(np.asarray(T) == 296.15):  # the standard's 23 degC (ASTM F723)
+            solved_points.append(np.size(T))
+        return solve(material, T, *args, **kwargs)
+
+    monkeypatch.setattr(equilibrium, "solve", counting_reference)
+    sweep.rule_grid(calc, rulebook.load_rules(), report.embodied, grid_points)
+    chunks = -(-grid_points[0].size // 7)
+    assert len(kept_sets) >= chunks and len(set(kept_sets)) == 1
+    _, donors, _, _ = grid_points
+    distinct = np.unique(donors["P"][: grid_points[0].size]).size
+    assert sum(solved_points) == distinct  # each doping solved at T_0 once

@@ -98,14 +98,17 @@ def solve_sweep(
     donors: Densities,
     acceptors: Densities,
     reads: Collection[str] | None = None,
+    reference: carriers.ReferenceSolves | None = None,
 ) -> tuple[Values, str | None]:
     """Every quantity over the points of a sweep of ``calc`` (arrays of one length).
     ``reads``: the names the sweep's rules read (evaluate.sweep_rules); then the words
     only reports and messages read (the regime, the models past their range) and the
     intrinsic-onset temperature, the Hall factors and the carriers' velocities and mean
-    free paths where no rule reads them are left unknown.  None: every quantity."""
+    free paths where no rule reads them are left unknown.  None: every quantity.
+    ``reference``: the solves at the resistivity standard's reference temperature kept
+    across a sweep's chunks (carriers.ReferenceSolves; None: solved afresh)."""
     count = len(T)
-    put, skipped = solve_points(calc, T, donors, acceptors, reads=reads)
+    put, skipped = solve_points(calc, T, donors, acceptors, reads=reads, reference=reference)
     values = _unknown(count, put, writable=False)
     # the solve's own arrays are kept as they are; a copy only where an array would be
     # shared (a caller's input, or one array under two names) or is not yet one per point
@@ -195,6 +198,7 @@ def solve_points(
     sheet: dict[str, FloatArray] | None = None,
     calcs: Sequence[Calculation] | None = None,
     reads: Collection[str] | None = None,
+    reference: carriers.ReferenceSolves | None = None,
 ) -> tuple[dict[str, ArrayIn], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
@@ -202,7 +206,7 @@ def solve_points(
     (sheet_values.sheet_inputs; default: ``first``'s own stated numbers).  ``calcs``: the
     calculation of each point (default: ``first`` for all); what only some calculations
     read (bulk modes, the solve with narrowing) is computed at their points alone;
-    ``reads``: see :func:`solve_sweep`."""
+    ``reads``, ``reference``: see :func:`solve_sweep`."""
 
     def where(reads: Callable[[Calculation], bool]) -> BoolArray:
         if calcs is None:
@@ -222,7 +226,10 @@ def solve_points(
     skipped = None
     try:
         flow = carriers.carrier_transport(
-            state, dim, velocities=reads is None or not _VELOCITY.isdisjoint(reads)
+            state,
+            dim,
+            velocities=reads is None or not _VELOCITY.isdisjoint(reads),
+            reference=reference,
         )
     except MissingParameterError as exc:
         # statistics checks still run; mobility-based ones see NaN and stay silent

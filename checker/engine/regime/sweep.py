@@ -19,6 +19,7 @@ from typing import TYPE_CHECKING, TypeAlias
 import numpy as np
 
 from ...inputs.calculation_file import AxisKey
+from ...physics import carriers
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray
 from ..findings import Embodied, carrier_word
 from .evaluate import Cells, beyond, rule_cells, rule_indicator, sweep_rules
@@ -206,6 +207,7 @@ def rule_grid(
     masks: dict[tuple[str, str], BoolArray] = {}
     worst: dict[tuple[str, str], tuple[float, int]] = {}
     notes: list[str] = []
+    reference = carriers.ReferenceSolves()  # each doping solved at T_0 once per sweep
     for start in range(0, size, CHUNK):
         stop = min(start + CHUNK, size)
         values, skipped = solve_sweep(
@@ -214,6 +216,7 @@ def rule_grid(
             {s: a[start:stop] for s, a in donors.items()},
             {s: a[start:stop] for s, a in acceptors.items()},
             reads,
+            reference,
         )
         if skipped and skipped not in notes:
             notes.append(skipped)
