@@ -24,8 +24,8 @@ try:  # the module behind hashlib.blake2b: hashlib itself loads OpenSSL (~2 ms)
 except ImportError:  # pragma: no cover - a Python built without it
     from hashlib import blake2b
 
-__all__ = ["blake2b", "cache_folder", "code_stamp", "kept", "source_hash", "usable_folder"]
-__all__ += ["write_whole"]
+__all__ = ["blake2b", "cache_folder", "code_stamp", "entry_name", "kept", "source_hash"]
+__all__ += ["usable_folder", "write_whole"]
 
 _PACKAGE = Path(__file__).resolve().parent
 
@@ -137,6 +137,12 @@ def source_hash(sources: Sequence[Path]) -> str:
     return digest.hexdigest()
 
 
+def entry_name(kind: str, place: Path) -> str:
+    """The cache file of ``kind`` (rules, material-Si, ...) built from ``place`` (a rule
+    folder, a material file): one file per place, named by a hash of its path."""
+    return f"{kind}-{blake2b(str(place).encode(), digest_size=8).hexdigest()}.pickle"
+
+
 def kept(
     name: str,
     sources: Sequence[Path],
@@ -145,7 +151,7 @@ def kept(
     fits: Callable[[object], bool],
 ) -> object:
     """What ``build()`` makes, kept in the cache file ``name`` while ``sources`` (and the
-    Python version) are unchanged: the file holds a hash of their contents and the
+    code stamp) are unchanged: the file holds a hash of their contents and the
     object, pickled; it is read by an unpickler that admits only the ``allowed``
     (module, class) pairs, and the object is used only where ``fits(object)``.  Anything
     absent, unreadable, stale or foreign is built afresh (and kept, where the folder can

@@ -9,6 +9,7 @@ import subprocess
 import sys
 from pathlib import Path
 
+from checker import user_cache
 from checker.engine.regime import rule_cache, rulebook
 from checker.resources import rules_dir
 
@@ -82,9 +83,9 @@ def test_a_planted_cache_file_names_no_code(tmp_path, monkeypatch):
     monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
     folder, paths = _shipped_copy(tmp_path)
     marker = tmp_path / "ran"
-    file = tmp_path / "cache" / "regimecheck" / rule_cache._file_name(folder)
+    file = tmp_path / "cache" / "regimecheck" / user_cache.entry_name("rules", folder)
     file.parent.mkdir(parents=True)
-    wanted = rule_cache.key(folder, paths)
+    wanted = user_cache.source_hash(paths)
     file.write_bytes(pickle.dumps((wanted, (_Planted(marker),))))
     reads: list[int] = []
     rules = rule_cache.cached(folder, paths, _read_counted(paths, reads))
@@ -97,7 +98,7 @@ def test_a_damaged_cache_file_is_read_past(tmp_path, monkeypatch):
     folder, paths = _shipped_copy(tmp_path)
     reads: list[int] = []
     rule_cache.cached(folder, paths, _read_counted(paths, reads))
-    file = tmp_path / "cache" / "regimecheck" / rule_cache._file_name(folder)
+    file = tmp_path / "cache" / "regimecheck" / user_cache.entry_name("rules", folder)
     file.write_bytes(file.read_bytes()[:1000])
     rules = rule_cache.cached(folder, paths, _read_counted(paths, reads))
     assert reads == [1, 1] and len(rules) == len(paths)
@@ -141,7 +142,7 @@ def test_a_cached_set_that_is_not_one_rule_per_file_is_read_afresh(tmp_path, mon
     folder, paths = _shipped_copy(tmp_path)
     reads: list[int] = []
     rules = rule_cache.cached(folder, paths, _read_counted(paths, reads))
-    file = tmp_path / "cache" / "regimecheck" / rule_cache._file_name(folder)
-    file.write_bytes(pickle.dumps((rule_cache.key(folder, paths), rules[1:])))
+    file = tmp_path / "cache" / "regimecheck" / user_cache.entry_name("rules", folder)
+    file.write_bytes(pickle.dumps((user_cache.source_hash(paths), rules[1:])))
     again = rule_cache.cached(folder, paths, _read_counted(paths, reads))
     assert reads == [1, 1] and len(again) == len(paths)

@@ -25,7 +25,7 @@ from ..physics.band_shapes import BandShape
 from ..physics.constants import EV, ROOM_TEMPERATURE
 from ..records import FrozenRecord, Record, field
 from ..resources import materials_dir
-from ..user_cache import blake2b, kept
+from ..user_cache import entry_name, kept
 from .quantities import (
     NUMBER,
     WRITTEN_NUMBER,
@@ -1171,9 +1171,8 @@ _MATERIAL_CLASSES = frozenset(
 @cache
 def _load_builtin(file_name: str) -> m.Material:
     entry = _data_files() / file_name
-    place = blake2b(str(entry).encode(), digest_size=8).hexdigest()
     found = kept(
-        f"material-{entry.stem}-{place}.pickle",
+        entry_name(f"material-{entry.stem}", entry),
         (entry,),  # and user_cache.code_stamp(): every module of the package
         _MATERIAL_CLASSES,
         lambda: _read_builtin(entry),

@@ -1,6 +1,7 @@
 """Array types shared by the physics functions (for the type checker; no runtime cost),
 ``distinct``, the sorted distinct values of an array, and ``distinct_points``, the distinct
-combinations of several columns' values, and ``softplus``, ln(1 + e^x) without overflow.
+combinations of several columns' values, and ``softplus`` and ``log_add``, ln(1 + e^x)
+and ln(e^a + e^b) without overflow.
 
 Physics functions take anything numpy turns into a float array (a number, a list, an
 array of any shape; arguments broadcast) and return float64 arrays, or a float where the
@@ -33,19 +34,35 @@ def softplus(x: npt.ArrayLike) -> FloatArray:
     return out
 
 
-def distinct(values: npt.ArrayLike, axis: int | None = None) -> npt.NDArray[np.generic]:
-    """The sorted distinct values (rows, with ``axis=0``) of ``values``, as ``np.unique``.
+def log_add(a: npt.ArrayLike, b: npt.ArrayLike) -> FloatArray:
+    """ln(e^a + e^b) = max(a, b) + ln(1 + e^-|a - b|): np.logaddexp's value (to rounding)
+    in vectorized passes, about 3x faster than its scalar loop; -inf where both are."""
+    with np.errstate(invalid="ignore"):
+        gap: FloatArray = np.asarray(
+            np.subtract(a, b), dtype=np.float64
+        )  # 0-d for scalars: out= needs arrays
+    np.abs(gap, out=gap)
+    np.negative(gap, out=gap)
+    np.fmin(gap, 0.0, out=gap)  # both -inf: nan -> 0, and the max below keeps -inf
+    np.exp(gap, out=gap)
+    np.log1p(gap, out=gap)
+    gap += np.maximum(a, b)
+    return gap
+
+
+def distinct(values: npt.ArrayLike) -> npt.NDArray[np.generic]:
+    """The sorted distinct values of ``values``, as ``np.unique``.
 
     Asking np.unique for an index array keeps it from importing numpy.ma (about 14 ms of
     a cold start with numpy 2.4, where the plain call checks for a masked array)."""
-    unique: npt.NDArray[np.generic] = np.unique(values, return_index=True, axis=axis)[0]
+    unique: npt.NDArray[np.generic] = np.unique(values, return_index=True)[0]
     return unique
 
 
 def distinct_points(columns: list[FloatArray], size: int) -> tuple[IndexArray, IndexArray]:
     """(one point of each distinct combination of the columns' values, the combination of
     every point): a row's values are column[first], a point's row is back; rows come in
-    lexicographic order of the columns, as ``distinct(np.stack(columns, 1), axis=0)``.
+    lexicographic order of the columns, as ``np.unique(np.stack(columns, 1), axis=0)``.
     Each column is numbered by its own distinct values and the numbers combined (a 1-D
     np.unique per column, an order of magnitude faster than np.unique over rows, and with
     index arrays asked for, so numpy.ma stays unimported); no column: one row."""

@@ -275,11 +275,6 @@ def _evaluator(key: str) -> _Piecewise:
     return _Piecewise(key)
 
 
-def _logistic(eta: FloatArray) -> FloatArray:
-    e = np.exp(-np.abs(eta))
-    return np.where(eta >= 0, 1.0 / (1.0 + e), e / (1.0 + e))
-
-
 # F_j(eta) = poly_j(eta) + sign_j * F_j(-eta), exact for integer j >= 1 (Blakemore 1982)
 _REFLECTION_SIGN = {1: -1.0, 2: +1.0, 3: -1.0}
 
@@ -321,8 +316,8 @@ def _integer_order_block(j: int, eta: FloatArray, out: FloatArray) -> None:
     """Write F_j(eta), integer j, into ``out`` (same length as eta)."""
     if j <= 0:
         # e^-|eta| once; F_0 = max(eta, 0) + ln(1 + e^-|eta|) and F_-1 = e^-|eta|/(1 +
-        # e^-|eta|) below 0, 1/(1 + e^-|eta|) from 0: as _softplus and _logistic compute
-        # them, in work arrays
+        # e^-|eta|) below 0, 1/(1 + e^-|eta|) from 0 (arrays.softplus's arithmetic), in
+        # work arrays
         tail = np.abs(eta, out=_work("tail", eta.size))
         np.negative(tail, out=tail)
         np.exp(tail, out=tail)

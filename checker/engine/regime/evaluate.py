@@ -24,7 +24,8 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterable, Iterator, Mapping, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass
+from functools import cached_property
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -58,9 +59,6 @@ class Cells:
     # every rule's indicator even where the rule cannot fire (single points: which stated
     # numbers a rule compared); a sweep reads it only where a rule fires
     all_indicators: bool = True
-    _word_index: (
-        tuple[dict[str, BoolArray], dict[str, list[tuple[int, int, str | None]]]] | None
-    ) = field(default=None, init=False, repr=False)
 
     @classmethod
     def points(
@@ -102,7 +100,7 @@ class Cells:
 
     def declaring(self, words: tuple[str, ...]) -> BoolArray:
         """Per calculation: whether its author declares one of ``words``."""
-        index = self._index()[0]
+        index = self._index[0]
         declared = np.zeros(len(self.calculations), dtype=bool)
         for word in words:
             if word in index:
@@ -112,27 +110,26 @@ class Cells:
     def embodying(self, words: tuple[str, ...]) -> list[tuple[int, int, str | None]]:
         """(calculation, index into its embodied list, carrier) of every stated formula
         that embodies one of ``words``, in calculation and list order."""
-        index = self._index()[1]
+        index = self._index[1]
         return sorted(item for word in set(words) for item in index.get(word, ()))
 
+    @cached_property
     def _index(
         self,
     ) -> tuple[dict[str, BoolArray], dict[str, list[tuple[int, int, str | None]]]]:
         # every rule asks which calculations declare or embody its words: one pass over
         # the calculations for all rules, not one per rule
-        if self._word_index is None:
-            declared: dict[str, BoolArray] = {}
-            for c, calc in enumerate(self.calculations):
-                for word in calc.assumes:
-                    if word not in declared:
-                        declared[word] = np.zeros(len(self.calculations), dtype=bool)
-                    declared[word][c] = True
-            embodied: dict[str, list[tuple[int, int, str | None]]] = {}
-            for c, items in enumerate(self.embodied):
-                for k, item in enumerate(items):
-                    embodied.setdefault(item.word, []).append((c, k, item.carrier))
-            self._word_index = (declared, embodied)
-        return self._word_index
+        declared: dict[str, BoolArray] = {}
+        for c, calc in enumerate(self.calculations):
+            for word in calc.assumes:
+                if word not in declared:
+                    declared[word] = np.zeros(len(self.calculations), dtype=bool)
+                declared[word][c] = True
+        embodied: dict[str, list[tuple[int, int, str | None]]] = {}
+        for c, items in enumerate(self.embodied):
+            for k, item in enumerate(items):
+                embodied.setdefault(item.word, []).append((c, k, item.carrier))
+        return declared, embodied
 
 
 class Ruled(Record):

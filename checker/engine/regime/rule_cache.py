@@ -18,7 +18,7 @@ from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from ...user_cache import blake2b, kept, source_hash
+from ...user_cache import entry_name, kept
 
 if TYPE_CHECKING:
     from .rulebook import Rule
@@ -32,17 +32,6 @@ _ALLOWED = {
     ("checker.engine.regime.rulebook", "PerCarrier"),
     ("checker.engine.expressions.tree", "Node"),
 }
-
-
-def key(folder: Path, paths: Sequence[Path]) -> str:
-    """The hash of everything a cached rule set of ``folder`` depends on (the rule files'
-    paths name the folder)."""
-    return source_hash(paths)  # and user_cache.code_stamp(): every module of the package
-
-
-def _file_name(folder: Path) -> str:
-    name = blake2b(str(folder).encode(), digest_size=8).hexdigest()
-    return f"rules-{name}.pickle"
 
 
 def _is_rule_set(found: object, paths: Sequence[Path]) -> bool:
@@ -65,5 +54,5 @@ def cached(
     def fits(found: object) -> bool:
         return _is_rule_set(found, paths)
 
-    rules = kept(_file_name(folder), paths, _ALLOWED, read, fits)
+    rules = kept(entry_name("rules", folder), paths, _ALLOWED, read, fits)
     return rules  # type: ignore[return-value]  # _is_rule_set checked it
