@@ -16,3 +16,10 @@ def close_matches(
     import difflib
 
     return difflib.get_close_matches(word, list(possibilities), n=n, cutoff=cutoff)
+
+
+def did_you_mean(word: str, possibilities: Iterable[str], n: int = 2) -> str:
+    """ "did you mean 'a' or 'b'?" with the ``n`` nearest possibilities, or "" where none
+    is near (a near miss like "assumptions" is as close to "options" as to "assumes")."""
+    close = close_matches(word, possibilities, n=n)
+    return f"did you mean {' or '.join(repr(c) for c in close)}?" if close else ""

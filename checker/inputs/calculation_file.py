@@ -31,7 +31,7 @@ from typing import TypeAlias
 
 import yaml
 
-from ..close_words import close_matches
+from ..close_words import close_matches, did_you_mean
 from ..errors import InputError, RegimecheckError
 from ..physics.arrays import FloatArray
 from ..physics.constants import EV
@@ -173,9 +173,8 @@ def _unknown_keys(mapping: dict, allowed, where, what: str, section=()):
     problems = Problems()
     for key in mapping:
         if key not in allowed:
-            close = " or ".join(repr(word) for word in close_matches(key, allowed, n=2))
-            hint = f"; did you mean {close}?" if close else f"; allowed: {', '.join(allowed)}"
-            problems.add(InputError(f"{where(*section, key)}: unknown {what} key {key!r}{hint}"))
+            hint = did_you_mean(key, allowed) or f"allowed: {', '.join(allowed)}"
+            problems.add(InputError(f"{where(*section, key)}: unknown {what} key {key!r}; {hint}"))
     problems.raise_any()
 
 
@@ -585,8 +584,7 @@ def _assumptions(entries, where) -> dict:
         text = normal_word(word)
         text = ASSUMPTION_SPELLINGS.get(text, text)
         if text not in ASSUMPTIONS:
-            close = close_matches(text, ASSUMPTIONS, n=1)
-            hint = f"did you mean {close[0]!r}?" if close else f"known: {', '.join(ASSUMPTIONS)}"
+            hint = did_you_mean(text, ASSUMPTIONS) or f"known: {', '.join(ASSUMPTIONS)}"
             raise InputError(f"{here}: unknown assumption {word!r}; {hint}")
         out[text] = where.line("assumes", i)
     return out

@@ -41,7 +41,7 @@ import math
 import re
 from pathlib import Path
 
-from ..close_words import close_matches
+from ..close_words import close_matches, did_you_mean
 from ..errors import InputError
 from ..records import Record, field
 from ..vocabulary_words import SEVERITIES, TOLERANCE_NAMES
@@ -221,9 +221,8 @@ def _parse(table: dict, config: Config) -> Config:
 
     for key in table:
         if key not in KEYS:
-            close = close_matches(key, KEYS, n=1)
-            hint = f"; did you mean {close[0]!r}?" if close else f"; keys are {', '.join(KEYS)}"
-            fail(f"unknown key{hint}", key)
+            hint = did_you_mean(key, KEYS) or f"keys are {', '.join(KEYS)}"
+            fail(f"unknown key; {hint}", key)
     if "fail-level" in table:
         if table["fail-level"] not in LEVELS:
             fail(f"must be one of {', '.join(LEVELS)}", "fail-level")

@@ -18,7 +18,7 @@ from typing import Any, Protocol
 
 import numpy as np
 
-from ..close_words import close_matches
+from ..close_words import close_matches, did_you_mean
 from ..errors import InputError, UnknownMaterialError
 from ..physics import materials as m
 from ..physics.band_shapes import BandShape
@@ -345,8 +345,7 @@ def _unknown_key(key, value, known, place, path) -> InputError:
             "inside {...} starts a new key: quote the text, e.g. "
             'source: "Author, Journal 1 (2000)"'
         )
-    close = close_matches(str(key), list(known), n=1)
-    hint = f"did you mean {close[0]!r}?" if close else f"known: {', '.join(known)}"
+    hint = did_you_mean(str(key), known) or f"known: {', '.join(known)}"
     return InputError(f"{place(*path, key)}: unknown material field {key!r}; {hint}")
 
 
