@@ -14,15 +14,8 @@ from matplotlib.colors import to_hex
 from checker import load_material
 from checker.engine.regime.regime_map import MapPoint, regime_grid
 from checker.physics.carriers import REGIMES
-from checker.report.plots import (
-    KEY_MOST,
-    KEY_TAG,
-    MARKER_TAG,
-    NUMBER_TAG,
-    REGION_TAG,
-    SEVERITY_COLOURS,
-    draw_map,
-)
+from checker.report.map_parts import KEY_MOST, SEVERITY_COLOURS
+from checker.report.plots import KEY_TAG, MARKER_TAG, NUMBER_TAG, REGION_TAG, draw_map
 
 CM3 = 1e6  # cm^-3 in m^-3
 # three calculations at one point (worst: error), two elsewhere (invented devices)

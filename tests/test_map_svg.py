@@ -24,9 +24,8 @@ from test_maps import FILES
 from checker import load_material
 from checker.engine.regime.regime_map import MapPoint, regime_grid
 from checker.physics.carriers import REGIMES
-from checker.report.contour_lines import contour_lines
 from checker.report.map_parts import COLOURS, CRITERIA, SEVERITY_COLOURS
-from checker.report.map_svg import ASCENT, DESCENT, map_svg, text_box, text_width
+from checker.report.map_svg import ASCENT, DESCENT, level_lines, map_svg, text_box, text_width
 
 ROOT = Path(__file__).resolve().parents[1]
 SVG = "{http://www.w3.org/2000/svg}"
@@ -120,11 +119,11 @@ def test_every_cell_is_drawn_in_the_colour_of_its_regime(silicon):
 
 
 def test_a_circle_is_traced_at_its_radius():
-    """The marching-squares trace of |r| = 0.5 on a 41 x 41 grid: one closed line, every
+    """The trace of |r| = 0.5 on a 41 x 41 grid: one closed line, every
     vertex within the linear interpolation's error of the exact circle (geometry)."""
     x = y = np.linspace(-1, 1, 41)
     radius = np.hypot(*np.meshgrid(x, y))
-    (line,) = contour_lines(radius, 0.5, x, y)
+    (line,) = level_lines(radius, 0.5, x, y)
     assert np.allclose(line[0], line[-1]) and len(line) > 40
     assert np.abs(np.hypot(line[:, 0], line[:, 1]) - 0.5).max() < 1e-3
 
@@ -133,7 +132,7 @@ def test_a_line_with_missing_values_is_broken_not_bridged():
     x = y = np.linspace(0, 1, 11)
     field = np.tile(x, (11, 1))  # crosses 0.55 on one column of edges
     field[5, :] = np.nan
-    lines = contour_lines(field, 0.55, x, y)
+    lines = level_lines(field, 0.55, x, y)
     assert len(lines) == 2
     assert all(np.allclose(line[:, 0], 0.55) for line in lines)
 

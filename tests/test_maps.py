@@ -15,7 +15,8 @@ from checker.engine.run import check_paths
 from checker.physics.carriers import REGIMES, regime_label
 from checker.report import DISCLAIMER
 from checker.report.html_report import render_html
-from checker.report.plots import COLOURS, draw_map
+from checker.report.map_parts import COLOURS
+from checker.report.plots import draw_map
 
 XHTML = "{http://www.w3.org/1999/xhtml}"
 

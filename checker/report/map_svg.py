@@ -3,7 +3,7 @@ data without matplotlib (whose import alone costs more than the console report).
 
 What is shown is shared with plots.py (map_parts.py) and so is where labels go
 (map_layout.py): regions as one path per regime (cells of equal regime merged into
-rectangles), the boundary lines (contour_lines.py), a log doping axis with decade
+rectangles), the boundary lines (traced by contourpy), a log doping axis with decade
 ticks, the region names, the markers and their numbers, the legend and the numbered
 list of calculations.  Text stays text (selectable, read by screen readers); each
 region, line and marker carries a <title>.  Text is measured with DejaVu Sans advance
@@ -18,11 +18,11 @@ import html
 import math
 import unicodedata
 from dataclasses import dataclass
+from typing import cast
 
 import numpy as np
 
 from ..physics.carriers import REGIMES
-from .contour_lines import contour_lines
 from .map_layout import Box, leader_end, place_point_labels, place_region_labels
 from .map_parts import (
     COLOURS,
@@ -165,7 +165,8 @@ def map_svg(grid, points=(), title: str | None = None, ident: str = "map") -> st
         (float(grid.T[0]), float(grid.T[-1])),
     )
     found = markers(points, frame.display, RADIUS)
-    legend, legend_width = _legend_entries(grid, found)
+    lines, mott = boundaries(grid), mott_line(grid)  # drawn and named in the legend
+    legend, legend_width = _legend_entries(grid, lines, mott, found)
     width = max(WIDTH_LEAST, frame.right + LEGEND_GAP + SWATCH + 8 + legend_width + 10)
     key = _key(found, width, frame.bottom + BELOW)
     height = frame.bottom + BELOW + (len(key[1]) and key[0] * KEY_LINE + 10)
@@ -187,7 +188,7 @@ def map_svg(grid, points=(), title: str | None = None, ident: str = "map") -> st
         f'width="{_n(PLOT_WIDTH)}" height="{_n(PLOT_HEIGHT)}"/></clipPath></defs>',
         _regions(grid, frame),
         f'<g clip-path="url(#{clip})" fill="none">',
-        *_boundary_paths(grid, frame),
+        *_boundary_paths(grid, frame, lines, mott),
         "</g>",
         f'<rect x="{_n(frame.left)}" y="{_n(frame.top)}" width="{_n(PLOT_WIDTH)}" '
         f'height="{_n(PLOT_HEIGHT)}" fill="none" stroke="#333333"/>',
@@ -244,21 +245,31 @@ def _polyline(points: np.ndarray) -> str:
     return "M" + "L".join(f"{_n(px)} {_n(py)}" for px, py in points)
 
 
-def _boundary_paths(grid, frame: _Frame) -> list[str]:
+def level_lines(values: np.ndarray, level: float, xs: np.ndarray, ys: np.ndarray) -> list:
+    """Polylines ((x, y) rows) along ``values == level`` (shape (len(ys), len(xs))),
+    traced by contourpy (matplotlib's own contouring, installed with it), crossings
+    interpolated linearly in the coordinates given; a non-finite value breaks the line."""
+    import contourpy
+
+    masked = np.ma.masked_invalid(np.asarray(values, dtype=float))
+    generator = contourpy.contour_generator(xs, ys, masked, line_type=contourpy.LineType.Separate)
+    return cast(list, generator.lines(level))  # Separate: one (n, 2) array per line
+
+
+def _boundary_paths(grid, frame: _Frame, lines, mott) -> list[str]:
     xs = frame.x(grid.doping * 1e-6)
     ys = frame.y(grid.T)
     paths = []
-    for line in boundaries(grid):
+    for line in lines:
         values, level = line.values, line.level
         if line.logarithmic:
             with np.errstate(all="ignore"):
                 values, level = np.log(values), math.log(level)
-        d = "".join(_polyline(p) for p in contour_lines(values, level, xs, ys))
+        d = "".join(_polyline(p) for p in level_lines(values, level, xs, ys))
         paths.append(
             f'<path d="{d}" stroke="{line.colour}" stroke-width="1.5" '
             f'stroke-linejoin="round"><title>{_e(line.label)}</title></path>'
         )
-    mott = mott_line(grid)
     if mott is not None:
         at = _n(float(frame.x(mott)))
         paths.append(
@@ -418,11 +429,12 @@ def _numbers(found: list[Marker], frame: _Frame, obstacles: list[Box]) -> list[s
     return path + texts
 
 
-def _legend_entries(grid, found: list[Marker]) -> tuple[list[tuple[str, str, str]], float]:
+def _legend_entries(
+    grid, lines, mott, found: list[Marker]
+) -> tuple[list[tuple[str, str, str]], float]:
     """(kind, colour, text) of each legend line, and the widest text in px."""
     entries = [("region", COLOURS[r], CRITERIA[r]) for r in present_regimes(grid)]
-    entries += [("line", b.colour, b.label) for b in boundaries(grid)]
-    mott = mott_line(grid)
+    entries += [("line", b.colour, b.label) for b in lines]
     if mott is not None:
         entries.append(("dashed", MOTT_COLOUR, mott_label(mott)))
     entries += [("marker", colour, label) for label, colour in severities_shown(found)]

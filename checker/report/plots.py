@@ -16,7 +16,6 @@ from .map_layout import Box, leader_end, place_point_labels, place_region_labels
 from .map_parts import (
     COLOURS,
     CRITERIA,
-    KEY_MOST,
     MOTT_COLOUR,
     REGION_SHARE_LEAST,
     SEVERITY_COLOURS,
@@ -35,8 +34,6 @@ from .map_parts import (
     sweep_outlines,
 )
 from .safe_text import visible
-
-__all__ = ["COLOURS", "CRITERIA", "KEY_MOST", "SEVERITY_COLOURS", "draw_eta_curve", "draw_map"]
 
 
 def _figure(size, right=0.95):
@@ -200,9 +197,9 @@ def _number_markers(ax, found, renderer, obstacles) -> None:
             ax.plot(ends[:, 0], ends[:, 1], color="#555555", lw=0.6, zorder=5)
 
 
-def draw_map(grid, points=(), title=None, size=(7.8, 5.0), notice=True):
-    """The regime map of ``grid`` (engine.regime_map.RegimeGrid) with ``points``;
-    ``notice``: print the screening-check sentence on it (a standalone figure).
+def draw_map(grid, points=(), size=(7.8, 5.0)):
+    """The regime map of ``grid`` (engine.regime_map.RegimeGrid) with ``points``, the
+    screening-check sentence printed under it (a standalone figure).
 
     Calculations at the same doping and temperature share one marker in the colour
     of their worst finding (markers are drawn worst last, on top); every marker has a
@@ -243,7 +240,7 @@ def draw_map(grid, points=(), title=None, size=(7.8, 5.0), notice=True):
     if mott is not None:
         ax.axvline(mott, color=MOTT_COLOUR, lw=1.2, ls="--")
         handles.append(Line2D([], [], color=MOTT_COLOUR, lw=1.2, ls="--", label=mott_label(mott)))
-    _axes(ax, grid, title)  # scale and limits first: the labels are placed in display units
+    _axes(ax, grid)  # scale and limits first: the labels are placed in display units
     renderer = _renderer(fig)
 
     def to_display(doping, T):
@@ -272,12 +269,11 @@ def draw_map(grid, points=(), title=None, size=(7.8, 5.0), notice=True):
     )
     if found:
         _key(fig, found, key_height - 0.06, height)
-    if notice:
-        _notice(fig)
+    _notice(fig)
     return fig
 
 
-def _axes(ax, grid, title) -> None:
+def _axes(ax, grid) -> None:
     x = grid.doping * 1e-6
     ax.set_xscale("log")
     # plain "1e17" labels: the default 10^17 goes through mathtext, slow for many figures
@@ -290,7 +286,7 @@ def _axes(ax, grid, title) -> None:
     ax.set_ylim(grid.T[0], grid.T[-1])
     ax.set_xlabel(_label(axis_label(grid)))
     ax.set_ylabel("temperature (K)")
-    ax.set_title(_label(title or default_title(grid)), fontsize=10)
+    ax.set_title(_label(default_title(grid)), fontsize=10)
 
 
 def _renderer(fig):
