@@ -46,20 +46,19 @@ MIXES = [
 ]
 
 
-def command(*args):
-    """A case: ``regimecheck *args`` run once (exit 0 or 1, else the bench stops)."""
-    return lambda: installed_command.run([str(a) for a in args], CHECKED, cwd=ROOT)
-
-
-def cold_command(*args):
-    """A case: ``regimecheck *args`` with an empty user cache (XDG_CACHE_HOME), as the
-    first run after an install or upgrade: the rules, materials and formula matches are
-    read, checked and searched afresh, then kept."""
+def command(*args, cold: bool = False):
+    """A case: ``regimecheck *args`` run once (exit 0 or 1, else the bench stops);
+    ``cold``: with an empty user cache (REGIMECHECK_CACHE), as the first run after an
+    install or upgrade: the rules, materials and formula matches are read, checked and
+    searched afresh, then kept."""
+    argv = [str(a) for a in args]
+    if not cold:
+        return lambda: installed_command.run(argv, CHECKED, cwd=ROOT)
 
     def case():
         with tempfile.TemporaryDirectory() as cache:
-            env = {**os.environ, "XDG_CACHE_HOME": cache}
-            installed_command.run([str(a) for a in args], CHECKED, cwd=ROOT, env=env)
+            env = {**os.environ, "REGIMECHECK_CACHE": cache}
+            installed_command.run(argv, CHECKED, cwd=ROOT, env=env)
 
     return case
 
@@ -149,7 +148,7 @@ def main():
         cases = {
             FLOOR_NAME: floor(),
             f"check {ONE.name}": command("check", ONE),
-            f"check {ONE.name}, empty user cache": cold_command("check", ONE),
+            f"check {ONE.name}, empty user cache": command("check", ONE, cold=True),
             f"check {WITH_FORMULAS.name} (formulas)": command("check", WITH_FORMULAS),
             "check examples/": command("check", ROOT / "examples"),
             f"check {count} calculations": command("check", many),

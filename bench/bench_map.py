@@ -2,11 +2,10 @@
 (bench/interleaved.py): the installed `regimecheck map` command (a 200 x 200 map of Si:P
 written as SVG) against `python -c "import numpy, yaml"`, in-process the drawing of
 the solved grid (matplotlib SVG and PNG, the HTML report's own SVG) against the solve
-of that grid, and `check examples/ --format html` (its inline maps) against the console
-report of the same files (issue 16: <= 2).  ``--resolution`` sets the points per
-axis; ``--html-only`` runs the last table alone.  Prints tables; stops with exit code
-1 where the command fails.
-Usage: python bench/bench_map.py [--resolution 200] [--rounds 5] [--html-only]
+of that grid (the HTML report against the console report is a row of
+bench/bench_startup.py).  ``--resolution`` sets the points per axis.  Prints tables;
+stops with exit code 1 where the command fails.
+Usage: python bench/bench_map.py [--resolution 200] [--rounds 5]
 """
 
 import argparse
@@ -16,7 +15,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 import installed_command  # noqa: E402
-from bench_check import FLOOR_NAME, ROOT, command, floor  # noqa: E402
+from bench_check import FLOOR_NAME, floor  # noqa: E402
 from interleaved import interleaved, ratio_table  # noqa: E402
 
 
@@ -24,27 +23,8 @@ def main():
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     parser.add_argument("--resolution", type=int, default=200, help="points per axis")
     parser.add_argument("--rounds", type=int, default=5)
-    parser.add_argument("--html-only", action="store_true", help="the HTML table alone")
     args = parser.parse_args()
-    if not args.html_only:
-        _maps(args)
-        print()
-    _html(args)
-
-
-def _html(args):
-    """The HTML report of the examples against their console report (one process each)."""
-    console = "check examples/ (console)"
-    with tempfile.TemporaryDirectory() as tmp:
-        out = Path(tmp) / "report.html"
-        cases = {
-            console: command("check", ROOT / "examples"),
-            "check examples/ --format html": command(
-                "check", ROOT / "examples", "--format", "html", "--output", out
-            ),
-        }
-        print(ratio_table(interleaved(cases, args.rounds), console, unit="us/run"))
-        print(f"HTML size: {out.stat().st_size / 1024:.0f} KiB")
+    _maps(args)
 
 
 def _maps(args):

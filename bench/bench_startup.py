@@ -29,7 +29,6 @@ from bench_check import (  # noqa: E402
     FLOOR_NAME,
     ONE,
     ROOT,
-    cold_command,
     command,
     compile_package,
     floor,
@@ -58,7 +57,7 @@ def main() -> None:
             "check examples/ --format html": command(
                 "check", EXAMPLES, "--format", "html", "--output", out
             ),
-            f"check {ONE.name}, empty cache": cold_command("check", ONE),
+            f"check {ONE.name}, empty cache": command("check", ONE, cold=True),
         }
         timings = interleaved(cases, args.rounds)
     names = list(cases)
