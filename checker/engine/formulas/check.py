@@ -263,11 +263,8 @@ def _has_dimension(tree: Node, dim: int, target: dm.Dimension) -> bool:
 
 
 # ---- values at the operating point ----------------------------------------------------------
-def operating_values(
-    values: Values, calculations: Sequence[Calculation], bands: Sequence[str] | None = None
-) -> list[Point | None]:
-    """Per calculation, every formula symbol's exact value at its operating point (SI);
-    ``bands``: their band worlds where the caller has them (point_bands)."""
+def operating_values(values: Values, calculations: Sequence[Calculation]) -> list[Point | None]:
+    """Per calculation, every formula symbol's exact value at its operating point (SI)."""
     count = len(calculations)
     known = {name: np.asarray(values[key], dtype=float) for name, key in _FROM_STATE.items()}
     kT = values["kT"]
@@ -298,8 +295,7 @@ def operating_values(
         known[name] = np.where(dims == 3, known[name], np.nan)
     # alpha kT of a Kane conduction band (0: parabolic), the definitions' beta_kane_n
     known["beta_kane_n"] = _column(values, "beta_kane_n", count)
-    if bands is None:
-        bands = point_bands(values, dims)
+    bands = point_bands(values, dims)
     out: list[Point | None] = [None] * count
     groups: dict[tuple[int, str, str], list[int]] = {}
     for i, calc in enumerate(calculations):
@@ -413,11 +409,9 @@ def _analyse_text(text: str, majority: str, dim: int, band: str, where: str) -> 
 
 
 # ---- one calculation ------------------------------------------------------------------------
-def analyse_calculation(
-    calc: Calculation, point: Point | None, band: str = "parabolic"
-) -> FormulaAnalysis:
-    """Parse, dimension-check, match and evaluate every formula of ``calc`` (in the band
-    world ``band`` of its material: relations.band_world)."""
+def analyse_calculation(calc: Calculation, band: str = "parabolic") -> FormulaAnalysis:
+    """Parse, dimension-check and match every formula of ``calc`` (in the band world
+    ``band`` of its material: relations.band_world); evaluate_all gives the values."""
     out = FormulaAnalysis()
     dim = int(calc.structure.get("dim", 3))
     for text, where, line in calc.formulas:
@@ -431,21 +425,15 @@ def analyse_calculation(
         out.results.append(result)
         if result.match is None:
             continue
-        if point is not None:
-            _value(result, point)
         for word, carrier in result.match.assumptions:
             out.embodied.append(Embodied(word, carrier, line, text))
     return out
 
 
 def _points(
-    calculations: Sequence[Calculation],
-    values: Values,
-    skip: Collection[int],
-    bands: Sequence[str] | None = None,
+    calculations: Sequence[Calculation], values: Values, skip: Collection[int]
 ) -> list[Point | None]:
-    """Every formula symbol's value per calculation with formulas (None: none, or skipped);
-    ``bands``: every calculation's band world, where the caller has them."""
+    """Every formula symbol's value per calculation with formulas (None: none, or skipped)."""
     with_formulas = [i for i, c in enumerate(calculations) if c.formulas]
     points: list[Point | None] = [None] * len(calculations)
     solved = [i for i in with_formulas if i not in skip]
@@ -454,25 +442,19 @@ def _points(
             name: np.asarray(array)[solved] if np.ndim(array) else array
             for name, array in values.items()
         }
-        found = operating_values(
-            subset,
-            [calculations[i] for i in solved],
-            None if bands is None else [bands[i] for i in solved],
-        )
+        found = operating_values(subset, [calculations[i] for i in solved])
         for i, point in zip(solved, found):
             points[i] = point
     return points
 
 
-def analyse_all(
-    calculations: Sequence[Calculation], values: Values, skip: Collection[int] = ()
-) -> list[FormulaAnalysis]:
-    """FormulaAnalysis per calculation (values at the operating point unless skipped)."""
+def analyse_all(calculations: Sequence[Calculation], values: Values) -> list[FormulaAnalysis]:
+    """FormulaAnalysis per calculation (the values at the operating point: evaluate_all,
+    once the rules have corrected the calculation)."""
     dims = np.array([int(c.structure.get("dim", 3)) for c in calculations], dtype=int)
     bands = point_bands(values, dims)
-    points = _points(calculations, values, skip, bands)
     analyses = [
-        analyse_calculation(calc, points[i], bands[i]) if calc.formulas else FormulaAnalysis()
+        analyse_calculation(calc, bands[i]) if calc.formulas else FormulaAnalysis()
         for i, calc in enumerate(calculations)
     ]
     match_store.STORE.save()  # the matches this run searched for, for the next
@@ -485,8 +467,8 @@ def evaluate_all(
     values: Values,
     skip: Collection[int] = (),
 ) -> None:
-    """Each formula's value and the exact value at its operating point again, from
-    ``values`` as the rules left them (the corrected calculation: a rejected stated
+    """Each formula's value and the exact value at its operating point, from ``values``
+    as the rules left them (the corrected calculation: a rejected stated
     mobility no longer sets the exact D a formula line is compared with)."""
     points = _points(calculations, values, skip)
     for analysis, point in zip(analyses, points):

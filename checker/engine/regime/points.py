@@ -52,7 +52,7 @@ def check_points(
             check as formula_check,
         )  # imported only when there are formulas to read
 
-        analyses = formula_check.analyse_all(calculations, values, skip=solve_errors.keys())
+        analyses = formula_check.analyse_all(calculations, values)
     embodied = [a.embodied if a else [] for a in analyses]
     findings, unchecked = evaluate(
         rules, calculations, values, skip=solve_errors.keys(), embodied=embodied
