@@ -48,7 +48,7 @@ from . import _threads, energy_window
 from .arrays import ArrayIn, BoolArray, FloatArray, IndexArray, log_add, softplus
 from .bands import KaneBand
 from .constants import BOLTZMANN
-from .fermi import inverse_fermi_dirac_half, log_fermi_dirac, log_fermi_dirac_half_pair
+from .fermi import inverse_fermi_dirac_half_of_log, log_fermi_dirac, log_fermi_dirac_half_pair
 from .materials import Dopant, Material
 
 MAX_ITERATIONS = 200
@@ -586,13 +586,9 @@ _NONDEGENERATE_LN_U = -38.0
 
 
 def _eta_from_ln_u(ln_u: FloatArray) -> FloatArray:
-    """eta with ln F_1/2(eta) = ln u: ln u itself far below degeneracy, else the
-    (tabulated, ~1e-15) inverse of F_1/2."""
-    eta = ln_u.copy()
-    upper = np.flatnonzero(ln_u > _NONDEGENERATE_LN_U)
-    if upper.size:
-        eta[upper] = inverse_fermi_dirac_half(np.exp(np.minimum(ln_u[upper], 700.0)))
-    return eta
+    """eta with ln F_1/2(eta) = ln u (the tabulated inverse, ~1e-15; ln u itself far
+    below degeneracy)."""
+    return inverse_fermi_dirac_half_of_log(ln_u)
 
 
 def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatArray, int]:

@@ -506,21 +506,20 @@ def _inverse_table() -> list[FloatArray]:
     ]
 
 
-def _inverse_block(u: FloatArray, eta: FloatArray) -> None:
-    """Write the roots for ``u`` into ``eta``: the table's in range and below it (there
-    g(-38) ~ 1e-17 is below half an ulp of eta); Newton from scratch above it."""
+def _inverse_block(log_u: FloatArray, eta: FloatArray) -> None:
+    """Write the roots for ``log_u`` = ln u into ``eta``: the table's in range and below
+    it (there g(-38) ~ 1e-17 is below half an ulp of eta); Newton from scratch above it."""
     coeffs = _inverse_table()
     cells = coeffs[0].size
-    log_u = np.log(u, out=_work("log u", u.size))
-    x = np.subtract(log_u, _INV_S_LOW, out=_work("position", u.size))
+    x = np.subtract(log_u, _INV_S_LOW, out=_work("position", log_u.size))
     x *= _INV_CELLS_PER_UNIT
     np.clip(x, 0.0, cells, out=x)  # points above the table are replaced below
-    cell = _work("cell", u.size, np.intp)
+    cell = _work("cell", log_u.size, np.intp)
     np.copyto(cell, x, casting="unsafe")  # truncation: the floor of x >= 0
     np.minimum(cell, cells - 1, out=cell)
     x -= cell  # t in [0, 1]
     np.take(coeffs[-1], cell, out=eta)
-    scratch = _work("coefficient", u.size)
+    scratch = _work("coefficient", log_u.size)
     for c in coeffs[-2::-1]:
         eta *= x
         eta += np.take(c, cell, out=scratch)
@@ -558,8 +557,27 @@ def inverse_fermi_dirac_half(u: ArrayIn) -> FloatOrArray:
                 "inverse_fermi_dirac_half needs finite values u > 0"
                 " (F_1/2 is positive for every eta)"
             )
-        _inverse_block(block, roots[rows])
+        _inverse_block(np.log(block, out=_work("log u", block.size)), roots[rows])
 
     _blockwise(flat.size, work, threads=True)
     result = roots.reshape(arr.shape)
     return result if arr.ndim else float(result)
+
+
+def inverse_fermi_dirac_half_of_log(log_u: FloatArray) -> FloatArray:
+    """eta such that ln F_{1/2}(eta) = ``log_u`` (any finite values; a flat array), by the
+    method of :func:`inverse_fermi_dirac_half`, for a caller that works in logarithms
+    (the equilibrium solver's start): no exp and log round trip, no overflow.
+
+    References
+    ----------
+    As for :func:`inverse_fermi_dirac_half`.
+    """
+    flat = np.ascontiguousarray(log_u, dtype=np.float64).ravel()
+    roots = np.empty_like(flat)
+
+    def work(rows: slice) -> None:
+        _inverse_block(flat[rows], roots[rows])
+
+    _blockwise(flat.size, work, threads=True)
+    return roots
