@@ -2,8 +2,9 @@
 first font) for the characters the regime map's labels use, in thousandths of an em.
 
 The HTML report draws its maps as SVG without matplotlib, so it measures label text with
-this table instead of a font engine.  Read from the font file matplotlib ships (a
-development dependency of this tool only): python tools/generate_text_widths.py
+this table instead of a font engine.  Read from the font file matplotlib ships (the
+package's dependency for the map and curve commands): python tools/generate_text_widths.py
+(tests/test_map_svg.py checks the table against that font file).
 """
 
 from __future__ import annotations
