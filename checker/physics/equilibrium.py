@@ -330,19 +330,6 @@ def _fraction(part: FloatArray, whole: FloatArray) -> FloatArray:
         return np.where(whole > 0, part / np.where(whole > 0, whole, 1.0), 1.0)
 
 
-def _softplus_and_logistic(x: FloatArray) -> tuple[FloatArray, FloatArray]:
-    """ln(1 + e^x) and 1/(1 + e^-x), sharing one exponential."""
-    e = np.abs(x)
-    np.negative(e, out=e)
-    np.exp(e, out=e)
-    soft = np.log1p(e)
-    soft += np.maximum(x, 0.0)
-    logistic = np.where(x >= 0, 1.0, e)
-    e += 1.0
-    logistic /= e
-    return soft, logistic
-
-
 def _log(x: FloatArray) -> FloatArray:
     with np.errstate(divide="ignore"):
         return np.log(x)
@@ -374,11 +361,13 @@ class _Neutrality:
     keeps full precision in eta (a plain n + N_A^- = p + N_D^+ would lose it).
 
     Per-point parameters are rows of one 2-D array, so dropping converged
-    points is a single compaction.
+    points is a single compaction; every row is constant over the Newton loop (each
+    level's offset, ln(b N), b and 1 - b are formed once per block, not per evaluation).
     """
 
-    BASE_ROWS = 5  # ln N_c, ln N_v, E_g/kT, ln max(N_D - N_A, 0), ln max(N_A - N_D, 0)
-    TERM_ROWS = 4  # per bound level: ln N_level, offset, ln b, ln(1 - b)
+    BASE_ROWS = 5  # -E_g/kT, ln N_c, ln N_v, ln max(N_D - N_A, 0), ln max(N_A - N_D, 0)
+    # per bound level: occupancy offset E/kT + ln g, ln N, ln(b N), b, 1 - b, ln(1 - b)
+    TERM_ROWS = 6
 
     def __init__(
         self, params: FloatArray, n_donors: int, n_acceptors: int, kane: KaneBand | None = None
@@ -401,9 +390,9 @@ class _Neutrality:
     ) -> _Neutrality:
         """Each term: (ln N_level, occupancy offset, ln b, ln(1 - b)) of one bound level;
         ``kane``: the Kane conduction band and the temperatures (K) of the points."""
-        rows = [ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p]
-        for term in donor_terms + acceptor_terms:
-            rows += list(term)
+        rows = [-eg_kt, ln_nc, ln_nv, ln_net_n, ln_net_p]
+        for ln_n, offset, ln_b, ln_free in donor_terms + acceptor_terms:
+            rows += [offset, ln_n, ln_n + ln_b, np.exp(ln_b), np.exp(ln_free), ln_free]
         if kane is None:
             return cls(np.array(rows), len(donor_terms), len(acceptor_terms))
         return cls(np.array([*rows, kane[1]]), len(donor_terms), len(acceptor_terms), kane[0])
@@ -414,15 +403,20 @@ class _Neutrality:
             np.take(self.params, keep, axis=1), self.n_donors, self.n_acceptors, self.kane
         )
 
-    def _species(self, k: int) -> FloatArray:
+    def _level(self, k: int) -> FloatArray:
         row = self.BASE_ROWS + self.TERM_ROWS * k
         return self.params[row : row + self.TERM_ROWS]
 
     def __call__(self, eta: FloatArray) -> tuple[FloatArray, FloatArray]:
-        """Return (f, df/deta) with f = ln(left side) - ln(right side), increasing in eta."""
-        ln_nc, ln_nv, eg_kt, ln_net_n, ln_net_p = self.params[: self.BASE_ROWS]
-        eta_p = -eta - eg_kt
-        electrons, holes = self._band_terms(ln_nc, ln_nv, eta, eta_p)
+        """Return (f, df/deta) with f = ln(left side) - ln(right side), increasing in eta.
+
+        Slopes are kept as magnitudes: every left-side density grows with eta, every
+        right-side one with eta_p = -eta - E_g/kT, so df/deta is the sum of the sides'."""
+        neg_eg, ln_nc, ln_nv, ln_net_n, ln_net_p = self.params[: self.BASE_ROWS]
+        both = np.empty(2 * eta.size)  # eta, then eta_p: one F_1/2 pass over both
+        both[: eta.size] = eta
+        eta_p = np.subtract(neg_eg, eta, out=both[eta.size :])
+        electrons, holes = self._band_terms(ln_nc, ln_nv, both)
         left: list[SlopedTerm] = [electrons, (ln_net_p, None)]
         right: list[SlopedTerm] = [holes, (ln_net_n, None)]
         # the same balance written plainly, n + N_A^- = p + N_D^+: in freeze-out almost
@@ -431,77 +425,132 @@ class _Neutrality:
         plain_left: list[SlopedTerm] = [electrons]
         plain_right: list[SlopedTerm] = [holes]
         for k in range(self.n_donors):
-            ln_n, offset, ln_b, ln_free = self._species(k)
-            neutral, ionized = _impurity_terms(ln_n, eta + offset, ln_b, ln_free, +1.0)
+            neutral, ionized = _impurity_terms(self._level(k), eta)
             left.append(neutral)
             plain_right.append(ionized)
         for k in range(self.n_donors, self.n_donors + self.n_acceptors):
-            ln_n, offset, ln_b, ln_free = self._species(k)
-            neutral, ionized = _impurity_terms(ln_n, eta_p + offset, ln_b, ln_free, -1.0)
+            neutral, ionized = _impurity_terms(self._level(k), eta_p)
             right.append(neutral)
             plain_left.append(ionized)
-        lse_l, dl = _logsumexp_with_slope(left)
-        lse_r, dr = _logsumexp_with_slope(right)
-        f, df = lse_l - lse_r, dl - dr
+        f, df = _log_ratio(left, right)
         if self.n_donors + self.n_acceptors:
-            pl, dpl = _logsumexp_with_slope(plain_left)
-            pr, dpr = _logsumexp_with_slope(plain_right)
-            plain_df = dpl - dpr
+            plain_f, plain_df = _log_ratio(plain_left, plain_right)
             steeper = plain_df > df
-            np.copyto(f, pl - pr, where=steeper)
-            np.copyto(df, plain_df, where=steeper)
+            _take_where(f, plain_f, steeper)
+            _take_where(df, plain_df, steeper)
         return f, df
 
     def _band_terms(
-        self, ln_nc: FloatArray, ln_nv: FloatArray, eta: FloatArray, eta_p: FloatArray
+        self, ln_nc: FloatArray, ln_nv: FloatArray, both: FloatArray
     ) -> tuple[SlopedTerm, SlopedTerm]:
-        """(ln n, d ln n/d eta) and (ln p, d ln p/d eta) at the points."""
+        """(ln n, d ln n/d eta) and (ln p, d ln p/d eta_p) at ``both`` = [eta, eta_p]."""
+        size = both.size // 2
         if self.kane is None:  # parabolic: both closed F_1/2 in one pass (the fast path)
-            size = eta.size
-            both, both_minus = log_fermi_dirac_half_pair(np.concatenate([eta, eta_p]))
-            slopes = np.exp(both_minus - both)  # d ln F_1/2 / d eta = F_-1/2 / F_1/2
-            return (ln_nc + both[:size], slopes[:size]), (ln_nv + both[size:], -slopes[size:])
-        holes, holes_minus = log_fermi_dirac_half_pair(eta_p)
-        factor, slope = energy_window.kane_density_factor(self.kane, eta, self.params[-1])
+            logs, logs_minus = log_fermi_dirac_half_pair(both)
+            slopes = np.subtract(logs_minus, logs, out=logs_minus)
+            np.exp(slopes, out=slopes)  # d ln F_1/2 / d eta = F_-1/2 / F_1/2
+            ln_n, ln_p = logs[:size], logs[size:]
+            ln_n += ln_nc
+            ln_p += ln_nv
+            return (ln_n, slopes[:size]), (ln_p, slopes[size:])
+        holes, holes_minus = log_fermi_dirac_half_pair(both[size:])
+        factor, slope = energy_window.kane_density_factor(self.kane, both[:size], self.params[-1])
         electrons: SlopedTerm = (ln_nc + np.asarray(factor), np.asarray(slope))
-        return electrons, (ln_nv + holes, -np.exp(holes_minus - holes))
+        return electrons, (ln_nv + holes, np.exp(holes_minus - holes))
 
 
-def _impurity_terms(
-    ln_density: FloatArray, argument: FloatArray, ln_b: FloatArray, ln_free: FloatArray, sign: float
-) -> tuple[SlopedTerm, SlopedTerm]:
-    """(ln N^0, slope) and (ln N^ion, slope) of one bound level; slopes are d/d eta.
+# beyond this |E/kT + eta| a level's occupancy is formed in logarithms (e^-690 is still
+# a normal double, and exp's arguments below about -708 take its slow path)
+_LINEAR_OCCUPANCY = 690.0
 
-    With the isolated-level occupancy u = 1/(1 + e^-arg) (arg = eta_band + offset):
-    N^0 = b N u and N^ion = N (1 - b + b (1 - u)), written as a sum of two positive
-    parts so that neither form cancels.  ``sign`` is d arg / d eta.
+
+def _impurity_terms(level: FloatArray, eta_band: FloatArray) -> tuple[SlopedTerm, SlopedTerm]:
+    """(ln N^0, slope) and (ln N^ion, slope) of one bound level, each slope the magnitude
+    of its derivative in ``eta_band`` (eta for a donor, eta_p for an acceptor).
+
+    With a = eta_band + E/kT + ln g, the occupancy u = 1/(1 + e^-a) and its complement
+    q = 1 - u = 1/(1 + e^a): N^0 = b N u (d ln N^0/da = q) and N^ion = N (1 - b + b q)
+    (d ln N^ion/da = -u b q/(1 - b + b q)), a sum of two positive parts, so neither form
+    cancels.  One exponential e^-|a| gives both u and q; beyond |a| = 690 the log form.
     """
-    soft, ionized = _softplus_and_logistic(-argument)  # ln(1 + e^-arg), 1 - u
-    neutral_value = ln_density + ln_b - soft
-    neutral_slope = sign * ionized
-    bound_ionized = ln_b - (soft + argument)  # ln(b (1 - u))
-    ion_value = log_add(ln_free, bound_ionized)
-    weight = np.exp(bound_ionized - ion_value)  # share of N^ion still bound-able
-    ion_slope = sign * (ionized - 1.0) * weight
-    return (neutral_value, neutral_slope), (ln_density + ion_value, ion_slope)
+    offset, ln_n, ln_bn, bound, free, ln_free = level
+    a = np.add(eta_band, offset)
+    e = np.abs(a)
+    if e.size and np.max(e) >= _LINEAR_OCCUPANCY:
+        return _impurity_terms_in_logs(level, a)
+    np.negative(e, out=e)
+    np.exp(e, out=e)  # e^-|a|
+    neutral = np.log1p(e)
+    neutral -= np.minimum(a, 0.0)  # ln(1 + e^-a) = -ln u
+    np.subtract(ln_bn, neutral, out=neutral)
+    q = np.maximum(e, a < 0)  # e^-max(a, 0), the numerator of 1/(1 + e^a)
+    e += 1.0
+    q /= e
+    bound_ionized = np.multiply(bound, q, out=e)  # b q
+    ionized = np.add(bound_ionized, free)  # 1 - b + b q, >= e^-690 min(b, 1) > 0
+    bound_ionized /= ionized  # the share of N^ion that could bind a carrier
+    np.log(ionized, out=ionized)
+    ionized += ln_n
+    slope = np.subtract(1.0, q, out=a)  # u
+    slope *= bound_ionized
+    return (neutral, q), (ionized, slope)
+
+
+def _impurity_terms_in_logs(level: FloatArray, a: FloatArray) -> tuple[SlopedTerm, SlopedTerm]:
+    """:func:`_impurity_terms` for any a, with u, q and the sums formed in logarithms."""
+    offset, ln_n, ln_bn, bound, free, ln_free = level
+    soft = softplus(-a)  # ln(1 + e^-a) = -ln u
+    neutral = np.subtract(ln_bn, soft)
+    soft += a  # ln(1 + e^a) = -ln q
+    q = np.exp(-soft)
+    bound_ionized = np.subtract(np.log(bound), soft, out=soft)  # ln(b q)
+    ionized = log_add(ln_free, bound_ionized)
+    weight = np.exp(bound_ionized - ionized)
+    weight *= 1.0 - q
+    ionized += ln_n
+    return (neutral, q), (ionized, weight)
+
+
+def _log_ratio(left: list[SlopedTerm], right: list[SlopedTerm]) -> tuple[FloatArray, FloatArray]:
+    """ln(sum of the left terms) - ln(sum of the right ones), and the sum of both sides'
+    weighted slope magnitudes (its derivative in eta)."""
+    f, df = _logsumexp_with_slope(left)
+    right_value, right_slope = _logsumexp_with_slope(right)
+    f -= right_value
+    df += right_slope
+    return f, df
+
+
+def _take_where(into: FloatArray, other: FloatArray, mask: BoolArray) -> None:
+    """into = other where mask (finite values), by arithmetic: on a random mask a masked
+    copy costs several times as much (a mispredicted branch per element)."""
+    np.multiply(into, ~mask, out=into)
+    other *= mask
+    into += other
 
 
 def _logsumexp_with_slope(terms: list[SlopedTerm]) -> tuple[FloatArray, FloatArray]:
-    """ln(sum e^a_i) and its derivative sum w_i a_i' (w = softmax weights)."""
-    if len(terms) == 1 and terms[0][1] is not None:
-        return terms[0][0], terms[0][1]
-    top = terms[0][0].copy()
-    for value, _ in terms[1:]:
+    """ln(sum e^a_i) and sum w_i a_i' (w = softmax weights; a_i' None: a constant).
+
+    Terms more than 700 below the largest count as e^-700 (the largest counts 1, so the
+    sum does not change; exp's arguments below about -708 take its slow path)."""
+    top = np.maximum(terms[0][0], terms[1][0]) if len(terms) > 1 else terms[0][0].copy()
+    for value, _ in terms[2:]:
         np.maximum(top, value, out=top)
-    total = np.zeros_like(top)
-    slope = np.zeros_like(top)
+    total = slope = None
     for value, deriv in terms:
         w = np.subtract(value, top)
+        np.maximum(w, -700.0, out=w)
         np.exp(w, out=w)
+        if total is None or slope is None:
+            assert deriv is not None  # the first term is a band's
+            total, slope = w, w * deriv
+            continue
         total += w
         if deriv is not None:  # None: a constant term
             w *= deriv
             slope += w
+    assert total is not None and slope is not None
     slope /= total
     np.log(total, out=total)
     total += top
@@ -597,7 +646,9 @@ def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatA
     f is strictly increasing, so every evaluation tightens [lo, hi]; a Newton
     step that leaves the bracket is replaced by bisection (or, while one side
     is still open, by a step of the current limit toward the root).  Working
-    arrays are compacted as points converge.
+    arrays are compacted as points converge.  Selections over all points are
+    arithmetic (max/min with +-inf, products with 0/1) rather than masked copies, which
+    cost several times as much on the random masks of a solve.
     """
     n_points = eta0.size
     out_eta = np.empty(n_points)
@@ -611,28 +662,38 @@ def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatA
     for iterations in range(1, MAX_ITERATIONS + 1):
         x, lo, hi, limit = work
         f, df = residual(x)
-        np.copyto(lo, x, where=f < 0)
-        np.copyto(hi, x, where=f > 0)
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            # x lies inside (lo, hi): it becomes lo where f < 0 and hi where f > 0, as a
+            # max / min with x there and -inf / +inf elsewhere (1/0; NaN f changes nothing)
+            below, above = f < 0, f > 0
+            np.fmax(lo, np.subtract(x, np.divide(~below, below)), out=lo)
+            np.fmin(hi, np.add(x, np.divide(~above, above)), out=hi)
             step = np.divide(f, df)
         np.negative(step, out=step)
         bad = ~np.isfinite(step)
         if bad.any():
             step[bad] = np.where(f[bad] > 0, -limit[bad], limit[bad])
-        big = np.abs(step) >= limit
         np.clip(step, -limit, limit, out=step)
+        size = np.abs(step)
+        big = size >= limit  # the step was clipped: the limit grows
         # converged: |f| small, or the step or the bracket has shrunk to rounding size;
         # such a point keeps x (where f was measured), never a fallback move below
-        small_f = np.abs(f) <= TOLERANCE
-        tiny = np.abs(x) + 1.0
+        tiny = np.abs(x)
+        tiny += 1.0
         tiny *= 4e-16
-        done = small_f | (np.abs(step) <= tiny) | (hi - lo <= tiny)
+        done = np.abs(f) <= TOLERANCE
+        done |= size <= tiny
+        done |= np.subtract(hi, lo) <= tiny
+        step *= ~done  # finite: a done point's new x is its x
         new = x + step
-        outside = ((new <= lo) | (new >= hi)) & ~done
+        outside = (new <= lo) | (new >= hi)
+        outside &= ~done
         # a last Newton step inside the bracket: its point is returned without another
         # evaluation (|f| there <= 4.5e-13, see ACCEPT_STEP; the block's plain-form
         # neutrality check measures it)
-        last = (np.abs(step) <= ACCEPT_STEP) & ~done & ~outside
+        last = size <= ACCEPT_STEP
+        last &= ~done
+        last &= ~outside
         if outside.any():
             o_lo, o_hi, o_x, o_lim = lo[outside], hi[outside], x[outside], limit[outside]
             closed = np.isfinite(o_lo) & np.isfinite(o_hi)
@@ -643,20 +704,23 @@ def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatA
             )
         if big.any():
             limit[big] *= 4.0
-        np.copyto(x, new, where=~done)
-        # f is not measured after a last step: the block's plain balance is its residual
-        measured = np.abs(f)
-        measured[last] = 0.0
         done |= last
-        if done.any():
-            out_eta[idx[done]] = x[done]
-            out_f[idx[done]] = measured[done]
-            keep = np.flatnonzero(~done)
-            if keep.size == 0:
+        finished = np.flatnonzero(done)
+        if finished.size:
+            out_eta[idx[finished]] = new[finished]
+            # f is not measured after a last step: the block's plain balance is its residual
+            measured = np.abs(f[finished])
+            measured *= ~last[finished]
+            out_f[idx[finished]] = measured
+            if finished.size == idx.size:
                 return out_eta, out_f, iterations
+            keep = np.flatnonzero(~done)
+            x[:] = new
             idx = idx[keep]
             work = np.take(work, keep, axis=1)
             residual = residual.subset(keep)
+        else:
+            x[:] = new
     raise ConvergenceError(
         f"Fermi-level solve did not converge at {idx.size} point(s) after "
         f"{MAX_ITERATIONS} iterations"
