@@ -35,8 +35,9 @@ def softplus(x: npt.ArrayLike) -> FloatArray:
 
 
 def log_add(a: npt.ArrayLike, b: npt.ArrayLike) -> FloatArray:
-    """ln(e^a + e^b) = max(a, b) + ln(1 + e^-|a - b|): np.logaddexp's value (to rounding)
-    in vectorized passes, about 3x faster than its scalar loop; -inf where both are."""
+    """ln(e^a + e^b) = max(a, b) + ln(1 + e^-|a - b|): np.logaddexp's value (to rounding;
+    where a and b lie more than 700 apart, the larger plus at most 1e-304) in vectorized
+    passes, about 3x faster than its scalar loop; -inf where both are."""
     with np.errstate(invalid="ignore"):
         gap: FloatArray = np.asarray(
             np.subtract(a, b), dtype=np.float64
@@ -44,6 +45,8 @@ def log_add(a: npt.ArrayLike, b: npt.ArrayLike) -> FloatArray:
     np.abs(gap, out=gap)
     np.negative(gap, out=gap)
     np.fmin(gap, 0.0, out=gap)  # both -inf: nan -> 0, and the max below keeps -inf
+    # e^-700 adds nothing to 1 + e^-|d| or to the max; beyond, exp takes its slow path
+    np.maximum(gap, -700.0, out=gap)
     np.exp(gap, out=gap)
     np.log1p(gap, out=gap)
     gap += np.maximum(a, b)

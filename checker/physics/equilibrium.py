@@ -366,8 +366,7 @@ class _Neutrality:
     """
 
     BASE_ROWS = 5  # -E_g/kT, ln N_c, ln N_v, ln max(N_D - N_A, 0), ln max(N_A - N_D, 0)
-    # per bound level: occupancy offset E/kT + ln g, ln N, ln(b N), b, 1 - b, ln(1 - b)
-    TERM_ROWS = 6
+    TERM_ROWS = 5  # per bound level: occupancy offset E/kT + ln g, ln N, ln(b N), b, 1 - b
 
     def __init__(
         self, params: FloatArray, n_donors: int, n_acceptors: int, kane: KaneBand | None = None
@@ -392,7 +391,7 @@ class _Neutrality:
         ``kane``: the Kane conduction band and the temperatures (K) of the points."""
         rows = [-eg_kt, ln_nc, ln_nv, ln_net_n, ln_net_p]
         for ln_n, offset, ln_b, ln_free in donor_terms + acceptor_terms:
-            rows += [offset, ln_n, ln_n + ln_b, np.exp(ln_b), np.exp(ln_free), ln_free]
+            rows += [offset, ln_n, ln_n + ln_b, np.exp(ln_b), np.exp(ln_free)]
         if kane is None:
             return cls(np.array(rows), len(donor_terms), len(acceptor_terms))
         return cls(np.array([*rows, kane[1]]), len(donor_terms), len(acceptor_terms), kane[0])
@@ -436,8 +435,7 @@ class _Neutrality:
         if self.n_donors + self.n_acceptors:
             plain_f, plain_df = _log_ratio(plain_left, plain_right)
             steeper = plain_df > df
-            _take_where(f, plain_f, steeper)
-            _take_where(df, plain_df, steeper)
+            return _pick(steeper, plain_f, f), _pick(steeper, plain_df, df)
         return f, df
 
     def _band_terms(
@@ -473,7 +471,7 @@ def _impurity_terms(level: FloatArray, eta_band: FloatArray) -> tuple[SlopedTerm
     (d ln N^ion/da = -u b q/(1 - b + b q)), a sum of two positive parts, so neither form
     cancels.  One exponential e^-|a| gives both u and q; beyond |a| = 690 the log form.
     """
-    offset, ln_n, ln_bn, bound, free, ln_free = level
+    offset, ln_n, ln_bn, bound, free = level
     a = np.add(eta_band, offset)
     e = np.abs(a)
     if e.size and np.max(e) >= _LINEAR_OCCUPANCY:
@@ -498,13 +496,14 @@ def _impurity_terms(level: FloatArray, eta_band: FloatArray) -> tuple[SlopedTerm
 
 def _impurity_terms_in_logs(level: FloatArray, a: FloatArray) -> tuple[SlopedTerm, SlopedTerm]:
     """:func:`_impurity_terms` for any a, with u, q and the sums formed in logarithms."""
-    offset, ln_n, ln_bn, bound, free, ln_free = level
+    offset, ln_n, ln_bn, bound, free = level
     soft = softplus(-a)  # ln(1 + e^-a) = -ln u
     neutral = np.subtract(ln_bn, soft)
     soft += a  # ln(1 + e^a) = -ln q
     q = np.exp(-soft)
     bound_ionized = np.subtract(np.log(bound), soft, out=soft)  # ln(b q)
-    ionized = log_add(ln_free, bound_ionized)
+    with np.errstate(divide="ignore"):  # 1 - b = 0: no band tail
+        ionized = log_add(np.log(free), bound_ionized)
     weight = np.exp(bound_ionized - ionized)
     weight *= 1.0 - q
     ionized += ln_n
@@ -519,14 +518,6 @@ def _log_ratio(left: list[SlopedTerm], right: list[SlopedTerm]) -> tuple[FloatAr
     f -= right_value
     df += right_slope
     return f, df
-
-
-def _take_where(into: FloatArray, other: FloatArray, mask: BoolArray) -> None:
-    """into = other where mask (finite values), by arithmetic: on a random mask a masked
-    copy costs several times as much (a mispredicted branch per element)."""
-    np.multiply(into, ~mask, out=into)
-    other *= mask
-    into += other
 
 
 def _logsumexp_with_slope(terms: list[SlopedTerm]) -> tuple[FloatArray, FloatArray]:
@@ -594,17 +585,18 @@ def _initial_guess(
         with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
             c = phi - (n_major * (1.0 - bound) - n_minor)
             root = np.sqrt(c * c + 4 * phi * net)
-            # the larger root of n^2 + c n - phi net, each form free of cancellation
-            frozen = np.where(c >= 0, 2 * phi * net / (c + root), 0.5 * (root - c))
-        carriers = np.where(np.isnan(frozen), net, frozen)  # 0/0: no net doping
-        half = 0.5 * carriers
+            # the larger root of n^2 + c n - phi net, each form free of cancellation (the
+            # first NaN only where c = 0 = net: no net doping, no carriers, fmax's 0)
+            frozen = _pick(c >= 0, 2 * phi * net / (np.abs(c) + root), 0.5 * (root - c))
+        half = np.fmax(frozen, 0.0)
+        half *= 0.5
         return half + np.sqrt(half * half + ni * ni)
 
     n_type = nd >= na
-    major, minor = np.where(n_type, nd, na), np.where(n_type, na, nd)
-    ln_band = np.where(n_type, ln_nc, ln_nv)
-    ln_phi = ln_band - np.where(n_type, offset_d, offset_a)
-    bound = np.where(n_type, bound_d, bound_a)
+    major, minor = np.maximum(nd, na), np.minimum(nd, na)
+    ln_band = _pick(n_type, ln_nc, ln_nv)
+    ln_phi = ln_band - _pick(n_type, offset_d, offset_a)
+    bound = _pick(n_type, bound_d, bound_a)
     ln_u = np.log(np.maximum(majority(major, minor, ln_phi, bound, ni), 1e-300)) - ln_band
     eta = _eta_from_ln_u(ln_u)
     # the occupancy sees e^eta = gamma n/N_band with gamma = F_1/2(eta)/e^eta = u e^-eta
@@ -614,7 +606,16 @@ def _initial_guess(
     nearer += ln_phi
     ln_u = np.log(np.maximum(majority(major, minor, nearer, bound, ni), 1e-300)) - ln_band
     eta = _eta_from_ln_u(ln_u)
-    return np.where(n_type, eta, -eg_kt - eta)
+    return _pick(n_type, eta, -eg_kt - eta)
+
+
+def _pick(mask: BoolArray, a: FloatArray, b: FloatArray) -> FloatArray:
+    """np.where(mask, a, b) for finite a and b (a NaN picked stays NaN), by arithmetic: on
+    a random mask np.where or a masked copy costs several times as much (a mispredicted
+    branch per element)."""
+    picked = np.multiply(a, mask)
+    picked += np.multiply(b, ~mask)
+    return picked
 
 
 def _kane_start(eta_parabolic: FloatArray, beta: FloatArray, n_type: BoolArray) -> FloatArray:
@@ -896,12 +897,18 @@ def _solve_flat(
     ln_nc, ln_nv = np.log(Nc), np.log(Nv)
     ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
     net = nd_total - na_total
+    ln_net = _log(np.abs(net))
+    with np.errstate(divide="ignore"):
+        # ln max(N_D - N_A, 0) and ln max(N_A - N_D, 0) from one log, -inf (1/0) on the
+        # other side: log(0) takes the slow path of np.log, and np.where a branch a point
+        ln_net_n = ln_net - np.divide(net <= 0, net > 0)
+        ln_net_p = ln_net - np.divide(net >= 0, net < 0)
     residual = _Neutrality.build(
         ln_nc,
         ln_nv,
         eg_kt,
-        _log(np.maximum(net, 0.0)),
-        _log(np.maximum(-net, 0.0)),
+        ln_net_n,
+        ln_net_p,
         donor_terms,
         acceptor_terms,
         None if kane is None else (kane, T),
