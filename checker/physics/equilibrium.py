@@ -495,12 +495,15 @@ def _impurity_terms(level: FloatArray, eta_band: FloatArray) -> tuple[SlopedTerm
 
 
 def _impurity_terms_in_logs(level: FloatArray, a: FloatArray) -> tuple[SlopedTerm, SlopedTerm]:
-    """:func:`_impurity_terms` for any a, with u, q and the sums formed in logarithms."""
+    """:func:`_impurity_terms` for any a, the sums formed in logarithms (e^-|a| may
+    underflow here: q = 1/(1 + e^a) from it directly, not from its logarithm)."""
     offset, ln_n, ln_bn, bound, free = level
+    e = np.exp(-np.abs(a))
+    q = np.where(a <= 0, 1.0, e)
+    q /= 1.0 + e
     soft = softplus(-a)  # ln(1 + e^-a) = -ln u
     neutral = np.subtract(ln_bn, soft)
     soft += a  # ln(1 + e^a) = -ln q
-    q = np.exp(-soft)
     bound_ionized = np.subtract(np.log(bound), soft, out=soft)  # ln(b q)
     with np.errstate(divide="ignore"):  # 1 - b = 0: no band tail
         ionized = log_add(np.log(free), bound_ionized)
