@@ -6,6 +6,9 @@ all present).  Cases, timed in interleaved rounds (bench/interleaved.py), each a
 ``solve_equilibrium`` call including its independent neutrality check:
 
 * the solve with 1 thread (the anchor) and with every worker thread;
+* the same points split over as many forked processes, one thread each: what the machine
+  gives two workers at that moment (no shared interpreter lock), so "threads / processes"
+  separates the lock's cost from other sessions' load on a shared machine;
 * where the compiled Fermi–Dirac library fdint is importable, a Newton sketch: the same
   neutrality in logs with one isolated level per dopant (no lowering, no band tail, no
   safeguard), F_1/2 and F_-1/2 from fdint, N_c, N_v, E_g and the solver's start
@@ -21,6 +24,7 @@ of the points, interleaved.  Prints tables; asserts nothing.
 """
 
 import argparse
+import os
 
 import interleaved
 import numpy as np
@@ -42,6 +46,27 @@ def solve_with(workers, material, T, nd, na):
     def run():
         equilibrium.WORKERS = workers
         return solve_equilibrium(material, T, {"P": nd}, {"B": na})
+
+    return run
+
+
+def solve_in_processes(workers, material, T, nd, na):
+    """The points split over ``workers`` forked processes, each solving its share on one
+    thread (nothing is sent back: the time is the solve's)."""
+
+    def run():
+        equilibrium.WORKERS = 1
+        share = -(-T.size // workers)
+        children = []
+        for first in range(0, T.size, share):
+            pid = os.fork()
+            if pid == 0:
+                part = slice(first, first + share)
+                solve_equilibrium(material, T[part], {"P": nd[part]}, {"B": na[part]})
+                os._exit(0)
+            children.append(pid)
+        for pid in children:
+            os.waitpid(pid, 0)
 
     return run
 
@@ -105,6 +130,8 @@ def main():
     cases = {"solve, 1 thread": solve_with(1, si, T, nd, na)}
     if workers > 1:
         cases[f"solve, {workers} threads"] = solve_with(workers, si, T, nd, na)
+        if hasattr(os, "fork"):
+            cases[f"solve, {workers} processes"] = solve_in_processes(workers, si, T, nd, na)
     fdint = interleaved.fdint()
     if fdint is not None:
         cases["fdint Newton sketch"] = fdint_sketch(fdint, si, T, nd, na)
@@ -112,6 +139,10 @@ def main():
     equilibrium.WORKERS = workers
     print(f"neutrality solve, silicon, {n:.0e} points, {args.rounds} interleaved rounds")
     print(interleaved.ratio_table(timings, "solve, 1 thread", per=n, unit="us/point"))
+    processes = f"solve, {workers} processes"
+    if processes in timings:
+        print()
+        print(interleaved.ratio_table(timings, processes, per=n, unit="us/point"))
     if fdint is None:
         print("fdint not importable: no compiled-kernel sketch")
     else:
