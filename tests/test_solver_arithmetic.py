@@ -132,3 +132,42 @@ def test_compensated_silicon_through_the_log_form_matches_independent_solve(T):
     reference = reference_solve(material, T, donors, acceptors)
     assert state.eta_n[0] == pytest.approx(reference, rel=1e-12, abs=1e-9)
     assert state.residual[0] <= 1e-10
+
+
+def _mp_fd(j, eta):
+    """F_j(eta) = -Li_{j+1}(-e^eta) (NIST DLMF 25.12(iii)), 30 digits."""
+    return -mp.re(mp.polylog(j + 1, -mp.exp(eta)))
+
+
+def test_log_f_half_curvature_lies_in_the_accept_step_bound():
+    # ACCEPT_STEP rests on ln F_1/2'' = F_-3/2/F_1/2 - (F_-1/2/F_1/2)^2 in [-1/4, 0]
+    # (dF_j/deta = F_j-1); it tends to 0 on both sides (e^eta/2^1.5-like below, -3/(2 eta^2)
+    # above), so a grid fine over [-10, 30] and sparse out to -40 and 80 holds its minimum
+    grid = [*range(-40, -10, 2), *(k / 10 for k in range(-100, 300)), *range(30, 81, 5)]
+    with mp.workdps(20):
+        curvature = []
+        for eta in map(mp.mpf, grid):
+            half = _mp_fd(0.5, eta)
+            ratio = _mp_fd(-0.5, eta) / half
+            curvature.append(float(_mp_fd(-1.5, eta) / half - ratio**2))
+    assert -0.15 < min(curvature) < -0.14  # -0.1427 at eta = 0.8
+    assert max(curvature) <= 0.0
+
+
+@pytest.mark.parametrize("b", [1.0, 0.999, 0.9, 0.5, 0.1, 1e-6])
+def test_level_curvatures_lie_in_the_accept_step_bound(b):
+    # ln u(a)'' = -u q in [-1/4, 0] and ln(1 - b + b q(a))'' in [-1/4, 1/4], by mpmath's
+    # numerical second derivative over the arguments where they are largest
+    with mp.workdps(30):
+        b = mp.mpf(b)
+
+        def neutral(a):
+            return -mp.log(1 + mp.exp(-a))
+
+        def ionized(a):
+            return mp.log(1 - b + b / (1 + mp.exp(a)))
+
+        for k in range(-120, 121):
+            a = mp.mpf(k) / 8
+            assert -0.25 <= mp.diff(neutral, a, 2) <= 0
+            assert -0.25 <= mp.diff(ionized, a, 2) <= 0.25

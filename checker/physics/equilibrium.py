@@ -20,7 +20,7 @@ evaluated entirely in logarithms (densities from e^-10000 to e^50 never under-
 or overflow) and solved by safeguarded Newton (bisection whenever a step
 leaves the bracket).  Every point either meets |f| <= 1e-12 (relative
 neutrality residual; measured, or bounded after a last Newton step of at most
-2^-21, see ACCEPT_STEP) or raises ConvergenceError; every block then measures
+2^-20, see ACCEPT_STEP) or raises ConvergenceError; every block then measures
 neutrality afresh in its plain form (<= 1e-10).
 
 References
@@ -53,10 +53,17 @@ from .materials import Dopant, Material
 
 MAX_ITERATIONS = 200
 TOLERANCE = 1e-12
-# a Newton step this small is taken as the last: f'' <= 4 (each side's ln-sum has slopes in
-# [-1, 1], so its curvature is at most the slopes' variance plus a term's own, <= 1 + 1),
-# so |f| after it is at most f''/2 step^2 <= 2 (2^-21)^2 ~ 4.5e-13, below TOLERANCE
-ACCEPT_STEP = 2.0**-21
+# a Newton step this small is taken as the last, |f| after it being at most |f''|/2 step^2.
+# Each side's ln-sum S = ln sum e^v_i has S'' = (the weighted mean of the v_i'') + (the
+# weighted variance of the v_i'); on one side every v_i' lies in [0, 1] (or all in
+# [-1, 0]), so the variance is at most 1/4, and each v_i'' lies in [-1/4, 1/4]: ln u(a)''
+# = -u q, ln(1 - b + b q(a))'' = u P (u (1 - P) - q) with P its bound share, and ln F_1/2''
+# in [-0.143, 0] (minimum at eta = 0.8; tests, mpmath).  So S'' lies in [-1/4, 1/2] and
+# |f''| <= 3/4: after a step of 2^-20, |f| <= 3/8 2^-40 ~ 3.4e-13, below TOLERANCE.  A Kane
+# band's ln F_K'' has no such bound here: its solves keep 2^-21 under |f''| <= 4 (slopes in
+# [-1, 1], so a variance <= 1 and a term's own curvature taken <= 1), 4.5e-13.
+ACCEPT_STEP = 2.0**-20
+ACCEPT_STEP_KANE = 2.0**-21
 BALANCE_TOLERANCE = 1e-10  # relative neutrality error every returned point meets
 
 # one bound level: (ln N_level, occupancy offset E(N)/kT + ln g, ln b, ln(1 - b))
@@ -582,7 +589,8 @@ def _initial_guess(
         ln_phi: FloatArray,
         bound: FloatArray,
         ni: FloatArray,
-    ) -> FloatArray:
+    ) -> tuple[FloatArray, FloatArray]:
+        """(the majority density, the net ionized doping it holds)."""
         net = np.maximum(n_major - n_minor, 0.0)
         phi = np.exp(np.clip(ln_phi, -690.0, 690.0))
         with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
@@ -591,23 +599,52 @@ def _initial_guess(
             # the larger root of n^2 + c n - phi net, each form free of cancellation (the
             # first NaN only where c = 0 = net: no net doping, no carriers, fmax's 0)
             frozen = _pick(c >= 0, 2 * phi * net / (np.abs(c) + root), 0.5 * (root - c))
-        half = np.fmax(frozen, 0.0)
-        half *= 0.5
-        return half + np.sqrt(half * half + ni * ni)
+        carriers = np.fmax(frozen, 0.0)
+        half = 0.5 * carriers
+        return half + np.sqrt(half * half + ni * ni), carriers
 
     n_type = nd >= na
     major, minor = np.maximum(nd, na), np.minimum(nd, na)
     ln_band = _pick(n_type, ln_nc, ln_nv)
     ln_phi = ln_band - _pick(n_type, offset_d, offset_a)
     bound = _pick(n_type, bound_d, bound_a)
-    ln_u = np.log(np.maximum(majority(major, minor, ln_phi, bound, ni), 1e-300)) - ln_band
+    first, carriers = majority(major, minor, ln_phi, bound, ni)
+    ln_first = np.log(np.maximum(first, 1e-300))
+    ln_u = ln_first - ln_band
     eta = _eta_from_ln_u(ln_u)
     # the occupancy sees e^eta = gamma n/N_band with gamma = F_1/2(eta)/e^eta = u e^-eta
     # (< 1; 0.6 % below 1 already at eta = -4), not n/N_band: once more with phi scaled
     # by gamma at the first estimate (no F_1/2 evaluation: eta inverts u)
-    nearer = np.where(eta > _NONDEGENERATE_LN_U, ln_u - eta, 0.0)
-    nearer += ln_phi
-    ln_u = np.log(np.maximum(majority(major, minor, nearer, bound, ni), 1e-300)) - ln_band
+    ln_gamma = np.where(eta > _NONDEGENERATE_LN_U, ln_u - eta, 0.0)
+    nearer = ln_phi + ln_gamma
+    # the minority band alike: n p = gamma_n gamma_p n_i^2 (n_i in its Boltzmann form), so
+    # near intrinsic, where both bands are a little degenerate (eta ~ -5 at 1000 K in Si),
+    # n_i^2 is scaled by both; gamma_p = F_1/2/e^eta at the minority's eta from the first
+    # three terms of its series in z = e^eta (z <= 1 clipped: only the start)
+    z = np.exp(np.minimum(-eta - eg_kt, 0.0))
+    gamma_minority = z / 3.0**1.5 - 2.0**-1.5
+    gamma_minority *= z
+    gamma_minority += 1.0
+    ni_scaled = np.exp(ln_gamma)
+    ni_scaled *= gamma_minority
+    np.sqrt(ni_scaled, out=ni_scaled)
+    ni_scaled *= ni
+    with np.errstate(divide="ignore"):
+        # the majority's levels see every carrier of their band, n = x + p, where the
+        # quadratic has only its own x: phi scaled by x/n at the first estimate (1 but
+        # near intrinsic, where the levels' occupancy by the thermal carriers matters)
+        nearer += np.log(carriers)
+        nearer -= ln_first
+        # the minority species, taken as ionized, binds minority carriers p = gamma n_i^2/n
+        # alike: a share b r/(1 + r) of it neutral, r = p/(gamma_p phi_minority)
+        ln_r = 2.0 * np.log(ni) + ln_gamma - ln_first
+        ln_r -= _pick(n_type, ln_nv - offset_a, ln_nc - offset_d)
+    r = np.exp(np.clip(ln_r, -690.0, 690.0))
+    r /= 1.0 + r
+    r *= _pick(n_type, bound_a, bound_d)
+    minor = minor * (1.0 - r)
+    ln_u = np.log(np.maximum(majority(major, minor, nearer, bound, ni_scaled)[0], 1e-300))
+    ln_u -= ln_band
     eta = _eta_from_ln_u(ln_u)
     return _pick(n_type, eta, -eg_kt - eta)
 
@@ -663,6 +700,7 @@ def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatA
     work[1] = -np.inf
     work[2] = np.inf
     work[3] = 8.0
+    accept = ACCEPT_STEP if residual.kane is None else ACCEPT_STEP_KANE
     for iterations in range(1, MAX_ITERATIONS + 1):
         x, lo, hi, limit = work
         f, df = residual(x)
@@ -693,9 +731,9 @@ def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatA
         outside = (new <= lo) | (new >= hi)
         outside &= ~done
         # a last Newton step inside the bracket: its point is returned without another
-        # evaluation (|f| there <= 4.5e-13, see ACCEPT_STEP; the block's plain-form
-        # neutrality check measures it)
-        last = size <= ACCEPT_STEP
+        # evaluation (|f| there <= 3.4e-13, with a Kane band 4.5e-13, see ACCEPT_STEP;
+        # the block's plain-form neutrality check measures it)
+        last = size <= accept
         last &= ~done
         last &= ~outside
         if outside.any():
