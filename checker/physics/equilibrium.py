@@ -580,6 +580,9 @@ def _initial_guess(
     in its cancellation-free form (for the majority type only), then combined with n_i;
     the p-type case mirrors it.  eta is the exact inverse of F_1/2 of n/N_c.  The share b
     carries the crossover to full ionization at high density (no separate metallic case).
+    A second round corrects what the first left out, at its estimate: each band's
+    degeneracy factor F_1/2/e^eta (in phi and in n_i^2), the thermal carriers' share of
+    the majority levels' occupancy, and the minority species' own neutral share.
     It is only the Newton start: the solve itself uses the full model.
     """
 
