@@ -492,7 +492,7 @@ def _impurity_terms(level: FloatArray, eta_band: FloatArray) -> tuple[SlopedTerm
     e += 1.0
     q /= e
     bound_ionized = np.multiply(bound, q, out=e)  # b q
-    ionized = np.add(bound_ionized, free)  # 1 - b + b q, >= e^-690 min(b, 1) > 0
+    ionized = np.add(bound_ionized, free)  # 1 - b + b q >= q >= e^-690 > 0
     bound_ionized /= ionized  # the share of N^ion that could bind a carrier
     np.log(ionized, out=ionized)
     ionized += ln_n
