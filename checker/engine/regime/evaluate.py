@@ -59,6 +59,8 @@ class Cells:
     # every rule's indicator even where the rule cannot fire (single points: which stated
     # numbers a rule compared); a sweep reads it only where a rule fires
     all_indicators: bool = True
+    # the quantities the rules read (a sweep's chunk: state_values.solve_sweep); None: all
+    reads: frozenset[str] | None = None
 
     @classmethod
     def points(
@@ -82,9 +84,14 @@ class Cells:
 
     @classmethod
     def grid(
-        cls, calc: Calculation, values: Values, count: int, embodied: Iterable[Embodied] = ()
+        cls,
+        calc: Calculation,
+        values: Values,
+        count: int,
+        embodied: Iterable[Embodied] = (),
+        reads: frozenset[str] | None = None,
     ) -> Cells:
-        """``count`` grid cells of the sweep ``calc``."""
+        """``count`` grid cells of the sweep ``calc`` (``reads``: see the field)."""
         return cls(
             values,
             [calc],
@@ -92,6 +99,7 @@ class Cells:
             [list(embodied)],
             np.ones(count, dtype=bool),
             all_indicators=False,
+            reads=reads,
         )
 
     @property
@@ -178,7 +186,7 @@ def rule_cells(rules: Iterable[Rule], cells: Cells) -> Iterator[Ruled]:
     with np.errstate(all="ignore"):
         for k, rule in enumerate(ordered):
             if replaced and not rule.replaces and ordered[k - 1].replaces:
-                derive_corrected(cells.values, replaced)
+                derive_corrected(cells.values, replaced, cells.reads)
             for x in rule.carriers:
                 names: Mapping[str, str] = carrier_names(x) if x else {}
                 made, by_formula = assumption_made(rule, x, names, cells)
@@ -189,7 +197,7 @@ def rule_cells(rules: Iterable[Rule], cells: Cells) -> Iterator[Ruled]:
                 _replace(ruled, cells.values, replaced)
                 yield ruled
         if replaced and all(rule.replaces for rule in ordered):
-            derive_corrected(cells.values, replaced)
+            derive_corrected(cells.values, replaced, cells.reads)
 
 
 def _replace(ruled: Ruled, values: Values, replaced: Replaced) -> None:

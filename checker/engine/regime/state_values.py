@@ -99,6 +99,7 @@ def solve_sweep(
     acceptors: Densities,
     reads: Collection[str] | None = None,
     reference: carriers.ReferenceSolves | None = None,
+    rows: tuple[carriers.Rows, carriers.Rows] | None = None,
 ) -> tuple[Values, str | None]:
     """Every quantity over the points of a sweep of ``calc`` (arrays of one length).
     ``reads``: the names the sweep's rules read (evaluate.sweep_rules); then the words
@@ -106,9 +107,13 @@ def solve_sweep(
     intrinsic-onset temperature, the Hall factors and the carriers' velocities and mean
     free paths where no rule reads them are left unknown.  None: every quantity.
     ``reference``: the solves at the resistivity standard's reference temperature kept
-    across a sweep's chunks (carriers.ReferenceSolves; None: solved afresh)."""
+    across a sweep's chunks (carriers.ReferenceSolves; None: solved afresh).  ``rows``:
+    the points' distinct temperatures and doping rows (carriers.Rows), where the sweep's
+    grid gives them (None: found where needed)."""
     count = len(T)
-    put, skipped = solve_points(calc, T, donors, acceptors, reads=reads, reference=reference)
+    put, skipped = solve_points(
+        calc, T, donors, acceptors, reads=reads, reference=reference, rows=rows
+    )
     values = _unknown(count, put, writable=False)
     # the solve's own arrays are kept as they are; a copy only where an array would be
     # shared (a caller's input, or one array under two names) or is not yet one per point
@@ -199,6 +204,7 @@ def solve_points(
     calcs: Sequence[Calculation] | None = None,
     reads: Collection[str] | None = None,
     reference: carriers.ReferenceSolves | None = None,
+    rows: tuple[carriers.Rows, carriers.Rows] | None = None,
 ) -> tuple[dict[str, ArrayIn], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
@@ -206,7 +212,7 @@ def solve_points(
     (sheet_values.sheet_inputs; default: ``first``'s own stated numbers).  ``calcs``: the
     calculation of each point (default: ``first`` for all); what only some calculations
     read (bulk modes, the solve with narrowing) is computed at their points alone;
-    ``reads``, ``reference``: see :func:`solve_sweep`."""
+    ``reads``, ``reference``, ``rows``: see :func:`solve_sweep`."""
 
     def where(reads: Callable[[Calculation], bool]) -> BoolArray:
         if calcs is None:
@@ -230,6 +236,8 @@ def solve_points(
             dim,
             velocities=reads is None or not _VELOCITY.isdisjoint(reads),
             reference=reference,
+            temperatures=rows[0] if rows else None,
+            dopings=rows[1] if rows else None,
         )
     except MissingParameterError as exc:
         # statistics checks still run; mobility-based ones see NaN and stay silent
@@ -451,10 +459,22 @@ def _ni_spread(material: Material, T: FloatArray, ni: FloatArray) -> tuple[Float
     if material.ni_published is None:
         # no tabulated spread: the model value +-5 % (common practice (no source))
         return ni / 1.05, ni * 1.05
-    at_300 = equilibrium.solve(material, np.array([300.0])).ni[0]
+    at_300 = _ni_at_300(material)
     low, high = material.ni_published
     scale = ni / at_300
     return np.minimum(ni, low * scale), np.maximum(ni, high * scale)
+
+
+# material id -> (the material, its model n_i at 300 K): one solve per material, not one
+# per call (a sweep calls once per chunk); the material is kept so its id stays its own
+_NI_300: dict[int, tuple[Material, float]] = {}
+
+
+def _ni_at_300(material: Material) -> float:
+    kept = _NI_300.get(id(material))
+    if kept is None or kept[0] is not material:
+        kept = _NI_300[id(material)] = (material, float(equilibrium.solve(material, 300.0).ni))
+    return kept[1]
 
 
 def fill_inputs(
@@ -532,7 +552,7 @@ def fill_inputs(
         values[name] = np.nan_to_num(values[name], nan=0.0)
     # tau ∝ E^r: the Hall factor's and the Landauer value's lambda(E)
     values["hall_r"] = column(lambda c: c.hall_exponent)
-    derive_corrected(values, {})
+    derive_corrected(values, {}, reads)
     values["sigma_model"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["mu_n"]
         + values["dens_p"] * values["cond_p"] * values["mu_p"]
@@ -562,14 +582,27 @@ def _typical_mobility(calc: Calculation, field: str, carrier: Carrier | None = N
 REPLACEABLE = ("used_mu_n", "used_mu_p", "used_rho", "dens_n", "dens_p")
 
 
-def derive_corrected(values: Values, replaced: Replaced) -> None:
+# what conductor_values gives, and what derive_corrected gives besides the mobilities,
+# sigma and rho (a sweep's chunk computes them only where a rule reads them)
+_CONDUCTANCE = frozenset({"modes", "G_ballistic", "G_energy", "G_landauer"})
+_MEAN_FREE_PATHS = frozenset(f"lambda_{x}" for x in Carrier)
+_SHEET_CONDUCTANCE = frozenset({"sigma_s", "Rs"})
+
+
+def derive_corrected(
+    values: Values, replaced: Replaced, reads: Collection[str] | None = None
+) -> None:
     """The quantities of the corrected calculation that follow from the mobility, the
     resistivity and the densities it uses, written into ``values``.
 
     A stated mobility or resistivity is used unless a rule rejected it: ``replaced`` maps
     a name of REPLACEABLE to a boolean array of the cells where a rule's ``replaces:``
     put the model's value in (evaluate.rule_cells applies it, then calls this again), so
-    everything downstream -- mean free path, σ, ρ, R, D -- follows one chain."""
+    everything downstream -- mean free path, σ, ρ, R, D -- follows one chain.
+    ``reads``: see :func:`solve_sweep` (the mean free paths, a sheet's conductance and the
+    conductances of conductor_values only where read; None: all)."""
+    conductances = reads is None or not _CONDUCTANCE.isdisjoint(reads)
+    paths = conductances or not _MEAN_FREE_PATHS.isdisjoint(reads or ())
 
     def kept(name: str) -> BoolArray | bool:
         return ~replaced[name] if name in replaced else True
@@ -580,6 +613,8 @@ def derive_corrected(values: Values, replaced: Replaced) -> None:
         values[f"used_mu_{x}"] = used
     _symmetric_cones(values)
     for x in Carrier:
+        if not paths:
+            break
         used = values[f"used_mu_{x}"]
         # the mean free path scales with the mobility used; a sheet without a mobility
         # model: lambda = 2D/<v_x+>, D = mu (kT/q) (D/mu ratio)
@@ -598,13 +633,15 @@ def derive_corrected(values: Values, replaced: Replaced) -> None:
         np.isfinite(stated_rho) & kept("used_rho"), stated_rho, values["rho"]
     )
     # a sheet: sheet conductance of the carriers it holds (an absent carrier adds nothing)
-    values["sigma_s"] = ELEMENTARY_CHARGE * conductor_values.carrier_sum(
-        [values[f"ns_{x}"] * values[f"used_mu_{x}"] for x in Carrier]
-    )
-    values["Rs"] = 1.0 / values["sigma_s"]
+    if reads is None or not _SHEET_CONDUCTANCE.isdisjoint(reads):
+        values["sigma_s"] = ELEMENTARY_CHARGE * conductor_values.carrier_sum(
+            [values[f"ns_{x}"] * values[f"used_mu_{x}"] for x in Carrier]
+        )
+        values["Rs"] = 1.0 / values["sigma_s"]
     # modes, ballistic limit and the energy-resolved Landauer conductance at the mobility
     # used (lambda(E) = lambda_0 (E/kT)^r, lambda_0 from sigma)
-    conductor_values.conductor_values(values)
+    if conductances:
+        conductor_values.conductor_values(values)
 
 
 def _symmetric_cones(values: Values) -> None:

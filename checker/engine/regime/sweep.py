@@ -20,7 +20,7 @@ import numpy as np
 
 from ...inputs.calculation_file import AxisKey
 from ...physics import carriers
-from ...physics.arrays import ArrayIn, BoolArray, FloatArray
+from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray, distinct_points
 from ..findings import Embodied, carrier_word
 from .evaluate import Cells, beyond, rule_cells, rule_indicator, sweep_rules
 from .points import CalculationReport, check_points
@@ -100,9 +100,40 @@ class GridQuantity:
 
     def __getitem__(self, index: int | slice | ArrayIn) -> FloatArray:
         """Values at an index, a slice or an integer array of flat indices."""
-        at = np.arange(*index.indices(self.size)) if isinstance(index, slice) else index
-        picked: FloatArray = self.values[(np.asarray(at) // self.stride) % self.values.size]
+        picked: FloatArray = self.values[self.codes(index)]
         return picked
+
+    def codes(self, index: int | slice | ArrayIn) -> IndexArray:
+        """The index into ``values`` at an index, a slice or flat indices."""
+        at = np.arange(*index.indices(self.size)) if isinstance(index, slice) else index
+        codes: IndexArray = (np.asarray(at) // self.stride) % self.values.size
+        return codes
+
+
+def grid_rows(
+    T: GridQuantity, dopings: Sequence[GridQuantity], at: slice
+) -> tuple[carriers.Rows, carriers.Rows]:
+    """The distinct temperatures and doping rows of the points ``at`` (carriers.Rows),
+    from the grid's axis indices (no sort of the values)."""
+    doping = np.zeros(at.stop - at.start, dtype=np.intp)
+    for quantity in dopings:
+        doping = doping * quantity.values.size + quantity.codes(at)
+    return _rows(T.codes(at)), _rows(doping)
+
+
+def _rows(codes: IndexArray) -> carriers.Rows:
+    """(one point of each distinct code, every point's row) of non-negative codes."""
+    low = int(codes.min())
+    span = int(codes.max()) - low + 1
+    if span > 4 * codes.size:  # sparse codes: sorted (two doping axes, no temperature)
+        return distinct_points([codes.astype(float)], codes.size)
+    shifted = codes - low
+    present = np.zeros(span, dtype=bool)
+    present[shifted] = True
+    some = np.empty(span, dtype=np.intp)
+    some[shifted] = np.arange(codes.size)  # any point of each code will do
+    row = np.cumsum(present) - 1
+    return some[present], row[shifted]
 
 
 def grid(calc: Calculation) -> GridPoints:
@@ -217,10 +248,11 @@ def rule_grid(
             {s: a[start:stop] for s, a in acceptors.items()},
             reads,
             reference,
+            grid_rows(T, [*donors.values(), *acceptors.values()], slice(start, stop)),
         )
         if skipped and skipped not in notes:
             notes.append(skipped)
-        for ruled in rule_cells(rules, Cells.grid(calc, values, stop - start, embodied)):
+        for ruled in rule_cells(rules, Cells.grid(calc, values, stop - start, embodied, reads)):
             if not ruled.fired.any():
                 continue
             key = (ruled.rule.id, ruled.x)

@@ -1,0 +1,78 @@
+"""A sweep's chunks hand the carrier transport their distinct temperatures and doping
+rows (sweep.grid_rows, from the grid's axis indices), so that what depends on T alone or
+on the doping alone is computed once per row: every value must be the one the point-by-
+point evaluation gives, to the bit (the point-by-point values themselves are checked
+against published mobilities and mpmath in tests/test_transport.py and
+tests/test_published_physics.py)."""
+
+import numpy as np
+import pytest
+
+from checker import load_material, solve_equilibrium
+from checker.engine.regime import sweep
+from checker.physics import carriers
+
+PER_CM3 = 1e6
+
+
+def _grid(n_T, n_N, start, stop, species=("P",)):
+    """A chunk [start, stop) of a temperature x doping grid (temperature slowest)."""
+    T_axis = np.linspace(200.0, 500.0, n_T)
+    N_axis = np.geomspace(1e14, 1e20, n_N) * PER_CM3
+    size = n_T * n_N
+    T = sweep.GridQuantity(T_axis, n_N, size)
+    dopings = {s: sweep.GridQuantity(N_axis * (k + 1), 1, size) for k, s in enumerate(species)}
+    at = slice(start, stop)
+    return T, dopings, at
+
+
+@pytest.mark.parametrize(
+    "n_T, n_N, start, stop",
+    [(7, 11, 0, 77), (7, 11, 5, 40), (13, 5, 12, 60), (1, 30, 0, 30), (30, 1, 3, 29)],
+)
+def test_grid_rows_name_each_points_temperature_and_doping(n_T, n_N, start, stop):
+    T, dopings, at = _grid(n_T, n_N, start, stop)
+    (T_first, T_back), (N_first, N_back) = sweep.grid_rows(T, list(dopings.values()), at)
+    T_points, N_points = T[at], dopings["P"][at]
+    np.testing.assert_array_equal(T_points[T_first][T_back], T_points)
+    np.testing.assert_array_equal(N_points[N_first][N_back], N_points)
+    # one row per distinct value, no more
+    assert T_first.size == np.unique(T_points).size
+    assert N_first.size == np.unique(N_points).size
+
+
+def test_two_doping_axes_make_one_row_per_combination():
+    size = 6 * 8
+    donors = sweep.GridQuantity(np.geomspace(1e15, 1e19, 6) * PER_CM3, 8, size)
+    acceptors = sweep.GridQuantity(np.geomspace(1e15, 1e19, 8) * PER_CM3, 1, size)
+    T = sweep.GridQuantity(300.0, 1, size)
+    at = slice(3, 45)
+    (T_first, _), (first, back) = sweep.grid_rows(T, [donors, acceptors], at)
+    assert T_first.size == 1
+    pairs = np.stack([donors[at], acceptors[at]], 1)
+    np.testing.assert_array_equal(pairs[first][back], pairs)
+    assert first.size == len({tuple(p) for p in pairs.tolist()})
+
+
+@pytest.mark.parametrize(
+    "material, species, n_T, n_N, start, stop",
+    [
+        ("Si", ("P",), 9, 40, 17, 300),  # the resistivity standard's mobility, its T0 credit
+        ("Si", ("As",), 40, 9, 0, 360),  # Masetti carried by Arora's ratio
+        ("GaAs", ("Si",), 6, 25, 4, 150),  # Caughey-Thomas
+        ("Si", ("P", "As"), 5, 12, 0, 60),  # two species on one axis
+    ],
+)
+def test_transport_on_grid_rows_is_the_point_by_point_value(
+    material, species, n_T, n_N, start, stop
+):
+    crystal = load_material(material)
+    T, dopings, at = _grid(n_T, n_N, start, stop, species)
+    state = solve_equilibrium(crystal, T[at], {s: q[at] for s, q in dopings.items()})
+    rows = sweep.grid_rows(T, list(dopings.values()), at)
+    point_by_point = carriers.carrier_transport(state)
+    on_rows = carriers.carrier_transport(state, temperatures=rows[0], dopings=rows[1])
+    assert on_rows.keys() == point_by_point.keys()
+    for name, value in point_by_point.items():
+        np.testing.assert_array_equal(on_rows[name], value, err_msg=name)
+        assert np.shape(on_rows[name]) == np.shape(value), name
