@@ -76,3 +76,46 @@ def test_transport_on_grid_rows_is_the_point_by_point_value(
     for name, value in point_by_point.items():
         np.testing.assert_array_equal(on_rows[name], value, err_msg=name)
         assert np.shape(on_rows[name]) == np.shape(value), name
+
+
+STATED = """name: stated window
+material: Si
+temperature: {from: 200 K, to: 450 K, steps: 6}
+doping:
+  donors: {P: {from: 1e14 cm-3, to: 1e20 cm-3, steps: 13}}
+assumes: [non-degenerate, full-ionization, einstein-relation, extrinsic]
+stated:
+  electron_mobility: 1350 cm^2/(V*s)
+  resistivity: 2 ohm*cm
+  intrinsic_density: 1e10 cm-3
+  hole_density: 10.5 cm-3
+formulas:
+  - D_n = mu_n*k*T/q
+"""
+
+
+@pytest.mark.parametrize("text", ["TWO_AXES", "STATED"])
+def test_rules_on_one_values_fire_as_on_full_arrays(tmp_path, text):
+    """A chunk's rules read its one-value quantities as one element each
+    (evaluate.Cells.read_values); the outcome is the one full arrays give, bit for bit."""
+    from test_sweep import TWO_AXES
+    from test_sweep import _calc as sweep_calculation
+
+    from checker.engine.regime import evaluate, rulebook, state_values
+
+    calc = sweep_calculation(tmp_path, TWO_AXES if text == "TWO_AXES" else STATED)
+    rules = rulebook.load_rules()
+    T, donors, acceptors, _ = sweep.grid(calc)
+    at = slice(0, T.size)
+    values, _ = state_values.solve_sweep(
+        calc, T[at], {s: q[at] for s, q in donors.items()}, {s: q[at] for s, q in acceptors.items()}
+    )
+    full = {name: np.array(array) for name, array in values.items()}  # every array its own
+    assert any(array.strides == (0,) for array in values.values())  # one-value views exist
+    on_views = list(evaluate.rule_cells(rules, evaluate.Cells.grid(calc, values, T.size)))
+    on_full = list(evaluate.rule_cells(rules, evaluate.Cells.grid(calc, full, T.size)))
+    assert [(r.rule.id, r.x) for r in on_views] == [(r.rule.id, r.x) for r in on_full]
+    assert any(r.fired.any() for r in on_full)
+    for one, other in zip(on_views, on_full, strict=True):
+        np.testing.assert_array_equal(one.fired, other.fired, err_msg=one.rule.id)
+        np.testing.assert_array_equal(one.indicator, other.indicator, err_msg=one.rule.id)

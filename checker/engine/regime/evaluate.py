@@ -106,6 +106,27 @@ class Cells:
     def count(self) -> int:
         return self.owner.size
 
+    def read_values(self) -> Values:
+        """The values rules are evaluated on: a sweep chunk's one-value quantities (the
+        read-only views of state_values._constant) as one element each, so that parts of
+        an expression in them alone are computed once, not per cell (every cell's value
+        is the one the full arrays give: the same elementwise arithmetic, broadcast)."""
+        if self.all_indicators:
+            return self.values
+        return {name: _one_value(array) for name, array in self.values.items()}
+
+    def in_use(self, names: Mapping[str, str]) -> BoolArray:
+        """Per cell: whether the carrier of the names (carrier_names) is in use."""
+        name = names["in_use_x"]
+        if name not in self._in_use:
+            self._in_use[name] = _nonzero(self.values[name])
+        return self._in_use[name]
+
+    @cached_property
+    def _in_use(self) -> dict[str, BoolArray]:
+        # in_use_x is set by the solve and no rule replaces it: one mask per carrier
+        return {}
+
     def declaring(self, words: tuple[str, ...]) -> BoolArray:
         """Per calculation: whether its author declares one of ``words``."""
         index = self._index[0]
@@ -161,6 +182,14 @@ def beyond(rule: Rule, indicator: FloatArray) -> FloatArray:
     return indicator - rule.threshold if rule.relation == "above" else rule.threshold - indicator
 
 
+def _one_value(array: Any) -> Any:
+    """One element of a 1-D array that repeats it (stride 0), else the array."""
+    if isinstance(array, np.ndarray) and array.ndim == 1 and array.size > 1:
+        if array.strides == (0,):
+            return array[:1]
+    return array
+
+
 def _nonzero(array: ArrayIn) -> BoolArray:
     numbers = np.asarray(array, dtype=float)
     nonzero: BoolArray = np.isfinite(numbers) & (numbers != 0)
@@ -183,33 +212,37 @@ def rule_cells(rules: Iterable[Rule], cells: Cells) -> Iterator[Ruled]:
         (rule for rule in rules if not rule.evaluated_by), key=lambda r: not r.replaces
     )
     replaced: Replaced = {}
+    read = cells.read_values()
     with np.errstate(all="ignore"):
         for k, rule in enumerate(ordered):
             if replaced and not rule.replaces and ordered[k - 1].replaces:
                 derive_corrected(cells.values, replaced, cells.reads)
+                read = cells.read_values()
             for x in rule.carriers:
                 names: Mapping[str, str] = carrier_names(x) if x else {}
                 made, by_formula = assumption_made(rule, x, names, cells)
                 fired, indicator, implied = rule_mask(
-                    rule, x, names, made, cells.values, cells.count, cells.all_indicators
+                    rule, x, names, made, read, cells.count, cells.all_indicators
                 )
                 ruled = Ruled(rule, x, names, fired & cells.valid, indicator, implied, by_formula)
-                _replace(ruled, cells.values, replaced)
+                if _replace(ruled, cells.values, replaced):
+                    read = cells.read_values()
                 yield ruled
         if replaced and all(rule.replaces for rule in ordered):
             derive_corrected(cells.values, replaced, cells.reads)
 
 
-def _replace(ruled: Ruled, values: Values, replaced: Replaced) -> None:
+def _replace(ruled: Ruled, values: Values, replaced: Replaced) -> bool:
     """Where ``ruled`` fired, put its replacements into the corrected calculation and
-    remember the cells (``replaced``: concrete name -> mask)."""
+    remember the cells (``replaced``: concrete name -> mask); whether it did."""
     if not ruled.rule.replaces or not ruled.fired.any():
-        return
+        return False
     for target, source in ruled.rule.replaces.items():
         name = ruled.names.get(target, target)
         fill = np.broadcast_to(values[ruled.names.get(source, source)], ruled.fired.shape)
         values[name] = np.where(ruled.fired, fill, values[name])
         replaced[name] = replaced.get(name, np.zeros(ruled.fired.shape, bool)) | ruled.fired
+    return True
 
 
 _NO_FORMULA = np.iinfo(np.int64).max
@@ -238,7 +271,14 @@ def assumption_made(
     one = len(cells.calculations) == 1  # a sweep's chunk: one calculation, no gathering
     if one and not declared[0] and everywhere[0] == where_used[0] == _NO_FORMULA:
         return np.zeros(count, dtype=bool), np.full(count, -1)  # made at no cell
-    in_use = _nonzero(cells.values[names["in_use_x"]]) if x else np.ones(count, dtype=bool)
+    if one and (not x or everywhere[0] <= where_used[0]):
+        # the carrier in use decides nothing but the declaration
+        k = int(everywhere[0])
+        if k != _NO_FORMULA:
+            return np.ones(count, dtype=bool), np.full(count, k)
+        made = cells.in_use(names).copy() if x else np.ones(count, dtype=bool)
+        return made, np.full(count, -1)
+    in_use = cells.in_use(names) if x else np.ones(count, dtype=bool)
     if one:
         declared_here: bool | BoolArray = bool(declared[0])
         first = np.where(in_use, min(everywhere[0], where_used[0]), everywhere[0])
@@ -343,10 +383,11 @@ def rule_mask(
     for imp in rule.implied_by:
         name = names.get(imp.stated, imp.stated)
         stated = values[name]
-        mask = np.isfinite(stated)
+        mask = np.broadcast_to(np.isfinite(stated), (count,))
         if not mask.any():  # not stated at any cell (a sweep: the whole chunk)
             implied.append((name, mask))
             continue
+        mask = mask.copy()
         shortcut = np.asarray(imp.shortcut.run[x](values), dtype=float)
         mask &= np.isfinite(shortcut) & (np.abs(stated / shortcut - 1.0) <= imp.within)
         # near a rule's threshold the shortcut and the exact value lie closer together than
