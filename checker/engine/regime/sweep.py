@@ -41,10 +41,11 @@ Boundary: TypeAlias = "tuple[Axis, Axis | None, list[BoundaryRow]]"
 # (rule id, carrier) -> (failing mask over the grid, worst flat index)
 Masks: TypeAlias = dict[tuple[str, str], tuple[BoolArray, int]]
 
-# points solved and ruled at a time: a chunk's ~150 quantities and their temporaries take
-# ~3 kB a point, so 32k points keep a sweep of any size near 100 MB of working set, and the
-# solve still splits each chunk over two threads
-CHUNK = 1 << 15
+# points solved and ruled at a time: a chunk's quantities and their temporaries take ~2.3 kB
+# a point, so 64k points keep a sweep of any size near 210 MB peak (a 2000 x 2000 grid,
+# bench/bench_sweep.py); the solve of a 64k chunk costs 0.78x that of two 32k ones (its
+# blocks on two threads) and a chunk's fixed costs are spread over twice the points
+CHUNK = 1 << 16
 ROWS_SHOWN = 5  # rows of a 2D grid whose boundary is written out
 
 
