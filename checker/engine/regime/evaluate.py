@@ -41,7 +41,7 @@ from ..vocabulary import carrier_names
 from .corrected import quantity_key
 from .rulebook import PLACEHOLDER, Compiled, Rule
 from .sheet_values import solve_inputs
-from .state_values import Replaced, Values, derive_corrected
+from .state_values import Replaced, Values, derive_corrected, one_value
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
@@ -113,7 +113,7 @@ class Cells:
         is the one the full arrays give: the same elementwise arithmetic, broadcast)."""
         if self.all_indicators:
             return self.values
-        return {name: _one_value(array) for name, array in self.values.items()}
+        return {name: one_value(array) for name, array in self.values.items()}
 
     def in_use(self, names: Mapping[str, str]) -> BoolArray:
         """Per cell: whether the carrier of the names (carrier_names) is in use."""
@@ -180,14 +180,6 @@ class Ruled(Record):
 
 def beyond(rule: Rule, indicator: FloatArray) -> FloatArray:
     return indicator - rule.threshold if rule.relation == "above" else rule.threshold - indicator
-
-
-def _one_value(array: Any) -> Any:
-    """One element of a 1-D array that repeats it (stride 0), else the array."""
-    if isinstance(array, np.ndarray) and array.ndim == 1 and array.size > 1:
-        if array.strides == (0,):
-            return array[:1]
-    return array
 
 
 def _nonzero(array: ArrayIn) -> BoolArray:

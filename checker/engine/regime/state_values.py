@@ -83,6 +83,16 @@ def _unknown(count: int, solved: Collection[str] = (), writable: bool = True) ->
     return values
 
 
+def one_value(array: Any) -> Any:
+    """One element of a 1-D array that repeats it (a read-only view of stride 0, as
+    :func:`_constant` makes), else the array: elementwise arithmetic on it broadcasts to
+    the values the whole array gives, computed once."""
+    if isinstance(array, np.ndarray) and array.ndim == 1 and array.size > 1:
+        if array.strides == (0,):
+            return array[:1]
+    return array
+
+
 def _filled(count: int, value: object, dtype: type = float) -> npt.NDArray[Any]:
     return np.full(count, value, dtype=dtype)
 
@@ -119,8 +129,8 @@ def solve_sweep(
     # shared (a caller's input, or one array under two names) or is not yet one per point
     shared = {_memory(a) for a in (T, *donors.values(), *acceptors.values())}
     for name, array in put.items():
-        if not np.ndim(array):
-            values[name] = np.full(count, array)
+        if not np.ndim(array):  # one value for the chunk: a read-only view
+            values[name] = _constant(count, array)
         elif (
             isinstance(array, np.ndarray)
             and array.shape == (count,)
@@ -273,7 +283,8 @@ def solve_points(
     # n_i is the intrinsic density of the undoped crystal; with narrowing on the solve's
     # is the effective one, n_ie
     ni = state.ni * np.exp(-narrowing / (2 * state.kT)) if first.band_gap_narrowing else state.ni
-    ni_lo, ni_hi = _ni_spread(material, T, ni)
+    # a quantity with one value for every point is given as that number (solve_sweep: a
+    # read-only view; solve_all: the same value at each calculation)
     put: dict[str, ArrayIn] = {
         "T": T,
         "kT": state.kT,
@@ -281,18 +292,18 @@ def solve_points(
         "Eg": state.Eg,
         "ni": ni,
         "nie": state.ni,
-        "ni_lo": ni_lo,
-        "ni_hi": ni_hi,
         "Nnet": net,
         "Ntot": state.donors_total + state.acceptors_total,
         "dEg_bgn": narrowing,
-        "bgn_on": np.full_like(T, float(first.band_gap_narrowing)),
-        "T_lo": np.full_like(T, T_lo),
-        "T_hi": np.full_like(T, T_hi),
-        "N_lo": np.full_like(T, N_lo),
-        "N_hi": np.full_like(T, N_hi),
-        "dim": np.full_like(T, float(dim)),
+        "bgn_on": float(first.band_gap_narrowing),
+        "T_lo": T_lo,
+        "T_hi": T_hi,
+        "N_lo": N_lo,
+        "N_hi": N_hi,
+        "dim": float(dim),
     }
+    if reads is None or not {"ni_lo", "ni_hi"}.isdisjoint(reads):
+        put["ni_lo"], put["ni_hi"] = _ni_spread(material, T, ni)
     if reads is None:  # words for reports and messages (a sweep's chunk shows none)
         put["regime"] = carriers.regime_label(state)
         # which models set the edge a point leaves (for the model-validity messages)
@@ -336,7 +347,7 @@ def solve_points(
                 f"Ncomp_{x}": other,
                 f"Nion_{x}": ionized,
                 f"f_{x}": fraction,
-                f"mott_{x}": np.full_like(T, mott),
+                f"mott_{x}": mott,
                 f"metal_{x}": (own >= mott).astype(float),
                 f"mu_{x}": flow[f"mu_{x}"],
                 f"mu0_{x}": flow[f"mu0_{x}"],
@@ -345,8 +356,8 @@ def solve_points(
                 f"beta_{x}": flow[f"beta_{x}"],
                 f"vth_{x}": flow[f"v_{x}"],
                 f"lambda_model_{x}": flow[f"mfp_{x}"],
-                f"Eion_{x}": np.full_like(T, main.energy if main else np.nan),
-                f"gdeg_{x}": np.full_like(T, main.degeneracy if main else np.nan),
+                f"Eion_{x}": main.energy if main else np.nan,
+                f"gdeg_{x}": main.degeneracy if main else np.nan,
             }
         )
     put.update(
@@ -358,6 +369,8 @@ def solve_points(
     majority_n = (state.n >= state.p * (1 - 1e-9)).astype(float)
     put["maj_n"], put["maj_p"] = majority_n, 1.0 - majority_n
     for x in Carrier:
+        if reads is not None and _HALL.isdisjoint(reads):
+            break  # the measured Hall factors are read by _hall alone
         low, high, (t_low, t_high) = material.hall_factors.get(x.singular, (np.nan, np.nan, (0, 0)))
         inside = (T >= t_low) & (T <= t_high)
         put[f"rH_lo_{x}"] = np.where(inside, low, np.nan)
@@ -487,10 +500,16 @@ def fill_inputs(
     written into ``values``.  ``count``: the points of a sweep, which all share the single
     calculation given; ``reads``: see :func:`solve_sweep`."""
     size = len(calculations) if count is None else count
+    # a sweep's chunk: quantities with one value for the chunk are worked on as one element
+    # each until derive_corrected, then given back as read-only views over the chunk
+    compact = count is not None and count > 1
+    if compact:
+        for name, array in values.items():
+            values[name] = one_value(array)
 
     def column(getter: Callable[[Calculation], float]) -> FloatArray:
-        if count is not None:  # a sweep: one value for the whole chunk (read-only)
-            return _constant(count, getter(calculations[0]))
+        if count is not None:  # a sweep: one value for the whole chunk
+            return np.full(1, getter(calculations[0]), dtype=float)
         return (
             np.array([getter(c) for c in calculations], dtype=float)
             if calculations
@@ -552,6 +571,10 @@ def fill_inputs(
         values[name] = np.nan_to_num(values[name], nan=0.0)
     # tau ∝ E^r: the Hall factor's and the Landauer value's lambda(E)
     values["hall_r"] = column(lambda c: c.hall_exponent)
+    if compact:
+        for name, array in values.items():
+            if np.shape(array) == (1,):
+                values[name] = np.broadcast_to(array, (size,))
     derive_corrected(values, {}, reads)
     values["sigma_model"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["mu_n"]
@@ -660,6 +683,7 @@ def _bulk_einstein_ratio(eta: FloatArray, dims: FloatArray, at: BoolArray) -> Fl
     """(D/mu)/(kT/q) of the parabolic bulk solve at the points ``at`` (F_j ratio of each
     point's dimensionality; NaN elsewhere)."""
     out = np.full_like(eta, np.nan)
+    dims = np.broadcast_to(dims, eta.shape)
     for dim in distinct(dims[np.isfinite(dims) & at]):
         pick = (dims == dim) & np.isfinite(eta) & at
         if pick.any():
