@@ -119,3 +119,33 @@ def test_rules_on_one_values_fire_as_on_full_arrays(tmp_path, text):
     for one, other in zip(on_views, on_full, strict=True):
         np.testing.assert_array_equal(one.fired, other.fired, err_msg=one.rule.id)
         np.testing.assert_array_equal(one.indicator, other.indicator, err_msg=one.rule.id)
+
+
+@pytest.mark.parametrize("text", ["TWO_AXES", "STATED"])
+def test_a_gate_multiplied_out_factor_by_factor_is_the_whole_gate(tmp_path, text):
+    """evaluate._gate leaves a product gate at the first factor that zeroes every cell;
+    where it holds must be where the whole expression, evaluated at once, is nonzero."""
+    from test_sweep import TWO_AXES
+    from test_sweep import _calc as sweep_calculation
+
+    from checker.engine.regime import evaluate, rulebook, state_values
+
+    calc = sweep_calculation(tmp_path, TWO_AXES if text == "TWO_AXES" else STATED)
+    T, donors, acceptors, _ = sweep.grid(calc)
+    at = slice(0, T.size)
+    values, _ = state_values.solve_sweep(
+        calc, T[at], {s: q[at] for s, q in donors.items()}, {s: q[at] for s, q in acceptors.items()}
+    )
+    gated = [rule for rule in rulebook.load_rules() if rule.when is not None]
+    products = [rule for rule in gated if rule.when.tree.kind == "*"]
+    assert len(products) >= 3
+    cut_short = 0
+    with np.errstate(all="ignore"):
+        for rule in gated:
+            for x in rule.carriers:
+                whole = np.broadcast_to(rule.when.run[x](values), (T.size,))
+                expected = np.isfinite(whole) & (whole != 0)
+                found = evaluate._gate(rule.when, x, values, T.size)
+                np.testing.assert_array_equal(found, expected, err_msg=f"{rule.id} {x}")
+                cut_short += rule in products and not expected.any()
+    assert cut_short  # some product gate holds nowhere here

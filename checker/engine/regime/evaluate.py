@@ -39,7 +39,7 @@ from ..expressions.tree import CALL, NAME
 from ..findings import Correction, Embodied, Finding, carrier_word
 from ..vocabulary import carrier_names
 from .corrected import quantity_key
-from .rulebook import PLACEHOLDER, Compiled, Rule
+from .rulebook import PLACEHOLDER, Compiled, PerCarrier, Rule
 from .sheet_values import solve_inputs
 from .state_values import Replaced, Values, derive_corrected, one_value
 
@@ -401,6 +401,8 @@ def rule_mask(
     for name in rule.requires:
         if made.any():
             made &= np.isfinite(values[names.get(name, name)])
+    if made.any() and rule.when is not None:
+        made &= _gate(rule.when, x, values, count)
     if not made.any():
         indicator = (
             _cells_array(rule.expression, x, values, count)
@@ -408,14 +410,45 @@ def rule_mask(
             else np.full(count, np.nan)
         )
         return made, indicator, implied
-    if rule.when is not None:
-        made &= _nonzero(np.broadcast_to(rule.when.run[x](values), (count,)))
     indicator = _cells_array(rule.expression, x, values, count)
     wrong_side = (
         indicator > rule.threshold if rule.relation == "above" else indicator < rule.threshold
     )
     # an infinite indicator (e.g. n_i over zero net doping) is on the wrong side too
     return made & ~np.isnan(indicator) & wrong_side, indicator, implied
+
+
+def _gate(when: Compiled, x: str, values: Values, count: int) -> BoolArray:
+    """Where a rule's gate is a nonzero number.  A gate that is a product is multiplied
+    out factor by factor in its own (left to right) order, the same arithmetic as the
+    whole expression, and left as soon as no cell is nonzero: a zero, infinite or NaN
+    partial product stays one (a gate of a stated number a sweep does not give ends at
+    that factor)."""
+    product: Any = None
+    for factor in _factors(when):
+        value = factor[x](values)
+        product = value if product is None else np.multiply(product, value)
+        if not _nonzero(product).any():
+            return np.zeros(count, dtype=bool)
+    return _nonzero(np.broadcast_to(product, (count,)))
+
+
+# (a gate's text, its carriers) -> the numpy closures of its product's factors, in order
+_FACTORS: dict[tuple[str, tuple[str, ...]], list[PerCarrier]] = {}
+
+
+def _factors(when: Compiled) -> list[PerCarrier]:
+    key = (when.text, tuple(when.run))
+    factors = _FACTORS.get(key)
+    if factors is None:
+        trees, node = [], when.tree
+        while node.kind == "*":  # a product a*b*c parses as (a*b)*c
+            node, right = node.args
+            trees.append(right)
+        trees.append(node)
+        factors = [PerCarrier(tree, key[1]) for tree in reversed(trees)]
+        _FACTORS[key] = factors
+    return factors
 
 
 def rule_indicator(rule: Rule, x: str, values: Values, count: int) -> FloatArray:
