@@ -253,7 +253,8 @@ class _Outer:
         shape: tuple[int, ...],
     ) -> None:
         self.T, self.N = T[:, None], N[None, :]
-        self.T_back, self.N_back, self.shape = T_back, N_back, shape
+        self.shape = shape
+        self.cell = T_back * N.size + N_back  # each point's cell of the grid, row-major
 
     @classmethod
     def of(
@@ -274,8 +275,8 @@ class _Outer:
 
     def spread(self, values: FloatArray) -> FloatArray:
         """The grid's values at the points."""
-        table = np.broadcast_to(values, (self.T.shape[0], self.N.shape[1]))
-        out: FloatArray = table[self.T_back, self.N_back].reshape(self.shape)
+        table = np.ascontiguousarray(np.broadcast_to(values, (self.T.size, self.N.size)))
+        out: FloatArray = np.take(table, self.cell).reshape(self.shape)
         return out
 
 

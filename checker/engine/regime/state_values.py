@@ -320,7 +320,7 @@ def solve_points(
             state.donors_total,
             state.acceptors_total,
             state.donors_ionized_total,
-            state.donor_fraction,
+            "donor_fraction",
             first.donors,
         ),
         (
@@ -331,7 +331,7 @@ def solve_points(
             state.acceptors_total,
             state.donors_total,
             state.acceptors_ionized_total,
-            state.acceptor_fraction,
+            "acceptor_fraction",
             first.acceptors,
         ),
     ):
@@ -346,7 +346,10 @@ def solve_points(
                 f"N_{x}": own,
                 f"Ncomp_{x}": other,
                 f"Nion_{x}": ionized,
-                f"f_{x}": fraction,
+                # (a property that sums the ionized densities again: where read)
+                f"f_{x}": getattr(state, fraction)
+                if reads is None or f"f_{x}" in reads
+                else np.nan,
                 f"mott_{x}": mott,
                 f"metal_{x}": (own >= mott).astype(float),
                 f"mu_{x}": flow[f"mu_{x}"],
@@ -376,6 +379,11 @@ def solve_points(
         put[f"rH_lo_{x}"] = np.where(inside, low, np.nan)
         put[f"rH_hi_{x}"] = np.where(inside, high, np.nan)
     put.update(_band_shape_values(state, dim))
+    if reads is not None:
+        # other names of the solve's arrays that no rule of the sweep reads: left unknown
+        # instead of copied
+        for name in _ALIASES.difference(reads):
+            put.pop(name, None)
     modes_at = where(conductor_values.has_cross_section)
     put.update(conductor_values.band_values(first, T, put, sheet=False, modes_at=modes_at))
     return put, skipped
@@ -589,6 +597,9 @@ def fill_inputs(
 _VELOCITY = frozenset(
     f"{stem}_{x}" for stem in ("vth", "lambda_model", "lambda", "modes_a") for x in Carrier
 ) | {"modes", "G_ballistic", "G_energy", "G_landauer"}
+# quantities a bulk solve may give as another quantity's array (the parabolic band's
+# Fermi level and density, n_i without narrowing)
+_ALIASES = frozenset({"nie"} | {f"{stem}_{x}" for stem in ("eta_par", "dens_par") for x in Carrier})
 # what _hall gives (a sweep whose rules read none of it skips the Hall factors' F_j moments)
 _HALL = frozenset({"rH_n", "rH_p", "n_hall", "n_hall_lo", "n_hall_hi"})
 
