@@ -257,12 +257,17 @@ def rule_grid(
             if not ruled.fired.any():
                 continue
             key = (ruled.rule.id, ruled.x)
-            masks.setdefault(key, np.zeros(size, dtype=bool))[start:stop] = ruled.fired
+            if key not in masks:
+                masks[key] = np.zeros(size, dtype=bool)
+            masks[key][start:stop] = ruled.fired
+            # the worst fired cell (the first of equals): a fired indicator lies beyond
+            # its threshold, so its excess is > 0 (an infinite one counts as 1e300)
+            fired = np.flatnonzero(ruled.fired)
             with np.errstate(all="ignore"):
-                excess = np.where(ruled.fired, np.nan_to_num(ruled.excess(), posinf=1e300), -np.inf)
+                excess = np.nan_to_num(beyond(ruled.rule, ruled.indicator[fired]), posinf=1e300)
             best = int(np.argmax(excess))
             if key not in worst or excess[best] > worst[key][0]:
-                worst[key] = (float(excess[best]), start + best)
+                worst[key] = (float(excess[best]), start + int(fired[best]))
         if progress:
             progress(stop, size)
     return {key: (mask.reshape(shape), worst[key][1]) for key, mask in masks.items()}, notes
