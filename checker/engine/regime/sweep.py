@@ -41,10 +41,11 @@ Boundary: TypeAlias = "tuple[Axis, Axis | None, list[BoundaryRow]]"
 # (rule id, carrier) -> (failing mask over the grid, worst flat index)
 Masks: TypeAlias = dict[tuple[str, str], tuple[BoolArray, int]]
 
-# points solved and ruled at a time: a chunk's quantities and their temporaries take ~2.3 kB
-# a point, so 64k points keep a sweep of any size near 210 MB peak (a 2000 x 2000 grid,
+# points solved and ruled at a time: a chunk's quantities and their temporaries take ~1 kB
+# a point, so 64k points keep a sweep of any size near 135 MB peak (a 2000 x 2000 grid,
 # bench/bench_sweep.py); the solve of a 64k chunk costs 0.78x that of two 32k ones (its
 # blocks on two threads) and a chunk's fixed costs are spread over twice the points
+# (128k points: no faster, 170 MB)
 CHUNK = 1 << 16
 ROWS_SHOWN = 5  # rows of a 2D grid whose boundary is written out
 
@@ -268,6 +269,7 @@ def rule_grid(
             best = int(np.argmax(excess))
             if key not in worst or excess[best] > worst[key][0]:
                 worst[key] = (float(excess[best]), start + int(fired[best]))
+        values = {}  # the chunk's arrays go before the next chunk is solved, not beside it
         if progress:
             progress(stop, size)
     return {key: (mask.reshape(shape), worst[key][1]) for key, mask in masks.items()}, notes
