@@ -7,7 +7,7 @@ models used.  Vectorized; SI units.
 from __future__ import annotations
 
 import dataclasses
-from collections.abc import Callable
+from collections.abc import Callable, Collection
 
 import numpy as np
 import numpy.typing as npt
@@ -44,6 +44,7 @@ def carrier_transport(
     reference: ReferenceSolves | None = None,
     temperatures: Rows | None = None,
     dopings: Rows | None = None,
+    only: Collection[str] | None = None,
 ) -> dict[str, FloatOrArray]:
     """Mobilities, diffusion coefficients, conductivity and mean free paths at a State.
 
@@ -63,7 +64,9 @@ def carrier_transport(
     (:data:`Rows`) where the caller knows them (a sweep's grid; default: found here):
     what depends on T alone is evaluated once per temperature, and where the points are
     most of the temperature x doping combinations the mobilities on that grid (each
-    model's T and N terms once per row), every value as point by point.
+    model's T and N terms once per row), every value as point by point.  ``only``: of
+    mu0_x, vsat_x, beta_x, sigma and rho the ones to compute (None: all; the others are
+    NaN numbers), for a caller that reads few of them (a sweep's chunk).
     Returns a dict of SI arrays.
 
     References
@@ -86,6 +89,10 @@ def carrier_transport(
         return out
 
     grid = _Outer.of(T_rows, T_back, impurities, dopings, shape)
+
+    def wanted(name: str) -> bool:
+        return only is None or name in only
+
     # a carrier is the minority where the other outnumbers it twice over (not in
     # intrinsic material, where the minority-carrier fits for doped layers do not apply)
     minority_n, minority_p = state.n < 0.5 * state.p, state.p < 0.5 * state.n
@@ -132,21 +139,23 @@ def carrier_transport(
         # a function of T alone: evaluated once per distinct temperature (a sweep over
         # doping repeats each one)
         zero = np.zeros_like(T_rows)
-        result[f"mu0_{x}"] = per_temperature(
-            lambda T: (
-                model.low_field(zero, T, mobility_model, main)  # noqa: B023
-                if mobility_model
-                else np.max([fit(zero, T) for fit in model.mobility.values()], axis=0)
-            )  # noqa: B023
-        )
+        result[f"mu0_{x}"] = np.nan
+        if wanted(f"mu0_{x}"):
+            result[f"mu0_{x}"] = per_temperature(
+                lambda T: (
+                    model.low_field(zero, T, mobility_model, main)  # noqa: B023
+                    if mobility_model
+                    else np.max([fit(zero, T) for fit in model.mobility.values()], axis=0)
+                )  # noqa: B023
+            )
         result[f"D_{x}"] = d
-        result[f"vsat_{x}"] = (
-            per_temperature(model.vsat) if model.vsat else np.full_like(mu, np.nan)
-        )
-        result[f"beta_{x}"] = (
-            per_temperature(model.beta) if model.beta else np.full_like(mu, np.nan)
-        )
-        if model.thermal_mass and velocities:
+        for name, law in (("vsat", model.vsat), ("beta", model.beta)):
+            result[f"{name}_{x}"] = np.nan
+            if wanted(f"{name}_{x}"):
+                result[f"{name}_{x}"] = per_temperature(law) if law else np.full_like(mu, np.nan)
+        if not velocities:
+            result[f"v_{x}"] = result[f"mfp_{x}"] = np.nan
+        elif model.thermal_mass:
             v = transport.unidirectional_thermal_velocity(
                 state.T, model.thermal_mass, eta, dimension, kane
             )
@@ -156,10 +165,12 @@ def carrier_transport(
             result[f"mfp_{x}"] = transport.backscattering_mean_free_path(d, window)
         else:
             result[f"v_{x}"] = result[f"mfp_{x}"] = np.full_like(mu, np.nan)
-    result["sigma"] = transport.conductivity(
-        state.n * conduction["n"], state.p * conduction["p"], result["mu_n"], result["mu_p"]
-    )
-    result["rho"] = 1.0 / result["sigma"]
+    result["sigma"] = result["rho"] = np.nan
+    if wanted("sigma") or wanted("rho"):
+        result["sigma"] = transport.conductivity(
+            state.n * conduction["n"], state.p * conduction["p"], result["mu_n"], result["mu_p"]
+        )
+        result["rho"] = 1.0 / result["sigma"]
     return result
 
 

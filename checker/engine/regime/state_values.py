@@ -248,6 +248,7 @@ def solve_points(
             reference=reference,
             temperatures=rows[0] if rows else None,
             dopings=rows[1] if rows else None,
+            only=None if reads is None else _LATTICE.intersection(reads),
         )
     except MissingParameterError as exc:
         # statistics checks still run; mobility-based ones see NaN and stay silent
@@ -351,7 +352,9 @@ def solve_points(
                 if reads is None or f"f_{x}" in reads
                 else np.nan,
                 f"mott_{x}": mott,
-                f"metal_{x}": (own >= mott).astype(float),
+                f"metal_{x}": (own >= mott).astype(float)
+                if reads is None or f"metal_{x}" in reads
+                else np.nan,
                 f"mu_{x}": flow[f"mu_{x}"],
                 f"mu0_{x}": flow[f"mu0_{x}"],
                 f"cond_{x}": flow[f"cond_{x}"],
@@ -384,8 +387,9 @@ def solve_points(
         # instead of copied
         for name in _ALIASES.difference(reads):
             put.pop(name, None)
-    modes_at = where(conductor_values.has_cross_section)
-    put.update(conductor_values.band_values(first, T, put, sheet=False, modes_at=modes_at))
+    if reads is None or not _BAND_POWERS.isdisjoint(reads):
+        modes_at = where(conductor_values.has_cross_section)
+        put.update(conductor_values.band_values(first, T, put, sheet=False, modes_at=modes_at))
     return put, skipped
 
 
@@ -597,6 +601,9 @@ def fill_inputs(
 _VELOCITY = frozenset(
     f"{stem}_{x}" for stem in ("vth", "lambda_model", "lambda", "modes_a") for x in Carrier
 ) | {"modes", "G_ballistic", "G_energy", "G_landauer"}
+# what carrier_transport gives only where asked and solve_points puts (its sigma and rho
+# solve_points does not read: derive_corrected gives those of the corrected calculation)
+_LATTICE = frozenset(f"{stem}_{x}" for stem in ("mu0", "vsat", "beta") for x in Carrier)
 # quantities a bulk solve may give as another quantity's array (the parabolic band's
 # Fermi level and density, n_i without narrowing)
 _ALIASES = frozenset({"nie"} | {f"{stem}_{x}" for stem in ("eta_par", "dens_par") for x in Carrier})
@@ -619,6 +626,8 @@ REPLACEABLE = ("used_mu_n", "used_mu_p", "used_rho", "dens_n", "dens_p")
 # what conductor_values gives, and what derive_corrected gives besides the mobilities,
 # sigma and rho (a sweep's chunk computes them only where a rule reads them)
 _CONDUCTANCE = frozenset({"modes", "G_ballistic", "G_energy", "G_landauer"})
+# what reads the bands' k^2 power and the bulk modes (band_values): the conductances
+_BAND_POWERS = _CONDUCTANCE | {f"{stem}_{x}" for stem in ("kpower", "modes_a") for x in Carrier}
 _MEAN_FREE_PATHS = frozenset(f"lambda_{x}" for x in Carrier)
 _SHEET_CONDUCTANCE = frozenset({"sigma_s", "Rs"})
 
