@@ -563,6 +563,8 @@ def fill_inputs(
     values["stated_rho"] = np.where(np.isfinite(rho), rho, 1.0 / sigma)
     ec, ev = stated("stated_ef_minus_ec"), stated("stated_ef_minus_ev")
     kT, Eg = values["kT"], values["Eg"]
+    if compact and not (np.isfinite(ec).any() or np.isfinite(ev).any()):
+        kT, Eg = kT[:1], Eg[:1]  # no stated Fermi level: NaN at every point, computed once
     values["stated_eta_n"] = np.where(np.isfinite(ec), ec, ev - Eg) / kT
     values["stated_eta_p"] = -np.where(np.isfinite(ev), ev, ec + Eg) / kT
     specific: dict[str, BoolArray] = {}
@@ -577,6 +579,8 @@ def fill_inputs(
     # the bulk solve's Einstein ratio (the sheet solve gives its own from the energy window)
     ratio_unknown = ~np.isfinite(values["einstein_n"])
     for x in Carrier:
+        if not ratio_unknown.any():
+            break
         bulk_ratio = _bulk_einstein_ratio(values[f"eta_{x}"], values["dim"], ratio_unknown)
         values[f"einstein_{x}"] = np.where(ratio_unknown, bulk_ratio, values[f"einstein_{x}"])
     for name in ("linear", "subbands"):
@@ -676,7 +680,12 @@ def derive_corrected(
         np.isfinite(stated_rho) & kept("used_rho"), stated_rho, values["rho"]
     )
     # a sheet: sheet conductance of the carriers it holds (an absent carrier adds nothing)
-    if reads is None or not _SHEET_CONDUCTANCE.isdisjoint(reads):
+    sheets = [values[f"ns_{x}"] for x in Carrier]
+    if all(a.strides == (0,) and a.size > 1 and np.isnan(a[0]) for a in sheets):
+        # a sweep's bulk chunk: no sheet density anywhere, so none (each its own view)
+        count = sheets[0].size
+        values["sigma_s"], values["Rs"] = _constant(count, np.nan), _constant(count, np.nan)
+    elif reads is None or not _SHEET_CONDUCTANCE.isdisjoint(reads):
         values["sigma_s"] = ELEMENTARY_CHARGE * conductor_values.carrier_sum(
             [values[f"ns_{x}"] * values[f"used_mu_{x}"] for x in Carrier]
         )
