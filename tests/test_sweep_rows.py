@@ -41,6 +41,25 @@ def test_grid_rows_name_each_points_temperature_and_doping(n_T, n_N, start, stop
     assert N_first.size == np.unique(N_points).size
 
 
+@pytest.mark.parametrize(
+    "count, stride, size",
+    [(1, 1, 10), (5, 1, 35), (5, 7, 35), (7, 5, 35), (3, 12, 36), (6, 8, 48), (40, 1, 1600)],
+)
+def test_a_slices_codes_and_rows_follow_the_flat_index(count, stride, size):
+    """GridQuantity builds a slice's codes as runs and its rows per code: both must be
+    what the flat index says, (i // stride) % count, at every start and stop."""
+    quantity = sweep.GridQuantity(np.arange(count) * 1.5, stride, size)
+    for start in range(min(size, 50)):
+        for stop in sorted({start + 1, start + 5, start + 37, size}):
+            stop = min(stop, size)
+            codes = quantity.codes(slice(start, stop))
+            np.testing.assert_array_equal(codes, (np.arange(start, stop) // stride) % count)
+            values = quantity[start:stop]
+            first, back = quantity.rows(start, stop)
+            np.testing.assert_array_equal(values[first][back], values)
+            assert first.size == np.unique(values).size
+
+
 def test_two_doping_axes_make_one_row_per_combination():
     size = 6 * 8
     donors = sweep.GridQuantity(np.geomspace(1e15, 1e19, 6) * PER_CM3, 8, size)

@@ -107,9 +107,39 @@ class GridQuantity:
 
     def codes(self, index: int | slice | ArrayIn) -> IndexArray:
         """The index into ``values`` at an index, a slice or flat indices."""
+        if isinstance(index, slice) and index.step in (None, 1):
+            start, stop, _ = index.indices(self.size)
+            return self._run(start, max(start, stop))
         at = np.arange(*index.indices(self.size)) if isinstance(index, slice) else index
         codes: IndexArray = (np.asarray(at) // self.stride) % self.values.size
         return codes
+
+    def rows(self, start: int, stop: int) -> carriers.Rows:
+        """(one point of each of ``values`` present at flat indices start ... stop - 1, each
+        point's row), as carriers.Rows: from the grid's structure, with no pass over the
+        points but the one that numbers them (the first flat index >= start of each code
+        is found per code)."""
+        count, stride = self.values.size, self.stride
+        block = start // stride
+        # the first block at or after start's with each code, and its first flat index
+        first = np.maximum(start, (block + (np.arange(count) - block) % count) * stride)
+        present = first < stop
+        row = np.cumsum(present) - 1
+        return first[present] - start, row[self._run(start, stop)]
+
+    def _run(self, start: int, stop: int) -> IndexArray:
+        """The codes of flat indices start ... stop - 1: runs of ``stride`` equal codes,
+        built as such (no integer division per point)."""
+        count, stride = self.values.size, self.stride
+        if count == 1 or stop == start:
+            return np.zeros(stop - start, dtype=np.intp)
+        if stride == 1:
+            return np.arange(start, stop, dtype=np.intp) % count
+        first, last = start // stride, (stop - 1) // stride
+        lengths = np.full(last - first + 1, stride, dtype=np.intp)
+        lengths[0] -= start - first * stride
+        lengths[-1] -= (last + 1) * stride - stop
+        return np.repeat(np.arange(first, last + 1, dtype=np.intp) % count, lengths)
 
 
 def grid_rows(
@@ -117,10 +147,14 @@ def grid_rows(
 ) -> tuple[carriers.Rows, carriers.Rows]:
     """The distinct temperatures and doping rows of the points ``at`` (carriers.Rows),
     from the grid's axis indices (no sort of the values)."""
+    swept = [quantity for quantity in dopings if quantity.values.size > 1]
+    if len(swept) <= 1:  # one doping axis (or none): its rows are the doping rows
+        one = swept[0] if swept else GridQuantity(0.0, 1, T.size)
+        return T.rows(at.start, at.stop), one.rows(at.start, at.stop)
     doping = np.zeros(at.stop - at.start, dtype=np.intp)
-    for quantity in dopings:
+    for quantity in swept:
         doping = doping * quantity.values.size + quantity.codes(at)
-    return _rows(T.codes(at)), _rows(doping)
+    return T.rows(at.start, at.stop), _rows(doping)
 
 
 def _rows(codes: IndexArray) -> carriers.Rows:
