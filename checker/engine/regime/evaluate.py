@@ -240,6 +240,12 @@ def _replace(ruled: Ruled, values: Values, replaced: Replaced) -> bool:
 _NO_FORMULA = np.iinfo(np.int64).max
 
 
+def _nowhere(count: int) -> tuple[BoolArray, IndexArray]:
+    """(made, by_formula) of an assumption made at no cell: read-only views of one value
+    (rule_mask works on a copy of ``made``)."""
+    return np.broadcast_to(False, (count,)), np.broadcast_to(np.int64(-1), (count,))
+
+
 def assumption_made(
     rule: Rule, x: str, names: Mapping[str, str], cells: Cells
 ) -> tuple[BoolArray, IndexArray]:
@@ -251,7 +257,7 @@ def assumption_made(
     for the carriers the calculation uses."""
     count = cells.count
     if not rule.declared:
-        return np.zeros(count, dtype=bool), np.full(count, -1)
+        return _nowhere(count)
     declared = cells.declaring(rule.declared)
     everywhere = np.full(len(cells.calculations), _NO_FORMULA)
     where_used = np.full(len(cells.calculations), _NO_FORMULA)
@@ -262,7 +268,7 @@ def assumption_made(
             where_used[c] = k
     one = len(cells.calculations) == 1  # a sweep's chunk: one calculation, no gathering
     if one and not declared[0] and everywhere[0] == where_used[0] == _NO_FORMULA:
-        return np.zeros(count, dtype=bool), np.full(count, -1)  # made at no cell
+        return _nowhere(count)  # made at no cell
     if one and (not x or everywhere[0] <= where_used[0]):
         # the carrier in use decides nothing but the declaration
         k = int(everywhere[0])
@@ -407,7 +413,7 @@ def rule_mask(
         indicator = (
             _cells_array(rule.expression, x, values, count)
             if all_indicators
-            else np.full(count, np.nan)
+            else np.broadcast_to(np.nan, (count,))  # read only where a rule fires
         )
         return made, indicator, implied
     indicator = _cells_array(rule.expression, x, values, count)
