@@ -93,6 +93,13 @@ def one_value(array: Any) -> Any:
     return array
 
 
+@functools.lru_cache(maxsize=2)
+def _unknown_views(count: int) -> Values:
+    """:func:`_unknown` as read-only views, made once per chunk size (every chunk of a
+    sweep but its last has one size; a view holds one value, not ``count``)."""
+    return _unknown(count, writable=False)
+
+
 def _filled(count: int, value: object, dtype: type = float) -> npt.NDArray[Any]:
     return np.full(count, value, dtype=dtype)
 
@@ -124,7 +131,7 @@ def solve_sweep(
     put, skipped = solve_points(
         calc, T, donors, acceptors, reads=reads, reference=reference, rows=rows
     )
-    values = _unknown(count, put, writable=False)
+    values = {name: view for name, view in _unknown_views(count).items() if name not in put}
     # the solve's own arrays are kept as they are; a copy only where an array would be
     # shared (a caller's input, or one array under two names) or is not yet one per point
     shared = {_memory(a) for a in (T, *donors.values(), *acceptors.values())}
