@@ -9,14 +9,19 @@ gives the command's start-up, and the row "sweep less start-up" (each round's sw
 its start-up) the grid's own cost.  The headline
 is the median per-round ratio to the solve, with its spread.  Last, the peak resident
 memory of the command on a 2000 x 2000 grid (4e6 points), measured on that child alone
-(os.wait4).  Prints tables; asserts nothing.
+(os.wait4).  ``--split``: where a chunk's time goes, in this process (the grid's rules
+run chunk by chunk as `check` runs them, the stages timed by wrapping the functions that
+do them; a stage's time includes the stages it calls, e.g. "solve_points" the solve).
+Prints tables; asserts nothing.
 """
 
 import argparse
+import collections
 import os
 import subprocess
 import sys
 import tempfile
+import time
 from pathlib import Path
 
 import installed_command
@@ -74,11 +79,74 @@ def peak_memory_mb(path):
     return usage.ru_maxrss / 1024  # Linux: kB
 
 
+def chunk_split(path):
+    """(seconds per chunk of each stage, chunks) of ruling the grid in ``path``, as
+    check_sweep rules it, after one warm-up pass."""
+    from checker.engine.regime import evaluate, rulebook, state_values, sweep
+    from checker.engine.regime.points import check_points
+    from checker.inputs.calculation_file import read_calculation_file
+
+    (calc,) = read_calculation_file(path).calculations
+    rules = rulebook.load_rules()
+    grid_points = sweep.grid(calc)
+    T, donors, acceptors, _ = grid_points
+    (first,), _ = check_points([sweep.point(calc, T, donors, acceptors, 0)], rules)
+    ruled, reads = sweep.grid_rules(calc, rules, first.embodied, grid_points)
+    spent = collections.Counter()
+
+    def timed(module, name, stage):
+        function = getattr(module, name)
+
+        def wrapper(*args, **kwargs):
+            start = time.perf_counter()
+            try:
+                return function(*args, **kwargs)
+            finally:
+                spent[stage] += time.perf_counter() - start
+
+        return function, wrapper
+
+    def rule_cells(*args, **kwargs):  # a generator: timed as the list of its outcomes
+        start = time.perf_counter()
+        out = list(evaluate.rule_cells(*args, **kwargs))
+        spent["rules"] += time.perf_counter() - start
+        return out
+
+    stages = [
+        (state_values.equilibrium, "solve", "solve (each chunk's, and reference solves)"),
+        (state_values.carriers, "carrier_transport", "transport (carriers)"),
+        (state_values, "_band_shape_values", "band shapes (Einstein ratios)"),
+        (state_values, "solve_points", "solve_points (solve, transport, band shapes)"),
+        (state_values, "fill_inputs", "inputs (fill_inputs, derive_corrected)"),
+        (state_values, "solve_sweep", "solve_sweep (all of the above)"),
+    ]
+    kept = [(module, name, timed(module, name, stage)) for module, name, stage in stages]
+    sweep_globals = sweep.rule_grid.__globals__
+    try:
+        for module, name, (_, wrapper) in kept:
+            setattr(module, name, wrapper)
+        sweep_globals["solve_sweep"] = state_values.solve_sweep
+        sweep_globals["rule_cells"] = rule_cells
+        sweep.rule_grid(calc, ruled, first.embodied, grid_points, None, reads)  # warm-up
+        spent.clear()
+        start = time.perf_counter()
+        sweep.rule_grid(calc, ruled, first.embodied, grid_points, None, reads)
+        spent["rule_grid (a chunk in all)"] = time.perf_counter() - start
+    finally:
+        for module, name, (function, _) in kept:
+            setattr(module, name, function)
+        sweep_globals["solve_sweep"] = state_values.solve_sweep
+        sweep_globals["rule_cells"] = evaluate.rule_cells
+    chunks = -(-T.size // sweep.CHUNK)
+    return {stage: seconds / chunks for stage, seconds in spent.items()}, chunks
+
+
 def main():
     parser = argparse.ArgumentParser()
     parser.add_argument("--size", type=int, default=1000, help="grid points per axis")
     parser.add_argument("--rounds", type=int, default=3)
     parser.add_argument("--memory-size", type=int, default=2000, help="0: skip the memory row")
+    parser.add_argument("--split", action="store_true", help="where a chunk's time goes")
     args = parser.parse_args()
     n = args.size
     points = n * n
@@ -103,6 +171,14 @@ def main():
             m = args.memory_size
             peak = peak_memory_mb(grid_file(tmp, m))
             print(f"peak resident memory, check of a {m} x {m} sweep: {peak:.0f} MB")
+        if args.split:
+            from checker.engine.regime.sweep import CHUNK
+
+            split, chunks = chunk_split(path)
+            solve = split["solve (each chunk's, and reference solves)"]
+            print(f"\nper chunk of {CHUNK} points ({chunks} chunks), ms and x the chunk's solve")
+            for stage, seconds in sorted(split.items(), key=lambda item: -item[1]):
+                print(f"{stage:48s} {seconds * 1e3:8.1f} {seconds / solve:8.2f}")
 
 
 if __name__ == "__main__":

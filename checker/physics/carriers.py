@@ -7,12 +7,13 @@ models used.  Vectorized; SI units.
 from __future__ import annotations
 
 import dataclasses
+from collections.abc import Callable, Collection
 
 import numpy as np
 import numpy.typing as npt
 
 from . import transport
-from .arrays import ArrayIn, FloatArray, FloatOrArray, distinct_points
+from .arrays import ArrayIn, FloatArray, FloatOrArray, IndexArray, distinct_points
 from .constants import BOLTZMANN, ELEMENTARY_CHARGE
 from .equilibrium import State
 from .materials import (
@@ -27,6 +28,8 @@ from .materials import (
 # the fitted temperature and doping ranges of the models a check relies on, and the models
 # setting each edge (see model_ranges)
 Ranges = tuple[tuple[float, float], tuple[float, float], dict[str, list[str]]]
+# (one point of each distinct row, the row of every point), as arrays.distinct_points
+Rows = tuple[IndexArray, IndexArray]
 
 
 def _dominant(species: dict[str, FloatArray]) -> str | None:
@@ -39,6 +42,9 @@ def carrier_transport(
     mobility_model: str | None = None,
     velocities: bool = True,
     reference: ReferenceSolves | None = None,
+    temperatures: Rows | None = None,
+    dopings: Rows | None = None,
+    only: Collection[str] | None = None,
 ) -> dict[str, FloatOrArray]:
     """Mobilities, diffusion coefficients, conductivity and mean free paths at a State.
 
@@ -54,6 +60,13 @@ def carrier_transport(
     both for the electrons.  ``velocities`` False: D, <v_x+> and lambda (their F_j ratios
     and window averages) are left NaN, for a caller that reads none of them;
     ``reference``: solves at a reference temperature kept from earlier calls (a sweep's).
+    ``temperatures``, ``dopings``: the points' distinct temperatures and doping rows
+    (:data:`Rows`) where the caller knows them (a sweep's grid; default: found here):
+    what depends on T alone is evaluated once per temperature, and where the points are
+    most of the temperature x doping combinations the mobilities on that grid (each
+    model's T and N terms once per row), every value as point by point.  ``only``: of
+    mu0_x, vsat_x, beta_x, sigma and rho the ones to compute (None: all; the others are
+    NaN numbers), for a caller that reads few of them (a sweep's chunk).
     Returns a dict of SI arrays.
 
     References
@@ -63,6 +76,23 @@ def carrier_transport(
     """
     material = state.material
     impurities = state.donors_total + state.acceptors_total
+    shape, size = np.shape(state.T), int(np.size(state.T))
+    T_flat = np.ravel(state.T)
+    if temperatures is None:
+        temperatures = distinct_points([T_flat], size)
+    T_first, T_back = temperatures
+    T_rows = T_flat[T_first]
+
+    def per_temperature(function: Callable[[FloatArray], FloatArray]) -> FloatArray:
+        """A function of T alone at every point, evaluated once per temperature."""
+        out: FloatArray = np.broadcast_to(function(T_rows), T_rows.shape)[T_back].reshape(shape)
+        return out
+
+    grid = _Outer.of(T_rows, T_back, impurities, dopings, shape)
+
+    def wanted(name: str) -> bool:
+        return only is None or name in only
+
     # a carrier is the minority where the other outnumbers it twice over (not in
     # intrinsic material, where the minority-carrier fits for doped layers do not apply)
     minority_n, minority_p = state.n < 0.5 * state.p, state.p < 0.5 * state.n
@@ -77,12 +107,19 @@ def carrier_transport(
     ):
         model: CarrierTransport = material.need(band, "mobility (conductivity, Einstein relation)")
         main = _dominant(species)
-        mu = model.low_field(impurities, state.T, mobility_model, main)
+        if grid is None:
+            mu = model.low_field(impurities, state.T, mobility_model, main)
+        else:
+            mu = grid.spread(model.low_field(grid.N, grid.T, mobility_model, main))
         if model.minority_model and not mobility_model and not np.all(majority):
-            mu = np.where(majority, mu, model.low_field(impurities, state.T, minority=True))
-        conduction[x] = np.where(
-            majority, _every_dopant_factor(state, model, mobility_model, main, x, reference), 1.0
-        )
+            minority = (
+                model.low_field(impurities, state.T, minority=True)
+                if grid is None
+                else grid.spread(model.low_field(grid.N, grid.T, minority=True))
+            )
+            mu = np.where(majority, mu, minority)
+        every = _every_dopant_factor(state, model, mobility_model, main, x, reference, dopings)
+        conduction[x] = np.where(majority, every, 1.0)
         # a Kane conduction band (bulk) sets the electrons' Einstein ratio and velocity
         # a Kane conduction band in the calculation's dimensionality (a bulk crystal
         # written as a 2D layer keeps its non-parabolic dispersion in the plane)
@@ -101,19 +138,24 @@ def carrier_transport(
         # the lattice limit: the highest of the material's published fits at N = 0
         # a function of T alone: evaluated once per distinct temperature (a sweep over
         # doping repeats each one)
-        first, back = distinct_points([np.ravel(state.T)], np.size(state.T))
-        T_rows = np.ravel(state.T)[first]
         zero = np.zeros_like(T_rows)
-        mu0 = (
-            model.low_field(zero, T_rows, mobility_model, main)
-            if mobility_model
-            else np.max([fit(zero, T_rows) for fit in model.mobility.values()], axis=0)
-        )
-        result[f"mu0_{x}"] = np.broadcast_to(mu0, T_rows.shape)[back].reshape(np.shape(state.T))
+        result[f"mu0_{x}"] = np.nan
+        if wanted(f"mu0_{x}"):
+            result[f"mu0_{x}"] = per_temperature(
+                lambda T: (
+                    model.low_field(zero, T, mobility_model, main)  # noqa: B023
+                    if mobility_model
+                    else np.max([fit(zero, T) for fit in model.mobility.values()], axis=0)
+                )  # noqa: B023
+            )
         result[f"D_{x}"] = d
-        result[f"vsat_{x}"] = model.vsat(state.T) if model.vsat else np.full_like(mu, np.nan)
-        result[f"beta_{x}"] = model.beta(state.T) if model.beta else np.full_like(mu, np.nan)
-        if model.thermal_mass and velocities:
+        for name, law in (("vsat", model.vsat), ("beta", model.beta)):
+            result[f"{name}_{x}"] = np.nan
+            if wanted(f"{name}_{x}"):
+                result[f"{name}_{x}"] = per_temperature(law) if law else np.full_like(mu, np.nan)
+        if not velocities:
+            result[f"v_{x}"] = result[f"mfp_{x}"] = np.nan
+        elif model.thermal_mass:
             v = transport.unidirectional_thermal_velocity(
                 state.T, model.thermal_mass, eta, dimension, kane
             )
@@ -123,10 +165,12 @@ def carrier_transport(
             result[f"mfp_{x}"] = transport.backscattering_mean_free_path(d, window)
         else:
             result[f"v_{x}"] = result[f"mfp_{x}"] = np.full_like(mu, np.nan)
-    result["sigma"] = transport.conductivity(
-        state.n * conduction["n"], state.p * conduction["p"], result["mu_n"], result["mu_p"]
-    )
-    result["rho"] = 1.0 / result["sigma"]
+    result["sigma"] = result["rho"] = np.nan
+    if wanted("sigma") or wanted("rho"):
+        result["sigma"] = transport.conductivity(
+            state.n * conduction["n"], state.p * conduction["p"], result["mu_n"], result["mu_p"]
+        )
+        result["rho"] = 1.0 / result["sigma"]
     return result
 
 
@@ -137,6 +181,7 @@ def _every_dopant_factor(
     species: str | None,
     carrier: str,
     reference: ReferenceSolves,
+    dopings: Rows | None = None,
 ) -> FloatArray:
     """1/f(T_0) for a mobility given per dopant atom (sigma = q N mu at T_0, as the
     silicon resistivity standard is): the free carriers at T_0 are then credited with
@@ -147,7 +192,7 @@ def _every_dopant_factor(
         return np.ones_like(state.T)
     fit = model.mobility[model.model_name(mobility_model, species)]
     T0 = float(getattr(fit, "T0", 296.15))
-    fraction = reference.ionized_fraction(state, T0, 0 if carrier == "n" else 1)
+    fraction = reference.ionized_fraction(state, T0, 0 if carrier == "n" else 1, dopings)
     return 1.0 / np.maximum(fraction, 1e-300)
 
 
@@ -161,9 +206,12 @@ class ReferenceSolves:
         # (T0, material, species, narrowing) -> doping row -> (donor, acceptor fraction)
         self._rows: dict[tuple[object, ...], dict[tuple[float, ...], tuple[float, float]]] = {}
 
-    def ionized_fraction(self, state: State, T0: float, kind: int) -> FloatArray:
+    def ionized_fraction(
+        self, state: State, T0: float, kind: int, dopings: Rows | None = None
+    ) -> FloatArray:
         """The donor (``kind`` 0) or acceptor (1) ionized fraction at T0 of each point's
-        doping (the state's own band-gap narrowing option)."""
+        doping (the state's own band-gap narrowing option; ``dopings``: the points' doping
+        rows where the caller knows them, as carrier_transport)."""
         from .equilibrium import solve
 
         shape = np.shape(state.T)
@@ -172,24 +220,74 @@ class ReferenceSolves:
             for g in (state.donors, state.acceptors)
         )
         columns = [*donors.values(), *acceptors.values()]
-        first, back = distinct_points(columns, int(np.prod(shape)))
-        rows = [tuple(float(column[i]) for column in columns) for i in first]
+        first, back = dopings or distinct_points(columns, int(np.prod(shape)))
+        # each distinct row as a tuple of Python floats (one tolist per column, not a
+        # numpy scalar per value)
+        rows = list(zip(*(column[first].tolist() for column in columns))) or [()] * first.size
         narrowing = bool(np.any(state.narrowing > 0))
         key = (T0, id(state.material), tuple(donors), tuple(acceptors), narrowing)
         known = self._rows.setdefault(key, {})
-        missing = np.array([i for i, row in zip(first, rows) if row not in known], dtype=int)
-        if missing.size:
+        missing = [k for k, row in enumerate(rows) if row not in known]
+        if missing:
+            at = first[missing]
             solved = solve(
                 state.material,
-                np.full(missing.size, T0),
-                {s: d[missing] for s, d in donors.items()},
-                {s: d[missing] for s, d in acceptors.items()},
+                np.full(at.size, T0),
+                {s: d[at] for s, d in donors.items()},
+                {s: d[at] for s, d in acceptors.items()},
                 band_gap_narrowing=narrowing,
             )
-            for k, (fd, fa) in enumerate(zip(solved.donor_fraction, solved.acceptor_fraction)):
-                known[tuple(float(column[missing[k]]) for column in columns)] = (fd, fa)
+            pairs = zip(solved.donor_fraction.tolist(), solved.acceptor_fraction.tolist())
+            for k, pair in zip(missing, pairs):
+                known[rows[k]] = pair
         fractions = np.array([known[row][kind] for row in rows], dtype=float)
         out: FloatArray = fractions[back].reshape(shape)
+        return out
+
+
+class _Outer:
+    """Points that are most of the combinations of their distinct temperatures and doping
+    rows (a sweep's grid): a function of (N, T) is evaluated on that temperature x doping
+    grid, T a column and N a row, so that its terms in T alone or N alone are computed
+    once per temperature or doping, then spread back to the points.  Each point's value
+    is the one its own evaluation gives (elementwise arithmetic on the same numbers)."""
+
+    # the grid is used where it has at most this many cells per point
+    WIDEST = 2
+
+    def __init__(
+        self,
+        T: FloatArray,
+        N: FloatArray,
+        T_back: IndexArray,
+        N_back: IndexArray,
+        shape: tuple[int, ...],
+    ) -> None:
+        self.T, self.N = T[:, None], N[None, :]
+        self.shape = shape
+        self.cell = T_back * N.size + N_back  # each point's cell of the grid, row-major
+
+    @classmethod
+    def of(
+        cls,
+        T_rows: FloatArray,
+        T_back: IndexArray,
+        impurities: FloatArray,
+        dopings: Rows | None,
+        shape: tuple[int, ...],
+    ) -> _Outer | None:
+        size = int(np.prod(shape))
+        if dopings is None or np.shape(impurities) != shape:
+            return None
+        first, back = dopings
+        if T_rows.size * first.size > cls.WIDEST * size:
+            return None
+        return cls(T_rows, np.ravel(impurities)[first], T_back, back, shape)
+
+    def spread(self, values: FloatArray) -> FloatArray:
+        """The grid's values at the points."""
+        table = np.ascontiguousarray(np.broadcast_to(values, (self.T.size, self.N.size)))
+        out: FloatArray = np.take(table, self.cell).reshape(self.shape)
         return out
 
 

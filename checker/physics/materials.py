@@ -396,7 +396,10 @@ class TemperatureRatio(FrozenRecord):
 
     def __call__(self, N: ArrayIn, T: ArrayIn) -> FloatArray:
         T = np.asarray(T, dtype=float)
-        T0 = np.full_like(T, self.T0)
+        # T0 as an array of T's rank and size 1: the terms at T0 take N's shape alone
+        # (evaluated once per doping where T is a column of a temperature x doping grid),
+        # through the same array loops as a full array (a numpy scalar's power differs)
+        T0 = np.full((1,) * T.ndim, self.T0)
         return self.base(N, T0) * self.shape(N, T) / self.shape(N, T0)
 
 

@@ -39,9 +39,9 @@ from ..expressions.tree import CALL, NAME
 from ..findings import Correction, Embodied, Finding, carrier_word
 from ..vocabulary import carrier_names
 from .corrected import quantity_key
-from .rulebook import PLACEHOLDER, Compiled, Rule
+from .rulebook import PLACEHOLDER, Compiled, PerCarrier, Rule
 from .sheet_values import solve_inputs
-from .state_values import Replaced, Values, derive_corrected
+from .state_values import Replaced, Values, derive_corrected, one_value
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
@@ -59,6 +59,8 @@ class Cells:
     # every rule's indicator even where the rule cannot fire (single points: which stated
     # numbers a rule compared); a sweep reads it only where a rule fires
     all_indicators: bool = True
+    # the quantities the rules read (a sweep's chunk: state_values.solve_sweep); None: all
+    reads: frozenset[str] | None = None
 
     @classmethod
     def points(
@@ -82,9 +84,14 @@ class Cells:
 
     @classmethod
     def grid(
-        cls, calc: Calculation, values: Values, count: int, embodied: Iterable[Embodied] = ()
+        cls,
+        calc: Calculation,
+        values: Values,
+        count: int,
+        embodied: Iterable[Embodied] = (),
+        reads: frozenset[str] | None = None,
     ) -> Cells:
-        """``count`` grid cells of the sweep ``calc``."""
+        """``count`` grid cells of the sweep ``calc`` (``reads``: see the field)."""
         return cls(
             values,
             [calc],
@@ -92,11 +99,33 @@ class Cells:
             [list(embodied)],
             np.ones(count, dtype=bool),
             all_indicators=False,
+            reads=reads,
         )
 
     @property
     def count(self) -> int:
         return self.owner.size
+
+    def read_values(self) -> Values:
+        """The values rules are evaluated on: a sweep chunk's one-value quantities (the
+        read-only views of state_values._constant) as one element each, so that parts of
+        an expression in them alone are computed once, not per cell (every cell's value
+        is the one the full arrays give: the same elementwise arithmetic, broadcast)."""
+        if self.all_indicators:
+            return self.values
+        return {name: one_value(array) for name, array in self.values.items()}
+
+    def in_use(self, names: Mapping[str, str]) -> BoolArray:
+        """Per cell: whether the carrier of the names (carrier_names) is in use."""
+        name = names["in_use_x"]
+        if name not in self._in_use:
+            self._in_use[name] = _nonzero(self.values[name])
+        return self._in_use[name]
+
+    @cached_property
+    def _in_use(self) -> dict[str, BoolArray]:
+        # in_use_x is set by the solve and no rule replaces it: one mask per carrier
+        return {}
 
     def declaring(self, words: tuple[str, ...]) -> BoolArray:
         """Per calculation: whether its author declares one of ``words``."""
@@ -175,36 +204,46 @@ def rule_cells(rules: Iterable[Rule], cells: Cells) -> Iterator[Ruled]:
         (rule for rule in rules if not rule.evaluated_by), key=lambda r: not r.replaces
     )
     replaced: Replaced = {}
+    read = cells.read_values()
     with np.errstate(all="ignore"):
         for k, rule in enumerate(ordered):
             if replaced and not rule.replaces and ordered[k - 1].replaces:
-                derive_corrected(cells.values, replaced)
+                derive_corrected(cells.values, replaced, cells.reads)
+                read = cells.read_values()
             for x in rule.carriers:
                 names: Mapping[str, str] = carrier_names(x) if x else {}
                 made, by_formula = assumption_made(rule, x, names, cells)
                 fired, indicator, implied = rule_mask(
-                    rule, x, names, made, cells.values, cells.count, cells.all_indicators
+                    rule, x, names, made, read, cells.count, cells.all_indicators
                 )
                 ruled = Ruled(rule, x, names, fired & cells.valid, indicator, implied, by_formula)
-                _replace(ruled, cells.values, replaced)
+                if _replace(ruled, cells.values, replaced):
+                    read = cells.read_values()
                 yield ruled
         if replaced and all(rule.replaces for rule in ordered):
-            derive_corrected(cells.values, replaced)
+            derive_corrected(cells.values, replaced, cells.reads)
 
 
-def _replace(ruled: Ruled, values: Values, replaced: Replaced) -> None:
+def _replace(ruled: Ruled, values: Values, replaced: Replaced) -> bool:
     """Where ``ruled`` fired, put its replacements into the corrected calculation and
-    remember the cells (``replaced``: concrete name -> mask)."""
+    remember the cells (``replaced``: concrete name -> mask); whether it did."""
     if not ruled.rule.replaces or not ruled.fired.any():
-        return
+        return False
     for target, source in ruled.rule.replaces.items():
         name = ruled.names.get(target, target)
         fill = np.broadcast_to(values[ruled.names.get(source, source)], ruled.fired.shape)
         values[name] = np.where(ruled.fired, fill, values[name])
         replaced[name] = replaced.get(name, np.zeros(ruled.fired.shape, bool)) | ruled.fired
+    return True
 
 
 _NO_FORMULA = np.iinfo(np.int64).max
+
+
+def _nowhere(count: int) -> tuple[BoolArray, IndexArray]:
+    """(made, by_formula) of an assumption made at no cell: read-only views of one value
+    (rule_mask works on a copy of ``made``)."""
+    return np.broadcast_to(False, (count,)), np.broadcast_to(np.int64(-1), (count,))
 
 
 def assumption_made(
@@ -218,7 +257,7 @@ def assumption_made(
     for the carriers the calculation uses."""
     count = cells.count
     if not rule.declared:
-        return np.zeros(count, dtype=bool), np.full(count, -1)
+        return _nowhere(count)
     declared = cells.declaring(rule.declared)
     everywhere = np.full(len(cells.calculations), _NO_FORMULA)
     where_used = np.full(len(cells.calculations), _NO_FORMULA)
@@ -229,8 +268,15 @@ def assumption_made(
             where_used[c] = k
     one = len(cells.calculations) == 1  # a sweep's chunk: one calculation, no gathering
     if one and not declared[0] and everywhere[0] == where_used[0] == _NO_FORMULA:
-        return np.zeros(count, dtype=bool), np.full(count, -1)  # made at no cell
-    in_use = _nonzero(cells.values[names["in_use_x"]]) if x else np.ones(count, dtype=bool)
+        return _nowhere(count)  # made at no cell
+    if one and (not x or everywhere[0] <= where_used[0]):
+        # the carrier in use decides nothing but the declaration
+        k = int(everywhere[0])
+        if k != _NO_FORMULA:
+            return np.ones(count, dtype=bool), np.full(count, k)
+        made = cells.in_use(names).copy() if x else np.ones(count, dtype=bool)
+        return made, np.full(count, -1)
+    in_use = cells.in_use(names) if x else np.ones(count, dtype=bool)
     if one:
         declared_here: bool | BoolArray = bool(declared[0])
         first = np.where(in_use, min(everywhere[0], where_used[0]), everywhere[0])
@@ -335,10 +381,11 @@ def rule_mask(
     for imp in rule.implied_by:
         name = names.get(imp.stated, imp.stated)
         stated = values[name]
-        mask = np.isfinite(stated)
+        mask = np.broadcast_to(np.isfinite(stated), (count,))
         if not mask.any():  # not stated at any cell (a sweep: the whole chunk)
             implied.append((name, mask))
             continue
+        mask = mask.copy()
         shortcut = np.asarray(imp.shortcut.run[x](values), dtype=float)
         mask &= np.isfinite(shortcut) & (np.abs(stated / shortcut - 1.0) <= imp.within)
         # near a rule's threshold the shortcut and the exact value lie closer together than
@@ -360,21 +407,54 @@ def rule_mask(
     for name in rule.requires:
         if made.any():
             made &= np.isfinite(values[names.get(name, name)])
+    if made.any() and rule.when is not None:
+        made &= _gate(rule.when, x, values, count)
     if not made.any():
         indicator = (
             _cells_array(rule.expression, x, values, count)
             if all_indicators
-            else np.full(count, np.nan)
+            else np.broadcast_to(np.nan, (count,))  # read only where a rule fires
         )
         return made, indicator, implied
-    if rule.when is not None:
-        made &= _nonzero(np.broadcast_to(rule.when.run[x](values), (count,)))
     indicator = _cells_array(rule.expression, x, values, count)
     wrong_side = (
         indicator > rule.threshold if rule.relation == "above" else indicator < rule.threshold
     )
     # an infinite indicator (e.g. n_i over zero net doping) is on the wrong side too
     return made & ~np.isnan(indicator) & wrong_side, indicator, implied
+
+
+def _gate(when: Compiled, x: str, values: Values, count: int) -> BoolArray:
+    """Where a rule's gate is a nonzero number.  A gate that is a product is multiplied
+    out factor by factor in its own (left to right) order, the same arithmetic as the
+    whole expression, and left as soon as no cell is nonzero: a zero, infinite or NaN
+    partial product stays one (a gate of a stated number a sweep does not give ends at
+    that factor)."""
+    product: Any = None
+    for factor in _factors(when):
+        value = factor[x](values)
+        product = value if product is None else np.multiply(product, value)
+        if not _nonzero(product).any():
+            return np.zeros(count, dtype=bool)
+    return _nonzero(np.broadcast_to(product, (count,)))
+
+
+# (a gate's text, its carriers) -> the numpy closures of its product's factors, in order
+_FACTORS: dict[tuple[str, tuple[str, ...]], list[PerCarrier]] = {}
+
+
+def _factors(when: Compiled) -> list[PerCarrier]:
+    key = (when.text, tuple(when.run))
+    factors = _FACTORS.get(key)
+    if factors is None:
+        trees, node = [], when.tree
+        while node.kind == "*":  # a product a*b*c parses as (a*b)*c
+            node, right = node.args
+            trees.append(right)
+        trees.append(node)
+        factors = [PerCarrier(tree, key[1]) for tree in reversed(trees)]
+        _FACTORS[key] = factors
+    return factors
 
 
 def rule_indicator(rule: Rule, x: str, values: Values, count: int) -> FloatArray:

@@ -83,6 +83,23 @@ def _unknown(count: int, solved: Collection[str] = (), writable: bool = True) ->
     return values
 
 
+def one_value(array: Any) -> Any:
+    """One element of a 1-D array that repeats it (a read-only view of stride 0, as
+    :func:`_constant` makes), else the array: elementwise arithmetic on it broadcasts to
+    the values the whole array gives, computed once."""
+    if isinstance(array, np.ndarray) and array.ndim == 1 and array.size > 1:
+        if array.strides == (0,):
+            return array[:1]
+    return array
+
+
+@functools.lru_cache(maxsize=2)
+def _unknown_views(count: int) -> Values:
+    """:func:`_unknown` as read-only views, made once per chunk size (every chunk of a
+    sweep but its last has one size; a view holds one value, not ``count``)."""
+    return _unknown(count, writable=False)
+
+
 def _filled(count: int, value: object, dtype: type = float) -> npt.NDArray[Any]:
     return np.full(count, value, dtype=dtype)
 
@@ -99,6 +116,7 @@ def solve_sweep(
     acceptors: Densities,
     reads: Collection[str] | None = None,
     reference: carriers.ReferenceSolves | None = None,
+    rows: tuple[carriers.Rows, carriers.Rows] | None = None,
 ) -> tuple[Values, str | None]:
     """Every quantity over the points of a sweep of ``calc`` (arrays of one length).
     ``reads``: the names the sweep's rules read (evaluate.sweep_rules); then the words
@@ -106,16 +124,20 @@ def solve_sweep(
     intrinsic-onset temperature, the Hall factors and the carriers' velocities and mean
     free paths where no rule reads them are left unknown.  None: every quantity.
     ``reference``: the solves at the resistivity standard's reference temperature kept
-    across a sweep's chunks (carriers.ReferenceSolves; None: solved afresh)."""
+    across a sweep's chunks (carriers.ReferenceSolves; None: solved afresh).  ``rows``:
+    the points' distinct temperatures and doping rows (carriers.Rows), where the sweep's
+    grid gives them (None: found where needed)."""
     count = len(T)
-    put, skipped = solve_points(calc, T, donors, acceptors, reads=reads, reference=reference)
-    values = _unknown(count, put, writable=False)
+    put, skipped = solve_points(
+        calc, T, donors, acceptors, reads=reads, reference=reference, rows=rows
+    )
+    values = {name: view for name, view in _unknown_views(count).items() if name not in put}
     # the solve's own arrays are kept as they are; a copy only where an array would be
     # shared (a caller's input, or one array under two names) or is not yet one per point
     shared = {_memory(a) for a in (T, *donors.values(), *acceptors.values())}
     for name, array in put.items():
-        if not np.ndim(array):
-            values[name] = np.full(count, array)
+        if not np.ndim(array):  # one value for the chunk: a read-only view
+            values[name] = _constant(count, array)
         elif (
             isinstance(array, np.ndarray)
             and array.shape == (count,)
@@ -199,6 +221,7 @@ def solve_points(
     calcs: Sequence[Calculation] | None = None,
     reads: Collection[str] | None = None,
     reference: carriers.ReferenceSolves | None = None,
+    rows: tuple[carriers.Rows, carriers.Rows] | None = None,
 ) -> tuple[dict[str, ArrayIn], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
@@ -206,7 +229,7 @@ def solve_points(
     (sheet_values.sheet_inputs; default: ``first``'s own stated numbers).  ``calcs``: the
     calculation of each point (default: ``first`` for all); what only some calculations
     read (bulk modes, the solve with narrowing) is computed at their points alone;
-    ``reads``, ``reference``: see :func:`solve_sweep`."""
+    ``reads``, ``reference``, ``rows``: see :func:`solve_sweep`."""
 
     def where(reads: Callable[[Calculation], bool]) -> BoolArray:
         if calcs is None:
@@ -230,6 +253,9 @@ def solve_points(
             dim,
             velocities=reads is None or not _VELOCITY.isdisjoint(reads),
             reference=reference,
+            temperatures=rows[0] if rows else None,
+            dopings=rows[1] if rows else None,
+            only=None if reads is None else _LATTICE.intersection(reads),
         )
     except MissingParameterError as exc:
         # statistics checks still run; mobility-based ones see NaN and stay silent
@@ -265,7 +291,8 @@ def solve_points(
     # n_i is the intrinsic density of the undoped crystal; with narrowing on the solve's
     # is the effective one, n_ie
     ni = state.ni * np.exp(-narrowing / (2 * state.kT)) if first.band_gap_narrowing else state.ni
-    ni_lo, ni_hi = _ni_spread(material, T, ni)
+    # a quantity with one value for every point is given as that number (solve_sweep: a
+    # read-only view; solve_all: the same value at each calculation)
     put: dict[str, ArrayIn] = {
         "T": T,
         "kT": state.kT,
@@ -273,18 +300,18 @@ def solve_points(
         "Eg": state.Eg,
         "ni": ni,
         "nie": state.ni,
-        "ni_lo": ni_lo,
-        "ni_hi": ni_hi,
         "Nnet": net,
         "Ntot": state.donors_total + state.acceptors_total,
         "dEg_bgn": narrowing,
-        "bgn_on": np.full_like(T, float(first.band_gap_narrowing)),
-        "T_lo": np.full_like(T, T_lo),
-        "T_hi": np.full_like(T, T_hi),
-        "N_lo": np.full_like(T, N_lo),
-        "N_hi": np.full_like(T, N_hi),
-        "dim": np.full_like(T, float(dim)),
+        "bgn_on": float(first.band_gap_narrowing),
+        "T_lo": T_lo,
+        "T_hi": T_hi,
+        "N_lo": N_lo,
+        "N_hi": N_hi,
+        "dim": float(dim),
     }
+    if reads is None or not {"ni_lo", "ni_hi"}.isdisjoint(reads):
+        put["ni_lo"], put["ni_hi"] = _ni_spread(material, T, ni)
     if reads is None:  # words for reports and messages (a sweep's chunk shows none)
         put["regime"] = carriers.regime_label(state)
         # which models set the edge a point leaves (for the model-validity messages)
@@ -301,7 +328,7 @@ def solve_points(
             state.donors_total,
             state.acceptors_total,
             state.donors_ionized_total,
-            state.donor_fraction,
+            "donor_fraction",
             first.donors,
         ),
         (
@@ -312,7 +339,7 @@ def solve_points(
             state.acceptors_total,
             state.donors_total,
             state.acceptors_ionized_total,
-            state.acceptor_fraction,
+            "acceptor_fraction",
             first.acceptors,
         ),
     ):
@@ -327,9 +354,14 @@ def solve_points(
                 f"N_{x}": own,
                 f"Ncomp_{x}": other,
                 f"Nion_{x}": ionized,
-                f"f_{x}": fraction,
-                f"mott_{x}": np.full_like(T, mott),
-                f"metal_{x}": (own >= mott).astype(float),
+                # (a property that sums the ionized densities again: where read)
+                f"f_{x}": getattr(state, fraction)
+                if reads is None or f"f_{x}" in reads
+                else np.nan,
+                f"mott_{x}": mott,
+                f"metal_{x}": (own >= mott).astype(float)
+                if reads is None or f"metal_{x}" in reads
+                else np.nan,
                 f"mu_{x}": flow[f"mu_{x}"],
                 f"mu0_{x}": flow[f"mu0_{x}"],
                 f"cond_{x}": flow[f"cond_{x}"],
@@ -337,8 +369,8 @@ def solve_points(
                 f"beta_{x}": flow[f"beta_{x}"],
                 f"vth_{x}": flow[f"v_{x}"],
                 f"lambda_model_{x}": flow[f"mfp_{x}"],
-                f"Eion_{x}": np.full_like(T, main.energy if main else np.nan),
-                f"gdeg_{x}": np.full_like(T, main.degeneracy if main else np.nan),
+                f"Eion_{x}": main.energy if main else np.nan,
+                f"gdeg_{x}": main.degeneracy if main else np.nan,
             }
         )
     put.update(
@@ -350,13 +382,21 @@ def solve_points(
     majority_n = (state.n >= state.p * (1 - 1e-9)).astype(float)
     put["maj_n"], put["maj_p"] = majority_n, 1.0 - majority_n
     for x in Carrier:
+        if reads is not None and _HALL.isdisjoint(reads):
+            break  # the measured Hall factors are read by _hall alone
         low, high, (t_low, t_high) = material.hall_factors.get(x.singular, (np.nan, np.nan, (0, 0)))
         inside = (T >= t_low) & (T <= t_high)
         put[f"rH_lo_{x}"] = np.where(inside, low, np.nan)
         put[f"rH_hi_{x}"] = np.where(inside, high, np.nan)
     put.update(_band_shape_values(state, dim))
-    modes_at = where(conductor_values.has_cross_section)
-    put.update(conductor_values.band_values(first, T, put, sheet=False, modes_at=modes_at))
+    if reads is not None:
+        # other names of the solve's arrays that no rule of the sweep reads: left unknown
+        # instead of copied
+        for name in _ALIASES.difference(reads):
+            put.pop(name, None)
+    if reads is None or not _BAND_POWERS.isdisjoint(reads):
+        modes_at = where(conductor_values.has_cross_section)
+        put.update(conductor_values.band_values(first, T, put, sheet=False, modes_at=modes_at))
     return put, skipped
 
 
@@ -451,10 +491,22 @@ def _ni_spread(material: Material, T: FloatArray, ni: FloatArray) -> tuple[Float
     if material.ni_published is None:
         # no tabulated spread: the model value +-5 % (common practice (no source))
         return ni / 1.05, ni * 1.05
-    at_300 = equilibrium.solve(material, np.array([300.0])).ni[0]
+    at_300 = _ni_at_300(material)
     low, high = material.ni_published
     scale = ni / at_300
     return np.minimum(ni, low * scale), np.maximum(ni, high * scale)
+
+
+# material id -> (the material, its model n_i at 300 K): one solve per material, not one
+# per call (a sweep calls once per chunk); the material is kept so its id stays its own
+_NI_300: dict[int, tuple[Material, float]] = {}
+
+
+def _ni_at_300(material: Material) -> float:
+    kept = _NI_300.get(id(material))
+    if kept is None or kept[0] is not material:
+        kept = _NI_300[id(material)] = (material, float(equilibrium.solve(material, 300.0).ni))
+    return kept[1]
 
 
 def fill_inputs(
@@ -467,10 +519,16 @@ def fill_inputs(
     written into ``values``.  ``count``: the points of a sweep, which all share the single
     calculation given; ``reads``: see :func:`solve_sweep`."""
     size = len(calculations) if count is None else count
+    # a sweep's chunk: quantities with one value for the chunk are worked on as one element
+    # each until derive_corrected, then given back as read-only views over the chunk
+    compact = count is not None and count > 1
+    if compact:
+        for name, array in values.items():
+            values[name] = one_value(array)
 
     def column(getter: Callable[[Calculation], float]) -> FloatArray:
-        if count is not None:  # a sweep: one value for the whole chunk (read-only)
-            return _constant(count, getter(calculations[0]))
+        if count is not None:  # a sweep: one value for the whole chunk
+            return np.full(1, getter(calculations[0]), dtype=float)
         return (
             np.array([getter(c) for c in calculations], dtype=float)
             if calculations
@@ -512,6 +570,8 @@ def fill_inputs(
     values["stated_rho"] = np.where(np.isfinite(rho), rho, 1.0 / sigma)
     ec, ev = stated("stated_ef_minus_ec"), stated("stated_ef_minus_ev")
     kT, Eg = values["kT"], values["Eg"]
+    if compact and not (np.isfinite(ec).any() or np.isfinite(ev).any()):
+        kT, Eg = kT[:1], Eg[:1]  # no stated Fermi level: NaN at every point, computed once
     values["stated_eta_n"] = np.where(np.isfinite(ec), ec, ev - Eg) / kT
     values["stated_eta_p"] = -np.where(np.isfinite(ev), ev, ec + Eg) / kT
     specific: dict[str, BoolArray] = {}
@@ -526,13 +586,19 @@ def fill_inputs(
     # the bulk solve's Einstein ratio (the sheet solve gives its own from the energy window)
     ratio_unknown = ~np.isfinite(values["einstein_n"])
     for x in Carrier:
+        if not ratio_unknown.any():
+            break
         bulk_ratio = _bulk_einstein_ratio(values[f"eta_{x}"], values["dim"], ratio_unknown)
         values[f"einstein_{x}"] = np.where(ratio_unknown, bulk_ratio, values[f"einstein_{x}"])
     for name in ("linear", "subbands"):
         values[name] = np.nan_to_num(values[name], nan=0.0)
     # tau ∝ E^r: the Hall factor's and the Landauer value's lambda(E)
     values["hall_r"] = column(lambda c: c.hall_exponent)
-    derive_corrected(values, {})
+    if compact:
+        for name, array in values.items():
+            if np.shape(array) == (1,):
+                values[name] = np.broadcast_to(array, (size,))
+    derive_corrected(values, {}, reads)
     values["sigma_model"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["mu_n"]
         + values["dens_p"] * values["cond_p"] * values["mu_p"]
@@ -546,6 +612,12 @@ def fill_inputs(
 _VELOCITY = frozenset(
     f"{stem}_{x}" for stem in ("vth", "lambda_model", "lambda", "modes_a") for x in Carrier
 ) | {"modes", "G_ballistic", "G_energy", "G_landauer"}
+# what carrier_transport gives only where asked and solve_points puts (its sigma and rho
+# solve_points does not read: derive_corrected gives those of the corrected calculation)
+_LATTICE = frozenset(f"{stem}_{x}" for stem in ("mu0", "vsat", "beta") for x in Carrier)
+# quantities a bulk solve may give as another quantity's array (the parabolic band's
+# Fermi level and density, n_i without narrowing)
+_ALIASES = frozenset({"nie"} | {f"{stem}_{x}" for stem in ("eta_par", "dens_par") for x in Carrier})
 # what _hall gives (a sweep whose rules read none of it skips the Hall factors' F_j moments)
 _HALL = frozenset({"rH_n", "rH_p", "n_hall", "n_hall_lo", "n_hall_hi"})
 
@@ -562,14 +634,29 @@ def _typical_mobility(calc: Calculation, field: str, carrier: Carrier | None = N
 REPLACEABLE = ("used_mu_n", "used_mu_p", "used_rho", "dens_n", "dens_p")
 
 
-def derive_corrected(values: Values, replaced: Replaced) -> None:
+# what conductor_values gives, and what derive_corrected gives besides the mobilities,
+# sigma and rho (a sweep's chunk computes them only where a rule reads them)
+_CONDUCTANCE = frozenset({"modes", "G_ballistic", "G_energy", "G_landauer"})
+# what reads the bands' k^2 power and the bulk modes (band_values): the conductances
+_BAND_POWERS = _CONDUCTANCE | {f"{stem}_{x}" for stem in ("kpower", "modes_a") for x in Carrier}
+_MEAN_FREE_PATHS = frozenset(f"lambda_{x}" for x in Carrier)
+_SHEET_CONDUCTANCE = frozenset({"sigma_s", "Rs"})
+
+
+def derive_corrected(
+    values: Values, replaced: Replaced, reads: Collection[str] | None = None
+) -> None:
     """The quantities of the corrected calculation that follow from the mobility, the
     resistivity and the densities it uses, written into ``values``.
 
     A stated mobility or resistivity is used unless a rule rejected it: ``replaced`` maps
     a name of REPLACEABLE to a boolean array of the cells where a rule's ``replaces:``
     put the model's value in (evaluate.rule_cells applies it, then calls this again), so
-    everything downstream -- mean free path, σ, ρ, R, D -- follows one chain."""
+    everything downstream -- mean free path, σ, ρ, R, D -- follows one chain.
+    ``reads``: see :func:`solve_sweep` (the mean free paths, a sheet's conductance and the
+    conductances of conductor_values only where read; None: all)."""
+    conductances = reads is None or not _CONDUCTANCE.isdisjoint(reads)
+    paths = conductances or not _MEAN_FREE_PATHS.isdisjoint(reads or ())
 
     def kept(name: str) -> BoolArray | bool:
         return ~replaced[name] if name in replaced else True
@@ -580,6 +667,8 @@ def derive_corrected(values: Values, replaced: Replaced) -> None:
         values[f"used_mu_{x}"] = used
     _symmetric_cones(values)
     for x in Carrier:
+        if not paths:
+            break
         used = values[f"used_mu_{x}"]
         # the mean free path scales with the mobility used; a sheet without a mobility
         # model: lambda = 2D/<v_x+>, D = mu (kT/q) (D/mu ratio)
@@ -598,13 +687,20 @@ def derive_corrected(values: Values, replaced: Replaced) -> None:
         np.isfinite(stated_rho) & kept("used_rho"), stated_rho, values["rho"]
     )
     # a sheet: sheet conductance of the carriers it holds (an absent carrier adds nothing)
-    values["sigma_s"] = ELEMENTARY_CHARGE * conductor_values.carrier_sum(
-        [values[f"ns_{x}"] * values[f"used_mu_{x}"] for x in Carrier]
-    )
-    values["Rs"] = 1.0 / values["sigma_s"]
+    sheets = [values[f"ns_{x}"] for x in Carrier]
+    if all(a.strides == (0,) and a.size > 1 and np.isnan(a[0]) for a in sheets):
+        # a sweep's bulk chunk: no sheet density anywhere, so none (each its own view)
+        count = sheets[0].size
+        values["sigma_s"], values["Rs"] = _constant(count, np.nan), _constant(count, np.nan)
+    elif reads is None or not _SHEET_CONDUCTANCE.isdisjoint(reads):
+        values["sigma_s"] = ELEMENTARY_CHARGE * conductor_values.carrier_sum(
+            [values[f"ns_{x}"] * values[f"used_mu_{x}"] for x in Carrier]
+        )
+        values["Rs"] = 1.0 / values["sigma_s"]
     # modes, ballistic limit and the energy-resolved Landauer conductance at the mobility
     # used (lambda(E) = lambda_0 (E/kT)^r, lambda_0 from sigma)
-    conductor_values.conductor_values(values)
+    if conductances:
+        conductor_values.conductor_values(values)
 
 
 def _symmetric_cones(values: Values) -> None:
@@ -623,6 +719,7 @@ def _bulk_einstein_ratio(eta: FloatArray, dims: FloatArray, at: BoolArray) -> Fl
     """(D/mu)/(kT/q) of the parabolic bulk solve at the points ``at`` (F_j ratio of each
     point's dimensionality; NaN elsewhere)."""
     out = np.full_like(eta, np.nan)
+    dims = np.broadcast_to(dims, eta.shape)
     for dim in distinct(dims[np.isfinite(dims) & at]):
         pick = (dims == dim) & np.isfinite(eta) & at
         if pick.any():

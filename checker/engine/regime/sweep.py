@@ -20,7 +20,7 @@ import numpy as np
 
 from ...inputs.calculation_file import AxisKey
 from ...physics import carriers
-from ...physics.arrays import ArrayIn, BoolArray, FloatArray
+from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray, distinct_points
 from ..findings import Embodied, carrier_word
 from .evaluate import Cells, beyond, rule_cells, rule_indicator, sweep_rules
 from .points import CalculationReport, check_points
@@ -41,10 +41,12 @@ Boundary: TypeAlias = "tuple[Axis, Axis | None, list[BoundaryRow]]"
 # (rule id, carrier) -> (failing mask over the grid, worst flat index)
 Masks: TypeAlias = dict[tuple[str, str], tuple[BoolArray, int]]
 
-# points solved and ruled at a time: a chunk's ~150 quantities and their temporaries take
-# ~3 kB a point, so 32k points keep a sweep of any size near 100 MB of working set, and the
-# solve still splits each chunk over two threads
-CHUNK = 1 << 15
+# points solved and ruled at a time: a chunk's quantities and their temporaries take ~1 kB
+# a point, so 64k points keep a sweep of any size near 135 MB peak (a 2000 x 2000 grid,
+# bench/bench_sweep.py); the solve of a 64k chunk costs 0.78x that of two 32k ones (its
+# blocks on two threads) and a chunk's fixed costs are spread over twice the points
+# (128k points: no faster, 170 MB)
+CHUNK = 1 << 16
 ROWS_SHOWN = 5  # rows of a 2D grid whose boundary is written out
 
 
@@ -100,9 +102,74 @@ class GridQuantity:
 
     def __getitem__(self, index: int | slice | ArrayIn) -> FloatArray:
         """Values at an index, a slice or an integer array of flat indices."""
-        at = np.arange(*index.indices(self.size)) if isinstance(index, slice) else index
-        picked: FloatArray = self.values[(np.asarray(at) // self.stride) % self.values.size]
+        picked: FloatArray = self.values[self.codes(index)]
         return picked
+
+    def codes(self, index: int | slice | ArrayIn) -> IndexArray:
+        """The index into ``values`` at an index, a slice or flat indices."""
+        if isinstance(index, slice) and index.step in (None, 1):
+            start, stop, _ = index.indices(self.size)
+            return self._run(start, max(start, stop))
+        at = np.arange(*index.indices(self.size)) if isinstance(index, slice) else index
+        codes: IndexArray = (np.asarray(at) // self.stride) % self.values.size
+        return codes
+
+    def rows(self, start: int, stop: int) -> carriers.Rows:
+        """(one point of each of ``values`` present at flat indices start ... stop - 1, each
+        point's row), as carriers.Rows: from the grid's structure, with no pass over the
+        points but the one that numbers them (the first flat index >= start of each code
+        is found per code)."""
+        count, stride = self.values.size, self.stride
+        block = start // stride
+        # the first block at or after start's with each code, and its first flat index
+        first = np.maximum(start, (block + (np.arange(count) - block) % count) * stride)
+        present = first < stop
+        row = np.cumsum(present) - 1
+        return first[present] - start, row[self._run(start, stop)]
+
+    def _run(self, start: int, stop: int) -> IndexArray:
+        """The codes of flat indices start ... stop - 1: runs of ``stride`` equal codes,
+        built as such (no integer division per point)."""
+        count, stride = self.values.size, self.stride
+        if count == 1 or stop == start:
+            return np.zeros(stop - start, dtype=np.intp)
+        if stride == 1:
+            return np.arange(start, stop, dtype=np.intp) % count
+        first, last = start // stride, (stop - 1) // stride
+        lengths = np.full(last - first + 1, stride, dtype=np.intp)
+        lengths[0] -= start - first * stride
+        lengths[-1] -= (last + 1) * stride - stop
+        return np.repeat(np.arange(first, last + 1, dtype=np.intp) % count, lengths)
+
+
+def grid_rows(
+    T: GridQuantity, dopings: Sequence[GridQuantity], at: slice
+) -> tuple[carriers.Rows, carriers.Rows]:
+    """The distinct temperatures and doping rows of the points ``at`` (carriers.Rows),
+    from the grid's axis indices (no sort of the values)."""
+    swept = [quantity for quantity in dopings if quantity.values.size > 1]
+    if len(swept) <= 1:  # one doping axis (or none): its rows are the doping rows
+        one = swept[0] if swept else GridQuantity(0.0, 1, T.size)
+        return T.rows(at.start, at.stop), one.rows(at.start, at.stop)
+    doping = np.zeros(at.stop - at.start, dtype=np.intp)
+    for quantity in swept:
+        doping = doping * quantity.values.size + quantity.codes(at)
+    return T.rows(at.start, at.stop), _rows(doping)
+
+
+def _rows(codes: IndexArray) -> carriers.Rows:
+    """(one point of each distinct code, every point's row) of non-negative codes."""
+    low = int(codes.min())
+    span = int(codes.max()) - low + 1
+    if span > 4 * codes.size:  # sparse codes: sorted (two doping axes, no temperature)
+        return distinct_points([codes.astype(float)], codes.size)
+    shifted = codes - low
+    present = np.zeros(span, dtype=bool)
+    present[shifted] = True
+    some = np.empty(span, dtype=np.intp)
+    some[shifted] = np.arange(codes.size)  # any point of each code will do
+    row = np.cumsum(present) - 1
+    return some[present], row[shifted]
 
 
 def grid(calc: Calculation) -> GridPoints:
@@ -217,19 +284,26 @@ def rule_grid(
             {s: a[start:stop] for s, a in acceptors.items()},
             reads,
             reference,
+            grid_rows(T, [*donors.values(), *acceptors.values()], slice(start, stop)),
         )
         if skipped and skipped not in notes:
             notes.append(skipped)
-        for ruled in rule_cells(rules, Cells.grid(calc, values, stop - start, embodied)):
+        for ruled in rule_cells(rules, Cells.grid(calc, values, stop - start, embodied, reads)):
             if not ruled.fired.any():
                 continue
             key = (ruled.rule.id, ruled.x)
-            masks.setdefault(key, np.zeros(size, dtype=bool))[start:stop] = ruled.fired
+            if key not in masks:
+                masks[key] = np.zeros(size, dtype=bool)
+            masks[key][start:stop] = ruled.fired
+            # the worst fired cell (the first of equals): a fired indicator lies beyond
+            # its threshold, so its excess is > 0 (an infinite one counts as 1e300)
+            fired = np.flatnonzero(ruled.fired)
             with np.errstate(all="ignore"):
-                excess = np.where(ruled.fired, np.nan_to_num(ruled.excess(), posinf=1e300), -np.inf)
+                excess = np.nan_to_num(beyond(ruled.rule, ruled.indicator[fired]), posinf=1e300)
             best = int(np.argmax(excess))
             if key not in worst or excess[best] > worst[key][0]:
-                worst[key] = (float(excess[best]), start + best)
+                worst[key] = (float(excess[best]), start + int(fired[best]))
+        values = {}  # the chunk's arrays go before the next chunk is solved, not beside it
         if progress:
             progress(stop, size)
     return {key: (mask.reshape(shape), worst[key][1]) for key, mask in masks.items()}, notes
