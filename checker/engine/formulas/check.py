@@ -50,8 +50,6 @@ from .symbols import dimension_of, parse_side
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
 
-# formula symbol -> its exact value (SI) at one operating point
-Point: TypeAlias = dict[str, float]
 # a factor of a product or quotient: (tree, +1 up / -1 down)
 Factor: TypeAlias = tuple[Node, int]
 
@@ -263,8 +261,11 @@ def _has_dimension(tree: Node, dim: int, target: dm.Dimension) -> bool:
 
 
 # ---- values at the operating point ----------------------------------------------------------
-def operating_values(values: Values, calculations: Sequence[Calculation]) -> list[Point | None]:
-    """Per calculation, every formula symbol's exact value at its operating point (SI)."""
+def _operating_groups(
+    values: Values, calculations: Sequence[Calculation]
+) -> list[tuple[list[int], dict[str, np.ndarray]]]:
+    """(members, every formula symbol's values over them) per group of calculations that
+    share one world of definitions (dimension, majority carrier, band)."""
     count = len(calculations)
     known = {name: np.asarray(values[key], dtype=float) for name, key in _FROM_STATE.items()}
     kT = values["kT"]
@@ -296,7 +297,7 @@ def operating_values(values: Values, calculations: Sequence[Calculation]) -> lis
     # alpha kT of a Kane conduction band (0: parabolic), the definitions' beta_kane_n
     known["beta_kane_n"] = _column(values, "beta_kane_n", count)
     bands = point_bands(values, dims)
-    out: list[Point | None] = [None] * count
+    out = []
     groups: dict[tuple[int, str, str], list[int]] = {}
     for i, calc in enumerate(calculations):
         groups.setdefault((int(dims[i]), calc.majority, bands[i]), []).append(i)
@@ -309,10 +310,7 @@ def operating_values(values: Values, calculations: Sequence[Calculation]) -> lis
                     point[name] = np.broadcast_to(
                         to_numpy(base.definitions[name])(point), (len(members),)
                     )
-        # each symbol's column as Python floats once, not a numpy scalar per point
-        columns = {name: np.asarray(array, dtype=float).tolist() for name, array in point.items()}
-        for k, i in enumerate(members):
-            out[i] = {name: column[k] for name, column in columns.items()}
+        out.append((members, point))
     return out
 
 
@@ -339,12 +337,15 @@ _compiled = lru_cache(maxsize=4096)(to_numpy)
 _text_of = lru_cache(maxsize=4096)(to_text)
 
 
-def _evaluate(tree: Node, point: Mapping[str, float]) -> float:
+def _evaluate(tree: Node, point: Mapping[str, np.ndarray], count: int) -> list[float]:
+    """The tree's value at each of ``count`` points (NaN where a symbol has no value)."""
     try:
         with np.errstate(all="ignore"):
-            return float(_compiled(tree)(point))
+            found = np.asarray(_compiled(tree)(point), dtype=float)
     except KeyError:
-        return math.nan
+        return [math.nan] * count
+    column: list[float] = np.broadcast_to(found, (count,)).tolist()
+    return column
 
 
 # ---- one formula text -----------------------------------------------------------------------
@@ -430,24 +431,6 @@ def analyse_calculation(calc: Calculation, band: str = "parabolic") -> FormulaAn
     return out
 
 
-def _points(
-    calculations: Sequence[Calculation], values: Values, skip: Collection[int]
-) -> list[Point | None]:
-    """Every formula symbol's value per calculation with formulas (None: none, or skipped)."""
-    with_formulas = [i for i, c in enumerate(calculations) if c.formulas]
-    points: list[Point | None] = [None] * len(calculations)
-    solved = [i for i in with_formulas if i not in skip]
-    if solved:
-        subset = {
-            name: np.asarray(array)[solved] if np.ndim(array) else array
-            for name, array in values.items()
-        }
-        found = operating_values(subset, [calculations[i] for i in solved])
-        for i, point in zip(solved, found):
-            points[i] = point
-    return points
-
-
 def analyse_all(calculations: Sequence[Calculation], values: Values) -> list[FormulaAnalysis]:
     """FormulaAnalysis per calculation (the values at the operating point: evaluate_all,
     once the rules have corrected the calculation)."""
@@ -469,21 +452,42 @@ def evaluate_all(
 ) -> None:
     """Each formula's value and the exact value at its operating point, from ``values``
     as the rules left them (the corrected calculation: a rejected stated
-    mobility no longer sets the exact D a formula line is compared with)."""
-    points = _points(calculations, values, skip)
-    for analysis, point in zip(analyses, points):
-        if analysis is not None and point is not None:
-            for result in analysis.results:
+    mobility no longer sets the exact D a formula line is compared with).
+
+    Each side of a formula is evaluated once, as a vector over the calculations of a
+    group that share its world of definitions (a file of 1,000 calculations states a
+    handful of distinct formulas)."""
+    solved = [i for i, c in enumerate(calculations) if c.formulas and i not in skip]
+    if not solved:
+        return
+    subset = {
+        name: np.asarray(array)[solved] if np.ndim(array) else array
+        for name, array in values.items()
+    }
+    for members, point in _operating_groups(subset, [calculations[i] for i in solved]):
+        sides: dict[Node, list[tuple[int, FormulaResult, str]]] = {}
+        placed: list[tuple[int, FormulaResult]] = []
+        for k, i in enumerate(members):
+            analysis = analyses[solved[i]]
+            for result in analysis.results if analysis is not None else ():
                 if result.match is not None:
-                    _value(result, point)
+                    sides.setdefault(result.rhs, []).append((k, result, "value"))
+                    sides.setdefault(result.lhs, []).append((k, result, "exact"))
+                    placed.append((k, result))
+        for tree, uses in sides.items():
+            column = _evaluate(tree, point, len(members))
+            for k, result, side in uses:
+                setattr(result, side, column[k])
+        kT = (np.asarray(point["k"], dtype=float) * point["T"]).tolist() if placed else []
+        for k, result in placed:
+            _set_error(result, kT[k])
 
 
-def _value(result: FormulaResult, point: Mapping[str, float]) -> None:
-    result.value, result.exact = _evaluate(result.rhs, point), _evaluate(result.lhs, point)
+def _set_error(result: FormulaResult, kT: float) -> None:
     result.error = math.nan
     if math.isfinite(result.value) and math.isfinite(result.exact):
         if result.energy:
-            result.error = (result.value - result.exact) / (point["k"] * point["T"])
+            result.error = (result.value - result.exact) / kT
         elif result.exact != 0:
             result.error = result.value / result.exact - 1.0
 
