@@ -96,14 +96,20 @@ def corrected_lines(report) -> list:
     ]
 
 
+def _shown(text: str) -> str:
+    """visible(text), without its pattern search where every character is printable (no
+    character it escapes is: each is a control, format, surrogate or non-character)."""
+    return text if text.isprintable() else visible(text)
+
+
 class _PlainText:
     """The part of rich's Text used here, for output without colour (no rich import)."""
 
     def __init__(self, text=""):
-        self.parts = [visible(text)]
+        self.parts = [_shown(text)]
 
     def append(self, text, style=""):
-        self.parts.append(visible(text))
+        self.parts.append(_shown(text))
 
     def append_safe(self, text, style=""):
         """Append text already made visible (or our own words): no second pass."""
@@ -164,7 +170,7 @@ def render_console(result, console=None, stream=None) -> None:
 
     def add(text, line, style="", indent=8):
         margin = " " * indent
-        for part in wrapped(visible(line), width - indent):
+        for part in wrapped(_shown(line), width - indent):
             text.append_safe(margin + part + "\n", style=style)
 
     for report in result.reports:
