@@ -523,7 +523,7 @@ def formula_findings(
 ) -> list[Finding]:
     """FORM01-03 findings of one calculation; ``rules`` maps rule id -> Rule."""
     out: list[Finding] = []
-    covered = _covered(analysis, rules, rule_findings)
+    covered: set[str] | None = None  # found where a formula is off (most are not)
     for result in analysis.results:
         fields = {
             "formula": result.text,
@@ -538,6 +538,17 @@ def formula_findings(
                 out.append(_finding(rule, calc, result, _fill(rule.message, fields), []))
             continue
         match = result.matched
+        form03 = rules.get("FORM03")
+        # FORM03 where the value is off at this point (None: it is not)
+        off_rule = None
+        if form03 is not None and math.isfinite(result.error):
+            if abs(result.error) > form03.threshold:
+                if covered is None:
+                    covered = _covered(analysis, rules, rule_findings)
+                off_rule = None if result.text in covered else form03
+        unmatched = match.status == "unrecognised" and "FORM02" in rules and off_rule is None
+        if not unmatched and off_rule is None:
+            continue  # no finding: its message and correction are not written
         fields.update(
             {
                 "value": result.show(result.value),
@@ -571,20 +582,10 @@ def formula_findings(
                     key=result.key,
                 )
             )
-        form03 = rules.get("FORM03")
-        # FORM03 where the value is off at this point (None: it is not)
-        off_rule = (
-            form03
-            if form03 is not None
-            and math.isfinite(result.error)
-            and abs(result.error) > form03.threshold
-            and result.text not in covered
-            else None
-        )
         # one finding per formula line: off at this point, a formula is FORM03's (a
         # warning) whether or not it matches a relation; FORM02 (info) is left for one
         # that matches none but agrees here
-        if match.status == "unrecognised" and "FORM02" in rules and off_rule is None:
+        if unmatched:
             rule = rules["FORM02"]
             out.append(_finding(rule, calc, result, _fill(rule.message, fields), corrections))
         if off_rule is not None:
