@@ -151,18 +151,25 @@ class _Where:
         self.path, self.positions = path, positions
 
     def __call__(self, *keys) -> str:
-        for cut in range(len(keys), -1, -1):
-            if keys[:cut] in self.positions:
-                line, col = self.positions[keys[:cut]]
-                return f"{self.path}:{line}:{col}"
-        return self.path
+        found = self.positions.get(keys)  # the key itself, nearly always
+        if found is None:
+            for cut in range(len(keys) - 1, -1, -1):
+                if keys[:cut] in self.positions:
+                    found = self.positions[keys[:cut]]
+                    break
+            else:
+                return self.path
+        return f"{self.path}:{found[0]}:{found[1]}"
 
     def key(self, *keys) -> str:
         """file:line:column and the key path, e.g. 'f.yaml:7:3: structure.voltage'."""
         return f"{self(*keys)}: {'.'.join(map(str, keys))}"
 
     def line(self, *keys) -> int:
-        for cut in range(len(keys), -1, -1):
+        found = self.positions.get(keys)
+        if found is not None:
+            return found[0]
+        for cut in range(len(keys) - 1, -1, -1):
             if keys[:cut] in self.positions:
                 return self.positions[keys[:cut]][0]
         return 0
