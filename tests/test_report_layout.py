@@ -277,3 +277,11 @@ def test_every_character_the_console_escapes_is_unprintable():
         if chr(code).isprintable() and _UNSAFE.match(chr(code))
     ]
     assert printable_escaped == []
+
+
+def test_a_closing_newline_does_not_let_an_escape_through():
+    from checker.report.check_report import _shown
+    from checker.report.safe_text import visible
+
+    for text in ("name\x1b[2J\n", "\u202eabc\n", "plain\n", "plain", "\n", ""):
+        assert _shown(text) == visible(text)

@@ -97,9 +97,11 @@ def corrected_lines(report) -> list:
 
 
 def _shown(text: str) -> str:
-    """visible(text), without its pattern search where every character is printable (no
-    character it escapes is: each is a control, format, surrogate or non-character)."""
-    return text if text.isprintable() else visible(text)
+    """visible(text), without its pattern search where every character but a closing
+    newline (which it keeps) is printable (no character it escapes is: each is a
+    control, format, surrogate or non-character)."""
+    body = text[:-1] if text[-1:] == "\n" else text
+    return text if body.isprintable() else visible(text)
 
 
 class _PlainText:
