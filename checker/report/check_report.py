@@ -172,6 +172,10 @@ def render_console(result, console=None, stream=None) -> None:
 
     def add(text, line, style="", indent=8):
         margin = " " * indent
+        short = len(line) <= width - indent and line[:1] != " " and line[-1:] != " "
+        if short and line.isprintable():
+            text.append_safe(margin + line + "\n", style=style)  # wrapped() would keep it whole
+            return
         for part in wrapped(_shown(line), width - indent):
             text.append_safe(margin + part + "\n", style=style)
 
