@@ -108,6 +108,13 @@ def test_marks_count_characters_as_pyyaml_does(text):
         "{a: 1, a: 2}\n",
         "a: 1\n---\n" + "".join("  " * i + f"k{i}:\n" for i in range(40)) + "---\nb: 2\n",
         "x: [{a: [b, {c: d}]}]\n" * 3 + "y: [" * 30 + "]" * 30 + "\n",
+        # at the nesting limit and either side of it: mappings, sequences, an empty one
+        *(
+            "".join("  " * i + f"k{i}:\n" for i in range(n)) + "  " * n + "v\n"
+            for n in (31, 32, 33)
+        ),
+        *("- " * n + "x\n" for n in (31, 32)),
+        *("- " * n + "[]\n" for n in (31, 32)),
     ],
 )
 def test_refusals_are_pyyaml_s(text):

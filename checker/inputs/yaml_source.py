@@ -422,27 +422,37 @@ def _tree_is_plain(root) -> bool:
     """No duplicate or composite key, no node MAX_NESTING or more levels deep and no
     double-quoted scalar writing a forbidden character (the strict rules' checks that a
     text without '&' and '!' can still fail)."""
-    stack = [(root, 0)]
-    scalar, mapping = yaml.ScalarNode, yaml.MappingNode
+    scalar = yaml.ScalarNode
+    if type(root) is scalar:
+        return _plain_scalar(root)
+    stack = [(root, 0)]  # collections and their depth; a scalar is checked in place
     while stack:
         node, depth = stack.pop()
-        if depth >= MAX_NESTING:
-            return False
-        kind = type(node)
-        if kind is scalar:
-            if node.style == '"' and _FORBIDDEN.search(node.value):
-                return False
+        if not node.value:
             continue
-        if kind is mapping:
+        if depth + 1 >= MAX_NESTING:  # where its children stand
+            return False
+        if type(node) is yaml.MappingNode:
             keys = set()
             for key, value in node.value:
-                if type(key) is not scalar or key.value in keys:
+                if type(key) is not scalar or key.value in keys or not _plain_scalar(key):
                     return False
                 keys.add(key.value)
-                stack += ((key, depth + 1), (value, depth + 1))
+                if type(value) is not scalar:
+                    stack.append((value, depth + 1))
+                elif not _plain_scalar(value):
+                    return False
         else:
-            stack.extend((child, depth + 1) for child in node.value)
+            for child in node.value:
+                if type(child) is not scalar:
+                    stack.append((child, depth + 1))
+                elif not _plain_scalar(child):
+                    return False
     return True
+
+
+def _plain_scalar(node) -> bool:
+    return node.style != '"' or not _FORBIDDEN.search(node.value)
 
 
 def _compose(loader_class, text: str, name: str, bad_characters: list, fallback=False):
