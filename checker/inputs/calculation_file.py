@@ -124,12 +124,21 @@ class FileResult(Record):
 
 
 def _plain(node, path, positions):
-    positions[path] = (node.start_mark.line + 1, node.start_mark.column + 1)
+    mark = node.start_mark
+    positions[path] = (mark.line + 1, mark.column + 1)
     if isinstance(node, yaml.MappingNode):
-        # keys are plain scalars: the strict loader refuses any other
-        return {
-            key.value: _plain(value, path + (key.value,), positions) for key, value in node.value
-        }
+        # keys are plain scalars: the strict loader refuses any other; a scalar value
+        # (most of them) is taken here, without a call
+        out = {}
+        for key, value in node.value:
+            here = path + (key.value,)
+            if type(value) is yaml.ScalarNode:
+                mark = value.start_mark
+                positions[here] = (mark.line + 1, mark.column + 1)
+                out[key.value] = value.value
+            else:
+                out[key.value] = _plain(value, here, positions)
+        return out
     if isinstance(node, yaml.SequenceNode):
         return [_plain(child, path + (i,), positions) for i, child in enumerate(node.value)]
     return node.value  # scalar text, parsed later by us
