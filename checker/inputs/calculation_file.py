@@ -596,12 +596,11 @@ def _assumptions(entries, where) -> dict:
         )
     out = {}
     for i, word in enumerate(entries):
-        here = where("assumes", i)
         text = normal_word(word)
         text = ASSUMPTION_SPELLINGS.get(text, text)
         if text not in ASSUMPTIONS:
             hint = did_you_mean(text, ASSUMPTIONS) or f"known: {', '.join(ASSUMPTIONS)}"
-            raise InputError(f"{here}: unknown assumption {word!r}; {hint}")
+            raise InputError(f"{where('assumes', i)}: unknown assumption {word!r}; {hint}")
         out[text] = where.line("assumes", i)
     return out
 

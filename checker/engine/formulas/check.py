@@ -22,7 +22,6 @@ from __future__ import annotations
 
 import math
 from collections.abc import Collection, Iterable, Mapping, Sequence
-from copy import copy
 from dataclasses import dataclass, field
 from functools import lru_cache
 from itertools import combinations
@@ -421,8 +420,10 @@ def analyse_calculation(calc: Calculation, band: str = "parabolic") -> FormulaAn
         except InputError as exc:
             out.errors.append(str(exc))
             continue
-        result = copy(known)  # the text's shared analysis, placed at this line
-        result.where, result.line = where, line
+        # the text's shared analysis, placed at this line (a shallow copy, as copy.copy
+        # makes of a dataclass, without its pickling protocol: 2,000 of them in a file)
+        result = object.__new__(FormulaResult)
+        result.__dict__.update(known.__dict__, where=where, line=line)
         out.results.append(result)
         if result.match is None:
             continue
