@@ -8,10 +8,10 @@ input or usage, 3 internal error.  Bad input never shows a traceback.
 
 from __future__ import annotations
 
-import argparse
 import os
 import sys
 from pathlib import Path
+from types import SimpleNamespace
 
 from .close_words import close_matches
 from .errors import RegimecheckError
@@ -20,207 +20,7 @@ from .vocabulary_words import SEVERITIES
 EXIT_OK, EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 EXIT_BROKEN_PIPE = 141  # 128 + SIGPIPE, as a shell reports it
 EXIT_INTERRUPTED = 130  # 128 + SIGINT
-
-
-def _terminal_columns() -> int:
-    """What shutil.get_terminal_size gives argparse (COLUMNS, else the terminal of the
-    standard output, else 80), without importing shutil and the archive modules it pulls
-    in on every run: argparse builds a formatter for each option it is given."""
-    try:
-        columns = int(os.environ.get("COLUMNS", "0"))
-    except ValueError:
-        columns = 0
-    if columns <= 0:
-        try:
-            columns = os.get_terminal_size(sys.__stdout__.fileno()).columns  # type: ignore[union-attr]
-        except (AttributeError, ValueError, OSError):
-            columns = 0
-    return columns or 80
-
-
-def _formatter(prog: str) -> argparse.HelpFormatter:
-    return argparse.HelpFormatter(prog, width=_terminal_columns() - 2)  # argparse's margin
-
-
-class _Parser(argparse.ArgumentParser):
-    def __init__(self, *args, **kwargs):
-        kwargs.setdefault("formatter_class", _formatter)
-        super().__init__(*args, **kwargs)
-
-    def error(self, message):  # usage errors exit 2 with a one-line hint
-        self.print_usage(sys.stderr)
-        print(f"regimecheck: {message}", file=sys.stderr)
-        raise SystemExit(EXIT_INPUT)
-
-
-class _Version(argparse.Action):
-    """--version: the installed version, looked up only when asked for."""
-
-    def __init__(self, option_strings, dest, **kwargs):
-        super().__init__(option_strings, dest, nargs=0, help="print the version and exit")
-
-    def __call__(self, parser, *_):
-        from importlib.metadata import PackageNotFoundError, version
-
-        try:
-            number = version("regimecheck")
-        except PackageNotFoundError:  # run from a source tree that is not installed
-            from . import __version__
-
-            number = __version__
-        print(f"regimecheck {number}")
-        parser.exit()
-
-
-def _parser() -> argparse.ArgumentParser:
-    parser = _Parser(
-        prog="regimecheck",
-        description="Solve and check semiconductor operating points.",
-        epilog="Environment: REGIMECHECK_CACHE=<folder> or off (the user cache of validated "
-        "rules, built-in materials and formula matches; default $XDG_CACHE_HOME/regimecheck "
-        "or ~/.cache/regimecheck), REGIMECHECK_DEBUG=1 (show a traceback on an internal "
-        "error).",
-    )
-    parser.add_argument("--version", action=_Version)
-    sub = parser.add_subparsers(dest="command", required=True)
-    check = sub.add_parser("check", help="check calculation files (files or directories)")
-    check.add_argument(
-        "paths",
-        nargs="+",
-        help="calculation files (.yaml), memos (.md), tables (.csv), directories",
-    )
-    check.add_argument(
-        "--skip-unrelated",
-        action="store_true",
-        help="skip named files that hold no calculation (memos without a "
-        "regimecheck block, other YAML), as a directory walk does; for "
-        "pre-commit hooks",
-    )
-    _report_options(check)
-    state = sub.add_parser("state", help="solve every calculation in YAML files")
-    state.add_argument("paths", nargs="+", help="calculation files (.yaml)")
-    state.add_argument("--format", choices=("console", "json"), default="console")
-    point = sub.add_parser("point", help="solve one operating point given on the command line")
-    point.add_argument("--material", required=True, help="built-in material, e.g. Si, GaAs, 4H-SiC")
-    point.add_argument("--temperature", required=True, help="e.g. 300K or 27degC")
-    point.add_argument(
-        "--donor",
-        action="append",
-        default=[],
-        metavar="SPECIES=DENSITY",
-        help="e.g. P=1e17cm-3 (repeatable)",
-    )
-    point.add_argument(
-        "--acceptor",
-        action="append",
-        default=[],
-        metavar="SPECIES=DENSITY",
-        help="e.g. B=1e15cm-3 (repeatable)",
-    )
-    point.add_argument("--narrowing", action="store_true", help="apply band-gap narrowing")
-    point.add_argument("--dimensionality", type=int, choices=(1, 2, 3), default=3)
-    point.add_argument(
-        "--field", help="applied field, e.g. 20kV/cm (checks the low-field shortcut)"
-    )
-    point.add_argument(
-        "--length", help="conductor length, e.g. 100nm (checks the diffusive shortcut)"
-    )
-    _report_options(point)
-    regime = sub.add_parser(
-        "map",
-        help="regime map of a material and dopant over doping and "
-        "temperature, with checked points (PNG or SVG)",
-    )
-    regime.add_argument("paths", nargs="*", help="calculation files whose points are drawn")
-    regime.add_argument("--material", help="built-in material (default: the files')")
-    regime.add_argument("--dopant", help="dopant species, e.g. P (default: the files')")
-    regime.add_argument(
-        "--doping-range",
-        default="1e13:1e21",
-        metavar="FROM:TO",
-        help="dopant density range in cm^-3 (default 1e13:1e21)",
-    )
-    regime.add_argument(
-        "--temperature-range",
-        default="20:700",
-        metavar="FROM:TO",
-        help="temperature range in K (default 20:700)",
-    )
-    regime.add_argument(
-        "--resolution", type=int, default=200, help="grid points along each axis (default 200)"
-    )
-    regime.add_argument("--output", required=True, metavar="FILE", help="a .png or .svg file")
-    curve = sub.add_parser(
-        "curve",
-        help="η of the majority carrier vs temperature at one "
-        "doping, with the regimes marked (PNG or SVG)",
-    )
-    curve.add_argument("--material", required=True)
-    curve.add_argument("--doping", required=True, metavar="SPECIES=DENSITY", help="e.g. P=1e17cm-3")
-    curve.add_argument(
-        "--temperature-range",
-        default="20:700",
-        metavar="FROM:TO",
-        help="temperature range in K (default 20:700)",
-    )
-    curve.add_argument("--output", required=True, metavar="FILE", help="a .png or .svg file")
-    listing = sub.add_parser(
-        "materials", help="list the built-in materials: bands, models, dopants, sources"
-    )
-    listing.add_argument("name", nargs="*", help="only these materials (name or alias)")
-    sub.add_parser("rules", help="list the checks")
-    symbols = sub.add_parser("symbols", help="the trade symbols a stated formula may use")
-    symbols.add_argument(
-        "--dimensionality",
-        type=int,
-        choices=(1, 2, 3),
-        default=3,
-        help="dimensionality the units are shown for (default 3)",
-    )
-    explain = sub.add_parser("explain", help="what a check tests, why, and how to fix it")
-    explain.add_argument("rule", help="a rule id, e.g. STAT02")
-    return parser
-
-
 FORMATS = ("console", "compact", "json", "markdown", "sarif", "junit", "html")
-
-
-def _report_options(command):
-    command.add_argument(
-        "--format",
-        choices=FORMATS,
-        default=None,
-        help="console (default), compact (one line per finding and per clean "
-        "calculation, for CI logs), json, markdown (to paste under a memo), "
-        "sarif (SARIF 2.1.0), junit (JUnit XML), html (a self-contained "
-        "review report with regime maps); with --output and no "
-        "--format, the file's suffix chooses (.json .md .sarif .xml "
-        ".html .txt)",
-    )
-    command.add_argument(
-        "--output",
-        metavar="FILE",
-        help="write the report to FILE (UTF-8) instead of the terminal; "
-        "never over an input, and only once the report is complete",
-    )
-    command.add_argument(
-        "--fail-on",
-        choices=SEVERITIES,
-        default=None,
-        help="lowest severity that makes the exit code 1 (default: the "
-        "configuration's fail-level, else warning)",
-    )
-    command.add_argument(
-        "--config",
-        metavar="FILE",
-        help="TOML settings file (default: [tool.regimecheck] of the first "
-        "pyproject.toml from here upward)",
-    )
-    command.add_argument(
-        "--exit-zero",
-        action="store_true",
-        help="exit 0 even when there are findings (input errors still exit 2)",
-    )
 
 
 def _quantity(text, dimension, option):
@@ -653,6 +453,60 @@ def _cmd_materials(args) -> int:
     return EXIT_OK
 
 
+# `check PATH...` with these options after the paths is read without argparse (its import
+# and the parser's ~40 options are some 4 ms of a 0.1 s run); anything else is argparse's
+_CHECK_FLAGS = {"--exit-zero": "exit_zero", "--skip-unrelated": "skip_unrelated"}
+_CHECK_VALUES = {
+    "--format": "format",
+    "--output": "output",
+    "--fail-on": "fail_on",
+    "--config": "config",
+}
+
+
+def _arguments(argv):
+    """The command line as argparse reads it (cli_parser): ``check`` followed by paths and
+    then options, each once, in their plain spelling, is read here to the same values;
+    anything else (--help, another command, an abbreviated option, an option before a
+    path, ``--format=json``) goes to argparse, which also words every usage error."""
+    words = sys.argv[1:] if argv is None else list(argv)
+    plain = _plain_check(words)
+    if plain is not None:
+        return plain
+    from .cli_parser import parser
+
+    return parser().parse_args(argv)
+
+
+def _plain_check(words):
+    """The parsed ``check`` command line, or None where argparse must read it."""
+    if len(words) < 2 or words[0] != "check" or not all(isinstance(w, str) and w for w in words):
+        return None
+    paths: list[str] = []
+    while len(paths) + 1 < len(words) and not words[len(paths) + 1].startswith("-"):
+        paths.append(words[len(paths) + 1])
+    args = SimpleNamespace(version=None, command="check", paths=paths, skip_unrelated=False)
+    args.__dict__.update(format=None, output=None, fail_on=None, config=None, exit_zero=False)
+    rest, seen = words[len(paths) + 1 :], set()
+    while rest:
+        option = rest.pop(0)
+        if option in seen or not (option in _CHECK_FLAGS or option in _CHECK_VALUES):
+            return None
+        seen.add(option)
+        if option in _CHECK_FLAGS:
+            setattr(args, _CHECK_FLAGS[option], True)
+            continue
+        if not rest or rest[0].startswith("-"):
+            return None
+        value = rest.pop(0)
+        if (option == "--format" and value not in FORMATS) or (
+            option == "--fail-on" and value not in SEVERITIES
+        ):
+            return None
+        setattr(args, _CHECK_VALUES[option], value)
+    return args if paths else None
+
+
 def main(argv=None) -> int:
     import warnings
 
@@ -671,7 +525,7 @@ def _run(argv) -> int:
     from .report.safe_text import visible
 
     try:
-        args = _parser().parse_args(argv)
+        args = _arguments(argv)
         # main() without arguments is the command itself (the console script, python -m
         # checker): the process is the run's own, so its collector may be tuned
         args.own_process = argv is None

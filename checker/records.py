@@ -145,3 +145,15 @@ class FrozenRecord(_Fields):
 def record_fields(record: _Fields) -> Iterator[tuple[str, Any]]:
     """(name, value) of each field of a record, in order."""
     return ((key, getattr(record, key)) for key in record._fields)
+
+
+R = TypeVar("R", bound=_Fields)
+
+
+def replace(record: R, **changes: Any) -> R:
+    """A new record of the same type with ``changes`` to its fields (as
+    dataclasses.replace: the fields go through ``__init__`` and ``__post_init__`` again)."""
+    unknown = set(changes) - set(record._fields)
+    if unknown:
+        raise TypeError(f"{type(record).__name__} has no field {sorted(unknown)[0]!r}")
+    return type(record)(**{**dict(record_fields(record)), **changes})

@@ -56,3 +56,12 @@ def test_temperature():
 def test_refusals(text, dimension, message):
     with pytest.raises(InputError, match=message):
         parse_quantity(text, dimension, "f.yaml:3:5")
+
+
+def test_a_table_spelling_is_its_own_normal_form():
+    # _normal_unit keeps a unit spelled as in the table without normalizing it (start-up:
+    # the normalizing patterns are then never compiled); sound only if normalizing would
+    # leave every such spelling as it is
+    from checker.inputs.quantities import UNITS, _normalized_unit
+
+    assert [unit for unit in UNITS if _normalized_unit(unit) != unit] == []

@@ -7,7 +7,7 @@ import pickle
 
 import pytest
 
-from checker.records import FrozenRecord, field, record_fields
+from checker.records import FrozenRecord, field, record_fields, replace
 
 
 class Gap(FrozenRecord):
@@ -144,3 +144,18 @@ def test_a_mutable_default_is_refused_and_a_record_holding_itself_has_a_repr():
     box = Box()
     box.content = box
     assert repr(box).endswith("<locals>.Box(content=...)")
+
+
+def test_replace_matches_dataclasses_replace():
+    # the same new record as the standard library's dataclasses.replace, and the same
+    # refusal of a name that is no field
+    ours, theirs = Gap(1.17, 4.73e-4), Gap_(1.17, 4.73e-4)
+    changed, reference = replace(ours, beta=600.0), dataclasses.replace(theirs, beta=600.0)
+    assert list(record_fields(changed)) == [
+        (f.name, getattr(reference, f.name)) for f in dataclasses.fields(reference)
+    ]
+    assert ours.beta == 636.0 and type(changed) is Gap
+    with pytest.raises(TypeError):
+        dataclasses.replace(theirs, gamma=1.0)
+    with pytest.raises(TypeError):
+        replace(ours, gamma=1.0)

@@ -260,3 +260,28 @@ def test_console_wrapping_is_the_standard_library_wrap():
         width = rng.randint(1, 60)
         expected = textwrap.wrap(line, width, break_on_hyphens=False) or [""]
         assert wrapped(line, width) == expected, (line, width)
+
+
+def test_every_character_the_console_escapes_is_unprintable():
+    # the plain console report skips visible()'s pattern search for a printable line:
+    # sound only if no character it escapes counts as printable (Unicode categories
+    # Cc, Cf, Cs, Cn, Zl, Zp and separators other than the space are not: Python's
+    # str.isprintable), checked over every code point
+    import sys
+
+    from checker.report.safe_text import _UNSAFE
+
+    printable_escaped = [
+        hex(code)
+        for code in range(sys.maxunicode + 1)
+        if chr(code).isprintable() and _UNSAFE.match(chr(code))
+    ]
+    assert printable_escaped == []
+
+
+def test_a_closing_newline_does_not_let_an_escape_through():
+    from checker.report.check_report import _shown
+    from checker.report.safe_text import visible
+
+    for text in ("name\x1b[2J\n", "\u202eabc\n", "plain\n", "plain", "\n", ""):
+        assert _shown(text) == visible(text)

@@ -101,6 +101,20 @@ def test_marks_count_characters_as_pyyaml_does(text):
         "a: [b\n",
         "a: 1\n---\nb: &y 2\nc: *y\n---\nd: 3\n",
         "[" * 40 + "]" * 40 + "\n---\na: 1\n",
+        # refusals in a text without '&' or '!': libyaml's tree is built, then refused
+        "a: *x\n",  # an alias with no anchor
+        '"k\\x07": 1\n',  # an escape writing a control character in a key
+        "a:\n  b: 1\n  b: 2\n",  # a repeated key below the top
+        "{a: 1, a: 2}\n",
+        "a: 1\n---\n" + "".join("  " * i + f"k{i}:\n" for i in range(40)) + "---\nb: 2\n",
+        "x: [{a: [b, {c: d}]}]\n" * 3 + "y: [" * 30 + "]" * 30 + "\n",
+        # at the nesting limit and either side of it: mappings, sequences, an empty one
+        *(
+            "".join("  " * i + f"k{i}:\n" for i in range(n)) + "  " * n + "v\n"
+            for n in (31, 32, 33)
+        ),
+        *("- " * n + "x\n" for n in (31, 32)),
+        *("- " * n + "[]\n" for n in (31, 32)),
     ],
 )
 def test_refusals_are_pyyaml_s(text):
@@ -158,3 +172,20 @@ def test_a_walked_file_is_parsed_once(tmp_path, monkeypatch):
     assert [c.name for c in read.calculations] == ["a"] and read.errors == []
     assert skipped.calculations == [] and skipped.errors == []  # some other YAML
     assert calls == [str(calc), str(other)]
+
+
+def test_a_plain_file_is_composed_by_libyaml(monkeypatch):
+    """A text without anchors, tags or refused constructs (the usual file) is composed
+    by libyaml's own composer, and reads as PyYAML's pure-Python parser reads it."""
+    composed = []
+    original = yaml_source._tree_is_plain
+
+    def seen(node):
+        composed.append(node)
+        return original(node)
+
+    monkeypatch.setattr(yaml_source, "_tree_is_plain", seen)
+    text = "---\n".join(path.read_text(encoding="utf-8") for path in EXAMPLES[:3])
+    assert "&" not in text and "!" not in text
+    assert_reads_as_pyyaml(text)
+    assert len(composed) == len(list(yaml.compose_all(text, Loader=yaml.SafeLoader)))  # noqa: S506

@@ -124,12 +124,21 @@ class FileResult(Record):
 
 
 def _plain(node, path, positions):
-    positions[path] = (node.start_mark.line + 1, node.start_mark.column + 1)
+    mark = node.start_mark
+    positions[path] = (mark.line + 1, mark.column + 1)
     if isinstance(node, yaml.MappingNode):
-        # keys are plain scalars: the strict loader refuses any other
-        return {
-            key.value: _plain(value, path + (key.value,), positions) for key, value in node.value
-        }
+        # keys are plain scalars: the strict loader refuses any other; a scalar value
+        # (most of them) is taken here, without a call
+        out = {}
+        for key, value in node.value:
+            here = path + (key.value,)
+            if type(value) is yaml.ScalarNode:
+                mark = value.start_mark
+                positions[here] = (mark.line + 1, mark.column + 1)
+                out[key.value] = value.value
+            else:
+                out[key.value] = _plain(value, here, positions)
+        return out
     if isinstance(node, yaml.SequenceNode):
         return [_plain(child, path + (i,), positions) for i, child in enumerate(node.value)]
     return node.value  # scalar text, parsed later by us
@@ -151,18 +160,25 @@ class _Where:
         self.path, self.positions = path, positions
 
     def __call__(self, *keys) -> str:
-        for cut in range(len(keys), -1, -1):
-            if keys[:cut] in self.positions:
-                line, col = self.positions[keys[:cut]]
-                return f"{self.path}:{line}:{col}"
-        return self.path
+        found = self.positions.get(keys)  # the key itself, nearly always
+        if found is None:
+            for cut in range(len(keys) - 1, -1, -1):
+                if keys[:cut] in self.positions:
+                    found = self.positions[keys[:cut]]
+                    break
+            else:
+                return self.path
+        return f"{self.path}:{found[0]}:{found[1]}"
 
     def key(self, *keys) -> str:
         """file:line:column and the key path, e.g. 'f.yaml:7:3: structure.voltage'."""
         return f"{self(*keys)}: {'.'.join(map(str, keys))}"
 
     def line(self, *keys) -> int:
-        for cut in range(len(keys), -1, -1):
+        found = self.positions.get(keys)
+        if found is not None:
+            return found[0]
+        for cut in range(len(keys) - 1, -1, -1):
             if keys[:cut] in self.positions:
                 return self.positions[keys[:cut]][0]
         return 0
@@ -580,12 +596,11 @@ def _assumptions(entries, where) -> dict:
         )
     out = {}
     for i, word in enumerate(entries):
-        here = where("assumes", i)
         text = normal_word(word)
         text = ASSUMPTION_SPELLINGS.get(text, text)
         if text not in ASSUMPTIONS:
             hint = did_you_mean(text, ASSUMPTIONS) or f"known: {', '.join(ASSUMPTIONS)}"
-            raise InputError(f"{here}: unknown assumption {word!r}; {hint}")
+            raise InputError(f"{where('assumes', i)}: unknown assumption {word!r}; {hint}")
         out[text] = where.line("assumes", i)
     return out
 

@@ -143,33 +143,38 @@ _FACTOR = rf"(?:{_NAME}{_POWER}|1)"
 _PRODUCT = rf"{_FACTOR}(?:[*/]{_FACTOR})*"
 _UNIT = rf"/?(?:{_PRODUCT}|\({_PRODUCT}\))(?:[*/](?:{_FACTOR}|\({_PRODUCT}\)))*"
 _QUANTITY = re.compile(rf"^\s*({NUMBER})\s*(.{{0,40}}?)\s*$")
-_UNIT_GATE = re.compile(rf"^{_UNIT}$")
-_TRAILING_POWER = re.compile(r"([A-Za-z])(-?\d{1,2})(?![\d.])")
+# The patterns below are compiled on first use (re keeps them): a check whose units are
+# all spelled as in the table, in ASCII, needs none of them.
+_UNIT_GATE = rf"^{_UNIT}$"
+_TRAILING_POWER = r"([A-Za-z])(-?\d{1,2})(?![\d.])"
 
 _SUPERSCRIPTS = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹⁻⁺", "0123456789-+")
-_SUPERSCRIPT_RUN = re.compile(f"[⁻⁺]?[{_SUPER}]+")
+_SUPERSCRIPT_RUN = f"[⁻⁺]?[{_SUPER}]+"
 # a hyphen between unit names is a product (ohm-cm, V-s); before a digit it is an exponent
-_HYPHEN_PRODUCT = re.compile(r"(?<=[A-Za-z0-9Ωµμ])-(?=[A-Za-zΩµμ])")
+_HYPHEN_PRODUCT = r"(?<=[A-Za-z0-9Ωµμ])-(?=[A-Za-zΩµμ])"
 # after '/', names joined by the trade product marks form the denominator: cm²/V·s
-_DOT_DENOMINATOR = re.compile(
-    r"/([A-Za-zΩµμ]+(?:\^-?\d{1,2})?(?:[·⋅×][A-Za-zΩµμ]+(?:\^-?\d{1,2})?)+)"
-)
+_DOT_DENOMINATOR = r"/([A-Za-zΩµμ]+(?:\^-?\d{1,2})?(?:[·⋅×][A-Za-zΩµμ]+(?:\^-?\d{1,2})?)+)"
 
 
 def _normal_text(text: str) -> str:
     """Superscript exponents as ^n and the minus sign as '-' (number and unit alike)."""
     if text.isascii():  # both are outside ASCII: the usual text is already normal
         return text
-    text = _SUPERSCRIPT_RUN.sub(lambda m: "^" + m.group(0).translate(_SUPERSCRIPTS), text)
+    text = re.sub(_SUPERSCRIPT_RUN, lambda m: "^" + m.group(0).translate(_SUPERSCRIPTS), text)
     return text.replace("\u2212", "-")
 
 
 @lru_cache(maxsize=512)
 def _normal_unit(unit: str) -> str:
     """The trade spellings of a unit in the form of the table: Ω·cm -> ohm*cm, µm -> um
-    (kept per spelling: a file of many calculations writes the same few units)."""
-    unit = _HYPHEN_PRODUCT.sub("·", unit.replace(" ", ""))
-    unit = _DOT_DENOMINATOR.sub(r"/(\1)", unit)
+    (kept per spelling: a file of many calculations writes the same few units).  A
+    spelling of the table is its own normal form (test): it is kept as it is."""
+    return unit if unit in UNITS else _normalized_unit(unit)
+
+
+def _normalized_unit(unit: str) -> str:
+    unit = re.sub(_HYPHEN_PRODUCT, "·", unit.replace(" ", ""))
+    unit = re.sub(_DOT_DENOMINATOR, r"/(\1)", unit)
     for mark in "·⋅×":
         unit = unit.replace(mark, "*")
     unit = unit.replace("Ω", "ohm").replace("µ", "u").replace("μ", "u")
@@ -244,7 +249,7 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
 
 def _pint_unit(unit: str, dimension: str, text, place: str):
     """(dimension, factor to SI) of a unit outside the table, read by pint."""
-    if not _UNIT_GATE.match(unit) or unit.count("(") > 2:
+    if not re.match(_UNIT_GATE, unit) or unit.count("(") > 2:
         raise InputError(
             f"{place}cannot read the unit {unit!r} in {text!r}; write a unit such "
             f"as {example(dimension)}"
@@ -267,7 +272,7 @@ def _pint_unit(unit: str, dimension: str, text, place: str):
                     f"{example(dimension)}"
                 )
         quantity = registry.Quantity(
-            1.0, registry.parse_units(_TRAILING_POWER.sub(r"\1**\2", core.replace("^", "**")))
+            1.0, registry.parse_units(re.sub(_TRAILING_POWER, r"\1**\2", core.replace("^", "**")))
         )
     except InputError:
         raise

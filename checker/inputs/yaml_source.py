@@ -101,6 +101,22 @@ _BRACKETS = re.compile(r"[\[\]{}]")
 _FLOW_CHARACTERS = re.compile(r"[\[\]{}\"']")
 
 
+_DOCUMENT_MARKS = re.compile(r"^(?:---|\.\.\.)(?:\s|$)", re.MULTILINE)
+
+
+def _has_deep_document(text: str) -> bool:
+    """Whether some document (the text between two '---' or '...' lines) holds more
+    than MAX_NESTING '[' and '{', the fewest that can nest deeper (the usual file of
+    many calculations has a few in each, and is then not read line by line)."""
+    if text.count("[") + text.count("{") <= MAX_NESTING:
+        return False
+    starts = [0, *(mark.start() for mark in _DOCUMENT_MARKS.finditer(text)), len(text)]
+    return any(
+        text.count("[", start, end) + text.count("{", start, end) > MAX_NESTING
+        for start, end in zip(starts, starts[1:])
+    )
+
+
 def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
     """(text with every document whose '[' / '{' brackets nest deeper than MAX_NESTING
     blanked, one message per such document).
@@ -109,8 +125,8 @@ def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
     this is decided on the text before parsing.  Blank lines keep the line numbers of the
     other documents, which are still read.  Quoted text is skipped roughly: a bracket in
     quotes counts only where the quotes are unbalanced on their line."""
-    if text.count("[") + text.count("{") <= MAX_NESTING:
-        return text, []  # too few brackets to nest that deep (the usual file)
+    if not _has_deep_document(text):
+        return text, []  # too few brackets in any document to nest that deep
     lines = text.split("\n")
     errors: list[str] = []
     start, depth, deep = 0, 0, None
@@ -283,15 +299,28 @@ def _pure_only(text: str) -> bool:
     return "\t" in text or "?" in text or "!" in text or "\ufeff" in text[1:]
 
 
+class _PlainTags:
+    """Scalars are not resolved (every value is read as text by regimecheck): each node
+    gets the plain tag of its kind."""
+
+    def resolve(self, kind, value, implicit):
+        return _PLAIN_TAGS[kind]
+
+    def descend_resolver(self, parent, index):  # no path-dependent tags
+        pass
+
+    def ascend_resolver(self):
+        pass
+
+
 if _CParser is not None:
 
-    class _StrictEventLoader(_StrictRules, _CParser):
+    class _StrictEventLoader(_StrictRules, _PlainTags, _CParser):
         """The strict rules composed in Python over libyaml's events (which carry the
         same line and column marks): the scanner and parser, most of the cost, run in C.
         libyaml's own composer is not used: it resolves aliases and keeps no trace of
-        an explicit tag or a repeated key.  Scalars are not resolved (every value is
-        read as text by regimecheck), so each gets the plain-text tag; libyaml's marks name
-        no file, so messages take the name from the loader."""
+        an explicit tag or a repeated key.  libyaml's marks name no file, so messages
+        take the name from the loader."""
 
         def __init__(self, stream):
             _CParser.__init__(self, stream)
@@ -362,18 +391,68 @@ if _CParser is not None:
                 self._check_scalar(node)
             return node
 
-        def resolve(self, kind, value, implicit):
-            return _PLAIN_TAGS[kind]
+    class _PlainTreeLoader(_PlainTags, _CParser):
+        """libyaml's own composer (the whole node tree built in C), for a text that can
+        hold no anchor, alias or tag (no '&', '*' at a node's start is then an undefined
+        alias, which libyaml refuses).  The strict rules' other checks (duplicate and
+        composite keys, nesting, escapes in double quotes) are run over the finished
+        tree by :func:`_tree_is_plain`; a tree that fails one, or a YAML error, sends the
+        text back to the event composer, which words every message."""
 
-        def descend_resolver(self, parent, index):  # no path-dependent tags
-            pass
+        def __init__(self, stream):
+            _CParser.__init__(self, stream)
+            self.problems, self._depth = [], 0
 
-        def ascend_resolver(self):
-            pass
+        def get_node(self):
+            node = _CParser.get_node(self)
+            if node is not None and not _tree_is_plain(node):
+                raise _NotPlain
+            return node
 
     _COMPOSER: type = _StrictEventLoader
 else:  # PyYAML built without libyaml
     _COMPOSER = _StrictLoader
+
+
+class _NotPlain(yaml.YAMLError):
+    """A tree the strict rules would refuse or word: composed again event by event."""
+
+
+def _tree_is_plain(root) -> bool:
+    """No duplicate or composite key, no node MAX_NESTING or more levels deep and no
+    double-quoted scalar writing a forbidden character (the strict rules' checks that a
+    text without '&' and '!' can still fail)."""
+    scalar = yaml.ScalarNode
+    if type(root) is scalar:
+        return _plain_scalar(root)
+    stack = [(root, 0)]  # collections and their depth; a scalar is checked in place
+    while stack:
+        node, depth = stack.pop()
+        if not node.value:
+            continue
+        if depth + 1 >= MAX_NESTING:  # where its children stand
+            return False
+        if type(node) is yaml.MappingNode:
+            keys = set()
+            for key, value in node.value:
+                if type(key) is not scalar or key.value in keys or not _plain_scalar(key):
+                    return False
+                keys.add(key.value)
+                if type(value) is not scalar:
+                    stack.append((value, depth + 1))
+                elif not _plain_scalar(value):
+                    return False
+        else:
+            for child in node.value:
+                if type(child) is not scalar:
+                    stack.append((child, depth + 1))
+                elif not _plain_scalar(child):
+                    return False
+    return True
+
+
+def _plain_scalar(node) -> bool:
+    return node.style != '"' or not _FORBIDDEN.search(node.value)
 
 
 def _compose(loader_class, text: str, name: str, bad_characters: list, fallback=False):
@@ -419,6 +498,11 @@ def compose_documents(text: str, name: str) -> tuple[list, list]:
     if _COMPOSER is _StrictLoader or _pure_only(text):
         nodes, errors = _compose(_StrictLoader, text, name, bad_characters)
         return nodes, deep + _with_unreported(errors, bad_characters)
+    if not bad_characters and "&" not in text:
+        try:  # the usual file: nothing to refuse, the tree built by libyaml
+            return _compose(_PlainTreeLoader, text, name, [], fallback=True)[0], deep
+        except yaml.YAMLError:
+            pass  # something to refuse or to word: the strict composer below says it
     try:
         nodes, errors = _compose(_COMPOSER, text, name, bad_characters, fallback=True)
     except yaml.YAMLError:

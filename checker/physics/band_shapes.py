@@ -16,12 +16,12 @@ electron gases); A. H. Castro Neto et al., Rev. Mod. Phys. 81, 109 (2009) (graph
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import Literal
 
 import numpy as np
 
 from ..errors import InputError
+from ..records import FrozenRecord
 from .arrays import ArrayIn
 from .bands import Band, DiracBand, KaneBand, parabolic_subbands
 from .constants import BOLTZMANN, ELECTRON_MASS, HBAR
@@ -30,8 +30,7 @@ BandModel = Literal["parabolic", "kane", "linear"]
 BAND_MODELS: tuple[BandModel, ...] = ("parabolic", "kane", "linear")
 
 
-@dataclass(frozen=True)
-class BandShape:
+class BandShape(FrozenRecord):
     """How a material describes one carrier's band (no temperature dependence).
 
     ``model``: "parabolic", "kane" (E(1 + alpha E) = hbar^2 k^2/2m*) or "linear"

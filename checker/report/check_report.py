@@ -96,14 +96,22 @@ def corrected_lines(report) -> list:
     ]
 
 
+def _shown(text: str) -> str:
+    """visible(text), without its pattern search where every character but a closing
+    newline (which it keeps) is printable (no character it escapes is: each is a
+    control, format, surrogate or non-character)."""
+    body = text[:-1] if text[-1:] == "\n" else text
+    return text if body.isprintable() else visible(text)
+
+
 class _PlainText:
     """The part of rich's Text used here, for output without colour (no rich import)."""
 
     def __init__(self, text=""):
-        self.parts = [visible(text)]
+        self.parts = [_shown(text)]
 
     def append(self, text, style=""):
-        self.parts.append(visible(text))
+        self.parts.append(_shown(text))
 
     def append_safe(self, text, style=""):
         """Append text already made visible (or our own words): no second pass."""
@@ -164,7 +172,11 @@ def render_console(result, console=None, stream=None) -> None:
 
     def add(text, line, style="", indent=8):
         margin = " " * indent
-        for part in wrapped(visible(line), width - indent):
+        short = len(line) <= width - indent and line[:1] != " " and line[-1:] != " "
+        if short and line.isprintable():
+            text.append_safe(margin + line + "\n", style=style)  # wrapped() would keep it whole
+            return
+        for part in wrapped(_shown(line), width - indent):
             text.append_safe(margin + part + "\n", style=style)
 
     for report in result.reports:

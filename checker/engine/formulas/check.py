@@ -22,7 +22,6 @@ from __future__ import annotations
 
 import math
 from collections.abc import Collection, Iterable, Mapping, Sequence
-from copy import copy
 from dataclasses import dataclass, field
 from functools import lru_cache
 from itertools import combinations
@@ -50,8 +49,6 @@ from .symbols import dimension_of, parse_side
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
 
-# formula symbol -> its exact value (SI) at one operating point
-Point: TypeAlias = dict[str, float]
 # a factor of a product or quotient: (tree, +1 up / -1 down)
 Factor: TypeAlias = tuple[Node, int]
 
@@ -263,8 +260,11 @@ def _has_dimension(tree: Node, dim: int, target: dm.Dimension) -> bool:
 
 
 # ---- values at the operating point ----------------------------------------------------------
-def operating_values(values: Values, calculations: Sequence[Calculation]) -> list[Point | None]:
-    """Per calculation, every formula symbol's exact value at its operating point (SI)."""
+def _operating_groups(
+    values: Values, calculations: Sequence[Calculation]
+) -> list[tuple[list[int], dict[str, np.ndarray]]]:
+    """(members, every formula symbol's values over them) per group of calculations that
+    share one world of definitions (dimension, majority carrier, band)."""
     count = len(calculations)
     known = {name: np.asarray(values[key], dtype=float) for name, key in _FROM_STATE.items()}
     kT = values["kT"]
@@ -296,7 +296,7 @@ def operating_values(values: Values, calculations: Sequence[Calculation]) -> lis
     # alpha kT of a Kane conduction band (0: parabolic), the definitions' beta_kane_n
     known["beta_kane_n"] = _column(values, "beta_kane_n", count)
     bands = point_bands(values, dims)
-    out: list[Point | None] = [None] * count
+    out = []
     groups: dict[tuple[int, str, str], list[int]] = {}
     for i, calc in enumerate(calculations):
         groups.setdefault((int(dims[i]), calc.majority, bands[i]), []).append(i)
@@ -309,10 +309,7 @@ def operating_values(values: Values, calculations: Sequence[Calculation]) -> lis
                     point[name] = np.broadcast_to(
                         to_numpy(base.definitions[name])(point), (len(members),)
                     )
-        # each symbol's column as Python floats once, not a numpy scalar per point
-        columns = {name: np.asarray(array, dtype=float).tolist() for name, array in point.items()}
-        for k, i in enumerate(members):
-            out[i] = {name: column[k] for name, column in columns.items()}
+        out.append((members, point))
     return out
 
 
@@ -339,12 +336,15 @@ _compiled = lru_cache(maxsize=4096)(to_numpy)
 _text_of = lru_cache(maxsize=4096)(to_text)
 
 
-def _evaluate(tree: Node, point: Mapping[str, float]) -> float:
+def _evaluate(tree: Node, point: Mapping[str, np.ndarray], count: int) -> list[float]:
+    """The tree's value at each of ``count`` points (NaN where a symbol has no value)."""
     try:
         with np.errstate(all="ignore"):
-            return float(_compiled(tree)(point))
+            found = np.asarray(_compiled(tree)(point), dtype=float)
     except KeyError:
-        return math.nan
+        return [math.nan] * count
+    column: list[float] = np.broadcast_to(found, (count,)).tolist()
+    return column
 
 
 # ---- one formula text -----------------------------------------------------------------------
@@ -420,32 +420,16 @@ def analyse_calculation(calc: Calculation, band: str = "parabolic") -> FormulaAn
         except InputError as exc:
             out.errors.append(str(exc))
             continue
-        result = copy(known)  # the text's shared analysis, placed at this line
-        result.where, result.line = where, line
+        # the text's shared analysis, placed at this line (a shallow copy, as copy.copy
+        # makes of a dataclass, without its pickling protocol: 2,000 of them in a file)
+        result = object.__new__(FormulaResult)
+        result.__dict__.update(known.__dict__, where=where, line=line)
         out.results.append(result)
         if result.match is None:
             continue
         for word, carrier in result.match.assumptions:
             out.embodied.append(Embodied(word, carrier, line, text))
     return out
-
-
-def _points(
-    calculations: Sequence[Calculation], values: Values, skip: Collection[int]
-) -> list[Point | None]:
-    """Every formula symbol's value per calculation with formulas (None: none, or skipped)."""
-    with_formulas = [i for i, c in enumerate(calculations) if c.formulas]
-    points: list[Point | None] = [None] * len(calculations)
-    solved = [i for i in with_formulas if i not in skip]
-    if solved:
-        subset = {
-            name: np.asarray(array)[solved] if np.ndim(array) else array
-            for name, array in values.items()
-        }
-        found = operating_values(subset, [calculations[i] for i in solved])
-        for i, point in zip(solved, found):
-            points[i] = point
-    return points
 
 
 def analyse_all(calculations: Sequence[Calculation], values: Values) -> list[FormulaAnalysis]:
@@ -469,21 +453,42 @@ def evaluate_all(
 ) -> None:
     """Each formula's value and the exact value at its operating point, from ``values``
     as the rules left them (the corrected calculation: a rejected stated
-    mobility no longer sets the exact D a formula line is compared with)."""
-    points = _points(calculations, values, skip)
-    for analysis, point in zip(analyses, points):
-        if analysis is not None and point is not None:
-            for result in analysis.results:
+    mobility no longer sets the exact D a formula line is compared with).
+
+    Each side of a formula is evaluated once, as a vector over the calculations of a
+    group that share its world of definitions (a file of 1,000 calculations states a
+    handful of distinct formulas)."""
+    solved = [i for i, c in enumerate(calculations) if c.formulas and i not in skip]
+    if not solved:
+        return
+    subset = {
+        name: np.asarray(array)[solved] if np.ndim(array) else array
+        for name, array in values.items()
+    }
+    for members, point in _operating_groups(subset, [calculations[i] for i in solved]):
+        sides: dict[Node, list[tuple[int, FormulaResult, str]]] = {}
+        placed: list[tuple[int, FormulaResult]] = []
+        for k, i in enumerate(members):
+            analysis = analyses[solved[i]]
+            for result in analysis.results if analysis is not None else ():
                 if result.match is not None:
-                    _value(result, point)
+                    sides.setdefault(result.rhs, []).append((k, result, "value"))
+                    sides.setdefault(result.lhs, []).append((k, result, "exact"))
+                    placed.append((k, result))
+        for tree, uses in sides.items():
+            column = _evaluate(tree, point, len(members))
+            for k, result, side in uses:
+                setattr(result, side, column[k])
+        kT = (np.asarray(point["k"], dtype=float) * point["T"]).tolist() if placed else []
+        for k, result in placed:
+            _set_error(result, kT[k])
 
 
-def _value(result: FormulaResult, point: Mapping[str, float]) -> None:
-    result.value, result.exact = _evaluate(result.rhs, point), _evaluate(result.lhs, point)
+def _set_error(result: FormulaResult, kT: float) -> None:
     result.error = math.nan
     if math.isfinite(result.value) and math.isfinite(result.exact):
         if result.energy:
-            result.error = (result.value - result.exact) / (point["k"] * point["T"])
+            result.error = (result.value - result.exact) / kT
         elif result.exact != 0:
             result.error = result.value / result.exact - 1.0
 
@@ -519,7 +524,7 @@ def formula_findings(
 ) -> list[Finding]:
     """FORM01-03 findings of one calculation; ``rules`` maps rule id -> Rule."""
     out: list[Finding] = []
-    covered = _covered(analysis, rules, rule_findings)
+    covered: set[str] | None = None  # found where a formula is off (most are not)
     for result in analysis.results:
         fields = {
             "formula": result.text,
@@ -534,6 +539,17 @@ def formula_findings(
                 out.append(_finding(rule, calc, result, _fill(rule.message, fields), []))
             continue
         match = result.matched
+        form03 = rules.get("FORM03")
+        # FORM03 where the value is off at this point (None: it is not)
+        off_rule = None
+        if form03 is not None and math.isfinite(result.error):
+            if abs(result.error) > form03.threshold:
+                if covered is None:
+                    covered = _covered(analysis, rules, rule_findings)
+                off_rule = None if result.text in covered else form03
+        unmatched = match.status == "unrecognised" and "FORM02" in rules and off_rule is None
+        if not unmatched and off_rule is None:
+            continue  # no finding: its message and correction are not written
         fields.update(
             {
                 "value": result.show(result.value),
@@ -567,20 +583,10 @@ def formula_findings(
                     key=result.key,
                 )
             )
-        form03 = rules.get("FORM03")
-        # FORM03 where the value is off at this point (None: it is not)
-        off_rule = (
-            form03
-            if form03 is not None
-            and math.isfinite(result.error)
-            and abs(result.error) > form03.threshold
-            and result.text not in covered
-            else None
-        )
         # one finding per formula line: off at this point, a formula is FORM03's (a
         # warning) whether or not it matches a relation; FORM02 (info) is left for one
         # that matches none but agrees here
-        if match.status == "unrecognised" and "FORM02" in rules and off_rule is None:
+        if unmatched:
             rule = rules["FORM02"]
             out.append(_finding(rule, calc, result, _fill(rule.message, fields), corrections))
         if off_rule is not None:

@@ -15,12 +15,12 @@ from __future__ import annotations
 
 import re
 from collections.abc import Iterable, Iterator, Mapping
-from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, TypeAlias
 
 from ...errors import RegimecheckError
+from ...records import Record, field, replace
 from ...resources import rules_dir
 from ..expressions import parser as expression
 from ..expressions.parser import Evaluator
@@ -40,8 +40,7 @@ class RuleFileError(RegimecheckError):
     """A rule file that cannot be used (one line per problem: file, line, field)."""
 
 
-@dataclass
-class Compiled:
+class Compiled(Record):
     """One expression: its source text, tree, and a numpy closure per carrier."""
 
     text: str
@@ -55,8 +54,7 @@ Shown: TypeAlias = tuple[Compiled | str, str]
 Cause: TypeAlias = tuple[Compiled, str]
 
 
-@dataclass
-class Correction:
+class Correction(Record):
     label: str
     unit: str
     stated: str | None
@@ -64,16 +62,14 @@ class Correction:
     exact: Compiled
 
 
-@dataclass
-class Implication:
+class Implication(Record):
     stated: str
     shortcut: Compiled
     within: float
     exact: Compiled | None = None  # the stated number's exact value, if no correction has it
 
 
-@dataclass
-class Rule:
+class Rule(Record):
     id: str
     title: str
     assumption: str
@@ -97,7 +93,7 @@ class Rule:
     fix: str
     references: list[str]
     path: str
-    carriers: tuple[str, ...] = field(default=())
+    carriers: tuple[str, ...] = ()
     evaluated_by: str | None = None  # engine check that produces this rule's findings
     tolerance: str | None = None  # configuration tolerance that sets the threshold
     # name -> name used where the rule fires
