@@ -7,10 +7,14 @@ dependency).  fdint computes the unnormalized integral (Gamma(j+1) times ours): 
 multiply apart, the same cost.  Targets (issue 16): every order <= 1.0x fdint and
 <= 10x np.exp(out=); the inverse <= 2x fdint's ifd1h, flat per element from 1e5 to 1e7.
 eta ~ U[-40, 80]; the inverse is fed u = F_1/2(eta) of those points.
-Each kernel gets three rows (ours, np.exp(out=), fdint), the ratio column taken to fdint
-where it is importable (else to np.exp), so "ours" reads ours / fdint and "exp(out=)"
-reads exp / fdint: ours / exp is the quotient of the two.  Rows are tagged with the size
-and thread count (``--workers 1 2``: fermi.WORKERS; fdint and np.exp run on one thread).
+Each kernel gets four rows (ours, np.exp(out=), fdint writing into a buffer, fdint
+returning a new array), the ratio column taken to fdint into a buffer where it is
+importable (else to np.exp), so "ours" reads ours / fdint and "exp(out=)" reads
+exp / fdint: ours / exp is the quotient of the two.  Ours always returns a new array,
+so "fdint new array" is the like-for-like row: at 1e7 points a fresh 80 MB result costs
+about 1 ns an element (the kernel zeroing its pages), which fdint into a buffer skips.
+Rows are tagged with the size and thread count (``--workers 1 2``: fermi.WORKERS; fdint
+and np.exp run on one thread).
 Prints tables; asserts nothing.
 Usage: python bench/bench_fermi.py [--sizes 1e5 1e6 1e7] [--rounds 7] [--orders 0.5 1]
                                    [--workers 1 2] [--no-inverse]
@@ -42,15 +46,20 @@ def fdint_kernel(module, j: float):
 
 
 def kernel_table(
-    name: str, ours: Callable[[], object], theirs: Callable[[], object] | None, x, rounds: int
+    name: str,
+    ours: Callable[[], object],
+    theirs: tuple[Callable[[], object], Callable[[], object]] | None,
+    x,
+    rounds: int,
 ) -> list[str]:
-    """The ratio table of ours, np.exp(out=) and fdint on x, to fdint where it is
-    importable (else to np.exp); the anchor row is named after the anchor alone, so every
-    kernel's table has the same header."""
+    """The ratio table of ours, np.exp(out=) and fdint (into a buffer, and returning a
+    new array: ``theirs``) on x, to fdint into a buffer where it is importable (else to
+    np.exp); the anchor row is named after the anchor alone, so every kernel's table has
+    the same header."""
     anchor = "fdint" if theirs is not None else "exp(out=)"
     cases = {f"{name} ours": ours, f"{name} exp(out=)": exp_anchor(x)}
     if theirs is not None:
-        cases[anchor] = theirs
+        cases[anchor], cases[f"{name} fdint new array"] = theirs
     else:
         cases[anchor] = cases.pop(f"{name} exp(out=)")
     return ratio_table(interleaved(cases, rounds), anchor, per=x.size).splitlines()
@@ -62,7 +71,9 @@ def order_rows(eta: np.ndarray, rounds: int, orders: list[float], tag: str) -> l
     buffer = np.empty_like(eta)
     for j in orders:
         kernel = fdint_kernel(lib, j) if lib is not None else None
-        theirs = None if kernel is None else (lambda f=kernel: f(eta, buffer))
+        theirs = None
+        if kernel is not None:
+            theirs = (lambda f=kernel: f(eta, buffer)), (lambda f=kernel: f(eta))
         rows += kernel_table(f"F_{j:g}{tag}", lambda j=j: fermi_dirac(j, eta), theirs, eta, rounds)
     return rows
 
@@ -74,7 +85,7 @@ def inverse_rows(eta: np.ndarray, rounds: int, tag: str) -> list[str]:
     if lib is not None:
         unnormalized = u * (np.sqrt(np.pi) / 2.0)  # fdint's F_1/2 is Gamma(3/2) times ours
         buffer = np.empty_like(u)
-        theirs = lambda: lib.ifd1h(unnormalized, buffer)  # noqa: E731
+        theirs = (lambda: lib.ifd1h(unnormalized, buffer)), (lambda: lib.ifd1h(unnormalized))
     return kernel_table(f"F_1/2 inv{tag}", lambda: inverse_fermi_dirac_half(u), theirs, u, rounds)
 
 

@@ -7,8 +7,12 @@ F_j(eta) = -Li_{j+1}(-e^eta) computed in multiple precision:
 * eta < ETA_LOW: F_j = z * P(z), z = e^eta, P a Chebyshev-economized series;
 * ETA_LOW <= eta < eta_asym: Chebyshev interpolants on intervals, stored as
   monomials in the local variable t = (eta - centre) / half_width;
-* eta >= eta_asym (half-integer j): the Sommerfeld series in 1/eta^2, whose
-  truncation error is below 1e-17 there (its remainder is O(e^-eta)).
+* eta >= eta_asym (half-integer j): the Sommerfeld series in 1/eta^2, cut where the
+  first omitted term is below 1e-19 at eta_asym.  The series diverges for half-integer j
+  (its best truncation's error falls only exponentially in eta: 3.6e-12 for
+  j = 1/2 at eta = 20), so the cut
+  cannot move far below 50; its error there is the truncation, about the first omitted
+  term (tests/test_fermi_dirac.py checks it against mpmath).
 
 The approach follows the piecewise approximation idea of T. Fukushima,
 Appl. Math. Comput. 259, 708 (2015), with our own fits.  Every table entry
