@@ -115,6 +115,10 @@ def test_marks_count_characters_as_pyyaml_does(text):
         ),
         *("- " * n + "x\n" for n in (31, 32)),
         *("- " * n + "[]\n" for n in (31, 32)),
+        # block nesting far past the limit, which libyaml's own composer would recurse
+        # into until the C stack overflows: composed event by event instead
+        "- " * 100_000 + "x\n",
+        "".join(" " * i + f"k{i}:\n" for i in range(2000)) + "v\n",
     ],
 )
 def test_refusals_are_pyyaml_s(text):

@@ -299,6 +299,15 @@ def _pure_only(text: str) -> bool:
     return "\t" in text or "?" in text or "!" in text or "\ufeff" in text[1:]
 
 
+# A block collection nested in another stands further right (its indent or a '- '), so a
+# text whose lines all start with fewer than this many blanks and dashes nests fewer than
+# about twice as many block levels: far below the depth at which libyaml's composer, which
+# recurses once a level with no limit of its own, overflows the C stack (between 2e4 and
+# 5e4 levels measured); a text with such a line is composed event by event, which stops at
+# MAX_NESTING.
+_DEEP_BLOCK = re.compile(r"^[ -]{1000}", re.MULTILINE)
+
+
 class _PlainTags:
     """Scalars are not resolved (every value is read as text by regimecheck): each node
     gets the plain tag of its kind."""
@@ -498,7 +507,7 @@ def compose_documents(text: str, name: str) -> tuple[list, list]:
     if _COMPOSER is _StrictLoader or _pure_only(text):
         nodes, errors = _compose(_StrictLoader, text, name, bad_characters)
         return nodes, deep + _with_unreported(errors, bad_characters)
-    if not bad_characters and "&" not in text:
+    if not bad_characters and "&" not in text and not _DEEP_BLOCK.search(text):
         try:  # the usual file: nothing to refuse, the tree built by libyaml
             return _compose(_PlainTreeLoader, text, name, [], fallback=True)[0], deep
         except yaml.YAMLError:
