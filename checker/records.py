@@ -8,8 +8,8 @@ dataclasses writes and compiles six methods for every class as its module is imp
 calculation, finding and report types are some 50 such classes, all imported by every
 check.  A :class:`Record` or :class:`FrozenRecord` subclass is read once when it is
 created (its fields and defaults) and shares generic methods; type checkers see it as a
-dataclass (``dataclass_transform``).  Where dataclasses.replace or a field that is not
-an ``__init__`` argument is needed, a type stays a dataclass.
+dataclass (``dataclass_transform``); :func:`replace` is their ``dataclasses.replace``.
+Where a field that is not an ``__init__`` argument is needed, a type stays a dataclass.
 """
 
 from __future__ import annotations

@@ -410,7 +410,7 @@ if _CParser is not None:
 
         def __init__(self, stream):
             _CParser.__init__(self, stream)
-            self.problems, self._depth = [], 0
+            self.problems = []
 
         def get_node(self):
             node = _CParser.get_node(self)
