@@ -614,7 +614,7 @@ def _initial_guess(
     first, carriers = majority(major, minor, ln_phi, bound, ni)
     ln_first = np.log(np.maximum(first, 1e-300))
     ln_u = ln_first - ln_band
-    eta = _eta_from_ln_u(ln_u)
+    eta = inverse_fermi_dirac_half_of_log(ln_u)
     # the occupancy sees e^eta = gamma n/N_band with gamma = F_1/2(eta)/e^eta = u e^-eta
     # (< 1; 0.6 % below 1 already at eta = -4), not n/N_band: once more with phi scaled
     # by gamma at the first estimate (no F_1/2 evaluation: eta inverts u)
@@ -648,7 +648,7 @@ def _initial_guess(
     minor = minor * (1.0 - r)
     ln_u = np.log(np.maximum(majority(major, minor, nearer, bound, ni_scaled)[0], 1e-300))
     ln_u -= ln_band
-    eta = _eta_from_ln_u(ln_u)
+    eta = inverse_fermi_dirac_half_of_log(ln_u)
     return _pick(n_type, eta, -eg_kt - eta)
 
 
@@ -676,12 +676,6 @@ def _kane_start(eta_parabolic: FloatArray, beta: FloatArray, n_type: BoolArray) 
 
 # below this ln u, F_1/2(eta) = e^eta to double precision (the inverse's own table edge)
 _NONDEGENERATE_LN_U = -38.0
-
-
-def _eta_from_ln_u(ln_u: FloatArray) -> FloatArray:
-    """eta with ln F_1/2(eta) = ln u (the tabulated inverse, ~1e-15; ln u itself far
-    below degeneracy)."""
-    return inverse_fermi_dirac_half_of_log(ln_u)
 
 
 def _newton(residual: _Neutrality, eta0: FloatArray) -> tuple[FloatArray, FloatArray, int]:
@@ -848,7 +842,7 @@ def solve(
 
     # blocks of at most CHUNK points (THREAD_CHUNK with threads), and at least one per
     # worker once each gets MIN_BLOCK
-    most = CHUNK if WORKERS < 2 or temps.size < 2 * MIN_BLOCK else THREAD_CHUNK
+    most = THREAD_CHUNK if WORKERS > 1 else CHUNK
     blocks = max(-(-temps.size // most), min(WORKERS, temps.size // MIN_BLOCK), 1)
     size = max(-(-temps.size // blocks), 1)
     starts = range(0, temps.size, size)

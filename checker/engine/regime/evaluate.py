@@ -173,12 +173,9 @@ class Ruled(Record):
     implied: list[tuple[str, BoolArray]]  # (stated name, mask) of each implication
     by_formula: IndexArray  # per cell: index into its calculation's embodied list (-1: none)
 
-    def excess(self) -> FloatArray:
-        """How far the indicator lies beyond the threshold (> 0: the wrong side)."""
-        return beyond(self.rule, self.indicator)
-
 
 def beyond(rule: Rule, indicator: FloatArray) -> FloatArray:
+    """How far an indicator lies beyond the rule's threshold (> 0: the wrong side)."""
     return indicator - rule.threshold if rule.relation == "above" else rule.threshold - indicator
 
 

@@ -688,8 +688,8 @@ def derive_corrected(
     )
     # a sheet: sheet conductance of the carriers it holds (an absent carrier adds nothing)
     sheets = [values[f"ns_{x}"] for x in Carrier]
-    if all(a.strides == (0,) and a.size > 1 and np.isnan(a[0]) for a in sheets):
-        # a sweep's bulk chunk: no sheet density anywhere, so none (each its own view)
+    if all(one_value(a) is not a and np.isnan(a[0]) for a in sheets):
+        # a sweep's bulk chunk (one-value views): no sheet density anywhere, so none
         count = sheets[0].size
         values["sigma_s"], values["Rs"] = _constant(count, np.nan), _constant(count, np.nan)
     elif reads is None or not _SHEET_CONDUCTANCE.isdisjoint(reads):
