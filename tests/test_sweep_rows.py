@@ -168,3 +168,49 @@ def test_a_gate_multiplied_out_factor_by_factor_is_the_whole_gate(tmp_path, text
                 np.testing.assert_array_equal(found, expected, err_msg=f"{rule.id} {x}")
                 cut_short += rule in products and not expected.any()
     assert cut_short  # some product gate holds nowhere here
+
+
+KANE_SWEEP = """name: Kane band sweep
+material: InAs
+temperature: {from: 77 K, to: 400 K, steps: 4}
+doping:
+  donors: {S: {from: 1e15 cm-3, to: 1e19 cm-3, steps: 9}}
+assumes: [parabolic-band, non-degenerate]
+"""
+
+
+@pytest.mark.parametrize("assumes", ["[parabolic-band, non-degenerate]", "[non-degenerate]"])
+def test_kane_band_cells_give_the_findings_of_single_points(tmp_path, assumes):
+    """A Kane conduction band (InAs): the parabolic Fermi level BAND01 reads is computed on
+    a sweep chunk only where a rule reads it; either way every cell draws the findings of
+    its point checked alone (the pipeline's own comparison, tests/test_pipeline.py)."""
+    from test_sweep import _calc as sweep_calculation
+
+    from checker.engine.findings import carrier_code
+    from checker.engine.regime import rulebook
+    from checker.engine.run import check_calculations
+
+    calc = sweep_calculation(
+        tmp_path, KANE_SWEEP.replace("[parabolic-band, non-degenerate]", assumes)
+    )
+    report = check_calculations([calc]).reports[0]
+    grid_points = sweep.grid(calc)
+    # as a sweep is checked: only the rules that can fire, computing only what they read
+    ruled, reads = sweep.grid_rules(calc, rulebook.load_rules(), report.embodied, grid_points)
+    masks, _ = sweep.rule_grid(calc, ruled, report.embodied, grid_points, None, reads)
+    T, donors, acceptors, _ = grid_points
+    band01 = set()
+    for index in range(T.size):
+        point = sweep.point(calc, T, donors, acceptors, index)
+        single = {
+            (f.rule, carrier_code(f.carrier))
+            for f in check_calculations([point]).reports[0].findings
+            if not f.rule.startswith("FORM")
+        }
+        on_grid = {
+            (rule, x or None) for (rule, x), (mask, _) in masks.items() if mask.ravel()[index]
+        }
+        assert on_grid == single, (index, on_grid, single)
+        band01.add(("BAND01", "n") in single)
+    # declared, the parabolic band is wrong at the degenerate end only
+    assert band01 == ({True, False} if "parabolic" in assumes else {False})

@@ -388,7 +388,7 @@ def solve_points(
         inside = (T >= t_low) & (T <= t_high)
         put[f"rH_lo_{x}"] = np.where(inside, low, np.nan)
         put[f"rH_hi_{x}"] = np.where(inside, high, np.nan)
-    put.update(_band_shape_values(state, dim))
+    put.update(_band_shape_values(state, dim, reads))
     if reads is not None:
         # other names of the solve's arrays that no rule of the sweep reads: left unknown
         # instead of copied
@@ -410,13 +410,17 @@ def _models_beyond(
     return names
 
 
-def _band_shape_values(state: State, dim: int) -> dict[str, FloatArray]:
+def _band_shape_values(
+    state: State, dim: int, reads: Collection[str] | None = None
+) -> dict[str, FloatArray]:
     """What a parabolic band would make of the bulk solve (BAND01): the Fermi level of
     n = N_c F_1/2(eta) at the solved density, the density at the solved Fermi level, and
     alpha kT; and each band's own Einstein ratio n/(dn/deta) (a Kane conduction band's
     from the energy window, in the calculation's dimensionality).  A parabolic band gives
     the solve's own values (alpha kT = 0); so does a Kane band outside 3D, where the bulk
-    solve's density is not the layer's (BAND01 compares bulk densities)."""
+    solve's density is not the layer's (BAND01 compares bulk densities).  ``reads``: the
+    names a sweep's rules read (None: all); a Kane band's parabolic level and density are
+    computed only where read (else they stay the solve's own, which the sweep drops)."""
     band = state.electron_band
     out: dict[str, FloatArray] = {}
     for x, eta, dens in (("n", state.eta_n, state.n), ("p", state.eta_p, state.p)):
@@ -427,7 +431,7 @@ def _band_shape_values(state: State, dim: int) -> dict[str, FloatArray]:
         in_plane = dataclasses.replace(band, dimension=dim)
         ratio = energy_window.generalized_einstein_ratio(in_plane, state.eta_n, state.T)
         out["einstein_n"] = np.asarray(ratio)
-    if band is not None and dim == 3:
+    if band is not None and dim == 3 and (reads is None or not _PARABOLIC.isdisjoint(reads)):
         # a density that underflows (a cold, undoped crystal) is deep in the Boltzmann
         # regime, where the Kane and the parabolic band give the same Fermi level
         u = state.n / state.Nc
@@ -617,6 +621,7 @@ _VELOCITY = frozenset(
 _LATTICE = frozenset(f"{stem}_{x}" for stem in ("mu0", "vsat", "beta") for x in Carrier)
 # quantities a bulk solve may give as another quantity's array (the parabolic band's
 # Fermi level and density, n_i without narrowing)
+_PARABOLIC = frozenset({"eta_par_n", "dens_par_n"})
 _ALIASES = frozenset({"nie"} | {f"{stem}_{x}" for stem in ("eta_par", "dens_par") for x in Carrier})
 # what _hall gives (a sweep whose rules read none of it skips the Hall factors' F_j moments)
 _HALL = frozenset({"rH_n", "rH_p", "n_hall", "n_hall_lo", "n_hall_hi"})
