@@ -17,13 +17,14 @@ Method
   F_j = sum_k (-1)^k z^(k+1)/(k+1)^(j+1), z = exp(eta) (remainder < 1.1e-17 relative).
 * half-integer j: piecewise polynomial fits generated in multiple precision
   by tools/generate_fd_tables.py: a series in z = exp(eta) for -8 <= eta < -2,
-  Chebyshev-derived polynomials on intervals up to eta = 50, and the
-  Sommerfeld series in 1/eta^2 above: asymptotic, not convergent, for half-integer j
-  (its best truncation's error at eta = 20 is still 3.6e-12 for j = 1/2, so the cut
-  cannot move far below 50).  Its error is the truncation, about the first omitted term
-  (the exponentially small term cos(pi j) F_j(-eta) of the exact expansion vanishes for
-  half-integer j); the generator keeps terms until that term is below 1e-19 at
-  eta = 50, where it is largest (measured against mpmath: <= 1.1e-19).
+  Chebyshev-derived polynomials on intervals up to a cut (eta = 14 to 25 by order), and
+  above it F_j = eta^(j+1) H(1/eta^2), H fitted on [0, 1/cut^2] (degree 11 for j = 1/2
+  from eta = 20).  H's Taylor series at 0 is the Sommerfeld series, asymptotic and not
+  convergent for half-integer j (its best truncation still errs by 3.6e-12 at eta = 20
+  for j = 1/2); the exact expansion's exponentially small term cos(pi j) F_j(-eta)
+  vanishes for half-integer j, so H is smooth up to s = 0 and a fit on the whole
+  interval needs few terms.  The generator checks each fit in float64, as evaluated
+  here, against mpmath (the high one from the cut to eta = 1e5).
   Relative error about 1e-15 at worst in float64 (measured by the tests against mpmath).
 * Evaluation: in blocks of 65,536 points, each labelled by region (a sum of edge
   comparisons), sorted by label (radix sort of uint8) so each region's formula runs on one
@@ -134,8 +135,8 @@ class _Piecewise:
     """Evaluator for one order from its generated table.
 
     Regions: 0 the short exact series in e^eta (below ETA_SERIES, the deep tail included),
-    1 the fitted series in e^eta, 2.. fitted pieces, last the Sommerfeld series
-    (half-integer orders only).
+    1 the fitted series in e^eta, 2.. fitted pieces, last eta^(j+1) times the fitted
+    polynomial in 1/eta^2 (half-integer orders only).
     """
 
     def __init__(self, key: str) -> None:
@@ -151,9 +152,8 @@ class _Piecewise:
         ]
         edges = [ETA_SERIES, _fd_tables.ETA_LOW] + [b for _, b, _ in table["pieces"]]
         self.edges: FloatArray = np.array(edges, dtype=np.float64)
-        self.asym: list[float] = table["asym"]
-        self.gamma: float = table["gamma"]
-        self.last = len(self.edges) if self.asym else len(self.edges) - 1
+        self.high: list[float] = table["high"]
+        self.last = len(self.edges) if self.high else len(self.edges) - 1
 
     def regions(self, eta: FloatArray) -> tuple[npt.NDArray[np.uint8], npt.NDArray[np.intp]]:
         """Region label of each point and the number of points in each region.
@@ -182,7 +182,7 @@ class _Piecewise:
             else:
                 out *= z
         elif k == len(self.edges):
-            self._asymptotic(eta, log, out)
+            self._high(eta, log, out)
         else:
             mid, inv_half, coeffs = self.pieces[k - 2]
             t = np.subtract(eta, mid, out=_work("variable", eta.size))
@@ -191,23 +191,26 @@ class _Piecewise:
             if log:
                 np.log(out, out=out)
 
-    def _asymptotic(self, eta: FloatArray, log: bool, out: FloatArray) -> None:
+    def _high(self, eta: FloatArray, log: bool, out: FloatArray) -> None:
+        """eta^(j+1) H(1/eta^2), H fitted from the table's last edge up (1/Gamma(j+2) in
+        its coefficients); the generator checks these very operations against mpmath."""
         inv2 = np.multiply(eta, eta, out=_work("variable", eta.size))
         np.divide(1.0, inv2, out=inv2)
-        series = _horner(self.asym, inv2, out)
+        series = _horner(self.high, inv2, out)
+        lead = _work("lead", eta.size)
+        if log:  # ln eta^(j+1) = (j+1) ln eta: no square root
+            np.log(series, out=series)
+            np.log(eta, out=lead)
+            lead *= float(self.power)
+            series += lead
+            return
         whole = int(self.power - Fraction(1, 2))  # eta^(j+1) = eta^whole * sqrt(eta)
-        lead = np.sqrt(eta, out=_work("lead", eta.size))
+        np.sqrt(eta, out=lead)
         if whole < 0:
             np.divide(1.0, lead, out=lead)
         for _ in range(max(whole, 0)):
             lead *= eta
-        if log:
-            np.log(series, out=series)
-            series += np.log(lead, out=lead)
-            series -= np.log(self.gamma)
-        else:
-            series *= lead
-            series /= self.gamma
+        series *= lead
 
     def evaluate(self, eta: FloatArray, log: bool = False, threads: bool = False) -> FloatArray:
         return _grouped(self, eta, [(self, log)], threads)[0]
@@ -260,7 +263,8 @@ def _grouped(
                 ev.region(only, block, log, target)
             return
         order = np.argsort(region, kind="stable")
-        grouped = np.take(block, order, out=_work("grouped", block.size))
+        # every index is in range: mode="clip" skips the bounds check (half the cost)
+        grouped = np.take(block, order, out=_work("grouped", block.size), mode="clip")
         results = [_work(f"result {i}", block.size) for i in range(len(jobs))]
         stop = 0
         for k in busy:
@@ -342,11 +346,11 @@ def _integer_order_block(j: int, eta: FloatArray, out: FloatArray) -> None:
     base = np.abs(eta, out=out)
     near = np.flatnonzero(base <= -ETA_SERIES)
     np.negative(base, out=base)
-    fitted = np.take(base, near, out=_work("fitted", near.size))
+    fitted = np.take(base, near, out=_work("fitted", near.size), mode="clip")
     table.region(0, base, False, base)
     if near.size:
         closest = np.flatnonzero(fitted >= _fd_tables.ETA_LOW)
-        middle = np.take(fitted, closest, out=_work("middle", closest.size))
+        middle = np.take(fitted, closest, out=_work("middle", closest.size), mode="clip")
         table.region(1, fitted, False, fitted)
         table.region(2, middle, False, middle)  # the one fitted piece, [ETA_LOW, 0]
         fitted[closest] = middle
@@ -523,11 +527,11 @@ def _inverse_block(log_u: FloatArray, eta: FloatArray) -> None:
     np.copyto(cell, x, casting="unsafe")  # truncation: the floor of x >= 0
     np.minimum(cell, cells - 1, out=cell)
     x -= cell  # t in [0, 1]
-    np.take(coeffs[-1], cell, out=eta)
+    np.take(coeffs[-1], cell, out=eta, mode="clip")  # cells in range: no bounds check
     scratch = _work("coefficient", log_u.size)
     for c in coeffs[-2::-1]:
         eta *= x
-        eta += np.take(c, cell, out=scratch)
+        eta += np.take(c, cell, out=scratch, mode="clip")
     eta += log_u
     if np.count_nonzero(log_u > _INV_S_HIGH):
         above = np.flatnonzero(log_u > _INV_S_HIGH)
