@@ -51,14 +51,14 @@ def test_reference_cache_matches_mpmath():
 @pytest.mark.parametrize("j", [-1.5, -0.5, 0.5, 1, 1.5, 2, 2.5, 3, 3.5])
 def test_values_on_both_sides_of_every_formula_edge(j):
     """Where the evaluator changes formula (the short exact series below eta = -8, the
-    fitted series below -2, the ends of every fitted piece, the Sommerfeld series from 50)
-    and the floats next to each, mirrored to negative eta for the reflected integer
-    orders: within 1.6e-15 of mpmath (DLMF 25.12.16, 30 digits), the documented measured
-    accuracy."""
+    fitted series below -2, the ends of every fitted piece, the fit in 1/eta^2 above the
+    last) or label (the second label of the last region, from eta = 50), and the floats
+    next to each, mirrored to negative eta for the reflected integer orders: within
+    1.6e-15 of mpmath (DLMF 25.12.16, 30 digits), the documented measured accuracy."""
     from checker.physics import _fd_tables, fermi
 
     key = str(fermi._order(j))
-    edges = [fermi.ETA_SERIES, _fd_tables.ETA_LOW]
+    edges = [fermi.ETA_SERIES, _fd_tables.ETA_LOW, fermi._LABEL_SPLIT]
     edges += [b for _, b, _ in _fd_tables.TABLES[key]["pieces"]]
     near = [x for e in edges for x in (np.nextafter(e, -np.inf), e, np.nextafter(e, np.inf))]
     eta = np.array(near + [-x for x in near if x > 0])
