@@ -17,9 +17,9 @@ Method
   F_j = sum_k (-1)^k z^(k+1)/(k+1)^(j+1), z = exp(eta) (remainder < 1.1e-17 relative).
 * half-integer j: piecewise polynomial fits generated in multiple precision
   by tools/generate_fd_tables.py: a series in z = exp(eta) for -8 <= eta < -2,
-  Chebyshev-derived polynomials on intervals up to a cut (eta = 14 to 25 by order), and
-  above it F_j = eta^(j+1) H(1/eta^2), H fitted on [0, 1/cut^2] (degree 11 for j = 1/2
-  from eta = 20).  H's Taylor series at 0 is the Sommerfeld series, asymptotic and not
+  Chebyshev-derived polynomials on intervals up to a cut (eta = 20 to 29 by order), and
+  above it F_j = eta^(j+1) H(1/eta^2), H fitted on [0, 1/cut^2] (degree 8 for j = 1/2
+  from eta = 25).  H's Taylor series at 0 is the Sommerfeld series, asymptotic and not
   convergent for half-integer j (its best truncation still errs by 3.6e-12 at eta = 20
   for j = 1/2); the exact expansion's exponentially small term cos(pi j) F_j(-eta)
   vanishes for half-integer j, so H is smooth up to s = 0 and a fit on the whole
