@@ -312,7 +312,8 @@ _REFLECTION_SIGN = {1: -1.0, 2: +1.0, 3: -1.0}
 def _reflection_polynomial(j: int, x: FloatArray) -> FloatArray:
     """poly_j(x) = x^2/2 + pi^2/6, x (x^2 + pi^2)/6, x^4/24 + pi^2 x^2/12 + 7 pi^4/360 for
     j = 1, 2, 3, in a work array (x may be overwritten); the operations and their order
-    are those of the written formulas, so the roundings are too."""
+    are those of the written formulas, except that /6 and /24 are products with the
+    rounded reciprocals (a division pass costs ~2.5 multiplications; <= 1 ulp more)."""
     square: FloatArray
     if j == 1:
         square = np.multiply(x, 0.5, out=_work("square", x.size))
@@ -323,9 +324,9 @@ def _reflection_polynomial(j: int, x: FloatArray) -> FloatArray:
     if j == 2:
         square += _PI2
         square *= x
-        square /= 6.0
+        square *= 1.0 / 6.0
         return square
-    np.divide(square, 24.0, out=x)
+    np.multiply(square, 1.0 / 24.0, out=x)
     x += _PI2 / 12.0
     square *= x
     square += 7.0 * _PI2 * _PI2 / 360.0
