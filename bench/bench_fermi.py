@@ -15,15 +15,21 @@ so "fdint new array" is the like-for-like row: at 1e7 points a fresh 80 MB resul
 about 1 ns an element (the kernel zeroing its pages), which fdint into a buffer skips.
 Rows are tagged with the size and thread count (``--workers 1 2``: fermi.WORKERS; fdint
 and np.exp run on one thread).
+``--split``: where one 64k block of each half-integer order in ``--orders`` spends its
+time (labels, the radix argsort, gather, each region's formula on its grouped slice,
+scatter), each step timed alone on warm data, in ns per element of the block, beside the
+whole block; the steps alone sum to less than the block, which runs them on colder
+caches.
 Prints tables; asserts nothing.
 Usage: python bench/bench_fermi.py [--sizes 1e5 1e6 1e7] [--rounds 7] [--orders 0.5 1]
-                                   [--workers 1 2] [--no-inverse]
+                                   [--workers 1 2] [--no-inverse] [--split]
 """
 
 from __future__ import annotations
 
 import argparse
 import sys
+import time
 from collections.abc import Callable
 from pathlib import Path
 
@@ -89,18 +95,76 @@ def inverse_rows(eta: np.ndarray, rounds: int, tag: str) -> list[str]:
     return kernel_table(f"F_1/2 inv{tag}", lambda: inverse_fermi_dirac_half(u), theirs, u, rounds)
 
 
+def per_element(call: Callable[[], object], size: int, repeats: int = 30) -> float:
+    """Best of five batches of ``repeats`` calls, in ns per element of ``size``."""
+    best = float("inf")
+    for _ in range(5):
+        start = time.perf_counter()
+        for _ in range(repeats):
+            call()
+        best = min(best, (time.perf_counter() - start) / repeats)
+    return best / size * 1e9
+
+
+def block_split(j: float, eta: np.ndarray) -> list[str]:
+    """Where one block of F_j (half-integer j) spends its time, step by step."""
+    evaluator = fermi._evaluator(str(fermi._order(j)))
+    block = eta[: fermi._CHUNK]
+    n = block.size
+    labels, counts = evaluator.regions(block)
+    order = np.argsort(labels, kind="stable")
+    grouped = np.take(block, order)
+    result = np.empty_like(block)
+    target = np.empty_like(block)
+
+    def scatter() -> None:
+        target[order] = result
+
+    steps = {
+        f"labels ({len(evaluator.label_edges)} edges)": lambda: evaluator.regions(block),
+        "argsort (stable radix, uint8)": lambda: np.argsort(labels, kind="stable"),
+        "gather (take, mode=clip)": lambda: np.take(block, order, out=result, mode="clip"),
+    }
+    lows = [-np.inf, *evaluator.edges]
+    stop = 0
+    for k in np.flatnonzero(counts):
+        first, stop = stop, stop + int(counts[k])
+        piece, out = grouped[first:stop], result[first:stop]
+        high = evaluator.edges[k] if k < len(evaluator.edges) else np.inf
+        name = f"region [{lows[k]:g}, {high:g}) {counts[k] / n:.1%} of points"
+        steps[name] = lambda k=int(k), piece=piece, out=out: evaluator.region(k, piece, False, out)
+    steps["scatter (target[order] = result)"] = scatter
+    # the whole block first: its work arrays set glibc's mmap threshold, so argsort's
+    # fresh 512 KiB result comes from the heap (as in the kernel), not fresh pages
+    whole = per_element(lambda: fermi._grouped(evaluator, block, [(evaluator, False)]), n)
+    times = {name: per_element(call, n) for name, call in steps.items()}
+    rows = [f"F_{j:g}, one block of {n} points: ns per element of the block"]
+    rows += [f"  {name:<44} {value:6.2f}" for name, value in times.items()]
+    rows.append(f"  {'the steps alone, summed':<44} {sum(times.values()):6.2f}")
+    rows.append(f"  {'the whole block (fermi._grouped)':<44} {whole:6.2f}")
+    return rows
+
+
 def main() -> None:
     parser = argparse.ArgumentParser()
     parser.add_argument("--sizes", nargs="+", type=float, default=[1e5, 1e6, 1e7])
     parser.add_argument("--rounds", type=int, default=7)
     parser.add_argument("--orders", nargs="*", type=float, default=ORDERS)
     parser.add_argument("--no-inverse", action="store_true")
+    parser.add_argument("--split", action="store_true", help="time the steps of one block")
     parser.add_argument(
         "--workers", nargs="+", type=int, default=[1, 2], help="thread counts to compare"
     )
     args = parser.parse_args()
     rng = np.random.default_rng(7)
     lib = fdint()
+    if args.split:
+        fermi.WORKERS = 1
+        eta = rng.uniform(-40.0, 80.0, fermi._CHUNK)
+        for j in args.orders:
+            if fermi._order(j).denominator == 2:
+                print("\n".join(block_split(j, eta)), flush=True)
+        return
     print("eta ~ U[-40, 80]; ratios: median of per-round ratios (spread: lowest-highest)")
     print("fdint: " + ("installed; ratios to fdint" if lib else "not importable; ratios to exp"))
     header = ""

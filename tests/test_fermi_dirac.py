@@ -51,14 +51,14 @@ def test_reference_cache_matches_mpmath():
 @pytest.mark.parametrize("j", [-1.5, -0.5, 0.5, 1, 1.5, 2, 2.5, 3, 3.5])
 def test_values_on_both_sides_of_every_formula_edge(j):
     """Where the evaluator changes formula (the short exact series below eta = -8, the
-    fitted series below -2, the ends of every fitted piece, the Sommerfeld series from 50)
-    and the floats next to each, mirrored to negative eta for the reflected integer
-    orders: within 1.6e-15 of mpmath (DLMF 25.12.16, 30 digits), the documented measured
-    accuracy."""
+    fitted series below -2, the ends of every fitted piece, the fit in 1/eta^2 above the
+    last) or label (the second label of the last region, from eta = 50), and the floats
+    next to each, mirrored to negative eta for the reflected integer orders: within
+    1.6e-15 of mpmath (DLMF 25.12.16, 30 digits), the documented measured accuracy."""
     from checker.physics import _fd_tables, fermi
 
     key = str(fermi._order(j))
-    edges = [fermi.ETA_SERIES, _fd_tables.ETA_LOW]
+    edges = [fermi.ETA_SERIES, _fd_tables.ETA_LOW, fermi._LABEL_SPLIT]
     edges += [b for _, b, _ in _fd_tables.TABLES[key]["pieces"]]
     near = [x for e in edges for x in (np.nextafter(e, -np.inf), e, np.nextafter(e, np.inf))]
     eta = np.array(near + [-x for x in near if x > 0])
@@ -69,37 +69,26 @@ def test_values_on_both_sides_of_every_formula_edge(j):
 
 
 @pytest.mark.parametrize("j", ["-3/2", "-1/2", "1/2", "3/2", "5/2", "7/2"])
-def test_sommerfeld_cut(j):
-    """The Sommerfeld series as the evaluator uses it (as many terms, from the same cut,
-    eta = 50): F_j = eta^(j+1)/Gamma(j+2) sum_k b_k eta^-2k with the coefficients of the
-    Sommerfeld expansion, b_k = 2 (1 - 2^(1-2k)) zeta(2k) Gamma(j+2)/Gamma(j+2-2k)
-    (Blakemore 1982), summed in 40 digits against mpmath's F_j (DLMF 25.12.16): the
-    truncation error is below 2e-19 relative (measured <= 1.1e-19, at the cut), far
-    inside float64 rounding, so the cut costs no accuracy (one term fewer would pass
-    too: the generator keeps a margin).  For half-integer j the series is asymptotic,
-    not convergent, and the exponentially small term cos(pi j) F_j(-eta) of the exact
-    expansion vanishes (from memory: R. B. Dingle, Asymptotic Expansions, 1973): the
-    error is the truncation alone, largest at the cut and falling with eta."""
+def test_high_fit_from_its_cut_to_1e5(j):
+    """Above the last fitted piece the evaluator uses eta^(j+1) H(1/eta^2), H a fitted
+    polynomial: within 1.6e-15 of mpmath's F_j (DLMF 25.12.16, 30 digits) from the cut
+    to eta = 1e5 (linear near the cut, where the fit's variable is largest, geometric
+    beyond), the documented measured accuracy; and H(0), the Sommerfeld series' leading
+    term, is 1/Gamma(j+2) (Blakemore 1982) to rounding."""
     from checker.physics import _fd_tables
 
     table = _fd_tables.TABLES[j]
-    terms, cut = len(table["asym"]), table["pieces"][-1][1]  # the series' first point
-    order = mp.mpf(Fraction(j).numerator) / Fraction(j).denominator
-    with mp.workdps(40):
-        b = [mp.mpf(1)] + [
-            2
-            * (1 - mp.mpf(2) ** (1 - 2 * k))
-            * mp.zeta(2 * k)
-            * mp.gamma(order + 2)
-            * mp.rgamma(order + 2 - 2 * k)
-            for k in range(1, terms)
-        ]
-        for eta in (cut, cut + 0.5, cut + 5.0, cut + 10.0, cut + 30.0, cut + 70.0):
-            x = mp.mpf(eta)
-            series = mp.fsum(b_k * x ** (-2 * k) for k, b_k in enumerate(b))
-            value = series * x ** (order + 1) * mp.rgamma(order + 2)
-            exact = -mp.re(mp.polylog(order + 1, -mp.exp(x)))
-            assert abs(value / exact - 1) <= 2e-19, (eta, value / exact - 1)
+    cut = table["pieces"][-1][1]
+    order = float(Fraction(j))
+    eta = np.concatenate(
+        [[cut, np.nextafter(cut, np.inf)], np.linspace(cut, 2 * cut, 41)[1:]]
+        + [np.geomspace(2 * cut, 1e5, 40)]
+    )
+    got = fermi_dirac(order, eta)
+    expected = np.array([float(fd_reference(order, x, dps=30)) for x in eta])
+    worst = np.max(np.abs(got / expected - 1))
+    assert worst <= 1.6e-15, (eta[np.argmax(np.abs(got / expected - 1))], worst)
+    assert table["high"][0] == pytest.approx(1 / math.gamma(order + 2), rel=1e-15)
 
 
 @pytest.mark.parametrize("j", ORDERS)

@@ -1,18 +1,24 @@
 """Generate the coefficient tables behind ``checker.physics.fermi``.
 
-Run once (needs mpmath); writes ``checker/physics/_fd_tables.py``.  The tables
+Run once (needs mpmath; ~2 minutes on 2 cores); writes ``checker/physics/_fd_tables.py``
+(then ``ruff format`` it, as the repository's checks require).  The tables
 are piecewise polynomial fits of the normalized Fermi–Dirac integral
 F_j(eta) = -Li_{j+1}(-e^eta) computed in multiple precision:
 
 * eta < ETA_LOW: F_j = z * P(z), z = e^eta, P a Chebyshev-economized series;
-* ETA_LOW <= eta < eta_asym: Chebyshev interpolants on intervals, stored as
+* ETA_LOW <= eta < cut: Chebyshev interpolants on intervals, stored as
   monomials in the local variable t = (eta - centre) / half_width;
-* eta >= eta_asym (half-integer j): the Sommerfeld series in 1/eta^2, cut where the
-  first omitted term is below 1e-19 at eta_asym.  The series diverges for half-integer j
-  (its best truncation's error falls only exponentially in eta: 3.6e-12 for
-  j = 1/2 at eta = 20), so the cut
-  cannot move far below 50; its error there is the truncation, about the first omitted
-  term (tests/test_fermi_dirac.py checks it against mpmath).
+* eta >= cut (half-integer j): F_j = eta^(j+1) * H(s), s = 1/eta^2, H a Chebyshev
+  interpolant of F_j(eta)/eta^(j+1) on [0, 1/cut^2] (40 nodes, truncated where the
+  dropped coefficients sum below TARGET), stored as monomials in s; H(0) = 1/Gamma(j+2)
+  and its Taylor coefficients are the Sommerfeld series' (Blakemore 1982), which is
+  asymptotic, not convergent, for half-integer j: a fit on the whole interval
+  needs far fewer terms than the series at its best (F_1/2 from eta = 20: degree 11,
+  where the series' best truncation still errs by 3.6e-12).  The exact expansion's
+  exponentially small term cos(pi j) F_j(-eta) vanishes for half-integer j, so H is
+  smooth up to s = 0.  The cut is the lowest of HIGH_CUTS whose fit needs at most
+  HIGH_MAX_DEGREE; its float64 evaluation (as the kernel does it) is checked against
+  mpmath from the cut to eta = 1e5.
 
 The approach follows the piecewise approximation idea of T. Fukushima,
 Appl. Math. Comput. 259, 708 (2015), with our own fits.  Every table entry
@@ -32,8 +38,12 @@ ORDERS = ["-3/2", "-1/2", "1/2", "3/2", "5/2", "7/2", "1", "2", "3"]
 ETA_LOW = -2.0
 TARGET = 4e-17  # approximation error budget, relative, before rounding
 MAX_DEGREE = 20
-ETA_ASYM = 50.0  # half-integer orders switch to the Sommerfeld series here
-EDGE_CANDIDATES = [-2, -1, 0, 1, 2, 3, 4.5, 6.5, 9.5, 14, 20, 29, 40, 50]
+EDGE_CANDIDATES = [-2, -1, 0, 1, 2, 3, 4.5, 6.5, 9.5, 14, 20, 25, 29, 40, 50]
+# half-integer orders: F_j = eta^(j+1) H(1/eta^2) from the lowest of these cuts where H
+# needs at most HIGH_MAX_DEGREE (cost: one pass of two numpy calls per degree)
+HIGH_CUTS = [14, 20, 25, 29, 40, 50]
+HIGH_MAX_DEGREE = 10  # measured: 10 beats 14 (F_1/2 from 25 instead of 20) by ~3 %
+HIGH_CHECK_TOP = 1e5  # the float64 check runs from the cut to here
 
 
 def j_value(text: str) -> mp.mpf:
@@ -113,11 +123,7 @@ def fit_low(j):
     degree, mono_t = truncated_fit(g, 0, z0)
     if degree is None:
         raise RuntimeError(f"low region fit failed for j={j}")
-    # t = 2 z / z0 - 1  ->  monomials in z
-    mono_z = [mp.mpf(0)] * len(mono_t)
-    for k, c in enumerate(mono_t):
-        for i in range(k + 1):
-            mono_z[i] += c * mp.binomial(k, i) * (2 / z0) ** i * (-1) ** (k - i)
+    mono_z = monomials_on(mono_t, 0, z0)  # t = 2 z / z0 - 1
     zs = np.linspace(1e-9, float(z0), 97)
     approx = horner64([float(c) for c in mono_z], zs)
     worst = max(float(abs(v / g(mp.mpf(float(z))) - 1)) for z, v in zip(zs, approx))
@@ -127,25 +133,74 @@ def fit_low(j):
     return mono_z
 
 
-def sommerfeld(j, eta_min):
-    """Coefficients b_k of F_j = eta^(j+1)/Gamma(j+2) * sum b_k eta^(-2k)."""
-    coeffs = [mp.mpf(1)]
-    k = 1
-    while True:
-        dirichlet_eta = (1 - mp.mpf(2) ** (1 - 2 * k)) * mp.zeta(2 * k)
-        b = 2 * dirichlet_eta * mp.gamma(j + 2) * mp.rgamma(j + 2 - 2 * k)
-        coeffs.append(b)
-        if abs(b) * mp.mpf(eta_min) ** (-2 * k) < 1e-19:
-            return coeffs
-        k += 1
-        if k > 40:
-            raise RuntimeError("Sommerfeld series did not reach the target")
+def monomials_on(mono_t, a, b):
+    """Ascending monomials in x of sum c_k t^k, t = (2 x - a - b) / (b - a)."""
+    scale, shift = 2 / (mp.mpf(b) - a), -(mp.mpf(a) + b) / (mp.mpf(b) - a)
+    mono_x = [mp.mpf(0)] * len(mono_t)
+    for k, c in enumerate(mono_t):
+        for i in range(k + 1):
+            mono_x[i] += c * mp.binomial(k, i) * scale**i * shift ** (k - i)
+    return mono_x
+
+
+def high_fit(j, cut):
+    """(degree, monomials in s) of H(s) = F_j(eta)/eta^(j+1), s = 1/eta^2 in [0, 1/cut^2],
+    or (None, None) beyond HIGH_MAX_DEGREE."""
+    top = 1 / mp.mpf(cut) ** 2
+
+    def h(s):
+        eta = 1 / mp.sqrt(s)
+        return fd_exact(j, eta) / eta ** (j + 1)
+
+    cheb, fmin = chebyshev_coefficients(h, 0, top, n=40)
+    for degree in range(2, HIGH_MAX_DEGREE + 1):
+        if mp.fsum(abs(c) for c in cheb[degree + 1 :]) < TARGET * fmin:
+            return degree, monomials_on(chebyshev_to_monomial(cheb[: degree + 1]), 0, top)
+    return None, None
+
+
+def high_float64(j, coeffs, eta):
+    """F_j from the high fit in float64 as checker.physics.fermi evaluates it."""
+    s = 1.0 / (eta * eta)
+    whole = int(j + 1 - mp.mpf(1) / 2)  # eta^(j+1) = eta^whole sqrt(eta)
+    lead = np.sqrt(eta)
+    if whole < 0:
+        lead = 1.0 / lead
+    for _ in range(max(whole, 0)):
+        lead = lead * eta
+    return horner64(coeffs, s) * lead
+
+
+def check_high(j, cut, coeffs):
+    """Worst relative float64 error of the high fit against mpmath, cut <= eta <= 1e5."""
+    eta = np.concatenate(
+        [np.linspace(cut, 2 * cut, 161), np.geomspace(2 * cut, HIGH_CHECK_TOP, 120)]
+    )
+    approx = high_float64(j, coeffs, eta)
+    return max(float(abs(v / fd_exact(j, x) - 1)) for x, v in zip(eta, approx))
+
+
+def build_high(j, text):
+    """(cut, monomials in s) of the lowest cut in HIGH_CUTS the high fit serves."""
+    for cut in HIGH_CUTS:
+        degree, mono = high_fit(j, cut)
+        if degree is None:
+            continue
+        coeffs = [float(c) for c in mono]
+        worst = check_high(j, cut, coeffs)
+        print(
+            f"j={text:5s} [{cut:6.2f}, inf) degree {degree:2d} in 1/eta^2 float64 err {worst:.2e}",
+            file=sys.stderr,
+        )
+        if worst < 1.5e-15:
+            return float(cut), coeffs
+    raise RuntimeError(f"no high fit for j={text}")
 
 
 def build_order(text):
     j = j_value(text)
     half_integer = "/" in text
-    top = ETA_ASYM if half_integer else 0.0
+    top, high = build_high(j, text) if half_integer else (0.0, [])
     low = fit_low(j)
     edges = [e for e in EDGE_CANDIDATES if e <= top]
     pieces = []
@@ -167,8 +222,7 @@ def build_order(text):
         )
         pieces.append((float(a), float(b), [float(c) for c in mono]))
         a_idx = b_idx
-    asym = [float(c) for c in sommerfeld(j, ETA_ASYM)] if half_integer else []
-    return text, [float(c) for c in low], pieces, asym, float(mp.gamma(j + 2))
+    return text, [float(c) for c in low], pieces, high
 
 
 def main(out: Path) -> None:
@@ -179,22 +233,23 @@ def main(out: Path) -> None:
         'generator for the scheme and its accuracy check)."""',
         "",
         f"ETA_LOW = {ETA_LOW!r}",
-        f"ETA_ASYM = {ETA_ASYM!r}",
         "TABLES = {",
     ]
     from multiprocessing import Pool
 
     with Pool(2) as pool:
         built = pool.map(build_order, ORDERS)
-    for text, low, pieces, asym, gamma in built:
+    ends = {text: [b for _, b, _ in pieces] for text, _, pieces, _ in built}
+    if ends["1/2"] != ends["-1/2"]:  # log_fermi_dirac_half_pair groups points once for both
+        raise RuntimeError("F_1/2 and F_-1/2 no longer share their edges")
+    for text, low, pieces, high in built:
         lines.append(f"    {text!r}: {{")
         lines.append(f"        'low': {low!r},")
         lines.append("        'pieces': [")
         for a, b, mono in pieces:
             lines.append(f"            ({a!r}, {b!r}, {mono!r}),")
         lines.append("        ],")
-        lines.append(f"        'asym': {asym!r},")
-        lines.append(f"        'gamma': {gamma!r},")
+        lines.append(f"        'high': {high!r},")
         lines.append("    },")
     lines.append("}")
     out.write_text("\n".join(lines) + "\n")

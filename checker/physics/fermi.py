@@ -17,13 +17,14 @@ Method
   F_j = sum_k (-1)^k z^(k+1)/(k+1)^(j+1), z = exp(eta) (remainder < 1.1e-17 relative).
 * half-integer j: piecewise polynomial fits generated in multiple precision
   by tools/generate_fd_tables.py: a series in z = exp(eta) for -8 <= eta < -2,
-  Chebyshev-derived polynomials on intervals up to eta = 50, and the
-  Sommerfeld series in 1/eta^2 above: asymptotic, not convergent, for half-integer j
-  (its best truncation's error at eta = 20 is still 3.6e-12 for j = 1/2, so the cut
-  cannot move far below 50).  Its error is the truncation, about the first omitted term
-  (the exponentially small term cos(pi j) F_j(-eta) of the exact expansion vanishes for
-  half-integer j); the generator keeps terms until that term is below 1e-19 at
-  eta = 50, where it is largest (measured against mpmath: <= 1.1e-19).
+  Chebyshev-derived polynomials on intervals up to a cut (eta = 20 to 29 by order), and
+  above it F_j = eta^(j+1) H(1/eta^2), H fitted on [0, 1/cut^2] (degree 8 for j = 1/2
+  from eta = 25).  H's Taylor series at 0 is the Sommerfeld series, asymptotic and not
+  convergent for half-integer j (its best truncation still errs by 3.6e-12 at eta = 20
+  for j = 1/2); the exact expansion's exponentially small term cos(pi j) F_j(-eta)
+  vanishes for half-integer j, so H is smooth up to s = 0 and a fit on the whole
+  interval needs few terms.  The generator checks each fit in float64, as evaluated
+  here, against mpmath (the high one from the cut to eta = 1e5).
   Relative error about 1e-15 at worst in float64 (measured by the tests against mpmath).
 * Evaluation: in blocks of 65,536 points, each labelled by region (a sum of edge
   comparisons), sorted by label (radix sort of uint8) so each region's formula runs on one
@@ -129,13 +130,19 @@ def _horner(coeffs: Sequence[float], t: FloatArray, out: FloatArray | None = Non
 ETA_SERIES = -8.0
 _SERIES_TERMS = 5
 
+# A second label for the points above eta = 50 (the region above the last edge goes on to
+# infinity and holds half of eta ~ U[-40, 80]): numpy's radix argsort counts each label
+# by an increment in memory, and runs of one label stall on that store (measured on a
+# 64k block with half the points in one label: 2.8-3.0 ns an element, 1.6 when split).
+_LABEL_SPLIT = 50.0
+
 
 class _Piecewise:
     """Evaluator for one order from its generated table.
 
     Regions: 0 the short exact series in e^eta (below ETA_SERIES, the deep tail included),
-    1 the fitted series in e^eta, 2.. fitted pieces, last the Sommerfeld series
-    (half-integer orders only).
+    1 the fitted series in e^eta, 2.. fitted pieces, last eta^(j+1) times the fitted
+    polynomial in 1/eta^2 (half-integer orders only).
     """
 
     def __init__(self, key: str) -> None:
@@ -151,28 +158,37 @@ class _Piecewise:
         ]
         edges = [ETA_SERIES, _fd_tables.ETA_LOW] + [b for _, b, _ in table["pieces"]]
         self.edges: FloatArray = np.array(edges, dtype=np.float64)
-        self.asym: list[float] = table["asym"]
-        self.gamma: float = table["gamma"]
-        self.last = len(self.edges) if self.asym else len(self.edges) - 1
+        self.high: list[float] = table["high"]
+        self.last = len(self.edges) if self.high else len(self.edges) - 1
+        # the labels' edges: the formulas' and, for half-integer orders, _LABEL_SPLIT,
+        # which splits the last region's label in two (one formula for both)
+        self.label_edges = [float(e) for e in self.edges[: self.last]]
+        if self.high:
+            assert _LABEL_SPLIT > self.edges[-1]
+            self.label_edges.append(_LABEL_SPLIT)
 
     def regions(self, eta: FloatArray) -> tuple[npt.NDArray[np.uint8], npt.NDArray[np.intp]]:
         """Region label of each point and the number of points in each region.
 
-        The label is the count of edges at or below eta (a sum of comparisons: four
-        times cheaper than a table look-up or a binary search); NaN compares false
-        and so lands in region 0, whose formula passes NaN on."""
+        The label is the count of label edges at or below eta (a sum of comparisons:
+        four times cheaper than a table look-up or a binary search); NaN compares false
+        and so lands in region 0, whose formula passes NaN on.  Labels past the last
+        region's index belong to it: sorted, they follow its own."""
         labels: npt.NDArray[np.uint8] = np.zeros(eta.shape, dtype=np.uint8)
-        at_least: list[int] = [eta.size]  # points in region k or above
-        for edge in self.edges[: self.last]:
+        at_least: list[int] = [eta.size]  # points with label k or above
+        for edge in self.label_edges:
             above = np.greater_equal(eta, edge)
             at_least.append(int(np.count_nonzero(above)))
             labels += above.view(np.uint8)
+        del at_least[self.last + 1 :]  # points in region k or above
         at_least.append(0)
         counts: npt.NDArray[np.intp] = np.subtract(at_least[:-1], at_least[1:], dtype=np.intp)
         return labels, counts
 
     def region(self, k: int, eta: FloatArray, log: bool, out: FloatArray) -> None:
-        """Write F_j (or ln F_j) of region k at eta into ``out`` (same length)."""
+        """Write F_j (or ln F_j) of region k at eta into ``out`` (same length); without
+        ``log`` ``out`` may be eta itself (every formula reads eta into a work array
+        before it writes ``out``)."""
         if k <= 1:
             z = np.exp(eta, out=_work("variable", eta.size))
             _horner(self.short if k == 0 else self.low, z, out)
@@ -182,7 +198,7 @@ class _Piecewise:
             else:
                 out *= z
         elif k == len(self.edges):
-            self._asymptotic(eta, log, out)
+            self._high(eta, log, out)
         else:
             mid, inv_half, coeffs = self.pieces[k - 2]
             t = np.subtract(eta, mid, out=_work("variable", eta.size))
@@ -191,23 +207,29 @@ class _Piecewise:
             if log:
                 np.log(out, out=out)
 
-    def _asymptotic(self, eta: FloatArray, log: bool, out: FloatArray) -> None:
+    def _high(self, eta: FloatArray, log: bool, out: FloatArray) -> None:
+        """eta^(j+1) H(1/eta^2), H fitted from the table's last edge up (1/Gamma(j+2) in
+        its coefficients); the generator checks these very operations against mpmath.
+        eta is read before ``out`` is written, so ``out`` may be eta itself."""
+        lead = _work("lead", eta.size)
+        if log:  # ln eta^(j+1) = (j+1) ln eta: no square root
+            np.log(eta, out=lead)
+            lead *= float(self.power)
+        else:
+            np.sqrt(eta, out=lead)  # eta^(j+1) = eta^whole * sqrt(eta)
+            whole = int(self.power - Fraction(1, 2))
+            if whole < 0:
+                np.divide(1.0, lead, out=lead)
+            for _ in range(max(whole, 0)):
+                lead *= eta
         inv2 = np.multiply(eta, eta, out=_work("variable", eta.size))
         np.divide(1.0, inv2, out=inv2)
-        series = _horner(self.asym, inv2, out)
-        whole = int(self.power - Fraction(1, 2))  # eta^(j+1) = eta^whole * sqrt(eta)
-        lead = np.sqrt(eta, out=_work("lead", eta.size))
-        if whole < 0:
-            np.divide(1.0, lead, out=lead)
-        for _ in range(max(whole, 0)):
-            lead *= eta
+        series = _horner(self.high, inv2, out)
         if log:
             np.log(series, out=series)
-            series += np.log(lead, out=lead)
-            series -= np.log(self.gamma)
+            series += lead
         else:
             series *= lead
-            series /= self.gamma
 
     def evaluate(self, eta: FloatArray, log: bool = False, threads: bool = False) -> FloatArray:
         return _grouped(self, eta, [(self, log)], threads)[0]
@@ -260,8 +282,11 @@ def _grouped(
                 ev.region(only, block, log, target)
             return
         order = np.argsort(region, kind="stable")
-        grouped = np.take(block, order, out=_work("grouped", block.size))
+        # every index is in range: mode="clip" skips the bounds check (half the cost)
+        grouped = np.take(block, order, out=_work("grouped", block.size), mode="clip")
         results = [_work(f"result {i}", block.size) for i in range(len(jobs))]
+        if len(jobs) == 1 and not jobs[0][1]:
+            results = [grouped]  # in place: one buffer less in cache (see _Piecewise.region)
         stop = 0
         for k in busy:
             first, stop = stop, stop + counts[k]
@@ -287,7 +312,8 @@ _REFLECTION_SIGN = {1: -1.0, 2: +1.0, 3: -1.0}
 def _reflection_polynomial(j: int, x: FloatArray) -> FloatArray:
     """poly_j(x) = x^2/2 + pi^2/6, x (x^2 + pi^2)/6, x^4/24 + pi^2 x^2/12 + 7 pi^4/360 for
     j = 1, 2, 3, in a work array (x may be overwritten); the operations and their order
-    are those of the written formulas, so the roundings are too."""
+    are those of the written formulas, except that /6 and /24 are products with the
+    rounded reciprocals (a division pass costs ~2.5 multiplications; <= 1 ulp more)."""
     square: FloatArray
     if j == 1:
         square = np.multiply(x, 0.5, out=_work("square", x.size))
@@ -298,9 +324,9 @@ def _reflection_polynomial(j: int, x: FloatArray) -> FloatArray:
     if j == 2:
         square += _PI2
         square *= x
-        square /= 6.0
+        square *= 1.0 / 6.0
         return square
-    np.divide(square, 24.0, out=x)
+    np.multiply(square, 1.0 / 24.0, out=x)
     x += _PI2 / 12.0
     square *= x
     square += 7.0 * _PI2 * _PI2 / 360.0
@@ -342,11 +368,11 @@ def _integer_order_block(j: int, eta: FloatArray, out: FloatArray) -> None:
     base = np.abs(eta, out=out)
     near = np.flatnonzero(base <= -ETA_SERIES)
     np.negative(base, out=base)
-    fitted = np.take(base, near, out=_work("fitted", near.size))
+    fitted = np.take(base, near, out=_work("fitted", near.size), mode="clip")
     table.region(0, base, False, base)
     if near.size:
         closest = np.flatnonzero(fitted >= _fd_tables.ETA_LOW)
-        middle = np.take(fitted, closest, out=_work("middle", closest.size))
+        middle = np.take(fitted, closest, out=_work("middle", closest.size), mode="clip")
         table.region(1, fitted, False, fitted)
         table.region(2, middle, False, middle)  # the one fitted piece, [ETA_LOW, 0]
         fitted[closest] = middle
@@ -523,11 +549,11 @@ def _inverse_block(log_u: FloatArray, eta: FloatArray) -> None:
     np.copyto(cell, x, casting="unsafe")  # truncation: the floor of x >= 0
     np.minimum(cell, cells - 1, out=cell)
     x -= cell  # t in [0, 1]
-    np.take(coeffs[-1], cell, out=eta)
+    np.take(coeffs[-1], cell, out=eta, mode="clip")  # cells in range: no bounds check
     scratch = _work("coefficient", log_u.size)
     for c in coeffs[-2::-1]:
         eta *= x
-        eta += np.take(c, cell, out=scratch)
+        eta += np.take(c, cell, out=scratch, mode="clip")
     eta += log_u
     if np.count_nonzero(log_u > _INV_S_HIGH):
         above = np.flatnonzero(log_u > _INV_S_HIGH)
