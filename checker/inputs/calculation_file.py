@@ -40,6 +40,7 @@ from ..quantity_registry.registry import QUANTITIES, file_keys
 from ..records import Record, field
 from ..vocabulary_words import ASSUMPTIONS
 from .material_catalog import resolve_material
+from .plain_yaml import plain_documents
 from .quantities import check_plausible, parse_quantity, parse_temperature, read_number
 from .text_bytes import read_text_file
 from .yaml_source import Problems, compose_documents
@@ -146,7 +147,10 @@ def _plain(node, path, positions):
 
 def read_documents(text: str, name: str) -> tuple[list[Located], list[str]]:
     """Every sound document as plain text values with positions, and the errors of the
-    others (strict YAML, see yaml_source)."""
+    others (strict YAML, see yaml_source; the usual file is read by plain_yaml)."""
+    plain = plain_documents(text)
+    if plain is not None:
+        return [Located(value, positions) for value, positions in plain], []
     nodes, errors = compose_documents(text, name)
     docs = []
     for node in nodes:
