@@ -29,8 +29,6 @@ import re
 from pathlib import Path
 from typing import TypeAlias
 
-import yaml
-
 from ..close_words import close_matches, did_you_mean
 from ..errors import InputError, RegimecheckError
 from ..physics.arrays import FloatArray
@@ -41,9 +39,9 @@ from ..records import Record, field
 from ..vocabulary_words import ASSUMPTIONS
 from .material_catalog import resolve_material
 from .plain_yaml import plain_documents
+from .problems import Problems
 from .quantities import check_plausible, parse_quantity, parse_temperature, read_number
 from .text_bytes import read_text_file
-from .yaml_source import Problems, compose_documents
 
 TOP_KEYS = (
     "name",
@@ -125,6 +123,8 @@ class FileResult(Record):
 
 
 def _plain(node, path, positions):
+    import yaml  # the composer's nodes: only texts the line reader leaves to it
+
     mark = node.start_mark
     positions[path] = (mark.line + 1, mark.column + 1)
     if isinstance(node, yaml.MappingNode):
@@ -151,6 +151,8 @@ def read_documents(text: str, name: str) -> tuple[list[Located], list[str]]:
     plain = plain_documents(text)
     if plain is not None:
         return [Located(value, positions) for value, positions in plain], []
+    from .yaml_source import compose_documents
+
     nodes, errors = compose_documents(text, name)
     docs = []
     for node in nodes:

@@ -19,11 +19,12 @@ from typing import Any
 
 # a plain key: letters, digits, '_' and '-', not starting with '-' or a digit
 _KEY = r"[A-Za-z_][A-Za-z0-9_-]*"
-# what a one-line plain scalar may not hold here: a control, ':' or '#' (which can end a
-# plain scalar), a bracket or brace (flow collections), a line break YAML knows besides
-# '\n' (NEL, U+2028, U+2029) or a byte-order mark; in a flow collection no ',' or '?'
-# either (PyYAML's own scanner, which reads texts holding a '?', ends a flow scalar there)
-_NEVER = "\x00-\x1f\x7f-\x9f:#\\[\\]{}\u2028\u2029\ufeff"
+# what a one-line plain scalar may not hold here: ':' or '#' (which can end a plain
+# scalar), a bracket or brace (flow collections); in a flow collection no ',' or '?'
+# either (PyYAML's own scanner, which reads texts holding a '?', ends a flow scalar
+# there).  Controls, YAML's other line breaks and byte-order marks never reach the
+# patterns (_NOT_PLAIN): the character classes stay within Latin-1, quick to compile
+_NEVER = ":#\\[\\]{}"
 _BLOCK_CHAR, _BLOCK_LAST = f"[^{_NEVER}]", f"[^{_NEVER} ]"
 _FLOW_CHAR, _FLOW_LAST = f"[^{_NEVER},?]", f"[^{_NEVER},? ]"
 # a plain scalar starts with no blank and no indicator; '-' only before a digit, a
