@@ -1,12 +1,13 @@
 """The usual calculation file read line by line: block mappings of plain keys, one-line
-plain scalars, flat flow mappings and sequences of them, block sequences of scalars.
+plain scalars, flat flow mappings and sequences of them, block sequences of scalars or
+of mappings (waivers).
 
 Composing such a text with libyaml builds a node and two marks for every scalar and then
 walks the tree again for the plain values (some 45 ms for 1,000 calculations); one regular
-expression a line gives the same values and positions in a third of that.  Anything
-outside this narrow form -- quotes, anchors, tags, multi-line or block scalars, nested flow
-collections, a sequence of mappings, a key seen twice, odd indentation, a '...' or a '---'
-with text after it, an empty document -- makes :func:`plain_documents` return None, and
+expression a line gives the same values and positions in 18 ms.  Anything outside this
+narrow form -- quotes, anchors, tags, multi-line or block scalars, nested flow
+collections, a key seen twice, odd indentation, a '...' or a '---' with text after it, an
+empty document, a tab -- makes :func:`plain_documents` return None, and
 the text is composed by yaml_source, which also words every refusal.  The two are held
 to the same values and positions over every example and test file and generated
 variations (tests/test_plain_yaml.py).
@@ -42,10 +43,11 @@ _LINE = re.compile(
     rf"|({_BLOCK_SCALAR}))(?: +#[^\n]*)? *"
 )
 _SKIPPED = re.compile(r" *(?:#[^\n]*)?")  # a blank or comment line
-_MAPPING_ITEMS = re.compile(rf"(?: *{_KEY}: +{_FLOW_SCALAR} *(?:,(?= *[^ }}])|(?=\}})))* *\}}")
-_MAPPING_ITEM = re.compile(rf" *({_KEY}): +({_FLOW_SCALAR}) *,?")
-_SEQUENCE_ITEMS = re.compile(rf"(?: *{_FLOW_SCALAR} *(?:,(?= *[^ \]])|(?=\])))* *\]")
-_SEQUENCE_ITEM = re.compile(rf" *({_FLOW_SCALAR}) *,?")
+# an item of a one-line flow collection and the ',' after it (one only where another
+# item follows) or the closing bracket ahead; the blanks after the last item, then the
+# bracket, end the collection
+_MAPPING_ITEM = re.compile(rf" *({_KEY}): +({_FLOW_SCALAR}) *(?:,(?= *[^ }}])|(?=\}}))")
+_SEQUENCE_ITEM = re.compile(rf" *({_FLOW_SCALAR}) *(?:,(?= *[^ \]])|(?=\]))")
 
 _MOST_LEVELS = 8  # deeper texts are composed by yaml_source (which limits nesting)
 # characters that send a text to yaml_source wherever they stand (a comment included):
@@ -169,25 +171,30 @@ def _documents(text: str) -> list[tuple[object, Positions]]:
 
 def _flow_mapping(text: str, start: int, number: int, path: tuple, positions: Positions):
     """A one-line flow mapping of plain scalars, its items placed."""
-    if _MAPPING_ITEMS.fullmatch(text, 1) is None:
-        raise _NotPlain
     mapping: dict[str, str] = {}
-    for item in _MAPPING_ITEM.finditer(text, 1, len(text) - 1):
-        if item[1] in mapping:
+    at, item = 1, _MAPPING_ITEM.match
+    while (found := item(text, at)) is not None:
+        key = found[1]
+        if key in mapping:
             raise _NotPlain
-        mapping[item[1]] = item[2]
-        positions[(*path, item[1])] = (number, start + item.start(2) + 1)
+        mapping[key] = found[2]
+        positions[(*path, key)] = (number, start + found.start(2) + 1)
+        at = found.end()
+    if text[at:].lstrip(" ") != "}":
+        raise _NotPlain
     return mapping
 
 
 def _flow_sequence(text: str, start: int, number: int, path: tuple, positions: Positions):
     """A one-line flow sequence of plain scalars, its items placed."""
-    if _SEQUENCE_ITEMS.fullmatch(text, 1) is None:
-        raise _NotPlain
     sequence: list[str] = []
-    for item in _SEQUENCE_ITEM.finditer(text, 1, len(text) - 1):
-        positions[(*path, len(sequence))] = (number, start + item.start(1) + 1)
-        sequence.append(item[1])
+    at, item = 1, _SEQUENCE_ITEM.match
+    while (found := item(text, at)) is not None:
+        positions[(*path, len(sequence))] = (number, start + found.start(1) + 1)
+        sequence.append(found[1])
+        at = found.end()
+    if text[at:].lstrip(" ") != "]":
+        raise _NotPlain
     return sequence
 
 
