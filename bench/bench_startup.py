@@ -9,8 +9,9 @@ Anchors and targets (issue 16):
 - the cold check with an empty user cache (first run after an install) / the floor: shown
 
 The rules, built-in materials and formula matches are kept in the user cache after the
-first run (checker/user_cache.py); every row but the last runs with it warm.  The package's
-bytecode is written first, as pip writes it at install.
+first run (checker/user_cache.py); every row but the last runs with it warm (a cache folder
+of the bench's own: another version's run would replace the formula matches kept in the
+user's).  The package's bytecode is written first, as pip writes it at install.
 
 Every run of the command must exit 0 or 1 (bench/installed_command.py), else the bench
 stops.  Prints a table of median per-round ratios with their spread; asserts nothing.
