@@ -20,7 +20,6 @@ from typing import Any
 import yaml
 
 from ..errors import InputError
-from .problems import InputErrors, Problems  # noqa: F401 - their home was here
 
 MAX_NESTING = 32
 TOO_DEEP = "the YAML is nested more than"
