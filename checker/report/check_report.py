@@ -124,6 +124,14 @@ class _PlainText:
         """append_safe(safe), then append(text): one part (no style to keep apart)."""
         self.parts.append(safe + _shown(text))
 
+    def append_rows(self, rows):
+        """The state table, '  label' and the value right-aligned a line each, as one part
+        (one check that nothing in it needs escaping)."""
+        block = "".join([f"  {label:<24}{text:>24}\n" for label, text in rows])
+        if not block.replace("\n", "").isprintable():  # our labels: only values escape
+            block = "".join([f"  {label:<24}{_shown(f'{text:>24}')}\n" for label, text in rows])
+        self.parts.append(block)
+
     @property
     def plain(self):
         return "".join(self.parts)
@@ -178,6 +186,10 @@ def render_console(result, console=None, stream=None) -> None:
                 super().append(safe, safe_style)
                 return self.append(text, style)
 
+            def append_rows(self, rows):
+                for label, text in rows:
+                    self.append_pair(f"  {label:<24}", f"{text:>24}\n", "dim")
+
         Text, width = _EscapedText, max(console.width, 60)
         emit = lambda text: console.print(text, end="", highlight=False)
 
@@ -209,8 +221,7 @@ def render_console(result, console=None, stream=None) -> None:
         if report.sweep:
             add(out, f"sweep of {report.sweep['points']} grid points", indent=2)
         else:
-            for label, text in shown_rows(CHECK_ROWS, report.state):  # our labels
-                out.append_pair(f"  {label:<24}", f"{text:>24}\n", "dim")
+            out.append_rows(shown_rows(CHECK_ROWS, report.state))
         for r in report.formulas:
             out.append(f"  formula (line {r.line})".ljust(26), style="dim")
             out.append(f"{r.text}\n", style="bold")
