@@ -46,14 +46,22 @@ MIXES = [
 ]
 
 
+# The warm cases' user cache: a folder of this bench run's own.  The user's cache is
+# shared with every other install on the machine, and a run of another version of the
+# code replaces the formula matches kept there (match_store keeps one code version):
+# a check timed after it would search them afresh.
+_WARM_CACHE = tempfile.TemporaryDirectory(prefix="regimecheck-bench-cache-")  # mode 0700
+
+
 def command(*args, cold: bool = False):
-    """A case: ``regimecheck *args`` run once (exit 0 or 1, else the bench stops);
-    ``cold``: with an empty user cache (REGIMECHECK_CACHE), as the first run after an
-    install or upgrade: the rules, materials and formula matches are read, checked and
-    searched afresh, then kept."""
+    """A case: ``regimecheck *args`` run once (exit 0 or 1, else the bench stops), with
+    the bench's own user cache (REGIMECHECK_CACHE), filled by the first run;
+    ``cold``: with an empty one, as the first run after an install or upgrade: the
+    rules, materials and formula matches are read, checked and searched afresh."""
     argv = [str(a) for a in args]
     if not cold:
-        return lambda: installed_command.run(argv, CHECKED, cwd=ROOT)
+        env = {**os.environ, "REGIMECHECK_CACHE": _WARM_CACHE.name}
+        return lambda: installed_command.run(argv, CHECKED, cwd=ROOT, env=env)
 
     def case():
         with tempfile.TemporaryDirectory() as cache:

@@ -35,8 +35,8 @@ def field(*, default_factory: Callable[[], T]) -> T:
 
 
 def _written_init(cls: type[_Fields]) -> Callable[..., None]:
-    """``__init__(self, <fields, with their defaults>)`` of a record type: the fields go
-    into the instance's __dict__ (a frozen record's __setattr__ refuses them), a factory
+    """``__init__(self, <fields, with their defaults>)`` of a record type: the fields are
+    assigned (a frozen record's, whose __setattr__ refuses them, go into its __dict__), a factory
     default is called per record, then ``__post_init__`` where the type has one."""
     namespace: dict[str, Any] = {"_MISSING": _MISSING}
     params, body = [], []
@@ -51,8 +51,13 @@ def _written_init(cls: type[_Fields]) -> Callable[..., None]:
         else:
             namespace[f"_default_{key}"] = default
             params.append(f"{key}=_default_{key}")
-    values = ", ".join(f"{key!r}: {key}" for key in cls._fields)
-    body.append(f"    self.__dict__.update({{{values}}})")
+    if cls.__setattr__ is object.__setattr__:
+        # attribute stores (half the cost of a dict update; the instance keeps its
+        # values inline, which makes reading them quicker too)
+        body += [f"    self.{key} = {key}" for key in cls._fields]
+    else:  # frozen: __setattr__ refuses
+        values = ", ".join(f"{key!r}: {key}" for key in cls._fields)
+        body.append(f"    self.__dict__.update({{{values}}})")
     if hasattr(cls, "__post_init__"):
         body.append("    self.__post_init__()")
     source = f"def __init__(self, {', '.join(params)}):\n" + "\n".join(body)

@@ -26,8 +26,10 @@ print("loaded:" + ",".join(m for m in unused if m in sys.modules))
 # tables, json for the JSON report; importlib.resources was only a path lookup,
 # numpy.polynomial one polyval, shutil argparse's terminal width; the rule
 # reader and what it validates with (field table, dimension check) only where the rule
-# cache is cold or stale; argparse where the command line is a plain check (cli._arguments)
+# cache is cold or stale; argparse where the command line is a plain check (cli._arguments);
+# PyYAML for the texts the line reader (inputs/plain_yaml.py) leaves to the composer
 UNUSED = (
+    "yaml",
     "argparse",
     "numpy.ma",
     "sympy",

@@ -160,13 +160,13 @@ def test_a_walked_file_is_parsed_once(tmp_path, monkeypatch):
     from checker.inputs import calculation_file
 
     calls = []
-    original = calculation_file.compose_documents
+    original = calculation_file.read_documents  # the line reader, else the composer
 
     def counted(text, name):
         calls.append(name)
         return original(text, name)
 
-    monkeypatch.setattr(calculation_file, "compose_documents", counted)
+    monkeypatch.setattr(calculation_file, "read_documents", counted)
     calc = tmp_path / "calc.yaml"
     calc.write_text("name: a\nmaterial: Si\ntemperature: 300 K\n", encoding="utf-8")
     other = tmp_path / "settings.yaml"

@@ -17,7 +17,7 @@ from ..inputs.calculation_file import Calculation
 from ..inputs.config import Config, check_rule_ids
 from ..inputs.sources import read_input
 from ..records import Record, field
-from ..vocabulary_words import Severity
+from ..vocabulary_words import SEVERITY_RANK, Severity
 from .findings import Finding
 from .regime import rulebook
 from .regime.points import CalculationReport, check_points
@@ -39,7 +39,9 @@ class RunResult(Record):
         return [f for r in self.reports for f in r.findings if not f.waived]
 
     def worst(self) -> Severity | None:
-        return Severity.worst(f.severity for f in self.active_findings())
+        # the words ranked by a table (Severity.worst makes a member of each)
+        words = {f.severity for f in self.active_findings()}
+        return Severity(max(words, key=SEVERITY_RANK.__getitem__)) if words else None
 
     def counts(self) -> dict[str, int]:
         out = {level.value: 0 for level in Severity}
@@ -131,7 +133,7 @@ def check_calculations(
     waivers = apply_waivers(rules, calculations, [r.findings for r in ordered], config)
     for i, report in enumerate(ordered):
         report.findings = sorted(
-            report.findings, key=lambda f: (-Severity(f.severity).rank, f.rule)
+            report.findings, key=lambda f: (-SEVERITY_RANK[f.severity], f.rule)
         )
         report.notes += waivers.notes[i]
     errors = list(input_errors) + waivers.errors + errors

@@ -29,8 +29,6 @@ import re
 from pathlib import Path
 from typing import TypeAlias
 
-import yaml
-
 from ..close_words import close_matches, did_you_mean
 from ..errors import InputError, RegimecheckError
 from ..physics.arrays import FloatArray
@@ -40,9 +38,10 @@ from ..quantity_registry.registry import QUANTITIES, file_keys
 from ..records import Record, field
 from ..vocabulary_words import ASSUMPTIONS
 from .material_catalog import resolve_material
+from .plain_yaml import plain_documents
+from .problems import Problems
 from .quantities import check_plausible, parse_quantity, parse_temperature, read_number
 from .text_bytes import read_text_file
-from .yaml_source import Problems, compose_documents
 
 TOP_KEYS = (
     "name",
@@ -124,6 +123,8 @@ class FileResult(Record):
 
 
 def _plain(node, path, positions):
+    import yaml  # the composer's nodes: only texts the line reader leaves to it
+
     mark = node.start_mark
     positions[path] = (mark.line + 1, mark.column + 1)
     if isinstance(node, yaml.MappingNode):
@@ -146,7 +147,12 @@ def _plain(node, path, positions):
 
 def read_documents(text: str, name: str) -> tuple[list[Located], list[str]]:
     """Every sound document as plain text values with positions, and the errors of the
-    others (strict YAML, see yaml_source)."""
+    others (strict YAML, see yaml_source; the usual file is read by plain_yaml)."""
+    plain = plain_documents(text)
+    if plain is not None:
+        return [Located(value, positions) for value, positions in plain], []
+    from .yaml_source import compose_documents
+
     nodes, errors = compose_documents(text, name)
     docs = []
     for node in nodes:
@@ -182,6 +188,12 @@ class _Where:
             if keys[:cut] in self.positions:
                 return self.positions[keys[:cut]][0]
         return 0
+
+
+def _placed(error: InputError, where, *keys) -> InputError:
+    """``error`` led by 'file:line:column: key.path' (a value's place is written only
+    where it is refused: most are read without one)."""
+    return InputError(f"{where.key(*keys)}: {error}")
 
 
 def _unknown_keys(mapping: dict, allowed, where, what: str, section=()):
@@ -312,10 +324,11 @@ def _temperature(data, where, axes):
     if isinstance(data["temperature"], dict):
         axes.append(_axis(data["temperature"], "temperature", "T", where, ("temperature",)))
         return float(axes[-1].values[0])
-    here = where.key("temperature")
-    return check_plausible(
-        parse_temperature(data["temperature"], here), "temperature", data["temperature"], here
-    )
+    text = data["temperature"]
+    try:
+        return check_plausible(parse_temperature(text), "temperature", text)
+    except InputError as exc:
+        raise _placed(exc, where, "temperature") from None
 
 
 def _doping(data, material, where, axes) -> dict:
@@ -343,22 +356,21 @@ def _doping(data, material, where, axes) -> dict:
 
 
 def _density(material, group, species, text, where, axes) -> float:
-    here = where.key("doping", group, species)
     try:
         dopant = material.dopant(species)
+        if dopant.kind != group[:-1]:
+            raise InputError(
+                f"{species} is a {dopant.kind} in {material.name}; move it under {dopant.kind}s"
+            )
+        if not isinstance(text, dict):
+            density = parse_quantity(text, "density")
+            if density < 0:
+                raise InputError(f"density {text!r} is negative; give a value >= 0")
+            return check_plausible(density, "density", text)
     except InputError as exc:
-        raise InputError(f"{here}: {exc}") from None
-    if dopant.kind != group[:-1]:
-        raise InputError(
-            f"{here}: {species} is a {dopant.kind} in {material.name}; move it under {dopant.kind}s"
-        )
-    if isinstance(text, dict):
-        axes.append(_axis(text, "density", (group, species), where, ("doping", group, species)))
-        return float(axes[-1].values[0])
-    density = parse_quantity(text, "density", here)
-    if density < 0:
-        raise InputError(f"{here}: density {text!r} is negative; give a value >= 0")
-    return check_plausible(density, "density", text, here)
+        raise _placed(exc, where, "doping", group, species) from None
+    axes.append(_axis(text, "density", (group, species), where, ("doping", group, species)))
+    return float(axes[-1].values[0])
 
 
 def _options(data, where) -> tuple:
@@ -513,18 +525,20 @@ def _quantities(data, section, keys, where, lines, lists=()) -> dict:
 
 
 def _quantity(section, key, dimension, text, where) -> float:
-    here = where.key(section, key)
-    if key == "dimensionality":
-        if str(text).strip() not in ("1", "2", "3"):
-            raise InputError(f"{here}: dimensionality must be 3, 2 or 1, got {text!r}")
-        return float(str(text))
-    value = parse_quantity(text, dimension, here)
-    if value < 0 and key not in SIGNED_KEYS:
-        raise InputError(f"{here}: {text!r} is negative; give a value >= 0")
-    check_plausible(value, dimension, text, here)
-    if value == 0 and dimension in ("length", "area", "density") and section == "structure":
-        raise InputError(f"{here}: must be larger than zero")
-    return value
+    try:
+        if key == "dimensionality":
+            if str(text).strip() not in ("1", "2", "3"):
+                raise InputError(f"dimensionality must be 3, 2 or 1, got {text!r}")
+            return float(str(text))
+        value = parse_quantity(text, dimension)
+        if value < 0 and key not in SIGNED_KEYS:
+            raise InputError(f"{text!r} is negative; give a value >= 0")
+        check_plausible(value, dimension, text)
+        if value == 0 and dimension in ("length", "area", "density") and section == "structure":
+            raise InputError("must be larger than zero")
+        return value
+    except InputError as exc:
+        raise _placed(exc, where, section, key) from None
 
 
 # structure.modes: more modes than a square millimetre of a metal carries is a typo

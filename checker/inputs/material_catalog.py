@@ -26,6 +26,7 @@ from ..physics.constants import EV, ROOM_TEMPERATURE
 from ..records import FrozenRecord, Record, field
 from ..resources import materials_dir
 from ..user_cache import entry_name, kept
+from .problems import Problems
 from .quantities import (
     NUMBER,
     WRITTEN_NUMBER,
@@ -34,7 +35,6 @@ from .quantities import (
     quantity_pattern,
     read_number,
 )
-from .yaml_source import Problems, load_package_yaml
 
 # What each optional block is needed for (used in "missing parameter" messages).
 NEEDED_FOR = {
@@ -1181,6 +1181,8 @@ def _load_builtin(file_name: str) -> m.Material:
 
 
 def _read_builtin(entry: Path) -> m.Material:
+    from .yaml_source import load_package_yaml  # a cold user cache only
+
     data = load_package_yaml(entry.read_text(encoding="utf-8"), entry.name)
     return material_from_mapping(_drop_split_text(data), where=entry.name)
 

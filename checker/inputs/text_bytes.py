@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import io
 from collections.abc import Iterable
-from pathlib import Path
 
 _BOM = b"\xef\xbb\xbf"
 
@@ -46,7 +45,8 @@ def decode_utf8(raw: bytes) -> tuple[str, str]:
 def read_text_file(path: str) -> tuple[str, str | None]:
     """(text, None) of a UTF-8 input file, or ("", the error message)."""
     try:
-        raw = Path(path).read_bytes()
+        with open(path, "rb") as file:  # as Path.read_bytes, without a Path per file
+            raw = file.read()
     except OSError as exc:
         return "", f"{path}: cannot read the file ({exc.strerror})"
     text, problem = decode_utf8(raw)

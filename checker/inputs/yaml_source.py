@@ -37,40 +37,6 @@ _CONTROL_NAMES = {
 }
 
 
-class InputErrors(InputError):
-    """Several problems of one input, each a message naming file:line:column."""
-
-    def __init__(self, messages):
-        self.messages = list(messages)
-        super().__init__("\n".join(self.messages))
-
-
-class Problems:
-    """Collects input errors so that one document reports all of them at once."""
-
-    def __init__(self):
-        self.messages = []
-
-    def add(self, error: InputError):
-        self.messages += getattr(error, "messages", None) or [str(error)]
-
-    def run(self, step, *args, default=None):
-        """``step(*args)``, or ``default`` after recording its InputError."""
-        try:
-            return step(*args)
-        except InputError as exc:
-            self.add(exc)
-            return default
-
-    def raise_any(self):
-        if self.messages:
-            raise (
-                InputErrors(self.messages)
-                if len(self.messages) > 1
-                else InputError(self.messages[0])
-            )
-
-
 def describe_character(char: str) -> str:
     code = ord(char)
     if code >= 0xD800:  # a surrogate or a non-character: not text at all

@@ -87,12 +87,15 @@ def unchecked_text(report) -> str | None:
 
 
 def corrected_lines(report) -> list:
-    """The corrected calculation, one line per stated quantity the findings correct."""
+    """The corrected calculation, one line per stated quantity the findings correct;
+    none where there is only one (the finding's own correction says it)."""
+    entries = [e for e in report.corrected if e.stated is not None]
+    if len(entries) < 2:
+        return []
     return [
         f"{e.key}: {display(e.stated, e.unit)} → {display(e.corrected, e.unit)} "
         f"({', '.join(e.rules)})"
-        for e in report.corrected
-        if e.stated is not None
+        for e in entries
     ]
 
 
@@ -116,6 +119,18 @@ class _PlainText:
     def append_safe(self, text, style=""):
         """Append text already made visible (or our own words): no second pass."""
         self.parts.append(text)
+
+    def append_pair(self, safe, text, safe_style="", style=""):
+        """append_safe(safe), then append(text): one part (no style to keep apart)."""
+        self.parts.append(safe + _shown(text))
+
+    def append_rows(self, rows):
+        """The state table, '  label' and the value right-aligned a line each, as one part
+        (one check that nothing in it needs escaping)."""
+        block = "".join([f"  {label:<24}{text:>24}\n" for label, text in rows])
+        if not block.replace("\n", "").isprintable():  # our labels: only values escape
+            block = "".join([f"  {label:<24}{_shown(f'{text:>24}')}\n" for label, text in rows])
+        self.parts.append(block)
 
     @property
     def plain(self):
@@ -167,15 +182,25 @@ def render_console(result, console=None, stream=None) -> None:
             def append_safe(self, text, style=None):
                 return super().append(text, style)
 
+            def append_pair(self, safe, text, safe_style=None, style=None):
+                super().append(safe, safe_style)
+                return self.append(text, style)
+
+            def append_rows(self, rows):
+                for label, text in rows:
+                    self.append_pair(f"  {label:<24}", f"{text:>24}\n", "dim")
+
         Text, width = _EscapedText, max(console.width, 60)
         emit = lambda text: console.print(text, end="", highlight=False)
 
+    margins = {indent: " " * indent for indent in (0, 2, 4, 8, 26)}
+
     def add(text, line, style="", indent=8):
-        margin = " " * indent
-        short = len(line) <= width - indent and line[:1] != " " and line[-1:] != " "
-        if short and line.isprintable():
-            text.append_safe(margin + line + "\n", style=style)  # wrapped() would keep it whole
-            return
+        margin = margins[indent]
+        if len(line) <= width - indent and line[:1] != " " and line[-1:] != " ":
+            if line.isprintable():  # wrapped() would keep it whole
+                text.append_safe(margin + line + "\n", style=style)
+                return
         for part in wrapped(_shown(line), width - indent):
             text.append_safe(margin + part + "\n", style=style)
 
@@ -196,9 +221,7 @@ def render_console(result, console=None, stream=None) -> None:
         if report.sweep:
             add(out, f"sweep of {report.sweep['points']} grid points", indent=2)
         else:
-            for label, text in shown_rows(CHECK_ROWS, report.state):
-                out.append_safe(f"  {label:<24}", style="dim")  # our labels
-                out.append(f"{text:>24}\n")
+            out.append_rows(shown_rows(CHECK_ROWS, report.state))
         for r in report.formulas:
             out.append(f"  formula (line {r.line})".ljust(26), style="dim")
             out.append(f"{r.text}\n", style="bold")
@@ -208,8 +231,8 @@ def render_console(result, console=None, stream=None) -> None:
             out.append_safe("  no assumption leaves its regime\n", style="green")
         for f in report.findings:
             tag = "waived" if f.waived else f.severity
-            out.append_safe(f"{tag.upper():8s}", style="dim" if f.waived else STYLE[f.severity])
-            out.append(f"{f.rule}  {f.title}", style="bold")
+            style = "dim" if f.waived else STYLE[f.severity]
+            out.append_pair(f"{tag.upper():8s}", f"{f.rule}  {f.title}", style, "bold")
             out.append(f"  at {finding_where(f)}\n", style="dim")
             add(out, finding_message(f))
             indicator = f.indicator_text()
@@ -220,7 +243,7 @@ def render_console(result, console=None, stream=None) -> None:
             if f.waived:
                 add(out, f"waived: {f.waived}", "dim")
         corrected = corrected_lines(report)
-        if len(corrected) > 1:
+        if corrected:
             add(out, "corrected calculation (each stated number once):", "bold", indent=2)
             for line in corrected:
                 add(out, line, indent=4)
