@@ -113,7 +113,7 @@ class Cells:
         is the one the full arrays give: the same elementwise arithmetic, broadcast)."""
         if self.all_indicators:
             return self.values
-        return {name: one_value(array) for name, array in self.values.items()}
+        return _OneValues(self.values)
 
     def in_use(self, names: Mapping[str, str]) -> BoolArray:
         """Per cell: whether the carrier of the names (carrier_names) is in use."""
@@ -159,6 +159,21 @@ class Cells:
             for k, item in enumerate(items):
                 embodied.setdefault(item.word, []).append((c, k, item.carrier))
         return declared, embodied
+
+
+class _OneValues(dict[str, Any]):
+    """The values of ``base`` as read by a sweep chunk's rules (Cells.read_values): each
+    one-value quantity as one element, taken on first read (a chunk's rules read a few
+    dozen of its ~250 quantities; those computed on first read, state_values.LazyValues,
+    are computed then)."""
+
+    def __init__(self, base: Values) -> None:
+        super().__init__()
+        self._base = base
+
+    def __missing__(self, name: str) -> Any:
+        value = self[name] = one_value(self._base[name])
+        return value
 
 
 class Ruled(Record):
@@ -271,8 +286,9 @@ def assumption_made(
         k = int(everywhere[0])
         if k != _NO_FORMULA:
             return np.ones(count, dtype=bool), np.full(count, k)
-        made = cells.in_use(names).copy() if x else np.ones(count, dtype=bool)
-        return made, np.full(count, -1)
+        # (rule_mask works on a copy of made; by_formula is only read)
+        made = cells.in_use(names) if x else np.ones(count, dtype=bool)
+        return made, np.broadcast_to(np.int64(-1), (count,))
     in_use = cells.in_use(names) if x else np.ones(count, dtype=bool)
     if one:
         declared_here: bool | BoolArray = bool(declared[0])
@@ -378,11 +394,11 @@ def rule_mask(
     for imp in rule.implied_by:
         name = names.get(imp.stated, imp.stated)
         stated = values[name]
-        mask = np.broadcast_to(np.isfinite(stated), (count,))
-        if not mask.any():  # not stated at any cell (a sweep: the whole chunk)
-            implied.append((name, mask))
+        given = np.isfinite(stated)  # (a sweep's chunk: one element)
+        if not given.any():  # not stated at any cell (a sweep: the whole chunk)
+            implied.append((name, np.broadcast_to(given, (count,))))
             continue
-        mask = mask.copy()
+        mask = np.broadcast_to(given, (count,)).copy()
         shortcut = np.asarray(imp.shortcut.run[x](values), dtype=float)
         mask &= np.isfinite(shortcut) & (np.abs(stated / shortcut - 1.0) <= imp.within)
         # near a rule's threshold the shortcut and the exact value lie closer together than

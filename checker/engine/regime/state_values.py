@@ -131,25 +131,113 @@ def solve_sweep(
     put, skipped = solve_points(
         calc, T, donors, acceptors, reads=reads, reference=reference, rows=rows
     )
-    values = {name: view for name, view in _unknown_views(count).items() if name not in put}
     # the solve's own arrays are kept as they are; a copy only where an array would be
     # shared (a caller's input, or one array under two names) or is not yet one per point
-    shared = {_memory(a) for a in (T, *donors.values(), *acceptors.values())}
+    values = LazyValues(count, {_memory(a) for a in (T, *donors.values(), *acceptors.values())})
+    values.update((name, view) for name, view in _unknown_views(count).items() if name not in put)
     for name, array in put.items():
-        if not np.ndim(array):  # one value for the chunk: a read-only view
-            values[name] = _constant(count, array)
+        if isinstance(array, Deferred):
+            values.defer((name,), array)
+        else:
+            values.place(name, array)
+    fill_inputs([calc], values, count=count, reads=reads)
+    return values, skipped
+
+
+class Deferred:
+    """Quantities computed together on their first read (:class:`LazyValues`):
+    ``compute(values)`` gives them by name, reading what it needs from ``values``;
+    ``placed``: they are laid out as solve_sweep lays out the solve's arrays (else taken
+    as they are)."""
+
+    __slots__ = ("compute", "placed")
+
+    def __init__(self, compute: Callable[[Values], Mapping[str, ArrayIn]], placed: bool = False):
+        self.compute, self.placed = compute, placed
+
+
+class LazyValues(dict[str, npt.NDArray[Any]]):
+    """A sweep chunk's quantities (solve_sweep with ``reads``): a quantity some rule may
+    read, but only where its gate holds (the transport where no rule reads a mobility
+    unless a stated number is given; the minority carrier's Einstein ratio), is
+    computed when first looked up, never where no chunk's rules read it.  What is looked
+    up is what computing it at once would have given (the same functions of the same
+    arrays); a name given a value directly is never computed again."""
+
+    def __init__(self, count: int, shared: set[int] | None = None) -> None:
+        super().__init__()
+        self.count = count
+        self._shared = set() if shared is None else shared  # buffers already under a name
+        self._pending: dict[str, Deferred] = {}
+
+    def defer(self, names: Collection[str], deferred: Deferred) -> None:
+        """``names`` are computed by ``deferred`` on first read."""
+        for name in names:
+            self.pop(name, None)
+            self._pending[name] = deferred
+
+    def pending(self, name: str) -> bool:
+        return name in self._pending
+
+    def place(self, name: str, array: ArrayIn) -> None:
+        """``array`` under ``name`` over the chunk: one value as a read-only view; a point
+        array of the chunk's own as it is, else a copy (no two names share a buffer)."""
+        count = self.count
+        if not np.ndim(array):
+            self[name] = _constant(count, array)
         elif (
             isinstance(array, np.ndarray)
             and array.shape == (count,)
             and array.flags.writeable
-            and _memory(array) not in shared
+            and _memory(array) not in self._shared
         ):
-            values[name] = array
-            shared.add(_memory(array))
+            self[name] = array
+            self._shared.add(_memory(array))
         else:
-            values[name] = np.broadcast_to(array, (count,)).copy()
-    fill_inputs([calc], values, count=count, reads=reads)
-    return values, skipped
+            self[name] = np.broadcast_to(array, (count,)).copy()
+
+    def __missing__(self, name: str) -> npt.NDArray[Any]:
+        deferred = self._pending.get(name)
+        if deferred is None:
+            raise KeyError(name)
+        for key, array in deferred.compute(self).items():
+            if self._pending.get(key) is not deferred:
+                continue
+            del self._pending[key]
+            if key in self:  # given a value directly meanwhile: kept
+                continue
+            if deferred.placed:
+                self.place(key, array)
+            else:
+                self[key] = np.asarray(array)
+        return dict.__getitem__(self, name)
+
+
+def _derived(
+    into: Callable[[Values], None], fixed: Mapping[str, npt.NDArray[Any]]
+) -> Callable[[Values], dict[str, ArrayIn]]:
+    """A Deferred's compute from a function that writes quantities into ``values``: what
+    it writes on a layer over ``values``, which it reads through but for the ``fixed``
+    arrays (the values of those names when the function was deferred)."""
+
+    def compute(values: Values) -> dict[str, ArrayIn]:
+        layer = _Layer(values)
+        layer.update(fixed)
+        into(layer)
+        return {name: array for name, array in layer.items() if name not in fixed}
+
+    return compute
+
+
+class _Layer(dict[str, npt.NDArray[Any]]):
+    """Writes kept here, reads of anything else passed to ``base``."""
+
+    def __init__(self, base: Values) -> None:
+        super().__init__()
+        self._base = base
+
+    def __missing__(self, name: str) -> npt.NDArray[Any]:
+        return self._base[name]
 
 
 def _memory(array: object) -> int:
@@ -246,39 +334,35 @@ def solve_points(
     state = equilibrium.solve(
         material, T, donors, acceptors, band_gap_narrowing=first.band_gap_narrowing
     )
+    velocities = reads is None or not _VELOCITY.isdisjoint(reads)
+
+    def transport() -> tuple[dict[str, Any], str | None]:
+        try:
+            return carriers.carrier_transport(
+                state,
+                dim,
+                velocities=velocities,
+                reference=reference,
+                temperatures=rows[0] if rows else None,
+                dopings=rows[1] if rows else None,
+                only=None if reads is None else _LATTICE.intersection(reads),
+            ), None
+        except MissingParameterError as exc:
+            # statistics checks still run; mobility-based ones see NaN and stay silent
+            missing: dict[str, Any] = {key: np.full_like(T, np.nan) for key in _FLOW_NAN}
+            missing["cond_n"] = missing["cond_p"] = np.ones_like(T)
+            missing["kT_over_q"] = state.kT / ELEMENTARY_CHARGE
+            return missing, f"transport checks skipped: {exc}"
+
+    # a sweep's chunk whose rules may read no mobility (the gates decide, chunk by chunk):
+    # the transport is computed on first read (LazyValues), where no parameter it needs
+    # is missing (else the note that says so is given now, as for every other chunk)
     skipped = None
-    try:
-        flow = carriers.carrier_transport(
-            state,
-            dim,
-            velocities=reads is None or not _VELOCITY.isdisjoint(reads),
-            reference=reference,
-            temperatures=rows[0] if rows else None,
-            dopings=rows[1] if rows else None,
-            only=None if reads is None else _LATTICE.intersection(reads),
-        )
-    except MissingParameterError as exc:
-        # statistics checks still run; mobility-based ones see NaN and stay silent
-        skipped = f"transport checks skipped: {exc}"
-        flow = {
-            key: np.full_like(T, np.nan)
-            for key in (
-                "mu_n",
-                "mu0_n",
-                "vsat_n",
-                "beta_n",
-                "v_n",
-                "mfp_n",
-                "mu_p",
-                "mu0_p",
-                "vsat_p",
-                "beta_p",
-                "v_p",
-                "mfp_p",
-            )
-        }
-        flow["cond_n"] = flow["cond_p"] = np.ones_like(T)
-        flow["kT_over_q"] = state.kT / ELEMENTARY_CHARGE
+    if reads is not None and _BAND_POWERS.isdisjoint(reads) and _transport_given(material):
+        later = Deferred(lambda _: _flow_values(transport()[0]), placed=True)
+        flow: dict[str, Any] = dict.fromkeys(_FLOW, later)
+    else:
+        flow, skipped = transport()
     (T_lo, T_hi), (N_lo, N_hi), binding = carriers.model_ranges(
         material, _dominant(first.donors), _dominant(first.acceptors)
     )
@@ -422,11 +506,16 @@ def _band_shape_values(
     names a sweep's rules read (None: all); a Kane band's parabolic level and density are
     computed only where read (else they stay the solve's own, which the sweep drops)."""
     band = state.electron_band
-    out: dict[str, FloatArray] = {}
+    out: dict[str, Any] = {}
     for x, eta, dens in (("n", state.eta_n, state.n), ("p", state.eta_p, state.p)):
         out[f"eta_par_{x}"], out[f"dens_par_{x}"] = eta, dens
         out[f"beta_kane_{x}"] = np.zeros_like(state.T)
-        out[f"einstein_{x}"] = np.asarray(transport.einstein_ratio(eta, dim))
+        if reads is not None and band is None:
+            # a sweep's chunk: each carrier's ratio where a rule reads it (LazyValues; a
+            # rule of the minority carrier mostly stops before its indicator)
+            out[f"einstein_{x}"] = Deferred(_einstein_ratio(f"einstein_{x}", eta, dim), placed=True)
+        else:
+            out[f"einstein_{x}"] = np.asarray(transport.einstein_ratio(eta, dim))
     if band is not None:
         in_plane = dataclasses.replace(band, dimension=dim)
         ratio = energy_window.generalized_einstein_ratio(in_plane, state.eta_n, state.T)
@@ -444,6 +533,11 @@ def _band_shape_values(
         out["dens_par_n"] = state.Nc * np.asarray(fermi.fermi_dirac(0.5, state.eta_n))
         out["beta_kane_n"] = band.alpha * state.kT
     return out
+
+
+def _einstein_ratio(name: str, eta: FloatArray, dim: int) -> Callable[[Values], dict[str, ArrayIn]]:
+    """A Deferred's compute of the parabolic band's Einstein ratio at ``eta``."""
+    return lambda _: {name: transport.einstein_ratio(eta, dim)}
 
 
 # narrowing that changes n_i^2 by less than this factor is not worth a second solve
@@ -526,9 +620,14 @@ def fill_inputs(
     # a sweep's chunk: quantities with one value for the chunk are worked on as one element
     # each until derive_corrected, then given back as read-only views over the chunk
     compact = count is not None and count > 1
+    # name -> (a one-value view, the element worked on in its place)
+    whole: dict[str, tuple[npt.NDArray[Any], npt.NDArray[Any]]] = {}
     if compact:
         for name, array in values.items():
-            values[name] = one_value(array)
+            one = one_value(array)
+            if one is not array:
+                values[name] = one
+                whole[name] = (array, one)
 
     def column(getter: Callable[[Calculation], float]) -> FloatArray:
         if count is not None:  # a sweep: one value for the whole chunk
@@ -587,8 +686,11 @@ def fill_inputs(
     none = ~(specific["n"] | specific["p"])
     for x in ("n", "p"):
         values[f"in_use_{x}"] = (specific[x] | (none & (values[f"maj_{x}"] > 0))).astype(float)
-    # the bulk solve's Einstein ratio (the sheet solve gives its own from the energy window)
-    ratio_unknown = ~np.isfinite(values["einstein_n"])
+    # the bulk solve's Einstein ratio (the sheet solve gives its own from the energy window;
+    # a ratio computed on first read is a parabolic band's own, where the bulk ratio
+    # below is the same function of the same eta: nothing to fill)
+    deferred = isinstance(values, LazyValues) and values.pending("einstein_n")
+    ratio_unknown = np.zeros(1, dtype=bool) if deferred else ~np.isfinite(values["einstein_n"])
     for x in Carrier:
         if not ratio_unknown.any():
             break
@@ -601,14 +703,29 @@ def fill_inputs(
     if compact:
         for name, array in values.items():
             if np.shape(array) == (1,):
-                values[name] = np.broadcast_to(array, (size,))
-    derive_corrected(values, {}, reads)
+                view, one = whole.get(name, (array, None))
+                # the view it came from where it is still that element
+                values[name] = view if one is array else np.broadcast_to(array, (size,))
+    if isinstance(values, LazyValues) and values.pending("mu_n") and not _reads_paths(reads):
+        # the transport is computed on first read: so is what follows from it, from the
+        # densities of the solve (as now, whatever a rule replaces before)
+        solved = {name: values[name] for name in ("dens_n", "dens_p")}
+        later = _derived(lambda v: derive_corrected(v, {}, reads), solved)
+        values.defer(_CORRECTED, Deferred(later))
+        values.defer(("sigma_model",), Deferred(_derived(_sigma_model, solved)))
+    else:
+        derive_corrected(values, {}, reads)
+        _sigma_model(values)
+    if reads is None or not _HALL.isdisjoint(reads):
+        _hall(values, values["hall_r"])
+
+
+def _sigma_model(values: Values) -> None:
+    """The model conductivity of the solved densities and model mobilities (S/m)."""
     values["sigma_model"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["mu_n"]
         + values["dens_p"] * values["cond_p"] * values["mu_p"]
     )
-    if reads is None or not _HALL.isdisjoint(reads):
-        _hall(values, values["hall_r"])
 
 
 # what reads the carriers' D, <v_x+> and lambda: the mean free paths, the bulk modes (their
@@ -619,6 +736,48 @@ _VELOCITY = frozenset(
 # what carrier_transport gives only where asked and solve_points puts (its sigma and rho
 # solve_points does not read: derive_corrected gives those of the corrected calculation)
 _LATTICE = frozenset(f"{stem}_{x}" for stem in ("mu0", "vsat", "beta") for x in Carrier)
+# carrier_transport's keys -> the names solve_points puts them under
+_FLOW = {
+    "kT_over_q": "kT_q",
+    **{
+        f"{key}_{x}": f"{name}_{x}"
+        for key, name in (
+            ("mu", "mu"),
+            ("mu0", "mu0"),
+            ("cond", "cond"),
+            ("vsat", "vsat"),
+            ("beta", "beta"),
+            ("v", "vth"),
+            ("mfp", "lambda_model"),
+        )
+        for x in Carrier
+    },
+}
+# what a material that lacks a carrier's transport gives in its place (with cond_x 1)
+_FLOW_NAN = tuple(key for key in _FLOW if not key.startswith(("kT", "cond")))
+
+
+def _flow_values(flow: Mapping[str, ArrayIn]) -> dict[str, ArrayIn]:
+    """carrier_transport's values under the names solve_points puts them."""
+    return {name: flow[key] for key, name in _FLOW.items()}
+
+
+def _transport_given(material: Material) -> bool:
+    """Whether carrier_transport finds every parameter it asks for (a model for each
+    carrier, and each mobility model it may name), so that it cannot raise
+    MissingParameterError."""
+    for band in ("electron", "hole"):
+        model = getattr(material, band)
+        if model is None:
+            return False
+        named = {model.default_model, *model.dopant_models.values()}
+        if model.minority_model:
+            named.add(model.minority_model)
+        if not named <= model.mobility.keys():
+            return False
+    return True
+
+
 # quantities a bulk solve may give as another quantity's array (the parabolic band's
 # Fermi level and density, n_i without narrowing)
 _PARABOLIC = frozenset({"eta_par_n", "dens_par_n"})
@@ -646,6 +805,14 @@ _CONDUCTANCE = frozenset({"modes", "G_ballistic", "G_energy", "G_landauer"})
 _BAND_POWERS = _CONDUCTANCE | {f"{stem}_{x}" for stem in ("kpower", "modes_a") for x in Carrier}
 _MEAN_FREE_PATHS = frozenset(f"lambda_{x}" for x in Carrier)
 _SHEET_CONDUCTANCE = frozenset({"sigma_s", "Rs"})
+# what derive_corrected writes where no rule reads a mean free path or a conductance
+_CORRECTED = ("used_mu_n", "used_mu_p", "sigma", "rho", "used_rho", "sigma_s", "Rs")
+
+
+def _reads_paths(reads: Collection[str] | None) -> bool:
+    """Whether derive_corrected gives the mean free paths (where a conductance or a mean
+    free path is read; ``reads`` None: all is)."""
+    return reads is None or not (_CONDUCTANCE | _MEAN_FREE_PATHS).isdisjoint(reads)
 
 
 def derive_corrected(
@@ -661,7 +828,7 @@ def derive_corrected(
     ``reads``: see :func:`solve_sweep` (the mean free paths, a sheet's conductance and the
     conductances of conductor_values only where read; None: all)."""
     conductances = reads is None or not _CONDUCTANCE.isdisjoint(reads)
-    paths = conductances or not _MEAN_FREE_PATHS.isdisjoint(reads or ())
+    paths = _reads_paths(reads)
 
     def kept(name: str) -> BoolArray | bool:
         return ~replaced[name] if name in replaced else True
