@@ -21,7 +21,7 @@ import numpy.typing as npt
 from ...errors import MissingParameterError, RegimecheckError
 from ...physics import carriers, energy_window, equilibrium, fermi, hall, transport
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, distinct
-from ...physics.constants import ELEMENTARY_CHARGE
+from ...physics.constants import BOLTZMANN, ELEMENTARY_CHARGE
 from ...physics.equilibrium import State
 from ...physics.materials import Material
 from ...quantity_registry.registry import QUANTITIES, Source, value_names
@@ -334,6 +334,8 @@ def solve_points(
     state = equilibrium.solve(
         material, T, donors, acceptors, band_gap_narrowing=first.band_gap_narrowing
     )
+    if rows is not None and not first.band_gap_narrowing:
+        _per_temperature(state, rows[0])
     velocities = reads is None or not _VELOCITY.isdisjoint(reads)
 
     def transport() -> tuple[dict[str, Any], str | None]:
@@ -482,6 +484,27 @@ def solve_points(
         modes_at = where(conductor_values.has_cross_section)
         put.update(conductor_values.band_values(first, T, put, sheet=False, modes_at=modes_at))
     return put, skipped
+
+
+def _per_temperature(state: State, temperatures: carriers.Rows) -> None:
+    """The state's quantities of T alone -- kT, E_g, N_c, N_v, n_i -- evaluated once per
+    distinct temperature of its points (``temperatures``: carriers.Rows, a sweep chunk's
+    from the grid) and given to the state before it derives them point by point (its
+    cached properties): the same elementwise arithmetic on the same temperatures, so the
+    same numbers.  Only for a solve without band-gap narrowing, whose E_g is the
+    material's gap at every point (the narrowing subtracted is 0)."""
+    first, back = temperatures
+    material = state.material
+    T = np.ravel(state.T)[first]
+    kT = BOLTZMANN * T
+    Eg = material.need("band_gap", "the band gap")(T)
+    Nc = material.need("Nc", "the electron density")(T)
+    Nv = material.need("Nv", "the hole density")(T)
+    ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * Eg / kT)
+    shape = np.shape(state.T)
+    for name, rows in (("kT", kT), ("Eg", Eg), ("Nc", Nc), ("Nv", Nv), ("ni", ni)):
+        if name not in state.__dict__:  # (not derived yet)
+            state.__dict__[name] = np.take(np.broadcast_to(rows, T.shape), back).reshape(shape)
 
 
 def _models_beyond(
@@ -680,7 +703,8 @@ def fill_inputs(
     specific: dict[str, BoolArray] = {}
     for x in ("n", "p"):
         values[f"stated_ef_{x}"] = values[f"stated_eta_{x}"] * kT
-        specific[x] = np.zeros(size, dtype=bool)
+        # (a sweep's chunk: the stated numbers are one element each, and so is this)
+        specific[x] = np.zeros(1 if compact else size, dtype=bool)
         for stem in _CARRIER_SPECIFIC:
             specific[x] |= np.isfinite(values[f"{stem}_{x}"])
     none = ~(specific["n"] | specific["p"])
