@@ -41,12 +41,12 @@ Boundary: TypeAlias = "tuple[Axis, Axis | None, list[BoundaryRow]]"
 # (rule id, carrier) -> (failing mask over the grid, worst flat index)
 Masks: TypeAlias = dict[tuple[str, str], tuple[BoolArray, int]]
 
-# points solved and ruled at a time: a chunk's quantities and their temporaries take ~1 kB
-# a point, so 64k points keep a sweep of any size near 135 MB peak (a 2000 x 2000 grid,
-# bench/bench_sweep.py); the solve of a 64k chunk costs 0.78x that of two 32k ones (its
-# blocks on two threads) and a chunk's fixed costs are spread over twice the points
-# (128k points: no faster, 170 MB)
-CHUNK = 1 << 16
+# points solved and ruled at a time: 128k points make the solve's blocks 64k on each of two
+# threads (equilibrium.THREAD_CHUNK), where 64k-point chunks gave each thread 32k and
+# solved 1.2x slower per point than one whole-grid solve (128k: 1.0x); a chunk's quantities
+# not read are never computed (state_values.LazyValues), so a 2000 x 2000 grid peaks near
+# 180 MB (64k chunks: 120 MB; bench/bench_sweep.py)
+CHUNK = 1 << 17
 ROWS_SHOWN = 5  # rows of a 2D grid whose boundary is written out
 
 
