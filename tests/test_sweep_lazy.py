@@ -1,7 +1,8 @@
 """A sweep chunk computes some quantities on their first read (state_values.LazyValues):
-the transport and what follows from it, and the parabolic bands' Einstein ratios.  A chunk
-whose rules never read them never computes them; one that does reads the values the solve
-would have given at once, also where a rule replaced a density before (the corrected
+the transport and what follows from it, the parabolic bands' Einstein ratios, the band-gap
+narrowing and the densities of the solve with it.  A chunk whose rules never read them
+never computes them; one that does reads the values the solve would have given at once,
+also where a rule replaced a density before (the corrected
 calculation's conductivity is that of the solved densities until every replacing rule has
 run, as for single points)."""
 
@@ -79,9 +80,11 @@ def test_a_chunk_whose_rules_read_no_mobility_computes_no_transport():
     # ruled: the electrons' Einstein ratio was read (STAT02), the rest never was
     assert not values.pending("einstein_n")
     assert values.pending("mu_n") and values.pending("einstein_p")
+    assert values.pending("dEg_bgn") and values.pending("dens_bgn_p")
     # looked up now, each is what the solve gives at once, bit for bit
     eager, _, _, _ = _chunk(calc, reads=False)
-    for name in ("mu_n", "mu_p", "cond_n", "kT_q", "sigma_model", "sigma", "used_rho"):
+    names = ("mu_n", "mu_p", "cond_n", "kT_q", "sigma_model", "sigma", "used_rho")
+    for name in (*names, "dEg_bgn", "dens_bgn_n", "dens_bgn_p"):
         np.testing.assert_array_equal(values[name], eager[name], err_msg=name)
     np.testing.assert_array_equal(values["einstein_p"], eager["einstein_p"])
     assert not values.pending("mu_n")

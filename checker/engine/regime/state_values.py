@@ -310,14 +310,15 @@ def solve_points(
     reads: Collection[str] | None = None,
     reference: carriers.ReferenceSolves | None = None,
     rows: tuple[carriers.Rows, carriers.Rows] | None = None,
-) -> tuple[dict[str, ArrayIn], str | None]:
+) -> tuple[dict[str, Any], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
     A sheet (2D gas, graphene) takes the sheet solve, its Fermi level fixed by ``sheet``
     (sheet_values.sheet_inputs; default: ``first``'s own stated numbers).  ``calcs``: the
     calculation of each point (default: ``first`` for all); what only some calculations
     read (bulk modes, the solve with narrowing) is computed at their points alone;
-    ``reads``, ``reference``, ``rows``: see :func:`solve_sweep`."""
+    ``reads``, ``reference``, ``rows``: see :func:`solve_sweep`; with ``reads`` (a sweep's
+    chunk) some quantities are given as a :class:`Deferred`, computed where first read."""
 
     def where(reads: Callable[[Calculation], bool]) -> BoolArray:
         if calcs is None:
@@ -369,17 +370,29 @@ def solve_points(
         material, _dominant(first.donors), _dominant(first.acceptors)
     )
     net = np.abs(state.donors_total - state.acceptors_total)
-    narrowing = (
-        material.narrowing(state.donors_total, state.acceptors_total)
-        if material.narrowing
-        else np.full_like(T, np.nan)
-    )
+
+    @functools.cache
+    def narrowing() -> FloatArray:
+        """The material's band-gap narrowing at each point's doping (J)."""
+        if material.narrowing is None:
+            return np.full_like(T, np.nan)
+        gap_change: FloatArray = material.narrowing(state.donors_total, state.acceptors_total)
+        return gap_change
+
     # n_i is the intrinsic density of the undoped crystal; with narrowing on the solve's
     # is the effective one, n_ie
-    ni = state.ni * np.exp(-narrowing / (2 * state.kT)) if first.band_gap_narrowing else state.ni
+    ni = state.ni * np.exp(-narrowing() / (2 * state.kT)) if first.band_gap_narrowing else state.ni
+    # a sweep's chunk solved without narrowing: the narrowing and the densities of the
+    # solve with it where a rule reads them (their gates need stated densities or n_i)
+    lazy = reads is not None and not first.band_gap_narrowing
+
+    def narrowed_densities(_: object = None) -> dict[str, FloatArray]:
+        wanted = where(_reads_narrowed_densities)
+        return _narrowed_densities(first, T, donors, acceptors, state, narrowing(), wanted)
+
     # a quantity with one value for every point is given as that number (solve_sweep: a
     # read-only view; solve_all: the same value at each calculation)
-    put: dict[str, ArrayIn] = {
+    put: dict[str, Any] = {
         "T": T,
         "kT": state.kT,
         "kT_q": flow["kT_over_q"],
@@ -388,7 +401,9 @@ def solve_points(
         "nie": state.ni,
         "Nnet": net,
         "Ntot": state.donors_total + state.acceptors_total,
-        "dEg_bgn": narrowing,
+        "dEg_bgn": Deferred(lambda _: {"dEg_bgn": narrowing()}, placed=True)
+        if lazy
+        else narrowing(),
         "bgn_on": float(first.band_gap_narrowing),
         "T_lo": T_lo,
         "T_hi": T_hi,
@@ -459,11 +474,10 @@ def solve_points(
                 f"gdeg_{x}": main.degeneracy if main else np.nan,
             }
         )
-    put.update(
-        _narrowed_densities(
-            first, T, donors, acceptors, state, narrowing, where(_reads_narrowed_densities)
-        )
-    )
+    if lazy:
+        put["dens_bgn_n"] = put["dens_bgn_p"] = Deferred(narrowed_densities, placed=True)
+    else:
+        put.update(narrowed_densities())
     # electrons count as the majority on a tie (intrinsic material: n = p to rounding)
     majority_n = (state.n >= state.p * (1 - 1e-9)).astype(float)
     put["maj_n"], put["maj_p"] = majority_n, 1.0 - majority_n
@@ -581,7 +595,7 @@ def _narrowed_densities(
     reads them (``wanted``: the corrected calculation takes the minority density from it
     where DOPE01 rejects the undoped n_i); the solve's own densities elsewhere."""
     out = {"dens_bgn_n": state.n.copy(), "dens_bgn_p": state.p.copy()}
-    if first.band_gap_narrowing or first.material.narrowing is None:
+    if first.band_gap_narrowing or first.material.narrowing is None or not wanted.any():
         return out
     with np.errstate(all="ignore"):
         matters = (np.exp(narrowing / state.kT) > _NARROWING_NEGLIGIBLE) & wanted
