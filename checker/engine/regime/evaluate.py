@@ -433,8 +433,9 @@ def rule_mask(
     wrong_side = (
         indicator > rule.threshold if rule.relation == "above" else indicator < rule.threshold
     )
-    # an infinite indicator (e.g. n_i over zero net doping) is on the wrong side too
-    return made & ~np.isnan(indicator) & wrong_side, indicator, implied
+    # an infinite indicator (e.g. n_i over zero net doping) is on the wrong side too; a NaN
+    # one compares False either way
+    return made & wrong_side, indicator, implied
 
 
 def _gate(when: Compiled, x: str, values: Values, count: int) -> BoolArray:
@@ -444,12 +445,15 @@ def _gate(when: Compiled, x: str, values: Values, count: int) -> BoolArray:
     partial product stays one (a gate of a stated number a sweep does not give ends at
     that factor)."""
     product: Any = None
-    for factor in _factors(when):
+    factors = _factors(when)
+    last = len(factors) - 1
+    for k, factor in enumerate(factors):
         value = factor[x](values)
         product = value if product is None else np.multiply(product, value)
-        if not _nonzero(product).any():
+        if k < last and not _nonzero(product).any():  # (after the last: the mask says it)
             return np.zeros(count, dtype=bool)
-    return _nonzero(np.broadcast_to(product, (count,)))
+    # a product of one-value quantities (a sweep's chunk) tested on its one element
+    return np.broadcast_to(_nonzero(product), (count,))
 
 
 # (a gate's text, its carriers) -> the numpy closures of its product's factors, in order
