@@ -6,12 +6,12 @@ models used.  Vectorized; SI units.
 
 from __future__ import annotations
 
-import dataclasses
 from collections.abc import Callable, Collection
 
 import numpy as np
 import numpy.typing as npt
 
+from .. import records
 from . import transport
 from .arrays import ArrayIn, FloatArray, FloatOrArray, IndexArray, distinct_points
 from .constants import BOLTZMANN, ELEMENTARY_CHARGE
@@ -124,7 +124,7 @@ def carrier_transport(
         # a Kane conduction band in the calculation's dimensionality (a bulk crystal
         # written as a 2D layer keeps its non-parabolic dispersion in the plane)
         kane = (
-            dataclasses.replace(state.electron_band, dimension=dimension)
+            records.replace(state.electron_band, dimension=dimension)
             if x == "n" and state.electron_band is not None
             else None
         )

@@ -9,7 +9,6 @@ is retried one calculation at a time so that only the bad ones are lost.
 
 from __future__ import annotations
 
-import dataclasses
 import functools
 import itertools
 from collections.abc import Callable, Collection, Mapping, Sequence
@@ -18,6 +17,7 @@ from typing import TYPE_CHECKING, Any, TypeAlias
 import numpy as np
 import numpy.typing as npt
 
+from ... import records
 from ...errors import MissingParameterError, RegimecheckError
 from ...physics import carriers, energy_window, equilibrium, fermi, hall, transport
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, distinct
@@ -554,7 +554,7 @@ def _band_shape_values(
         else:
             out[f"einstein_{x}"] = np.asarray(transport.einstein_ratio(eta, dim))
     if band is not None:
-        in_plane = dataclasses.replace(band, dimension=dim)
+        in_plane = records.replace(band, dimension=dim)
         ratio = energy_window.generalized_einstein_ratio(in_plane, state.eta_n, state.T)
         out["einstein_n"] = np.asarray(ratio)
     if band is not None and dim == 3 and (reads is None or not _PARABOLIC.isdisjoint(reads)):
