@@ -330,9 +330,7 @@ def sweep_rules(rules: Iterable[Rule], cells: Cells) -> tuple[list[Rule], frozen
                 or any(given(imp.stated) for imp in rule.implied_by)
                 or not (rule.declared or rule.implied_by)
             )
-            # a stated number the rule requires, or whose presence its gate multiplies by
-            needed = [n for n in (*rule.requires, *_gate_presences(rule)) if _is_stated(n)]
-            if not made or not all(given(n) for n in needed):
+            if not made or not all(given(n) for n in _needed(rule)):
                 continue
             if not kept or kept[-1] is not rule:
                 kept.append(rule)
@@ -349,6 +347,25 @@ def sweep_rules(rules: Iterable[Rule], cells: Cells) -> tuple[list[Rule], frozen
                 found |= names_in(tree)
             reads |= {names.get(name, name) for name in found}
     return kept, frozenset(reads)
+
+
+def _needed(rule: Rule) -> list[str]:
+    """The stated numbers a rule requires, or whose presence its gate multiplies by."""
+    return [n for n in (*rule.requires, *_gate_presences(rule)) if _is_stated(n)]
+
+
+def probed_names(rules: Iterable[Rule]) -> frozenset[str]:
+    """The concrete names :func:`sweep_rules` reads of its probe cell: a probe solved for
+    these alone (state_values.solve_sweep's ``reads``) decides as one solved for all."""
+    found: set[str] = set()
+    for rule in rules:
+        if rule.evaluated_by:
+            continue
+        asked = [imp.stated for imp in rule.implied_by] + _needed(rule)
+        for x in rule.carriers:
+            names: Mapping[str, str] = carrier_names(x) if x else {}
+            found.update(names.get(name, name) for name in asked)
+    return frozenset(found)
 
 
 def _gate_presences(rule: Rule) -> list[str]:

@@ -22,7 +22,7 @@ from ...inputs.calculation_file import AxisKey
 from ...physics import carriers
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray, distinct_points
 from ..findings import Embodied, carrier_word
-from .evaluate import Cells, beyond, rule_cells, rule_indicator, sweep_rules
+from .evaluate import Cells, beyond, probed_names, rule_cells, rule_indicator, sweep_rules
 from .points import CalculationReport, check_points
 from .rulebook import Rule
 from .state_values import Values, solve_sweep
@@ -254,7 +254,7 @@ def grid_rules(
 ) -> tuple[list[Rule], frozenset[str]]:
     """(the rules that may fire on the grid, the quantities they read): evaluate.sweep_rules
     from a probe of the grid's first point; the chunks rule and compute only those."""
-    values = _values_at(calc, grid_points, [0])
+    values = _values_at(calc, grid_points, [0], reads=probed_names(rules))
     return sweep_rules(rules, Cells.grid(calc, values, 1, embodied))
 
 
