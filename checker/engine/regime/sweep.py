@@ -96,6 +96,8 @@ class GridQuantity:
     def __init__(self, values: ArrayIn, stride: int, size: int) -> None:
         self.values = np.atleast_1d(np.asarray(values, dtype=float))
         self.stride, self.size = stride, size
+        # the codes of the last slice asked for: a chunk's values and its rows read them
+        self._last: tuple[int, int, IndexArray] = (0, 0, np.zeros(0, dtype=np.intp))
 
     def __len__(self) -> int:
         return self.size
@@ -129,7 +131,15 @@ class GridQuantity:
 
     def _run(self, start: int, stop: int) -> IndexArray:
         """The codes of flat indices start ... stop - 1: runs of ``stride`` equal codes,
-        built as such (no integer division per point)."""
+        built as such (no integer division per point); kept for the next call."""
+        last_start, last_stop, codes = self._last
+        if (last_start, last_stop) != (start, stop):
+            codes = self._made_run(start, stop)
+            codes.flags.writeable = False  # (shared by the callers)
+            self._last = (start, stop, codes)
+        return codes
+
+    def _made_run(self, start: int, stop: int) -> IndexArray:
         count, stride = self.values.size, self.stride
         if count == 1 or stop == start:
             return np.zeros(stop - start, dtype=np.intp)
