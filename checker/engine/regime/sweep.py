@@ -143,8 +143,11 @@ class GridQuantity:
         count, stride = self.values.size, self.stride
         if count == 1 or stop == start:
             return np.zeros(stop - start, dtype=np.intp)
-        if stride == 1:
-            return np.arange(start, stop, dtype=np.intp) % count
+        if stride == 1:  # 0, 1, ..., count - 1 over and over (no division per point)
+            offset = start % count
+            repeats = -(-(offset + stop - start) // count)
+            cycles = np.tile(np.arange(count, dtype=np.intp), repeats)
+            return cycles[offset : offset + stop - start]
         first, last = start // stride, (stop - 1) // stride
         lengths = np.full(last - first + 1, stride, dtype=np.intp)
         lengths[0] -= start - first * stride
