@@ -544,5 +544,11 @@ def _summary(
     axis, row_axis, rows = found
     worst = [(axis_, float(axis_.values[position[k]])) for k, axis_ in enumerate(calc.sweep)]
     return SweepSummary(
-        int(mask.size), float(mask.mean()), axis, row_axis, rows, interpolated, worst
+        int(mask.size),
+        np.count_nonzero(mask) / mask.size,  # (the mean, without a float pass)
+        axis,
+        row_axis,
+        rows,
+        interpolated,
+        worst,
     )
