@@ -128,3 +128,30 @@ def test_a_value_given_directly_is_not_computed_again():
     assert calls == [1]
     with pytest.raises(KeyError):
         values["c"]
+
+
+# a material without mobility models: its transport is never computed on first read (a
+# note says what is skipped, as for single points)
+NO_MOBILITY = """name: custom swept
+material:
+  name: ExampleX
+  band_gap: {Eg0: 1.0 eV, alpha: 3e-4 eV/K, beta: 200 K}
+  density_of_states: {Nc300: 1e19 cm-3, Nv300: 1e19 cm-3}
+  permittivity: 10.0
+  dopants: {D1: {kind: donor, energy: 20 meV}}
+temperature: {from: 250 K, to: 350 K, steps: 3}
+doping:
+  donors: {D1: {from: 1e17 cm-3, to: 5e18 cm-3, steps: 4}}
+assumes: [non-degenerate]
+"""
+
+
+def test_a_sweep_of_a_material_without_mobility_says_its_transport_is_skipped():
+    calc = _calc(NO_MOBILITY)
+    assert not state_values._transport_given(calc.material)
+    report = check_calculations([calc]).reports[0]
+    assert report.error is None
+    assert any("transport checks skipped" in note for note in report.notes)
+    assert "STAT01" in {f.rule for f in report.findings}
+    values, _, _, _ = _chunk(calc, reads=True)
+    assert not values.pending("mu_n") and np.isnan(values["mu_n"]).all()
