@@ -122,11 +122,14 @@ def solve_sweep(
     ``reads``: the names the sweep's rules read (evaluate.sweep_rules); then the words
     only reports and messages read (the regime, the models past their range) and the
     intrinsic-onset temperature, the Hall factors and the carriers' velocities and mean
-    free paths where no rule reads them are left unknown.  None: every quantity.
-    ``reference``: the solves at the resistivity standard's reference temperature kept
-    across a sweep's chunks (carriers.ReferenceSolves; None: solved afresh).  ``rows``:
-    the points' distinct temperatures and doping rows (carriers.Rows), where the sweep's
-    grid gives them (None: found where needed)."""
+    free paths where no rule reads them are left unknown, and what a rule reads only
+    where its gate holds (the transport and what follows from it, the parabolic bands'
+    Einstein ratios, the narrowing and the narrowed solve's densities) is computed on
+    first read (:class:`LazyValues`).  None: every quantity, at once.  ``reference``: the
+    solves at the resistivity standard's reference temperature kept across a sweep's
+    chunks (carriers.ReferenceSolves; None: solved afresh).  ``rows``: the points'
+    distinct temperatures and doping rows (carriers.Rows), where the sweep's grid gives
+    them (None: found where needed)."""
     count = len(T)
     put, skipped = solve_points(
         calc, T, donors, acceptors, reads=reads, reference=reference, rows=rows
