@@ -205,6 +205,9 @@ class ReferenceSolves:
     def __init__(self) -> None:
         # (T0, material, species, narrowing) -> doping row -> (donor, acceptor fraction)
         self._rows: dict[tuple[object, ...], dict[tuple[float, ...], tuple[float, float]]] = {}
+        # (that key, the rows' bytes) -> both fractions of each row, in the rows' order:
+        # the chunks of a grid whose temperature runs slowest hold the same rows
+        self._sets: dict[tuple[object, ...], FloatArray] = {}
 
     def ionized_fraction(
         self, state: State, T0: float, kind: int, dopings: Rows | None = None
@@ -212,8 +215,6 @@ class ReferenceSolves:
         """The donor (``kind`` 0) or acceptor (1) ionized fraction at T0 of each point's
         doping (the state's own band-gap narrowing option; ``dopings``: the points' doping
         rows where the caller knows them, as carrier_transport)."""
-        from .equilibrium import solve
-
         shape = np.shape(state.T)
         donors, acceptors = (
             {s: np.broadcast_to(d, shape).ravel() for s, d in g.items()}
@@ -221,11 +222,35 @@ class ReferenceSolves:
         )
         columns = [*donors.values(), *acceptors.values()]
         first, back = dopings or distinct_points(columns, int(np.prod(shape)))
-        # each distinct row as a tuple of Python floats (one tolist per column, not a
-        # numpy scalar per value)
-        rows = list(zip(*(column[first].tolist() for column in columns))) or [()] * first.size
+        picked = [column[first] for column in columns]
         narrowing = bool(np.any(state.narrowing > 0))
         key = (T0, id(state.material), tuple(donors), tuple(acceptors), narrowing)
+        rows_key = (*key, first.size, b"".join(column.tobytes() for column in picked))
+        both = self._sets.get(rows_key)
+        if both is None:
+            both = self._sets[rows_key] = self._fractions(
+                state, T0, key, donors, acceptors, first, picked
+            )
+        out: FloatArray = both[kind][back].reshape(shape)
+        return out
+
+    def _fractions(
+        self,
+        state: State,
+        T0: float,
+        key: tuple[object, ...],
+        donors: dict[str, FloatArray],
+        acceptors: dict[str, FloatArray],
+        first: IndexArray,
+        picked: list[FloatArray],
+    ) -> FloatArray:
+        """(donor, acceptor) ionized fraction at T0 of each distinct row (``first``: a point
+        of each; ``picked``: the columns there), each row solved once per key."""
+        from .equilibrium import solve
+
+        # each distinct row as a tuple of Python floats (one tolist per column, not a
+        # numpy scalar per value)
+        rows = list(zip(*(column.tolist() for column in picked))) or [()] * first.size
         known = self._rows.setdefault(key, {})
         missing = [k for k, row in enumerate(rows) if row not in known]
         if missing:
@@ -235,14 +260,13 @@ class ReferenceSolves:
                 np.full(at.size, T0),
                 {s: d[at] for s, d in donors.items()},
                 {s: d[at] for s, d in acceptors.items()},
-                band_gap_narrowing=narrowing,
+                band_gap_narrowing=bool(key[-1]),
             )
             pairs = zip(solved.donor_fraction.tolist(), solved.acceptor_fraction.tolist())
             for k, pair in zip(missing, pairs):
                 known[rows[k]] = pair
-        fractions = np.array([known[row][kind] for row in rows], dtype=float)
-        out: FloatArray = fractions[back].reshape(shape)
-        return out
+        both: FloatArray = np.array([known[row] for row in rows], dtype=float).reshape(-1, 2).T
+        return both
 
 
 class _Outer:
