@@ -16,6 +16,7 @@ from . import transport
 from .arrays import ArrayIn, FloatArray, FloatOrArray, IndexArray, distinct_points
 from .constants import BOLTZMANN, ELEMENTARY_CHARGE
 from .equilibrium import State
+from .fermi import log_fermi_dirac
 from .materials import (
     CarrierTransport,
     MassPolynomialDOS,
@@ -172,6 +173,30 @@ def carrier_transport(
         )
         result["rho"] = 1.0 / result["sigma"]
     return result
+
+
+def einstein_ratio(state: State, carrier: str, dimension: int = 3) -> FloatArray:
+    """Generalized Einstein ratio (D/mu)/(kT/q) of a parabolic band at the solved Fermi
+    level of ``carrier`` ("n" or "p").
+
+    Formula: F_{d/2-1}(eta)/F_{d/2-2}(eta) in d dimensions, as transport.einstein_ratio.  In
+    3D the numerator F_1/2 is the state's own ln F_1/2(eta) (n = N_c F_1/2: the solve keeps
+    its neutrality check's, at the same eta), so only ln F_-1/2 is evaluated: the same
+    arithmetic, the same numbers, half the Fermi-Dirac work.  Units: none.  Validity: a
+    parabolic band (a Kane conduction band: see energy_window.generalized_einstein_ratio;
+    here its electrons take transport.einstein_ratio, the parabolic value).
+
+    References
+    ----------
+    Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 3 (generalized Einstein
+    relation); J. S. Blakemore, Semiconductor Statistics (1962) (F_j).
+    """
+    eta = state.eta_n if carrier == "n" else state.eta_p
+    if dimension != 3 or (carrier == "n" and state.electron_band is not None):
+        return np.asarray(transport.einstein_ratio(eta, dimension))
+    log_half = state.log_electron_factor if carrier == "n" else state.log_hole_factor
+    ratio: FloatArray = np.exp(log_half - log_fermi_dirac(-0.5, eta))
+    return ratio
 
 
 def _every_dopant_factor(

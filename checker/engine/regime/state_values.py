@@ -553,9 +553,9 @@ def _band_shape_values(
         if reads is not None and band is None:
             # a sweep's chunk: each carrier's ratio where a rule reads it (LazyValues; a
             # rule of the minority carrier mostly stops before its indicator)
-            out[f"einstein_{x}"] = Deferred(_einstein_ratio(f"einstein_{x}", eta, dim), placed=True)
+            out[f"einstein_{x}"] = Deferred(_einstein_ratio(state, x, dim), placed=True)
         else:
-            out[f"einstein_{x}"] = np.asarray(transport.einstein_ratio(eta, dim))
+            out[f"einstein_{x}"] = carriers.einstein_ratio(state, x, dim)
     if band is not None:
         in_plane = records.replace(band, dimension=dim)
         ratio = energy_window.generalized_einstein_ratio(in_plane, state.eta_n, state.T)
@@ -575,9 +575,9 @@ def _band_shape_values(
     return out
 
 
-def _einstein_ratio(name: str, eta: FloatArray, dim: int) -> Callable[[Values], dict[str, ArrayIn]]:
-    """A Deferred's compute of the parabolic band's Einstein ratio at ``eta``."""
-    return lambda _: {name: transport.einstein_ratio(eta, dim)}
+def _einstein_ratio(state: State, x: str, dim: int) -> Callable[[Values], dict[str, ArrayIn]]:
+    """A Deferred's compute of carrier ``x``'s parabolic Einstein ratio at the solve."""
+    return lambda _: {f"einstein_{x}": carriers.einstein_ratio(state, x, dim)}
 
 
 # narrowing that changes n_i^2 by less than this factor is not worth a second solve
