@@ -5,8 +5,9 @@ is checked by `regimecheck check` (bench/installed_command.py: the console scrip
 this interpreter; any exit code other than 0 or 1 stops the bench).  Timed in interleaved
 rounds (bench/interleaved.py) beside the anchor, ``solve_equilibrium`` of the very same
 grid points in this process (all worker threads, as the sweep solves); a one-point check
-gives the command's start-up, and the row "sweep less start-up" (each round's sweep less
-its start-up) the grid's own cost.  The headline
+of the same calculation (its formula analysed, as the sweep's is) gives the command's
+start-up, and the row "sweep less start-up" (each round's sweep less its start-up) the
+grid's own cost.  The headline
 is the median per-round ratio to the solve, with its spread.  Last, the peak resident
 memory of the command on a 2000 x 2000 grid (4e6 points), measured on that child alone
 (os.wait4).  ``--split``: where a chunk's time goes, in this process (the grid's rules
@@ -42,11 +43,15 @@ assumes: [non-degenerate, full-ionization, einstein-relation, single-carrier, ex
 formulas:
   - D_n = mu_n*k*T/q
 """
+# the grid's calculation at one point: its start-up includes what a file costs once
+# whatever its points (reading it, analysing its formula)
 POINT = """name: bench one point
 material: Si
 temperature: 300 K
 doping: {donors: {P: 1e16 cm-3}}
 assumes: [non-degenerate, full-ionization, einstein-relation, single-carrier, extrinsic]
+formulas:
+  - D_n = mu_n*k*T/q
 """
 
 
@@ -115,7 +120,9 @@ def chunk_split(path):
     stages = [
         (state_values.equilibrium, "solve", "solve (each chunk's, and reference solves)"),
         (state_values.carriers, "carrier_transport", "transport (carriers)"),
-        (state_values, "_band_shape_values", "band shapes (Einstein ratios)"),
+        (state_values, "_band_shape_values", "band shapes"),
+        (state_values.LazyValues, "__missing__", "computed on first read (in their stage)"),
+        (state_values.equilibrium, "ionized_density", "ionized dopant densities"),
         (state_values, "solve_points", "solve_points (solve, transport, band shapes)"),
         (state_values, "fill_inputs", "inputs (fill_inputs, derive_corrected)"),
         (state_values, "solve_sweep", "solve_sweep (all of the above)"),

@@ -72,3 +72,27 @@ def test_a_sweep_keeps_its_reference_solves_across_chunks(tmp_path, monkeypatch)
     _, donors, _, _ = grid_points
     distinct = np.unique(donors["P"][: grid_points[0].size]).size
     assert sum(solved_points) == distinct  # each doping solved at T_0 once
+
+
+def test_chunks_holding_the_same_doping_rows_share_their_fractions(monkeypatch):
+    """Chunks of a grid whose temperature runs slowest hold the same doping rows in the same
+    order: the second chunk takes the first one's fractions whole (no per-row look-up),
+    and they are those a fresh set of reference solves gives."""
+    silicon = load_material("Si")
+    states = [solve_equilibrium(silicon, T, {"P": nd}) for T, nd in _chunks()]
+    rows = [carriers.distinct_points([np.ravel(state.donors["P"])], 12) for state in states]
+    made = []
+    fractions = carriers.ReferenceSolves._fractions
+
+    def counting(self, *args, **kwargs):
+        made.append(1)
+        return fractions(self, *args, **kwargs)
+
+    monkeypatch.setattr(carriers.ReferenceSolves, "_fractions", counting)
+    kept = carriers.ReferenceSolves()
+    shared = [kept.ionized_fraction(s, 296.15, 0, r) for s, r in zip(states, rows, strict=True)]
+    assert made == [1]
+    for state, one in zip(states, shared, strict=True):
+        fresh = carriers.ReferenceSolves().ionized_fraction(state, 296.15, 0)
+        np.testing.assert_array_equal(one, fresh)
+        assert np.all((one > 0) & (one <= 1))  # a fraction

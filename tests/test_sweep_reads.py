@@ -104,3 +104,51 @@ def test_the_velocities_are_computed_only_where_a_rule_reads_them():
         reads, values = _reads_and_first_cells(text, 3)
         assert ("lambda_n" in reads or "G_landauer" in reads) is read
         assert bool(np.isfinite(values["vth_n"]).all()) is read
+
+
+# a p-type grid stating the Fermi level, the hole mobility and D (implications and value
+# checks of the other carrier)
+P_TYPE = """name: p-type grid
+material: GaAs
+temperature: {from: 250 K, to: 400 K, steps: 4}
+doping:
+  acceptors: {Zn: {from: 1e16 cm-3, to: 1e19 cm-3, steps: 5}}
+stated:
+  ef_minus_ev: -0.05 eV
+  hole_mobility: 300 cm^2/(V*s)
+  hole_diffusivity: 7 cm^2/s
+assumes: [non-degenerate]
+"""
+# a Kane conduction band, its parabolic shortcut declared
+KANE = """name: Kane grid
+material: InAs
+temperature: {from: 77 K, to: 300 K, steps: 3}
+doping:
+  donors: {S: {from: 1e15 cm-3, to: 1e18 cm-3, steps: 4}}
+assumes: [parabolic-band, non-degenerate, einstein-relation]
+"""
+
+
+def _example_sweeps():
+    """Every calculation of the examples that sweeps an axis."""
+    from checker.inputs.calculation_file import read_calculation_file
+
+    found = []
+    for path in sorted((ROOT / "examples").glob("*.yaml")):
+        found += [c for c in read_calculation_file(path).calculations if c.sweep]
+    return found
+
+
+def test_a_probe_solved_for_the_names_it_is_asked_decides_as_a_full_one():
+    """grid_rules solves its probe cell for evaluate.probed_names alone: the rules kept and
+    the names they read must be those a probe with every quantity gives."""
+    from checker.engine.regime import evaluate
+
+    rules = rulebook.load_rules()
+    calcs = [_sweep(t) for t in (STATED, PLAIN, CONDUCTOR, P_TYPE, KANE)] + _example_sweeps()
+    for calc in calcs:
+        embodied = check_calculations([calc]).reports[0].embodied
+        grid_points = sweep.grid(calc)
+        full = sweep._values_at(calc, grid_points, [0])
+        expected = evaluate.sweep_rules(rules, evaluate.Cells.grid(calc, full, 1, embodied))
+        assert sweep.grid_rules(calc, rules, embodied, grid_points) == expected, calc.name

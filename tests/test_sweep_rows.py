@@ -214,3 +214,39 @@ def test_kane_band_cells_give_the_findings_of_single_points(tmp_path, assumes):
         band01.add(("BAND01", "n") in single)
     # declared, the parabolic band is wrong at the degenerate end only
     assert band01 == ({True, False} if "parabolic" in assumes else {False})
+
+
+@pytest.mark.parametrize(
+    "material, species, n_T, n_N, start, stop",
+    [
+        ("Si", "P", 9, 40, 17, 300),  # N_c, N_v from the Couderc DOS-mass cubics
+        ("GaAs", "Si", 6, 25, 4, 150),  # power-law N_c, N_v
+        ("InAs", "S", 5, 12, 0, 60),  # a Kane conduction band
+    ],
+)
+def test_a_chunks_temperature_terms_on_rows_are_the_point_by_point_values(
+    material, species, n_T, n_N, start, stop
+):
+    """solve_points evaluates kT, E_g, N_c, N_v and n_i once per distinct temperature of a
+    chunk (state_values._per_temperature): every quantity it gives must be the one the
+    point-by-point derivation gives, to the bit."""
+    from checker.engine.regime import state_values
+    from checker.inputs.calculation_file import parse_calculations
+
+    read = parse_calculations(
+        f"name: rows\nmaterial: {material}\ntemperature: 300 K\n"
+        f"doping: {{donors: {{{species}: 1e16 cm-3}}}}\n",
+        "rows.yaml",
+    )
+    (calc,) = read.calculations
+    T, dopings, at = _grid(n_T, n_N, start, stop, (species,))
+    points = (calc, T[at], {s: q[at] for s, q in dopings.items()}, {})
+    rows = sweep.grid_rows(T, list(dopings.values()), at)
+    plain, _ = state_values.solve_points(*points)
+    on_rows, _ = state_values.solve_points(*points, rows=rows)
+    assert on_rows.keys() == plain.keys()
+    for name, value in plain.items():
+        if isinstance(value, np.ndarray) and value.dtype == object:
+            assert on_rows[name].tolist() == value.tolist(), name
+        else:
+            np.testing.assert_array_equal(on_rows[name], value, err_msg=name)

@@ -30,12 +30,12 @@ from __future__ import annotations
 
 import math
 import numbers
-from dataclasses import dataclass
 from typing import TypeAlias, TypeGuard
 
 import numpy as np
 
 from ..errors import InputError
+from ..records import FrozenRecord
 from .arrays import ArrayIn, FloatArray
 from .constants import ELECTRON_MASS, HBAR
 
@@ -63,8 +63,7 @@ def _check_common(band: Band, dimensions: tuple[int, ...]) -> None:
         raise InputError(f"edge must be a finite energy in J, got {band.edge!r}")
 
 
-@dataclass(frozen=True)
-class ParabolicBand:
+class ParabolicBand(FrozenRecord):
     """E = hbar^2 k^2 / (2 m* m_0): k^2 = (2 m* m_0 / hbar^2) E.
 
     ``mass`` is the density-of-states mass of one valley over m_0; ``edge`` the
@@ -102,8 +101,7 @@ class ParabolicBand:
         return np.full_like(np.asarray(energy, dtype=float), self.k_squared_coefficient)
 
 
-@dataclass(frozen=True)
-class KaneBand:
+class KaneBand(FrozenRecord):
     """Kane non-parabolic band E (1 + alpha E) = hbar^2 k^2 / (2 m* m_0).
 
     ``alpha`` in J^-1 (alpha in eV^-1 divided by the joules per eV); alpha = 0
@@ -143,8 +141,7 @@ class KaneBand:
         return 2.0 * self.mass * ELECTRON_MASS / HBAR**2 * (1.0 + 2.0 * self.alpha * e)
 
 
-@dataclass(frozen=True)
-class DiracBand:
+class DiracBand(FrozenRecord):
     """Linear zero-gap 2D band E = +-hbar v_F |k| (graphene: g_v = 2, g_s = 2).
 
     One description serves both cones: the engine's densities are those of the

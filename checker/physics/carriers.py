@@ -6,16 +6,17 @@ models used.  Vectorized; SI units.
 
 from __future__ import annotations
 
-import dataclasses
 from collections.abc import Callable, Collection
 
 import numpy as np
 import numpy.typing as npt
 
+from .. import records
 from . import transport
 from .arrays import ArrayIn, FloatArray, FloatOrArray, IndexArray, distinct_points
 from .constants import BOLTZMANN, ELEMENTARY_CHARGE
 from .equilibrium import State
+from .fermi import log_fermi_dirac
 from .materials import (
     CarrierTransport,
     MassPolynomialDOS,
@@ -124,7 +125,7 @@ def carrier_transport(
         # a Kane conduction band in the calculation's dimensionality (a bulk crystal
         # written as a 2D layer keeps its non-parabolic dispersion in the plane)
         kane = (
-            dataclasses.replace(state.electron_band, dimension=dimension)
+            records.replace(state.electron_band, dimension=dimension)
             if x == "n" and state.electron_band is not None
             else None
         )
@@ -174,6 +175,30 @@ def carrier_transport(
     return result
 
 
+def einstein_ratio(state: State, carrier: str, dimension: int = 3) -> FloatArray:
+    """Generalized Einstein ratio (D/mu)/(kT/q) of a parabolic band at the solved Fermi
+    level of ``carrier`` ("n" or "p").
+
+    Formula: F_{d/2-1}(eta)/F_{d/2-2}(eta) in d dimensions, as transport.einstein_ratio.  In
+    3D the numerator F_1/2 is the state's own ln F_1/2(eta) (n = N_c F_1/2: the solve keeps
+    its neutrality check's, at the same eta), so only ln F_-1/2 is evaluated: the same
+    arithmetic, the same numbers, half the Fermi-Dirac work.  Units: none.  Validity: a
+    parabolic band (a Kane conduction band: see energy_window.generalized_einstein_ratio;
+    here its electrons take transport.einstein_ratio, the parabolic value).
+
+    References
+    ----------
+    Lundstrom & Jeong, Near-Equilibrium Transport (2012), ch. 3 (generalized Einstein
+    relation); J. S. Blakemore, Semiconductor Statistics (1962) (F_j).
+    """
+    eta = state.eta_n if carrier == "n" else state.eta_p
+    if dimension != 3 or (carrier == "n" and state.electron_band is not None):
+        return np.asarray(transport.einstein_ratio(eta, dimension))
+    log_half = state.log_electron_factor if carrier == "n" else state.log_hole_factor
+    ratio: FloatArray = np.exp(log_half - log_fermi_dirac(-0.5, eta))
+    return ratio
+
+
 def _every_dopant_factor(
     state: State,
     model: CarrierTransport,
@@ -205,6 +230,9 @@ class ReferenceSolves:
     def __init__(self) -> None:
         # (T0, material, species, narrowing) -> doping row -> (donor, acceptor fraction)
         self._rows: dict[tuple[object, ...], dict[tuple[float, ...], tuple[float, float]]] = {}
+        # (that key, the rows' bytes) -> both fractions of each row, in the rows' order:
+        # the chunks of a grid whose temperature runs slowest hold the same rows
+        self._sets: dict[tuple[object, ...], FloatArray] = {}
 
     def ionized_fraction(
         self, state: State, T0: float, kind: int, dopings: Rows | None = None
@@ -212,8 +240,6 @@ class ReferenceSolves:
         """The donor (``kind`` 0) or acceptor (1) ionized fraction at T0 of each point's
         doping (the state's own band-gap narrowing option; ``dopings``: the points' doping
         rows where the caller knows them, as carrier_transport)."""
-        from .equilibrium import solve
-
         shape = np.shape(state.T)
         donors, acceptors = (
             {s: np.broadcast_to(d, shape).ravel() for s, d in g.items()}
@@ -221,11 +247,35 @@ class ReferenceSolves:
         )
         columns = [*donors.values(), *acceptors.values()]
         first, back = dopings or distinct_points(columns, int(np.prod(shape)))
-        # each distinct row as a tuple of Python floats (one tolist per column, not a
-        # numpy scalar per value)
-        rows = list(zip(*(column[first].tolist() for column in columns))) or [()] * first.size
+        picked = [column[first] for column in columns]
         narrowing = bool(np.any(state.narrowing > 0))
         key = (T0, id(state.material), tuple(donors), tuple(acceptors), narrowing)
+        rows_key = (*key, first.size, b"".join(column.tobytes() for column in picked))
+        both = self._sets.get(rows_key)
+        if both is None:
+            both = self._sets[rows_key] = self._fractions(
+                state, T0, key, donors, acceptors, first, picked
+            )
+        out: FloatArray = both[kind][back].reshape(shape)
+        return out
+
+    def _fractions(
+        self,
+        state: State,
+        T0: float,
+        key: tuple[object, ...],
+        donors: dict[str, FloatArray],
+        acceptors: dict[str, FloatArray],
+        first: IndexArray,
+        picked: list[FloatArray],
+    ) -> FloatArray:
+        """(donor, acceptor) ionized fraction at T0 of each distinct row (``first``: a point
+        of each; ``picked``: the columns there), each row solved once per key."""
+        from .equilibrium import solve
+
+        # each distinct row as a tuple of Python floats (one tolist per column, not a
+        # numpy scalar per value)
+        rows = list(zip(*(column.tolist() for column in picked))) or [()] * first.size
         known = self._rows.setdefault(key, {})
         missing = [k for k, row in enumerate(rows) if row not in known]
         if missing:
@@ -235,14 +285,13 @@ class ReferenceSolves:
                 np.full(at.size, T0),
                 {s: d[at] for s, d in donors.items()},
                 {s: d[at] for s, d in acceptors.items()},
-                band_gap_narrowing=narrowing,
+                band_gap_narrowing=bool(key[-1]),
             )
             pairs = zip(solved.donor_fraction.tolist(), solved.acceptor_fraction.tolist())
             for k, pair in zip(missing, pairs):
                 known[rows[k]] = pair
-        fractions = np.array([known[row][kind] for row in rows], dtype=float)
-        out: FloatArray = fractions[back].reshape(shape)
-        return out
+        both: FloatArray = np.array([known[row] for row in rows], dtype=float).reshape(-1, 2).T
+        return both
 
 
 class _Outer:

@@ -113,7 +113,7 @@ class Cells:
         is the one the full arrays give: the same elementwise arithmetic, broadcast)."""
         if self.all_indicators:
             return self.values
-        return {name: one_value(array) for name, array in self.values.items()}
+        return _OneValues(self.values)
 
     def in_use(self, names: Mapping[str, str]) -> BoolArray:
         """Per cell: whether the carrier of the names (carrier_names) is in use."""
@@ -159,6 +159,21 @@ class Cells:
             for k, item in enumerate(items):
                 embodied.setdefault(item.word, []).append((c, k, item.carrier))
         return declared, embodied
+
+
+class _OneValues(dict[str, Any]):
+    """The values of ``base`` as read by a sweep chunk's rules (Cells.read_values): each
+    one-value quantity as one element, taken on first read (a chunk's rules read a few
+    dozen of its ~250 quantities; those computed on first read, state_values.LazyValues,
+    are computed then)."""
+
+    def __init__(self, base: Values) -> None:
+        super().__init__()
+        self._base = base
+
+    def __missing__(self, name: str) -> Any:
+        value = self[name] = one_value(self._base[name])
+        return value
 
 
 class Ruled(Record):
@@ -271,8 +286,9 @@ def assumption_made(
         k = int(everywhere[0])
         if k != _NO_FORMULA:
             return np.ones(count, dtype=bool), np.full(count, k)
-        made = cells.in_use(names).copy() if x else np.ones(count, dtype=bool)
-        return made, np.full(count, -1)
+        # (rule_mask works on a copy of made; by_formula is only read)
+        made = cells.in_use(names) if x else np.ones(count, dtype=bool)
+        return made, np.broadcast_to(np.int64(-1), (count,))
     in_use = cells.in_use(names) if x else np.ones(count, dtype=bool)
     if one:
         declared_here: bool | BoolArray = bool(declared[0])
@@ -314,9 +330,7 @@ def sweep_rules(rules: Iterable[Rule], cells: Cells) -> tuple[list[Rule], frozen
                 or any(given(imp.stated) for imp in rule.implied_by)
                 or not (rule.declared or rule.implied_by)
             )
-            # a stated number the rule requires, or whose presence its gate multiplies by
-            needed = [n for n in (*rule.requires, *_gate_presences(rule)) if _is_stated(n)]
-            if not made or not all(given(n) for n in needed):
+            if not made or not all(given(n) for n in _needed(rule)):
                 continue
             if not kept or kept[-1] is not rule:
                 kept.append(rule)
@@ -333,6 +347,25 @@ def sweep_rules(rules: Iterable[Rule], cells: Cells) -> tuple[list[Rule], frozen
                 found |= names_in(tree)
             reads |= {names.get(name, name) for name in found}
     return kept, frozenset(reads)
+
+
+def _needed(rule: Rule) -> list[str]:
+    """The stated numbers a rule requires, or whose presence its gate multiplies by."""
+    return [n for n in (*rule.requires, *_gate_presences(rule)) if _is_stated(n)]
+
+
+def probed_names(rules: Iterable[Rule]) -> frozenset[str]:
+    """The concrete names :func:`sweep_rules` reads of its probe cell: a probe solved for
+    these alone (state_values.solve_sweep's ``reads``) decides as one solved for all."""
+    found: set[str] = set()
+    for rule in rules:
+        if rule.evaluated_by:
+            continue
+        asked = [imp.stated for imp in rule.implied_by] + _needed(rule)
+        for x in rule.carriers:
+            names: Mapping[str, str] = carrier_names(x) if x else {}
+            found.update(names.get(name, name) for name in asked)
+    return frozenset(found)
 
 
 def _gate_presences(rule: Rule) -> list[str]:
@@ -378,11 +411,11 @@ def rule_mask(
     for imp in rule.implied_by:
         name = names.get(imp.stated, imp.stated)
         stated = values[name]
-        mask = np.broadcast_to(np.isfinite(stated), (count,))
-        if not mask.any():  # not stated at any cell (a sweep: the whole chunk)
-            implied.append((name, mask))
+        given = np.isfinite(stated)  # (a sweep's chunk: one element)
+        if not given.any():  # not stated at any cell (a sweep: the whole chunk)
+            implied.append((name, np.broadcast_to(given, (count,))))
             continue
-        mask = mask.copy()
+        mask = np.broadcast_to(given, (count,)).copy()
         shortcut = np.asarray(imp.shortcut.run[x](values), dtype=float)
         mask &= np.isfinite(shortcut) & (np.abs(stated / shortcut - 1.0) <= imp.within)
         # near a rule's threshold the shortcut and the exact value lie closer together than
@@ -417,8 +450,9 @@ def rule_mask(
     wrong_side = (
         indicator > rule.threshold if rule.relation == "above" else indicator < rule.threshold
     )
-    # an infinite indicator (e.g. n_i over zero net doping) is on the wrong side too
-    return made & ~np.isnan(indicator) & wrong_side, indicator, implied
+    # an infinite indicator (e.g. n_i over zero net doping) is on the wrong side too; a NaN
+    # one compares False either way
+    return made & wrong_side, indicator, implied
 
 
 def _gate(when: Compiled, x: str, values: Values, count: int) -> BoolArray:
@@ -428,12 +462,15 @@ def _gate(when: Compiled, x: str, values: Values, count: int) -> BoolArray:
     partial product stays one (a gate of a stated number a sweep does not give ends at
     that factor)."""
     product: Any = None
-    for factor in _factors(when):
+    factors = _factors(when)
+    last = len(factors) - 1
+    for k, factor in enumerate(factors):
         value = factor[x](values)
         product = value if product is None else np.multiply(product, value)
-        if not _nonzero(product).any():
+        if k < last and not _nonzero(product).any():  # (after the last: the mask says it)
             return np.zeros(count, dtype=bool)
-    return _nonzero(np.broadcast_to(product, (count,)))
+    # a product of one-value quantities (a sweep's chunk) tested on its one element
+    return np.broadcast_to(_nonzero(product), (count,))
 
 
 # (a gate's text, its carriers) -> the numpy closures of its product's factors, in order

@@ -9,7 +9,6 @@ is retried one calculation at a time so that only the bad ones are lost.
 
 from __future__ import annotations
 
-import dataclasses
 import functools
 import itertools
 from collections.abc import Callable, Collection, Mapping, Sequence
@@ -18,10 +17,11 @@ from typing import TYPE_CHECKING, Any, TypeAlias
 import numpy as np
 import numpy.typing as npt
 
+from ... import records
 from ...errors import MissingParameterError, RegimecheckError
 from ...physics import carriers, energy_window, equilibrium, fermi, hall, transport
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, distinct
-from ...physics.constants import ELEMENTARY_CHARGE
+from ...physics.constants import BOLTZMANN, ELEMENTARY_CHARGE
 from ...physics.equilibrium import State
 from ...physics.materials import Material
 from ...quantity_registry.registry import QUANTITIES, Source, value_names
@@ -122,34 +122,125 @@ def solve_sweep(
     ``reads``: the names the sweep's rules read (evaluate.sweep_rules); then the words
     only reports and messages read (the regime, the models past their range) and the
     intrinsic-onset temperature, the Hall factors and the carriers' velocities and mean
-    free paths where no rule reads them are left unknown.  None: every quantity.
-    ``reference``: the solves at the resistivity standard's reference temperature kept
-    across a sweep's chunks (carriers.ReferenceSolves; None: solved afresh).  ``rows``:
-    the points' distinct temperatures and doping rows (carriers.Rows), where the sweep's
-    grid gives them (None: found where needed)."""
+    free paths where no rule reads them are left unknown, and what a rule reads only
+    where its gate holds (the transport and what follows from it, the parabolic bands'
+    Einstein ratios, the narrowing and the narrowed solve's densities) is computed on
+    first read (:class:`LazyValues`).  None: every quantity, at once.  ``reference``: the
+    solves at the resistivity standard's reference temperature kept across a sweep's
+    chunks (carriers.ReferenceSolves; None: solved afresh).  ``rows``: the points'
+    distinct temperatures and doping rows (carriers.Rows), where the sweep's grid gives
+    them (None: found where needed)."""
     count = len(T)
     put, skipped = solve_points(
         calc, T, donors, acceptors, reads=reads, reference=reference, rows=rows
     )
-    values = {name: view for name, view in _unknown_views(count).items() if name not in put}
     # the solve's own arrays are kept as they are; a copy only where an array would be
     # shared (a caller's input, or one array under two names) or is not yet one per point
-    shared = {_memory(a) for a in (T, *donors.values(), *acceptors.values())}
+    values = LazyValues(count, {_memory(a) for a in (T, *donors.values(), *acceptors.values())})
+    values.update((name, view) for name, view in _unknown_views(count).items() if name not in put)
     for name, array in put.items():
-        if not np.ndim(array):  # one value for the chunk: a read-only view
-            values[name] = _constant(count, array)
+        if isinstance(array, Deferred):
+            values.defer((name,), array)
+        else:
+            values.place(name, array)
+    fill_inputs([calc], values, count=count, reads=reads)
+    return values, skipped
+
+
+class Deferred:
+    """Quantities computed together on their first read (:class:`LazyValues`):
+    ``compute(values)`` gives them by name, reading what it needs from ``values``;
+    ``placed``: they are laid out as solve_sweep lays out the solve's arrays (else taken
+    as they are)."""
+
+    __slots__ = ("compute", "placed")
+
+    def __init__(self, compute: Callable[[Values], Mapping[str, ArrayIn]], placed: bool = False):
+        self.compute, self.placed = compute, placed
+
+
+class LazyValues(dict[str, npt.NDArray[Any]]):
+    """A sweep chunk's quantities (solve_sweep with ``reads``): a quantity some rule may
+    read, but only where its gate holds (the transport where no rule reads a mobility
+    unless a stated number is given; the minority carrier's Einstein ratio), is
+    computed when first looked up, never where no chunk's rules read it.  What is looked
+    up is what computing it at once would have given (the same functions of the same
+    arrays); a name given a value directly is never computed again."""
+
+    def __init__(self, count: int, shared: set[int] | None = None) -> None:
+        super().__init__()
+        self.count = count
+        self._shared = set() if shared is None else shared  # buffers already under a name
+        self._pending: dict[str, Deferred] = {}
+
+    def defer(self, names: Collection[str], deferred: Deferred) -> None:
+        """``names`` are computed by ``deferred`` on first read."""
+        for name in names:
+            self.pop(name, None)
+            self._pending[name] = deferred
+
+    def pending(self, name: str) -> bool:
+        return name in self._pending
+
+    def place(self, name: str, array: ArrayIn) -> None:
+        """``array`` under ``name`` over the chunk: one value as a read-only view; a point
+        array of the chunk's own as it is, else a copy (no two names share a buffer)."""
+        count = self.count
+        if not np.ndim(array):
+            self[name] = _constant(count, array)
         elif (
             isinstance(array, np.ndarray)
             and array.shape == (count,)
             and array.flags.writeable
-            and _memory(array) not in shared
+            and _memory(array) not in self._shared
         ):
-            values[name] = array
-            shared.add(_memory(array))
+            self[name] = array
+            self._shared.add(_memory(array))
         else:
-            values[name] = np.broadcast_to(array, (count,)).copy()
-    fill_inputs([calc], values, count=count, reads=reads)
-    return values, skipped
+            self[name] = np.broadcast_to(array, (count,)).copy()
+
+    def __missing__(self, name: str) -> npt.NDArray[Any]:
+        deferred = self._pending.get(name)
+        if deferred is None:
+            raise KeyError(name)
+        for key, array in deferred.compute(self).items():
+            if self._pending.get(key) is not deferred:
+                continue
+            del self._pending[key]
+            if key in self:  # given a value directly meanwhile: kept
+                continue
+            if deferred.placed:
+                self.place(key, array)
+            else:
+                self[key] = np.asarray(array)
+        return dict.__getitem__(self, name)
+
+
+def _derived(
+    into: Callable[[Values], None], fixed: Mapping[str, npt.NDArray[Any]]
+) -> Callable[[Values], dict[str, ArrayIn]]:
+    """A Deferred's compute from a function that writes quantities into ``values``: what
+    it writes on a layer over ``values``, which it reads through but for the ``fixed``
+    arrays (the values of those names when the function was deferred)."""
+
+    def compute(values: Values) -> dict[str, ArrayIn]:
+        layer = _Layer(values)
+        layer.update(fixed)
+        into(layer)
+        return {name: array for name, array in layer.items() if name not in fixed}
+
+    return compute
+
+
+class _Layer(dict[str, npt.NDArray[Any]]):
+    """Writes kept here, reads of anything else passed to ``base``."""
+
+    def __init__(self, base: Values) -> None:
+        super().__init__()
+        self._base = base
+
+    def __missing__(self, name: str) -> npt.NDArray[Any]:
+        return self._base[name]
 
 
 def _memory(array: object) -> int:
@@ -222,14 +313,15 @@ def solve_points(
     reads: Collection[str] | None = None,
     reference: carriers.ReferenceSolves | None = None,
     rows: tuple[carriers.Rows, carriers.Rows] | None = None,
-) -> tuple[dict[str, ArrayIn], str | None]:
+) -> tuple[dict[str, Any], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
     A sheet (2D gas, graphene) takes the sheet solve, its Fermi level fixed by ``sheet``
     (sheet_values.sheet_inputs; default: ``first``'s own stated numbers).  ``calcs``: the
     calculation of each point (default: ``first`` for all); what only some calculations
     read (bulk modes, the solve with narrowing) is computed at their points alone;
-    ``reads``, ``reference``, ``rows``: see :func:`solve_sweep`."""
+    ``reads``, ``reference``, ``rows``: see :func:`solve_sweep`; with ``reads`` (a sweep's
+    chunk) some quantities are given as a :class:`Deferred`, computed where first read."""
 
     def where(reads: Callable[[Calculation], bool]) -> BoolArray:
         if calcs is None:
@@ -246,54 +338,64 @@ def solve_points(
     state = equilibrium.solve(
         material, T, donors, acceptors, band_gap_narrowing=first.band_gap_narrowing
     )
+    if rows is not None and not first.band_gap_narrowing:
+        _per_temperature(state, rows[0])
+    velocities = reads is None or not _VELOCITY.isdisjoint(reads)
+
+    def transport() -> tuple[dict[str, Any], str | None]:
+        try:
+            return carriers.carrier_transport(
+                state,
+                dim,
+                velocities=velocities,
+                reference=reference,
+                temperatures=rows[0] if rows else None,
+                dopings=rows[1] if rows else None,
+                only=None if reads is None else _LATTICE.intersection(reads),
+            ), None
+        except MissingParameterError as exc:
+            # statistics checks still run; mobility-based ones see NaN and stay silent
+            missing: dict[str, Any] = {key: np.full_like(T, np.nan) for key in _FLOW_NAN}
+            missing["cond_n"] = missing["cond_p"] = np.ones_like(T)
+            missing["kT_over_q"] = state.kT / ELEMENTARY_CHARGE
+            return missing, f"transport checks skipped: {exc}"
+
+    # a sweep's chunk whose rules may read no mobility (the gates decide, chunk by chunk):
+    # the transport is computed on first read (LazyValues), where no parameter it needs
+    # is missing (else the note that says so is given now, as for every other chunk)
     skipped = None
-    try:
-        flow = carriers.carrier_transport(
-            state,
-            dim,
-            velocities=reads is None or not _VELOCITY.isdisjoint(reads),
-            reference=reference,
-            temperatures=rows[0] if rows else None,
-            dopings=rows[1] if rows else None,
-            only=None if reads is None else _LATTICE.intersection(reads),
-        )
-    except MissingParameterError as exc:
-        # statistics checks still run; mobility-based ones see NaN and stay silent
-        skipped = f"transport checks skipped: {exc}"
-        flow = {
-            key: np.full_like(T, np.nan)
-            for key in (
-                "mu_n",
-                "mu0_n",
-                "vsat_n",
-                "beta_n",
-                "v_n",
-                "mfp_n",
-                "mu_p",
-                "mu0_p",
-                "vsat_p",
-                "beta_p",
-                "v_p",
-                "mfp_p",
-            )
-        }
-        flow["cond_n"] = flow["cond_p"] = np.ones_like(T)
-        flow["kT_over_q"] = state.kT / ELEMENTARY_CHARGE
+    if reads is not None and _BAND_POWERS.isdisjoint(reads) and _transport_given(material):
+        later = Deferred(lambda _: _flow_values(transport()[0]), placed=True)
+        flow: dict[str, Any] = dict.fromkeys(_FLOW, later)
+    else:
+        flow, skipped = transport()
     (T_lo, T_hi), (N_lo, N_hi), binding = carriers.model_ranges(
         material, _dominant(first.donors), _dominant(first.acceptors)
     )
     net = np.abs(state.donors_total - state.acceptors_total)
-    narrowing = (
-        material.narrowing(state.donors_total, state.acceptors_total)
-        if material.narrowing
-        else np.full_like(T, np.nan)
-    )
+
+    @functools.cache
+    def narrowing() -> FloatArray:
+        """The material's band-gap narrowing at each point's doping (J)."""
+        if material.narrowing is None:
+            return np.full_like(T, np.nan)
+        gap_change: FloatArray = material.narrowing(state.donors_total, state.acceptors_total)
+        return gap_change
+
     # n_i is the intrinsic density of the undoped crystal; with narrowing on the solve's
     # is the effective one, n_ie
-    ni = state.ni * np.exp(-narrowing / (2 * state.kT)) if first.band_gap_narrowing else state.ni
+    ni = state.ni * np.exp(-narrowing() / (2 * state.kT)) if first.band_gap_narrowing else state.ni
+    # a sweep's chunk solved without narrowing: the narrowing and the densities of the
+    # solve with it where a rule reads them (their gates need stated densities or n_i)
+    lazy = reads is not None and not first.band_gap_narrowing
+
+    def narrowed_densities(_: object = None) -> dict[str, FloatArray]:
+        wanted = where(_reads_narrowed_densities)
+        return _narrowed_densities(first, T, donors, acceptors, state, narrowing(), wanted)
+
     # a quantity with one value for every point is given as that number (solve_sweep: a
     # read-only view; solve_all: the same value at each calculation)
-    put: dict[str, ArrayIn] = {
+    put: dict[str, Any] = {
         "T": T,
         "kT": state.kT,
         "kT_q": flow["kT_over_q"],
@@ -302,7 +404,9 @@ def solve_points(
         "nie": state.ni,
         "Nnet": net,
         "Ntot": state.donors_total + state.acceptors_total,
-        "dEg_bgn": narrowing,
+        "dEg_bgn": Deferred(lambda _: {"dEg_bgn": narrowing()}, placed=True)
+        if lazy
+        else narrowing(),
         "bgn_on": float(first.band_gap_narrowing),
         "T_lo": T_lo,
         "T_hi": T_hi,
@@ -373,11 +477,10 @@ def solve_points(
                 f"gdeg_{x}": main.degeneracy if main else np.nan,
             }
         )
-    put.update(
-        _narrowed_densities(
-            first, T, donors, acceptors, state, narrowing, where(_reads_narrowed_densities)
-        )
-    )
+    if lazy:
+        put["dens_bgn_n"] = put["dens_bgn_p"] = Deferred(narrowed_densities, placed=True)
+    else:
+        put.update(narrowed_densities())
     # electrons count as the majority on a tie (intrinsic material: n = p to rounding)
     majority_n = (state.n >= state.p * (1 - 1e-9)).astype(float)
     put["maj_n"], put["maj_p"] = majority_n, 1.0 - majority_n
@@ -398,6 +501,27 @@ def solve_points(
         modes_at = where(conductor_values.has_cross_section)
         put.update(conductor_values.band_values(first, T, put, sheet=False, modes_at=modes_at))
     return put, skipped
+
+
+def _per_temperature(state: State, temperatures: carriers.Rows) -> None:
+    """The state's quantities of T alone -- kT, E_g, N_c, N_v, n_i -- evaluated once per
+    distinct temperature of its points (``temperatures``: carriers.Rows, a sweep chunk's
+    from the grid) and given to the state before it derives them point by point (its
+    cached properties): the same elementwise arithmetic on the same temperatures, so the
+    same numbers.  Only for a solve without band-gap narrowing, whose E_g is the
+    material's gap at every point (the narrowing subtracted is 0)."""
+    first, back = temperatures
+    material = state.material
+    T = np.ravel(state.T)[first]
+    kT = BOLTZMANN * T
+    Eg = material.need("band_gap", "the band gap")(T)
+    Nc = material.need("Nc", "the electron density")(T)
+    Nv = material.need("Nv", "the hole density")(T)
+    ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * Eg / kT)
+    shape = np.shape(state.T)
+    for name, rows in (("kT", kT), ("Eg", Eg), ("Nc", Nc), ("Nv", Nv), ("ni", ni)):
+        if name not in state.__dict__:  # (not derived yet)
+            state.__dict__[name] = np.take(np.broadcast_to(rows, T.shape), back).reshape(shape)
 
 
 def _models_beyond(
@@ -422,13 +546,18 @@ def _band_shape_values(
     names a sweep's rules read (None: all); a Kane band's parabolic level and density are
     computed only where read (else they stay the solve's own, which the sweep drops)."""
     band = state.electron_band
-    out: dict[str, FloatArray] = {}
+    out: dict[str, Any] = {}
     for x, eta, dens in (("n", state.eta_n, state.n), ("p", state.eta_p, state.p)):
         out[f"eta_par_{x}"], out[f"dens_par_{x}"] = eta, dens
         out[f"beta_kane_{x}"] = np.zeros_like(state.T)
-        out[f"einstein_{x}"] = np.asarray(transport.einstein_ratio(eta, dim))
+        if reads is not None and band is None:
+            # a sweep's chunk: each carrier's ratio where a rule reads it (LazyValues; a
+            # rule of the minority carrier mostly stops before its indicator)
+            out[f"einstein_{x}"] = Deferred(_einstein_ratio(state, x, dim), placed=True)
+        else:
+            out[f"einstein_{x}"] = carriers.einstein_ratio(state, x, dim)
     if band is not None:
-        in_plane = dataclasses.replace(band, dimension=dim)
+        in_plane = records.replace(band, dimension=dim)
         ratio = energy_window.generalized_einstein_ratio(in_plane, state.eta_n, state.T)
         out["einstein_n"] = np.asarray(ratio)
     if band is not None and dim == 3 and (reads is None or not _PARABOLIC.isdisjoint(reads)):
@@ -444,6 +573,11 @@ def _band_shape_values(
         out["dens_par_n"] = state.Nc * np.asarray(fermi.fermi_dirac(0.5, state.eta_n))
         out["beta_kane_n"] = band.alpha * state.kT
     return out
+
+
+def _einstein_ratio(state: State, x: str, dim: int) -> Callable[[Values], dict[str, ArrayIn]]:
+    """A Deferred's compute of carrier ``x``'s parabolic Einstein ratio at the solve."""
+    return lambda _: {f"einstein_{x}": carriers.einstein_ratio(state, x, dim)}
 
 
 # narrowing that changes n_i^2 by less than this factor is not worth a second solve
@@ -464,7 +598,7 @@ def _narrowed_densities(
     reads them (``wanted``: the corrected calculation takes the minority density from it
     where DOPE01 rejects the undoped n_i); the solve's own densities elsewhere."""
     out = {"dens_bgn_n": state.n.copy(), "dens_bgn_p": state.p.copy()}
-    if first.band_gap_narrowing or first.material.narrowing is None:
+    if first.band_gap_narrowing or first.material.narrowing is None or not wanted.any():
         return out
     with np.errstate(all="ignore"):
         matters = (np.exp(narrowing / state.kT) > _NARROWING_NEGLIGIBLE) & wanted
@@ -526,9 +660,14 @@ def fill_inputs(
     # a sweep's chunk: quantities with one value for the chunk are worked on as one element
     # each until derive_corrected, then given back as read-only views over the chunk
     compact = count is not None and count > 1
+    # name -> (a one-value view, the element worked on in its place)
+    whole: dict[str, tuple[npt.NDArray[Any], npt.NDArray[Any]]] = {}
     if compact:
         for name, array in values.items():
-            values[name] = one_value(array)
+            one = one_value(array)
+            if one is not array:
+                values[name] = one
+                whole[name] = (array, one)
 
     def column(getter: Callable[[Calculation], float]) -> FloatArray:
         if count is not None:  # a sweep: one value for the whole chunk
@@ -581,14 +720,18 @@ def fill_inputs(
     specific: dict[str, BoolArray] = {}
     for x in ("n", "p"):
         values[f"stated_ef_{x}"] = values[f"stated_eta_{x}"] * kT
-        specific[x] = np.zeros(size, dtype=bool)
+        # (a sweep's chunk: the stated numbers are one element each, and so is this)
+        specific[x] = np.zeros(1 if compact else size, dtype=bool)
         for stem in _CARRIER_SPECIFIC:
             specific[x] |= np.isfinite(values[f"{stem}_{x}"])
     none = ~(specific["n"] | specific["p"])
     for x in ("n", "p"):
         values[f"in_use_{x}"] = (specific[x] | (none & (values[f"maj_{x}"] > 0))).astype(float)
-    # the bulk solve's Einstein ratio (the sheet solve gives its own from the energy window)
-    ratio_unknown = ~np.isfinite(values["einstein_n"])
+    # the bulk solve's Einstein ratio (the sheet solve gives its own from the energy window;
+    # a ratio computed on first read is a parabolic band's own, where the bulk ratio
+    # below is the same function of the same eta: nothing to fill)
+    deferred = isinstance(values, LazyValues) and values.pending("einstein_n")
+    ratio_unknown = np.zeros(1, dtype=bool) if deferred else ~np.isfinite(values["einstein_n"])
     for x in Carrier:
         if not ratio_unknown.any():
             break
@@ -601,14 +744,29 @@ def fill_inputs(
     if compact:
         for name, array in values.items():
             if np.shape(array) == (1,):
-                values[name] = np.broadcast_to(array, (size,))
-    derive_corrected(values, {}, reads)
+                view, one = whole.get(name, (array, None))
+                # the view it came from where it is still that element
+                values[name] = view if one is array else np.broadcast_to(array, (size,))
+    if isinstance(values, LazyValues) and values.pending("mu_n") and not _reads_paths(reads):
+        # the transport is computed on first read: so is what follows from it, from the
+        # densities of the solve (as now, whatever a rule replaces before)
+        solved = {name: values[name] for name in ("dens_n", "dens_p")}
+        later = _derived(lambda v: derive_corrected(v, {}, reads), solved)
+        values.defer(_CORRECTED, Deferred(later))
+        values.defer(("sigma_model",), Deferred(_derived(_sigma_model, solved)))
+    else:
+        derive_corrected(values, {}, reads)
+        _sigma_model(values)
+    if reads is None or not _HALL.isdisjoint(reads):
+        _hall(values, values["hall_r"])
+
+
+def _sigma_model(values: Values) -> None:
+    """The model conductivity of the solved densities and model mobilities (S/m)."""
     values["sigma_model"] = ELEMENTARY_CHARGE * (
         values["dens_n"] * values["cond_n"] * values["mu_n"]
         + values["dens_p"] * values["cond_p"] * values["mu_p"]
     )
-    if reads is None or not _HALL.isdisjoint(reads):
-        _hall(values, values["hall_r"])
 
 
 # what reads the carriers' D, <v_x+> and lambda: the mean free paths, the bulk modes (their
@@ -619,6 +777,48 @@ _VELOCITY = frozenset(
 # what carrier_transport gives only where asked and solve_points puts (its sigma and rho
 # solve_points does not read: derive_corrected gives those of the corrected calculation)
 _LATTICE = frozenset(f"{stem}_{x}" for stem in ("mu0", "vsat", "beta") for x in Carrier)
+# carrier_transport's keys -> the names solve_points puts them under
+_FLOW = {
+    "kT_over_q": "kT_q",
+    **{
+        f"{key}_{x}": f"{name}_{x}"
+        for key, name in (
+            ("mu", "mu"),
+            ("mu0", "mu0"),
+            ("cond", "cond"),
+            ("vsat", "vsat"),
+            ("beta", "beta"),
+            ("v", "vth"),
+            ("mfp", "lambda_model"),
+        )
+        for x in Carrier
+    },
+}
+# what a material that lacks a carrier's transport gives in its place (with cond_x 1)
+_FLOW_NAN = tuple(key for key in _FLOW if not key.startswith(("kT", "cond")))
+
+
+def _flow_values(flow: Mapping[str, ArrayIn]) -> dict[str, ArrayIn]:
+    """carrier_transport's values under the names solve_points puts them."""
+    return {name: flow[key] for key, name in _FLOW.items()}
+
+
+def _transport_given(material: Material) -> bool:
+    """Whether carrier_transport finds every parameter it asks for (a model for each
+    carrier, and each mobility model it may name), so that it cannot raise
+    MissingParameterError."""
+    for band in ("electron", "hole"):
+        model = getattr(material, band)
+        if model is None:
+            return False
+        named = {model.default_model, *model.dopant_models.values()}
+        if model.minority_model:
+            named.add(model.minority_model)
+        if not named <= model.mobility.keys():
+            return False
+    return True
+
+
 # quantities a bulk solve may give as another quantity's array (the parabolic band's
 # Fermi level and density, n_i without narrowing)
 _PARABOLIC = frozenset({"eta_par_n", "dens_par_n"})
@@ -646,6 +846,14 @@ _CONDUCTANCE = frozenset({"modes", "G_ballistic", "G_energy", "G_landauer"})
 _BAND_POWERS = _CONDUCTANCE | {f"{stem}_{x}" for stem in ("kpower", "modes_a") for x in Carrier}
 _MEAN_FREE_PATHS = frozenset(f"lambda_{x}" for x in Carrier)
 _SHEET_CONDUCTANCE = frozenset({"sigma_s", "Rs"})
+# what derive_corrected writes where no rule reads a mean free path or a conductance
+_CORRECTED = ("used_mu_n", "used_mu_p", "sigma", "rho", "used_rho", "sigma_s", "Rs")
+
+
+def _reads_paths(reads: Collection[str] | None) -> bool:
+    """Whether derive_corrected gives the mean free paths (where a conductance or a mean
+    free path is read; ``reads`` None: all is)."""
+    return reads is None or not (_CONDUCTANCE | _MEAN_FREE_PATHS).isdisjoint(reads)
 
 
 def derive_corrected(
@@ -661,7 +869,7 @@ def derive_corrected(
     ``reads``: see :func:`solve_sweep` (the mean free paths, a sheet's conductance and the
     conductances of conductor_values only where read; None: all)."""
     conductances = reads is None or not _CONDUCTANCE.isdisjoint(reads)
-    paths = conductances or not _MEAN_FREE_PATHS.isdisjoint(reads or ())
+    paths = _reads_paths(reads)
 
     def kept(name: str) -> BoolArray | bool:
         return ~replaced[name] if name in replaced else True

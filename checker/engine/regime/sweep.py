@@ -22,7 +22,7 @@ from ...inputs.calculation_file import AxisKey
 from ...physics import carriers
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray, distinct_points
 from ..findings import Embodied, carrier_word
-from .evaluate import Cells, beyond, rule_cells, rule_indicator, sweep_rules
+from .evaluate import Cells, beyond, probed_names, rule_cells, rule_indicator, sweep_rules
 from .points import CalculationReport, check_points
 from .rulebook import Rule
 from .state_values import Values, solve_sweep
@@ -41,12 +41,12 @@ Boundary: TypeAlias = "tuple[Axis, Axis | None, list[BoundaryRow]]"
 # (rule id, carrier) -> (failing mask over the grid, worst flat index)
 Masks: TypeAlias = dict[tuple[str, str], tuple[BoolArray, int]]
 
-# points solved and ruled at a time: a chunk's quantities and their temporaries take ~1 kB
-# a point, so 64k points keep a sweep of any size near 135 MB peak (a 2000 x 2000 grid,
-# bench/bench_sweep.py); the solve of a 64k chunk costs 0.78x that of two 32k ones (its
-# blocks on two threads) and a chunk's fixed costs are spread over twice the points
-# (128k points: no faster, 170 MB)
-CHUNK = 1 << 16
+# points solved and ruled at a time: 128k points make the solve's blocks 64k on each of two
+# threads (equilibrium.THREAD_CHUNK), where 64k-point chunks gave each thread 32k and
+# solved 1.2x slower per point than one whole-grid solve (128k: 1.0x); a chunk's quantities
+# not read are never computed (state_values.LazyValues), so a 2000 x 2000 grid peaks near
+# 180 MB (64k chunks: 120 MB; bench/bench_sweep.py)
+CHUNK = 1 << 17
 ROWS_SHOWN = 5  # rows of a 2D grid whose boundary is written out
 
 
@@ -96,6 +96,8 @@ class GridQuantity:
     def __init__(self, values: ArrayIn, stride: int, size: int) -> None:
         self.values = np.atleast_1d(np.asarray(values, dtype=float))
         self.stride, self.size = stride, size
+        # the codes of the last slice asked for: a chunk's values and its rows read them
+        self._last: tuple[int, int, IndexArray] = (0, 0, np.zeros(0, dtype=np.intp))
 
     def __len__(self) -> int:
         return self.size
@@ -129,12 +131,23 @@ class GridQuantity:
 
     def _run(self, start: int, stop: int) -> IndexArray:
         """The codes of flat indices start ... stop - 1: runs of ``stride`` equal codes,
-        built as such (no integer division per point)."""
+        built as such (no integer division per point); kept for the next call."""
+        last_start, last_stop, codes = self._last
+        if (last_start, last_stop) != (start, stop):
+            codes = self._made_run(start, stop)
+            codes.flags.writeable = False  # (shared by the callers)
+            self._last = (start, stop, codes)
+        return codes
+
+    def _made_run(self, start: int, stop: int) -> IndexArray:
         count, stride = self.values.size, self.stride
         if count == 1 or stop == start:
             return np.zeros(stop - start, dtype=np.intp)
-        if stride == 1:
-            return np.arange(start, stop, dtype=np.intp) % count
+        if stride == 1:  # 0, 1, ..., count - 1 over and over (no division per point)
+            offset = start % count
+            repeats = -(-(offset + stop - start) // count)
+            cycles = np.tile(np.arange(count, dtype=np.intp), repeats)
+            return cycles[offset : offset + stop - start]
         first, last = start // stride, (stop - 1) // stride
         lengths = np.full(last - first + 1, stride, dtype=np.intp)
         lengths[0] -= start - first * stride
@@ -254,7 +267,7 @@ def grid_rules(
 ) -> tuple[list[Rule], frozenset[str]]:
     """(the rules that may fire on the grid, the quantities they read): evaluate.sweep_rules
     from a probe of the grid's first point; the chunks rule and compute only those."""
-    values = _values_at(calc, grid_points, [0])
+    values = _values_at(calc, grid_points, [0], reads=probed_names(rules))
     return sweep_rules(rules, Cells.grid(calc, values, 1, embodied))
 
 
@@ -531,5 +544,11 @@ def _summary(
     axis, row_axis, rows = found
     worst = [(axis_, float(axis_.values[position[k]])) for k, axis_ in enumerate(calc.sweep)]
     return SweepSummary(
-        int(mask.size), float(mask.mean()), axis, row_axis, rows, interpolated, worst
+        int(mask.size),
+        np.count_nonzero(mask) / mask.size,  # (the mean, without a float pass)
+        axis,
+        row_axis,
+        rows,
+        interpolated,
+        worst,
     )
