@@ -22,10 +22,10 @@ Measured on the shared 2-core machine, best round, ns per element at 1e5 / 1e6 /
 the sorted kernel as it was then 14.1 / 13.8 / 16.0; three masks 12.5 / 13.4 / 16.6;
 four 12.3 / 13.6 / 17.7; five 12.8 / 14.2 / 23.7; fdint 9.6 / 9.8 / 9.9.  A mask layout
 gains ~10 % at 1e5, ties at 1e6 and loses at 1e7, and none comes near fdint (1.3x at
-best), so the kernel was not rebuilt that way (new fits would also move values by more
-than the 2 ulp a speed change may).  The sorted kernel has since lost two edges (one fit
-in 1/eta^2 above eta = 20-29) and half its gather cost (bench_fermi.py --split shows a
-block step by step).  Prints tables; asserts nothing.
+best), so the kernel was not rebuilt that way.  The sorted kernel has since lost one edge
+(two for j = 5/2, 7/2: one fit in 1/eta^2 above eta = 20-29, which moved values by up to
+~8 ulp, each toward mpmath) and half its gather cost (bench_fermi.py --split shows a block
+step by step).  Prints tables; asserts nothing.
 Usage: python bench/bench_fermi_layouts.py [--sizes 1e5 1e6 1e7] [--rounds 7]
        python bench/bench_fermi_layouts.py --degrees   (mpmath; about two minutes)
 """

@@ -89,6 +89,17 @@ def test_high_fit_from_its_cut_to_1e5(j):
     worst = np.max(np.abs(got / expected - 1))
     assert worst <= 1.6e-15, (eta[np.argmax(np.abs(got / expected - 1))], worst)
     assert table["high"][0] == pytest.approx(1 / math.gamma(order + 2), rel=1e-15)
+    # ln F_j takes its own path there ((j+1) ln eta + ln H, not the generator's checked
+    # product): within a few ulp of ln of mpmath's value, and finite far beyond eta^(j+1)'s
+    # overflow (mpmath evaluates the polylogarithm at 1e300 directly)
+    logs = log_fermi_dirac(order, eta)
+    log_expected = np.log(expected)
+    assert np.max(np.abs(logs - log_expected) / np.maximum(1.0, np.abs(log_expected))) <= 1e-15
+    huge = np.array([1e100, 1e300, 1.7e308])
+    huge_expected = [float(mp.log(fd_reference(order, x, dps=30))) for x in huge[:2]]
+    huge_logs = log_fermi_dirac(order, huge)
+    assert np.all(np.isfinite(huge_logs))
+    assert huge_logs[:2] == pytest.approx(huge_expected, rel=1e-15)
 
 
 @pytest.mark.parametrize("j", ORDERS)

@@ -222,7 +222,8 @@ class _Piecewise:
                 np.divide(1.0, lead, out=lead)
             for _ in range(max(whole, 0)):
                 lead *= eta
-        inv2 = np.multiply(eta, eta, out=_work("variable", eta.size))
+        with np.errstate(over="ignore"):  # eta^2 = inf above 1.3e154: 1/eta^2 = 0, H(0)
+            inv2 = np.multiply(eta, eta, out=_work("variable", eta.size))
         np.divide(1.0, inv2, out=inv2)
         series = _horner(self.high, inv2, out)
         if log:
@@ -596,9 +597,9 @@ def inverse_fermi_dirac_half(u: ArrayIn) -> FloatOrArray:
 
 
 def inverse_fermi_dirac_half_of_log(log_u: FloatArray) -> FloatArray:
-    """eta such that ln F_{1/2}(eta) = ``log_u`` (any finite values; a flat array), by the
-    method of :func:`inverse_fermi_dirac_half`, for a caller that works in logarithms
-    (the equilibrium solver's start): no exp and log round trip, no overflow.
+    """eta such that ln F_{1/2}(eta) = ``log_u`` (any finite values, a flat array; NaN gives
+    NaN), by the method of :func:`inverse_fermi_dirac_half`, for a caller that works in
+    logarithms (the equilibrium solver's start): no exp and log round trip, no overflow.
 
     References
     ----------
