@@ -93,6 +93,7 @@ READ = {
     "memo padding": "\n\n\n\nmaterial: Si\n\n\ntemperature: 300 K\n",
     "no final newline": "a: 1\nb: 2",
     "several documents": "a: 1\n---\nb: 2\n---\n# note\nc:\n  - 1\n",
+    "key of 1,024 characters": "a" * 1024 + ": 1\nx: {" + "b" * 1024 + ": 2}\n",
 }
 
 REFUSED = {  # each goes to the composer, which reads or refuses it with its own words
@@ -133,6 +134,10 @@ REFUSED = {  # each goes to the composer, which reads or refuses it with its own
     "directive": "%YAML 1.1\n---\na: 1\n",
     "control character": "a: x\x07y\n",
     "too deep": "".join(" " * i + f"k{i}:\n" for i in range(12)) + " " * 12 + "x: 1\n",
+    # YAML 1.1 §9.1.2 / PyYAML: an implicit key ends within 1,024 characters
+    "key of 1,025 characters": "a" * 1025 + ": 1\n",
+    "flow key of 1,025 characters": "x: {" + "a" * 1025 + ": 1}\n",
+    "entry key of 1,025 characters": "x:\n  - " + "a" * 1025 + ": 1\n",
 }
 
 
@@ -193,3 +198,20 @@ def test_mutated_texts_read_as_pyyaml_or_go_to_the_composer():
         except yaml.YAMLError:
             pytest.fail(f"read here, refused by PyYAML: {text!r}")
     assert read > 100  # the edits left many texts in the form read here
+
+
+def test_quotes_in_plain_scalars_do_not_count_as_nesting():
+    """A quote inside a plain scalar (x'y, 5") is text, and a bracket in a comment is
+    comment: 40 such lines in one document are read by both readers alike, as PyYAML
+    reads them (the composer's nesting guard once counted them as 40 open levels)."""
+    for text in (
+        "".join(f"k{i}: [x'y]\n" for i in range(40)),
+        "".join(f'k{i}: [5"]\n' for i in range(40)),
+        "".join(f"k{i}: x  # see [{i}\n" for i in range(40)),
+    ):
+        assert assert_same_where_read(text)
+        tabbed = text + "# a tab\there sends the text to the composer\n"
+        assert fast(tabbed) is None
+        composed = read_documents(tabbed, "f.yaml")
+        assert composed[1] == []
+        assert composed[0][0].value == pyyaml(tabbed, yaml.SafeLoader)[0][0]

@@ -18,8 +18,9 @@ from __future__ import annotations
 import re
 from typing import Any
 
-# a plain key: letters, digits, '_' and '-', not starting with '-' or a digit
-_KEY = r"[A-Za-z_][A-Za-z0-9_-]*"
+# a plain key: letters, digits, '_' and '-', not starting with '-' or a digit, at most
+# 1,024 characters (YAML's limit on an implicit key: PyYAML refuses a longer one)
+_KEY = r"[A-Za-z_][A-Za-z0-9_-]{0,1023}"
 # what a one-line plain scalar may not hold here: ':' or '#' (which can end a plain
 # scalar), a bracket or brace (flow collections); in a flow collection no ',' or '?'
 # either (PyYAML's own scanner, which reads texts holding a '?', ends a flow scalar
@@ -164,8 +165,7 @@ def _documents(text: str) -> list[tuple[object, Positions]]:
             collection[key] = _flow_sequence(value, start, number, here, positions)
         else:
             collection[key] = value
-    if started or root is not None or not documents:
-        documents.append(_finished(root, positions, pending))
+    documents.append(_finished(root, positions, pending))  # the last document
     return documents
 
 

@@ -64,7 +64,10 @@ def _character_errors(text: str, name: str) -> list:
 
 _DOCUMENT_MARK = re.compile(r"^(---|\.\.\.)(\s|$)")
 _BRACKETS = re.compile(r"[\[\]{}]")
-_FLOW_CHARACTERS = re.compile(r"[\[\]{}\"']")
+# what changes the depth on a line: a bracket, a comment (' #' or '#' opening the line) and
+# a quote that starts a scalar (at the line's start or after '- ', or after '[', '{', ','
+# or ':' and blanks); a quote inside a plain scalar (it's, 5'') is text
+_FLOW_TOKEN = re.compile(r"""[\[\]{}]|(?:^|(?<=\s))#|(?:(?<=[\[{,:])|^\s*(?:-\s+)?)\s*(["'])""")
 
 
 _DOCUMENT_MARKS = re.compile(r"^(?:---|\.\.\.)(?:\s|$)", re.MULTILINE)
@@ -89,8 +92,8 @@ def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
 
     PyYAML's scanner slows quadratically with flow nesting (20,000 '[' take minutes), so
     this is decided on the text before parsing.  Blank lines keep the line numbers of the
-    other documents, which are still read.  Quoted text is skipped roughly: a bracket in
-    quotes counts only where the quotes are unbalanced on their line."""
+    other documents, which are still read.  Quoted text is skipped roughly: a quoted
+    scalar is taken to end on its line, at the next quote of its kind."""
     if not _has_deep_document(text):
         return text, []  # too few brackets in any document to nest that deep
     lines = text.split("\n")
@@ -109,19 +112,22 @@ def _without_deep_flow(text: str, name: str) -> tuple[str, list]:
             continue
         if not _BRACKETS.search(line):
             continue  # quotes are balanced per line: nothing here changes the depth
-        quote = None
-        for match in _FLOW_CHARACTERS.finditer(line):  # the others change nothing
-            column, char = match.start() + 1, match.group()
-            if quote:
-                quote = None if char == quote else quote
-            elif char in "\"'":
-                quote = char
+        at = 0
+        while (match := _FLOW_TOKEN.search(line, at)) is not None:
+            char, quote = match.group(), match.group(1)
+            at = match.end()
+            if quote:  # skip the quoted text (to the line's end if it does not close)
+                closing = line.find(quote, at)
+                at = len(line) if closing < 0 else closing + 1
+            elif char == "#":
+                break  # a comment: the rest of the line
             elif char in "[{":
                 depth += 1
                 if depth > MAX_NESTING and deep is None:
                     deep = (
-                        f"{name}:{number + 1}:{column}: {TOO_DEEP} {MAX_NESTING} levels "
-                        "deep; a calculation needs fewer than 10: flatten it"
+                        f"{name}:{number + 1}:{match.start() + 1}: {TOO_DEEP} "
+                        f"{MAX_NESTING} levels deep; a calculation needs fewer than 10: "
+                        "flatten it"
                     )
             elif char in "]}":
                 depth = max(depth - 1, 0)
