@@ -122,7 +122,7 @@ def chunk_split(path):
         (state_values.carriers, "carrier_transport", "transport (carriers)"),
         (state_values, "_band_shape_values", "band shapes"),
         (state_values.LazyValues, "__missing__", "computed on first read (in their stage)"),
-        (state_values.equilibrium, "ionized_density", "ionized dopant densities"),
+        (state_values.equilibrium, "_ionized_group", "ionized dopant densities"),
         (state_values, "solve_points", "solve_points (solve, transport, band shapes)"),
         (state_values, "fill_inputs", "inputs (fill_inputs, derive_corrected)"),
         (state_values, "solve_sweep", "solve_sweep (all of the above)"),
