@@ -225,11 +225,12 @@ def charge_balance_error(state: State) -> FloatArray:
             for term in _level_terms(state.material.dopant(name), density, kT, total)
         ]
 
+    eta_p = -state.eta_n - state.Eg / kT  # (afresh too: the state keeps the solve's)
     return _plain_balance_error(  # afresh: not the state's cached band factors
         np.log(state.Nc) + log_electron_factor(state.electron_band, state.eta_n, state.T),
-        np.log(state.Nv) + log_fermi_dirac(0.5, state.eta_p),
+        np.log(state.Nv) + log_fermi_dirac(0.5, eta_p),
         [_log_ionized(term, state.eta_n) for term in terms(state.donors, state.donors_total)],
-        [_log_ionized(term, state.eta_p) for term in terms(state.acceptors, state.acceptors_total)],
+        [_log_ionized(term, eta_p) for term in terms(state.acceptors, state.acceptors_total)],
     )
 
 
@@ -350,10 +351,16 @@ def ionized_density(
 
 
 def _sum(parts: Mapping[str, FloatArray], like: FloatArray) -> FloatArray:
-    total = np.zeros(np.shape(like))
+    """0 + the parts in order, shaped like ``like`` (the first sum 0.0 + part in one pass
+    where the part has that shape: the numbers of zeros + part, -0.0 made 0.0 as there)."""
+    shape = np.shape(like)
+    total: FloatArray | None = None
     for value in parts.values():
-        total = total + value
-    return total
+        if total is None and np.shape(value) == shape:
+            total = np.add(0.0, value)
+        else:
+            total = (np.zeros(shape) if total is None else total) + value
+    return np.zeros(shape) if total is None else total
 
 
 def _fraction(part: FloatArray, whole: FloatArray) -> FloatArray:
@@ -849,7 +856,7 @@ def solve(
     residual = np.empty_like(temps)
     metallic = np.empty(temps.shape, dtype=bool)
     narrowing = np.empty_like(temps)
-    factors = np.empty((2, temps.size))  # ln(n/N_c), ln(p/N_v) at the returned eta
+    factors = np.empty((3, temps.size))  # ln(n/N_c), ln(p/N_v) and eta_p at the returned eta
     # ln N^ion of each bound level there (State.level_logs)
     levels = sum(len(species[name].bound_levels()) for name in species)
     level_logs = np.empty((levels, temps.size))
@@ -901,6 +908,7 @@ def solve(
     # each block's check evaluated both band factors at the returned eta: kept, not redone
     state.__dict__["log_electron_factor"] = factors[0].reshape(shape)
     state.__dict__["log_hole_factor"] = factors[1].reshape(shape)
+    state.__dict__["eta_p"] = factors[2].reshape(shape)  # (-eta_n - E_g/kT, as the property)
     bad = ~(state.residual <= BALANCE_TOLERANCE)
     if bad.any():
         raise ConvergenceError(
@@ -944,7 +952,8 @@ def _solve_flat(
     kane: KaneBand | None = None,
 ) -> int:
     """Solve one block; write eta, residual, metallic flag, narrowing, the band factors
-    ln(n/N_c), ln(p/N_v) (rows) and each bound level's ln N^ion (rows) into ``out``."""
+    ln(n/N_c), ln(p/N_v) and eta_p (rows) and each bound level's ln N^ion (rows) into
+    ``out``."""
     kT = BOLTZMANN * T
     Eg = material.need("band_gap", "the equilibrium solve")(T)
     Nc = material.need("Nc", "the equilibrium solve")(T)
@@ -1034,7 +1043,7 @@ def _solve_flat(
         ionized[len(donor_terms) :],
     )
     out_eta[:] = eta
-    out_factors[0], out_factors[1] = ln_f_n, ln_f_p
+    out_factors[0], out_factors[1], out_factors[2] = ln_f_n, ln_f_p, eta_p
     np.maximum(np.abs(np.expm1(final_f)), balance, out=out_residual)
     out_metallic[:] = metallic
     out_narrowing[:] = narrowing

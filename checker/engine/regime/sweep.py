@@ -127,8 +127,11 @@ class GridQuantity:
         # the first block at or after start's with each code, and its first flat index
         first = np.maximum(start, (block + (np.arange(count) - block) % count) * stride)
         present = first < stop
+        codes = self._run(start, stop)
+        if present.all():  # every value present: its row is its code
+            return first - start, codes
         row = np.cumsum(present) - 1
-        return first[present] - start, row[self._run(start, stop)]
+        return first[present] - start, row[codes]
 
     def _run(self, start: int, stop: int) -> IndexArray:
         """The codes of flat indices start ... stop - 1: runs of ``stride`` equal codes,
@@ -338,8 +341,9 @@ def rule_grid(
             # its threshold, so its excess is > 0 (an infinite one counts as 1e300)
             fired = np.flatnonzero(ruled.fired)
             with np.errstate(all="ignore"):
-                excess = np.nan_to_num(beyond(ruled.rule, ruled.indicator[fired]), posinf=1e300)
-            best = int(np.argmax(excess))
+                excess = np.asarray(beyond(ruled.rule, ruled.indicator[fired]), dtype=float)
+            # (never NaN: a NaN indicator fires nowhere)
+            best = int(np.argmax(np.minimum(excess, 1e300, out=excess)))
             if key not in worst or excess[best] > worst[key][0]:
                 worst[key] = (float(excess[best]), start + int(fired[best]))
         values = {}  # the chunk's arrays go before the next chunk is solved, not beside it

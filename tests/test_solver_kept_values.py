@@ -1,5 +1,6 @@
-"""The ionized dopant densities a solved state reads from the level logs its solve kept
-(equilibrium.State.level_logs, evaluated by the neutrality check at the returned eta).
+"""What a solved state keeps from its solve instead of deriving it again: the ionized
+dopant densities from the level logs (equilibrium.State.level_logs, evaluated by the
+neutrality check at the returned eta), eta_p, and the dopant totals' one-pass sum.
 
 They must be the very numbers the state derives afresh (equilibrium.ionized_density at
 the same eta: the same level terms, the same reduction), for one and several species,
@@ -66,6 +67,32 @@ def test_kept_ionized_densities_are_the_fresh_ones_to_the_bit(name, donors, acce
             np.testing.assert_array_equal(kept[species], again[species])
     np.testing.assert_array_equal(state.donors_ionized_total, fresh.donors_ionized_total)
     np.testing.assert_array_equal(state.acceptor_fraction, fresh.acceptor_fraction)
+
+
+@pytest.mark.parametrize(("name", "donors", "acceptors", "narrowing"), CASES)
+def test_kept_eta_p_and_totals_are_the_properties_to_the_bit(name, donors, acceptors, narrowing):
+    """eta_p = -eta_n - E_g/kT (E_g with any narrowing); totals 0 + each species in turn."""
+    state = _solve(name, donors, acceptors, narrowing)
+    fresh = dataclasses.replace(state, level_logs=None)
+    assert "eta_p" in state.__dict__ and "eta_p" not in fresh.__dict__
+    np.testing.assert_array_equal(state.eta_p, -fresh.eta_n - fresh.Eg / fresh.kT)
+    np.testing.assert_array_equal(fresh.eta_p, state.eta_p)
+    for group, total in (
+        (state.donors, state.donors_total),
+        (state.acceptors, state.acceptors_total),
+    ):
+        expected = np.zeros(state.T.shape)
+        for density in group.values():
+            expected = expected + density
+        np.testing.assert_array_equal(total, expected)
+        assert total.shape == state.T.shape
+
+
+def test_a_total_of_negative_zero_is_zero_as_before():
+    """0.0 + (-0.0) is 0.0 (IEEE 754 round-to-nearest): the one-pass total keeps it so."""
+    state = equilibrium.solve(resolve_material("Si"), np.array([300.0]), {"P": np.array([-0.0])})
+    assert np.signbit(state.donors["P"][0])  # (kept as given)
+    assert not np.signbit(state.donors_total[0])
 
 
 def test_a_species_of_two_levels_reads_both_rows():
