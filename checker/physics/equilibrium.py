@@ -91,6 +91,10 @@ class State:
     residual: FloatArray  # |1 - (n + N_A^-)/(p + N_D^+)|
     iterations: int = 0
     electron_band: KaneBand | None = None  # None: parabolic conduction band (closed F_1/2)
+    # ln N^ion of each bound level at eta_n / eta_p, one row per level (donors' levels in
+    # species order, then acceptors'): the solve's neutrality check evaluates them at the
+    # returned eta and keeps them (None: derived afresh)
+    level_logs: FloatArray | None = None
 
     @cached_property
     def kT(self) -> FloatArray:
@@ -143,21 +147,12 @@ class State:
 
     @cached_property
     def donors_ionized(self) -> dict[str, FloatArray]:
-        return {
-            name: ionized_density(
-                self.material.dopant(name), dens, self.eta_n, self.kT, self.donors_total
-            )
-            for name, dens in self.donors.items()
-        }
+        return _ionized_group(self, self.donors, self.eta_n, self.donors_total, 0)
 
     @cached_property
     def acceptors_ionized(self) -> dict[str, FloatArray]:
-        return {
-            name: ionized_density(
-                self.material.dopant(name), dens, self.eta_p, self.kT, self.acceptors_total
-            )
-            for name, dens in self.acceptors.items()
-        }
+        first = sum(len(self.material.dopant(name).bound_levels()) for name in self.donors)
+        return _ionized_group(self, self.acceptors, self.eta_p, self.acceptors_total, first)
 
     @cached_property
     def donors_total(self) -> FloatArray:
@@ -185,6 +180,31 @@ class State:
         return _fraction(self.acceptors_ionized_total, self.acceptors_total)
 
 
+def _ionized_group(
+    state: State,
+    group: Mapping[str, FloatArray],
+    eta_band: FloatArray,
+    total: FloatArray,
+    first: int,
+) -> dict[str, FloatArray]:
+    """Each species' ionized density (:func:`ionized_density`): from the level logs the
+    solve kept (rows ``first`` on, in the group's species order) where it kept them, the
+    same numbers (the same level terms at the same eta, reduced as there), else afresh."""
+    out = {}
+    for name, density in group.items():
+        dopant = state.material.dopant(name)
+        if state.level_logs is None:
+            out[name] = ionized_density(dopant, density, eta_band, state.kT, total)
+            continue
+        count = len(dopant.bound_levels())
+        rows = state.level_logs[first : first + count]
+        first += count
+        shape = np.shape(state.T)
+        parts = [row.reshape(shape) for row in rows]
+        out[name] = np.exp(np.logaddexp.reduce(parts) if count > 1 else parts[0])
+    return out
+
+
 def charge_balance_error(state: State) -> FloatArray:
     """Relative neutrality error |(n + N_A^-) - (p + N_D^+)| / max(n + N_A^-, p + N_D^+).
 
@@ -205,11 +225,12 @@ def charge_balance_error(state: State) -> FloatArray:
             for term in _level_terms(state.material.dopant(name), density, kT, total)
         ]
 
+    eta_p = -state.eta_n - state.Eg / kT  # (afresh too: the state keeps the solve's)
     return _plain_balance_error(  # afresh: not the state's cached band factors
         np.log(state.Nc) + log_electron_factor(state.electron_band, state.eta_n, state.T),
-        np.log(state.Nv) + log_fermi_dirac(0.5, state.eta_p),
+        np.log(state.Nv) + log_fermi_dirac(0.5, eta_p),
         [_log_ionized(term, state.eta_n) for term in terms(state.donors, state.donors_total)],
-        [_log_ionized(term, state.eta_p) for term in terms(state.acceptors, state.acceptors_total)],
+        [_log_ionized(term, eta_p) for term in terms(state.acceptors, state.acceptors_total)],
     )
 
 
@@ -291,12 +312,16 @@ def log_ionized_density(
     return np.logaddexp.reduce(parts) if len(parts) > 1 else parts[0]
 
 
-def _log_ionized(term: LevelTerm, eta_band: FloatArray) -> FloatArray:
-    """ln N^ion of one bound level: ln N + ln(1 - b + b/(1 + g e^(eta_band + E/kT)))."""
+def _log_ionized(
+    term: LevelTerm, eta_band: FloatArray, out: FloatArray | None = None
+) -> FloatArray:
+    """ln N^ion of one bound level: ln N + ln(1 - b + b/(1 + g e^(eta_band + E/kT)))
+    (into ``out`` if given)."""
     ln_n, offset, ln_b, ln_free = term
     bound = softplus(eta_band + offset)
     np.subtract(ln_b, bound, out=bound)
-    return ln_n + log_add(ln_free, bound)
+    logs: FloatArray = np.add(ln_n, log_add(ln_free, bound), out=out)
+    return logs
 
 
 def ionized_density(
@@ -326,10 +351,16 @@ def ionized_density(
 
 
 def _sum(parts: Mapping[str, FloatArray], like: FloatArray) -> FloatArray:
-    total = np.zeros(np.shape(like))
+    """0 + the parts in order, shaped like ``like`` (the first sum 0.0 + part in one pass
+    where the part has that shape: the numbers of zeros + part, -0.0 made 0.0 as there)."""
+    shape = np.shape(like)
+    total: FloatArray | None = None
     for value in parts.values():
-        total = total + value
-    return total
+        if total is None and np.shape(value) == shape:
+            total = np.add(0.0, value)
+        else:
+            total = (np.zeros(shape) if total is None else total) + value
+    return np.zeros(shape) if total is None else total
 
 
 def _fraction(part: FloatArray, whole: FloatArray) -> FloatArray:
@@ -825,7 +856,10 @@ def solve(
     residual = np.empty_like(temps)
     metallic = np.empty(temps.shape, dtype=bool)
     narrowing = np.empty_like(temps)
-    factors = np.empty((2, temps.size))  # ln(n/N_c), ln(p/N_v) at the returned eta
+    factors = np.empty((3, temps.size))  # ln(n/N_c), ln(p/N_v) and eta_p at the returned eta
+    # ln N^ion of each bound level there (State.level_logs)
+    levels = sum(len(species[name].bound_levels()) for name in species)
+    level_logs = np.empty((levels, temps.size))
 
     def block(i: int) -> int:
         part = slice(i, i + size)
@@ -836,7 +870,14 @@ def solve(
             {k: v[part] for k, v in acceptor_flat.items()},
             band_gap_narrowing,
             species,
-            out=(eta[part], residual[part], metallic[part], narrowing[part], factors[:, part]),
+            out=(
+                eta[part],
+                residual[part],
+                metallic[part],
+                narrowing[part],
+                factors[:, part],
+                level_logs[:, part],
+            ),
             kane=kane,
         )
 
@@ -862,10 +903,12 @@ def solve(
         residual=residual.reshape(shape),
         iterations=iterations,
         electron_band=kane,
+        level_logs=level_logs,
     )
     # each block's check evaluated both band factors at the returned eta: kept, not redone
     state.__dict__["log_electron_factor"] = factors[0].reshape(shape)
     state.__dict__["log_hole_factor"] = factors[1].reshape(shape)
+    state.__dict__["eta_p"] = factors[2].reshape(shape)  # (-eta_n - E_g/kT, as the property)
     bad = ~(state.residual <= BALANCE_TOLERANCE)
     if bad.any():
         raise ConvergenceError(
@@ -905,11 +948,12 @@ def _solve_flat(
     acceptors: Mapping[str, FloatArray],
     band_gap_narrowing: bool,
     species: Mapping[str, Dopant],
-    out: tuple[FloatArray, FloatArray, BoolArray, FloatArray, FloatArray],
+    out: tuple[FloatArray, FloatArray, BoolArray, FloatArray, FloatArray, FloatArray],
     kane: KaneBand | None = None,
 ) -> int:
-    """Solve one block; write eta, residual, metallic flag, narrowing and the band factors
-    ln(n/N_c), ln(p/N_v) (rows) into ``out``."""
+    """Solve one block; write eta, residual, metallic flag, narrowing, the band factors
+    ln(n/N_c), ln(p/N_v) and eta_p (rows) and each bound level's ln N^ion (rows) into
+    ``out``."""
     kT = BOLTZMANN * T
     Eg = material.need("band_gap", "the equilibrium solve")(T)
     Nc = material.need("Nc", "the equilibrium solve")(T)
@@ -984,15 +1028,22 @@ def _solve_flat(
     else:
         ln_f_n = log_electron_factor(kane, eta, T)
         ln_f_p = np.asarray(log_fermi_dirac(0.5, eta_p))
+    out_eta, out_residual, out_metallic, out_narrowing, out_factors, out_levels = out
+    ionized = [
+        _log_ionized(term, eta_band, out=row)
+        for (term, eta_band), row in zip(
+            [(term, eta) for term in donor_terms] + [(term, eta_p) for term in acceptor_terms],
+            out_levels,
+        )
+    ]
     balance = _plain_balance_error(
         ln_nc + ln_f_n,
         ln_nv + ln_f_p,
-        [_log_ionized(term, eta) for term in donor_terms],
-        [_log_ionized(term, eta_p) for term in acceptor_terms],
+        ionized[: len(donor_terms)],
+        ionized[len(donor_terms) :],
     )
-    out_eta, out_residual, out_metallic, out_narrowing, out_factors = out
     out_eta[:] = eta
-    out_factors[0], out_factors[1] = ln_f_n, ln_f_p
+    out_factors[0], out_factors[1], out_factors[2] = ln_f_n, ln_f_p, eta_p
     np.maximum(np.abs(np.expm1(final_f)), balance, out=out_residual)
     out_metallic[:] = metallic
     out_narrowing[:] = narrowing

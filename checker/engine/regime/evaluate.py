@@ -106,6 +106,11 @@ class Cells:
     def count(self) -> int:
         return self.owner.size
 
+    @cached_property
+    def every_valid(self) -> bool:
+        """Every cell solved (a sweep's chunk: always)."""
+        return bool(self.valid.all())
+
     def read_values(self) -> Values:
         """The values rules are evaluated on: a sweep chunk's one-value quantities (the
         read-only views of state_values._constant) as one element each, so that parts of
@@ -228,7 +233,9 @@ def rule_cells(rules: Iterable[Rule], cells: Cells) -> Iterator[Ruled]:
                 fired, indicator, implied = rule_mask(
                     rule, x, names, made, read, cells.count, cells.all_indicators
                 )
-                ruled = Ruled(rule, x, names, fired & cells.valid, indicator, implied, by_formula)
+                if not cells.every_valid:
+                    fired = fired & cells.valid
+                ruled = Ruled(rule, x, names, fired, indicator, implied, by_formula)
                 if _replace(ruled, cells.values, replaced):
                     read = cells.read_values()
                 yield ruled
@@ -283,11 +290,12 @@ def assumption_made(
         return _nowhere(count)  # made at no cell
     if one and (not x or everywhere[0] <= where_used[0]):
         # the carrier in use decides nothing but the declaration
+        # (read-only views of one value: rule_mask works on a copy of made; by_formula is
+        # only read)
         k = int(everywhere[0])
         if k != _NO_FORMULA:
-            return np.ones(count, dtype=bool), np.full(count, k)
-        # (rule_mask works on a copy of made; by_formula is only read)
-        made = cells.in_use(names) if x else np.ones(count, dtype=bool)
+            return np.broadcast_to(True, (count,)), np.broadcast_to(np.int64(k), (count,))
+        made = cells.in_use(names) if x else np.broadcast_to(True, (count,))
         return made, np.broadcast_to(np.int64(-1), (count,))
     in_use = cells.in_use(names) if x else np.ones(count, dtype=bool)
     if one:
