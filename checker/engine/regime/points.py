@@ -106,6 +106,8 @@ def one_finding_per_stated_number(findings: list[Finding]) -> list[Finding]:
     def stated(f: Finding) -> set[tuple[str, str | int]]:
         return {(f.file, c.key if c.key else f.line) for c in f.corrections if c.from_author}
 
+    if not any(f.assumption == VALUE_CHECK for f in findings):
+        return _one_verdict_per_correction(findings)  # (the common case: nothing to drop)
     numbers = [stated(f) if f.corrections else set() for f in findings]
     explained: set[tuple[str, str | int]] = set().union(
         *(n for f, n in zip(findings, numbers) if f.assumption != VALUE_CHECK)
@@ -132,7 +134,12 @@ def _one_verdict_per_correction(findings: list[Finding]) -> list[Finding]:
             if c.from_author
         }
 
-    # each finding's corrections read once (most findings have none)
+    # a verdict gives way only to another of its assumption that corrects too: where no
+    # two correcting findings share an assumption (most calculations) none is dropped
+    assumptions = [f.assumption for f in findings if f.corrections]
+    if len(set(assumptions)) == len(assumptions):
+        return list(findings)
+    # each finding's corrections read once
     items = [corrected(f) if f.corrections else set() for f in findings]
     ranks = [SEVERITY_RANK[f.severity] for f in findings]
     worst: dict[tuple[str, str, str | int, float], int] = {}
