@@ -713,10 +713,19 @@ def fill_inputs(
             else np.zeros(0)
         )
 
+    # the keys some calculation gives (points): a column none gives is NaN throughout, not
+    # read calculation by calculation (most stated numbers are absent from most)
+    given_structure = set().union(*(c.structure for c in calculations)) if count is None else None
+    given_stated = set().union(*(c.stated for c in calculations)) if count is None else None
+
     def structure(name: str) -> FloatArray:
+        if given_structure is not None and name not in given_structure:
+            return np.full(size, np.nan)
         return column(lambda c: c.structure.get(name, np.nan))
 
     def stated(name: str) -> FloatArray:
+        if given_stated is not None and name not in given_stated:
+            return np.full(size, np.nan)
         return column(lambda c: c.stated.get(name, np.nan))
 
     for name in ("L", "thickness", "width"):
