@@ -324,8 +324,11 @@ def _solve_group(
     acceptors = {s: np.array([c.acceptors[s] for c in calcs]) for s in calcs[0].acceptors}
     sheet = sheet_values.sheet_inputs(calcs) if sheet_values.is_sheet(calcs[0]) else None
     put, skipped = solve_points(calcs[0], T, donors, acceptors, sheet, calcs, onset=False)
+    # (the index array made once for ~150 quantities; a number or an array of the
+    # group's points is broadcast by the assignment itself)
+    at = np.array(members, dtype=np.intp)
     for name, array in put.items():
-        values[name][members] = np.broadcast_to(array, T.shape)
+        values[name][at] = array
     return skipped
 
 
