@@ -588,6 +588,8 @@ def _band_shape_values(
     for x, eta, dens in (("n", state.eta_n, state.n), ("p", state.eta_p, state.p)):
         out[f"eta_par_{x}"], out[f"dens_par_{x}"] = eta, dens
         out[f"beta_kane_{x}"] = np.zeros_like(state.T)
+        if x == "n" and band is not None:
+            continue  # a Kane band's ratio is the energy window's (below)
         if reads is not None and band is None:
             # a sweep's chunk: each carrier's ratio where a rule reads it (LazyValues; a
             # rule of the minority carrier mostly stops before its indicator)
