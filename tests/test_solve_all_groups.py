@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 import scipy.constants as sc
 
-from checker import load_material
+from checker import MissingParameterError, load_material
 from checker.engine.regime import state_values
 from checker.inputs.calculation_file import parse_calculations
 
@@ -85,3 +85,29 @@ def test_onset_temperature_against_mpmath(index):
     # the bisection in ln T stops at 60 halvings (relative error < 1e-15); the material's
     # fits are evaluated in double precision inside the root
     assert values["T_onset"][index] == pytest.approx(_mp_onset(material, net), rel=1e-9)
+
+
+def test_a_point_whose_onset_cannot_be_found_is_lost_alone(monkeypatch):
+    """Where the onset bisection of a material's points fails for one of them, that
+    calculation is lost as a failed solve is (its error kept, its values unknown) and the
+    others keep theirs, as when each group was solved with its onset."""
+    read = parse_calculations(TEXT, "mixed.yaml")
+    calcs = read.calculations
+    expected, _, _ = state_values.solve_all(calcs)
+    bad_net = float(expected["Nnet"][2])  # a silicon point
+    onset = state_values._onset
+
+    def failing(material, net):
+        if np.any(net == bad_net):
+            raise MissingParameterError(f"material {material.name!r}: no onset here")
+        return onset(material, net)
+
+    monkeypatch.setattr(state_values, "_onset", failing)
+    values, errors, _ = state_values.solve_all(calcs)
+    assert list(errors) == [2] and "no onset here" in errors[2]
+    assert np.isnan(values["eta_n"][2]) and np.isnan(values["T_onset"][2])
+    assert values["regime"][2] == ""
+    for index in range(len(POINTS)):
+        if index != 2:
+            for name in ("eta_n", "T_onset", "mu_n", "regime"):
+                assert _same(values[name][index : index + 1], expected[name][index : index + 1])
