@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING, TypedDict
 
 from ...quantity_registry.summary_fields import FieldValue
 from ...records import Record, field
-from ...vocabulary_words import Severity
+from ...vocabulary_words import SEVERITY_RANK
 from ..findings import Embodied, Finding
 from . import state_values
 from .corrected import CorrectedEntry, corrected_set, quantity_key
@@ -106,13 +106,16 @@ def one_finding_per_stated_number(findings: list[Finding]) -> list[Finding]:
     def stated(f: Finding) -> set[tuple[str, str | int]]:
         return {(f.file, c.key if c.key else f.line) for c in f.corrections if c.from_author}
 
+    if not any(f.assumption == VALUE_CHECK for f in findings):
+        return _one_verdict_per_correction(findings)  # (the common case: nothing to drop)
+    numbers = [stated(f) if f.corrections else set() for f in findings]
     explained: set[tuple[str, str | int]] = set().union(
-        *(stated(f) for f in findings if f.assumption != VALUE_CHECK)
+        *(n for f, n in zip(findings, numbers) if f.assumption != VALUE_CHECK)
     )
     kept = [
         f
-        for f in findings
-        if not (f.assumption == VALUE_CHECK and stated(f) and stated(f) <= explained)
+        for f, n in zip(findings, numbers)
+        if not (f.assumption == VALUE_CHECK and n and n <= explained)
     ]
     return _one_verdict_per_correction(kept)
 
@@ -131,14 +134,20 @@ def _one_verdict_per_correction(findings: list[Finding]) -> list[Finding]:
             if c.from_author
         }
 
+    # a verdict gives way only to another of its assumption that corrects too: where no
+    # two correcting findings share an assumption (most calculations) none is dropped
+    assumptions = [f.assumption for f in findings if f.corrections]
+    if len(set(assumptions)) == len(assumptions):
+        return list(findings)
+    # each finding's corrections read once
+    items = [corrected(f) if f.corrections else set() for f in findings]
+    ranks = [SEVERITY_RANK[f.severity] for f in findings]
     worst: dict[tuple[str, str, str | int, float], int] = {}
-    for f in findings:
-        for item in corrected(f):
-            worst[item] = max(worst.get(item, -1), Severity(f.severity).rank)
+    for own, rank in zip(items, ranks):
+        for item in own:
+            worst[item] = max(worst.get(item, -1), rank)
     return [
         f
-        for f in findings
-        if not (
-            corrected(f) and all(worst[item] > Severity(f.severity).rank for item in corrected(f))
-        )
+        for f, own, rank in zip(findings, items, ranks)
+        if not (own and all(worst[item] > rank for item in own))
     ]

@@ -263,6 +263,15 @@ def solve_all(
     groups: dict[tuple[object, ...], list[int]] = {}
     for index, calc in enumerate(calculations):
         groups.setdefault(_group_key(calc), []).append(index)
+    # the bulk points solved, by material: their onset temperatures are found after the
+    # groups, in one bisection per material (elementwise, so the same numbers)
+    bulk: dict[int, tuple[Material, list[int]]] = {}
+
+    def solved(members: list[int]) -> None:
+        first = calculations[members[0]]
+        if not sheet_values.is_sheet(first):
+            bulk.setdefault(id(first.material), (first.material, []))[1].extend(members)
+
     for members in groups.values():
         try:
             skipped = _solve_group(calculations, members, values)
@@ -273,13 +282,37 @@ def solve_all(
                 except RegimecheckError as exc:
                     errors[index] = str(exc)
                     continue
+                solved([index])
                 if skipped:
                     notes[index] = skipped
             continue
+        solved(members)
         if skipped:
             notes.update({index: skipped for index in members})
+    for material, members in bulk.values():
+        _place_onsets(material, members, values, errors)
     fill_inputs(calculations, values)
     return values, errors, notes
+
+
+def _place_onsets(
+    material: Material, members: list[int], values: Values, errors: dict[int, str]
+) -> None:
+    """T_onset at the solved bulk points ``members`` of one material; where it cannot be
+    found the point is lost as a failed solve is (its values unknown, the error kept)."""
+    try:
+        values["T_onset"][members] = _onset(material, values["Nnet"][members])
+        return
+    except RegimecheckError:
+        pass
+    unknown = _unknown(1)
+    for index in members:
+        try:
+            values["T_onset"][index] = _onset(material, values["Nnet"][[index]])[0]
+        except RegimecheckError as exc:
+            errors[index] = str(exc)
+            for name, array in values.items():
+                array[index] = unknown[name][0]
 
 
 def _solve_group(
@@ -290,9 +323,12 @@ def _solve_group(
     donors = {s: np.array([c.donors[s] for c in calcs]) for s in calcs[0].donors}
     acceptors = {s: np.array([c.acceptors[s] for c in calcs]) for s in calcs[0].acceptors}
     sheet = sheet_values.sheet_inputs(calcs) if sheet_values.is_sheet(calcs[0]) else None
-    put, skipped = solve_points(calcs[0], T, donors, acceptors, sheet, calcs)
+    put, skipped = solve_points(calcs[0], T, donors, acceptors, sheet, calcs, onset=False)
+    # (the index array made once for ~150 quantities; a number or an array of the
+    # group's points is broadcast by the assignment itself)
+    at = np.array(members, dtype=np.intp)
     for name, array in put.items():
-        values[name][members] = np.broadcast_to(array, T.shape)
+        values[name][at] = array
     return skipped
 
 
@@ -313,6 +349,7 @@ def solve_points(
     reads: Collection[str] | None = None,
     reference: carriers.ReferenceSolves | None = None,
     rows: tuple[carriers.Rows, carriers.Rows] | None = None,
+    onset: bool = True,
 ) -> tuple[dict[str, Any], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
@@ -321,7 +358,8 @@ def solve_points(
     calculation of each point (default: ``first`` for all); what only some calculations
     read (bulk modes, the solve with narrowing) is computed at their points alone;
     ``reads``, ``reference``, ``rows``: see :func:`solve_sweep`; with ``reads`` (a sweep's
-    chunk) some quantities are given as a :class:`Deferred`, computed where first read."""
+    chunk) some quantities are given as a :class:`Deferred`, computed where first read.
+    ``onset`` False: T_onset is left to the caller (solve_all finds it per material)."""
 
     def where(reads: Callable[[Calculation], bool]) -> BoolArray:
         if calcs is None:
@@ -421,7 +459,7 @@ def solve_points(
         # which models set the edge a point leaves (for the model-validity messages)
         put["T_models"] = _models_beyond(T, T_lo, T_hi, binding)
         put["N_models"] = np.full(T.shape, ", ".join(binding["N_high"]), dtype=object)
-    if reads is None or "T_onset" in reads:
+    if onset and (reads is None or "T_onset" in reads):
         put["T_onset"] = _onset(material, net)
     for x, eta, dens, nband, own, other, ionized, fraction, species in (
         (
@@ -550,6 +588,8 @@ def _band_shape_values(
     for x, eta, dens in (("n", state.eta_n, state.n), ("p", state.eta_p, state.p)):
         out[f"eta_par_{x}"], out[f"dens_par_{x}"] = eta, dens
         out[f"beta_kane_{x}"] = np.zeros_like(state.T)
+        if x == "n" and band is not None:
+            continue  # a Kane band's ratio is the energy window's (below)
         if reads is not None and band is None:
             # a sweep's chunk: each carrier's ratio where a rule reads it (LazyValues; a
             # rule of the minority carrier mostly stops before its indicator)
@@ -678,10 +718,19 @@ def fill_inputs(
             else np.zeros(0)
         )
 
+    # the keys some calculation gives (points): a column none gives is NaN throughout, not
+    # read calculation by calculation (most stated numbers are absent from most)
+    given_structure = set().union(*(c.structure for c in calculations)) if count is None else None
+    given_stated = set().union(*(c.stated for c in calculations)) if count is None else None
+
     def structure(name: str) -> FloatArray:
+        if given_structure is not None and name not in given_structure:
+            return np.full(size, np.nan)
         return column(lambda c: c.structure.get(name, np.nan))
 
     def stated(name: str) -> FloatArray:
+        if given_stated is not None and name not in given_stated:
+            return np.full(size, np.nan)
         return column(lambda c: c.stated.get(name, np.nan))
 
     for name in ("L", "thickness", "width"):
