@@ -162,6 +162,7 @@ def _settings(args):
 def _cmd_check(args) -> int:
     if args.own_process:
         _quiet_collector()  # before the engine's imports, which make many objects
+        _keep_freed_memory()  # before a sweep's solving threads start
     from .engine.run import check_paths
 
     if args.own_process:
@@ -174,6 +175,31 @@ def _cmd_check(args) -> int:
             args.paths, config=config, skip_unrelated=args.skip_unrelated, progress=progress
         )
     return _report(result, args, config)
+
+
+# glibc's mallopt parameters (malloc.h)
+_M_TRIM_THRESHOLD, _M_MMAP_THRESHOLD, _M_ARENA_MAX = -1, -3, -8
+
+
+def _keep_freed_memory() -> None:
+    """Set the C allocator up for chunk after chunk of the same arrays, once per process.
+    glibc would give each solving thread an arena of its own, hand every array above
+    128 kB (a chunk's are ~1 MB) to mmap and give freed memory back, so each chunk
+    faulted its pages in afresh, two threads at once (a 1000 x 1000 sweep: ~40 ms, most
+    of it in the first chunk).  Here: one arena, arrays up to 32 MB from the heap, freed
+    memory kept up to 256 MB; the 2000 x 2000 sweep then peaks lower (bench/bench_sweep.py:
+    175 -> 152 MB).  A process-wide setting: made by the command in a process of its own
+    only, never for a program that calls the engine.  Another C library (no mallopt) is
+    left as it is."""
+    import ctypes  # (numpy has imported it)
+
+    try:
+        mallopt = ctypes.CDLL(None).mallopt
+    except (OSError, AttributeError):
+        return
+    mallopt(_M_ARENA_MAX, 1)
+    mallopt(_M_MMAP_THRESHOLD, 32 << 20)
+    mallopt(_M_TRIM_THRESHOLD, 256 << 20)
 
 
 def _quiet_collector() -> None:

@@ -227,6 +227,11 @@ class ReferenceSolves:
     over temperature repeats every doping in every chunk).  The solve is pointwise, so a
     kept fraction is what solving the point again would give."""
 
+    # bounds on what is kept (a 4e6-point donor x acceptor grid repeats no row, and would
+    # otherwise keep ~0.7 GB): sets of a chunk's rows, rows per key (~170 B each)
+    _KEPT_SETS = 4
+    _KEPT_ROWS = 1 << 18
+
     def __init__(self) -> None:
         # (T0, material, species, narrowing) -> doping row -> (donor, acceptor fraction)
         self._rows: dict[tuple[object, ...], dict[tuple[float, ...], tuple[float, float]]] = {}
@@ -253,6 +258,8 @@ class ReferenceSolves:
         rows_key = (*key, first.size, b"".join(column.tobytes() for column in picked))
         both = self._sets.get(rows_key)
         if both is None:
+            if len(self._sets) >= self._KEPT_SETS:  # chunks of new rows: keep the latest
+                del self._sets[next(iter(self._sets))]
             both = self._sets[rows_key] = self._fractions(
                 state, T0, key, donors, acceptors, first, picked
             )
@@ -278,6 +285,10 @@ class ReferenceSolves:
         rows = list(zip(*(column.tolist() for column in picked))) or [()] * first.size
         known = self._rows.setdefault(key, {})
         missing = [k for k, row in enumerate(rows) if row not in known]
+        if len(known) + len(missing) > self._KEPT_ROWS:
+            # a grid of ever new rows (donors x acceptors) reuses none: start afresh
+            known.clear()
+            missing = list(range(len(rows)))
         if missing:
             at = first[missing]
             solved = solve(

@@ -213,6 +213,12 @@ class LazyValues(dict[str, npt.NDArray[Any]]):
                 self.place(key, array)
             else:
                 self[key] = np.asarray(array)
+        # a name the computation did not give (a quantity it writes only in some chunks)
+        # is unknown, as an undeferred one would be, not computed again on its next read
+        for key in [key for key, later in self._pending.items() if later is deferred]:
+            del self._pending[key]
+            if key not in self:
+                self[key] = _constant(self.count, np.nan)
         return dict.__getitem__(self, name)
 
 
@@ -395,7 +401,6 @@ def solve_points(
             # statistics checks still run; mobility-based ones see NaN and stay silent
             missing: dict[str, Any] = {key: np.full_like(T, np.nan) for key in _FLOW_NAN}
             missing["cond_n"] = missing["cond_p"] = np.ones_like(T)
-            missing["kT_over_q"] = state.kT / ELEMENTARY_CHARGE
             return missing, f"transport checks skipped: {exc}"
 
     # a sweep's chunk whose rules may read no mobility (the gates decide, chunk by chunk):
@@ -436,7 +441,8 @@ def solve_points(
     put: dict[str, Any] = {
         "T": T,
         "kT": state.kT,
-        "kT_q": flow["kT_over_q"],
+        # (carrier_transport's kT_over_q, the same arithmetic: not deferred with it)
+        "kT_q": state.kT / ELEMENTARY_CHARGE,
         "Eg": state.Eg,
         "ni": ni,
         "nie": state.ni,
@@ -828,23 +834,20 @@ _VELOCITY = frozenset(
 _LATTICE = frozenset(f"{stem}_{x}" for stem in ("mu0", "vsat", "beta") for x in Carrier)
 # carrier_transport's keys -> the names solve_points puts them under
 _FLOW = {
-    "kT_over_q": "kT_q",
-    **{
-        f"{key}_{x}": f"{name}_{x}"
-        for key, name in (
-            ("mu", "mu"),
-            ("mu0", "mu0"),
-            ("cond", "cond"),
-            ("vsat", "vsat"),
-            ("beta", "beta"),
-            ("v", "vth"),
-            ("mfp", "lambda_model"),
-        )
-        for x in Carrier
-    },
+    f"{key}_{x}": f"{name}_{x}"
+    for key, name in (
+        ("mu", "mu"),
+        ("mu0", "mu0"),
+        ("cond", "cond"),
+        ("vsat", "vsat"),
+        ("beta", "beta"),
+        ("v", "vth"),
+        ("mfp", "lambda_model"),
+    )
+    for x in Carrier
 }
 # what a material that lacks a carrier's transport gives in its place (with cond_x 1)
-_FLOW_NAN = tuple(key for key in _FLOW if not key.startswith(("kT", "cond")))
+_FLOW_NAN = tuple(key for key in _FLOW if not key.startswith("cond"))
 
 
 def _flow_values(flow: Mapping[str, ArrayIn]) -> dict[str, ArrayIn]:

@@ -12,7 +12,6 @@ numbers and names leave here; :mod:`checker.report.sweep_text` writes them as te
 from __future__ import annotations
 
 import copy
-import functools
 from collections.abc import Callable, Generator, Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, TypeAlias
@@ -275,30 +274,6 @@ def grid_rules(
     return sweep_rules(rules, Cells.grid(calc, values, 1, embodied))
 
 
-# glibc's mallopt parameters (malloc.h)
-_M_TRIM_THRESHOLD, _M_MMAP_THRESHOLD, _M_ARENA_MAX = -1, -3, -8
-
-
-@functools.cache
-def _keep_freed_memory() -> None:
-    """Set the C allocator up for chunk after chunk of the same arrays, once per process.
-    glibc would give each solving thread an arena of its own, hand every array above
-    128 kB (a chunk's are ~1 MB) to mmap and give freed memory back, so each chunk
-    faulted its pages in afresh, two threads at once (a 1000 x 1000 sweep: ~40 ms, most
-    of it in the first chunk).  Here: one arena, arrays up to 32 MB from the heap, freed
-    memory kept up to 256 MB; the 2000 x 2000 sweep then peaks lower (bench/bench_sweep.py:
-    175 -> 152 MB).  Another C library (no mallopt) is left as it is."""
-    import ctypes  # (numpy has imported it)
-
-    try:
-        mallopt = ctypes.CDLL(None).mallopt
-    except (OSError, AttributeError):
-        return
-    mallopt(_M_ARENA_MAX, 1)
-    mallopt(_M_MMAP_THRESHOLD, 32 << 20)
-    mallopt(_M_TRIM_THRESHOLD, 256 << 20)
-
-
 def rule_grid(
     calc: Calculation,
     rules: Sequence[Rule],
@@ -311,7 +286,6 @@ def rule_grid(
     every rule over the grid in chunks of cells (``reads``: grid_rules; None: every
     quantity)."""
     T, donors, acceptors, shape = grid_points
-    _keep_freed_memory()
     size = T.size
     masks: dict[tuple[str, str], BoolArray] = {}
     worst: dict[tuple[str, str], tuple[float, int]] = {}
