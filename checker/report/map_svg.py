@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import html
 import math
+import re
 import unicodedata
 from dataclasses import dataclass
 from typing import cast
@@ -91,6 +92,19 @@ def text_box(text: str, size: float) -> tuple[float, float]:
 def _n(value: float) -> str:
     text = f"{value:.2f}".rstrip("0").rstrip(".")
     return "0" if text in ("-0", "") else text
+
+
+# _n() applied to every number of a path written with two decimals, in three passes over
+# the whole text: "12.00" -> "12", "12.50" -> "12.5", then "-0" -> "0"
+_WHOLE = re.compile(r"\.00(?![0-9])")
+_TENTHS = re.compile(r"(\.[0-9])0(?![0-9])")
+_MINUS_ZERO = re.compile(r"(?<![0-9.])-0(?![0-9.])")
+
+
+def _trimmed(path: str) -> str:
+    """``path`` (numbers written '{:.2f}', letters and spaces between) with each number
+    as _n() writes it."""
+    return _MINUS_ZERO.sub("0", _TENTHS.sub(r"\1", _WHOLE.sub("", path)))
 
 
 def _e(text: str) -> str:
@@ -227,11 +241,13 @@ def _regions(grid, frame: _Frame) -> str:
         for run in runs:
             open_runs.setdefault(run, j)
     paths = []
+    xe, ye = x_edges.tolist(), y_edges.tolist()
     for code in sorted(rects):
-        d = "".join(
-            f"M{_n(x_edges[i0])} {_n(y_edges[j1])}H{_n(x_edges[i1])}V{_n(y_edges[j0])}"
-            f"H{_n(x_edges[i0])}Z"
-            for i0, i1, j0, j1 in sorted(rects[code])
+        d = _trimmed(
+            "".join(
+                f"M{xe[i0]:.2f} {ye[j1]:.2f}H{xe[i1]:.2f}V{ye[j0]:.2f}H{xe[i0]:.2f}Z"
+                for i0, i1, j0, j1 in sorted(rects[code])
+            )
         )
         name = REGIMES[code]
         paths.append(
@@ -242,7 +258,8 @@ def _regions(grid, frame: _Frame) -> str:
 
 
 def _polyline(points: np.ndarray) -> str:
-    return "M" + "L".join(f"{_n(px)} {_n(py)}" for px, py in points)
+    flat = np.asarray(points, dtype=float).ravel().tolist()
+    return _trimmed("M" + "L".join(["{:.2f} {:.2f}"] * (len(flat) // 2)).format(*flat))
 
 
 def level_lines(values: np.ndarray, level: float, xs: np.ndarray, ys: np.ndarray) -> list:
