@@ -10,7 +10,7 @@ from ..records import Record, field
 
 if TYPE_CHECKING:
     from ..inputs.calculation_file import Calculation
-    from ..inputs.config import Config
+    from ..inputs.config import Config, PathWaiver
     from .findings import Finding
     from .regime.rulebook import Rule
 
@@ -37,7 +37,7 @@ def apply_waivers(
         used: set[int] = set()
         # the waivers of a file, found once per file (each look-up resolves its path:
         # a file of 1,000 calculations asked 1,000 times)
-        by_file: dict[str, list] = {}
+        by_file: dict[str, list[PathWaiver]] = {}
         for i, calc in enumerate(calculations):
             waivers = by_file.get(calc.source)
             if waivers is None:
