@@ -215,6 +215,17 @@ def render_console(result, console=None, stream=None) -> None:
 _MARGINS = {indent: " " * indent for indent in (0, 2, 4, 8, 26)}
 
 
+class _Tags(dict):
+    """A finding's first word ('WARNING ', 'WAIVED  '), padded to 8, made once per tag."""
+
+    def __missing__(self, tag: str) -> str:
+        self[tag] = text = f"{tag.upper():8s}"
+        return text
+
+
+_TAGS = _Tags()
+
+
 def _title(calc, width: int) -> str:
     """The rule of a calculation's section, its name in it (one line, escaped)."""
     title = f"── {' '.join(visible(calc.name).split())} "
@@ -326,11 +337,13 @@ def _plain_calculation(report, width: int) -> str | None:
             keep("  no assumption leaves its regime")
         for f in report.findings:
             waived = f.waived
-            keep(
-                f"{'WAIVED' if waived else f.severity.upper():8s}{f.rule}  {f.title}  "
-                f"at {finding_where(f)}"
+            where = (
+                f"{f.file}:{f.line}"  # finding_where(f) where it has no column or other line
+                if f.line and f.column is None and not f.also_at
+                else finding_where(f)
             )
-            add(finding_message(f), 8)
+            keep(f"{_TAGS['waived' if waived else f.severity]}{f.rule}  {f.title}  at {where}")
+            add(f.message if f.sweep is None else finding_message(f), 8)
             indicator = f.indicator_text()
             if indicator:
                 line = f"regime indicator: {indicator}"
