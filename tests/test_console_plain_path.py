@@ -113,3 +113,28 @@ class _Run:
 
     def counts(self):
         return {"error": 0, "warning": 0, "info": 0, "waived": 0}
+
+
+SHARED_FORMULAS = """name: contact {n}
+material: Si
+temperature: {T} K
+doping:
+  donors: {{P: {doping}e17 cm-3}}
+formulas:
+  - n = N_D
+  - D_n = mu_n*k*T/q
+  - E_F - E_c = k*T*ln(N_D/N_c)
+  - sigma = q*n*mu_n
+"""
+
+
+def test_formulas_stated_by_many_calculations_read_as_each_alone(tmp_path):
+    # the lines under a formula of one match are wrapped once per report and reused
+    docs = [SHARED_FORMULAS.format(n=n, T=250 + 40 * n, doping=n + 1) for n in range(4)]
+    path = tmp_path / "shared.yaml"
+    path.write_text("---\n".join(docs), encoding="utf-8")
+    result = check_paths([str(path)])
+    assert len({id(r.match) for report in result.reports for r in report.formulas}) < 16
+    stream = io.StringIO()
+    render_console(result, stream=stream)
+    assert stream.getvalue().startswith("".join(_piecewise(r) for r in result.reports))

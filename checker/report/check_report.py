@@ -195,8 +195,9 @@ def render_console(result, console=None, stream=None) -> None:
         Text, width = _EscapedText, max(console.width, 60)
         emit = lambda text: console.print(text, end="", highlight=False)
 
+    kinds: dict = {}
     for report in result.reports:
-        plain = _plain_calculation(report, width) if console is None else None
+        plain = _plain_calculation(report, width, kinds) if console is None else None
         if plain is not None:
             stream.write(plain)
             continue
@@ -295,12 +296,15 @@ class _NotPrintable(Exception):
     """A piece of a calculation's text holds a character :func:`_shown` would escape."""
 
 
-def _plain_calculation(report, width: int) -> str | None:
+def _plain_calculation(report, width: int, kinds: dict | None = None) -> str | None:
     """:func:`_calculation` as plain text, the usual way round: each line written whole,
     one printability check for the section instead of one per piece.  None where some
     piece is not printable (a tab, a control or format character, a line separator in
     user text): there :func:`_calculation` escapes piece by piece.  Where every piece
-    is printable the two write the same lines (tests/test_console_many.py)."""
+    is printable the two write the same lines (tests/test_console_many.py).  ``kinds``:
+    the lines under a formula of each match already written in this report (the
+    reports' formula matches stay alive while it is written, so their ids hold)."""
+    kinds = {} if kinds is None else kinds
     calc = report.calc
     lines = [_title(calc, width)]
     keep = lines.append
@@ -331,8 +335,19 @@ def _plain_calculation(report, width: int) -> str | None:
             table, after = _state_table(report.state), len(lines)
         for r in report.formulas:
             keep(f"  formula (line {r.line})".ljust(26) + r.text)
-            for line in formula_lines(r):
-                add(line, 26)
+            # the first line is the same for every formula of one match (the many
+            # calculations of a file state the same few formulas): wrapped once
+            key = (id(r.match), r.problem)
+            first = kinds.get(key)
+            if first is None:
+                start = len(lines)
+                add(formula_what(r), 26)
+                first = kinds[key] = lines[start:]
+            else:
+                lines += first
+            here = formula_here(r)
+            if here is not None:
+                add(here, 26)
         if not report.findings:
             keep("  no assumption leaves its regime")
         for f in report.findings:
@@ -492,8 +507,15 @@ def render_compact(result, exit_code: int | None = None) -> str:
 
 def formula_lines(r) -> list:
     """What the console says under a stated formula."""
+    here = formula_here(r)
+    return [formula_what(r)] if here is None else [formula_what(r), here]
+
+
+def formula_what(r) -> str:
+    """The first line under a stated formula: its dimensions' problem, or what it is
+    (read from ``r.problem`` and ``r.match`` alone)."""
     if r.problem:
-        return [f"dimensions differ: {r.problem}"]
+        return f"dimensions differ: {r.problem}"
     match = r.match
     if match.status == "unrecognised":
         what = "matches no exact relation in any named limit"
@@ -503,11 +525,18 @@ def formula_lines(r) -> list:
         what = f"embodies {'; '.join(match.labels)} [{', '.join(match.relations)}]"
     if match.proof == "numeric":
         what += " (identity shown at random points; sympy did not close it)"
-    lines = [what]
+    return what
+
+
+def formula_here(r) -> str | None:
+    """The formula's value here beside the exact one, or None (a dimensions' problem,
+    or no error to give)."""
+    if r.problem:
+        return None
     error = r.error_text()
-    if error != "n/a":
-        lines.append(f"here {r.show(r.value)}, exact {r.show(r.exact)} ({error})")
-    return lines
+    if error == "n/a":
+        return None
+    return f"here {r.show(r.value)}, exact {r.show(r.exact)} ({error})"
 
 
 def sweep_json(report) -> dict | None:
