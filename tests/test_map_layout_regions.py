@@ -108,3 +108,36 @@ def test_label_boxes_and_shares_are_those_of_one_candidate_at_a_time():
                 _share(cells, columns, rows, b) for b in (taken[0], avoid[0], bounds)
             ]
     assert checked > 60
+
+
+def _row_by_row_rectangles(codes):
+    """Rectangles of equal cells the plain way: each row's runs, a run kept open while
+    the next row has the same run (same columns and code), closed where it has not."""
+    rects: dict = {}
+    open_runs: dict = {}
+    for j in range(codes.shape[0] + 1):
+        runs = set()
+        if j < codes.shape[0]:
+            row = codes[j]
+            cuts = [0, *(np.flatnonzero(np.diff(row)) + 1).tolist(), row.size]
+            runs = {(a, b, int(row[a])) for a, b in zip(cuts[:-1], cuts[1:])}
+        for run in set(open_runs) - runs:
+            rects.setdefault(run[2], []).append((run[0], run[1], open_runs.pop(run), j))
+        for run in runs:
+            open_runs.setdefault(run, j)
+    return {code: sorted(rects[code]) for code in sorted(rects)}
+
+
+@pytest.mark.parametrize("codes", list(_grids()))
+def test_region_rectangles_are_those_merged_row_by_row(codes):
+    from checker.report.map_svg import _rectangles
+
+    found = _rectangles(codes)
+    assert found == _row_by_row_rectangles(codes)
+    # every cell in exactly one rectangle of its own code
+    covered = np.full(codes.shape, -1)
+    for code, boxes in found.items():
+        for i0, i1, j0, j1 in boxes:
+            assert (covered[j0:j1, i0:i1] == -1).all()
+            covered[j0:j1, i0:i1] = code
+    assert (covered == codes).all()
