@@ -1,6 +1,7 @@
-"""Numbers in the maps' SVG paths: a whole path is written with two decimals and trimmed
-in three passes (map_svg._trimmed); each number must read as map_svg._n writes one
-number alone: no trailing zeros, no lone point, no '-0'."""
+"""Boundary lines and numbers in the maps' SVG paths.  A whole path is written with
+two decimals and trimmed in three passes (map_svg._trimmed); each number must read as
+map_svg._n writes one number alone: no trailing zeros, no lone point, no '-0'.  A value
+that is not finite cuts a boundary line (contourpy masks it)."""
 
 from __future__ import annotations
 
@@ -33,3 +34,23 @@ def test_n_by_hand():
         "3.14",
         "-7",
     ]
+
+
+def test_a_value_that_is_not_finite_breaks_a_boundary_line():
+    from checker.report.map_svg import level_lines
+
+    # values = x on a 5 x 5 grid: the level 1.5 is the straight line x = 1.5, y 0..4
+    x = np.arange(5.0)
+    y = np.arange(5.0)
+    values = np.tile(x, (5, 1))
+    (whole,) = level_lines(values, 1.5, x, y)
+    assert sorted(whole.tolist()) == [[1.5, k] for k in range(5)]
+    for bad in (np.nan, np.inf):
+        broken = values.copy()
+        broken[2, 1] = bad  # masks the cells around (1, 2): the line is cut between them
+        pieces = level_lines(broken, 1.5, x, y)
+        assert sorted(sorted(piece[:, 1].tolist()) for piece in pieces) == [
+            [0.0, 1.0, 1.5],
+            [2.5, 3.0, 4.0],
+        ]
+        assert all((piece[:, 0] == 1.5).all() for piece in pieces)

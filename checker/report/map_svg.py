@@ -283,11 +283,13 @@ def _polyline(points: np.ndarray) -> str:
 def level_lines(values: np.ndarray, level: float, xs: np.ndarray, ys: np.ndarray) -> list:
     """Polylines ((x, y) rows) along ``values == level`` (shape (len(ys), len(xs))),
     traced by contourpy (matplotlib's own contouring, installed with it), crossings
-    interpolated linearly in the coordinates given; a non-finite value breaks the line."""
+    interpolated linearly in the coordinates given; a non-finite value breaks the line
+    (contourpy masks every NaN and inf of ``values`` itself)."""
     import contourpy
 
-    masked = np.ma.masked_invalid(np.asarray(values, dtype=float))
-    generator = contourpy.contour_generator(xs, ys, masked, line_type=contourpy.LineType.Separate)
+    generator = contourpy.contour_generator(
+        xs, ys, np.asarray(values, dtype=float), line_type=contourpy.LineType.Separate
+    )
     return cast(list, generator.lines(level))  # Separate: one (n, 2) array per line
 
 
