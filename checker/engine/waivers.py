@@ -10,7 +10,7 @@ from ..records import Record, field
 
 if TYPE_CHECKING:
     from ..inputs.calculation_file import Calculation
-    from ..inputs.config import Config
+    from ..inputs.config import Config, PathWaiver
     from .findings import Finding
     from .regime.rulebook import Rule
 
@@ -35,8 +35,14 @@ def apply_waivers(
     known = [rule.id for rule in rules]
     if config is not None:
         used: set[int] = set()
+        # the waivers of a file, found once per file (each look-up resolves its path:
+        # a file of 1,000 calculations asked 1,000 times)
+        by_file: dict[str, list[PathWaiver]] = {}
         for i, calc in enumerate(calculations):
-            for waiver in config.waivers_for(calc.source):
+            waivers = by_file.get(calc.source)
+            if waivers is None:
+                waivers = by_file[calc.source] = config.waivers_for(calc.source)
+            for waiver in waivers:
                 for finding in findings[i]:
                     if finding.rule == waiver.rule and not finding.waived:
                         finding.waived = f"{waiver.reason} (configuration, {waiver.pattern})"

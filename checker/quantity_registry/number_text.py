@@ -11,15 +11,26 @@ import math
 from .display_units import DISPLAY_UNITS
 
 
+def _template(unit: str, digits: int) -> str:
+    """The format of a value in ``unit`` with ``digits`` significant digits."""
+    if unit == "%":
+        return f"{{:.{max(digits - 1, 1)}g}} %"
+    return f"{{:.{digits}g}}" if unit == "1" else f"{{:.{digits}g}} {unit}"
+
+
+# unit -> (factor from SI, format) at the default four digits: a report writes some
+# twenty numbers a calculation, so the format is not rebuilt for each
+_FOUR_DIGITS = {unit: (factor, _template(unit, 4)) for unit, factor in DISPLAY_UNITS.items()}
+
+
 def display(value: float | None, unit: str, digits: int = 4) -> str:
     """An SI value in a display unit, e.g. display(1e23, 'cm^-3') -> '1e+17 cm^-3'."""
     if value is None or not math.isfinite(value):
         return "n/a" if value is None or math.isnan(value) else ("inf" if value > 0 else "-inf")
-    shown = value * DISPLAY_UNITS[unit]
-    if unit == "%":
-        return f"{shown:.{max(digits - 1, 1)}g} %"
-    text = f"{shown:.{digits}g}"
-    return text if unit == "1" else f"{text} {unit}"
+    if digits == 4:
+        factor, template = _FOUR_DIGITS[unit]
+        return template.format(value * factor)
+    return _template(unit, digits).format(value * DISPLAY_UNITS[unit])
 
 
 def error_text(stated: float, corrected: float, unit: str) -> str:

@@ -6,6 +6,8 @@ the JSON are in the unit named beside them (trade units, not SI).
 
 from __future__ import annotations
 
+import re
+
 from ..quantity_registry.display_units import DISPLAY_UNITS
 from ..quantity_registry.number_text import display
 from ..quantity_registry.summary_fields import CHECK_ROWS, shown_rows
@@ -193,65 +195,14 @@ def render_console(result, console=None, stream=None) -> None:
         Text, width = _EscapedText, max(console.width, 60)
         emit = lambda text: console.print(text, end="", highlight=False)
 
-    margins = {indent: " " * indent for indent in (0, 2, 4, 8, 26)}
-
-    def add(text, line, style="", indent=8):
-        margin = margins[indent]
-        if len(line) <= width - indent and line[:1] != " " and line[-1:] != " ":
-            if line.isprintable():  # wrapped() would keep it whole
-                text.append_safe(margin + line + "\n", style=style)
-                return
-        for part in wrapped(_shown(line), width - indent):
-            text.append_safe(margin + part + "\n", style=style)
-
+    kinds: dict = {}
     for report in result.reports:
-        calc = report.calc
-        out = Text()
-        title = f"── {' '.join(visible(calc.name).split())} "
-        out.append(title + "─" * max(width - len(title), 3) + "\n", style="bold")
-        add(
-            out,
-            f"{_where(calc.source, calc.line)} · {calc.material.name} · {point_text(calc)}",
-            indent=0,
-        )
-        if report.error:
-            add(out, f"not checked: {report.error}", "bold red", indent=2)
-            emit(out)
+        plain = _plain_calculation(report, width, kinds) if console is None else None
+        if plain is not None:
+            stream.write(plain)
             continue
-        if report.sweep:
-            add(out, f"sweep of {report.sweep['points']} grid points", indent=2)
-        else:
-            out.append_rows(shown_rows(CHECK_ROWS, report.state))
-        for r in report.formulas:
-            out.append(f"  formula (line {r.line})".ljust(26), style="dim")
-            out.append(f"{r.text}\n", style="bold")
-            for line in formula_lines(r):
-                add(out, line, indent=26)
-        if not report.findings:
-            out.append_safe("  no assumption leaves its regime\n", style="green")
-        for f in report.findings:
-            tag = "waived" if f.waived else f.severity
-            style = "dim" if f.waived else STYLE[f.severity]
-            out.append_pair(f"{tag.upper():8s}", f"{f.rule}  {f.title}", style, "bold")
-            out.append(f"  at {finding_where(f)}\n", style="dim")
-            add(out, finding_message(f))
-            indicator = f.indicator_text()
-            if indicator:
-                add(out, f"regime indicator: {indicator}", "dim")
-            for c in f.corrections:
-                add(out, correction_text(c))
-            if f.waived:
-                add(out, f"waived: {f.waived}", "dim")
-        corrected = corrected_lines(report)
-        if corrected:
-            add(out, "corrected calculation (each stated number once):", "bold", indent=2)
-            for line in corrected:
-                add(out, line, indent=4)
-        unchecked = unchecked_text(report)
-        if unchecked:
-            add(out, unchecked, "yellow", indent=2)
-        for note in report.notes:
-            add(out, f"note: {note}", "yellow", indent=2)
+        out = Text()
+        _calculation(out, report, width)
         emit(out)
     tail = Text()
     for note in result.notes:
@@ -260,6 +211,244 @@ def render_console(result, console=None, stream=None) -> None:
         tail.append(f"input error: {message}\n", style="bold red")
     tail.append(f"\n{summary_line(result)}\n{DISCLAIMER}\n")
     emit(tail)
+
+
+_MARGINS = {indent: " " * indent for indent in (0, 2, 4, 8, 26)}
+
+
+class _Tags(dict):
+    """A finding's first word ('WARNING ', 'WAIVED  '), padded to 8, made once per tag."""
+
+    def __missing__(self, tag: str) -> str:
+        self[tag] = text = f"{tag.upper():8s}"
+        return text
+
+
+_TAGS = _Tags()
+
+
+def _title(calc, width: int) -> str:
+    """The rule of a calculation's section, its name in it (one line, escaped)."""
+    title = f"── {' '.join(visible(calc.name).split())} "
+    return title + "─" * max(width - len(title), 3)
+
+
+def _calculation(out, report, width: int) -> None:
+    """One calculation's section of the console report, into ``out`` (a Text): every
+    piece of user text escaped where it needs it, each line checked on its own."""
+
+    def add(text, line, style="", indent=8):
+        margin = _MARGINS[indent]
+        if len(line) <= width - indent and line[:1] != " " and line[-1:] != " ":
+            if line.isprintable():  # wrapped() would keep it whole
+                text.append_safe(margin + line + "\n", style=style)
+                return
+        for part in wrapped(_shown(line), width - indent):
+            text.append_safe(margin + part + "\n", style=style)
+
+    calc = report.calc
+    out.append(_title(calc, width) + "\n", style="bold")
+    add(
+        out,
+        f"{_where(calc.source, calc.line)} · {calc.material.name} · {point_text(calc)}",
+        indent=0,
+    )
+    if report.error:
+        add(out, f"not checked: {report.error}", "bold red", indent=2)
+        return
+    if report.sweep:
+        add(out, f"sweep of {report.sweep['points']} grid points", indent=2)
+    else:
+        out.append_rows(shown_rows(CHECK_ROWS, report.state))
+    for r in report.formulas:
+        out.append(f"  formula (line {r.line})".ljust(26), style="dim")
+        out.append(f"{r.text}\n", style="bold")
+        for line in formula_lines(r):
+            add(out, line, indent=26)
+    if not report.findings:
+        out.append_safe("  no assumption leaves its regime\n", style="green")
+    for f in report.findings:
+        tag = "waived" if f.waived else f.severity
+        style = "dim" if f.waived else STYLE[f.severity]
+        out.append_pair(f"{tag.upper():8s}", f"{f.rule}  {f.title}", style, "bold")
+        out.append(f"  at {finding_where(f)}\n", style="dim")
+        add(out, finding_message(f))
+        indicator = f.indicator_text()
+        if indicator:
+            add(out, f"regime indicator: {indicator}", "dim")
+        for c in f.corrections:
+            add(out, correction_text(c))
+        if f.waived:
+            add(out, f"waived: {f.waived}", "dim")
+    corrected = corrected_lines(report)
+    if corrected:
+        add(out, "corrected calculation (each stated number once):", "bold", indent=2)
+        for line in corrected:
+            add(out, line, indent=4)
+    unchecked = unchecked_text(report)
+    if unchecked:
+        add(out, unchecked, "yellow", indent=2)
+    for note in report.notes:
+        add(out, f"note: {note}", "yellow", indent=2)
+
+
+class _NotPrintable(Exception):
+    """A piece of a calculation's text holds a character :func:`_shown` would escape."""
+
+
+def _plain_calculation(report, width: int, kinds: dict | None = None) -> str | None:
+    """:func:`_calculation` as plain text, the usual way round: each line written whole,
+    one printability check for the section instead of one per piece.  None where some
+    piece is not printable (a tab, a control or format character, a line separator in
+    user text): there :func:`_calculation` escapes piece by piece.  Where every piece
+    is printable the two write the same lines (tests/test_console_many.py).  ``kinds``:
+    the lines under a formula of each match already written in this report (the
+    reports' formula matches stay alive while it is written, so their ids hold)."""
+    kinds = {} if kinds is None else kinds
+    calc = report.calc
+    lines = [_title(calc, width)]
+    keep = lines.append
+    at8, margin8 = width - 8, _MARGINS[8]
+
+    def add(line: str, indent: int) -> None:
+        # as _calculation's add(): a line of the line's width with no space at either
+        # end is kept whole (printable: checked below, with the rest); any other goes
+        # through wrapped(), which rewrites whitespace that is not a space, so it is
+        # checked first
+        if len(line) <= width - indent and line[:1] != " " and line[-1:] != " ":
+            keep(_MARGINS[indent] + line)
+        elif line.isprintable():
+            margin = _MARGINS[indent]
+            lines.extend([margin + part for part in wrapped(line, width - indent)])
+        else:
+            raise _NotPrintable
+
+    table, after = "", 0
+    try:
+        add(f"{_where(calc.source, calc.line)} · {calc.material.name} · {point_text(calc)}", 0)
+        if report.error:
+            add(f"not checked: {report.error}", 2)
+            return _checked(lines, "", 0)
+        if report.sweep:
+            add(f"sweep of {report.sweep['points']} grid points", 2)
+        else:
+            table, after = _state_table(report.state), len(lines)
+        for r in report.formulas:
+            keep(f"  formula (line {r.line})".ljust(26) + r.text)
+            # the first line is the same for every formula of one match (the many
+            # calculations of a file state the same few formulas): wrapped once
+            key = (id(r.match), r.problem)
+            first = kinds.get(key)
+            if first is None:
+                start = len(lines)
+                add(formula_what(r), 26)
+                first = kinds[key] = lines[start:]
+            else:
+                lines += first
+            here = formula_here(r)
+            if here is not None:
+                add(here, 26)
+        if not report.findings:
+            keep("  no assumption leaves its regime")
+        for f in report.findings:
+            waived = f.waived
+            where = (
+                f"{f.file}:{f.line}"  # finding_where(f) where it has no column or other line
+                if f.line and f.column is None and not f.also_at
+                else finding_where(f)
+            )
+            keep(f"{_TAGS['waived' if waived else f.severity]}{f.rule}  {f.title}  at {where}")
+            add(f.message if f.sweep is None else finding_message(f), 8)
+            indicator = f.indicator_text()
+            if indicator:
+                line = f"regime indicator: {indicator}"
+                if len(line) <= at8 and line[-1:] != " ":  # (it starts with a letter)
+                    keep(margin8 + line)
+                else:
+                    add(line, 8)
+            for c in f.corrections:
+                line = correction_text(c)
+                if len(line) <= at8 and line[:1] != " " and line[-1:] != " ":
+                    keep(margin8 + line)
+                else:
+                    add(line, 8)
+            if waived:
+                add(f"waived: {waived}", 8)
+        corrected = corrected_lines(report)
+        if corrected:
+            add("corrected calculation (each stated number once):", 2)
+            for line in corrected:
+                add(line, 4)
+        unchecked = unchecked_text(report)
+        if unchecked:
+            add(unchecked, 2)
+        for note in report.notes:
+            add(f"note: {note}", 2)
+    except _NotPrintable:
+        return None
+    return _checked(lines, table, after)
+
+
+def _checked(lines: list[str], table: str, after: int) -> str | None:
+    """The section of ``lines`` with ``table`` (the state table, "" for none) after the
+    first ``after`` of them, or None where a character in them is not printable.  Every piece of
+    text is in the lines, so one check covers them (a newline inside one fails it too);
+    the table is checked as append_rows checks it."""
+    if not "".join(lines).isprintable():
+        return None
+    if table:
+        if not table.replace("\n", "").isprintable():
+            return None
+        lines.insert(after, table)
+    return "\n".join(lines) + "\n"
+
+
+def _state_table(summary) -> str:
+    """The state table as :meth:`_PlainText.append_rows` writes it (without its last
+    newline), in one format call (a template per set of rows shown); "" where no row has
+    a value."""
+    values = [summary[key] for key in _ROW_KEYS]
+    shown = tuple([value is not None and value == value for value in values])
+    if shown not in _TABLES:
+        _TABLES[shown] = _table_template(shown)
+    template = _TABLES[shown]
+    if template is None:  # a row format _row_template does not take: row by row
+        rows = shown_rows(CHECK_ROWS, summary)
+        return "\n".join([f"  {label:<24}{text:>24}" for label, text in rows])
+    return template.format(*values)
+
+
+def _table_template(shown: tuple[bool, ...]) -> str | None:
+    """The format of the state table with the rows of CHECK_ROWS marked in ``shown``,
+    given every row's value (format ignores those of rows not shown)."""
+    rows = [
+        _row_template(index, label, text)
+        for index, ((_, label, text), wanted) in enumerate(zip(CHECK_ROWS, shown))
+        if wanted
+    ]
+    return None if None in rows else "\n".join(rows)  # type: ignore[arg-type]
+
+
+_ROW_KEYS = [key for key, _, _ in CHECK_ROWS]
+# which rows of CHECK_ROWS have a value -> the table's format
+_TABLES: dict[tuple[bool, ...], str | None] = {}
+_SPEC = re.compile(r"\{(?::([+\- ]?)(\.\d+[efg%]))?\}([^{}]*)")
+
+
+def _row_template(index: int, label: str, shown: str) -> str | None:
+    """'  label' padded to 24, then value ``index`` as ``shown`` writes it right-aligned
+    in 24, as one format: the alignment goes into the value's own field ('{:.4g} cm^-3'
+    -> '{5:>18.4g} cm^-3' gives '{:.4g} cm^-3' right-aligned in 24, also where the number
+    is wider); '{}' as '{5!s:>24}' (format(value, '') is str(value) for the str, float,
+    int and bool a summary holds).  None for any other form of ``shown``."""
+    match = _SPEC.fullmatch(shown)
+    if match is None or (match.group(2) is None and match.group(3)):
+        return None
+    sign, precision, suffix = match.groups()
+    head = f"  {label:<24}".replace("{", "{{").replace("}", "}}")
+    if precision is None:
+        return f"{head}{{{index}!s:>24}}"
+    return f"{head}{{{index}:>{sign}{max(24 - len(suffix), 1)}{precision}}}{suffix}"
 
 
 def correction_text(c) -> str:
@@ -318,8 +507,15 @@ def render_compact(result, exit_code: int | None = None) -> str:
 
 def formula_lines(r) -> list:
     """What the console says under a stated formula."""
+    here = formula_here(r)
+    return [formula_what(r)] if here is None else [formula_what(r), here]
+
+
+def formula_what(r) -> str:
+    """The first line under a stated formula: its dimensions' problem, or what it is
+    (read from ``r.problem`` and ``r.match`` alone)."""
     if r.problem:
-        return [f"dimensions differ: {r.problem}"]
+        return f"dimensions differ: {r.problem}"
     match = r.match
     if match.status == "unrecognised":
         what = "matches no exact relation in any named limit"
@@ -329,11 +525,18 @@ def formula_lines(r) -> list:
         what = f"embodies {'; '.join(match.labels)} [{', '.join(match.relations)}]"
     if match.proof == "numeric":
         what += " (identity shown at random points; sympy did not close it)"
-    lines = [what]
+    return what
+
+
+def formula_here(r) -> str | None:
+    """The formula's value here beside the exact one, or None (a dimensions' problem,
+    or no error to give)."""
+    if r.problem:
+        return None
     error = r.error_text()
-    if error != "n/a":
-        lines.append(f"here {r.show(r.value)}, exact {r.show(r.exact)} ({error})")
-    return lines
+    if error == "n/a":
+        return None
+    return f"here {r.show(r.value)}, exact {r.show(r.exact)} ({error})"
 
 
 def sweep_json(report) -> dict | None:

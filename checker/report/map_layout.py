@@ -74,20 +74,32 @@ def place_point_labels(
 def depth(cells: np.ndarray) -> np.ndarray:
     """How many erosions (4-neighbour) each cell of the mask survives; the plot's edge
     counts as a boundary.  Large in the middle of a region, 0 at its border."""
-    out = np.zeros(cells.shape, dtype=int)
-    core = cells.copy()
-    level = 0
+    return region_depths(cells.astype(np.int8)) * cells
+
+
+def region_depths(codes: np.ndarray) -> np.ndarray:
+    """:func:`depth` of every region of ``codes`` (cells of one code) at once: each cell's
+    depth in its own region.  A cell's neighbour keeps it only where the two share a
+    code, so the regions erode side by side as each would alone."""
+    same_down = codes[1:, :] == codes[:-1, :]  # cell (j, i) and (j + 1, i)
+    same_right = codes[:, 1:] == codes[:, :-1]
+    out = np.zeros(codes.shape, dtype=int)
+    core = np.ones(codes.shape, dtype=bool)
+    # each erosion's survivors are a subset of the last's, so a cell's depth is the
+    # number of erosions it was in, less one
     while core.any():
-        out[core] = level
+        out += core
+        down = core[1:, :] & same_down  # the neighbour below is in the core, same code
+        right = core[:, 1:] & same_right
         shrunk = core.copy()
-        shrunk[1:, :] &= core[:-1, :]
-        shrunk[:-1, :] &= core[1:, :]
-        shrunk[:, 1:] &= core[:, :-1]
-        shrunk[:, :-1] &= core[:, 1:]
-        shrunk[[0, -1], :] = False
-        shrunk[:, [0, -1]] = False
-        core, level = shrunk, level + 1
-    return out
+        shrunk[:-1, :] &= down
+        shrunk[1:, :] &= core[:-1, :] & same_down
+        shrunk[:, :-1] &= right
+        shrunk[:, 1:] &= core[:, :-1] & same_right
+        shrunk[0, :] = shrunk[-1, :] = False
+        shrunk[:, 0] = shrunk[:, -1] = False
+        core = shrunk
+    return out - 1
 
 
 def region_label_box(
@@ -99,6 +111,7 @@ def region_label_box(
     avoid: Sequence[Box],
     bounds: Box,
     candidates: int = 300,
+    ranked: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None,
 ) -> tuple[Box, float] | None:
     """(box, share of it inside the region) for a region label of ``size`` (width,
     height): ``cells`` the region's mask (rows = y, columns = x), ``columns`` and
@@ -107,34 +120,87 @@ def region_label_box(
     position lying wholly in the region and missing ``avoid`` (points) is taken, else
     the best by: wholly in, missing ``avoid``, share in the region, depth.  None where
     no position is free."""
-    level = depth(cells)
-    js, is_ = np.nonzero(cells)
+    js, is_, levels_ranked = ranked if ranked is not None else ranked_cells(cells, candidates)
     if js.size == 0:
         return None
-    spread = (js - js.mean()) ** 2 + (is_ - is_.mean()) ** 2
-    order = np.lexsort((spread, -level[js, is_]))
-    order = order[:: max(1, order.size // candidates)]
+    # every candidate at once, in rank order: its box (centred), whether it may be taken
+    # (inside ``bounds``, clear of ``taken``), its share in the region and its key
     width, height = size
+    x, y = columns[is_].astype(float), rows[js].astype(float)
+    boxes = (x - width / 2, y - height / 2, x + width / 2, y + height / 2)
+    free = (
+        (boxes[0] >= bounds[0])
+        & (boxes[1] >= bounds[1])
+        & (boxes[2] <= bounds[2])
+        & (boxes[3] <= bounds[3])
+        & ~_overlaps(boxes, taken)
+    )
+    candidates_free = np.flatnonzero(free)
+    if candidates_free.size == 0:
+        return None
+    picked = tuple(side[candidates_free] for side in boxes)
+    shares = _shares(cells, columns, rows, picked).tolist()
+    clear = (~_overlaps(picked, avoid)).tolist()
+    levels = levels_ranked[candidates_free].tolist()
+    corners = np.stack(picked, axis=1).tolist()
     best, best_key = None, None
-    for k in order:
-        box = centred(float(columns[is_[k]]), float(rows[js[k]]), width, height)
-        if not inside(box, bounds) or any(overlap(box, other) for other in taken):
-            continue
-        share = _share(cells, columns, rows, box)
-        key = (share >= 0.98, not any(overlap(box, p) for p in avoid), share, level[js[k], is_[k]])
+    for box, share, missing, depth_here in zip(corners, shares, clear, levels):
+        key = (share >= 0.98, missing, share, depth_here)
         if key[0] and key[1]:
-            return box, share  # the deepest position that is wholly right: look no further
+            return tuple(box), share  # the deepest position that is wholly right
         if best_key is None or key > best_key:
-            best, best_key = (box, share), key
+            best, best_key = (tuple(box), share), key
     return best
 
 
-def _share(cells: np.ndarray, columns: np.ndarray, rows: np.ndarray, box: Box) -> float:
-    """The share of the cells under ``box`` that belong to the region."""
-    i0, i1 = np.searchsorted(columns, [box[0], box[2]])
-    j0, j1 = np.searchsorted(rows, [box[1], box[3]])
-    under = cells[j0 : max(j1, j0 + 1), i0 : max(i1, i0 + 1)]
-    return float(under.mean()) if under.size else 0.0
+def ranked_cells(
+    cells: np.ndarray, candidates: int = 300, level: np.ndarray | None = None
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(rows, columns, depths) of about ``candidates`` cells of the region ``cells``, the
+    deepest first and, among equally deep ones, the nearest its centre: where
+    region_label_box tries a label, in that order (the same for a label lying flat and
+    upright).  ``level``: the cells' depths where known (region_depths)."""
+    level = depth(cells) if level is None else level
+    js, is_ = np.nonzero(cells)
+    if js.size == 0:
+        return js, is_, js
+    spread = (js - js.mean()) ** 2 + (is_ - is_.mean()) ** 2
+    order = np.lexsort((spread, -level[js, is_]))
+    order = order[:: max(1, order.size // candidates)]
+    js, is_ = js[order], is_[order]
+    return js, is_, level[js, is_]
+
+
+def _overlaps(boxes: tuple[np.ndarray, ...], others: Sequence[Box]) -> np.ndarray:
+    """Whether each of ``boxes`` (x0, y0, x1, y1 arrays) shares an area with any of
+    ``others`` (as overlap() > 0)."""
+    hit = np.zeros(boxes[0].shape, dtype=bool)
+    for other in others:
+        width = np.minimum(boxes[2], other[2]) - np.maximum(boxes[0], other[0])
+        height = np.minimum(boxes[3], other[3]) - np.maximum(boxes[1], other[1])
+        hit |= (width > 0) & (height > 0) & (width * height != 0)
+    return hit
+
+
+def _shares(
+    cells: np.ndarray, columns: np.ndarray, rows: np.ndarray, boxes: tuple[np.ndarray, ...]
+) -> np.ndarray:
+    """The share of the cells under each of ``boxes`` that belong to the region (the
+    cells whose centres the box spans, at least one each way, cut at the grid's edge;
+    0 where none is left), from the running sums of the region's cells."""
+    total = np.zeros((cells.shape[0] + 1, cells.shape[1] + 1), dtype=np.int64)
+    total[1:, 1:] = cells.cumsum(axis=0).cumsum(axis=1)
+    i0, i1 = np.searchsorted(columns, boxes[0]), np.searchsorted(columns, boxes[2])
+    j0, j1 = np.searchsorted(rows, boxes[1]), np.searchsorted(rows, boxes[3])
+    i1, j1 = (
+        np.minimum(np.maximum(i1, i0 + 1), cells.shape[1]),
+        np.minimum(np.maximum(j1, j0 + 1), cells.shape[0]),
+    )
+    i0, j0 = np.minimum(i0, cells.shape[1]), np.minimum(j0, cells.shape[0])
+    count = total[j1, i1] - total[j0, i1] - total[j1, i0] + total[j0, i0]
+    size = (j1 - j0) * (i1 - i0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(size > 0, count / np.maximum(size, 1), 0.0)
 
 
 def place_region_labels(
@@ -153,12 +219,16 @@ def place_region_labels(
     still names the region by its colour)."""
     taken: list[Box] = []
     placed = []
+    level = region_depths(codes) if sizes else None
     for code, size in sizes.items():
         cells = codes == code
-        found = region_label_box(cells, columns, rows, size, taken, avoid, bounds)
+        ranked = ranked_cells(cells, level=level)
+        found = region_label_box(cells, columns, rows, size, taken, avoid, bounds, ranked=ranked)
         upright = False
         if found is not None and found[1] < 0.9:
-            turned = region_label_box(cells, columns, rows, size[::-1], taken, avoid, bounds)
+            turned = region_label_box(
+                cells, columns, rows, size[::-1], taken, avoid, bounds, ranked=ranked
+            )
             if turned is not None and turned[1] > found[1]:
                 found, upright = turned, True
         if found is None or found[1] < least:

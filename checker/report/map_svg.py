@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import html
 import math
+import re
 import unicodedata
 from dataclasses import dataclass
 from typing import cast
@@ -91,6 +92,19 @@ def text_box(text: str, size: float) -> tuple[float, float]:
 def _n(value: float) -> str:
     text = f"{value:.2f}".rstrip("0").rstrip(".")
     return "0" if text in ("-0", "") else text
+
+
+# _n() applied to every number of a path written with two decimals, in three passes over
+# the whole text: "12.00" -> "12", "12.50" -> "12.5", then "-0" -> "0"
+_WHOLE = re.compile(r"\.00(?![0-9])")
+_TENTHS = re.compile(r"(\.[0-9])0(?![0-9])")
+_MINUS_ZERO = re.compile(r"(?<![0-9.])-0(?![0-9.])")
+
+
+def _trimmed(path: str) -> str:
+    """``path`` (numbers written '{:.2f}', letters and spaces between) with each number
+    as _n() writes it."""
+    return _MINUS_ZERO.sub("0", _TENTHS.sub(r"\1", _WHOLE.sub("", path)))
 
 
 def _e(text: str) -> str:
@@ -212,26 +226,15 @@ def _regions(grid, frame: _Frame) -> str:
     ys = frame.y(grid.T)
     x_edges = np.concatenate(([frame.left], (xs[1:] + xs[:-1]) / 2, [frame.right]))
     y_edges = np.concatenate(([frame.bottom], (ys[1:] + ys[:-1]) / 2, [frame.top]))
-    codes = grid.codes
-    rects: dict[int, list[tuple[int, int, int, int]]] = {}
-    open_runs: dict[tuple[int, int, int], int] = {}
-    for j in range(codes.shape[0] + 1):
-        runs: set[tuple[int, int, int]] = set()
-        if j < codes.shape[0]:
-            row = codes[j]
-            cuts = [0, *(np.flatnonzero(np.diff(row)) + 1).tolist(), row.size]
-            runs = {(a, b, int(row[a])) for a, b in zip(cuts[:-1], cuts[1:])}
-        for run in sorted(set(open_runs) - runs):
-            i0, i1, code = run
-            rects.setdefault(code, []).append((i0, i1, open_runs.pop(run), j))
-        for run in runs:
-            open_runs.setdefault(run, j)
+    rects = _rectangles(grid.codes)
     paths = []
-    for code in sorted(rects):
-        d = "".join(
-            f"M{_n(x_edges[i0])} {_n(y_edges[j1])}H{_n(x_edges[i1])}V{_n(y_edges[j0])}"
-            f"H{_n(x_edges[i0])}Z"
-            for i0, i1, j0, j1 in sorted(rects[code])
+    xe, ye = x_edges.tolist(), y_edges.tolist()
+    for code, found in rects.items():
+        d = _trimmed(
+            "".join(
+                f"M{xe[i0]:.2f} {ye[j1]:.2f}H{xe[i1]:.2f}V{ye[j0]:.2f}H{xe[i0]:.2f}Z"
+                for i0, i1, j0, j1 in found
+            )
         )
         name = REGIMES[code]
         paths.append(
@@ -241,18 +244,52 @@ def _regions(grid, frame: _Frame) -> str:
     return f'<g shape-rendering="crispEdges">{"".join(paths)}</g>'
 
 
+def _rectangles(codes: np.ndarray) -> dict[int, list[tuple[int, int, int, int]]]:
+    """code -> (i0, i1, j0, j1) of each rectangle of cells (columns i0..i1-1, rows
+    j0..j1-1), in order: each run of equal cells along a row, merged with the same run
+    (same columns, same code) in the rows next to it.  All runs of all rows at once:
+    sorted by columns, code and row, a rectangle is a stretch of consecutive rows."""
+    rows, columns = codes.shape
+    if rows == 0 or columns == 0:
+        return {}
+    starts = np.ones(codes.shape, dtype=bool)
+    starts[:, 1:] = codes[:, 1:] != codes[:, :-1]
+    j, i0 = np.nonzero(starts)  # row by row, left to right
+    i1 = np.append(i0[1:], columns)
+    i1[np.append(j[1:] != j[:-1], True)] = columns  # a row's last run ends at its edge
+    code = codes[j, i0].astype(np.int64)
+    order = np.lexsort((j, code, i1, i0))
+    j, i0, i1, code = j[order], i0[order], i1[order], code[order]
+    same = (i0[1:] == i0[:-1]) & (i1[1:] == i1[:-1]) & (code[1:] == code[:-1])
+    first = np.append(True, ~(same & (j[1:] == j[:-1] + 1)))  # a rectangle's first row
+    last = np.append(first[1:], True)
+    rects: dict[int, list[tuple[int, int, int, int]]] = {}
+    for a, b, top, bottom, c in zip(
+        i0[first].tolist(),
+        i1[first].tolist(),
+        j[first].tolist(),
+        (j[last] + 1).tolist(),
+        code[first].tolist(),
+    ):
+        rects.setdefault(c, []).append((a, b, top, bottom))
+    return {c: sorted(rects[c]) for c in sorted(rects)}
+
+
 def _polyline(points: np.ndarray) -> str:
-    return "M" + "L".join(f"{_n(px)} {_n(py)}" for px, py in points)
+    flat = np.asarray(points, dtype=float).ravel().tolist()
+    return _trimmed("M" + "L".join(["{:.2f} {:.2f}"] * (len(flat) // 2)).format(*flat))
 
 
 def level_lines(values: np.ndarray, level: float, xs: np.ndarray, ys: np.ndarray) -> list:
     """Polylines ((x, y) rows) along ``values == level`` (shape (len(ys), len(xs))),
     traced by contourpy (matplotlib's own contouring, installed with it), crossings
-    interpolated linearly in the coordinates given; a non-finite value breaks the line."""
+    interpolated linearly in the coordinates given; a non-finite value breaks the line
+    (contourpy masks every NaN and inf of ``values`` itself)."""
     import contourpy
 
-    masked = np.ma.masked_invalid(np.asarray(values, dtype=float))
-    generator = contourpy.contour_generator(xs, ys, masked, line_type=contourpy.LineType.Separate)
+    generator = contourpy.contour_generator(
+        xs, ys, np.asarray(values, dtype=float), line_type=contourpy.LineType.Separate
+    )
     return cast(list, generator.lines(level))  # Separate: one (n, 2) array per line
 
 
