@@ -143,7 +143,7 @@ def _choose_format(args) -> None:
     """--format, else the --output file's suffix, else the console."""
     if hasattr(args, "format") and args.format is None:
         args.format = "console"
-        if args.output:  # imported only then: it brings tempfile
+        if args.output:  # imported only then
             from .report.output_file import format_for
 
             args.format = format_for(args.output) or "console"

@@ -76,3 +76,12 @@ def test_a_folder_that_cannot_be_written_is_an_input_error(tmp_path):
             write_atomically(folder / "r.txt", b"x")
     finally:
         folder.chmod(0o700)
+
+
+def test_a_target_name_of_255_bytes_is_written(tmp_path):
+    # POSIX NAME_MAX is 255 bytes on the usual Linux file systems (ext4, tmpfs, xfs); the
+    # partial file beside the target must fit too: main before this test failed from 234
+    target = tmp_path / ("é" * 127 + "a")  # 255 bytes in UTF-8
+    write_atomically(target, b"report")
+    assert target.read_bytes() == b"report"
+    assert sorted(p.name for p in tmp_path.iterdir()) == [target.name]

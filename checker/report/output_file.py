@@ -68,14 +68,20 @@ def _new_file_mode() -> int:
 
 
 def _partial_file(target: Path) -> tuple[int, str]:
-    """A new empty file beside ``target`` (``.name.<random>.partial``), open for writing,
-    made as tempfile.mkstemp makes one (created only if absent, a link never followed,
-    mode 0600) without importing tempfile, which brings shutil and the archive modules
+    """A new empty file beside ``target`` (``.name.<random>.partial``, the name cut to
+    200 bytes), open for writing, made as tempfile.mkstemp makes one (created only if
+    absent, a link never followed, mode 0600) without importing tempfile, which brings
+    shutil and the archive modules
     (some 7 ms of a report written with --output)."""
     flags = os.O_RDWR | os.O_CREAT | os.O_EXCL | getattr(os, "O_NOFOLLOW", 0)
     flags |= getattr(os, "O_BINARY", 0)
+    # the target's name cut to 200 bytes: the partial name then keeps within the usual
+    # 255-byte limit of a name, however long the target's is
+    stem = target.name
+    while len(os.fsencode(stem)) > 200:
+        stem = stem[:-1]
     for _ in range(100):
-        path = os.path.join(target.parent, f".{target.name}.{os.urandom(6).hex()}.partial")
+        path = os.path.join(target.parent, f".{stem}.{os.urandom(6).hex()}.partial")
         try:
             return os.open(path, flags, 0o600), path
         except FileExistsError:
