@@ -597,6 +597,24 @@ def add_findings(ruled: Ruled, cells: Cells, findings: list[list[Finding]]) -> N
         _add_findings(ruled, cells, fired, findings)
 
 
+# a rule message split at its placeholders: (the texts around them, their names), kept
+# per message (the same split as PLACEHOLDER.sub's, read once instead of per finding)
+_TEMPLATES: dict[str, tuple[list[str], list[str]]] = {}
+
+
+def _template(message: str) -> tuple[list[str], list[str]]:
+    kept = _TEMPLATES.get(message)
+    if kept is None:
+        texts, names, at = [], [], 0
+        for match in PLACEHOLDER.finditer(message):
+            texts.append(message[at : match.start()])
+            names.append(match.group(1))
+            at = match.end()
+        texts.append(message[at:])
+        kept = _TEMPLATES[message] = (texts, names)
+    return kept
+
+
 def _add_findings(
     ruled: Ruled, cells: Cells, fired: IndexArray, findings: list[list[Finding]]
 ) -> None:
@@ -606,43 +624,66 @@ def _add_findings(
         # the fired cells' values as Python numbers: the loop below reads each a few times
         return list(np.asarray(array)[fired].tolist())
 
-    # (correction, shortcut, exact, the stated number's concrete name, its value) at each
-    # fired cell
+    # (correction, shortcut, exact, the stated number's concrete name, its calculation-file
+    # key, its value) at each fired cell
     columns = [
         (
             corr,
             at_fired(_cells_array(corr.shortcut, x, values, count)),
             at_fired(_cells_array(corr.exact, x, values, count)),
             name,
+            quantity_key(name),
             at_fired(values[name]) if name else [math.nan] * fired.size,
         )
         for corr in rule.corrections
         for name in [names.get(corr.stated, corr.stated) if corr.stated else None]
     ]
-    # a word-valued quantity (unit "text") is shown as it is
-    shown = {
-        key: (at_fired(values[c]), unit)
-        if isinstance(c, str)
-        else (at_fired(_cells_array(c, x, values, count)), unit)
-        for key, (c, unit) in rule.show.items()
+    indicators = at_fired(ruled.indicator)
+    # the message: what is the same at every fired cell written into its text once; a
+    # word-valued quantity (unit "text") shown as it is; the first correction's error
+    # (None below) known only in the loop
+    words = carrier_message_words(x)
+    fixed = {
+        "threshold": display(rule.threshold, rule.indicator_unit),
+        "carrier": words[0],
+        "dopants": words[1],
+        "kind": words[2],
     }
-    words, carrier = carrier_message_words(x), carrier_word(x)
-    threshold = display(rule.threshold, rule.indicator_unit)
+    texts, slots = _template(rule.message)
+    parts: list[str] = [texts[0]]
+    varying: list[list[str] | None] = []
+    for name, text in zip(slots, texts[1:]):
+        column: list[str] | None
+        if name in rule.show:
+            shown, unit = rule.show[name]
+            if isinstance(shown, str):
+                column = [str(v) for v in at_fired(values[shown])]
+            else:
+                column = [display(v, unit) for v in at_fired(_cells_array(shown, x, values, count))]
+        elif name == "value":
+            column = [display(v, rule.indicator_unit) for v in indicators]
+        elif name == "error":
+            column = None
+        else:
+            parts[-1] += fixed[name] + text
+            continue
+        varying.append(column)
+        parts.append(text)
     causes = [
         (text, at_fired(_nonzero(_cells_array(gate, x, values, count))))
         for gate, text in rule.causes
     ]
     implied = [(name, at_fired(mask)) for name, mask in ruled.implied]
     owners, by_formula = at_fired(cells.owner), at_fired(ruled.by_formula)
-    indicators = at_fired(ruled.indicator)
+    carrier = carrier_word(x)
     for j in range(fired.size):
         owner = owners[j]
         calc = cells.calculations[owner]
         formula = cells.embodied[owner][by_formula[j]] if by_formula[j] >= 0 else None
         corrections = []
         line: int | None = None
-        column: str | None = None
-        for corr, shortcut, exact, stated_name, stated in columns:
+        column_name: str | None = None
+        for corr, shortcut, exact, stated_name, key, stated in columns:
             author = math.isfinite(stated[j])
             value = float(stated[j] if author else shortcut[j])
             truth = float(exact[j])
@@ -650,18 +691,12 @@ def _add_findings(
                 continue
             corrections.append(
                 Correction(
-                    corr.label,
-                    corr.unit,
-                    value,
-                    truth,
-                    value / truth - 1.0,
-                    author,
-                    key=quantity_key(stated_name),
+                    corr.label, corr.unit, value, truth, value / truth - 1.0, author, key=key
                 )
             )
             if author and line is None and stated_name:
                 line = _line_of(calc, stated_name)
-                column = calc.columns.get(stated_name)
+                column_name = calc.columns.get(stated_name)
         if line is None:
             line = next((_line_of(calc, name) for name, mask in implied if mask[j]), None)
         if line is None:
@@ -672,30 +707,26 @@ def _add_findings(
             line = formula.line
         if line is None:
             line = next((calc.assumes[w] for w in rule.declared if w in calc.assumes), calc.line)
-        fields = {
-            "value": display(indicators[j], rule.indicator_unit),
-            "threshold": threshold,
-            "carrier": words[0],
-            "dopants": words[1],
-            "kind": words[2],
-            "error": corrections[0].error_text() if corrections else "n/a",
-        }
-        fields.update(
-            {
-                key: str(array[j]) if unit == "text" else display(array[j], unit)
-                for key, (array, unit) in shown.items()
-            }
-        )
-        message = PLACEHOLDER.sub(lambda m: fields[m.group(1)], rule.message)
+        pieces = [parts[0]]
+        for column, text in zip(varying, parts[1:]):
+            if column is not None:
+                pieces.append(column[j])
+            else:
+                pieces.append(corrections[0].error_text() if corrections else "n/a")
+            pieces.append(text)
+        message = "".join(pieces)
         cause = next((text for text, held in causes if held[j]), None)
         if cause:
             message += f" Likely cause: {cause}."
         # every formula line that makes the same assumption for this carrier
-        uses = {
-            item.line
-            for item in cells.embodied[owner]
-            if item.word in rule.declared and (not x or item.carrier in (x, None))
-        }
+        also_at: tuple[int, ...] = ()
+        if cells.embodied[owner]:
+            uses = {
+                item.line
+                for item in cells.embodied[owner]
+                if item.word in rule.declared and (not x or item.carrier in (x, None))
+            }
+            also_at = tuple(sorted(uses - {int(line)}))
         findings[owner].append(
             Finding(
                 rule=rule.id,
@@ -714,7 +745,7 @@ def _add_findings(
                 file=calc.source,
                 line=int(line),
                 formula=formula.formula if formula is not None else None,
-                column=column,
-                also_at=tuple(sorted(uses - {int(line)})),
+                column=column_name,
+                also_at=also_at,
             )
         )
