@@ -49,7 +49,7 @@ _CARRIER_SPECIFIC = ("stated_dens", "stated_mu", "stated_D", "stated_v", "stated
 
 
 def _dominant(species: Mapping[str, float]) -> str | None:
-    return max(species, key=lambda s: species[s], default=None)
+    return max(species, key=species.__getitem__, default=None)
 
 
 def _group_key(calc: Calculation) -> tuple[object, ...]:
@@ -742,9 +742,11 @@ def fill_inputs(
     for name in ("L", "thickness", "width"):
         values[name] = structure(name)
     # the mobilities typically measured in the material's channels, and at what temperature
-    values["mu_typ_T"] = column(lambda c: _typical_mobility(c, "T"))
+    # (the material's alone: read once per material)
+    by_material = column if count is not None else _per_material(calculations)
+    values["mu_typ_T"] = by_material(lambda c: _typical_mobility(c, "T"))
     for carrier, end in itertools.product(Carrier, ("low", "high")):
-        values[f"mu_typ_{end[:2]}_{carrier}"] = column(
+        values[f"mu_typ_{end[:2]}_{carrier}"] = by_material(
             functools.partial(_typical_mobility, field=end, carrier=carrier)
         )
     area = structure("A")
@@ -814,6 +816,27 @@ def fill_inputs(
         _sigma_model(values)
     if reads is None or not _HALL.isdisjoint(reads):
         _hall(values, values["hall_r"])
+
+
+def _per_material(
+    calculations: Sequence[Calculation],
+) -> Callable[[Callable[[Calculation], float]], FloatArray]:
+    """column(getter) over ``calculations`` for a getter that reads only the calculation's
+    material: called once per material, the numbers placed by one index array."""
+    row_of: dict[int, int] = {}  # material id -> its row
+    representatives: list[Calculation] = []  # the first calculation of each material
+    rows = np.empty(len(calculations), dtype=np.intp)
+    for i, calc in enumerate(calculations):
+        row = row_of.get(id(calc.material))
+        if row is None:
+            row = row_of[id(calc.material)] = len(representatives)
+            representatives.append(calc)
+        rows[i] = row
+
+    def column(getter: Callable[[Calculation], float]) -> FloatArray:
+        return np.array([getter(c) for c in representatives], dtype=float)[rows]
+
+    return column
 
 
 def _sigma_model(values: Values) -> None:
