@@ -31,7 +31,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray
-from ...quantity_registry.number_text import display
+from ...quantity_registry.number_text import display, error_text
 from ...records import Record
 from ...vocabulary_words import carrier_message_words
 from ..expressions.parser import names_in
@@ -523,19 +523,19 @@ def evaluate(
     ruled_all = list(rule_cells(rules, cells))
     for ruled in ruled_all:
         add_findings(ruled, cells, findings)
-    compared = compared_numbers(ruled_all, cells)
-    inputs = [solve_inputs(calc) for calc in calculations]  # a sheet's own inputs
-    unchecked = [
-        [
+    # (the masks as lists: read one element at a time below)
+    compared = {name: mask.tolist() for name, mask in compared_numbers(ruled_all, cells).items()}
+    unchecked: list[list[str]] = []
+    for c, (calc, valid) in enumerate(zip(calculations, cells.valid.tolist())):
+        left = [
             name
             for name in calc.stated
-            if not any(compared[f][c] for f in _FORMS.get(name, (name,)) if f in compared)
-            and name not in inputs[c]
+            if valid and not any(compared[f][c] for f in _FORMS.get(name, (name,)) if f in compared)
         ]
-        if cells.valid[c]
-        else []
-        for c, calc in enumerate(calculations)
-    ]
+        if left:  # a sheet's own inputs are no claims
+            inputs = solve_inputs(calc)
+            left = [name for name in left if name not in inputs]
+        unchecked.append(left)
     return findings, unchecked
 
 
@@ -676,10 +676,14 @@ def _add_findings(
     implied = [(name, at_fired(mask)) for name, mask in ruled.implied]
     owners, by_formula = at_fired(cells.owner), at_fired(ruled.by_formula)
     carrier = carrier_word(x)
+    calculations, embodied = cells.calculations, cells.embodied
+    declared = rule.declared
+    requires = [names.get(n, n) for n in rule.requires]
     for j in range(fired.size):
         owner = owners[j]
-        calc = cells.calculations[owner]
-        formula = cells.embodied[owner][by_formula[j]] if by_formula[j] >= 0 else None
+        calc = calculations[owner]
+        made = embodied[owner]
+        formula = made[by_formula[j]] if by_formula[j] >= 0 else None
         corrections = []
         line: int | None = None
         column_name: str | None = None
@@ -698,35 +702,50 @@ def _add_findings(
                 line = _line_of(calc, stated_name)
                 column_name = calc.columns.get(stated_name)
         if line is None:
-            line = next((_line_of(calc, name) for name, mask in implied if mask[j]), None)
+            for name, mask in implied:  # the first implication made here
+                if mask[j]:
+                    line = _line_of(calc, name)
+                    break
         if line is None:
             # a rule without a correction of a stated number: the stated number it reads
-            stated_lines = (_line_of(calc, ruled.names.get(n, n)) for n in rule.requires)
-            line = next((at for at in stated_lines if at is not None), None)
+            for name in requires:
+                line = _line_of(calc, name)
+                if line is not None:
+                    break
         if line is None and formula is not None:
             line = formula.line
         if line is None:
-            line = next((calc.assumes[w] for w in rule.declared if w in calc.assumes), calc.line)
+            line = calc.line
+            for word in declared:
+                if word in calc.assumes:
+                    line = calc.assumes[word]
+                    break
         pieces = [parts[0]]
         for column, text in zip(varying, parts[1:]):
             if column is not None:
                 pieces.append(column[j])
+            elif corrections:
+                first = corrections[0]
+                pieces.append(error_text(first.stated, first.corrected, first.unit))
             else:
-                pieces.append(corrections[0].error_text() if corrections else "n/a")
+                pieces.append("n/a")
             pieces.append(text)
         message = "".join(pieces)
-        cause = next((text for text, held in causes if held[j]), None)
-        if cause:
-            message += f" Likely cause: {cause}."
+        for text, held in causes:  # the first likely cause that holds here
+            if held[j]:
+                if text:
+                    message += f" Likely cause: {text}."
+                break
         # every formula line that makes the same assumption for this carrier
         also_at: tuple[int, ...] = ()
-        if cells.embodied[owner]:
+        if made:
             uses = {
                 item.line
-                for item in cells.embodied[owner]
-                if item.word in rule.declared and (not x or item.carrier in (x, None))
+                for item in made
+                if item.word in declared and (not x or item.carrier in (x, None))
             }
-            also_at = tuple(sorted(uses - {int(line)}))
+            uses.discard(int(line))
+            also_at = tuple(sorted(uses))
         findings[owner].append(
             Finding(
                 rule=rule.id,
