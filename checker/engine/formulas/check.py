@@ -25,7 +25,7 @@ from collections.abc import Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
 from itertools import combinations
-from typing import TYPE_CHECKING, TypeAlias
+from typing import TYPE_CHECKING, Any, TypeAlias
 
 import numpy as np
 
@@ -413,10 +413,10 @@ def analyse_calculation(calc: Calculation, band: str = "parabolic") -> FormulaAn
     """Parse, dimension-check and match every formula of ``calc`` (in the band world
     ``band`` of its material: relations.band_world); evaluate_all gives the values."""
     out = FormulaAnalysis()
-    dim = int(calc.structure.get("dim", 3))
+    dim, majority = int(calc.structure.get("dim", 3)), calc.majority
     for text, where, line in calc.formulas:
         try:
-            known = _text_analysis(text, calc.majority, dim, band, where)
+            known = _text_analysis(text, majority, dim, band, where)
         except InputError as exc:
             out.errors.append(str(exc))
             continue
@@ -461,10 +461,7 @@ def evaluate_all(
     solved = [i for i, c in enumerate(calculations) if c.formulas and i not in skip]
     if not solved:
         return
-    subset = {
-        name: np.asarray(array)[solved] if np.ndim(array) else array
-        for name, array in values.items()
-    }
+    subset = _Rows(values, np.array(solved, dtype=np.intp))
     for members, point in _operating_groups(subset, [calculations[i] for i in solved]):
         sides: dict[Node, list[tuple[int, FormulaResult, str]]] = {}
         placed: list[tuple[int, FormulaResult]] = []
@@ -482,6 +479,23 @@ def evaluate_all(
         kT = (np.asarray(point["k"], dtype=float) * point["T"]).tolist() if placed else []
         for k, result in placed:
             _set_error(result, kT[k])
+
+
+class _Rows(dict[str, Any]):
+    """``values`` at the calculations ``rows``, each quantity taken on its first read (the
+    formulas read a few dozen of the solve's ~150 quantities)."""
+
+    def __init__(self, values: Values, rows: np.ndarray) -> None:
+        super().__init__()
+        self._values, self._rows = values, rows
+
+    def __missing__(self, name: str) -> Any:
+        array = self._values[name]
+        taken = self[name] = np.asarray(array)[self._rows] if np.ndim(array) else array
+        return taken
+
+    def __contains__(self, name: object) -> bool:
+        return name in self._values
 
 
 def _set_error(result: FormulaResult, kT: float) -> None:
@@ -505,13 +519,11 @@ def _covered(
     covered: set[str] = set()
     for finding in rule_findings:
         rule = rules.get(finding.rule)
-        carrier = carrier_code(finding.carrier)
+        if rule is None:
+            continue
+        declared, carrier = rule.declared, carrier_code(finding.carrier)
         for item in analysis.embodied:
-            if (
-                rule is not None
-                and item.word in rule.declared
-                and (carrier is None or item.carrier in (None, carrier))
-            ):
+            if item.word in declared and (carrier is None or item.carrier in (None, carrier)):
                 covered.add(item.formula)
     return covered
 
