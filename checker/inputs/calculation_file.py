@@ -289,10 +289,15 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
         acceptors=groups.get("acceptors", {}),
         band_gap_narrowing=options[0],
         hall_exponent=options[1],
+        structure=structure,
+        stated=stated,
+        assumes=assumes,
+        waivers=waivers,
+        lines=lines,
+        formulas=formulas,
+        sweep=axes,
+        subband_energies=subbands or (),
     )
-    calc.structure, calc.stated, calc.lines = structure, stated, lines
-    calc.assumes, calc.waivers, calc.formulas, calc.sweep = assumes, waivers, formulas, axes
-    calc.subband_energies = subbands or ()
     return calc
 
 

@@ -153,12 +153,14 @@ class Cells:
     ) -> tuple[dict[str, BoolArray], dict[str, list[tuple[int, int, str | None]]]]:
         # every rule asks which calculations declare or embody its words: one pass over
         # the calculations for all rules, not one per rule
-        declared: dict[str, BoolArray] = {}
+        declaring: dict[str, list[int]] = {}  # word -> the calculations declaring it
         for c, calc in enumerate(self.calculations):
             for word in calc.assumes:
-                if word not in declared:
-                    declared[word] = np.zeros(len(self.calculations), dtype=bool)
-                declared[word][c] = True
+                declaring.setdefault(word, []).append(c)
+        declared: dict[str, BoolArray] = {}
+        for word, rows in declaring.items():
+            declared[word] = np.zeros(len(self.calculations), dtype=bool)
+            declared[word][rows] = True
         embodied: dict[str, list[tuple[int, int, str | None]]] = {}
         for c, items in enumerate(self.embodied):
             for k, item in enumerate(items):

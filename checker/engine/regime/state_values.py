@@ -750,11 +750,7 @@ def fill_inputs(
             functools.partial(_typical_mobility, field=end, carrier=carrier)
         )
     area = structure("A")
-    values["A"] = np.where(
-        np.isfinite(area),
-        area,
-        column(lambda c: c.structure.get("thickness", np.nan) * c.structure.get("width", np.nan)),
-    )
+    values["A"] = np.where(np.isfinite(area), area, values["thickness"] * values["width"])
     field = structure("field")
     values["field"] = np.where(
         np.isfinite(field),
