@@ -1,0 +1,104 @@
+"""The shortcuts a check of many calculations takes give what the plain paths give.
+
+- A quantity text read before is looked up: the second reading equals the first and a
+  fresh reading, and the SI value is the definition's (1 cm = 1e-2 m, 1 V*s, the SI
+  brochure, BIPM 9th ed. (2019), table 8 / section 2.3.4); a refusal is not kept, so a
+  second refusal names its own place; the table is bounded.
+- A rule message is filled from its placeholders split once: the same text as
+  PLACEHOLDER.sub on every message of the rule set.
+- The typical mobilities read once per material equal the per-calculation column.
+- A stated formula's values taken lazily at the solved calculations equal the eager
+  subset of every quantity.
+"""
+
+import numpy as np
+import pytest
+
+from checker.engine.formulas import check as formula_check
+from checker.engine.regime import evaluate, rulebook, state_values
+from checker.errors import InputError
+from checker.inputs import quantities
+from checker.inputs.calculation_file import parse_calculations
+from checker.inputs.quantities import parse_quantity
+from checker.vocabulary_words import Carrier
+
+
+def test_a_text_read_again_gives_the_same_si_value():
+    text = "2.5e17 cm^-3"
+    first = parse_quantity(text, "density")
+    again = parse_quantity(text, "density")
+    fresh = quantities._read_quantity(text, "density", "")
+    # 1 cm^-3 = 1e6 m^-3 (1 cm = 1e-2 m by definition)
+    assert first == again == fresh == pytest.approx(2.5e23, rel=1e-15)
+    # the same text in another dimension is another reading (and here a refusal)
+    with pytest.raises(InputError, match="unit of density where mobility is expected"):
+        parse_quantity(text, "mobility", "f.yaml:9:3")
+
+
+def test_a_refusal_is_not_kept_and_names_each_place():
+    for place in ("a.yaml:3:5", "b.yaml:7:2"):
+        with pytest.raises(InputError, match=f"^{place}: "):
+            parse_quantity("1e17", "density", place)
+    assert ("1e17", "density") not in quantities._READ
+
+
+def test_the_kept_readings_are_bounded():
+    for k in range(quantities._MOST_KEPT + 10):
+        assert parse_quantity(f"{k + 1} cm", "length") == pytest.approx((k + 1) * 1e-2)
+    assert len(quantities._READ) <= quantities._MOST_KEPT
+
+
+def test_messages_from_split_placeholders_equal_substitution():
+    fields = {}
+    for rule in rulebook.load_rules():
+        names = [m.group(1) for m in rulebook.PLACEHOLDER.finditer(rule.message)]
+        fields = {name: f"<{name}:{k}>" for k, name in enumerate(names)}
+        texts, slots = evaluate._template(rule.message)
+        filled = texts[0] + "".join(fields[n] + t for n, t in zip(slots, texts[1:]))
+        assert filled == rulebook.PLACEHOLDER.sub(lambda m: fields[m.group(1)], rule.message)
+    assert fields  # the rule set has messages with placeholders
+
+
+# invented calculations over several materials, in an order that revisits them
+_FILE = "---\n".join(
+    f"name: c{k}\nmaterial: {material}\ntemperature: {300 + 10 * k} K\n"
+    f"doping:\n  donors: {{{donor}: 1e16 cm-3}}\n"
+    "stated:\n  electron_mobility: 900 cm^2/(V*s)\n"
+    + ("formulas:\n  - D_n = mu_n*k*T/q\n  - n = N_D\n" if k % 2 else "")
+    for k, (material, donor) in enumerate(
+        [("Si", "P"), ("GaAs", "Si"), ("Si", "As"), ("Ge", "Sb"), ("GaAs", "Si"), ("Si", "P")]
+    )
+)
+
+
+def _calculations():
+    result = parse_calculations(_FILE, "many.yaml")
+    assert not result.errors
+    return result.calculations
+
+
+def test_material_columns_equal_per_calculation_columns():
+    calcs = _calculations()
+    by_material = state_values._per_material(calcs)
+    for field in ("T", "low", "high"):
+        for carrier in (None, *Carrier):
+            if (field == "T") != (carrier is None):
+                continue
+
+            def getter(c, field=field, carrier=carrier):
+                return state_values._typical_mobility(c, field, carrier)
+
+            direct = np.array([getter(c) for c in calcs], dtype=float)
+            np.testing.assert_array_equal(by_material(getter), direct)
+
+
+def test_lazy_formula_rows_equal_the_eager_subset():
+    calcs = _calculations()
+    values, _, _ = state_values.solve_all(calcs)
+    rows = np.array([i for i, c in enumerate(calcs) if c.formulas], dtype=np.intp)
+    lazy = formula_check._Rows(values, rows)
+    for name, array in values.items():
+        eager = np.asarray(array)[rows] if np.ndim(array) else array
+        assert name in lazy
+        np.testing.assert_array_equal(lazy[name], eager)
+    assert "no such quantity" not in lazy
