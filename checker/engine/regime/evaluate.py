@@ -148,6 +148,12 @@ class Cells:
         return sorted(item for word in set(words) for item in index.get(word, ()))
 
     @cached_property
+    def formula_items(self) -> list[list[tuple[str, str | None, int]]]:
+        """Per calculation: (word, carrier, line) of each assumption its formulas embody
+        (read by every finding of a calculation with formulas)."""
+        return [[(item.word, item.carrier, item.line) for item in items] for items in self.embodied]
+
+    @cached_property
     def _index(
         self,
     ) -> tuple[dict[str, BoolArray], dict[str, list[tuple[int, int, str | None]]]]:
@@ -678,7 +684,7 @@ def _add_findings(
     implied = [(name, at_fired(mask)) for name, mask in ruled.implied]
     owners, by_formula = at_fired(cells.owner), at_fired(ruled.by_formula)
     carrier = carrier_word(x)
-    calculations, embodied = cells.calculations, cells.embodied
+    calculations, embodied, formula_items = cells.calculations, cells.embodied, cells.formula_items
     declared = rule.declared
     requires = [names.get(n, n) for n in rule.requires]
     for j in range(fired.size):
@@ -742,9 +748,9 @@ def _add_findings(
         also_at: tuple[int, ...] = ()
         if made:
             uses = {
-                item.line
-                for item in made
-                if item.word in declared and (not x or item.carrier in (x, None))
+                at
+                for word, code, at in formula_items[owner]
+                if word in declared and (not x or code in (x, None))
             }
             uses.discard(int(line))
             also_at = tuple(sorted(uses))
