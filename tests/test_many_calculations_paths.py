@@ -7,15 +7,16 @@
 - A rule message is filled from its placeholders split once: the same text as
   PLACEHOLDER.sub on every message of the rule set.
 - The typical mobilities read once per material equal the per-calculation column.
-- A stated formula's values taken lazily at the solved calculations equal the eager
-  subset of every quantity.
+- A read-through view (Taken: the formulas' rows, the summaries' lists, a sweep chunk's
+  one-value elements) equals the eager take of every quantity; a name the values lack
+  raises KeyError.
 """
 
 import numpy as np
 import pytest
 
-from checker.engine.formulas import check as formula_check
 from checker.engine.regime import evaluate, rulebook, state_values
+from checker.engine.regime.taken import Taken
 from checker.errors import InputError
 from checker.inputs import quantities
 from checker.inputs.calculation_file import parse_calculations
@@ -92,13 +93,17 @@ def test_material_columns_equal_per_calculation_columns():
             np.testing.assert_array_equal(by_material(getter), direct)
 
 
-def test_lazy_formula_rows_equal_the_eager_subset():
+def test_taken_values_equal_the_eager_take():
     calcs = _calculations()
     values, _, _ = state_values.solve_all(calcs)
     rows = np.array([i for i, c in enumerate(calcs) if c.formulas], dtype=np.intp)
-    lazy = formula_check._Rows(values, rows)
+    lazy = Taken(values, lambda array: np.asarray(array)[rows] if np.ndim(array) else array)
     for name, array in values.items():
         eager = np.asarray(array)[rows] if np.ndim(array) else array
         assert name in lazy
         np.testing.assert_array_equal(lazy[name], eager)
     assert "no such quantity" not in lazy
+    with pytest.raises(KeyError):
+        lazy["no such quantity"]
+    listed = Taken(values, lambda array: np.asarray(array).tolist())
+    assert listed["T"] == np.asarray(values["T"]).tolist()

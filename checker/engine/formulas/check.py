@@ -25,7 +25,7 @@ from collections.abc import Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
 from itertools import combinations
-from typing import TYPE_CHECKING, Any, TypeAlias
+from typing import TYPE_CHECKING, TypeAlias
 
 import numpy as np
 
@@ -41,6 +41,7 @@ from ..findings import Correction, Embodied, Finding, carrier_code
 from ..regime.corrected import formula_key
 from ..regime.rulebook import PLACEHOLDER, Rule
 from ..regime.state_values import Values
+from ..regime.taken import Taken
 from . import match_store
 from .match import Match, analyse
 from .relations import band_world, world
@@ -461,7 +462,10 @@ def evaluate_all(
     solved = [i for i, c in enumerate(calculations) if c.formulas and i not in skip]
     if not solved:
         return
-    subset = _Rows(values, np.array(solved, dtype=np.intp))
+    # (each quantity taken at the solved calculations on its first read: the formulas
+    # read a few dozen of the solve's ~150)
+    rows = np.array(solved, dtype=np.intp)
+    subset = Taken(values, lambda array: np.asarray(array)[rows] if np.ndim(array) else array)
     for members, point in _operating_groups(subset, [calculations[i] for i in solved]):
         sides: dict[Node, list[tuple[int, FormulaResult, str]]] = {}
         placed: list[tuple[int, FormulaResult]] = []
@@ -479,23 +483,6 @@ def evaluate_all(
         kT = (np.asarray(point["k"], dtype=float) * point["T"]).tolist() if placed else []
         for k, result in placed:
             _set_error(result, kT[k])
-
-
-class _Rows(dict[str, Any]):
-    """``values`` at the calculations ``rows``, each quantity taken on its first read (the
-    formulas read a few dozen of the solve's ~150 quantities)."""
-
-    def __init__(self, values: Values, rows: np.ndarray) -> None:
-        super().__init__()
-        self._values, self._rows = values, rows
-
-    def __missing__(self, name: str) -> Any:
-        array = self._values[name]
-        taken = self[name] = np.asarray(array)[self._rows] if np.ndim(array) else array
-        return taken
-
-    def __contains__(self, name: object) -> bool:
-        return name in self._values
 
 
 def _set_error(result: FormulaResult, kT: float) -> None:

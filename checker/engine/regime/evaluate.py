@@ -42,6 +42,7 @@ from .corrected import quantity_key
 from .rulebook import PLACEHOLDER, Compiled, PerCarrier, Rule
 from .sheet_values import solve_inputs
 from .state_values import Replaced, Values, derive_corrected, one_value
+from .taken import Taken
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
@@ -118,7 +119,7 @@ class Cells:
         is the one the full arrays give: the same elementwise arithmetic, broadcast)."""
         if self.all_indicators:
             return self.values
-        return _OneValues(self.values)
+        return Taken(self.values, one_value)
 
     def in_use(self, names: Mapping[str, str]) -> BoolArray:
         """Per cell: whether the carrier of the names (carrier_names) is in use."""
@@ -172,21 +173,6 @@ class Cells:
             for k, item in enumerate(items):
                 embodied.setdefault(item.word, []).append((c, k, item.carrier))
         return declared, embodied
-
-
-class _OneValues(dict[str, Any]):
-    """The values of ``base`` as read by a sweep chunk's rules (Cells.read_values): each
-    one-value quantity as one element, taken on first read (a chunk's rules read a few
-    dozen of its ~250 quantities; those computed on first read, state_values.LazyValues,
-    are computed then)."""
-
-    def __init__(self, base: Values) -> None:
-        super().__init__()
-        self._base = base
-
-    def __missing__(self, name: str) -> Any:
-        value = self[name] = one_value(self._base[name])
-        return value
 
 
 class Ruled(Record):
