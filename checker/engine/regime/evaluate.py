@@ -714,17 +714,15 @@ def _add_findings(
                 if word in calc.assumes:
                     line = calc.assumes[word]
                     break
-        pieces = [parts[0]]
-        for column, text in zip(varying, parts[1:]):
+        message = parts[0]
+        for column, text in zip(varying, parts[1:]):  # (a message has a few placeholders)
             if column is not None:
-                pieces.append(column[j])
+                message += column[j] + text
             elif corrections:
                 first = corrections[0]
-                pieces.append(error_text(first.stated, first.corrected, first.unit))
+                message += error_text(first.stated, first.corrected, first.unit) + text
             else:
-                pieces.append("n/a")
-            pieces.append(text)
-        message = "".join(pieces)
+                message += "n/a" + text
         for text, held in causes:  # the first likely cause that holds here
             if held[j]:
                 if text:
