@@ -525,17 +525,11 @@ def formula_findings(
     out: list[Finding] = []
     covered: set[str] | None = None  # found where a formula is off (most are not)
     for result in analysis.results:
-        fields = {
-            "formula": result.text,
-            "left": result.left_dimension,
-            "right": result.right_dimension,
-            "detail": result.problem or "",
-            "fix": result.fix or "check the unit of each factor",
-        }
         if result.problem:
             rule = rules.get("FORM01")
             if rule:
-                out.append(_finding(rule, calc, result, _fill(rule.message, fields), []))
+                message = _fill(rule.message, _text_fields(result))
+                out.append(_finding(rule, calc, result, message, []))
             continue
         match = result.matched
         form03 = rules.get("FORM03")
@@ -549,6 +543,7 @@ def formula_findings(
         unmatched = match.status == "unrecognised" and "FORM02" in rules and off_rule is None
         if not unmatched and off_rule is None:
             continue  # no finding: its message and correction are not written
+        fields = _text_fields(result)
         fields.update(
             {
                 "value": result.show(result.value),
@@ -601,6 +596,17 @@ def formula_findings(
                 )
             )
     return out
+
+
+def _text_fields(result: FormulaResult) -> dict[str, str]:
+    """The message fields of a formula's text and dimensions."""
+    return {
+        "formula": result.text,
+        "left": result.left_dimension,
+        "right": result.right_dimension,
+        "detail": result.problem or "",
+        "fix": result.fix or "check the unit of each factor",
+    }
 
 
 def _finding(
