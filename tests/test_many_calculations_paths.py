@@ -20,7 +20,7 @@ from checker.engine.regime.taken import Taken
 from checker.errors import InputError
 from checker.inputs import quantities
 from checker.inputs.calculation_file import parse_calculations
-from checker.inputs.quantities import parse_quantity
+from checker.inputs.quantities import parse_quantity, parse_temperature
 from checker.vocabulary_words import Carrier
 
 
@@ -34,6 +34,15 @@ def test_a_text_read_again_gives_the_same_si_value():
     # the same text in another dimension is another reading (and here a refusal)
     with pytest.raises(InputError, match="unit of density where mobility is expected"):
         parse_quantity(text, "mobility", "f.yaml:9:3")
+
+
+def test_a_temperature_read_again_gives_the_same_kelvin():
+    # 0 degC = 273.15 K (SI brochure, BIPM 9th ed. (2019), section 2.3.1)
+    assert parse_temperature("27 degC") == parse_temperature("27 degC") == 300.15
+    # the temperature reader's texts are kept apart from the quantity reader's
+    assert parse_quantity("300 K", "temperature") == parse_temperature("300 K") == 300.0
+    with pytest.raises(InputError, match="^t.yaml:2:1: '-5 K' is at or below absolute zero"):
+        parse_temperature("-5 K", "t.yaml:2:1")
 
 
 def test_a_refusal_is_not_kept_and_names_each_place():
