@@ -55,6 +55,7 @@ TOP_KEYS = (
     "waivers",
     "options",
 )
+_TOP_KEY_SET = frozenset(TOP_KEYS)
 DOPING_KEYS = ("donors", "acceptors")
 OPTION_KEYS = ("band_gap_narrowing", "hall_scattering")
 # YAML key -> (engine quantity name, dimension read as): views of the quantity registry
@@ -238,10 +239,15 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
             f"{where()}: a calculation must be a mapping with keys {', '.join(TOP_KEYS)}"
         )
     problems = Problems()
-    problems.run(_unknown_keys, data, TOP_KEYS, where, "calculation")
-    misspelt = {
-        close for key in data if key not in TOP_KEYS for close in close_matches(key, TOP_KEYS, n=1)
-    }
+    misspelt: set[str] = set()
+    if not data.keys() <= _TOP_KEY_SET:  # (the usual calculation names none other)
+        problems.run(_unknown_keys, data, TOP_KEYS, where, "calculation")
+        misspelt = {
+            close
+            for key in data
+            if key not in TOP_KEYS
+            for close in close_matches(key, TOP_KEYS, n=1)
+        }
     for key in ("material", "temperature"):
         if key not in data and key not in misspelt:  # else 'did you mean' says it
             problems.add(
@@ -524,7 +530,8 @@ def _quantities(data, section, keys, where, lines, lists=()) -> dict:
     """The quantities of a section (``lists``: allowed keys read elsewhere)."""
     block = _mapping(data, section, where, f"of {', '.join(keys)} to quantities")
     problems = Problems()
-    problems.run(_unknown_keys, block, tuple(keys) + tuple(lists), where, section, (section,))
+    if not all(key in keys or key in lists for key in block):
+        problems.run(_unknown_keys, block, tuple(keys) + tuple(lists), where, section, (section,))
     out = {}
     for key, text in block.items():
         if key in keys:
