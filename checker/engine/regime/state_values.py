@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import functools
 import itertools
-from collections.abc import Callable, Collection, Mapping, Sequence
+from collections.abc import Callable, Collection, Iterator, Mapping, Sequence
 from typing import TYPE_CHECKING, Any, TypeAlias
 
 import numpy as np
@@ -29,6 +29,8 @@ from ...vocabulary_words import Carrier
 from . import conductor_values, sheet_values
 
 if TYPE_CHECKING:
+    from _collections_abc import dict_items, dict_keys, dict_values
+
     from ...inputs.calculation_file import Calculation
 
 # quantity name -> one array over the points (cells): float64, or an object array of
@@ -321,7 +323,7 @@ def _narrowed_later(
     its solve (errors) stays unknown; a group whose solve with narrowing cannot be done
     leaves its points' dens_bgn_x unknown (the two rules then stay silent there)."""
     count = len(values["T"])
-    lazy = LazyValues(count)
+    lazy = _PointValues(count)
     lazy.update(values)
     lost = np.array(sorted(errors), dtype=np.intp)
 
@@ -340,6 +342,40 @@ def _narrowed_later(
 
     lazy.defer(_NARROWED, Deferred(compute))
     return lazy
+
+
+class _PointValues(LazyValues):
+    """solve_all's values, some computed on first look-up (:func:`_narrowed_later`); going
+    over the names (iteration, keys, items, values, len) computes every pending one
+    first, so a reader of the whole mapping sees every quantity, as from an eager solve;
+    ``in`` counts a pending name in."""
+
+    def _all(self) -> None:
+        for name in list(self._pending):
+            self[name]  # (computed by __missing__)
+
+    def __contains__(self, name: object) -> bool:
+        return super().__contains__(name) or name in self._pending
+
+    def __iter__(self) -> Iterator[str]:
+        self._all()
+        return super().__iter__()
+
+    def __len__(self) -> int:
+        self._all()
+        return super().__len__()
+
+    def keys(self) -> dict_keys[str, npt.NDArray[Any]]:
+        self._all()
+        return super().keys()
+
+    def items(self) -> dict_items[str, npt.NDArray[Any]]:
+        self._all()
+        return super().items()
+
+    def values(self) -> dict_values[str, npt.NDArray[Any]]:
+        self._all()
+        return super().values()
 
 
 def _place_onsets(
