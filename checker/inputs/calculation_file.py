@@ -279,7 +279,8 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     assumes = problems.run(_assumptions, data.get("assumes"), where, default={})
     waivers = problems.run(_waivers, data.get("waivers"), where, default={})
     formulas = problems.run(_formulas, data.get("formulas"), where, default=[])
-    problems.run(_check_sweep_size, axes, where)
+    if axes:  # (a sweep)
+        problems.run(_check_sweep_size, axes, where)
     problems.messages.sort(key=lambda message: _position(message, path))
     problems.raise_any()
     # both were read: a missing or unreadable one is a problem, raised above
@@ -528,7 +529,9 @@ def normal_word(text) -> str:
 
 def _quantities(data, section, keys, where, lines, lists=()) -> dict:
     """The quantities of a section (``lists``: allowed keys read elsewhere)."""
-    block = _mapping(data, section, where, f"of {', '.join(keys)} to quantities")
+    block = data.get(section)
+    if not isinstance(block, dict):  # (its form worded only here: forty keys joined)
+        block = _mapping(data, section, where, f"of {', '.join(keys)} to quantities")
     problems = Problems()
     if not all(key in keys or key in lists for key in block):
         problems.run(_unknown_keys, block, tuple(keys) + tuple(lists), where, section, (section,))
