@@ -107,6 +107,8 @@ _PHASES = (
     ("checker.engine.run", None, "read_input", "read"),
     ("checker.engine.regime.state_values", None, "solve_all", "solve (state_values.solve_all)"),
     ("checker.engine.regime.points", None, "evaluate", "rules (evaluate)"),
+    ("checker.engine.formulas.check", None, "analyse_all", "stated formulas"),
+    ("checker.engine.formulas.check", None, "evaluate_all", "stated formulas"),
     ("checker.engine.regime.trade_summary", "PointSummaries", "__init__", "summaries"),
     ("checker.engine.regime.trade_summary", "PointSummaries", "__getitem__", "summaries"),
     ("checker.engine.regime.points", None, "one_finding_per_stated_number", "one finding a number"),

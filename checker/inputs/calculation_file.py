@@ -55,6 +55,7 @@ TOP_KEYS = (
     "waivers",
     "options",
 )
+_TOP_KEY_SET = frozenset(TOP_KEYS)
 DOPING_KEYS = ("donors", "acceptors")
 OPTION_KEYS = ("band_gap_narrowing", "hall_scattering")
 # YAML key -> (engine quantity name, dimension read as): views of the quantity registry
@@ -67,6 +68,9 @@ MAX_SUBBANDS = 20
 SHEET_KEYS = tuple(key for q in QUANTITIES if q.unit == "cm^-2" for key in q.keys)
 # stated keys only a wire (a 1D calculation) has: its densities are per length
 WIRE_KEYS = tuple(key for q in QUANTITIES if q.unit == "cm^-1" and q.section for key in q.keys)
+# their engine names (a calculation's stated numbers are kept under those)
+_SHEET_NAMES = frozenset(STATED_KEYS[key][0] for key in SHEET_KEYS)
+_WIRE_NAMES = frozenset(STATED_KEYS[key][0] for key in WIRE_KEYS)
 # A few common spellings of the trade words an author may declare (ASSUMPTIONS).
 ASSUMPTION_SPELLINGS = {
     "nondegenerate": "non-degenerate",
@@ -198,11 +202,13 @@ def _placed(error: InputError, where, *keys) -> InputError:
 
 def _unknown_keys(mapping: dict, allowed, where, what: str, section=()):
     """An error for every key of ``mapping`` outside ``allowed``."""
+    unknown = [key for key in mapping if key not in allowed]
+    if not unknown:  # (the usual mapping)
+        return
     problems = Problems()
-    for key in mapping:
-        if key not in allowed:
-            hint = did_you_mean(key, allowed) or f"allowed: {', '.join(allowed)}"
-            problems.add(InputError(f"{where(*section, key)}: unknown {what} key {key!r}; {hint}"))
+    for key in unknown:
+        hint = did_you_mean(key, allowed) or f"allowed: {', '.join(allowed)}"
+        problems.add(InputError(f"{where(*section, key)}: unknown {what} key {key!r}; {hint}"))
     problems.raise_any()
 
 
@@ -233,10 +239,15 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
             f"{where()}: a calculation must be a mapping with keys {', '.join(TOP_KEYS)}"
         )
     problems = Problems()
-    problems.run(_unknown_keys, data, TOP_KEYS, where, "calculation")
-    misspelt = {
-        close for key in data if key not in TOP_KEYS for close in close_matches(key, TOP_KEYS, n=1)
-    }
+    misspelt: set[str] = set()
+    if not data.keys() <= _TOP_KEY_SET:  # (the usual calculation names none other)
+        problems.run(_unknown_keys, data, TOP_KEYS, where, "calculation")
+        misspelt = {
+            close
+            for key in data
+            if key not in TOP_KEYS
+            for close in close_matches(key, TOP_KEYS, n=1)
+        }
     for key in ("material", "temperature"):
         if key not in data and key not in misspelt:  # else 'did you mean' says it
             problems.add(
@@ -268,7 +279,8 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
     assumes = problems.run(_assumptions, data.get("assumes"), where, default={})
     waivers = problems.run(_waivers, data.get("waivers"), where, default={})
     formulas = problems.run(_formulas, data.get("formulas"), where, default=[])
-    problems.run(_check_sweep_size, axes, where)
+    if axes:  # (a sweep)
+        problems.run(_check_sweep_size, axes, where)
     problems.messages.sort(key=lambda message: _position(message, path))
     problems.raise_any()
     # both were read: a missing or unreadable one is a problem, raised above
@@ -284,10 +296,15 @@ def parse_calculation(doc: Located, path: str) -> Calculation:
         acceptors=groups.get("acceptors", {}),
         band_gap_narrowing=options[0],
         hall_exponent=options[1],
+        structure=structure,
+        stated=stated,
+        assumes=assumes,
+        waivers=waivers,
+        lines=lines,
+        formulas=formulas,
+        sweep=axes,
+        subband_energies=subbands or (),
     )
-    calc.structure, calc.stated, calc.lines = structure, stated, lines
-    calc.assumes, calc.waivers, calc.formulas, calc.sweep = assumes, waivers, formulas, axes
-    calc.subband_energies = subbands or ()
     return calc
 
 
@@ -374,6 +391,8 @@ def _density(material, group, species, text, where, axes) -> float:
 
 
 def _options(data, where) -> tuple:
+    if data.get("options") in (None, ""):  # none given (most calculations)
+        return False, -0.5
     options = _mapping(data, "options", where, "of " + ", ".join(OPTION_KEYS))
     _unknown_keys(options, OPTION_KEYS, where, "option", ("options",))
     bgn = (
@@ -510,9 +529,12 @@ def normal_word(text) -> str:
 
 def _quantities(data, section, keys, where, lines, lists=()) -> dict:
     """The quantities of a section (``lists``: allowed keys read elsewhere)."""
-    block = _mapping(data, section, where, f"of {', '.join(keys)} to quantities")
+    block = data.get(section)
+    if not isinstance(block, dict):  # (its form worded only here: forty keys joined)
+        block = _mapping(data, section, where, f"of {', '.join(keys)} to quantities")
     problems = Problems()
-    problems.run(_unknown_keys, block, tuple(keys) + tuple(lists), where, section, (section,))
+    if not all(key in keys or key in lists for key in block):
+        problems.run(_unknown_keys, block, tuple(keys) + tuple(lists), where, section, (section,))
     out = {}
     for key, text in block.items():
         if key in keys:
@@ -550,6 +572,8 @@ AGREEMENT = 0.01
 
 def _structure(data, where, lines) -> dict:
     """The structure block; a field or area given twice over must agree."""
+    if data.get("structure") in (None, ""):  # none given (most calculations)
+        return {}
     structure = _quantities(data, "structure", STRUCTURE_KEYS, where, lines, (SUBBAND_KEY,))
     given = _mapping(data, "structure", where, "")
     problems = Problems()
@@ -610,13 +634,22 @@ def _assumptions(entries, where) -> dict:
         )
     out = {}
     for i, word in enumerate(entries):
-        text = normal_word(word)
-        text = ASSUMPTION_SPELLINGS.get(text, text)
+        text = _ASSUMPTION_WORDS.get(word) if type(word) is str else None
+        if text is None:
+            text = normal_word(word)
+            text = ASSUMPTION_SPELLINGS.get(text, text)
         if text not in ASSUMPTIONS:
             hint = did_you_mean(text, ASSUMPTIONS) or f"known: {', '.join(ASSUMPTIONS)}"
             raise InputError(f"{where('assumes', i)}: unknown assumption {word!r}; {hint}")
         out[text] = where.line("assumes", i)
+        if type(word) is str and len(_ASSUMPTION_WORDS) < 1024:
+            _ASSUMPTION_WORDS[word] = text
     return out
+
+
+# an assumption as written -> the word it names (normal_word, then the spellings), for the
+# few spellings a file repeats in every calculation; only words that name an assumption
+_ASSUMPTION_WORDS: dict[str, str] = {}
 
 
 def _waivers(entries, where) -> dict:
@@ -723,12 +756,16 @@ def _sheet_fit(material, structure, stated, groups, subbands, where) -> None:
     something that fixes a sheet's or a wire's Fermi level."""
     problems = Problems()
     dim = int(structure.get("dim", material.dimensionality))
-    if dim == 1 or any(STATED_KEYS[key][0] in stated for key in WIRE_KEYS):
+    if dim == 1 or not _WIRE_NAMES.isdisjoint(stated):
         problems.run(_wire_fit, material, dim, stated, groups, subbands, where)
         problems.raise_any()
         if dim == 1:
             return
-    sheet_keys = [key for key in SHEET_KEYS if STATED_KEYS[key][0] in stated]
+    sheet_keys = (
+        []
+        if _SHEET_NAMES.isdisjoint(stated)
+        else [k for k in SHEET_KEYS if STATED_KEYS[k][0] in stated]
+    )
     if material.dimensionality == 2 and dim == 3:
         problems.add(
             InputError(
@@ -752,15 +789,18 @@ def _sheet_fit(material, structure, stated, groups, subbands, where) -> None:
                 "dimensionality: 2 or remove subband_energies"
             )
         )
-    linear = material.band_shape("electron").model == "linear"
-    if linear and subbands:
+
+    def linear() -> bool:  # (asked only where it decides something)
+        return material.band_shape("electron").model == "linear"
+
+    if subbands and linear():
         problems.add(
             InputError(
                 f"{where.key('structure', SUBBAND_KEY)}: {material.name} has linear bands "
                 "without a subband ladder; remove subband_energies"
             )
         )
-    if "stated_net_sheet" in stated and not linear:
+    if "stated_net_sheet" in stated and not linear():
         problems.add(
             InputError(
                 f"{where.key('stated', 'net_sheet_density')}: the net sheet density n - p "
@@ -781,7 +821,7 @@ def _sheet_fit(material, structure, stated, groups, subbands, where) -> None:
             InputError(
                 f"{where.key('stated')}: a 2D gas or sheet takes its carriers from the "
                 "stated sheet density; add e.g. electron_sheet_density: 1e12 cm-2 "
-                + ("(or net_sheet_density, the gate-induced n - p) " if linear else "")
+                + ("(or net_sheet_density, the gate-induced n - p) " if linear() else "")
                 + "under stated:"
             )
         )

@@ -41,6 +41,7 @@ from ..findings import Correction, Embodied, Finding, carrier_code
 from ..regime.corrected import formula_key
 from ..regime.rulebook import PLACEHOLDER, Rule
 from ..regime.state_values import Values
+from ..regime.taken import Taken
 from . import match_store
 from .match import Match, analyse
 from .relations import band_world, world
@@ -413,10 +414,10 @@ def analyse_calculation(calc: Calculation, band: str = "parabolic") -> FormulaAn
     """Parse, dimension-check and match every formula of ``calc`` (in the band world
     ``band`` of its material: relations.band_world); evaluate_all gives the values."""
     out = FormulaAnalysis()
-    dim = int(calc.structure.get("dim", 3))
+    dim, majority = int(calc.structure.get("dim", 3)), calc.majority
     for text, where, line in calc.formulas:
         try:
-            known = _text_analysis(text, calc.majority, dim, band, where)
+            known = _text_analysis(text, majority, dim, band, where)
         except InputError as exc:
             out.errors.append(str(exc))
             continue
@@ -461,10 +462,10 @@ def evaluate_all(
     solved = [i for i, c in enumerate(calculations) if c.formulas and i not in skip]
     if not solved:
         return
-    subset = {
-        name: np.asarray(array)[solved] if np.ndim(array) else array
-        for name, array in values.items()
-    }
+    # (each quantity taken at the solved calculations on its first read: the formulas
+    # read a few dozen of the solve's ~150)
+    rows = np.array(solved, dtype=np.intp)
+    subset = Taken(values, lambda array: np.asarray(array)[rows] if np.ndim(array) else array)
     for members, point in _operating_groups(subset, [calculations[i] for i in solved]):
         sides: dict[Node, list[tuple[int, FormulaResult, str]]] = {}
         placed: list[tuple[int, FormulaResult]] = []
@@ -505,13 +506,11 @@ def _covered(
     covered: set[str] = set()
     for finding in rule_findings:
         rule = rules.get(finding.rule)
-        carrier = carrier_code(finding.carrier)
+        if rule is None:
+            continue
+        declared, carrier = rule.declared, carrier_code(finding.carrier)
         for item in analysis.embodied:
-            if (
-                rule is not None
-                and item.word in rule.declared
-                and (carrier is None or item.carrier in (None, carrier))
-            ):
+            if item.word in declared and (carrier is None or item.carrier in (None, carrier)):
                 covered.add(item.formula)
     return covered
 
@@ -526,17 +525,11 @@ def formula_findings(
     out: list[Finding] = []
     covered: set[str] | None = None  # found where a formula is off (most are not)
     for result in analysis.results:
-        fields = {
-            "formula": result.text,
-            "left": result.left_dimension,
-            "right": result.right_dimension,
-            "detail": result.problem or "",
-            "fix": result.fix or "check the unit of each factor",
-        }
         if result.problem:
             rule = rules.get("FORM01")
             if rule:
-                out.append(_finding(rule, calc, result, _fill(rule.message, fields), []))
+                message = _fill(rule.message, _text_fields(result))
+                out.append(_finding(rule, calc, result, message, []))
             continue
         match = result.matched
         form03 = rules.get("FORM03")
@@ -550,6 +543,7 @@ def formula_findings(
         unmatched = match.status == "unrecognised" and "FORM02" in rules and off_rule is None
         if not unmatched and off_rule is None:
             continue  # no finding: its message and correction are not written
+        fields = _text_fields(result)
         fields.update(
             {
                 "value": result.show(result.value),
@@ -602,6 +596,17 @@ def formula_findings(
                 )
             )
     return out
+
+
+def _text_fields(result: FormulaResult) -> dict[str, str]:
+    """The message fields of a formula's text and dimensions."""
+    return {
+        "formula": result.text,
+        "left": result.left_dimension,
+        "right": result.right_dimension,
+        "detail": result.problem or "",
+        "fix": result.fix or "check the unit of each factor",
+    }
 
 
 def _finding(

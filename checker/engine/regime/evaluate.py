@@ -31,7 +31,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray
-from ...quantity_registry.number_text import display
+from ...quantity_registry.number_text import display, error_text
 from ...records import Record
 from ...vocabulary_words import carrier_message_words
 from ..expressions.parser import names_in
@@ -42,6 +42,7 @@ from .corrected import quantity_key
 from .rulebook import PLACEHOLDER, Compiled, PerCarrier, Rule
 from .sheet_values import solve_inputs
 from .state_values import Replaced, Values, derive_corrected, one_value
+from .taken import Taken
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Calculation
@@ -118,7 +119,7 @@ class Cells:
         is the one the full arrays give: the same elementwise arithmetic, broadcast)."""
         if self.all_indicators:
             return self.values
-        return _OneValues(self.values)
+        return Taken(self.values, one_value)
 
     def in_use(self, names: Mapping[str, str]) -> BoolArray:
         """Per cell: whether the carrier of the names (carrier_names) is in use."""
@@ -148,37 +149,30 @@ class Cells:
         return sorted(item for word in set(words) for item in index.get(word, ()))
 
     @cached_property
+    def formula_items(self) -> list[list[tuple[str, str | None, int]]]:
+        """Per calculation: (word, carrier, line) of each assumption its formulas embody
+        (read by every finding of a calculation with formulas)."""
+        return [[(item.word, item.carrier, item.line) for item in items] for items in self.embodied]
+
+    @cached_property
     def _index(
         self,
     ) -> tuple[dict[str, BoolArray], dict[str, list[tuple[int, int, str | None]]]]:
         # every rule asks which calculations declare or embody its words: one pass over
         # the calculations for all rules, not one per rule
-        declared: dict[str, BoolArray] = {}
+        declaring: dict[str, list[int]] = {}  # word -> the calculations declaring it
         for c, calc in enumerate(self.calculations):
             for word in calc.assumes:
-                if word not in declared:
-                    declared[word] = np.zeros(len(self.calculations), dtype=bool)
-                declared[word][c] = True
+                declaring.setdefault(word, []).append(c)
+        declared: dict[str, BoolArray] = {}
+        for word, rows in declaring.items():
+            declared[word] = np.zeros(len(self.calculations), dtype=bool)
+            declared[word][rows] = True
         embodied: dict[str, list[tuple[int, int, str | None]]] = {}
         for c, items in enumerate(self.embodied):
             for k, item in enumerate(items):
                 embodied.setdefault(item.word, []).append((c, k, item.carrier))
         return declared, embodied
-
-
-class _OneValues(dict[str, Any]):
-    """The values of ``base`` as read by a sweep chunk's rules (Cells.read_values): each
-    one-value quantity as one element, taken on first read (a chunk's rules read a few
-    dozen of its ~250 quantities; those computed on first read, state_values.LazyValues,
-    are computed then)."""
-
-    def __init__(self, base: Values) -> None:
-        super().__init__()
-        self._base = base
-
-    def __missing__(self, name: str) -> Any:
-        value = self[name] = one_value(self._base[name])
-        return value
 
 
 class Ruled(Record):
@@ -523,19 +517,19 @@ def evaluate(
     ruled_all = list(rule_cells(rules, cells))
     for ruled in ruled_all:
         add_findings(ruled, cells, findings)
-    compared = compared_numbers(ruled_all, cells)
-    inputs = [solve_inputs(calc) for calc in calculations]  # a sheet's own inputs
-    unchecked = [
-        [
+    # (the masks as lists: read one element at a time below)
+    compared = {name: mask.tolist() for name, mask in compared_numbers(ruled_all, cells).items()}
+    unchecked: list[list[str]] = []
+    for c, (calc, valid) in enumerate(zip(calculations, cells.valid.tolist())):
+        left = [
             name
             for name in calc.stated
-            if not any(compared[f][c] for f in _FORMS.get(name, (name,)) if f in compared)
-            and name not in inputs[c]
+            if valid and not any(compared[f][c] for f in _FORMS.get(name, (name,)) if f in compared)
         ]
-        if cells.valid[c]
-        else []
-        for c, calc in enumerate(calculations)
-    ]
+        if left:  # a sheet's own inputs are no claims
+            inputs = solve_inputs(calc)
+            left = [name for name in left if name not in inputs]
+        unchecked.append(left)
     return findings, unchecked
 
 
@@ -597,6 +591,24 @@ def add_findings(ruled: Ruled, cells: Cells, findings: list[list[Finding]]) -> N
         _add_findings(ruled, cells, fired, findings)
 
 
+# a rule message split at its placeholders: (the texts around them, their names), kept
+# per message (the same split as PLACEHOLDER.sub's, read once instead of per finding)
+_TEMPLATES: dict[str, tuple[list[str], list[str]]] = {}
+
+
+def _template(message: str) -> tuple[list[str], list[str]]:
+    kept = _TEMPLATES.get(message)
+    if kept is None:
+        texts, names, at = [], [], 0
+        for match in PLACEHOLDER.finditer(message):
+            texts.append(message[at : match.start()])
+            names.append(match.group(1))
+            at = match.end()
+        texts.append(message[at:])
+        kept = _TEMPLATES[message] = (texts, names)
+    return kept
+
+
 def _add_findings(
     ruled: Ruled, cells: Cells, fired: IndexArray, findings: list[list[Finding]]
 ) -> None:
@@ -606,43 +618,70 @@ def _add_findings(
         # the fired cells' values as Python numbers: the loop below reads each a few times
         return list(np.asarray(array)[fired].tolist())
 
-    # (correction, shortcut, exact, the stated number's concrete name, its value) at each
-    # fired cell
+    # (correction, shortcut, exact, the stated number's concrete name, its calculation-file
+    # key, its value) at each fired cell
     columns = [
         (
             corr,
             at_fired(_cells_array(corr.shortcut, x, values, count)),
             at_fired(_cells_array(corr.exact, x, values, count)),
             name,
+            quantity_key(name),
             at_fired(values[name]) if name else [math.nan] * fired.size,
         )
         for corr in rule.corrections
         for name in [names.get(corr.stated, corr.stated) if corr.stated else None]
     ]
-    # a word-valued quantity (unit "text") is shown as it is
-    shown = {
-        key: (at_fired(values[c]), unit)
-        if isinstance(c, str)
-        else (at_fired(_cells_array(c, x, values, count)), unit)
-        for key, (c, unit) in rule.show.items()
+    indicators = at_fired(ruled.indicator)
+    # the message: what is the same at every fired cell written into its text once; a
+    # word-valued quantity (unit "text") shown as it is; the first correction's error
+    # (None below) known only in the loop
+    words = carrier_message_words(x)
+    fixed = {
+        "threshold": display(rule.threshold, rule.indicator_unit),
+        "carrier": words[0],
+        "dopants": words[1],
+        "kind": words[2],
     }
-    words, carrier = carrier_message_words(x), carrier_word(x)
-    threshold = display(rule.threshold, rule.indicator_unit)
+    texts, slots = _template(rule.message)
+    parts: list[str] = [texts[0]]
+    varying: list[list[str] | None] = []
+    for name, text in zip(slots, texts[1:]):
+        column: list[str] | None
+        if name in rule.show:
+            shown, unit = rule.show[name]
+            if isinstance(shown, str):
+                column = [str(v) for v in at_fired(values[shown])]
+            else:
+                column = [display(v, unit) for v in at_fired(_cells_array(shown, x, values, count))]
+        elif name == "value":
+            column = [display(v, rule.indicator_unit) for v in indicators]
+        elif name == "error":
+            column = None
+        else:
+            parts[-1] += fixed[name] + text
+            continue
+        varying.append(column)
+        parts.append(text)
     causes = [
         (text, at_fired(_nonzero(_cells_array(gate, x, values, count))))
         for gate, text in rule.causes
     ]
     implied = [(name, at_fired(mask)) for name, mask in ruled.implied]
     owners, by_formula = at_fired(cells.owner), at_fired(ruled.by_formula)
-    indicators = at_fired(ruled.indicator)
+    carrier = carrier_word(x)
+    calculations, embodied, formula_items = cells.calculations, cells.embodied, cells.formula_items
+    declared = rule.declared
+    requires = [names.get(n, n) for n in rule.requires]
     for j in range(fired.size):
         owner = owners[j]
-        calc = cells.calculations[owner]
-        formula = cells.embodied[owner][by_formula[j]] if by_formula[j] >= 0 else None
+        calc = calculations[owner]
+        made = embodied[owner]
+        formula = made[by_formula[j]] if by_formula[j] >= 0 else None
         corrections = []
         line: int | None = None
-        column: str | None = None
-        for corr, shortcut, exact, stated_name, stated in columns:
+        column_name: str | None = None
+        for corr, shortcut, exact, stated_name, key, stated in columns:
             author = math.isfinite(stated[j])
             value = float(stated[j] if author else shortcut[j])
             truth = float(exact[j])
@@ -650,52 +689,55 @@ def _add_findings(
                 continue
             corrections.append(
                 Correction(
-                    corr.label,
-                    corr.unit,
-                    value,
-                    truth,
-                    value / truth - 1.0,
-                    author,
-                    key=quantity_key(stated_name),
+                    corr.label, corr.unit, value, truth, value / truth - 1.0, author, key=key
                 )
             )
             if author and line is None and stated_name:
                 line = _line_of(calc, stated_name)
-                column = calc.columns.get(stated_name)
+                column_name = calc.columns.get(stated_name)
         if line is None:
-            line = next((_line_of(calc, name) for name, mask in implied if mask[j]), None)
+            for name, mask in implied:  # the first implication made here
+                if mask[j]:
+                    line = _line_of(calc, name)
+                    break
         if line is None:
             # a rule without a correction of a stated number: the stated number it reads
-            stated_lines = (_line_of(calc, ruled.names.get(n, n)) for n in rule.requires)
-            line = next((at for at in stated_lines if at is not None), None)
+            for name in requires:
+                line = _line_of(calc, name)
+                if line is not None:
+                    break
         if line is None and formula is not None:
             line = formula.line
         if line is None:
-            line = next((calc.assumes[w] for w in rule.declared if w in calc.assumes), calc.line)
-        fields = {
-            "value": display(indicators[j], rule.indicator_unit),
-            "threshold": threshold,
-            "carrier": words[0],
-            "dopants": words[1],
-            "kind": words[2],
-            "error": corrections[0].error_text() if corrections else "n/a",
-        }
-        fields.update(
-            {
-                key: str(array[j]) if unit == "text" else display(array[j], unit)
-                for key, (array, unit) in shown.items()
-            }
-        )
-        message = PLACEHOLDER.sub(lambda m: fields[m.group(1)], rule.message)
-        cause = next((text for text, held in causes if held[j]), None)
-        if cause:
-            message += f" Likely cause: {cause}."
+            line = calc.line
+            for word in declared:
+                if word in calc.assumes:
+                    line = calc.assumes[word]
+                    break
+        message = parts[0]
+        for column, text in zip(varying, parts[1:]):  # (a message has a few placeholders)
+            if column is not None:
+                message += column[j] + text
+            elif corrections:
+                first = corrections[0]
+                message += error_text(first.stated, first.corrected, first.unit) + text
+            else:
+                message += "n/a" + text
+        for text, held in causes:  # the first likely cause that holds here
+            if held[j]:
+                if text:
+                    message += f" Likely cause: {text}."
+                break
         # every formula line that makes the same assumption for this carrier
-        uses = {
-            item.line
-            for item in cells.embodied[owner]
-            if item.word in rule.declared and (not x or item.carrier in (x, None))
-        }
+        also_at: tuple[int, ...] = ()
+        if made:
+            uses = {
+                at
+                for word, code, at in formula_items[owner]
+                if word in declared and (not x or code in (x, None))
+            }
+            uses.discard(int(line))
+            also_at = tuple(sorted(uses))
         findings[owner].append(
             Finding(
                 rule=rule.id,
@@ -714,7 +756,7 @@ def _add_findings(
                 file=calc.source,
                 line=int(line),
                 formula=formula.formula if formula is not None else None,
-                column=column,
-                also_at=tuple(sorted(uses - {int(line)})),
+                column=column_name,
+                also_at=also_at,
             )
         )

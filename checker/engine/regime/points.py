@@ -139,8 +139,10 @@ def _one_verdict_per_correction(findings: list[Finding]) -> list[Finding]:
     assumptions = [f.assumption for f in findings if f.corrections]
     if len(set(assumptions)) == len(assumptions):
         return list(findings)
-    # each finding's corrections read once
-    items = [corrected(f) if f.corrections else set() for f in findings]
+    # each finding's corrections read once, where another correcting finding shares its
+    # assumption (a finding alone in its assumption is the worst of its own items)
+    shared = {a for a in assumptions if assumptions.count(a) > 1}
+    items = [corrected(f) if f.corrections and f.assumption in shared else set() for f in findings]
     ranks = [SEVERITY_RANK[f.severity] for f in findings]
     worst: dict[tuple[str, str, str | int, float], int] = {}
     for own, rank in zip(items, ranks):

@@ -50,6 +50,8 @@ SHEET_INPUTS = (
     "stated_nl_p",
 )
 WIRE_INPUTS = ("stated_nl_n", "stated_nl_p")
+# (as sets: is_sheet asks of every calculation whether it states one of them)
+_SHEET_FIXERS, _WIRE_FIXERS = frozenset(SHEET_INPUTS[:3]), frozenset(WIRE_INPUTS)
 # per dimensionality: the stem of the density names, its display unit and factor from SI
 _DENSITY = {2: ("ns", "cm-2", 1e-4), 1: ("nl", "cm-1", 1e-2)}
 _MODES = {2: "modes_w", 1: "modes_1d"}  # modes per width (2D), a count (1D)
@@ -57,7 +59,7 @@ _MODES = {2: "modes_w", 1: "modes_1d"}  # modes per width (2D), a count (1D)
 
 def is_wire(calc: Calculation) -> bool:
     """True where the 1D solve applies (a stated line density in a 1D calculation)."""
-    stated = any(name in calc.stated for name in WIRE_INPUTS)
+    stated = not _WIRE_FIXERS.isdisjoint(calc.stated)
     return stated and int(calc.structure.get("dim", 3)) == 1
 
 
@@ -66,7 +68,7 @@ def is_sheet(calc: Calculation) -> bool:
     in a 2D calculation, or a wire (``is_wire``)."""
     if calc.material.dimensionality == 2 and int(calc.structure.get("dim", 2)) == 2:
         return True
-    stated = any(name in calc.stated for name in SHEET_INPUTS[:3])
+    stated = not _SHEET_FIXERS.isdisjoint(calc.stated)
     return (stated and int(calc.structure.get("dim", 3)) == 2) or is_wire(calc)
 
 

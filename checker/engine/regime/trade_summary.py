@@ -21,6 +21,7 @@ from ...physics.carriers import regime_label
 from ...physics.equilibrium import State
 from ...quantity_registry.display_units import DISPLAY_UNITS
 from ...quantity_registry.summary_fields import JSON_FIELDS, FieldValue
+from .taken import Taken
 
 
 def trade_summary(
@@ -55,30 +56,32 @@ class PointSummaries:
     computed for all points in one call."""
 
     def __init__(self, values: Mapping[str, ArrayIn]):
-        self._values = values
-        self._columns: dict[str, list[Any]] = {}
-        self._fields = [f for f in JSON_FIELDS if "residual" in values or not f.state_only]
-        self._whole: dict[str, list[FieldValue]] = {}
-        for f in self._fields:
+        # each quantity as a list of Python numbers, made on its first read
+        self._columns = Taken(values, lambda array: np.asarray(array).tolist())
+        fields = [f for f in JSON_FIELDS if "residual" in values or not f.state_only]
+        # (key, the field's column where computed for all points, else None, its reader)
+        self._plan: list[tuple[str, list[FieldValue] | None, Any]] = []
+        for f in fields:
             physics = _COLUMN_PHYSICS.get(f.key)
             if physics is None or not all(name in values for name in f.reads):
-                continue  # (a quantity the values lack: the field's own reader says None)
+                # (a quantity the values lack: the field's own reader says None)
+                self._plan.append((f.key, None, f.value))
+                continue
             function, unit = physics
             numbers = function(*(np.asarray(values[name], dtype=float) for name in f.reads))
             numbers = np.asarray(numbers, dtype=float) * DISPLAY_UNITS[unit]
-            self._whole[f.key] = [v if math.isfinite(v) else None for v in numbers.tolist()]
+            whole = [v if math.isfinite(v) else None for v in numbers.tolist()]
+            self._plan.append((f.key, whole, f.value))
 
     def __getitem__(self, index: int) -> dict[str, FieldValue]:
-        columns, values, whole = self._columns, self._values, self._whole
+        columns = self._columns
 
         def get(name: str) -> Any:
-            column = columns.get(name)
-            if column is None:  # a missing quantity raises KeyError, as trade_summary's
-                column = columns[name] = np.asarray(values[name]).tolist()
-            return column[index]
+            return columns[name][index]
 
         return {
-            f.key: whole[f.key][index] if f.key in whole else f.value(get) for f in self._fields
+            key: whole[index] if whole is not None else reader(get)
+            for key, whole, reader in self._plan
         }
 
 
