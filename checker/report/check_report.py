@@ -241,8 +241,8 @@ def _pieces(report, width: int, kinds: dict) -> list[tuple]:
     written whole whose ``style`` gives its styled stretches, ``(length, style, ...,
     None, style)`` (the last to the line's end; one flat tuple: cheap to make), or with
     style _TABLE the state table of the summary ``text``.  User text comes as it is:
-    each writer escapes what needs it.  ``kinds``: the first line under a formula of
-    each match already made in this report (the reports' matches stay alive while it
+    each writer escapes what needs it.  ``kinds``: the piece of the first line under a
+    formula of each match already made in this report (the reports' matches stay alive while it
     is written, so their ids hold)."""
     pieces: list[tuple] = []
     put = pieces.append
@@ -264,8 +264,8 @@ def _pieces(report, width: int, kinds: dict) -> list[tuple]:
         key = (id(r.match), r.problem)
         what = kinds.get(key)
         if what is None:
-            what = kinds[key] = formula_what(r)
-        put((26, what, ""))
+            what = kinds[key] = (26, formula_what(r), "")
+        put(what)
         here = formula_here(r)
         if here is not None:
             put((26, here, ""))
@@ -370,7 +370,8 @@ def _checked(lines: list[str], table: str, after: int) -> str | None:
         if not table.replace("\n", "").isprintable():
             return None
         lines.insert(after, table)
-    return "\n".join(lines) + "\n"
+    lines.append("")  # the section's last newline
+    return "\n".join(lines)
 
 
 def _state_table(summary) -> str:
