@@ -139,16 +139,19 @@ class _PlainText:
 PLAIN_WIDTH = 110
 
 
-def wrapped(line: str, width: int) -> list[str]:
+def wrapped(line: str, width: int, printable: bool | None = None) -> list[str]:
     """``textwrap.wrap(line, width, break_on_hyphens=False) or [""]``, without textwrap's
     chunk lists for the usual line: printable (no tab, newline or whitespace other than
     spaces, which textwrap rewrites), no leading or trailing space (which it keeps or drops
     by position) and no word longer than ``width`` (which it breaks, filling the line
     before).  There its greedy fill ends each line at the last space within ``width``, the
-    spaces at a break dropped."""
+    spaces at a break dropped.  ``printable``: ``line.isprintable()`` where the caller
+    has it already (None: not known)."""
     lines: list[str] = []
     rest = line
-    if line.isprintable() and line[:1] != " " and line[-1:] != " ":
+    if printable is None:
+        printable = line.isprintable()
+    if printable and line[:1] != " " and line[-1:] != " ":
         while len(rest) > width:
             cut = rest.rfind(" ", 0, width + 1)
             if cut < 0:  # a word longer than the line: textwrap's own breaking
@@ -352,7 +355,7 @@ def _plain_calculation(report, width: int, kinds: dict | None = None) -> str | N
             if parts is None:
                 if not text.isprintable():  # wrapped() rewrites whitespace but spaces
                     return None
-                parts = [margins[indent] + part for part in wrapped(text, width - indent)]
+                parts = [margins[indent] + part for part in wrapped(text, width - indent, True)]
                 if indent == 26:
                     kinds[text] = parts
             lines += parts
