@@ -74,8 +74,9 @@ def also_lines(f) -> str:
 
 def finding_where(f) -> str:
     """Where a finding is, with the other lines that make the same assumption."""
-    also = also_lines(f)
-    return _where(f.file, f.line, f.column) + also
+    if f.line and f.column is None and not f.also_at:  # the usual finding: 'file:line'
+        return f"{f.file}:{f.line}"
+    return _where(f.file, f.line, f.column) + also_lines(f)
 
 
 def unchecked_text(report) -> str | None:
@@ -122,10 +123,6 @@ class _PlainText:
         """Append text already made visible (or our own words): no second pass."""
         self.parts.append(text)
 
-    def append_pair(self, safe, text, safe_style="", style=""):
-        """append_safe(safe), then append(text): one part (no style to keep apart)."""
-        self.parts.append(safe + _shown(text))
-
     def append_rows(self, rows):
         """The state table, '  label' and the value right-aligned a line each, as one part
         (one check that nothing in it needs escaping)."""
@@ -142,16 +139,19 @@ class _PlainText:
 PLAIN_WIDTH = 110
 
 
-def wrapped(line: str, width: int) -> list[str]:
+def wrapped(line: str, width: int, printable: bool | None = None) -> list[str]:
     """``textwrap.wrap(line, width, break_on_hyphens=False) or [""]``, without textwrap's
     chunk lists for the usual line: printable (no tab, newline or whitespace other than
     spaces, which textwrap rewrites), no leading or trailing space (which it keeps or drops
     by position) and no word longer than ``width`` (which it breaks, filling the line
     before).  There its greedy fill ends each line at the last space within ``width``, the
-    spaces at a break dropped."""
+    spaces at a break dropped.  ``printable``: ``line.isprintable()`` where the caller
+    has it already (None: not known)."""
     lines: list[str] = []
     rest = line
-    if line.isprintable() and line[:1] != " " and line[-1:] != " ":
+    if printable is None:
+        printable = line.isprintable()
+    if printable and line[:1] != " " and line[-1:] != " ":
         while len(rest) > width:
             cut = rest.rfind(" ", 0, width + 1)
             if cut < 0:  # a word longer than the line: textwrap's own breaking
@@ -184,13 +184,10 @@ def render_console(result, console=None, stream=None) -> None:
             def append_safe(self, text, style=None):
                 return super().append(text, style)
 
-            def append_pair(self, safe, text, safe_style=None, style=None):
-                super().append(safe, safe_style)
-                return self.append(text, style)
-
             def append_rows(self, rows):
                 for label, text in rows:
-                    self.append_pair(f"  {label:<24}", f"{text:>24}\n", "dim")
+                    super().append(f"  {label:<24}", "dim")
+                    self.append(f"{text:>24}\n")
 
         Text, width = _EscapedText, max(console.width, 60)
         emit = lambda text: console.print(text, end="", highlight=False)
@@ -202,7 +199,7 @@ def render_console(result, console=None, stream=None) -> None:
             stream.write(plain)
             continue
         out = Text()
-        _calculation(out, report, width)
+        _calculation(out, report, width, kinds)
         emit(out)
     tail = Text()
     for note in result.notes:
@@ -233,67 +230,103 @@ def _title(calc, width: int) -> str:
     return title + "─" * max(width - len(title), 3)
 
 
-def _calculation(out, report, width: int) -> None:
-    """One calculation's section of the console report, into ``out`` (a Text): every
-    piece of user text escaped where it needs it, each line checked on its own."""
+# the indent of a piece of a calculation's section that is not a line to wrap, and the
+# style that marks the state table among those (see _pieces)
+_WHOLE, _TABLE = None, ("table",)
+_BOLD, _GREEN = (None, "bold"), (None, "green")
 
-    def add(text, line, style="", indent=8):
-        margin = _MARGINS[indent]
-        if len(line) <= width - indent and line[:1] != " " and line[-1:] != " ":
-            if line.isprintable():  # wrapped() would keep it whole
-                text.append_safe(margin + line + "\n", style=style)
-                return
-        for part in wrapped(_shown(line), width - indent):
-            text.append_safe(margin + part + "\n", style=style)
 
+def _pieces(report, width: int, kinds: dict) -> list[tuple]:
+    """The one producer of a calculation's section of the console report, for both of
+    its writers (:func:`_calculation`, styled; :func:`_plain_calculation`, plain): its
+    pieces in order, each ``(indent, text, style)``.  A line to wrap at ``width -
+    indent``, each part indented by ``indent``, in ``style``; for indent _WHOLE, a line
+    written whole whose ``style`` gives its styled stretches, ``(length, style, ...,
+    None, style)`` (the last to the line's end; one flat tuple: cheap to make), or with
+    style _TABLE the state table of the summary ``text``.  User text comes as it is:
+    each writer escapes what needs it.  ``kinds``: the piece of the first line under a
+    formula of each match already made in this report (the reports' matches stay alive while it
+    is written, so their ids hold)."""
+    pieces: list[tuple] = []
+    put = pieces.append
     calc = report.calc
-    out.append(_title(calc, width) + "\n", style="bold")
-    add(
-        out,
-        f"{_where(calc.source, calc.line)} · {calc.material.name} · {point_text(calc)}",
-        indent=0,
-    )
+    put((_WHOLE, _title(calc, width), _BOLD))
+    put((0, f"{_where(calc.source, calc.line)} · {calc.material.name} · {point_text(calc)}", ""))
     if report.error:
-        add(out, f"not checked: {report.error}", "bold red", indent=2)
-        return
+        put((2, f"not checked: {report.error}", "bold red"))
+        return pieces
     if report.sweep:
-        add(out, f"sweep of {report.sweep['points']} grid points", indent=2)
+        put((2, f"sweep of {report.sweep['points']} grid points", ""))
     else:
-        out.append_rows(shown_rows(CHECK_ROWS, report.state))
+        put((_WHOLE, report.state, _TABLE))
     for r in report.formulas:
-        out.append(f"  formula (line {r.line})".ljust(26), style="dim")
-        out.append(f"{r.text}\n", style="bold")
-        for line in formula_lines(r):
-            add(out, line, indent=26)
+        head = f"  formula (line {r.line})".ljust(26)
+        put((_WHOLE, head + r.text, (len(head), "dim", None, "bold")))
+        # the first line is the same for every formula of one match (the many
+        # calculations of a file state the same few formulas): made once
+        key = (id(r.match), r.problem)
+        what = kinds.get(key)
+        if what is None:
+            what = kinds[key] = (26, formula_what(r), "")
+        put(what)
+        here = formula_here(r)
+        if here is not None:
+            put((26, here, ""))
     if not report.findings:
-        out.append_safe("  no assumption leaves its regime\n", style="green")
+        put((_WHOLE, "  no assumption leaves its regime", _GREEN))
     for f in report.findings:
-        tag = "waived" if f.waived else f.severity
-        style = "dim" if f.waived else STYLE[f.severity]
-        out.append_pair(f"{tag.upper():8s}", f"{f.rule}  {f.title}", style, "bold")
-        out.append(f"  at {finding_where(f)}\n", style="dim")
-        add(out, finding_message(f))
+        waived = f.waived
+        tag = _TAGS["waived" if waived else f.severity]
+        head = f"{f.rule}  {f.title}"
+        spans = (len(tag), "dim" if waived else STYLE[f.severity], len(head), "bold", None, "dim")
+        put((_WHOLE, f"{tag}{head}  at {finding_where(f)}", spans))
+        put((8, finding_message(f), ""))
         indicator = f.indicator_text()
         if indicator:
-            add(out, f"regime indicator: {indicator}", "dim")
+            put((8, f"regime indicator: {indicator}", "dim"))
         for c in f.corrections:
-            add(out, correction_text(c))
-        if f.waived:
-            add(out, f"waived: {f.waived}", "dim")
+            put((8, correction_text(c), ""))
+        if waived:
+            put((8, f"waived: {waived}", "dim"))
     corrected = corrected_lines(report)
     if corrected:
-        add(out, "corrected calculation (each stated number once):", "bold", indent=2)
+        put((2, "corrected calculation (each stated number once):", "bold"))
         for line in corrected:
-            add(out, line, indent=4)
+            put((4, line, ""))
     unchecked = unchecked_text(report)
     if unchecked:
-        add(out, unchecked, "yellow", indent=2)
+        put((2, unchecked, "yellow"))
     for note in report.notes:
-        add(out, f"note: {note}", "yellow", indent=2)
+        put((2, f"note: {note}", "yellow"))
+    return pieces
 
 
-class _NotPrintable(Exception):
-    """A piece of a calculation's text holds a character :func:`_shown` would escape."""
+def _fits(line: str, room: int) -> bool:
+    """A line wrapped() keeps whole where it is printable: no longer than ``room``, no
+    space at either end (which textwrap keeps or drops by position)."""
+    return len(line) <= room and line[:1] != " " and line[-1:] != " "
+
+
+def _calculation(out, report, width: int, kinds: dict | None = None) -> None:
+    """One calculation's section of the console report, styled, into ``out`` (a Text):
+    every piece of user text escaped where it needs it, each piece checked on its own."""
+    for indent, text, style in _pieces(report, width, {} if kinds is None else kinds):
+        if style is _TABLE:
+            out.append_rows(shown_rows(CHECK_ROWS, text))
+        elif indent is _WHOLE:
+            start = 0
+            for length, part_style in zip(style[::2], style[1::2]):
+                if length is None:
+                    out.append(text[start:] + "\n", style=part_style)
+                else:
+                    out.append(text[start : start + length], style=part_style)
+                    start += length
+        elif _fits(text, width - indent) and text.isprintable():  # wrapped() keeps it whole
+            out.append_safe(_MARGINS[indent] + text + "\n", style=style)
+        else:
+            margin = _MARGINS[indent]
+            for part in wrapped(_shown(text), width - indent):
+                out.append_safe(margin + part + "\n", style=style)
 
 
 def _plain_calculation(report, width: int, kinds: dict | None = None) -> str | None:
@@ -302,97 +335,37 @@ def _plain_calculation(report, width: int, kinds: dict | None = None) -> str | N
     piece is not printable (a tab, a control or format character, a line separator in
     user text): there :func:`_calculation` escapes piece by piece.  Where every piece
     is printable the two write the same lines (tests/test_console_many.py).  ``kinds``:
-    the lines under a formula of each match already written in this report (the
-    reports' formula matches stay alive while it is written, so their ids hold)."""
+    as :func:`_pieces`; here also each long line under a formula, by its text, as the
+    lines it wraps into (printable: only those are kept)."""
     kinds = {} if kinds is None else kinds
-    calc = report.calc
-    lines = [_title(calc, width)]
-    keep = lines.append
-    at8, margin8 = width - 8, _MARGINS[8]
-
-    def add(line: str, indent: int) -> None:
-        # as _calculation's add(): a line of the line's width with no space at either
-        # end is kept whole (printable: checked below, with the rest); any other goes
-        # through wrapped(), which rewrites whitespace that is not a space, so it is
-        # checked first
-        if len(line) <= width - indent and line[:1] != " " and line[-1:] != " ":
-            keep(_MARGINS[indent] + line)
-        elif line.isprintable():
-            margin = _MARGINS[indent]
-            lines.extend([margin + part for part in wrapped(line, width - indent)])
-        else:
-            raise _NotPrintable
-
+    lines: list[str] = []
+    keep, margins = lines.append, _MARGINS
     table, after = "", 0
-    try:
-        add(f"{_where(calc.source, calc.line)} · {calc.material.name} · {point_text(calc)}", 0)
-        if report.error:
-            add(f"not checked: {report.error}", 2)
-            return _checked(lines, "", 0)
-        if report.sweep:
-            add(f"sweep of {report.sweep['points']} grid points", 2)
-        else:
-            table, after = _state_table(report.state), len(lines)
-        for r in report.formulas:
-            keep(f"  formula (line {r.line})".ljust(26) + r.text)
-            # the first line is the same for every formula of one match (the many
-            # calculations of a file state the same few formulas): wrapped once
-            key = (id(r.match), r.problem)
-            first = kinds.get(key)
-            if first is None:
-                start = len(lines)
-                add(formula_what(r), 26)
-                first = kinds[key] = lines[start:]
+    for indent, text, style in _pieces(report, width, kinds):
+        if indent is None:  # _WHOLE
+            if style is _TABLE:
+                table, after = _state_table(text), len(lines)
             else:
-                lines += first
-            here = formula_here(r)
-            if here is not None:
-                add(here, 26)
-        if not report.findings:
-            keep("  no assumption leaves its regime")
-        for f in report.findings:
-            waived = f.waived
-            where = (
-                f"{f.file}:{f.line}"  # finding_where(f) where it has no column or other line
-                if f.line and f.column is None and not f.also_at
-                else finding_where(f)
-            )
-            keep(f"{_TAGS['waived' if waived else f.severity]}{f.rule}  {f.title}  at {where}")
-            add(f.message if f.sweep is None else finding_message(f), 8)
-            indicator = f.indicator_text()
-            if indicator:
-                line = f"regime indicator: {indicator}"
-                if len(line) <= at8 and line[-1:] != " ":  # (it starts with a letter)
-                    keep(margin8 + line)
-                else:
-                    add(line, 8)
-            for c in f.corrections:
-                line = correction_text(c)
-                if len(line) <= at8 and line[:1] != " " and line[-1:] != " ":
-                    keep(margin8 + line)
-                else:
-                    add(line, 8)
-            if waived:
-                add(f"waived: {waived}", 8)
-        corrected = corrected_lines(report)
-        if corrected:
-            add("corrected calculation (each stated number once):", 2)
-            for line in corrected:
-                add(line, 4)
-        unchecked = unchecked_text(report)
-        if unchecked:
-            add(unchecked, 2)
-        for note in report.notes:
-            add(f"note: {note}", 2)
-    except _NotPrintable:
-        return None
+                keep(text)  # printable: checked below, with the rest
+        elif len(text) <= width - indent and text[:1] != " " and text[-1:] != " ":
+            keep(margins[indent] + text)  # as _fits(), inline: most lines come here
+        else:
+            # a formula's line is the same in many calculations: wrapped once (printable)
+            parts = kinds.get(text) if indent == 26 else None
+            if parts is None:
+                if not text.isprintable():  # wrapped() rewrites whitespace but spaces
+                    return None
+                parts = [margins[indent] + part for part in wrapped(text, width - indent, True)]
+                if indent == 26:
+                    kinds[text] = parts
+            lines += parts
     return _checked(lines, table, after)
 
 
 def _checked(lines: list[str], table: str, after: int) -> str | None:
     """The section of ``lines`` with ``table`` (the state table, "" for none) after the
-    first ``after`` of them, or None where a character in them is not printable.  Every piece of
-    text is in the lines, so one check covers them (a newline inside one fails it too);
+    first ``after`` of them, or None where a character in them is not printable.  Every
+    piece of text is in the lines, so one check covers them (a newline inside one fails it too);
     the table is checked as append_rows checks it."""
     if not "".join(lines).isprintable():
         return None
@@ -400,7 +373,8 @@ def _checked(lines: list[str], table: str, after: int) -> str | None:
         if not table.replace("\n", "").isprintable():
             return None
         lines.insert(after, table)
-    return "\n".join(lines) + "\n"
+    lines.append("")  # the section's last newline
+    return "\n".join(lines)
 
 
 def _state_table(summary) -> str:
