@@ -454,64 +454,21 @@ def _analyse_text(text: str, majority: str, dim: int, band: str, where: str) -> 
 
 
 # ---- one calculation ------------------------------------------------------------------------
-# (the calculation's formula texts, majority, dim, band) -> each text's analysis and the
-# assumptions the list embodies as (word, carrier, the formula's place in the list): what a
-# calculation's analysis is apart from its lines (the calculations of a file state a few
-# lists of formulas).  Lists with a text that does not parse are not kept.
-_LISTS: dict[
-    tuple[tuple[str, ...], str, int, str],
-    tuple[list[FormulaResult], list[tuple[str, str | None, int]]],
-] = {}
-
-
 def analyse_calculation(calc: Calculation, band: str = "parabolic") -> FormulaAnalysis:
     """Parse, dimension-check and match every formula of ``calc`` (in the band world
     ``band`` of its material: relations.band_world); evaluate_all gives the values."""
-    dim, majority = int(calc.structure.get("dim", 3)), calc.majority
-    formulas = calc.formulas
-    key = (tuple(text for text, _, _ in formulas), majority, dim, band)
-    known = _LISTS.get(key)
-    if known is None:
-        try:
-            texts = [
-                _text_analysis(text, majority, dim, band, where) for text, where, _ in formulas
-            ]
-        except InputError:
-            return _analyse_each(formulas, majority, dim, band)  # (each error named)
-        embodies = [
-            (word, carrier, j)
-            for j, result in enumerate(texts)
-            if result.match is not None
-            for word, carrier in result.match.assumptions
-        ]
-        if len(_LISTS) >= _TEXTS_KEPT:
-            _LISTS.clear()
-        known = _LISTS[key] = (texts, embodies)
-    texts, embodies = known
-    return FormulaAnalysis(
-        [_placed(result, where, line) for result, (_, where, line) in zip(texts, formulas)],
-        [Embodied(word, carrier, formulas[j][2], formulas[j][0]) for word, carrier, j in embodies],
-    )
-
-
-def _placed(known: FormulaResult, where: str, line: int) -> FormulaResult:
-    # a text's shared analysis, placed at one line (a shallow copy, as copy.copy makes of a
-    # dataclass, without its pickling protocol: 2,000 of them in a file)
-    result = object.__new__(FormulaResult)
-    result.__dict__.update(known.__dict__, where=where, line=line)
-    return result
-
-
-def _analyse_each(
-    formulas: Sequence[tuple[str, str, int]], majority: str, dim: int, band: str
-) -> FormulaAnalysis:
     out = FormulaAnalysis()
-    for text, where, line in formulas:
+    dim, majority = int(calc.structure.get("dim", 3)), calc.majority
+    for text, where, line in calc.formulas:
         try:
-            result = _placed(_text_analysis(text, majority, dim, band, where), where, line)
+            known = _text_analysis(text, majority, dim, band, where)
         except InputError as exc:
             out.errors.append(str(exc))
             continue
+        # the text's shared analysis, placed at this line (a shallow copy, as copy.copy
+        # makes of a dataclass, without its pickling protocol: 2,000 of them in a file)
+        result = object.__new__(FormulaResult)
+        result.__dict__.update(known.__dict__, where=where, line=line)
         out.results.append(result)
         if result.match is None:
             continue
