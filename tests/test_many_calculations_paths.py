@@ -56,6 +56,9 @@ def test_the_kept_readings_are_bounded():
     for k in range(quantities._MOST_KEPT + 10):
         assert parse_quantity(f"{k + 1} cm", "length") == pytest.approx((k + 1) * 1e-2)
     assert len(quantities._READ) <= quantities._MOST_KEPT
+    long_text = "1." + "0" * 100_000 + " cm"  # read (the same value), never kept
+    assert parse_quantity(long_text, "length") == pytest.approx(1e-2)
+    assert all(len(text) <= quantities._LONGEST_KEPT for text, _ in quantities._READ)
 
 
 def test_messages_from_split_placeholders_equal_substitution():
@@ -118,86 +121,33 @@ def test_taken_values_equal_the_eager_take():
     assert listed["T"] == np.asarray(values["T"]).tolist()
 
 
-# a p-type point stating its minority (electron) density, read by DOPE01 through
-# dens_bgn_n, beside n-type points that state their doping as n (VAL01's gate ends first)
-_NARROWING_FILE = (
-    _FILE
-    + "---\n"
-    + (
-        "name: minority\nmaterial: Si\ntemperature: 300 K\n"
-        "doping:\n  acceptors: {B: 1e19 cm-3}\n"
-        "stated:\n  electron_density: 12 cm-3\n"
-        "assumes: [non-degenerate]\n"
-    )
-)
+def test_a_narrowed_solve_that_fails_leaves_its_calculation_not_checked(tmp_path):
+    # A material file may give a Slotboom V1 up to 1 eV; at 1e20 cm-3 that narrows the gap
+    # by more than the gap itself, and the solve with narrowing (read by DOPE01 and VAL01
+    # beside a stated n_i or minority density) cannot converge.  Such a calculation is
+    # reported as not checked (an input error, exit 2), never checked with the narrowed
+    # densities unknown (DOPE01 then fired with an infinite factor).
+    import yaml
 
+    from checker.api import check_paths
+    from checker.resources import materials_dir
 
-def _solve_calls(monkeypatch):
-    """The solves with band-gap narrowing that state_values asks for, counted."""
-    narrowed = []
-    solve = state_values.equilibrium.solve
-
-    def counted(*args, **kwargs):
-        if kwargs.get("band_gap_narrowing"):
-            narrowed.append(np.size(args[1]))
-        return solve(*args, **kwargs)
-
-    monkeypatch.setattr(state_values.equilibrium, "solve", counted)
-    return narrowed
-
-
-def test_the_solve_with_narrowing_waits_for_its_first_reader(monkeypatch):
-    # heavily doped n-type points stating n = N_D: the narrowing matters there (more
-    # than 1 % in n_i^2), but VAL01's gate ends at n = N_D and DOPE01's at no stated
-    # minority density
-    text = "---\n".join(
-        f"material: Si\ntemperature: {T} K\ndoping:\n  donors: {{P: 1e19 cm-3}}\n"
-        "stated:\n  electron_density: 1e19 cm-3\n"
-        for T in (250, 300, 350)
-    )
-    calcs = parse_calculations(text, "doped.yaml").calculations
-    narrowed = _solve_calls(monkeypatch)
-    values, errors, _ = state_values.solve_all(calcs)
-    assert not errors and not narrowed
-    evaluate.evaluate(rulebook.load_rules(), calcs, values)
-    assert not narrowed  # no gate got as far as dens_bgn_x
-    assert values.pending("dens_bgn_n") and "dens_bgn_n" in values and not narrowed
-    # a reader of the whole mapping gets every quantity: the pending ones computed then
-    assert {"dens_bgn_n", "dens_bgn_p"} <= set(values)
-    assert narrowed == [3] and not values.pending("dens_bgn_n")
-
-
-def test_narrowed_densities_read_later_equal_the_eager_solve():
-    result = parse_calculations(_NARROWING_FILE, "many.yaml")
-    assert not result.errors
-    calcs = result.calculations
-    values, errors, _ = state_values.solve_all(calcs)
-    assert not errors
-    for index, calc in enumerate(calcs):
-        T = np.array([calc.temperature])
-        donors = {s: np.array([d]) for s, d in calc.donors.items()}
-        acceptors = {s: np.array([d]) for s, d in calc.acceptors.items()}
-        eager, _ = state_values.solve_points(calc, T, donors, acceptors, calcs=[calc])
-        for name in ("dens_bgn_n", "dens_bgn_p"):
-            assert values[name][index] == eager[name][0], (calc.name, name)
-    # the p-type point's narrowed minority density differs from its plain solve's
-    assert values["dens_bgn_n"][-1] > 1.5 * values["dens_n"][-1]
-
-
-def test_a_narrowed_solve_that_fails_leaves_the_densities_unknown(monkeypatch):
-    result = parse_calculations(_NARROWING_FILE, "many.yaml")
-    solve = state_values.equilibrium.solve
-
-    def failing(*args, **kwargs):
-        if kwargs.get("band_gap_narrowing"):
-            raise state_values.RegimecheckError("no convergence (a test's)")
-        return solve(*args, **kwargs)
-
-    monkeypatch.setattr(state_values.equilibrium, "solve", failing)
-    values, errors, _ = state_values.solve_all(result.calculations)
-    assert not errors
-    assert np.isfinite(values["dens_n"]).all()
-    # the p-type point's group asks for the solve with narrowing: unknown there; the other
-    # groups need none (no stated density their narrowing would change): their own solve's
-    np.testing.assert_array_equal(values["dens_bgn_n"][:-1], values["dens_n"][:-1])
-    assert np.isnan(values["dens_bgn_n"][-1])
+    silicon = yaml.safe_load((materials_dir() / "Si.yaml").read_text(encoding="utf-8"))
+    silicon["name"] = "Si-wide-narrowing"
+    silicon["band_gap_narrowing"]["V1"] = "1 eV"
+    plain = {
+        "name": "no stated density",
+        "material": silicon,
+        "temperature": "300 K",
+        "doping": {"donors": {"P": "1e20 cm-3"}},
+    }
+    stating = {
+        **plain,
+        "name": "stated n_i and p",
+        "stated": {"intrinsic_density": "1e10 cm-3", "hole_density": "1e2 cm-3"},
+    }
+    path = tmp_path / "wide.yaml"
+    path.write_text(yaml.safe_dump_all([plain, stating], sort_keys=False), encoding="utf-8")
+    reports = check_paths([path]).reports
+    assert reports[0].error is None
+    assert reports[1].error is not None and "converge" in reports[1].error

@@ -197,6 +197,7 @@ def read_number(text: str):
 # at most _MOST_KEPT of them
 _READ: dict[tuple[str, str], float] = {}
 _MOST_KEPT = 4096
+_LONGEST_KEPT = 64  # characters: a longer text (padding, a run of digits) is read, not kept
 
 
 def parse_quantity(text, dimension: str, where: str = "") -> float:
@@ -209,7 +210,7 @@ def parse_quantity(text, dimension: str, where: str = "") -> float:
 
 def _kept(read: Callable[[Any, str, str], float], text: Any, dimension: str, where: str) -> float:
     """``read(text, dimension, where)``, looked up where the text was read before."""
-    if type(text) is not str:
+    if type(text) is not str or len(text) > _LONGEST_KEPT:
         return read(text, dimension, where)
     value = _READ.get((text, dimension))
     if value is None:

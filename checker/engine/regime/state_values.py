@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import functools
 import itertools
-from collections.abc import Callable, Collection, Iterator, Mapping, Sequence
+from collections.abc import Callable, Collection, Mapping, Sequence
 from typing import TYPE_CHECKING, Any, TypeAlias
 
 import numpy as np
@@ -20,7 +20,7 @@ import numpy.typing as npt
 from ... import records
 from ...errors import MissingParameterError, RegimecheckError
 from ...physics import carriers, energy_window, equilibrium, fermi, hall, transport
-from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray, distinct
+from ...physics.arrays import ArrayIn, BoolArray, FloatArray, distinct
 from ...physics.constants import BOLTZMANN, ELEMENTARY_CHARGE
 from ...physics.equilibrium import State
 from ...physics.materials import Material
@@ -29,8 +29,6 @@ from ...vocabulary_words import Carrier
 from . import conductor_values, sheet_values
 
 if TYPE_CHECKING:
-    from _collections_abc import dict_items, dict_keys, dict_values
-
     from ...inputs.calculation_file import Calculation
 
 # quantity name -> one array over the points (cells): float64, or an object array of
@@ -162,11 +160,10 @@ class Deferred:
 
 
 class LazyValues(dict[str, npt.NDArray[Any]]):
-    """A sweep chunk's quantities (solve_sweep with ``reads``), or single points' (solve_all:
-    the solve with narrowing): a quantity some rule may read, but only where its gate
-    holds (the transport where no rule reads a mobility unless a stated number is given;
-    the minority carrier's Einstein ratio), is computed when first looked up, never where
-    no rule reads it.  What is looked
+    """A sweep chunk's quantities (solve_sweep with ``reads``): a quantity some rule may
+    read, but only where its gate holds (the transport where no rule reads a mobility
+    unless a stated number is given; the minority carrier's Einstein ratio), is
+    computed when first looked up, never where no chunk's rules read it.  What is looked
     up is what computing it at once would have given (the same functions of the same
     arrays); a name given a value directly is never computed again."""
 
@@ -275,8 +272,6 @@ def solve_all(
     # the bulk points solved, by material: their onset temperatures are found after the
     # groups, in one bisection per material (elementwise, so the same numbers)
     bulk: dict[int, tuple[Material, list[int]]] = {}
-    # each bulk group's solve with narrowing, done where a rule first reads dens_bgn_x
-    later: list[tuple[IndexArray, Deferred]] = []
 
     def solved(members: list[int]) -> None:
         first = calculations[members[0]]
@@ -285,11 +280,11 @@ def solve_all(
 
     for members in groups.values():
         try:
-            skipped = _solve_group(calculations, members, values, later)
+            skipped = _solve_group(calculations, members, values)
         except RegimecheckError:
             for index in members:
                 try:
-                    skipped = _solve_group(calculations, [index], values, later)
+                    skipped = _solve_group(calculations, [index], values)
                 except RegimecheckError as exc:
                     errors[index] = str(exc)
                     continue
@@ -303,79 +298,7 @@ def solve_all(
     for material, members in bulk.values():
         _place_onsets(material, members, values, errors)
     fill_inputs(calculations, values)
-    if later:
-        values = _narrowed_later(values, later, errors)
     return values, errors, notes
-
-
-# the carrier densities of the solve with the material's band-gap narrowing
-_NARROWED = ("dens_bgn_n", "dens_bgn_p")
-
-
-def _narrowed_later(
-    values: Values, later: list[tuple[IndexArray, Deferred]], errors: Collection[int]
-) -> LazyValues:
-    """``values`` with dens_bgn_x computed on first read, from each bulk group's solve with
-    narrowing (``later``: the group's points, its Deferred): the rules read them only
-    beside some stated numbers, and their gates mostly end before (VAL01 where a stated
-    density is neither N, |N_D - N_A| nor n_i^2/|N_D - N_A|; DOPE01 at a stated minority
-    density), so a file of many calculations mostly never reads them.  A point lost after
-    its solve (errors) stays unknown; a group whose solve with narrowing cannot be done
-    leaves its points' dens_bgn_x unknown (the two rules then stay silent there)."""
-    count = len(values["T"])
-    lazy = _PointValues(count)
-    lazy.update(values)
-    lost = np.array(sorted(errors), dtype=np.intp)
-
-    def compute(_: Values) -> dict[str, FloatArray]:
-        out = {name: np.full(count, np.nan) for name in _NARROWED}
-        for at, deferred in later:
-            try:
-                got = deferred.compute(lazy)
-            except RegimecheckError:
-                continue
-            for name in _NARROWED:
-                out[name][at] = got[name]
-        for name in _NARROWED:
-            out[name][lost] = np.nan
-        return out
-
-    lazy.defer(_NARROWED, Deferred(compute))
-    return lazy
-
-
-class _PointValues(LazyValues):
-    """solve_all's values, some computed on first look-up (:func:`_narrowed_later`); going
-    over the names (iteration, keys, items, values, len) computes every pending one
-    first, so a reader of the whole mapping sees every quantity, as from an eager solve;
-    ``in`` counts a pending name in."""
-
-    def _all(self) -> None:
-        for name in list(self._pending):
-            self[name]  # (computed by __missing__)
-
-    def __contains__(self, name: object) -> bool:
-        return super().__contains__(name) or name in self._pending
-
-    def __iter__(self) -> Iterator[str]:
-        self._all()
-        return super().__iter__()
-
-    def __len__(self) -> int:
-        self._all()
-        return super().__len__()
-
-    def keys(self) -> dict_keys[str, npt.NDArray[Any]]:
-        self._all()
-        return super().keys()
-
-    def items(self) -> dict_items[str, npt.NDArray[Any]]:
-        self._all()
-        return super().items()
-
-    def values(self) -> dict_values[str, npt.NDArray[Any]]:
-        self._all()
-        return super().values()
 
 
 def _place_onsets(
@@ -399,27 +322,17 @@ def _place_onsets(
 
 
 def _solve_group(
-    calculations: Sequence[Calculation],
-    members: list[int],
-    values: Values,
-    later: list[tuple[IndexArray, Deferred]],
+    calculations: Sequence[Calculation], members: list[int], values: Values
 ) -> str | None:
     calcs = [calculations[i] for i in members]
     T = np.array([c.temperature for c in calcs])
     donors = {s: np.array([c.donors[s] for c in calcs]) for s in calcs[0].donors}
     acceptors = {s: np.array([c.acceptors[s] for c in calcs]) for s in calcs[0].acceptors}
     sheet = sheet_values.sheet_inputs(calcs) if sheet_values.is_sheet(calcs[0]) else None
-    put, skipped = solve_points(
-        calcs[0], T, donors, acceptors, sheet, calcs, onset=False, narrowed_later=True
-    )
+    put, skipped = solve_points(calcs[0], T, donors, acceptors, sheet, calcs, onset=False)
     # (the index array made once for ~150 quantities; a number or an array of the
     # group's points is broadcast by the assignment itself)
     at = np.array(members, dtype=np.intp)
-    narrowed = put.get(_NARROWED[0])
-    if isinstance(narrowed, Deferred):  # (a bulk group: the sheet solve gives none)
-        for name in _NARROWED:
-            del put[name]
-        later.append((at, narrowed))
     for name, array in put.items():
         values[name][at] = array
     return skipped
@@ -443,7 +356,6 @@ def solve_points(
     reference: carriers.ReferenceSolves | None = None,
     rows: tuple[carriers.Rows, carriers.Rows] | None = None,
     onset: bool = True,
-    narrowed_later: bool = False,
 ) -> tuple[dict[str, Any], str | None]:
     """Solve points sharing ``first``'s material, species, dimensionality and options at
     the temperatures ``T`` and the densities (arrays, m^-3); return (quantities, note).
@@ -453,9 +365,7 @@ def solve_points(
     read (bulk modes, the solve with narrowing) is computed at their points alone;
     ``reads``, ``reference``, ``rows``: see :func:`solve_sweep`; with ``reads`` (a sweep's
     chunk) some quantities are given as a :class:`Deferred`, computed where first read.
-    ``onset`` False: T_onset is left to the caller (solve_all finds it per material).
-    ``narrowed_later``: dens_bgn_x, the solve with narrowing, given as a Deferred of the
-    points (solve_all computes it where a rule first reads it)."""
+    ``onset`` False: T_onset is left to the caller (solve_all finds it per material)."""
 
     def where(reads: Callable[[Calculation], bool]) -> BoolArray:
         if calcs is None:
@@ -611,8 +521,8 @@ def solve_points(
                 f"gdeg_{x}": main.degeneracy if main else np.nan,
             }
         )
-    if lazy or narrowed_later:
-        put["dens_bgn_n"] = put["dens_bgn_p"] = Deferred(narrowed_densities, placed=lazy)
+    if lazy:
+        put["dens_bgn_n"] = put["dens_bgn_p"] = Deferred(narrowed_densities, placed=True)
     else:
         put.update(narrowed_densities())
     # electrons count as the majority on a tie (intrinsic material: n = p to rounding)
