@@ -11,9 +11,7 @@ import math
 
 import pytest
 from scipy import constants
-
-from checker.engine.run import check_calculations
-from checker.inputs.calculation_file import read_calculation_file
+from test_formula_columns import checked_reports
 
 # (material, donor, donors cm^-3, acceptors cm^-3, temperature K): invented points
 POINTS = [
@@ -41,13 +39,8 @@ def _text() -> str:
 
 
 def test_each_formula_error_as_its_calculation_alone(tmp_path):
-    path = tmp_path / "errors.yaml"
-    path.write_text(_text(), encoding="utf-8")
-    read = read_calculation_file(path)
-    assert read.errors == []
-    result = check_calculations(read.calculations)
     checked = 0
-    for (*_, T), report in zip(POINTS, result.reports):
+    for (*_, T), report in zip(POINTS, checked_reports(tmp_path, _text())):
         assert [r.text for r in report.formulas] == list(FORMULAS)
         for formula in report.formulas:
             value, exact = formula.value, formula.exact
