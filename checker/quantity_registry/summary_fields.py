@@ -2,10 +2,12 @@
 reports (``check`` and ``state`` commands, the Python API) and the rows of the console
 tables, one field each, so that a quantity has one key and one label everywhere.
 
-A field reads registered quantities (SI, :mod:`.registry`) and gives one number, word or
-flag in the trade unit its key names, or None where the point has no such value (no field
-given, band-gap narrowing off, a material without mobility data, or values that do not
-carry the quantity): JSON writes null, the console tables leave the row out.  JSON lists
+A field reads registered quantities (SI, :mod:`.registry`) as columns over the points
+summarized and gives, per point, one number, word or flag in the trade unit its key names,
+or None where the point has no such value (no field given, band-gap narrowing off, a
+material without mobility data, or values that do not carry the quantity): JSON writes
+null, the console tables leave the row out.  One point's summary is the columns over that
+point alone; a check of many calculations computes each field once for all of them.  JSON lists
 the fields every summary has first, then those of the ``state`` command alone (the band
 densities of states and the solve's residual); the console tables list them in the
 table's order.
