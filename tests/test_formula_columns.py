@@ -23,13 +23,17 @@ def _text() -> str:
     return "---\n".join(docs)
 
 
-def test_each_calculation_gets_its_own_formula_values(tmp_path):
-    path = tmp_path / "groups.yaml"
-    path.write_text(_text(), encoding="utf-8")
+def checked_reports(folder, text: str) -> list:
+    """The reports of ``text`` checked as a calculation file (read without errors)."""
+    path = folder / "groups.yaml"
+    path.write_text(text, encoding="utf-8")
     read = read_calculation_file(path)
     assert read.errors == []
-    result = check_calculations(read.calculations)
-    for (_, nd, na), report in zip(POINTS, result.reports):
+    return check_calculations(read.calculations).reports
+
+
+def test_each_calculation_gets_its_own_formula_values(tmp_path):
+    for (_, nd, na), report in zip(POINTS, checked_reports(tmp_path, _text())):
         values = [r.value for r in report.formulas]
         # the densities as written, cm^-3 -> m^-3 (1 cm^-3 = 1e6 m^-3: SI definition)
         expected = [nd * 1e6, na * 1e6, (nd - na) * 1e6]

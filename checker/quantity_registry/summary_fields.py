@@ -2,10 +2,12 @@
 reports (``check`` and ``state`` commands, the Python API) and the rows of the console
 tables, one field each, so that a quantity has one key and one label everywhere.
 
-A field reads registered quantities (SI, :mod:`.registry`) and gives one number, word or
-flag in the trade unit its key names, or None where the point has no such value (no field
-given, band-gap narrowing off, a material without mobility data, or values that do not
-carry the quantity): JSON writes null, the console tables leave the row out.  JSON lists
+A field reads registered quantities (SI, :mod:`.registry`) as columns over the points
+summarized and gives, per point, one number, word or flag in the trade unit its key names,
+or None where the point has no such value (no field given, band-gap narrowing off, a
+material without mobility data, or values that do not carry the quantity): JSON writes
+null, the console tables leave the row out.  One point's summary is the columns over that
+point alone; a check of many calculations computes each field once for all of them.  JSON lists
 the fields every summary has first, then those of the ``state`` command alone (the band
 densities of states and the solve's residual); the console tables list them in the
 table's order.
@@ -16,9 +18,10 @@ re-typed here.
 
 from __future__ import annotations
 
-import math
-from collections.abc import Callable
-from typing import Any, SupportsFloat, TypeAlias
+from collections.abc import Callable, Sequence
+from typing import Any, TypeAlias
+
+import numpy as np
 
 from ..physics import transport
 from ..physics.constants import EV
@@ -27,66 +30,86 @@ from .display_units import DISPLAY_UNITS
 
 PER_CM3 = DISPLAY_UNITS["cm^-3"]  # m^-3 -> cm^-3
 
-# get(name): the point's value of a registered quantity (a number, or a word for the
-# text-valued ones such as the regime); KeyError where the values do not carry it
-Getter: TypeAlias = Callable[[str], Any]
-# what a summary field gives: a number, a word, a flag, or None (unknown here)
+# get(name): a registered quantity's values at the points summarized, a one-dimensional
+# array (one element for one point); KeyError where the values do not carry it
+Columns: TypeAlias = Callable[[str], Any]
+# what a summary field gives at a point: a number, a word, a flag, or None (unknown here)
 FieldValue: TypeAlias = float | str | bool | None
-Reader: TypeAlias = Callable[[Getter], FieldValue]
-# a number computed from the quantities (a float or a one-point array)
-Compute: TypeAlias = Callable[[Getter], SupportsFloat]
+# a field's values at every point, in order; None: unknown at every point
+Reader: TypeAlias = Callable[[Columns], Sequence[FieldValue] | None]
+# numbers computed from the quantities, one per point (an array)
+Compute: TypeAlias = Callable[[Columns], Any]
 
 
 class SummaryField(FrozenRecord):
+    """One field of the summary: its value at one point is its column over that point
+    alone (``trade_summary``), so a check of many calculations computes each field once
+    for all of them with the same elementwise arithmetic."""
+
     key: str  # JSON key (its trade unit in the name)
     label: str | None  # console label; None: JSON only
     shown: str  # console format of the value
     reads: tuple[str, ...]  # the registered quantities (concrete names) it is computed from
-    value: Reader  # get(name) -> the point's value of a quantity  ->  the field's value
+    values: Reader  # get(name) -> the quantity's column  ->  the field's column
     state_only: bool = False  # only the state command solves for it
     in_check: bool = False  # also a row of the check report's state table
 
 
+def _floats(get: Columns, name: str) -> Any:
+    return np.asarray(get(name), dtype=float)
+
+
 def _number(name: str, factor: float = 1.0) -> Reader:
-    return lambda get: float(get(name)) * factor
+    if factor == 1.0:
+        return lambda get: _floats(get, name).tolist()
+    return lambda get: (_floats(get, name) * factor).tolist()
 
 
 def _energy_ev(name: str) -> Reader:
-    return lambda get: float(get(name)) / EV
+    return lambda get: (_floats(get, name) / EV).tolist()
 
 
 def _where_known(compute: Compute, unit: str) -> Reader:
-    """The value of ``compute`` in ``unit``, or None where it is unknown: a quantity the
-    values do not carry (a summary built from a bare solve has no structure), or NaN
-    (no field given, no mobility data)."""
+    """The values of ``compute`` in ``unit``, None where unknown: a quantity the values
+    do not carry (a summary built from a bare solve has no structure: None everywhere),
+    or NaN (no field given, no mobility data)."""
 
-    def value(get: Getter) -> float | None:
+    def values(get: Columns) -> list[FieldValue] | None:
         try:
-            number = float(compute(get)) * DISPLAY_UNITS[unit]
+            numbers = np.asarray(compute(get), dtype=float) * DISPLAY_UNITS[unit]
         except KeyError:
             return None
-        return number if math.isfinite(number) else None
+        known = numbers.astype(object)  # (its elements Python floats)
+        known[~np.isfinite(numbers)] = None
+        column: list[FieldValue] = known.tolist()
+        return column
 
-    return value
+    return values
+
+
+def _quantity(name: str) -> Compute:
+    return lambda get: get(name)
 
 
 def _diffusivity(x: str) -> Compute:
     # generalized Einstein relation at the mobility the calculation uses: the solve's own
     # ratio n/(dn/deta) where it gives one (Kane bulk bands, sheets, linear bands), else
-    # physics.transport's parabolic form
-    def compute(get: Getter) -> float:
+    # physics.transport's parabolic form, one call per dimensionality
+    def compute(get: Columns) -> Any:
+        mu = _floats(get, f"used_mu_{x}")
         try:
-            ratio = float(get(f"einstein_{x}"))
+            ratio = _floats(get, f"einstein_{x}")
         except KeyError:
-            return float(
-                transport.diffusion_coefficient(
-                    float(get(f"used_mu_{x}")),
-                    float(get("T")),
-                    float(get(f"eta_{x}")),
-                    int(get("dim")),
-                )
-            )
-        return float(get(f"used_mu_{x}")) * float(get("kT_q")) * ratio
+            T, eta, dims = _floats(get, "T"), _floats(get, f"eta_{x}"), _floats(get, "dim")
+            first = dims[0] if dims.size else 3.0
+            if (dims == first).all():
+                return transport.diffusion_coefficient(mu, T, eta, int(first))
+            out = np.empty(dims.size)
+            for dim in np.unique(dims).tolist():
+                at = dims == dim
+                out[at] = transport.diffusion_coefficient(mu[at], T[at], eta[at], int(dim))
+            return out
+        return mu * _floats(get, "kT_q") * ratio
 
     return compute
 
@@ -94,32 +117,46 @@ def _diffusivity(x: str) -> Compute:
 def _field_velocity(x: str) -> Compute:
     # Caughey–Thomas velocity at the given field; NaN (so no row) where no field is given
     return lambda get: transport.drift_velocity(
-        float(get(f"used_mu_{x}")),
-        float(get("field")),
-        float(get(f"vsat_{x}")),
-        float(get(f"beta_{x}")),
+        *(_floats(get, name) for name in (f"used_mu_{x}", "field", f"vsat_{x}", f"beta_{x}"))
     )
 
 
-def _is_linear(get: Getter) -> bool:
+def _linear(get: Columns) -> Any:
     try:
-        return float(get("linear")) > 0
+        return _floats(get, "linear") > 0
     except KeyError:  # a bare bulk solve carries no band shape: gapped
-        return False
+        return None
 
 
-def _gapped(compute: Reader) -> Reader:
+def _gapped(compute: Compute) -> Reader:
     # band edges E_C, E_V exist only where there is a gap; a zero-gap sheet has E_D
-    return lambda get: None if _is_linear(get) else compute(get)
+    def values(get: Columns) -> list[FieldValue]:
+        linear, numbers = _linear(get), compute(get).tolist()
+        if linear is None or not linear.any():
+            return numbers  # type: ignore[no-any-return]
+        return [None if gapless else v for gapless, v in zip(linear.tolist(), numbers)]
+
+    return values
 
 
-def _zero_gap(compute: Reader) -> Reader:
-    return lambda get: compute(get) if _is_linear(get) else None
+def _zero_gap(compute: Compute) -> Reader:
+    def values(get: Columns) -> list[FieldValue] | None:
+        linear = _linear(get)
+        if linear is None:
+            return None
+        numbers = compute(get).tolist()
+        return [v if gapless else None for gapless, v in zip(linear.tolist(), numbers)]
+
+    return values
 
 
-def _narrowed_ni(get: Getter) -> float:
+def _fermi_level_ev(get: Columns) -> Any:
+    return _floats(get, "eta_n") * _floats(get, "kT") / EV
+
+
+def _narrowed_ni(get: Columns) -> Any:
     # shown only where the solve narrows the gap (elsewhere n_ie is n_i, the row above)
-    return float(get("nie")) if float(get("bgn_on")) > 0 else math.nan
+    return np.where(_floats(get, "bgn_on") > 0, _floats(get, "nie"), np.nan)
 
 
 def _per_carrier(
@@ -154,7 +191,7 @@ TRANSPORT = (
         "μ_{x} (model)",
         "{:.4g} cm^2/(V*s)",
         ("mu_{x}",),
-        lambda x: lambda get: get(f"mu_{x}"),
+        lambda x: _quantity(f"mu_{x}"),
         "cm^2/(V*s)",
         in_check=True,
     ),
@@ -180,7 +217,7 @@ TRANSPORT = (
         "λ_{x} (mean free path)",
         "{:.3g} nm",
         ("lambda_{x}",),
-        lambda x: lambda get: get(f"lambda_{x}"),
+        lambda x: _quantity(f"lambda_{x}"),
         "nm",
     ),
     SummaryField(
@@ -188,14 +225,14 @@ TRANSPORT = (
         "σ",
         "{:.4g} S/cm",
         ("sigma",),
-        _where_known(lambda get: get("sigma"), "S/cm"),
+        _where_known(_quantity("sigma"), "S/cm"),
     ),
     SummaryField(
         "rho_ohm_cm",
         "ρ",
         "{:.4g} ohm*cm",
         ("rho",),
-        _where_known(lambda get: get("rho"), "ohm*cm"),
+        _where_known(_quantity("rho"), "ohm*cm"),
         in_check=True,
     ),
     SummaryField(
@@ -216,7 +253,7 @@ SHEET = (
         "{x}_s (sheet)",
         "{:.4g} cm^-2",
         ("ns_{x}",),
-        lambda x: lambda get: get(f"ns_{x}"),
+        lambda x: _quantity(f"ns_{x}"),
         "cm^-2",
         in_check=True,
     ),
@@ -225,7 +262,7 @@ SHEET = (
         "N_2D ({x})",
         "{:.4g} cm^-2",
         ("N2D_{x}",),
-        lambda x: lambda get: get(f"N2D_{x}"),
+        lambda x: _quantity(f"N2D_{x}"),
         "cm^-2",
     ),
     SummaryField(
@@ -233,7 +270,7 @@ SHEET = (
         "n_i (sheet)",
         "{:.4g} cm^-2",
         ("ni_s",),
-        _where_known(lambda get: get("ni_s"), "cm^-2"),
+        _where_known(_quantity("ni_s"), "cm^-2"),
         in_check=True,
     ),
 )
@@ -245,7 +282,7 @@ WIRE = (
         "{x}_l (line)",
         "{:.4g} cm^-1",
         ("nl_{x}",),
-        lambda x: lambda get: get(f"nl_{x}"),
+        lambda x: _quantity(f"nl_{x}"),
         "cm^-1",
         in_check=True,
     ),
@@ -254,7 +291,7 @@ WIRE = (
         "N_1D ({x})",
         "{:.4g} cm^-1",
         ("N1D_{x}",),
-        lambda x: lambda get: get(f"N1D_{x}"),
+        lambda x: _quantity(f"N1D_{x}"),
         "cm^-1",
     ),
     *_per_carrier(
@@ -262,14 +299,20 @@ WIRE = (
         "modes ({x}, wire)",
         "{:.4g}",
         ("modes_1d_{x}",),
-        lambda x: lambda get: get(f"modes_1d_{x}"),
+        lambda x: _quantity(f"modes_1d_{x}"),
         "1",
     ),
 )
 
 FIELDS = (
     SummaryField(
-        "regime", "regime", "{}", ("regime",), lambda get: str(get("regime")), False, True
+        "regime",
+        "regime",
+        "{}",
+        ("regime",),
+        lambda get: [str(word) for word in np.asarray(get("regime")).tolist()],
+        False,
+        True,
     ),
     SummaryField("temperature_K", None, "{} K", ("T",), _number("T")),
     SummaryField(
@@ -277,7 +320,7 @@ FIELDS = (
         "E_F - E_C",
         "{:+.4f} eV",
         ("eta_n", "kT"),
-        _gapped(lambda get: float(get("eta_n")) * float(get("kT")) / EV),
+        _gapped(_fermi_level_ev),
         in_check=True,
     ),
     SummaryField(
@@ -285,14 +328,14 @@ FIELDS = (
         "E_F - E_V",
         "{:+.4f} eV",
         ("eta_p", "kT"),
-        _gapped(lambda get: -float(get("eta_p")) * float(get("kT")) / EV),
+        _gapped(lambda get: -_floats(get, "eta_p") * _floats(get, "kT") / EV),
     ),
     SummaryField(
         "EF_minus_ED_eV",
         "E_F - E_D (Dirac point)",
         "{:+.4f} eV",
         ("eta_n", "kT", "linear"),
-        _zero_gap(lambda get: float(get("eta_n")) * float(get("kT")) / EV),
+        _zero_gap(_fermi_level_ev),
         in_check=True,
     ),
     SummaryField(
@@ -336,7 +379,7 @@ FIELDS = (
         "above Mott density",
         "{}",
         ("metal_n", "metal_p"),
-        lambda get: bool(float(get("metal_n")) > 0 or float(get("metal_p")) > 0),
+        lambda get: ((_floats(get, "metal_n") > 0) | (_floats(get, "metal_p") > 0)).tolist(),
     ),
     *TRANSPORT,
     *SHEET,

@@ -21,7 +21,7 @@ For each formula ``lhs = rhs`` of a calculation:
 from __future__ import annotations
 
 import math
-from collections.abc import Collection, Iterable, Mapping, Sequence
+from collections.abc import Callable, Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
 from itertools import combinations
@@ -44,7 +44,7 @@ from ..regime.state_values import Values
 from ..regime.taken import Taken
 from . import match_store
 from .match import Match, analyse
-from .relations import band_world, world
+from .relations import World, band_world, world
 from .symbols import dimension_of, parse_side
 
 if TYPE_CHECKING:
@@ -261,57 +261,102 @@ def _has_dimension(tree: Node, dim: int, target: dm.Dimension) -> bool:
 
 
 # ---- values at the operating point ----------------------------------------------------------
+class _Made(dict[str, np.ndarray]):
+    """Columns made on their first read by ``make(name)`` and kept (KeyError: no such
+    symbol, nothing kept): a group's formulas read a few of the ~70 symbols."""
+
+    def __init__(self, make: Callable[[str], np.ndarray]) -> None:
+        super().__init__()
+        self._make = make
+
+    def __missing__(self, name: str) -> np.ndarray:
+        column = self[name] = self._make(name)
+        return column
+
+
+_CONSTANTS = {"h": PLANCK, "m0": ELECTRON_MASS, "pi": math.pi}
+
+
+def _symbol_columns(values: Values, calculations: Sequence[Calculation], dims: np.ndarray) -> _Made:
+    """Each formula symbol's values over the calculations, made on its first read."""
+    count = len(calculations)
+
+    def given(name: str) -> np.ndarray:
+        # no lifetime is stated in a calculation: what depends on one is not evaluated
+        if name in _NOT_STATED:
+            return np.full(count, np.nan)
+        if name in _CONSTANTS:
+            return np.full(count, _CONSTANTS[name])
+        if name in _FROM_INPUTS:
+            key = _FROM_INPUTS[name]
+            return np.array(
+                [c.structure.get(key, c.stated.get(key, np.nan)) for c in calculations],
+                dtype=float,
+            )
+        if name in ("D_n", "D_p"):
+            # D from the solve's own Einstein ratio n/(dn/deta): the relation table's F_j
+            # ratio holds for parabolic bands only (a Kane bulk band, a sheet's subbands, a
+            # linear band differ)
+            x = name[-1]
+            return np.asarray(
+                values[f"used_mu_{x}"] * values["kT_q"] * values[f"einstein_{x}"], dtype=float
+            )
+        if name == "E_F":
+            fermi_level: np.ndarray = given("E_c") + values["eta_n"] * values["kT"]
+            return fermi_level
+        if name == "E_c":
+            return np.asarray(values["Eg"], dtype=float)
+        if name == "E_v":
+            return np.zeros(count)
+        return np.asarray(values[_FROM_STATE[name]], dtype=float)  # (KeyError: no symbol)
+
+    def make(name: str) -> np.ndarray:
+        if name == "beta_kane_n":  # alpha kT of a Kane conduction band (0: parabolic)
+            return _column(values, "beta_kane_n", count)
+        column = given(name)
+        if name in _BULK_ONLY:
+            column = np.where(dims == 3, column, np.nan)
+        return column
+
+    return _Made(make)
+
+
 def _operating_groups(
     values: Values, calculations: Sequence[Calculation]
-) -> list[tuple[list[int], dict[str, np.ndarray]]]:
-    """(members, every formula symbol's values over them) per group of calculations that
-    share one world of definitions (dimension, majority carrier, band)."""
-    count = len(calculations)
-    known = {name: np.asarray(values[key], dtype=float) for name, key in _FROM_STATE.items()}
-    kT = values["kT"]
-    known["E_v"] = np.zeros(count)
-    known["E_c"] = np.asarray(values["Eg"], dtype=float)
-    known["E_F"] = known["E_c"] + values["eta_n"] * kT
-    # D from the solve's own Einstein ratio n/(dn/deta): the relation table's F_j ratio holds
-    # for parabolic bands only (a Kane bulk band, a sheet's subbands, a linear band differ)
-    for x in ("n", "p"):
-        known[f"D_{x}"] = np.asarray(
-            values[f"used_mu_{x}"] * values["kT_q"] * values[f"einstein_{x}"], dtype=float
-        )
-    for symbol, name in _FROM_INPUTS.items():
-        known[symbol] = np.array(
-            [c.structure.get(name, c.stated.get(name, np.nan)) for c in calculations], dtype=float
-        )
-    known.update(
-        {
-            "h": np.full(count, PLANCK),
-            "m0": np.full(count, ELECTRON_MASS),
-            "pi": np.full(count, math.pi),
-        }
-    )
-    # no lifetime is stated in a calculation: what depends on one is not evaluated
-    known.update({name: np.full(count, np.nan) for name in _NOT_STATED})
+) -> list[tuple[list[int], Mapping[str, np.ndarray]]]:
+    """(members, every formula symbol's values over them, made on first read) per group of
+    calculations that share one world of definitions (dimension, majority carrier, band)."""
     dims = np.array([int(c.structure.get("dim", 3)) for c in calculations], dtype=int)
-    for name in _BULK_ONLY:
-        known[name] = np.where(dims == 3, known[name], np.nan)
-    # alpha kT of a Kane conduction band (0: parabolic), the definitions' beta_kane_n
-    known["beta_kane_n"] = _column(values, "beta_kane_n", count)
+    known = _symbol_columns(values, calculations, dims)
     bands = point_bands(values, dims)
-    out = []
     groups: dict[tuple[int, str, str], list[int]] = {}
     for i, calc in enumerate(calculations):
         groups.setdefault((int(dims[i]), calc.majority, bands[i]), []).append(i)
-    for (dim, majority, band), members in groups.items():
-        base = world(dim, "donor", majority, band)
-        point = {name: array[members] for name, array in known.items()}
-        with np.errstate(all="ignore"):
-            for name in base.order:
-                if name not in point:
-                    point[name] = np.broadcast_to(
-                        to_numpy(base.definitions[name])(point), (len(members),)
-                    )
-        out.append((members, point))
-    return out
+    return [
+        (members, _group_columns(known, members, world(dim, "donor", majority, band)))
+        for (dim, majority, band), members in groups.items()
+    ]
+
+
+def _group_columns(known: _Made, members: list[int], base: World) -> _Made:
+    """The symbols at a group's members: the known columns taken at them, the rest from
+    the world's definitions."""
+    rows = np.asarray(members, dtype=np.intp)
+
+    def make(name: str) -> np.ndarray:
+        try:
+            column = known[name]
+        except KeyError:
+            definition = base.definitions.get(name)
+            if definition is None:
+                raise
+            with np.errstate(all="ignore"):
+                return np.broadcast_to(_compiled(definition)(point), (len(members),))
+        taken: np.ndarray = column[rows]
+        return taken
+
+    point = _Made(make)
+    return point
 
 
 def _column(values: Values, name: str, count: int) -> np.ndarray:
@@ -337,15 +382,14 @@ _compiled = lru_cache(maxsize=4096)(to_numpy)
 _text_of = lru_cache(maxsize=4096)(to_text)
 
 
-def _evaluate(tree: Node, point: Mapping[str, np.ndarray], count: int) -> list[float]:
+def _evaluate(tree: Node, point: Mapping[str, np.ndarray], count: int) -> np.ndarray:
     """The tree's value at each of ``count`` points (NaN where a symbol has no value)."""
     try:
         with np.errstate(all="ignore"):
             found = np.asarray(_compiled(tree)(point), dtype=float)
     except KeyError:
-        return [math.nan] * count
-    column: list[float] = np.broadcast_to(found, (count,)).tolist()
-    return column
+        return np.full(count, np.nan)
+    return np.broadcast_to(found, (count,))
 
 
 # ---- one formula text -----------------------------------------------------------------------
@@ -467,31 +511,48 @@ def evaluate_all(
     rows = np.array(solved, dtype=np.intp)
     subset = Taken(values, lambda array: np.asarray(array)[rows] if np.ndim(array) else array)
     for members, point in _operating_groups(subset, [calculations[i] for i in solved]):
-        sides: dict[Node, list[tuple[int, FormulaResult, str]]] = {}
-        placed: list[tuple[int, FormulaResult]] = []
+        # each formula (its two sides, an energy or not): the members stating it, and there
+        pairs: dict[tuple[Node, Node, bool], tuple[list[int], list[FormulaResult]]] = {}
         for k, i in enumerate(members):
             analysis = analyses[solved[i]]
             for result in analysis.results if analysis is not None else ():
                 if result.match is not None:
-                    sides.setdefault(result.rhs, []).append((k, result, "value"))
-                    sides.setdefault(result.lhs, []).append((k, result, "exact"))
-                    placed.append((k, result))
-        for tree, uses in sides.items():
-            column = _evaluate(tree, point, len(members))
-            for k, result, side in uses:
-                setattr(result, side, column[k])
-        kT = (np.asarray(point["k"], dtype=float) * point["T"]).tolist() if placed else []
-        for k, result in placed:
-            _set_error(result, kT[k])
+                    at, placed = pairs.setdefault((result.lhs, result.rhs, result.energy), ([], []))
+                    at.append(k)
+                    placed.append(result)
+        if not pairs:
+            continue
+        sides: dict[Node, np.ndarray] = {}  # each tree once (one formula's side, another's)
+        kT = np.asarray(point["k"], dtype=float) * point["T"]
+        for (lhs, rhs, energy), (at, placed) in pairs.items():
+            stating = np.asarray(at, dtype=np.intp)
+            value, exact = (_side(sides, tree, point, len(members))[stating] for tree in (rhs, lhs))
+            error = _errors(value, exact, kT[stating], energy)
+            for result, v, e, r in zip(placed, value.tolist(), exact.tolist(), error.tolist()):
+                result.__dict__.update(value=v, exact=e, error=r)
 
 
-def _set_error(result: FormulaResult, kT: float) -> None:
-    result.error = math.nan
-    if math.isfinite(result.value) and math.isfinite(result.exact):
-        if result.energy:
-            result.error = (result.value - result.exact) / kT
-        elif result.exact != 0:
-            result.error = result.value / result.exact - 1.0
+def _side(
+    sides: dict[Node, np.ndarray], tree: Node, point: Mapping[str, np.ndarray], count: int
+) -> np.ndarray:
+    column = sides.get(tree)
+    if column is None:
+        column = sides[tree] = _evaluate(tree, point, count)
+    return column
+
+
+def _errors(value: np.ndarray, exact: np.ndarray, kT: np.ndarray, energy: bool) -> np.ndarray:
+    """Each point's error of a formula: (value - exact)/kT for an energy, else the relative
+    error; NaN where either side is not finite (or the exact value is 0)."""
+    with np.errstate(all="ignore"):
+        both = np.isfinite(value) & np.isfinite(exact)
+        if energy:
+            error = (value - exact) / kT
+        else:
+            both &= exact != 0
+            error = value / exact - 1.0
+    errors: np.ndarray = np.where(both, error, np.nan)
+    return errors
 
 
 # ---- findings -------------------------------------------------------------------------------

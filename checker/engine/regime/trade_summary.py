@@ -8,81 +8,58 @@ everywhere (the points above a Mott density are ``above_mott_density``).
 
 from __future__ import annotations
 
-import math
-from collections.abc import Callable, Mapping
+from collections.abc import Mapping
+from itertools import repeat
 from typing import Any
 
 import numpy as np
 
 from ...errors import MissingParameterError
-from ...physics import carriers, transport
+from ...physics import carriers
 from ...physics.arrays import ArrayIn
 from ...physics.carriers import regime_label
 from ...physics.equilibrium import State
-from ...quantity_registry.display_units import DISPLAY_UNITS
-from ...quantity_registry.summary_fields import JSON_FIELDS, FieldValue
+from ...quantity_registry.summary_fields import JSON_FIELDS, Columns, FieldValue, SummaryField
 from .taken import Taken
 
 
 def trade_summary(
     values: Mapping[str, ArrayIn], index: int | tuple[int, ...] = ()
 ) -> dict[str, FieldValue]:
-    """Trade-unit numbers of point ``index`` of ``values`` (registered quantity names, SI).
-    Where the values carry the solve's ``residual`` (the ``state`` command), the band
-    densities of states and the residual are added."""
+    """Trade-unit numbers of point ``index`` of ``values`` (registered quantity names, SI):
+    each field's column over that point alone.  Where the values carry the solve's
+    ``residual`` (the ``state`` command), the band densities of states and the residual
+    are added."""
 
     def get(name: str) -> Any:
-        return np.asarray(values[name])[index]
+        return np.reshape(np.asarray(values[name])[index], 1)
 
-    return _summary(get, "residual" in values)
-
-
-def _summary(get: Callable[[str], Any], full: bool) -> dict[str, FieldValue]:
-    return {f.key: f.value(get) for f in JSON_FIELDS if full or not f.state_only}
+    return _summaries(_fields(values), get, 1)[0]
 
 
-# fields that are one physics function of their ``reads`` in order, given in a unit: their
-# column is one call over all points (a scalar call per point cost ~4 µs), the same
-# elementwise arithmetic, so the same numbers (tests/test_point_summaries.py)
-_COLUMN_PHYSICS: dict[str, tuple[Callable[..., Any], str]] = {
-    f"v_{x}_at_field_cm_per_s": (transport.drift_velocity, "cm/s") for x in ("n", "p")
-}
+def _fields(values: Mapping[str, ArrayIn]) -> list[SummaryField]:
+    return [f for f in JSON_FIELDS if "residual" in values or not f.state_only]
+
+
+def _summaries(fields: list[SummaryField], get: Columns, size: int) -> list[dict[str, FieldValue]]:
+    """One summary per point: each field's column, then the points' rows."""
+    columns = [f.values(get) or repeat(None, size) for f in fields]
+    keys = [f.key for f in fields]
+    return [dict(zip(keys, row)) for row in zip(*columns)]
 
 
 class PointSummaries:
-    """:func:`trade_summary` of each point of one-dimensional ``values``, each quantity
-    read out as Python numbers once for all points (a check of many calculations asked
-    numpy for some twenty scalars per point), and the fields of :data:`_COLUMN_PHYSICS`
-    computed for all points in one call."""
+    """:func:`trade_summary` of each point of one-dimensional ``values``: each field
+    computed for all points at once (its column: a check of many calculations read some
+    twenty quantities per point as scalars), each quantity converted once."""
 
     def __init__(self, values: Mapping[str, ArrayIn]):
-        # each quantity as a list of Python numbers, made on its first read
-        self._columns = Taken(values, lambda array: np.asarray(array).tolist())
-        fields = [f for f in JSON_FIELDS if "residual" in values or not f.state_only]
-        # (key, the field's column where computed for all points, else None, its reader)
-        self._plan: list[tuple[str, list[FieldValue] | None, Any]] = []
-        for f in fields:
-            physics = _COLUMN_PHYSICS.get(f.key)
-            if physics is None or not all(name in values for name in f.reads):
-                # (a quantity the values lack: the field's own reader says None)
-                self._plan.append((f.key, None, f.value))
-                continue
-            function, unit = physics
-            numbers = function(*(np.asarray(values[name], dtype=float) for name in f.reads))
-            numbers = np.asarray(numbers, dtype=float) * DISPLAY_UNITS[unit]
-            whole = [v if math.isfinite(v) else None for v in numbers.tolist()]
-            self._plan.append((f.key, whole, f.value))
+        columns = Taken(values, np.asarray)
+        size = len(columns["T"])
+        self._rows = _summaries(_fields(values), columns.__getitem__, size)
 
     def __getitem__(self, index: int) -> dict[str, FieldValue]:
-        columns = self._columns
-
-        def get(name: str) -> Any:
-            return columns[name][index]
-
-        return {
-            key: whole[index] if whole is not None else reader(get)
-            for key, whole, reader in self._plan
-        }
+        return self._rows[index]
 
 
 def state_values(state: State) -> dict[str, ArrayIn]:
