@@ -52,8 +52,9 @@ ROWS_SHOWN = 5  # rows of a 2D grid whose boundary is written out
 
 @dataclass
 class FailingRun:
-    """A run of failing grid points along the boundary axis: its edge values (None:
-    the run reaches that end of the axis)."""
+    """A run of failing grid points along the boundary axis: its lower and upper edge
+    values, whichever way the axis is written (None: the run reaches that end of the
+    axis's range)."""
 
     low: float | None
     high: float | None
@@ -398,10 +399,14 @@ def _failing_runs(
         value = (crossings or {}).get((passing, failing))
         return float(values[failing] if value is None else value)
 
-    return [
+    runs = [
         FailingRun(None if i == 0 else edge(i - 1, i), None if j == last else edge(j + 1, j))
         for i, j in _runs(flags)
     ]
+    if values[0] <= values[-1]:
+        return runs
+    # an axis written from high to low: each run's edges, and the runs, in value order
+    return [FailingRun(run.high, run.low) for run in reversed(runs)]
 
 
 def boundary_steps(calc: Calculation, mask: BoolArray) -> Generator[Request, FloatArray, Boundary]:
