@@ -70,6 +70,10 @@ BALANCE_TOLERANCE = 1e-10  # relative neutrality error every returned point meet
 LevelTerm: TypeAlias = tuple[FloatArray, FloatArray, FloatArray, FloatArray]
 # a log density and its slope d/d eta (None: a constant)
 SlopedTerm: TypeAlias = tuple[FloatArray, FloatArray | None]
+# (kT, E_g/kT, ln N_c, ln N_v, n_i) of a block's points (_temperature_terms)
+TemperatureTerms: TypeAlias = tuple[FloatArray, FloatArray, FloatArray, FloatArray, FloatArray]
+# (one flat index of each distinct value, each point's row), as arrays.distinct_points
+Rows: TypeAlias = tuple[IndexArray, IndexArray]
 
 
 @dataclass
@@ -816,6 +820,7 @@ def solve(
     donors: Mapping[str, ArrayIn] | None = None,
     acceptors: Mapping[str, ArrayIn] | None = None,
     band_gap_narrowing: bool = False,
+    temperatures: Rows | None = None,
 ) -> State:
     """Solve charge neutrality for E_F at every (T, doping) point (vectorized).
 
@@ -824,6 +829,13 @@ def solve(
     broadcast with T).  Validity: T in [1, 1500] K and densities in
     [0, 1e28] m^-3 are covered by tests; the material models have their own
     fitted ranges (reported by the rules, not enforced here).
+    ``temperatures``: the points' distinct temperatures where the caller knows them (a
+    sweep's grid: one flat index of each, and each point's row, as
+    arrays.distinct_points gives them); the terms of T alone (kT, E_g/kT, ln N_c, ln N_v,
+    n_i: ~40 ns a point, about a sixth of the solve) are then evaluated once per
+    temperature and each block takes its points' rows -- the same elementwise arithmetic
+    on the same temperatures, so the same numbers.  Not with band-gap narrowing (E_g/kT
+    then depends on the doping).
 
     References
     ----------
@@ -861,8 +873,21 @@ def solve(
     levels = sum(len(species[name].bound_levels()) for name in species)
     level_logs = np.empty((levels, temps.size))
 
+    # the terms of T alone at each distinct temperature, and each point's row of them
+    by_row = None
+    if temperatures is not None and not band_gap_narrowing:
+        first, rows = temperatures
+        if np.shape(rows) != temps.shape:
+            raise ValueError("temperatures: one row per point")
+        by_row = (_temperature_terms(material, temps[first], 0.0), np.asarray(rows))
+
     def block(i: int) -> int:
         part = slice(i, i + size)
+        terms: TemperatureTerms | None = None
+        if by_row is not None:  # (a gather; taken on the block's own thread)
+            at = by_row[1][part]
+            kT, eg_kt, ln_nc, ln_nv, ni = (row.take(at, mode="clip") for row in by_row[0])
+            terms = (kT, eg_kt, ln_nc, ln_nv, ni)
         return _solve_flat(
             material,
             temps[part],
@@ -879,6 +904,7 @@ def solve(
                 level_logs[:, part],
             ),
             kane=kane,
+            temperature_terms=terms,
         )
 
     # blocks of at most CHUNK points (THREAD_CHUNK with threads), and at least one per
@@ -941,6 +967,18 @@ def _dominant_level(
     return offset, bound
 
 
+def _temperature_terms(material: Material, T: FloatArray, narrowing: ArrayIn) -> TemperatureTerms:
+    """(kT, (E_g - narrowing)/kT, ln N_c, ln N_v, n_i) at temperatures T (K): what the
+    solve of a block needs of T alone (and of the narrowing, J)."""
+    kT = BOLTZMANN * T
+    Eg = material.need("band_gap", "the equilibrium solve")(T)
+    Nc = material.need("Nc", "the equilibrium solve")(T)
+    Nv = material.need("Nv", "the equilibrium solve")(T)
+    eg_kt = (Eg - narrowing) / kT
+    ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
+    return kT, eg_kt, np.log(Nc), np.log(Nv), ni
+
+
 def _solve_flat(
     material: Material,
     T: FloatArray,
@@ -950,14 +988,12 @@ def _solve_flat(
     species: Mapping[str, Dopant],
     out: tuple[FloatArray, FloatArray, BoolArray, FloatArray, FloatArray, FloatArray],
     kane: KaneBand | None = None,
+    temperature_terms: TemperatureTerms | None = None,
 ) -> int:
     """Solve one block; write eta, residual, metallic flag, narrowing, the band factors
     ln(n/N_c), ln(p/N_v) and eta_p (rows) and each bound level's ln N^ion (rows) into
-    ``out``."""
-    kT = BOLTZMANN * T
-    Eg = material.need("band_gap", "the equilibrium solve")(T)
-    Nc = material.need("Nc", "the equilibrium solve")(T)
-    Nv = material.need("Nv", "the equilibrium solve")(T)
+    ``out``.  ``temperature_terms``: :func:`_temperature_terms` at the block's points,
+    where the caller took them per temperature (no band-gap narrowing)."""
     nd_total = sum(donors.values(), np.zeros_like(T))
     na_total = sum(acceptors.values(), np.zeros_like(T))
     narrowing = np.zeros_like(T)
@@ -965,8 +1001,7 @@ def _solve_flat(
         model = material.need("narrowing", "the band-gap narrowing option")
         narrowing = np.where(nd_total + na_total > 0, model(nd_total, na_total), 0.0)
         narrowing = np.clip(narrowing, 0.0, None)
-    Eg_eff = Eg - narrowing
-    eg_kt = Eg_eff / kT
+    kT, eg_kt, ln_nc, ln_nv, ni = temperature_terms or _temperature_terms(material, T, narrowing)
 
     def terms(group: Mapping[str, FloatArray], total: FloatArray) -> list[LevelTerm]:
         # bound levels move with their band edge: band-gap narrowing leaves E_ion alone
@@ -983,8 +1018,6 @@ def _solve_flat(
         metallic |= nd_total >= species[name].mott_density
     for name in acceptors:
         metallic |= na_total >= species[name].mott_density
-    ln_nc, ln_nv = np.log(Nc), np.log(Nv)
-    ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
     net = nd_total - na_total
     ln_net = _log(np.abs(net))
     with np.errstate(divide="ignore"):

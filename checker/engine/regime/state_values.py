@@ -380,7 +380,12 @@ def solve_points(
         return solved, note
     material, dim = first.material, int(first.structure.get("dim", 3))
     state = equilibrium.solve(
-        material, T, donors, acceptors, band_gap_narrowing=first.band_gap_narrowing
+        material,
+        T,
+        donors,
+        acceptors,
+        band_gap_narrowing=first.band_gap_narrowing,
+        temperatures=rows[0] if rows is not None else None,
     )
     if rows is not None and not first.band_gap_narrowing:
         _per_temperature(state, rows[0])
