@@ -26,6 +26,7 @@ from .evaluate import Cells, beyond, probed_names, rule_cells, rule_indicator, s
 from .points import CalculationReport, check_points
 from .rulebook import Rule
 from .state_values import Values, solve_sweep
+from .sweep_gates import open_rules
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Axis, Calculation
@@ -238,7 +239,7 @@ def check_sweep(
         return CalculationReport(calc, None, error=first.error), errors
     for result in first.formulas:  # a value "here" belongs to one point, not to a sweep
         result.value = result.exact = result.error = float("nan")
-    ruled, reads = grid_rules(calc, rules, first.embodied, grid_points)
+    ruled, reads = grid_rules(calc, rules, first.embodied, grid_points, open_only=True)
     masks, notes = rule_grid(calc, ruled, first.embodied, grid_points, progress, reads)
     findings = [f for f in first.findings if f.rule in ("FORM01", "FORM02")]
     by_id = {rule.id: rule for rule in rules}
@@ -266,12 +267,20 @@ def check_sweep(
 
 
 def grid_rules(
-    calc: Calculation, rules: Sequence[Rule], embodied: list[Embodied], grid_points: GridPoints
+    calc: Calculation,
+    rules: Sequence[Rule],
+    embodied: list[Embodied],
+    grid_points: GridPoints,
+    open_only: bool = False,
 ) -> tuple[list[Rule], frozenset[str]]:
     """(the rules that may fire on the grid, the quantities they read): evaluate.sweep_rules
-    from a probe of the grid's first point; the chunks rule and compute only those."""
+    from a probe of the grid's first point; the chunks rule and compute only those.
+    ``open_only``: less the carriers whose gate the sweep's stated numbers close
+    (sweep_gates.open_rules)."""
     values = _values_at(calc, grid_points, [0], reads=probed_names(rules))
-    return sweep_rules(rules, Cells.grid(calc, values, 1, embodied))
+    cells = Cells.grid(calc, values, 1, embodied)
+    may_fire = sweep_rules(rules, cells)
+    return sweep_rules(open_rules(may_fire[0], values), cells) if open_only else may_fire
 
 
 def rule_grid(
