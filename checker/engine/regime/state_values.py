@@ -386,6 +386,7 @@ def solve_points(
         acceptors,
         band_gap_narrowing=first.band_gap_narrowing,
         temperatures=rows[0] if rows is not None else None,
+        dopings=rows[1] if rows is not None else None,
     )
     if rows is not None and not first.band_gap_narrowing:
         _per_temperature(state, rows[0])
