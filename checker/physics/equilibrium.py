@@ -893,13 +893,19 @@ def solve(
     levels = sum(len(species[name].bound_levels()) for name in species)
     level_logs = np.empty((levels, temps.size))
 
-    # the terms of T alone at each distinct temperature, and each point's row of them
+    # the terms of T alone at each distinct temperature, and each point's row of them;
+    # the state's kT, E_g, N_c, N_v and n_i (as it derives them: no narrowing) gathered
+    # with them, by the blocks
     by_row = None
+    derived: dict[str, FloatArray] = {}
     if temperatures is not None and not band_gap_narrowing:
         first, rows = temperatures
         if np.shape(rows) != temps.shape:
             raise ValueError("temperatures: one row per point")
-        by_row = (_temperature_terms(material, temps[first], 0.0), np.asarray(rows))
+        kT, Eg, Nc, Nv = _band_rows(material, temps[first])
+        _, eg_kt, ln_nc, ln_nv, ni = _terms_of_bands(kT, Eg, Nc, Nv, 0.0)
+        by_row = ((kT, Eg, Nc, Nv, ni, eg_kt, ln_nc, ln_nv), np.asarray(rows))
+        derived = {name: np.empty_like(temps) for name in ("kT", "Eg", "Nc", "Nv", "ni")}
     by_doping = None
     if dopings is not None:
         first, rows = dopings
@@ -918,10 +924,13 @@ def solve(
     def block(i: int) -> int:
         part = slice(i, i + size)
         terms: TemperatureTerms | None = None
-        if by_row is not None:  # (a gather; taken on the block's own thread)
+        if by_row is not None:  # (gathers, on the block's own thread)
             at = by_row[1][part]
-            kT, eg_kt, ln_nc, ln_nv, ni = (row.take(at, mode="clip") for row in by_row[0])
-            terms = (kT, eg_kt, ln_nc, ln_nv, ni)
+            kept = [derived[name][part] for name in ("kT", "Eg", "Nc", "Nv", "ni")]
+            for row, into in zip(by_row[0], kept, strict=False):
+                row.take(at, mode="clip", out=into)
+            eg_kt, ln_nc, ln_nv = (row.take(at, mode="clip") for row in by_row[0][5:])
+            terms = (kept[0], eg_kt, ln_nc, ln_nv, kept[4])
         doping = None if by_doping is None else by_doping[0].take(by_doping[1][part])
         return _solve_flat(
             material,
@@ -971,6 +980,7 @@ def solve(
     state.__dict__["log_electron_factor"] = factors[0].reshape(shape)
     state.__dict__["log_hole_factor"] = factors[1].reshape(shape)
     state.__dict__["eta_p"] = factors[2].reshape(shape)  # (-eta_n - E_g/kT, as the property)
+    state.__dict__.update((name, array.reshape(shape)) for name, array in derived.items())
     bad = ~(state.residual <= BALANCE_TOLERANCE)
     if bad.any():
         raise ConvergenceError(
@@ -1087,16 +1097,32 @@ def _doping_terms(
     )
 
 
-def _temperature_terms(material: Material, T: FloatArray, narrowing: ArrayIn) -> TemperatureTerms:
+def _temperature_terms(
+    material: Material, T: FloatArray, narrowing: FloatArray | float
+) -> TemperatureTerms:
     """(kT, (E_g - narrowing)/kT, ln N_c, ln N_v, n_i) at temperatures T (K): what the
     solve of a block needs of T alone (and of the narrowing, J)."""
+    kT, Eg, Nc, Nv = _band_rows(material, T)
+    return _terms_of_bands(kT, Eg, Nc, Nv, narrowing)
+
+
+def _band_rows(material: Material, T: FloatArray) -> tuple[FloatArray, ...]:
+    """(kT, E_g, N_c, N_v) at temperatures T (K), as the state derives them."""
     kT = BOLTZMANN * T
     Eg = material.need("band_gap", "the equilibrium solve")(T)
     Nc = material.need("Nc", "the equilibrium solve")(T)
     Nv = material.need("Nv", "the equilibrium solve")(T)
-    eg_kt = (Eg - narrowing) / kT
-    ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
-    return kT, eg_kt, np.log(Nc), np.log(Nv), ni
+    return kT, Eg, Nc, Nv
+
+
+def _terms_of_bands(
+    kT: FloatArray, Eg: FloatArray, Nc: FloatArray, Nv: FloatArray, narrowing: FloatArray | float
+) -> TemperatureTerms:
+    eg_kt: FloatArray = (Eg - narrowing) / kT
+    ni: FloatArray = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
+    ln_nc: FloatArray = np.log(Nc)
+    ln_nv: FloatArray = np.log(Nv)
+    return kT, eg_kt, ln_nc, ln_nv, ni
 
 
 def _solve_flat(
