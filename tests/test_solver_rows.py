@@ -46,7 +46,8 @@ def _grid(n_T, n_N, species):
 def _arrays(state):
     """Every array a state holds or derives, by name."""
     names = ("eta_n", "residual", "metallic", "narrowing", "level_logs")
-    derived = ("eta_p", "log_electron_factor", "log_hole_factor", "n", "p", "kT", "Eg", "ni")
+    derived = ("eta_p", "log_electron_factor", "log_hole_factor", "n", "p", "kT", "Eg", "ni", "Nc")
+    derived += ("Nv", "donors_total", "acceptors_total")
     return {name: getattr(state, name) for name in names + derived}
 
 

@@ -905,7 +905,7 @@ def solve(
         kT, Eg, Nc, Nv = _band_rows(material, temps[first])
         _, eg_kt, ln_nc, ln_nv, ni = _terms_of_bands(kT, Eg, Nc, Nv, 0.0)
         by_row = ((kT, Eg, Nc, Nv, ni, eg_kt, ln_nc, ln_nv), np.asarray(rows))
-        derived = {name: np.empty_like(temps) for name in ("kT", "Eg", "Nc", "Nv", "ni")}
+        derived = {name: np.empty_like(temps) for name in ("kT", "Eg", "Nc", "Nv", "ni", "n", "p")}
     by_doping = None
     if dopings is not None:
         first, rows = dopings
@@ -920,6 +920,7 @@ def solve(
             species,
         )
         by_doping = (terms_of_rows, np.asarray(rows))
+        derived.update((name, np.empty_like(temps)) for name in ("donors_total", "acceptors_total"))
 
     def block(i: int) -> int:
         part = slice(i, i + size)
@@ -932,7 +933,7 @@ def solve(
             eg_kt, ln_nc, ln_nv = (row.take(at, mode="clip") for row in by_row[0][5:])
             terms = (kept[0], eg_kt, ln_nc, ln_nv, kept[4])
         doping = None if by_doping is None else by_doping[0].take(by_doping[1][part])
-        return _solve_flat(
+        iterations = _solve_flat(
             material,
             temps[part],
             {k: v[part] for k, v in donor_flat.items()},
@@ -951,6 +952,15 @@ def solve(
             temperature_terms=terms,
             doping_terms=doping,
         )
+        if by_row is not None:  # n and p as the state derives them, here on this thread
+            for name, band, factor in (("n", "Nc", 0), ("p", "Nv", 1)):
+                into = derived[name][part]
+                np.exp(factors[factor, part], out=into)
+                np.multiply(derived[band][part], into, out=into)
+        if doping is not None:  # the dopant totals likewise (_sum's numbers)
+            derived["donors_total"][part] = doping.nd_total
+            derived["acceptors_total"][part] = doping.na_total
+        return iterations
 
     # blocks of at most CHUNK points (THREAD_CHUNK with threads), and at least one per
     # worker once each gets MIN_BLOCK
