@@ -926,6 +926,15 @@ def derive_corrected(
     everything downstream -- mean free path, σ, ρ, R, D -- follows one chain.
     ``reads``: see :func:`solve_sweep` (the mean free paths, a sheet's conductance and the
     conductances of conductor_values only where read; None: all)."""
+    if isinstance(values, LazyValues) and values.pending("mu_n") and not _reads_paths(reads):
+        # a sweep's chunk whose transport is still to be computed (a rule replaced a
+        # density, which reads no mobility): what follows is computed where first read,
+        # with the replacements made (as fill_inputs defers it)
+        made = dict(replaced)
+        densities = {name: values[name] for name in ("dens_n", "dens_p")}
+        later = _derived(lambda v: derive_corrected(v, made, reads), densities)
+        values.defer(_CORRECTED, Deferred(later))
+        return
     conductances = reads is None or not _CONDUCTANCE.isdisjoint(reads)
     paths = _reads_paths(reads)
 
