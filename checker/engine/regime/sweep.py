@@ -22,7 +22,15 @@ from ...inputs.calculation_file import AxisKey
 from ...physics import carriers
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray, distinct_points
 from ..findings import Embodied, carrier_word
-from .evaluate import Cells, beyond, probed_names, rule_cells, rule_indicator, sweep_rules
+from .evaluate import (
+    Cells,
+    Ruled,
+    beyond,
+    probed_names,
+    rule_cells,
+    rule_indicator,
+    sweep_rules,
+)
 from .points import CalculationReport, check_points
 from .rulebook import Rule
 from .state_values import Values, solve_sweep
@@ -326,6 +334,8 @@ def rule_grid(
             masks[key][start:stop] = ruled.fired
             # the worst fired cell (the first of equals): a fired indicator lies beyond
             # its threshold, so its excess is > 0 (an infinite one counts as 1e300)
+            if key in worst and _largest_excess(ruled) <= worst[key][0]:
+                continue  # no cell of this chunk is worse than the worst so far
             fired = np.flatnonzero(ruled.fired)
             with np.errstate(all="ignore"):
                 excess = np.asarray(beyond(ruled.rule, ruled.indicator[fired]), dtype=float)
@@ -337,6 +347,20 @@ def rule_grid(
         if progress:
             progress(stop, size)
     return {key: (mask.reshape(shape), worst[key][1]) for key, mask in masks.items()}, notes
+
+
+def _largest_excess(ruled: Ruled) -> float:
+    """The largest excess (beyond, at most 1e300) of the fired cells, from the largest or
+    smallest fired indicator in one pass: the excess is monotonic in the indicator, so it
+    is the largest of the cells' own (every fired indicator is finite or infinite, never
+    NaN)."""
+    rule, indicator, fired = ruled.rule, ruled.indicator, ruled.fired
+    if rule.relation == "above":
+        extreme = np.max(indicator, where=fired, initial=-np.inf)
+    else:
+        extreme = np.min(indicator, where=fired, initial=np.inf)
+    with np.errstate(all="ignore"):
+        return min(float(beyond(rule, np.asarray(extreme))), 1e300)
 
 
 def _runs(flags: ArrayIn) -> list[tuple[int, int]]:
