@@ -97,7 +97,7 @@ def chunk_split(path):
     grid_points = sweep.grid(calc)
     T, donors, acceptors, _ = grid_points
     (first,), _ = check_points([sweep.point(calc, T, donors, acceptors, 0)], rules)
-    ruled, reads = sweep.grid_rules(calc, rules, first.embodied, grid_points)
+    ruled, reads = sweep.grid_rules(calc, rules, first.embodied, grid_points, open_only=True)
     spent = collections.Counter()
 
     def timed(module, name, stage):

@@ -155,3 +155,28 @@ def test_a_sweep_of_a_material_without_mobility_says_its_transport_is_skipped():
     assert "STAT01" in {f.rule for f in report.findings}
     values, _, _, _ = _chunk(calc, reads=True)
     assert not values.pending("mu_n") and np.isnan(values["mu_n"]).all()
+
+
+# an undoped n_i and a minority density stated, nothing read of the mobility: DOPE01
+# replaces the density (with the one of the solve with narrowing) and no rule after it
+# reads what the corrected calculation derives from the transport
+DENSITY_ONLY = STATED.replace("  resistivity: 0.01 ohm*cm\n", "")
+
+
+def test_a_replaced_density_computes_no_transport_until_read():
+    calc = _calc(DENSITY_ONLY)
+    values, ruled, reads, embodied = _chunk(calc, reads=True)
+    count = len(values["T"])
+    outcome = list(
+        evaluate.rule_cells(ruled, evaluate.Cells.grid(calc, values, count, embodied, reads))
+    )
+    assert ("DOPE01", "n") in {(r.rule.id, r.x) for r in outcome if r.fired.any()}
+    assert values.pending("mu_n") and values.pending("sigma")
+    # looked up now, the corrected calculation is the one ruled at once, bit for bit
+    eager, _, _, _ = _chunk(calc, reads=False)
+    eager_out = list(evaluate.rule_cells(ruled, evaluate.Cells.grid(calc, eager, count, embodied)))
+    for lazy, at_once in zip(outcome, eager_out, strict=True):
+        np.testing.assert_array_equal(lazy.fired, at_once.fired, err_msg=lazy.rule.id)
+    for name in ("used_mu_n", "used_mu_p", "sigma", "rho", "used_rho", "dens_p"):
+        np.testing.assert_array_equal(values[name], eager[name], err_msg=name)
+    assert not values.pending("mu_n")

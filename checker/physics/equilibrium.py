@@ -39,9 +39,10 @@ import os
 from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import cached_property
-from typing import TypeAlias
+from typing import Any, NamedTuple, TypeAlias
 
 import numpy as np
+import numpy.typing as npt
 
 from ..errors import ConvergenceError, InputError
 from . import _threads, energy_window
@@ -70,6 +71,12 @@ BALANCE_TOLERANCE = 1e-10  # relative neutrality error every returned point meet
 LevelTerm: TypeAlias = tuple[FloatArray, FloatArray, FloatArray, FloatArray]
 # a log density and its slope d/d eta (None: a constant)
 SlopedTerm: TypeAlias = tuple[FloatArray, FloatArray | None]
+# one bound level's terms of the doping alone: (ln N_level, E(N), ln b, ln(1 - b), ln g)
+LevelRow: TypeAlias = tuple[FloatArray, FloatArray, FloatArray, FloatArray, np.float64]
+# (kT, E_g/kT, ln N_c, ln N_v, n_i) of a block's points (_temperature_terms)
+TemperatureTerms: TypeAlias = tuple[FloatArray, FloatArray, FloatArray, FloatArray, FloatArray]
+# (one flat index of each distinct value, each point's row), as arrays.distinct_points
+Rows: TypeAlias = tuple[IndexArray, IndexArray]
 
 
 @dataclass
@@ -284,18 +291,31 @@ def _level_terms(
     dopant: Dopant, density: FloatArray, kT: FloatArray, same_type_total: FloatArray
 ) -> list[LevelTerm]:
     """Per bound level: (ln N_level, occupancy offset E(N)/kT + ln g, ln b, ln(1 - b))."""
+    return [_at_kT(row, kT) for row in _level_rows(dopant, density, same_type_total)]
+
+
+def _level_rows(dopant: Dopant, density: FloatArray, same_type_total: FloatArray) -> list[LevelRow]:
+    """What :func:`_level_terms` takes of the doping alone, per bound level: (ln N_level,
+    E(N), ln b, ln(1 - b), ln g)."""
     ln_b, ln_free = dopant.share_model().log_shares(same_type_total)
     factor = dopant.lowering_factor(same_type_total)
     ln_density = _log(density)
     return [
         (
             ln_density + np.log(level.share),
-            level.energy * factor / kT + np.log(level.degeneracy),
+            level.energy * factor,
             ln_b,
             ln_free,
+            np.log(level.degeneracy),
         )
         for level in dopant.bound_levels()
     ]
+
+
+def _at_kT(row: LevelRow, kT: FloatArray) -> LevelTerm:
+    """A level's term at kT from its row (E(N)/kT + ln g, as _level_terms evaluates it)."""
+    ln_n, energy, ln_b, ln_free, ln_g = row
+    return ln_n, energy / kT + ln_g, ln_b, ln_free
 
 
 def log_ionized_density(
@@ -816,6 +836,8 @@ def solve(
     donors: Mapping[str, ArrayIn] | None = None,
     acceptors: Mapping[str, ArrayIn] | None = None,
     band_gap_narrowing: bool = False,
+    temperatures: Rows | None = None,
+    dopings: Rows | None = None,
 ) -> State:
     """Solve charge neutrality for E_F at every (T, doping) point (vectorized).
 
@@ -824,6 +846,16 @@ def solve(
     broadcast with T).  Validity: T in [1, 1500] K and densities in
     [0, 1e28] m^-3 are covered by tests; the material models have their own
     fitted ranges (reported by the rules, not enforced here).
+    ``temperatures``: the points' distinct temperatures where the caller knows them (a
+    sweep's grid: one flat index of each, and each point's row, as
+    arrays.distinct_points gives them); the terms of T alone (kT, E_g/kT, ln N_c, ln N_v,
+    n_i: ~40 ns a point, about a sixth of the solve) are then evaluated once per
+    temperature and each block takes its points' rows -- the same elementwise arithmetic
+    on the same temperatures, so the same numbers.  Not with band-gap narrowing (E_g/kT
+    then depends on the doping).  ``dopings``: likewise the points' distinct doping rows
+    (every species' density alike); the terms of the doping alone (totals, the levels'
+    ln N, lowered energies and bound shares, ln of the net doping, the Mott flags:
+    ~40 ns a point) are then evaluated once per row.
 
     References
     ----------
@@ -861,9 +893,47 @@ def solve(
     levels = sum(len(species[name].bound_levels()) for name in species)
     level_logs = np.empty((levels, temps.size))
 
+    # the terms of T alone at each distinct temperature, and each point's row of them;
+    # the state's kT, E_g, N_c, N_v and n_i (as it derives them: no narrowing) gathered
+    # with them, by the blocks
+    by_row = None
+    derived: dict[str, FloatArray] = {}
+    if temperatures is not None and not band_gap_narrowing:
+        first, rows = temperatures
+        if np.shape(rows) != temps.shape:
+            raise ValueError("temperatures: one row per point")
+        kT, Eg, Nc, Nv = _band_rows(material, temps[first])
+        _, eg_kt, ln_nc, ln_nv, ni = _terms_of_bands(kT, Eg, Nc, Nv, 0.0)
+        by_row = ((kT, Eg, Nc, Nv, ni, eg_kt, ln_nc, ln_nv), np.asarray(rows))
+        derived = {name: np.empty_like(temps) for name in ("kT", "Eg", "Nc", "Nv", "ni", "n", "p")}
+    by_doping = None
+    if dopings is not None:
+        first, rows = dopings
+        if np.shape(rows) != temps.shape:
+            raise ValueError("dopings: one row per point")
+        terms_of_rows = _doping_terms(
+            material,
+            temps[first],
+            {k: v[first] for k, v in donor_flat.items()},
+            {k: v[first] for k, v in acceptor_flat.items()},
+            band_gap_narrowing,
+            species,
+        )
+        by_doping = (terms_of_rows, np.asarray(rows))
+        derived.update((name, np.empty_like(temps)) for name in ("donors_total", "acceptors_total"))
+
     def block(i: int) -> int:
         part = slice(i, i + size)
-        return _solve_flat(
+        terms: TemperatureTerms | None = None
+        if by_row is not None:  # (gathers, on the block's own thread)
+            at = by_row[1][part]
+            kept = [derived[name][part] for name in ("kT", "Eg", "Nc", "Nv", "ni")]
+            for row, into in zip(by_row[0], kept, strict=False):
+                row.take(at, mode="clip", out=into)
+            eg_kt, ln_nc, ln_nv = (row.take(at, mode="clip") for row in by_row[0][5:])
+            terms = (kept[0], eg_kt, ln_nc, ln_nv, kept[4])
+        doping = None if by_doping is None else by_doping[0].take(by_doping[1][part])
+        iterations = _solve_flat(
             material,
             temps[part],
             {k: v[part] for k, v in donor_flat.items()},
@@ -879,7 +949,18 @@ def solve(
                 level_logs[:, part],
             ),
             kane=kane,
+            temperature_terms=terms,
+            doping_terms=doping,
         )
+        if by_row is not None:  # n and p as the state derives them, here on this thread
+            for name, band, factor in (("n", "Nc", 0), ("p", "Nv", 1)):
+                into = derived[name][part]
+                np.exp(factors[factor, part], out=into)
+                np.multiply(derived[band][part], into, out=into)
+        if doping is not None:  # the dopant totals likewise (_sum's numbers)
+            derived["donors_total"][part] = doping.nd_total
+            derived["acceptors_total"][part] = doping.na_total
+        return iterations
 
     # blocks of at most CHUNK points (THREAD_CHUNK with threads), and at least one per
     # worker once each gets MIN_BLOCK
@@ -909,6 +990,7 @@ def solve(
     state.__dict__["log_electron_factor"] = factors[0].reshape(shape)
     state.__dict__["log_hole_factor"] = factors[1].reshape(shape)
     state.__dict__["eta_p"] = factors[2].reshape(shape)  # (-eta_n - E_g/kT, as the property)
+    state.__dict__.update((name, array.reshape(shape)) for name, array in derived.items())
     bad = ~(state.residual <= BALANCE_TOLERANCE)
     if bad.any():
         raise ConvergenceError(
@@ -941,6 +1023,118 @@ def _dominant_level(
     return offset, bound
 
 
+class DopingTerms(NamedTuple):
+    """What the solve of a block needs of the doping alone, per point (or per doping row)."""
+
+    nd_total: FloatArray
+    na_total: FloatArray
+    narrowing: FloatArray  # J; 0 without the narrowing option
+    metallic: BoolArray  # some species at or above its Mott density
+    ln_net_n: FloatArray  # ln max(N_D - N_A, 0) (-inf where not > 0)
+    ln_net_p: FloatArray  # ln max(N_A - N_D, 0)
+    donor_rows: list[LevelRow]  # each bound level's, donors' in species order
+    acceptor_rows: list[LevelRow]
+
+    def take(self, at: IndexArray) -> DopingTerms:
+        """The terms of the rows ``at`` (one row per point)."""
+
+        def rows(levels: list[LevelRow]) -> list[LevelRow]:
+            return [
+                (pick(ln_n), pick(energy), pick(ln_b), pick(ln_free), ln_g)
+                for ln_n, energy, ln_b, ln_free, ln_g in levels
+            ]
+
+        def pick(row: npt.NDArray[Any]) -> npt.NDArray[Any]:
+            return row.take(at, mode="clip")
+
+        return DopingTerms(
+            pick(self.nd_total),
+            pick(self.na_total),
+            pick(self.narrowing),
+            pick(self.metallic),
+            pick(self.ln_net_n),
+            pick(self.ln_net_p),
+            rows(self.donor_rows),
+            rows(self.acceptor_rows),
+        )
+
+
+def _doping_terms(
+    material: Material,
+    like: FloatArray,
+    donors: Mapping[str, FloatArray],
+    acceptors: Mapping[str, FloatArray],
+    band_gap_narrowing: bool,
+    species: Mapping[str, Dopant],
+) -> DopingTerms:
+    """:class:`DopingTerms` of densities (m^-3) shaped like ``like``."""
+    nd_total = sum(donors.values(), np.zeros_like(like))
+    na_total = sum(acceptors.values(), np.zeros_like(like))
+    narrowing = np.zeros_like(like)
+    if band_gap_narrowing:
+        model = material.need("narrowing", "the band-gap narrowing option")
+        narrowing = np.where(nd_total + na_total > 0, model(nd_total, na_total), 0.0)
+        narrowing = np.clip(narrowing, 0.0, None)
+
+    def rows(group: Mapping[str, FloatArray], total: FloatArray) -> list[LevelRow]:
+        return [
+            row
+            for name, density in group.items()
+            for row in _level_rows(species[name], density, total)
+        ]
+
+    metallic = np.zeros(like.shape, dtype=bool)
+    for name in donors:
+        metallic |= nd_total >= species[name].mott_density
+    for name in acceptors:
+        metallic |= na_total >= species[name].mott_density
+    net = nd_total - na_total
+    ln_net = _log(np.abs(net))
+    with np.errstate(divide="ignore"):
+        # ln max(N_D - N_A, 0) and ln max(N_A - N_D, 0) from one log, -inf (1/0) on the
+        # other side: log(0) takes the slow path of np.log, and np.where a branch a point
+        ln_net_n = ln_net - np.divide(net <= 0, net > 0)
+        ln_net_p = ln_net - np.divide(net >= 0, net < 0)
+    return DopingTerms(
+        nd_total,
+        na_total,
+        narrowing,
+        metallic,
+        ln_net_n,
+        ln_net_p,
+        rows(donors, nd_total),
+        rows(acceptors, na_total),
+    )
+
+
+def _temperature_terms(
+    material: Material, T: FloatArray, narrowing: FloatArray | float
+) -> TemperatureTerms:
+    """(kT, (E_g - narrowing)/kT, ln N_c, ln N_v, n_i) at temperatures T (K): what the
+    solve of a block needs of T alone (and of the narrowing, J)."""
+    kT, Eg, Nc, Nv = _band_rows(material, T)
+    return _terms_of_bands(kT, Eg, Nc, Nv, narrowing)
+
+
+def _band_rows(material: Material, T: FloatArray) -> tuple[FloatArray, ...]:
+    """(kT, E_g, N_c, N_v) at temperatures T (K), as the state derives them."""
+    kT = BOLTZMANN * T
+    Eg = material.need("band_gap", "the equilibrium solve")(T)
+    Nc = material.need("Nc", "the equilibrium solve")(T)
+    Nv = material.need("Nv", "the equilibrium solve")(T)
+    return kT, Eg, Nc, Nv
+
+
+def _terms_of_bands(
+    kT: FloatArray, Eg: FloatArray, Nc: FloatArray, Nv: FloatArray, narrowing: FloatArray | float
+) -> TemperatureTerms:
+    eg_kt: FloatArray = (Eg - narrowing) / kT
+    ni: FloatArray = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
+    ln_nc: FloatArray = np.log(Nc)
+    ln_nv: FloatArray = np.log(Nv)
+    return kT, eg_kt, ln_nc, ln_nv, ni
+
+
 def _solve_flat(
     material: Material,
     T: FloatArray,
@@ -950,48 +1144,22 @@ def _solve_flat(
     species: Mapping[str, Dopant],
     out: tuple[FloatArray, FloatArray, BoolArray, FloatArray, FloatArray, FloatArray],
     kane: KaneBand | None = None,
+    temperature_terms: TemperatureTerms | None = None,
+    doping_terms: DopingTerms | None = None,
 ) -> int:
     """Solve one block; write eta, residual, metallic flag, narrowing, the band factors
     ln(n/N_c), ln(p/N_v) and eta_p (rows) and each bound level's ln N^ion (rows) into
-    ``out``."""
-    kT = BOLTZMANN * T
-    Eg = material.need("band_gap", "the equilibrium solve")(T)
-    Nc = material.need("Nc", "the equilibrium solve")(T)
-    Nv = material.need("Nv", "the equilibrium solve")(T)
-    nd_total = sum(donors.values(), np.zeros_like(T))
-    na_total = sum(acceptors.values(), np.zeros_like(T))
-    narrowing = np.zeros_like(T)
-    if band_gap_narrowing:
-        model = material.need("narrowing", "the band-gap narrowing option")
-        narrowing = np.where(nd_total + na_total > 0, model(nd_total, na_total), 0.0)
-        narrowing = np.clip(narrowing, 0.0, None)
-    Eg_eff = Eg - narrowing
-    eg_kt = Eg_eff / kT
-
-    def terms(group: Mapping[str, FloatArray], total: FloatArray) -> list[LevelTerm]:
-        # bound levels move with their band edge: band-gap narrowing leaves E_ion alone
-        return [
-            term
-            for name, density in group.items()
-            for term in _level_terms(species[name], density, kT, total)
-        ]
-
-    donor_terms = terms(donors, nd_total)
-    acceptor_terms = terms(acceptors, na_total)
-    metallic = np.zeros(T.shape, dtype=bool)
-    for name in donors:
-        metallic |= nd_total >= species[name].mott_density
-    for name in acceptors:
-        metallic |= na_total >= species[name].mott_density
-    ln_nc, ln_nv = np.log(Nc), np.log(Nv)
-    ni = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
-    net = nd_total - na_total
-    ln_net = _log(np.abs(net))
-    with np.errstate(divide="ignore"):
-        # ln max(N_D - N_A, 0) and ln max(N_A - N_D, 0) from one log, -inf (1/0) on the
-        # other side: log(0) takes the slow path of np.log, and np.where a branch a point
-        ln_net_n = ln_net - np.divide(net <= 0, net > 0)
-        ln_net_p = ln_net - np.divide(net >= 0, net < 0)
+    ``out``.  ``temperature_terms``, ``doping_terms``: :func:`_temperature_terms` and
+    :func:`_doping_terms` at the block's points, where the caller took them per
+    temperature (no band-gap narrowing) and per doping."""
+    doping = doping_terms or _doping_terms(
+        material, T, donors, acceptors, band_gap_narrowing, species
+    )
+    nd_total, na_total, narrowing, metallic, ln_net_n, ln_net_p, donor_rows, acceptor_rows = doping
+    kT, eg_kt, ln_nc, ln_nv, ni = temperature_terms or _temperature_terms(material, T, narrowing)
+    # bound levels move with their band edge: band-gap narrowing leaves E_ion alone
+    donor_terms = [_at_kT(row, kT) for row in donor_rows]
+    acceptor_terms = [_at_kT(row, kT) for row in acceptor_rows]
     residual = _Neutrality.build(
         ln_nc,
         ln_nv,

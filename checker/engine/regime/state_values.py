@@ -380,7 +380,13 @@ def solve_points(
         return solved, note
     material, dim = first.material, int(first.structure.get("dim", 3))
     state = equilibrium.solve(
-        material, T, donors, acceptors, band_gap_narrowing=first.band_gap_narrowing
+        material,
+        T,
+        donors,
+        acceptors,
+        band_gap_narrowing=first.band_gap_narrowing,
+        temperatures=rows[0] if rows is not None else None,
+        dopings=rows[1] if rows is not None else None,
     )
     if rows is not None and not first.band_gap_narrowing:
         _per_temperature(state, rows[0])
@@ -939,6 +945,15 @@ def derive_corrected(
     everything downstream -- mean free path, σ, ρ, R, D -- follows one chain.
     ``reads``: see :func:`solve_sweep` (the mean free paths, a sheet's conductance and the
     conductances of conductor_values only where read; None: all)."""
+    if isinstance(values, LazyValues) and values.pending("mu_n") and not _reads_paths(reads):
+        # a sweep's chunk whose transport is still to be computed (a rule replaced a
+        # density, which reads no mobility): what follows is computed where first read,
+        # with the replacements made (as fill_inputs defers it)
+        made = dict(replaced)
+        densities = {name: values[name] for name in ("dens_n", "dens_p")}
+        later = _derived(lambda v: derive_corrected(v, made, reads), densities)
+        values.defer(_CORRECTED, Deferred(later))
+        return
     conductances = reads is None or not _CONDUCTANCE.isdisjoint(reads)
     paths = _reads_paths(reads)
 

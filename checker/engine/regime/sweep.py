@@ -22,10 +22,19 @@ from ...inputs.calculation_file import AxisKey
 from ...physics import carriers
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray, distinct_points
 from ..findings import Embodied, carrier_word
-from .evaluate import Cells, beyond, probed_names, rule_cells, rule_indicator, sweep_rules
+from .evaluate import (
+    Cells,
+    Ruled,
+    beyond,
+    probed_names,
+    rule_cells,
+    rule_indicator,
+    sweep_rules,
+)
 from .points import CalculationReport, check_points
 from .rulebook import Rule
 from .state_values import Values, solve_sweep
+from .sweep_gates import open_rules
 
 if TYPE_CHECKING:
     from ...inputs.calculation_file import Axis, Calculation
@@ -105,8 +114,12 @@ class GridQuantity:
 
     def __getitem__(self, index: int | slice | ArrayIn) -> FloatArray:
         """Values at an index, a slice or an integer array of flat indices."""
-        picked: FloatArray = self.values[self.codes(index)]
-        return picked
+        codes = self.codes(index)
+        if not np.ndim(codes):
+            picked: FloatArray = self.values[codes]
+            return picked
+        # (codes lie in range: a clipping gather, which checks nothing, costs half)
+        return self.values.take(codes, mode="clip")
 
     def codes(self, index: int | slice | ArrayIn) -> IndexArray:
         """The index into ``values`` at an index, a slice or flat indices."""
@@ -239,7 +252,7 @@ def check_sweep(
         return CalculationReport(calc, None, error=first.error), errors
     for result in first.formulas:  # a value "here" belongs to one point, not to a sweep
         result.value = result.exact = result.error = float("nan")
-    ruled, reads = grid_rules(calc, rules, first.embodied, grid_points)
+    ruled, reads = grid_rules(calc, rules, first.embodied, grid_points, open_only=True)
     masks, notes = rule_grid(calc, ruled, first.embodied, grid_points, progress, reads)
     findings = [f for f in first.findings if f.rule in ("FORM01", "FORM02")]
     by_id = {rule.id: rule for rule in rules}
@@ -267,12 +280,20 @@ def check_sweep(
 
 
 def grid_rules(
-    calc: Calculation, rules: Sequence[Rule], embodied: list[Embodied], grid_points: GridPoints
+    calc: Calculation,
+    rules: Sequence[Rule],
+    embodied: list[Embodied],
+    grid_points: GridPoints,
+    open_only: bool = False,
 ) -> tuple[list[Rule], frozenset[str]]:
     """(the rules that may fire on the grid, the quantities they read): evaluate.sweep_rules
-    from a probe of the grid's first point; the chunks rule and compute only those."""
+    from a probe of the grid's first point; the chunks rule and compute only those.
+    ``open_only``: less the carriers whose gate the sweep's stated numbers close
+    (sweep_gates.open_rules)."""
     values = _values_at(calc, grid_points, [0], reads=probed_names(rules))
-    return sweep_rules(rules, Cells.grid(calc, values, 1, embodied))
+    cells = Cells.grid(calc, values, 1, embodied)
+    may_fire = sweep_rules(rules, cells)
+    return sweep_rules(open_rules(may_fire[0], values), cells) if open_only else may_fire
 
 
 def rule_grid(
@@ -314,6 +335,8 @@ def rule_grid(
             masks[key][start:stop] = ruled.fired
             # the worst fired cell (the first of equals): a fired indicator lies beyond
             # its threshold, so its excess is > 0 (an infinite one counts as 1e300)
+            if key in worst and _largest_excess(ruled) <= worst[key][0]:
+                continue  # no cell of this chunk is worse than the worst so far
             fired = np.flatnonzero(ruled.fired)
             with np.errstate(all="ignore"):
                 excess = np.asarray(beyond(ruled.rule, ruled.indicator[fired]), dtype=float)
@@ -325,6 +348,20 @@ def rule_grid(
         if progress:
             progress(stop, size)
     return {key: (mask.reshape(shape), worst[key][1]) for key, mask in masks.items()}, notes
+
+
+def _largest_excess(ruled: Ruled) -> float:
+    """The largest excess (beyond, at most 1e300) of the fired cells, from the largest or
+    smallest fired indicator in one pass: the excess is monotonic in the indicator, so it
+    is the largest of the cells' own (every fired indicator is finite or infinite, never
+    NaN)."""
+    rule, indicator, fired = ruled.rule, ruled.indicator, ruled.fired
+    if rule.relation == "above":
+        extreme = np.max(indicator, where=fired, initial=-np.inf)
+    else:
+        extreme = np.min(indicator, where=fired, initial=np.inf)
+    with np.errstate(all="ignore"):
+        return min(float(beyond(rule, np.asarray(extreme))), 1e300)
 
 
 def _runs(flags: ArrayIn) -> list[tuple[int, int]]:
