@@ -68,3 +68,15 @@ def test_fermi_level_and_diffusivity_against_the_published_forms(solved):
         assert summary["D_n_cm2_per_s"] == pytest.approx(expected, rel=1e-12), index
         checked += 1
     assert checked >= 10
+
+
+def test_a_summary_of_several_points_asks_for_one_index():
+    import pytest
+
+    from checker import load_material, solve_equilibrium
+    from checker.api import state_summary
+
+    state = solve_equilibrium(load_material("Si"), [300.0, 400.0], {"P": 1e22})
+    assert state_summary(state, 1)["temperature_K"] == 400.0
+    with pytest.raises(ValueError, match="selects 2 points"):
+        state_summary(state)

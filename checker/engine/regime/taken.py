@@ -1,6 +1,6 @@
 """A read-through view of the solved values: each quantity taken from a base mapping
-(one element of a sweep chunk's one-value array, the rows of some calculations, a list of
-Python numbers) on its first read, and kept.  The readers of the ~150 solved quantities
+(one element of a sweep chunk's one-value array, the rows of some calculations, a column
+of the summaries) on its first read, and kept.  The readers of the ~150 solved quantities
 each ask for a few dozen: only those are taken."""
 
 from __future__ import annotations

@@ -31,6 +31,12 @@ def trade_summary(
     ``residual`` (the ``state`` command), the band densities of states and the residual
     are added."""
 
+    chosen = np.asarray(values["T"])[index]
+    if chosen.size != 1:
+        raise ValueError(
+            f"index {index!r} selects {chosen.size} points of the values; give the index of one"
+        )
+
     def get(name: str) -> Any:
         return np.reshape(np.asarray(values[name])[index], 1)
 
