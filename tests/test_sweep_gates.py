@@ -58,6 +58,8 @@ def _rule_with_gate(text):
         ("present(stated_dens_n)", False),  # stated: 1 at every cell
         ("less(stated_dens_n, dens_x)", False),  # a stated number compared with a cell's
         ("stated_ni**0", False),  # NaN**0 is 1 (not followed)
+        ("present(1/0)", True),  # present() of inf is 0, as the parser's present gives
+        ("1 - present(1/0)", False),
     ],
 )
 def test_a_gate_is_closed_only_where_the_stated_numbers_fix_a_factor_at_0_or_nan(gate, closed):

@@ -64,7 +64,8 @@ def _known(node: Node, args: list[Known], names: Mapping[str, str], probe: Value
     nan = [math.isnan(a) for a in floats]
     every = len(floats) == len(args)  # every argument known
     if kind == CALL and node.value == "present":
-        return (0.0 if nan[0] else 1.0) if every else _FINITE_01
+        # present() tests for a finite value: inf is absent too
+        return (1.0 if math.isfinite(floats[0]) else 0.0) if every else _FINITE_01
     if kind == CALL and node.value == "less":
         if any(nan):  # NaN compares False either way
             return 0.0
