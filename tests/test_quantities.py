@@ -65,3 +65,18 @@ def test_a_table_spelling_is_its_own_normal_form():
     from checker.inputs.quantities import UNITS, _normalized_unit
 
     assert [unit for unit in UNITS if _normalized_unit(unit) != unit] == []
+
+
+def test_every_table_unit_agrees_with_pint():
+    # pint (an outside unit library) reads each spelling of the fast table, or its plain
+    # form where the spelling is trade-only ("/cm^3" for 1/cm^3, "Vs" for V*s): the
+    # table's dimension and factor to SI must be pint's
+    from checker.inputs.quantities import UNITS, _pint_unit
+
+    for unit, (dimension, factor) in UNITS.items():
+        if dimension == "temperature":  # offsets (degC) are read apart from pint
+            continue
+        plain = ("1" + unit if unit.startswith("/") else unit).replace("Vs", "(V*s)")
+        found, si = _pint_unit(plain, dimension, f"1 {plain}", "")
+        assert found == dimension, unit
+        assert si == pytest.approx(factor, rel=1e-12), unit

@@ -111,6 +111,19 @@ UNITS = {
     "mS": ("conductance", 1e-3),
     "uS": ("conductance", 1e-6),
     "eV*cm": ("energy times length", EV * _CM),
+    # further trade spellings, read here so that they do not load pint (~0.1 s)
+    "mm^2": ("area", 1e-6),
+    "mm2": ("area", 1e-6),
+    "um2": ("area", 1e-12),
+    "nm2": ("area", 1e-18),
+    "cm2": ("area", 1e-4),
+    "cm^2/V/s": ("mobility", _CM**2),
+    "cm2/V/s": ("mobility", _CM**2),
+    "MV/cm": ("field", 1e6 / _CM),
+    "mS/cm": ("conductivity", 1e-3 / _CM),
+    "Mohm": ("resistance", 1e6),
+    "mohm": ("resistance", 1e-3),
+    "mohm*cm": ("resistivity", 1e-3 * _CM),
 }
 # A decimal number in ASCII digits, optionally times a power of ten written the trade
 # way (1.5e16, 1.5x10^16, 1.5×10^16; superscripts are rewritten to ^ first).
