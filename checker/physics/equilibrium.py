@@ -48,7 +48,7 @@ from ..errors import ConvergenceError, InputError
 from . import _threads, energy_window
 from .arrays import ArrayIn, BoolArray, FloatArray, IndexArray, log_add, softplus
 from .bands import KaneBand
-from .constants import BOLTZMANN
+from .constants import BOLTZMANN, EV
 from .fermi import inverse_fermi_dirac_half_of_log, log_fermi_dirac, log_fermi_dirac_half_pair
 from .materials import Dopant, Material
 
@@ -1116,6 +1116,19 @@ def _temperature_terms(
     return _terms_of_bands(kT, Eg, Nc, Nv, narrowing)
 
 
+def _refuse_closed_gap(Eg: FloatArray, narrowing: FloatArray, kT: FloatArray) -> None:
+    """An input error naming the first point where the narrowing model closes the gap (a
+    model used far beyond its doping range, or a material file's V1 far above the
+    published 7-9 meV): no solve could converge there."""
+    Eg, narrowing, kT = np.broadcast_arrays(Eg, narrowing, kT)
+    at = int(np.argmax(Eg - narrowing <= 0))
+    raise InputError(
+        f"the band-gap narrowing model gives {narrowing.flat[at] / EV:.3g} eV, which closes "
+        f"the {Eg.flat[at] / EV:.3g} eV band gap at {kT.flat[at] / BOLTZMANN:.4g} K: check "
+        "the material's band_gap_narrowing parameters"
+    )
+
+
 def _band_rows(material: Material, T: FloatArray) -> tuple[FloatArray, ...]:
     """(kT, E_g, N_c, N_v) at temperatures T (K), as the state derives them."""
     kT = BOLTZMANN * T
@@ -1128,7 +1141,10 @@ def _band_rows(material: Material, T: FloatArray) -> tuple[FloatArray, ...]:
 def _terms_of_bands(
     kT: FloatArray, Eg: FloatArray, Nc: FloatArray, Nv: FloatArray, narrowing: FloatArray | float
 ) -> TemperatureTerms:
-    eg_kt: FloatArray = (Eg - narrowing) / kT
+    gap = Eg - narrowing
+    if np.ndim(narrowing) and np.any(gap <= 0):
+        _refuse_closed_gap(Eg, narrowing, kT)
+    eg_kt: FloatArray = gap / kT
     ni: FloatArray = np.sqrt(Nc * Nv) * np.exp(-0.5 * eg_kt)
     ln_nc: FloatArray = np.log(Nc)
     ln_nv: FloatArray = np.log(Nv)
