@@ -1116,15 +1116,15 @@ def _temperature_terms(
     return _terms_of_bands(kT, Eg, Nc, Nv, narrowing)
 
 
-def _refuse_closed_gap(Eg: FloatArray, narrowing: FloatArray, kT: FloatArray) -> None:
+def _refuse_closed_gap(Eg: FloatArray, narrowing: FloatArray | float, kT: FloatArray) -> None:
     """An input error naming the first point where the narrowing model closes the gap (a
     model used far beyond its doping range, or a material file's V1 far above the
     published 7-9 meV): no solve could converge there."""
-    Eg, narrowing, kT = np.broadcast_arrays(Eg, narrowing, kT)
-    at = int(np.argmax(Eg - narrowing <= 0))
+    gap, lowering, thermal = np.broadcast_arrays(Eg, narrowing, kT)
+    at = int(np.argmax(gap - lowering <= 0))
     raise InputError(
-        f"the band-gap narrowing model gives {narrowing.flat[at] / EV:.3g} eV, which closes "
-        f"the {Eg.flat[at] / EV:.3g} eV band gap at {kT.flat[at] / BOLTZMANN:.4g} K: check "
+        f"the band-gap narrowing model gives {lowering.flat[at] / EV:.3g} eV, which closes "
+        f"the {gap.flat[at] / EV:.3g} eV band gap at {thermal.flat[at] / BOLTZMANN:.4g} K: check "
         "the material's band_gap_narrowing parameters"
     )
 
