@@ -171,7 +171,8 @@ def carrier_transport(
         result["sigma"] = transport.conductivity(
             state.n * conduction["n"], state.p * conduction["p"], result["mu_n"], result["mu_p"]
         )
-        result["rho"] = 1.0 / result["sigma"]
+        with np.errstate(divide="ignore"):  # no carriers (n, p underflow to 0): rho = inf
+            result["rho"] = 1.0 / result["sigma"]
     return result
 
 

@@ -75,7 +75,8 @@ def hall_density(
     """
     n, p, mu_n, mu_p = (np.asarray(v, dtype=float) for v in (n, p, mu_n, mu_p))
     numerator = rH_p * p * mu_p**2 - rH_n * n * mu_n**2
-    coefficient = numerator / (ELEMENTARY_CHARGE * (n * mu_n + p * mu_p) ** 2)
+    with np.errstate(invalid="ignore"):  # no carriers: R_H unknown (NaN)
+        coefficient = numerator / (ELEMENTARY_CHARGE * (n * mu_n + p * mu_p) ** 2)
     with np.errstate(divide="ignore"):
         density: FloatArray = 1.0 / (ELEMENTARY_CHARGE * np.abs(coefficient))
     return density

@@ -61,7 +61,8 @@ def unidirectional_velocity(bands: energy_window.Bands, eta: ArrayIn, T: ArrayIn
     sigma = q n mu, D = mu (kT/q) (D/mu ratio); lambda = 2D/<v_x+> then gives
     <v_x+> = 2 kT (D/mu ratio) sigma_1/(q^2 n), sigma_1 the conductivity per metre of
     lambda.  Limits: sqrt(2kT/(pi m*)) for a non-degenerate parabolic band in 1D, 2D
-    and 3D; (2/pi) v_F for a linear 2D band at every eta.  Units: T in K.
+    and 3D; (2/pi) v_F for a linear 2D band at every eta.  Units: T in K.  NaN where
+    the carrier density underflows to 0 (a few kelvin in a wide-gap or undoped crystal).
 
     References
     ----------
@@ -71,7 +72,8 @@ def unidirectional_velocity(bands: energy_window.Bands, eta: ArrayIn, T: ArrayIn
     per_metre = energy_window.diffusive_conductivity(bands, eta, T, 1.0)
     ratio = energy_window.generalized_einstein_ratio(bands, eta, T)
     kT = BOLTZMANN * np.asarray(T, dtype=float)
-    velocity: FloatArray = 2.0 * kT * ratio * per_metre / (ELEMENTARY_CHARGE**2 * density)
+    with np.errstate(invalid="ignore", divide="ignore"):  # n underflows to 0: unknown (NaN)
+        velocity: FloatArray = 2.0 * kT * ratio * per_metre / (ELEMENTARY_CHARGE**2 * density)
     return velocity
 
 

@@ -980,7 +980,8 @@ def derive_corrected(
         values["dens_n"] * values["cond_n"] * values["used_mu_n"]
         + values["dens_p"] * values["cond_p"] * values["used_mu_p"]
     )
-    values["rho"] = 1.0 / values["sigma"]
+    with np.errstate(divide="ignore"):  # no carriers (n, p underflow to 0): rho = inf
+        values["rho"] = 1.0 / values["sigma"]
     stated_rho = values["stated_rho"]
     values["used_rho"] = np.where(
         np.isfinite(stated_rho) & kept("used_rho"), stated_rho, values["rho"]
