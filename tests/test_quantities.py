@@ -18,10 +18,12 @@ from checker.inputs.quantities import parse_quantity, parse_temperature
         ("1350 cm^2/(V*s)", "mobility", 0.135),
         ("0.03 ohm*cm", "resistivity", 3e-4),
         ("45 meV", "energy", 0.045 * sc.e),  # eV from scipy.constants (CODATA)
-        # outside the table: read by pint after the gate
         ("2 mm^2", "area", 2e-6),
+        # outside the table: read by pint after the gate
         ("3 kohm*cm", "resistivity", 30.0),
         ("500 Ω/sq", "sheet resistance", 500.0),
+        ("500 Ω/□", "sheet resistance", 500.0),  # the datasheet sign of a square
+        ("1.2 kΩ/□", "sheet resistance", 1200.0),
         ("1 MV/m", "field", 1e6),
         ("4 uS/cm", "conductivity", 4e-4),
         ("250 nm", "length", 2.5e-7),

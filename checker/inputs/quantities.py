@@ -180,7 +180,8 @@ def _normal_text(text: str) -> str:
 
 @lru_cache(maxsize=512)
 def _normal_unit(unit: str) -> str:
-    """The trade spellings of a unit in the form of the table: Ω·cm -> ohm*cm, µm -> um
+    """The trade spellings of a unit in the form of the table: Ω·cm -> ohm*cm, µm -> um,
+    Ω/□ -> ohm/sq
     (kept per spelling: a file of many calculations writes the same few units).  A
     spelling of the table is its own normal form (test): it is kept as it is."""
     return unit if unit in UNITS else _normalized_unit(unit)
@@ -191,7 +192,7 @@ def _normalized_unit(unit: str) -> str:
     unit = re.sub(_DOT_DENOMINATOR, r"/(\1)", unit)
     for mark in "·⋅×":
         unit = unit.replace(mark, "*")
-    unit = unit.replace("Ω", "ohm").replace("µ", "u").replace("μ", "u")
+    unit = unit.replace("Ω", "ohm").replace("µ", "u").replace("μ", "u").replace("□", "sq")
     return re.sub(r"(?<![A-Za-z])([kMGm]?)Ohm", r"\1ohm", unit)
 
 
