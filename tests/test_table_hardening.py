@@ -144,6 +144,25 @@ def test_quoted_newline_reports_the_line_where_the_row_starts(tmp_path):
     assert error.startswith(f"{path}:6: column 'resistivity [ohm*cm]'")
 
 
+def test_a_row_with_more_fields_than_the_header_is_named(tmp_path):
+    """RFC 4180 §2.4: each line should hold the same number of fields; a separator inside
+    an unquoted name shifts every later cell, so the row is refused with its field count
+    (trailing empty fields, as spreadsheets write them, are not extra fields)."""
+    path = tmp_path / "shifted.csv"
+    path.write_text(
+        HEADER
+        + "lot 1,Si,P,1e16,300 K,0.5\n"
+        + "lot 2, wafer 3,Si,P,1e16,300 K,0.5\n"
+        + "lot 4,Si,P,1e16,300 K,0.5,,\n",
+        encoding="utf-8",
+    )
+    read = read_table(path)
+    assert [c.line for c in read.calculations] == [2, 4]
+    (error,) = read.errors
+    assert error.startswith(f"{path}:3: the row has 7 fields where the header has 6")
+    assert "quote a field" in error
+
+
 @pytest.mark.parametrize("cell", ["nan", "inf", "-inf", "NaN"])
 def test_non_finite_hall_scattering_is_an_input_error(tmp_path, cell):
     """The scattering exponent r of tau ∝ E^r is a finite number (Lundstrom 2000, ch. 4:

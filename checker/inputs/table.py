@@ -274,8 +274,9 @@ def _read_rows(path, lines: _CountedLines, mapping) -> FileResult:
         except csv.Error:
             dialect = csv.excel
         rows = csv.reader(itertools.chain([first], lines), dialect, strict=True)
+        header = next(rows)
         try:
-            columns, errors = _columns(next(rows), f"{path}:{header_line}", mapping)
+            columns, errors = _columns(header, f"{path}:{header_line}", mapping)
         except InputError as exc:
             return FileResult(path, [], [str(exc)])
         calculations, count, line = [], 0, header_line
@@ -297,6 +298,14 @@ def _read_rows(path, lines: _CountedLines, mapping) -> FileResult:
                         f"{MAX_TABLE_ROWS:,} rows"
                     ],
                 )
+            if any(cell.strip() for cell in row[len(header) :]):
+                # a separator inside an unquoted name or number shifts every later cell
+                errors.append(
+                    f"{path}:{line}: the row has {len(row)} fields where the header has "
+                    f'{len(header)}; quote a field that holds a separator ("a, b") or '
+                    "remove the extra one"
+                )
+                continue
             try:
                 calculations.append(_row(row, columns, path, line))
             except InputError as exc:
