@@ -191,7 +191,7 @@ def _keep_freed_memory() -> None:
     175 -> 152 MB).  A process-wide setting: made by the command in a process of its own
     only, never for a program that calls the engine.  Another C library (no mallopt) is
     left as it is."""
-    import ctypes  # (numpy has imported it)
+    import ctypes  # (numpy, imported next, loads it anyway)
 
     try:
         mallopt = ctypes.CDLL(None).mallopt

@@ -24,6 +24,7 @@ from typing import Any, TypeAlias
 import numpy as np
 
 from ..physics import transport
+from ..physics.arrays import distinct
 from ..physics.constants import EV
 from ..records import FrozenRecord
 from .display_units import DISPLAY_UNITS
@@ -105,7 +106,7 @@ def _diffusivity(x: str) -> Compute:
             if (dims == first).all():
                 return transport.diffusion_coefficient(mu, T, eta, int(first))
             out = np.empty(dims.size)
-            for dim in np.unique(dims).tolist():
+            for dim in distinct(dims).tolist():
                 at = dims == dim
                 out[at] = transport.diffusion_coefficient(mu[at], T[at], eta[at], int(dim))
             return out

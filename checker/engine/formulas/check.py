@@ -21,7 +21,7 @@ For each formula ``lhs = rhs`` of a calculation:
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Collection, Iterable, Mapping, Sequence
+from collections.abc import Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
 from itertools import combinations
@@ -41,7 +41,7 @@ from ..findings import Correction, Embodied, Finding, carrier_code
 from ..regime.corrected import formula_key
 from ..regime.rulebook import PLACEHOLDER, Rule
 from ..regime.state_values import Values
-from ..regime.taken import Taken
+from ..regime.taken import Made, Taken
 from . import match_store
 from .match import Match, analyse
 from .relations import World, band_world, world
@@ -261,23 +261,10 @@ def _has_dimension(tree: Node, dim: int, target: dm.Dimension) -> bool:
 
 
 # ---- values at the operating point ----------------------------------------------------------
-class _Made(dict[str, np.ndarray]):
-    """Columns made on their first read by ``make(name)`` and kept (KeyError: no such
-    symbol, nothing kept): a group's formulas read a few of the ~70 symbols."""
-
-    def __init__(self, make: Callable[[str], np.ndarray]) -> None:
-        super().__init__()
-        self._make = make
-
-    def __missing__(self, name: str) -> np.ndarray:
-        column = self[name] = self._make(name)
-        return column
-
-
 _CONSTANTS = {"h": PLANCK, "m0": ELECTRON_MASS, "pi": math.pi}
 
 
-def _symbol_columns(values: Values, calculations: Sequence[Calculation], dims: np.ndarray) -> _Made:
+def _symbol_columns(values: Values, calculations: Sequence[Calculation], dims: np.ndarray) -> Made:
     """Each formula symbol's values over the calculations, made on its first read."""
     count = len(calculations)
 
@@ -318,7 +305,7 @@ def _symbol_columns(values: Values, calculations: Sequence[Calculation], dims: n
             column = np.where(dims == 3, column, np.nan)
         return column
 
-    return _Made(make)
+    return Made(make)
 
 
 def _operating_groups(
@@ -338,7 +325,7 @@ def _operating_groups(
     ]
 
 
-def _group_columns(known: _Made, members: list[int], base: World) -> _Made:
+def _group_columns(known: Made, members: list[int], base: World) -> Made:
     """The symbols at a group's members: the known columns taken at them, the rest from
     the world's definitions."""
     rows = np.asarray(members, dtype=np.intp)
@@ -355,7 +342,7 @@ def _group_columns(known: _Made, members: list[int], base: World) -> _Made:
         taken: np.ndarray = column[rows]
         return taken
 
-    point = _Made(make)
+    point = Made(make)
     return point
 
 

@@ -31,7 +31,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ...physics.arrays import ArrayIn, BoolArray, FloatArray, IndexArray
-from ...quantity_registry.number_text import display, error_text
+from ...quantity_registry.number_text import display
 from ...records import Record
 from ...vocabulary_words import carrier_message_words
 from ..expressions.parser import names_in
@@ -719,8 +719,7 @@ def _add_findings(
             if column is not None:
                 message += column[j] + text
             elif corrections:
-                first = corrections[0]
-                message += error_text(first.stated, first.corrected, first.unit) + text
+                message += corrections[0].error_text() + text
             else:
                 message += "n/a" + text
         for text, held in causes:  # the first likely cause that holds here
